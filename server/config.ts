@@ -1,0 +1,56 @@
+import path from 'node:path';
+
+/** Every setting of the server, read from the environment with safe defaults (listed in the README). */
+export interface Config {
+  port: number;
+  mqttPort: number;
+  smtpPort: number;
+  dataDir: string;
+  databaseUrl: string;
+  /** When set, subscribe to this external broker instead of starting the embedded one. */
+  mqttUrl: string | null;
+  /** When set, send mail to this relay instead of the local mail catcher. */
+  smtpHost: string | null;
+  smtpUser: string | null;
+  smtpPass: string | null;
+  smtpSecure: boolean;
+  mailFrom: string;
+  publicUrl: string;
+  production: boolean;
+  logLevel: 'debug' | 'info' | 'warn' | 'error';
+}
+
+function intFrom(env: NodeJS.ProcessEnv, name: string, fallback: number): number {
+  const raw = env[name];
+  if (raw === undefined || raw === '') return fallback;
+  const n = Number(raw);
+  if (!Number.isInteger(n) || n < 0 || n > 65535) throw new Error(`${name} must be a port number, got "${raw}"`);
+  return n;
+}
+
+function textFrom(env: NodeJS.ProcessEnv, name: string): string | null {
+  const raw = env[name];
+  return raw === undefined || raw === '' ? null : raw;
+}
+
+export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
+  const port = intFrom(env, 'PORT', 3000);
+  const dataDir = path.resolve(env.DATA_DIR || './data');
+  const level = (env.LOG_LEVEL || 'info') as Config['logLevel'];
+  return {
+    port,
+    mqttPort: intFrom(env, 'MQTT_PORT', 1883),
+    smtpPort: intFrom(env, 'SMTP_PORT', 2525),
+    dataDir,
+    databaseUrl: env.DATABASE_URL || `sqlite:${path.join(dataDir, 'jacketwatch.sqlite')}`,
+    mqttUrl: textFrom(env, 'MQTT_URL'),
+    smtpHost: textFrom(env, 'SMTP_HOST'),
+    smtpUser: textFrom(env, 'SMTP_USER'),
+    smtpPass: textFrom(env, 'SMTP_PASS'),
+    smtpSecure: env.SMTP_SECURE === 'true',
+    mailFrom: env.MAIL_FROM || 'jacketwatch@localhost',
+    publicUrl: (env.PUBLIC_URL || `http://localhost:${port}`).replace(/\/$/, ''),
+    production: env.NODE_ENV === 'production',
+    logLevel: ['debug', 'info', 'warn', 'error'].includes(level) ? level : 'info',
+  };
+}

@@ -1,0 +1,69 @@
+import type http from 'node:http';
+import type { Sequelize } from 'sequelize';
+import type { ChannelKey } from '../../shared/channels';
+import type { Config } from '../config';
+import type { Logger } from '../logger';
+
+/** The latest value of one channel as the live state knows it. */
+export interface LatestValue {
+  value: number;
+  ts: number;
+  quality: 0 | 1;
+}
+
+export type RunState = 'running' | 'stopped' | 'no-data';
+
+/** One accepted reading, as the ingest hands it to listeners (live push, rule engine). */
+export interface AcceptedReading {
+  engineId: number;
+  channel: ChannelKey;
+  ts: number;
+  value: number;
+  quality: 0 | 1;
+}
+
+export interface LiveState {
+  latest(engineId: number): Partial<Record<ChannelKey, LatestValue>>;
+  lastSeen(engineId: number): number | null;
+  runState(engineId: number, now?: number): RunState;
+}
+
+export interface IngestCounters {
+  received: number;
+  stored: number;
+  rejected: Record<string, number>;
+  outOfRange: number;
+  buffered: number;
+  batches: number;
+  batchLatencyMs: { last: number; p50: number; p95: number; max: number };
+  startedAt: string;
+}
+
+export interface AuthUser {
+  id: number;
+  email: string;
+  role: 'admin' | 'planner' | 'technician' | 'operator';
+}
+
+export interface TelemetryDeps {
+  config: Config;
+  sequelize: Sequelize;
+  httpServer: http.Server;
+  /** Checks a JWT from a socket.io handshake; null when it is not valid. */
+  verifyToken(token: string): AuthUser | null;
+  /** siteId of an engine, for live-push rooms; null when unknown. */
+  siteOfEngine(engineId: number): Promise<number | null>;
+  log: Logger;
+}
+
+export interface Telemetry {
+  liveState: LiveState;
+  counters(): IngestCounters;
+  /** Per-device reject counts since start (also persisted in device_rejections). */
+  /** Called for every batch of accepted readings (after validation, before the write). */
+  onReadings(listener: (readings: AcceptedReading[]) => void): void;
+  /** Emit an event to a socket.io room (`fleet`, `site:<id>`, `engine:<id>`). */
+  emit(room: string, event: string, payload: unknown): void;
+  /** Flush the buffer and close broker and sockets. */
+  stop(): Promise<void>;
+}
