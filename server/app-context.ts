@@ -1,0 +1,18 @@
+import type { Sequelize } from 'sequelize';
+import type { TokenService } from './auth/tokens';
+import type { Config } from './config';
+import type { Logger } from './logger';
+import type { Models } from './models';
+import type { Telemetry } from './telemetry/types';
+
+/** What routes and services need; one per running server (app.locals.ctx). */
+export interface AppContext {
+  config: Config;
+  log: Logger;
+  sequelize: Sequelize;
+  models: Models;
+  tokens: TokenService;
+  /** Set once telemetry has started; before that every engine reads as having no data. */
+  telemetry: Pick<Telemetry, 'liveState' | 'counters'> | null;
+  startedAt: number;
+}

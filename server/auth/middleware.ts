@@ -1,0 +1,42 @@
+import type { NextFunction, Request, Response } from 'express';
+import { HttpError } from '../http-error';
+import type { Role } from '../models/user';
+import type { AuthUser } from '../telemetry/types';
+import type { AppContext } from '../app-context';
+
+declare global {
+  // eslint-disable-next-line @typescript-eslint/no-namespace
+  namespace Express {
+    interface Request {
+      /** Set by requireAuth. */
+      user?: AuthUser;
+    }
+  }
+}
+
+function bearer(req: Request): string | null {
+  const h = req.get('authorization');
+  const m = h ? /^Bearer\s+(\S+)$/i.exec(h) : null;
+  return m ? m[1] : null;
+}
+
+/** 401 unless the request carries a valid token of an enabled user; sets req.user. Works in any router of the app. */
+export async function requireAuth(req: Request, _res: Response, next: NextFunction): Promise<void> {
+  const ctx = req.app.locals.ctx as AppContext;
+  const claims = ctx.tokens.verify(bearer(req));
+  if (!claims) throw new HttpError(401, 'sign-in required');
+  // a disabled or deleted user loses access at once, not when the token expires
+  const user = await ctx.models.User.findByPk(claims.id, { attributes: ['id', 'email', 'role', 'disabled'] });
+  if (!user || user.disabled) throw new HttpError(401, 'account is not active');
+  req.user = { id: user.id, email: user.email, role: user.role };
+  next();
+}
+
+/** 403 unless req.user has one of the roles (use after requireAuth). */
+export function requireRole(...roles: Role[]) {
+  return (req: Request, _res: Response, next: NextFunction): void => {
+    if (!req.user) throw new HttpError(401, 'sign-in required');
+    if (!roles.includes(req.user.role)) throw new HttpError(403, `needs role ${roles.join(' or ')}`);
+    next();
+  };
+}

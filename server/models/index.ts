@@ -1,0 +1,34 @@
+import type { Sequelize } from 'sequelize';
+import { Device, initDevice } from './device';
+import { DeviceRejection, initDeviceRejection } from './device-rejection';
+import { Engine, initEngine } from './engine';
+import { Site, initSite } from './site';
+import { User, initUser } from './user';
+
+export interface Models {
+  User: typeof User;
+  Site: typeof Site;
+  Engine: typeof Engine;
+  Device: typeof Device;
+  DeviceRejection: typeof DeviceRejection;
+}
+
+/** Initialise every model on this Sequelize instance and wire the associations. */
+export function initModels(sequelize: Sequelize): Models {
+  const models: Models = {
+    User: initUser(sequelize),
+    Site: initSite(sequelize),
+    Engine: initEngine(sequelize),
+    Device: initDevice(sequelize),
+    DeviceRejection: initDeviceRejection(sequelize),
+  };
+  models.Site.hasMany(models.Engine, { foreignKey: 'siteId', as: 'engines' });
+  models.Engine.belongsTo(models.Site, { foreignKey: 'siteId', as: 'site' });
+  models.Engine.hasMany(models.Device, { foreignKey: 'engineId', as: 'devices' });
+  models.Device.belongsTo(models.Engine, { foreignKey: 'engineId', as: 'engine' });
+  models.Device.hasMany(models.DeviceRejection, { foreignKey: 'deviceId', as: 'rejections' });
+  models.DeviceRejection.belongsTo(models.Device, { foreignKey: 'deviceId', as: 'device' });
+  return models;
+}
+
+export { Device, DeviceRejection, Engine, Site, User };

@@ -1,0 +1,21 @@
+import { DataTypes, Model, type CreationOptional, type InferAttributes, type InferCreationAttributes, type Sequelize } from 'sequelize';
+
+export class Site extends Model<InferAttributes<Site>, InferCreationAttributes<Site>> {
+  declare id: CreationOptional<number>;
+  declare name: string;
+  /** IANA zone name, e.g. America/Chicago: local times of the site (rota, schedules) use it. */
+  declare timeZone: string;
+  declare retiredAt: CreationOptional<Date | null>;
+}
+
+export function initSite(sequelize: Sequelize): typeof Site {
+  return Site.init(
+    {
+      id: { type: DataTypes.INTEGER, primaryKey: true, autoIncrement: true },
+      name: { type: DataTypes.STRING(120), allowNull: false },
+      timeZone: { type: DataTypes.STRING(64), allowNull: false },
+      retiredAt: { type: DataTypes.DATE, allowNull: true },
+    },
+    { sequelize, tableName: 'sites', underscored: true, timestamps: false },
+  );
+}

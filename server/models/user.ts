@@ -1,0 +1,37 @@
+import { DataTypes, Model, type CreationOptional, type InferAttributes, type InferCreationAttributes, type Sequelize } from 'sequelize';
+
+export const ROLES = ['admin', 'planner', 'technician', 'operator'] as const;
+export type Role = (typeof ROLES)[number];
+
+export class User extends Model<InferAttributes<User>, InferCreationAttributes<User>> {
+  declare id: CreationOptional<number>;
+  declare email: string;
+  declare name: string;
+  declare passwordHash: string;
+  declare role: Role;
+  declare disabled: CreationOptional<boolean>;
+  declare createdAt: CreationOptional<Date>;
+  declare updatedAt: CreationOptional<Date>;
+
+  /** Never expose the hash. */
+  override toJSON(): Omit<InferAttributes<User>, 'passwordHash'> {
+    const { passwordHash: _hash, ...rest } = this.get({ plain: true });
+    return rest;
+  }
+}
+
+export function initUser(sequelize: Sequelize): typeof User {
+  return User.init(
+    {
+      id: { type: DataTypes.INTEGER, primaryKey: true, autoIncrement: true },
+      email: { type: DataTypes.STRING(254), allowNull: false, unique: true, set(v: string) { this.setDataValue('email', v.trim().toLowerCase()); } },
+      name: { type: DataTypes.STRING(120), allowNull: false },
+      passwordHash: { type: DataTypes.STRING(100), allowNull: false },
+      role: { type: DataTypes.STRING(16), allowNull: false, validate: { isIn: [ROLES as unknown as string[]] } },
+      disabled: { type: DataTypes.BOOLEAN, allowNull: false, defaultValue: false },
+      createdAt: DataTypes.DATE,
+      updatedAt: DataTypes.DATE,
+    },
+    { sequelize, tableName: 'users', underscored: true },
+  );
+}

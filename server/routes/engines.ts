@@ -1,0 +1,87 @@
+import { Router } from 'express';
+import { z } from 'zod';
+import { CHANNEL_KEYS } from '../../shared/channels';
+import { requireAuth, requireRole } from '../auth/middleware';
+import type { AppContext } from '../app-context';
+import { badRequest } from '../http-error';
+import { COOLANT_FAMILIES, DUTIES, GLYCOL_TYPES } from '../models/engine';
+import { createEngine, engineView, getEngine, listEngines, retireEngine, updateEngine } from '../services/engines';
+import { queryBuckets } from '../services/readings-query';
+import { instant, parse, parseId } from './validate';
+
+const range = (min: number, max: number, unit: string) => z.number().min(min, `at least ${min} ${unit}`).max(max, `at most ${max} ${unit}`);
+
+// SI only; ranges are common practice for stationary engines, wide enough for any real one
+const engineFields = {
+  siteId: z.number().int().positive(),
+  name: z.string().trim().min(1).max(120),
+  duty: z.enum(DUTIES),
+  capacityL: range(1, 5000, 'L'),
+  coolantFamily: z.enum(COOLANT_FAMILIES),
+  glycolType: z.enum(GLYCOL_TYPES),
+  glycolPercent: range(0, 70, '%'),
+  capPressureKpa: range(0, 300, 'kPa'),
+  oilDrainIntervalH: range(50, 5000, 'h'),
+  runHours: range(0, 1_000_000, 'h'),
+  safeOpenTempC: range(20, 70, 'degC'),
+  heaterSetpointC: range(5, 70, 'degC').nullable(),
+  outOfService: z.boolean(),
+};
+const createBody = z.strictObject({
+  ...engineFields,
+  duty: engineFields.duty.default('standby'),
+  coolantFamily: engineFields.coolantFamily.default('conventional'),
+  glycolType: engineFields.glycolType.default('ethylene'),
+  glycolPercent: engineFields.glycolPercent.default(50),
+  capPressureKpa: engineFields.capPressureKpa.default(100),
+  oilDrainIntervalH: engineFields.oilDrainIntervalH.default(250),
+  runHours: engineFields.runHours.default(0),
+  safeOpenTempC: engineFields.safeOpenTempC.default(50),
+  heaterSetpointC: engineFields.heaterSetpointC.default(null),
+  outOfService: engineFields.outOfService.default(false),
+});
+const patchBody = z.strictObject(engineFields).partial();
+const listQuery = z.object({ siteId: z.coerce.number().int().positive().optional(), includeRetired: z.enum(['true', 'false']).optional() });
+
+const DAY_MS = 24 * 3600 * 1000;
+const readingsQuery = z.object({
+  channel: z.enum(CHANNEL_KEYS as [string, ...string[]]),
+  from: instant.optional(),
+  to: instant.optional(),
+  points: z.coerce.number().int().min(1).max(2000).default(500),
+});
+
+export function enginesRouter(ctx: AppContext): Router {
+  const r = Router();
+  const live = () => ctx.telemetry?.liveState ?? null;
+  r.use('/engines', requireAuth);
+  r.get('/engines', async (req, res) => {
+    const q = parse(listQuery, req.query);
+    const engines = await listEngines(ctx.models, { siteId: q.siteId, includeRetired: q.includeRetired === 'true' });
+    res.json(engines.map((e) => engineView(e, live())));
+  });
+  r.get('/engines/:id', async (req, res) => {
+    res.json(engineView(await getEngine(ctx.models, parseId(req.params)), live()));
+  });
+  r.get('/engines/:id/readings', async (req, res) => {
+    const id = parseId(req.params);
+    const q = parse(readingsQuery, req.query);
+    const to = q.to ?? Date.now();
+    const from = q.from ?? to - DAY_MS;
+    if (from >= to) throw badRequest('from must be before to', 'from');
+    if (to - from > 400 * DAY_MS) throw badRequest('span is at most 400 days', 'from');
+    await getEngine(ctx.models, id);
+    res.json(await queryBuckets(ctx.sequelize, { engineId: id, channel: q.channel as (typeof CHANNEL_KEYS)[number], from, to, points: q.points }));
+  });
+  r.post('/engines', requireRole('admin'), async (req, res) => {
+    res.status(201).json(engineView(await createEngine(ctx.models, parse(createBody, req.body)), live()));
+  });
+  r.patch('/engines/:id', requireRole('admin'), async (req, res) => {
+    const id = parseId(req.params);
+    res.json(engineView(await updateEngine(ctx.models, id, parse(patchBody, req.body)), live()));
+  });
+  r.delete('/engines/:id', requireRole('admin'), async (req, res) => {
+    res.json(engineView(await retireEngine(ctx.models, parseId(req.params)), live()));
+  });
+  return r;
+}

@@ -1,0 +1,26 @@
+import { Router } from 'express';
+import { requireAuth, requireRole } from '../auth/middleware';
+import type { AppContext } from '../app-context';
+import { ingestReport } from '../services/ingest-report';
+
+// eslint-disable-next-line @typescript-eslint/no-require-imports
+const VERSION: string = require('../../package.json').version;
+
+export function healthRouter(ctx: AppContext): Router {
+  const r = Router();
+  r.get('/health', (_req, res) => {
+    const c = ctx.telemetry?.counters() ?? null;
+    res.json({
+      status: 'ok',
+      uptimeS: Math.round((Date.now() - ctx.startedAt) / 1000),
+      version: VERSION,
+      ingest: c
+        ? { received: c.received, stored: c.stored, rejected: Object.values(c.rejected).reduce((a, b) => a + b, 0), buffered: c.buffered }
+        : null,
+    });
+  });
+  r.get('/admin/ingest', requireAuth, requireRole('admin'), async (_req, res) => {
+    res.json(await ingestReport(ctx));
+  });
+  return r;
+}

@@ -1,0 +1,31 @@
+import { Router } from 'express';
+import { z } from 'zod';
+import { requireAuth, requireRole } from '../auth/middleware';
+import type { AppContext } from '../app-context';
+import { createSite, listSites, retireSite, updateSite } from '../services/sites';
+import { parse, parseId, timeZone } from './validate';
+
+const siteFields = { name: z.string().trim().min(1).max(120), timeZone };
+const createBody = z.strictObject(siteFields);
+const patchBody = createBody.partial();
+const listQuery = z.object({ includeRetired: z.enum(['true', 'false']).optional() });
+
+export function sitesRouter(ctx: AppContext): Router {
+  const r = Router();
+  r.use('/sites', requireAuth);
+  r.get('/sites', async (req, res) => {
+    const q = parse(listQuery, req.query);
+    res.json(await listSites(ctx.models, q.includeRetired === 'true'));
+  });
+  r.post('/sites', requireRole('admin'), async (req, res) => {
+    res.status(201).json(await createSite(ctx.models, parse(createBody, req.body)));
+  });
+  r.patch('/sites/:id', requireRole('admin'), async (req, res) => {
+    const id = parseId(req.params);
+    res.json(await updateSite(ctx.models, id, parse(patchBody, req.body)));
+  });
+  r.delete('/sites/:id', requireRole('admin'), async (req, res) => {
+    res.json(await retireSite(ctx.models, parseId(req.params)));
+  });
+  return r;
+}

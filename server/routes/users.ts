@@ -1,0 +1,35 @@
+import { Router } from 'express';
+import { z } from 'zod';
+import { requireAuth, requireRole } from '../auth/middleware';
+import type { AppContext } from '../app-context';
+import { ROLES } from '../models/user';
+import { createUser, disableUser, listUsers, updateUser } from '../services/users';
+import { parse, parseId } from './validate';
+
+const userFields = {
+  email: z.email().max(254),
+  name: z.string().trim().min(1).max(120),
+  password: z.string().min(10, 'at least 10 characters').max(200),
+  role: z.enum(ROLES),
+};
+const createBody = z.strictObject(userFields);
+const patchBody = z.strictObject({ ...userFields, disabled: z.boolean() }).partial();
+
+export function usersRouter(ctx: AppContext): Router {
+  const r = Router();
+  r.use('/users', requireAuth, requireRole('admin'));
+  r.get('/users', async (_req, res) => {
+    res.json(await listUsers(ctx.models));
+  });
+  r.post('/users', async (req, res) => {
+    res.status(201).json(await createUser(ctx.models, parse(createBody, req.body)));
+  });
+  r.patch('/users/:id', async (req, res) => {
+    const id = parseId(req.params);
+    res.json(await updateUser(ctx.models, req.user!.id, id, parse(patchBody, req.body)));
+  });
+  r.delete('/users/:id', async (req, res) => {
+    res.json(await disableUser(ctx.models, req.user!.id, parseId(req.params)));
+  });
+  return r;
+}

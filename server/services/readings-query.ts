@@ -1,0 +1,71 @@
+import { QueryTypes, type Sequelize } from 'sequelize';
+import { CHANNELS, type ChannelKey } from '../../shared/channels';
+
+export interface Bucket {
+  /** Start of the bucket, ms since epoch. */
+  t: number;
+  min: number;
+  max: number;
+  mean: number;
+  count: number;
+}
+
+export interface BucketResult {
+  buckets: Bucket[];
+  source: 'raw' | 'rollup';
+}
+
+export interface ReadingsQuery {
+  engineId: number;
+  channel: ChannelKey;
+  from: number;
+  to: number;
+  points: number;
+}
+
+/** Spans up to this length come from raw readings; longer ones from the per-minute rollups. */
+export const RAW_SPAN_LIMIT_MS = 6 * 3600 * 1000;
+const MINUTE_MS = 60_000;
+
+// node-sqlite3 binds numbers beyond 32 bits as REAL: cast so the bucket division stays integer
+const intCast = (sequelize: Sequelize, n: number) => `CAST($${n} AS ${sequelize.getDialect() === 'postgres' ? 'BIGINT' : 'INTEGER'})`;
+
+interface Row {
+  b: number | string;
+  mn: number;
+  mx: number;
+  mean: number;
+  n: number | string;
+}
+
+/** Bucketed min/max/mean/count of good readings over [from, to): one grouped SQL query. */
+export async function queryBuckets(sequelize: Sequelize, q: ReadingsQuery): Promise<BucketResult> {
+  const code = CHANNELS[q.channel].code;
+  const span = q.to - q.from;
+  const source: BucketResult['source'] = span <= RAW_SPAN_LIMIT_MS ? 'raw' : 'rollup';
+  const c = (n: number) => intCast(sequelize, n);
+  let from = q.from;
+  let width: number;
+  let sql: string;
+  if (source === 'raw') {
+    width = Math.max(1, Math.ceil(span / q.points));
+    sql = `SELECT (ts - ${c(3)}) / ${c(5)} AS b, MIN(value) AS mn, MAX(value) AS mx, AVG(value) AS mean, COUNT(*) AS n
+      FROM readings
+      WHERE engine_id = $1 AND channel = $2 AND quality = 0 AND ts >= ${c(3)} AND ts < ${c(4)}
+      GROUP BY b ORDER BY b`;
+  } else {
+    // buckets are whole minutes, aligned to the minute of `from`
+    from = Math.floor(q.from / MINUTE_MS) * MINUTE_MS;
+    width = Math.max(1, Math.ceil((q.to - from) / MINUTE_MS / q.points)) * MINUTE_MS;
+    sql = `SELECT (minute - ${c(3)}) / ${c(5)} AS b, MIN("min") AS mn, MAX("max") AS mx,
+        SUM("sum") * 1.0 / SUM("count") AS mean, SUM("count") AS n
+      FROM rollups
+      WHERE engine_id = $1 AND channel = $2 AND "count" > 0 AND minute >= ${c(3)} AND minute < ${c(4)}
+      GROUP BY b ORDER BY b`;
+  }
+  const rows = await sequelize.query<Row>(sql, { bind: [q.engineId, code, from, q.to, width], type: QueryTypes.SELECT });
+  return {
+    source,
+    buckets: rows.map((r) => ({ t: from + Number(r.b) * width, min: Number(r.mn), max: Number(r.mx), mean: Number(r.mean), count: Number(r.n) })),
+  };
+}

@@ -1,0 +1,39 @@
+import { conflict, HttpError, notFound } from '../http-error';
+import type { Models, User } from '../models';
+import type { Role } from '../models/user';
+import { hashSecret } from './passwords';
+
+export interface UserInput {
+  email: string;
+  name: string;
+  password: string;
+  role: Role;
+}
+
+export const listUsers = (models: Models) => models.User.findAll({ order: [['id', 'ASC']] });
+
+async function ensureEmailFree(models: Models, email: string, exceptId?: number): Promise<void> {
+  const other = await models.User.findOne({ where: { email: email.trim().toLowerCase() } });
+  if (other && other.id !== exceptId) throw conflict('e-mail is already in use', 'email');
+}
+
+export async function createUser(models: Models, input: UserInput, cost?: number): Promise<User> {
+  await ensureEmailFree(models, input.email);
+  return models.User.create({ email: input.email, name: input.name, role: input.role, passwordHash: await hashSecret(input.password, cost) });
+}
+
+export async function updateUser(models: Models, actorId: number, id: number, patch: Partial<UserInput> & { disabled?: boolean }): Promise<User> {
+  const user = await models.User.findByPk(id);
+  if (!user) throw notFound('user');
+  if (id === actorId && (patch.disabled === true || (patch.role && patch.role !== 'admin'))) {
+    throw new HttpError(409, 'you cannot disable yourself or drop your own admin role', patch.disabled ? 'disabled' : 'role');
+  }
+  if (patch.email !== undefined) await ensureEmailFree(models, patch.email, id);
+  const { password, ...rest } = patch;
+  user.set(rest);
+  if (password !== undefined) user.passwordHash = await hashSecret(password);
+  return user.save();
+}
+
+/** Users are disabled, not deleted: their names stay on the records they signed. */
+export const disableUser = (models: Models, actorId: number, id: number) => updateUser(models, actorId, id, { disabled: true });
