@@ -1,0 +1,83 @@
+/** Mail catcher and outbox over real SMTP on loopback (random ports), into a real SQLite file. */
+import nodemailer from 'nodemailer';
+import { startMailCatcher, MAX_MESSAGE_BYTES, type MailCatcher } from '../../server/mail/mail-catcher';
+import { retryDelayMs, startOutbox, type Outbox } from '../../server/mail/outbox';
+import { initAlarmModels, type AlarmModels } from '../../server/models/alarm-models';
+import { freePort, quietLog, tempDb, waitFor, type TempDb } from './support/alarm-db';
+
+let db: TempDb;
+let m: AlarmModels;
+
+beforeAll(async () => {
+  db = await tempDb('jw-mail-');
+  m = initAlarmModels(db.sequelize);
+});
+afterAll(async () => db.close());
+
+const config = (port: number) => ({ smtpHost: null, smtpPort: port, smtpUser: null, smtpPass: null, smtpSecure: false, mailFrom: 'jacketwatch@localhost' });
+
+describe('mail catcher', () => {
+  let catcher: MailCatcher;
+  beforeAll(async () => {
+    catcher = await startMailCatcher({ port: 0, model: m.CaughtMail, log: quietLog });
+  });
+  afterAll(async () => catcher.stop());
+
+  it('keeps a message sent over SMTP, parsed', async () => {
+    const t = nodemailer.createTransport({ host: '127.0.0.1', port: catcher.port(), secure: false, ignoreTLS: true });
+    await t.sendMail({ from: 'a@jacketwatch.test', to: 'tech@jacketwatch.test', subject: 'Hello °C', text: 'plain body', html: '<p>html body</p>' });
+    const row = await m.CaughtMail.findOne({ where: { subject: 'Hello °C' } });
+    expect(row).not.toBeNull();
+    expect(row!.to).toBe('tech@jacketwatch.test');
+    expect(row!.from).toBe('a@jacketwatch.test');
+    expect(row!.text!.trim()).toBe('plain body');
+    expect(row!.html).toContain('<p>html body</p>');
+  });
+
+  it('refuses a message above the size limit and keeps nothing of it', async () => {
+    const t = nodemailer.createTransport({ host: '127.0.0.1', port: catcher.port(), secure: false, ignoreTLS: true });
+    const before = await m.CaughtMail.count();
+    await expect(t.sendMail({ from: 'a@x.test', to: 'b@x.test', subject: 'big', text: 'x'.repeat(MAX_MESSAGE_BYTES + 1000) })).rejects.toThrow();
+    expect(await m.CaughtMail.count()).toBe(before);
+  });
+
+  it('does not offer AUTH or STARTTLS', async () => {
+    const t = nodemailer.createTransport({ host: '127.0.0.1', port: catcher.port(), secure: false, requireTLS: true });
+    await expect(t.sendMail({ from: 'a@x.test', to: 'b@x.test', subject: 'tls', text: 't' })).rejects.toThrow();
+  });
+});
+
+describe('outbox', () => {
+  it('backs off exponentially up to a maximum', () => {
+    expect([1, 2, 3, 4, 10].map((a) => retryDelayMs(a, 1000, 6000))).toEqual([1000, 2000, 4000, 6000, 6000]);
+  });
+
+  it('delivers to the catcher, and keeps a message while the relay is down until it is back', async () => {
+    const port = await freePort();
+    const outbox: Outbox = startOutbox({ config: config(port), model: m.OutboxMessage, log: quietLog, retryBaseMs: 200, retryMaxMs: 800, pollMs: 100 });
+    try {
+      // relay down: nothing listens on the port
+      const msg = await outbox.enqueue({ to: 'tech@jacketwatch.test', subject: 'while down', text: 'kept' });
+      await waitFor(async () => ((await msg.reload()).attempts >= 2 ? true : null), 10000);
+      expect(msg.sentAt).toBeNull();
+      expect(msg.lastError).toBeTruthy();
+      expect(await m.CaughtMail.count({ where: { subject: 'while down' } })).toBe(0);
+
+      // relay back on the same port: the message arrives by itself
+      const catcher = await startMailCatcher({ port, model: m.CaughtMail, log: quietLog });
+      try {
+        const caught = await waitFor(() => m.CaughtMail.findOne({ where: { subject: 'while down' } }), 10000);
+        expect(caught.text!.trim()).toBe('kept');
+        await msg.reload();
+        expect(msg.sentAt).not.toBeNull();
+        // sent once only
+        await outbox.flush();
+        expect(await m.CaughtMail.count({ where: { subject: 'while down' } })).toBe(1);
+      } finally {
+        await catcher.stop();
+      }
+    } finally {
+      await outbox.stop();
+    }
+  });
+});

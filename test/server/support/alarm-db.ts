@@ -1,0 +1,53 @@
+/** A real SQLite file in a temp folder with every migration applied, for the alarm and mail tests. */
+import fs from 'node:fs';
+import net from 'node:net';
+import os from 'node:os';
+import path from 'node:path';
+import type { Sequelize } from 'sequelize';
+import { createLogger } from '../../../server/logger';
+import { createSequelize } from '../../../server/db/sequelize';
+import { migrate } from '../../../server/db/migrate';
+
+export const quietLog = createLogger('error', 'test');
+
+export interface TempDb {
+  dir: string;
+  sequelize: Sequelize;
+  close(): Promise<void>;
+}
+
+export async function tempDb(prefix = 'jw-alarms-'): Promise<TempDb> {
+  const dir = fs.mkdtempSync(path.join(os.tmpdir(), prefix));
+  const sequelize = createSequelize({ databaseUrl: `sqlite:${path.join(dir, 'test.sqlite')}`, logLevel: 'error' }, quietLog);
+  await migrate(sequelize);
+  return {
+    dir,
+    sequelize,
+    async close() {
+      await sequelize.close();
+      fs.rmSync(dir, { recursive: true, force: true });
+    },
+  };
+}
+
+export async function freePort(): Promise<number> {
+  return new Promise((resolve, reject) => {
+    const srv = net.createServer();
+    srv.unref();
+    srv.on('error', reject);
+    srv.listen(0, '127.0.0.1', () => {
+      const port = (srv.address() as net.AddressInfo).port;
+      srv.close(() => resolve(port));
+    });
+  });
+}
+
+export async function waitFor<T>(fn: () => Promise<T | null | undefined | false>, timeoutMs = 10000, stepMs = 100): Promise<T> {
+  const end = Date.now() + timeoutMs;
+  for (;;) {
+    const v = await fn();
+    if (v) return v;
+    if (Date.now() > end) throw new Error('timed out waiting');
+    await new Promise((r) => setTimeout(r, stepMs));
+  }
+}
