@@ -1,0 +1,157 @@
+/**
+ * The embedded MQTT broker: aedes on a TCP port, device authentication and the topic rules.
+ *
+ * How aedes treats our callbacks (aedes 1.2, lib/handlers/publish.js and lib/client.js):
+ * - authorizePublish runs before anything else for every PUBLISH (QoS 0 and 1). At QoS 1 the PUBACK
+ *   is written only after its callback returns without error, so "acked" means "in our buffer".
+ * - aedes reads the next chunk from a socket only when every packet of the previous chunk has
+ *   finished; holding the callback therefore stops reading that socket and TCP pushes back on the
+ *   device. That is our backpressure.
+ * - An error passed to the callback closes the connection (MQTT 3.1.1 has no negative PUBACK;
+ *   [MQTT-3.3.5-2] allows either a positive ack or closing). So a bad PAYLOAD is answered with a
+ *   positive ack: the device keeps its connection and its good values, the bad ones are counted.
+ *   A publish to another engine's topic is a misconfigured or hostile device: it is counted as
+ *   wrong_topic and refused with an error, which closes that connection.
+ */
+import net from 'node:net';
+import crypto from 'node:crypto';
+import { engineTopicPrefix, parseEngineTopic } from '../shared/topics';
+import type { Logger } from '../server/logger';
+
+export interface DeviceIdentity {
+  deviceId: number;
+  engineId: number;
+  username: string;
+}
+
+export interface BrokerOptions {
+  port: number;
+  host?: string;
+  authenticate(username: string, password: string): Promise<{ deviceId: number; engineId: number } | null>;
+  /** A telemetry payload on the device's own engine topic; call `done` when there is room for more. */
+  onTelemetry(device: DeviceIdentity, engineId: number, payload: Buffer, done: (err?: Error) => void): void;
+  onReject(device: DeviceIdentity | null, reason: string, detail: string): void;
+  log: Logger;
+  /** How long a good username/password stays trusted without a new bcrypt compare (ms). */
+  authCacheMs?: number;
+}
+
+export interface Broker {
+  port: number;
+  connectedClients(): number;
+  close(): Promise<void>;
+}
+
+// aedes is ESM-only; Node 20.20 can require() it from CommonJS (tsx), which keeps this module synchronous.
+// eslint-disable-next-line @typescript-eslint/no-require-imports
+const { Aedes } = require('aedes') as { Aedes: { createBroker(opts: object): Promise<AedesLike> } };
+
+interface AedesClient { id: string; jw?: DeviceIdentity; close(): void }
+interface AedesLike {
+  handle(socket: net.Socket): void;
+  close(cb: () => void): void;
+  connectedClients: number;
+  on(event: string, listener: (...args: any[]) => void): void;
+}
+type AuthError = Error & { returnCode?: number };
+
+const sha256 = (s: string) => crypto.createHash('sha256').update(s).digest('hex');
+
+export async function createBroker(opts: BrokerOptions): Promise<Broker> {
+  const { log } = opts;
+  const cacheMs = opts.authCacheMs ?? 30_000;
+  // username -> sha256(password) of a recent good login: reconnect storms skip bcrypt
+  const goodLogins = new Map<string, { digest: string; until: number; device: DeviceIdentity }>();
+
+  const refuse = (cb: (err: AuthError | null, ok: boolean) => void) => {
+    const err: AuthError = new Error('bad username or password');
+    err.returnCode = 4;
+    cb(err, false);
+  };
+
+  const aedes = await Aedes.createBroker({
+    concurrency: 1000,
+    authenticate(client: AedesClient, username: string | undefined, password: Buffer | undefined, cb: (err: AuthError | null, ok: boolean) => void) {
+      try {
+        if (!username || !password) return refuse(cb);
+        const secret = password.toString('utf8');
+        const digest = sha256(secret);
+        const cached = goodLogins.get(username);
+        if (cached && cached.until > Date.now() && cached.digest === digest) {
+          client.jw = cached.device;
+          return cb(null, true);
+        }
+        opts.authenticate(username, secret).then((found) => {
+          if (!found) return refuse(cb);
+          const device = { ...found, username };
+          goodLogins.set(username, { digest, until: Date.now() + cacheMs, device });
+          client.jw = device;
+          cb(null, true);
+        }, (err) => {
+          log.error('broker: authentication failed with an error', err);
+          refuse(cb);
+        });
+      } catch (err) {
+        log.error('broker: authenticate threw', err);
+        refuse(cb);
+      }
+    },
+    authorizePublish(client: AedesClient | null, packet: { topic: string; payload: Buffer; qos: number }, cb: (err?: Error | null) => void) {
+      try {
+        const device = client?.jw;
+        if (!device) return cb(new Error('not authenticated'));
+        const parsed = parseEngineTopic(packet.topic);
+        if (!parsed || parsed.engineId !== device.engineId) {
+          opts.onReject(device, 'wrong_topic', `topic "${packet.topic.slice(0, 120)}" is not under ${engineTopicPrefix(device.engineId)}`);
+          return cb(new Error('topic not allowed'));
+        }
+        if (parsed.kind === 'status') return cb(null);
+        let called = false;
+        const payload = Buffer.isBuffer(packet.payload) ? packet.payload : Buffer.from(packet.payload ?? '');
+        opts.onTelemetry(device, parsed.engineId, payload, () => {
+          if (called) return;
+          called = true;
+          cb(null); // positive ack even for a bad payload: see the comment at the top
+        });
+      } catch (err) {
+        log.error('broker: authorizePublish threw', err);
+        cb(null);
+      }
+    },
+    authorizeSubscribe(client: AedesClient | null, sub: { topic: string; qos: number }, cb: (err: Error | null, sub: unknown) => void) {
+      const device = client?.jw;
+      // null grants nothing (SUBACK 128) but keeps the connection
+      if (!device || !sub.topic.startsWith(engineTopicPrefix(device.engineId))) return cb(null, null);
+      cb(null, sub);
+    },
+    // telemetry is for the server, not for other MQTT subscribers
+    authorizeForward(_client: AedesClient, packet: { topic: string }) {
+      return packet.topic.endsWith('/telemetry') ? null : packet;
+    },
+  });
+
+  aedes.on('clientError', (client: AedesClient, err: Error) => log.debug(`broker: client ${client?.id} error: ${err.message}`));
+  aedes.on('connectionError', (_client: AedesClient, err: Error) => log.debug(`broker: connection error: ${err.message}`));
+
+  const server = net.createServer((socket) => {
+    socket.on('error', () => undefined);
+    aedes.handle(socket);
+  });
+  const host = opts.host ?? '127.0.0.1';
+  await new Promise<void>((resolve, reject) => {
+    server.once('error', reject);
+    server.listen(opts.port, host, () => { server.off('error', reject); resolve(); });
+  });
+  const address = server.address();
+  const port = typeof address === 'object' && address ? address.port : opts.port;
+  log.info(`broker: MQTT on ${host}:${port}`);
+
+  return {
+    port,
+    connectedClients: () => aedes.connectedClients,
+    close: () => new Promise<void>((resolve) => {
+      server.close(() => undefined);
+      aedes.close(() => resolve());
+    }),
+  };
+}

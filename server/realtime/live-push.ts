@@ -1,0 +1,136 @@
+/**
+ * socket.io live push: JWT at the handshake, rooms per fleet/site/engine, and per-engine
+ * coalescing of readings with a leading-edge throttle (first message at once, then at most one
+ * per window with the latest values, and a trailing flush).
+ */
+import type http from 'node:http';
+import { Server, type Socket } from 'socket.io';
+import { z } from 'zod';
+import type { ChannelKey } from '../../shared/channels';
+import type { Logger } from '../logger';
+import type { AcceptedReading, AuthUser, LatestValue } from '../telemetry/types';
+
+export interface LivePushOptions {
+  httpServer: http.Server;
+  verifyToken(token: string): AuthUser | null;
+  siteOfEngine(engineId: number): Promise<number | null>;
+  log: Logger;
+  throttleMs?: number;
+}
+
+export interface ReadingsMessage {
+  engineId: number;
+  siteId: number | null;
+  ts: number;
+  values: Partial<Record<ChannelKey, LatestValue>>;
+}
+
+const watchSchema = z.object({
+  fleet: z.boolean().optional(),
+  siteIds: z.array(z.number().int().positive()).max(1000).optional(),
+  engineIds: z.array(z.number().int().positive()).max(5000).optional(),
+});
+
+interface Pending { values: Partial<Record<ChannelKey, LatestValue>>; timer: NodeJS.Timeout | null; dirty: boolean }
+
+const SITE_CACHE_MS = 60_000;
+
+export class LivePush {
+  readonly io: Server;
+  private readonly throttleMs: number;
+  private readonly pending = new Map<number, Pending>();
+  private readonly sites = new Map<number, { siteId: number | null; until: number }>();
+
+  constructor(private readonly opts: LivePushOptions) {
+    this.throttleMs = opts.throttleMs ?? 250;
+    this.io = new Server(opts.httpServer, { serveClient: false, cors: { origin: false } });
+    this.io.use((socket, next) => {
+      try {
+        const token = socket.handshake.auth?.token;
+        const user = typeof token === 'string' ? opts.verifyToken(token) : null;
+        if (!user) return next(new Error('unauthorized'));
+        socket.data.user = user;
+        next();
+      } catch {
+        next(new Error('unauthorized'));
+      }
+    });
+    this.io.on('connection', (socket) => this.onConnection(socket));
+  }
+
+  private onConnection(socket: Socket): void {
+    socket.on('watch', (raw: unknown, ack?: unknown) => {
+      const parsed = watchSchema.safeParse(raw);
+      const reply = typeof ack === 'function' ? (ack as (x: unknown) => void) : () => undefined;
+      if (!parsed.success) return reply({ error: 'watch takes { fleet?, siteIds?, engineIds? }' });
+      // a new watch replaces the previous one
+      for (const room of socket.rooms) if (room !== socket.id) void socket.leave(room);
+      const rooms: string[] = [];
+      if (parsed.data.fleet) rooms.push('fleet');
+      for (const id of parsed.data.siteIds ?? []) rooms.push(`site:${id}`);
+      for (const id of parsed.data.engineIds ?? []) rooms.push(`engine:${id}`);
+      void socket.join(rooms);
+      reply({ rooms });
+    });
+  }
+
+  emit(room: string, event: string, payload: unknown): void {
+    this.io.to(room).emit(event, payload);
+  }
+
+  /** Takes every accepted batch; sends per engine, throttled. */
+  push(readings: AcceptedReading[]): void {
+    for (const r of readings) {
+      let p = this.pending.get(r.engineId);
+      if (!p) {
+        p = { values: {}, timer: null, dirty: false };
+        this.pending.set(r.engineId, p);
+      }
+      const prev = p.values[r.channel];
+      if (!prev || r.ts >= prev.ts) { p.values[r.channel] = { value: r.value, ts: r.ts, quality: r.quality }; p.dirty = true; }
+    }
+    for (const [engineId, p] of this.pending) {
+      if (p.dirty && !p.timer) this.send(engineId, p); // leading edge
+    }
+  }
+
+  private send(engineId: number, p: Pending): void {
+    const values = p.values;
+    p.values = {};
+    p.dirty = false;
+    p.timer = setTimeout(() => {
+      p.timer = null;
+      if (p.dirty) this.send(engineId, p); // trailing flush, re-arms the window
+      else this.pending.delete(engineId);
+    }, this.throttleMs);
+    let ts = 0;
+    for (const v of Object.values(values)) if (v && v.ts > ts) ts = v.ts;
+    const cached = this.sites.get(engineId);
+    if (cached && cached.until > Date.now()) {
+      this.deliver({ engineId, siteId: cached.siteId, ts, values });
+    } else {
+      this.opts.siteOfEngine(engineId).then((siteId) => {
+        this.sites.set(engineId, { siteId, until: Date.now() + SITE_CACHE_MS });
+        this.deliver({ engineId, siteId, ts, values });
+      }, (err) => {
+        this.opts.log.warn('live push: site lookup failed', err instanceof Error ? err.message : err);
+        this.deliver({ engineId, siteId: null, ts, values });
+      });
+    }
+  }
+
+  private deliver(msg: ReadingsMessage): void {
+    const rooms = ['fleet', `engine:${msg.engineId}`];
+    if (msg.siteId !== null) rooms.push(`site:${msg.siteId}`);
+    // a socket in several of these rooms still gets the message once
+    this.io.to(rooms).emit('readings', msg);
+  }
+
+  async close(): Promise<void> {
+    for (const p of this.pending.values()) if (p.timer) clearTimeout(p.timer);
+    this.pending.clear();
+    // close sockets but not the HTTP server, which belongs to the caller
+    this.io.disconnectSockets(true);
+    this.io.engine?.close();
+  }
+}

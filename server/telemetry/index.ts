@@ -1,0 +1,127 @@
+/**
+ * The telemetry path: MQTT (embedded aedes, or an external broker) -> payload check ->
+ * bounded buffer -> batched SQLite writes, with live state, live push and counters beside it.
+ */
+import bcrypt from 'bcryptjs';
+import { QueryTypes } from 'sequelize';
+import { CHANNELS } from '../../shared/channels';
+import { parseTelemetry } from '../../shared/telemetry-payload';
+import { LivePush } from '../realtime/live-push';
+import { Counters } from './counters';
+import { DeviceActivity } from './device-activity';
+import { IngestBuffer } from './ingest-buffer';
+import { MemoryLiveState } from './live-state';
+import { ReadingWriter, type WriterOptions } from './reading-writer';
+import { DEVICE_BY_USERNAME_SQL } from './sql';
+import { startExternalSubscriber } from './external-broker';
+import type { AcceptedReading, Telemetry, TelemetryDeps } from './types';
+
+export interface TelemetryOptions {
+  highWater?: number;
+  writer?: WriterOptions;
+}
+
+interface Closable { close(): Promise<void> }
+
+export async function startTelemetry(deps: TelemetryDeps, options: TelemetryOptions = {}): Promise<Telemetry & {
+  /** Per-device reject counts since start (also persisted in device_rejections). */
+  rejectsByDevice(): Record<number, Record<string, number>>;
+  mqttPort: number | null;
+}> {
+  const { config, sequelize, log } = deps;
+  const counters = new Counters();
+  const buffer = new IngestBuffer(options.highWater ?? 20_000);
+  const liveState = new MemoryLiveState();
+  const activity = new DeviceActivity(sequelize, log);
+  const writer = new ReadingWriter(sequelize, buffer, counters, log, options.writer);
+  const listeners: Array<(readings: AcceptedReading[]) => void> = [];
+  let stopping = false;
+
+  await liveState.load(sequelize);
+  const livePush = new LivePush({ httpServer: deps.httpServer, verifyToken: deps.verifyToken, siteOfEngine: deps.siteOfEngine, log });
+  listeners.push((readings) => livePush.push(readings));
+
+  const reject = (deviceId: number | null, reason: string, detail: string) => {
+    counters.reject(reason);
+    activity.reject(deviceId, reason, detail);
+  };
+
+  /** Hot path: parse, count, buffer, notify; `done` (the MQTT ack) once there is room. No await, no DB. */
+  const ingest = (deviceId: number | null, engineId: number, payload: Buffer, done: () => void) => {
+    if (stopping) return; // no ack: a QoS 1 device sends it again after the restart
+    try {
+      const now = Date.now();
+      counters.messages++;
+      activity.seenDevice(deviceId);
+      const result = parseTelemetry(engineId, payload, now);
+      for (const r of result.rejects) reject(deviceId, r.reason, r.detail);
+      if (result.accepted.length) {
+        const batch: AcceptedReading[] = new Array(result.accepted.length);
+        for (let i = 0; i < result.accepted.length; i++) {
+          const a = result.accepted[i];
+          if (a.outOfRange) {
+            counters.outOfRange++;
+            activity.reject(deviceId, 'out_of_range', `${a.channel} = ${a.value} outside ${CHANNELS[a.channel].physicalMin}..${CHANNELS[a.channel].physicalMax}`);
+          }
+          buffer.push({ engineId, channel: CHANNELS[a.channel].code, ts: a.ts, value: a.value, quality: a.quality });
+          batch[i] = { engineId, channel: a.channel, ts: a.ts, value: a.value, quality: a.quality };
+        }
+        counters.received += batch.length;
+        liveState.applyAll(batch, now);
+        for (const l of listeners) {
+          try { l(batch); } catch (err) { log.error('telemetry: readings listener failed', err); }
+        }
+      }
+    } catch (err) {
+      log.error('telemetry: ingest failed on a message', err);
+    }
+    buffer.whenRoom(done);
+  };
+
+  writer.start();
+  activity.start();
+
+  let mqtt: Closable;
+  let mqttPort: number | null = null;
+  if (config.mqttUrl) {
+    mqtt = await startExternalSubscriber({ url: config.mqttUrl, log, ingest });
+  } else {
+    // required lazily so jest (which cannot load aedes) can still import this module's types
+    // eslint-disable-next-line @typescript-eslint/no-require-imports
+    const { createBroker } = require('../../broker/broker') as typeof import('../../broker/broker');
+    const broker = await createBroker({
+      port: config.mqttPort,
+      log,
+      authenticate: async (username, password) => {
+        const rows = await sequelize.query<{ id: number; engineId: number; secretHash: string; revokedAt: unknown }>(
+          DEVICE_BY_USERNAME_SQL, { bind: [username], type: QueryTypes.SELECT, logging: false });
+        const row = rows[0];
+        if (!row || row.revokedAt) return null;
+        return (await bcrypt.compare(password, row.secretHash)) ? { deviceId: Number(row.id), engineId: Number(row.engineId) } : null;
+      },
+      onTelemetry: (device, engineId, payload, done) => ingest(device.deviceId, engineId, payload, done),
+      onReject: (device, reason, detail) => reject(device?.deviceId ?? null, reason, detail),
+    });
+    mqttPort = broker.port;
+    mqtt = broker;
+  }
+
+  return {
+    liveState,
+    mqttPort,
+    counters: () => counters.snapshot(buffer.size),
+    rejectsByDevice: () => activity.rejectsByDevice(),
+    onReadings: (listener) => { listeners.push(listener); },
+    emit: (room, event, payload) => livePush.emit(room, event, payload),
+    async stop() {
+      if (stopping) return;
+      stopping = true;
+      await writer.stop();
+      buffer.releaseAll(); // their rows are written: the held acks may go out
+      await new Promise((r) => setTimeout(r, 50));
+      await mqtt.close().catch((err) => log.warn('telemetry: closing MQTT failed', err));
+      await activity.stop();
+      await livePush.close();
+    },
+  };
+}

@@ -1,0 +1,77 @@
+/**
+ * Hand-written SQL of the telemetry path, one twin per dialect (SQLite first, PostgreSQL for growth).
+ * Placeholders are Sequelize bind parameters ($1, $2, ...), which both dialects take.
+ */
+export type Dialect = 'sqlite' | 'postgres';
+
+export function dialectOf(name: string): Dialect {
+  return name === 'postgres' ? 'postgres' : 'sqlite';
+}
+
+/** Sequelize's own text form of a DATE, accepted by both dialects and read back by models. */
+export function sqlDate(ms: number): string {
+  return new Date(ms).toISOString().replace('T', ' ').replace('Z', ' +00:00');
+}
+
+function placeholders(rows: number, cols: number): string {
+  const parts: string[] = new Array(rows);
+  let n = 1;
+  for (let r = 0; r < rows; r++) {
+    const cells: string[] = new Array(cols);
+    for (let c = 0; c < cols; c++) cells[c] = '$' + n++;
+    parts[r] = '(' + cells.join(',') + ')';
+  }
+  return parts.join(',');
+}
+
+// The statement text depends only on the row count, so it is built once per count.
+const insertCache = new Map<number, string>();
+export function insertReadingsSql(rows: number): string {
+  let sql = insertCache.get(rows);
+  if (!sql) {
+    sql = `INSERT INTO readings (engine_id, channel, ts, value, quality) VALUES ${placeholders(rows, 5)}`;
+    insertCache.set(rows, sql);
+  }
+  return sql;
+}
+
+const rollupCache = new Map<string, string>();
+/** Merges pre-aggregated per-minute rows; min/max stay NULL while a minute has only bad readings. */
+export function upsertRollupsSql(dialect: Dialect, rows: number): string {
+  const key = dialect + rows;
+  let sql = rollupCache.get(key);
+  if (!sql) {
+    const least = dialect === 'postgres'
+      ? 'LEAST(rollups."min", excluded."min")' // LEAST/GREATEST skip NULLs
+      : 'min(coalesce(rollups."min", excluded."min"), coalesce(excluded."min", rollups."min"))';
+    const greatest = dialect === 'postgres'
+      ? 'GREATEST(rollups."max", excluded."max")'
+      : 'max(coalesce(rollups."max", excluded."max"), coalesce(excluded."max", rollups."max"))';
+    sql = `INSERT INTO rollups (engine_id, channel, minute, "min", "max", "sum", "count", bad_count) VALUES ${placeholders(rows, 8)}
+ON CONFLICT (engine_id, channel, minute) DO UPDATE SET
+  "min" = ${least}, "max" = ${greatest},
+  "sum" = rollups."sum" + excluded."sum", "count" = rollups."count" + excluded."count",
+  bad_count = rollups.bad_count + excluded.bad_count`;
+    rollupCache.set(key, sql);
+  }
+  return sql;
+}
+
+/** Newest reading of every engine/channel that has one; rollups give the pairs cheaply, MAX(ts) is an index seek. */
+export const LATEST_READINGS_SQL = `SELECT r.engine_id AS "engineId", r.channel AS "channel", r.ts AS "ts", r.value AS "value", r.quality AS "quality"
+FROM (SELECT engine_id, channel FROM rollups GROUP BY engine_id, channel) p
+JOIN readings r ON r.engine_id = p.engine_id AND r.channel = p.channel
+  AND r.ts = (SELECT MAX(x.ts) FROM readings x WHERE x.engine_id = p.engine_id AND x.channel = p.channel)`;
+
+export const DEVICE_BY_USERNAME_SQL = `SELECT id, engine_id AS "engineId", secret_hash AS "secretHash", revoked_at AS "revokedAt" FROM devices WHERE username = $1`;
+
+export function touchDevicesSql(count: number): string {
+  const ids = Array.from({ length: count }, (_, i) => '$' + (i + 2)).join(',');
+  return `UPDATE devices SET last_seen_at = $1 WHERE id IN (${ids})`;
+}
+
+export function upsertRejectionsSql(rows: number): string {
+  return `INSERT INTO device_rejections (device_id, reason, "count", last_at, last_detail) VALUES ${placeholders(rows, 5)}
+ON CONFLICT (device_id, reason) DO UPDATE SET "count" = device_rejections."count" + excluded."count",
+  last_at = excluded.last_at, last_detail = excluded.last_detail`;
+}
