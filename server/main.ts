@@ -1,0 +1,30 @@
+import { loadConfig } from './config';
+import { createLogger } from './logger';
+import { startServer } from './start';
+
+/** `npm run server`: everything on the configured ports, no demo data. */
+async function main(): Promise<void> {
+  const config = loadConfig();
+  const log = createLogger(config.logLevel);
+  const server = await startServer(config, { log });
+  let exiting = false;
+  const shutdown = (signal: string) => {
+    if (exiting) return;
+    exiting = true;
+    log.info(`${signal}: stopping`);
+    server.stop().then(
+      () => process.exit(0),
+      (err) => {
+        log.error('stop failed', err);
+        process.exit(1);
+      },
+    );
+  };
+  process.on('SIGINT', () => shutdown('SIGINT'));
+  process.on('SIGTERM', () => shutdown('SIGTERM'));
+}
+
+main().catch((err) => {
+  process.stderr.write(`jacketwatch failed to start: ${err instanceof Error ? (err.stack ?? err.message) : String(err)}\n`);
+  process.exit(1);
+});

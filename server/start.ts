@@ -1,0 +1,91 @@
+import fs from 'node:fs';
+import http from 'node:http';
+import type { AddressInfo } from 'node:net';
+import type { Express } from 'express';
+import type { Sequelize } from 'sequelize';
+import type { AppContext } from './app-context';
+import { createApp, type AppOptions } from './app';
+import { loadJwtSecret } from './auth/jwt-secret';
+import { createTokenService } from './auth/tokens';
+import type { Config } from './config';
+import { migrate } from './db/migrate';
+import { createSequelize } from './db/sequelize';
+import { createLogger, type Logger } from './logger';
+import { initModels, type Models } from './models';
+import { siteOfEngineLookup } from './services/engines';
+import type { Telemetry, TelemetryDeps } from './telemetry/types';
+
+export interface ServerHandle {
+  app: Express;
+  httpServer: http.Server;
+  sequelize: Sequelize;
+  models: Models;
+  telemetry: Telemetry;
+  ctx: AppContext;
+  /** The port actually bound (config.port may be 0). */
+  port: number;
+  /** Flush telemetry, close HTTP, close the database. Safe to call twice. */
+  stop(): Promise<void>;
+}
+
+export interface StartOptions extends AppOptions {
+  log?: Logger;
+  /** Interface to listen on; loopback unless told otherwise. */
+  host?: string;
+}
+
+type StartTelemetry = (deps: TelemetryDeps) => Telemetry | Promise<Telemetry>;
+
+function loadStartTelemetry(): StartTelemetry {
+  // the telemetry module is written alongside; loaded at run time so this file compiles without it
+  // eslint-disable-next-line @typescript-eslint/no-require-imports
+  const mod = require('./telemetry') as { startTelemetry?: StartTelemetry };
+  if (typeof mod.startTelemetry !== 'function') throw new Error('server/telemetry/index.ts does not export startTelemetry');
+  return mod.startTelemetry;
+}
+
+export async function startServer(config: Config, opts: StartOptions = {}): Promise<ServerHandle> {
+  const log = opts.log ?? createLogger(config.logLevel);
+  fs.mkdirSync(config.dataDir, { recursive: true });
+  const sequelize = createSequelize(config, log);
+  const applied = await migrate(sequelize, log);
+  if (applied.length) log.info(`migrations applied: ${applied.join(', ')}`);
+  const models = initModels(sequelize);
+  const tokens = createTokenService(loadJwtSecret(config.dataDir));
+  const ctx: AppContext = { config, log, sequelize, models, tokens, telemetry: null, startedAt: Date.now() };
+  const app = createApp(ctx, opts);
+  const httpServer = http.createServer(app);
+
+  const telemetry = await loadStartTelemetry()({
+    config,
+    sequelize,
+    httpServer,
+    verifyToken: (t) => tokens.verify(t),
+    siteOfEngine: siteOfEngineLookup(models),
+    log,
+  });
+  ctx.telemetry = telemetry;
+
+  await new Promise<void>((resolve, reject) => {
+    httpServer.once('error', reject);
+    httpServer.listen(config.port, opts.host ?? '127.0.0.1', () => {
+      httpServer.off('error', reject);
+      resolve();
+    });
+  });
+  const port = (httpServer.address() as AddressInfo).port;
+  log.info(`HTTP listening on ${opts.host ?? '127.0.0.1'}:${port}`);
+
+  let stopping: Promise<void> | null = null;
+  const stop = () =>
+    (stopping ??= (async () => {
+      await telemetry.stop();
+      await new Promise<void>((resolve) => {
+        httpServer.close(() => resolve());
+        httpServer.closeAllConnections();
+      });
+      await sequelize.close();
+    })());
+
+  return { app, httpServer, sequelize, models, telemetry, ctx, port, stop };
+}
