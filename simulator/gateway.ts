@@ -1,0 +1,338 @@
+/**
+ * The simulated gateways: one MQTT client per engine, one timer for all engines.
+ * Each tick steps every engine model and publishes the single-sample payload. While a client is
+ * disconnected (or the scenario has its uplink down) samples are kept in a bounded buffer and
+ * sent on reconnect as `samples` batches before live data. History (backfill) goes out the same
+ * way, one batch in flight per engine, as fast as the acknowledgements come back.
+ */
+import mqtt, { MqttClient } from 'mqtt';
+import { telemetryTopic, statusTopic } from '../shared/topics';
+import { EngineModel, Sample } from './engine-model';
+
+export interface DeviceRecord {
+  engineId: number;
+  username: string;
+  secret: string;
+  engineName?: string;
+  siteId?: number;
+  duty: 'standby' | 'prime' | 'continuous';
+  capacityL: number;
+  capPressureKpa: number;
+  heaterSetpointC: number | null;
+  coolantFamily?: string;
+}
+
+export interface GatewayOptions {
+  mqttUrl: string;
+  qos: 0 | 1;
+  rateHz: number;
+  /** Largest number of samples kept per engine while offline (oldest dropped first). */
+  maxBufferSamples: number;
+  /** Publish retained online/offline on the status topic, with a last will. */
+  status: boolean;
+  /** Called once per engine when it goes live (after its backfill, or at start). */
+  onLive?: (link: EngineLink, ts: number) => void;
+  log?: (line: string) => void;
+  /** Connection attempts started at once (the broker checks a bcrypt hash for each). */
+  connectConcurrency?: number;
+}
+
+/** Contract limits (DEVELOPERS.md): at most 500 samples and 16 KiB per payload. */
+export const MAX_BATCH_SAMPLES = 500;
+export const MAX_PAYLOAD_BYTES = 16 * 1024;
+/** A batch that fails this often is dropped (counted) instead of blocking the engine forever. */
+const MAX_BATCH_ATTEMPTS = 3;
+
+export interface LinkStats {
+  published: number; // samples handed to the client
+  acked: number; // samples whose publish completed (PUBACK at QoS 1)
+  messages: number;
+  dropped: number; // samples lost to the bounded buffer or failed batches
+  errors: number;
+}
+
+/** Array-backed FIFO with a moving head: cheap push and drop-from-front. */
+class SampleQueue {
+  private items: Sample[] = [];
+  private head = 0;
+  get length(): number {
+    return this.items.length - this.head;
+  }
+  push(s: Sample): void {
+    this.items.push(s);
+  }
+  at(i: number): Sample {
+    return this.items[this.head + i];
+  }
+  drop(n: number): void {
+    this.head += Math.min(n, this.length);
+    if (this.head > 1024 && this.head * 2 > this.items.length) {
+      this.items = this.items.slice(this.head);
+      this.head = 0;
+    }
+  }
+}
+
+export function singlePayload(s: Sample): string {
+  return JSON.stringify({ ts: s.ts, values: s.values });
+}
+
+/** Greedily take samples from the front while the payload stays within the contract's limits. */
+export function buildBatch(queue: { length: number; at(i: number): Sample }): { payload: string; count: number } {
+  let body = '';
+  let count = 0;
+  const overhead = '{"samples":[]}'.length;
+  while (count < queue.length && count < MAX_BATCH_SAMPLES) {
+    const part = singlePayload(queue.at(count));
+    const extra = (count > 0 ? 1 : 0) + Buffer.byteLength(part);
+    if (overhead + body.length + extra > MAX_PAYLOAD_BYTES) break;
+    body += (count > 0 ? ',' : '') + part;
+    count++;
+  }
+  return { payload: `{"samples":[${body}]}`, count };
+}
+
+export class EngineLink {
+  readonly stats: LinkStats = { published: 0, acked: 0, messages: 0, dropped: 0, errors: 0 };
+  client: MqttClient | null = null;
+  live = false;
+  private readonly queue = new SampleQueue();
+  private flushing = false;
+  private uplinkDown = false;
+  private history: Iterator<Sample> | null = null;
+  private batchAttempts = 0;
+  private lastError = '';
+
+  constructor(
+    readonly device: DeviceRecord,
+    readonly model: EngineModel,
+    private readonly gw: Gateway,
+  ) {}
+
+  get engineId(): number {
+    return this.device.engineId;
+  }
+  get buffered(): number {
+    return this.queue.length;
+  }
+  get connected(): boolean {
+    return !!this.client?.connected;
+  }
+
+  connect(): Promise<void> {
+    const o = this.gw.opts;
+    const id = this.engineId;
+    const client = mqtt.connect(o.mqttUrl, {
+      username: this.device.username,
+      password: this.device.secret,
+      clientId: `jw-sim-${id}-${Math.random().toString(16).slice(2, 8)}`,
+      clean: true,
+      reconnectPeriod: 1000,
+      connectTimeout: 60_000,
+      protocolVersion: 4, // aedes speaks MQTT 3.1.1
+      will: o.status ? { topic: statusTopic(id), payload: Buffer.from('offline'), qos: 1, retain: true } : undefined,
+    });
+    this.client = client;
+    client.on('connect', () => {
+      if (o.status) client.publish(statusTopic(id), 'online', { qos: 1, retain: true });
+      void this.flush();
+    });
+    client.on('error', (err) => {
+      this.stats.errors++;
+      if (err.message !== this.lastError) {
+        this.lastError = err.message;
+        o.log?.(`engine ${id}: ${err.message}`);
+      }
+    });
+    return new Promise((resolve) => {
+      const done = (): void => {
+        client.off('connect', done);
+        client.off('error', done);
+        client.off('close', done);
+        resolve();
+      };
+      client.once('connect', done);
+      client.once('error', done);
+      client.once('close', done);
+    });
+  }
+
+  /** History from `fromMs` every `stepMs`, generated lazily from the model until it catches up with now. */
+  startBackfill(fromMs: number, stepMs: number, now: () => number): void {
+    const model = this.model;
+    this.history = (function* () {
+      for (let ts = fromMs; ts <= now() - stepMs; ts += stepMs) yield model.step(ts).sample;
+    })();
+  }
+
+  goLive(ts: number): void {
+    if (this.live) return;
+    this.live = true;
+    this.gw.opts.onLive?.(this, ts);
+  }
+
+  /** One timer tick: step the model and send (or keep) the sample. */
+  tick(ts: number): void {
+    if (this.history) return; // the model belongs to the backfill until it has caught up
+    if (!this.live) this.goLive(ts);
+    const r = this.model.step(ts);
+    this.uplinkDown = !r.publish;
+    const canSend = this.connected && !this.uplinkDown;
+    if (canSend && this.queue.length === 0 && !this.flushing) {
+      this.send(singlePayload(r.sample), 1);
+      return;
+    }
+    this.queue.push(r.sample);
+    if (this.queue.length > this.gw.opts.maxBufferSamples) {
+      this.queue.drop(1);
+      this.stats.dropped++;
+    }
+    if (canSend) void this.flush();
+  }
+
+  private send(payload: string, count: number): Promise<boolean> {
+    const client = this.client!;
+    this.stats.published += count;
+    this.stats.messages++;
+    return new Promise((resolve) => {
+      client.publish(telemetryTopic(this.engineId), payload, { qos: this.gw.opts.qos }, (err) => {
+        if (err) {
+          this.stats.errors++;
+          resolve(false);
+        } else {
+          this.stats.acked += count;
+          resolve(true);
+        }
+      });
+    });
+  }
+
+  /** Send what is buffered (and any history) in batches, one in flight, oldest first. */
+  async flush(): Promise<void> {
+    if (this.flushing) return;
+    this.flushing = true;
+    try {
+      while (this.connected && !this.uplinkDown) {
+        if (this.queue.length === 0 && this.history) {
+          for (let i = 0; i < MAX_BATCH_SAMPLES; i++) {
+            const n = this.history.next();
+            if (n.done) {
+              this.history = null;
+              this.goLive(Date.now());
+              break;
+            }
+            this.queue.push(n.value);
+          }
+        }
+        if (this.queue.length === 0) break;
+        const { payload, count } = buildBatch(this.queue);
+        const ok = await this.send(payload, count);
+        if (ok) {
+          this.queue.drop(count);
+          this.batchAttempts = 0;
+        } else if (++this.batchAttempts >= MAX_BATCH_ATTEMPTS) {
+          this.queue.drop(count);
+          this.stats.dropped += count;
+          this.batchAttempts = 0;
+        } else {
+          break; // wait for the reconnect, which calls flush again
+        }
+      }
+    } finally {
+      this.flushing = false;
+    }
+  }
+
+  /** Backfill finished and nothing left to send. */
+  get idle(): boolean {
+    return !this.history && this.queue.length === 0 && !this.flushing;
+  }
+
+  async close(): Promise<void> {
+    const c = this.client;
+    if (!c) return;
+    if (this.gw.opts.status && c.connected) {
+      await new Promise<void>((r) => c.publish(statusTopic(this.engineId), 'offline', { qos: 1, retain: true }, () => r()));
+    }
+    await c.endAsync(false).catch(() => undefined);
+  }
+}
+
+export class Gateway {
+  readonly links: EngineLink[];
+  private timer: NodeJS.Timeout | null = null;
+  private nextTickAt = 0;
+  private readonly byId = new Map<number, EngineLink>();
+
+  constructor(
+    devices: DeviceRecord[],
+    models: EngineModel[],
+    readonly opts: GatewayOptions,
+  ) {
+    this.links = devices.map((d, i) => new EngineLink(d, models[i], this));
+    for (const l of this.links) this.byId.set(l.engineId, l);
+  }
+
+  link(engineId: number): EngineLink | undefined {
+    return this.byId.get(engineId);
+  }
+
+  /** Open every client, a few at a time so the broker is not swamped with password checks. */
+  async connectAll(): Promise<void> {
+    const concurrency = this.opts.connectConcurrency ?? 25;
+    let next = 0;
+    const worker = async (): Promise<void> => {
+      while (next < this.links.length) await this.links[next++].connect();
+    };
+    await Promise.all(Array.from({ length: Math.min(concurrency, this.links.length) }, worker));
+  }
+
+  /** One timer drives all engines; it re-aims at the next slot so it does not drift. */
+  startTimer(): void {
+    const period = 1000 / this.opts.rateHz;
+    this.nextTickAt = Date.now();
+    const run = (): void => {
+      const now = Date.now();
+      for (const l of this.links) l.tick(now);
+      this.nextTickAt += period;
+      if (this.nextTickAt < now) this.nextTickAt = now + period; // fell behind: skip, do not burst
+      this.timer = setTimeout(run, this.nextTickAt - Date.now());
+    };
+    run();
+  }
+
+  stopTimer(): void {
+    if (this.timer) clearTimeout(this.timer);
+    this.timer = null;
+  }
+
+  totals(): LinkStats & { buffered: number; connected: number; live: number } {
+    const t = { published: 0, acked: 0, messages: 0, dropped: 0, errors: 0, buffered: 0, connected: 0, live: 0 };
+    for (const l of this.links) {
+      t.published += l.stats.published;
+      t.acked += l.stats.acked;
+      t.messages += l.stats.messages;
+      t.dropped += l.stats.dropped;
+      t.errors += l.stats.errors;
+      t.buffered += l.buffered;
+      if (l.connected) t.connected++;
+      if (l.live) t.live++;
+    }
+    return t;
+  }
+
+  /** Wait (bounded) for in-flight and buffered samples to be acknowledged. */
+  async drain(timeoutMs: number): Promise<void> {
+    const until = Date.now() + timeoutMs;
+    while (Date.now() < until) {
+      const t = this.totals();
+      if (t.acked + t.dropped >= t.published && this.links.every((l) => l.buffered === 0 || !l.connected)) return;
+      await new Promise((r) => setTimeout(r, 100));
+    }
+  }
+
+  async closeAll(): Promise<void> {
+    this.stopTimer();
+    await Promise.all(this.links.map((l) => l.close()));
+  }
+}
