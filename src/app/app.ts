@@ -1,0 +1,71 @@
+import { BreakpointObserver } from '@angular/cdk/layout';
+import { ChangeDetectionStrategy, Component, computed, inject } from '@angular/core';
+import { toSignal } from '@angular/core/rxjs-interop';
+import { MatBadgeModule } from '@angular/material/badge';
+import { MatButtonModule } from '@angular/material/button';
+import { MatDividerModule } from '@angular/material/divider';
+import { MatIconModule } from '@angular/material/icon';
+import { MatListModule } from '@angular/material/list';
+import { MatMenuModule } from '@angular/material/menu';
+import { MatSidenavModule } from '@angular/material/sidenav';
+import { MatToolbarModule } from '@angular/material/toolbar';
+import { RouterLink, RouterLinkActive, RouterOutlet } from '@angular/router';
+import { map } from 'rxjs';
+import { AppBarStatus } from './core/app-bar-status';
+import { AuthService } from './core/auth.service';
+import { PreferencesService } from './core/preferences.service';
+import { Role } from './core/user';
+
+interface NavItem {
+  path: string;
+  label: string;
+  icon: string;
+  roles?: Role[];
+}
+
+// Later features add their entries here (alarms, work, coolant, admin).
+const NAV: NavItem[] = [
+  { path: '/fleet', label: 'Fleet board', icon: 'grid_view' },
+  { path: '/settings', label: 'Settings', icon: 'tune' },
+];
+
+const ROLE_TEXT: Record<Role, string> = { admin: 'Administrator', planner: 'Planner', technician: 'Technician', operator: 'Operator' };
+
+/** App shell: app bar, navigation and the user's menu around the routed screen; only the screen when signed out. */
+@Component({
+  selector: 'jw-root',
+  changeDetection: ChangeDetectionStrategy.OnPush,
+  imports: [
+    RouterOutlet, RouterLink, RouterLinkActive,
+    MatToolbarModule, MatSidenavModule, MatListModule, MatIconModule, MatButtonModule, MatMenuModule, MatDividerModule, MatBadgeModule,
+  ],
+  templateUrl: './app.html',
+  styleUrl: './app.scss',
+})
+export class App {
+  protected readonly auth = inject(AuthService);
+  protected readonly appBar = inject(AppBarStatus);
+  // Created here so the saved theme applies from the first paint.
+  private readonly prefs = inject(PreferencesService);
+
+  /** Below tablet width the navigation slides over the screen instead of sitting beside it. */
+  protected readonly narrow = toSignal(
+    inject(BreakpointObserver).observe('(max-width: 959.98px)').pipe(map((r) => r.matches)),
+    { initialValue: false },
+  );
+
+  protected readonly nav = computed(() => NAV.filter((n) => !n.roles || this.auth.hasRole(...n.roles)));
+  protected readonly roleText = computed(() => {
+    const role = this.auth.role();
+    return role ? ROLE_TEXT[role] : '';
+  });
+  protected readonly dark = this.prefs.dark;
+
+  protected toggleTheme(): void {
+    this.prefs.update({ theme: this.dark() ? 'light' : 'dark' });
+  }
+
+  protected signOut(): void {
+    this.auth.signOut();
+  }
+}

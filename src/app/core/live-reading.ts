@@ -1,0 +1,27 @@
+import { ChannelKey } from '../../../shared/channels';
+
+/** Latest value of one channel as the API and the live push send it (SI units, quality 0 good / 1 bad). */
+export interface ChannelValue {
+  value: number;
+  ts: number | string;
+  quality: number;
+}
+
+export type ChannelValues = Partial<Record<ChannelKey, ChannelValue>>;
+
+/** socket.io `readings` event. */
+export interface LiveReadings {
+  engineId: number;
+  siteId: number;
+  ts: number | string;
+  values: ChannelValues;
+}
+
+/** What a screen wants pushed to it (socket.io `watch`). */
+export interface WatchRequest {
+  fleet?: true;
+  siteIds?: number[];
+  engineIds?: number[];
+}
+
+export type LiveConnection = 'offline' | 'connecting' | 'connected' | 'refused';

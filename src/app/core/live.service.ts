@@ -1,0 +1,83 @@
+import { DestroyRef, Injectable, effect, inject, signal, untracked } from '@angular/core';
+import { Observable, Subject, filter, share } from 'rxjs';
+import { Socket, io } from 'socket.io-client';
+import { AuthService } from './auth.service';
+import { LiveConnection, LiveReadings, WatchRequest } from './live-reading';
+
+/** After the server refused the handshake, try again this much later (the token may have been renewed). */
+const RETRY_AFTER_REFUSAL_MS = 15000;
+
+/**
+ * Live push from the server over socket.io. One connection for the whole app, open while signed in.
+ * Screens call watch(...) for what they show; the requests are sent again after every reconnect.
+ */
+@Injectable({ providedIn: 'root' })
+export class LiveService {
+  private readonly auth = inject(AuthService);
+  private socket: Socket | null = null;
+  private retryTimer: ReturnType<typeof setTimeout> | null = null;
+  private readonly watches = new Map<number, WatchRequest>();
+  private nextWatchId = 1;
+  private readonly readingsSubject = new Subject<LiveReadings>();
+  private readonly connectionSignal = signal<LiveConnection>('offline');
+
+  /** Every `readings` message, for all that is watched. */
+  readonly readings$: Observable<LiveReadings> = this.readingsSubject.asObservable().pipe(share());
+  readonly connection = this.connectionSignal.asReadonly();
+
+  constructor() {
+    effect(() => {
+      const token = this.auth.token();
+      untracked(() => (token ? this.open(token) : this.close()));
+    });
+    inject(DestroyRef).onDestroy(() => this.close());
+  }
+
+  /** Ask for pushes; call the returned function when the screen no longer needs them. */
+  watch(request: WatchRequest): () => void {
+    const id = this.nextWatchId++;
+    this.watches.set(id, request);
+    if (this.socket?.connected) this.socket.emit('watch', request);
+    return () => this.watches.delete(id);
+  }
+
+  readingsFor(engineId: number): Observable<LiveReadings> {
+    return this.readings$.pipe(filter((r) => r.engineId === engineId));
+  }
+
+  private open(token: string): void {
+    this.close();
+    this.connectionSignal.set('connecting');
+    const socket = io({ auth: { token }, reconnection: true, reconnectionDelayMax: 10000 });
+    this.socket = socket;
+    socket.on('connect', () => {
+      this.connectionSignal.set('connected');
+      for (const request of this.watches.values()) socket.emit('watch', request);
+    });
+    socket.on('disconnect', () => this.connectionSignal.set(socket.active ? 'connecting' : 'offline'));
+    socket.on('connect_error', () => {
+      if (socket.active) {
+        this.connectionSignal.set('connecting'); // a network problem: socket.io retries by itself
+        return;
+      }
+      // Refused at the handshake (bad or expired token): check the session, then retry later.
+      this.connectionSignal.set('refused');
+      void this.auth.refresh();
+      this.retryTimer = setTimeout(() => {
+        if (this.socket === socket && this.auth.token()) socket.connect();
+      }, RETRY_AFTER_REFUSAL_MS);
+    });
+    socket.on('readings', (msg: LiveReadings) => {
+      if (msg && typeof msg.engineId === 'number' && msg.values) this.readingsSubject.next(msg);
+    });
+  }
+
+  private close(): void {
+    if (this.retryTimer) clearTimeout(this.retryTimer);
+    this.retryTimer = null;
+    this.socket?.removeAllListeners();
+    this.socket?.disconnect();
+    this.socket = null;
+    this.connectionSignal.set('offline');
+  }
+}

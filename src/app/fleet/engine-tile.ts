@@ -1,0 +1,139 @@
+import { ChangeDetectionStrategy, Component, computed, inject, input } from '@angular/core';
+import { MatCardModule } from '@angular/material/card';
+import { MatIconModule } from '@angular/material/icon';
+import { RouterLink } from '@angular/router';
+import { CHANNELS, ChannelKey } from '../../../shared/channels';
+import { DISPLAY_SCALES, NormalBand, bandPosition, normalBand } from '../../../shared/normal-bands';
+import { ClockService } from '../core/clock.service';
+import { PreferencesService } from '../core/preferences.service';
+import { BandIndicator } from '../ui/band-indicator';
+import { formatStored } from '../ui/unit-format';
+import { UnitValuePipe } from '../ui/unit-value.pipe';
+import { Engine, RunState } from './fleet-types';
+import { formatAge, lastReadingAt, runStateAt } from './run-state';
+
+const TILE_CHANNELS: { key: ChannelKey; short: string }[] = [
+  { key: 'coolant_temp', short: 'Temperature' },
+  { key: 'coolant_pressure', short: 'Pressure' },
+  { key: 'coolant_conductivity', short: 'Conductivity' },
+];
+
+const STATE_TEXT: Record<RunState, string> = { running: 'Running', stopped: 'Stopped', 'no-data': 'No data' };
+const STATE_ICON: Record<RunState, string> = { running: 'sync', stopped: 'stop_circle', 'no-data': 'cloud_off' };
+const DUTY_TEXT: Record<Engine['duty'], string> = { standby: 'Standby', prime: 'Prime', continuous: 'Continuous' };
+
+interface TileRow {
+  key: ChannelKey;
+  label: string;
+  short: string;
+  value: number | null;
+  bad: boolean;
+  band: NormalBand | null;
+  scale: NormalBand;
+}
+
+/** One engine on the fleet board: state, the three coolant values against their bands, active alarms. */
+@Component({
+  selector: 'jw-engine-tile',
+  changeDetection: ChangeDetectionStrategy.OnPush,
+  imports: [MatCardModule, MatIconModule, RouterLink, BandIndicator, UnitValuePipe],
+  template: `
+    <a class="link" [routerLink]="['/engines', engine().id]" [attr.aria-label]="summary()">
+      <mat-card appearance="outlined" class="tile" [class.no-data]="state() === 'no-data'" [class.has-alarms]="alarms() > 0">
+        <div class="head">
+          <span class="name">{{ engine().name }}</span>
+          <span class="duty">{{ dutyText() }}</span>
+        </div>
+        <div class="status">
+          <span class="state" [class]="'state state-' + state()">
+            <mat-icon aria-hidden="true" [fontIcon]="stateIcon()" />
+            <span class="state-text">{{ stateText() }}</span>
+            @if (age(); as a) {
+              <span class="age">· last reading {{ a }} ago</span>
+            }
+          </span>
+          @if (engine().outOfService) {
+            <span class="oos"><mat-icon aria-hidden="true" fontIcon="build" />Out of service</span>
+          }
+          <span class="alarms" [class.active]="alarms() > 0">
+            <mat-icon aria-hidden="true" [fontIcon]="alarms() > 0 ? 'notifications_active' : 'notifications_none'" />
+            <span class="jw-num">{{ alarms() }}</span>
+            <span class="alarm-word">{{ alarms() === 1 ? 'alarm' : 'alarms' }}</span>
+          </span>
+        </div>
+        <dl class="rows">
+          @for (row of rows(); track row.key) {
+            <div class="row" [class.stale]="state() === 'no-data'">
+              <dt>{{ row.short }}</dt>
+              <dd class="value jw-num">
+                @if (row.bad) {
+                  <span class="bad">bad reading</span>
+                } @else {
+                  {{ row.value | unitValue: row.key }}
+                }
+              </dd>
+              <dd class="bar">
+                <jw-band-indicator [value]="row.value" [band]="row.band" [scale]="row.scale" [quantity]="row.key" [label]="row.label" />
+              </dd>
+            </div>
+          }
+        </dl>
+      </mat-card>
+    </a>
+  `,
+  styleUrl: './engine-tile.scss',
+})
+export class EngineTile {
+  private readonly clock = inject(ClockService);
+  private readonly prefs = inject(PreferencesService);
+
+  readonly engine = input.required<Engine>();
+
+  protected readonly state = computed(() => runStateAt(this.engine(), this.clock.now()));
+  protected readonly stateText = computed(() => STATE_TEXT[this.state()]);
+  protected readonly stateIcon = computed(() => STATE_ICON[this.state()]);
+  protected readonly dutyText = computed(() => DUTY_TEXT[this.engine().duty] ?? this.engine().duty);
+  protected readonly alarms = computed(() => this.engine().activeAlarms ?? 0);
+
+  protected readonly age = computed(() => {
+    if (this.state() !== 'no-data') return null;
+    const last = lastReadingAt(this.engine());
+    return last === null ? null : formatAge(this.clock.now() - last);
+  });
+
+  protected readonly rows = computed<TileRow[]>(() => {
+    const e = this.engine();
+    const state = this.state();
+    return TILE_CHANNELS.map(({ key, short }) => {
+      const latest = e.latest?.[key];
+      const bad = !!latest && latest.quality !== 0;
+      return {
+        key,
+        short,
+        label: CHANNELS[key].label,
+        value: latest && !bad ? latest.value : null,
+        bad,
+        band: normalBand(key, state, e),
+        scale: DISPLAY_SCALES[key] ?? { low: 0, high: 100 },
+      };
+    });
+  });
+
+  /** Everything the tile says, for a screen reader in one sentence. */
+  protected readonly summary = computed(() => {
+    const prefs = this.prefs.preferences();
+    const parts = [`${this.engine().name}, ${this.dutyText()}`, this.stateText() + (this.age() ? `, last reading ${this.age()} ago` : '')];
+    if (this.engine().outOfService) parts.push('out of service');
+    for (const row of this.rows()) {
+      if (row.bad) {
+        parts.push(`${row.short} bad reading`);
+        continue;
+      }
+      const pos = row.value !== null && row.band ? bandPosition(row.value, row.band) : null;
+      const where = pos === 'low' ? ' below normal' : pos === 'high' ? ' above normal' : '';
+      parts.push(`${row.short} ${formatStored(row.value, row.key, prefs)}${where}`);
+    }
+    parts.push(`${this.alarms()} active ${this.alarms() === 1 ? 'alarm' : 'alarms'}`);
+    return parts.join('; ');
+  });
+}

@@ -1,0 +1,100 @@
+import { ChangeDetectionStrategy, Component, DestroyRef, computed, inject, signal } from '@angular/core';
+import { MatButtonToggleModule } from '@angular/material/button-toggle';
+import { MatChipsModule } from '@angular/material/chips';
+import { MatIconModule } from '@angular/material/icon';
+import { MatProgressBarModule } from '@angular/material/progress-bar';
+import { ClockService } from '../core/clock.service';
+import { LiveService } from '../core/live.service';
+import { EngineTile } from './engine-tile';
+import { Engine, RunState, Site } from './fleet-types';
+import { FleetService } from './fleet.service';
+import { runStateAt } from './run-state';
+
+type StateFilter = 'all' | RunState;
+
+interface SiteGroup {
+  site: Site;
+  engines: Engine[];
+}
+
+const CONNECTION_TEXT = { connected: 'Live', connecting: 'Connecting…', offline: 'Not live', refused: 'Live push refused' } as const;
+
+/** The operator's landing page: every engine, grouped by site, live. */
+@Component({
+  selector: 'jw-fleet-board',
+  changeDetection: ChangeDetectionStrategy.OnPush,
+  imports: [MatButtonToggleModule, MatChipsModule, MatIconModule, MatProgressBarModule, EngineTile],
+  templateUrl: './fleet-board.html',
+  styleUrl: './fleet-board.scss',
+})
+export class FleetBoard {
+  private readonly fleet = inject(FleetService);
+  private readonly clock = inject(ClockService);
+  private readonly live = inject(LiveService);
+
+  protected readonly loading = this.fleet.loading;
+  protected readonly error = this.fleet.error;
+  protected readonly sites = this.fleet.sites;
+  protected readonly connection = this.live.connection;
+  protected readonly connectionText = computed(() => CONNECTION_TEXT[this.connection()]);
+
+  /** Empty means every site. */
+  protected readonly siteFilter = signal<number[]>([]);
+  protected readonly stateFilter = signal<StateFilter>('all');
+
+  private readonly states = computed(() => {
+    const now = this.clock.now();
+    return new Map(this.fleet.engines().map((e) => [e.id, runStateAt(e, now)]));
+  });
+
+  protected readonly counts = computed(() => {
+    const c: Record<StateFilter, number> = { all: 0, running: 0, stopped: 0, 'no-data': 0 };
+    for (const s of this.states().values()) {
+      c.all++;
+      c[s]++;
+    }
+    return c;
+  });
+
+  protected readonly groups = computed<SiteGroup[]>(() => {
+    const sites = this.fleet.sites();
+    const siteIds = new Set(this.siteFilter());
+    const state = this.stateFilter();
+    const states = this.states();
+    const bySite = new Map<number, Engine[]>();
+    for (const e of this.fleet.engines()) {
+      if (siteIds.size && !siteIds.has(e.siteId)) continue;
+      if (state !== 'all' && states.get(e.id) !== state) continue;
+      const list = bySite.get(e.siteId);
+      if (list) list.push(e);
+      else bySite.set(e.siteId, [e]);
+    }
+    const known = new Set(sites.map((s) => s.id));
+    const groups = sites.filter((s) => bySite.has(s.id)).map((site) => ({ site, engines: sortByName(bySite.get(site.id)!) }));
+    // Engines whose site is not in the list still show, under their site number.
+    for (const [siteId, engines] of bySite) {
+      if (!known.has(siteId)) groups.push({ site: { id: siteId, name: `Site ${siteId}`, timeZone: 'UTC' }, engines: sortByName(engines) });
+    }
+    return groups;
+  });
+
+  protected readonly shownCount = computed(() => this.groups().reduce((n, g) => n + g.engines.length, 0));
+
+  constructor() {
+    void this.fleet.load();
+    this.fleet.followFleet(inject(DestroyRef));
+  }
+
+  protected setSites(ids: number[] | number | null | undefined): void {
+    this.siteFilter.set(Array.isArray(ids) ? ids : ids == null ? [] : [ids]);
+  }
+
+  protected clearFilters(): void {
+    this.siteFilter.set([]);
+    this.stateFilter.set('all');
+  }
+}
+
+function sortByName(engines: Engine[]): Engine[] {
+  return engines.sort((a, b) => a.name.localeCompare(b.name, undefined, { numeric: true }));
+}

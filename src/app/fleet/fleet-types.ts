@@ -1,0 +1,32 @@
+import { ChannelValues } from '../core/live-reading';
+
+export type RunState = 'running' | 'stopped' | 'no-data';
+
+export interface Site {
+  id: number;
+  name: string;
+  timeZone: string;
+}
+
+/** GET /api/engines item (SI units). */
+export interface Engine {
+  id: number;
+  name: string;
+  siteId: number;
+  duty: 'standby' | 'prime' | 'continuous';
+  capacityL: number;
+  coolantFamily: string;
+  glycolType: string;
+  glycolPercent: number;
+  capPressureKpa: number;
+  oilDrainIntervalH: number;
+  runHours: number;
+  safeOpenTempC: number;
+  heaterSetpointC: number | null;
+  outOfService: boolean;
+  latest: ChannelValues;
+  lastSeenAt: number | string | null;
+  runState: RunState;
+  /** Filled in by the alarms feature when it exists. */
+  activeAlarms?: number;
+}

@@ -1,0 +1,88 @@
+import { HttpClient } from '@angular/common/http';
+import { DestroyRef, Injectable, computed, inject, signal } from '@angular/core';
+import { firstValueFrom } from 'rxjs';
+import { ChannelKey, channelByCode, isChannelKey } from '../../../shared/channels';
+import { ChannelValue, ChannelValues, LiveReadings } from '../core/live-reading';
+import { LiveService } from '../core/live.service';
+import { Engine, Site } from './fleet-types';
+
+/** Live readings are gathered and applied together at most this often, so 200 engines stay cheap to draw. */
+const APPLY_EVERY_MS = 500;
+
+/** Sites and engines with their latest values, kept current from the live push while a screen uses it. */
+@Injectable({ providedIn: 'root' })
+export class FleetService {
+  private readonly http = inject(HttpClient);
+  private readonly live = inject(LiveService);
+
+  private readonly sitesSignal = signal<Site[]>([]);
+  private readonly enginesSignal = signal<Engine[]>([]);
+  private readonly loadingSignal = signal(false);
+  private readonly errorSignal = signal<string | null>(null);
+
+  readonly sites = this.sitesSignal.asReadonly();
+  readonly engines = this.enginesSignal.asReadonly();
+  readonly loading = this.loadingSignal.asReadonly();
+  readonly error = this.errorSignal.asReadonly();
+  readonly siteById = computed(() => new Map(this.sitesSignal().map((s) => [s.id, s])));
+
+  private pending = new Map<number, ChannelValues>();
+  private flushTimer: ReturnType<typeof setTimeout> | null = null;
+
+  async load(): Promise<void> {
+    this.loadingSignal.set(true);
+    this.errorSignal.set(null);
+    try {
+      const [sites, engines] = await Promise.all([
+        firstValueFrom(this.http.get<Site[]>('/api/sites')),
+        firstValueFrom(this.http.get<Engine[]>('/api/engines')),
+      ]);
+      this.sitesSignal.set(sites);
+      this.enginesSignal.set(engines.map((e) => ({ ...e, latest: normaliseValues(e.latest ?? {}) })));
+    } catch {
+      this.errorSignal.set('The engine list could not be loaded. It is tried again when you reload the page.');
+    } finally {
+      this.loadingSignal.set(false);
+    }
+  }
+
+  /** Follow the whole fleet live until the caller's DestroyRef ends. */
+  followFleet(destroyRef: DestroyRef): void {
+    const unwatch = this.live.watch({ fleet: true });
+    const sub = this.live.readings$.subscribe((r) => this.queue(r));
+    destroyRef.onDestroy(() => {
+      unwatch();
+      sub.unsubscribe();
+    });
+  }
+
+  private queue(r: LiveReadings): void {
+    const values = normaliseValues(r.values);
+    this.pending.set(r.engineId, { ...this.pending.get(r.engineId), ...values });
+    this.flushTimer ??= setTimeout(() => this.flush(), APPLY_EVERY_MS);
+  }
+
+  private flush(): void {
+    this.flushTimer = null;
+    const pending = this.pending;
+    this.pending = new Map();
+    // Only engines with news get a new object, so only their tiles draw again.
+    this.enginesSignal.update((list) =>
+      list.map((e) => {
+        const values = pending.get(e.id);
+        return values ? { ...e, latest: { ...e.latest, ...values } } : e;
+      }),
+    );
+  }
+}
+
+/** Accepts channel keys or the numeric codes of shared/channels.ts. */
+function normaliseValues(values: Record<string, ChannelValue | undefined>): ChannelValues {
+  const out: ChannelValues = {};
+  for (const [key, v] of Object.entries(values)) {
+    if (!v || typeof v.value !== 'number') continue;
+    const channel: ChannelKey | undefined = isChannelKey(key) ? key : channelByCode(Number(key))?.key;
+    if (channel) out[channel] = v;
+  }
+  return out;
+}
