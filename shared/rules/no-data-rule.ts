@@ -2,7 +2,8 @@
  * No data: the channel has been silent longer than `factor` times its usual interval.
  * The usual interval is learned as the median of recent intervals between readings (robust to
  * the odd burst or gap), never taken below `minSilenceS`. Any arriving reading counts as data,
- * bad quality included: the device is talking. Gaps that raised the alarm are not learned.
+ * bad quality included: the device is talking. Once a few intervals are known (LEARNED_ENOUGH),
+ * gaps that raised the alarm are not learned, so outages do not teach the rule to expect them.
  */
 import { RuleEvent, RuleInput, StepResult, isReading, median, fmt } from './rule-types';
 
@@ -13,6 +14,8 @@ export interface NoDataRuleParams {
   minSilenceS: number;
   /** Intervals remembered for the median (default 20). */
   historySize?: number;
+  /** Expected interval before any is learned (seconds); default: only the minimum applies. */
+  initialIntervalS?: number;
   label?: string;
 }
 
@@ -23,6 +26,8 @@ export interface NoDataRuleState {
 }
 
 /** `startTs`: count silence from here even before the first reading (e.g. when the device was registered). */
+export const LEARNED_ENOUGH = 3;
+
 export function initialNoDataState(startTs: number | null = null): NoDataRuleState {
   return { lastTs: startTs, intervalsMs: [], active: false };
 }
@@ -30,8 +35,8 @@ export function initialNoDataState(startTs: number | null = null): NoDataRuleSta
 /** Silence (ms) after which the rule raises, with the current learning. */
 export function silenceLimitMs(state: NoDataRuleState, params: NoDataRuleParams): number {
   const min = params.minSilenceS * 1000;
-  if (state.intervalsMs.length === 0) return min;
-  return Math.max(min, (params.factor ?? 5) * median(state.intervalsMs));
+  const usual = state.intervalsMs.length ? median(state.intervalsMs) : (params.initialIntervalS ?? 0) * 1000;
+  return Math.max(min, (params.factor ?? 5) * usual);
 }
 
 export function stepNoData(state: NoDataRuleState, input: RuleInput, params: NoDataRuleParams): StepResult<NoDataRuleState> {
@@ -48,7 +53,7 @@ export function stepNoData(state: NoDataRuleState, input: RuleInput, params: NoD
   let intervals = s.intervalsMs;
   if (s.lastTs !== null && input.ts > s.lastTs) {
     const gap = input.ts - s.lastTs;
-    if (!s.active) intervals = [...intervals, gap].slice(-(params.historySize ?? 20));
+    if (!s.active || intervals.length < LEARNED_ENOUGH) intervals = [...intervals, gap].slice(-(params.historySize ?? 20));
   }
   if (s.active) {
     const silentS = s.lastTs === null ? 0 : (input.ts - s.lastTs) / 1000;
