@@ -1,0 +1,170 @@
+/**
+ * The telemetry path end to end against a real server process: MQTT on a real TCP port, a real SQLite
+ * file, socket.io over loopback.
+ */
+import mqtt, { type MqttClient } from 'mqtt';
+import { io as ioClient, type Socket } from 'socket.io-client';
+import { loadJwtSecret } from '../../server/auth/jwt-secret';
+import { createTokenService } from '../../server/auth/tokens';
+import { telemetryTopic } from '../../shared/topics';
+import { Db, seedFleet, startServerProcess, type SeededDevice, type ServerProcess } from './support/telemetry-server';
+
+let server: ServerProcess;
+let db: Db;
+let fleet: SeededDevice[];
+const clients: MqttClient[] = [];
+
+const connect = async (d: SeededDevice, password = d.secret): Promise<MqttClient> => {
+  const c = await mqtt.connectAsync(`mqtt://127.0.0.1:${server.mqttPort}`, { username: d.username, password, reconnectPeriod: 0, connectTimeout: 5000 });
+  clients.push(c);
+  return c;
+};
+
+async function until<T>(what: string, fn: () => Promise<T>, ok: (v: T) => boolean, ms = 10_000): Promise<T> {
+  const end = Date.now() + ms;
+  let v = await fn();
+  while (!ok(v)) {
+    if (Date.now() > end) throw new Error(`timed out waiting for ${what}; last value ${JSON.stringify(v)}`);
+    await new Promise((r) => setTimeout(r, 100));
+    v = await fn();
+  }
+  return v;
+}
+
+const countReadings = (engineId: number) => db.get<{ n: number }>('SELECT COUNT(*) AS n FROM readings WHERE engine_id = ?', [engineId]).then((r) => r.n);
+const rejections = async (deviceId: number) =>
+  Object.fromEntries((await db.all<{ reason: string; count: number }>('SELECT reason, count FROM device_rejections WHERE device_id = ?', [deviceId])).map((r) => [r.reason, r.count]));
+
+beforeAll(async () => {
+  server = await startServerProcess();
+  db = new Db(server.dbFile);
+  fleet = await seedFleet(db, 6, 'bt');
+});
+
+afterAll(async () => {
+  for (const c of clients) c.end(true);
+  await server?.stop('SIGKILL');
+  await db?.close();
+});
+
+test('a good device is accepted; its readings land in readings and rollups', async () => {
+  const d = fleet[0];
+  const c = await connect(d);
+  const ts = Date.now() - 10_000;
+  await c.publishAsync(telemetryTopic(d.engineId), JSON.stringify({ ts, values: { coolant_temp: 80, coolant_pressure: { value: 15, unit: 'psi' } } }), { qos: 1 });
+  await c.publishAsync(telemetryTopic(d.engineId), JSON.stringify({ samples: [{ ts: ts + 1000, values: { coolant_temp: 84 } }, { ts: new Date(ts + 2000).toISOString(), values: { coolant_temp: 82 } }] }), { qos: 1 });
+  await until('4 readings', () => countReadings(d.engineId), (n) => n === 4);
+  const rows = await db.all('SELECT channel, ts, value, quality FROM readings WHERE engine_id = ? ORDER BY ts, channel', [d.engineId]);
+  expect(rows[0]).toEqual({ channel: 1, ts, value: 80, quality: 0 });
+  expect(rows[1].channel).toBe(2);
+  expect(rows[1].value).toBeCloseTo(15 * 6.894757, 4); // NIST SP 811 B.8: 1 psi = 6.894 757 kPa
+  // the three temperatures may straddle a minute boundary: sum the per-minute rows
+  const roll = await db.get('SELECT MIN("min") AS mn, MAX("max") AS mx, SUM("sum") AS s, SUM("count") AS n, SUM(bad_count) AS bad FROM rollups WHERE engine_id = ? AND channel = 1', [d.engineId]);
+  expect(roll).toEqual({ mn: 80, mx: 84, s: 246, n: 3, bad: 0 });
+  const minutes = await db.all('SELECT minute FROM rollups WHERE engine_id = ? AND channel = 1', [d.engineId]);
+  for (const m of minutes) expect(m.minute % 60_000).toBe(0);
+});
+
+test('a wrong password is refused', async () => {
+  await expect(connect(fleet[1], 'not-the-secret')).rejects.toThrow(/bad username or password|not authorized/i);
+  await expect(connect({ ...fleet[1], username: 'nobody-here' })).rejects.toThrow(/bad username or password|not authorized/i);
+});
+
+test("publishing to another engine's topic is refused and counted as wrong_topic", async () => {
+  const d = fleet[2];
+  const c = await connect(d);
+  const closed = new Promise<void>((resolve) => c.once('close', () => resolve()));
+  c.publish(telemetryTopic(fleet[3].engineId), JSON.stringify({ ts: Date.now(), values: { coolant_temp: 99 } }), { qos: 1 });
+  await closed;
+  await until('wrong_topic persisted', () => rejections(d.deviceId), (r) => r.wrong_topic === 1);
+  expect(await countReadings(fleet[3].engineId)).toBe(0);
+});
+
+test('every bad payload kind is rejected and counted; the good readings around them are stored and the device stays connected', async () => {
+  const d = fleet[4];
+  const c = await connect(d);
+  let closes = 0;
+  c.on('close', () => closes++);
+  const topic = telemetryTopic(d.engineId);
+  const now = Date.now();
+  const good = (i: number) => JSON.stringify({ ts: now - 60_000 + i * 1000, values: { coolant_temp: 70 + i } });
+  const bad = [
+    '{not json',
+    JSON.stringify({ ts: now, values: { coolant_temp: 1 }, pad: 'x'.repeat(17 * 1024) }), // too_large
+    JSON.stringify({ when: now }), // schema
+    `{"ts": ${now}, "values": {"coolant_temp": 1e999}}`, // not_finite
+    JSON.stringify({ ts: now + 3_600_000, values: { coolant_temp: 80 } }), // future_timestamp
+    JSON.stringify({ ts: now - 40 * 86_400_000, values: { coolant_temp: 80 } }), // old_timestamp
+    JSON.stringify({ ts: now, values: { oil_temp: 80 } }), // unknown_channel
+    JSON.stringify({ ts: now, values: { coolant_temp: { value: 1, unit: 'psi' } } }), // bad_unit
+  ];
+  let i = 0;
+  for (const b of bad) {
+    await c.publishAsync(topic, good(i++), { qos: 1 });
+    await c.publishAsync(topic, b, { qos: 1 });
+  }
+  // one payload mixing a good value with a bad one: the good one is kept
+  await c.publishAsync(topic, JSON.stringify({ ts: now - 1000, values: { coolant_temp: 90, coolant_pressure: { value: 2, unit: 'degF' } } }), { qos: 1 });
+  await until('9 good readings', () => countReadings(d.engineId), (n) => n === 9);
+  const r = await until('rejections persisted', () => rejections(d.deviceId), (x) => Object.keys(x).length >= 8);
+  expect(r).toEqual({ not_json: 1, too_large: 1, schema: 1, not_finite: 1, future_timestamp: 1, old_timestamp: 1, unknown_channel: 1, bad_unit: 2 });
+  const detail = await db.get('SELECT last_detail FROM device_rejections WHERE device_id = ? AND reason = ?', [d.deviceId, 'unknown_channel']);
+  expect(detail.last_detail).toContain('oil_temp');
+  expect(c.connected).toBe(true);
+  expect(closes).toBe(0);
+  const health = await server.health();
+  expect(health.ingest.rejected).toBeGreaterThanOrEqual(10); // 9 here + the wrong_topic above
+});
+
+test('an out-of-range value is stored with quality 1 and counted as bad in the rollup', async () => {
+  const d = fleet[5];
+  const c = await connect(d);
+  const ts = Date.now() - 5000;
+  await c.publishAsync(telemetryTopic(d.engineId), JSON.stringify({ ts, values: { coolant_temp: 400, engine_speed: 1500 } }), { qos: 1 });
+  await until('2 readings', () => countReadings(d.engineId), (n) => n === 2);
+  expect(await db.get('SELECT value, quality FROM readings WHERE engine_id = ? AND channel = 1', [d.engineId])).toEqual({ value: 400, quality: 1 });
+  expect(await db.get('SELECT "min", "max", "count", bad_count FROM rollups WHERE engine_id = ? AND channel = 1', [d.engineId]))
+    .toEqual({ min: null, max: null, count: 0, bad_count: 1 });
+  await until('out_of_range persisted', () => rejections(d.deviceId), (x) => x.out_of_range === 1);
+});
+
+test('socket.io: a bad token is refused at the handshake; a good token receives readings', async () => {
+  const url = server.url;
+  const bad = ioClient(url, { auth: { token: 'forged.token.value' }, transports: ['websocket'], reconnection: false });
+  const err = await new Promise<Error>((resolve) => bad.once('connect_error', resolve));
+  expect(err.message).toMatch(/unauthorized/);
+  bad.close();
+
+  const tokens = createTokenService(loadJwtSecret(server.dataDir));
+  const token = tokens.sign({ id: 1, email: 'operator@example.test', role: 'operator' });
+  const sock: Socket = ioClient(url, { auth: { token }, transports: ['websocket'], reconnection: false });
+  await new Promise<void>((resolve, reject) => { sock.once('connect', () => resolve()); sock.once('connect_error', reject); });
+  const d = fleet[0];
+  const joined = await sock.emitWithAck('watch', { engineIds: [d.engineId] });
+  expect(joined.rooms).toEqual([`engine:${d.engineId}`]);
+  const got = new Promise<any>((resolve) => sock.once('readings', resolve));
+  const c = await connect(d);
+  const ts = Date.now();
+  await c.publishAsync(telemetryTopic(d.engineId), JSON.stringify({ ts, values: { coolant_temp: 77.5 } }), { qos: 1 });
+  const msg = await got;
+  expect(msg).toMatchObject({ engineId: d.engineId, siteId: d.siteId, ts, values: { coolant_temp: { value: 77.5, ts, quality: 0 } } });
+  sock.close();
+});
+
+// last: it stops the server
+test('SIGTERM flushes: every reading acknowledged at QoS 1 is in the file after exit', async () => {
+  const d = fleet[0];
+  await until('earlier readings written', () => server.health(), (h) => h.ingest.buffered === 0 && h.ingest.stored === h.ingest.received);
+  const before = await countReadings(d.engineId);
+  const c = await connect(d);
+  const base = Date.now() - 120_000;
+  const sends: Promise<unknown>[] = [];
+  for (let i = 0; i < 200; i++) {
+    const samples = Array.from({ length: 10 }, (_, k) => ({ ts: base + i * 10 + k, values: { coolant_temp: 60 + k, engine_speed: 1800 } }));
+    sends.push(c.publishAsync(telemetryTopic(d.engineId), JSON.stringify({ samples }), { qos: 1 }));
+  }
+  await Promise.all(sends); // every PUBACK received
+  const code = await server.stop('SIGTERM');
+  expect(code).toBe(0);
+  expect(await countReadings(d.engineId)).toBe(before + 200 * 10 * 2);
+});

@@ -1,0 +1,118 @@
+/**
+ * A real Jacketwatch server in a child process (jest cannot load aedes), on random free ports with a
+ * fresh DATA_DIR, plus a direct sqlite3 handle on its database file for seeding and checking.
+ */
+import { spawn, type ChildProcess } from 'node:child_process';
+import fs from 'node:fs';
+import net from 'node:net';
+import os from 'node:os';
+import path from 'node:path';
+import bcrypt from 'bcryptjs';
+import sqlite3 from 'sqlite3';
+
+const ROOT = path.resolve(__dirname, '../../..');
+
+export function freePort(): Promise<number> {
+  return new Promise((resolve, reject) => {
+    const s = net.createServer();
+    s.once('error', reject);
+    s.listen(0, '127.0.0.1', () => {
+      const port = (s.address() as net.AddressInfo).port;
+      s.close(() => resolve(port));
+    });
+  });
+}
+
+export interface ServerProcess {
+  child: ChildProcess;
+  port: number;
+  mqttPort: number;
+  dataDir: string;
+  dbFile: string;
+  url: string;
+  log(): string;
+  health(): Promise<any>;
+  /** Sends SIGTERM and waits for the exit code. */
+  stop(signal?: NodeJS.Signals): Promise<number | null>;
+}
+
+export async function startServerProcess(opts: { dataDir?: string; env?: Record<string, string> } = {}): Promise<ServerProcess> {
+  const dataDir = opts.dataDir ?? fs.mkdtempSync(path.join(os.tmpdir(), 'jw-telemetry-'));
+  const [port, mqttPort, smtpPort] = [await freePort(), await freePort(), await freePort()];
+  const child = spawn(process.execPath, [path.join(ROOT, 'node_modules/tsx/dist/cli.mjs'), path.join(ROOT, 'server/main.ts')], {
+    cwd: ROOT,
+    env: { ...process.env, PORT: String(port), MQTT_PORT: String(mqttPort), SMTP_PORT: String(smtpPort), DATA_DIR: dataDir, LOG_LEVEL: 'warn', ...opts.env },
+    stdio: ['ignore', 'pipe', 'pipe'],
+  });
+  let output = '';
+  child.stdout!.on('data', (d) => { output += d; });
+  child.stderr!.on('data', (d) => { output += d; });
+  const exited = new Promise<number | null>((resolve) => child.once('exit', (code) => resolve(code)));
+  const url = `http://127.0.0.1:${port}`;
+  const health = async () => (await fetch(`${url}/api/health`)).json();
+  const deadline = Date.now() + 45_000;
+  for (;;) {
+    if (child.exitCode !== null) throw new Error('server exited during start:\n' + output);
+    try { await health(); break; } catch { /* not yet */ }
+    if (Date.now() > deadline) { child.kill('SIGKILL'); throw new Error('server did not start:\n' + output); }
+    await new Promise((r) => setTimeout(r, 200));
+  }
+  return {
+    child, port, mqttPort, dataDir, url, dbFile: path.join(dataDir, 'jacketwatch.sqlite'),
+    log: () => output,
+    health,
+    stop: async (signal = 'SIGTERM') => {
+      if (child.exitCode === null) child.kill(signal);
+      return exited;
+    },
+  };
+}
+
+/** A small promise wrapper over node-sqlite3 on the server's own file. */
+export class Db {
+  private readonly db: sqlite3.Database;
+  constructor(file: string) {
+    this.db = new sqlite3.Database(file);
+    this.db.configure('busyTimeout', 10_000);
+  }
+  all<T = any>(sql: string, params: unknown[] = []): Promise<T[]> {
+    return new Promise((resolve, reject) => this.db.all(sql, params, (err, rows) => (err ? reject(err) : resolve(rows as T[]))));
+  }
+  async get<T = any>(sql: string, params: unknown[] = []): Promise<T> {
+    return (await this.all<T>(sql, params))[0];
+  }
+  run(sql: string, params: unknown[] = []): Promise<number> {
+    return new Promise((resolve, reject) => this.db.run(sql, params, function (err) { if (err) reject(err); else resolve(this.lastID); }));
+  }
+  exec(sql: string): Promise<void> {
+    return new Promise((resolve, reject) => this.db.exec(sql, (err) => (err ? reject(err) : resolve())));
+  }
+  close(): Promise<void> {
+    return new Promise((resolve) => this.db.close(() => resolve()));
+  }
+}
+
+export interface SeededDevice { engineId: number; deviceId: number; siteId: number; username: string; secret: string }
+
+/**
+ * Invented test fleet: `count` engines on one site, one device each. bcrypt cost 4 keeps hundreds of
+ * logins cheap (the cost is stored in the hash, so the server's compare is the real one).
+ */
+export async function seedFleet(db: Db, count: number, prefix = 'gw'): Promise<SeededDevice[]> {
+  const now = new Date().toISOString();
+  const siteId = await db.run(`INSERT INTO sites (name, time_zone) VALUES (?, 'UTC')`, [`Test site ${prefix}`]);
+  const out: SeededDevice[] = [];
+  await db.exec('BEGIN');
+  for (let i = 0; i < count; i++) {
+    const engineId = await db.run(
+      `INSERT INTO engines (site_id, name, duty, capacity_l, coolant_family, glycol_type, glycol_percent, cap_pressure_kpa, oil_drain_interval_h, run_hours, safe_open_temp_c, out_of_service, created_at, updated_at)
+       VALUES (?, ?, 'standby', 60, 'conventional', 'ethylene', 50, 100, 250, 0, 50, 0, ?, ?)`, [siteId, `Test engine ${prefix}-${i}`, now, now]);
+    const username = `${prefix}-${engineId}`;
+    const secret = `secret-${prefix}-${i}-x7`;
+    const deviceId = await db.run(`INSERT INTO devices (engine_id, username, secret_hash, created_at, updated_at) VALUES (?, ?, ?, ?, ?)`,
+      [engineId, username, bcrypt.hashSync(secret, 4), now, now]);
+    out.push({ engineId, deviceId, siteId, username, secret });
+  }
+  await db.exec('COMMIT');
+  return out;
+}
