@@ -1,0 +1,174 @@
+/**
+ * Runs one engine's rules over its readings, in time order, with the shared pure evaluators
+ * (shared/rules). No I/O: the live rule engine and the 7-day preview both drive it.
+ */
+import { RUNNING_RPM, type ChannelKey } from '../../../shared/channels';
+import type { GlycolType } from '../../../shared/coolant/glycol';
+import { initialBoilingMarginState, stepBoilingMargin, type BoilingMarginParams, type BoilingMarginState } from '../../../shared/rules/boiling-margin-rule';
+import { initialConductivityState, stepConductivity, type ConductivityRuleParams, type ConductivityRuleState } from '../../../shared/rules/conductivity-rule';
+import { initialDelayedState } from '../../../shared/rules/delayed-condition';
+import { initialLimitState, stepLimit, type LimitRuleParams } from '../../../shared/rules/limit-rule';
+import { initialNoDataState, stepNoData, type NoDataRuleParams, type NoDataRuleState } from '../../../shared/rules/no-data-rule';
+import { initialRateState, stepRate, type RateRuleParams } from '../../../shared/rules/rate-rule';
+import type { RuleEvent, RuleInput, StepResult } from '../../../shared/rules/rule-types';
+import { initialStuckState, stepStuck, type StuckRuleParams } from '../../../shared/rules/stuck-rule';
+import type { RuleDefinition } from './rule-definitions';
+
+/** What an engine contributes to its rules' parameters. */
+export interface EngineFacts {
+  id: number;
+  glycolType: GlycolType;
+  /** % by volume, as stored on the engine. */
+  glycolPercent: number;
+  /** Conductivity baseline: from when (ms), and its value when already known. */
+  baselineFrom: number;
+  baselineValue: number | null;
+}
+
+export interface EvalReading {
+  channel: ChannelKey;
+  ts: number;
+  value: number;
+  quality: 0 | 1;
+}
+
+export interface RuleHit {
+  def: RuleDefinition;
+  event: RuleEvent;
+}
+
+/** A speed reading older than this no longer tells whether the engine runs. */
+export const RUN_STATE_FRESH_MS = 60_000;
+
+interface Slot {
+  def: RuleDefinition;
+  params: Record<string, unknown>;
+  state: unknown;
+}
+
+/** The channels a rule kind is fed with (null: every reading counts, as for no-data). */
+function channelsOf(def: RuleDefinition): ChannelKey[] | null {
+  if (def.kind === 'no_data') return null;
+  if (def.kind === 'boiling_margin') return ['coolant_temp', 'coolant_pressure'];
+  return [def.channel];
+}
+
+function paramsFor(def: RuleDefinition, engine: EngineFacts): Record<string, unknown> {
+  if (def.kind === 'boiling_margin') {
+    return { glycol: engine.glycolType, glycolPercent: engine.glycolPercent, basis: 'volume', ...def.params };
+  }
+  if (def.kind === 'conductivity') return { baselineFrom: engine.baselineFrom, ...def.params };
+  return def.params;
+}
+
+function initialState(def: RuleDefinition, engine: EngineFacts, startTs: number | null): unknown {
+  switch (def.kind) {
+    case 'limit':
+      return initialLimitState();
+    case 'rate':
+      return initialRateState();
+    case 'no_data':
+      return initialNoDataState(startTs);
+    case 'stuck':
+      return initialStuckState();
+    case 'boiling_margin':
+      return initialBoilingMarginState();
+    case 'conductivity': {
+      const s = initialConductivityState();
+      // a stored baseline is reused, so a restart does not learn a new one from contaminated coolant
+      return engine.baselineValue === null ? s : { ...s, baselineFrom: engine.baselineFrom, baseline: engine.baselineValue };
+    }
+  }
+}
+
+/** The state of a rule whose alarm is still active (after a restart): it can then clear. */
+function activeState(def: RuleDefinition, state: unknown, worst: number | null): unknown {
+  if (def.kind === 'no_data') return { ...(state as NoDataRuleState), active: true };
+  if (def.kind === 'stuck') return { ...(state as object), active: true };
+  return { ...(state as object), ...initialDelayedState(), active: true, worstValue: worst, raisedValue: worst };
+}
+
+function step(slot: Slot, input: RuleInput & { channel?: ChannelKey }): StepResult<unknown> {
+  const p = slot.params;
+  switch (slot.def.kind) {
+    case 'limit':
+      return stepLimit(slot.state as ReturnType<typeof initialLimitState>, input, p as unknown as LimitRuleParams);
+    case 'rate':
+      return stepRate(slot.state as ReturnType<typeof initialRateState>, input, p as unknown as RateRuleParams);
+    case 'no_data':
+      return stepNoData(slot.state as NoDataRuleState, input, p as unknown as NoDataRuleParams);
+    case 'stuck':
+      return stepStuck(slot.state as ReturnType<typeof initialStuckState>, input, p as unknown as StuckRuleParams);
+    case 'boiling_margin':
+      return stepBoilingMargin(slot.state as BoilingMarginState, input as never, p as unknown as BoilingMarginParams);
+    case 'conductivity':
+      return stepConductivity(slot.state as ConductivityRuleState, input, p as unknown as ConductivityRuleParams);
+  }
+}
+
+export class EngineEvaluator {
+  private readonly slots: Slot[];
+  private speed: { ts: number; running: boolean } | null = null;
+  /** Newest reading time seen: older ones (a gateway's backlog) only count for no-data. */
+  private newestTs = -Infinity;
+
+  constructor(
+    readonly engine: EngineFacts,
+    rules: RuleDefinition[],
+    opts: { startTs?: number | null; activeRules?: Map<string, number | null> } = {},
+  ) {
+    this.slots = rules
+      .filter((d) => d.enabled)
+      .map((def) => {
+        let state = initialState(def, engine, opts.startTs ?? null);
+        if (opts.activeRules?.has(def.key)) state = activeState(def, state, opts.activeRules.get(def.key) ?? null);
+        return { def, params: paramsFor(def, engine), state };
+      });
+  }
+
+  /** Running at `ts` from the latest fresh, good engine speed; undefined when not known. */
+  running(ts: number): boolean | undefined {
+    if (!this.speed || ts - this.speed.ts > RUN_STATE_FRESH_MS) return undefined;
+    return this.speed.running;
+  }
+
+  /** Learned conductivity baseline (to persist), when the rule has one. */
+  conductivityBaseline(): number | null {
+    const slot = this.slots.find((s) => s.def.kind === 'conductivity');
+    return slot ? ((slot.state as ConductivityRuleState).baseline ?? null) : null;
+  }
+
+  /** Feed readings of this engine (any order): sorted by time, speed first at equal times. */
+  feed(readings: EvalReading[]): RuleHit[] {
+    const hits: RuleHit[] = [];
+    const sorted = [...readings].sort((a, b) => a.ts - b.ts || (a.channel === 'engine_speed' ? -1 : b.channel === 'engine_speed' ? 1 : 0));
+    for (const r of sorted) {
+      const late = r.ts < this.newestTs;
+      if (!late) this.newestTs = r.ts;
+      if (r.channel === 'engine_speed' && r.quality === 0 && !late) this.speed = { ts: r.ts, running: r.value >= RUNNING_RPM };
+      const running = this.running(r.ts);
+      for (const slot of this.slots) {
+        const chans = channelsOf(slot.def);
+        if (chans === null) {
+          this.apply(slot, { ts: r.ts, value: r.value, quality: r.quality }, hits);
+        } else if (!late && chans.includes(r.channel)) {
+          this.apply(slot, { ts: r.ts, value: r.value, quality: r.quality, running, channel: r.channel }, hits);
+        }
+      }
+    }
+    return hits;
+  }
+
+  /** Let time pass without data: silences and delays complete. */
+  tick(now: number): RuleHit[] {
+    const hits: RuleHit[] = [];
+    for (const slot of this.slots) this.apply(slot, { ts: now }, hits);
+    return hits;
+  }
+
+  private apply(slot: Slot, input: RuleInput & { channel?: ChannelKey }, hits: RuleHit[]): void {
+    const r = step(slot, input);
+    slot.state = r.state;
+    for (const event of r.events) hits.push({ def: slot.def, event });
+  }
+}
