@@ -57,8 +57,7 @@ interface TileRow {
           }
           <span class="alarms" [class.active]="alarms() > 0">
             <mat-icon aria-hidden="true" [fontIcon]="alarms() > 0 ? 'notifications_active' : 'notifications_none'" />
-            <span class="jw-num">{{ alarms() }}</span>
-            <span class="alarm-word">{{ alarms() === 1 ? 'alarm' : 'alarms' }}</span>
+            <span class="jw-num">{{ alarms() }} {{ alarms() === 1 ? 'alarm' : 'alarms' }}</span>
           </span>
         </div>
         <dl class="rows">

@@ -1,0 +1,124 @@
+import { ComponentFixture, TestBed } from '@angular/core/testing';
+import { provideRouter } from '@angular/router';
+import { PreferencesService } from '../core/preferences.service';
+import { EngineTile } from './engine-tile';
+import { Engine } from './fleet-types';
+
+function engine(overrides: Partial<Engine> = {}, ageMs = 3000): Engine {
+  const ts = Date.now() - ageMs;
+  return {
+    id: 17,
+    name: 'Genset North 2',
+    siteId: 3,
+    duty: 'standby',
+    capacityL: 120,
+    coolantFamily: 'conventional',
+    glycolType: 'ethylene',
+    glycolPercent: 50,
+    capPressureKpa: 103,
+    oilDrainIntervalH: 250,
+    runHours: 1234,
+    safeOpenTempC: 50,
+    heaterSetpointC: 40,
+    outOfService: false,
+    latest: {
+      coolant_temp: { value: 84.2, ts, quality: 0 },
+      coolant_pressure: { value: 96.5, ts, quality: 0 },
+      coolant_conductivity: { value: 2100, ts, quality: 0 },
+      engine_speed: { value: 1800, ts, quality: 0 },
+    },
+    lastSeenAt: ts,
+    runState: 'running',
+    ...overrides,
+  };
+}
+
+describe('EngineTile', () => {
+  let fixture: ComponentFixture<EngineTile>;
+  let el: HTMLElement;
+
+  function render(e: Engine): void {
+    fixture.componentRef.setInput('engine', e);
+    fixture.detectChanges();
+  }
+  const text = (sel: string) => el.querySelector(sel)?.textContent?.replace(/\s+/g, ' ').trim() ?? null;
+  const values = () => Array.from(el.querySelectorAll('.value')).map((v) => v.textContent!.trim());
+  const words = () => Array.from(el.querySelectorAll('jw-band-indicator .word')).map((w) => w.textContent!.trim());
+
+  beforeEach(() => {
+    localStorage.clear();
+    TestBed.configureTestingModule({ imports: [EngineTile], providers: [provideRouter([])] });
+    TestBed.inject(PreferencesService).useSystem('metric');
+    fixture = TestBed.createComponent(EngineTile);
+    el = fixture.nativeElement as HTMLElement;
+  });
+
+  it('shows name, duty, run state and the three coolant values with units', () => {
+    render(engine());
+    expect(text('.name')).toBe('Genset North 2');
+    expect(text('.duty')).toBe('Standby');
+    expect(text('.state-text')).toBe('Running');
+    expect(el.querySelector('.state mat-icon')!.getAttribute('fonticon')).toBe('sync');
+    expect(values()).toEqual(['84.2 °C', '97 kPa', '2,100 µS/cm']);
+    expect(words()).toEqual([]);
+  });
+
+  it('links to the engine page with a spoken summary', () => {
+    render(engine());
+    const link = el.querySelector('a')!;
+    expect(link.getAttribute('href')).toBe('/engines/17');
+    expect(link.getAttribute('aria-label')).toBe(
+      'Genset North 2, Standby; Running; Temperature 84.2 °C; Pressure 97 kPa; Conductivity 2,100 µS/cm; 0 active alarms',
+    );
+  });
+
+  it('flags values outside the running bands by word', () => {
+    const e = engine();
+    render({ ...e, latest: { ...e.latest, coolant_temp: { ...e.latest.coolant_temp!, value: 101 }, coolant_pressure: { ...e.latest.coolant_pressure!, value: 20 } } });
+    expect(words()).toEqual(['HIGH', 'LOW']);
+    expect(el.querySelector('a')!.getAttribute('aria-label')).toContain('Temperature 101.0 °C above normal; Pressure 20 kPa below normal');
+  });
+
+  it('judges a stopped engine by the standby-warm band, and follows live engine speed', () => {
+    const e = engine({ runState: 'running' });
+    render({ ...e, latest: { ...e.latest, engine_speed: { value: 0, ts: Date.now(), quality: 0 }, coolant_temp: { value: 41, ts: Date.now(), quality: 0 } } });
+    expect(text('.state-text')).toBe('Stopped');
+    expect(words()).toEqual([]); // 41 °C is within 30-50 °C; no pressure band while stopped
+    const bars = el.querySelectorAll('jw-band-indicator');
+    expect(bars[1].getAttribute('aria-label')).toContain('no normal band for this state');
+  });
+
+  it('shows "no data" with the age of the last reading, by text and icon', () => {
+    render(engine({}, 10 * 60 * 1000));
+    expect(text('.state-text')).toBe('No data');
+    expect(el.querySelector('.state mat-icon')!.getAttribute('fonticon')).toBe('cloud_off');
+    expect(text('.age')).toBe('· last reading 10 min ago');
+    expect(el.querySelector('mat-card')!.classList).toContain('no-data');
+    expect(words()).toEqual([]); // stale values are not judged against a band
+  });
+
+  it('shows the active alarm count when the engine carries one', () => {
+    render(engine({ activeAlarms: 2 }));
+    expect(text('.alarms')).toBe('2 alarms');
+    expect(el.querySelector('.alarms')!.classList).toContain('active');
+    render(engine({ activeAlarms: 1 }));
+    expect(text('.alarms')).toBe('1 alarm');
+  });
+
+  it('says "bad reading" instead of a number of bad quality', () => {
+    const e = engine();
+    render({ ...e, latest: { ...e.latest, coolant_pressure: { value: 999, ts: Date.now(), quality: 1 } } });
+    expect(values()[1]).toBe('bad reading');
+  });
+
+  it('converts to US units when chosen', () => {
+    TestBed.inject(PreferencesService).useSystem('us');
+    render(engine());
+    expect(values()).toEqual(['183.6 °F', '14.0 psi', '2,100 µS/cm']);
+  });
+
+  it('marks out of service', () => {
+    render(engine({ outOfService: true }));
+    expect(text('.oos')).toBe('Out of service');
+  });
+});
