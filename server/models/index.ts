@@ -1,11 +1,12 @@
 import type { Sequelize } from 'sequelize';
+import { initAlarmModels, type AlarmModels } from './alarm-models';
 import { Device, initDevice } from './device';
 import { DeviceRejection, initDeviceRejection } from './device-rejection';
 import { Engine, initEngine } from './engine';
 import { Site, initSite } from './site';
 import { User, initUser } from './user';
 
-export interface Models {
+export interface Models extends AlarmModels {
   User: typeof User;
   Site: typeof Site;
   Engine: typeof Engine;
@@ -21,6 +22,7 @@ export function initModels(sequelize: Sequelize): Models {
     Engine: initEngine(sequelize),
     Device: initDevice(sequelize),
     DeviceRejection: initDeviceRejection(sequelize),
+    ...initAlarmModels(sequelize),
   };
   models.Site.hasMany(models.Engine, { foreignKey: 'siteId', as: 'engines' });
   models.Engine.belongsTo(models.Site, { foreignKey: 'siteId', as: 'site' });

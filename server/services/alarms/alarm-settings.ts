@@ -1,0 +1,34 @@
+import { isPriority, type AlarmPriority } from './priority';
+
+/** Settings of the alarm feature, from the environment (defaults in brackets). */
+export interface AlarmSettings {
+  /** ESCALATE_AFTER_S [900]: not acknowledged this long after an e-mail -> the next person is told. */
+  escalateAfterMs: number;
+  /** NOTIFY_MIN_PRIORITY [medium]: new alarms at or above this priority are e-mailed. */
+  notifyMinPriority: AlarmPriority;
+  /** ALARM_TICK_MS [1000]: clock for no-data, delays, shelf expiry and escalation. */
+  tickMs: number;
+  /** MAIL_RETRY_BASE_S [5] and MAIL_RETRY_MAX_S [600]: outbox back-off. */
+  mailRetryBaseMs: number;
+  mailRetryMaxMs: number;
+}
+
+function seconds(env: NodeJS.ProcessEnv, name: string, fallback: number): number {
+  const raw = env[name];
+  if (raw === undefined || raw === '') return fallback;
+  const n = Number(raw);
+  if (!Number.isFinite(n) || n <= 0) throw new Error(`${name} must be a positive number of seconds, got "${raw}"`);
+  return n;
+}
+
+export function loadAlarmSettings(env: NodeJS.ProcessEnv = process.env): AlarmSettings {
+  const min = env.NOTIFY_MIN_PRIORITY || 'medium';
+  if (!isPriority(min)) throw new Error(`NOTIFY_MIN_PRIORITY must be low, medium, high or urgent, got "${min}"`);
+  return {
+    escalateAfterMs: seconds(env, 'ESCALATE_AFTER_S', 15 * 60) * 1000,
+    notifyMinPriority: min,
+    tickMs: seconds(env, 'ALARM_TICK_MS', 1000),
+    mailRetryBaseMs: seconds(env, 'MAIL_RETRY_BASE_S', 5) * 1000,
+    mailRetryMaxMs: seconds(env, 'MAIL_RETRY_MAX_S', 600) * 1000,
+  };
+}
