@@ -13,7 +13,8 @@ import { createSequelize } from './db/sequelize';
 import { createLogger, type Logger } from './logger';
 import { initModels, type Models } from './models';
 import { siteOfEngineLookup } from './services/engines';
-import type { Telemetry, TelemetryDeps } from './telemetry/types';
+import { startTelemetry } from './telemetry';
+import type { Telemetry } from './telemetry/types';
 
 export interface ServerHandle {
   app: Express;
@@ -34,16 +35,6 @@ export interface StartOptions extends AppOptions {
   host?: string;
 }
 
-type StartTelemetry = (deps: TelemetryDeps) => Telemetry | Promise<Telemetry>;
-
-function loadStartTelemetry(): StartTelemetry {
-  // the telemetry module is written alongside; loaded at run time so this file compiles without it
-  // eslint-disable-next-line @typescript-eslint/no-require-imports
-  const mod = require('./telemetry') as { startTelemetry?: StartTelemetry };
-  if (typeof mod.startTelemetry !== 'function') throw new Error('server/telemetry/index.ts does not export startTelemetry');
-  return mod.startTelemetry;
-}
-
 export async function startServer(config: Config, opts: StartOptions = {}): Promise<ServerHandle> {
   const log = opts.log ?? createLogger(config.logLevel);
   fs.mkdirSync(config.dataDir, { recursive: true });
@@ -56,7 +47,7 @@ export async function startServer(config: Config, opts: StartOptions = {}): Prom
   const app = createApp(ctx, opts);
   const httpServer = http.createServer(app);
 
-  const telemetry = await loadStartTelemetry()({
+  const telemetry = await startTelemetry({
     config,
     sequelize,
     httpServer,
