@@ -1,0 +1,181 @@
+/**
+ * The opening check: may the cooling system be opened now?
+ * All of these, together, held for `holdS`: the engine stopped and not run for `minStoppedS`;
+ * coolant at or below the safe opening temperature; coolant pressure at or below the limit
+ * (about zero gauge); telemetry fresh; lockout/tagout confirmed by the technician.
+ * Stale or missing data is never clear: the check never opens by itself.
+ * It also predicts when it will be clear, from a Newton cooling fit over the readings since
+ * the engine stopped. This is an aid, not a permission: the engine maker's instructions,
+ * site procedures and local codes come first.
+ */
+import { RUNNING_RPM } from '../channels';
+import { fitCooling, timeToReachS } from '../cooling/newton-cooling';
+
+export interface TimedValue {
+  ts: number;
+  value: number;
+  /** 0 good (default), 1 bad: bad readings are ignored. */
+  quality?: number;
+}
+
+export interface OpeningSettings {
+  /** °C, default 50 (common guidance of the trade: open only below about 50 °C). */
+  safeOpenTempC: number;
+  /** kPa gauge, default 7 (about 1 psi: "zero gauge" with room for sensor offset). */
+  maxPressureKpa: number;
+  /** Engine stopped at least this long, default 600 s. */
+  minStoppedS: number;
+  /** All conditions held together this long, default 120 s. */
+  holdS: number;
+  /** A channel whose last reading is older than this is stale, default 60 s. */
+  staleAfterS: number;
+  /** Jacket-water heater setpoint, °C; null when the engine has none. */
+  heaterSetpointC: number | null;
+  /** Ambient (engine room) temperature, °C, when known. */
+  ambientC: number | null;
+  /** Above this speed the engine counts as running. */
+  runningRpm: number;
+}
+
+export const DEFAULT_OPENING_SETTINGS: Readonly<OpeningSettings> = Object.freeze({
+  safeOpenTempC: 50, maxPressureKpa: 7, minStoppedS: 600, holdS: 120, staleAfterS: 60,
+  heaterSetpointC: null, ambientC: null, runningRpm: RUNNING_RPM,
+});
+
+export interface OpeningCheckInput {
+  readings: { coolant_temp: TimedValue[]; coolant_pressure: TimedValue[]; engine_speed: TimedValue[] };
+  settings?: Partial<OpeningSettings>;
+  lockoutConfirmed: boolean;
+}
+
+export type OpeningConditionName = 'engine-stopped' | 'coolant-temperature' | 'coolant-pressure' | 'telemetry-fresh' | 'lockout-confirmed' | 'held';
+
+export interface OpeningCondition {
+  name: OpeningConditionName;
+  met: boolean;
+  /** engine-stopped: seconds stopped; temperature °C; pressure kPa; telemetry: age of the oldest latest reading, s; held: seconds held. */
+  value: number | boolean | null;
+  limit: number | boolean | null;
+  unit: string;
+  detail?: string;
+}
+
+export interface OpeningCheckResult {
+  clear: boolean;
+  conditions: OpeningCondition[];
+  /** ms when the check is predicted to become clear (now when clear), null when it cannot be predicted. */
+  clearAt: number | null;
+  reasons: string[];
+  stale: boolean;
+}
+
+export const LOCKOUT_REASON =
+  'Lockout/tagout not confirmed: isolate the engine (starting system, fuel, heater supply) and relieve stored energy, ' +
+  'including cooling-system pressure, before opening (OSHA 29 CFR 1910.147(d)(4) and (d)(5)).';
+
+function good(list: readonly TimedValue[] | undefined, now: number): TimedValue[] {
+  return (list ?? []).filter((r) => (r.quality ?? 0) === 0 && Number.isFinite(r.value) && Number.isFinite(r.ts) && r.ts <= now).sort((a, b) => a.ts - b.ts);
+}
+
+/** ts of the first reading of the trailing run in which `ok` holds and no gap exceeds maxGapMs; null if the latest is not ok. */
+function trailingRunStart(list: readonly TimedValue[], ok: (v: number) => boolean, maxGapMs: number): number | null {
+  if (!list.length || !ok(list[list.length - 1].value)) return null;
+  let start = list.length - 1;
+  while (start > 0 && ok(list[start - 1].value) && list[start].ts - list[start - 1].ts <= maxGapMs) start--;
+  return list[start].ts;
+}
+
+const fmt = (n: number, d = 1) => n.toFixed(d);
+
+export function openingCheck(input: OpeningCheckInput, now: number): OpeningCheckResult {
+  const s: OpeningSettings = { ...DEFAULT_OPENING_SETTINGS, ...(input.settings ?? {}) };
+  const temp = good(input.readings.coolant_temp, now);
+  const pres = good(input.readings.coolant_pressure, now);
+  const speed = good(input.readings.engine_speed, now);
+  const reasons: string[] = [];
+  const maxGap = s.staleAfterS * 1000;
+  const last = (l: TimedValue[]) => (l.length ? l[l.length - 1] : null);
+  const lt = last(temp), lp = last(pres), ls = last(speed);
+
+  // Freshness
+  const ages = [lt, lp, ls].map((r) => (r ? (now - r.ts) / 1000 : Infinity));
+  const missing = (['coolant temperature', 'coolant pressure', 'engine speed'] as const).filter((_, i) => ages[i] === Infinity);
+  const staleNames = (['coolant temperature', 'coolant pressure', 'engine speed'] as const).filter((_, i) => ages[i] !== Infinity && ages[i] > s.staleAfterS);
+  const stale = missing.length > 0 || staleNames.length > 0;
+  const oldest = Math.max(...ages);
+  if (missing.length) reasons.push(`No live data for ${missing.join(', ')}: the check cannot be clear without it.`);
+  if (staleNames.length) reasons.push(`Telemetry stale (${staleNames.join(', ')} older than ${s.staleAfterS} s): the check cannot be clear until fresh data arrives.`);
+
+  // Engine stopped
+  const isStopped = (v: number) => v <= s.runningRpm;
+  const stoppedSince = trailingRunStart(speed, isStopped, maxGap);
+  const stoppedForS = stoppedSince === null ? 0 : (now - stoppedSince) / 1000;
+  const stoppedMet = stoppedSince !== null && stoppedForS >= s.minStoppedS;
+  if (ls && !isStopped(ls.value)) reasons.push(`Engine running (${fmt(ls.value, 0)} rpm).`);
+  else if (ls && !stoppedMet) reasons.push(`Engine stopped for ${fmt(stoppedForS, 0)} s; needs ${s.minStoppedS} s.`);
+
+  // Temperature and pressure
+  const tempOk = (v: number) => v <= s.safeOpenTempC;
+  const presOk = (v: number) => v <= s.maxPressureKpa;
+  const tempMet = lt !== null && tempOk(lt.value);
+  const presMet = lp !== null && presOk(lp.value);
+  if (lt && !tempMet) reasons.push(`Coolant ${fmt(lt.value)} °C is above the safe opening temperature ${s.safeOpenTempC} °C.`);
+  if (lp && !presMet) reasons.push(`Coolant pressure ${fmt(lp.value)} kPa is above ${s.maxPressureKpa} kPa gauge.`);
+
+  // Hold: every measured condition continuously met since metSince
+  const tempSince = trailingRunStart(temp, tempOk, maxGap);
+  const presSince = trailingRunStart(pres, presOk, maxGap);
+  const dataMet = !stale && stoppedMet && tempMet && presMet;
+  const metSince = dataMet ? Math.max(stoppedSince! + s.minStoppedS * 1000, tempSince!, presSince!) : null;
+  const heldS = metSince === null ? 0 : (now - metSince) / 1000;
+  const heldMet = dataMet && heldS >= s.holdS;
+  if (dataMet && !heldMet) reasons.push(`All measured conditions met for ${fmt(heldS, 0)} s; they must hold for ${s.holdS} s.`);
+  if (!input.lockoutConfirmed) reasons.push(LOCKOUT_REASON);
+
+  const conditions: OpeningCondition[] = [
+    { name: 'engine-stopped', met: stoppedMet, value: stoppedForS, limit: s.minStoppedS, unit: 's', detail: ls ? (isStopped(ls.value) ? `${fmt(ls.value, 0)} rpm` : `running at ${fmt(ls.value, 0)} rpm`) : 'no data' },
+    { name: 'coolant-temperature', met: tempMet, value: lt?.value ?? null, limit: s.safeOpenTempC, unit: '°C' },
+    { name: 'coolant-pressure', met: presMet, value: lp?.value ?? null, limit: s.maxPressureKpa, unit: 'kPa' },
+    { name: 'telemetry-fresh', met: !stale, value: Number.isFinite(oldest) ? oldest : null, limit: s.staleAfterS, unit: 's' },
+    { name: 'lockout-confirmed', met: input.lockoutConfirmed, value: input.lockoutConfirmed, limit: true, unit: '' },
+    { name: 'held', met: heldMet, value: heldS, limit: s.holdS, unit: 's' },
+  ];
+  const clear = conditions.every((c) => c.met);
+  return { clear, conditions, clearAt: clear ? now : predictClearAt(), reasons, stale };
+
+  function predictClearAt(): number | null {
+    if (stale) { reasons.push('No prediction while data is missing or stale.'); return null; }
+    if (stoppedSince === null) { reasons.push('No prediction until the engine has stopped.'); return null; }
+    const times: number[] = [stoppedSince + s.minStoppedS * 1000];
+    // Temperature
+    if (tempMet) times.push(tempSince!);
+    else {
+      const candidates = [s.heaterSetpointC, s.ambientC].filter((v): v is number => v !== null && Number.isFinite(v));
+      const towards = candidates.length ? Math.max(...candidates) : null;
+      if (s.heaterSetpointC !== null && s.heaterSetpointC >= s.safeOpenTempC) {
+        reasons.push(`The jacket-water heater is set to ${s.heaterSetpointC} °C, at or above the safe opening temperature ${s.safeOpenTempC} °C: the coolant will not cool below it until the heater is switched off (and locked out).`);
+        return null;
+      }
+      if (towards !== null && towards >= s.safeOpenTempC) {
+        reasons.push(`Ambient ${towards} °C is at or above the safe opening temperature ${s.safeOpenTempC} °C: the coolant will not cool below it by itself.`);
+        return null;
+      }
+      const since = temp.filter((r) => r.ts >= stoppedSince);
+      const fit = fitCooling(since.map((r) => ({ t: r.ts / 1000, temp: r.value })), towards);
+      if (!fit) { reasons.push('Not enough cooling data since the engine stopped to predict the temperature.'); return null; }
+      const dt = timeToReachS(lt!.value, fit.ambientC, fit.tauS, s.safeOpenTempC);
+      if (!Number.isFinite(dt)) { reasons.push(`The coolant is levelling off near ${fmt(fit.ambientC)} °C, above the safe opening temperature: no prediction.`); return null; }
+      times.push(lt!.ts + dt * 1000);
+    }
+    // Pressure: the same first-order decay toward 0 kPa gauge (an empirical fit, not a model of the system).
+    if (presMet) times.push(presSince!);
+    else {
+      const since = pres.filter((r) => r.ts >= stoppedSince);
+      const fit = s.maxPressureKpa > 0 ? fitCooling(since.map((r) => ({ t: r.ts / 1000, temp: r.value })), 0) : null;
+      const dt = fit ? timeToReachS(lp!.value, 0, fit.tauS, s.maxPressureKpa) : Infinity;
+      if (!Number.isFinite(dt)) { reasons.push('Coolant pressure is not falling toward zero: no prediction.'); return null; }
+      times.push(lp!.ts + dt * 1000);
+    }
+    return Math.max(now, Math.max(...times) + s.holdS * 1000);
+  }
+}
