@@ -5,8 +5,9 @@ import { DeviceRejection, initDeviceRejection } from './device-rejection';
 import { Engine, initEngine } from './engine';
 import { Site, initSite } from './site';
 import { User, initUser } from './user';
+import { initWorkModels, type WorkModels } from './work-models';
 
-export interface Models extends AlarmModels {
+export interface Models extends AlarmModels, WorkModels {
   User: typeof User;
   Site: typeof Site;
   Engine: typeof Engine;
@@ -23,6 +24,7 @@ export function initModels(sequelize: Sequelize): Models {
     Device: initDevice(sequelize),
     DeviceRejection: initDeviceRejection(sequelize),
     ...initAlarmModels(sequelize),
+    ...initWorkModels(sequelize),
   };
   models.Site.hasMany(models.Engine, { foreignKey: 'siteId', as: 'engines' });
   models.Engine.belongsTo(models.Site, { foreignKey: 'siteId', as: 'site' });
