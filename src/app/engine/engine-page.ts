@@ -1,19 +1,278 @@
-import { ChangeDetectionStrategy, Component, input } from '@angular/core';
+import { DOCUMENT, DatePipe, DecimalPipe } from '@angular/common';
+import { ChangeDetectionStrategy, Component, DestroyRef, computed, effect, inject, input, signal, untracked } from '@angular/core';
+import { toObservable } from '@angular/core/rxjs-interop';
+import { MatButtonModule } from '@angular/material/button';
+import { MatCardModule } from '@angular/material/card';
+import { MatChipsModule } from '@angular/material/chips';
+import { MatIconModule } from '@angular/material/icon';
+import { MatProgressBarModule } from '@angular/material/progress-bar';
+import { Title } from '@angular/platform-browser';
 import { RouterLink } from '@angular/router';
+import { EMPTY, Subscription, catchError, debounceTime, forkJoin, map, of, switchMap, tap } from 'rxjs';
+import { CHANNELS, CHANNEL_KEYS, ChannelKey, isChannelKey } from '../../../shared/channels';
+import { ClockService } from '../core/clock.service';
+import { ChannelValues } from '../core/live-reading';
+import { LiveService } from '../core/live.service';
+import { PreferencesService } from '../core/preferences.service';
+import { Engine, RunState, Site } from '../fleet/fleet-types';
+import { runStateAt, toMillis } from '../fleet/run-state';
+import { UnitValuePipe } from '../ui/unit-value.pipe';
+import { EngineService } from './engine.service';
+import { LiveValues } from './live-values';
+import { RangePicker } from './range-picker';
+import { bucketsToCsv, downloadText } from './readings-csv';
+import { RecentReading, RecentReadings } from './recent-readings';
+import { TREND_NOW, TrendRange, presetRange, refreshRange } from './trend-range';
+import { TrendChart, TrendWindow } from './trend-chart';
+import { Bucket, LiveSample, appendLive, bucketWidth, runChanges } from './trend-series';
 
-/** Placeholder until the engine page is built; the route and its :id stay as they are. */
+const STATE_TEXT: Record<RunState, string> = { running: 'Running', stopped: 'Stopped', 'no-data': 'No data' };
+const STATE_ICON: Record<RunState, string> = { running: 'sync', stopped: 'stop_circle', 'no-data': 'cloud_off' };
+const DUTY_TEXT: Record<string, string> = { standby: 'Standby', prime: 'Prime', continuous: 'Continuous' };
+const FAMILY_TEXT: Record<string, string> = { conventional: 'Conventional (with SCA)', 'extended-life': 'Extended-life' };
+
+/** The chart is drawn again with live readings at most this often. */
+const LIVE_REDRAW_MS = 2000;
+/** Recent readings kept for the table. */
+const RECENT_MAX = 200;
+/** Live samples held between redraws, per channel (the server sends at most 4 a second). */
+const PENDING_MAX = 100;
+
+interface TrendRequest {
+  engineId: number;
+  channels: ChannelKey[];
+  window: TrendWindow;
+  points: number;
+}
+
+/** One engine: who it is, how it is doing now, and how it did over a chosen window. */
 @Component({
   selector: 'jw-engine-page',
   changeDetection: ChangeDetectionStrategy.OnPush,
-  imports: [RouterLink],
-  template: `
-    <div style="padding: 16px 20px">
-      <h1>Engine {{ id() }}</h1>
-      <p>The engine page is not built yet. <a routerLink="/fleet">Back to the fleet board</a></p>
-    </div>
-  `,
+  imports: [
+    RouterLink, MatCardModule, MatIconModule, MatButtonModule, MatChipsModule, MatProgressBarModule,
+    DatePipe, DecimalPipe, UnitValuePipe, LiveValues, RangePicker, TrendChart, RecentReadings,
+  ],
+  templateUrl: './engine-page.html',
+  styleUrl: './engine-page.scss',
 })
 export class EnginePage {
+  private readonly api = inject(EngineService);
+  private readonly live = inject(LiveService);
+  private readonly clock = inject(ClockService);
+  private readonly prefs = inject(PreferencesService);
+  private readonly now = inject(TREND_NOW);
+  private readonly title = inject(Title);
+  private readonly document = inject(DOCUMENT);
+  private readonly destroyRef = inject(DestroyRef);
+
   /** Route parameter (withComponentInputBinding). */
   readonly id = input<string>();
+  private readonly engineId = computed(() => {
+    const n = Number(this.id());
+    return Number.isInteger(n) && n > 0 ? n : null;
+  });
+
+  protected readonly engine = signal<Engine | null>(null);
+  protected readonly site = signal<Site | null>(null);
+  protected readonly loadError = signal<string | null>(null);
+
+  protected readonly state = computed<RunState>(() => {
+    const e = this.engine();
+    return e ? runStateAt(e, this.clock.now()) : 'no-data';
+  });
+  protected readonly stateText = computed(() => STATE_TEXT[this.state()]);
+  protected readonly stateIcon = computed(() => STATE_ICON[this.state()]);
+  protected readonly dutyText = computed(() => DUTY_TEXT[this.engine()?.duty ?? ''] ?? this.engine()?.duty ?? '');
+  protected readonly familyText = computed(() => FAMILY_TEXT[this.engine()?.coolantFamily ?? ''] ?? this.engine()?.coolantFamily ?? '');
+  protected readonly lastSeen = computed(() => toMillis(this.engine()?.lastSeenAt));
+
+  // --- trend ---
+  protected readonly allChannels = CHANNEL_KEYS.map((key) => ({ key, label: CHANNELS[key].label }));
+  protected readonly channels = signal<ChannelKey[]>(['coolant_temp', 'coolant_pressure', 'coolant_conductivity']);
+  protected readonly range = signal<TrendRange>(presetRange('24h', this.now()));
+  /** A window the user zoomed into; null shows the whole range. */
+  protected readonly zoom = signal<TrendWindow | null>(null);
+  protected readonly width = signal(0);
+  protected readonly trendWindow = computed<TrendWindow>(() => {
+    const z = this.zoom();
+    const r = this.range();
+    return z ?? { from: r.from, to: r.to };
+  });
+  /** Live readings extend the trend only while it shows a window that ends now. */
+  private readonly following = computed(() => this.zoom() === null && this.range().live);
+  protected readonly data = signal<ReadonlyMap<ChannelKey, readonly Bucket[]>>(new Map());
+  private readonly speed = signal<readonly Bucket[]>([]);
+  protected readonly loadingTrend = signal(false);
+  protected readonly trendError = signal<string | null>(null);
+  protected readonly runChanges = computed(() => runChanges(this.speed()), {
+    equal: (a, b) => a.length === b.length && a.every((c, i) => c.t === b[i].t && c.kind === b[i].kind),
+  });
+  private lastRequest: TrendRequest | null = null;
+  private pending = new Map<ChannelKey, LiveSample[]>();
+
+  protected readonly recent = signal<RecentReading[]>([]);
+
+  constructor() {
+    effect((onCleanup) => {
+      const id = this.engineId();
+      if (id === null) {
+        this.loadError.set('There is no engine with this address.');
+        return;
+      }
+      const sub = this.load(id);
+      onCleanup(() => sub.unsubscribe());
+    });
+
+    effect(() => {
+      const name = this.engine()?.name;
+      untracked(() => this.title.setTitle(name ? `${name} · Jacketwatch` : 'Engine · Jacketwatch'));
+    });
+
+    const request = computed<TrendRequest | null>(() => {
+      const engineId = this.engineId();
+      const width = this.width();
+      if (engineId === null || width === 0) return null;
+      return { engineId, channels: this.channels(), window: this.trendWindow(), points: width };
+    });
+    toObservable(request)
+      .pipe(
+        debounceTime(150),
+        switchMap((req) => (req ? this.fetchTrend(req) : EMPTY)),
+      )
+      .subscribe();
+
+    const timer = setInterval(() => this.applyLive(), LIVE_REDRAW_MS);
+    this.destroyRef.onDestroy(() => clearInterval(timer));
+  }
+
+  protected chooseRange(range: TrendRange): void {
+    this.zoom.set(null);
+    this.range.set(range);
+  }
+
+  protected toggleChannel(key: ChannelKey, on: boolean): void {
+    this.channels.update((list) => {
+      const next = on ? [...new Set([...list, key])] : list.filter((k) => k !== key);
+      return CHANNEL_KEYS.filter((k) => next.includes(k));
+    });
+  }
+
+  protected onZoom(win: TrendWindow): void {
+    const z = this.zoom();
+    if (z && z.from === win.from && z.to === win.to) return; // the other charts of the group report the same window
+    this.zoom.set(win);
+  }
+
+  protected resetZoom(): void {
+    if (this.zoom() === null) return;
+    this.zoom.set(null);
+    this.range.update((r) => refreshRange(r, this.now()));
+  }
+
+  protected exportCsv(): void {
+    const e = this.engine();
+    const win = this.trendWindow();
+    const stamp = (ms: number) => new Date(ms).toISOString().slice(0, 16).replace(/[:]/g, '');
+    const name = `engine-${e?.id ?? 'x'}-${stamp(win.from)}-${stamp(win.to)}.csv`;
+    downloadText(this.document, name, bucketsToCsv(this.data(), this.prefs.preferences()));
+  }
+
+  private load(id: number): Subscription {
+    this.loadError.set(null);
+    const sub = forkJoin([this.api.engine(id), this.api.sites().pipe(catchError(() => of([] as Site[])))]).subscribe({
+      next: ([engine, sites]) => {
+        this.engine.set({ ...engine, latest: liveValues(engine.latest ?? {}) });
+        this.site.set(sites.find((s) => s.id === engine.siteId) ?? null);
+        this.recent.set(recentFrom(engine.latest ?? {}));
+      },
+      error: (err: { status?: number }) =>
+        this.loadError.set(err?.status === 404 ? 'There is no engine with this address.' : 'The engine could not be loaded. Reload the page to try again.'),
+    });
+    const unwatch = this.live.watch({ engineIds: [id] });
+    sub.add(unwatch);
+    sub.add(this.live.readingsFor(id).subscribe((msg) => this.onLive(liveValues(msg.values))));
+    return sub;
+  }
+
+  private fetchTrend(req: TrendRequest) {
+    this.loadingTrend.set(true);
+    this.trendError.set(null);
+    const wanted = [...new Set<ChannelKey>([...req.channels, 'engine_speed'])];
+    const q = (channel: ChannelKey) => this.api.readings(req.engineId, { channel, from: req.window.from, to: req.window.to, points: req.points });
+    return forkJoin(wanted.map((ch) => q(ch).pipe(map((b) => [ch, b] as const)))).pipe(
+      tap((pairs) => {
+        const all = new Map<ChannelKey, readonly Bucket[]>(pairs);
+        this.speed.set(all.get('engine_speed') ?? []);
+        this.data.set(new Map(req.channels.map((ch) => [ch, all.get(ch) ?? []])));
+        this.lastRequest = req;
+        this.pending.clear();
+        this.loadingTrend.set(false);
+      }),
+      catchError(() => {
+        this.trendError.set('The trend could not be loaded. Choose the range again to retry.');
+        this.loadingTrend.set(false);
+        return EMPTY;
+      }),
+    );
+  }
+
+  private onLive(values: ChannelValues): void {
+    this.engine.update((e) => (e ? { ...e, latest: { ...e.latest, ...values } } : e));
+    const rows: RecentReading[] = [];
+    for (const [key, v] of Object.entries(values) as [ChannelKey, NonNullable<ChannelValues[ChannelKey]>][]) {
+      const t = toMillis(v.ts);
+      if (t === null) continue;
+      rows.push({ t, channel: key, value: v.value, quality: v.quality });
+      if (v.quality === 0 && this.following()) {
+        const list = this.pending.get(key) ?? [];
+        list.push({ t, value: v.value });
+        if (list.length > PENDING_MAX) list.splice(0, list.length - PENDING_MAX);
+        this.pending.set(key, list);
+      }
+    }
+    if (rows.length) this.recent.update((list) => [...rows.sort((a, b) => b.t - a.t), ...list].slice(0, RECENT_MAX));
+  }
+
+  /** Folds the live samples gathered since the last redraw into the trend, keeping it bounded. */
+  private applyLive(): void {
+    const req = this.lastRequest;
+    if (!req || !this.pending.size || !this.following() || this.loadingTrend()) return;
+    const r = this.range();
+    const now = this.now();
+    const from = now - (r.to - r.from);
+    const opts = { from, maxPoints: req.points, bucketMs: bucketWidth(req.window.from, req.window.to, req.points) };
+    const pending = this.pending;
+    this.pending = new Map();
+    const speed = pending.get('engine_speed');
+    if (speed) this.speed.update((b) => appendLive(b, speed, opts));
+    this.data.update((data) => {
+      const next = new Map(data);
+      for (const [ch, buckets] of data) {
+        const samples = pending.get(ch);
+        if (samples) next.set(ch, appendLive(buckets, samples, opts));
+      }
+      return next;
+    });
+  }
+}
+
+/** Live values keyed by channel (the server may also use channel codes). */
+function liveValues(values: Record<string, unknown>): ChannelValues {
+  const out: ChannelValues = {};
+  for (const [key, v] of Object.entries(values)) {
+    const channel = isChannelKey(key) ? key : CHANNEL_KEYS.find((k) => String(CHANNELS[k].code) === key);
+    const cv = v as { value?: unknown; ts?: number | string; quality?: number } | null;
+    if (channel && cv && typeof cv.value === 'number' && cv.ts !== undefined) out[channel] = { value: cv.value, ts: cv.ts, quality: cv.quality ?? 0 };
+  }
+  return out;
+}
+
+function recentFrom(values: Record<string, unknown>): RecentReading[] {
+  const out: RecentReading[] = [];
+  for (const [channel, v] of Object.entries(liveValues(values)) as [ChannelKey, NonNullable<ChannelValues[ChannelKey]>][]) {
+    const t = toMillis(v.ts);
+    if (t !== null) out.push({ t, channel, value: v.value, quality: v.quality });
+  }
+  return out.sort((a, b) => b.t - a.t);
 }

@@ -1,0 +1,95 @@
+import { ChangeDetectionStrategy, Component, computed, inject, input, output, signal } from '@angular/core';
+import { FormsModule } from '@angular/forms';
+import { MatButtonModule } from '@angular/material/button';
+import { MatButtonToggleModule } from '@angular/material/button-toggle';
+import { MatFormFieldModule } from '@angular/material/form-field';
+import { MatInputModule } from '@angular/material/input';
+import { PRESET_LABEL, RangePreset, TREND_NOW, TrendRange, customRange, fromLocalInput, presetRange, toLocalInput } from './trend-range';
+
+const PRESETS: RangePreset[] = ['1h', '24h', '7d', '30d', 'custom'];
+
+/** Chooses the trend's time window: a span ending now, or a typed from/to in the browser's time zone. */
+@Component({
+  selector: 'jw-range-picker',
+  changeDetection: ChangeDetectionStrategy.OnPush,
+  imports: [FormsModule, MatButtonToggleModule, MatFormFieldModule, MatInputModule, MatButtonModule],
+  template: `
+    <mat-button-toggle-group class="presets" hideSingleSelectionIndicator [value]="shownPreset()" (change)="choose($event.value)" aria-label="Time range">
+      @for (p of presets; track p) {
+        <mat-button-toggle [value]="p">{{ label[p] }}</mat-button-toggle>
+      }
+    </mat-button-toggle-group>
+    @if (shownPreset() === 'custom') {
+      <form class="custom" (ngSubmit)="applyCustom()">
+        <mat-form-field subscriptSizing="dynamic">
+          <mat-label>From</mat-label>
+          <input matInput type="datetime-local" name="from" [ngModel]="fromText()" (ngModelChange)="fromText.set($event)" required />
+        </mat-form-field>
+        <mat-form-field subscriptSizing="dynamic">
+          <mat-label>To</mat-label>
+          <input matInput type="datetime-local" name="to" [ngModel]="toText()" (ngModelChange)="toText.set($event)" required />
+        </mat-form-field>
+        <button mat-stroked-button type="submit">Show</button>
+        @if (customError(); as e) {
+          <span class="error" role="alert">{{ e }}</span>
+        }
+        <span class="zone">Times in {{ zone }}</span>
+      </form>
+    }
+  `,
+  styles: `
+    :host { display: flex; flex-wrap: wrap; align-items: center; gap: 8px 16px; }
+    .custom { display: flex; flex-wrap: wrap; align-items: center; gap: 8px; }
+    .error { color: var(--jw-alarm-high); }
+    .zone { color: var(--jw-muted-text); font-size: 12px; }
+  `,
+})
+export class RangePicker {
+  private readonly now = inject(TREND_NOW);
+
+  /** The window shown now (its preset is highlighted). */
+  readonly value = input<TrendRange | null>(null);
+  readonly valueChange = output<TrendRange>();
+
+  protected readonly presets = PRESETS;
+  protected readonly label = PRESET_LABEL;
+  protected readonly zone = Intl.DateTimeFormat().resolvedOptions().timeZone || 'your time zone';
+
+  private readonly editingCustom = signal(false);
+  protected readonly shownPreset = computed<RangePreset | null>(() => (this.editingCustom() ? 'custom' : (this.value()?.preset ?? null)));
+  protected readonly fromText = signal('');
+  protected readonly toText = signal('');
+  protected readonly customError = signal<string | null>(null);
+
+  protected choose(preset: RangePreset): void {
+    this.customError.set(null);
+    if (preset === 'custom') {
+      // Start from the window on screen, so a small change is a small edit.
+      const v = this.value();
+      const now = this.now();
+      this.fromText.set(toLocalInput(v?.from ?? now - 24 * 3600_000));
+      this.toText.set(toLocalInput(v?.to ?? now));
+      this.editingCustom.set(true);
+      return;
+    }
+    this.editingCustom.set(false);
+    this.valueChange.emit(presetRange(preset, this.now()));
+  }
+
+  protected applyCustom(): void {
+    const from = fromLocalInput(this.fromText());
+    const to = fromLocalInput(this.toText());
+    if (from === null || to === null) {
+      this.customError.set('Enter both a start and an end.');
+      return;
+    }
+    const range = customRange(from, to, this.now());
+    if (!range) {
+      this.customError.set(from >= to ? 'The start must be before the end.' : 'The start must be in the past.');
+      return;
+    }
+    this.customError.set(null);
+    this.editingCustom.set(false);
+    this.valueChange.emit(range);
+  }
+}

@@ -1,0 +1,236 @@
+import { ChangeDetectionStrategy, Component, DestroyRef, ElementRef, afterNextRender, computed, inject, input, output } from '@angular/core';
+import {
+  ApexAnnotations, ApexAxisChartSeries, ApexChart, ApexFill, ApexStroke, ApexTooltip, ApexXAxis, ApexYAxis, ChartComponent, XAxisAnnotations, YAxisAnnotations,
+} from 'ng-apexcharts';
+import { CHANNELS, ChannelKey } from '../../../shared/channels';
+import { NormalBand, normalBand } from '../../../shared/normal-bands';
+import { PreferencesService } from '../core/preferences.service';
+import { Engine } from '../fleet/fleet-types';
+import { convertStored, quantityOf } from '../ui/unit-format';
+import { Bucket, RunChange, channelTitle, toChannelSeries } from './trend-series';
+
+/** The window on screen, ms since epoch. */
+export interface TrendWindow {
+  from: number;
+  to: number;
+}
+
+interface ChannelView {
+  channel: ChannelKey;
+  label: string;
+  unit: string;
+  chart: ApexChart;
+  xaxis: ApexXAxis;
+  yaxis: ApexYAxis;
+  annotations: ApexAnnotations;
+}
+
+const DECIMALS: Record<string, number> = { '°C': 1, '°F': 1, kPa: 0, psi: 1, bar: 2, 'µS/cm': 0, rpm: 0 };
+const GROUP = 'jw-engine-trend';
+
+/** Neutral greys: colour stays for abnormal states, which the trend does not judge. */
+const INK = { light: { line: '#3b4247', range: '#8d969c', band: '#7d878e', mark: '#54585c' }, dark: { line: '#dde1e4', range: '#98a1a8', band: '#aab3b9', mark: '#b4b8bc' } };
+
+/**
+ * Trends of the chosen channels, one small chart each on a shared time axis: the bucket mean as a line,
+ * min-max as a shaded band, the normal bands as shaded strips, and the engine's starts and stops as
+ * vertical marks. Drag across a chart to zoom; the page then loads that window at a finer step.
+ */
+@Component({
+  selector: 'jw-trend-chart',
+  changeDetection: ChangeDetectionStrategy.OnPush,
+  imports: [ChartComponent],
+  template: `
+    @for (v of views(); track v.channel) {
+      <section class="channel" [attr.aria-label]="v.label + ' trend in ' + v.unit">
+        <h3 class="title">{{ v.label }} <span class="unit">{{ v.unit }}</span></h3>
+        <apx-chart
+          [chart]="v.chart" [series]="seriesOf(v.channel)" [xaxis]="v.xaxis" [yaxis]="v.yaxis" [annotations]="v.annotations"
+          [stroke]="stroke" [fill]="fill()" [colors]="colors()" [legend]="legend" [dataLabels]="dataLabels" [tooltip]="tooltip"
+          [grid]="grid()" [markers]="markers" [noData]="noData" [theme]="theme()" />
+      </section>
+    } @empty {
+      <p class="none">Choose at least one channel to draw.</p>
+    }
+    <p class="key" aria-hidden="true">
+      <span class="swatch line"></span> mean per step
+      <span class="swatch range"></span> lowest to highest per step
+      <span class="swatch band"></span> normal band
+      <span class="mark start"></span> started
+      <span class="mark stop"></span> stopped
+    </p>
+  `,
+  styles: `
+    :host { display: block; min-width: 0; }
+    .channel { margin-bottom: 4px; }
+    .title { margin: 8px 0 0; font-size: 14px; font-weight: 500; }
+    .unit { color: var(--jw-muted-text); font-weight: 400; }
+    .none { color: var(--jw-muted-text); }
+    .key { display: flex; flex-wrap: wrap; align-items: center; gap: 4px 6px; font-size: 12px; color: var(--jw-muted-text); margin: 4px 0 0; }
+    .swatch { display: inline-block; width: 18px; height: 10px; margin-left: 10px; }
+    .swatch.line { height: 2px; background: var(--jw-marker); }
+    .swatch.range { background: var(--jw-band-normal); opacity: 0.45; }
+    .swatch.band { background: var(--jw-band); border-top: 1px dashed var(--jw-band-normal); border-bottom: 1px dashed var(--jw-band-normal); }
+    .mark { display: inline-block; width: 0; height: 12px; margin-left: 10px; border-left: 2px solid var(--jw-muted-text); }
+    .mark.stop { border-left-style: dashed; }
+  `,
+})
+export class TrendChart {
+  private readonly prefs = inject(PreferencesService);
+  private readonly host = inject<ElementRef<HTMLElement>>(ElementRef);
+
+  readonly engine = input<Engine | null>(null);
+  readonly channels = input.required<ChannelKey[]>();
+  /** Buckets per channel in stored units. */
+  readonly data = input.required<ReadonlyMap<ChannelKey, readonly Bucket[]>>();
+  readonly window = input.required<TrendWindow>();
+  readonly runChanges = input<readonly RunChange[]>([]);
+  /** Height of each channel's chart in px. */
+  readonly height = input(190);
+
+  /** The user dragged out a smaller window. */
+  readonly zoomed = output<TrendWindow>();
+  /** The user asked for the whole range again (the chart's reset button). */
+  readonly zoomReset = output<void>();
+  /** Drawing width in px, so the page can ask for one bucket per pixel. */
+  readonly widthChange = output<number>();
+
+  private readonly dark = this.prefs.dark;
+  protected readonly theme = computed(() => ({ mode: this.dark() ? ('dark' as const) : ('light' as const) }));
+  private readonly ink = computed(() => (this.dark() ? INK.dark : INK.light));
+  protected readonly colors = computed(() => [this.ink().range, this.ink().line]);
+  protected readonly fill = computed<ApexFill>(() => ({ type: 'solid', opacity: [0.3, 1] }));
+  protected readonly grid = computed(() => ({ borderColor: this.dark() ? '#33373a' : '#e3e5e7', strokeDashArray: 2 }));
+  protected readonly stroke: ApexStroke = { curve: 'straight', width: [0, 1.5] };
+  protected readonly legend = { show: false };
+  protected readonly dataLabels = { enabled: false };
+  protected readonly markers = { size: 0, hover: { size: 3 } };
+  protected readonly noData = { text: 'No readings in this range' };
+  protected readonly tooltip: ApexTooltip = { shared: true, x: { format: 'dd MMM yyyy HH:mm:ss' } };
+
+  protected readonly series = computed(() => {
+    const prefs = this.prefs.preferences();
+    const data = this.data();
+    const out = new Map<ChannelKey, ApexAxisChartSeries>();
+    for (const ch of this.channels()) {
+      const s = toChannelSeries(ch, data.get(ch) ?? [], prefs);
+      out.set(ch, [
+        { name: 'Lowest–highest', type: 'rangeArea', data: s.range },
+        { name: 'Mean', type: 'line', data: s.mean },
+      ]);
+    }
+    return out;
+  });
+
+  /** Everything but the data; it changes rarely, and a change redraws the chart from scratch. */
+  protected readonly views = computed<ChannelView[]>(() => {
+    const prefs = this.prefs.preferences();
+    const engine = this.engine();
+    const win = this.window();
+    const changes = this.runChanges();
+    const ink = this.ink();
+    return this.channels().map((channel) => {
+      const quantity = quantityOf(channel);
+      const unit = toChannelSeries(channel, [], prefs).unit;
+      const decimals = DECIMALS[unit] ?? 1;
+      const conv = (v: number) => convertStored(v, quantity, prefs).value;
+      const chart: ApexChart = {
+        id: `jw-trend-${channel}`,
+        group: GROUP,
+        type: 'rangeArea',
+        height: this.height(),
+        animations: { enabled: false },
+        fontFamily: 'Roboto Condensed, sans-serif',
+        background: 'transparent',
+        zoom: { enabled: true, type: 'x', autoScaleYaxis: false },
+        toolbar: { show: true, autoSelected: 'zoom', tools: { download: false, selection: false, zoom: true, zoomin: true, zoomout: true, pan: false, reset: true } },
+        events: {
+          zoomed: (_c: unknown, o: { xaxis?: { min?: number; max?: number } }) => {
+            const min = o?.xaxis?.min;
+            const max = o?.xaxis?.max;
+            if (typeof min === 'number' && typeof max === 'number' && max > min) this.zoomed.emit({ from: Math.round(min), to: Math.round(max) });
+          },
+          beforeResetZoom: () => {
+            this.zoomReset.emit();
+            return { xaxis: { min: win.from, max: win.to } };
+          },
+        },
+      };
+      return {
+        channel,
+        label: CHANNELS[channel].label,
+        unit,
+        chart,
+        xaxis: { type: 'datetime', min: win.from, max: win.to, labels: { datetimeUTC: false }, tooltip: { enabled: false } },
+        yaxis: {
+          title: { text: unit },
+          decimalsInFloat: decimals,
+          labels: { minWidth: 56, maxWidth: 56, formatter: (v: number) => (Number.isFinite(v) ? v.toFixed(decimals) : '') },
+        },
+        annotations: {
+          yaxis: bandAnnotations(channel, engine).map(({ band, text }) => ({
+            y: conv(band.low),
+            y2: conv(band.high),
+            fillColor: ink.band,
+            opacity: 0.14,
+            borderColor: ink.band,
+            strokeDashArray: 4,
+            label: { text, position: 'left', textAnchor: 'start', offsetX: 4, borderWidth: 0, style: { background: 'transparent', color: ink.mark, fontSize: '11px' } },
+          })) as YAxisAnnotations[],
+          xaxis: changes
+            .filter((c) => c.t >= win.from && c.t <= win.to)
+            .map((c) => ({
+              x: c.t,
+              borderColor: ink.mark,
+              strokeDashArray: c.kind === 'stop' ? 4 : 0,
+              label: {
+                text: c.kind === 'start' ? 'Started' : 'Stopped',
+                orientation: 'horizontal',
+                borderWidth: 0,
+                style: { background: 'transparent', color: ink.mark, fontSize: '11px' },
+              },
+            })) as XAxisAnnotations[],
+        },
+      };
+    });
+  });
+
+  constructor() {
+    afterNextRender(() => this.observeWidth());
+  }
+
+  protected seriesOf(channel: ChannelKey): ApexAxisChartSeries {
+    return this.series().get(channel) ?? [];
+  }
+
+  private observeWidth(): void {
+    const el = this.host.nativeElement;
+    let last = 0;
+    const report = (w: number) => {
+      // Steps of 40 px, so a small resize does not reload the trend.
+      const width = Math.max(100, Math.floor(w / 40) * 40);
+      if (width !== last) {
+        last = width;
+        this.widthChange.emit(width);
+      }
+    };
+    report(el.clientWidth || 800);
+    if (typeof ResizeObserver === 'undefined') return;
+    const ro = new ResizeObserver((entries) => report(entries[0]?.contentRect.width ?? el.clientWidth));
+    ro.observe(el);
+    this.destroyRef.onDestroy(() => ro.disconnect());
+  }
+
+  private readonly destroyRef = inject(DestroyRef);
+}
+
+/** The bands a channel is judged by: while running, and while stopped when the engine has a band for that. */
+function bandAnnotations(channel: ChannelKey, engine: Engine | null): { band: NormalBand; text: string }[] {
+  const running = normalBand(channel, 'running', engine ?? {});
+  const stopped = normalBand(channel, 'stopped', engine ?? {});
+  if (running && stopped && running.low === stopped.low && running.high === stopped.high) return [{ band: running, text: 'normal band' }];
+  const out: { band: NormalBand; text: string }[] = [];
+  if (running) out.push({ band: running, text: 'normal while running' });
+  if (stopped) out.push({ band: stopped, text: 'normal while stopped' });
+  return out;
+}
