@@ -104,7 +104,6 @@ export class SignIn {
       await this.router.navigateByUrl(safeReturnUrl(this.route.snapshot.queryParamMap.get('returnUrl')));
     } catch (err) {
       this.failure.set(err instanceof SignInError ? err.message : 'Sign-in failed. Try again.');
-      if (err instanceof SignInError && err.reason === 'wrong-credentials') this.form.controls.password.reset();
     } finally {
       this.busy.set(false);
     }

@@ -97,6 +97,13 @@ describe('EngineTile', () => {
     expect(words()).toEqual([]); // stale values are not judged against a band
   });
 
+  it('counts a connected gateway without recent readings as no data', () => {
+    const old = engine({}, 14 * 60 * 1000);
+    render({ ...old, lastSeenAt: Date.now() - 1000 });
+    expect(text('.state-text')).toBe('No data');
+    expect(text('.age')).toBe('· last reading 14 min ago');
+  });
+
   it('shows the active alarm count when the engine carries one', () => {
     render(engine({ activeAlarms: 2 }));
     expect(text('.alarms')).toBe('2 alarms');

@@ -10,9 +10,12 @@ export function toMillis(ts: number | string | null | undefined): number | null 
   return Number.isFinite(ms) ? ms : null;
 }
 
-/** Time of the newest reading we know of. */
+/**
+ * Time of the newest reading we know of. A gateway that is connected but sends nothing usable
+ * (lastSeenAt recent, readings old) still has no data; lastSeenAt counts only when no reading is known at all.
+ */
 export function lastReadingAt(engine: Engine): number | null {
-  let newest = toMillis(engine.lastSeenAt);
+  let newest: number | null = null;
   for (const v of Object.values(engine.latest ?? {})) {
     const t = toMillis(v?.ts);
     if (t !== null && (newest === null || t > newest)) newest = t;
