@@ -25,3 +25,10 @@ export interface WatchRequest {
 }
 
 export type LiveConnection = 'offline' | 'connecting' | 'connected' | 'refused';
+
+/** socket.io `alarm` event: one alarm changed (the alarms feature reads the full shape). */
+export interface LiveAlarmMessage {
+  id: number;
+  engineId: number;
+  [field: string]: unknown;
+}

@@ -2,7 +2,7 @@ import { DestroyRef, Injectable, effect, inject, signal, untracked } from '@angu
 import { Observable, Subject, filter, share } from 'rxjs';
 import { Socket, io } from 'socket.io-client';
 import { AuthService } from './auth.service';
-import { LiveConnection, LiveReadings, WatchRequest } from './live-reading';
+import { LiveAlarmMessage, LiveConnection, LiveReadings, WatchRequest } from './live-reading';
 
 /** After the server refused the handshake, try again this much later (the token may have been renewed). */
 const RETRY_AFTER_REFUSAL_MS = 15000;
@@ -20,10 +20,13 @@ export class LiveService {
   private nextWatchId = 1;
   private readonly readingsSubject = new Subject<LiveReadings>();
   private readonly connectionSignal = signal<LiveConnection>('offline');
+  private readonly alarmSubject = new Subject<LiveAlarmMessage>();
 
   /** Every `readings` message, for all that is watched. */
   readonly readings$: Observable<LiveReadings> = this.readingsSubject.asObservable().pipe(share());
   readonly connection = this.connectionSignal.asReadonly();
+  /** Every `alarm` message (an alarm changed), for all that is watched. */
+  readonly alarms$: Observable<LiveAlarmMessage> = this.alarmSubject.asObservable().pipe(share());
 
   constructor() {
     effect(() => {
@@ -37,8 +40,16 @@ export class LiveService {
   watch(request: WatchRequest): () => void {
     const id = this.nextWatchId++;
     this.watches.set(id, request);
-    if (this.socket?.connected) this.socket.emit('watch', request);
-    return () => this.watches.delete(id);
+    this.sendWatches();
+    return () => {
+      if (this.watches.delete(id)) this.sendWatches();
+    };
+  }
+
+  /** The server replaces a socket's rooms on every `watch`, so it always gets the union of what screens ask for. */
+  private sendWatches(): void {
+    if (!this.socket?.connected || this.watches.size === 0) return;
+    this.socket.emit('watch', mergeWatches([...this.watches.values()]));
   }
 
   readingsFor(engineId: number): Observable<LiveReadings> {
@@ -52,7 +63,7 @@ export class LiveService {
     this.socket = socket;
     socket.on('connect', () => {
       this.connectionSignal.set('connected');
-      for (const request of this.watches.values()) socket.emit('watch', request);
+      this.sendWatches();
     });
     socket.on('disconnect', () => this.connectionSignal.set(socket.active ? 'connecting' : 'offline'));
     socket.on('connect_error', () => {
@@ -70,6 +81,9 @@ export class LiveService {
     socket.on('readings', (msg: LiveReadings) => {
       if (msg && typeof msg.engineId === 'number' && msg.values) this.readingsSubject.next(msg);
     });
+    socket.on('alarm', (msg: LiveAlarmMessage) => {
+      if (msg && typeof msg.id === 'number' && typeof msg.engineId === 'number') this.alarmSubject.next(msg);
+    });
   }
 
   private close(): void {
@@ -80,4 +94,21 @@ export class LiveService {
     this.socket = null;
     this.connectionSignal.set('offline');
   }
+}
+
+/** One watch request covering all of them. */
+export function mergeWatches(requests: WatchRequest[]): WatchRequest {
+  const siteIds = new Set<number>();
+  const engineIds = new Set<number>();
+  let fleet = false;
+  for (const r of requests) {
+    if (r.fleet) fleet = true;
+    r.siteIds?.forEach((id) => siteIds.add(id));
+    r.engineIds?.forEach((id) => engineIds.add(id));
+  }
+  const merged: WatchRequest = {};
+  if (fleet) merged.fleet = true;
+  if (siteIds.size) merged.siteIds = [...siteIds];
+  if (engineIds.size) merged.engineIds = [...engineIds];
+  return merged;
 }
