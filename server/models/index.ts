@@ -1,5 +1,6 @@
 import type { Sequelize } from 'sequelize';
 import { initAlarmModels, type AlarmModels } from './alarm-models';
+import { initCoolantModels, type CoolantModels } from './coolant-models';
 import { Device, initDevice } from './device';
 import { DeviceRejection, initDeviceRejection } from './device-rejection';
 import { Engine, initEngine } from './engine';
@@ -7,7 +8,7 @@ import { Site, initSite } from './site';
 import { User, initUser } from './user';
 import { initWorkModels, type WorkModels } from './work-models';
 
-export interface Models extends AlarmModels, WorkModels {
+export interface Models extends AlarmModels, WorkModels, CoolantModels {
   User: typeof User;
   Site: typeof Site;
   Engine: typeof Engine;
@@ -25,6 +26,7 @@ export function initModels(sequelize: Sequelize): Models {
     DeviceRejection: initDeviceRejection(sequelize),
     ...initAlarmModels(sequelize),
     ...initWorkModels(sequelize),
+    ...initCoolantModels(sequelize),
   };
   models.Site.hasMany(models.Engine, { foreignKey: 'siteId', as: 'engines' });
   models.Engine.belongsTo(models.Site, { foreignKey: 'siteId', as: 'site' });
