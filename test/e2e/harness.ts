@@ -119,7 +119,7 @@ export async function startStack(opts: StackOptions = {}): Promise<Stack> {
   };
   if (opts.simulate !== false) {
     startSimulator(opts.simulatorArgs ?? ['--rate', '1', '--speed', '30', '--seed', '7']);
-    await waitFor(async () => (await fetch(`http://127.0.0.1:${controlPort}/health`)).ok, 30000, 'simulator control port');
+    await waitFor(async () => (await fetch(`http://127.0.0.1:${controlPort}/stats`)).ok, 30000, 'simulator control port');
   }
 
   const api = async <T>(method: string, pathname: string, token?: string, body?: unknown) => {
@@ -181,7 +181,7 @@ export async function launchBrowser(): Promise<Browser> {
 export async function signIn(page: Page, stack: Stack, email: string): Promise<void> {
   await page.goto(`${stack.baseUrl}/sign-in`);
   await page.getByLabel(/e-?mail/i).fill(email);
-  await page.getByLabel(/password/i).fill(DEMO_PASSWORD);
+  await page.getByLabel('Password', { exact: true }).fill(DEMO_PASSWORD);
   await page.getByRole('button', { name: /sign in/i }).click();
   await page.waitForURL((url) => !url.pathname.startsWith('/sign-in'), { timeout: 20000 });
 }
