@@ -12,6 +12,7 @@ import { migrate } from './db/migrate';
 import { createSequelize } from './db/sequelize';
 import { createLogger, type Logger } from './logger';
 import { initModels, type Models } from './models';
+import { createAlarmFeature, type AlarmFeature } from './services/alarms';
 import { siteOfEngineLookup } from './services/engines';
 import { startTelemetry } from './telemetry';
 import type { Telemetry } from './telemetry/types';
@@ -22,6 +23,7 @@ export interface ServerHandle {
   sequelize: Sequelize;
   models: Models;
   telemetry: Telemetry;
+  alarms: AlarmFeature;
   ctx: AppContext;
   /** The port actually bound (config.port may be 0). */
   port: number;
@@ -44,7 +46,8 @@ export async function startServer(config: Config, opts: StartOptions = {}): Prom
   const models = initModels(sequelize);
   const tokens = createTokenService(loadJwtSecret(config.dataDir));
   const ctx: AppContext = { config, log, sequelize, models, tokens, telemetry: null, startedAt: Date.now() };
-  const app = createApp(ctx, opts);
+  const alarms = createAlarmFeature(ctx);
+  const app = createApp(ctx, { ...opts, extraRouters: [...(opts.extraRouters ?? []), ...alarms.routers] });
   const httpServer = http.createServer(app);
 
   const telemetry = await startTelemetry({
@@ -56,6 +59,7 @@ export async function startServer(config: Config, opts: StartOptions = {}): Prom
     log,
   });
   ctx.telemetry = telemetry;
+  await alarms.start(telemetry);
 
   await new Promise<void>((resolve, reject) => {
     httpServer.once('error', reject);
@@ -71,6 +75,7 @@ export async function startServer(config: Config, opts: StartOptions = {}): Prom
   const stop = () =>
     (stopping ??= (async () => {
       await telemetry.stop();
+      await alarms.stop();
       await new Promise<void>((resolve) => {
         httpServer.close(() => resolve());
         httpServer.closeAllConnections();
@@ -78,5 +83,5 @@ export async function startServer(config: Config, opts: StartOptions = {}): Prom
       await sequelize.close();
     })());
 
-  return { app, httpServer, sequelize, models, telemetry, ctx, port, stop };
+  return { app, httpServer, sequelize, models, telemetry, alarms, ctx, port, stop };
 }

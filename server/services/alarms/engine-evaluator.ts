@@ -138,6 +138,16 @@ export class EngineEvaluator {
     return slot ? ((slot.state as ConductivityRuleState).baseline ?? null) : null;
   }
 
+  /** Worst value so far of every active alarm whose rule keeps one (limit, rate, boiling margin, conductivity). */
+  activeWorst(): { key: string; worst: number }[] {
+    const out: { key: string; worst: number }[] = [];
+    for (const s of this.slots) {
+      const st = s.state as { active?: boolean; worstValue?: number | null };
+      if (st.active && typeof st.worstValue === 'number') out.push({ key: s.def.key, worst: st.worstValue });
+    }
+    return out;
+  }
+
   /** Feed readings of this engine (any order): sorted by time, speed first at equal times. */
   feed(readings: EvalReading[]): RuleHit[] {
     const hits: RuleHit[] = [];

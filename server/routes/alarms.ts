@@ -1,0 +1,66 @@
+import { Router } from 'express';
+import { z } from 'zod';
+import { SHELVE_MAX_MINUTES, SHELVE_MIN_MINUTES } from '../../shared/alarms/alarm-state';
+import { requireAuth, requireRole } from '../auth/middleware';
+import type { AppContext } from '../app-context';
+import { badRequest } from '../http-error';
+import type { AlarmFeature } from '../services/alarms';
+import { instant, parse, parseId } from './validate';
+
+const listQuery = z.object({
+  state: z.enum(['active', 'shelved', 'open', 'all']).default('active'),
+  engineId: z.coerce.number().int().positive().optional(),
+  limit: z.coerce.number().int().min(1).max(1000).default(500),
+});
+const ackBody = z.strictObject({ note: z.string().trim().max(1000).optional() }).optional();
+const shelveBody = z.strictObject({
+  minutes: z.number().int().min(SHELVE_MIN_MINUTES).max(SHELVE_MAX_MINUTES),
+  reason: z.string().trim().min(1, 'a reason is required').max(500),
+});
+const noteBody = z.strictObject({ note: z.string().trim().min(1, 'a note is required').max(1000) });
+const DAY = 86400_000;
+const perfQuery = z.object({ from: instant.optional(), to: instant.optional() });
+
+/** /api/alarms: lists, one alarm with history, acknowledge, shelve, notes, summary and performance. */
+export function alarmsRouter(_ctx: AppContext, feature: AlarmFeature): Router {
+  const r = Router();
+  const svc = feature.alarms;
+  r.use('/alarms', requireAuth);
+  r.get('/alarms', async (req, res) => {
+    const q = parse(listQuery, req.query);
+    res.json(await svc.list(q));
+  });
+  r.get('/alarms/summary', async (_req, res) => {
+    res.json(await svc.summary());
+  });
+  r.get('/alarms/performance', async (req, res) => {
+    const q = parse(perfQuery, req.query);
+    const to = q.to ?? Date.now();
+    const from = q.from ?? to - 7 * DAY;
+    if (from >= to) throw badRequest('from must be before to', 'from');
+    if (to - from > 400 * DAY) throw badRequest('span is at most 400 days', 'from');
+    res.json(await svc.performance(from, to));
+  });
+  r.get('/alarms/:id', async (req, res) => {
+    res.json(await svc.get(parseId(req.params)));
+  });
+  r.post('/alarms/:id/acknowledge', requireRole('operator', 'technician', 'planner', 'admin'), async (req, res) => {
+    const id = parseId(req.params);
+    const b = parse(ackBody, req.body ?? undefined);
+    res.json(await svc.acknowledge(id, req.user!, b?.note || null));
+  });
+  r.post('/alarms/:id/shelve', requireRole('planner', 'admin'), async (req, res) => {
+    const id = parseId(req.params);
+    const b = parse(shelveBody, req.body);
+    res.json(await svc.shelve(id, req.user!, b.minutes, b.reason));
+  });
+  r.post('/alarms/:id/unshelve', requireRole('planner', 'admin'), async (req, res) => {
+    res.json(await svc.unshelve(parseId(req.params), req.user!));
+  });
+  r.post('/alarms/:id/notes', requireRole('operator', 'technician', 'planner', 'admin'), async (req, res) => {
+    const id = parseId(req.params);
+    const b = parse(noteBody, req.body);
+    res.status(201).json(await svc.addNote(id, req.user!, b.note));
+  });
+  return r;
+}

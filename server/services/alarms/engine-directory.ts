@@ -1,0 +1,52 @@
+import type { Models } from '../../models';
+
+export interface EngineEntry {
+  id: number;
+  name: string;
+  siteId: number;
+  siteName: string;
+  glycolType: 'ethylene' | 'propylene';
+  glycolPercent: number;
+  outOfService: boolean;
+  retired: boolean;
+  createdAt: number;
+}
+
+/** Engines and their sites as the alarm feature needs them, refreshed from the database now and then. */
+export class EngineDirectory {
+  private engines = new Map<number, EngineEntry>();
+
+  constructor(private readonly models: Models) {}
+
+  async refresh(): Promise<Map<number, EngineEntry>> {
+    const [engines, sites] = await Promise.all([
+      this.models.Engine.findAll({ attributes: ['id', 'name', 'siteId', 'glycolType', 'glycolPercent', 'outOfService', 'retiredAt', 'createdAt'] }),
+      this.models.Site.findAll({ attributes: ['id', 'name'] }),
+    ]);
+    const siteName = new Map(sites.map((s) => [s.id, s.name]));
+    const next = new Map<number, EngineEntry>();
+    for (const e of engines) {
+      next.set(e.id, {
+        id: e.id,
+        name: e.name,
+        siteId: e.siteId,
+        siteName: siteName.get(e.siteId) ?? `site ${e.siteId}`,
+        glycolType: e.glycolType,
+        glycolPercent: e.glycolPercent,
+        outOfService: e.outOfService,
+        retired: e.retiredAt !== null && e.retiredAt !== undefined,
+        createdAt: new Date(e.createdAt).getTime(),
+      });
+    }
+    this.engines = next;
+    return next;
+  }
+
+  get(id: number): EngineEntry | undefined {
+    return this.engines.get(id);
+  }
+
+  all(): EngineEntry[] {
+    return [...this.engines.values()];
+  }
+}

@@ -1,0 +1,116 @@
+/**
+ * The alarm feature in one place: mail catcher and outbox, rule engine fed by telemetry,
+ * alarm lifecycle, notification and escalation, and its HTTP routers.
+ * startServer creates it before the app (for the routers) and starts it once telemetry runs.
+ */
+import type { Router } from 'express';
+import type { AppContext } from '../../app-context';
+import { startMailCatcher, type MailCatcher } from '../../mail/mail-catcher';
+import { startOutbox, type Outbox } from '../../mail/outbox';
+import { addOpenApiGroup } from '../../openapi';
+import { alarmsOpenApi } from '../../openapi/alarm-paths';
+import { alarmsRouter } from '../../routes/alarms';
+import { mailAdminRouter } from '../../routes/mail-admin';
+import { oncallRouter } from '../../routes/oncall';
+import { rulesRouter } from '../../routes/rules';
+import type { Telemetry } from '../../telemetry/types';
+import { loadAlarmSettings, type AlarmSettings } from './alarm-settings';
+import { AlarmService, type AlarmView } from './alarm-service';
+import { EngineDirectory } from './engine-directory';
+import { Notifier } from './notifier';
+import { RuleEngine } from './rule-engine';
+
+export interface AlarmFeature {
+  settings: AlarmSettings;
+  alarms: AlarmService;
+  rules: RuleEngine;
+  routers: Router[];
+  /** Null until started. */
+  outbox(): Outbox | null;
+  mailCatcher(): MailCatcher | null;
+  start(telemetry: Pick<Telemetry, 'onReadings' | 'emit' | 'liveState'>): Promise<void>;
+  stop(): Promise<void>;
+}
+
+export function createAlarmFeature(ctx: AppContext, settings: AlarmSettings = loadAlarmSettings()): AlarmFeature {
+  const { models, sequelize, log, config } = ctx;
+  let outbox: Outbox | null = null;
+  let catcher: MailCatcher | null = null;
+  let emit: ((room: string, event: string, payload: unknown) => void) | null = null;
+  let lastSeen: (engineId: number) => number | null = () => null;
+  let timer: NodeJS.Timeout | null = null;
+  let ticking = false;
+
+  const directory = new EngineDirectory(models);
+  const notifier = new Notifier({
+    models,
+    publicUrl: config.publicUrl,
+    log,
+    enqueue: (mail) => {
+      if (!outbox) throw new Error('outbox not started');
+      return outbox.enqueue(mail);
+    },
+  });
+  // the rule engine and the alarm service need each other: the service asks for rule texts
+  let rules: RuleEngine;
+  const alarms = new AlarmService({
+    models,
+    sequelize,
+    log,
+    settings,
+    directory,
+    notifier,
+    ruleDef: (engineId, key) => rules.ruleDef(engineId, key),
+    publish: (view: AlarmView) => {
+      if (!emit) return;
+      emit('fleet', 'alarm', view);
+      emit(`engine:${view.engineId}`, 'alarm', view);
+      if (view.siteId !== null) emit(`site:${view.siteId}`, 'alarm', view);
+    },
+  });
+  rules = new RuleEngine({ models, log, directory, alarms, lastSeen: (id) => lastSeen(id) });
+
+  const feature: AlarmFeature = {
+    settings,
+    alarms,
+    rules,
+    routers: [],
+    outbox: () => outbox,
+    mailCatcher: () => catcher,
+    async start(telemetry) {
+      if (!config.smtpHost) catcher = await startMailCatcher({ port: config.smtpPort, model: models.CaughtMail, log });
+      // when the catcher took a random port (SMTP_PORT=0), send to the one it got
+      const smtpPort = catcher ? catcher.port() : config.smtpPort;
+      outbox = startOutbox({ config: { ...config, smtpPort }, model: models.OutboxMessage, log, retryBaseMs: settings.mailRetryBaseMs, retryMaxMs: settings.mailRetryMaxMs });
+      emit = (room, event, payload) => telemetry.emit(room, event, payload);
+      lastSeen = (id) => telemetry.liveState.lastSeen(id);
+      await rules.load();
+      await alarms.loadOpen();
+      await rules.refreshEngines(true);
+      telemetry.onReadings((batch) => rules.handleReadings(batch));
+      timer = setInterval(() => {
+        rules.tick();
+        if (ticking) return; // a slow database: skip a housekeeping round rather than pile them up
+        ticking = true;
+        alarms
+          .housekeeping()
+          .catch((err) => log.error('alarms: housekeeping failed', err))
+          .finally(() => {
+            ticking = false;
+          });
+      }, settings.tickMs);
+      timer.unref();
+      log.info(`alarms: ${rules.profileRules().length} rules, escalation after ${settings.escalateAfterMs / 1000} s, e-mail from ${settings.notifyMinPriority} priority`);
+    },
+    async stop() {
+      if (timer) clearInterval(timer);
+      timer = null;
+      await alarms.idle();
+      await outbox?.stop();
+      await catcher?.stop();
+    },
+  };
+  feature.routers = [alarmsRouter(ctx, feature), oncallRouter(ctx), rulesRouter(ctx, feature), mailAdminRouter(ctx)];
+  addOpenApiGroup(alarmsOpenApi);
+  return feature;
+}

@@ -1,0 +1,111 @@
+/** The on-call rota: who answers alarms for which site, when, with a backup. */
+import { Op } from 'sequelize';
+import { badRequest, notFound } from '../../http-error';
+import type { Models } from '../../models';
+import type { OncallShift } from '../../models/oncall-shift';
+import type { User } from '../../models/user';
+
+export interface ShiftInput {
+  siteId: number;
+  userId: number;
+  backupUserId: number | null;
+  startsAt: number;
+  endsAt: number;
+}
+
+export interface ShiftView {
+  id: number;
+  siteId: number;
+  userId: number;
+  userName: string | null;
+  backupUserId: number | null;
+  backupUserName: string | null;
+  startsAt: string;
+  endsAt: string;
+}
+
+/** Roles that can answer alarms from the rota. */
+const ONCALL_ROLES = ['technician', 'planner', 'admin'];
+
+async function checkUser(models: Models, id: number, field: string): Promise<User> {
+  const u = await models.User.findByPk(id);
+  if (!u || u.disabled) throw badRequest('user does not exist or is disabled', field);
+  if (!ONCALL_ROLES.includes(u.role)) throw badRequest('an operator cannot be on call for alarms', field);
+  return u;
+}
+
+async function check(models: Models, input: ShiftInput): Promise<void> {
+  const site = await models.Site.findByPk(input.siteId);
+  if (!site || site.retiredAt) throw badRequest('site does not exist or is retired', 'siteId');
+  await checkUser(models, input.userId, 'userId');
+  if (input.backupUserId !== null) {
+    if (input.backupUserId === input.userId) throw badRequest('the backup must be someone else', 'backupUserId');
+    await checkUser(models, input.backupUserId, 'backupUserId');
+  }
+  if (!(input.endsAt > input.startsAt)) throw badRequest('a shift must end after it starts', 'endsAt');
+  if (input.endsAt - input.startsAt > 31 * 86400_000) throw badRequest('a shift is at most 31 days', 'endsAt');
+}
+
+async function views(models: Models, shifts: OncallShift[]): Promise<ShiftView[]> {
+  const ids = [...new Set(shifts.flatMap((s) => [s.userId, s.backupUserId].filter((x): x is number => x !== null)))];
+  const users = ids.length ? await models.User.findAll({ where: { id: ids }, attributes: ['id', 'name'] }) : [];
+  const name = new Map(users.map((u) => [u.id, u.name]));
+  return shifts.map((s) => ({
+    id: s.id,
+    siteId: s.siteId,
+    userId: s.userId,
+    userName: name.get(s.userId) ?? null,
+    backupUserId: s.backupUserId,
+    backupUserName: s.backupUserId === null ? null : (name.get(s.backupUserId) ?? null),
+    startsAt: new Date(s.startsAt).toISOString(),
+    endsAt: new Date(s.endsAt).toISOString(),
+  }));
+}
+
+export async function listShifts(models: Models, q: { siteId?: number; from?: number; to?: number }): Promise<ShiftView[]> {
+  const where: Record<string | symbol, unknown> = {};
+  if (q.siteId !== undefined) where.siteId = q.siteId;
+  if (q.to !== undefined) where.startsAt = { [Op.lt]: new Date(q.to) };
+  if (q.from !== undefined) where.endsAt = { [Op.gt]: new Date(q.from) };
+  const shifts = await models.OncallShift.findAll({ where, order: [['startsAt', 'ASC'], ['id', 'ASC']], limit: 1000 });
+  return views(models, shifts);
+}
+
+export async function createShift(models: Models, input: ShiftInput): Promise<ShiftView> {
+  await check(models, input);
+  const s = await models.OncallShift.create({ ...input, startsAt: new Date(input.startsAt), endsAt: new Date(input.endsAt) });
+  return (await views(models, [s]))[0];
+}
+
+export async function updateShift(models: Models, id: number, patch: Partial<ShiftInput>): Promise<ShiftView> {
+  const s = await models.OncallShift.findByPk(id);
+  if (!s) throw notFound('on-call shift');
+  const merged: ShiftInput = {
+    siteId: patch.siteId ?? s.siteId,
+    userId: patch.userId ?? s.userId,
+    backupUserId: patch.backupUserId !== undefined ? patch.backupUserId : s.backupUserId,
+    startsAt: patch.startsAt ?? new Date(s.startsAt).getTime(),
+    endsAt: patch.endsAt ?? new Date(s.endsAt).getTime(),
+  };
+  await check(models, merged);
+  await s.update({ ...merged, startsAt: new Date(merged.startsAt), endsAt: new Date(merged.endsAt) });
+  return (await views(models, [s]))[0];
+}
+
+export async function deleteShift(models: Models, id: number): Promise<void> {
+  const n = await models.OncallShift.destroy({ where: { id } });
+  if (!n) throw notFound('on-call shift');
+}
+
+/** Who is on call for a site at a moment: the latest-starting shift that covers it. */
+export async function onCallFor(models: Models, siteId: number, at: number): Promise<{ primary: User | null; backup: User | null }> {
+  const shift = await models.OncallShift.findOne({
+    where: { siteId, startsAt: { [Op.lte]: new Date(at) }, endsAt: { [Op.gt]: new Date(at) } },
+    order: [['startsAt', 'DESC'], ['id', 'DESC']],
+  });
+  if (!shift) return { primary: null, backup: null };
+  const active = (u: User | null) => (u && !u.disabled ? u : null);
+  const primary = active(await models.User.findByPk(shift.userId));
+  const backup = shift.backupUserId === null ? null : active(await models.User.findByPk(shift.backupUserId));
+  return { primary, backup };
+}

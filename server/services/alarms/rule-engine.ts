@@ -1,0 +1,178 @@
+/**
+ * The live rule engine: every batch of accepted readings (telemetry.onReadings) goes through the
+ * engine's evaluator at once, in memory; a 1 s tick lets silences and delays complete without data.
+ * Raise and clear events go to the alarm service. Engines out of service or retired are not evaluated.
+ */
+import type { Logger } from '../../logger';
+import type { Models } from '../../models';
+import type { AcceptedReading } from '../../telemetry/types';
+import type { AlarmService } from './alarm-service';
+import type { EngineDirectory, EngineEntry } from './engine-directory';
+import { EngineEvaluator, type EngineFacts, type RuleHit } from './engine-evaluator';
+import { DEFAULT_PROFILE_NAME, DEFAULT_RULES, effectiveRules, type RuleDefinition, type RuleOverride } from './rule-definitions';
+
+/** How often engines (out of service, glycol mix) are re-read from the database. */
+export const DIRECTORY_REFRESH_MS = 10_000;
+
+export interface RuleEngineDeps {
+  models: Models;
+  log: Logger;
+  directory: EngineDirectory;
+  alarms: AlarmService;
+  /** Last time anything was heard from an engine (so no-data counts across a restart). */
+  lastSeen(engineId: number): number | null;
+}
+
+/** The default profile row, written with the built-in rules when there is none. */
+export async function ensureDefaultProfile(models: Models): Promise<RuleDefinition[]> {
+  const [row] = await models.RuleProfile.findOrCreate({
+    where: { isDefault: true },
+    defaults: { name: DEFAULT_PROFILE_NAME, isDefault: true, rules: DEFAULT_RULES },
+  });
+  const rules = typeof row.rules === 'string' ? (JSON.parse(row.rules) as RuleDefinition[]) : row.rules;
+  return rules;
+}
+
+export class RuleEngine {
+  private profile: RuleDefinition[] = DEFAULT_RULES;
+  private overrides = new Map<number, RuleOverride[]>();
+  private baselines = new Map<number, { from: number; value: number | null }>();
+  private readonly evaluators = new Map<number, EngineEvaluator>();
+  private readonly facts = new Map<number, string>();
+  private outOfService = new Set<number>();
+  private lastRefresh = 0;
+  private refreshing: Promise<void> | null = null;
+
+  constructor(private readonly deps: RuleEngineDeps) {}
+
+  /** The rule definitions in force for an engine (profile + overrides). */
+  rulesFor(engineId: number): RuleDefinition[] {
+    return effectiveRules(this.profile, this.overrides.get(engineId) ?? []);
+  }
+
+  ruleDef(engineId: number, key: string): RuleDefinition | undefined {
+    return this.rulesFor(engineId).find((r) => r.key === key) ?? this.profile.find((r) => r.key === key) ?? DEFAULT_RULES.find((r) => r.key === key);
+  }
+
+  profileRules(): RuleDefinition[] {
+    return this.profile;
+  }
+
+  /** Read profile, overrides, baselines and engines; rebuild every evaluator. */
+  async load(): Promise<void> {
+    const { models } = this.deps;
+    this.profile = await ensureDefaultProfile(models);
+    const rows = await models.EngineRule.findAll();
+    this.overrides = new Map();
+    for (const r of rows) {
+      const list = this.overrides.get(r.engineId) ?? [];
+      list.push({ rule: r.rule, enabled: r.enabled, params: typeof r.params === 'string' ? JSON.parse(r.params) : r.params });
+      this.overrides.set(r.engineId, list);
+    }
+    const bl = await models.EngineBaseline.findAll({ where: { channel: 'coolant_conductivity' }, order: [['baselineFrom', 'ASC'], ['id', 'ASC']] });
+    this.baselines = new Map();
+    for (const b of bl) this.baselines.set(b.engineId, { from: new Date(b.baselineFrom).getTime(), value: b.value });
+    this.evaluators.clear();
+    this.facts.clear();
+    await this.refreshEngines(true);
+  }
+
+  private factsOf(e: EngineEntry): EngineFacts {
+    const b = this.baselines.get(e.id);
+    return { id: e.id, glycolType: e.glycolType, glycolPercent: e.glycolPercent, baselineFrom: b?.from ?? e.createdAt, baselineValue: b?.value ?? null };
+  }
+
+  private build(e: EngineEntry): void {
+    const open = this.deps.alarms.openAlarms();
+    const active = new Map<string, number | null>();
+    for (const key of open.keys()) {
+      const [id, rule] = key.split('/');
+      if (Number(id) === e.id) active.set(rule, null);
+    }
+    const facts = this.factsOf(e);
+    this.evaluators.set(e.id, new EngineEvaluator(facts, this.rulesFor(e.id), { startTs: this.deps.lastSeen(e.id), activeRules: active }));
+    this.facts.set(e.id, `${e.glycolType}/${e.glycolPercent}`);
+  }
+
+  /** Re-read engines: start evaluating new ones, stop and suppress those out of service, rebuild on a new glycol mix. */
+  async refreshEngines(force = false): Promise<void> {
+    if (this.refreshing) return this.refreshing;
+    this.refreshing = (async () => {
+      const engines = await this.deps.directory.refresh();
+      this.lastRefresh = Date.now();
+      const nextOos = new Set<number>();
+      for (const e of engines.values()) {
+        const off = e.outOfService || e.retired;
+        if (off) {
+          nextOos.add(e.id);
+          this.evaluators.delete(e.id);
+          if (!this.outOfService.has(e.id)) await this.deps.alarms.setOutOfService(e.id, true);
+          continue;
+        }
+        if (this.outOfService.has(e.id)) await this.deps.alarms.setOutOfService(e.id, false);
+        if (force || !this.evaluators.has(e.id) || this.facts.get(e.id) !== `${e.glycolType}/${e.glycolPercent}`) this.build(e);
+      }
+      for (const id of [...this.evaluators.keys()]) if (!engines.has(id)) this.evaluators.delete(id);
+      this.outOfService = nextOos;
+    })().finally(() => {
+      this.refreshing = null;
+    });
+    return this.refreshing;
+  }
+
+  /** Rules of one engine changed (override saved): rebuild its evaluator. */
+  async reloadRules(): Promise<void> {
+    await this.load();
+  }
+
+  /** telemetry.onReadings listener: synchronous, no I/O on this path (alarm writes are queued). */
+  handleReadings(readings: AcceptedReading[]): void {
+    const byEngine = new Map<number, AcceptedReading[]>();
+    for (const r of readings) {
+      const list = byEngine.get(r.engineId);
+      if (list) list.push(r);
+      else byEngine.set(r.engineId, [r]);
+    }
+    for (const [engineId, list] of byEngine) {
+      const ev = this.evaluators.get(engineId);
+      if (!ev) {
+        // an engine added since the last refresh: pick it up soon (readings until then are not evaluated)
+        if (!this.outOfService.has(engineId) && Date.now() - this.lastRefresh > 1000) void this.refreshEngines().catch((err) => this.deps.log.error('alarms: engine refresh failed', err));
+        continue;
+      }
+      this.dispatch(engineId, ev.feed(list));
+      this.afterStep(engineId, ev);
+    }
+  }
+
+  /** The 1 s clock. */
+  tick(now = Date.now()): void {
+    for (const [engineId, ev] of this.evaluators) {
+      this.dispatch(engineId, ev.tick(now));
+      this.afterStep(engineId, ev);
+    }
+    if (now - this.lastRefresh > DIRECTORY_REFRESH_MS) void this.refreshEngines().catch((err) => this.deps.log.error('alarms: engine refresh failed', err));
+  }
+
+  private afterStep(engineId: number, ev: EngineEvaluator): void {
+    for (const w of ev.activeWorst()) void this.deps.alarms.updateWorst(engineId, w.key, w.worst).catch((err) => this.deps.log.error('alarms: worst value', err));
+    const learned = ev.conductivityBaseline();
+    if (learned !== null && ev.engine.baselineValue === null) {
+      ev.engine.baselineValue = learned;
+      this.baselines.set(engineId, { from: ev.engine.baselineFrom, value: learned });
+      void this.deps.models.EngineBaseline.create({ engineId, channel: 'coolant_conductivity', baselineFrom: new Date(ev.engine.baselineFrom), value: learned }).catch((err) =>
+        this.deps.log.error('alarms: storing the conductivity baseline failed', err),
+      );
+    }
+  }
+
+  private dispatch(engineId: number, hits: RuleHit[]): void {
+    if (!hits.length) return;
+    const engine = this.deps.directory.get(engineId);
+    if (!engine) return;
+    for (const h of hits) {
+      const p = h.event.kind === 'raise' ? this.deps.alarms.raise(engine, h.def, h.event) : this.deps.alarms.clear(engineId, h.def, h.event);
+      p.catch((err) => this.deps.log.error(`alarms: ${h.event.kind} ${h.def.key} on engine ${engineId} failed`, err));
+    }
+  }
+}
