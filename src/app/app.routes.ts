@@ -1,5 +1,5 @@
 import { Routes } from '@angular/router';
-import { signedInGuard, signedOutGuard } from './core/role.guard';
+import { roleGuard, signedInGuard, signedOutGuard } from './core/role.guard';
 
 // Every feature screen is lazy, so the chart library only loads on the screens that draw charts.
 export const routes: Routes = [
@@ -8,7 +8,7 @@ export const routes: Routes = [
   { path: 'fleet', title: 'Fleet board · Jacketwatch', canMatch: [signedInGuard], loadComponent: () => import('./fleet/fleet-board').then((m) => m.FleetBoard) },
   { path: 'engines/:id', title: 'Engine · Jacketwatch', canMatch: [signedInGuard], loadComponent: () => import('./engine/engine-page').then((m) => m.EnginePage) },
   { path: 'settings', title: 'Settings · Jacketwatch', canMatch: [signedInGuard], loadComponent: () => import('./settings/preferences-page').then((m) => m.PreferencesPage) },
-  // TODO(admin): when src/app/admin/admin.routes.ts exists, register it (import roleGuard from './core/role.guard'):
-  // { path: 'admin', canMatch: [roleGuard('admin')], loadChildren: () => import('./admin/admin.routes').then((m) => m.ADMIN_ROUTES) },
+  { path: 'admin', title: 'Administration · Jacketwatch', canMatch: [roleGuard('admin')], loadChildren: () => import('./admin/admin.routes').then((m) => m.ADMIN_ROUTES) },
+  { path: 'alarms', canMatch: [signedInGuard], loadChildren: () => import('./alarms/alarms.routes').then((m) => m.ALARM_ROUTES) },
   { path: '**', redirectTo: 'fleet' },
 ];

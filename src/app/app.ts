@@ -11,6 +11,7 @@ import { MatSidenavModule } from '@angular/material/sidenav';
 import { MatToolbarModule } from '@angular/material/toolbar';
 import { RouterLink, RouterLinkActive, RouterOutlet } from '@angular/router';
 import { map } from 'rxjs';
+import { AlarmFeed } from './alarms/alarm-feed';
 import { AppBarStatus } from './core/app-bar-status';
 import { AuthService } from './core/auth.service';
 import { PreferencesService } from './core/preferences.service';
@@ -26,7 +27,12 @@ interface NavItem {
 // Later features add their entries here (alarms, work, coolant, admin).
 const NAV: NavItem[] = [
   { path: '/fleet', label: 'Fleet board', icon: 'grid_view' },
+  { path: '/alarms', label: 'Alarms', icon: 'notifications' },
+  { path: '/alarms/on-call', label: 'On-call rota', icon: 'contact_phone', roles: ['planner', 'admin'] },
+  { path: '/alarms/rules', label: 'Alarm rules', icon: 'rule', roles: ['admin'] },
+  { path: '/alarms/mail', label: 'Alarm mail', icon: 'mail', roles: ['admin'] },
   { path: '/settings', label: 'Settings', icon: 'tune' },
+  { path: '/admin', label: 'Administration', icon: 'admin_panel_settings', roles: ['admin'] },
 ];
 
 const ROLE_TEXT: Record<Role, string> = { admin: 'Administrator', planner: 'Planner', technician: 'Technician', operator: 'Operator' };
@@ -45,6 +51,8 @@ const ROLE_TEXT: Record<Role, string> = { admin: 'Administrator', planner: 'Plan
 export class App {
   protected readonly auth = inject(AuthService);
   protected readonly appBar = inject(AppBarStatus);
+  // Keeps the alarm counts (app bar, fleet tiles) live while signed in.
+  private readonly alarmFeed = inject(AlarmFeed);
   // Created here so the saved theme applies from the first paint.
   private readonly prefs = inject(PreferencesService);
 

@@ -4,6 +4,7 @@ import { MatIconModule } from '@angular/material/icon';
 import { RouterLink } from '@angular/router';
 import { CHANNELS, ChannelKey } from '../../../shared/channels';
 import { DISPLAY_SCALES, NormalBand, bandPosition, normalBand } from '../../../shared/normal-bands';
+import { AlarmStore } from '../alarms/alarm-store';
 import { ClockService } from '../core/clock.service';
 import { PreferencesService } from '../core/preferences.service';
 import { BandIndicator } from '../ui/band-indicator';
@@ -85,6 +86,7 @@ interface TileRow {
 export class EngineTile {
   private readonly clock = inject(ClockService);
   private readonly prefs = inject(PreferencesService);
+  private readonly alarmStore = inject(AlarmStore);
 
   readonly engine = input.required<Engine>();
 
@@ -92,7 +94,8 @@ export class EngineTile {
   protected readonly stateText = computed(() => STATE_TEXT[this.state()]);
   protected readonly stateIcon = computed(() => STATE_ICON[this.state()]);
   protected readonly dutyText = computed(() => DUTY_TEXT[this.engine().duty] ?? this.engine().duty);
-  protected readonly alarms = computed(() => this.engine().activeAlarms ?? 0);
+  // Live count from the alarms feature once it has loaded; the engine's own field until then.
+  protected readonly alarms = computed(() => this.alarmStore.activeFor(this.engine().id) ?? this.engine().activeAlarms ?? 0);
 
   protected readonly age = computed(() => {
     if (this.state() !== 'no-data') return null;

@@ -1,0 +1,70 @@
+import { Role } from '../core/user';
+import { Engine, Site } from '../fleet/fleet-types';
+
+export type { Engine, Site };
+
+/** GET /api/users item. */
+export interface AdminUser {
+  id: number;
+  email: string;
+  name: string;
+  role: Role;
+  disabled: boolean;
+  createdAt?: string;
+  updatedAt?: string;
+}
+
+/** GET /api/devices item; the secret never comes back after creation or rotation. */
+export interface Device {
+  id: number;
+  engineId: number;
+  username: string;
+  revokedAt: string | null;
+  lastSeenAt: string | number | null;
+  createdAt?: string;
+}
+
+export interface DeviceWithSecret extends Device {
+  secret: string;
+}
+
+/** One row of GET /api/admin/ingest `rejections`. */
+export interface DeviceRejection {
+  deviceId: number;
+  username: string | null;
+  engineId: number | null;
+  reason: string;
+  count: number;
+  lastAt: string | number | null;
+  lastDetail: string | null;
+}
+
+export interface IngestReport {
+  counters: Record<string, unknown> | null;
+  rejections: DeviceRejection[];
+}
+
+/** What POST/PATCH /api/engines take: SI units only. */
+export interface EngineInput {
+  siteId: number;
+  name: string;
+  duty: Engine['duty'];
+  capacityL: number;
+  coolantFamily: 'conventional' | 'extended-life';
+  glycolType: 'ethylene' | 'propylene';
+  glycolPercent: number;
+  capPressureKpa: number;
+  oilDrainIntervalH: number;
+  runHours: number;
+  safeOpenTempC: number;
+  heaterSetpointC: number | null;
+  outOfService: boolean;
+}
+
+export const ROLES: { value: Role; label: string }[] = [
+  { value: 'admin', label: 'Administrator' },
+  { value: 'planner', label: 'Planner' },
+  { value: 'technician', label: 'Technician' },
+  { value: 'operator', label: 'Operator' },
+];
+export const ROLE_LABEL: Record<Role, string> = Object.fromEntries(ROLES.map((r) => [r.value, r.label])) as Record<Role, string>;
