@@ -1,0 +1,107 @@
+import { ChangeDetectionStrategy, Component, computed, effect, inject, input, signal, untracked } from '@angular/core';
+import { MatButtonModule } from '@angular/material/button';
+import { MatCardModule } from '@angular/material/card';
+import { MatIconModule } from '@angular/material/icon';
+import { MatProgressBarModule } from '@angular/material/progress-bar';
+import { MatTableModule } from '@angular/material/table';
+import { RouterLink } from '@angular/router';
+import { ClockService } from '../core/clock.service';
+import { PreferencesService } from '../core/preferences.service';
+import { AlarmActions } from './alarm-actions';
+import { eventText, formatAlarmValue, formatDuration, formatTime, needsAcknowledge, priorityLook, stateText } from './alarm-labels';
+import { AlarmStore } from './alarm-store';
+import { Alarm, AlarmDetail, AlarmHistoryEntry } from './alarm-types';
+import { AlarmsApi, errorText } from './alarms-api';
+
+/** One alarm: what it means, the first safe step, its values, its history of transitions and its notes. */
+@Component({
+  selector: 'jw-alarm-detail-page',
+  changeDetection: ChangeDetectionStrategy.OnPush,
+  imports: [MatButtonModule, MatCardModule, MatIconModule, MatProgressBarModule, MatTableModule, RouterLink],
+  templateUrl: './alarm-detail-page.html',
+  styleUrl: './alarm-detail-page.scss',
+})
+export class AlarmDetailPage {
+  private readonly api = inject(AlarmsApi);
+  private readonly store = inject(AlarmStore);
+  private readonly actions = inject(AlarmActions);
+  private readonly prefs = inject(PreferencesService);
+  private readonly clock = inject(ClockService);
+
+  /** Route parameter. */
+  readonly id = input.required<string>();
+
+  protected readonly alarm = signal<AlarmDetail | null>(null);
+  protected readonly error = signal<string | null>(null);
+  protected readonly can = this.actions.permissions();
+  protected readonly columns = ['at', 'event', 'change', 'value', 'note'];
+
+  protected readonly look = computed(() => priorityLook(this.alarm()?.priority ?? ''));
+  protected readonly unack = computed(() => needsAcknowledge(this.alarm()?.state ?? ''));
+  protected readonly stateWords = computed(() => stateText(this.alarm()?.state ?? ''));
+  protected readonly age = computed(() => {
+    const a = this.alarm();
+    return a ? formatDuration(this.clock.now() - Date.parse(a.raisedAt)) : '';
+  });
+  protected readonly notes = computed(() => (this.alarm()?.history ?? []).filter((h) => h.note));
+  protected readonly workOrderLink = computed(() => {
+    const a = this.alarm();
+    return a ? { engineId: a.engineId, alarmId: a.id, kind: 'coolant-filter-change' } : {};
+  });
+  protected readonly canShelve = computed(() => {
+    const s = this.alarm()?.state;
+    return this.can.shelve && !this.alarm()?.closedAt && s !== 'shelved' && s !== 'out-of-service' && s !== 'suppressed-by-design';
+  });
+
+  constructor() {
+    effect(() => {
+      const id = Number(this.id());
+      untracked(() => void this.load(id));
+    });
+    // Live: this alarm changed somewhere (another user, the rules): fetch it again with its history.
+    effect(() => {
+      const changed = this.store.lastChange();
+      if (changed && changed.id === Number(untracked(this.id))) untracked(() => void this.load(changed.id));
+    });
+  }
+
+  protected value(v: number | null | undefined): string {
+    return formatAlarmValue(v, this.alarm()?.unit, this.prefs.preferences());
+  }
+  protected time(t: string | null | undefined): string {
+    return formatTime(t);
+  }
+  protected event(h: AlarmHistoryEntry): string {
+    return eventText(h.event);
+  }
+  protected change(h: AlarmHistoryEntry): string {
+    if (!h.fromState || !h.toState || h.fromState === h.toState) return '';
+    return `${stateText(h.fromState)} → ${stateText(h.toState)}`;
+  }
+
+  protected async acknowledge(a: Alarm): Promise<void> {
+    if (await this.actions.acknowledge(a)) await this.load(a.id);
+  }
+  protected async shelve(a: Alarm): Promise<void> {
+    if (await this.actions.shelve(a)) await this.load(a.id);
+  }
+  protected async unshelve(a: Alarm): Promise<void> {
+    if (await this.actions.unshelve(a)) await this.load(a.id);
+  }
+  protected async note(a: Alarm): Promise<void> {
+    if (await this.actions.note(a)) await this.load(a.id);
+  }
+
+  private async load(id: number): Promise<void> {
+    if (!Number.isInteger(id) || id <= 0) {
+      this.error.set('There is no such alarm.');
+      return;
+    }
+    try {
+      this.alarm.set(await this.api.get(id));
+      this.error.set(null);
+    } catch (err) {
+      this.error.set(errorText(err, 'The alarm could not be loaded'));
+    }
+  }
+}
