@@ -29,8 +29,9 @@ export class Alarm extends Model<InferAttributes<Alarm>, InferCreationAttributes
 }
 
 export function initAlarm(sequelize: Sequelize): typeof Alarm {
-  const date = { type: DataTypes.DATE, allowNull: true };
-  const num = { type: DataTypes.DOUBLE, allowNull: true };
+  // fresh objects per attribute: Sequelize writes into attribute definitions
+  const date = () => ({ type: DataTypes.DATE, allowNull: true });
+  const num = () => ({ type: DataTypes.DOUBLE, allowNull: true });
   return Alarm.init(
     {
       id: { type: DataTypes.INTEGER, primaryKey: true, autoIncrement: true },
@@ -40,20 +41,20 @@ export function initAlarm(sequelize: Sequelize): typeof Alarm {
       state: { type: DataTypes.STRING(32), allowNull: false },
       active: { type: DataTypes.BOOLEAN, allowNull: false, defaultValue: true },
       raisedAt: { type: DataTypes.DATE, allowNull: false },
-      value: num,
-      worstValue: num,
+      value: num(),
+      worstValue: num(),
       unit: { type: DataTypes.STRING(16), allowNull: true },
       message: { type: DataTypes.STRING(500), allowNull: false },
-      acknowledgedAt: date,
+      acknowledgedAt: date(),
       acknowledgedBy: { type: DataTypes.INTEGER, allowNull: true },
       note: { type: DataTypes.STRING(1000), allowNull: true },
-      shelvedUntil: date,
+      shelvedUntil: date(),
       shelveReason: { type: DataTypes.STRING(500), allowNull: true },
       shelvedBy: { type: DataTypes.INTEGER, allowNull: true },
-      clearedAt: date,
-      closedAt: date,
+      clearedAt: date(),
+      closedAt: date(),
       escalationLevel: { type: DataTypes.INTEGER, allowNull: false, defaultValue: 0 },
-      lastNotifiedAt: date,
+      lastNotifiedAt: date(),
       createdAt: DataTypes.DATE,
       updatedAt: DataTypes.DATE,
     },

@@ -410,7 +410,8 @@ export class AlarmService {
 
   async get(id: number): Promise<AlarmView & { history: AlarmHistoryView[]; meaning: string | null; firstStep: string | null }> {
     const a = await this.find(id);
-    const events = await this.deps.models.AlarmEvent.findAll({ where: { alarmId: id }, order: [['at', 'ASC'], ['id', 'ASC']] });
+    // in the order recorded (event times come from devices and the server clock)
+    const events = await this.deps.models.AlarmEvent.findAll({ where: { alarmId: id }, order: [['id', 'ASC']] });
     const def = this.deps.ruleDef(a.engineId, a.rule);
     return {
       ...this.view(a),

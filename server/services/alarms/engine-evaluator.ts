@@ -2,7 +2,7 @@
  * Runs one engine's rules over its readings, in time order, with the shared pure evaluators
  * (shared/rules). No I/O: the live rule engine and the 7-day preview both drive it.
  */
-import { RUNNING_RPM, type ChannelKey } from '../../../shared/channels';
+import { CHANNELS, RUNNING_RPM, type ChannelKey } from '../../../shared/channels';
 import type { GlycolType } from '../../../shared/coolant/glycol';
 import { initialBoilingMarginState, stepBoilingMargin, type BoilingMarginParams, type BoilingMarginState } from '../../../shared/rules/boiling-margin-rule';
 import { initialConductivityState, stepConductivity, type ConductivityRuleParams, type ConductivityRuleState } from '../../../shared/rules/conductivity-rule';
@@ -53,7 +53,13 @@ function channelsOf(def: RuleDefinition): ChannelKey[] | null {
   return [def.channel];
 }
 
+const SYMBOL: Record<string, string> = { degC: '°C', kPa: 'kPa', 'uS/cm': 'µS/cm', rpm: 'rpm' };
+
 function paramsFor(def: RuleDefinition, engine: EngineFacts): Record<string, unknown> {
+  // words for the evaluators' messages
+  const info = CHANNELS[def.channel];
+  const words = { label: info.label, unit: SYMBOL[info.unit] ?? info.unit };
+  if (def.kind === 'limit' || def.kind === 'rate' || def.kind === 'stuck' || def.kind === 'no_data') return { ...words, ...def.params, ...(def.kind === 'no_data' ? { label: 'Engine data' } : {}) };
   if (def.kind === 'boiling_margin') {
     return { glycol: engine.glycolType, glycolPercent: engine.glycolPercent, basis: 'volume', ...def.params };
   }
