@@ -1,0 +1,132 @@
+import { Router, type NextFunction, type Request, type Response } from 'express';
+import multer from 'multer';
+import { z } from 'zod';
+import type { AppContext } from '../app-context';
+import { requireAuth, requireRole } from '../auth/middleware';
+import { badRequest, HttpError } from '../http-error';
+import { addOpenApiGroup } from '../openapi';
+import { coolantOpenApi } from '../openapi/coolant-paths';
+import { TEST_METHODS } from '../models/coolant-models';
+import { getAdditiveProfile, saveAdditiveProfile } from '../services/coolant/additive-profile';
+import { importLabCsv, listCoolantTests, recordCoolantTest } from '../services/coolant/coolant-tests';
+import { runHoursCounterFor } from '../services/coolant';
+import { correctRunHours, runHoursHistory } from '../services/coolant/run-hours';
+import { clearOverride, computeDueList, enginePlan, setOverride } from '../services/coolant/service-plan';
+import { instant, parse, parseId } from './validate';
+
+export const LAB_CSV_MAX_BYTES = 2 * 1024 * 1024;
+
+const range = (min: number, max: number, unit: string) => z.number().min(min, `at least ${min} ${unit}`).max(max, `at most ${max} ${unit}`);
+const optionalReading = (min: number, max: number, unit: string) => range(min, max, unit).nullable().default(null);
+
+const testBody = z.strictObject({
+  testedAt: instant.optional(),
+  method: z.enum(TEST_METHODS),
+  scaUnitsPerGal: optionalReading(0, 100, 'units/US gal'),
+  glycolPercent: optionalReading(0, 100, '%'),
+  freezePointC: optionalReading(-80, 10, 'degC'),
+  ph: optionalReading(0, 14, ''),
+  conductivityUsCm: optionalReading(0, 200000, 'uS/cm'),
+  appearance: z.string().trim().max(200).nullable().default(null),
+  notes: z.string().trim().max(2000).nullable().default(null),
+});
+const runHoursBody = z.strictObject({ runHours: range(0, 1_000_000, 'h'), reason: z.string().trim().min(3, 'say why (at least 3 characters)').max(500) });
+const profileBody = z.strictObject({
+  name: z.string().trim().min(1).max(80),
+  liquidUnitsPerLitre: z.number().gt(0, 'above 0 units/L').max(100000, 'at most 100000 units/L'),
+  filterSizes: z.array(z.strictObject({ label: z.string().trim().min(1).max(60), prechargeUnits: range(0, 100000, 'units') })).max(20),
+  scaLow: range(0, 100, 'units/US gal').default(1.2),
+  scaHigh: range(0, 100, 'units/US gal').default(3.0),
+}).refine((p) => p.scaHigh > p.scaLow, { message: 'must be above scaLow', path: ['scaHigh'] });
+const overrideBody = z.strictObject({
+  title: z.string().trim().min(1).max(200).nullable().optional(),
+  everyHours: range(1, 100000, 'h').nullable().optional(),
+  everyDays: range(1, 3650, 'days').nullable().optional(),
+  disabled: z.boolean().optional(),
+});
+const taskParam = z.object({ id: z.coerce.number().int().positive(), taskKey: z.string().regex(/^[a-z0-9-]{1,40}$/, 'lower-case letters, digits and dashes') });
+const dueQuery = z.object({
+  siteId: z.coerce.number().int().positive().optional(),
+  engineId: z.coerce.number().int().positive().optional(),
+  windowDays: z.coerce.number().int().min(0).max(365).default(14),
+  windowHours: z.coerce.number().min(0).max(5000).default(50),
+  include: z.enum(['due', 'all']).default('due'),
+});
+const importQuery = z.object({ preview: z.enum(['0', '1', 'true', 'false']).optional(), engineId: z.coerce.number().int().positive().optional() });
+
+const RECORDERS = ['technician', 'planner', 'admin'] as const;
+const PLANNERS = ['planner', 'admin'] as const;
+
+const upload = multer({ storage: multer.memoryStorage(), limits: { fileSize: LAB_CSV_MAX_BYTES, files: 1, fields: 5 } }).single('file');
+
+/** multer with our error shape: too large -> 413, anything else -> 400 naming `file`. */
+function labUpload(req: Request, res: Response, next: NextFunction): void {
+  upload(req, res, (err: unknown) => {
+    if (!err) return next();
+    if (err instanceof multer.MulterError) {
+      if (err.code === 'LIMIT_FILE_SIZE') return next(new HttpError(413, `file is larger than ${LAB_CSV_MAX_BYTES / 1024 / 1024} MB`, 'file'));
+      return next(badRequest(`upload refused: ${err.message}`, err.field ?? 'file'));
+    }
+    next(badRequest('upload is not a readable multipart form', 'file'));
+  });
+}
+
+/** Coolant tests, lab import, additive profile, run hours, service plan and the due list. */
+export function coolantRouter(ctx: AppContext): Router {
+  addOpenApiGroup(coolantOpenApi);
+  const r = Router();
+  const m = ctx.models;
+  for (const p of ['/engines/:id/coolant-tests', '/engines/:id/run-hours', '/engines/:id/service-plan', '/coolant-tests', '/additive-profile', '/due-list']) r.use(p, requireAuth);
+
+  r.get('/engines/:id/coolant-tests', async (req, res) => {
+    res.json(await listCoolantTests(m, parseId(req.params)));
+  });
+  r.post('/engines/:id/coolant-tests', requireRole(...RECORDERS), async (req, res) => {
+    const id = parseId(req.params);
+    const b = parse(testBody, req.body);
+    const testedAt = b.testedAt ?? Date.now();
+    if (testedAt > Date.now() + 5 * 60 * 1000) throw badRequest('testedAt is in the future', 'testedAt');
+    res.status(201).json(await recordCoolantTest(m, id, { ...b, testedAt: new Date(testedAt) }, req.user!.id));
+  });
+
+  r.post('/coolant-tests/import', requireRole(...RECORDERS), labUpload, async (req, res) => {
+    const q = parse(importQuery, req.query);
+    if (!req.file) throw badRequest('send the CSV as multipart/form-data in the field "file"', 'file');
+    const preview = q.preview === '1' || q.preview === 'true';
+    const out = await importLabCsv(m, req.file.buffer, { preview, userId: req.user!.id, engineId: q.engineId });
+    res.status(preview || out.stored === 0 ? 200 : 201).json(out);
+  });
+
+  r.get('/additive-profile', async (_req, res) => {
+    res.json(await getAdditiveProfile(m));
+  });
+  r.put('/additive-profile', requireRole('admin'), async (req, res) => {
+    res.json(await saveAdditiveProfile(m, parse(profileBody, req.body), req.user!.id));
+  });
+
+  r.get('/engines/:id/run-hours', async (req, res) => {
+    res.json(await runHoursHistory(m, parseId(req.params)));
+  });
+  r.post('/engines/:id/run-hours', requireRole(...PLANNERS), async (req, res) => {
+    const id = parseId(req.params);
+    res.json(await correctRunHours(m, id, parse(runHoursBody, req.body), req.user!.id, runHoursCounterFor(ctx)));
+  });
+
+  r.get('/engines/:id/service-plan', async (req, res) => {
+    res.json(await enginePlan(m, parseId(req.params)));
+  });
+  r.put('/engines/:id/service-plan/:taskKey', requireRole(...PLANNERS), async (req, res) => {
+    const p = parse(taskParam, req.params);
+    res.json(await setOverride(m, p.id, p.taskKey, parse(overrideBody, req.body), req.user!.id));
+  });
+  r.delete('/engines/:id/service-plan/:taskKey', requireRole(...PLANNERS), async (req, res) => {
+    const p = parse(taskParam, req.params);
+    res.json(await clearOverride(m, p.id, p.taskKey));
+  });
+
+  r.get('/due-list', async (req, res) => {
+    const q = parse(dueQuery, req.query);
+    res.json(await computeDueList(m, { siteId: q.siteId, engineId: q.engineId, windowDays: q.windowDays, windowHours: q.windowHours, includeOk: q.include === 'all', now: Date.now() }));
+  });
+  return r;
+}

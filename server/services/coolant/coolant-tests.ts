@@ -1,0 +1,181 @@
+import {
+  assessFreezeProtection, CoolantInputError, decideAdditive, type AdditiveDecision, type FreezeAssessment, type ScaLimits,
+} from '../../../shared/coolant';
+import { badRequest } from '../../http-error';
+import type { Engine, Models } from '../../models';
+import type { CoolantTest, TestMethod } from '../../models/coolant-models';
+import { getEngine } from '../engines';
+import { getAdditiveProfile } from './additive-profile';
+import { LabCsvError, parseLabCsv, type LabRow, type RowError } from './lab-csv';
+
+export interface TestInput {
+  testedAt: Date;
+  method: TestMethod;
+  scaUnitsPerGal: number | null;
+  glycolPercent: number | null;
+  freezePointC: number | null;
+  ph: number | null;
+  conductivityUsCm: number | null;
+  appearance: string | null;
+  notes?: string | null;
+}
+
+/** What was decided when the test was recorded; stored with the test so the record shows what was done and why. */
+export interface CoolantDecision {
+  /** Null when the test has no additive reading of conventional coolant. */
+  additive: AdditiveDecision | null;
+  /** Freeze protection from the measured glycol share (by volume, the engine's glycol type), when measured. */
+  freeze: FreezeAssessment | null;
+  notes: string[];
+  engine: { capacityL: number; coolantFamily: string; glycolType: string };
+}
+
+/** The decision for one test of this engine (pure apart from its inputs). */
+export function decideForTest(engine: Pick<Engine, 'capacityL' | 'coolantFamily' | 'glycolType'>, t: Pick<TestInput, 'scaUnitsPerGal' | 'glycolPercent' | 'freezePointC'>, limits: ScaLimits): CoolantDecision {
+  const notes: string[] = [];
+  let additive: AdditiveDecision | null = null;
+  if (engine.coolantFamily === 'extended-life') {
+    // no strip decision for extended-life coolant: decideAdditive says why (status not-applicable)
+    additive = decideAdditive({ coolantFamily: 'extended-life', scaUnitsPerGal: t.scaUnitsPerGal, capacityL: engine.capacityL, limits });
+  } else if (t.scaUnitsPerGal !== null) {
+    additive = decideAdditive({ coolantFamily: 'conventional', scaUnitsPerGal: t.scaUnitsPerGal, capacityL: engine.capacityL, limits });
+  } else {
+    notes.push('No additive reading in this test: no filter or dose decision.');
+  }
+  let freeze: FreezeAssessment | null = null;
+  if (t.glycolPercent !== null) {
+    freeze = assessFreezeProtection(engine.glycolType, t.glycolPercent, 'volume');
+    if (t.freezePointC !== null && freeze.freezePointC !== null && Math.abs(t.freezePointC - freeze.freezePointC) > 3) {
+      notes.push(`Measured freeze point ${t.freezePointC.toFixed(1)} °C differs by more than 3 °C from the table value for ${t.glycolPercent} % ${engine.glycolType} glycol (${freeze.freezePointC.toFixed(1)} °C): check the glycol type and the instrument.`);
+    }
+  }
+  return { additive, freeze, notes, engine: { capacityL: engine.capacityL, coolantFamily: engine.coolantFamily, glycolType: engine.glycolType } };
+}
+
+export interface CoolantTestView {
+  id: number;
+  engineId: number;
+  testedAt: string;
+  method: TestMethod;
+  scaUnitsPerGal: number | null;
+  glycolPercent: number | null;
+  freezePointC: number | null;
+  ph: number | null;
+  conductivityUsCm: number | null;
+  appearance: string | null;
+  notes: string | null;
+  testedBy: number | null;
+  testedByName: string | null;
+  decision: CoolantDecision | null;
+  source: string;
+  createdAt: string;
+}
+
+async function userNames(models: Models, ids: (number | null)[]): Promise<Map<number, string>> {
+  const want = [...new Set(ids.filter((x): x is number => x !== null))];
+  if (!want.length) return new Map();
+  const users = await models.User.findAll({ where: { id: want }, attributes: ['id', 'name'] });
+  return new Map(users.map((u) => [u.id, u.name]));
+}
+
+function view(t: CoolantTest, names: Map<number, string>): CoolantTestView {
+  return {
+    id: t.id, engineId: t.engineId, testedAt: new Date(t.testedAt).toISOString(), method: t.method,
+    scaUnitsPerGal: t.scaUnitsPerGal, glycolPercent: t.glycolPercent, freezePointC: t.freezePointC, ph: t.ph, conductivityUsCm: t.conductivityUsCm,
+    appearance: t.appearance, notes: t.notes, testedBy: t.testedBy, testedByName: t.testedBy === null ? null : (names.get(t.testedBy) ?? null),
+    decision: (t.decision as unknown as CoolantDecision) ?? null, source: t.source, createdAt: new Date(t.createdAt).toISOString(),
+  };
+}
+
+export async function listCoolantTests(models: Models, engineId: number, limit = 500): Promise<CoolantTestView[]> {
+  await getEngine(models, engineId);
+  const rows = await models.CoolantTest.findAll({ where: { engineId }, order: [['testedAt', 'DESC'], ['id', 'DESC']], limit });
+  const names = await userNames(models, rows.map((r) => r.testedBy));
+  return rows.map((r) => view(r, names));
+}
+
+function decideOr400(engine: Engine, input: TestInput, limits: ScaLimits): CoolantDecision {
+  try {
+    return decideForTest(engine, input, limits);
+  } catch (err) {
+    if (err instanceof CoolantInputError) throw badRequest(err.message, err.field);
+    throw err;
+  }
+}
+
+export async function recordCoolantTest(models: Models, engineId: number, input: TestInput, userId: number): Promise<CoolantTestView> {
+  const engine = await getEngine(models, engineId);
+  if (engine.retiredAt) throw badRequest('engine is retired', 'engineId');
+  const profile = await getAdditiveProfile(models);
+  const decision = decideOr400(engine, input, profile.limits);
+  const row = await models.CoolantTest.create({
+    engineId, ...input, notes: input.notes ?? null, testedBy: userId, decision: decision as unknown as Record<string, unknown>, source: 'manual',
+  });
+  return view(row, await userNames(models, [userId]));
+}
+
+export interface ImportRowResult {
+  line: number;
+  engineId: number;
+  testedAt: string;
+  status: string | null;
+  summary: string;
+}
+
+export interface ImportResult {
+  preview: boolean;
+  /** Rows that are (or in a preview: would be) stored. */
+  accepted: ImportRowResult[];
+  /** Rows left out, with the reason. */
+  rejected: RowError[];
+  stored: number;
+}
+
+/** Lab CSV import: every good row is stored (unless preview), every bad row reported; never all-or-nothing. */
+export async function importLabCsv(models: Models, buf: Buffer, opts: { preview: boolean; userId: number; engineId?: number; now?: number }): Promise<ImportResult> {
+  let parsed;
+  try {
+    parsed = parseLabCsv(buf, { now: opts.now, engineIdOptional: opts.engineId !== undefined });
+  } catch (err) {
+    if (err instanceof LabCsvError) throw badRequest(`not a lab CSV of the documented layout: ${err.message}`, 'file');
+    throw err;
+  }
+  const profile = await getAdditiveProfile(models);
+  const ids = [...new Set(parsed.rows.map((r) => r.row.engineId ?? opts.engineId!))];
+  const engines = new Map((await models.Engine.findAll({ where: { id: ids } })).map((e) => [e.id, e]));
+  const rejected = [...parsed.errors];
+  const good: { line: number; row: LabRow; engine: Engine; decision: CoolantDecision }[] = [];
+  for (const { line, row } of parsed.rows) {
+    const id = row.engineId ?? opts.engineId!;
+    if (opts.engineId !== undefined && id !== opts.engineId) {
+      rejected.push({ line, field: 'engine_id', error: `engine_id: ${id} is not the engine being imported for (${opts.engineId})` });
+      continue;
+    }
+    const engine = engines.get(id);
+    if (!engine || engine.retiredAt) {
+      rejected.push({ line, field: 'engine_id', error: `engine_id: no active engine ${id}` });
+      continue;
+    }
+    try {
+      good.push({ line, row, engine, decision: decideForTest(engine, row, profile.limits) });
+    } catch (err) {
+      if (!(err instanceof CoolantInputError)) throw err;
+      rejected.push({ line, field: null, error: err.message });
+    }
+  }
+  rejected.sort((a, b) => a.line - b.line);
+  const accepted = good.map(({ line, row, engine, decision }) => ({
+    line, engineId: engine.id, testedAt: row.testedAt.toISOString(), status: decision.additive?.status ?? null,
+    summary: decision.additive?.reasons[0] ?? decision.notes[0] ?? (decision.freeze ? `freeze point ${decision.freeze.freezePointC?.toFixed(1) ?? 'beyond table'} °C` : 'stored'),
+  }));
+  if (!opts.preview && good.length) {
+    await models.CoolantTest.bulkCreate(
+      good.map(({ row, engine, decision }) => ({
+        engineId: engine.id, testedAt: row.testedAt, method: row.method, scaUnitsPerGal: row.scaUnitsPerGal, glycolPercent: row.glycolPercent,
+        freezePointC: row.freezePointC, ph: row.ph, conductivityUsCm: row.conductivityUsCm, appearance: row.appearance, notes: null,
+        testedBy: opts.userId, decision: decision as unknown as Record<string, unknown>, source: 'lab-import' as const,
+      })),
+    );
+  }
+  return { preview: opts.preview, accepted, rejected, stored: opts.preview ? 0 : good.length };
+}
