@@ -13,6 +13,7 @@ import { createSequelize } from './db/sequelize';
 import { createLogger, type Logger } from './logger';
 import { initModels, type Models } from './models';
 import { createAlarmFeature, type AlarmFeature } from './services/alarms';
+import { startRunHoursCounting } from './services/coolant';
 import { siteOfEngineLookup } from './services/engines';
 import { startTelemetry } from './telemetry';
 import type { Telemetry } from './telemetry/types';
@@ -60,6 +61,7 @@ export async function startServer(config: Config, opts: StartOptions = {}): Prom
   });
   ctx.telemetry = telemetry;
   await alarms.start(telemetry);
+  const stopRunHours = startRunHoursCounting(ctx, telemetry);
 
   await new Promise<void>((resolve, reject) => {
     httpServer.once('error', reject);
@@ -76,6 +78,7 @@ export async function startServer(config: Config, opts: StartOptions = {}): Prom
     (stopping ??= (async () => {
       await telemetry.stop();
       await alarms.stop();
+      await stopRunHours();
       await new Promise<void>((resolve) => {
         httpServer.close(() => resolve());
         httpServer.closeAllConnections();

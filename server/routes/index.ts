@@ -2,6 +2,8 @@ import { Router } from 'express';
 import type { AppContext } from '../app-context';
 import { buildOpenApi } from '../openapi';
 import { authRouter } from './auth';
+import { calcRouter } from './calc';
+import { coolantRouter } from './coolant';
 import { devicesRouter } from './devices';
 import { enginesRouter } from './engines';
 import { healthRouter } from './health';
@@ -14,5 +16,5 @@ export function coreRouters(ctx: AppContext): Router[] {
   docs.get('/openapi.json', (_req, res) => {
     res.json(buildOpenApi());
   });
-  return [docs, healthRouter(ctx), authRouter(ctx), sitesRouter(ctx), enginesRouter(ctx), devicesRouter(ctx), usersRouter(ctx)];
+  return [docs, healthRouter(ctx), authRouter(ctx), sitesRouter(ctx), enginesRouter(ctx), devicesRouter(ctx), usersRouter(ctx), calcRouter(ctx), coolantRouter(ctx)];
 }
