@@ -1,0 +1,138 @@
+import { DecimalPipe, PercentPipe } from '@angular/common';
+import { ChangeDetectionStrategy, Component, effect, inject, signal, untracked } from '@angular/core';
+import { MatButtonToggleModule } from '@angular/material/button-toggle';
+import { MatCardModule } from '@angular/material/card';
+import { MatProgressBarModule } from '@angular/material/progress-bar';
+import { MatTableModule } from '@angular/material/table';
+import { FrequentChart } from './frequent-chart';
+import { formatDuration, formatTime } from './alarm-labels';
+import { AlarmPerformance } from './alarm-types';
+import { AlarmsApi, errorText } from './alarms-api';
+
+const DAY = 86_400_000;
+const SPANS = [
+  { days: 1, text: 'Last 24 hours' },
+  { days: 7, text: 'Last 7 days' },
+  { days: 30, text: 'Last 30 days' },
+];
+
+/**
+ * How the alarm system behaves (ISA-18.2 performance figures): rate per day and per 10 minutes,
+ * the busiest 10 minutes, the most frequent, chattering and standing alarms, time to acknowledge.
+ */
+@Component({
+  selector: 'jw-performance-page',
+  changeDetection: ChangeDetectionStrategy.OnPush,
+  imports: [MatButtonToggleModule, MatCardModule, MatTableModule, MatProgressBarModule, DecimalPipe, PercentPipe, FrequentChart],
+  template: `
+    <section class="page">
+      <h1>Alarm performance</h1>
+      <mat-button-toggle-group [value]="days()" (change)="days.set($event.value)" aria-label="Period" hideSingleSelectionIndicator>
+        @for (s of spans; track s.days) { <mat-button-toggle [value]="s.days">{{ s.text }}</mat-button-toggle> }
+      </mat-button-toggle-group>
+      @if (loading()) { <mat-progress-bar mode="indeterminate" aria-label="Loading" /> }
+      @if (error(); as e) { <p class="error" role="alert">{{ e }}</p> }
+      @if (report(); as r) {
+        <p class="period">{{ time(r.from) }} to {{ time(r.to) }}</p>
+        <div class="figures jw-num">
+          <mat-card appearance="outlined"><span class="big">{{ r.total }}</span><span>alarms raised</span></mat-card>
+          <mat-card appearance="outlined"><span class="big">{{ r.perDay | number: '1.0-1' }}</span><span>per day on average</span></mat-card>
+          <mat-card appearance="outlined"><span class="big">{{ r.per10Min | number: '1.0-2' }}</span><span>per 10 minutes on average</span></mat-card>
+          <mat-card appearance="outlined"><span class="big">{{ r.max10Min }}</span><span>in the busiest 10 minutes</span></mat-card>
+          <mat-card appearance="outlined"><span class="big">{{ r.share10MinOver10 | percent: '1.0-1' }}</span><span>of 10-minute periods with more than 10 alarms (flood level)</span></mat-card>
+          <mat-card appearance="outlined">
+            <span class="big">{{ r.acknowledge.medianMs === null ? '—' : duration(r.acknowledge.medianMs) }}</span>
+            <span>median time to acknowledge (mean {{ r.acknowledge.meanMs === null ? '—' : duration(r.acknowledge.meanMs) }}; {{ r.acknowledge.unacknowledged }} not acknowledged)</span>
+          </mat-card>
+        </div>
+
+        <h2>Most frequent</h2>
+        @if (r.mostFrequent.length) {
+          @defer (on viewport) {
+            <jw-frequent-chart [items]="r.mostFrequent" />
+          } @placeholder {
+            <div class="chart-space"></div>
+          }
+          <table mat-table [dataSource]="r.mostFrequent">
+            <ng-container matColumnDef="key"><th mat-header-cell *matHeaderCellDef>Engine / rule</th><td mat-cell *matCellDef="let x">{{ x.key }}</td></ng-container>
+            <ng-container matColumnDef="count"><th mat-header-cell *matHeaderCellDef>Times raised</th><td mat-cell *matCellDef="let x" class="jw-num">{{ x.count }}</td></ng-container>
+            <ng-container matColumnDef="share"><th mat-header-cell *matHeaderCellDef>Share of all</th><td mat-cell *matCellDef="let x" class="jw-num">{{ x.share | percent: '1.0-1' }}</td></ng-container>
+            <tr mat-header-row *matHeaderRowDef="['key', 'count', 'share']"></tr>
+            <tr mat-row *matRowDef="let row; columns: ['key', 'count', 'share']"></tr>
+          </table>
+        } @else { <p class="muted">No alarms in this period.</p> }
+
+        <h2>Chattering</h2>
+        <p class="muted">Raised 3 or more times within one minute (a common working threshold, not a figure of the standard).</p>
+        @if (r.chattering.length) {
+          <table mat-table [dataSource]="r.chattering">
+            <ng-container matColumnDef="key"><th mat-header-cell *matHeaderCellDef>Engine / rule</th><td mat-cell *matCellDef="let x">{{ x.key }}</td></ng-container>
+            <ng-container matColumnDef="bursts"><th mat-header-cell *matHeaderCellDef>Bursts</th><td mat-cell *matCellDef="let x" class="jw-num">{{ x.bursts }}</td></ng-container>
+            <ng-container matColumnDef="max"><th mat-header-cell *matHeaderCellDef>Most in one minute</th><td mat-cell *matCellDef="let x" class="jw-num">{{ x.maxInWindow }}</td></ng-container>
+            <tr mat-header-row *matHeaderRowDef="['key', 'bursts', 'max']"></tr>
+            <tr mat-row *matRowDef="let row; columns: ['key', 'bursts', 'max']"></tr>
+          </table>
+        } @else { <p class="muted">None.</p> }
+
+        <h2>Standing</h2>
+        <p class="muted">Active for more than 24 hours (a common working threshold).</p>
+        @if (r.standing.length) {
+          <table mat-table [dataSource]="r.standing">
+            <ng-container matColumnDef="key"><th mat-header-cell *matHeaderCellDef>Engine / rule</th><td mat-cell *matCellDef="let x">{{ x.key }}</td></ng-container>
+            <ng-container matColumnDef="since"><th mat-header-cell *matHeaderCellDef>Active since</th><td mat-cell *matCellDef="let x" class="jw-num">{{ time(x.activatedAt) }}</td></ng-container>
+            <ng-container matColumnDef="for"><th mat-header-cell *matHeaderCellDef>For</th><td mat-cell *matCellDef="let x" class="jw-num">{{ duration(x.activeMs) }}</td></ng-container>
+            <tr mat-header-row *matHeaderRowDef="['key', 'since', 'for']"></tr>
+            <tr mat-row *matRowDef="let row; columns: ['key', 'since', 'for']"></tr>
+          </table>
+        } @else { <p class="muted">None.</p> }
+      }
+    </section>
+  `,
+  styles: `
+    .page { padding: 16px 24px 32px; max-width: 1200px; }
+    h1 { font: var(--mat-sys-headline-small); margin: 0 0 12px; }
+    h2 { font: var(--mat-sys-title-medium); margin: 24px 0 4px; }
+    .period, .muted { color: var(--jw-muted-text); }
+    .figures { display: grid; grid-template-columns: repeat(auto-fill, minmax(13em, 1fr)); gap: 12px; }
+    .figures mat-card { padding: 12px 16px; display: flex; flex-direction: column; gap: 2px; }
+    .big { font: var(--mat-sys-headline-medium); font-weight: 700; }
+    .chart-space { height: 200px; }
+    table { width: 100%; }
+    .error { color: var(--jw-alarm-high); }
+  `,
+})
+export class PerformancePage {
+  private readonly api = inject(AlarmsApi);
+  protected readonly spans = SPANS;
+  protected readonly days = signal(7);
+  protected readonly report = signal<AlarmPerformance | null>(null);
+  protected readonly loading = signal(false);
+  protected readonly error = signal<string | null>(null);
+
+  constructor() {
+    effect(() => {
+      const days = this.days();
+      untracked(() => void this.load(days));
+    });
+  }
+
+  protected time(t: number): string {
+    return formatTime(t);
+  }
+  protected duration(ms: number): string {
+    return formatDuration(ms);
+  }
+
+  private async load(days: number): Promise<void> {
+    this.loading.set(true);
+    this.error.set(null);
+    const to = Date.now();
+    try {
+      this.report.set(await this.api.performance(to - days * DAY, to));
+    } catch (err) {
+      this.error.set(errorText(err, 'The figures could not be loaded'));
+    } finally {
+      this.loading.set(false);
+    }
+  }
+}

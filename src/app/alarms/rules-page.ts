@@ -1,0 +1,203 @@
+import { HttpClient } from '@angular/common/http';
+import { ChangeDetectionStrategy, Component, computed, inject, signal } from '@angular/core';
+import { FormsModule } from '@angular/forms';
+import { MatButtonModule } from '@angular/material/button';
+import { MatExpansionModule } from '@angular/material/expansion';
+import { MatFormFieldModule } from '@angular/material/form-field';
+import { MatIconModule } from '@angular/material/icon';
+import { MatInputModule } from '@angular/material/input';
+import { MatSelectModule } from '@angular/material/select';
+import { MatSlideToggleModule } from '@angular/material/slide-toggle';
+import { MatSnackBar } from '@angular/material/snack-bar';
+import { firstValueFrom } from 'rxjs';
+import { CHANNELS, ChannelKey } from '../../../shared/channels';
+import { PreferencesService } from '../core/preferences.service';
+import { FleetService } from '../fleet/fleet.service';
+import { formatAlarmValue, formatTime, priorityLook } from './alarm-labels';
+import { errorText } from './alarms-api';
+import { ParamField, paramFields, paramUnit, ruleQuantity, toDisplay, toSi } from './rule-params';
+
+interface RuleDef {
+  key: string; kind: string; channel: ChannelKey; priority: string; enabled: boolean; title: string; meaning: string; firstStep: string;
+  params: Record<string, unknown>;
+  overridden?: boolean;
+  override?: { rule: string; enabled: boolean; params: Record<string, unknown> | null } | null;
+}
+interface Draft { enabled: boolean; values: Record<string, number | null>; dirty: boolean }
+interface Preview { readings: number; from: string; to: string; alarms: { raisedAt: string; clearedAt: string | null; value: number | null; message: string }[] }
+
+const UNIT_OF_KIND: Record<string, string | null> = { rate: '/min', boiling_margin: 'K', no_data: null };
+
+/**
+ * The rule editor (administrators): the default profile, or one engine's overrides of it. Numbers are typed
+ * in the user's units and sent in SI. Preview runs the edited rule over the engine's last 7 days first.
+ */
+@Component({
+  selector: 'jw-rules-page',
+  changeDetection: ChangeDetectionStrategy.OnPush,
+  imports: [FormsModule, MatExpansionModule, MatFormFieldModule, MatInputModule, MatSelectModule, MatSlideToggleModule, MatButtonModule, MatIconModule],
+  templateUrl: './rules-page.html',
+  styleUrl: './rules-page.scss',
+})
+export class RulesPage {
+  private readonly http = inject(HttpClient);
+  private readonly fleet = inject(FleetService);
+  private readonly prefs = inject(PreferencesService);
+  private readonly snack = inject(MatSnackBar);
+
+  protected readonly engines = computed(() => [...this.fleet.engines()].sort((a, b) => a.name.localeCompare(b.name, undefined, { numeric: true })));
+  /** null: the default profile. */
+  protected readonly engineId = signal<number | null>(null);
+  protected readonly previewEngineId = signal<number | null>(null);
+  protected readonly rules = signal<RuleDef[]>([]);
+  protected readonly drafts = signal<Record<string, Draft>>({});
+  protected readonly previews = signal<Record<string, Preview | string>>({});
+  protected readonly error = signal<string | null>(null);
+  protected readonly saving = signal(false);
+  protected readonly dirty = computed(() => Object.values(this.drafts()).some((d) => d.dirty));
+
+  constructor() {
+    if (!this.fleet.engines().length) void this.fleet.load();
+    void this.load();
+  }
+
+  protected fields(r: RuleDef): ParamField[] {
+    return paramFields(r.kind).filter((f) => typeof r.params[f.name] === 'number');
+  }
+  protected unit(r: RuleDef, f: ParamField): string {
+    return paramUnit(f, ruleQuantity(r.kind, CHANNELS[r.channel].quantity), this.prefs.preferences());
+  }
+  protected priority(r: RuleDef): string {
+    return priorityLook(r.priority).text;
+  }
+  protected channelLabel(r: RuleDef): string {
+    return CHANNELS[r.channel]?.label ?? r.channel;
+  }
+  protected time(t: string | null): string {
+    return formatTime(t);
+  }
+  protected previewOf(r: RuleDef): Preview | string | undefined {
+    return this.previews()[r.key];
+  }
+  protected asPreview(p: Preview | string): Preview | null {
+    return typeof p === 'string' ? null : p;
+  }
+  protected previewValue(r: RuleDef, v: number | null): string {
+    const unit = r.kind in UNIT_OF_KIND ? (UNIT_OF_KIND[r.kind] === '/min' ? `${CHANNELS[r.channel].unit}/min` : UNIT_OF_KIND[r.kind]) : CHANNELS[r.channel].unit;
+    return formatAlarmValue(v, unit, this.prefs.preferences());
+  }
+
+  protected async chooseEngine(id: number | null): Promise<void> {
+    if (this.dirty() && !globalThis.confirm?.('Changes not saved will be lost. Go on?')) return;
+    this.engineId.set(id);
+    if (id !== null) this.previewEngineId.set(id);
+    this.previews.set({});
+    await this.load();
+  }
+
+  protected setEnabled(key: string, enabled: boolean): void {
+    this.drafts.update((d) => ({ ...d, [key]: { ...d[key], enabled, dirty: true } }));
+  }
+
+  protected setValue(key: string, name: string, raw: string | number | null): void {
+    const v = raw === '' || raw === null ? null : Number(raw);
+    this.drafts.update((d) => ({ ...d, [key]: { ...d[key], values: { ...d[key].values, [name]: Number.isFinite(v) ? v : null }, dirty: true } }));
+  }
+
+  /** A rule's edited parameters in SI; null when one is missing. */
+  private siParams(r: RuleDef): Record<string, number> | null {
+    const d = this.drafts()[r.key];
+    const q = ruleQuantity(r.kind, CHANNELS[r.channel].quantity);
+    const out: Record<string, number> = {};
+    for (const f of this.fields(r)) {
+      const v = d.values[f.name];
+      if (v === null || v === undefined || !Number.isFinite(v)) return null;
+      out[f.name] = toSi(v, f, q, this.prefs.preferences());
+    }
+    return out;
+  }
+
+  protected async preview(r: RuleDef): Promise<void> {
+    const engineId = this.engineId() ?? this.previewEngineId();
+    if (!engineId) {
+      this.previews.update((p) => ({ ...p, [r.key]: 'Choose an engine to run the preview on.' }));
+      return;
+    }
+    const params = this.siParams(r);
+    if (!params) {
+      this.previews.update((p) => ({ ...p, [r.key]: 'Fill in every number first.' }));
+      return;
+    }
+    this.previews.update((p) => ({ ...p, [r.key]: 'Running over the last 7 days…' }));
+    try {
+      const res = await firstValueFrom(this.http.post<Preview>('/api/rules/preview', { engineId, rule: r.key, params }));
+      this.previews.update((p) => ({ ...p, [r.key]: res }));
+    } catch (err) {
+      this.previews.update((p) => ({ ...p, [r.key]: errorText(err, 'The preview failed') }));
+    }
+  }
+
+  protected async save(): Promise<void> {
+    const engineId = this.engineId();
+    const rules = this.rules();
+    for (const r of rules) {
+      if (!this.siParams(r)) {
+        this.snack.open(`${r.title}: fill in every number first.`, 'Close', { duration: 6000 });
+        return;
+      }
+    }
+    this.saving.set(true);
+    try {
+      if (engineId === null) {
+        const body = rules.map(({ overridden: _o, override: _v, ...def }) => ({ ...def, enabled: this.drafts()[def.key].enabled, params: { ...def.params, ...this.siParams(def) } }));
+        await firstValueFrom(this.http.put('/api/rules', { rules: body }));
+      } else {
+        // Keep earlier overrides; add one for every rule changed here.
+        const overrides = rules
+          .filter((r) => r.overridden || this.drafts()[r.key].dirty)
+          .map((r) => ({ rule: r.key, enabled: this.drafts()[r.key].enabled, params: this.drafts()[r.key].dirty ? this.siParams(r) : (r.override?.params ?? null) }));
+        await firstValueFrom(this.http.put(`/api/rules/engines/${engineId}`, { rules: overrides }));
+      }
+      this.snack.open('Rules saved', undefined, { duration: 2500 });
+      await this.load();
+    } catch (err) {
+      this.snack.open(errorText(err, 'Could not save the rules'), 'Close', { duration: 8000 });
+    } finally {
+      this.saving.set(false);
+    }
+  }
+
+  protected async resetEngine(): Promise<void> {
+    const id = this.engineId();
+    if (id === null) return;
+    try {
+      await firstValueFrom(this.http.put(`/api/rules/engines/${id}`, { rules: [] }));
+      this.snack.open('This engine follows the default profile again', undefined, { duration: 3000 });
+      await this.load();
+    } catch (err) {
+      this.snack.open(errorText(err, 'Could not reset'), 'Close', { duration: 8000 });
+    }
+  }
+
+  protected async load(): Promise<void> {
+    const id = this.engineId();
+    try {
+      const rules = id === null
+        ? (await firstValueFrom(this.http.get<{ rules: RuleDef[] }>('/api/rules'))).rules
+        : (await firstValueFrom(this.http.get<{ rules: RuleDef[] }>(`/api/rules/engines/${id}`))).rules;
+      const prefs = this.prefs.preferences();
+      const drafts: Record<string, Draft> = {};
+      for (const r of rules) {
+        const q = ruleQuantity(r.kind, CHANNELS[r.channel].quantity);
+        const values: Record<string, number | null> = {};
+        for (const f of paramFields(r.kind)) if (typeof r.params[f.name] === 'number') values[f.name] = toDisplay(r.params[f.name] as number, f, q, prefs);
+        drafts[r.key] = { enabled: r.enabled, values, dirty: false };
+      }
+      this.rules.set(rules);
+      this.drafts.set(drafts);
+      this.error.set(null);
+    } catch (err) {
+      this.error.set(errorText(err, 'The rules could not be loaded'));
+    }
+  }
+}
