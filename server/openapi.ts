@@ -1,11 +1,12 @@
 import { authPaths, devicePaths, enginePaths, healthPaths, sitePaths, userPaths } from './openapi/core-paths';
 import { coreSchemas } from './openapi/core-schemas';
 import type { Json, OpenApiGroup } from './openapi/helpers';
+import { workPaths } from './openapi/work-paths';
 
 export type { OpenApiGroup } from './openapi/helpers';
 
 /** One entry per route group. A new feature adds its group here (or calls addOpenApiGroup at start-up). */
-export const OPENAPI_GROUPS: OpenApiGroup[] = [healthPaths, authPaths, sitePaths, enginePaths, devicePaths, userPaths];
+export const OPENAPI_GROUPS: OpenApiGroup[] = [healthPaths, authPaths, sitePaths, enginePaths, devicePaths, userPaths, workPaths];
 
 export function addOpenApiGroup(group: OpenApiGroup): void {
   if (!OPENAPI_GROUPS.includes(group)) OPENAPI_GROUPS.push(group);

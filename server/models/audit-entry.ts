@@ -8,7 +8,7 @@ export class AuditEntry extends Model<InferAttributes<AuditEntry>, InferCreation
   declare action: string;
   declare entity: string;
   declare entityId: number | null;
-  declare details: unknown;
+  declare details: Record<string, unknown> | null;
 }
 
 export function initAuditEntry(sequelize: Sequelize): typeof AuditEntry {

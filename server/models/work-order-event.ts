@@ -10,7 +10,7 @@ export class WorkOrderEvent extends Model<InferAttributes<WorkOrderEvent>, Infer
   declare fromStatus: CreationOptional<string | null>;
   declare toStatus: CreationOptional<string | null>;
   declare note: CreationOptional<string | null>;
-  declare details: CreationOptional<unknown>;
+  declare details: Record<string, unknown> | null;
 }
 
 export function initWorkOrderEvent(sequelize: Sequelize): typeof WorkOrderEvent {

@@ -29,7 +29,7 @@ export class WorkOrderStep extends Model<InferAttributes<WorkOrderStep>, InferCr
   declare resultUnit: CreationOptional<string | null>;
   declare resultText: CreationOptional<string | null>;
   declare lockoutConfirmed: CreationOptional<boolean | null>;
-  declare gateSnapshot: CreationOptional<unknown>;
+  declare gateSnapshot: CreationOptional<Record<string, unknown> | null>;
   declare manualCheck: CreationOptional<ManualCheck | null>;
   declare doneAt: CreationOptional<Date | null>;
   declare doneBy: CreationOptional<number | null>;

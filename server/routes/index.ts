@@ -9,6 +9,7 @@ import { enginesRouter } from './engines';
 import { healthRouter } from './health';
 import { sitesRouter } from './sites';
 import { usersRouter } from './users';
+import { workOrdersRouter } from './work-orders';
 
 /** Every core router, to be mounted at /api. Later features add theirs in createApp's `extraRouters`. */
 export function coreRouters(ctx: AppContext): Router[] {
@@ -16,5 +17,5 @@ export function coreRouters(ctx: AppContext): Router[] {
   docs.get('/openapi.json', (_req, res) => {
     res.json(buildOpenApi());
   });
-  return [docs, healthRouter(ctx), authRouter(ctx), sitesRouter(ctx), enginesRouter(ctx), devicesRouter(ctx), usersRouter(ctx), calcRouter(ctx), coolantRouter(ctx)];
+  return [docs, healthRouter(ctx), authRouter(ctx), sitesRouter(ctx), enginesRouter(ctx), devicesRouter(ctx), usersRouter(ctx), workOrdersRouter(ctx), calcRouter(ctx), coolantRouter(ctx)];
 }

@@ -1,0 +1,214 @@
+import { Router, type NextFunction, type Request, type Response } from 'express';
+import multer from 'multer';
+import { z } from 'zod';
+import type { AppContext } from '../app-context';
+import { requireAuth, requireRole } from '../auth/middleware';
+import { HttpError } from '../http-error';
+import { PART_KINDS } from '../models/work-order-part';
+import { WORK_PRIORITIES, WORK_STATUSES } from '../models/work-order';
+import type { Telemetry } from '../telemetry/types';
+import { WORK_KINDS, WORK_TEMPLATES } from '../services/work-templates';
+import { addAttachment, attachmentFile, MAX_ATTACHMENT_BYTES } from '../services/work-orders/attachment-service';
+import { computeGate } from '../services/work-orders/gate';
+import { ReadingHistory } from '../services/work-orders/reading-history';
+import { addAmendment, addPart } from '../services/work-orders/record-service';
+import { completeStep, GateShutError } from '../services/work-orders/step-service';
+import { WorkOrderService } from '../services/work-orders/work-order-service';
+import { parse, parseId } from './validate';
+
+const dateOnly = z.string().regex(/^\d{4}-\d{2}-\d{2}$/, 'a date YYYY-MM-DD').refine((s) => !Number.isNaN(Date.parse(`${s}T00:00:00Z`)), 'not a date');
+const note = z.string().trim().max(2000);
+const createBody = z.strictObject({
+  engineId: z.number().int().positive(),
+  kind: z.enum(WORK_KINDS),
+  alarmId: z.number().int().positive().optional(),
+  title: z.string().trim().min(1).max(200).optional(),
+  description: z.string().trim().max(4000).optional(),
+  priority: z.enum(WORK_PRIORITIES).optional(),
+  dueDate: dateOnly.nullable().optional(),
+  assigneeId: z.number().int().positive().nullable().optional(),
+});
+const planBody = z.strictObject({
+  title: z.string().trim().min(1).max(200).optional(),
+  description: z.string().trim().max(4000).nullable().optional(),
+  priority: z.enum(WORK_PRIORITIES).optional(),
+  dueDate: dateOnly.nullable().optional(),
+  assigneeId: z.number().int().positive().nullable().optional(),
+});
+const listQuery = z.object({
+  status: z.string().optional().transform((s, c) => {
+    if (!s) return undefined;
+    const list = s.split(',').map((x) => x.trim()).filter(Boolean);
+    for (const x of list) if (!(WORK_STATUSES as readonly string[]).includes(x)) { c.addIssue({ code: 'custom', message: `unknown status ${x}` }); return z.NEVER; }
+    return list as (typeof WORK_STATUSES)[number][];
+  }),
+  engineId: z.coerce.number().int().positive().optional(),
+  assigneeId: z.coerce.number().int().positive().optional(),
+  siteId: z.coerce.number().int().positive().optional(),
+  mine: z.enum(['1', 'true', '0', 'false']).optional(),
+});
+const transitionBody = z.strictObject({ to: z.enum(WORK_STATUSES), note: note.optional() });
+const finite = (min: number, max: number, unit: string) => z.number().finite().min(min, `at least ${min} ${unit}`).max(max, `at most ${max} ${unit}`);
+const manualCheck = z.strictObject({
+  gaugeKpa: finite(-101, 1000, 'kPa'),
+  tempC: finite(-40, 150, 'degC'),
+  minutesSinceStop: finite(0, 100000, 'min'),
+  checkedBy: z.string().trim().min(1).max(120),
+  reason: z.string().trim().min(5, 'say why live data could not be used').max(1000),
+});
+const completeBody = z.strictObject({
+  value: z.number().finite().optional(),
+  unit: z.string().max(16).optional(),
+  note: note.optional(),
+  lockoutConfirmed: z.boolean().optional(),
+  manualCheck: manualCheck.optional(),
+});
+const partBody = z.strictObject({
+  kind: z.enum(PART_KINDS),
+  description: z.string().trim().max(300).optional(),
+  quantity: z.number().finite().positive().max(5000),
+  unit: z.enum(['L', 'gal', 'pcs']),
+});
+const amendmentBody = z.strictObject({ text: z.string().trim().min(1).max(4000) });
+const stepParams = z.object({ id: z.coerce.number().int().positive(), stepId: z.coerce.number().int().positive() });
+const uploadFields = z.object({ stepId: z.coerce.number().int().positive().optional() });
+
+/** One history per running server: the router hooks it onto telemetry.onReadings as soon as telemetry exists. */
+function attachHistory(ctx: AppContext, history: ReadingHistory): () => void {
+  let attached = false;
+  const tryAttach = () => {
+    if (attached) return;
+    const t = ctx.telemetry as Partial<Telemetry> | null;
+    if (t && typeof t.onReadings === 'function') {
+      t.onReadings(history.onReadings);
+      attached = true;
+    }
+  };
+  // routers are built before telemetry starts; look again shortly and on every request
+  const timer = setInterval(() => {
+    tryAttach();
+    if (attached) clearInterval(timer);
+  }, 100);
+  timer.unref();
+  return tryAttach;
+}
+
+const upload = multer({ storage: multer.memoryStorage(), limits: { fileSize: MAX_ATTACHMENT_BYTES, files: 1, fields: 5, parts: 6 } });
+function singleFile(req: Request, res: Response, next: NextFunction) {
+  upload.single('file')(req, res, (err: unknown) => {
+    if (!err) return next();
+    if (err instanceof multer.MulterError) {
+      if (err.code === 'LIMIT_FILE_SIZE') return next(new HttpError(413, `a file may be at most ${MAX_ATTACHMENT_BYTES / 1024 / 1024} MB`, 'file'));
+      return next(new HttpError(400, `upload refused: ${err.message}`, err.field ?? 'file'));
+    }
+    next(err);
+  });
+}
+
+export interface WorkRouterHandle {
+  router: Router;
+  service: WorkOrderService;
+  history: ReadingHistory;
+}
+
+export function workOrdersRouterWithService(ctx: AppContext): WorkRouterHandle {
+  const history = new ReadingHistory(ctx.sequelize);
+  const svc = new WorkOrderService(ctx, history);
+  const attach = attachHistory(ctx, history);
+  const r = Router();
+  const planners = requireRole('planner', 'admin');
+  const gated = (fn: (req: Request, res: Response) => Promise<void>) => async (req: Request, res: Response) => {
+    try {
+      await fn(req, res);
+    } catch (err) {
+      if (err instanceof GateShutError) return void res.status(409).json(err.body);
+      throw err;
+    }
+  };
+  for (const p of ['/work-orders', '/work-order-templates', '/attachments', '/engines/:id/opening-check']) r.use(p, requireAuth, (_req, _res, next) => { attach(); next(); });
+
+  r.get('/work-order-templates', (_req, res) => {
+    res.json(WORK_TEMPLATES);
+  });
+
+  r.get('/engines/:id/opening-check', async (req, res) => {
+    const engine = await ctx.models.Engine.findByPk(parseId(req.params));
+    if (!engine) throw new HttpError(404, 'engine not found');
+    // lockout is the technician's confirmation on the step; shown here as not yet confirmed
+    const g = await computeGate(history, engine, req.query.lockoutConfirmed === 'true');
+    res.json({ engineId: engine.id, at: new Date().toISOString(), clear: g.clear, conditions: g.conditions, clearAt: g.clearAt, reasons: g.reasons, stale: g.stale, settings: g.settings });
+  });
+
+  r.get('/work-orders/assignees', async (_req, res) => {
+    const users = await ctx.models.User.findAll({ where: { role: 'technician', disabled: false }, attributes: ['id', 'name', 'email'], order: [['name', 'ASC']] });
+    res.json(users.map((u) => ({ id: u.id, name: u.name, email: u.email })));
+  });
+
+  r.get('/work-orders', async (req, res) => {
+    const q = parse(listQuery, req.query);
+    res.json(await svc.list(req.user!, { status: q.status, engineId: q.engineId, assigneeId: q.assigneeId, siteId: q.siteId, mine: q.mine === '1' || q.mine === 'true' }));
+  });
+
+  r.post('/work-orders', async (req, res) => {
+    const body = parse(createBody, req.body);
+    const order = await svc.create(req.user!, body);
+    res.status(201).json(await svc.detail(order.id));
+  });
+
+  r.get('/work-orders/:id', async (req, res) => {
+    res.json(await svc.detail(parseId(req.params)));
+  });
+
+  r.patch('/work-orders/:id', planners, async (req, res) => {
+    const id = parseId(req.params);
+    await svc.plan(req.user!, id, parse(planBody, req.body));
+    res.json(await svc.detail(id));
+  });
+
+  r.post('/work-orders/:id/transition', async (req, res) => {
+    const id = parseId(req.params);
+    const body = parse(transitionBody, req.body);
+    await svc.transition(req.user!, id, body.to, body.note);
+    res.json(await svc.detail(id));
+  });
+
+  r.post('/work-orders/:id/steps/:stepId/complete', gated(async (req, res) => {
+    const p = parse(stepParams, req.params);
+    await completeStep(svc, req.user!, p.id, p.stepId, parse(completeBody, req.body));
+    res.json(await svc.detail(p.id));
+  }));
+
+  r.post('/work-orders/:id/parts', async (req, res) => {
+    const id = parseId(req.params);
+    await addPart(svc, req.user!, id, parse(partBody, req.body));
+    res.status(201).json(await svc.detail(id));
+  });
+
+  r.post('/work-orders/:id/amendments', async (req, res) => {
+    const id = parseId(req.params);
+    await addAmendment(svc, req.user!, id, parse(amendmentBody, req.body).text);
+    res.status(201).json(await svc.detail(id));
+  });
+
+  r.post('/work-orders/:id/attachments', singleFile, async (req, res) => {
+    const id = parseId(req.params);
+    const fields = parse(uploadFields, req.body ?? {});
+    const a = await addAttachment(svc, req.user!, id, req.file, fields.stepId ?? null);
+    res.status(201).json({ id: a.id, stepId: a.stepId, originalName: a.originalName, contentType: a.contentType, size: a.size, url: `/api/attachments/${a.id}` });
+  });
+
+  r.get('/attachments/:id', async (req, res) => {
+    const { attachment, file } = await attachmentFile(svc, parseId(req.params));
+    res.setHeader('Content-Type', attachment.contentType);
+    res.setHeader('X-Content-Type-Options', 'nosniff');
+    res.setHeader('Cache-Control', 'private, max-age=300');
+    res.setHeader('Content-Disposition', `${attachment.contentType === 'application/pdf' ? 'attachment' : 'inline'}; filename*=UTF-8''${encodeURIComponent(attachment.originalName)}`);
+    res.sendFile(file);
+  });
+
+  return { router: r, service: svc, history };
+}
+
+export function workOrdersRouter(ctx: AppContext): Router {
+  return workOrdersRouterWithService(ctx).router;
+}

@@ -1,0 +1,129 @@
+import { toCelsius, toKpa, type PressureUnit, type TemperatureUnit } from '../../../shared/units';
+import { LITRES_PER_US_GALLON } from '../../../shared/units';
+import { badRequest, conflict, HttpError, notFound } from '../../http-error';
+import type { ManualCheck } from '../../models/work-order-step';
+import type { AuthUser } from '../../telemetry/types';
+import { computeGate, liveObjections, type GateResult } from './gate';
+import { pushWorkOrder, tellPlanners } from './notify';
+import type { WorkOrderService } from './work-order-service';
+
+export interface CompleteInput {
+  value?: number;
+  unit?: string;
+  note?: string;
+  lockoutConfirmed?: boolean;
+  manualCheck?: ManualCheck;
+}
+
+/** The answer to a gated step while the opening check is not clear: 409 with the unmet conditions. */
+export class GateShutError extends HttpError {
+  constructor(message: string, readonly body: Record<string, unknown>) {
+    super(409, message);
+  }
+}
+
+/** Plausible ranges of a recorded value, in the step's unit (common practice; wide on purpose). */
+const RANGES: Record<string, [number, number]> = {
+  degC: [-80, 20], kPa: [-10, 400], L: [0, 5000], turns: [0, 3], '%': [0, 100], 'units/gal': [0, 10], pH: [0, 14],
+};
+
+/** Converts a value entered in another unit of the same quantity to the step's unit. */
+function toStepUnit(value: number, from: string, stepUnit: string): number | null {
+  if (from === stepUnit) return value;
+  if (stepUnit === 'degC' && (from === 'degF' || from === 'K')) return toCelsius(value, from as TemperatureUnit);
+  if (stepUnit === 'kPa' && (from === 'psi' || from === 'bar')) return toKpa(value, from as PressureUnit);
+  if (stepUnit === 'L' && from === 'gal') return value * LITRES_PER_US_GALLON;
+  return null;
+}
+
+function snapshot(g: GateResult, at: Date, manual: boolean): Record<string, unknown> {
+  return { at: at.toISOString(), clear: g.clear, stale: g.stale, manual, conditions: g.conditions, reasons: g.reasons };
+}
+
+export async function completeStep(svc: WorkOrderService, user: AuthUser, orderId: number, stepId: number, input: CompleteInput) {
+  const { models } = svc;
+  const order = await svc.getOrder(orderId);
+  const step = await models.WorkOrderStep.findOne({ where: { id: stepId, workOrderId: orderId } });
+  if (!step) throw notFound('step');
+  if (order.status !== 'in-progress') throw conflict('steps are done while the work order is in progress; start it first');
+  if (user.role !== 'technician') throw new HttpError(403, 'steps are done by the technician');
+  if (order.assigneeId !== user.id) throw new HttpError(403, 'this work order is assigned to another technician');
+  if (step.doneAt) throw conflict('this step is already done');
+
+  const patch: Record<string, unknown> = { resultText: input.note?.trim() || null };
+  if (step.input === 'value') {
+    if (input.value === undefined) throw badRequest('this step records a value', 'value');
+    const stepUnit = step.unit ?? '';
+    const v = toStepUnit(input.value, input.unit ?? stepUnit, stepUnit);
+    if (v === null) throw badRequest(`unit must be ${stepUnit}`, 'unit');
+    const range = RANGES[stepUnit];
+    if (range && (v < range[0] || v > range[1])) throw badRequest(`value must be between ${range[0]} and ${range[1]} ${stepUnit}`, 'value');
+    patch.resultValue = v;
+    patch.resultUnit = stepUnit;
+  } else if (step.input === 'photo') {
+    const photos = await models.Attachment.count({ where: { workOrderId: orderId, stepId: step.id } });
+    if (!photos) throw badRequest('attach a photo to this step first', 'photo');
+  }
+
+  const now = new Date();
+  let manual = false;
+  if (step.gated) {
+    const engine = await models.Engine.findByPk(order.engineId);
+    if (!engine) throw notFound('engine');
+    const lockout = input.lockoutConfirmed === true;
+    const gate = await computeGate(svc.history, engine, lockout, now.getTime());
+    if (!lockout) {
+      throw new GateShutError('confirm lockout/tagout before this step', { error: 'confirm lockout/tagout before this step', conditions: gate.conditions.filter((c) => !c.met), clearAt: gate.clearAt, reasons: gate.reasons, stale: gate.stale });
+    }
+    if (!gate.clear) {
+      const objections = liveObjections(gate, now.getTime());
+      if (!input.manualCheck || !gate.stale || objections.length) {
+        const why = !input.manualCheck ? 'the opening check is not clear'
+          : !gate.stale ? 'a manual check is only for stale or missing live data; live data is fresh'
+          : 'live data says the system is not safe to open: a manual check cannot overrule it';
+        throw new GateShutError(why, { error: why, conditions: gate.conditions.filter((c) => !c.met), clearAt: gate.clearAt, reasons: gate.reasons, stale: gate.stale, objections });
+      }
+      // the hand readings must themselves pass the same limits
+      const m = input.manualCheck;
+      const s = gate.settings;
+      const failed = [
+        { name: 'manual-pressure', met: m.gaugeKpa <= s.maxPressureKpa, value: m.gaugeKpa, limit: s.maxPressureKpa, unit: 'kPa' },
+        { name: 'manual-temperature', met: m.tempC <= s.safeOpenTempC, value: m.tempC, limit: s.safeOpenTempC, unit: '°C' },
+        { name: 'manual-stopped', met: m.minutesSinceStop * 60 >= s.minStoppedS, value: m.minutesSinceStop, limit: s.minStoppedS / 60, unit: 'min' },
+      ].filter((c) => !c.met);
+      if (failed.length) throw new GateShutError('the manual check readings are not safe to open', { error: 'the manual check readings are not safe to open', conditions: failed, clearAt: null, reasons: [], stale: true });
+      manual = true;
+      patch.manualCheck = m;
+    }
+    patch.lockoutConfirmed = true;
+    patch.gateSnapshot = snapshot(gate, now, manual);
+  }
+  patch.doneAt = now;
+  patch.doneBy = user.id;
+
+  await svc.ctx.sequelize.transaction(async (transaction) => {
+    await step.update(patch, { transaction });
+    await svc.event(orderId, user.id, manual ? 'step-done-manual-check' : 'step-done', {
+      note: (patch.resultText as string | null) ?? null,
+      details: { stepId: step.id, key: step.key, value: patch.resultValue ?? null, unit: patch.resultUnit ?? null, entered: input.value !== undefined ? { value: input.value, unit: input.unit ?? step.unit } : null, manualCheck: manual ? input.manualCheck! : null },
+    }, transaction);
+    if (manual) {
+      await svc.audit(user.id, 'opening-check-manual-override', 'work_order_step', step.id, { workOrderId: orderId, engineId: order.engineId, manualCheck: input.manualCheck!, gate: patch.gateSnapshot as Record<string, unknown> }, transaction);
+    }
+  });
+  if (manual) {
+    const m = input.manualCheck!;
+    const engine = await models.Engine.findByPk(order.engineId, { attributes: ['id', 'name'] });
+    const to = await tellPlanners(
+      svc.ctx,
+      `Manual opening check on work order #${order.id} (${engine?.name ?? `engine ${order.engineId}`})`,
+      `${user.email} opened the cooling system on a manual check because live data was stale or missing.\n\n` +
+        `Step: ${step.title}\nGauge: ${m.gaugeKpa} kPa\nCoolant: ${m.tempC} °C\nStopped for: ${m.minutesSinceStop} min\nChecked by: ${m.checkedBy}\nReason: ${m.reason}\n\n` +
+        `Work order: ${svc.ctx.config.publicUrl}/work/${order.id}`,
+      { order, event: 'manual-check' },
+    );
+    await svc.audit(user.id, 'planners-told', 'work_order_step', step.id, { to, channel: to.length ? 'e-mail' : 'live push only' });
+  }
+  pushWorkOrder(svc.ctx, order, 'step');
+  return step;
+}
