@@ -6,6 +6,7 @@ import type { Config } from '../server/config';
 import type { Engine, Models } from '../server/models';
 import { hashSecret } from '../server/services/passwords';
 import { DEMO_ENGINES, DEMO_PASSWORD, DEMO_SITES, DEMO_USERS } from './demo-scenario';
+import { seedOncall } from './oncall';
 
 /** One line of the devices file the simulator reads. */
 export interface DeviceRecord {
@@ -79,6 +80,7 @@ export async function seedDemo(sequelize: Sequelize, models: Models, config: Con
     for (const s of DEMO_SITES) siteIds.set(s.key, (await models.Site.create({ name: s.name, timeZone: s.timeZone }, { transaction })).id);
     const engines: Engine[] = [];
     for (const { site, ...e } of DEMO_ENGINES) engines.push(await models.Engine.create({ ...e, siteId: siteIds.get(site)! }, { transaction }));
+    await seedOncall(models, { transaction });
     return addDevices(models, engines, 'demo-engine', cost, transaction);
   });
   writeDevicesFile(devicesFile, config.mqttPort, devices);

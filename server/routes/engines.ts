@@ -5,6 +5,7 @@ import { requireAuth, requireRole } from '../auth/middleware';
 import type { AppContext } from '../app-context';
 import { badRequest } from '../http-error';
 import { COOLANT_FAMILIES, DUTIES, GLYCOL_TYPES } from '../models/engine';
+import { activeAlarmCounts } from '../services/alarms/alarm-service';
 import { createEngine, engineView, getEngine, listEngines, retireEngine, updateEngine } from '../services/engines';
 import { queryBuckets } from '../services/readings-query';
 import { instant, parse, parseId } from './validate';
@@ -58,10 +59,12 @@ export function enginesRouter(ctx: AppContext): Router {
   r.get('/engines', async (req, res) => {
     const q = parse(listQuery, req.query);
     const engines = await listEngines(ctx.models, { siteId: q.siteId, includeRetired: q.includeRetired === 'true' });
-    res.json(engines.map((e) => engineView(e, live())));
+    const alarmCounts = await activeAlarmCounts(ctx.models);
+    res.json(engines.map((e) => ({ ...engineView(e, live()), activeAlarms: alarmCounts.get(e.id) ?? 0 })));
   });
   r.get('/engines/:id', async (req, res) => {
-    res.json(engineView(await getEngine(ctx.models, parseId(req.params)), live()));
+    const engine = await getEngine(ctx.models, parseId(req.params));
+    res.json({ ...engineView(engine, live()), activeAlarms: (await activeAlarmCounts(ctx.models)).get(engine.id) ?? 0 });
   });
   r.get('/engines/:id/readings', async (req, res) => {
     const id = parseId(req.params);
