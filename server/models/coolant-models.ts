@@ -74,7 +74,8 @@ export interface CoolantModels {
   RunHoursAdjustment: typeof RunHoursAdjustment;
 }
 
-const real = { type: DataTypes.DOUBLE, allowNull: true };
+// a fresh object per attribute: Sequelize writes the column name into it
+const real = () => ({ type: DataTypes.DOUBLE, allowNull: true });
 
 /** Models of the coolant issue (migration 0004). */
 export function initCoolantModels(sequelize: Sequelize): CoolantModels {
@@ -84,11 +85,11 @@ export function initCoolantModels(sequelize: Sequelize): CoolantModels {
       engineId: { type: DataTypes.INTEGER, allowNull: false },
       testedAt: { type: DataTypes.DATE, allowNull: false },
       method: { type: DataTypes.STRING(16), allowNull: false },
-      scaUnitsPerGal: real,
-      glycolPercent: real,
-      freezePointC: real,
-      ph: real,
-      conductivityUsCm: real,
+      scaUnitsPerGal: real(),
+      glycolPercent: real(),
+      freezePointC: real(),
+      ph: real(),
+      conductivityUsCm: real(),
       appearance: { type: DataTypes.STRING(200), allowNull: true },
       notes: { type: DataTypes.TEXT, allowNull: true },
       testedBy: { type: DataTypes.INTEGER, allowNull: true },
@@ -119,8 +120,8 @@ export function initCoolantModels(sequelize: Sequelize): CoolantModels {
       engineId: { type: DataTypes.INTEGER, allowNull: false },
       taskKey: { type: DataTypes.STRING(40), allowNull: false },
       title: { type: DataTypes.STRING(200), allowNull: true },
-      everyHours: real,
-      everyDays: real,
+      everyHours: real(),
+      everyDays: real(),
       disabled: { type: DataTypes.BOOLEAN, allowNull: false, defaultValue: false },
       updatedBy: { type: DataTypes.INTEGER, allowNull: true },
       createdAt: DataTypes.DATE,

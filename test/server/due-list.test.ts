@@ -1,0 +1,136 @@
+/**
+ * The due list on a fixed clock (computeDueList takes `now`), on a real SQLite file, with run-hour and
+ * calendar intervals crossing: whichever comes first decides. Intervals are the default plan's
+ * (common practice: coolant filter at each oil drain or yearly; coolant test twice a year) and NFPA 110
+ * chapter 8 in spirit for the weekly inspection of standby sets. Also the run-hours counter on speed readings.
+ */
+import request from 'supertest';
+import { createLogger } from '../../server/logger';
+import { RunHoursCounter } from '../../server/services/coolant/run-hours';
+import { computeDueList, eventKeysFor } from '../../server/services/coolant/service-plan';
+import { auth, makeTestApp, type TestApp } from './helpers';
+
+const DAY = 86_400_000;
+const NOW = Date.UTC(2026, 5, 1, 12); // 1 June 2026 12:00 UTC
+let t: TestApp;
+let siteId: number;
+let hoursFirst: number; // reaches the hour interval before the calendar date
+let daysFirst: number; // reaches the calendar date before the hour interval
+let prime: number;
+beforeAll(async () => {
+  t = await makeTestApp();
+  siteId = (await t.ctx.models.Site.create({ name: 'Hill reservoir', timeZone: 'UTC' })).id;
+  const base = { siteId, capacityL: 80, coolantFamily: 'conventional' as const, glycolType: 'ethylene' as const, glycolPercent: 50, capPressureKpa: 100, oilDrainIntervalH: 250 };
+  hoursFirst = (await t.ctx.models.Engine.create({ ...base, name: 'A busy set', duty: 'prime', runHours: 1260 })).id;
+  daysFirst = (await t.ctx.models.Engine.create({ ...base, name: 'B quiet set', duty: 'standby', runHours: 40 })).id;
+  prime = (await t.ctx.models.Engine.create({ ...base, name: 'C fresh set', duty: 'prime', runHours: 500 })).id;
+  const ev = (engineId: number, taskKey: string, daysAgo: number, runHours: number) =>
+    t.ctx.models.ServiceEvent.create({ engineId, taskKey, doneAt: new Date(NOW - daysAgo * DAY), runHours, workOrderId: null });
+  // A: filter changed 30 days ago at 1000 h; 250 h interval -> due at 1250 h, now 1260 h: overdue by hours while the yearly date is far off
+  await ev(hoursFirst, 'coolant-filter-change', 30, 1000);
+  // B: filter changed 360 days ago at 30 h; 40 h now -> hours far off, yearly date in 5 days: due soon by calendar
+  await ev(daysFirst, 'coolant-filter', 360, 30);
+  // B: weekly inspection 8 days ago: overdue by calendar
+  await ev(daysFirst, 'weekly-inspection', 8, 39);
+  // C: everything done yesterday at 500 h except the filter, done at 470 h (20 h to go: due soon by hours)
+  for (const k of ['oil-drain', 'coolant-test', 'drain-flush-refill']) await ev(prime, k, 1, 500);
+  await ev(prime, 'coolant-filter-change', 1, 470);
+  // an event after `now` must not count
+  await ev(prime, 'oil-drain', -3, 600);
+});
+afterAll(() => t.close());
+
+const entry = async (engineId: number, taskKey: string, windowDays = 14) => {
+  const out = await computeDueList(t.ctx.models, { windowDays, includeOk: true, now: NOW });
+  return out.sites.flatMap((s) => s.entries).find((e) => e.engineId === engineId && e.taskKey === taskKey)!;
+};
+
+describe('due list on a fixed clock', () => {
+  it("the template's task key counts as the plan task done", () => {
+    expect(eventKeysFor('coolant-filter')).toEqual(['coolant-filter', 'coolant-filter-change']);
+  });
+
+  it('hours first: 1000 h + 250 h = 1250 h < 1260 h now -> overdue, though the yearly date is 335 days off', async () => {
+    const e = await entry(hoursFirst, 'coolant-filter');
+    expect(e.state).toBe('overdue');
+    expect(e.dueAtRunHours).toBe(1250);
+    expect(e.dueAt).toBe(new Date(NOW + 335 * DAY).toISOString());
+    expect(e.lastDoneRunHours).toBe(1000);
+    expect(e.workKind).toBe('filter-change');
+  });
+
+  it('calendar first: done 360 days ago -> yearly date in 5 days: due soon with a 14-day window, ok with a 3-day one', async () => {
+    expect((await entry(daysFirst, 'coolant-filter', 14)).state).toBe('due-soon');
+    const narrow = await entry(daysFirst, 'coolant-filter', 3);
+    expect(narrow.state).toBe('ok');
+    expect(narrow.dueAtRunHours).toBe(280);
+  });
+
+  it('weekly inspection 8 days ago is overdue (7-day interval); never-done tasks are overdue', async () => {
+    expect((await entry(daysFirst, 'weekly-inspection')).state).toBe('overdue');
+    expect((await entry(daysFirst, 'coolant-test')).reason).toMatch(/no record/);
+  });
+
+  it('hours within the 50 h window: 470 h + 250 h = 720 h, 500 h now -> 220 h to go: ok; an event after now is ignored', async () => {
+    const f = await entry(prime, 'coolant-filter');
+    expect(f.state).toBe('ok');
+    expect(f.dueAtRunHours).toBe(720);
+    const oil = await entry(prime, 'oil-drain');
+    expect(oil.lastDoneRunHours).toBe(500);
+  });
+
+  it('a recorded coolant test counts for the coolant-test task (calendar)', async () => {
+    await t.ctx.models.CoolantTest.create({ engineId: daysFirst, testedAt: new Date(NOW - 10 * DAY), method: 'strip', scaUnitsPerGal: 2, glycolPercent: null, freezePointC: null, ph: null, conductivityUsCm: null, appearance: null, notes: null, testedBy: null, decision: null, source: 'manual' });
+    const e = await entry(daysFirst, 'coolant-test');
+    expect(e.state).toBe('ok');
+    expect(e.dueAt).toBe(new Date(NOW + 172 * DAY).toISOString()); // 182-day interval
+  });
+
+  it('an override changes the interval; disabled tasks leave the list; only due entries by default, counted per site', async () => {
+    await request(t.app).put(`/api/engines/${hoursFirst}/service-plan/coolant-filter`).set(auth(t.tokens.technician)).send({ everyHours: 500 }).expect(403);
+    await request(t.app).put(`/api/engines/${hoursFirst}/service-plan/coolant-filter`).set(auth(t.tokens.planner)).send({ everyHours: 500 }).expect(200);
+    const e = await entry(hoursFirst, 'coolant-filter');
+    expect(e.state).toBe('ok'); // 1000 + 500 = 1500 h
+    expect(e.basis).toBe('set for this engine');
+    await request(t.app).put(`/api/engines/${daysFirst}/service-plan/weekly-inspection`).set(auth(t.tokens.planner)).send({ disabled: true }).expect(200);
+    const out = await computeDueList(t.ctx.models, { windowDays: 14, now: NOW });
+    const entries = out.sites[0].entries;
+    expect(entries.every((x) => x.state !== 'ok')).toBe(true);
+    expect(entries.some((x) => x.taskKey === 'weekly-inspection')).toBe(false);
+    expect(out.sites[0].overdue).toBe(entries.filter((x) => x.state === 'overdue').length);
+    expect(entries[0].state).toBe('overdue');
+    await request(t.app).delete(`/api/engines/${hoursFirst}/service-plan/coolant-filter`).set(auth(t.tokens.planner)).expect(200);
+    expect((await entry(hoursFirst, 'coolant-filter')).state).toBe('overdue');
+  });
+
+  it('the route answers for every role and validates its query', async () => {
+    const res = await request(t.app).get(`/api/due-list?siteId=${siteId}&windowDays=30`).set(auth(t.tokens.operator)).expect(200);
+    expect(res.body.sites[0].siteName).toBe('Hill reservoir');
+    expect((await request(t.app).get('/api/due-list?windowDays=-1').set(auth(t.tokens.planner)).expect(400)).body.field).toBe('windowDays');
+  });
+});
+
+describe('run-hours counter', () => {
+  it('counts time between good speed readings while at or above 100 rpm, skips gaps over 5 min, writes one increment (hand-computed minutes)', async () => {
+    const engine = await t.ctx.models.Engine.findByPk(prime);
+    const start = engine!.runHours;
+    const c = new RunHoursCounter(t.ctx.models, createLogger('error'));
+    const s = (ts: number, value: number, quality: 0 | 1 = 0) => ({ engineId: prime, channel: 'engine_speed' as const, ts, value, quality });
+    const t0 = NOW;
+    const min = 60_000;
+    c.onReadings(Array.from({ length: 61 }, (_, i) => s(t0 + i * min, 1800))); // 60 min running, a reading a minute
+    c.onReadings([s(t0 + 90 * min, 1800)]); // a 30-min gap: not counted (could have stopped)
+    c.onReadings([s(t0 + 93 * min, 1800), s(t0 + 96 * min, 0)]); // 3 + 3 min while it was running, then stopped
+    c.onReadings([s(t0 + 99 * min, 0), s(t0 + 100 * min, 1800)]); // stopped time does not count
+    c.onReadings([s(t0 + 124 * min, 1800)]); // 24-min gap: not counted
+    c.onReadings([s(t0 + 125 * min, 5000, 1), s(t0 + 110 * min, 1800)]); // bad quality and late samples ignored
+    c.onReadings([s(t0 + 148 * min, 1800), s(t0 + 125 * min, 90)]); // late: ignored; 24-min gap: not counted
+    c.onReadings(Array.from({ length: 25 }, (_, i) => s(t0 + (149 + i) * min, i < 24 ? 1800 : 99))); // 1 + 24 min (the last at 99 rpm ends it)
+    c.onReadings([s(t0 + 175 * min, 2000)]); // from a 99 rpm reading: not running, not counted
+    c.onReadings([{ engineId: prime, channel: 'coolant_temp', ts: t0 + 200 * 60_000, value: 80, quality: 0 }]);
+    expect(c.pendingHours(prime)).toBeCloseTo((60 + 6 + 25) / 60, 9); // RUNNING_RPM = 100 (shared/channels.ts)
+    await c.stop();
+    expect((await t.ctx.models.Engine.findByPk(prime))!.runHours).toBeCloseTo(start + 91 / 60, 9);
+    expect(c.pendingHours(prime)).toBe(0);
+  });
+});
