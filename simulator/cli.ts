@@ -262,9 +262,12 @@ async function main(): Promise<void> {
     return;
   }
   const ac = new AbortController();
-  let signals = 0;
+  let firstSignalAt = 0;
   const onSignal = (): void => {
-    if (++signals > 1) process.exit(130); // second Ctrl-C: do not wait for acknowledgements
+    // npm and tsx relay the terminal's signal too, so one Ctrl-C can arrive several times at once:
+    // only a second one a moment later means "do not wait for acknowledgements".
+    if (firstSignalAt && Date.now() - firstSignalAt > 1000) process.exit(130);
+    if (!firstSignalAt) firstSignalAt = Date.now();
     ac.abort();
   };
   process.on('SIGINT', onSignal);

@@ -3,7 +3,7 @@
  * Each tick steps every engine model and publishes the single-sample payload. While a client is
  * disconnected (or the scenario has its uplink down) samples are kept in a bounded buffer and
  * sent on reconnect as `samples` batches before live data. History (backfill) goes out the same
- * way, one batch in flight per engine, as fast as the acknowledgements come back.
+ * way, a few batches in flight per engine, as fast as the acknowledgements come back.
  */
 import mqtt, { MqttClient } from 'mqtt';
 import { telemetryTopic, statusTopic } from '../shared/topics';
@@ -40,8 +40,8 @@ export interface GatewayOptions {
 /** Contract limits (DEVELOPERS.md): at most 500 samples and 16 KiB per payload. */
 export const MAX_BATCH_SAMPLES = 500;
 export const MAX_PAYLOAD_BYTES = 16 * 1024;
-/** A batch that fails this often is dropped (counted) instead of blocking the engine forever. */
-const MAX_BATCH_ATTEMPTS = 3;
+/** Batches sent ahead of their acknowledgement, per engine. */
+const BATCHES_IN_FLIGHT = 4;
 
 export interface LinkStats {
   published: number; // samples handed to the client
@@ -100,7 +100,6 @@ export class EngineLink {
   private flushing = false;
   private uplinkDown = false;
   private history: Iterator<Sample> | null = null;
-  private batchAttempts = 0;
   private lastError = '';
 
   constructor(
@@ -207,39 +206,46 @@ export class EngineLink {
     });
   }
 
-  /** Send what is buffered (and any history) in batches, one in flight, oldest first. */
+  /**
+   * Send what is buffered (and any history) in batches, oldest first, with a few batches in flight
+   * so that acknowledgement latency does not set the pace. A sample leaves the buffer only when its
+   * batch is acknowledged; in-flight QoS 1 messages are replayed by the client after a reconnect.
+   */
   async flush(): Promise<void> {
     if (this.flushing) return;
     this.flushing = true;
+    const inflight: Promise<{ ok: boolean; count: number }>[] = [];
+    let sentAhead = 0; // samples at the front of the queue already in flight
+    const unsent = { length: 0, at: (i: number) => this.queue.at(sentAhead + i) };
     try {
-      while (this.connected && !this.uplinkDown) {
-        if (this.queue.length === 0 && this.history) {
-          for (let i = 0; i < MAX_BATCH_SAMPLES; i++) {
-            const n = this.history.next();
-            if (n.done) {
-              this.history = null;
-              this.goLive(Date.now());
-              break;
-            }
-            this.queue.push(n.value);
-          }
+      for (;;) {
+        while (inflight.length < BATCHES_IN_FLIGHT && this.connected && !this.uplinkDown) {
+          if (this.queue.length - sentAhead === 0 && this.history) this.refillFromHistory();
+          unsent.length = this.queue.length - sentAhead;
+          if (unsent.length === 0) break;
+          const { payload, count } = buildBatch(unsent);
+          inflight.push(this.send(payload, count).then((ok) => ({ ok, count })));
+          sentAhead += count;
         }
-        if (this.queue.length === 0) break;
-        const { payload, count } = buildBatch(this.queue);
-        const ok = await this.send(payload, count);
-        if (ok) {
-          this.queue.drop(count);
-          this.batchAttempts = 0;
-        } else if (++this.batchAttempts >= MAX_BATCH_ATTEMPTS) {
-          this.queue.drop(count);
-          this.stats.dropped += count;
-          this.batchAttempts = 0;
-        } else {
-          break; // wait for the reconnect, which calls flush again
-        }
+        const oldest = inflight.shift();
+        if (!oldest) break;
+        const r = await oldest;
+        this.queue.drop(r.count);
+        sentAhead -= r.count;
+        if (!r.ok) this.stats.dropped += r.count; // the client gave up on it (closing): count, do not loop
       }
     } finally {
       this.flushing = false;
+    }
+  }
+
+  private refillFromHistory(): void {
+    for (let i = 0; i < MAX_BATCH_SAMPLES && this.history; i++) {
+      const n = this.history.next();
+      if (n.done) {
+        this.history = null;
+        this.goLive(Date.now());
+      } else this.queue.push(n.value);
     }
   }
 
