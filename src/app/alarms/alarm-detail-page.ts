@@ -43,7 +43,7 @@ export class AlarmDetailPage {
     const a = this.alarm();
     return a ? formatDuration(this.clock.now() - Date.parse(a.raisedAt)) : '';
   });
-  protected readonly notes = computed(() => (this.alarm()?.history ?? []).filter((h) => h.note));
+  protected readonly notes = computed(() => (this.alarm()?.history ?? []).filter((h) => h.note && h.userId !== null));
   protected readonly workOrderLink = computed(() => {
     const a = this.alarm();
     return a ? { engineId: a.engineId, alarmId: a.id, kind: 'coolant-filter-change' } : {};

@@ -27,13 +27,13 @@ import { Alarm } from './alarm-types';
         <a class="title" [routerLink]="['/alarms', alarm().id]">{{ alarm().title }}</a>
         <div class="where">
           <a [routerLink]="['/engines', alarm().engineId]">{{ alarm().engineName ?? 'Engine ' + alarm().engineId }}</a>
-          @if (alarm().siteName) { <span class="site">· {{ alarm().siteName }}</span> }
+          @if (alarm().siteName) { <span class="site">{{ ' · ' + alarm().siteName }}</span> }
         </div>
       </div>
       <div class="state">
         @if (unack()) {
           <span class="unack-mark"><mat-icon aria-hidden="true" fontIcon="radio_button_checked" />Unacknowledged</span>
-          @if (alarm().state === 'returned-unacknowledged') { <span class="state-text">Returned to normal</span> }
+          @if (alarm().state === 'returned-unacknowledged') { <span class="state-text">{{ ' ' }}Returned to normal</span> }
         } @else {
           <span class="state-text">{{ stateWords() }}</span>
         }

@@ -1,5 +1,5 @@
 import { ChangeDetectionStrategy, Component, inject } from '@angular/core';
-import { FormControl, ReactiveFormsModule, Validators } from '@angular/forms';
+import { FormControl, FormGroup, ReactiveFormsModule, Validators } from '@angular/forms';
 import { MatButtonModule } from '@angular/material/button';
 import { MAT_DIALOG_DATA, MatDialogModule, MatDialogRef } from '@angular/material/dialog';
 import { MatFormFieldModule } from '@angular/material/form-field';
@@ -19,7 +19,7 @@ export interface NoteDialogData {
   imports: [ReactiveFormsModule, MatDialogModule, MatButtonModule, MatFormFieldModule, MatInputModule],
   template: `
     <h2 mat-dialog-title>{{ data.mode === 'acknowledge' ? 'Acknowledge alarm' : 'Add a note' }}</h2>
-    <form (ngSubmit)="submit()">
+    <form [formGroup]="form" (ngSubmit)="submit()">
       <mat-dialog-content>
         <p><strong>{{ data.alarm.title }}</strong> on {{ data.alarm.engineName ?? 'engine ' + data.alarm.engineId }}</p>
         <mat-form-field appearance="outline" class="note">
@@ -43,6 +43,7 @@ export class NoteDialog {
     nonNullable: true,
     validators: this.data.mode === 'note' ? [Validators.required, Validators.pattern(/\S/), Validators.maxLength(1000)] : [Validators.maxLength(1000)],
   });
+  readonly form = new FormGroup({ note: this.note });
 
   submit(): void {
     this.note.markAsTouched();
