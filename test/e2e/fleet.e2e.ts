@@ -1,0 +1,59 @@
+/**
+ * The operator's first look: sign in, see the demo fleet on the board, see a value change live while
+ * the simulator publishes; an operator is refused the administration pages.
+ */
+import assert from 'node:assert/strict';
+import { after, before, describe, it } from 'node:test';
+import type { Browser, Page } from 'playwright-core';
+import { ACCOUNTS, launchBrowser, shot, signIn, startStack, type Stack } from './harness';
+
+describe('fleet board (operator)', () => {
+  let stack: Stack;
+  let browser: Browser;
+  let page: Page;
+
+  before(async () => {
+    stack = await startStack({ simulatorArgs: ['--rate', '2', '--speed', '30', '--seed', '11'] });
+    browser = await launchBrowser();
+    page = await browser.newPage({ viewport: { width: 1366, height: 900 } });
+  });
+
+  after(async () => {
+    await browser?.close();
+    await stack?.stop();
+  });
+
+  it('signs in and lands on the fleet board with every demo engine', async () => {
+    await signIn(page, stack, ACCOUNTS.operator);
+    assert.match(new URL(page.url()).pathname, /^\/fleet/);
+    await page.getByRole('heading', { name: 'Fleet board' }).waitFor();
+    const token = await stack.login(ACCOUNTS.operator);
+    const engines = (await stack.api<{ name: string }[]>('GET', '/api/engines', token)).body;
+    assert.ok(engines.length >= 8, `demo fleet has ${engines.length} engines`);
+    for (const e of engines) await page.locator('jw-engine-tile', { hasText: e.name }).first().waitFor({ timeout: 15000 });
+  });
+
+  it('shows values with units and updates them live', async () => {
+    const tiles = page.locator('jw-engine-tile');
+    await page.waitForFunction(() => /°C|°F/.test(document.querySelector('jw-engine-tile')?.textContent ?? ''), null, { timeout: 20000 });
+    const before = await tiles.allTextContents();
+    assert.ok(before.some((t) => /kPa|psi|bar/.test(t)), 'pressure shown with a unit');
+    const deadline = Date.now() + 30000;
+    let changed = false;
+    while (!changed && Date.now() < deadline) {
+      await page.waitForTimeout(1000);
+      const now = await tiles.allTextContents();
+      changed = now.some((t, i) => t.replace(/last reading .* ago/, '') !== before[i].replace(/last reading .* ago/, ''));
+    }
+    assert.ok(changed, 'a tile value changed while the simulator ran');
+    await shot(page, 'fleet-board');
+  });
+
+  it('refuses the administration pages to an operator', async () => {
+    await page.goto(`${stack.baseUrl}/admin/users`);
+    await page.waitForTimeout(1500);
+    assert.doesNotMatch(new URL(page.url()).pathname, /^\/admin/);
+    const token = await stack.login(ACCOUNTS.operator);
+    assert.equal((await stack.api('GET', '/api/users', token)).status, 403);
+  });
+});
