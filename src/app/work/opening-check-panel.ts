@@ -1,0 +1,141 @@
+import { ChangeDetectionStrategy, Component, DestroyRef, computed, effect, inject, input, output, signal, untracked } from '@angular/core';
+import { MatIconModule } from '@angular/material/icon';
+import { ClockService } from '../core/clock.service';
+import { UnitValuePipe } from '../ui/unit-value.pipe';
+import { WorkApi, errorText } from './work-api';
+import { CONDITION_TEXT, formatDateTime } from './work-labels';
+import { OpeningCheck, OpeningCondition } from './work-types';
+
+const POLL_MS = 5000;
+
+/**
+ * The live opening check of one engine, polled every 5 s from the server (which computes it with the
+ * shared function). Each condition shows an icon and words, not colour alone. Only the face of the
+ * lock: the server checks again when a step is completed.
+ */
+@Component({
+  selector: 'jw-opening-check-panel',
+  changeDetection: ChangeDetectionStrategy.OnPush,
+  imports: [MatIconModule, UnitValuePipe],
+  template: `
+    <section class="panel" [class.clear]="check()?.clear" [class.stale]="check()?.stale" aria-live="polite" aria-label="Opening check">
+      @if (check(); as c) {
+        <div class="verdict">
+          <mat-icon [fontIcon]="c.clear ? 'lock_open' : 'lock'" aria-hidden="true" />
+          <div>
+            <div class="word">{{ c.clear ? 'Clear: the cooling system may be opened' : 'Not clear: keep the cooling system closed' }}</div>
+            <div class="sub">
+              @if (c.stale) { Live data is missing or stale. }
+              @else if (!c.clear && c.clearAt) { Predicted clear at {{ when(c.clearAt) }} (in about {{ minutesUntil(c.clearAt) }} min). }
+              @else if (!c.clear) { No clear time can be predicted yet. }
+              Checked {{ when(c.at) }}.
+            </div>
+          </div>
+        </div>
+        <div class="live">
+          <div><span class="label">Coolant</span> <span class="jw-num big">{{ tempValue() | unitValue: 'coolant_temp' }}</span> <span class="lim">limit {{ c.settings.safeOpenTempC | unitValue: 'coolant_temp' }}</span></div>
+          <div><span class="label">Pressure</span> <span class="jw-num big">{{ pressureValue() | unitValue: 'coolant_pressure' }}</span> <span class="lim">limit {{ c.settings.maxPressureKpa | unitValue: 'coolant_pressure' }}</span></div>
+        </div>
+        <ul class="conditions">
+          @for (k of shown(); track k.name) {
+            <li [class.met]="k.met">
+              <mat-icon [fontIcon]="k.met ? 'check_circle' : 'cancel'" aria-hidden="true" />
+              <span class="state">{{ k.met ? 'Met' : 'Not met' }}</span>
+              <span>{{ label(k) }}</span>
+              <span class="val jw-num">{{ valueText(k) }}</span>
+            </li>
+          }
+        </ul>
+        @if (!c.clear && c.reasons.length) {
+          <details><summary>Why not clear</summary><ul class="reasons">@for (r of c.reasons; track $index) { <li>{{ r }}</li> }</ul></details>
+        }
+      } @else if (error(); as e) {
+        <div class="verdict"><mat-icon fontIcon="help" aria-hidden="true" /><div class="word">Opening check unavailable: {{ e }}</div></div>
+      } @else {
+        <div class="verdict"><mat-icon fontIcon="hourglass_empty" aria-hidden="true" /><div class="word">Checking…</div></div>
+      }
+    </section>
+  `,
+  styles: `
+    .panel { border: 2px solid var(--jw-warning); background: var(--jw-warning-bg); border-radius: 8px; padding: 12px 16px; }
+    .panel.clear { border-color: var(--mat-sys-outline); background: var(--mat-sys-surface-container); }
+    .panel.stale { border-color: var(--jw-stale); background: var(--jw-stale-bg); }
+    .verdict { display: flex; gap: 12px; align-items: center; }
+    .verdict mat-icon { font-size: 40px; width: 40px; height: 40px; }
+    .word { font: var(--mat-sys-title-medium); font-weight: 700; }
+    .sub { color: var(--jw-muted-text); }
+    .live { display: flex; gap: 32px; flex-wrap: wrap; margin: 10px 0; }
+    .label { color: var(--jw-muted-text); }
+    .big { font: var(--mat-sys-headline-small); font-weight: 600; }
+    .lim { color: var(--jw-muted-text); font: var(--mat-sys-body-small); }
+    .conditions { list-style: none; padding: 0; margin: 0; display: grid; gap: 4px; }
+    .conditions li { display: grid; grid-template-columns: 24px 5.5em 1fr auto; gap: 8px; align-items: center; font-weight: 600; }
+    .conditions li.met { font-weight: 400; }
+    .val { color: var(--jw-muted-text); }
+    .reasons { margin: 4px 0 0; }
+  `,
+})
+export class OpeningCheckPanel {
+  private readonly api = inject(WorkApi);
+  private readonly clock = inject(ClockService);
+  readonly engineId = input.required<number>();
+  /** Whether to count the technician's lockout confirmation in (it is always re-checked by the server). */
+  readonly lockoutConfirmed = input(false);
+  /** Every fresh result, for the steps that show their lock. */
+  readonly changed = output<OpeningCheck>();
+
+  protected readonly check = signal<OpeningCheck | null>(null);
+  protected readonly error = signal<string | null>(null);
+  protected readonly shown = computed(() => this.check()?.conditions ?? []);
+  protected readonly tempValue = computed(() => num(this.check()?.conditions.find((c) => c.name === 'coolant-temperature')?.value));
+  protected readonly pressureValue = computed(() => num(this.check()?.conditions.find((c) => c.name === 'coolant-pressure')?.value));
+  private timer: ReturnType<typeof setInterval> | null = null;
+
+  constructor() {
+    effect(() => {
+      const id = this.engineId();
+      this.lockoutConfirmed();
+      untracked(() => {
+        void this.poll(id);
+        if (this.timer) clearInterval(this.timer);
+        this.timer = setInterval(() => void this.poll(id), POLL_MS);
+      });
+    });
+    inject(DestroyRef).onDestroy(() => this.timer && clearInterval(this.timer));
+  }
+
+  private async poll(id: number): Promise<void> {
+    try {
+      const c = await this.api.openingCheck(id, this.lockoutConfirmed());
+      this.check.set(c);
+      this.error.set(null);
+      this.changed.emit(c);
+    } catch (e) {
+      this.error.set(errorText(e));
+    }
+  }
+
+  protected label(c: OpeningCondition): string {
+    return CONDITION_TEXT[c.name] ?? c.name;
+  }
+
+  protected valueText(c: OpeningCondition): string {
+    const s = this.check()?.settings;
+    if (c.name === 'engine-stopped') return c.detail === 'no data' ? 'no data' : `${minutes(c.value)} of ${minutes(c.limit)} min · ${c.detail ?? ''}`;
+    if (c.name === 'held') return `${minutes(c.value)} of ${minutes(c.limit)} min`;
+    if (c.name === 'telemetry-fresh') return c.value === null ? 'no data' : `newest ${Math.round(Number(c.value))} s old (max ${s?.staleAfterS ?? c.limit} s)`;
+    if (c.name === 'lockout-confirmed') return c.met ? 'ticked below' : 'tick it on the step';
+    return '';
+  }
+
+  protected when(t: string | number): string {
+    return formatDateTime(t);
+  }
+
+  protected minutesUntil(t: number): number {
+    return Math.max(0, Math.ceil((t - this.clock.now()) / 60000));
+  }
+}
+
+const num = (v: unknown): number | null => (typeof v === 'number' ? v : null);
+const minutes = (v: unknown): string => (typeof v === 'number' ? (v / 60).toFixed(1) : '—');

@@ -1,0 +1,123 @@
+import { HttpClient, HttpErrorResponse } from '@angular/common/http';
+import { Injectable, inject } from '@angular/core';
+import { firstValueFrom } from 'rxjs';
+import { Assignee, ManualCheck, OpeningCheck, WorkOrderDetail, WorkOrderSummary, WorkPriority, WorkStatus, WorkTemplate } from './work-types';
+
+export interface ListFilter {
+  status?: WorkStatus[];
+  engineId?: number;
+  siteId?: number;
+  assigneeId?: number;
+  mine?: boolean;
+}
+
+export interface CreateRequest {
+  engineId: number;
+  kind: string;
+  alarmId?: number;
+  title?: string;
+  description?: string;
+  priority?: WorkPriority;
+  dueDate?: string | null;
+  assigneeId?: number | null;
+}
+
+export interface CompleteRequest {
+  value?: number;
+  unit?: string;
+  note?: string;
+  lockoutConfirmed?: boolean;
+  manualCheck?: ManualCheck;
+}
+
+/** HTTP calls of the work feature; the server decides every permission and the opening check. */
+@Injectable({ providedIn: 'root' })
+export class WorkApi {
+  private readonly http = inject(HttpClient);
+  private templatesCache: Promise<WorkTemplate[]> | null = null;
+
+  templates(): Promise<WorkTemplate[]> {
+    this.templatesCache ??= firstValueFrom(this.http.get<WorkTemplate[]>('/api/work-order-templates')).catch((e) => {
+      this.templatesCache = null;
+      throw e;
+    });
+    return this.templatesCache;
+  }
+
+  list(f: ListFilter = {}): Promise<WorkOrderSummary[]> {
+    const params: Record<string, string> = {};
+    if (f.status?.length) params['status'] = f.status.join(',');
+    if (f.engineId) params['engineId'] = String(f.engineId);
+    if (f.siteId) params['siteId'] = String(f.siteId);
+    if (f.assigneeId) params['assigneeId'] = String(f.assigneeId);
+    if (f.mine) params['mine'] = '1';
+    return firstValueFrom(this.http.get<WorkOrderSummary[]>('/api/work-orders', { params }));
+  }
+
+  get(id: number): Promise<WorkOrderDetail> {
+    return firstValueFrom(this.http.get<WorkOrderDetail>(`/api/work-orders/${id}`));
+  }
+
+  create(body: CreateRequest): Promise<WorkOrderDetail> {
+    return firstValueFrom(this.http.post<WorkOrderDetail>('/api/work-orders', body));
+  }
+
+  plan(id: number, body: { assigneeId?: number | null; dueDate?: string | null; priority?: WorkPriority }): Promise<WorkOrderDetail> {
+    return firstValueFrom(this.http.patch<WorkOrderDetail>(`/api/work-orders/${id}`, body));
+  }
+
+  transition(id: number, to: WorkStatus, note?: string): Promise<WorkOrderDetail> {
+    return firstValueFrom(this.http.post<WorkOrderDetail>(`/api/work-orders/${id}/transition`, note ? { to, note } : { to }));
+  }
+
+  completeStep(id: number, stepId: number, body: CompleteRequest): Promise<WorkOrderDetail> {
+    return firstValueFrom(this.http.post<WorkOrderDetail>(`/api/work-orders/${id}/steps/${stepId}/complete`, body));
+  }
+
+  addPart(id: number, body: { kind: string; quantity: number; unit: 'L' | 'gal' | 'pcs'; description?: string }): Promise<WorkOrderDetail> {
+    return firstValueFrom(this.http.post<WorkOrderDetail>(`/api/work-orders/${id}/parts`, body));
+  }
+
+  addAmendment(id: number, text: string): Promise<WorkOrderDetail> {
+    return firstValueFrom(this.http.post<WorkOrderDetail>(`/api/work-orders/${id}/amendments`, { text }));
+  }
+
+  upload(id: number, file: File, stepId: number | null): Promise<unknown> {
+    const form = new FormData();
+    if (stepId) form.append('stepId', String(stepId));
+    form.append('file', file, file.name);
+    return firstValueFrom(this.http.post(`/api/work-orders/${id}/attachments`, form));
+  }
+
+  /** Attachments need the token, so they are fetched as blobs and shown through object URLs. */
+  attachmentBlob(url: string): Promise<Blob> {
+    return firstValueFrom(this.http.get(url, { responseType: 'blob' }));
+  }
+
+  openingCheck(engineId: number, lockoutConfirmed = false): Promise<OpeningCheck> {
+    return firstValueFrom(this.http.get<OpeningCheck>(`/api/engines/${engineId}/opening-check`, { params: { lockoutConfirmed: String(lockoutConfirmed) } }));
+  }
+
+  sites(): Promise<{ id: number; name: string }[]> {
+    return firstValueFrom(this.http.get<{ id: number; name: string }[]>('/api/sites'));
+  }
+
+  engines(): Promise<{ id: number; name: string; siteId: number }[]> {
+    return firstValueFrom(this.http.get<{ id: number; name: string; siteId: number }[]>('/api/engines'));
+  }
+
+  assignees(): Promise<Assignee[]> {
+    return firstValueFrom(this.http.get<Assignee[]>('/api/work-orders/assignees'));
+  }
+}
+
+/** The server's words for a failed call, or a plain fallback. */
+export function errorText(err: unknown): string {
+  if (err instanceof HttpErrorResponse) {
+    if (err.status === 0) return 'The server cannot be reached. Try again.';
+    const e = err.error as { error?: string } | null;
+    if (e && typeof e.error === 'string') return e.error;
+    return `The server answered ${err.status}.`;
+  }
+  return err instanceof Error ? err.message : 'Something went wrong.';
+}

@@ -1,0 +1,186 @@
+import { DOCUMENT } from '@angular/common';
+import { ChangeDetectionStrategy, Component, computed, inject, signal } from '@angular/core';
+import { FormsModule } from '@angular/forms';
+import { MatButtonModule } from '@angular/material/button';
+import { MatFormFieldModule } from '@angular/material/form-field';
+import { MatIconModule } from '@angular/material/icon';
+import { MatProgressBarModule } from '@angular/material/progress-bar';
+import { MatSelectModule } from '@angular/material/select';
+import { MatTableModule } from '@angular/material/table';
+import { RouterLink } from '@angular/router';
+import { AuthService } from '../core/auth.service';
+import { downloadText } from '../engine/readings-csv';
+import { WorkApi, errorText } from './work-api';
+import { workOrdersToCsv } from './work-csv';
+import { OPEN_STATUSES, PRIORITY_TEXT, STATUSES, STATUS_ICON, STATUS_TEXT, formatDate, todayIso, weekStart } from './work-labels';
+import { Assignee, WorkOrderSummary, WorkStatus } from './work-types';
+
+interface WeekGroup {
+  key: string;
+  label: string;
+  overdue: boolean;
+  orders: WorkOrderSummary[];
+}
+
+/** The planner's view of all work: filters, a due-week timeline (one table per week), CSV export. */
+@Component({
+  selector: 'jw-work-list-page',
+  changeDetection: ChangeDetectionStrategy.OnPush,
+  imports: [FormsModule, MatButtonModule, MatFormFieldModule, MatIconModule, MatProgressBarModule, MatSelectModule, MatTableModule, RouterLink],
+  template: `
+    <div class="page">
+      <header class="head">
+        <h1>Work</h1>
+        <span class="spacer"></span>
+        <button mat-stroked-button type="button" (click)="exportCsv()" [disabled]="!orders().length"><mat-icon fontIcon="download" />Export CSV</button>
+        @if (canCreate()) {
+          <a mat-flat-button routerLink="/work/new"><mat-icon fontIcon="add" />New work order</a>
+        }
+      </header>
+
+      <div class="filters">
+        <mat-form-field appearance="outline" subscriptSizing="dynamic">
+          <mat-label>Status</mat-label>
+          <mat-select multiple [ngModel]="statuses()" (ngModelChange)="statuses.set($event); reload()">
+            @for (s of allStatuses; track s) { <mat-option [value]="s">{{ statusText[s] }}</mat-option> }
+          </mat-select>
+        </mat-form-field>
+        <mat-form-field appearance="outline" subscriptSizing="dynamic">
+          <mat-label>Site</mat-label>
+          <mat-select [ngModel]="siteId()" (ngModelChange)="siteId.set($event); reload()">
+            <mat-option [value]="null">All sites</mat-option>
+            @for (s of sites(); track s.id) { <mat-option [value]="s.id">{{ s.name }}</mat-option> }
+          </mat-select>
+        </mat-form-field>
+        <mat-form-field appearance="outline" subscriptSizing="dynamic">
+          <mat-label>Assignee</mat-label>
+          <mat-select [ngModel]="assigneeId()" (ngModelChange)="assigneeId.set($event); reload()">
+            <mat-option [value]="null">Anyone</mat-option>
+            @for (a of assignees(); track a.id) { <mat-option [value]="a.id">{{ a.name }}</mat-option> }
+          </mat-select>
+        </mat-form-field>
+      </div>
+
+      @if (loading()) { <mat-progress-bar mode="indeterminate" /> }
+      @if (error(); as e) { <p class="error" role="alert"><mat-icon fontIcon="error" />{{ e }}</p> }
+      @if (!loading() && !orders().length && !error()) { <p class="empty">No work orders match.</p> }
+
+      @for (g of groups(); track g.key) {
+        <section class="week" [attr.aria-label]="g.label">
+          <h2 [class.overdue]="g.overdue">
+            @if (g.overdue) { <mat-icon fontIcon="schedule" aria-hidden="true" /> }
+            {{ g.label }} <span class="count">· {{ g.orders.length }}</span>
+          </h2>
+          <table mat-table [dataSource]="g.orders" class="orders">
+            <ng-container matColumnDef="due"><th mat-header-cell *matHeaderCellDef>Due</th>
+              <td mat-cell *matCellDef="let o" [class.late]="isLate(o)">{{ fmtDate(o.dueDate) }}@if (isLate(o)) { <span class="tag">overdue</span> }</td></ng-container>
+            <ng-container matColumnDef="status"><th mat-header-cell *matHeaderCellDef>Status</th>
+              <td mat-cell *matCellDef="let o"><span class="status" [attr.data-status]="o.status"><mat-icon [fontIcon]="statusIcon[o.status]" aria-hidden="true" />{{ statusText[o.status] }}</span></td></ng-container>
+            <ng-container matColumnDef="order"><th mat-header-cell *matHeaderCellDef>Work order</th>
+              <td mat-cell *matCellDef="let o"><a [routerLink]="['/work', o.id]">#{{ o.id }} {{ o.title }}</a>
+                @if (o.manualChecks) { <span class="tag manual"><mat-icon fontIcon="back_hand" aria-hidden="true" />manual check</span> }
+                @if (o.alarmIds.length) { <span class="tag">from alarm</span> }</td></ng-container>
+            <ng-container matColumnDef="engine"><th mat-header-cell *matHeaderCellDef>Site · engine</th>
+              <td mat-cell *matCellDef="let o">{{ o.siteName }} · {{ o.engineName }}</td></ng-container>
+            <ng-container matColumnDef="priority"><th mat-header-cell *matHeaderCellDef>Priority</th>
+              <td mat-cell *matCellDef="let o" [class.hi]="o.priority === 'high' || o.priority === 'urgent'">{{ priorityText[o.priority] }}</td></ng-container>
+            <ng-container matColumnDef="assignee"><th mat-header-cell *matHeaderCellDef>Assignee</th>
+              <td mat-cell *matCellDef="let o">{{ o.assigneeName ?? 'not assigned' }}</td></ng-container>
+            <ng-container matColumnDef="progress"><th mat-header-cell *matHeaderCellDef>Steps</th>
+              <td mat-cell *matCellDef="let o" class="jw-num">{{ o.stepsDone }} / {{ o.stepsTotal }}</td></ng-container>
+            <tr mat-header-row *matHeaderRowDef="columns"></tr>
+            <tr mat-row *matRowDef="let row; columns: columns"></tr>
+          </table>
+        </section>
+      }
+    </div>
+  `,
+  styles: `
+    .page { padding: 16px 24px; max-width: 1400px; }
+    .head { display: flex; align-items: center; gap: 8px; flex-wrap: wrap; }
+    .head h1 { font: var(--mat-sys-headline-small); margin: 0; }
+    .spacer { flex: 1; }
+    .filters { display: flex; gap: 12px; flex-wrap: wrap; margin: 16px 0; }
+    .filters mat-form-field { width: 220px; }
+    .week h2 { font: var(--mat-sys-title-medium); margin: 20px 0 6px; display: flex; align-items: center; gap: 6px; }
+    .week h2.overdue { color: var(--jw-warning); }
+    .count { color: var(--jw-muted-text); font-weight: 400; }
+    table.orders { width: 100%; }
+    .status { display: inline-flex; align-items: center; gap: 4px; }
+    .status mat-icon { font-size: 18px; width: 18px; height: 18px; }
+    .tag { display: inline-flex; align-items: center; gap: 2px; margin-left: 6px; padding: 0 6px; border: 1px solid var(--mat-sys-outline-variant); border-radius: 4px; font: var(--mat-sys-label-small); }
+    .tag.manual { color: var(--jw-warning); background: var(--jw-warning-bg); border-color: var(--jw-warning); }
+    .tag.manual mat-icon { font-size: 14px; width: 14px; height: 14px; }
+    .late { color: var(--jw-warning); font-weight: 600; }
+    .hi { font-weight: 700; }
+    .error { color: var(--jw-alarm-high); display: flex; gap: 6px; align-items: center; }
+    .empty { color: var(--jw-muted-text); }
+  `,
+})
+export class WorkListPage {
+  private readonly api = inject(WorkApi);
+  private readonly auth = inject(AuthService);
+  private readonly doc = inject(DOCUMENT);
+
+  protected readonly allStatuses = STATUSES;
+  protected readonly statusText: Record<string, string> = STATUS_TEXT;
+  protected readonly statusIcon: Record<string, string> = STATUS_ICON;
+  protected readonly priorityText: Record<string, string> = PRIORITY_TEXT;
+  protected readonly columns = ['due', 'status', 'order', 'engine', 'priority', 'assignee', 'progress'];
+  protected readonly fmtDate = formatDate;
+
+  protected readonly statuses = signal<WorkStatus[]>([...OPEN_STATUSES]);
+  protected readonly siteId = signal<number | null>(null);
+  protected readonly assigneeId = signal<number | null>(null);
+  protected readonly orders = signal<WorkOrderSummary[]>([]);
+  protected readonly sites = signal<{ id: number; name: string }[]>([]);
+  protected readonly assignees = signal<Assignee[]>([]);
+  protected readonly loading = signal(false);
+  protected readonly error = signal<string | null>(null);
+  protected readonly canCreate = computed(() => this.auth.hasRole('planner', 'admin', 'operator', 'technician'));
+  private readonly today = todayIso();
+
+  /** Grouped by the week the work is due; overdue open work first, undated last. */
+  protected readonly groups = computed<WeekGroup[]>(() => {
+    const map = new Map<string, WeekGroup>();
+    const thisWeek = weekStart(this.today);
+    for (const o of this.orders()) {
+      const key = o.dueDate ? weekStart(o.dueDate) : 'none';
+      let g = map.get(key);
+      if (!g) {
+        const overdue = key !== 'none' && key < thisWeek;
+        const label = key === 'none' ? 'No due date' : key === thisWeek ? `This week (from ${formatDate(key)})` : `${overdue ? 'Overdue · ' : ''}Week of ${formatDate(key)}`;
+        g = { key, label, overdue, orders: [] };
+        map.set(key, g);
+      }
+      g.orders.push(o);
+    }
+    return [...map.values()].sort((a, b) => (a.key === 'none' ? 1 : b.key === 'none' ? -1 : a.key.localeCompare(b.key)));
+  });
+
+  constructor() {
+    void this.reload();
+    this.api.sites().then((s) => this.sites.set(s), () => undefined);
+    this.api.assignees().then((a) => this.assignees.set(a), () => undefined);
+  }
+
+  protected isLate(o: WorkOrderSummary): boolean {
+    return !!o.dueDate && o.dueDate < this.today && OPEN_STATUSES.includes(o.status);
+  }
+
+  protected async reload(): Promise<void> {
+    this.loading.set(true);
+    this.error.set(null);
+    try {
+      this.orders.set(await this.api.list({ status: this.statuses(), siteId: this.siteId() ?? undefined, assigneeId: this.assigneeId() ?? undefined }));
+    } catch (e) {
+      this.error.set(errorText(e));
+    } finally {
+      this.loading.set(false);
+    }
+  }
+
+  protected exportCsv(): void {
+    downloadText(this.doc, `work-orders-${this.today}.csv`, workOrdersToCsv(this.orders()));
+  }
+}

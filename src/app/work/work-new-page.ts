@@ -1,0 +1,155 @@
+import { ChangeDetectionStrategy, Component, computed, effect, inject, input, signal, untracked } from '@angular/core';
+import { FormsModule } from '@angular/forms';
+import { MatButtonModule } from '@angular/material/button';
+import { MatCardModule } from '@angular/material/card';
+import { MatFormFieldModule } from '@angular/material/form-field';
+import { MatIconModule } from '@angular/material/icon';
+import { MatInputModule } from '@angular/material/input';
+import { MatSelectModule } from '@angular/material/select';
+import { Router, RouterLink } from '@angular/router';
+import { AuthService } from '../core/auth.service';
+import { WorkApi, errorText } from './work-api';
+import { KIND_ALIASES, PRIORITY_TEXT } from './work-labels';
+import { Assignee, WorkPriority, WorkTemplate } from './work-types';
+
+/**
+ * Create a work order. Linkable: /work/new?engineId=&alarmId=&kind= pre-fills it (the alarm screens link here);
+ * planners plan it at once, other roles raise a request the planner accepts or declines.
+ */
+@Component({
+  selector: 'jw-work-new-page',
+  changeDetection: ChangeDetectionStrategy.OnPush,
+  imports: [FormsModule, MatButtonModule, MatCardModule, MatFormFieldModule, MatIconModule, MatInputModule, MatSelectModule, RouterLink],
+  template: `
+    <div class="page">
+      <h1>{{ planner() ? 'New work order' : 'Request work' }}</h1>
+      @if (alarmId()) { <p class="from-alarm"><mat-icon fontIcon="link" aria-hidden="true" />From alarm #{{ alarmId() }}: its details are copied into the description and the alarm is linked.</p> }
+      @if (!planner()) { <p class="hint">Your request goes to the planner, who accepts or declines it.</p> }
+      <form class="form" (ngSubmit)="submit()">
+        <mat-form-field appearance="outline">
+          <mat-label>Engine</mat-label>
+          <mat-select name="engine" [(ngModel)]="engine" required>
+            @for (e of engines(); track e.id) { <mat-option [value]="e.id">{{ siteName(e.siteId) }} · {{ e.name }}</mat-option> }
+          </mat-select>
+        </mat-form-field>
+        <mat-form-field appearance="outline">
+          <mat-label>Kind of work</mat-label>
+          <mat-select name="kind" [(ngModel)]="kind" required>
+            @for (t of templates(); track t.kind) { <mat-option [value]="t.kind">{{ t.title }}</mat-option> }
+          </mat-select>
+        </mat-form-field>
+        <mat-form-field appearance="outline">
+          <mat-label>Title (optional)</mat-label>
+          <input matInput name="title" [(ngModel)]="title" maxlength="200" />
+        </mat-form-field>
+        <mat-form-field appearance="outline">
+          <mat-label>Description</mat-label>
+          <textarea matInput name="description" [(ngModel)]="description" rows="3" maxlength="4000"></textarea>
+        </mat-form-field>
+        <mat-form-field appearance="outline">
+          <mat-label>Priority</mat-label>
+          <mat-select name="priority" [(ngModel)]="priority">
+            <mat-option [value]="null">{{ alarmId() ? 'As the alarm' : 'Medium' }}</mat-option>
+            @for (p of priorities; track p) { <mat-option [value]="p">{{ priorityText[p] }}</mat-option> }
+          </mat-select>
+        </mat-form-field>
+        @if (planner()) {
+          <mat-form-field appearance="outline">
+            <mat-label>Due date</mat-label>
+            <input matInput type="date" name="due" [(ngModel)]="dueDate" />
+          </mat-form-field>
+          <mat-form-field appearance="outline">
+            <mat-label>Assign to</mat-label>
+            <mat-select name="assignee" [(ngModel)]="assigneeId">
+              <mat-option [value]="null">Not yet</mat-option>
+              @for (a of assignees(); track a.id) { <mat-option [value]="a.id">{{ a.name }}</mat-option> }
+            </mat-select>
+          </mat-form-field>
+        }
+        @if (error(); as e) { <p class="error" role="alert"><mat-icon fontIcon="error" aria-hidden="true" />{{ e }}</p> }
+        <div class="actions">
+          <a mat-button routerLink="/work">Cancel</a>
+          <button mat-flat-button type="submit" [disabled]="busy() || !engine || !kind">{{ planner() ? 'Create work order' : 'Send request' }}</button>
+        </div>
+      </form>
+    </div>
+  `,
+  styles: `
+    .page { padding: 16px 24px; max-width: 640px; }
+    h1 { font: var(--mat-sys-headline-small); }
+    .form { display: flex; flex-direction: column; gap: 4px; }
+    .actions { display: flex; justify-content: flex-end; gap: 8px; }
+    .from-alarm, .hint { display: flex; gap: 6px; align-items: center; color: var(--jw-muted-text); }
+    .error { color: var(--jw-alarm-high); display: flex; gap: 6px; align-items: center; }
+  `,
+})
+export class WorkNewPage {
+  private readonly api = inject(WorkApi);
+  private readonly auth = inject(AuthService);
+  private readonly router = inject(Router);
+
+  /** Query parameters (component input binding). */
+  readonly engineId = input<string | undefined>();
+  readonly alarmId = input<string | undefined>();
+  readonly kindParam = input<string | undefined>(undefined, { alias: 'kind' });
+
+  protected readonly planner = computed(() => this.auth.hasRole('planner', 'admin'));
+  protected readonly templates = signal<WorkTemplate[]>([]);
+  protected readonly engines = signal<{ id: number; name: string; siteId: number }[]>([]);
+  protected readonly sites = signal<{ id: number; name: string }[]>([]);
+  protected readonly assignees = signal<Assignee[]>([]);
+  protected readonly busy = signal(false);
+  protected readonly error = signal<string | null>(null);
+  protected readonly priorities: WorkPriority[] = ['low', 'medium', 'high', 'urgent'];
+  protected readonly priorityText = PRIORITY_TEXT;
+
+  protected engine: number | null = null;
+  protected kind: string | null = null;
+  protected title = '';
+  protected description = '';
+  protected priority: WorkPriority | null = null;
+  protected dueDate = '';
+  protected assigneeId: number | null = null;
+
+  constructor() {
+    effect(() => {
+      const e = Number(this.engineId());
+      const k = this.kindParam();
+      untracked(() => {
+        if (e > 0) this.engine = e;
+        if (k) this.kind = KIND_ALIASES[k] ?? k;
+      });
+    });
+    this.api.templates().then((t) => this.templates.set(t), (e) => this.error.set(errorText(e)));
+    this.api.engines().then((e) => this.engines.set(e), () => undefined);
+    this.api.sites().then((s) => this.sites.set(s), () => undefined);
+    if (this.planner()) this.api.assignees().then((a) => this.assignees.set(a), () => undefined);
+  }
+
+  protected siteName(id: number): string {
+    return this.sites().find((s) => s.id === id)?.name ?? '';
+  }
+
+  protected async submit(): Promise<void> {
+    if (!this.engine || !this.kind) return;
+    this.busy.set(true);
+    this.error.set(null);
+    try {
+      const alarm = Number(this.alarmId());
+      const o = await this.api.create({
+        engineId: this.engine, kind: this.kind,
+        ...(alarm > 0 ? { alarmId: alarm } : {}),
+        ...(this.title.trim() ? { title: this.title.trim() } : {}),
+        ...(this.description.trim() ? { description: this.description.trim() } : {}),
+        ...(this.priority ? { priority: this.priority } : {}),
+        ...(this.planner() && this.dueDate ? { dueDate: this.dueDate } : {}),
+        ...(this.planner() && this.assigneeId ? { assigneeId: this.assigneeId } : {}),
+      });
+      void this.router.navigate(['/work', o.id]);
+    } catch (e) {
+      this.error.set(errorText(e));
+    } finally {
+      this.busy.set(false);
+    }
+  }
+}

@@ -1,0 +1,280 @@
+import { ChangeDetectionStrategy, Component, computed, effect, inject, input, signal, untracked } from '@angular/core';
+import { HttpErrorResponse } from '@angular/common/http';
+import { FormsModule } from '@angular/forms';
+import { MatButtonModule } from '@angular/material/button';
+import { MatCardModule } from '@angular/material/card';
+import { MatCheckboxModule } from '@angular/material/checkbox';
+import { MatExpansionModule } from '@angular/material/expansion';
+import { MatFormFieldModule } from '@angular/material/form-field';
+import { MatIconModule } from '@angular/material/icon';
+import { MatInputModule } from '@angular/material/input';
+import { MatProgressBarModule } from '@angular/material/progress-bar';
+import { MatSelectModule } from '@angular/material/select';
+import { MatTableModule } from '@angular/material/table';
+import { RouterLink } from '@angular/router';
+import { AuthService } from '../core/auth.service';
+import { PreferencesService } from '../core/preferences.service';
+import { OpeningCheckPanel } from './opening-check-panel';
+import { AttachmentThumb } from './attachment-thumb';
+import { WorkApi, errorText } from './work-api';
+import { CONDITION_TEXT, EVENT_TEXT, PART_TEXT, PRIORITY_TEXT, STATUS_ICON, STATUS_TEXT, STEP_UNIT_TEXT, formatDate, formatDateTime } from './work-labels';
+import { Assignee, GateRefusal, OpeningCheck, OpeningCondition, WorkOrderDetail, WorkStatus, WorkStep } from './work-types';
+
+interface StepDraft {
+  value: number | null;
+  unit: string;
+  note: string;
+  lockout: boolean;
+  manual: boolean;
+  gaugeKpa: number | null;
+  tempC: number | null;
+  minutesSinceStop: number | null;
+  checkedBy: string;
+  reason: string;
+}
+
+/** Units a technician may type a step's value in; the server converts to the step's own unit. */
+const ENTRY_UNITS: Record<string, string[]> = { degC: ['degC', 'degF'], kPa: ['kPa', 'psi', 'bar'], L: ['L', 'gal'] };
+
+/** One work order: plan, live opening check, checklist with gated steps, parts, files, history, sign-off and amendments. */
+@Component({
+  selector: 'jw-work-order-page',
+  changeDetection: ChangeDetectionStrategy.OnPush,
+  imports: [
+    FormsModule, RouterLink, MatButtonModule, MatCardModule, MatCheckboxModule, MatExpansionModule, MatFormFieldModule, MatIconModule,
+    MatInputModule, MatProgressBarModule, MatSelectModule, MatTableModule, OpeningCheckPanel, AttachmentThumb,
+  ],
+  templateUrl: './work-order-page.html',
+  styleUrl: './work-order-page.scss',
+})
+export class WorkOrderPage {
+  private readonly api = inject(WorkApi);
+  protected readonly auth = inject(AuthService);
+  private readonly prefs = inject(PreferencesService);
+
+  /** Route parameter. */
+  readonly id = input.required<string>();
+
+  protected readonly order = signal<WorkOrderDetail | null>(null);
+  protected readonly error = signal<string | null>(null);
+  protected readonly busy = signal(false);
+  protected readonly stepErrors = signal<Record<number, { text: string; conditions: OpeningCondition[] }>>({});
+  protected readonly gate = signal<OpeningCheck | null>(null);
+  protected readonly assignees = signal<Assignee[]>([]);
+  protected readonly drafts: Record<number, StepDraft> = {};
+  protected transitionNote = '';
+  protected amendmentText = '';
+  protected part = { kind: 'filter-blank', quantity: 1 as number | null, unit: 'pcs' as 'L' | 'gal' | 'pcs', description: '' };
+  protected uploadStep: number | null = null;
+
+  protected readonly statusText = STATUS_TEXT;
+  protected readonly statusIcon = STATUS_ICON;
+  protected readonly priorityText = PRIORITY_TEXT;
+  protected readonly partText: Record<string, string | undefined> = PART_TEXT;
+  protected readonly eventText: Record<string, string | undefined> = EVENT_TEXT;
+  protected readonly unitText = STEP_UNIT_TEXT;
+  protected readonly conditionText: Record<string, string | undefined> = CONDITION_TEXT;
+  protected readonly partKinds = Object.keys(PART_TEXT);
+  protected readonly fmtDate = formatDate;
+  protected readonly fmtTime = formatDateTime;
+
+  protected readonly isPlanner = computed(() => this.auth.hasRole('planner', 'admin'));
+  protected readonly isAssignee = computed(() => {
+    const o = this.order();
+    return !!o && this.auth.hasRole('technician') && o.assigneeId === this.auth.user()?.id;
+  });
+  protected readonly working = computed(() => this.order()?.status === 'in-progress' && this.isAssignee());
+  protected readonly editable = computed(() => ['requested', 'planned', 'in-progress'].includes(this.order()?.status ?? ''));
+  protected readonly finished = computed(() => ['closed', 'cancelled'].includes(this.order()?.status ?? ''));
+  protected readonly hasGated = computed(() => (this.order()?.steps ?? []).some((s) => s.gated && !s.doneAt));
+  protected readonly openRequired = computed(() => (this.order()?.steps ?? []).filter((s) => !s.optional && !s.doneAt).length);
+  protected readonly anyLockout = signal(false);
+
+  /** Moves this user may offer now; the server decides again. */
+  protected readonly moves = computed<{ to: WorkStatus; label: string; icon: string; needsNote?: boolean; primary?: boolean }[]>(() => {
+    const o = this.order();
+    if (!o) return [];
+    const out: { to: WorkStatus; label: string; icon: string; needsNote?: boolean; primary?: boolean }[] = [];
+    const planner = this.isPlanner();
+    const tech = this.auth.hasRole('technician') && (!o.assigneeId || o.assigneeId === this.auth.user()?.id);
+    if (o.status === 'requested' && planner) out.push({ to: 'planned', label: 'Accept', icon: 'check', primary: true }, { to: 'cancelled', label: 'Decline', icon: 'close', needsNote: true });
+    if (o.status === 'planned' && tech) out.push({ to: 'in-progress', label: 'Start work', icon: 'play_arrow', primary: true });
+    if (o.status === 'planned' && planner) out.push({ to: 'cancelled', label: 'Cancel', icon: 'block', needsNote: true });
+    if (o.status === 'in-progress' && tech) out.push({ to: 'waiting-sign-off', label: 'Work done: send for sign-off', icon: 'send', primary: true });
+    if (o.status === 'in-progress' && planner) out.push({ to: 'cancelled', label: 'Cancel', icon: 'block', needsNote: true });
+    if (o.status === 'waiting-sign-off' && planner) out.push({ to: 'closed', label: 'Sign off and close', icon: 'verified', primary: true }, { to: 'in-progress', label: 'Send back', icon: 'undo', needsNote: true });
+    return out;
+  });
+
+  constructor() {
+    effect(() => {
+      const id = Number(this.id());
+      untracked(() => void this.load(id));
+    });
+    if (this.auth.hasRole('planner', 'admin')) this.api.assignees().then((a) => this.assignees.set(a), () => undefined);
+  }
+
+  private async load(id: number): Promise<void> {
+    try {
+      this.set(await this.api.get(id));
+    } catch (e) {
+      this.error.set(errorText(e));
+    }
+  }
+
+  private set(o: WorkOrderDetail): void {
+    for (const s of o.steps) {
+      this.drafts[s.id] ??= { value: null, unit: s.unit ?? '', note: '', lockout: false, manual: false, gaugeKpa: null, tempC: null, minutesSinceStop: null, checkedBy: this.auth.user()?.name ?? '', reason: '' };
+      if (s.unit && this.drafts[s.id].value === null) this.drafts[s.id].unit = this.preferredUnit(s.unit);
+    }
+    this.order.set(o);
+    this.error.set(null);
+  }
+
+  private preferredUnit(stepUnit: string): string {
+    const p = this.prefs.preferences();
+    if (stepUnit === 'degC') return p.temperature === 'degF' ? 'degF' : 'degC';
+    if (stepUnit === 'kPa') return p.pressure;
+    if (stepUnit === 'L') return p.volume;
+    return stepUnit;
+  }
+
+  protected entryUnits(s: WorkStep): string[] {
+    return ENTRY_UNITS[s.unit ?? ''] ?? [s.unit ?? ''];
+  }
+
+  protected unitLabel(u: string): string {
+    return ({ degF: '°F', psi: 'psi', bar: 'bar', gal: 'US gal' } as Record<string, string>)[u] ?? this.unitText[u] ?? u;
+  }
+
+  protected lockText(s: WorkStep): string {
+    const g = this.gate();
+    if (!g) return 'Locked until the opening check has been read';
+    if (g.clear) return 'Opening check clear: tick lockout/tagout to unlock';
+    return g.stale ? 'Locked: live data missing or stale (a manual check is possible)' : 'Locked: opening check not clear';
+  }
+
+  protected unlocked(s: WorkStep): boolean {
+    if (!s.gated) return true;
+    const d = this.drafts[s.id];
+    const g = this.gate();
+    if (!d?.lockout) return false;
+    return !!g && (g.clear || (g.stale && d.manual));
+  }
+
+  protected onGate(c: OpeningCheck): void {
+    this.gate.set(c);
+  }
+
+  protected onLockout(): void {
+    this.anyLockout.set(Object.values(this.drafts).some((d) => d.lockout));
+  }
+
+  protected async act(fn: () => Promise<WorkOrderDetail>): Promise<void> {
+    this.busy.set(true);
+    this.error.set(null);
+    try {
+      this.set(await fn());
+    } catch (e) {
+      this.error.set(errorText(e));
+    } finally {
+      this.busy.set(false);
+    }
+  }
+
+  protected move(to: WorkStatus, needsNote?: boolean): void {
+    if (needsNote && !this.transitionNote.trim()) {
+      this.error.set('Write a note saying why, then press the button again.');
+      return;
+    }
+    void this.act(() => this.api.transition(this.order()!.id, to, this.transitionNote.trim() || undefined)).then(() => (this.transitionNote = ''));
+  }
+
+  protected plan(field: 'assigneeId' | 'dueDate' | 'priority', value: unknown): void {
+    void this.act(() => this.api.plan(this.order()!.id, { [field]: value === '' ? null : value }));
+  }
+
+  protected async complete(s: WorkStep): Promise<void> {
+    const d = this.drafts[s.id];
+    const body: Parameters<WorkApi['completeStep']>[2] = {};
+    if (s.input === 'value') {
+      if (d.value === null || d.value === undefined) return this.stepError(s.id, 'Enter the value first.', []);
+      body.value = Number(d.value);
+      body.unit = d.unit;
+    }
+    if (d.note.trim()) body.note = d.note.trim();
+    if (s.gated) {
+      body.lockoutConfirmed = d.lockout;
+      if (d.manual) {
+        body.manualCheck = { gaugeKpa: Number(d.gaugeKpa), tempC: Number(d.tempC), minutesSinceStop: Number(d.minutesSinceStop), checkedBy: d.checkedBy.trim(), reason: d.reason.trim() };
+      }
+    }
+    this.busy.set(true);
+    try {
+      this.set(await this.api.completeStep(this.order()!.id, s.id, body));
+      this.stepError(s.id, null, []);
+    } catch (e) {
+      const refusal = e instanceof HttpErrorResponse && e.status === 409 ? (e.error as GateRefusal) : null;
+      this.stepError(s.id, errorText(e), refusal?.conditions ?? []);
+    } finally {
+      this.busy.set(false);
+    }
+  }
+
+  private stepError(id: number, text: string | null, conditions: OpeningCondition[]): void {
+    const next = { ...this.stepErrors() };
+    if (text) next[id] = { text, conditions };
+    else delete next[id];
+    this.stepErrors.set(next);
+  }
+
+  protected async upload(ev: Event, stepId: number | null): Promise<void> {
+    const el = ev.target as HTMLInputElement;
+    const file = el.files?.[0];
+    el.value = '';
+    if (!file) return;
+    if (file.size > 8 * 1024 * 1024) {
+      this.error.set('The file is larger than 8 MB.');
+      return;
+    }
+    await this.act(async () => {
+      await this.api.upload(this.order()!.id, file, stepId);
+      return this.api.get(this.order()!.id);
+    });
+  }
+
+  protected addPart(): void {
+    const p = this.part;
+    if (!p.quantity || p.quantity <= 0) return;
+    void this.act(() => this.api.addPart(this.order()!.id, { kind: p.kind, quantity: Number(p.quantity), unit: p.unit, ...(p.description.trim() ? { description: p.description.trim() } : {}) })).then(() => (this.part.description = ''));
+  }
+
+  protected partKindChanged(): void {
+    const fluid = this.part.kind === 'coolant' || this.part.kind === 'additive';
+    this.part.unit = fluid ? (this.prefs.preferences().volume === 'gal' ? 'gal' : 'L') : 'pcs';
+  }
+
+  protected addAmendment(): void {
+    if (!this.amendmentText.trim()) return;
+    void this.act(() => this.api.addAmendment(this.order()!.id, this.amendmentText.trim())).then(() => (this.amendmentText = ''));
+  }
+
+  protected stepAttachments(s: WorkStep) {
+    return (this.order()?.attachments ?? []).filter((a) => a.stepId === s.id);
+  }
+
+  protected stepResult(s: WorkStep): string {
+    if (s.resultValue === null) return '';
+    return `${Number(s.resultValue.toFixed(3))} ${this.unitText[s.resultUnit ?? ''] ?? s.resultUnit ?? ''}`;
+  }
+
+  protected historyChange(h: { fromStatus: string | null; toStatus: string | null }): string {
+    const t = (s: string | null) => (s ? (STATUS_TEXT as Record<string, string>)[s] ?? s : '');
+    return h.toStatus ? (h.fromStatus ? `${t(h.fromStatus)} → ${t(h.toStatus)}` : t(h.toStatus)) : '';
+  }
+
+  protected conditionValue(c: OpeningCondition): string {
+    if (c.value === null || typeof c.value === 'boolean') return '';
+    return `${Number(c.value).toFixed(1)} ${c.unit} (limit ${c.limit} ${c.unit})`;
+  }
+}

@@ -1,0 +1,170 @@
+/** Shapes of the work-order API (server/routes/work-orders.ts). Quantities in SI as stored. */
+export type WorkStatus = 'requested' | 'planned' | 'in-progress' | 'waiting-sign-off' | 'closed' | 'cancelled';
+export type WorkPriority = 'low' | 'medium' | 'high' | 'urgent';
+export type StepInput = 'value' | 'photo' | 'confirmation';
+
+export interface WorkCaution {
+  id: string;
+  title: string;
+  text: string;
+}
+
+export interface TemplateStep {
+  key: string;
+  title: string;
+  input: StepInput;
+  unit?: string;
+  gated: boolean;
+  optional?: boolean;
+  detail?: string;
+  caution?: string;
+}
+
+export interface WorkTemplate {
+  kind: string;
+  title: string;
+  steps: TemplateStep[];
+  cautions: WorkCaution[];
+}
+
+export interface WorkOrderSummary {
+  id: number;
+  engineId: number;
+  engineName: string | null;
+  siteId: number | null;
+  siteName: string | null;
+  kind: string;
+  kindTitle: string;
+  title: string;
+  description: string | null;
+  priority: WorkPriority;
+  dueDate: string | null;
+  status: WorkStatus;
+  assigneeId: number | null;
+  assigneeName: string | null;
+  createdByName: string | null;
+  requestedByName: string | null;
+  signedOffByName: string | null;
+  alarmIds: number[];
+  stepsDone: number;
+  stepsTotal: number;
+  manualChecks: number;
+  createdAt: string;
+  updatedAt: string;
+  startedAt: string | null;
+  completedAt: string | null;
+  signedOffAt: string | null;
+  closedAt: string | null;
+}
+
+export interface OpeningCondition {
+  name: string;
+  met: boolean;
+  value: number | boolean | null;
+  limit: number | boolean | null;
+  unit: string;
+  detail?: string;
+}
+
+export interface ManualCheck {
+  gaugeKpa: number;
+  tempC: number;
+  minutesSinceStop: number;
+  checkedBy: string;
+  reason: string;
+}
+
+export interface WorkStep {
+  id: number;
+  position: number;
+  key: string;
+  title: string;
+  detail: string | null;
+  input: StepInput;
+  unit: string | null;
+  optional: boolean;
+  gated: boolean;
+  caution: string | null;
+  resultValue: number | null;
+  resultUnit: string | null;
+  resultText: string | null;
+  lockoutConfirmed: boolean | null;
+  gateSnapshot: { at: string; clear: boolean; stale: boolean; manual: boolean; conditions: OpeningCondition[] } | null;
+  manualCheck: ManualCheck | null;
+  doneAt: string | null;
+  doneByName: string | null;
+}
+
+export interface WorkPart {
+  id: number;
+  kind: string;
+  description: string | null;
+  quantity: number;
+  unit: 'L' | 'pcs';
+  addedByName: string | null;
+  createdAt: string;
+}
+
+export interface WorkAttachment {
+  id: number;
+  stepId: number | null;
+  originalName: string;
+  contentType: string;
+  size: number;
+  uploadedByName: string | null;
+  createdAt: string;
+  url: string;
+}
+
+export interface WorkEvent {
+  id: number;
+  at: string;
+  userName: string | null;
+  event: string;
+  fromStatus: WorkStatus | null;
+  toStatus: WorkStatus | null;
+  note: string | null;
+  details: Record<string, unknown> | null;
+}
+
+export interface WorkAmendment {
+  id: number;
+  text: string;
+  authorName: string | null;
+  createdAt: string;
+}
+
+export interface WorkOrderDetail extends WorkOrderSummary {
+  cautions: WorkCaution[];
+  steps: WorkStep[];
+  parts: WorkPart[];
+  attachments: WorkAttachment[];
+  history: WorkEvent[];
+  amendments: WorkAmendment[];
+}
+
+export interface OpeningCheck {
+  engineId: number;
+  at: string;
+  clear: boolean;
+  conditions: OpeningCondition[];
+  clearAt: number | null;
+  reasons: string[];
+  stale: boolean;
+  settings: { safeOpenTempC: number; maxPressureKpa: number; minStoppedS: number; holdS: number; staleAfterS: number };
+}
+
+/** The 409 body of a gated step refused by the server. */
+export interface GateRefusal {
+  error: string;
+  conditions: OpeningCondition[];
+  clearAt: number | null;
+  reasons: string[];
+  stale: boolean;
+}
+
+export interface Assignee {
+  id: number;
+  name: string;
+  email: string;
+}
