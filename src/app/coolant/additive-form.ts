@@ -1,0 +1,89 @@
+import { ChangeDetectionStrategy, Component, computed, inject, input, linkedSignal } from '@angular/core';
+import { FormsModule } from '@angular/forms';
+import { MatButtonToggleModule } from '@angular/material/button-toggle';
+import { MatFormFieldModule } from '@angular/material/form-field';
+import { MatInputModule } from '@angular/material/input';
+import { AdditiveDecision, CoolantFamily, CoolantInputError, ScaLimits, decideAdditive } from '../../../shared/coolant';
+import { gallonsToLitres, litresToGallons } from '../../../shared/units';
+import { PreferencesService } from '../core/preferences.service';
+import { AdditiveDecisionView } from './additive-decision';
+
+/** Parse a typed number; null for blank, NaN for junk (so the check can name the field). */
+export const parseNumber = (text: string | null | undefined): number | null => {
+  const s = (text ?? '').trim().replace(',', '.');
+  if (s === '') return null;
+  return /^[+-]?(\d+(\.\d*)?|\.\d+)$/.test(s) ? Number(s) : NaN;
+};
+
+/** Additive dose: a strip reading and the system capacity -> the SCA decision, computed here with the shared rules. */
+@Component({
+  selector: 'jw-additive-form',
+  changeDetection: ChangeDetectionStrategy.OnPush,
+  imports: [FormsModule, MatFormFieldModule, MatInputModule, MatButtonToggleModule, AdditiveDecisionView],
+  template: `
+    <div class="row">
+      <mat-button-toggle-group [value]="family()" (change)="family.set($event.value)" aria-label="Coolant family" [disabled]="familyLocked()">
+        <mat-button-toggle value="conventional">Conventional</mat-button-toggle>
+        <mat-button-toggle value="extended-life">Extended-life</mat-button-toggle>
+      </mat-button-toggle-group>
+    </div>
+    <div class="row">
+      <mat-form-field>
+        <mat-label>SCA reading</mat-label>
+        <input matInput inputmode="decimal" name="sca" [ngModel]="scaText()" (ngModelChange)="scaText.set($event)" data-test="sca" />
+        <span matTextSuffix>units/US gal</span>
+        @if (error()?.field === 'scaUnitsPerGal') { <mat-hint class="err" role="alert">{{ error()!.message }}</mat-hint> }
+      </mat-form-field>
+      <mat-form-field>
+        <mat-label>Cooling-system capacity</mat-label>
+        <input matInput inputmode="decimal" name="capacity" [ngModel]="capacityText()" (ngModelChange)="capacityText.set($event)" [readonly]="capacityLocked()" data-test="capacity" />
+        <span matTextSuffix>{{ volumeUnit() === 'gal' ? 'US gal' : 'L' }}</span>
+        @if (error()?.field === 'capacityL') { <mat-hint class="err" role="alert">{{ error()!.message }}</mat-hint> }
+      </mat-form-field>
+    </div>
+    <jw-additive-decision [decision]="decision()" />
+  `,
+  styles: `
+    .row { display: flex; flex-wrap: wrap; gap: 12px; margin-bottom: 8px; }
+    .err { color: var(--jw-alarm-high); }
+  `,
+})
+export class AdditiveForm {
+  private readonly prefs = inject(PreferencesService);
+  /** Given by the engine page: the engine's capacity in litres and family (then fixed). */
+  readonly capacityL = input<number | null>(null);
+  readonly coolantFamily = input<CoolantFamily | null>(null);
+  readonly limits = input<ScaLimits | null>(null);
+  /** A reading typed elsewhere (the record form) drives this form when given. */
+  readonly scaUnitsPerGal = input<number | null | undefined>(undefined);
+
+  protected readonly volumeUnit = this.prefs.volumeUnit;
+  protected readonly familyLocked = computed(() => this.coolantFamily() !== null);
+  protected readonly capacityLocked = computed(() => this.capacityL() !== null);
+  readonly family = linkedSignal<CoolantFamily>(() => this.coolantFamily() ?? 'conventional');
+  readonly scaText = linkedSignal<string>(() => {
+    const v = this.scaUnitsPerGal();
+    return v === null || v === undefined ? '' : String(v);
+  });
+  readonly capacityText = linkedSignal<string>(() => {
+    const c = this.capacityL();
+    if (c === null) return '';
+    const v = this.volumeUnit() === 'gal' ? litresToGallons(c) : c;
+    return String(Math.round(v * 10) / 10);
+  });
+
+  private readonly result = computed<{ decision: AdditiveDecision | null; error: CoolantInputError | null }>(() => {
+    const sca = parseNumber(this.scaText());
+    const cap = parseNumber(this.capacityText());
+    if (cap === null || (sca === null && this.family() === 'conventional')) return { decision: null, error: null };
+    const capacityL = this.capacityL() ?? (this.volumeUnit() === 'gal' ? gallonsToLitres(cap) : cap);
+    try {
+      return { decision: decideAdditive({ coolantFamily: this.family(), scaUnitsPerGal: sca, capacityL, limits: this.limits() ?? undefined }), error: null };
+    } catch (e) {
+      if (e instanceof CoolantInputError) return { decision: null, error: e };
+      throw e;
+    }
+  });
+  readonly decision = computed(() => this.result().decision);
+  readonly error = computed(() => this.result().error);
+}

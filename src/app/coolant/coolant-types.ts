@@ -1,0 +1,87 @@
+import type { AdditiveDecision, FreezeAssessment } from '../../../shared/coolant';
+
+export type TestMethod = 'strip' | 'refractometer' | 'lab';
+
+export interface CoolantDecision {
+  additive: AdditiveDecision | null;
+  freeze: FreezeAssessment | null;
+  notes: string[];
+}
+
+export interface CoolantTest {
+  id: number;
+  engineId: number;
+  testedAt: string;
+  method: TestMethod;
+  scaUnitsPerGal: number | null;
+  glycolPercent: number | null;
+  freezePointC: number | null;
+  ph: number | null;
+  conductivityUsCm: number | null;
+  appearance: string | null;
+  notes: string | null;
+  testedByName: string | null;
+  decision: CoolantDecision | null;
+  source: 'manual' | 'lab-import';
+}
+
+export interface NewCoolantTest {
+  method: TestMethod;
+  testedAt?: string;
+  scaUnitsPerGal: number | null;
+  glycolPercent: number | null;
+  freezePointC: number | null;
+  ph: number | null;
+  conductivityUsCm: number | null;
+  appearance: string | null;
+  notes: string | null;
+}
+
+export interface ImportResult {
+  preview: boolean;
+  accepted: { line: number; engineId: number; testedAt: string; status: string | null; summary: string }[];
+  rejected: { line: number; field: string | null; error: string }[];
+  stored: number;
+}
+
+export interface DueEntry {
+  engineId: number;
+  engineName: string;
+  runHours: number;
+  taskKey: string;
+  title: string;
+  state: 'overdue' | 'due-soon' | 'ok';
+  reason: string;
+  dueAt: string | null;
+  dueAtRunHours: number | null;
+  lastDoneAt: string | null;
+  lastDoneRunHours: number | null;
+  placeholder: boolean;
+  basis: string;
+  workKind: string | null;
+  openWorkOrderId: number | null;
+}
+
+export interface DueSite {
+  siteId: number;
+  siteName: string;
+  timeZone: string;
+  overdue: number;
+  dueSoon: number;
+  entries: DueEntry[];
+}
+
+export interface DueListResponse {
+  now: string;
+  windowDays: number;
+  windowHours: number;
+  sites: DueSite[];
+}
+
+export interface AdditiveProfile {
+  configured: boolean;
+  name: string;
+  liquidUnitsPerLitre: number | null;
+  filterSizes: { label: string; prechargeUnits: number }[];
+  limits: { low: number; high: number };
+}

@@ -1,0 +1,40 @@
+import { HttpClient } from '@angular/common/http';
+import { Injectable, inject } from '@angular/core';
+import { Observable } from 'rxjs';
+import { AdditiveProfile, CoolantTest, DueListResponse, ImportResult, NewCoolantTest } from './coolant-types';
+
+/** HTTP for the coolant screens; SI units both ways. */
+@Injectable({ providedIn: 'root' })
+export class CoolantService {
+  private readonly http = inject(HttpClient);
+
+  tests(engineId: number): Observable<CoolantTest[]> {
+    return this.http.get<CoolantTest[]>(`/api/engines/${engineId}/coolant-tests`);
+  }
+
+  record(engineId: number, test: NewCoolantTest): Observable<CoolantTest> {
+    return this.http.post<CoolantTest>(`/api/engines/${engineId}/coolant-tests`, test);
+  }
+
+  importLab(file: File, opts: { preview: boolean; engineId?: number }): Observable<ImportResult> {
+    const form = new FormData();
+    form.append('file', file, file.name);
+    const params: Record<string, string> = { preview: opts.preview ? '1' : '0' };
+    if (opts.engineId) params['engineId'] = String(opts.engineId);
+    return this.http.post<ImportResult>('/api/coolant-tests/import', form, { params });
+  }
+
+  profile(): Observable<AdditiveProfile> {
+    return this.http.get<AdditiveProfile>('/api/additive-profile');
+  }
+
+  dueList(q: { siteId?: number; windowDays: number }): Observable<DueListResponse> {
+    const params: Record<string, string> = { windowDays: String(q.windowDays) };
+    if (q.siteId) params['siteId'] = String(q.siteId);
+    return this.http.get<DueListResponse>('/api/due-list', { params });
+  }
+
+  createWorkOrder(engineId: number, kind: string, title: string): Observable<{ id: number }> {
+    return this.http.post<{ id: number }>('/api/work-orders', { engineId, kind, title });
+  }
+}

@@ -1,0 +1,144 @@
+import { DatePipe } from '@angular/common';
+import { HttpErrorResponse } from '@angular/common/http';
+import { ChangeDetectionStrategy, Component, computed, inject, signal } from '@angular/core';
+import { toObservable, toSignal } from '@angular/core/rxjs-interop';
+import { MatButtonModule } from '@angular/material/button';
+import { MatButtonToggleModule } from '@angular/material/button-toggle';
+import { MatFormFieldModule } from '@angular/material/form-field';
+import { MatIconModule } from '@angular/material/icon';
+import { MatSelectModule } from '@angular/material/select';
+import { RouterLink } from '@angular/router';
+import { catchError, of, switchMap } from 'rxjs';
+import { AuthService } from '../core/auth.service';
+import { EngineService } from '../engine/engine.service';
+import { CoolantService } from './coolant.service';
+import { DueEntry, DueListResponse } from './coolant-types';
+
+/** The planner's due list: per site, overdue then due soon, with one click to a work order from the task's template. */
+@Component({
+  selector: 'jw-due-list-page',
+  changeDetection: ChangeDetectionStrategy.OnPush,
+  imports: [DatePipe, RouterLink, MatButtonModule, MatButtonToggleModule, MatFormFieldModule, MatIconModule, MatSelectModule],
+  template: `
+    <h1>Service due</h1>
+    <p class="lead">Tasks of each engine's service plan that are overdue or due soon, by run hours or calendar, whichever comes first. Intervals are defaults of common practice until set from the engine maker's schedule.</p>
+    <div class="filters">
+      <mat-form-field>
+        <mat-label>Site</mat-label>
+        <mat-select [value]="siteId()" (selectionChange)="siteId.set($event.value)">
+          <mat-option [value]="0">All sites</mat-option>
+          @for (s of sites(); track s.id) { <mat-option [value]="s.id">{{ s.name }}</mat-option> }
+        </mat-select>
+      </mat-form-field>
+      <mat-button-toggle-group [value]="windowDays()" (change)="windowDays.set($event.value)" aria-label="Due soon means within">
+        <mat-button-toggle [value]="7">7 days</mat-button-toggle>
+        <mat-button-toggle [value]="14">14 days</mat-button-toggle>
+        <mat-button-toggle [value]="30">30 days</mat-button-toggle>
+      </mat-button-toggle-group>
+      <span class="hint">or 50 run hours</span>
+    </div>
+    @if (error()) { <p class="error" role="alert">{{ error() }}</p> }
+    @if (list(); as l) {
+      @for (s of l.sites; track s.siteId) {
+        <section class="site" [attr.aria-label]="s.siteName">
+          <h2>{{ s.siteName }} <span class="counts">{{ s.overdue }} overdue · {{ s.dueSoon }} due soon</span></h2>
+          @if (s.entries.length) {
+            <table class="due">
+              <thead><tr><th>State</th><th>Engine</th><th>Task</th><th>Why</th><th>Last done</th><th></th></tr></thead>
+              <tbody>
+                @for (e of s.entries; track e.engineId + e.taskKey) {
+                  <tr [class.overdue]="e.state === 'overdue'" [class.soon]="e.state === 'due-soon'">
+                    <td class="state"><mat-icon aria-hidden="true" [fontIcon]="e.state === 'overdue' ? 'error_outline' : 'schedule'" />{{ e.state === 'overdue' ? 'Overdue' : 'Due soon' }}</td>
+                    <td><a [routerLink]="['/engines', e.engineId]">{{ e.engineName }}</a><br /><span class="sub">{{ e.runHours.toFixed(1) }} h</span></td>
+                    <td>{{ e.title }}@if (e.placeholder) { <br /><span class="sub">placeholder interval: set the maker's figure</span> }</td>
+                    <td class="reason">{{ e.reason }}</td>
+                    <td>{{ e.lastDoneAt ? (e.lastDoneAt | date: 'mediumDate') : 'never recorded' }}@if (e.lastDoneRunHours !== null) { <br /><span class="sub">at {{ e.lastDoneRunHours.toFixed(0) }} h</span> }</td>
+                    <td class="act">
+                      @if (e.openWorkOrderId) {
+                        <a mat-stroked-button [routerLink]="['/work', e.openWorkOrderId]">Open work order #{{ e.openWorkOrderId }}</a>
+                      } @else if (e.workKind && canCreate()) {
+                        <button mat-flat-button type="button" [disabled]="busy() === key(e)" (click)="create(e)">Create work order</button>
+                      } @else if (!e.workKind) {
+                        <span class="sub">no template for this task</span>
+                      }
+                      @if (created()[key(e)]; as id) { <a [routerLink]="['/work', id]">Work order #{{ id }} created</a> }
+                    </td>
+                  </tr>
+                }
+              </tbody>
+            </table>
+          } @else {
+            <p class="none"><mat-icon aria-hidden="true" fontIcon="check" /> Nothing due at this site.</p>
+          }
+        </section>
+      } @empty {
+        <p class="none">No engines to plan for.</p>
+      }
+    } @else {
+      <p>Loading…</p>
+    }
+  `,
+  styles: `
+    :host { display: block; max-width: 1300px; }
+    h1 { margin: 0 0 4px; font-size: 1.5rem; }
+    .lead, .hint, .sub, .none, .counts { color: var(--jw-muted-text); }
+    .sub { font-size: 0.8rem; }
+    .counts { font-size: 0.9rem; font-weight: normal; margin-left: 8px; }
+    .filters { display: flex; align-items: center; gap: 12px; flex-wrap: wrap; }
+    h2 { font-size: 1.15rem; margin: 16px 0 4px; }
+    .due { width: 100%; border-collapse: collapse; }
+    .due th { text-align: left; font-weight: 600; color: var(--jw-muted-text); font-size: 0.85rem; border-bottom: 1px solid var(--jw-band); padding: 6px; }
+    .due td { border-bottom: 1px solid var(--jw-band); padding: 6px; vertical-align: top; }
+    .state { white-space: nowrap; font-weight: 600; }
+    .state mat-icon { vertical-align: middle; margin-right: 4px; font-size: 20px; height: 20px; width: 20px; }
+    tr.overdue .state { color: var(--jw-alarm-high); }
+    tr.soon .state { color: var(--jw-warning); }
+    .reason { font-size: 0.9rem; max-width: 380px; }
+    .act { white-space: nowrap; }
+    .act a { display: block; margin-top: 4px; }
+    .error { color: var(--jw-alarm-high); }
+  `,
+})
+export class DueListPage {
+  private readonly api = inject(CoolantService);
+  private readonly auth = inject(AuthService);
+  protected readonly sites = toSignal(inject(EngineService).sites().pipe(catchError(() => of([]))), { initialValue: [] });
+  readonly siteId = signal(0);
+  readonly windowDays = signal(14);
+  private readonly reload = signal(0);
+  protected readonly error = signal<string | null>(null);
+  protected readonly busy = signal<string | null>(null);
+  protected readonly created = signal<Record<string, number>>({});
+  protected readonly canCreate = computed(() => this.auth.hasRole('planner', 'admin', 'technician'));
+  protected readonly list = toSignal(
+    toObservable(computed(() => ({ siteId: this.siteId(), windowDays: this.windowDays(), n: this.reload() }))).pipe(
+      switchMap((q) =>
+        this.api.dueList({ siteId: q.siteId || undefined, windowDays: q.windowDays }).pipe(
+          catchError((e) => {
+            this.error.set(e instanceof HttpErrorResponse ? (e.error?.error ?? e.message) : String(e));
+            return of(null as DueListResponse | null);
+          }),
+        ),
+      ),
+    ),
+    { initialValue: null as DueListResponse | null },
+  );
+  protected readonly key = (e: DueEntry) => `${e.engineId}:${e.taskKey}`;
+
+  protected create(e: DueEntry): void {
+    if (!e.workKind) return;
+    this.busy.set(this.key(e));
+    this.error.set(null);
+    this.api.createWorkOrder(e.engineId, e.workKind, `${e.title}: ${e.engineName}`).subscribe({
+      next: (wo) => {
+        this.busy.set(null);
+        this.created.update((c) => ({ ...c, [this.key(e)]: wo.id }));
+        this.reload.update((n) => n + 1);
+      },
+      error: (err) => {
+        this.busy.set(null);
+        this.error.set(`Could not create the work order: ${err instanceof HttpErrorResponse ? (err.error?.error ?? err.message) : String(err)}`);
+      },
+    });
+  }
+}

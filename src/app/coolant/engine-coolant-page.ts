@@ -1,0 +1,182 @@
+import { DatePipe } from '@angular/common';
+import { HttpErrorResponse } from '@angular/common/http';
+import { ChangeDetectionStrategy, Component, computed, inject, input, signal } from '@angular/core';
+import { toObservable, toSignal } from '@angular/core/rxjs-interop';
+import { FormsModule } from '@angular/forms';
+import { MatButtonModule } from '@angular/material/button';
+import { MatCardModule } from '@angular/material/card';
+import { MatFormFieldModule } from '@angular/material/form-field';
+import { MatIconModule } from '@angular/material/icon';
+import { MatInputModule } from '@angular/material/input';
+import { MatSelectModule } from '@angular/material/select';
+import { MatTableModule } from '@angular/material/table';
+import { RouterLink } from '@angular/router';
+import { catchError, of, switchMap } from 'rxjs';
+import { CoolantFamily } from '../../../shared/coolant';
+import { fromCelsius, toCelsius, UNIT_SYMBOL } from '../../../shared/units';
+import { AuthService } from '../core/auth.service';
+import { PreferencesService } from '../core/preferences.service';
+import { EngineService } from '../engine/engine.service';
+import { Engine } from '../fleet/fleet-types';
+import { AdditiveDecisionView } from './additive-decision';
+import { AdditiveForm, parseNumber } from './additive-form';
+import { CoolantCautions } from './coolant-cautions';
+import { CoolantHistoryChart, HistoryPoint } from './coolant-history-chart';
+import { CoolantService } from './coolant.service';
+import { AdditiveProfile, CoolantTest, ImportResult, NewCoolantTest, TestMethod } from './coolant-types';
+
+/** Glycol 40 to 60 % by volume: common practice for engine coolant (the coolant maker's figure first). */
+const GLYCOL_BAND = { low: 40, high: 60, source: 'common practice' };
+/** pH 8.0 to 11.0: common practice for conventional coolant, from memory (not a published figure); the maker's figure first. */
+const PH_BAND = { low: 8, high: 11, source: 'common practice, from memory; the coolant maker’s figure first' };
+
+const errorText = (e: unknown): string => {
+  if (e instanceof HttpErrorResponse) return e.error?.error ?? `${e.status} ${e.statusText}`;
+  return String(e);
+};
+
+/** One engine's coolant: test history with charts, a form to record a test (decision before and after saving), lab CSV import. */
+@Component({
+  selector: 'jw-engine-coolant-page',
+  changeDetection: ChangeDetectionStrategy.OnPush,
+  imports: [
+    DatePipe, FormsModule, RouterLink, MatButtonModule, MatCardModule, MatFormFieldModule, MatIconModule, MatInputModule, MatSelectModule, MatTableModule,
+    AdditiveForm, AdditiveDecisionView, CoolantCautions, CoolantHistoryChart,
+  ],
+  templateUrl: './engine-coolant-page.html',
+  styleUrl: './engine-coolant-page.scss',
+})
+export class EngineCoolantPage {
+  private readonly api = inject(CoolantService);
+  private readonly engines = inject(EngineService);
+  private readonly prefs = inject(PreferencesService);
+  private readonly auth = inject(AuthService);
+  /** Route parameter (component input binding). */
+  readonly id = input.required<string>();
+  protected readonly engineId = computed(() => Number(this.id()));
+  protected readonly canRecord = computed(() => this.auth.hasRole('technician', 'planner', 'admin'));
+  protected readonly tUnit = computed(() => UNIT_SYMBOL[this.prefs.temperatureUnit()]);
+
+  private readonly reload = signal(0);
+  protected readonly engine = toSignal(toObservable(this.engineId).pipe(switchMap((id) => this.engines.engine(id).pipe(catchError(() => of(null))))));
+  protected readonly profile = toSignal(this.api.profile().pipe(catchError(() => of(null))), { initialValue: null as AdditiveProfile | null });
+  protected readonly tests = toSignal(
+    toObservable(computed(() => ({ id: this.engineId(), n: this.reload() }))).pipe(switchMap(({ id }) => this.api.tests(id).pipe(catchError(() => of([] as CoolantTest[]))))),
+    { initialValue: [] as CoolantTest[] },
+  );
+  protected readonly family = computed(() => (this.engine()?.coolantFamily === 'extended-life' ? 'extended-life' : 'conventional') as CoolantFamily);
+  protected readonly columns = ['testedAt', 'method', 'sca', 'glycol', 'freeze', 'ph', 'ec', 'decision', 'by'];
+
+  private series(pick: (t: CoolantTest) => number | null): HistoryPoint[] {
+    return this.tests()
+      .filter((t) => pick(t) !== null)
+      .map((t) => ({ t: Date.parse(t.testedAt), v: pick(t)! }))
+      .sort((a, b) => a.t - b.t);
+  }
+  protected readonly scaSeries = computed(() => this.series((t) => t.scaUnitsPerGal));
+  protected readonly glycolSeries = computed(() => this.series((t) => t.glycolPercent));
+  protected readonly freezeSeries = computed(() => this.series((t) => (t.freezePointC === null ? null : fromCelsius(t.freezePointC, this.prefs.temperatureUnit()))));
+  protected readonly phSeries = computed(() => this.series((t) => t.ph));
+  protected readonly ecSeries = computed(() => this.series((t) => t.conductivityUsCm));
+  protected readonly scaBand = computed(() => {
+    const l = this.profile()?.limits ?? { low: 1.2, high: 3.0 };
+    return { ...l, source: 'common practice' };
+  });
+  protected readonly glycolBand = GLYCOL_BAND;
+  protected readonly phBand = PH_BAND;
+  protected readonly temp = (c: number | null) => (c === null ? '—' : `${fromCelsius(c, this.prefs.temperatureUnit()).toFixed(1)} ${this.tUnit()}`);
+
+  // record form
+  readonly method = signal<TestMethod>('strip');
+  readonly scaText = signal('');
+  readonly glycolText = signal('');
+  readonly freezeText = signal('');
+  readonly phText = signal('');
+  readonly ecText = signal('');
+  readonly appearance = signal('');
+  readonly notes = signal('');
+  protected readonly scaValue = computed(() => {
+    const v = parseNumber(this.scaText());
+    return v === null || Number.isNaN(v) ? null : v;
+  });
+  protected readonly saving = signal(false);
+  protected readonly saveError = signal<string | null>(null);
+  protected readonly saved = signal<CoolantTest | null>(null);
+
+  protected save(): void {
+    const nums = { scaUnitsPerGal: this.scaText(), glycolPercent: this.glycolText(), freezePointC: this.freezeText(), ph: this.phText(), conductivityUsCm: this.ecText() };
+    const parsed: Record<string, number | null> = {};
+    for (const [k, text] of Object.entries(nums)) {
+      const v = parseNumber(text);
+      if (v !== null && Number.isNaN(v)) {
+        this.saveError.set(`${k}: type a number (use a point for decimals)`);
+        return;
+      }
+      parsed[k] = v;
+    }
+    if (Object.values(parsed).every((v) => v === null)) {
+      this.saveError.set('Enter at least one measured value.');
+      return;
+    }
+    const body: NewCoolantTest = {
+      method: this.method(),
+      scaUnitsPerGal: parsed['scaUnitsPerGal'], glycolPercent: parsed['glycolPercent'],
+      freezePointC: parsed['freezePointC'] === null ? null : toCelsius(parsed['freezePointC'], this.prefs.temperatureUnit()),
+      ph: parsed['ph'], conductivityUsCm: parsed['conductivityUsCm'],
+      appearance: this.appearance().trim() || null, notes: this.notes().trim() || null,
+    };
+    this.saving.set(true);
+    this.saveError.set(null);
+    this.api.record(this.engineId(), body).subscribe({
+      next: (t) => {
+        this.saving.set(false);
+        this.saved.set(t);
+        for (const s of [this.scaText, this.glycolText, this.freezeText, this.phText, this.ecText, this.appearance, this.notes]) s.set('');
+        this.reload.update((n) => n + 1);
+      },
+      error: (e) => {
+        this.saving.set(false);
+        this.saveError.set(errorText(e));
+      },
+    });
+  }
+
+  // lab import
+  protected readonly file = signal<File | null>(null);
+  protected readonly importResult = signal<ImportResult | null>(null);
+  protected readonly importError = signal<string | null>(null);
+  protected readonly importing = signal(false);
+
+  protected pick(ev: Event): void {
+    const f = (ev.target as HTMLInputElement).files?.[0] ?? null;
+    this.file.set(f);
+    this.importResult.set(null);
+    this.importError.set(null);
+  }
+
+  protected upload(preview: boolean): void {
+    const f = this.file();
+    if (!f) return;
+    this.importing.set(true);
+    this.importError.set(null);
+    this.api.importLab(f, { preview, engineId: this.engineId() }).subscribe({
+      next: (r) => {
+        this.importing.set(false);
+        this.importResult.set(r);
+        if (!preview) this.reload.update((n) => n + 1);
+      },
+      error: (e) => {
+        this.importing.set(false);
+        this.importError.set(errorText(e));
+      },
+    });
+  }
+
+  protected statusText(t: CoolantTest): string {
+    const s = t.decision?.additive?.status;
+    if (!s) return t.decision?.notes[0] ?? '—';
+    const f = t.decision!.additive!.filter;
+    const text = { low: 'Low', 'in-range': 'In range', high: 'High', 'not-applicable': 'No strip decision' }[s];
+    return f ? `${text} · ${f} filter` : text;
+  }
+}
