@@ -17,7 +17,7 @@ const SECTIONS = [
   template: `
     <div class="page">
       <h1>Administration</h1>
-      <nav mat-tab-nav-bar [tabPanel]="panel" aria-label="Administration sections">
+      <nav mat-tab-nav-bar mat-stretch-tabs="false" mat-align-tabs="start" [tabPanel]="panel" aria-label="Administration sections">
         @for (s of sections; track s.path) {
           <a mat-tab-link [routerLink]="s.path" routerLinkActive #rla="routerLinkActive" [active]="rla.isActive">{{ s.label }}</a>
         }

@@ -97,10 +97,9 @@ const lim = ENGINE_LIMITS_SI;
           <mat-error>{{ err('runHours', 'h') }}</mat-error>
         </mat-form-field>
         <mat-form-field>
-          <mat-label>Safe to open below</mat-label>
+          <mat-label>Coolant safe to open below</mat-label>
           <input matInput type="number" formControlName="safeOpenTempC" step="any" />
           <span matTextSuffix>{{ unit('safeOpenTempC') }}</span>
-          <mat-hint>Coolant temperature under which the system may be opened</mat-hint>
           <mat-error>{{ err('safeOpenTempC', unit('safeOpenTempC')) }}</mat-error>
         </mat-form-field>
         <div class="heater">

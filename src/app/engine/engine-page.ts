@@ -85,6 +85,10 @@ export class EnginePage {
   protected readonly stateIcon = computed(() => STATE_ICON[this.state()]);
   protected readonly dutyText = computed(() => DUTY_TEXT[this.engine()?.duty ?? ''] ?? this.engine()?.duty ?? '');
   protected readonly familyText = computed(() => FAMILY_TEXT[this.engine()?.coolantFamily ?? ''] ?? this.engine()?.coolantFamily ?? '');
+  /** Only what the trend's bands need, so live values do not redraw the charts. */
+  protected readonly bandEngine = computed(() => ({ heaterSetpointC: this.engine()?.heaterSetpointC ?? null }), {
+    equal: (a, b) => a.heaterSetpointC === b.heaterSetpointC,
+  });
   protected readonly lastSeen = computed(() => toMillis(this.engine()?.lastSeenAt));
 
   // --- trend ---
@@ -120,7 +124,7 @@ export class EnginePage {
         this.loadError.set('There is no engine with this address.');
         return;
       }
-      const sub = this.load(id);
+      const sub = untracked(() => this.load(id));
       onCleanup(() => sub.unsubscribe());
     });
 
@@ -180,7 +184,9 @@ export class EnginePage {
 
   private load(id: number): Subscription {
     this.loadError.set(null);
-    const sub = forkJoin([this.api.engine(id), this.api.sites().pipe(catchError(() => of([] as Site[])))]).subscribe({
+    // One parent for all three: the HTTP part completes, the live part must not end with it.
+    const sub = new Subscription();
+    sub.add(forkJoin([this.api.engine(id), this.api.sites().pipe(catchError(() => of([] as Site[])))]).subscribe({
       next: ([engine, sites]) => {
         this.engine.set({ ...engine, latest: liveValues(engine.latest ?? {}) });
         this.site.set(sites.find((s) => s.id === engine.siteId) ?? null);
@@ -188,7 +194,7 @@ export class EnginePage {
       },
       error: (err: { status?: number }) =>
         this.loadError.set(err?.status === 404 ? 'There is no engine with this address.' : 'The engine could not be loaded. Reload the page to try again.'),
-    });
+    }));
     const unwatch = this.live.watch({ engineIds: [id] });
     sub.add(unwatch);
     sub.add(this.live.readingsFor(id).subscribe((msg) => this.onLive(liveValues(msg.values))));
@@ -218,12 +224,13 @@ export class EnginePage {
   }
 
   private onLive(values: ChannelValues): void {
-    this.engine.update((e) => (e ? { ...e, latest: { ...e.latest, ...values } } : e));
     const rows: RecentReading[] = [];
+    let newest: number | null = null;
     for (const [key, v] of Object.entries(values) as [ChannelKey, NonNullable<ChannelValues[ChannelKey]>][]) {
       const t = toMillis(v.ts);
       if (t === null) continue;
       rows.push({ t, channel: key, value: v.value, quality: v.quality });
+      if (newest === null || t > newest) newest = t;
       if (v.quality === 0 && this.following()) {
         const list = this.pending.get(key) ?? [];
         list.push({ t, value: v.value });
@@ -231,6 +238,7 @@ export class EnginePage {
         this.pending.set(key, list);
       }
     }
+    this.engine.update((e) => (e ? { ...e, latest: { ...e.latest, ...values }, lastSeenAt: newest ?? e.lastSeenAt } : e));
     if (rows.length) this.recent.update((list) => [...rows.sort((a, b) => b.t - a.t), ...list].slice(0, RECENT_MAX));
   }
 

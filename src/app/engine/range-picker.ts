@@ -1,5 +1,5 @@
 import { ChangeDetectionStrategy, Component, computed, inject, input, output, signal } from '@angular/core';
-import { FormsModule } from '@angular/forms';
+import { FormControl, FormGroup, ReactiveFormsModule } from '@angular/forms';
 import { MatButtonModule } from '@angular/material/button';
 import { MatButtonToggleModule } from '@angular/material/button-toggle';
 import { MatFormFieldModule } from '@angular/material/form-field';
@@ -12,7 +12,7 @@ const PRESETS: RangePreset[] = ['1h', '24h', '7d', '30d', 'custom'];
 @Component({
   selector: 'jw-range-picker',
   changeDetection: ChangeDetectionStrategy.OnPush,
-  imports: [FormsModule, MatButtonToggleModule, MatFormFieldModule, MatInputModule, MatButtonModule],
+  imports: [ReactiveFormsModule, MatButtonToggleModule, MatFormFieldModule, MatInputModule, MatButtonModule],
   template: `
     <mat-button-toggle-group class="presets" hideSingleSelectionIndicator [value]="shownPreset()" (change)="choose($event.value)" aria-label="Time range">
       @for (p of presets; track p) {
@@ -20,14 +20,14 @@ const PRESETS: RangePreset[] = ['1h', '24h', '7d', '30d', 'custom'];
       }
     </mat-button-toggle-group>
     @if (shownPreset() === 'custom') {
-      <form class="custom" (ngSubmit)="applyCustom()">
+      <form class="custom" [formGroup]="custom" (ngSubmit)="applyCustom()">
         <mat-form-field subscriptSizing="dynamic">
           <mat-label>From</mat-label>
-          <input matInput type="datetime-local" name="from" [ngModel]="fromText()" (ngModelChange)="fromText.set($event)" required />
+          <input matInput type="datetime-local" formControlName="from" required />
         </mat-form-field>
         <mat-form-field subscriptSizing="dynamic">
           <mat-label>To</mat-label>
-          <input matInput type="datetime-local" name="to" [ngModel]="toText()" (ngModelChange)="toText.set($event)" required />
+          <input matInput type="datetime-local" formControlName="to" required />
         </mat-form-field>
         <button mat-stroked-button type="submit">Show</button>
         @if (customError(); as e) {
@@ -57,8 +57,7 @@ export class RangePicker {
 
   private readonly editingCustom = signal(false);
   protected readonly shownPreset = computed<RangePreset | null>(() => (this.editingCustom() ? 'custom' : (this.value()?.preset ?? null)));
-  protected readonly fromText = signal('');
-  protected readonly toText = signal('');
+  protected readonly custom = new FormGroup({ from: new FormControl('', { nonNullable: true }), to: new FormControl('', { nonNullable: true }) });
   protected readonly customError = signal<string | null>(null);
 
   protected choose(preset: RangePreset): void {
@@ -67,8 +66,7 @@ export class RangePicker {
       // Start from the window on screen, so a small change is a small edit.
       const v = this.value();
       const now = this.now();
-      this.fromText.set(toLocalInput(v?.from ?? now - 24 * 3600_000));
-      this.toText.set(toLocalInput(v?.to ?? now));
+      this.custom.setValue({ from: toLocalInput(v?.from ?? now - 24 * 3600_000), to: toLocalInput(v?.to ?? now) });
       this.editingCustom.set(true);
       return;
     }
@@ -77,8 +75,8 @@ export class RangePicker {
   }
 
   protected applyCustom(): void {
-    const from = fromLocalInput(this.fromText());
-    const to = fromLocalInput(this.toText());
+    const from = fromLocalInput(this.custom.controls.from.value);
+    const to = fromLocalInput(this.custom.controls.to.value);
     if (from === null || to === null) {
       this.customError.set('Enter both a start and an end.');
       return;

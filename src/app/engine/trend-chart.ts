@@ -3,9 +3,8 @@ import {
   ApexAnnotations, ApexAxisChartSeries, ApexChart, ApexFill, ApexStroke, ApexTooltip, ApexXAxis, ApexYAxis, ChartComponent, XAxisAnnotations, YAxisAnnotations,
 } from 'ng-apexcharts';
 import { CHANNELS, ChannelKey } from '../../../shared/channels';
-import { NormalBand, normalBand } from '../../../shared/normal-bands';
+import { BandEngine, NormalBand, normalBand } from '../../../shared/normal-bands';
 import { PreferencesService } from '../core/preferences.service';
-import { Engine } from '../fleet/fleet-types';
 import { convertStored, quantityOf } from '../ui/unit-format';
 import { Bucket, RunChange, channelTitle, toChannelSeries } from './trend-series';
 
@@ -56,8 +55,8 @@ const INK = { light: { line: '#3b4247', range: '#8d969c', band: '#7d878e', mark:
       <span class="swatch line"></span> mean per step
       <span class="swatch range"></span> lowest to highest per step
       <span class="swatch band"></span> normal band
-      <span class="mark start"></span> started
-      <span class="mark stop"></span> stopped
+      <span class="mark start"></span> ▲ started
+      <span class="mark stop"></span> ▼ stopped
     </p>
   `,
   styles: `
@@ -79,7 +78,8 @@ export class TrendChart {
   private readonly prefs = inject(PreferencesService);
   private readonly host = inject<ElementRef<HTMLElement>>(ElementRef);
 
-  readonly engine = input<Engine | null>(null);
+  /** What the normal bands depend on (the heater); keep it stable, a change redraws the charts. */
+  readonly engine = input<BandEngine | null>(null);
   readonly channels = input.required<ChannelKey[]>();
   /** Buckets per channel in stored units. */
   readonly data = input.required<ReadonlyMap<ChannelKey, readonly Bucket[]>>();
@@ -129,7 +129,7 @@ export class TrendChart {
     const win = this.window();
     const changes = this.runChanges();
     const ink = this.ink();
-    return this.channels().map((channel) => {
+    return this.channels().map((channel, index) => {
       const quantity = quantityOf(channel);
       const unit = toChannelSeries(channel, [], prefs).unit;
       const decimals = DECIMALS[unit] ?? 1;
@@ -183,12 +183,19 @@ export class TrendChart {
               x: c.t,
               borderColor: ink.mark,
               strokeDashArray: c.kind === 'stop' ? 4 : 0,
-              label: {
-                text: c.kind === 'start' ? 'Started' : 'Stopped',
-                orientation: 'horizontal',
-                borderWidth: 0,
-                style: { background: 'transparent', color: ink.mark, fontSize: '11px' },
-              },
+              // Words only above the top chart, starts and stops on two lines, so close pairs stay readable.
+              label:
+                index === 0
+                  ? {
+                      text: c.kind === 'start' ? '▲ started' : '▼ stopped',
+                      orientation: 'horizontal',
+                      position: 'top',
+                      textAnchor: c.kind === 'start' ? 'end' : 'start',
+                      offsetY: c.kind === 'start' ? -2 : 12,
+                      borderWidth: 0,
+                      style: { background: 'transparent', color: ink.mark, fontSize: '11px' },
+                    }
+                  : { text: '' },
             })) as XAxisAnnotations[],
         },
       };
@@ -225,7 +232,7 @@ export class TrendChart {
 }
 
 /** The bands a channel is judged by: while running, and while stopped when the engine has a band for that. */
-function bandAnnotations(channel: ChannelKey, engine: Engine | null): { band: NormalBand; text: string }[] {
+function bandAnnotations(channel: ChannelKey, engine: BandEngine | null): { band: NormalBand; text: string }[] {
   const running = normalBand(channel, 'running', engine ?? {});
   const stopped = normalBand(channel, 'stopped', engine ?? {});
   if (running && stopped && running.low === stopped.low && running.high === stopped.high) return [{ band: running, text: 'normal band' }];
