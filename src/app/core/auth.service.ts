@@ -1,5 +1,5 @@
 import { HttpBackend, HttpClient, HttpErrorResponse } from '@angular/common/http';
-import { Injectable, computed, inject, signal } from '@angular/core';
+import { Injectable, computed, inject, signal, untracked } from '@angular/core';
 import { Router } from '@angular/router';
 import { firstValueFrom } from 'rxjs';
 import { LoginResponse, Role, User } from './user';
@@ -85,8 +85,10 @@ export class AuthService {
   /** The server refused our token: sign out and say why. */
   expire(): void {
     if (!this.tokenSignal()) return;
-    const url = this.router.url;
-    this.signOut('Your session has ended. Please sign in again.', url && !url.startsWith('/sign-in') ? url : null);
+    // During a navigation (e.g. the first one after a reload) the place the user was going is the one to return to.
+    const nav = untracked(this.router.currentNavigation);
+    const url = nav ? this.router.serializeUrl(nav.finalUrl ?? nav.extractedUrl) : this.router.url;
+    this.signOut('Your session has ended. Please sign in again.', url && url !== '/' && !url.startsWith('/sign-in') ? url : null);
   }
 
   clearNotice(): void {
