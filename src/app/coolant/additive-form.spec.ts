@@ -30,7 +30,7 @@ describe('AdditiveForm', () => {
     expect(v.filter).toBe('Charged filter');
     expect(v.dose).toBe('2.50 L (5.3 US pt)');
     expect(v.el.querySelector('[data-test="reasons"]')?.textContent).toContain('below 1.20 units/US gal');
-    expect(v.el.textContent).toContain('Wear gloves');
+    expect(v.el.textContent).toContain('wear gloves and eye protection');
   });
 
   it.each([
