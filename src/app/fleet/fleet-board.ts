@@ -34,7 +34,7 @@ export class FleetBoard {
 
   protected readonly loading = this.fleet.loading;
   protected readonly error = this.fleet.error;
-  protected readonly sites = this.fleet.sites;
+  protected readonly sites = computed(() => [...this.fleet.sites()].sort((a, b) => byName(a.name, b.name)));
   protected readonly connection = this.live.connection;
   protected readonly connectionText = computed(() => CONNECTION_TEXT[this.connection()]);
 
@@ -57,7 +57,7 @@ export class FleetBoard {
   });
 
   protected readonly groups = computed<SiteGroup[]>(() => {
-    const sites = this.fleet.sites();
+    const sites = this.sites();
     const siteIds = new Set(this.siteFilter());
     const state = this.stateFilter();
     const states = this.states();
@@ -95,6 +95,9 @@ export class FleetBoard {
   }
 }
 
+/** "Unit 2" before "Unit 10". */
+const byName = (a: string, b: string) => a.localeCompare(b, undefined, { numeric: true });
+
 function sortByName(engines: Engine[]): Engine[] {
-  return engines.sort((a, b) => a.name.localeCompare(b.name, undefined, { numeric: true }));
+  return engines.sort((a, b) => byName(a.name, b.name));
 }
