@@ -29,7 +29,8 @@ export class WorkOrder extends Model<InferAttributes<WorkOrder>, InferCreationAt
 }
 
 export function initWorkOrder(sequelize: Sequelize): typeof WorkOrder {
-  const date = { type: DataTypes.DATE, allowNull: true };
+  // a fresh object per attribute: Sequelize writes the column name into it
+  const date = () => ({ type: DataTypes.DATE, allowNull: true });
   return WorkOrder.init(
     {
       id: { type: DataTypes.INTEGER, primaryKey: true, autoIncrement: true },
@@ -43,11 +44,11 @@ export function initWorkOrder(sequelize: Sequelize): typeof WorkOrder {
       status: { type: DataTypes.STRING(20), allowNull: false },
       createdBy: { type: DataTypes.INTEGER, allowNull: false },
       requestedBy: { type: DataTypes.INTEGER, allowNull: true },
-      startedAt: date,
-      completedAt: date,
+      startedAt: date(),
+      completedAt: date(),
       signedOffBy: { type: DataTypes.INTEGER, allowNull: true },
-      signedOffAt: date,
-      closedAt: date,
+      signedOffAt: date(),
+      closedAt: date(),
       createdAt: DataTypes.DATE,
       updatedAt: DataTypes.DATE,
     },

@@ -117,7 +117,7 @@ describe('creation and transitions by role', () => {
     await request(t.app).post(`/api/work-orders/${id}/transition`).set(as('technician')).send({ to: 'planned' }).expect(403);
     await request(t.app).post(`/api/work-orders/${id}/transition`).set(as('planner')).send({ to: 'in-progress' }).expect(409);
     const res = await request(t.app).post(`/api/work-orders/${id}/transition`).set(as('planner')).send({ to: 'planned' }).expect(200);
-    expect(res.body.status).toBe('planned');
+    expect(res.body).toMatchObject({ status: 'planned', startedAt: null, completedAt: null, signedOffAt: null, closedAt: null });
   });
   it('assigning and scheduling are the planner\'s', async () => {
     await request(t.app).patch(`/api/work-orders/${id}`).set(as('technician')).send({ assigneeId: t.userIds.technician }).expect(403);
@@ -344,6 +344,9 @@ describe('a filter change from start to sign-off', () => {
     await request(t.app).post(`${base}/transition`).set(as('technician')).send({ to: 'closed' }).expect(403);
     const closed = await request(t.app).post(`${base}/transition`).set(as('planner')).send({ to: 'closed', note: 'Checked the record' }).expect(200);
     expect(closed.body).toMatchObject({ status: 'closed', signedOffByName: 'Test planner' });
+    for (const k of ['startedAt', 'completedAt', 'signedOffAt', 'closedAt']) expect(typeof closed.body[k]).toBe('string');
+    expect(Date.parse(closed.body.signedOffAt)).toBeGreaterThanOrEqual(Date.parse(closed.body.completedAt));
+    expect(Date.parse(closed.body.completedAt)).toBeGreaterThan(Date.parse(closed.body.startedAt));
     expect((await t.ctx.models.AuditEntry.count({ where: { action: 'work-order-signed-off', entityId: order.id } }))).toBe(1);
 
     // frozen: no edits, no parts, no steps, no files, no further transitions; amendments are appended

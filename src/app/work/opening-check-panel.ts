@@ -65,7 +65,8 @@ const POLL_MS = 5000;
     .word { font: var(--mat-sys-title-medium); font-weight: 700; }
     .sub { color: var(--jw-muted-text); }
     .live { display: flex; gap: 32px; flex-wrap: wrap; margin: 10px 0; }
-    .label { color: var(--jw-muted-text); }
+    .label { color: var(--jw-muted-text); margin-right: 6px; }
+    .lim { margin-left: 6px; }
     .big { font: var(--mat-sys-headline-small); font-weight: 600; }
     .lim { color: var(--jw-muted-text); font: var(--mat-sys-body-small); }
     .conditions { list-style: none; padding: 0; margin: 0; display: grid; gap: 4px; }

@@ -1,4 +1,4 @@
-import { ChangeDetectionStrategy, Component, effect, inject, input, signal, untracked } from '@angular/core';
+import { ChangeDetectionStrategy, Component, ViewEncapsulation, effect, inject, input, signal, untracked } from '@angular/core';
 import { MatButtonModule } from '@angular/material/button';
 import { MatIconModule } from '@angular/material/icon';
 import { RouterLink } from '@angular/router';
@@ -13,6 +13,7 @@ import { WorkOrderDetail, WorkStep } from './work-types';
   imports: [MatButtonModule, MatIconModule, RouterLink],
   templateUrl: './work-record-page.html',
   styleUrl: './work-record-page.scss',
+  encapsulation: ViewEncapsulation.None,
 })
 export class WorkRecordPage {
   private readonly api = inject(WorkApi);
