@@ -125,6 +125,7 @@ const lim = ENGINE_LIMITS_SI;
   styles: `
     .grid { display: grid; grid-template-columns: repeat(auto-fill, minmax(220px, 1fr)); gap: 0 16px; }
     .wide { grid-column: 1 / -1; }
+    .mat-mdc-form-field-text-suffix { white-space: nowrap; }
     .heater { display: flex; flex-direction: column; gap: 4px; }
     .form-error { grid-column: 1 / -1; color: var(--jw-alarm-high); }
   `,

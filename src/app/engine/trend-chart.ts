@@ -60,7 +60,8 @@ const INK = { light: { line: '#3b4247', range: '#8d969c', band: '#7d878e', mark:
     </p>
   `,
   styles: `
-    :host { display: block; min-width: 0; }
+    // Clip: a chart being rebuilt or a label at the right edge must never widen the page.
+    :host { display: block; min-width: 0; overflow: hidden; }
     .channel { margin-bottom: 4px; }
     .title { margin: 8px 0 0; font-size: 14px; font-weight: 500; }
     .unit { color: var(--jw-muted-text); font-weight: 400; }
@@ -122,6 +123,21 @@ export class TrendChart {
     return out;
   });
 
+  /** Lowest and highest value drawn per channel, in display units. */
+  private readonly spans = computed(() => {
+    const out = new Map<ChannelKey, { lo: number; hi: number }>();
+    for (const [ch, series] of this.series()) {
+      let lo = Infinity;
+      let hi = -Infinity;
+      for (const p of (series[0]?.data ?? []) as { y: [number, number] }[]) {
+        if (p.y[0] < lo) lo = p.y[0];
+        if (p.y[1] > hi) hi = p.y[1];
+      }
+      if (Number.isFinite(lo)) out.set(ch, { lo, hi });
+    }
+    return out;
+  });
+
   /** Everything but the data; it changes rarely, and a change redraws the chart from scratch. */
   protected readonly views = computed<ChannelView[]>(() => {
     const prefs = this.prefs.preferences();
@@ -156,6 +172,20 @@ export class TrendChart {
           },
         },
       };
+      const bands = bandAnnotations(channel, engine);
+      // The axis spans the data and the normal bands (not from zero), with a little room. apexcharts calls
+      // these on every redraw; they read the newest data span, so a live update rescales without a rebuild.
+      const lows = bands.map((b) => conv(b.band.low));
+      const highs = bands.map((b) => conv(b.band.high));
+      const extent = () => {
+        const d = this.spans().get(channel);
+        const lo = Math.min(...lows, d?.lo ?? Infinity);
+        const hi = Math.max(...highs, d?.hi ?? -Infinity);
+        if (!Number.isFinite(lo) || !Number.isFinite(hi)) return { lo: 0, hi: 1 };
+        return niceExtent(lo, hi);
+      };
+      const yMin = () => extent().lo;
+      const yMax = () => extent().hi;
       return {
         channel,
         label: CHANNELS[channel].label,
@@ -164,11 +194,14 @@ export class TrendChart {
         xaxis: { type: 'datetime', min: win.from, max: win.to, labels: { datetimeUTC: false }, tooltip: { enabled: false } },
         yaxis: {
           title: { text: unit },
+          min: yMin,
+          tickAmount: 4,
+          max: yMax,
           decimalsInFloat: decimals,
           labels: { minWidth: 56, maxWidth: 56, formatter: (v: number) => (Number.isFinite(v) ? v.toFixed(decimals) : '') },
         },
         annotations: {
-          yaxis: bandAnnotations(channel, engine).map(({ band, text }) => ({
+          yaxis: bands.map(({ band, text }) => ({
             y: conv(band.low),
             y2: conv(band.high),
             fillColor: ink.band,
@@ -241,3 +274,27 @@ function bandAnnotations(channel: ChannelKey, engine: BandEngine | null): { band
   if (stopped) out.push({ band: stopped, text: 'normal while stopped' });
   return out;
 }
+
+const NICE = [1, 1.5, 2, 2.5, 3, 4, 5, 6, 8];
+
+/**
+ * An axis from lo to hi rounded out to exactly four steps of 1, 1.5, 2, 2.5, 3, 4, 5, 6 or 8 × 10^n, so the ticks read
+ * as round numbers; it does not go below zero for data that does not.
+ */
+export function niceExtent(lo: number, hi: number): { lo: number; hi: number } {
+  const span = Math.max(hi - lo, Math.abs(hi) * 0.02, 1e-6);
+  let exp = Math.floor(Math.log10(span / 4));
+  let k = 0;
+  for (;;) {
+    const step = NICE[k] * 10 ** exp;
+    let nlo = Math.floor(lo / step + 1e-9) * step;
+    if (lo >= 0 && nlo < 0) nlo = 0;
+    if (nlo + 4 * step >= hi - 1e-9) return { lo: round6(nlo), hi: round6(nlo + 4 * step) };
+    if (++k === NICE.length) {
+      k = 0;
+      exp++;
+    }
+  }
+}
+
+const round6 = (v: number) => Math.round(v * 1e6) / 1e6;

@@ -1,6 +1,7 @@
 import { RUNNING_RPM } from '../../../shared/channels';
 import { Bucket, appendLive, bucketWidth, runChanges, toChannelSeries } from './trend-series';
 import { bucketsToCsv } from './readings-csv';
+import { niceExtent } from './trend-chart';
 
 const b = (t: number, mean: number, min = mean, max = mean, count = 1): Bucket => ({ t, min, max, mean, count });
 
@@ -73,5 +74,14 @@ describe('bucketsToCsv', () => {
   it('writes one row per bucket with ISO time, channel, min, max, mean, count and unit', () => {
     const csv = bucketsToCsv(new Map([['coolant_temp', [b(Date.UTC(2026, 0, 1), 90, 80, 100, 12)]]]), { temperature: 'degF', pressure: 'kPa', volume: 'L' });
     expect(csv).toBe('time,channel,min,max,mean,count,unit\r\n2026-01-01T00:00:00.000Z,coolant_temp,176,212,194,12,degF\r\n');
+  });
+});
+
+describe('niceExtent (trend y axis)', () => {
+  it('rounds out to four round steps that hold the data and the band', () => {
+    expect(niceExtent(30, 95)).toEqual({ lo: 20, hi: 100 }); // steps of 10 and 15 fall short of 95; 20 reaches it
+    expect(niceExtent(3.2, 118)).toEqual({ lo: 0, hi: 120 }); // steps of 30 from 0
+    expect(niceExtent(-3, 110)).toEqual({ lo: -40, hi: 120 }); // below zero only because the data is
+    expect(niceExtent(2400, 2500)).toEqual({ lo: 2400, hi: 2500 }); // steps of 25
   });
 });
