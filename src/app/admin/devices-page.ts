@@ -85,7 +85,7 @@ interface DeviceRow extends Device {
           </td>
         </ng-container>
         <ng-container matColumnDef="rejected">
-          <th mat-header-cell *matHeaderCellDef mat-sort-header class="num">Refused messages</th>
+          <th mat-header-cell *matHeaderCellDef mat-sort-header arrowPosition="before" class="num">Refused messages</th>
           <td mat-cell *matCellDef="let d" class="num jw-num" [class.attention]="d.rejected > 0">{{ d.rejected }}</td>
         </ng-container>
         <ng-container matColumnDef="reasons">

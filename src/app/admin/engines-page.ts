@@ -55,7 +55,7 @@ const FAMILY: Partial<Record<string, string>> = { conventional: 'Conventional', 
           <td mat-cell *matCellDef="let e">{{ duty[e.duty] ?? e.duty }}</td>
         </ng-container>
         <ng-container matColumnDef="capacityL">
-          <th mat-header-cell *matHeaderCellDef mat-sort-header class="num">Capacity</th>
+          <th mat-header-cell *matHeaderCellDef mat-sort-header arrowPosition="before" class="num">Capacity</th>
           <td mat-cell *matCellDef="let e" class="num jw-num">{{ e.capacityL | unitValue: 'volume' }}</td>
         </ng-container>
         <ng-container matColumnDef="coolant">
@@ -63,11 +63,11 @@ const FAMILY: Partial<Record<string, string>> = { conventional: 'Conventional', 
           <td mat-cell *matCellDef="let e">{{ family[e.coolantFamily] ?? e.coolantFamily }}, {{ e.glycolPercent }} % {{ e.glycolType }}</td>
         </ng-container>
         <ng-container matColumnDef="capPressureKpa">
-          <th mat-header-cell *matHeaderCellDef mat-sort-header class="num">Cap</th>
+          <th mat-header-cell *matHeaderCellDef mat-sort-header arrowPosition="before" class="num">Cap</th>
           <td mat-cell *matCellDef="let e" class="num jw-num">{{ e.capPressureKpa | unitValue: 'pressure' }}</td>
         </ng-container>
         <ng-container matColumnDef="runHours">
-          <th mat-header-cell *matHeaderCellDef mat-sort-header class="num">Run hours</th>
+          <th mat-header-cell *matHeaderCellDef mat-sort-header arrowPosition="before" class="num">Run hours</th>
           <td mat-cell *matCellDef="let e" class="num jw-num">{{ e.runHours | number: '1.0-0' }} h</td>
         </ng-container>
         <ng-container matColumnDef="outOfService">

@@ -45,7 +45,7 @@ interface SiteRow extends Site {
           <td mat-cell *matCellDef="let s">{{ s.timeZone }}</td>
         </ng-container>
         <ng-container matColumnDef="engines">
-          <th mat-header-cell *matHeaderCellDef mat-sort-header class="num">Engines</th>
+          <th mat-header-cell *matHeaderCellDef mat-sort-header arrowPosition="before" class="num">Engines</th>
           <td mat-cell *matCellDef="let s" class="num jw-num">{{ s.engines }}</td>
         </ng-container>
         <ng-container matColumnDef="actions">
