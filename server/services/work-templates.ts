@@ -85,7 +85,7 @@ export const WORK_TEMPLATES: readonly WorkTemplate[] = Object.freeze([
     resetsConductivityBaseline: true,
     cautions: [...WORK_CAUTIONS],
     steps: [
-      { key: 'choose-filter', title: 'Pick a charged or a blank filter as the last additive test says', input: 'confirmation', gated: false, detail: 'Low additive: charged filter. Additive in range or high: blank filter. Record the filter in Parts & fluids.' },
+      { key: 'choose-filter', title: 'Pick a charged or a blank filter as the last additive test says', input: 'confirmation', gated: false, detail: 'Additive low or in range: charged filter (low also takes liquid additive). Additive above the upper limit: blank filter, and test again at the next service. Extended-life coolant: follow the coolant maker or a lab analysis. Record the filter in Parts & fluids.' },
       { ...lockoutStep, detail: `${lockoutStep.detail} Let the system cool: the next steps stay locked until it is stopped, cool and without pressure.` },
       capOffStep,
       { key: 'close-valves', title: 'Close the filter shut-off valves, if the engine has them', input: 'confirmation', gated: false, optional: true },
