@@ -30,6 +30,8 @@ const NAV: NavItem[] = [
   { path: '/alarms/on-call', label: 'On-call rota', icon: 'contact_phone', roles: ['planner', 'admin'] },
   { path: '/alarms/rules', label: 'Alarm rules', icon: 'rule', roles: ['admin'] },
   { path: '/alarms/mail', label: 'Alarm mail', icon: 'mail', roles: ['admin'] },
+  { path: '/work', label: 'Work', icon: 'assignment', roles: ['planner', 'admin'] },
+  { path: '/work/mine', label: 'My work', icon: 'handyman', roles: ['technician'] },
   { path: '/due', label: 'Service due', icon: 'event_upcoming', roles: ['planner', 'admin', 'technician'] },
   { path: '/calculators', label: 'Coolant calculators', icon: 'calculate' },
   { path: '/settings', label: 'Settings', icon: 'tune' },
