@@ -1,10 +1,18 @@
 import { openingCheck, DEFAULT_OPENING_SETTINGS, type OpeningCheckResult, type OpeningSettings } from '../../../shared/work/opening-check';
 import type { Engine } from '../../models';
+import { openingTimings, type OpeningTimings } from './opening-settings';
 import type { ReadingHistory } from './reading-history';
 
-/** Settings of the opening check for one engine: its own safe opening temperature and heater; the rest are the shared defaults. */
-export function gateSettings(engine: Pick<Engine, 'safeOpenTempC' | 'heaterSetpointC'>, ambientC: number | null): OpeningSettings {
-  return { ...DEFAULT_OPENING_SETTINGS, safeOpenTempC: engine.safeOpenTempC ?? 50, heaterSetpointC: engine.heaterSetpointC ?? null, ambientC };
+/**
+ * Settings of the opening check for one engine: its own safe opening temperature and heater; the
+ * timings from the environment (OPENING_MIN_STOPPED_S, OPENING_HOLD_S); the rest are the shared defaults.
+ */
+export function gateSettings(
+  engine: Pick<Engine, 'safeOpenTempC' | 'heaterSetpointC'>,
+  ambientC: number | null,
+  timings: OpeningTimings = openingTimings(),
+): OpeningSettings {
+  return { ...DEFAULT_OPENING_SETTINGS, ...timings, safeOpenTempC: engine.safeOpenTempC ?? 50, heaterSetpointC: engine.heaterSetpointC ?? null, ambientC };
 }
 
 export interface GateResult extends OpeningCheckResult {
