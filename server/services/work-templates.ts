@@ -30,7 +30,7 @@ export interface WorkCaution {
 export interface WorkTemplate {
   kind: WorkKind;
   title: string;
-  /** Service-plan task this kind resets when completed (service_events.task_key), if any. */
+  /** Service-plan task this kind resets when completed (service_events.task_key), if any: the plan task of the same name. */
   serviceTask: string | null;
   /** A new conductivity baseline starts when this kind is completed (fresh coolant). */
   resetsConductivityBaseline: boolean;
@@ -81,7 +81,7 @@ export const WORK_TEMPLATES: readonly WorkTemplate[] = Object.freeze([
   {
     kind: 'filter-change',
     title: 'Coolant filter change (spin-on)',
-    serviceTask: 'coolant-filter-change',
+    serviceTask: 'filter-change',
     resetsConductivityBaseline: true,
     cautions: [...WORK_CAUTIONS],
     steps: [

@@ -102,7 +102,7 @@ export function defaultServicePlan(engine: PlanEngine): ServiceTask[] {
   const h = engine.oilDrainIntervalH;
   const tasks: ServiceTask[] = [
     { key: 'oil-drain', title: 'Oil drain and oil filter', everyHours: h, everyDays: 365, basis: 'engine oil-drain interval, or yearly (common practice)' },
-    { key: 'coolant-filter', title: 'Coolant filter change (charged or blank per the additive test)', everyHours: h, everyDays: 365, basis: 'at each oil drain (common practice)' },
+    { key: 'filter-change', title: 'Coolant filter change (charged or blank per the additive test)', everyHours: h, everyDays: 365, basis: 'at each oil drain (common practice)' },
     { key: 'coolant-test', title: 'Coolant test: additive, glycol, freeze point, pH, conductivity', everyHours: h, everyDays: 182, basis: 'at least twice a year and at every service (common practice)' },
     { key: 'drain-flush-refill', title: 'Drain, flush and refill cooling system', everyHours: 3000, everyDays: 730, placeholder: true, basis: 'placeholder default; use the engine and coolant maker\'s interval' },
   ];

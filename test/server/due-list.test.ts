@@ -7,7 +7,9 @@
 import request from 'supertest';
 import { createLogger } from '../../server/logger';
 import { RunHoursCounter } from '../../server/services/coolant/run-hours';
-import { computeDueList, eventKeysFor } from '../../server/services/coolant/service-plan';
+import { computeDueList, workKindFor } from '../../server/services/coolant/service-plan';
+import { WORK_TEMPLATES } from '../../server/services/work-templates';
+import { defaultServicePlan } from '../../shared/service/due-list';
 import { auth, makeTestApp, type TestApp } from './helpers';
 
 const DAY = 86_400_000;
@@ -27,14 +29,14 @@ beforeAll(async () => {
   const ev = (engineId: number, taskKey: string, daysAgo: number, runHours: number) =>
     t.ctx.models.ServiceEvent.create({ engineId, taskKey, doneAt: new Date(NOW - daysAgo * DAY), runHours, workOrderId: null });
   // A: filter changed 30 days ago at 1000 h; 250 h interval -> due at 1250 h, now 1260 h: overdue by hours while the yearly date is far off
-  await ev(hoursFirst, 'coolant-filter-change', 30, 1000);
+  await ev(hoursFirst, 'filter-change', 30, 1000);
   // B: filter changed 360 days ago at 30 h; 40 h now -> hours far off, yearly date in 5 days: due soon by calendar
-  await ev(daysFirst, 'coolant-filter', 360, 30);
+  await ev(daysFirst, 'filter-change', 360, 30);
   // B: weekly inspection 8 days ago: overdue by calendar
   await ev(daysFirst, 'weekly-inspection', 8, 39);
   // C: everything done yesterday at 500 h except the filter, done at 470 h (20 h to go: due soon by hours)
   for (const k of ['oil-drain', 'coolant-test', 'drain-flush-refill']) await ev(prime, k, 1, 500);
-  await ev(prime, 'coolant-filter-change', 1, 470);
+  await ev(prime, 'filter-change', 1, 470);
   // an event after `now` must not count
   await ev(prime, 'oil-drain', -3, 600);
 });
@@ -46,12 +48,17 @@ const entry = async (engineId: number, taskKey: string, windowDays = 14) => {
 };
 
 describe('due list on a fixed clock', () => {
-  it("the template's task key counts as the plan task done", () => {
-    expect(eventKeysFor('coolant-filter')).toEqual(['coolant-filter', 'coolant-filter-change']);
+  it('one name per task: plan task key = work-order kind = the service event its template writes', () => {
+    const plan = defaultServicePlan({ oilDrainIntervalH: 250, duty: 'standby' });
+    const withTemplate = plan.filter((p) => workKindFor(p.key)).map((p) => p.key);
+    expect(withTemplate).toEqual(['filter-change', 'coolant-test', 'drain-flush-refill']);
+    for (const k of withTemplate) expect(WORK_TEMPLATES.find((w) => w.kind === k)?.serviceTask).toBe(k);
+    for (const w of WORK_TEMPLATES) if (w.serviceTask) expect(plan.some((p) => p.key === w.serviceTask)).toBe(true);
+    expect(workKindFor('oil-drain')).toBeNull();
   });
 
   it('hours first: 1000 h + 250 h = 1250 h < 1260 h now -> overdue, though the yearly date is 335 days off', async () => {
-    const e = await entry(hoursFirst, 'coolant-filter');
+    const e = await entry(hoursFirst, 'filter-change');
     expect(e.state).toBe('overdue');
     expect(e.dueAtRunHours).toBe(1250);
     expect(e.dueAt).toBe(new Date(NOW + 335 * DAY).toISOString());
@@ -60,8 +67,8 @@ describe('due list on a fixed clock', () => {
   });
 
   it('calendar first: done 360 days ago -> yearly date in 5 days: due soon with a 14-day window, ok with a 3-day one', async () => {
-    expect((await entry(daysFirst, 'coolant-filter', 14)).state).toBe('due-soon');
-    const narrow = await entry(daysFirst, 'coolant-filter', 3);
+    expect((await entry(daysFirst, 'filter-change', 14)).state).toBe('due-soon');
+    const narrow = await entry(daysFirst, 'filter-change', 3);
     expect(narrow.state).toBe('ok');
     expect(narrow.dueAtRunHours).toBe(280);
   });
@@ -72,7 +79,7 @@ describe('due list on a fixed clock', () => {
   });
 
   it('hours within the 50 h window: 470 h + 250 h = 720 h, 500 h now -> 220 h to go: ok; an event after now is ignored', async () => {
-    const f = await entry(prime, 'coolant-filter');
+    const f = await entry(prime, 'filter-change');
     expect(f.state).toBe('ok');
     expect(f.dueAtRunHours).toBe(720);
     const oil = await entry(prime, 'oil-drain');
@@ -87,9 +94,9 @@ describe('due list on a fixed clock', () => {
   });
 
   it('an override changes the interval; disabled tasks leave the list; only due entries by default, counted per site', async () => {
-    await request(t.app).put(`/api/engines/${hoursFirst}/service-plan/coolant-filter`).set(auth(t.tokens.technician)).send({ everyHours: 500 }).expect(403);
-    await request(t.app).put(`/api/engines/${hoursFirst}/service-plan/coolant-filter`).set(auth(t.tokens.planner)).send({ everyHours: 500 }).expect(200);
-    const e = await entry(hoursFirst, 'coolant-filter');
+    await request(t.app).put(`/api/engines/${hoursFirst}/service-plan/filter-change`).set(auth(t.tokens.technician)).send({ everyHours: 500 }).expect(403);
+    await request(t.app).put(`/api/engines/${hoursFirst}/service-plan/filter-change`).set(auth(t.tokens.planner)).send({ everyHours: 500 }).expect(200);
+    const e = await entry(hoursFirst, 'filter-change');
     expect(e.state).toBe('ok'); // 1000 + 500 = 1500 h
     expect(e.basis).toBe('set for this engine');
     await request(t.app).put(`/api/engines/${daysFirst}/service-plan/weekly-inspection`).set(auth(t.tokens.planner)).send({ disabled: true }).expect(200);
@@ -99,8 +106,8 @@ describe('due list on a fixed clock', () => {
     expect(entries.some((x) => x.taskKey === 'weekly-inspection')).toBe(false);
     expect(out.sites[0].overdue).toBe(entries.filter((x) => x.state === 'overdue').length);
     expect(entries[0].state).toBe('overdue');
-    await request(t.app).delete(`/api/engines/${hoursFirst}/service-plan/coolant-filter`).set(auth(t.tokens.planner)).expect(200);
-    expect((await entry(hoursFirst, 'coolant-filter')).state).toBe('overdue');
+    await request(t.app).delete(`/api/engines/${hoursFirst}/service-plan/filter-change`).set(auth(t.tokens.planner)).expect(200);
+    expect((await entry(hoursFirst, 'filter-change')).state).toBe('overdue');
   });
 
   it('the route answers for every role and validates its query', async () => {

@@ -336,7 +336,7 @@ describe('a filter change from start to sign-off', () => {
     expect(done.body.status).toBe('waiting-sign-off');
 
     const ev = await t.ctx.models.ServiceEvent.findAll({ where: { engineId: engine } });
-    expect(ev.map((e) => [e.taskKey, e.runHours, e.workOrderId])).toEqual([['coolant-filter-change', 2000, order.id]]);
+    expect(ev.map((e) => [e.taskKey, e.runHours, e.workOrderId])).toEqual([['filter-change', 2000, order.id]]);
     const baselines = await t.ctx.models.EngineBaseline.findAll({ where: { engineId: engine } });
     expect(baselines).toHaveLength(1);
     expect(baselines[0].value).toBe(1900);

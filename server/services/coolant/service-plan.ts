@@ -3,20 +3,15 @@ import { defaultServicePlan, dueList, type DueState, type ServiceTask, type Task
 import { badRequest } from '../../http-error';
 import type { Engine, Models } from '../../models';
 import { getEngine } from '../engines';
-import { workTemplate, type WorkKind } from '../work-templates';
+import { WORK_KINDS, workTemplate, type WorkKind } from '../work-templates';
 
-/** Plan task -> work-order kind whose template does it (one click on the due list creates that work order). */
-export const TASK_WORK_KIND: Readonly<Record<string, WorkKind>> = Object.freeze({
-  'coolant-filter': 'filter-change',
-  'coolant-test': 'coolant-test',
-  'drain-flush-refill': 'drain-flush-refill',
-});
-
-/** service_events.task_key values that count as this task done: the task's own key and its template's. */
-export function eventKeysFor(taskKey: string): string[] {
-  const kind = TASK_WORK_KIND[taskKey];
-  const templateKey = kind ? workTemplate(kind)?.serviceTask : null;
-  return [...new Set([taskKey, ...(templateKey ? [templateKey] : [])])];
+/**
+ * One name per task: a plan task whose key is a work-order kind is done by that kind's template (one click on
+ * the due list creates it), and completing the work order writes a service event under the same key.
+ */
+export function workKindFor(taskKey: string): WorkKind | null {
+  const kind = (WORK_KINDS as readonly string[]).includes(taskKey) ? (taskKey as WorkKind) : null;
+  return kind && workTemplate(kind)?.serviceTask === taskKey ? kind : null;
 }
 
 export interface PlanTask extends ServiceTask {
@@ -49,7 +44,7 @@ export async function servicePlan(models: Models, engine: Engine): Promise<PlanT
       placeholder: o && (o.everyHours !== null || o.everyDays !== null) ? false : t.placeholder,
       basis: o && (o.everyHours !== null || o.everyDays !== null) ? 'set for this engine' : t.basis,
       overridden: !!o,
-      workKind: TASK_WORK_KIND[t.key] ?? null,
+      workKind: workKindFor(t.key),
     });
   }
   for (const o of byKey.values()) {
@@ -175,15 +170,7 @@ export async function computeDueList(models: Models, q: DueListQuery): Promise<{
     const plan = await servicePlan(models, engine);
     const rec = records.get(engine.id) ?? new Map<string, TaskRecord>();
     const taskRecords: Record<string, TaskRecord | undefined> = {};
-    for (const t of plan) {
-      // the newest of the task's event keys
-      let best: TaskRecord | undefined;
-      for (const k of eventKeysFor(t.key)) {
-        const r = rec.get(k);
-        if (r && (!best || (r.lastDoneAt ?? -Infinity) > (best.lastDoneAt ?? -Infinity))) best = r;
-      }
-      taskRecords[t.key] = best;
-    }
+    for (const t of plan) taskRecords[t.key] = rec.get(t.key);
     const list = dueList(plan, taskRecords, { runHoursNow: engine.runHours, now: q.now }, q.windowDays, windowHours);
     let view = out.get(site.id);
     if (!view) out.set(site.id, (view = { siteId: site.id, siteName: site.name, timeZone: site.timeZone, overdue: 0, dueSoon: 0, entries: [] }));

@@ -46,7 +46,7 @@ export class AlarmDetailPage {
   protected readonly notes = computed(() => (this.alarm()?.history ?? []).filter((h) => h.note && h.userId !== null));
   protected readonly workOrderLink = computed(() => {
     const a = this.alarm();
-    return a ? { engineId: a.engineId, alarmId: a.id, kind: 'coolant-filter-change' } : {};
+    return a ? { engineId: a.engineId, alarmId: a.id, kind: 'filter-change' } : {};
   });
   protected readonly canShelve = computed(() => {
     const s = this.alarm()?.state;

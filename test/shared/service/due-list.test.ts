@@ -56,9 +56,9 @@ describe('dueStatus: whichever comes first', () => {
 describe('default service plan and due list', () => {
   it('standby plan: oil drain, coolant filter at each oil drain, coolant test twice a year, flush placeholder, weekly and monthly checks', () => {
     const plan = defaultServicePlan({ oilDrainIntervalH: 250, duty: 'standby' });
-    expect(plan.map((t) => t.key)).toEqual(['oil-drain', 'coolant-filter', 'coolant-test', 'drain-flush-refill', 'weekly-inspection', 'monthly-exercise']);
+    expect(plan.map((t) => t.key)).toEqual(['oil-drain', 'filter-change', 'coolant-test', 'drain-flush-refill', 'weekly-inspection', 'monthly-exercise']);
     const by = Object.fromEntries(plan.map((t) => [t.key, t]));
-    expect(by['coolant-filter'].everyHours).toBe(by['oil-drain'].everyHours);
+    expect(by['filter-change'].everyHours).toBe(by['oil-drain'].everyHours);
     expect(by['coolant-test'].everyDays! * 2).toBeLessThanOrEqual(365);
     expect(by['drain-flush-refill']).toMatchObject({ everyHours: 3000, everyDays: 730, placeholder: true });
     expect(by['weekly-inspection'].basis).toMatch(/NFPA 110 chapter 8/);
@@ -69,7 +69,7 @@ describe('default service plan and due list', () => {
     const plan = defaultServicePlan({ oilDrainIntervalH: 250, duty: 'standby' });
     const list = dueList(plan, {
       'oil-drain': { lastDoneAt: NOW - 200 * DAY, lastDoneRunHours: 900 },
-      'coolant-filter': { lastDoneAt: NOW - 200 * DAY, lastDoneRunHours: 900 },
+      'filter-change': { lastDoneAt: NOW - 200 * DAY, lastDoneRunHours: 900 },
       'coolant-test': { lastDoneAt: NOW - 190 * DAY, lastDoneRunHours: 900 },
       'drain-flush-refill': { lastDoneAt: NOW - 300 * DAY, lastDoneRunHours: 800 },
       'weekly-inspection': { lastDoneAt: NOW - 2 * DAY, lastDoneRunHours: 940 },
@@ -79,7 +79,7 @@ describe('default service plan and due list', () => {
       ['coolant-test', 'overdue'], // 190 days > 182
       ['monthly-exercise', 'overdue'],
       ['weekly-inspection', 'due-soon'], // 5 days left, inside the 14-day window
-      ['coolant-filter', 'ok'], // same date as the oil drain: by key
+      ['filter-change', 'ok'], // same date as the oil drain: by key
       ['oil-drain', 'ok'],
       ['drain-flush-refill', 'ok'],
     ]);
