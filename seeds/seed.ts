@@ -6,6 +6,7 @@ import type { Config } from '../server/config';
 import type { Engine, Models } from '../server/models';
 import { hashSecret } from '../server/services/passwords';
 import { DEMO_ENGINES, DEMO_PASSWORD, DEMO_SITES, DEMO_USERS } from './demo-scenario';
+import { seedCoolantDemo } from './coolant-demo';
 import { seedOncall } from './oncall';
 
 /** One line of the devices file the simulator reads. */
@@ -81,6 +82,7 @@ export async function seedDemo(sequelize: Sequelize, models: Models, config: Con
     const engines: Engine[] = [];
     for (const { site, ...e } of DEMO_ENGINES) engines.push(await models.Engine.create({ ...e, siteId: siteIds.get(site)! }, { transaction }));
     await seedOncall(models, { transaction });
+    await seedCoolantDemo(models, engines, { transaction });
     return addDevices(models, engines, 'demo-engine', cost, transaction);
   });
   writeDevicesFile(devicesFile, config.mqttPort, devices);
