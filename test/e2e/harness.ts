@@ -1,6 +1,10 @@
 /**
  * End-to-end harness: a real server process (broker, HTTP, mail catcher) on free ports with its own
  * DATA_DIR, the demo seed, the real simulator, and Debian's Chromium driven by playwright-core.
+ *
+ * Every child runs in its own process group and is killed with it: on stop(), when startStack fails,
+ * and when the test process exits or is interrupted, so no server or simulator outlives a run.
+ * Logs stay in test-output/logs/<run>/ (named in every error); screenshots go to test-output/screenshots/.
  */
 import { spawn, type ChildProcess } from 'node:child_process';
 import fs from 'node:fs';
@@ -10,8 +14,8 @@ import path from 'node:path';
 import { chromium, type Browser, type Page } from 'playwright-core';
 
 const ROOT = path.resolve(__dirname, '../..');
-const TSX = path.join(ROOT, 'node_modules/.bin/tsx');
 export const SHOTS = path.join(ROOT, 'test-output/screenshots');
+export const LOGS = path.join(ROOT, 'test-output/logs');
 
 export const DEMO_PASSWORD = 'jacketwatch-demo';
 export const ACCOUNTS = {
@@ -34,11 +38,13 @@ export async function freePort(): Promise<number> {
 }
 
 export interface StackOptions {
-  /** Extra simulator arguments, e.g. ['--scenario', 'overheat']. Empty array: no simulator. */
+  /** Extra simulator arguments, e.g. ['--scenario', 'overheat']. */
   simulatorArgs?: string[];
   /** Start the simulator at all (default true). */
   simulate?: boolean;
   env?: Record<string, string>;
+  /** Skip the demo seed: an empty DATA_DIR (default false). */
+  noSeed?: boolean;
 }
 
 export interface Stack {
@@ -48,48 +54,120 @@ export interface Stack {
   smtpPort: number;
   controlPort: number;
   dataDir: string;
+  /** This run's logs: seed.log, server.log, simulator.log. */
+  logDir: string;
+  /** The seeded devices' credentials (DATA_DIR/demo-devices.json), as the simulator reads them. */
+  devicesFile: string;
   /** POST to the simulator's control endpoint, e.g. control('/engines/1/stop'). */
   control(pathname: string, body?: unknown): Promise<unknown>;
   api<T = unknown>(method: string, pathname: string, token?: string, body?: unknown): Promise<{ status: number; body: T }>;
   login(email: string): Promise<string>;
+  /** Start (another) simulator on this stack's control port; returns at once. */
   startSimulator(args: string[]): ChildProcess;
+  /** Like startSimulator, but resolves when its control port answers (fails early with the log if it exits). */
+  startSimulatorReady(args: string[]): Promise<ChildProcess>;
   stop(): Promise<void>;
 }
 
-function run(cmd: string, args: string[], env: NodeJS.ProcessEnv, name: string, logDir: string): ChildProcess {
-  const out = fs.openSync(path.join(logDir, `${name}.log`), 'a');
-  return spawn(cmd, args, { cwd: ROOT, env, stdio: ['ignore', out, out] });
+/** Every child still running, for the exit handlers. */
+const live = new Set<ChildProcess>();
+
+function killGroup(child: ChildProcess, signal: NodeJS.Signals): void {
+  if (child.pid === undefined) return;
+  try {
+    process.kill(-child.pid, signal); // the child and anything it started
+  } catch {
+    try {
+      child.kill(signal);
+    } catch {
+      /* already gone */
+    }
+  }
 }
 
-async function waitFor(check: () => Promise<boolean>, timeoutMs: number, what: string): Promise<void> {
-  const until = Date.now() + timeoutMs;
-  while (Date.now() < until) {
+let handlersInstalled = false;
+function installExitHandlers(): void {
+  if (handlersInstalled) return;
+  handlersInstalled = true;
+  process.once('exit', () => {
+    for (const c of live) killGroup(c, 'SIGKILL');
+  });
+  for (const sig of ['SIGINT', 'SIGTERM', 'SIGHUP'] as const) {
+    process.once(sig, () => {
+      for (const c of live) killGroup(c, 'SIGKILL');
+      process.exit(128 + (os.constants.signals[sig] ?? 1));
+    });
+  }
+}
+
+/** A TypeScript entry point run by node with tsx's loader: one process per child, no wrapper to orphan. */
+function run(script: string, args: string[], env: NodeJS.ProcessEnv, name: string, logDir: string): ChildProcess {
+  installExitHandlers();
+  const out = fs.openSync(path.join(logDir, `${name}.log`), 'a');
+  const child = spawn(process.execPath, ['--import', 'tsx', script, ...args], { cwd: ROOT, env, stdio: ['ignore', out, out], detached: true });
+  fs.closeSync(out);
+  live.add(child);
+  child.once('exit', () => live.delete(child));
+  return child;
+}
+
+function exited(child: ChildProcess): boolean {
+  return child.exitCode !== null || child.signalCode !== null;
+}
+
+/** The last lines of a log, for error messages. */
+export function logTail(file: string, lines = 15): string {
+  try {
+    return fs.readFileSync(file, 'utf8').trimEnd().split('\n').slice(-lines).join('\n');
+  } catch {
+    return '(no log)';
+  }
+}
+
+/** Poll until check() is true (exceptions count as "not yet"); `dies` fails at once if that child exits. */
+export async function waitUntil(
+  check: () => Promise<boolean> | boolean,
+  opts: { timeoutMs: number; what: string; intervalMs?: number; dies?: { child: ChildProcess; log: string } },
+): Promise<void> {
+  const until = Date.now() + opts.timeoutMs;
+  let lastError = '';
+  for (;;) {
+    if (opts.dies && exited(opts.dies.child)) {
+      const how = opts.dies.child.exitCode !== null ? `exit code ${opts.dies.child.exitCode}` : `signal ${opts.dies.child.signalCode}`;
+      throw new Error(`${opts.what}: the process ended (${how}) first; see ${opts.dies.log}\n${logTail(opts.dies.log)}`);
+    }
     try {
       if (await check()) return;
-    } catch {
-      /* not up yet */
+    } catch (err) {
+      lastError = (err as Error).message;
     }
-    await new Promise((r) => setTimeout(r, 250));
+    if (Date.now() >= until) {
+      const log = opts.dies ? `; see ${opts.dies.log}\n${logTail(opts.dies.log)}` : '';
+      throw new Error(`timed out after ${opts.timeoutMs} ms waiting for ${opts.what}${lastError ? ` (last error: ${lastError})` : ''}${log}`);
+    }
+    await new Promise((r) => setTimeout(r, opts.intervalMs ?? 250));
   }
-  throw new Error(`timed out waiting for ${what}`);
 }
 
-async function exitOf(child: ChildProcess, signal: NodeJS.Signals = 'SIGTERM'): Promise<void> {
-  if (child.exitCode !== null || child.signalCode !== null) return;
+async function stopChild(child: ChildProcess): Promise<void> {
+  if (exited(child)) {
+    killGroup(child, 'SIGKILL'); // leftovers of its group, if any
+    return;
+  }
   await new Promise<void>((resolve) => {
-    const timer = setTimeout(() => child.kill('SIGKILL'), 10000);
+    const timer = setTimeout(() => killGroup(child, 'SIGKILL'), 10000);
     child.once('exit', () => {
       clearTimeout(timer);
       resolve();
     });
-    child.kill(signal);
+    killGroup(child, 'SIGTERM');
   });
 }
 
 export async function startStack(opts: StackOptions = {}): Promise<Stack> {
   const [port, mqttPort, smtpPort, controlPort] = [await freePort(), await freePort(), await freePort(), await freePort()];
   const dataDir = fs.mkdtempSync(path.join(os.tmpdir(), 'jw-e2e-'));
-  const logDir = path.join(ROOT, 'test-output/logs', path.basename(dataDir));
+  const logDir = path.join(LOGS, path.basename(dataDir));
   fs.mkdirSync(logDir, { recursive: true });
   const env = {
     ...process.env,
@@ -102,24 +180,48 @@ export async function startStack(opts: StackOptions = {}): Promise<Stack> {
   };
   const baseUrl = `http://127.0.0.1:${port}`;
   const children: ChildProcess[] = [];
-
-  const seed = run(TSX, ['seeds/cli.ts'], env, 'seed', logDir);
-  await new Promise<void>((resolve, reject) =>
-    seed.once('exit', (code) => (code === 0 ? resolve() : reject(new Error(`seed exited ${code}; see ${logDir}/seed.log`)))),
-  );
-
-  const server = run(TSX, ['server/main.ts'], env, 'server', logDir);
-  children.push(server);
-  await waitFor(async () => (await fetch(`${baseUrl}/api/health`)).ok, 60000, `server on ${baseUrl}`);
+  const logOf = (name: string) => path.join(logDir, `${name}.log`);
+  const stopAll = async () => {
+    for (const child of children.slice().reverse()) await stopChild(child);
+  };
 
   const startSimulator = (args: string[]) => {
-    const sim = run(TSX, ['simulator/cli.ts', '--control-port', String(controlPort), ...args], env, 'simulator', logDir);
+    const sim = run('simulator/cli.ts', ['--control-port', String(controlPort), ...args], env, 'simulator', logDir);
     children.push(sim);
     return sim;
   };
-  if (opts.simulate !== false) {
-    startSimulator(opts.simulatorArgs ?? ['--rate', '1', '--speed', '30', '--seed', '7']);
-    await waitFor(async () => (await fetch(`http://127.0.0.1:${controlPort}/stats`)).ok, 30000, 'simulator control port');
+  const startSimulatorReady = async (args: string[]) => {
+    const sim = startSimulator(args);
+    await waitUntil(async () => (await fetch(`http://127.0.0.1:${controlPort}/stats`)).ok, {
+      timeoutMs: 30000,
+      what: `simulator control port ${controlPort}`,
+      dies: { child: sim, log: logOf('simulator') },
+    });
+    return sim;
+  };
+
+  try {
+    if (!opts.noSeed) {
+      const seed = run('seeds/cli.ts', [], env, 'seed', logDir);
+      children.push(seed);
+      const code = await new Promise<number | null>((resolve) => seed.once('exit', (c) => resolve(c)));
+      if (code !== 0) throw new Error(`demo seed exited with ${code}; see ${logOf('seed')}\n${logTail(logOf('seed'))}`);
+    }
+
+    const server = run('server/main.ts', [], env, 'server', logDir);
+    children.push(server);
+    await waitUntil(async () => (await fetch(`${baseUrl}/api/health`)).ok, {
+      timeoutMs: 60000,
+      what: `server on ${baseUrl}`,
+      dies: { child: server, log: logOf('server') },
+    });
+
+    if (opts.simulate !== false) await startSimulatorReady(opts.simulatorArgs ?? ['--rate', '1', '--speed', '30', '--seed', '7']);
+  } catch (err) {
+    await stopAll();
+    if (!process.env.KEEP_E2E_DATA) fs.rmSync(dataDir, { recursive: true, force: true });
+    (err as Error).message += `\n(logs of this run: ${logDir})`;
+    throw err;
   }
 
   const api = async <T>(method: string, pathname: string, token?: string, body?: unknown) => {
@@ -129,7 +231,13 @@ export async function startStack(opts: StackOptions = {}): Promise<Stack> {
       body: body === undefined ? undefined : JSON.stringify(body),
     });
     const text = await res.text();
-    return { status: res.status, body: (text ? JSON.parse(text) : null) as T };
+    let parsed: unknown = null;
+    try {
+      parsed = text ? JSON.parse(text) : null;
+    } catch {
+      throw new Error(`${method} ${pathname}: ${res.status}, not JSON: ${text.slice(0, 200)}`);
+    }
+    return { status: res.status, body: parsed as T };
   };
 
   return {
@@ -139,15 +247,18 @@ export async function startStack(opts: StackOptions = {}): Promise<Stack> {
     smtpPort,
     controlPort,
     dataDir,
+    logDir,
+    devicesFile: path.join(dataDir, 'demo-devices.json'),
     api,
     startSimulator,
+    startSimulatorReady,
     async control(pathname, body) {
       const res = await fetch(`http://127.0.0.1:${controlPort}${pathname}`, {
         method: 'POST',
         headers: { 'content-type': 'application/json' },
         body: JSON.stringify(body ?? {}),
       });
-      if (!res.ok) throw new Error(`simulator control ${pathname}: ${res.status}`);
+      if (!res.ok) throw new Error(`simulator control ${pathname}: ${res.status} ${await res.text()}; see ${logOf('simulator')}`);
       return res.json();
     },
     async login(email) {
@@ -156,15 +267,17 @@ export async function startStack(opts: StackOptions = {}): Promise<Stack> {
       return res.body.token;
     },
     async stop() {
-      for (const child of children.reverse()) await exitOf(child);
-      fs.rmSync(dataDir, { recursive: true, force: true });
+      await stopAll();
+      if (!process.env.KEEP_E2E_DATA) fs.rmSync(dataDir, { recursive: true, force: true });
     },
   };
 }
 
 export async function launchBrowser(): Promise<Browser> {
+  const executablePath = process.env.CHROMIUM_PATH || '/usr/bin/chromium';
+  if (!fs.existsSync(executablePath)) throw new Error(`no Chromium at ${executablePath} (apt-get install -y chromium, or set CHROMIUM_PATH)`);
   return chromium.launch({
-    executablePath: process.env.CHROMIUM_PATH || '/usr/bin/chromium',
+    executablePath,
     args: [
       '--headless',
       '--no-sandbox',
@@ -186,6 +299,7 @@ export async function signIn(page: Page, stack: Stack, email: string): Promise<v
   await page.waitForURL((url) => !url.pathname.startsWith('/sign-in'), { timeout: 20000 });
 }
 
+/** A full-page screenshot in test-output/screenshots/<name>.png; returns the file. */
 export async function shot(page: Page, name: string): Promise<string> {
   fs.mkdirSync(SHOTS, { recursive: true });
   const file = path.join(SHOTS, `${name}.png`);
