@@ -27,6 +27,8 @@ export interface ReadingsMessage {
 
 const watchSchema = z.object({
   fleet: z.boolean().optional(),
+  /** Alarm events of the whole fleet, without the fleet's readings. */
+  alarms: z.boolean().optional(),
   siteIds: z.array(z.number().int().positive()).max(1000).optional(),
   engineIds: z.array(z.number().int().positive()).max(5000).optional(),
 });
@@ -34,6 +36,9 @@ const watchSchema = z.object({
 interface Pending { values: Partial<Record<ChannelKey, LatestValue>>; timer: NodeJS.Timeout | null; dirty: boolean }
 
 const SITE_CACHE_MS = 60_000;
+
+/** Room of `alarm` events: every alarm change of the fleet, and nothing else. */
+export const ALARMS_ROOM = 'alarms';
 
 export class LivePush {
   readonly io: Server;
@@ -62,11 +67,12 @@ export class LivePush {
     socket.on('watch', (raw: unknown, ack?: unknown) => {
       const parsed = watchSchema.safeParse(raw);
       const reply = typeof ack === 'function' ? (ack as (x: unknown) => void) : () => undefined;
-      if (!parsed.success) return reply({ error: 'watch takes { fleet?, siteIds?, engineIds? }' });
+      if (!parsed.success) return reply({ error: 'watch takes { fleet?, alarms?, siteIds?, engineIds? }' });
       // a new watch replaces the previous one
       for (const room of socket.rooms) if (room !== socket.id) void socket.leave(room);
       const rooms: string[] = [];
       if (parsed.data.fleet) rooms.push('fleet');
+      if (parsed.data.alarms) rooms.push(ALARMS_ROOM);
       for (const id of parsed.data.siteIds ?? []) rooms.push(`site:${id}`);
       for (const id of parsed.data.engineIds ?? []) rooms.push(`engine:${id}`);
       void socket.join(rooms);

@@ -14,6 +14,7 @@ import { mailAdminRouter } from '../../routes/mail-admin';
 import { oncallRouter } from '../../routes/oncall';
 import { rulesRouter } from '../../routes/rules';
 import type { Telemetry } from '../../telemetry/types';
+import { ALARMS_ROOM } from '../../realtime/live-push';
 import { loadAlarmSettings, type AlarmSettings } from './alarm-settings';
 import { AlarmService, type AlarmView } from './alarm-service';
 import { EngineDirectory } from './engine-directory';
@@ -62,10 +63,8 @@ export function createAlarmFeature(ctx: AppContext, settings: AlarmSettings = lo
     notifier,
     ruleDef: (engineId, key) => rules.ruleDef(engineId, key),
     publish: (view: AlarmView) => {
-      if (!emit) return;
-      emit('fleet', 'alarm', view);
-      emit(`engine:${view.engineId}`, 'alarm', view);
-      if (view.siteId !== null) emit(`site:${view.siteId}`, 'alarm', view);
+      // one room for alarm events: browsers get them without the fleet's readings, and once each
+      if (emit) emit(ALARMS_ROOM, 'alarm', view);
     },
   });
   rules = new RuleEngine({ models, log, directory, alarms, lastSeen: (id) => lastSeen(id) });

@@ -14,7 +14,7 @@ const RELOAD_EVERY_MS = 60_000;
 
 /**
  * Feeds AlarmStore while someone is signed in: the open alarms and the summary from the API, then
- * every `alarm` event of the fleet room. Started once by the app shell; sets the app bar count.
+ * every `alarm` event of the alarms room. Started once by the app shell; sets the app bar count.
  */
 @Injectable({ providedIn: 'root' })
 export class AlarmFeed {
@@ -58,7 +58,8 @@ export class AlarmFeed {
 
   private start(): void {
     if (this.unwatch) return;
-    this.unwatch = this.live.watch({ fleet: true });
+    // the alarms room only: the fleet's readings are for screens that show them
+    this.unwatch = this.live.watch({ alarms: true });
     this.sub = this.live.alarms$.subscribe((msg) => {
       this.store.apply(msg as unknown as Alarm);
       this.summarySoon();

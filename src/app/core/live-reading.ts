@@ -20,6 +20,8 @@ export interface LiveReadings {
 /** What a screen wants pushed to it (socket.io `watch`). */
 export interface WatchRequest {
   fleet?: true;
+  /** Alarm events of the whole fleet (room `alarms`), without any readings. */
+  alarms?: true;
   siteIds?: number[];
   engineIds?: number[];
 }

@@ -25,7 +25,7 @@ export class LiveService {
   /** Every `readings` message, for all that is watched. */
   readonly readings$: Observable<LiveReadings> = this.readingsSubject.asObservable().pipe(share());
   readonly connection = this.connectionSignal.asReadonly();
-  /** Every `alarm` message (an alarm changed), for all that is watched. */
+  /** Every `alarm` message (an alarm changed); they come to a watch with `alarms: true`. */
   readonly alarms$: Observable<LiveAlarmMessage> = this.alarmSubject.asObservable().pipe(share());
 
   constructor() {
@@ -101,13 +101,16 @@ export function mergeWatches(requests: WatchRequest[]): WatchRequest {
   const siteIds = new Set<number>();
   const engineIds = new Set<number>();
   let fleet = false;
+  let alarms = false;
   for (const r of requests) {
     if (r.fleet) fleet = true;
+    if (r.alarms) alarms = true;
     r.siteIds?.forEach((id) => siteIds.add(id));
     r.engineIds?.forEach((id) => engineIds.add(id));
   }
   const merged: WatchRequest = {};
   if (fleet) merged.fleet = true;
+  if (alarms) merged.alarms = true;
   if (siteIds.size) merged.siteIds = [...siteIds];
   if (engineIds.size) merged.engineIds = [...engineIds];
   return merged;
