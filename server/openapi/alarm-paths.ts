@@ -63,6 +63,23 @@ export const alarmsOpenApi: OpenApiGroup = {
       },
       post: { summary: 'Add a shift (planner, admin)', requestBody: body(ref('OncallShiftInput')), responses: { '201': json(ref('OncallShift')), ...errors({ admin: true, input: true }) } },
     },
+    '/api/people': {
+      get: {
+        summary: 'People for the on-call rota: enabled accounts, read-only (planner, admin)',
+        parameters: [{ name: 'role', in: 'query', description: 'one role or several, comma-separated', schema: { type: 'string', example: 'technician,planner' } }],
+        responses: {
+          '200': json({
+            type: 'array',
+            items: {
+              type: 'object',
+              required: ['id', 'name', 'email', 'role'],
+              properties: { id: { type: 'integer' }, name: { type: 'string' }, email: { type: 'string' }, role: { enum: ['admin', 'planner', 'technician', 'operator'] } },
+            },
+          }),
+          ...errors({ admin: true, input: true }),
+        },
+      },
+    },
     '/api/oncall/{id}': {
       parameters: [idParam],
       patch: { summary: 'Change a shift (planner, admin)', requestBody: body(ref('OncallShiftInput')), responses: { '200': json(ref('OncallShift')), ...errors({ admin: true, input: true, notFound: true }) } },

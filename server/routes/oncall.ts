@@ -2,7 +2,8 @@ import { Router } from 'express';
 import { z } from 'zod';
 import { requireAuth, requireRole } from '../auth/middleware';
 import type { AppContext } from '../app-context';
-import { createShift, deleteShift, listShifts, updateShift } from '../services/alarms/oncall';
+import { ROLES } from '../models/user';
+import { createShift, deleteShift, listPeople, listShifts, updateShift } from '../services/alarms/oncall';
 import { instant, parse, parseId } from './validate';
 
 const fields = {
@@ -14,11 +15,25 @@ const fields = {
 };
 const createBody = z.strictObject({ ...fields, backupUserId: fields.backupUserId.default(null) });
 const patchBody = z.strictObject(fields).partial();
+const peopleQuery = z.object({
+  // one role or several, comma-separated: ?role=technician,planner
+  role: z
+    .string()
+    .transform((v) => v.split(',').map((x) => x.trim()).filter(Boolean))
+    .pipe(z.array(z.enum(ROLES)).min(1, 'name at least one role'))
+    .optional(),
+});
 const listQuery = z.object({ siteId: z.coerce.number().int().positive().optional(), from: instant.optional(), to: instant.optional() });
 
-/** /api/oncall: the on-call rota. Everyone signed in reads; planners and admins change it. */
+/**
+ * /api/oncall: the on-call rota. Everyone signed in reads; planners and admins change it.
+ * /api/people: who can be put on the rota (id, name, e-mail, role), read-only, for planners and admins.
+ */
 export function oncallRouter(ctx: AppContext): Router {
   const r = Router();
+  r.get('/people', requireAuth, requireRole('planner', 'admin'), async (req, res) => {
+    res.json(await listPeople(ctx.models, parse(peopleQuery, req.query).role));
+  });
   r.use('/oncall', requireAuth);
   r.get('/oncall', async (req, res) => {
     res.json(await listShifts(ctx.models, parse(listQuery, req.query)));

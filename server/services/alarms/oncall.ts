@@ -109,3 +109,13 @@ export async function onCallFor(models: Models, siteId: number, at: number): Pro
   const backup = shift.backupUserId === null ? null : active(await models.User.findByPk(shift.backupUserId));
   return { primary, backup };
 }
+
+export interface PersonView { id: number; name: string; email: string; role: string }
+
+/** People (enabled accounts) to choose from for the rota, optionally of some roles: no admin rights needed. */
+export async function listPeople(models: Models, roles?: string[]): Promise<PersonView[]> {
+  const where: Record<string, unknown> = { disabled: false };
+  if (roles?.length) where.role = { [Op.in]: roles };
+  const users = await models.User.findAll({ where, order: [['name', 'ASC'], ['id', 'ASC']] });
+  return users.map((u) => ({ id: u.id, name: u.name, email: u.email, role: u.role }));
+}

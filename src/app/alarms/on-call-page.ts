@@ -92,7 +92,7 @@ export class OnCallPage {
     return formatTime(t);
   }
 
-  /** People who may be on call. The user list is for administrators; a planner picks from the rota's own names. */
+  /** People who may be on call (GET /api/people); until that list arrives, the rota's own names. */
   private people(): Person[] {
     const list = this.users();
     if (list) return list;
@@ -142,10 +142,10 @@ export class OnCallPage {
   }
 
   private async loadPeople(): Promise<void> {
-    if (!this.auth.hasRole('admin')) return;
+    if (!this.auth.hasRole('planner', 'admin')) return;
     try {
-      const users = await firstValueFrom(this.http.get<{ id: number; name: string; role: string; disabled?: boolean }[]>('/api/users'));
-      this.users.set(users.filter((u) => ONCALL_ROLES.includes(u.role) && !u.disabled).map((u) => ({ id: u.id, name: u.name })));
+      const people = await firstValueFrom(this.http.get<Person[]>('/api/people', { params: { role: ONCALL_ROLES.join(',') } }));
+      this.users.set(people.map((p) => ({ id: p.id, name: p.name, role: p.role })));
     } catch {
       /* falls back to the names in the rota */
     }

@@ -8,7 +8,8 @@ import { MatSelectModule } from '@angular/material/select';
 
 export interface Shift { id: number; siteId: number; userId: number; userName: string | null; backupUserId: number | null; backupUserName: string | null; startsAt: string; endsAt: string }
 export interface ShiftInput { siteId: number; userId: number; backupUserId: number | null; startsAt: string; endsAt: string }
-export interface Person { id: number; name: string }
+/** Someone who can be on call (from GET /api/people); role when known, shown beside the name. */
+export interface Person { id: number; name: string; role?: string }
 export interface ShiftDialogData { shift: Shift | null; sites: { id: number; name: string }[]; people: Person[] }
 
 /** "2026-12-02T08:00" in the browser's time zone, for a datetime-local input. */
@@ -37,13 +38,13 @@ function endsAfterStart(group: AbstractControl): ValidationErrors | null {
           <mat-error>Choose a site.</mat-error>
         </mat-form-field>
         <mat-form-field appearance="outline"><mat-label>On call</mat-label>
-          <mat-select formControlName="userId" required>@for (p of data.people; track p.id) { <mat-option [value]="p.id">{{ p.name }}</mat-option> }</mat-select>
+          <mat-select formControlName="userId" required>@for (p of data.people; track p.id) { <mat-option [value]="p.id">{{ p.name }}@if (p.role) { ({{ p.role }}) }</mat-option> }</mat-select>
           <mat-error>Choose who is on call.</mat-error>
         </mat-form-field>
         <mat-form-field appearance="outline"><mat-label>Backup</mat-label>
           <mat-select formControlName="backupUserId">
             <mat-option [value]="null">No backup</mat-option>
-            @for (p of data.people; track p.id) { <mat-option [value]="p.id">{{ p.name }}</mat-option> }
+            @for (p of data.people; track p.id) { <mat-option [value]="p.id">{{ p.name }}@if (p.role) { ({{ p.role }}) }</mat-option> }
           </mat-select>
         </mat-form-field>
         <mat-form-field appearance="outline"><mat-label>From</mat-label>
