@@ -44,10 +44,12 @@ describe('engine evaluator with the default profile', () => {
     expect(keys(hits).filter((k) => k.endsWith('coolant_temp_high'))).toEqual(['raise:coolant_temp_high']);
   });
 
-  it('low pressure only while running', () => {
+  it('low pressure only while running and warm (a cold start sits near 0 kPa gauge)', () => {
     const ev = new EngineEvaluator(engine, DEFAULT_RULES);
     expect(keys(ev.feed(samples(0, 60, () => 40, { rpm: 0, kpa: 5 })))).toEqual([]);
-    const hits = ev.feed(samples(60, 90, () => 40, { rpm: 1800, kpa: 5 }));
+    // running but still cold: the rule is not armed yet
+    expect(keys(ev.feed(samples(60, 90, () => 40, { rpm: 1800, kpa: 5 })))).not.toContain('raise:coolant_pressure_low_running');
+    const hits = ev.feed(samples(90, 120, () => 85, { rpm: 1800, kpa: 5 }));
     expect(keys(hits)).toContain('raise:coolant_pressure_low_running');
   });
 

@@ -112,9 +112,21 @@ function step(slot: Slot, input: RuleInput & { channel?: ChannelKey }): StepResu
   }
 }
 
+/**
+ * A running-only rule with `armedAtTempC` is judged only once the coolant is that warm: a healthy system
+ * sits near 0 kPa gauge and warms quickly right after a cold start (common practice), so pressure-low and
+ * rising-fast rules would cry wolf at every start. Below it the rule sees the engine as "not running".
+ */
+function armTemp(def: RuleDefinition): number | null {
+  const t = def.params.armedAtTempC;
+  return typeof t === 'number' && Number.isFinite(t) ? t : null;
+}
+
 export class EngineEvaluator {
   private readonly slots: Slot[];
   private speed: { ts: number; running: boolean } | null = null;
+  /** Latest good coolant temperature, for rules armed only when warm. */
+  private coolantTemp: number | null = null;
   /** Newest reading time seen: older ones (a gateway's backlog) only count for no-data. */
   private newestTs = -Infinity;
 
@@ -162,13 +174,16 @@ export class EngineEvaluator {
       const late = r.ts < this.newestTs;
       if (!late) this.newestTs = r.ts;
       if (r.channel === 'engine_speed' && r.quality === 0 && !late) this.speed = { ts: r.ts, running: r.value >= RUNNING_RPM };
+      if (r.channel === 'coolant_temp' && r.quality === 0 && !late) this.coolantTemp = r.value;
       const running = this.running(r.ts);
       for (const slot of this.slots) {
         const chans = channelsOf(slot.def);
         if (chans === null) {
           this.apply(slot, { ts: r.ts, value: r.value, quality: r.quality }, hits);
         } else if (!late && chans.includes(r.channel)) {
-          this.apply(slot, { ts: r.ts, value: r.value, quality: r.quality, running, channel: r.channel }, hits);
+          const arm = armTemp(slot.def);
+          const armed = arm === null || running !== true ? running : this.coolantTemp !== null && this.coolantTemp >= arm;
+          this.apply(slot, { ts: r.ts, value: r.value, quality: r.quality, running: armed, channel: r.channel }, hits);
         }
       }
     }

@@ -2,6 +2,8 @@
  * Rule definitions: what a rule profile holds (one entry per rule) and the default profile.
  * The numbers are starting points of common practice (recalled, not from a published source):
  * an administrator tunes them per engine to the engine maker's figures.
+ * `armedAtTempC` (running-only rules): judged only once the coolant is that warm, so a cold start's
+ * near-zero pressure and quick warm-up raise nothing (see engine-evaluator.ts).
  */
 import type { ChannelKey } from '../../../shared/channels';
 import type { AlarmPriority } from './priority';
@@ -83,7 +85,7 @@ export const DEFAULT_RULES: RuleDefinition[] = [
     title: 'Coolant pressure low while running',
     meaning: 'The cooling system holds too little pressure while the engine runs: a leak, a faulty cap or low coolant level.',
     firstStep: `${HOT_CAP} Look for leaks from a safe distance and watch the temperature; top up only once the engine is stopped and cool. ${DEFER}`,
-    params: { direction: 'low', limit: 30, deadband: 5, onDelayS: 15, offDelayS: 30, onlyWhenRunning: true },
+    params: { direction: 'low', limit: 30, deadband: 5, onDelayS: 15, offDelayS: 30, onlyWhenRunning: true, armedAtTempC: 75 },
   },
   {
     key: 'coolant_pressure_falling_stopped',
@@ -105,7 +107,7 @@ export const DEFAULT_RULES: RuleDefinition[] = [
     title: 'Coolant temperature rising fast',
     meaning: 'The jacket-water temperature climbs faster than a normal warm-up: loss of flow, fan or coolant.',
     firstStep: `${HOT_CAP} Watch the temperature; from a safe distance check the fan, belt and for leaks. ${DEFER}`,
-    params: { direction: 'rising', ratePerMin: 8, windowS: 60, deadbandPerMin: 2, onDelayS: 20, offDelayS: 60, onlyWhenRunning: true },
+    params: { direction: 'rising', ratePerMin: 8, windowS: 60, deadbandPerMin: 2, onDelayS: 20, offDelayS: 60, onlyWhenRunning: true, armedAtTempC: 80 },
   },
   {
     key: 'no_data',
