@@ -3,6 +3,7 @@ import type { AppContext } from '../../app-context';
 import { badRequest, conflict, HttpError, notFound } from '../../http-error';
 import type { WorkOrder, WorkPriority, WorkStatus } from '../../models/work-order';
 import type { AuthUser } from '../../telemetry/types';
+import { formatValue } from '../alarms/value-format';
 import { workTemplate, type WorkKind } from '../work-templates';
 import { pushWorkOrder } from './notify';
 import type { ReadingHistory } from './reading-history';
@@ -90,8 +91,8 @@ export class WorkOrderService {
       const alarm = await this.models.Alarm.findByPk(input.alarmId);
       if (!alarm) throw badRequest('alarm not found', 'alarmId');
       if (alarm.engineId !== engine.id) throw badRequest('alarm belongs to another engine', 'alarmId');
-      const value = alarm.value === null ? '' : `; value ${alarm.value}${alarm.unit ? ` ${alarm.unit}` : ''}`;
-      const worst = alarm.worstValue === null ? '' : `; worst ${alarm.worstValue}${alarm.unit ? ` ${alarm.unit}` : ''}`;
+      const value = alarm.value === null ? '' : `; value ${formatValue(alarm.value, alarm.unit)}`;
+      const worst = alarm.worstValue === null ? '' : `; worst ${formatValue(alarm.worstValue, alarm.unit)}`;
       const fromAlarm = `From alarm #${alarm.id} (${alarm.rule}, ${alarm.priority}) raised ${new Date(alarm.raisedAt).toISOString()}: ${alarm.message}${value}${worst}.`;
       description = description ? `${fromAlarm}\n\n${description}` : fromAlarm;
       if (!input.priority) priority = alarm.priority as WorkPriority;
