@@ -15,6 +15,7 @@ import { initModels, type Models } from './models';
 import { createAlarmFeature, type AlarmFeature } from './services/alarms';
 import { startRunHoursCounting } from './services/coolant';
 import { siteOfEngineLookup } from './services/engines';
+import { siteScopeForUser } from './services/site-access';
 import { startTelemetry } from './telemetry';
 import type { Telemetry } from './telemetry/types';
 
@@ -57,6 +58,7 @@ export async function startServer(config: Config, opts: StartOptions = {}): Prom
     httpServer,
     verifyToken: (t) => tokens.verify(t),
     siteOfEngine: siteOfEngineLookup(models),
+    siteScope: (user) => siteScopeForUser(models, user),
     log,
   });
   ctx.telemetry = telemetry;

@@ -6,10 +6,12 @@ import { DeviceRejection, initDeviceRejection } from './device-rejection';
 import { Engine, initEngine } from './engine';
 import { Site, initSite } from './site';
 import { User, initUser } from './user';
+import { UserSite, initUserSite } from './user-site';
 import { initWorkModels, type WorkModels } from './work-models';
 
 export interface Models extends AlarmModels, WorkModels, CoolantModels {
   User: typeof User;
+  UserSite: typeof UserSite;
   Site: typeof Site;
   Engine: typeof Engine;
   Device: typeof Device;
@@ -20,6 +22,7 @@ export interface Models extends AlarmModels, WorkModels, CoolantModels {
 export function initModels(sequelize: Sequelize): Models {
   const models: Models = {
     User: initUser(sequelize),
+    UserSite: initUserSite(sequelize),
     Site: initSite(sequelize),
     Engine: initEngine(sequelize),
     Device: initDevice(sequelize),
@@ -37,4 +40,4 @@ export function initModels(sequelize: Sequelize): Models {
   return models;
 }
 
-export { Device, DeviceRejection, Engine, Site, User };
+export { Device, DeviceRejection, Engine, Site, User, UserSite };

@@ -99,5 +99,14 @@ export const userPaths: OpenApiGroup = {
       patch: { summary: 'Change a user (admin)', requestBody: body(ref('UserInput')), responses: { '200': json(ref('User')), ...errors({ admin: true, input: true, notFound: true }) } },
       delete: { summary: 'Disable a user (admin)', responses: { '200': json(ref('User')), ...errors({ admin: true, notFound: true }) } },
     },
+    '/api/users/{id}/sites': {
+      parameters: [idParam],
+      put: {
+        summary: 'Limit a user to some sites (admin)',
+        description: 'Replaces the list. A user with sites sees only their engines, readings, alarms, work orders, attachments, coolant tests and due-list items; anything of another site answers 404. Empty list: every site. Admins see every site whatever the list.',
+        requestBody: body(ref('UserSites')),
+        responses: { '200': json(ref('User')), ...errors({ admin: true, input: true, notFound: true }) },
+      },
+    },
   },
 };

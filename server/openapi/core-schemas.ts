@@ -24,7 +24,12 @@ export const coreSchemas: Record<string, Json> = {
   Error: { type: 'object', required: ['error'], properties: { error: { type: 'string' }, field: { type: 'string' } } },
   User: {
     type: 'object',
-    properties: { id: { type: 'integer' }, email: { type: 'string' }, name: { type: 'string' }, role: { enum: ['admin', 'planner', 'technician', 'operator'] }, disabled: { type: 'boolean' }, createdAt: { type: 'string', format: 'date-time' }, updatedAt: { type: 'string', format: 'date-time' } },
+    properties: { id: { type: 'integer' }, email: { type: 'string' }, name: { type: 'string' }, role: { enum: ['admin', 'planner', 'technician', 'operator'] }, disabled: { type: 'boolean' }, createdAt: { type: 'string', format: 'date-time' }, updatedAt: { type: 'string', format: 'date-time' },
+      siteIds: { type: 'array', items: { type: 'integer' }, description: 'sites the user is limited to (admin views); empty: every site. Admins always see every site' } },
+  },
+  UserSites: {
+    type: 'object', required: ['siteIds'], additionalProperties: false,
+    properties: { siteIds: { type: 'array', items: { type: 'integer', minimum: 1 }, maxItems: 1000, description: 'empty: the user sees every site again' } },
   },
   UserInput: {
     type: 'object',

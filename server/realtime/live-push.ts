@@ -14,6 +14,8 @@ export interface LivePushOptions {
   httpServer: http.Server;
   verifyToken(token: string): AuthUser | null;
   siteOfEngine(engineId: number): Promise<number | null>;
+  /** Sites the user may see (server/services/site-access.ts); absent: every site. */
+  siteScope?(user: AuthUser): Promise<{ all: boolean; siteIds: readonly number[] }>;
   log: Logger;
   throttleMs?: number;
 }
@@ -39,6 +41,8 @@ const SITE_CACHE_MS = 60_000;
 
 /** Room of `alarm` events: every alarm change of the fleet, and nothing else. */
 export const ALARMS_ROOM = 'alarms';
+/** Alarm events of one site, for users limited to some sites (they never join ALARMS_ROOM). */
+export const alarmsSiteRoom = (siteId: number) => `alarms:site:${siteId}`;
 
 export class LivePush {
   readonly io: Server;
@@ -68,35 +72,64 @@ export class LivePush {
       const parsed = watchSchema.safeParse(raw);
       const reply = typeof ack === 'function' ? (ack as (x: unknown) => void) : () => undefined;
       if (!parsed.success) return reply({ error: 'watch takes { fleet?, alarms?, siteIds?, engineIds? }' });
-      // a new watch replaces the previous one
-      for (const room of socket.rooms) if (room !== socket.id) void socket.leave(room);
-      const rooms: string[] = [];
-      if (parsed.data.fleet) rooms.push('fleet');
-      if (parsed.data.alarms) rooms.push(ALARMS_ROOM);
-      for (const id of parsed.data.siteIds ?? []) rooms.push(`site:${id}`);
-      for (const id of parsed.data.engineIds ?? []) rooms.push(`engine:${id}`);
-      void socket.join(rooms);
-      reply({ rooms });
+      const seq = (socket.data.watchSeq = ((socket.data.watchSeq as number | undefined) ?? 0) + 1);
+      this.allowedRooms(socket.data.user as AuthUser, parsed.data).then((rooms) => {
+        if (seq !== socket.data.watchSeq) return; // a later watch won
+        // a new watch replaces the previous one
+        for (const room of socket.rooms) if (room !== socket.id) void socket.leave(room);
+        void socket.join(rooms);
+        reply({ rooms });
+      }, (err) => {
+        this.opts.log.warn('live push: watch failed', err instanceof Error ? err.message : err);
+        reply({ error: 'watch failed' });
+      });
     });
+  }
+
+  /** Rooms of a watch, limited to the user's sites: fleet becomes their sites, other sites and engines are left out. */
+  private async allowedRooms(user: AuthUser, w: z.infer<typeof watchSchema>): Promise<string[]> {
+    const scope = this.opts.siteScope ? await this.opts.siteScope(user) : { all: true, siteIds: [] };
+    const rooms: string[] = [];
+    if (scope.all) {
+      if (w.fleet) rooms.push('fleet');
+      if (w.alarms) rooms.push(ALARMS_ROOM);
+      for (const id of w.siteIds ?? []) rooms.push(`site:${id}`);
+      for (const id of w.engineIds ?? []) rooms.push(`engine:${id}`);
+      return rooms;
+    }
+    const mine = new Set(scope.siteIds);
+    if (w.fleet) for (const id of mine) rooms.push(`site:${id}`);
+    if (w.alarms) for (const id of mine) rooms.push(alarmsSiteRoom(id));
+    for (const id of w.siteIds ?? []) if (mine.has(id) && !w.fleet) rooms.push(`site:${id}`);
+    for (const id of w.engineIds ?? []) {
+      const siteId = await this.opts.siteOfEngine(id);
+      if (siteId !== null && mine.has(siteId)) rooms.push(`engine:${id}`);
+    }
+    return rooms;
   }
 
   emit(room: string, event: string, payload: unknown): void {
     this.io.to(room).emit(event, payload);
   }
 
-  /** Takes every accepted batch; sends per engine, throttled. */
+  /** Takes every accepted batch; sends per engine, throttled. O(readings): only the engines in the batch are looked at. */
   push(readings: AcceptedReading[]): void {
-    for (const r of readings) {
-      let p = this.pending.get(r.engineId);
+    let last: Pending | null = null;
+    let lastEngine = -1;
+    for (let i = 0; i < readings.length; i++) {
+      const r = readings[i];
+      let p: Pending | undefined = r.engineId === lastEngine && last ? last : this.pending.get(r.engineId);
       if (!p) {
         p = { values: {}, timer: null, dirty: false };
         this.pending.set(r.engineId, p);
       }
       const prev = p.values[r.channel];
       if (!prev || r.ts >= prev.ts) { p.values[r.channel] = { value: r.value, ts: r.ts, quality: r.quality }; p.dirty = true; }
-    }
-    for (const [engineId, p] of this.pending) {
-      if (p.dirty && !p.timer) this.send(engineId, p); // leading edge
+      // a batch is nearly always one engine's: send on its last reading, or when the engine changes
+      const next = readings[i + 1];
+      if ((!next || next.engineId !== r.engineId) && p.dirty && !p.timer) this.send(r.engineId, p); // leading edge
+      last = p;
+      lastEngine = r.engineId;
     }
   }
 

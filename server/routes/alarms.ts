@@ -1,10 +1,11 @@
-import { Router } from 'express';
+import { Router, type Request } from 'express';
 import { z } from 'zod';
 import { SHELVE_MAX_MINUTES, SHELVE_MIN_MINUTES } from '../../shared/alarms/alarm-state';
 import { requireAuth, requireRole } from '../auth/middleware';
 import type { AppContext } from '../app-context';
 import { badRequest } from '../http-error';
 import type { AlarmFeature } from '../services/alarms';
+import { assertAlarmVisible, siteScopeOf, visibleEngineIds } from '../services/site-access';
 import { instant, parse, parseId } from './validate';
 
 const listQuery = z.object({
@@ -22,16 +23,19 @@ const DAY = 86400_000;
 const perfQuery = z.object({ from: instant.optional(), to: instant.optional() });
 
 /** /api/alarms: lists, one alarm with history, acknowledge, shelve, notes, summary and performance. */
-export function alarmsRouter(_ctx: AppContext, feature: AlarmFeature): Router {
+export function alarmsRouter(ctx: AppContext, feature: AlarmFeature): Router {
   const r = Router();
   const svc = feature.alarms;
+  // engines the caller may see (null: all); an alarm of another site reads as not found
+  const engineIds = async (req: Request) => visibleEngineIds(ctx.models, await siteScopeOf(req));
+  const visible = async (req: Request, id: number) => assertAlarmVisible(ctx.models, await siteScopeOf(req), id);
   r.use('/alarms', requireAuth);
   r.get('/alarms', async (req, res) => {
     const q = parse(listQuery, req.query);
-    res.json(await svc.list(q));
+    res.json(await svc.list({ ...q, engineIds: (await engineIds(req)) ?? undefined }));
   });
-  r.get('/alarms/summary', async (_req, res) => {
-    res.json(await svc.summary());
+  r.get('/alarms/summary', async (req, res) => {
+    res.json(await svc.summary(Date.now(), (await engineIds(req)) ?? undefined));
   });
   r.get('/alarms/performance', async (req, res) => {
     const q = parse(perfQuery, req.query);
@@ -39,27 +43,34 @@ export function alarmsRouter(_ctx: AppContext, feature: AlarmFeature): Router {
     const from = q.from ?? to - 7 * DAY;
     if (from >= to) throw badRequest('from must be before to', 'from');
     if (to - from > 400 * DAY) throw badRequest('span is at most 400 days', 'from');
-    res.json(await svc.performance(from, to));
+    res.json(await svc.performance(from, to, (await engineIds(req)) ?? undefined));
   });
   r.get('/alarms/:id', async (req, res) => {
-    res.json(await svc.get(parseId(req.params)));
+    const id = parseId(req.params);
+    await visible(req, id);
+    res.json(await svc.get(id));
   });
   r.post('/alarms/:id/acknowledge', requireRole('operator', 'technician', 'planner', 'admin'), async (req, res) => {
     const id = parseId(req.params);
     const b = parse(ackBody, req.body ?? undefined);
+    await visible(req, id);
     res.json(await svc.acknowledge(id, req.user!, b?.note || null));
   });
   r.post('/alarms/:id/shelve', requireRole('planner', 'admin'), async (req, res) => {
     const id = parseId(req.params);
     const b = parse(shelveBody, req.body);
+    await visible(req, id);
     res.json(await svc.shelve(id, req.user!, b.minutes, b.reason));
   });
   r.post('/alarms/:id/unshelve', requireRole('planner', 'admin'), async (req, res) => {
-    res.json(await svc.unshelve(parseId(req.params), req.user!));
+    const id = parseId(req.params);
+    await visible(req, id);
+    res.json(await svc.unshelve(id, req.user!));
   });
   r.post('/alarms/:id/notes', requireRole('operator', 'technician', 'planner', 'admin'), async (req, res) => {
     const id = parseId(req.params);
     const b = parse(noteBody, req.body);
+    await visible(req, id);
     res.status(201).json(await svc.addNote(id, req.user!, b.note));
   });
   return r;

@@ -12,6 +12,7 @@ import { importLabCsv, listCoolantTests, recordCoolantTest } from '../services/c
 import { runHoursCounterFor } from '../services/coolant';
 import { correctRunHours, runHoursHistory } from '../services/coolant/run-hours';
 import { clearOverride, computeDueList, enginePlan, setOverride } from '../services/coolant/service-plan';
+import { assertEngineVisible, siteFilter, siteScopeOf } from '../services/site-access';
 import { instant, parse, parseId } from './validate';
 
 export const LAB_CSV_MAX_BYTES = 2 * 1024 * 1024;
@@ -77,6 +78,13 @@ export function coolantRouter(ctx: AppContext): Router {
   const r = Router();
   const m = ctx.models;
   for (const p of ['/engines/:id/coolant-tests', '/engines/:id/run-hours', '/engines/:id/service-plan', '/coolant-tests', '/additive-profile', '/due-list']) r.use(p, requireAuth);
+  // an engine of a site the caller may not see reads as not found
+  for (const p of ['/engines/:id/coolant-tests', '/engines/:id/run-hours', '/engines/:id/service-plan']) {
+    r.use(p, async (req, _res, next) => {
+      await assertEngineVisible(m, await siteScopeOf(req), parseId(req.params));
+      next();
+    });
+  }
 
   r.get('/engines/:id/coolant-tests', async (req, res) => {
     res.json(await listCoolantTests(m, parseId(req.params)));
@@ -93,7 +101,7 @@ export function coolantRouter(ctx: AppContext): Router {
     const q = parse(importQuery, req.query);
     if (!req.file) throw badRequest('send the CSV as multipart/form-data in the field "file"', 'file');
     const preview = q.preview === '1' || q.preview === 'true';
-    const out = await importLabCsv(m, req.file.buffer, { preview, userId: req.user!.id, engineId: q.engineId });
+    const out = await importLabCsv(m, req.file.buffer, { preview, userId: req.user!.id, engineId: q.engineId, scope: await siteScopeOf(req) });
     res.status(preview || out.stored === 0 ? 200 : 201).json(out);
   });
 
@@ -126,7 +134,8 @@ export function coolantRouter(ctx: AppContext): Router {
 
   r.get('/due-list', async (req, res) => {
     const q = parse(dueQuery, req.query);
-    res.json(await computeDueList(m, { siteId: q.siteId, engineId: q.engineId, windowDays: q.windowDays, windowHours: q.windowHours, includeOk: q.include === 'all', now: Date.now() }));
+    const siteIds = siteFilter(await siteScopeOf(req), q.siteId) ?? undefined;
+    res.json(await computeDueList(m, { siteId: q.siteId, siteIds, engineId: q.engineId, windowDays: q.windowDays, windowHours: q.windowHours, includeOk: q.include === 'all', now: Date.now() }));
   });
   return r;
 }

@@ -8,6 +8,7 @@ import { COOLANT_FAMILIES, DUTIES, GLYCOL_TYPES } from '../models/engine';
 import { activeAlarmCounts } from '../services/alarms/alarm-service';
 import { createEngine, engineView, getEngine, listEngines, retireEngine, updateEngine } from '../services/engines';
 import { queryBuckets } from '../services/readings-query';
+import { assertEngineVisible, siteFilter, siteScopeOf } from '../services/site-access';
 import { instant, parse, parseId } from './validate';
 
 const range = (min: number, max: number, unit: string) => z.number().min(min, `at least ${min} ${unit}`).max(max, `at most ${max} ${unit}`);
@@ -58,12 +59,15 @@ export function enginesRouter(ctx: AppContext): Router {
   r.use('/engines', requireAuth);
   r.get('/engines', async (req, res) => {
     const q = parse(listQuery, req.query);
-    const engines = await listEngines(ctx.models, { siteId: q.siteId, includeRetired: q.includeRetired === 'true' });
+    const siteIds = siteFilter(await siteScopeOf(req), q.siteId);
+    const engines = await listEngines(ctx.models, { siteIds: siteIds ?? undefined, includeRetired: q.includeRetired === 'true' });
     const alarmCounts = await activeAlarmCounts(ctx.models);
     res.json(engines.map((e) => ({ ...engineView(e, live()), activeAlarms: alarmCounts.get(e.id) ?? 0 })));
   });
   r.get('/engines/:id', async (req, res) => {
-    const engine = await getEngine(ctx.models, parseId(req.params));
+    const id = parseId(req.params);
+    await assertEngineVisible(ctx.models, await siteScopeOf(req), id);
+    const engine = await getEngine(ctx.models, id);
     res.json({ ...engineView(engine, live()), activeAlarms: (await activeAlarmCounts(ctx.models)).get(engine.id) ?? 0 });
   });
   r.get('/engines/:id/readings', async (req, res) => {
@@ -73,6 +77,7 @@ export function enginesRouter(ctx: AppContext): Router {
     const from = q.from ?? to - DAY_MS;
     if (from >= to) throw badRequest('from must be before to', 'from');
     if (to - from > 400 * DAY_MS) throw badRequest('span is at most 400 days', 'from');
+    await assertEngineVisible(ctx.models, await siteScopeOf(req), id);
     await getEngine(ctx.models, id);
     res.json(await queryBuckets(ctx.sequelize, { engineId: id, channel: q.channel as (typeof CHANNEL_KEYS)[number], from, to, points: q.points }));
   });

@@ -2,6 +2,7 @@ import { Router } from 'express';
 import { z } from 'zod';
 import { requireAuth, requireRole } from '../auth/middleware';
 import type { AppContext } from '../app-context';
+import { siteScopeOf } from '../services/site-access';
 import { createSite, listSites, retireSite, updateSite } from '../services/sites';
 import { parse, parseId, timeZone } from './validate';
 
@@ -15,7 +16,7 @@ export function sitesRouter(ctx: AppContext): Router {
   r.use('/sites', requireAuth);
   r.get('/sites', async (req, res) => {
     const q = parse(listQuery, req.query);
-    res.json(await listSites(ctx.models, q.includeRetired === 'true'));
+    res.json(await listSites(ctx.models, q.includeRetired === 'true', await siteScopeOf(req)));
   });
   r.post('/sites', requireRole('admin'), async (req, res) => {
     res.status(201).json(await createSite(ctx.models, parse(createBody, req.body)));

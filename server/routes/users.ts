@@ -3,7 +3,7 @@ import { z } from 'zod';
 import { requireAuth, requireRole } from '../auth/middleware';
 import type { AppContext } from '../app-context';
 import { ROLES } from '../models/user';
-import { createUser, disableUser, listUsers, updateUser } from '../services/users';
+import { createUser, disableUser, listUsers, setSitesOfUser, updateUser, userView, userViews } from '../services/users';
 import { parse, parseId } from './validate';
 
 const userFields = {
@@ -14,22 +14,27 @@ const userFields = {
 };
 const createBody = z.strictObject(userFields);
 const patchBody = z.strictObject({ ...userFields, disabled: z.boolean() }).partial();
+const sitesBody = z.strictObject({ siteIds: z.array(z.number().int().positive()).max(1000) });
 
 export function usersRouter(ctx: AppContext): Router {
   const r = Router();
   r.use('/users', requireAuth, requireRole('admin'));
   r.get('/users', async (_req, res) => {
-    res.json(await listUsers(ctx.models));
+    res.json(await userViews(ctx.models, await listUsers(ctx.models)));
   });
   r.post('/users', async (req, res) => {
-    res.status(201).json(await createUser(ctx.models, parse(createBody, req.body)));
+    res.status(201).json(await userView(ctx.models, await createUser(ctx.models, parse(createBody, req.body))));
   });
   r.patch('/users/:id', async (req, res) => {
     const id = parseId(req.params);
-    res.json(await updateUser(ctx.models, req.user!.id, id, parse(patchBody, req.body)));
+    res.json(await userView(ctx.models, await updateUser(ctx.models, req.user!.id, id, parse(patchBody, req.body))));
+  });
+  r.put('/users/:id/sites', async (req, res) => {
+    const id = parseId(req.params);
+    res.json(await setSitesOfUser(ctx.models, id, parse(sitesBody, req.body).siteIds));
   });
   r.delete('/users/:id', async (req, res) => {
-    res.json(await disableUser(ctx.models, req.user!.id, parseId(req.params)));
+    res.json(await userView(ctx.models, await disableUser(ctx.models, req.user!.id, parseId(req.params))));
   });
   return r;
 }

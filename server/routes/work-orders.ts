@@ -8,6 +8,7 @@ import { PART_KINDS } from '../models/work-order-part';
 import { WORK_PRIORITIES, WORK_STATUSES } from '../models/work-order';
 import type { Telemetry } from '../telemetry/types';
 import { WORK_KINDS, WORK_TEMPLATES } from '../services/work-templates';
+import { assertAttachmentVisible, assertEngineVisible, assertWorkOrderVisible, engineVisible, siteScopeOf, visibleEngineIds } from '../services/site-access';
 import { addAttachment, attachmentFile, MAX_ATTACHMENT_BYTES } from '../services/work-orders/attachment-service';
 import { computeGate } from '../services/work-orders/gate';
 import { ReadingHistory } from '../services/work-orders/reading-history';
@@ -126,13 +127,21 @@ export function workOrdersRouterWithService(ctx: AppContext): WorkRouterHandle {
     }
   };
   for (const p of ['/work-orders', '/work-order-templates', '/attachments', '/engines/:id/opening-check']) r.use(p, requireAuth, (_req, _res, next) => { attach(); next(); });
+  // a work order of a site the caller may not see reads as not found, whatever is done to it
+  r.use('/work-orders/:id', async (req, _res, next) => {
+    const id = Number(req.params.id);
+    if (Number.isInteger(id) && id > 0) await assertWorkOrderVisible(ctx.models, await siteScopeOf(req), id);
+    next();
+  });
 
   r.get('/work-order-templates', (_req, res) => {
     res.json(WORK_TEMPLATES);
   });
 
   r.get('/engines/:id/opening-check', async (req, res) => {
-    const engine = await ctx.models.Engine.findByPk(parseId(req.params));
+    const id = parseId(req.params);
+    await assertEngineVisible(ctx.models, await siteScopeOf(req), id);
+    const engine = await ctx.models.Engine.findByPk(id);
     if (!engine) throw new HttpError(404, 'engine not found');
     // lockout is the technician's confirmation on the step; shown here as not yet confirmed
     const g = await computeGate(history, engine, req.query.lockoutConfirmed === 'true');
@@ -146,11 +155,14 @@ export function workOrdersRouterWithService(ctx: AppContext): WorkRouterHandle {
 
   r.get('/work-orders', async (req, res) => {
     const q = parse(listQuery, req.query);
-    res.json(await svc.list(req.user!, { status: q.status, engineId: q.engineId, assigneeId: q.assigneeId, siteId: q.siteId, mine: q.mine === '1' || q.mine === 'true' }));
+    const engineIds = (await visibleEngineIds(ctx.models, await siteScopeOf(req))) ?? undefined;
+    res.json(await svc.list(req.user!, { status: q.status, engineId: q.engineId, engineIds, assigneeId: q.assigneeId, siteId: q.siteId, mine: q.mine === '1' || q.mine === 'true' }));
   });
 
   r.post('/work-orders', async (req, res) => {
     const body = parse(createBody, req.body);
+    // another site's engine answers as an unknown one does
+    if (!(await engineVisible(ctx.models, await siteScopeOf(req), body.engineId))) throw new HttpError(400, 'engine does not exist or is retired', 'engineId');
     const order = await svc.create(req.user!, body);
     res.status(201).json(await svc.detail(order.id));
   });
@@ -198,7 +210,9 @@ export function workOrdersRouterWithService(ctx: AppContext): WorkRouterHandle {
   });
 
   r.get('/attachments/:id', async (req, res) => {
-    const { attachment, file } = await attachmentFile(svc, parseId(req.params));
+    const id = parseId(req.params);
+    await assertAttachmentVisible(ctx.models, await siteScopeOf(req), id);
+    const { attachment, file } = await attachmentFile(svc, id);
     res.setHeader('Content-Type', attachment.contentType);
     res.setHeader('X-Content-Type-Options', 'nosniff');
     res.setHeader('Cache-Control', 'private, max-age=300');

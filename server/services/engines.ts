@@ -23,10 +23,12 @@ export function engineView(engine: Engine, live: LiveState | null): EngineView {
   };
 }
 
-export function listEngines(models: Models, opts: { siteId?: number; includeRetired?: boolean } = {}): Promise<Engine[]> {
+/** `siteIds` (the caller's visible sites) narrows the list; `siteId` picks one site. */
+export function listEngines(models: Models, opts: { siteId?: number; siteIds?: number[]; includeRetired?: boolean } = {}): Promise<Engine[]> {
   const where: Record<string, unknown> = {};
   if (!opts.includeRetired) where.retiredAt = null;
-  if (opts.siteId !== undefined) where.siteId = opts.siteId;
+  if (opts.siteIds !== undefined) where.siteId = opts.siteId === undefined ? opts.siteIds : opts.siteIds.filter((id) => id === opts.siteId);
+  else if (opts.siteId !== undefined) where.siteId = opts.siteId;
   return models.Engine.findAll({ where, order: [['siteId', 'ASC'], ['name', 'ASC']] });
 }
 

@@ -1,13 +1,16 @@
 import { notFound } from '../http-error';
 import type { Models, Site } from '../models';
+import { ALL_SITES, type SiteScope } from './site-access';
 
 export interface SiteInput {
   name: string;
   timeZone: string;
 }
 
-export function listSites(models: Models, includeRetired = false): Promise<Site[]> {
-  return models.Site.findAll({ where: includeRetired ? {} : { retiredAt: null }, order: [['name', 'ASC']] });
+export function listSites(models: Models, includeRetired = false, scope: SiteScope = ALL_SITES): Promise<Site[]> {
+  const where: Record<string, unknown> = includeRetired ? {} : { retiredAt: null };
+  if (!scope.all) where.id = [...scope.siteIds];
+  return models.Site.findAll({ where, order: [['name', 'ASC']] });
 }
 
 export async function getSite(models: Models, id: number): Promise<Site> {

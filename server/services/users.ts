@@ -1,7 +1,8 @@
-import { conflict, HttpError, notFound } from '../http-error';
+import { badRequest, conflict, HttpError, notFound } from '../http-error';
 import type { Models, User } from '../models';
 import type { Role } from '../models/user';
 import { hashSecret } from './passwords';
+import { setUserSites, sitesByUser } from './site-access';
 
 export interface UserInput {
   email: string;
@@ -37,3 +38,24 @@ export async function updateUser(models: Models, actorId: number, id: number, pa
 
 /** Users are disabled, not deleted: their names stay on the records they signed. */
 export const disableUser = (models: Models, actorId: number, id: number) => updateUser(models, actorId, id, { disabled: true });
+
+/** A user as the admin API shows it: no hash, and the sites the user is limited to (empty: every site). */
+export type UserView = ReturnType<User['toJSON']> & { siteIds: number[] };
+
+export async function userViews(models: Models, users: User[]): Promise<UserView[]> {
+  const sites = await sitesByUser(models, users.map((u) => u.id));
+  return users.map((u) => ({ ...u.toJSON(), siteIds: sites.get(u.id) ?? [] }));
+}
+
+export const userView = async (models: Models, user: User): Promise<UserView> => (await userViews(models, [user]))[0];
+
+/** Limit a user to these sites; an empty list lets the user see every site again (admins always do). */
+export async function setSitesOfUser(models: Models, id: number, siteIds: number[]): Promise<UserView> {
+  const user = await models.User.findByPk(id);
+  if (!user) throw notFound('user');
+  const unique = [...new Set(siteIds)];
+  const found = unique.length ? await models.Site.count({ where: { id: unique } }) : 0;
+  if (found !== unique.length) throw badRequest('siteIds: every id must be an existing site', 'siteIds');
+  await setUserSites(models, id, unique);
+  return userView(models, user);
+}

@@ -38,7 +38,7 @@ export async function startTelemetry(deps: TelemetryDeps, options: TelemetryOpti
   let stopping = false;
 
   await liveState.load(sequelize);
-  const livePush = new LivePush({ httpServer: deps.httpServer, verifyToken: deps.verifyToken, siteOfEngine: deps.siteOfEngine, log });
+  const livePush = new LivePush({ httpServer: deps.httpServer, verifyToken: deps.verifyToken, siteOfEngine: deps.siteOfEngine, siteScope: deps.siteScope, log });
   listeners.push((readings) => livePush.push(readings));
 
   const reject = (deviceId: number | null, reason: string, detail: string) => {

@@ -57,6 +57,8 @@ export interface TelemetryDeps {
 }
 
 export interface Telemetry {
+  /** Sites a user may see, for the rooms of a live-push watch; absent: every site. */
+  siteScope?(user: AuthUser): Promise<{ all: boolean; siteIds: readonly number[] }>;
   liveState: LiveState;
   counters(): IngestCounters;
   /** Per-device reject counts since start (also persisted in device_rejections). */

@@ -46,10 +46,10 @@ describe('rule engine on reading batches', () => {
     expect(mail.text).toContain("engine maker's instructions");
     expect(mail.text).toContain(`http://jacketwatch.test/alarms/${a.id}`);
 
-    // pushed to browsers once, on the alarms room (not mixed into the fleet's readings)
+    // pushed to browsers on the alarms room and the site's alarm room for site-limited users (not mixed into the fleet's readings)
     const rooms = t.pushed.filter(([, ev, p]) => ev === 'alarm' && (p as { id: number }).id === a.id).map(([room]) => room);
     expect(rooms.length).toBeGreaterThan(0);
-    expect(new Set(rooms)).toEqual(new Set(['alarms']));
+    expect(new Set(rooms)).toEqual(new Set(['alarms', `alarms:site:${t.siteId}`]));
   });
 
   it('keeps the worst value while active', async () => {

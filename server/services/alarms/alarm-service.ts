@@ -398,9 +398,11 @@ export class AlarmService {
     });
   }
 
-  async list(q: { state: ListState; engineId?: number; limit?: number }): Promise<AlarmView[]> {
+  /** `engineIds` (the caller's visible engines) narrows the list. */
+  async list(q: { state: ListState; engineId?: number; engineIds?: number[]; limit?: number }): Promise<AlarmView[]> {
     const where: Record<string, unknown> = {};
-    if (q.engineId !== undefined) where.engineId = q.engineId;
+    if (q.engineIds !== undefined) where.engineId = q.engineId === undefined ? q.engineIds : q.engineIds.filter((id) => id === q.engineId);
+    else if (q.engineId !== undefined) where.engineId = q.engineId;
     if (q.state === 'active') Object.assign(where, { closedAt: null, state: ANNUNCIATED });
     else if (q.state === 'shelved') Object.assign(where, { closedAt: null, state: 'shelved' });
     else if (q.state === 'open') where.closedAt = null;
@@ -421,9 +423,15 @@ export class AlarmService {
     };
   }
 
+  /** Ids of every alarm of these engines (site-scoped summaries). */
+  private async alarmIdsOf(engineIds: number[]): Promise<number[]> {
+    const rows = await this.deps.models.Alarm.findAll({ where: { engineId: engineIds }, attributes: ['id'] });
+    return rows.map((a) => a.id);
+  }
+
   /** Open alarms counted by state, and whether an alarm flood is going on (ISA-18.2: > 10 in 10 min begins, < 5 ends). */
-  async summary(now = Date.now()) {
-    const open = await this.deps.models.Alarm.findAll({ where: { closedAt: null }, attributes: ['state', 'priority'] });
+  async summary(now = Date.now(), engineIds?: number[]) {
+    const open = await this.deps.models.Alarm.findAll({ where: { closedAt: null, ...(engineIds ? { engineId: engineIds } : {}) }, attributes: ['state', 'priority'] });
     const byState: Record<string, number> = {};
     const byPriority: Record<string, number> = {};
     for (const a of open) {
@@ -432,7 +440,7 @@ export class AlarmService {
     }
     // a flood that began up to an hour ago can still be going on
     const since = now - 60 * 60_000;
-    const acts = await this.deps.models.AlarmEvent.findAll({ where: { event: 'activate', at: { [Op.gte]: new Date(since) } }, attributes: ['at'] });
+    const acts = await this.deps.models.AlarmEvent.findAll({ where: { event: 'activate', at: { [Op.gte]: new Date(since) }, ...(engineIds ? { alarmId: await this.alarmIdsOf(engineIds) } : {}) }, attributes: ['at'] });
     const times = acts.map((e) => new Date(e.at).getTime());
     const periods = floodPeriods(times, ISA_18_2_FLOOD, now);
     const last = periods[periods.length - 1];
@@ -447,9 +455,10 @@ export class AlarmService {
   }
 
   /** ISA-18.2 style performance figures over [from, to) from the recorded activations. */
-  async performance(from: number, to: number): Promise<PerformanceReport> {
+  async performance(from: number, to: number, engineIds?: number[]): Promise<PerformanceReport> {
     const { AlarmEvent, Alarm } = this.deps.models;
-    const acts = await AlarmEvent.findAll({ where: { event: 'activate', at: { [Op.gte]: new Date(from), [Op.lt]: new Date(to) } }, order: [['at', 'ASC']] });
+    const scoped = engineIds ? { alarmId: await this.alarmIdsOf(engineIds) } : {};
+    const acts = await AlarmEvent.findAll({ where: { event: 'activate', at: { [Op.gte]: new Date(from), [Op.lt]: new Date(to) }, ...scoped }, order: [['at', 'ASC']] });
     const ids = [...new Set(acts.map((e) => e.alarmId))];
     const [alarms, later] = ids.length
       ? await Promise.all([

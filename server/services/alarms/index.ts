@@ -14,7 +14,7 @@ import { mailAdminRouter } from '../../routes/mail-admin';
 import { oncallRouter } from '../../routes/oncall';
 import { rulesRouter } from '../../routes/rules';
 import type { Telemetry } from '../../telemetry/types';
-import { ALARMS_ROOM } from '../../realtime/live-push';
+import { ALARMS_ROOM, alarmsSiteRoom } from '../../realtime/live-push';
 import { loadAlarmSettings, type AlarmSettings } from './alarm-settings';
 import { AlarmService, type AlarmView } from './alarm-service';
 import { EngineDirectory } from './engine-directory';
@@ -65,6 +65,8 @@ export function createAlarmFeature(ctx: AppContext, settings: AlarmSettings = lo
     publish: (view: AlarmView) => {
       // one room for alarm events: browsers get them without the fleet's readings, and once each
       if (emit) emit(ALARMS_ROOM, 'alarm', view);
+      // users limited to some sites watch their sites' alarm rooms instead (never both)
+      if (emit && view.siteId !== null) emit(alarmsSiteRoom(view.siteId), 'alarm', view);
     },
   });
   rules = new RuleEngine({ models, log, directory, alarms, lastSeen: (id) => lastSeen(id) });

@@ -5,6 +5,7 @@ import { badRequest } from '../../http-error';
 import type { Engine, Models } from '../../models';
 import type { CoolantTest, TestMethod } from '../../models/coolant-models';
 import { getEngine } from '../engines';
+import { maySeeSite, type SiteScope } from '../site-access';
 import { getAdditiveProfile } from './additive-profile';
 import { LabCsvError, parseLabCsv, type LabRow, type RowError } from './lab-csv';
 
@@ -132,7 +133,8 @@ export interface ImportResult {
 }
 
 /** Lab CSV import: every good row is stored (unless preview), every bad row reported; never all-or-nothing. */
-export async function importLabCsv(models: Models, buf: Buffer, opts: { preview: boolean; userId: number; engineId?: number; now?: number }): Promise<ImportResult> {
+/** `scope`: the importer's visible sites; rows of other sites' engines are refused as unknown engines. */
+export async function importLabCsv(models: Models, buf: Buffer, opts: { preview: boolean; userId: number; engineId?: number; now?: number; scope?: SiteScope }): Promise<ImportResult> {
   let parsed;
   try {
     parsed = parseLabCsv(buf, { now: opts.now, engineIdOptional: opts.engineId !== undefined });
@@ -152,7 +154,7 @@ export async function importLabCsv(models: Models, buf: Buffer, opts: { preview:
       continue;
     }
     const engine = engines.get(id);
-    if (!engine || engine.retiredAt) {
+    if (!engine || engine.retiredAt || (opts.scope && !maySeeSite(opts.scope, engine.siteId))) {
       rejected.push({ line, field: 'engine_id', error: `engine_id: no active engine ${id}` });
       continue;
     }

@@ -115,6 +115,8 @@ export interface DueSiteView {
 
 export interface DueListQuery {
   siteId?: number;
+  /** The caller's visible sites (already narrowed to siteId when one is asked for). */
+  siteIds?: number[];
   engineId?: number;
   windowDays: number;
   windowHours?: number;
@@ -152,7 +154,8 @@ async function lastDone(models: Models, engineIds: number[], now: number): Promi
 export async function computeDueList(models: Models, q: DueListQuery): Promise<{ now: string; windowDays: number; windowHours: number; sites: DueSiteView[] }> {
   const windowHours = q.windowHours ?? 50;
   const where: Record<string, unknown> = { retiredAt: null, outOfService: false };
-  if (q.siteId !== undefined) where.siteId = q.siteId;
+  if (q.siteIds !== undefined) where.siteId = q.siteIds;
+  else if (q.siteId !== undefined) where.siteId = q.siteId;
   if (q.engineId !== undefined) where.id = q.engineId;
   const engines = await models.Engine.findAll({ where, order: [['siteId', 'ASC'], ['name', 'ASC']] });
   const sites = new Map((await models.Site.findAll({ where: { id: [...new Set(engines.map((e) => e.siteId))] } })).map((s) => [s.id, s]));

@@ -32,6 +32,8 @@ export interface PlanInput {
 export interface ListQuery {
   status?: WorkStatus[];
   engineId?: number;
+  /** The caller's visible engines: the list never goes beyond them. */
+  engineIds?: number[];
   assigneeId?: number;
   siteId?: number;
   mine?: boolean;
@@ -221,6 +223,11 @@ export class WorkOrderService {
     if (q.siteId) {
       const engines = await this.models.Engine.findAll({ where: { siteId: q.siteId }, attributes: ['id'] });
       w.engineId = q.engineId ? (engines.some((e) => e.id === q.engineId) ? q.engineId : -1) : engines.map((e) => e.id);
+    }
+    if (q.engineIds) {
+      const allowed = new Set(q.engineIds);
+      const cur = w.engineId as number | number[] | undefined;
+      w.engineId = cur === undefined ? q.engineIds : (Array.isArray(cur) ? cur : [cur]).filter((id) => allowed.has(id));
     }
     const orders = await this.models.WorkOrder.findAll({ where, order: [['dueDate', 'ASC'], ['id', 'ASC']], limit: 2000 });
     return this.summaries(orders);
