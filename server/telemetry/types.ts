@@ -53,12 +53,12 @@ export interface TelemetryDeps {
   verifyToken(token: string): AuthUser | null;
   /** siteId of an engine, for live-push rooms; null when unknown. */
   siteOfEngine(engineId: number): Promise<number | null>;
+  /** Sites a user may see, for the rooms of a live-push watch; absent: every site. */
+  siteScope?(user: AuthUser): Promise<{ all: boolean; siteIds: readonly number[] }>;
   log: Logger;
 }
 
 export interface Telemetry {
-  /** Sites a user may see, for the rooms of a live-push watch; absent: every site. */
-  siteScope?(user: AuthUser): Promise<{ all: boolean; siteIds: readonly number[] }>;
   liveState: LiveState;
   counters(): IngestCounters;
   /** Per-device reject counts since start (also persisted in device_rejections). */
