@@ -7,6 +7,7 @@ const SECTIONS = [
   { path: 'sites', label: 'Sites' },
   { path: 'engines', label: 'Engines' },
   { path: 'devices', label: 'Devices' },
+  { path: 'additive', label: 'Additive' },
 ];
 
 /** Administration: who may sign in, and the set-up of sites, engines and their reporting devices. */

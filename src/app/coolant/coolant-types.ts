@@ -84,4 +84,24 @@ export interface AdditiveProfile {
   liquidUnitsPerLitre: number | null;
   filterSizes: { label: string; prechargeUnits: number }[];
   limits: { low: number; high: number };
+  updatedAt?: string | null;
+}
+
+export interface AdditiveProfileInput {
+  name: string;
+  liquidUnitsPerLitre: number;
+  filterSizes: { label: string; prechargeUnits: number }[];
+  scaLow: number;
+  scaHigh: number;
+}
+
+/** One hand correction of an engine's run hours (audit). */
+export interface RunHoursEntry {
+  id: number;
+  oldRunHours: number;
+  newRunHours: number;
+  userId: number | null;
+  userName: string | null;
+  reason: string;
+  at: string;
 }

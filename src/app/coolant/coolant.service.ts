@@ -1,7 +1,7 @@
 import { HttpClient } from '@angular/common/http';
 import { Injectable, inject } from '@angular/core';
 import { Observable } from 'rxjs';
-import { AdditiveProfile, CoolantTest, DueListResponse, ImportResult, NewCoolantTest } from './coolant-types';
+import { AdditiveProfile, AdditiveProfileInput, CoolantTest, RunHoursEntry, DueListResponse, ImportResult, NewCoolantTest } from './coolant-types';
 
 /** HTTP for the coolant screens; SI units both ways. */
 @Injectable({ providedIn: 'root' })
@@ -26,6 +26,18 @@ export class CoolantService {
 
   profile(): Observable<AdditiveProfile> {
     return this.http.get<AdditiveProfile>('/api/additive-profile');
+  }
+
+  saveProfile(p: AdditiveProfileInput): Observable<AdditiveProfile> {
+    return this.http.put<AdditiveProfile>('/api/additive-profile', p);
+  }
+
+  runHoursHistory(engineId: number): Observable<RunHoursEntry[]> {
+    return this.http.get<RunHoursEntry[]>(`/api/engines/${engineId}/run-hours`);
+  }
+
+  correctRunHours(engineId: number, runHours: number, reason: string): Observable<{ runHours: number; oldRunHours: number }> {
+    return this.http.post<{ runHours: number; oldRunHours: number }>(`/api/engines/${engineId}/run-hours`, { runHours, reason });
   }
 
   dueList(q: { siteId?: number; windowDays: number }): Observable<DueListResponse> {
