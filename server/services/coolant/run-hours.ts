@@ -95,6 +95,11 @@ export async function correctRunHours(models: Models, engineId: number, input: {
 
 export async function runHoursHistory(models: Models, engineId: number) {
   await getEngine(models, engineId);
-  const rows = await models.RunHoursAdjustment.findAll({ where: { engineId }, order: [['at', 'DESC']], limit: 200 });
-  return rows.map((r) => ({ id: r.id, oldRunHours: r.oldRunHours, newRunHours: r.newRunHours, userId: r.userId, reason: r.reason, at: new Date(r.at).toISOString() }));
+  const rows = await models.RunHoursAdjustment.findAll({ where: { engineId }, order: [['at', 'DESC'], ['id', 'DESC']], limit: 200 });
+  const ids = [...new Set(rows.map((r) => r.userId).filter((x): x is number => x !== null))];
+  const names = new Map((ids.length ? await models.User.findAll({ where: { id: ids }, attributes: ['id', 'name'] }) : []).map((u) => [u.id, u.name]));
+  return rows.map((r) => ({
+    id: r.id, oldRunHours: r.oldRunHours, newRunHours: r.newRunHours, userId: r.userId, userName: r.userId === null ? null : (names.get(r.userId) ?? null),
+    reason: r.reason, at: new Date(r.at).toISOString(),
+  }));
 }

@@ -4,6 +4,7 @@ import { ChangeDetectionStrategy, Component, computed, inject, signal } from '@a
 import { toObservable, toSignal } from '@angular/core/rxjs-interop';
 import { MatButtonModule } from '@angular/material/button';
 import { MatButtonToggleModule } from '@angular/material/button-toggle';
+import { MatDialog } from '@angular/material/dialog';
 import { MatFormFieldModule } from '@angular/material/form-field';
 import { MatIconModule } from '@angular/material/icon';
 import { MatSelectModule } from '@angular/material/select';
@@ -13,6 +14,7 @@ import { AuthService } from '../core/auth.service';
 import { EngineService } from '../engine/engine.service';
 import { CoolantService } from './coolant.service';
 import { DueEntry, DueListResponse } from './coolant-types';
+import { RunHoursDialog, type RunHoursDialogData } from './run-hours-dialog';
 
 /** The planner's due list: per site, overdue then due soon, with one click to a work order from the task's template. */
 @Component({
@@ -49,7 +51,9 @@ import { DueEntry, DueListResponse } from './coolant-types';
                 @for (e of s.entries; track e.engineId + e.taskKey) {
                   <tr [class.overdue]="e.state === 'overdue'" [class.soon]="e.state === 'due-soon'">
                     <td class="state"><mat-icon aria-hidden="true" [fontIcon]="e.state === 'overdue' ? 'error_outline' : 'schedule'" />{{ e.state === 'overdue' ? 'Overdue' : 'Due soon' }}</td>
-                    <td><a [routerLink]="['/engines', e.engineId]">{{ e.engineName }}</a><br /><span class="sub">{{ e.runHours.toFixed(1) }} h</span></td>
+                    <td class="engine"><a [routerLink]="['/engines', e.engineId]">{{ e.engineName }}</a><br /><span class="sub">{{ e.runHours.toFixed(1) }} h</span>
+                      @if (canCorrect()) { <button mat-button type="button" class="hours" (click)="correctHours(e)" [attr.aria-label]="'Correct run hours of ' + e.engineName">Correct hours</button> }
+                    </td>
                     <td>{{ e.title }}@if (e.placeholder) { <br /><span class="sub">placeholder interval: set the maker's figure</span> }</td>
                     <td class="reason">{{ e.reason }}</td>
                     <td>{{ e.lastDoneAt ? (e.lastDoneAt | date: 'mediumDate') : 'never recorded' }}@if (e.lastDoneRunHours !== null) { <br /><span class="sub">at {{ e.lastDoneRunHours.toFixed(0) }} h</span> }</td>
@@ -61,7 +65,7 @@ import { DueEntry, DueListResponse } from './coolant-types';
                       } @else if (!e.workKind) {
                         <span class="sub">no template for this task</span>
                       }
-                      @if (created()[key(e)]; as id) { <a [routerLink]="['/work', id]">Work order #{{ id }} created</a> }
+                      @if (!e.openWorkOrderId && created()[key(e)]; as id) { <a [routerLink]="['/work', id]">Work order #{{ id }} created</a> }
                     </td>
                   </tr>
                 }
@@ -79,7 +83,7 @@ import { DueEntry, DueListResponse } from './coolant-types';
     }
   `,
   styles: `
-    :host { display: block; max-width: 1300px; }
+    :host { display: block; max-width: 1300px; padding-right: 16px; }
     h1 { margin: 0 0 4px; font-size: 1.5rem; }
     .lead, .hint, .sub, .none, .counts { color: var(--jw-muted-text); }
     .sub { font-size: 0.8rem; }
@@ -94,7 +98,10 @@ import { DueEntry, DueListResponse } from './coolant-types';
     tr.overdue .state { color: var(--jw-alarm-high); }
     tr.soon .state { color: var(--jw-warning); }
     .reason { font-size: 0.9rem; max-width: 380px; }
-    .act { white-space: nowrap; }
+    .act { min-width: 170px; }
+    .engine { min-width: 150px; }
+    .engine a { white-space: nowrap; }
+    .hours { display: block; font-size: 0.8rem; min-height: 28px; height: 28px; padding: 0 6px; margin-left: -6px; }
     .act a { display: block; margin-top: 4px; }
     .error { color: var(--jw-alarm-high); }
   `,
@@ -110,6 +117,8 @@ export class DueListPage {
   protected readonly busy = signal<string | null>(null);
   protected readonly created = signal<Record<string, number>>({});
   protected readonly canCreate = computed(() => this.auth.hasRole('planner', 'admin', 'technician'));
+  protected readonly canCorrect = computed(() => this.auth.hasRole('planner', 'admin'));
+  private readonly dialog = inject(MatDialog);
   protected readonly list = toSignal(
     toObservable(computed(() => ({ siteId: this.siteId(), windowDays: this.windowDays(), n: this.reload() }))).pipe(
       switchMap((q) =>
@@ -124,6 +133,14 @@ export class DueListPage {
     { initialValue: null as DueListResponse | null },
   );
   protected readonly key = (e: DueEntry) => `${e.engineId}:${e.taskKey}`;
+
+  /** Run hours from the hour meter, with a reason (audited); the list is recomputed with the new hours. */
+  protected correctHours(e: DueEntry): void {
+    const data: RunHoursDialogData = { engineId: e.engineId, engineName: e.engineName, runHours: e.runHours };
+    this.dialog.open(RunHoursDialog, { data, width: '560px' }).afterClosed().subscribe((changed) => {
+      if (changed !== undefined) this.reload.update((n) => n + 1);
+    });
+  }
 
   protected create(e: DueEntry): void {
     if (!e.workKind) return;
