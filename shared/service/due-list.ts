@@ -53,7 +53,8 @@ export function dueStatus(task: ServiceTask, ctx: DueContext, windowDays = 14, w
   const hoursLeft = dueAtRunHours === null ? Infinity : dueAtRunHours - ctx.runHoursNow;
   const noHours = byHours && ctx.lastDoneRunHours === null ? ' (run hours when last done not recorded: calendar only)' : '';
   const hoursText = dueAtRunHours === null ? '' : `${Math.abs(round1(hoursLeft))} run hours ${hoursLeft <= 0 ? 'past' : 'to go to'} ${round1(dueAtRunHours)} h`;
-  const daysText = dueAt === null ? '' : `${Math.abs(round1(daysLeft))} days ${daysLeft <= 0 ? 'past' : 'to'} the ${task.everyDays}-day date`;
+  const days = Math.abs(round1(daysLeft));
+  const daysText = dueAt === null ? '' : `${days} ${days === 1 ? 'day' : 'days'} ${daysLeft <= 0 ? 'past' : 'to'} the ${task.everyDays}-day date`;
 
   if (hoursLeft <= 0 || daysLeft <= 0) {
     const why = [hoursLeft <= 0 ? hoursText : '', daysLeft <= 0 ? daysText : ''].filter(Boolean).join(' and ');

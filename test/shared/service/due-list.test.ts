@@ -25,6 +25,8 @@ describe('dueStatus: whichever comes first', () => {
     const byDays = dueStatus(oil, { runHoursNow: 1010, now: NOW, lastDoneAt: NOW - 355 * DAY, lastDoneRunHours: 1000 }, 14, 50);
     expect(byDays.state).toBe('due-soon');
     expect(byDays.reason).toMatch(/10 days to the 365-day date/);
+    const oneDay = dueStatus(oil, { runHoursNow: 1010, now: NOW, lastDoneAt: NOW - 364 * DAY, lastDoneRunHours: 1000 }, 14, 50);
+    expect(oneDay.reason).toMatch(/due soon: 1 day to the 365-day date/);
   });
 
   it('both limits crossed: the reason names both', () => {
