@@ -15,6 +15,12 @@ export const DEMO_USERS: DemoUser[] = [
   { email: 'operator@jacketwatch.test', name: 'Priya Halvorsen', role: 'operator' },
 ];
 
+/** Demo accounts limited to some sites (user_sites): they see only those sites' engines, alarms and work. */
+export interface DemoSiteUser extends DemoUser { sites: string[] }
+export const DEMO_SITE_USERS: DemoSiteUser[] = [
+  { email: 'ridge-operator@jacketwatch.test', name: 'Ines Valcourt', role: 'operator', sites: ['ridge'] },
+];
+
 export interface DemoSite { key: string; name: string; timeZone: string }
 export const DEMO_SITES: DemoSite[] = [
   { key: 'works', name: 'Hollowmere Treatment Works', timeZone: 'America/Chicago' },

@@ -5,7 +5,7 @@ import type { Sequelize, Transaction } from 'sequelize';
 import type { Config } from '../server/config';
 import type { Engine, Models } from '../server/models';
 import { hashSecret } from '../server/services/passwords';
-import { DEMO_ENGINES, DEMO_PASSWORD, DEMO_SITES, DEMO_USERS } from './demo-scenario';
+import { DEMO_ENGINES, DEMO_PASSWORD, DEMO_SITE_USERS, DEMO_SITES, DEMO_USERS } from './demo-scenario';
 import { seedCoolantDemo } from './coolant-demo';
 import { seedOncall } from './oncall';
 
@@ -61,7 +61,7 @@ export interface SeedResult {
   devices: DeviceRecord[];
 }
 
-/** The invented demo fleet and its four accounts. Does nothing (but rewrite the devices file) when users exist. */
+/** The invented demo fleet, its four accounts that see every site and one limited to a site. Does nothing (but rewrite the devices file) when users exist. */
 export async function seedDemo(sequelize: Sequelize, models: Models, config: Config, opts: SeedOptions = {}): Promise<SeedResult> {
   if (config.production) throw new Error('refusing to create demo accounts with NODE_ENV=production');
   const devicesFile = opts.devicesFile ?? path.join(config.dataDir, 'demo-devices.json');
@@ -79,6 +79,10 @@ export async function seedDemo(sequelize: Sequelize, models: Models, config: Con
     await models.User.bulkCreate(DEMO_USERS.map((u) => ({ ...u, passwordHash })), { transaction });
     const siteIds = new Map<string, number>();
     for (const s of DEMO_SITES) siteIds.set(s.key, (await models.Site.create({ name: s.name, timeZone: s.timeZone }, { transaction })).id);
+    for (const { sites, ...u } of DEMO_SITE_USERS) {
+      const user = await models.User.create({ ...u, passwordHash }, { transaction });
+      await models.UserSite.bulkCreate(sites.map((key) => ({ userId: user.id, siteId: siteIds.get(key)! })), { transaction });
+    }
     const engines: Engine[] = [];
     for (const { site, ...e } of DEMO_ENGINES) engines.push(await models.Engine.create({ ...e, siteId: siteIds.get(site)! }, { transaction }));
     await seedOncall(models, { transaction });

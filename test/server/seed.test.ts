@@ -40,6 +40,13 @@ describe('seeds', () => {
     for (const email of ['admin', 'planner', 'tech', 'operator']) {
       await request(t.app).post('/api/auth/login').send({ email: `${email}@jacketwatch.test`, password: DEMO_PASSWORD }).expect(200);
     }
+    // the four accounts see every site; the extra operator only its own
+    const sitesOf = async (email: string) => {
+      const token = (await request(t.app).post('/api/auth/login').send({ email, password: DEMO_PASSWORD }).expect(200)).body.token;
+      return (await request(t.app).get('/api/sites').set({ Authorization: `Bearer ${token}` }).expect(200)).body.map((s: { name: string }) => s.name).sort();
+    };
+    for (const email of ['admin', 'planner', 'tech', 'operator']) expect(await sitesOf(`${email}@jacketwatch.test`)).toHaveLength(3);
+    expect(await sitesOf('ridge-operator@jacketwatch.test')).toEqual(['Ridgeback Booster Station']);
     const again = await seedDemo(sequelize, models, config, { bcryptCost: 4 });
     expect(again.created).toBe(false);
     expect(await models.Engine.count()).toBe(8);
