@@ -10,6 +10,8 @@ export interface AdminUser {
   name: string;
   role: Role;
   disabled: boolean;
+  /** Sites the user is limited to; empty: every site (admins always see every site). */
+  siteIds?: number[];
   createdAt?: string;
   updatedAt?: string;
 }

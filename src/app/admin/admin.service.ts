@@ -18,6 +18,10 @@ export class AdminService {
   updateUser(id: number, patch: Partial<{ email: string; name: string; password: string; role: Role; disabled: boolean }>): Observable<AdminUser> {
     return this.http.patch<AdminUser>(`/api/users/${id}`, patch);
   }
+  /** Limit a user to these sites; an empty list: every site. */
+  setUserSites(id: number, siteIds: number[]): Observable<AdminUser> {
+    return this.http.put<AdminUser>(`/api/users/${id}/sites`, { siteIds });
+  }
 
   sites(): Observable<Site[]> {
     return this.http.get<Site[]>('/api/sites');

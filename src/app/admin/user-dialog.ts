@@ -6,9 +6,11 @@ import { MatFormFieldModule } from '@angular/material/form-field';
 import { MatIconModule } from '@angular/material/icon';
 import { MatInputModule } from '@angular/material/input';
 import { MatSelectModule } from '@angular/material/select';
+import { toSignal } from '@angular/core/rxjs-interop';
+import { switchMap } from 'rxjs';
 import { Role } from '../core/user';
 import { AdminService } from './admin.service';
-import { AdminUser, ROLES } from './admin-types';
+import { AdminUser, ROLES, Site } from './admin-types';
 import { applyServerError, errorText } from './form-errors';
 
 /** 'add' a user, 'edit' name/e-mail/role, or set a new 'password'. */
@@ -52,6 +54,13 @@ export function generatePassword(length = 16): string {
             </mat-select>
             <mat-error>{{ err('role') }}</mat-error>
           </mat-form-field>
+          <mat-form-field>
+            <mat-label>Sites this user sees</mat-label>
+            <mat-select formControlName="siteIds" multiple placeholder="Every site">
+              @for (s of sites(); track s.id) { <mat-option [value]="s.id">{{ s.name }}</mat-option> }
+            </mat-select>
+            <mat-hint>{{ form.controls.role.value === 'admin' ? 'Administrators see every site whatever is chosen.' : 'None chosen: every site. Otherwise only these sites.' }}</mat-hint>
+          </mat-form-field>
         }
         @if (data.mode !== 'edit') {
           <mat-form-field>
@@ -82,6 +91,7 @@ export class UserDialog {
   protected readonly roles = ROLES;
   protected readonly saving = signal(false);
   protected readonly formError = signal<string | null>(null);
+  protected readonly sites = toSignal(this.api.sites(), { initialValue: [] as Site[] });
 
   protected readonly title =
     this.data.mode === 'add' ? 'Add a user' : this.data.mode === 'edit' ? `Change ${this.data.user?.name}` : `New password for ${this.data.user?.name}`;
@@ -91,6 +101,7 @@ export class UserDialog {
     name: [this.data.user?.name ?? '', [Validators.required, Validators.maxLength(120), Validators.pattern(/\S/)]],
     email: [this.data.user?.email ?? '', [Validators.required, Validators.email, Validators.maxLength(254)]],
     role: [this.data.user?.role ?? ('operator' as Role), Validators.required],
+    siteIds: [this.data.user?.siteIds ?? ([] as number[])],
     password: [this.data.mode === 'edit' ? '' : generatePassword(), this.data.mode === 'edit' ? [] : [Validators.required, Validators.minLength(10), Validators.maxLength(200)]],
   });
 
@@ -114,8 +125,12 @@ export class UserDialog {
         : this.data.mode === 'edit'
           ? this.api.updateUser(user!.id, { name: v.name.trim(), email: v.email.trim(), role: v.role })
           : this.api.updateUser(user!.id, { password: v.password });
+    // sites are their own call; only when they changed
+    const before = [...(user?.siteIds ?? [])].sort((a, b) => a - b).join(',');
+    const after = [...v.siteIds].sort((a, b) => a - b).join(',');
+    const withSites = this.data.mode === 'password' || before === after ? call : call.pipe(switchMap((u) => this.api.setUserSites(u.id, v.siteIds)));
     this.saving.set(true);
-    call.subscribe({
+    withSites.subscribe({
       next: (u) => this.ref.close(u),
       error: (err) => {
         this.saving.set(false);

@@ -49,6 +49,10 @@ import { FormGroup } from '@angular/forms';
           <th mat-header-cell *matHeaderCellDef mat-sort-header>Role</th>
           <td mat-cell *matCellDef="let u">{{ roleLabel[u.role] ?? u.role }}</td>
         </ng-container>
+        <ng-container matColumnDef="sites">
+          <th mat-header-cell *matHeaderCellDef>Sites</th>
+          <td mat-cell *matCellDef="let u">{{ sitesText(u) }}</td>
+        </ng-container>
         <ng-container matColumnDef="disabled">
           <th mat-header-cell *matHeaderCellDef mat-sort-header>Status</th>
           <td mat-cell *matCellDef="let u">
@@ -98,7 +102,8 @@ export class UsersPage {
   protected readonly me = computed(() => this.auth.user()?.id ?? null);
   protected readonly roles = ROLES;
   protected readonly roleLabel: Partial<Record<string, string>> = ROLE_LABEL;
-  protected readonly columns = ['name', 'email', 'role', 'disabled', 'createdAt', 'actions'];
+  protected readonly columns = ['name', 'email', 'role', 'sites', 'disabled', 'createdAt', 'actions'];
+  private readonly siteNames = new Map<number, string>();
   protected readonly source = new MatTableDataSource<AdminUser>([]);
   protected readonly error = signal<string | null>(null);
   private readonly sort = viewChild(MatSort);
@@ -111,6 +116,12 @@ export class UsersPage {
     });
     this.source.filterPredicate = (u, f) => `${u.name} ${u.email} ${ROLE_LABEL[u.role]} ${u.disabled ? 'disabled' : 'active'}`.toLowerCase().includes(f);
     this.load();
+  }
+
+  /** "Every site" unless the user is limited to some (admins always see every site). */
+  protected sitesText(u: AdminUser): string {
+    if (u.role === 'admin' || !u.siteIds?.length) return 'Every site';
+    return u.siteIds.map((id) => this.siteNames.get(id) ?? `site ${id}`).join(', ');
   }
 
   protected filter(text: string): void {
@@ -162,6 +173,8 @@ export class UsersPage {
   }
 
   private load(): void {
+    // site names for the Sites column; the users are shown whether or not they arrive
+    this.api.sites().subscribe({ next: (sites) => { for (const s of sites) this.siteNames.set(s.id, s.name); this.source.data = [...this.source.data]; }, error: () => undefined });
     this.api.users().subscribe({
       next: (users) => {
         this.error.set(null);
