@@ -125,7 +125,8 @@ const lim = ENGINE_LIMITS_SI;
   styles: `
     .grid { display: grid; grid-template-columns: repeat(auto-fill, minmax(220px, 1fr)); gap: 0 16px; }
     .wide { grid-column: 1 / -1; }
-    .mat-mdc-form-field-text-suffix { white-space: nowrap; }
+    // The suffix span is ours (so the emulated styles reach it): keep "US gal" on one line.
+    [matTextSuffix] { white-space: nowrap; }
     .heater { display: flex; flex-direction: column; gap: 4px; }
     .form-error { grid-column: 1 / -1; color: var(--jw-alarm-high); }
   `,
