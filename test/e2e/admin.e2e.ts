@@ -54,7 +54,7 @@ describe('administration (admin)', () => {
     [stack, browser] = await Promise.all([startStack({ simulate: false }), launchBrowser()]);
     adminToken = await stack.login(ACCOUNTS.admin);
     page = await browser.newPage({ viewport: { width: 1366, height: 900 } });
-    page.setDefaultTimeout(15000);
+    page.setDefaultTimeout(30000); // the machine is shared: generous, but well under the test's own budget
     await signIn(page, stack, ACCOUNTS.admin);
   });
 
@@ -68,8 +68,9 @@ describe('administration (admin)', () => {
   it('shows the users and sites screens', async () => {
     await page.goto(`${stack.baseUrl}/admin/users`);
     const users = page.getByRole('table', { name: 'Users' });
-    await users.getByRole('row').filter({ hasText: ACCOUNTS.operator }).waitFor();
-    for (const email of Object.values(ACCOUNTS)) assert.equal(await users.getByRole('row').filter({ hasText: email }).count(), 1, email);
+    const userRow = (email: string) => users.getByRole('row').filter({ has: page.getByRole('cell', { name: email, exact: true }) });
+    await userRow(ACCOUNTS.operator).waitFor();
+    for (const email of Object.values(ACCOUNTS)) assert.equal(await userRow(email).count(), 1, email);
     await shot(page, 'admin-users');
 
     await page.getByRole('tab', { name: 'Sites' }).click();
@@ -213,7 +214,7 @@ describe('administration (admin)', () => {
 
     await page.goto(`${stack.baseUrl}/fleet`);
     const tile = page.locator('jw-engine-tile', { hasText: NEW_ENGINE.name });
-    await tile.filter({ hasText: 'Running' }).waitFor({ timeout: 20000 });
+    await tile.filter({ hasText: 'Running' }).waitFor({ timeout: 30000 });
     const tileText = (await tile.textContent()) ?? '';
     // 82.4 °C = 180.3 °F; 96.5 kPa = 14.0 psi (US units chosen above).
     assert.match(tileText, /180\.3\s?°F/);
@@ -224,7 +225,7 @@ describe('administration (admin)', () => {
     await tile.locator('a').click();
     await page.getByRole('heading', { level: 1, name: NEW_ENGINE.name }).waitFor();
     const values = page.locator('jw-live-values');
-    await values.filter({ hasText: '180.3' }).waitFor({ timeout: 20000 });
+    await values.filter({ hasText: '180.3' }).waitFor({ timeout: 30000 });
     const text = (await values.textContent()) ?? '';
     assert.match(text, /180\.3\s?°F/);
     assert.match(text, /14\.0\s?psi/);
