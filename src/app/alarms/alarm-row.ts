@@ -89,7 +89,8 @@ export class AlarmRow {
   protected readonly stateWords = computed(() => stateText(this.alarm().state));
   protected readonly value = computed(() => formatAlarmValue(this.alarm().value, this.alarm().unit, this.prefs.preferences()));
   protected readonly raised = computed(() => formatTime(this.alarm().raisedAt));
-  protected readonly age = computed(() => formatDuration(this.now() - Date.parse(this.alarm().raisedAt)));
+  // the shared clock ticks once a second and may lag a just-raised alarm: never a negative age
+  protected readonly age = computed(() => formatDuration(Math.max(0, this.now() - Date.parse(this.alarm().raisedAt))));
   protected readonly shelvedUntil = computed(() => formatTime(this.alarm().shelvedUntil));
 
   protected readonly summary = computed(() => {
