@@ -122,8 +122,9 @@ export class OpeningCheckPanel {
 
   protected valueText(c: OpeningCondition): string {
     const s = this.check()?.settings;
-    if (c.name === 'engine-stopped') return c.detail === 'no data' ? 'no data' : `${minutes(c.value)} of ${minutes(c.limit)} min · ${c.detail ?? ''}`;
-    if (c.name === 'held') return `${minutes(c.value)} of ${minutes(c.limit)} min`;
+    // "1.4 min, needs 0.5 min" reads right whether the time is short of the limit or past it
+    if (c.name === 'engine-stopped') return c.detail === 'no data' ? 'no data' : `${minutes(c.value)} min, needs ${minutes(c.limit)} min · ${c.detail ?? ''}`;
+    if (c.name === 'held') return `${minutes(c.value)} min, needs ${minutes(c.limit)} min`;
     if (c.name === 'telemetry-fresh') return c.value === null ? 'no data' : `newest ${Math.round(Number(c.value))} s old (max ${s?.staleAfterS ?? c.limit} s)`;
     if (c.name === 'lockout-confirmed') return c.met ? 'ticked below' : 'tick it on the step';
     return '';
