@@ -1,4 +1,5 @@
-import type { IngestCounters } from './types';
+import { monitorEventLoopDelay, type IntervalHistogram } from 'node:perf_hooks';
+import type { IngestCounters, LoopDelay } from './types';
 
 /** Running ingest figures for /api/health and /api/admin/ingest. Plain numbers: cheap on the hot path. */
 export class Counters {
@@ -12,7 +13,35 @@ export class Counters {
   private readonly window: number[] = [];
   private last = 0;
 
+  private loop: IntervalHistogram | null = null;
+  private loopTimer: NodeJS.Timeout | null = null;
+  private recentLoop: LoopDelay = { p50: 0, p99: 0, max: 0 };
+  private worstLoopMs = 0;
+
   constructor(private readonly windowSize = 200) {}
+
+  /**
+   * Event-loop delay of this process (perf_hooks), in windows of `windowMs`: a flush or a payload storm that
+   * blocks the loop shows here, and it is what HTTP and socket.io clients feel.
+   */
+  watchEventLoop(windowMs = 2000): void {
+    if (this.loop) return;
+    const h = monitorEventLoopDelay({ resolution: 10 });
+    h.enable();
+    this.loop = h;
+    this.loopTimer = setInterval(() => {
+      this.recentLoop = { p50: round(h.percentile(50) / 1e6), p99: round(h.percentile(99) / 1e6), max: round(h.max / 1e6) };
+      if (this.recentLoop.max > this.worstLoopMs) this.worstLoopMs = this.recentLoop.max;
+      h.reset();
+    }, windowMs);
+    this.loopTimer.unref();
+  }
+
+  stopWatching(): void {
+    if (this.loopTimer) clearInterval(this.loopTimer);
+    this.loop?.disable();
+    this.loop = null;
+  }
 
   reject(reason: string, n = 1): void {
     this.rejected[reason] = (this.rejected[reason] ?? 0) + n;
@@ -39,6 +68,7 @@ export class Counters {
       buffered,
       batches: this.batches,
       batchLatencyMs: { last: round(this.last), p50: round(at(0.5)), p95: round(at(0.95)), max: round(sorted.length ? sorted[sorted.length - 1] : 0) },
+      eventLoopDelayMs: { ...this.recentLoop, worst: this.worstLoopMs },
       startedAt: this.startedAt,
     };
   }

@@ -47,7 +47,7 @@ export async function startTelemetry(deps: TelemetryDeps, options: TelemetryOpti
   };
 
   /** Hot path: parse, count, buffer, notify; `done` (the MQTT ack) once there is room. No await, no DB. */
-  const ingest = (deviceId: number | null, engineId: number, payload: Buffer, done: () => void) => {
+  const ingestNow = (deviceId: number | null, engineId: number, payload: Buffer, done: () => void) => {
     if (stopping) return; // no ack: a QoS 1 device sends it again after the restart
     try {
       const now = Date.now();
@@ -78,8 +78,48 @@ export async function startTelemetry(deps: TelemetryDeps, options: TelemetryOpti
     buffer.whenRoom(done);
   };
 
+  /**
+   * Fair share of the event loop: one poll phase can hand us the chunks of a hundred sockets at once
+   * (a flood: seconds of parsing and rule evaluation in one go, freezing HTTP, socket.io and the writer's
+   * timers). At most TURN_BUDGET_MS of ingest work runs per loop turn; later messages wait in a FIFO for
+   * the next turn (setImmediate). Their MQTT callbacks wait too, so aedes stops reading those sockets:
+   * the queue holds at most what aedes has already read, and TCP pushes back on the devices.
+   */
+  const TURN_BUDGET_MS = 15;
+  type Job = [number | null, number, Buffer, () => void];
+  let queue: Job[] = [];
+  let head = 0;
+  let spent = 0;
+  let turnScheduled = false;
+  const nextTurn = () => {
+    if (turnScheduled) return;
+    turnScheduled = true;
+    setImmediate(() => {
+      turnScheduled = false;
+      const started = performance.now();
+      while (head < queue.length && performance.now() - started < TURN_BUDGET_MS) {
+        const job = queue[head];
+        queue[head++] = undefined as unknown as Job;
+        ingestNow(job[0], job[1], job[2], job[3]);
+      }
+      spent = 0; // the next poll phase is a new turn
+      if (head >= queue.length) { queue = []; head = 0; } else nextTurn();
+    });
+  };
+  const ingest = (deviceId: number | null, engineId: number, payload: Buffer, done: () => void) => {
+    if (head < queue.length || spent >= TURN_BUDGET_MS) {
+      queue.push([deviceId, engineId, payload, done]);
+    } else {
+      const started = performance.now();
+      ingestNow(deviceId, engineId, payload, done);
+      spent += performance.now() - started;
+    }
+    nextTurn();
+  };
+
   writer.start();
   activity.start();
+  counters.watchEventLoop();
 
   let mqtt: Closable;
   let mqttPort: number | null = null;
@@ -122,6 +162,7 @@ export async function startTelemetry(deps: TelemetryDeps, options: TelemetryOpti
       await mqtt.close().catch((err) => log.warn('telemetry: closing MQTT failed', err));
       await activity.stop();
       await livePush.close();
+      counters.stopWatching();
     },
   };
 }

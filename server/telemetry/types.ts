@@ -36,8 +36,12 @@ export interface IngestCounters {
   buffered: number;
   batches: number;
   batchLatencyMs: { last: number; p50: number; p95: number; max: number };
+  /** Event-loop delay over the last few seconds (and the worst window since start), ms. */
+  eventLoopDelayMs?: LoopDelay & { worst: number };
   startedAt: string;
 }
+
+export interface LoopDelay { p50: number; p99: number; max: number }
 
 export interface AuthUser {
   id: number;

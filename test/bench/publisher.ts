@@ -2,7 +2,10 @@
  * Benchmark publisher (a child process): connects as the given devices and publishes telemetry.
  *   flood: each device keeps `window` publishes in flight, `samples` payloads, for durationMs.
  *   paced: each device publishes one single-form message with every channel once a second.
- * Prints one JSON line with what was published (acknowledged at QoS 1, written at QoS 0).
+ * Prints one JSON line with what was published: acknowledged by the broker at QoS 1; at QoS 0 only
+ * handed to TCP (no acknowledgement exists), so the server may receive it later or never.
+ * A QoS 0 flood stops at its deadline even when writes are stalled by backpressure, and then drops
+ * its connections (force end): the run is bounded in time.
  */
 import mqtt, { type MqttClient } from 'mqtt';
 import { telemetryTopic } from '../../shared/topics';
@@ -45,7 +48,7 @@ async function main(): Promise<void> {
   let failed = 0;
   const end = Date.now() + job.durationMs;
   if (job.mode === 'flood') {
-    await Promise.all(clients.map(async (c, idx) => {
+    const lanes = Promise.all(clients.map(async (c, idx) => {
       const topic = telemetryTopic(job.devices[idx].engineId);
       const state = { next: job.baseTs };
       const lane = async () => {
@@ -60,6 +63,10 @@ async function main(): Promise<void> {
       };
       await Promise.all(Array.from({ length: job.window }, lane));
     }));
+    // QoS 1: every publish in flight is waited for (it counts once acknowledged), within a bound;
+    // QoS 0: a write stalled by TCP backpressure is not waited for
+    const grace = job.qos === 1 ? 60_000 : 0;
+    await Promise.race([lanes, new Promise((r) => setTimeout(r, Math.max(0, end - Date.now()) + grace))]);
   } else {
     const channels = (t: number) => {
       const k = t / 1000;
@@ -81,8 +88,10 @@ async function main(): Promise<void> {
     }
     await Promise.all(pending);
   }
-  await Promise.all(clients.map((c) => c.endAsync()));
-  process.stdout.write(JSON.stringify({ readings, messages, failed }) + '\n');
+  const result = { readings, messages, failed };
+  const force = job.qos === 0;
+  await Promise.race([Promise.all(clients.map((c) => c.endAsync(force))), new Promise((r) => setTimeout(r, 5000))]);
+  process.stdout.write(JSON.stringify(result) + '\n', () => process.exit(0));
 }
 
 main().catch((err) => {

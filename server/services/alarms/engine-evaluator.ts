@@ -44,6 +44,10 @@ interface Slot {
   def: RuleDefinition;
   params: Record<string, unknown>;
   state: unknown;
+  /** Channels fed to this rule (null: every reading, as for no-data); computed once, not per reading. */
+  channels: ChannelKey[] | null;
+  /** armedAtTempC of the rule, or null. */
+  armTemp: number | null;
 }
 
 /** The channels a rule kind is fed with (null: every reading counts, as for no-data). */
@@ -122,6 +126,18 @@ function armTemp(def: RuleDefinition): number | null {
   return typeof t === 'number' && Number.isFinite(t) ? t : null;
 }
 
+const feedOrder = (a: EvalReading, b: EvalReading) => a.ts - b.ts || (a.channel === 'engine_speed' ? -1 : b.channel === 'engine_speed' ? 1 : 0);
+
+/** True when already in feed order (the usual case): then no sorted copy is made. */
+function inFeedOrder(readings: EvalReading[]): boolean {
+  for (let i = 1; i < readings.length; i++) {
+    const a = readings[i - 1];
+    const b = readings[i];
+    if (a.ts > b.ts || (a.ts === b.ts && b.channel === 'engine_speed' && a.channel !== 'engine_speed')) return false;
+  }
+  return true;
+}
+
 export class EngineEvaluator {
   private readonly slots: Slot[];
   private speed: { ts: number; running: boolean } | null = null;
@@ -140,7 +156,7 @@ export class EngineEvaluator {
       .map((def) => {
         let state = initialState(def, engine, opts.startTs ?? null);
         if (opts.activeRules?.has(def.key)) state = activeState(def, state, opts.activeRules.get(def.key) ?? null);
-        return { def, params: paramsFor(def, engine), state };
+        return { def, params: paramsFor(def, engine), state, channels: channelsOf(def), armTemp: armTemp(def) };
       });
   }
 
@@ -169,19 +185,25 @@ export class EngineEvaluator {
   /** Feed readings of this engine (any order): sorted by time, speed first at equal times. */
   feed(readings: EvalReading[]): RuleHit[] {
     const hits: RuleHit[] = [];
-    const sorted = [...readings].sort((a, b) => a.ts - b.ts || (a.channel === 'engine_speed' ? -1 : b.channel === 'engine_speed' ? 1 : 0));
-    for (const r of sorted) {
+    const sorted = inFeedOrder(readings) ? readings : [...readings].sort(feedOrder);
+    for (let i = 0; i < sorted.length; i++) {
+      const r = sorted[i];
       const late = r.ts < this.newestTs;
       if (!late) this.newestTs = r.ts;
       if (r.channel === 'engine_speed' && r.quality === 0 && !late) this.speed = { ts: r.ts, running: r.value >= RUNNING_RPM };
       if (r.channel === 'coolant_temp' && r.quality === 0 && !late) this.coolantTemp = r.value;
       const running = this.running(r.ts);
       for (const slot of this.slots) {
-        const chans = channelsOf(slot.def);
+        const chans = slot.channels;
         if (chans === null) {
+          // no-data: a reading not after the last one heard changes nothing while the alarm is not
+          // active (stepNoData returns an equal state and no event), so the other channels of the
+          // same sample are skipped; it stays O(1) per reading either way
+          const st = slot.state as NoDataRuleState;
+          if (!st.active && st.lastTs !== null && r.ts <= st.lastTs) continue;
           this.apply(slot, { ts: r.ts, value: r.value, quality: r.quality }, hits);
-        } else if (!late && chans.includes(r.channel)) {
-          const arm = armTemp(slot.def);
+        } else if (!late && (chans[0] === r.channel || (chans.length > 1 && chans.includes(r.channel)))) {
+          const arm = slot.armTemp;
           const armed = arm === null || running !== true ? running : this.coolantTemp !== null && this.coolantTemp >= arm;
           this.apply(slot, { ts: r.ts, value: r.value, quality: r.quality, running: armed, channel: r.channel }, hits);
         }

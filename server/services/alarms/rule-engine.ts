@@ -127,22 +127,30 @@ export class RuleEngine {
 
   /** telemetry.onReadings listener: synchronous, no I/O on this path (alarm writes are queued). */
   handleReadings(readings: AcceptedReading[]): void {
+    if (!readings.length) return;
+    // one MQTT message is one engine's: no regrouping then (no Map and list per batch)
+    const first = readings[0].engineId;
+    let oneEngine = true;
+    for (let i = 1; i < readings.length && oneEngine; i++) oneEngine = readings[i].engineId === first;
+    if (oneEngine) return this.handleEngine(first, readings);
     const byEngine = new Map<number, AcceptedReading[]>();
     for (const r of readings) {
       const list = byEngine.get(r.engineId);
       if (list) list.push(r);
       else byEngine.set(r.engineId, [r]);
     }
-    for (const [engineId, list] of byEngine) {
-      const ev = this.evaluators.get(engineId);
-      if (!ev) {
-        // an engine added since the last refresh: pick it up soon (readings until then are not evaluated)
-        if (!this.outOfService.has(engineId) && Date.now() - this.lastRefresh > 1000) void this.refreshEngines().catch((err) => this.deps.log.error('alarms: engine refresh failed', err));
-        continue;
-      }
-      this.dispatch(engineId, ev.feed(list));
-      this.afterStep(engineId, ev);
+    for (const [engineId, list] of byEngine) this.handleEngine(engineId, list);
+  }
+
+  private handleEngine(engineId: number, list: AcceptedReading[]): void {
+    const ev = this.evaluators.get(engineId);
+    if (!ev) {
+      // an engine added since the last refresh: pick it up soon (readings until then are not evaluated)
+      if (!this.outOfService.has(engineId) && Date.now() - this.lastRefresh > 1000) void this.refreshEngines().catch((err) => this.deps.log.error('alarms: engine refresh failed', err));
+      return;
     }
+    this.dispatch(engineId, ev.feed(list));
+    this.afterStep(engineId, ev);
   }
 
   /** The 1 s clock. */
