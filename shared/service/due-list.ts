@@ -47,6 +47,9 @@ export function dueStatus(task: ServiceTask, ctx: DueContext, windowDays = 14, w
   if (!byHours && !byDays) return { state: 'ok', dueAt: null, dueAtRunHours: null, reason: 'no interval set' };
   if (ctx.lastDoneAt === null) return { state: 'overdue', dueAt: null, dueAtRunHours: null, reason: 'no record of it being done' };
 
+  // A short task must not sit in "due soon" for its whole interval: the window is at most a quarter of it.
+  const soonDays = byDays ? Math.min(windowDays, task.everyDays! / 4) : windowDays;
+  const soonHours = byHours ? Math.min(windowHours, task.everyHours! / 4) : windowHours;
   const dueAt = byDays ? ctx.lastDoneAt + task.everyDays! * DAY : null;
   const dueAtRunHours = byHours && ctx.lastDoneRunHours !== null ? ctx.lastDoneRunHours + task.everyHours! : null;
   const daysLeft = dueAt === null ? Infinity : (dueAt - ctx.now) / DAY;
@@ -60,8 +63,8 @@ export function dueStatus(task: ServiceTask, ctx: DueContext, windowDays = 14, w
     const why = [hoursLeft <= 0 ? hoursText : '', daysLeft <= 0 ? daysText : ''].filter(Boolean).join(' and ');
     return { state: 'overdue', dueAt, dueAtRunHours, reason: `overdue: ${why}${noHours}` };
   }
-  if (hoursLeft <= windowHours || daysLeft <= windowDays) {
-    const why = [hoursLeft <= windowHours ? hoursText : '', daysLeft <= windowDays ? daysText : ''].filter(Boolean).join(' and ');
+  if (hoursLeft <= soonHours || daysLeft <= soonDays) {
+    const why = [hoursLeft <= soonHours ? hoursText : '', daysLeft <= soonDays ? daysText : ''].filter(Boolean).join(' and ');
     return { state: 'due-soon', dueAt, dueAtRunHours, reason: `due soon: ${why}${noHours}` };
   }
   const first = hoursText && daysText ? `${hoursText}; ${daysText}` : hoursText || daysText;

@@ -12,7 +12,7 @@
  * covered by test/server/alarms-normal-running.test.ts.
  *
  * Test-only settings, and why:
- * - NOTIFY_MIN_PRIORITY=low: the stuck-sensor rule is low priority, which the default setting does not e-mail.
+ * - NOTIFY_MIN_PRIORITY=low: kept so that every rule e-mails here whatever its priority.
  * - The stuck-sensor rule's duration is 600 s of readings' (wall-clock) time; --speed shortens physics, not
  *   the rule clocks, so the test sets a per-engine override of 60 s on the stuck engine, as an administrator
  *   would through the rules API. Every other rule runs with its default parameters.

@@ -124,7 +124,7 @@ export const DEFAULT_RULES: RuleDefinition[] = [
     key: 'coolant_temp_stuck',
     kind: 'stuck',
     channel: 'coolant_temp',
-    priority: 'low',
+    priority: 'medium',
     enabled: true,
     title: 'Coolant temperature not changing',
     meaning: 'The coolant temperature reading has not moved for ten minutes while the engine runs: likely a sensor or wiring fault.',

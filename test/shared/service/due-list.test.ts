@@ -41,6 +41,15 @@ describe('dueStatus: whichever comes first', () => {
     expect(dueStatus(oil, { runHoursNow: 1000, now: NOW + 365 * DAY, lastDoneAt: NOW, lastDoneRunHours: 1000 }).state).toBe('overdue');
   });
 
+  it('a weekly task is due soon only in the last quarter of its week, not all week long', () => {
+    const weekly: ServiceTask = { key: 'weekly-inspection', title: 'Weekly inspection', everyDays: 7, basis: 'test' };
+    const at = (daysAgo: number) => dueStatus(weekly, { runHoursNow: 0, now: NOW, lastDoneAt: NOW - daysAgo * DAY, lastDoneRunHours: 0 }, 14, 50).state;
+    expect(at(1)).toBe('ok');
+    expect(at(5)).toBe('ok');
+    expect(at(5.5)).toBe('due-soon');
+    expect(at(7)).toBe('overdue');
+  });
+
   it('ok well inside both intervals', () => {
     const s = dueStatus(oil, { runHoursNow: 1100, now: NOW, lastDoneAt: NOW - 100 * DAY, lastDoneRunHours: 1000 });
     expect(s.state).toBe('ok');
@@ -74,13 +83,13 @@ describe('default service plan and due list', () => {
       'filter-change': { lastDoneAt: NOW - 200 * DAY, lastDoneRunHours: 900 },
       'coolant-test': { lastDoneAt: NOW - 190 * DAY, lastDoneRunHours: 900 },
       'drain-flush-refill': { lastDoneAt: NOW - 300 * DAY, lastDoneRunHours: 800 },
-      'weekly-inspection': { lastDoneAt: NOW - 2 * DAY, lastDoneRunHours: 940 },
+      'weekly-inspection': { lastDoneAt: NOW - 6 * DAY, lastDoneRunHours: 940 },
       // monthly-exercise: never recorded
     }, { runHoursNow: 960, now: NOW });
     expect(list.map((e) => [e.task.key, e.state])).toEqual([
       ['coolant-test', 'overdue'], // 190 days > 182
       ['monthly-exercise', 'overdue'],
-      ['weekly-inspection', 'due-soon'], // 5 days left, inside the 14-day window
+      ['weekly-inspection', 'due-soon'], // 1 day left, inside a quarter of its 7-day interval
       ['filter-change', 'ok'], // same date as the oil drain: by key
       ['oil-drain', 'ok'],
       ['drain-flush-refill', 'ok'],
