@@ -87,6 +87,27 @@ function trailingRunStart(list: readonly TimedValue[], ok: (v: number) => boolea
 
 const fmt = (n: number, d = 1) => n.toFixed(d);
 
+/** Readings within this of the highest since the stop count as its plateau: about 5 sigma of a gauge's noise, or 3 %. */
+export const PRESSURE_PLATEAU_TOL_KPA = 2;
+
+/**
+ * The pressure readings since the stop from the last one still on the plateau onward. Right after a stop
+ * the hot coolant holds the pressure at the cap's relief level for a while; only when the coolant has cooled
+ * enough does the gauge pressure fall with its temperature. A decay fitted over the flat stretch reads as
+ * barely falling and predicts far too late, so the fit starts where the fall starts.
+ * Fitted from there toward 0 kPa it stays on the late (safe) side while the system's pressure would settle at
+ * or below zero gauge: a gauge pressure that follows a cooling temperature falls faster, in relative terms,
+ * as it nears zero than the fitted exponential does.
+ */
+export function pressureFalling(sinceStop: readonly TimedValue[]): TimedValue[] {
+  if (!sinceStop.length) return [];
+  const peak = Math.max(...sinceStop.map((r) => r.value));
+  const floor = peak - Math.max(PRESSURE_PLATEAU_TOL_KPA, 0.03 * Math.abs(peak));
+  let i = sinceStop.length - 1;
+  while (i > 0 && sinceStop[i].value < floor) i--;
+  return sinceStop.slice(i);
+}
+
 export function openingCheck(input: OpeningCheckInput, now: number): OpeningCheckResult {
   const s: OpeningSettings = { ...DEFAULT_OPENING_SETTINGS, ...(input.settings ?? {}) };
   const temp = good(input.readings.coolant_temp, now);
@@ -167,13 +188,21 @@ export function openingCheck(input: OpeningCheckInput, now: number): OpeningChec
       if (!Number.isFinite(dt)) { reasons.push(`The coolant is levelling off near ${fmt(fit.ambientC)} °C, above the safe opening temperature: no prediction.`); return null; }
       times.push(lt!.ts + dt * 1000);
     }
-    // Pressure: the same first-order decay toward 0 kPa gauge (an empirical fit, not a model of the system).
+    // Pressure: a first-order decay toward 0 kPa gauge (an empirical fit, not a model of the system), fitted
+    // only from where the pressure leaves its plateau after the stop (see pressureFalling).
     if (presMet) times.push(presSince!);
     else {
       const since = pres.filter((r) => r.ts >= stoppedSince);
-      const fit = s.maxPressureKpa > 0 ? fitCooling(since.map((r) => ({ t: r.ts / 1000, temp: r.value })), 0) : null;
+      const falling = pressureFalling(since);
+      const fit = s.maxPressureKpa > 0 ? fitCooling(falling.map((r) => ({ t: r.ts / 1000, temp: r.value })), 0) : null;
       const dt = fit ? timeToReachS(lp!.value, 0, fit.tauS, s.maxPressureKpa) : Infinity;
-      if (!Number.isFinite(dt)) { reasons.push('Coolant pressure is not falling toward zero: no prediction.'); return null; }
+      if (!Number.isFinite(dt)) {
+        const held = since.length > 0 && falling.length < 3;
+        reasons.push(held
+          ? `Coolant pressure is not falling yet (still near ${fmt(Math.max(...since.map((r) => r.value)))} kPa since the stop): no prediction until it starts to fall.`
+          : 'Coolant pressure is not falling toward zero: no prediction.');
+        return null;
+      }
       times.push(lp!.ts + dt * 1000);
     }
     return Math.max(now, Math.max(...times) + s.holdS * 1000);

@@ -1,4 +1,4 @@
-import { openingCheck, OpeningCheckInput, TimedValue, LOCKOUT_REASON } from '../../../shared/work/opening-check';
+import { openingCheck, OpeningCheckInput, TimedValue, LOCKOUT_REASON, pressureFalling } from '../../../shared/work/opening-check';
 import { coolingTemperature } from '../../../shared/cooling/newton-cooling';
 
 // Limits under test are the product defaults: 50 °C (common guidance of the trade, see the
@@ -160,5 +160,41 @@ describe('opening check prediction from synthetic cooling data', () => {
     const r = openingCheck(base({ readings: scenario(sc) }), NOW);
     const expected = NOW - 900 * S + 600 * Math.log(60 / 7) * S + 120 * S;
     expect(Math.abs(r.clearAt! - expected)).toBeLessThan(5 * S);
+  });
+
+  // Right after a stop the pressure sits at the cap's relief level while the coolant is still hot, then falls.
+  // Hand-made: flat at 95 kPa for 200 s, then 95 e^(-(s-200)/100). Newton's form gives the crossing of 7 kPa
+  // at 200 + 100 ln(95/7) s after the stop; a fit over the flat stretch too would read as barely falling.
+  const flatThenFalling = (s: number) => (s < 200 ? 95 : 95 * Math.exp(-(s - 200) / 100));
+
+  it('pressure held flat after the stop: the fit starts where it begins to fall', () => {
+    const sc: Scenario = { stoppedAgoS: 300, tempAt: () => 45, pressureAt: flatThenFalling, everyS: 5 };
+    const r = openingCheck(base({ readings: scenario(sc), settings: { ambientC: 25, minStoppedS: 60 } }), NOW);
+    const expected = NOW - 300 * S + (200 + 100 * Math.log(95 / 7)) * S + 120 * S;
+    expect(r.clear).toBe(false);
+    expect(Math.abs(r.clearAt! - expected)).toBeLessThan(10 * S);
+    const since = scenario(sc).coolant_pressure.filter((p) => p.ts >= NOW - 300 * S);
+    expect(pressureFalling(since)[0].ts).toBe(NOW - 300 * S + 200 * S); // the last reading on the plateau
+  });
+
+  it('pressure still on its plateau: no prediction yet, and says so', () => {
+    const sc: Scenario = { stoppedAgoS: 150, tempAt: () => 45, pressureAt: flatThenFalling, everyS: 5 };
+    const r = openingCheck(base({ readings: scenario(sc), settings: { ambientC: 25, minStoppedS: 60 } }), NOW);
+    expect(r.clearAt).toBeNull();
+    expect(r.reasons.join(' ')).toMatch(/not falling yet \(still near 95.0 kPa since the stop\)/);
+  });
+
+  it('gauge pressure following a cooling temperature, capped at relief: predicted on the late (safe) side', () => {
+    // p = 1.778 (T - 40 °C) kPa capped at 97 kPa (a closed system: pressure follows temperature; common practice
+    // for the shape, invented figures); T cools from 100 °C toward 25 °C with tau 1800 s (Newton).
+    const T = (s: number) => coolingTemperature(100, 25, 1800, s);
+    const p = (s: number) => Math.max(0, Math.min(97, (80 / 45) * (T(s) - 40)));
+    const sc: Scenario = { stoppedAgoS: 900, tempAt: () => 45, pressureAt: p };
+    const r = openingCheck(base({ readings: scenario(sc), settings: { ambientC: 25, minStoppedS: 60 } }), NOW);
+    // true crossing of 7 kPa: T = 40 + 7 / 1.778 °C, at 1800 ln(75 / (T - 25)) s after the stop
+    const trueCross = NOW - 900 * S + 1800 * Math.log(75 / (40 + 7 * 45 / 80 - 25)) * S + 120 * S;
+    expect(r.clearAt!).toBeGreaterThanOrEqual(trueCross);
+    // late (the exponential toward 0 kPa falls slower near zero than this pressure does), but less than twice the wait
+    expect(r.clearAt! - trueCross).toBeLessThan(trueCross - NOW);
   });
 });
