@@ -69,8 +69,14 @@ export interface Stack {
   stop(): Promise<void>;
 }
 
-/** Every child still running, for the exit handlers. */
+/** Every child still running and every DATA_DIR still there, for the exit handlers. */
 const live = new Set<ChildProcess>();
+const dataDirs = new Set<string>();
+
+function removeDataDir(dir: string): void {
+  dataDirs.delete(dir);
+  if (!process.env.KEEP_E2E_DATA) fs.rmSync(dir, { recursive: true, force: true });
+}
 
 function killGroup(child: ChildProcess, signal: NodeJS.Signals): void {
   if (child.pid === undefined) return;
@@ -89,12 +95,14 @@ let handlersInstalled = false;
 function installExitHandlers(): void {
   if (handlersInstalled) return;
   handlersInstalled = true;
-  process.once('exit', () => {
+  const killAll = () => {
     for (const c of live) killGroup(c, 'SIGKILL');
-  });
+    for (const d of [...dataDirs]) removeDataDir(d);
+  };
+  process.once('exit', killAll);
   for (const sig of ['SIGINT', 'SIGTERM', 'SIGHUP'] as const) {
     process.once(sig, () => {
-      for (const c of live) killGroup(c, 'SIGKILL');
+      killAll();
       process.exit(128 + (os.constants.signals[sig] ?? 1));
     });
   }
@@ -167,6 +175,7 @@ async function stopChild(child: ChildProcess): Promise<void> {
 export async function startStack(opts: StackOptions = {}): Promise<Stack> {
   const [port, mqttPort, smtpPort, controlPort] = [await freePort(), await freePort(), await freePort(), await freePort()];
   const dataDir = fs.mkdtempSync(path.join(os.tmpdir(), 'jw-e2e-'));
+  dataDirs.add(dataDir);
   const logDir = path.join(LOGS, path.basename(dataDir));
   fs.mkdirSync(logDir, { recursive: true });
   const env = {
@@ -219,7 +228,7 @@ export async function startStack(opts: StackOptions = {}): Promise<Stack> {
     if (opts.simulate !== false) await startSimulatorReady(opts.simulatorArgs ?? ['--rate', '1', '--speed', '30', '--seed', '7']);
   } catch (err) {
     await stopAll();
-    if (!process.env.KEEP_E2E_DATA) fs.rmSync(dataDir, { recursive: true, force: true });
+    removeDataDir(dataDir);
     (err as Error).message += `\n(logs of this run: ${logDir})`;
     throw err;
   }
@@ -268,7 +277,7 @@ export async function startStack(opts: StackOptions = {}): Promise<Stack> {
     },
     async stop() {
       await stopAll();
-      if (!process.env.KEEP_E2E_DATA) fs.rmSync(dataDir, { recursive: true, force: true });
+      removeDataDir(dataDir);
     },
   };
 }
