@@ -2,6 +2,7 @@ import { ChangeDetectionStrategy, Component, DestroyRef, computed, effect, injec
 import { MatIconModule } from '@angular/material/icon';
 import { ClockService } from '../core/clock.service';
 import { UnitValuePipe } from '../ui/unit-value.pipe';
+import { CooldownChart } from './cooldown-chart';
 import { WorkApi, errorText } from './work-api';
 import { CONDITION_TEXT, formatDateTime } from './work-labels';
 import { OpeningCheck, OpeningCondition } from './work-types';
@@ -16,7 +17,7 @@ const POLL_MS = 5000;
 @Component({
   selector: 'jw-opening-check-panel',
   changeDetection: ChangeDetectionStrategy.OnPush,
-  imports: [MatIconModule, UnitValuePipe],
+  imports: [MatIconModule, UnitValuePipe, CooldownChart],
   template: `
     <section class="panel" [class.clear]="check()?.clear" [class.stale]="check()?.stale" aria-live="polite" aria-label="Opening check">
       @if (check(); as c) {
@@ -46,8 +47,25 @@ const POLL_MS = 5000;
             </li>
           }
         </ul>
+        @if (heaterBlocks(); as h) {
+          <p class="heater" role="alert">
+            <mat-icon fontIcon="block" aria-hidden="true" />
+            <span>The jacket-water heater is set to {{ h.setpointC | unitValue: 'coolant_temp' }}, at or above the safe opening temperature
+            {{ h.limitC | unitValue: 'coolant_temp' }}: this check can never clear while the heater is on. Switch the heater off and lock it out,
+            then the coolant can cool below the limit.</span>
+          </p>
+        }
         @if (!c.clear && c.reasons.length) {
-          <details><summary>Why not clear</summary><ul class="reasons">@for (r of c.reasons; track $index) { <li>{{ r }}</li> }</ul></details>
+          <div class="why"><span class="label">Why not clear:</span><ul class="reasons">@for (r of c.reasons; track $index) { <li>{{ r }}</li> }</ul></div>
+        }
+        @if (!c.clear && stopTs(); as stop) {
+          @defer (on viewport) {
+            <jw-cooldown-chart [engineId]="engineId()" [check]="c" [stopTs]="stop" />
+          } @placeholder {
+            <p class="chart-wait">Cool-down chart…</p>
+          }
+        } @else if (!c.clear && !c.stale) {
+          <p class="chart-wait">The cool-down chart starts when the engine has stopped.</p>
         }
       } @else if (error(); as e) {
         <div class="verdict"><mat-icon fontIcon="help" aria-hidden="true" /><div class="word">Opening check unavailable: {{ e }}</div></div>
@@ -73,7 +91,10 @@ const POLL_MS = 5000;
     .conditions li { display: grid; grid-template-columns: 24px 5.5em 1fr auto; gap: 8px; align-items: center; font-weight: 600; }
     .conditions li.met { font-weight: 400; }
     .val { color: var(--jw-muted-text); }
-    .reasons { margin: 4px 0 0; }
+    .why { margin-top: 8px; }
+    .reasons { margin: 2px 0 0; padding-left: 20px; }
+    .heater { display: flex; gap: 8px; align-items: flex-start; margin: 10px 0 0; padding: 8px 10px; border: 2px solid var(--jw-alarm-high); background: var(--jw-alarm-high-bg); border-radius: 6px; font-weight: 700; }
+    .chart-wait { color: var(--jw-muted-text); margin: 8px 0 0; }
   `,
 })
 export class OpeningCheckPanel {
@@ -90,6 +111,20 @@ export class OpeningCheckPanel {
   protected readonly shown = computed(() => this.check()?.conditions ?? []);
   protected readonly tempValue = computed(() => num(this.check()?.conditions.find((c) => c.name === 'coolant-temperature')?.value));
   protected readonly pressureValue = computed(() => num(this.check()?.conditions.find((c) => c.name === 'coolant-pressure')?.value));
+  /** ms the engine stopped, from the stopped-for seconds at the time of the check; null while running or unknown. */
+  protected readonly stopTs = computed(() => {
+    const c = this.check();
+    const k = c?.conditions.find((x) => x.name === 'engine-stopped');
+    if (!c || !k || typeof k.value !== 'number' || k.value <= 0 || k.detail === 'no data' || k.detail?.startsWith('running')) return null;
+    return Date.parse(c.at) - k.value * 1000;
+  });
+  /** The heater holds the coolant at or above the limit: the check cannot clear until it is switched off. */
+  protected readonly heaterBlocks = computed(() => {
+    const c = this.check();
+    const h = c?.settings.heaterSetpointC;
+    if (!c || c.clear || h === null || h === undefined || h < c.settings.safeOpenTempC) return null;
+    return { setpointC: h, limitC: c.settings.safeOpenTempC };
+  });
   private timer: ReturnType<typeof setInterval> | null = null;
 
   constructor() {

@@ -1,7 +1,8 @@
 import { HttpClient, HttpErrorResponse } from '@angular/common/http';
 import { Injectable, inject } from '@angular/core';
 import { firstValueFrom } from 'rxjs';
-import { Assignee, ManualCheck, OpeningCheck, WorkOrderDetail, WorkOrderSummary, WorkPriority, WorkStatus, WorkTemplate } from './work-types';
+import { ReadingBucket } from './cooldown-series';
+import { Assignee, CoolantTestSummary, ManualCheck, OpeningCheck, WorkOrderDetail, WorkOrderSummary, WorkPriority, WorkStatus, WorkTemplate } from './work-types';
 
 export interface ListFilter {
   status?: WorkStatus[];
@@ -96,6 +97,17 @@ export class WorkApi {
 
   openingCheck(engineId: number, lockoutConfirmed = false): Promise<OpeningCheck> {
     return firstValueFrom(this.http.get<OpeningCheck>(`/api/engines/${engineId}/opening-check`, { params: { lockoutConfirmed: String(lockoutConfirmed) } }));
+  }
+
+  /** Readings of one channel as buckets (at most `points`), stored units. */
+  readings(engineId: number, channel: string, from: number, to: number, points: number): Promise<ReadingBucket[]> {
+    const params = { channel, from: String(Math.floor(from)), to: String(Math.ceil(to)), points: String(Math.max(1, Math.min(2000, Math.round(points)))) };
+    return firstValueFrom(this.http.get<{ buckets?: ReadingBucket[] }>(`/api/engines/${engineId}/readings`, { params })).then((r) => r.buckets ?? []);
+  }
+
+  /** Coolant tests of an engine, newest first (server/routes/coolant.ts). */
+  coolantTests(engineId: number): Promise<CoolantTestSummary[]> {
+    return firstValueFrom(this.http.get<CoolantTestSummary[]>(`/api/engines/${engineId}/coolant-tests`));
   }
 
   sites(): Promise<{ id: number; name: string }[]> {

@@ -151,7 +151,7 @@ export interface OpeningCheck {
   clearAt: number | null;
   reasons: string[];
   stale: boolean;
-  settings: { safeOpenTempC: number; maxPressureKpa: number; minStoppedS: number; holdS: number; staleAfterS: number };
+  settings: { safeOpenTempC: number; maxPressureKpa: number; minStoppedS: number; holdS: number; staleAfterS: number; heaterSetpointC?: number | null; ambientC?: number | null };
 }
 
 /** The 409 body of a gated step refused by the server. */
@@ -167,4 +167,11 @@ export interface Assignee {
   id: number;
   name: string;
   email: string;
+}
+
+/** What the work screens need of a coolant test (GET /api/engines/:id/coolant-tests, newest first). */
+export interface CoolantTestSummary {
+  id: number;
+  testedAt: string;
+  decision: { additive: { filter: 'charged' | 'blank' | null } | null } | null;
 }
