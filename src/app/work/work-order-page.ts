@@ -15,6 +15,7 @@ import { RouterLink } from '@angular/router';
 import { AuthService } from '../core/auth.service';
 import { PreferencesService } from '../core/preferences.service';
 import { OpeningCheckPanel } from './opening-check-panel';
+import { FilterDefault, filterDefault } from './parts-default';
 import { AttachmentThumb } from './attachment-thumb';
 import { WorkApi, errorText } from './work-api';
 import { CONDITION_TEXT, EVENT_TEXT, PART_TEXT, PRIORITY_TEXT, STATUS_ICON, STATUS_TEXT, STEP_UNIT_TEXT, formatDate, formatDateTime } from './work-labels';
@@ -64,7 +65,10 @@ export class WorkOrderPage {
   protected readonly drafts: Record<number, StepDraft> = {};
   protected transitionNote = '';
   protected amendmentText = '';
-  protected part = { kind: 'filter-blank', quantity: 1 as number | null, unit: 'pcs' as 'L' | 'gal' | 'pcs', description: '' };
+  /** Nothing chosen until the additive test says which filter (or the user chooses). */
+  protected part = { kind: '', quantity: 1 as number | null, unit: 'pcs' as 'L' | 'gal' | 'pcs', description: '' };
+  /** The filter the latest additive test asks for, on a filter change; null on other work. */
+  protected readonly filterHint = signal<FilterDefault | null>(null);
   protected uploadStep: number | null = null;
 
   protected readonly statusText = STATUS_TEXT;
@@ -116,9 +120,25 @@ export class WorkOrderPage {
 
   private async load(id: number): Promise<void> {
     try {
-      this.set(await this.api.get(id));
+      const o = await this.api.get(id);
+      this.set(o);
+      if (o.kind === 'filter-change' && !['closed', 'cancelled'].includes(o.status)) await this.loadFilterDefault(o.engineId);
     } catch (e) {
       this.error.set(errorText(e));
+    }
+  }
+
+  private async loadFilterDefault(engineId: number): Promise<void> {
+    try {
+      const d = filterDefault(await this.api.coolantTests(engineId));
+      this.filterHint.set(d);
+      // only when the user has not chosen yet
+      if (d.kind && this.part.kind === '') {
+        this.part = { ...this.part, kind: d.kind };
+        this.partKindChanged();
+      }
+    } catch {
+      this.filterHint.set(null);
     }
   }
 
@@ -245,6 +265,7 @@ export class WorkOrderPage {
 
   protected addPart(): void {
     const p = this.part;
+    if (!p.kind) return void this.error.set('Choose what was used first.');
     if (!p.quantity || p.quantity <= 0) return;
     void this.act(() => this.api.addPart(this.order()!.id, { kind: p.kind, quantity: Number(p.quantity), unit: p.unit, ...(p.description.trim() ? { description: p.description.trim() } : {}) })).then(() => (this.part.description = ''));
   }
