@@ -5,6 +5,7 @@ import { authRouter } from './auth';
 import { calcRouter } from './calc';
 import { coolantRouter } from './coolant';
 import { devicesRouter } from './devices';
+import { engineHistoryRouter } from './engine-history';
 import { enginesRouter } from './engines';
 import { healthRouter } from './health';
 import { sitesRouter } from './sites';
@@ -17,5 +18,5 @@ export function coreRouters(ctx: AppContext): Router[] {
   docs.get('/openapi.json', (_req, res) => {
     res.json(buildOpenApi());
   });
-  return [docs, healthRouter(ctx), authRouter(ctx), sitesRouter(ctx), enginesRouter(ctx), devicesRouter(ctx), usersRouter(ctx), workOrdersRouter(ctx), calcRouter(ctx), coolantRouter(ctx)];
+  return [docs, healthRouter(ctx), authRouter(ctx), sitesRouter(ctx), enginesRouter(ctx), devicesRouter(ctx), usersRouter(ctx), workOrdersRouter(ctx), calcRouter(ctx), coolantRouter(ctx), engineHistoryRouter(ctx)];
 }
