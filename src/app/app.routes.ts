@@ -11,6 +11,7 @@ export const routes: Routes = [
   { path: 'admin', title: 'Administration · Jacketwatch', canMatch: [roleGuard('admin')], loadChildren: () => import('./admin/admin.routes').then((m) => m.ADMIN_ROUTES) },
   { path: 'alarms', canMatch: [signedInGuard], loadChildren: () => import('./alarms/alarms.routes').then((m) => m.ALARM_ROUTES) },
   { path: 'work', canMatch: [signedInGuard], loadChildren: () => import('./work/work.routes').then((m) => m.WORK_ROUTES) },
+  { path: 'engines/:id/history', title: 'Service history · Jacketwatch', canMatch: [signedInGuard], loadComponent: () => import('./engine/engine-history-page').then((m) => m.EngineHistoryPage) },
   { path: 'engines/:id/coolant', title: 'Coolant · Jacketwatch', canMatch: [signedInGuard], loadComponent: () => import('./coolant/engine-coolant-page').then((m) => m.EngineCoolantPage) },
   { path: 'calculators', title: 'Coolant calculators · Jacketwatch', canMatch: [signedInGuard], loadComponent: () => import('./coolant/calculators-page').then((m) => m.CalculatorsPage) },
   { path: 'due', title: 'Service due · Jacketwatch', canMatch: [signedInGuard], loadComponent: () => import('./coolant/due-list-page').then((m) => m.DueListPage) },
