@@ -66,7 +66,12 @@ interface OutboxItem { id: number; to: string; subject: string; alarmId: number 
     .head { display: flex; align-items: center; gap: 16px; }
     h1 { font: var(--mat-sys-headline-small); margin: 0; flex: 1; }
     h2 { font: var(--mat-sys-title-medium); margin: 24px 0 8px; }
-    mat-panel-description { display: flex; justify-content: space-between; gap: 16px; }
+    /* subjects are long: let the header grow and wrap instead of clipping lines at tablet width */
+    mat-accordion { --mat-expansion-header-collapsed-state-height: auto; --mat-expansion-header-expanded-state-height: auto; }
+    mat-expansion-panel-header { padding-top: 10px; padding-bottom: 10px; }
+    mat-panel-title { flex: 3 1 0; }
+    mat-panel-description { flex: 2 1 0; display: flex; flex-wrap: wrap; justify-content: space-between; gap: 4px 16px; }
+    th { white-space: nowrap; }
     .meta, .muted { color: var(--jw-muted-text); }
     .text { white-space: pre-wrap; font: inherit; margin: 0; }
     table { width: 100%; }

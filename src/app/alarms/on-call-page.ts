@@ -3,6 +3,7 @@ import { ChangeDetectionStrategy, Component, computed, inject, signal } from '@a
 import { MatButtonModule } from '@angular/material/button';
 import { MatDialog } from '@angular/material/dialog';
 import { MatIconModule } from '@angular/material/icon';
+import { MatPaginatorModule, PageEvent } from '@angular/material/paginator';
 import { MatSnackBar } from '@angular/material/snack-bar';
 import { MatTableModule } from '@angular/material/table';
 import { firstValueFrom } from 'rxjs';
@@ -19,18 +20,19 @@ const ONCALL_ROLES = ['technician', 'planner', 'admin'];
 @Component({
   selector: 'jw-on-call-page',
   changeDetection: ChangeDetectionStrategy.OnPush,
-  imports: [MatTableModule, MatButtonModule, MatIconModule],
+  imports: [MatTableModule, MatButtonModule, MatIconModule, MatPaginatorModule],
   template: `
     <section class="page">
       <header class="head">
         <h1>On-call rota</h1>
         <button mat-flat-button type="button" (click)="edit(null)"><mat-icon fontIcon="add" />New shift</button>
       </header>
-      <p class="muted">Alarm e-mail goes to whoever is on call for the engine's site; unacknowledged alarms go on to the backup.</p>
+      <p class="muted">Alarm e-mail goes to whoever is on call for the engine's site; unacknowledged alarms go on to the backup. Shifts from the past 7 days on, earliest first.</p>
       @if (error(); as e) { <p class="error" role="alert">{{ e }}</p> }
-      <table mat-table [dataSource]="rows()">
+      <table mat-table [dataSource]="pageRows()">
         <ng-container matColumnDef="now"><th mat-header-cell *matHeaderCellDef><span class="jw-visually-hidden">Now</span></th>
-          <td mat-cell *matCellDef="let s">@if (s.current) { <span class="current"><mat-icon aria-hidden="true" fontIcon="play_arrow" />On now</span> } @else if (s.past) { <span class="muted">Past</span> }</td></ng-container>
+          <td mat-cell *matCellDef="let s">@if (s.current) { <span class="current"><mat-icon aria-hidden="true" fontIcon="play_arrow" />On now</span> } @else if (s.past) { <span class="muted">Past</span> }
+            @if (s.id === savedId()) { <span class="saved"><mat-icon aria-hidden="true" fontIcon="check" />Just saved</span> }</td></ng-container>
         <ng-container matColumnDef="site"><th mat-header-cell *matHeaderCellDef>Site</th><td mat-cell *matCellDef="let s">{{ s.siteName }}</td></ng-container>
         <ng-container matColumnDef="who"><th mat-header-cell *matHeaderCellDef>On call</th><td mat-cell *matCellDef="let s">{{ s.userName ?? 'user ' + s.userId }}</td></ng-container>
         <ng-container matColumnDef="backup"><th mat-header-cell *matHeaderCellDef>Backup</th><td mat-cell *matCellDef="let s">{{ s.backupUserName ?? (s.backupUserId ? 'user ' + s.backupUserId : 'none') }}</td></ng-container>
@@ -38,13 +40,16 @@ const ONCALL_ROLES = ['technician', 'planner', 'admin'];
         <ng-container matColumnDef="until"><th mat-header-cell *matHeaderCellDef>Until</th><td mat-cell *matCellDef="let s" class="jw-num">{{ time(s.endsAt) }}</td></ng-container>
         <ng-container matColumnDef="actions"><th mat-header-cell *matHeaderCellDef><span class="jw-visually-hidden">Actions</span></th>
           <td mat-cell *matCellDef="let s" class="actions">
-            <button mat-icon-button type="button" (click)="edit(s)" [attr.aria-label]="'Change shift of ' + s.userName"><mat-icon fontIcon="edit" /></button>
-            <button mat-icon-button type="button" (click)="remove(s)" [attr.aria-label]="'Delete shift of ' + s.userName"><mat-icon fontIcon="delete" /></button>
+            <button mat-icon-button type="button" (click)="edit(s)" [attr.aria-label]="'Change shift of ' + s.userName + ', ' + s.siteName + ', from ' + time(s.startsAt)"><mat-icon fontIcon="edit" /></button>
+            <button mat-icon-button type="button" (click)="remove(s)" [attr.aria-label]="'Delete shift of ' + s.userName + ', ' + s.siteName + ', from ' + time(s.startsAt)"><mat-icon fontIcon="delete" /></button>
           </td></ng-container>
         <tr mat-header-row *matHeaderRowDef="columns"></tr>
-        <tr mat-row *matRowDef="let row; columns: columns" [class.past]="row.past"></tr>
+        <tr mat-row *matRowDef="let row; columns: columns" [class.past]="row.past" [attr.data-shift-id]="row.id"></tr>
       </table>
       @if (!rows().length) { <p class="muted">No shifts yet: alarm e-mail has nobody to go to.</p> }
+      @else if (rows().length > pageSize) {
+        <mat-paginator [length]="rows().length" [pageSize]="pageSize" [pageIndex]="pageIndex()" [hidePageSize]="true" (page)="turn($event)" aria-label="Pages of shifts" />
+      }
     </section>
   `,
   styles: `
@@ -54,7 +59,8 @@ const ONCALL_ROLES = ['technician', 'planner', 'admin'];
     .muted { color: var(--jw-muted-text); }
     table { width: 100%; }
     tr.past { color: var(--jw-muted-text); }
-    .current { display: inline-flex; align-items: center; font-weight: 700; }
+    .current, .saved { display: inline-flex; align-items: center; font-weight: 700; }
+    .saved { font-weight: 400; }
     .actions { text-align: right; white-space: nowrap; }
     .error { color: var(--jw-alarm-high); }
   `,
@@ -81,6 +87,26 @@ export class OnCallPage {
       past: Date.parse(s.endsAt) <= now,
     }));
   });
+
+  protected readonly pageSize = 15;
+  protected readonly pageIndex = signal(0);
+  protected readonly savedId = signal<number | null>(null);
+  protected readonly pageRows = computed(() => {
+    const last = Math.max(0, Math.ceil(this.rows().length / this.pageSize) - 1);
+    const i = Math.min(this.pageIndex(), last);
+    return this.rows().slice(i * this.pageSize, (i + 1) * this.pageSize);
+  });
+
+  /** Turn to the page that holds this shift and mark it, so the planner sees what was saved. */
+  private showShift(id: number): void {
+    const at = this.rows().findIndex((r) => r.id === id);
+    if (at >= 0) this.pageIndex.set(Math.floor(at / this.pageSize));
+    this.savedId.set(id);
+  }
+
+  protected turn(e: PageEvent): void {
+    this.pageIndex.set(e.pageIndex);
+  }
 
   constructor() {
     if (!this.fleet.sites().length) void this.fleet.load();
@@ -111,10 +137,12 @@ export class OnCallPage {
     const input = await firstValueFrom(this.dialog.open<ShiftDialog, ShiftDialogData, ShiftInput>(ShiftDialog, { data, width: '40em' }).afterClosed());
     if (!input) return;
     try {
-      if (shift) await firstValueFrom(this.http.patch(`/api/oncall/${shift.id}`, input));
-      else await firstValueFrom(this.http.post('/api/oncall', input));
+      const saved = shift
+        ? await firstValueFrom(this.http.patch<Shift>(`/api/oncall/${shift.id}`, input))
+        : await firstValueFrom(this.http.post<Shift>('/api/oncall', input));
       this.snack.open('Shift saved', undefined, { duration: 2500 });
       await this.load();
+      this.showShift(saved.id);
     } catch (err) {
       this.snack.open(errorText(err, 'Could not save the shift'), 'Close', { duration: 8000 });
     }
@@ -126,6 +154,7 @@ export class OnCallPage {
     if (!dismissedByAction) return;
     try {
       await firstValueFrom(this.http.delete(`/api/oncall/${shift.id}`));
+      this.snack.open('Shift deleted', undefined, { duration: 2500 });
       await this.load();
     } catch (err) {
       this.snack.open(errorText(err, 'Could not delete the shift'), 'Close', { duration: 8000 });

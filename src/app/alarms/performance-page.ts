@@ -1,5 +1,5 @@
 import { DecimalPipe, PercentPipe } from '@angular/common';
-import { ChangeDetectionStrategy, Component, effect, inject, signal, untracked } from '@angular/core';
+import { ChangeDetectionStrategy, Component, computed, effect, inject, signal, untracked } from '@angular/core';
 import { MatButtonToggleModule } from '@angular/material/button-toggle';
 import { MatCardModule } from '@angular/material/card';
 import { MatProgressBarModule } from '@angular/material/progress-bar';
@@ -10,6 +10,14 @@ import { AlarmPerformance } from './alarm-types';
 import { AlarmsApi, errorText } from './alarms-api';
 
 const DAY = 86_400_000;
+
+/** "Works gen-set A/coolant_temp_high" (the report's grouping key) as "Works gen-set A · Coolant temp high". */
+export function activationLabel(key: string): string {
+  const cut = key.lastIndexOf('/');
+  if (cut < 0) return key;
+  const rule = key.slice(cut + 1).replace(/_/g, ' ');
+  return `${key.slice(0, cut)} · ${rule.charAt(0).toUpperCase()}${rule.slice(1)}`;
+}
 const SPANS = [
   { days: 1, text: 'Last 24 hours' },
   { days: 7, text: 'Last 7 days' },
@@ -36,9 +44,9 @@ const SPANS = [
         <p class="period">{{ time(r.from) }} to {{ time(r.to) }}</p>
         <div class="figures jw-num">
           <mat-card appearance="outlined"><span class="big">{{ r.total }}</span><span>alarms raised</span></mat-card>
-          <mat-card appearance="outlined"><span class="big">{{ r.perDay | number: '1.0-1' }}</span><span>per day on average</span></mat-card>
-          <mat-card appearance="outlined"><span class="big">{{ r.per10Min | number: '1.0-2' }}</span><span>per 10 minutes on average</span></mat-card>
-          <mat-card appearance="outlined"><span class="big">{{ r.max10Min }}</span><span>in the busiest 10 minutes</span></mat-card>
+          <mat-card appearance="outlined"><span class="big">{{ r.perDay | number: '1.0-1' }}</span><span>alarms per day on average</span></mat-card>
+          <mat-card appearance="outlined"><span class="big">{{ r.per10Min | number: '1.0-2' }}</span><span>alarms per 10 minutes on average</span></mat-card>
+          <mat-card appearance="outlined"><span class="big">{{ r.max10Min }}</span><span>alarms in the busiest 10 minutes</span></mat-card>
           <mat-card appearance="outlined"><span class="big">{{ r.share10MinOver10 | percent: '1.0-1' }}</span><span>of 10-minute periods with more than 10 alarms (flood level)</span></mat-card>
           <mat-card appearance="outlined">
             <span class="big">{{ r.acknowledge.medianMs === null ? '—' : duration(r.acknowledge.medianMs) }}</span>
@@ -49,12 +57,12 @@ const SPANS = [
         <h2>Most frequent</h2>
         @if (r.mostFrequent.length) {
           @defer (on viewport) {
-            <jw-frequent-chart [items]="r.mostFrequent" />
+            <jw-frequent-chart [items]="frequent()" />
           } @placeholder {
             <div class="chart-space"></div>
           }
           <table mat-table [dataSource]="r.mostFrequent">
-            <ng-container matColumnDef="key"><th mat-header-cell *matHeaderCellDef>Engine / rule</th><td mat-cell *matCellDef="let x">{{ x.key }}</td></ng-container>
+            <ng-container matColumnDef="key"><th mat-header-cell *matHeaderCellDef>Engine / rule</th><td mat-cell *matCellDef="let x">{{ label(x.key) }}</td></ng-container>
             <ng-container matColumnDef="count"><th mat-header-cell *matHeaderCellDef>Times raised</th><td mat-cell *matCellDef="let x" class="jw-num">{{ x.count }}</td></ng-container>
             <ng-container matColumnDef="share"><th mat-header-cell *matHeaderCellDef>Share of all</th><td mat-cell *matCellDef="let x" class="jw-num">{{ x.share | percent: '1.0-1' }}</td></ng-container>
             <tr mat-header-row *matHeaderRowDef="['key', 'count', 'share']"></tr>
@@ -66,7 +74,7 @@ const SPANS = [
         <p class="muted">Raised 3 or more times within one minute (a common working threshold, not a figure of the standard).</p>
         @if (r.chattering.length) {
           <table mat-table [dataSource]="r.chattering">
-            <ng-container matColumnDef="key"><th mat-header-cell *matHeaderCellDef>Engine / rule</th><td mat-cell *matCellDef="let x">{{ x.key }}</td></ng-container>
+            <ng-container matColumnDef="key"><th mat-header-cell *matHeaderCellDef>Engine / rule</th><td mat-cell *matCellDef="let x">{{ label(x.key) }}</td></ng-container>
             <ng-container matColumnDef="bursts"><th mat-header-cell *matHeaderCellDef>Bursts</th><td mat-cell *matCellDef="let x" class="jw-num">{{ x.bursts }}</td></ng-container>
             <ng-container matColumnDef="max"><th mat-header-cell *matHeaderCellDef>Most in one minute</th><td mat-cell *matCellDef="let x" class="jw-num">{{ x.maxInWindow }}</td></ng-container>
             <tr mat-header-row *matHeaderRowDef="['key', 'bursts', 'max']"></tr>
@@ -78,7 +86,7 @@ const SPANS = [
         <p class="muted">Active for more than 24 hours (a common working threshold).</p>
         @if (r.standing.length) {
           <table mat-table [dataSource]="r.standing">
-            <ng-container matColumnDef="key"><th mat-header-cell *matHeaderCellDef>Engine / rule</th><td mat-cell *matCellDef="let x">{{ x.key }}</td></ng-container>
+            <ng-container matColumnDef="key"><th mat-header-cell *matHeaderCellDef>Engine / rule</th><td mat-cell *matCellDef="let x">{{ label(x.key) }}</td></ng-container>
             <ng-container matColumnDef="since"><th mat-header-cell *matHeaderCellDef>Active since</th><td mat-cell *matCellDef="let x" class="jw-num">{{ time(x.activatedAt) }}</td></ng-container>
             <ng-container matColumnDef="for"><th mat-header-cell *matHeaderCellDef>For</th><td mat-cell *matCellDef="let x" class="jw-num">{{ duration(x.activeMs) }}</td></ng-container>
             <tr mat-header-row *matHeaderRowDef="['key', 'since', 'for']"></tr>
@@ -108,6 +116,8 @@ export class PerformancePage {
   protected readonly report = signal<AlarmPerformance | null>(null);
   protected readonly loading = signal(false);
   protected readonly error = signal<string | null>(null);
+  /** The chart's bars, named once per report (a new array each check would redraw the chart). */
+  protected readonly frequent = computed(() => (this.report()?.mostFrequent ?? []).map((i) => ({ ...i, key: activationLabel(i.key) })));
 
   constructor() {
     effect(() => {
@@ -118,6 +128,9 @@ export class PerformancePage {
 
   protected time(t: number): string {
     return formatTime(t);
+  }
+  protected label(key: string): string {
+    return activationLabel(key);
   }
   protected duration(ms: number): string {
     return formatDuration(ms);

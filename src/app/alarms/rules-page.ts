@@ -24,7 +24,7 @@ interface RuleDef {
   override?: { rule: string; enabled: boolean; params: Record<string, unknown> | null } | null;
 }
 interface Draft { enabled: boolean; values: Record<string, number | null>; dirty: boolean }
-interface Preview { readings: number; from: string; to: string; alarms: { raisedAt: string; clearedAt: string | null; value: number | null; message: string }[] }
+interface Preview { engineName?: string; readings: number; from: string; to: string; alarms: { raisedAt: string; clearedAt: string | null; value: number | null; message: string }[] }
 
 const UNIT_OF_KIND: Record<string, string | null> = { rate: '/min', boiling_margin: 'K', no_data: null };
 
@@ -48,7 +48,9 @@ export class RulesPage {
   protected readonly engines = computed(() => [...this.fleet.engines()].sort((a, b) => a.name.localeCompare(b.name, undefined, { numeric: true })));
   /** null: the default profile. */
   protected readonly engineId = signal<number | null>(null);
-  protected readonly previewEngineId = signal<number | null>(null);
+  private readonly chosenPreviewEngine = signal<number | null>(null);
+  /** The engine the default profile is previewed on: the one chosen, else the first engine. */
+  protected readonly previewEngineId = computed(() => this.chosenPreviewEngine() ?? this.engines()[0]?.id ?? null);
   protected readonly rules = signal<RuleDef[]>([]);
   protected readonly drafts = signal<Record<string, Draft>>({});
   protected readonly previews = signal<Record<string, Preview | string>>({});
@@ -87,20 +89,34 @@ export class RulesPage {
     return formatAlarmValue(v, unit, this.prefs.preferences());
   }
 
-  protected async chooseEngine(id: number | null): Promise<void> {
+  /** The "Rules of" choice: 0 stands for the default profile (a select shows no text for a null value). */
+  protected async chooseEngine(choice: number): Promise<void> {
+    const id = choice || null;
     if (this.dirty() && !globalThis.confirm?.('Changes not saved will be lost. Go on?')) return;
     this.engineId.set(id);
-    if (id !== null) this.previewEngineId.set(id);
+    if (id !== null) this.chosenPreviewEngine.set(id);
     this.previews.set({});
     await this.load();
   }
 
+  protected choosePreviewEngine(id: number): void {
+    this.chosenPreviewEngine.set(id);
+    this.previews.set({});
+  }
+
+  /** A preview shown for numbers that were since changed would mislead: drop it. */
+  private forgetPreview(key: string): void {
+    this.previews.update(({ [key]: _gone, ...rest }) => rest);
+  }
+
   protected setEnabled(key: string, enabled: boolean): void {
+    this.forgetPreview(key);
     this.drafts.update((d) => ({ ...d, [key]: { ...d[key], enabled, dirty: true } }));
   }
 
   protected setValue(key: string, name: string, raw: string | number | null): void {
     const v = raw === '' || raw === null ? null : Number(raw);
+    this.forgetPreview(key);
     this.drafts.update((d) => ({ ...d, [key]: { ...d[key], values: { ...d[key].values, [name]: Number.isFinite(v) ? v : null }, dirty: true } }));
   }
 
@@ -131,7 +147,8 @@ export class RulesPage {
     this.previews.update((p) => ({ ...p, [r.key]: 'Running over the last 7 days…' }));
     try {
       const res = await firstValueFrom(this.http.post<Preview>('/api/rules/preview', { engineId, rule: r.key, params }));
-      this.previews.update((p) => ({ ...p, [r.key]: res }));
+      const engineName = this.engines().find((e) => e.id === engineId)?.name;
+      this.previews.update((p) => ({ ...p, [r.key]: { ...res, engineName } }));
     } catch (err) {
       this.previews.update((p) => ({ ...p, [r.key]: errorText(err, 'The preview failed') }));
     }
