@@ -59,7 +59,7 @@ const POLL_MS = 5000;
           <div class="why"><span class="label">Why not clear:</span><ul class="reasons">@for (r of c.reasons; track $index) { <li>{{ r }}</li> }</ul></div>
         }
         @if (!c.clear && stopTs(); as stop) {
-          @defer (on viewport) {
+          @defer (on immediate) {
             <jw-cooldown-chart [engineId]="engineId()" [check]="c" [stopTs]="stop" />
           } @placeholder {
             <p class="chart-wait">Cool-down chart…</p>
