@@ -20,6 +20,8 @@ import { AttachmentThumb } from './attachment-thumb';
 import { WorkApi, errorText } from './work-api';
 import { CONDITION_TEXT, EVENT_TEXT, PART_TEXT, PRIORITY_TEXT, STATUS_ICON, STATUS_TEXT, STEP_UNIT_TEXT, formatDate, formatDateTime } from './work-labels';
 import { Assignee, GateRefusal, OpeningCheck, OpeningCondition, WorkOrderDetail, WorkStatus, WorkStep } from './work-types';
+import { StepCoolantCheck } from './step-coolant-check';
+import { toCelsius } from '../../../shared/units';
 
 interface StepDraft {
   value: number | null;
@@ -43,7 +45,7 @@ const ENTRY_UNITS: Record<string, string[]> = { degC: ['degC', 'degF'], kPa: ['k
   changeDetection: ChangeDetectionStrategy.OnPush,
   imports: [
     FormsModule, RouterLink, MatButtonModule, MatCardModule, MatCheckboxModule, MatExpansionModule, MatFormFieldModule, MatIconModule,
-    MatInputModule, MatProgressBarModule, MatSelectModule, MatTableModule, OpeningCheckPanel, AttachmentThumb,
+    MatInputModule, MatProgressBarModule, MatSelectModule, MatTableModule, OpeningCheckPanel, AttachmentThumb, StepCoolantCheck,
   ],
   templateUrl: './work-order-page.html',
   styleUrl: './work-order-page.scss',
@@ -157,6 +159,17 @@ export class WorkOrderPage {
     if (stepUnit === 'kPa') return p.pressure;
     if (stepUnit === 'L') return p.volume;
     return stepUnit;
+  }
+
+  /** A coolant-test reading from its step (key), in the step's unit: the recorded result, else what is being typed. */
+  protected reading(o: WorkOrderDetail, key: string): number | null {
+    const s = o.steps.find((x) => x.key === key);
+    if (!s) return null;
+    if (s.doneAt) return s.resultValue;
+    const d = this.drafts[s.id];
+    if (d?.value === null || d?.value === undefined || !Number.isFinite(d.value)) return null;
+    if (!d.unit || d.unit === s.unit) return d.value;
+    return s.unit === 'degC' && (d.unit === 'degF' || d.unit === 'K') ? toCelsius(d.value, d.unit as 'degF' | 'K') : null;
   }
 
   protected entryUnits(s: WorkStep): string[] {

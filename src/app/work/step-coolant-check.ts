@@ -1,0 +1,119 @@
+import { HttpClient } from '@angular/common/http';
+import { ChangeDetectionStrategy, Component, computed, effect, inject, input, signal, untracked } from '@angular/core';
+import { MatButtonModule } from '@angular/material/button';
+import { MatIconModule } from '@angular/material/icon';
+import { RouterLink } from '@angular/router';
+import { firstValueFrom } from 'rxjs';
+import { CoolantInputError, decideAdditive, type AdditiveDecision, type CoolantFamily } from '../../../shared/coolant';
+import { AdditiveDecisionView } from '../coolant/additive-decision';
+import { AdditiveProfile, CoolantTest } from '../coolant/coolant-types';
+import { CoolantService } from '../coolant/coolant.service';
+import { errorText } from './work-api';
+
+interface EngineFacts {
+  id: number;
+  name: string;
+  capacityL: number;
+  coolantFamily: CoolantFamily;
+}
+
+/**
+ * Inside a coolant-test work order: the additive decision and dose for THIS engine from the readings
+ * entered in the steps (decideAdditive from shared/, the same rule the server stores with a test), and
+ * a button that records them as a coolant test so the coolant history and the due list see it.
+ */
+@Component({
+  selector: 'jw-step-coolant-check',
+  changeDetection: ChangeDetectionStrategy.OnPush,
+  imports: [MatButtonModule, MatIconModule, RouterLink, AdditiveDecisionView],
+  template: `
+    <section class="check" aria-labelledby="coolant-check-h">
+      <h3 id="coolant-check-h"><mat-icon fontIcon="science" aria-hidden="true" />Additive decision for {{ engine()?.name ?? 'this engine' }}</h3>
+      @if (scaUnitsPerGal() === null) {
+        <p class="hint">Enter the additive (SCA) level in its step to see the decision and the dose for this engine's {{ engine()?.capacityL ?? '…' }} L cooling system.</p>
+      } @else if (inputError(); as err) {
+        <p class="hint" role="alert">{{ err }}</p>
+      } @else {
+        <jw-additive-decision [decision]="decision()" />
+      }
+      @if (recorded(); as t) {
+        <p class="ok" role="status"><mat-icon fontIcon="check_circle" aria-hidden="true" />Recorded as coolant test #{{ t.id }}; it is in the
+          <a [routerLink]="['/engines', t.engineId, 'coolant']">coolant history</a> and the due list.</p>
+      } @else if (canRecord()) {
+        <button mat-stroked-button type="button" (click)="record()" [disabled]="busy() || !hasReading()" data-test="record-coolant-test">
+          <mat-icon fontIcon="playlist_add_check" />Record as a coolant test
+        </button>
+        @if (error(); as e) { <p class="err" role="alert">{{ e }}</p> }
+      }
+    </section>
+  `,
+  styles: `
+    .check { border-top: 1px solid var(--mat-sys-outline-variant); margin: 16px 0; padding-top: 8px; }
+    h3 { display: flex; align-items: center; gap: 6px; font-size: 1rem; font-weight: 500; margin: 4px 0; }
+    .hint { color: var(--jw-muted-text); }
+    .ok { display: flex; align-items: center; gap: 6px; }
+    .err { color: var(--jw-alarm-high); }
+  `,
+})
+export class StepCoolantCheck {
+  private readonly http = inject(HttpClient);
+  private readonly coolant = inject(CoolantService);
+
+  readonly engineId = input.required<number>();
+  readonly workOrderId = input.required<number>();
+  /** Readings as entered in the steps (null when not entered): units/US gal, % by volume, °C. */
+  readonly scaUnitsPerGal = input<number | null>(null);
+  readonly glycolPercent = input<number | null>(null);
+  readonly freezePointC = input<number | null>(null);
+  readonly phValue = input<number | null>(null);
+  /** The technician doing the work may record. */
+  readonly canRecord = input(false);
+
+  protected readonly engine = signal<EngineFacts | null>(null);
+  private readonly profile = signal<AdditiveProfile | null>(null);
+  protected readonly busy = signal(false);
+  protected readonly error = signal<string | null>(null);
+  protected readonly recorded = signal<CoolantTest | null>(null);
+
+  private readonly outcome = computed<{ decision: AdditiveDecision | null; error: string | null }>(() => {
+    const e = this.engine();
+    const sca = this.scaUnitsPerGal();
+    if (!e || sca === null) return { decision: null, error: null };
+    const limits = this.profile()?.limits;
+    try {
+      return { decision: decideAdditive({ coolantFamily: e.coolantFamily, scaUnitsPerGal: sca, capacityL: e.capacityL, limits }), error: null };
+    } catch (err) {
+      if (err instanceof CoolantInputError) return { decision: null, error: err.message };
+      throw err;
+    }
+  });
+  protected readonly decision = computed(() => this.outcome().decision);
+  protected readonly inputError = computed(() => this.outcome().error);
+  protected readonly hasReading = computed(() => [this.scaUnitsPerGal(), this.glycolPercent(), this.freezePointC()].some((v) => v !== null));
+
+  constructor() {
+    effect(() => {
+      const id = this.engineId();
+      untracked(() => {
+        this.http.get<EngineFacts>(`/api/engines/${id}`).subscribe({ next: (e) => this.engine.set(e), error: (e) => this.error.set(errorText(e)) });
+        this.coolant.profile().subscribe({ next: (p) => this.profile.set(p), error: () => this.profile.set(null) });
+      });
+    });
+  }
+
+  protected async record(): Promise<void> {
+    this.busy.set(true);
+    this.error.set(null);
+    try {
+      const t = await firstValueFrom(this.coolant.record(this.engineId(), {
+        method: 'strip', scaUnitsPerGal: this.scaUnitsPerGal(), glycolPercent: this.glycolPercent(), freezePointC: this.freezePointC(),
+        ph: this.phValue(), conductivityUsCm: null, appearance: null, notes: `From work order #${this.workOrderId()}`,
+      }));
+      this.recorded.set(t);
+    } catch (e) {
+      this.error.set(errorText(e));
+    } finally {
+      this.busy.set(false);
+    }
+  }
+}
