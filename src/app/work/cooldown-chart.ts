@@ -1,6 +1,7 @@
 import { ChangeDetectionStrategy, Component, DestroyRef, ElementRef, afterNextRender, computed, effect, inject, input, signal, untracked } from '@angular/core';
 import { ApexAnnotations, ApexAxisChartSeries, ApexChart, ApexStroke, ApexXAxis, ApexYAxis, ChartComponent, PointAnnotations, XAxisAnnotations } from 'ng-apexcharts';
 import { PreferencesService } from '../core/preferences.service';
+import { niceExtent } from '../engine/trend-chart';
 import { CooldownTrace, ReadingBucket, buildCooldown } from './cooldown-series';
 import { WorkApi } from './work-api';
 import { OpeningCheck } from './work-types';
@@ -45,7 +46,6 @@ const fmt = (v: number, unit: string) => `${v.toFixed(unit === 'kPa' ? 0 : unit 
   `,
   styles: `
     :host { display: block; min-width: 0; overflow: hidden; }
-    .traces { display: grid; gap: 8px; }
     .title { margin: 8px 0 0; font-size: 14px; font-weight: 500; }
     .unit { color: var(--jw-muted-text); font-weight: 400; }
     .state { margin: 0 0 4px; font-size: 13px; }
@@ -147,8 +147,8 @@ export class CooldownChart {
 
   private view(key: 'temp' | 'pressure', title: string, t: CooldownTrace, ink: (typeof INK)['light'], clearAt: number | null): TraceView {
     const ys = [...t.measured, ...t.fitted].map((p) => p.y).concat(t.limit);
-    const lo = Math.min(...ys), hi = Math.max(...ys);
-    const pad = Math.max((hi - lo) * 0.08, key === 'temp' ? 1 : 0.5);
+    // round ticks, four steps, from the limit (or below) to the hottest reading
+    const y = niceExtent(Math.min(...ys), Math.max(...ys));
     const dec = t.unit === 'bar' ? 2 : t.unit === 'kPa' ? 0 : 1;
     const xaxis: XAxisAnnotations[] = [];
     if (clearAt !== null) {
@@ -164,7 +164,7 @@ export class CooldownChart {
         { name: 'Measured', type: 'line', data: t.measured },
         { name: 'Fitted', type: 'line', data: t.fitted },
       ],
-      yaxis: { min: Math.max(key === 'pressure' && lo >= 0 ? 0 : -Infinity, lo - pad), max: hi + pad, tickAmount: 4, title: { text: t.unit }, labels: { minWidth: 48, maxWidth: 48, formatter: (v: number) => (Number.isFinite(v) ? v.toFixed(dec) : '') } },
+      yaxis: { min: y.lo, max: y.hi, tickAmount: 4, title: { text: t.unit }, labels: { minWidth: 48, maxWidth: 48, formatter: (v: number) => (Number.isFinite(v) ? v.toFixed(dec) : '') } },
       annotations: {
         yaxis: [{ y: t.limit, borderColor: ink.limit, strokeDashArray: 2, label: { text: `limit ${fmt(t.limit, t.unit)}`, position: 'left', textAnchor: 'start', offsetX: 4, borderWidth: 0, style: { background: 'transparent', color: ink.limit, fontSize: '11px' } } }],
         xaxis,
