@@ -1,5 +1,5 @@
 import { ChangeDetectionStrategy, Component, computed, inject, input } from '@angular/core';
-import { ApexAxisChartSeries, ApexChart, ApexPlotOptions, ApexXAxis, ChartComponent } from 'ng-apexcharts';
+import { ApexAxisChartSeries, ApexChart, ApexPlotOptions, ApexXAxis, ApexYAxis, ChartComponent } from 'ng-apexcharts';
 import { PreferencesService } from '../core/preferences.service';
 
 /** Horizontal bars: how often each of the most frequent alarms was raised. Neutral grey: a count is not an abnormal state. */
@@ -9,7 +9,7 @@ import { PreferencesService } from '../core/preferences.service';
   imports: [ChartComponent],
   template: `
     <apx-chart [chart]="chart()" [series]="series()" [xaxis]="xaxis()" [plotOptions]="plot" [colors]="colors()"
-               [dataLabels]="{ enabled: true }" [legend]="{ show: false }" [theme]="{ mode: dark() ? 'dark' : 'light' }" />
+               [yaxis]="yaxis" [dataLabels]="{ enabled: true }" [legend]="{ show: false }" [theme]="{ mode: dark() ? 'dark' : 'light' }" />
   `,
 })
 export class FrequentChart {
@@ -28,5 +28,13 @@ export class FrequentChart {
     fontFamily: 'Roboto Condensed, sans-serif',
   }));
   protected readonly series = computed<ApexAxisChartSeries>(() => [{ name: 'Times raised', data: this.items().map((i) => i.count) }]);
-  protected readonly xaxis = computed<ApexXAxis>(() => ({ categories: this.items().map((i) => i.key), title: { text: 'times raised' } }));
+  /** Names are "engine · rule": room for them, or two rules of one engine read the same. */
+  protected readonly yaxis: ApexYAxis = { labels: { maxWidth: 320 } };
+  /** Counts are whole numbers: one tick per count up to 10, never fractions. */
+  protected readonly xaxis = computed<ApexXAxis>(() => ({
+    categories: this.items().map((i) => i.key),
+    title: { text: 'times raised' },
+    tickAmount: Math.max(1, Math.min(10, ...this.items().map((i) => i.count))),
+    decimalsInFloat: 0,
+  }));
 }
