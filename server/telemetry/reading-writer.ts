@@ -49,6 +49,12 @@ export function aggregateRollups(rows: BufferedReading[]): RollupRow[] {
 interface SqliteHandle {
   run(sql: string, params: unknown[], cb: (err: Error | null) => void): unknown;
   exec(sql: string, cb: (err: Error | null) => void): unknown;
+  prepare(sql: string, cb: (err: Error | null) => void): SqliteStatement;
+}
+
+interface SqliteStatement {
+  run(params: unknown[], cb: (err: Error | null) => void): unknown;
+  finalize(cb: () => void): unknown;
 }
 
 /** Name of the writer's own long-lived connection in Sequelize's SQLite connection manager. */
@@ -73,6 +79,8 @@ export class ReadingWriter {
   private readonly perStatement: number;
   private readonly dialect;
   private handle: Promise<SqliteHandle> | null = null;
+  /** The full-size INSERT, prepared once: compiling a 500-row statement each time costs as much as running it. */
+  private fullInsert: Promise<SqliteStatement> | null = null;
 
   constructor(
     private readonly sequelize: Sequelize,
@@ -143,7 +151,8 @@ export class ReadingWriter {
     try {
       for (let i = 0; i < rows.length; i += this.perStatement) {
         const n = Math.min(this.perStatement, rows.length - i);
-        await run(db, insertReadingsSql(n), readingBinds(rows, i, n));
+        if (n === this.perStatement) await runPrepared(await this.fullInsertStatement(db), readingBinds(rows, i, n));
+        else await run(db, insertReadingsSql(n), readingBinds(rows, i, n));
       }
       for (const [sql, bind] of this.rollupStatements(rows)) await run(db, sql, bind);
       await exec(db, 'COMMIT');
@@ -151,6 +160,13 @@ export class ReadingWriter {
       await exec(db, 'ROLLBACK').catch(() => undefined);
       throw err;
     }
+  }
+
+  private fullInsertStatement(db: SqliteHandle): Promise<SqliteStatement> {
+    this.fullInsert ??= new Promise<SqliteStatement>((resolve, reject) => {
+      const stmt = db.prepare(insertReadingsSql(this.perStatement), (err) => (err ? reject(err) : resolve(stmt)));
+    }).catch((err) => { this.fullInsert = null; throw err; });
+    return this.fullInsert;
   }
 
   private async writeSequelize(rows: BufferedReading[]): Promise<void> {
@@ -199,7 +215,10 @@ export class ReadingWriter {
       await this.flushOnce();
       if (this.buffer.size >= before) attempts++;
     }
-    // the connection itself is closed with the others by sequelize.close()
+    // an unfinalized statement would keep the connection from closing with the others in sequelize.close()
+    const stmt = await this.fullInsert?.catch(() => null);
+    if (stmt) await new Promise<void>((resolve) => stmt.finalize(() => resolve()));
+    this.fullInsert = null;
   }
 }
 
@@ -215,5 +234,7 @@ function readingBinds(rows: BufferedReading[], from: number, n: number): number[
 
 const run = (db: SqliteHandle, sql: string, params: unknown[]) =>
   new Promise<void>((resolve, reject) => { db.run(sql, params, (err) => (err ? reject(err) : resolve())); });
+const runPrepared = (stmt: SqliteStatement, params: unknown[]) =>
+  new Promise<void>((resolve, reject) => { stmt.run(params, (err) => (err ? reject(err) : resolve())); });
 const exec = (db: SqliteHandle, sql: string) =>
   new Promise<void>((resolve, reject) => { db.exec(sql, (err) => (err ? reject(err) : resolve())); });

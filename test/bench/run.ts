@@ -68,7 +68,7 @@ async function rawCeiling(rows: number, maxMs: number): Promise<{ rate: number; 
         for (let ch = 1; ch <= 5; ch++) params.push(engine, ch, ts, 80 + Math.sin(ts / 1000), 0);
         engine = (engine % FLOOD_ENGINES) + 1; if (engine === 1) ts += 1000;
       }
-      await db.run(sql, params);
+      await db.runPrepared(sql, params);
       done += per;
     }
     await db.exec('COMMIT');

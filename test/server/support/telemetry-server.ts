@@ -84,10 +84,19 @@ export class Db {
   run(sql: string, params: unknown[] = []): Promise<number> {
     return new Promise((resolve, reject) => this.db.run(sql, params, function (err) { if (err) reject(err); else resolve(this.lastID); }));
   }
+  private readonly prepared = new Map<string, sqlite3.Statement>();
+  /** Runs `sql` as a statement prepared once and reused, the way the server's writer does for full batches. */
+  runPrepared(sql: string, params: unknown[]): Promise<void> {
+    let stmt = this.prepared.get(sql);
+    if (!stmt) this.prepared.set(sql, (stmt = this.db.prepare(sql)));
+    return new Promise((resolve, reject) => stmt!.run(params, (err) => (err ? reject(err) : resolve())));
+  }
   exec(sql: string): Promise<void> {
     return new Promise((resolve, reject) => this.db.exec(sql, (err) => (err ? reject(err) : resolve())));
   }
-  close(): Promise<void> {
+  async close(): Promise<void> {
+    for (const stmt of this.prepared.values()) await new Promise<void>((resolve) => stmt.finalize(() => resolve()));
+    this.prepared.clear();
     return new Promise((resolve) => this.db.close(() => resolve()));
   }
 }
