@@ -10,14 +10,9 @@ import { runHoursHistory } from './coolant/run-hours';
 import { servicePlan } from './coolant/service-plan';
 import { getEngine } from './engines';
 import { namesFor, summaryView, type WorkOrderSummary } from './work-orders/views';
+import type { HistoryEngine, HistoryPart, HistoryServiceEvent } from '../../shared/api/engine-history-view';
 
-export interface HistoryPart {
-  kind: string;
-  description: string | null;
-  /** Fluids in L, filters and other parts in pcs. */
-  quantity: number;
-  unit: 'L' | 'pcs';
-}
+export type { HistoryEngine, HistoryPart, HistoryServiceEvent } from '../../shared/api/engine-history-view';
 
 export interface HistoryManualCheck extends ManualCheck {
   stepId: number;
@@ -38,21 +33,8 @@ export interface HistoryWorkOrder extends WorkOrderSummary {
   resets: { event: string; at: string; note: string | null; details: Record<string, unknown> | null }[];
 }
 
-export interface HistoryServiceEvent {
-  id: number;
-  taskKey: string;
-  taskTitle: string;
-  doneAt: string;
-  runHours: number | null;
-  workOrderId: number | null;
-  workOrderTitle: string | null;
-}
-
 export interface EngineHistory {
-  engine: {
-    id: number; name: string; siteId: number; siteName: string | null; duty: string; capacityL: number;
-    coolantFamily: string; glycolType: string; glycolPercent: number; runHours: number; retiredAt: string | null;
-  };
+  engine: HistoryEngine;
   generatedAt: string;
   workOrders: HistoryWorkOrder[];
   coolantTests: CoolantTestView[];

@@ -21,43 +21,9 @@ import { atLeast } from './priority';
 import type { RuleDefinition } from './rule-definitions';
 import { alarmUnit } from './value-format';
 import { CHANNELS } from '../../../shared/channels';
+import type { AlarmHistoryView, AlarmView } from '../../../shared/api/alarms-view';
 
-export interface AlarmView {
-  id: number;
-  engineId: number;
-  engineName: string | null;
-  siteId: number | null;
-  siteName: string | null;
-  rule: string;
-  title: string;
-  priority: string;
-  state: string;
-  active: boolean;
-  raisedAt: string;
-  value: number | null;
-  worstValue: number | null;
-  unit: string | null;
-  message: string;
-  acknowledgedAt: string | null;
-  acknowledgedBy: number | null;
-  note: string | null;
-  shelvedUntil: string | null;
-  shelveReason: string | null;
-  clearedAt: string | null;
-  closedAt: string | null;
-  escalationLevel: number;
-  lastNotifiedAt: string | null;
-}
-
-export interface AlarmHistoryView {
-  at: string;
-  event: string;
-  fromState: string | null;
-  toState: string | null;
-  userId: number | null;
-  value: number | null;
-  note: string | null;
-}
+export type { AlarmHistoryView, AlarmView } from '../../../shared/api/alarms-view';
 
 export type ListState = 'active' | 'shelved' | 'open' | 'all';
 
@@ -128,7 +94,7 @@ export class AlarmService {
       rule: a.rule,
       title: def?.title ?? a.rule,
       priority: a.priority,
-      state: a.state,
+      state: a.state as AlarmState,
       active: a.active,
       raisedAt: iso(a.raisedAt)!,
       value: a.value,
@@ -419,7 +385,7 @@ export class AlarmService {
       ...this.view(a),
       meaning: def?.meaning ?? null,
       firstStep: def?.firstStep ?? null,
-      history: events.map((e) => ({ at: iso(e.at)!, event: e.event, fromState: e.fromState, toState: e.toState, userId: e.userId, value: e.value, note: e.note })),
+      history: events.map((e) => ({ at: iso(e.at)!, event: e.event, fromState: e.fromState as AlarmState | null, toState: e.toState as AlarmState | null, userId: e.userId, value: e.value, note: e.note })),
     };
   }
 

@@ -5,9 +5,12 @@ import { badRequest } from '../../http-error';
 import type { Engine, Models } from '../../models';
 import type { CoolantTest, TestMethod } from '../../models/coolant-models';
 import { getEngine } from '../engines';
+import type { CoolantDecision, CoolantTestView } from '../../../shared/api/coolant-view';
 import { maySeeSite, type SiteScope } from '../site-access';
 import { getAdditiveProfile } from './additive-profile';
 import { LabCsvError, parseLabCsv, type LabRow, type RowError } from './lab-csv';
+
+export type { CoolantDecision, CoolantTestView } from '../../../shared/api/coolant-view';
 
 export interface TestInput {
   testedAt: Date;
@@ -19,16 +22,6 @@ export interface TestInput {
   conductivityUsCm: number | null;
   appearance: string | null;
   notes?: string | null;
-}
-
-/** What was decided when the test was recorded; stored with the test so the record shows what was done and why. */
-export interface CoolantDecision {
-  /** Null when the test has no additive reading of conventional coolant. */
-  additive: AdditiveDecision | null;
-  /** Freeze protection from the measured glycol share (by volume, the engine's glycol type), when measured. */
-  freeze: FreezeAssessment | null;
-  notes: string[];
-  engine: { capacityL: number; coolantFamily: string; glycolType: string };
 }
 
 /** The decision for one test of this engine (pure apart from its inputs). */
@@ -51,25 +44,6 @@ export function decideForTest(engine: Pick<Engine, 'capacityL' | 'coolantFamily'
     }
   }
   return { additive, freeze, notes, engine: { capacityL: engine.capacityL, coolantFamily: engine.coolantFamily, glycolType: engine.glycolType } };
-}
-
-export interface CoolantTestView {
-  id: number;
-  engineId: number;
-  testedAt: string;
-  method: TestMethod;
-  scaUnitsPerGal: number | null;
-  glycolPercent: number | null;
-  freezePointC: number | null;
-  ph: number | null;
-  conductivityUsCm: number | null;
-  appearance: string | null;
-  notes: string | null;
-  testedBy: number | null;
-  testedByName: string | null;
-  decision: CoolantDecision | null;
-  source: string;
-  createdAt: string;
 }
 
 async function userNames(models: Models, ids: (number | null)[]): Promise<Map<number, string>> {

@@ -1,6 +1,7 @@
 import type { Models } from '../../models';
 import type { WorkOrder } from '../../models/work-order';
 import { workTemplate } from '../work-templates';
+import type { WorkOrderSummary } from '../../../shared/api/work-view';
 
 export interface Names {
   users: Map<number, string>;
@@ -29,39 +30,7 @@ export async function namesFor(models: Models, orders: WorkOrder[]): Promise<Nam
   };
 }
 
-export interface WorkOrderSummary {
-  id: number;
-  engineId: number;
-  engineName: string | null;
-  siteId: number | null;
-  siteName: string | null;
-  kind: string;
-  kindTitle: string;
-  title: string;
-  description: string | null;
-  priority: string;
-  dueDate: string | null;
-  status: string;
-  assigneeId: number | null;
-  assigneeName: string | null;
-  createdBy: number;
-  createdByName: string | null;
-  requestedBy: number | null;
-  requestedByName: string | null;
-  signedOffBy: number | null;
-  signedOffByName: string | null;
-  alarmIds: number[];
-  stepsDone: number;
-  stepsTotal: number;
-  /** A step went ahead on a manual check instead of live data: shown prominently. */
-  manualChecks: number;
-  createdAt: string;
-  updatedAt: string;
-  startedAt: string | null;
-  completedAt: string | null;
-  signedOffAt: string | null;
-  closedAt: string | null;
-}
+export type { WorkOrderSummary } from '../../../shared/api/work-view';
 
 const iso = (d: Date | null | undefined) => (d ? new Date(d).toISOString() : null);
 

@@ -1,45 +1,13 @@
 import { AlarmState } from '../../../shared/alarms/alarm-state';
+import type { PerformanceReport } from '../../../shared/alarms/performance';
+import type { AlarmHistoryView, AlarmPriority, AlarmView } from '../../../shared/api/alarms-view';
 
-export type AlarmPriority = 'low' | 'medium' | 'high' | 'urgent';
+export type { AlarmPriority } from '../../../shared/api/alarms-view';
 
-/** GET /api/alarms item and the `alarm` live event (times as ISO strings, values in the stored unit `unit`). */
-export interface Alarm {
-  id: number;
-  engineId: number;
-  engineName: string | null;
-  siteId: number | null;
-  siteName: string | null;
-  rule: string;
-  title: string;
-  priority: AlarmPriority;
-  state: AlarmState;
-  active: boolean;
-  raisedAt: string;
-  value: number | null;
-  worstValue: number | null;
-  /** degC, K (a temperature difference), degC/min, kPa, kPa/min, uS/cm, rpm, or null (no value, e.g. no data). */
-  unit: string | null;
-  message: string;
-  acknowledgedAt: string | null;
-  acknowledgedBy: number | null;
-  note: string | null;
-  shelvedUntil: string | null;
-  shelveReason: string | null;
-  clearedAt: string | null;
-  closedAt: string | null;
-  escalationLevel: number;
-  lastNotifiedAt: string | null;
-}
+/** GET /api/alarms item and the `alarm` live event. */
+export type Alarm = AlarmView;
 
-export interface AlarmHistoryEntry {
-  at: string;
-  event: string;
-  fromState: AlarmState | null;
-  toState: AlarmState | null;
-  userId: number | null;
-  value: number | null;
-  note: string | null;
-}
+export type AlarmHistoryEntry = AlarmHistoryView;
 
 /** GET /api/alarms/:id */
 export interface AlarmDetail extends Alarm {
@@ -57,20 +25,7 @@ export interface AlarmSummary {
   flood: { flooding: boolean; since: string | null; inLast10Min: number };
 }
 
-/** GET /api/alarms/performance (shared/alarms/performance.ts PerformanceReport). */
-export interface AlarmPerformance {
-  from: number;
-  to: number;
-  total: number;
-  days: number;
-  perDay: number;
-  per10Min: number;
-  max10Min: number;
-  share10MinOver10: number;
-  mostFrequent: { key: string; count: number; share: number }[];
-  chattering: { key: string; bursts: number; maxInWindow: number }[];
-  standing: { key: string; activatedAt: number; activeMs: number }[];
-  acknowledge: { count: number; meanMs: number | null; medianMs: number | null; unacknowledged: number };
-}
+/** GET /api/alarms/performance. */
+export type AlarmPerformance = PerformanceReport;
 
 export type AlarmListView = 'active' | 'shelved' | 'all';

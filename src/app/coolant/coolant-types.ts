@@ -1,29 +1,9 @@
-import type { AdditiveDecision, FreezeAssessment } from '../../../shared/coolant';
+import type { CoolantTestView, TestMethod } from '../../../shared/api/coolant-view';
 
-export type TestMethod = 'strip' | 'refractometer' | 'lab';
+export type { CoolantDecision, CoolantTestSource, TestMethod } from '../../../shared/api/coolant-view';
 
-export interface CoolantDecision {
-  additive: AdditiveDecision | null;
-  freeze: FreezeAssessment | null;
-  notes: string[];
-}
-
-export interface CoolantTest {
-  id: number;
-  engineId: number;
-  testedAt: string;
-  method: TestMethod;
-  scaUnitsPerGal: number | null;
-  glycolPercent: number | null;
-  freezePointC: number | null;
-  ph: number | null;
-  conductivityUsCm: number | null;
-  appearance: string | null;
-  notes: string | null;
-  testedByName: string | null;
-  decision: CoolantDecision | null;
-  source: 'manual' | 'lab-import';
-}
+/** One coolant test as the coolant-test API answers it. */
+export type CoolantTest = CoolantTestView;
 
 export interface NewCoolantTest {
   method: TestMethod;

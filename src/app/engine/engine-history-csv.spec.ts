@@ -8,7 +8,7 @@ function sample(): EngineHistory {
   const order = {
     id: 7, engineId: 3, engineName: 'Pump engine', siteId: 1, siteName: 'Works', kind: 'coolant-test', kindTitle: 'Coolant test', title: 'Coolant test: Pump engine',
     description: null, priority: 'medium' as const, dueDate: null, status: 'closed' as const, assigneeId: 5, assigneeName: 'Tess Tech', createdBy: 2, createdByName: 'Pat Planner',
-    requestedBy: null, requestedByName: null, signedOffByName: 'Pat Planner', alarmIds: [], stepsDone: 8, stepsTotal: 11, manualChecks: 1,
+    requestedBy: null, requestedByName: null, signedOffBy: 2, signedOffByName: 'Pat Planner', alarmIds: [], stepsDone: 8, stepsTotal: 11, manualChecks: 1,
     createdAt: '2026-03-01T08:00:00.000Z', updatedAt: '2026-03-02T10:00:00.000Z', startedAt: '2026-03-02T08:00:00.000Z', completedAt: '2026-03-02T09:00:00.000Z',
     signedOffAt: '2026-03-02T10:00:00.000Z', closedAt: '2026-03-02T10:00:00.000Z',
     at: '2026-03-02T10:00:00.000Z', doneByNames: ['Tess Tech'],
@@ -20,15 +20,15 @@ function sample(): EngineHistory {
     engine: { id: 3, name: 'Pump engine', siteId: 1, siteName: 'Works', duty: 'standby', capacityL: 60, coolantFamily: 'conventional', glycolType: 'ethylene', glycolPercent: 50, runHours: 1512.5, retiredAt: null },
     generatedAt: '2026-03-05T12:00:00.000Z',
     workOrders: [
-      { ...order, id: 9, title: '=cmd()', status: 'planned', signedOffByName: null, signedOffAt: null, closedAt: null, completedAt: null, startedAt: null, at: '2026-03-04T08:00:00.000Z', doneByNames: [], parts: [], manualCheckSteps: [], manualChecks: 0 },
+      { ...order, id: 9, title: '=cmd()', status: 'planned', signedOffBy: null, signedOffByName: null, signedOffAt: null, closedAt: null, completedAt: null, startedAt: null, at: '2026-03-04T08:00:00.000Z', doneByNames: [], parts: [], manualCheckSteps: [], manualChecks: 0 },
       order,
     ],
     coolantTests: [{
       id: 11, engineId: 3, testedAt: '2026-03-02T08:40:00.000Z', method: 'strip', scaUnitsPerGal: 0.8, glycolPercent: 50, freezePointC: -37, ph: null, conductivityUsCm: null,
-      appearance: null, notes: null, testedByName: 'Tess Tech', source: 'manual',
+      appearance: null, notes: null, testedBy: 5, testedByName: 'Tess Tech', source: 'manual', createdAt: '2026-03-02T08:41:00.000Z',
       decision: {
         additive: { status: 'low', filter: 'charged', liquidAdditiveL: 0.4, liquidAdditiveUsPints: 0.85, scaUnitsPerGal: 0.8, scaUnitsPerLitre: 0.21, limits: { low: 1.2, high: 3 }, reasons: [], cautions: [] },
-        freeze: null, notes: [],
+        freeze: null, notes: [], engine: { capacityL: 60, coolantFamily: 'conventional', glycolType: 'ethylene' },
       },
     }],
     runHoursAdjustments: [{ id: 4, oldRunHours: 1500, newRunHours: 1512.5, userName: 'Pat Planner', reason: 'read from the meter', at: '2026-03-03T09:00:00.000Z' }],

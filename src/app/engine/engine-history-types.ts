@@ -1,14 +1,10 @@
 import { CoolantTest } from '../coolant/coolant-types';
 import { WorkOrderSummary } from '../work/work-types';
+import type { HistoryEngine, HistoryPart, HistoryServiceEvent } from '../../../shared/api/engine-history-view';
+
+export type { HistoryEngine, HistoryPart, HistoryServiceEvent } from '../../../shared/api/engine-history-view';
 
 /** GET /api/engines/:id/history (server/services/engine-history.ts). SI units. */
-export interface HistoryPart {
-  kind: string;
-  description: string | null;
-  quantity: number;
-  unit: 'L' | 'pcs';
-}
-
 export interface HistoryManualCheck {
   stepId: number;
   stepTitle: string;
@@ -38,21 +34,8 @@ export interface HistoryRunHours {
   at: string;
 }
 
-export interface HistoryServiceEvent {
-  id: number;
-  taskKey: string;
-  taskTitle: string;
-  doneAt: string;
-  runHours: number | null;
-  workOrderId: number | null;
-  workOrderTitle: string | null;
-}
-
 export interface EngineHistory {
-  engine: {
-    id: number; name: string; siteId: number; siteName: string | null; duty: string; capacityL: number;
-    coolantFamily: string; glycolType: string; glycolPercent: number; runHours: number; retiredAt: string | null;
-  };
+  engine: HistoryEngine;
   generatedAt: string;
   workOrders: HistoryWorkOrder[];
   coolantTests: CoolantTest[];

@@ -1,6 +1,6 @@
 /** Shapes of the work-order API (server/routes/work-orders.ts). Quantities in SI as stored. */
-export type WorkStatus = 'requested' | 'planned' | 'in-progress' | 'waiting-sign-off' | 'closed' | 'cancelled';
-export type WorkPriority = 'low' | 'medium' | 'high' | 'urgent';
+import type { WorkOrderSummary, WorkStatus } from '../../../shared/api/work-view';
+export type { WorkOrderSummary, WorkPriority, WorkStatus } from '../../../shared/api/work-view';
 export type StepInput = 'value' | 'photo' | 'confirmation';
 
 export interface WorkCaution {
@@ -25,36 +25,6 @@ export interface WorkTemplate {
   title: string;
   steps: TemplateStep[];
   cautions: WorkCaution[];
-}
-
-export interface WorkOrderSummary {
-  id: number;
-  engineId: number;
-  engineName: string | null;
-  siteId: number | null;
-  siteName: string | null;
-  kind: string;
-  kindTitle: string;
-  title: string;
-  description: string | null;
-  priority: WorkPriority;
-  dueDate: string | null;
-  status: WorkStatus;
-  assigneeId: number | null;
-  assigneeName: string | null;
-  createdByName: string | null;
-  requestedByName: string | null;
-  signedOffByName: string | null;
-  alarmIds: number[];
-  stepsDone: number;
-  stepsTotal: number;
-  manualChecks: number;
-  createdAt: string;
-  updatedAt: string;
-  startedAt: string | null;
-  completedAt: string | null;
-  signedOffAt: string | null;
-  closedAt: string | null;
 }
 
 export interface OpeningCondition {

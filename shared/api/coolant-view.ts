@@ -1,0 +1,35 @@
+/** JSON shapes of the coolant-test API (server/services/coolant/coolant-tests.ts), shared by server and client. Types only. */
+import type { AdditiveDecision, FreezeAssessment } from '../coolant';
+
+export type TestMethod = 'strip' | 'refractometer' | 'lab';
+export type CoolantTestSource = 'manual' | 'lab-import';
+
+/** What was decided when the test was recorded; stored with the test so the record shows what was done and why. */
+export interface CoolantDecision {
+  /** Null when the test has no additive reading of conventional coolant. */
+  additive: AdditiveDecision | null;
+  /** Freeze protection from the measured glycol share (by volume, the engine's glycol type), when measured. */
+  freeze: FreezeAssessment | null;
+  notes: string[];
+  engine: { capacityL: number; coolantFamily: string; glycolType: string };
+}
+
+/** One coolant test as the API answers it (times as ISO strings). */
+export interface CoolantTestView {
+  id: number;
+  engineId: number;
+  testedAt: string;
+  method: TestMethod;
+  scaUnitsPerGal: number | null;
+  glycolPercent: number | null;
+  freezePointC: number | null;
+  ph: number | null;
+  conductivityUsCm: number | null;
+  appearance: string | null;
+  notes: string | null;
+  testedBy: number | null;
+  testedByName: string | null;
+  decision: CoolantDecision | null;
+  source: CoolantTestSource;
+  createdAt: string;
+}
