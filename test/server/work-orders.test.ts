@@ -12,7 +12,7 @@
 import fs from 'node:fs';
 import path from 'node:path';
 import request from 'supertest';
-import type { ChannelKey } from '../../shared/channels';
+import { CHANNELS, type ChannelKey } from '../../shared/channels';
 import { MemoryLiveState } from '../../server/telemetry/live-state';
 import type { AcceptedReading } from '../../server/telemetry/types';
 import { auth, makeTestApp, type TestApp } from './helpers';
@@ -27,8 +27,14 @@ const listeners: Array<(r: AcceptedReading[]) => void> = [];
 const live = new MemoryLiveState();
 const emitted: Array<{ room: string; event: string; payload: unknown }> = [];
 
-/** Readings enter exactly as the ingest hands them on: live state first, then every onReadings listener. */
-function feed(readings: AcceptedReading[]): void {
+/** Readings enter as the ingest hands them on: stored in SQLite (as the writer does), live state, then every onReadings listener. */
+async function feed(readings: AcceptedReading[]): Promise<void> {
+  for (let i = 0; i < readings.length; i += 200) {
+    const chunk = readings.slice(i, i + 200);
+    await t.ctx.sequelize.query(`INSERT INTO readings (engine_id, channel, ts, value, quality) VALUES ${chunk.map(() => '(?,?,?,?,?)').join(',')}`, {
+      replacements: chunk.flatMap((r) => [r.engineId, CHANNELS[r.channel].code, r.ts, r.value, r.quality]),
+    });
+  }
   live.applyAll(readings, Date.now());
   for (const l of listeners) l(readings);
 }
@@ -164,7 +170,7 @@ describe('the opening check on gated steps (server re-computes it; the client is
   });
 
   it('refuses (409 with conditions) while the engine runs hot and pressurised, even with lockout ticked', async () => {
-    feed(history(engineId, { stopAtMin: 5, fromMin: -10 })); // running the whole time, 85 °C, 90 kPa
+    await feed(history(engineId, { stopAtMin: 5, fromMin: -10 })); // running the whole time, 85 °C, 90 kPa
     const res = await request(t.app).post(`/api/work-orders/${order.id}/steps/${step('relieve-pressure').id}/complete`).set(as('technician')).send({ lockoutConfirmed: true }).expect(409);
     const names = res.body.conditions.map((c: { name: string }) => c.name);
     expect(names).toEqual(expect.arrayContaining(['engine-stopped', 'coolant-temperature', 'coolant-pressure', 'held']));
@@ -189,7 +195,7 @@ describe('the opening check on gated steps (server re-computes it; the client is
 
   it('still shut while cooling: stopped 12 min ago, coolant above 50 °C; predicts a clear time', async () => {
     // cold engine: ran until 12 min ago, tau 900 s: 25 + 60 e^(-720/900) = 52.0 °C now
-    feed(history(coldEngineId, { stopAtMin: -12, fromMin: -30 }));
+    await feed(history(coldEngineId, { stopAtMin: -12, fromMin: -30 }));
     const res = await request(t.app).get(`/api/engines/${coldEngineId}/opening-check?lockoutConfirmed=true`).set(as('technician')).expect(200);
     const temp = res.body.conditions.find((c: { name: string }) => c.name === 'coolant-temperature');
     expect(temp.met).toBe(false);
@@ -206,7 +212,7 @@ describe('the opening check on gated steps (server re-computes it; the client is
     // before any reading arrives: shut (no data)
     await request(t.app).post(`/api/work-orders/${cold.id}/steps/${s.id}/complete`).set(as('technician')).send({ lockoutConfirmed: true }).expect(409);
     // ran until 40 min ago, then cooled: 25 + 60 e^(-2400/900) = 29.2 °C, pressure long at zero gauge
-    feed(history(e.id, { stopAtMin: -40, fromMin: -60 }));
+    await feed(history(e.id, { stopAtMin: -40, fromMin: -60 }));
     const check = await request(t.app).get(`/api/engines/${e.id}/opening-check?lockoutConfirmed=true`).set(as('technician')).expect(200);
     expect(check.body.clear).toBe(true);
     expect(check.body.conditions.find((c: { name: string }) => c.name === 'coolant-temperature').value).toBeCloseTo(25 + 60 * Math.exp(-2400 / 900), 1);
@@ -309,7 +315,7 @@ describe('a filter change from start to sign-off', () => {
   beforeAll(async () => {
     const e = await t.ctx.models.Engine.create({ siteId: (await t.ctx.models.Site.findOne())!.id, name: 'Service engine', duty: 'standby', capacityL: 60, coolantFamily: 'conventional', glycolType: 'ethylene', glycolPercent: 50, capPressureKpa: 100, oilDrainIntervalH: 250, runHours: 2000 });
     engine = e.id;
-    feed(history(engine, { stopAtMin: -45, fromMin: -70, cond: 2400 }));
+    await feed(history(engine, { stopAtMin: -45, fromMin: -70, cond: 2400 }));
     order = await plannedOrder(engine);
   });
 
@@ -323,7 +329,7 @@ describe('a filter change from start to sign-off', () => {
         await request(t.app).post(`${base}/steps/${s.id}/complete`).set(as('technician')).send({ value: 3, unit: 'kPa' }).expect(400);
         Object.assign(body, { value: 3, unit: 'gal' });
       }
-      if (s.key === 'leak-run') feed(history(engine, { stopAtMin: 10, fromMin: -1, cond: 1900 })); // fresh coolant runs: new conductivity
+      if (s.key === 'leak-run') await feed(history(engine, { stopAtMin: 10, fromMin: -1, cond: 1900 })); // fresh coolant runs: new conductivity
       const res = await request(t.app).post(`${base}/steps/${s.id}/complete`).set(as('technician')).send(body);
       expect({ key: s.key, status: res.status }).toEqual({ key: s.key, status: 200 });
       if (s.key === 'refill') expect(res.body.steps.find((x: { id: number }) => x.id === s.id).resultValue).toBeCloseTo(3 * 3.785411784, 9);

@@ -23,10 +23,13 @@ const emptySeries = (): Series => ({ coolant_temp: [], coolant_pressure: [], eng
  * telemetry.onReadings. At most keepMs / spacingMs samples per channel, so memory stays bounded
  * however fast a device publishes. On first use for an engine the recent past is loaded from the
  * readings table, so a restart (or an engine first asked about late) still has its cool-down curve.
+ * Only engines asked about in the last keepMs are followed: a fleet of hundreds would otherwise hold
+ * hours of samples for every engine (about 1 MB each) although only engines under work need them.
  */
 export class ReadingHistory {
   private readonly engines = new Map<number, Series>();
   private readonly loaded = new Map<number, Promise<void>>();
+  private readonly askedAt = new Map<number, number>();
   private readonly keepMs: number;
   private readonly spacingMs: number;
 
@@ -38,6 +41,8 @@ export class ReadingHistory {
   /** Listener for telemetry.onReadings. */
   readonly onReadings = (readings: AcceptedReading[]): void => {
     for (const r of readings) {
+      // without a database (tests) every engine is followed; with one, only engines asked about lately
+      if (this.sequelize && !this.loaded.has(r.engineId)) continue;
       if ((GATE_CHANNELS as readonly string[]).includes(r.channel)) this.add(r.engineId, r.channel as GateChannel, { ts: r.ts, value: r.value, quality: r.quality });
     }
   };
@@ -71,9 +76,22 @@ export class ReadingHistory {
 
   /** The engine's history, once its recent past has been loaded from the database. */
   async series(engineId: number, now = Date.now()): Promise<Readonly<Series>> {
+    this.forgetIdle(now);
+    this.askedAt.set(engineId, now);
     await this.ensureLoaded(engineId, now);
     const s = this.engines.get(engineId) ?? emptySeries();
     return s;
+  }
+
+  /** Stop following engines nobody asked about for keepMs; asked again, they load from the database. */
+  private forgetIdle(now: number): void {
+    if (!this.sequelize) return;
+    for (const [engineId, at] of this.askedAt) {
+      if (now - at <= this.keepMs) continue;
+      this.askedAt.delete(engineId);
+      this.loaded.delete(engineId);
+      this.engines.delete(engineId);
+    }
   }
 
   private ensureLoaded(engineId: number, now: number): Promise<void> {
