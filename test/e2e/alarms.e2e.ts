@@ -9,7 +9,7 @@
 import assert from 'node:assert/strict';
 import { after, before, describe, it } from 'node:test';
 import type { Browser, BrowserContext, Page } from 'playwright-core';
-import { ACCOUNTS, launchBrowser, shot, signIn, startStack, waitUntil, type Stack } from './harness';
+import { ACCOUNTS, fillChecked, launchBrowser, openDialog, shot, signIn, startStack, waitUntil, type Stack } from './harness';
 
 const HIGH = 'Coolant temperature high';
 
@@ -93,9 +93,9 @@ describe('alarms (operator, planner, admin)', () => {
     const row = rowOf(list);
     assert.equal(await row.locator('button.shelve').count(), 0, 'no shelve button for an operator');
     await row.locator('button.ack').click();
-    const dialog = list.getByRole('dialog');
+    const dialog = await openDialog(list);
     await dialog.getByRole('heading', { name: 'Acknowledge alarm' }).waitFor();
-    await dialog.getByLabel(/Note/).fill('Fan belt checked from a distance; load reduced.');
+    await fillChecked(dialog.getByLabel(/Note/), 'Fan belt checked from a distance; load reduced.');
     await shot(list, 'alarms-05-acknowledge-dialog');
     await dialog.locator('button.confirm').click();
     await dialog.waitFor({ state: 'detached' });
@@ -122,10 +122,10 @@ describe('alarms (operator, planner, admin)', () => {
     const row = rowOf(page);
     await row.waitFor({ timeout: 20000 });
     await row.locator('button.shelve').click();
-    const dialog = page.getByRole('dialog');
+    const dialog = await openDialog(page);
     await dialog.getByRole('heading', { name: 'Shelve alarm' }).waitFor();
-    await dialog.getByLabel(/For how long/).fill('45');
-    await dialog.getByLabel(/Reason/).fill('Fan motor replacement booked; the technician is on site.');
+    await fillChecked(dialog.getByLabel(/For how long/), '45');
+    await fillChecked(dialog.getByLabel(/Reason/), 'Fan motor replacement booked; the technician is on site.');
     await shot(page, 'alarms-08-shelve-dialog');
     await dialog.locator('button.confirm').click();
     await dialog.waitFor({ state: 'detached' });

@@ -7,7 +7,7 @@
 import assert from 'node:assert/strict';
 import { after, before, describe, it } from 'node:test';
 import type { Browser, BrowserContext, Locator, Page } from 'playwright-core';
-import { ACCOUNTS, launchBrowser, shot, signIn, startStack, type Stack } from './harness';
+import { ACCOUNTS, fillChecked, launchBrowser, openDialog, shot, signIn, startStack, type Stack } from './harness';
 
 // NIST SP 811 (2008), Appendix B, exact: 1 US gallon = 3.785411784 L; 1 US pint = 0.473176473 L.
 const L_PER_US_GAL = 3.785411784;
@@ -162,9 +162,9 @@ describe('coolant: tests, calculators, due list to work order', () => {
     await signIn(planner, stack, ACCOUNTS.planner);
     await planner.goto(`${stack.baseUrl}/due`);
     await planner.getByRole('button', { name: `Correct run hours of ${conventional.name}` }).first().click();
-    const dialog = planner.getByRole('dialog');
-    await dialog.getByLabel('Hour meter reads').fill('1330');
-    await dialog.getByLabel('Reason').fill('read from the hour meter at the monthly run');
+    const dialog = await openDialog(planner);
+    await fillChecked(dialog.getByLabel('Hour meter reads'), '1330');
+    await fillChecked(dialog.getByLabel('Reason'), 'read from the hour meter at the monthly run');
     await dialog.getByRole('button', { name: 'Set run hours' }).click();
     const audit = dialog.getByRole('list', { name: 'Run-hours corrections' });
     await audit.getByText(/→ 1330\.0 h .*monthly run/).waitFor({ timeout: 15000 });

@@ -11,7 +11,7 @@ import fs from 'node:fs';
 import net from 'node:net';
 import os from 'node:os';
 import path from 'node:path';
-import { chromium, type Browser, type Page } from 'playwright-core';
+import { chromium, type Browser, type Locator, type Page } from 'playwright-core';
 
 const ROOT = path.resolve(__dirname, '../..');
 export const SHOTS = path.join(ROOT, 'test-output/screenshots');
@@ -314,4 +314,25 @@ export async function shot(page: Page, name: string): Promise<string> {
   const file = path.join(SHOTS, `${name}.png`);
   await page.screenshot({ path: file, fullPage: true });
   return file;
+}
+
+/**
+ * The open Material dialog, once its opening animation has ended. Material moves the focus into the
+ * dialog when the animation ends; on a busy machine that can be after a test started typing, and the
+ * rest of the text then lands in the first field. Wait for it before filling anything.
+ */
+export async function openDialog(page: Page): Promise<Locator> {
+  const dialog = page.locator('mat-dialog-container.mdc-dialog--open:not(.mdc-dialog--opening)').last();
+  await dialog.waitFor({ timeout: 15000 });
+  await page.waitForFunction(() => !!document.activeElement?.closest('mat-dialog-container'), null, { timeout: 15000 });
+  return dialog;
+}
+
+/** Fill a field and check that the value stuck (a late focus move would have sent it elsewhere). */
+export async function fillChecked(field: Locator, value: string): Promise<void> {
+  for (let attempt = 0; attempt < 3; attempt++) {
+    await field.fill(value);
+    if ((await field.inputValue()) === value) return;
+  }
+  throw new Error(`the field did not keep the value "${value}"`);
 }
