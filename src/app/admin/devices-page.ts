@@ -1,5 +1,5 @@
 import { DatePipe } from '@angular/common';
-import { ChangeDetectionStrategy, Component, effect, inject, signal, viewChild } from '@angular/core';
+import { ChangeDetectionStrategy, Component, inject, signal, viewChild } from '@angular/core';
 import { MatButtonModule } from '@angular/material/button';
 import { MatDialog } from '@angular/material/dialog';
 import { MatFormFieldModule } from '@angular/material/form-field';
@@ -17,6 +17,7 @@ import { Device, DeviceRejection, DeviceWithSecret, Engine, IngestReport } from 
 import { ConfirmDialog } from './confirm-dialog';
 import { DeviceDialog } from './device-dialog';
 import { SecretDialog, SecretData } from './secret-dialog';
+import { filterAdminTable, linkAdminTable } from './admin-table';
 
 /** Reject reasons of the MQTT contract, in words. */
 export const REASON_TEXT: Record<string, string> = {
@@ -122,17 +123,12 @@ export class DevicesPage {
   private readonly paginator = viewChild(MatPaginator);
 
   constructor() {
-    effect(() => {
-      this.source.sort = this.sort() ?? null;
-      this.source.paginator = this.paginator() ?? null;
-    });
-    this.source.filterPredicate = (d, f) => `${d.username} ${d.engineName} ${d.status} ${d.reasons}`.toLowerCase().includes(f);
+    linkAdminTable(this.source, this.sort, this.paginator, (d) => `${d.username} ${d.engineName} ${d.status} ${d.reasons}`);
     this.load();
   }
 
   protected filter(text: string): void {
-    this.source.filter = text.trim().toLowerCase();
-    this.source.paginator?.firstPage();
+    filterAdminTable(this.source, text);
   }
 
   protected add(): void {

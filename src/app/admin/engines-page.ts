@@ -1,4 +1,4 @@
-import { ChangeDetectionStrategy, Component, effect, inject, signal, viewChild } from '@angular/core';
+import { ChangeDetectionStrategy, Component, inject, signal, viewChild } from '@angular/core';
 import { DecimalPipe } from '@angular/common';
 import { MatButtonModule } from '@angular/material/button';
 import { MatDialog } from '@angular/material/dialog';
@@ -16,6 +16,7 @@ import { AdminService } from './admin.service';
 import { Engine, Site } from './admin-types';
 import { ConfirmDialog } from './confirm-dialog';
 import { EngineForm, EngineFormData } from './engine-form';
+import { filterAdminTable, linkAdminTable } from './admin-table';
 
 interface EngineRow extends Engine {
   siteName: string;
@@ -107,18 +108,12 @@ export class EnginesPage {
   private readonly paginator = viewChild(MatPaginator);
 
   constructor() {
-    effect(() => {
-      this.source.sort = this.sort() ?? null;
-      this.source.paginator = this.paginator() ?? null;
-    });
-    this.source.filterPredicate = (e, f) =>
-      `${e.name} ${e.siteName} ${e.duty} ${e.coolantFamily} ${e.glycolType} ${e.outOfService ? 'out of service' : ''}`.toLowerCase().includes(f);
+    linkAdminTable(this.source, this.sort, this.paginator, (e) => `${e.name} ${e.siteName} ${e.duty} ${e.coolantFamily} ${e.glycolType} ${e.outOfService ? 'out of service' : ''}`);
     this.load();
   }
 
   protected filter(text: string): void {
-    this.source.filter = text.trim().toLowerCase();
-    this.source.paginator?.firstPage();
+    filterAdminTable(this.source, text);
   }
 
   protected open(engine: Engine | null): void {

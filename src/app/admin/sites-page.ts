@@ -1,4 +1,4 @@
-import { ChangeDetectionStrategy, Component, effect, inject, signal, viewChild } from '@angular/core';
+import { ChangeDetectionStrategy, Component, inject, signal, viewChild } from '@angular/core';
 import { MatButtonModule } from '@angular/material/button';
 import { MatDialog } from '@angular/material/dialog';
 import { MatFormFieldModule } from '@angular/material/form-field';
@@ -13,6 +13,7 @@ import { AdminService } from './admin.service';
 import { Site } from './admin-types';
 import { ConfirmDialog } from './confirm-dialog';
 import { SiteDialog } from './site-dialog';
+import { filterAdminTable, linkAdminTable } from './admin-table';
 
 interface SiteRow extends Site {
   engines: number;
@@ -75,17 +76,12 @@ export class SitesPage {
   private readonly paginator = viewChild(MatPaginator);
 
   constructor() {
-    effect(() => {
-      this.source.sort = this.sort() ?? null;
-      this.source.paginator = this.paginator() ?? null;
-    });
-    this.source.filterPredicate = (s, f) => `${s.name} ${s.timeZone}`.toLowerCase().includes(f);
+    linkAdminTable(this.source, this.sort, this.paginator, (s) => `${s.name} ${s.timeZone}`);
     this.load();
   }
 
   protected filter(text: string): void {
-    this.source.filter = text.trim().toLowerCase();
-    this.source.paginator?.firstPage();
+    filterAdminTable(this.source, text);
   }
 
   protected open(site: Site | null): void {

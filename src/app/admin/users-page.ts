@@ -1,5 +1,5 @@
 import { DatePipe } from '@angular/common';
-import { ChangeDetectionStrategy, Component, computed, effect, inject, signal, viewChild } from '@angular/core';
+import { ChangeDetectionStrategy, Component, computed, inject, signal, viewChild } from '@angular/core';
 import { MatButtonModule } from '@angular/material/button';
 import { MatDialog } from '@angular/material/dialog';
 import { MatFormFieldModule } from '@angular/material/form-field';
@@ -18,6 +18,7 @@ import { ConfirmDialog } from './confirm-dialog';
 import { applyServerError } from './form-errors';
 import { UserDialog, UserDialogData } from './user-dialog';
 import { FormGroup } from '@angular/forms';
+import { filterAdminTable, linkAdminTable } from './admin-table';
 
 /** Who may sign in, with which role. Users are disabled, never deleted: their names stay on their records. */
 @Component({
@@ -110,11 +111,7 @@ export class UsersPage {
   private readonly paginator = viewChild(MatPaginator);
 
   constructor() {
-    effect(() => {
-      this.source.sort = this.sort() ?? null;
-      this.source.paginator = this.paginator() ?? null;
-    });
-    this.source.filterPredicate = (u, f) => `${u.name} ${u.email} ${ROLE_LABEL[u.role]} ${u.disabled ? 'disabled' : 'active'}`.toLowerCase().includes(f);
+    linkAdminTable(this.source, this.sort, this.paginator, (u) => `${u.name} ${u.email} ${ROLE_LABEL[u.role]} ${u.disabled ? 'disabled' : 'active'}`);
     this.load();
   }
 
@@ -125,8 +122,7 @@ export class UsersPage {
   }
 
   protected filter(text: string): void {
-    this.source.filter = text.trim().toLowerCase();
-    this.source.paginator?.firstPage();
+    filterAdminTable(this.source, text);
   }
 
   protected add(): void {
