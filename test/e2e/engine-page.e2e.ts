@@ -88,10 +88,32 @@ describe('engine page (history and live)', () => {
 
   it('draws the last 24 h with about one bucket per pixel, the normal band and the start mark', async () => {
     await signIn(page, stack, ACCOUNTS.operator);
+    // Count every moment a chart that had drawn its series shows none again (a blank redraw the operator would see).
+    await page.addInitScript(() => {
+      const w = window as unknown as { jwBlanks: string[] };
+      w.jwBlanks = [];
+      const drawn = new WeakSet<Element>();
+      new MutationObserver(() => {
+        for (const s of document.querySelectorAll('jw-trend-chart section.channel')) {
+          const n = s.querySelectorAll('g.apexcharts-series path[d*="L"]').length;
+          if (n > 0) drawn.add(s);
+          else if (drawn.has(s)) {
+            drawn.delete(s);
+            w.jwBlanks.push(`${s.getAttribute('aria-label')} at ${new Date().toISOString()}`);
+          }
+        }
+      }).observe(document, { subtree: true, childList: true, attributes: true, attributeFilter: ['d'] });
+    });
     await page.goto(`${stack.baseUrl}/engines/${ENGINE_ID}`);
     await page.getByRole('heading', { level: 1 }).waitFor();
+    // The asserted state itself: each of the three charts has drawn a series of at least 20 points.
     await page.waitForFunction(
-      () => document.querySelectorAll('jw-trend-chart g.apexcharts-series path[d*="L"]').length >= 3,
+      () => {
+        // no named inner functions: the bundler's name helper does not exist in the page
+        const sections = [...document.querySelectorAll('jw-trend-chart section.channel')];
+        return sections.length === 3 && sections.every((s) =>
+          [...s.querySelectorAll('g.apexcharts-series path')].some((p) => (p.getAttribute('d') ?? '').split(/[LC]/).length - 1 >= 20));
+      },
       null, { timeout: 30000 },
     );
     const day = calls.filter((c) => Math.abs(c.to - c.from - DAY_MS) < 60_000);
@@ -113,6 +135,9 @@ describe('engine page (history and live)', () => {
     await page.waitForFunction(() => document.querySelectorAll('jw-trend-chart .apexcharts-xaxis-annotations line').length > 0, null, { timeout: 20000 });
     const marked = await drawnCharts(page);
     assert.ok(marked[0].markLabels.some((t) => /started/.test(t)), `start mark named (${marked[0].markLabels})`);
+    // New data, a new window and the start mark were all drawn in place: no chart went blank after its first draw.
+    const blanks = await page.evaluate(() => (window as unknown as { jwBlanks: string[] }).jwBlanks);
+    assert.deepEqual(blanks, [], 'charts never blank after their first draw');
     await shot(page, 'engine-page-24h');
   });
 

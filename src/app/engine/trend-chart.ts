@@ -1,4 +1,6 @@
-import { ChangeDetectionStrategy, Component, DestroyRef, ElementRef, afterNextRender, computed, inject, input, output } from '@angular/core';
+import {
+  ChangeDetectionStrategy, Component, DestroyRef, ElementRef, afterNextRender, computed, effect, inject, input, output, untracked, viewChildren,
+} from '@angular/core';
 import {
   ApexAnnotations, ApexAxisChartSeries, ApexChart, ApexFill, ApexStroke, ApexTooltip, ApexXAxis, ApexYAxis, ChartComponent, XAxisAnnotations, YAxisAnnotations,
 } from 'ng-apexcharts';
@@ -22,6 +24,14 @@ interface ChannelView {
   xaxis: ApexXAxis;
   yaxis: ApexYAxis;
   annotations: ApexAnnotations;
+  /** The window and run changes the chart is first drawn with; later ones are applied in place. */
+  drawnFor: Moving;
+}
+
+/** What moves with the data: applied to a drawn chart in place, never by building it again. */
+interface Moving {
+  win: TrendWindow;
+  changes: readonly RunChange[];
 }
 
 const DECIMALS: Record<string, number> = { '°C': 1, '°F': 1, kPa: 0, psi: 1, bar: 2, 'µS/cm': 0, rpm: 0 };
@@ -138,12 +148,22 @@ export class TrendChart {
     return out;
   });
 
-  /** Everything but the data; it changes rarely, and a change redraws the chart from scratch. */
+  /** The drawn charts, to move their window and marks in place. */
+  private readonly charts = viewChildren(ChartComponent);
+  /** Charts moved since they were drawn, and to what. */
+  private readonly applied = new WeakMap<object, Moving>();
+
+  private readonly moving = computed<Moving>(() => ({ win: this.window(), changes: this.runChanges() }));
+
+  /**
+   * Everything but the data and what moves with it; it changes rarely, and a change builds the chart again
+   * (ng-apexcharts destroys and redraws a chart on any option change but the series, which the operator sees
+   * as a flicker). The window and the run marks are read untracked here and applied in place afterwards.
+   */
   protected readonly views = computed<ChannelView[]>(() => {
     const prefs = this.prefs.preferences();
     const engine = this.engine();
-    const win = this.window();
-    const changes = this.runChanges();
+    const moving = untracked(this.moving);
     const ink = this.ink();
     return this.channels().map((channel, index) => {
       const quantity = quantityOf(channel);
@@ -168,6 +188,7 @@ export class TrendChart {
           },
           beforeResetZoom: () => {
             this.zoomReset.emit();
+            const win = untracked(this.window);
             return { xaxis: { min: win.from, max: win.to } };
           },
         },
@@ -186,12 +207,22 @@ export class TrendChart {
       };
       const yMin = () => extent().lo;
       const yMax = () => extent().hi;
+      const bandsAnnotations = bands.map(({ band, text }) => ({
+        y: conv(band.low),
+        y2: conv(band.high),
+        fillColor: ink.band,
+        opacity: 0.14,
+        borderColor: ink.band,
+        strokeDashArray: 4,
+        label: { text, position: 'left', textAnchor: 'start', offsetX: 4, borderWidth: 0, style: { background: 'transparent', color: ink.mark, fontSize: '11px' } },
+      })) as YAxisAnnotations[];
+      const moved = movingOptions(moving, index, ink);
       return {
         channel,
         label: CHANNELS[channel].label,
         unit,
         chart,
-        xaxis: { type: 'datetime', min: win.from, max: win.to, labels: { datetimeUTC: false }, tooltip: { enabled: false } },
+        xaxis: moved.xaxis,
         yaxis: {
           title: { text: unit },
           min: yMin,
@@ -201,42 +232,34 @@ export class TrendChart {
           labels: { minWidth: 56, maxWidth: 56, formatter: (v: number) => (Number.isFinite(v) ? v.toFixed(decimals) : '') },
         },
         annotations: {
-          yaxis: bands.map(({ band, text }) => ({
-            y: conv(band.low),
-            y2: conv(band.high),
-            fillColor: ink.band,
-            opacity: 0.14,
-            borderColor: ink.band,
-            strokeDashArray: 4,
-            label: { text, position: 'left', textAnchor: 'start', offsetX: 4, borderWidth: 0, style: { background: 'transparent', color: ink.mark, fontSize: '11px' } },
-          })) as YAxisAnnotations[],
-          xaxis: changes
-            .filter((c) => c.t >= win.from && c.t <= win.to)
-            .map((c) => ({
-              x: c.t,
-              borderColor: ink.mark,
-              strokeDashArray: c.kind === 'stop' ? 4 : 0,
-              // Words only above the top chart, starts and stops on two lines, so close pairs stay readable.
-              label:
-                index === 0
-                  ? {
-                      text: c.kind === 'start' ? '▲ started' : '▼ stopped',
-                      orientation: 'horizontal',
-                      position: 'top',
-                      textAnchor: c.kind === 'start' ? 'end' : 'start',
-                      offsetY: c.kind === 'start' ? -2 : 12,
-                      borderWidth: 0,
-                      style: { background: 'transparent', color: ink.mark, fontSize: '11px' },
-                    }
-                  : { text: '' },
-            })) as XAxisAnnotations[],
+          yaxis: bandsAnnotations,
+          xaxis: moved.annotations.xaxis,
         },
+        drawnFor: moving,
       };
     });
   });
 
   constructor() {
     afterNextRender(() => this.observeWidth());
+    // A new window or run mark moves the drawn charts in place (updateOptions redraws synchronously, so no blank frame).
+    effect(() => {
+      const moving = this.moving();
+      const views = this.views();
+      const ink = this.ink();
+      for (const chart of this.charts()) {
+        const instance = chart.chartInstance();
+        if (!instance) continue;
+        const index = views.findIndex((v) => v.chart.id === chart.chart()?.id);
+        if (index < 0) continue;
+        const was = this.applied.get(instance) ?? views[index].drawnFor;
+        if (was.win === moving.win && was.changes === moving.changes) continue;
+        this.applied.set(instance, moving);
+        const opts = movingOptions(moving, index, ink);
+        const yaxis = views[index].annotations.yaxis;
+        untracked(() => void instance.updateOptions({ xaxis: opts.xaxis, annotations: { yaxis, xaxis: opts.annotations.xaxis } }, false, false, false));
+      }
+    });
   }
 
   protected seriesOf(channel: ChannelKey): ApexAxisChartSeries {
@@ -262,6 +285,36 @@ export class TrendChart {
   }
 
   private readonly destroyRef = inject(DestroyRef);
+}
+
+/** The x axis and the start/stop marks of one channel's chart (index 0 names the marks in words). */
+function movingOptions(moving: Moving, index: number, ink: (typeof INK)['light']): { xaxis: ApexXAxis; annotations: { xaxis: XAxisAnnotations[] } } {
+  const { win, changes } = moving;
+  return {
+    xaxis: { type: 'datetime', min: win.from, max: win.to, labels: { datetimeUTC: false }, tooltip: { enabled: false } },
+    annotations: {
+      xaxis: changes
+        .filter((c) => c.t >= win.from && c.t <= win.to)
+        .map((c) => ({
+          x: c.t,
+          borderColor: ink.mark,
+          strokeDashArray: c.kind === 'stop' ? 4 : 0,
+          // Words only above the top chart, starts and stops on two lines, so close pairs stay readable.
+          label:
+            index === 0
+              ? {
+                  text: c.kind === 'start' ? '▲ started' : '▼ stopped',
+                  orientation: 'horizontal',
+                  position: 'top',
+                  textAnchor: c.kind === 'start' ? 'end' : 'start',
+                  offsetY: c.kind === 'start' ? -2 : 12,
+                  borderWidth: 0,
+                  style: { background: 'transparent', color: ink.mark, fontSize: '11px' },
+                }
+              : { text: '' },
+        })) as XAxisAnnotations[],
+    },
+  };
 }
 
 /** The bands a channel is judged by: while running, and while stopped when the engine has a band for that. */
