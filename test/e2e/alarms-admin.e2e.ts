@@ -8,7 +8,7 @@
 import assert from 'node:assert/strict';
 import { after, before, describe, it } from 'node:test';
 import type { Browser, BrowserContext, Page } from 'playwright-core';
-import { ACCOUNTS, launchBrowser, shot, signIn, startStack, waitUntil, type Stack } from './harness';
+import { ACCOUNTS, fillChecked, launchBrowser, openDialog, pickOption, shot, signIn, startStack, waitUntil, type Stack } from './harness';
 
 const RULE = 'coolant_temp_high';
 const TITLE = 'Coolant temperature high';
@@ -112,11 +112,10 @@ describe('alarm screens of admins and planners', () => {
     await page.goto(`${stack.baseUrl}/alarms/on-call`);
     await page.getByRole('heading', { name: 'On-call rota' }).waitFor();
     await page.getByRole('button', { name: /New shift/ }).click();
-    const dialog = page.getByRole('dialog');
-    await dialog.getByLabel('On call').click();
-    await page.getByRole('option', { name: /technician/ }).first().click();
-    await dialog.getByLabel('From').fill('2030-03-04T07:00');
-    await dialog.getByLabel('Until').fill('2030-03-04T19:00');
+    const dialog = await openDialog(page);
+    await pickOption(page, dialog.getByLabel('On call'), /technician/);
+    await fillChecked(dialog.getByLabel('From'), '2030-03-04T07:00');
+    await fillChecked(dialog.getByLabel('Until'), '2030-03-04T19:00');
     await shot(page, 'alarms-admin-03-shift-dialog');
     await dialog.getByRole('button', { name: 'Save' }).click();
     const row = page.locator('tr', { hasText: 'Just saved' });
@@ -131,9 +130,10 @@ describe('alarm screens of admins and planners', () => {
     assert.equal(Date.parse(created[0].endsAt) - Date.parse(created[0].startsAt), 12 * 3600_000);
 
     await row.getByRole('button', { name: /Change shift/ }).click();
-    await dialog.getByLabel('Until').fill('2030-03-04T21:00');
-    await dialog.getByRole('button', { name: 'Save' }).click();
-    await dialog.waitFor({ state: 'hidden' });
+    const change = await openDialog(page);
+    await fillChecked(change.getByLabel('Until'), '2030-03-04T21:00');
+    await change.getByRole('button', { name: 'Save' }).click();
+    await change.waitFor({ state: 'detached' });
     await waitUntil(async () => (await mine())[0]?.endsAt === new Date('2030-03-04T21:00').toISOString(), { timeoutMs: 10000, what: 'the changed end of the shift' });
 
     await page.locator('tr', { hasText: 'Just saved' }).getByRole('button', { name: /Delete shift/ }).click();

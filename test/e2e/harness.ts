@@ -336,3 +336,24 @@ export async function fillChecked(field: Locator, value: string): Promise<void> 
   }
   throw new Error(`the field did not keep the value "${value}"`);
 }
+
+/**
+ * Choose an option of a Material select: opens its panel (again, if the first click came before the field was
+ * ready) until the option is there, clicks it, and waits until the field shows it.
+ */
+export async function pickOption(page: Page, field: Locator, name: string | RegExp): Promise<void> {
+  const option = page.getByRole('option', { name }).first();
+  const panel = page.getByRole('listbox');
+  for (let attempt = 0; attempt < 4; attempt++) {
+    if (!(await panel.isVisible())) await field.click();
+    const shown = await option.waitFor({ timeout: 5000 }).then(() => true, () => false);
+    if (shown) {
+      const text = ((await option.textContent()) ?? '').trim();
+      await option.click();
+      await waitUntil(async () => ((await field.textContent()) ?? '').includes(text), { timeoutMs: 10000, what: `the field to show "${text}"` });
+      return;
+    }
+    if (await panel.isVisible()) await page.keyboard.press('Escape'); // closes the panel only
+  }
+  throw new Error(`no option ${String(name)} in the select`);
+}

@@ -25,7 +25,7 @@ const ONCALL_ROLES = ['technician', 'planner', 'admin'];
     <section class="page">
       <header class="head">
         <h1>On-call rota</h1>
-        <button mat-flat-button type="button" (click)="edit(null)"><mat-icon fontIcon="add" />New shift</button>
+        <button mat-flat-button type="button" (click)="edit(null)" [disabled]="!readyToEdit()"><mat-icon fontIcon="add" />New shift</button>
       </header>
       <p class="muted">Alarm e-mail goes to whoever is on call for the engine's site; unacknowledged alarms go on to the backup. Shifts from the past 7 days on, earliest first.</p>
       @if (error(); as e) { <p class="error" role="alert">{{ e }}</p> }
@@ -74,6 +74,10 @@ export class OnCallPage {
 
   private readonly shifts = signal<Shift[]>([]);
   private readonly users = signal<Person[] | null>(null);
+  /** The people list has answered (or failed, leaving the rota's own names). */
+  private readonly peopleSettled = signal(false);
+  /** A new shift needs the sites and the people to choose from; a dialog opened earlier would offer a partial list. */
+  protected readonly readyToEdit = computed(() => this.peopleSettled() && this.fleet.sites().length > 0);
   protected readonly error = signal<string | null>(null);
   protected readonly columns = ['now', 'site', 'who', 'backup', 'from', 'until', 'actions'];
 
@@ -171,12 +175,14 @@ export class OnCallPage {
   }
 
   private async loadPeople(): Promise<void> {
-    if (!this.auth.hasRole('planner', 'admin')) return;
     try {
+      if (!this.auth.hasRole('planner', 'admin')) return;
       const people = await firstValueFrom(this.http.get<Person[]>('/api/people', { params: { role: ONCALL_ROLES.join(',') } }));
       this.users.set(people.map((p) => ({ id: p.id, name: p.name, role: p.role })));
     } catch {
       /* falls back to the names in the rota */
+    } finally {
+      this.peopleSettled.set(true);
     }
   }
 }
