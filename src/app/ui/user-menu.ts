@@ -67,7 +67,8 @@ export class UserMenu {
   protected readonly open = signal(false);
   protected readonly panelId = `jw-user-menu-${nextId++}`;
   private readonly host = inject<ElementRef<HTMLElement>>(ElementRef);
-  private readonly trigger = viewChild.required<ElementRef<HTMLButtonElement>>('trigger');
+  // read: ElementRef, else the reference gives the Material button component rather than the element
+  private readonly trigger = viewChild.required('trigger', { read: ElementRef<HTMLButtonElement> });
 
   protected toggle(): void {
     this.open.update((o) => !o);
