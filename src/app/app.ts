@@ -2,10 +2,7 @@ import { BreakpointObserver } from '@angular/cdk/layout';
 import { ChangeDetectionStrategy, Component, computed, inject } from '@angular/core';
 import { toSignal } from '@angular/core/rxjs-interop';
 import { MatButtonModule } from '@angular/material/button';
-import { MatDividerModule } from '@angular/material/divider';
 import { MatIconModule } from '@angular/material/icon';
-import { MatListModule } from '@angular/material/list';
-import { MatMenuModule } from '@angular/material/menu';
 import { MatSidenavModule } from '@angular/material/sidenav';
 import { MatToolbarModule } from '@angular/material/toolbar';
 import { RouterLink, RouterLinkActive, RouterOutlet } from '@angular/router';
@@ -15,6 +12,7 @@ import { AppBarStatus } from './core/app-bar-status';
 import { AuthService } from './core/auth.service';
 import { PreferencesService } from './core/preferences.service';
 import { Role } from './core/user';
+import { UserMenu } from './ui/user-menu';
 
 interface NavItem {
   path: string;
@@ -46,7 +44,9 @@ const ROLE_TEXT: Record<Role, string> = { admin: 'Administrator', planner: 'Plan
   changeDetection: ChangeDetectionStrategy.OnPush,
   imports: [
     RouterOutlet, RouterLink, RouterLinkActive,
-    MatToolbarModule, MatSidenavModule, MatListModule, MatIconModule, MatButtonModule, MatMenuModule, MatDividerModule,
+    // The navigation is plain links and the user menu a plain disclosure: Material's list and menu would bring
+    // forms and the overlay into the first download.
+    MatToolbarModule, MatSidenavModule, MatIconModule, MatButtonModule, UserMenu,
   ],
   templateUrl: './app.html',
   styleUrl: './app.scss',

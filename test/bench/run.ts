@@ -19,6 +19,7 @@ import bcrypt from 'bcryptjs';
 import { io as ioClient } from 'socket.io-client';
 import { loadJwtSecret } from '../../server/auth/jwt-secret';
 import { createTokenService } from '../../server/auth/tokens';
+import { describeInitialBundle, measureInitialBundle } from './initial-bundle';
 import { Db, freePort, seedFleet, type SeededDevice } from '../server/support/telemetry-server';
 
 const ROOT = path.resolve(__dirname, '../..');
@@ -307,6 +308,9 @@ async function main(): Promise<void> {
   line('GET /api/health answer p50 / max (samples)', `${q0.healthP50.toFixed(0)} / ${q0.healthMax.toFixed(0)} ms (${q0.samples} answered, ${q0.failures} failed or > 10 s)`);
   line('RSS each second', mb(q0.rss));
   line('peak RSS (VmHWM) after the QoS 0 flood', `${hwmQos0.toFixed(0)} MB`);
+  const initialBundle = measureInitialBundle();
+  console.log('\n4. App: first download (the production build in dist/, measured as the build estimates it)');
+  line('initial bundle (initialTransferKb)', describeInitialBundle(initialBundle));
   console.log(`\nbench took ${((Date.now() - t0) / 1000).toFixed(0)} s`);
   process.exit(0);
 }

@@ -27,6 +27,11 @@ describe('fleet board (operator)', () => {
     await signIn(page, stack, ACCOUNTS.operator);
     assert.match(new URL(page.url()).pathname, /^\/fleet/);
     await page.getByRole('heading', { name: 'Fleet board' }).waitFor();
+    // The side navigation is a named landmark whose link to the current screen says so.
+    const nav = page.getByRole('navigation', { name: 'Main navigation' });
+    await nav.locator('a[aria-current="page"]', { hasText: 'Fleet board' }).waitFor();
+    assert.equal(await nav.locator('a[aria-current="page"]').count(), 1, 'one current screen');
+    assert.ok(await nav.getByRole('link', { name: 'Alarms', exact: true }).isVisible());
     const token = await stack.login(ACCOUNTS.operator);
     const engines = (await stack.api<{ name: string }[]>('GET', '/api/engines', token)).body;
     assert.ok(engines.length >= 8, `demo fleet has ${engines.length} engines`);

@@ -1,6 +1,6 @@
 import { DestroyRef, Injectable, effect, inject, signal, untracked } from '@angular/core';
 import { Observable, Subject, filter, share } from 'rxjs';
-import { Socket, io } from 'socket.io-client';
+import type { Socket } from 'socket.io-client';
 import { AuthService } from './auth.service';
 import { LiveAlarmMessage, LiveConnection, LiveReadings, WatchRequest } from './live-reading';
 
@@ -15,6 +15,8 @@ const RETRY_AFTER_REFUSAL_MS = 15000;
 export class LiveService {
   private readonly auth = inject(AuthService);
   private socket: Socket | null = null;
+  /** Bumped by every open and close, so a socket library that arrives late is not used for a closed session. */
+  private openGeneration = 0;
   private retryTimer: ReturnType<typeof setTimeout> | null = null;
   private readonly watches = new Map<number, WatchRequest>();
   private nextWatchId = 1;
@@ -59,7 +61,21 @@ export class LiveService {
   private open(token: string): void {
     this.close();
     this.connectionSignal.set('connecting');
-    const socket = io({ auth: { token }, reconnection: true, reconnectionDelayMax: 10000 });
+    const generation = ++this.openGeneration;
+    // socket.io is loaded only once someone is signed in: the sign-in page does not need it.
+    import('socket.io-client').then(
+      ({ io }) => {
+        if (generation !== this.openGeneration) return; // signed out or signed in again meanwhile
+        this.connect(io({ auth: { token }, reconnection: true, reconnectionDelayMax: 10000 }));
+      },
+      () => {
+        // The app was updated on the server or the network dropped: a reload fetches it again.
+        if (generation === this.openGeneration) this.connectionSignal.set('offline');
+      },
+    );
+  }
+
+  private connect(socket: Socket): void {
     this.socket = socket;
     socket.on('connect', () => {
       this.connectionSignal.set('connected');
@@ -87,6 +103,7 @@ export class LiveService {
   }
 
   private close(): void {
+    this.openGeneration++;
     if (this.retryTimer) clearTimeout(this.retryTimer);
     this.retryTimer = null;
     this.socket?.removeAllListeners();
