@@ -1,0 +1,57 @@
+/**
+ * `npm test`: every part in turn (jest, component tests, end-to-end), each in its own process group,
+ * with its duration printed at the end; exits non-zero when any part failed. A part that fails does not
+ * stop the others, so one run shows every failure.
+ */
+import { spawn } from 'node:child_process';
+
+interface Part {
+  name: string;
+  script: string;
+}
+
+const PARTS: Part[] = [
+  { name: 'unit and server (jest)', script: 'test:unit' },
+  { name: 'components (ng test)', script: 'test:components' },
+  { name: 'end-to-end (Chromium)', script: 'test:e2e' },
+];
+
+function run(script: string): Promise<number> {
+  return new Promise((resolve) => {
+    const child = spawn('npm', ['run', '--silent', script], { stdio: 'inherit', detached: true });
+    const stop = () => {
+      if (child.pid) {
+        try {
+          process.kill(-child.pid, 'SIGTERM');
+        } catch {
+          /* already gone */
+        }
+      }
+    };
+    process.once('SIGINT', stop);
+    process.once('SIGTERM', stop);
+    child.on('exit', (code, signal) => {
+      process.off('SIGINT', stop);
+      process.off('SIGTERM', stop);
+      resolve(code ?? (signal ? 1 : 0));
+    });
+  });
+}
+
+async function main(): Promise<void> {
+  const only = process.argv.slice(2);
+  const results: { name: string; code: number; seconds: number }[] = [];
+  for (const part of PARTS) {
+    if (only.length && !only.includes(part.script)) continue;
+    const started = Date.now();
+    const code = await run(part.script);
+    results.push({ name: part.name, code, seconds: (Date.now() - started) / 1000 });
+  }
+  console.log('\nTest parts:');
+  for (const r of results) console.log(`  ${r.code === 0 ? 'passed' : 'FAILED'}  ${r.seconds.toFixed(0).padStart(5)} s  ${r.name}`);
+  const total = results.reduce((s, r) => s + r.seconds, 0);
+  console.log(`  total ${total.toFixed(0)} s`);
+  process.exitCode = results.some((r) => r.code !== 0) ? 1 : 0;
+}
+
+void main();
