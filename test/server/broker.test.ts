@@ -203,7 +203,7 @@ test('a CONNECT declaring a 200 MB packet is closed at once, before authenticati
   const adminId = await db.run(`INSERT INTO users (email, name, password_hash, role, disabled, created_at, updated_at) VALUES (?, ?, ?, 'admin', 0, ?, ?)`,
     ['broker-admin@example.test', 'Broker admin', bcrypt.hashSync('unused-secret-1', 4), now, now]);
   const token = createTokenService(loadJwtSecret(server.dataDir)).sign({ id: adminId, email: 'broker-admin@example.test', role: 'admin' });
-  const counters = async () => (await (await fetch(`${server.url}/api/admin/ingest`, { headers: { authorization: `Bearer ${token}` } })).json()).counters;
+  const counters = async (): Promise<any> => ((await (await fetch(`${server.url}/api/admin/ingest`, { headers: { authorization: `Bearer ${token}` } })).json()) as any).counters;
   const before = (await counters()).oversizePacketsClosed;
   // fixed header of a CONNECT (type 1) with remaining length 200 MiB (4-byte variable length), then the
   // start of a body; a broker that buffers would wait here for the rest
