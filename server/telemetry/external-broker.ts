@@ -15,6 +15,7 @@ import type { Logger } from '../logger';
 
 export interface ExternalSubscriberOptions {
   url: string;
+  clientId: string;
   log: Logger;
   ingest(deviceId: number | null, engineId: number, payload: Buffer, done: () => void, readMore?: () => void): void;
 }
@@ -25,7 +26,7 @@ const ACK_LATER = Object.assign(new Error('acknowledged after commit'), { code: 
 type PubackSender = { _sendPacket?(packet: { cmd: 'puback'; messageId: number }, cb?: () => void): void };
 
 export async function startExternalSubscriber(opts: ExternalSubscriberOptions): Promise<{ close(): Promise<void> }> {
-  const client = mqtt.connect(opts.url, { clientId: `jacketwatch-server-${process.pid}`, clean: false, reconnectPeriod: 2000 });
+  const client = mqtt.connect(opts.url, { clientId: opts.clientId, clean: false, reconnectPeriod: 2000 });
   // mqtt.js sends the PUBACK when handleMessage calls back
   const sender = client as unknown as PubackSender;
   client.handleMessage = (packet, callback) => {

@@ -137,7 +137,7 @@ export async function startTelemetry(deps: TelemetryDeps, options: TelemetryOpti
   let mqtt: Closable;
   let mqttPort: number | null = null;
   if (config.mqttUrl) {
-    mqtt = await startExternalSubscriber({ url: config.mqttUrl, log, ingest });
+    mqtt = await startExternalSubscriber({ url: config.mqttUrl, clientId: config.mqttClientId, log, ingest });
   } else {
     // required lazily so jest (which cannot load aedes) can still import this module's types
     // eslint-disable-next-line @typescript-eslint/no-require-imports
