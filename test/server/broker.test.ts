@@ -172,6 +172,15 @@ test('a redelivered or repeated reading is stored once, counted once in the roll
   expect(roll).toEqual({ n: 3, s: 216 });
 });
 
+test('QoS 2: the PUBREC waits for the commit too (the handshake completes with the readings in the file)', async () => {
+  const d = fleet[2];
+  const c = await connect(d);
+  const before = await countReadings(d.engineId);
+  const ts = Date.now() - 20_000;
+  await c.publishAsync(telemetryTopic(d.engineId), JSON.stringify({ ts, values: { coolant_temp: 71, coolant_pressure: 90 } }), { qos: 2 });
+  expect(await countReadings(d.engineId)).toBe(before + 2);
+});
+
 test('payload limits agree: the largest batch the contract allows is accepted; one byte over the byte limit is refused as too_large', async () => {
   const d = fleet[3];
   const c = await connect(d);
