@@ -46,7 +46,19 @@ export interface ServerProcessOptions {
   group?: boolean;
 }
 
-const groupGone = (pgid: number) => { try { process.kill(-pgid, 0); return false; } catch { return true; } };
+/** No live process left in the group (a zombie waiting for a reaper counts as gone: it runs nothing). */
+const groupGone = (pgid: number): boolean => {
+  try { process.kill(-pgid, 0); } catch { return true; }
+  if (!fs.existsSync('/proc/self/stat')) return false;
+  for (const pid of fs.readdirSync('/proc').filter((d) => /^\d+$/.test(d))) {
+    try {
+      const stat = fs.readFileSync(`/proc/${pid}/stat`, 'utf8');
+      const fields = stat.slice(stat.lastIndexOf(')') + 2).split(' '); // state, ppid, pgrp, ...
+      if (Number(fields[2]) === pgid && fields[0] !== 'Z') return false;
+    } catch { /* ended meanwhile */ }
+  }
+  return true;
+};
 
 export async function startServerProcess(opts: ServerProcessOptions = {}): Promise<ServerProcess> {
   const dataDir = opts.dataDir ?? fs.mkdtempSync(path.join(os.tmpdir(), 'jw-telemetry-'));
