@@ -2,8 +2,9 @@
  * The embedded MQTT broker: aedes on a TCP port, device authentication and the topic rules.
  *
  * How aedes treats our callbacks (aedes 1.2, lib/handlers/publish.js and lib/client.js):
- * - authorizePublish runs before anything else for every PUBLISH (QoS 0 and 1). At QoS 1 the PUBACK
- *   is written only after its callback returns without error, so "acked" means "in our buffer".
+ * - authorizePublish runs before anything else for every PUBLISH (QoS 0, 1, 2). At QoS 1 the PUBACK
+ *   (QoS 2: the PUBREC) is written only after its callback returns without error; the server calls it
+ *   once the readings are committed, so "acked" means "stored".
  * - aedes reads the next chunk from a socket only when every packet of the previous chunk has
  *   finished; holding the callback therefore stops reading that socket and TCP pushes back on the
  *   device. That is our backpressure.
@@ -15,8 +16,19 @@
  */
 import net from 'node:net';
 import crypto from 'node:crypto';
+import { MAX_PAYLOAD_BYTES } from '../shared/telemetry-payload';
 import { engineTopicPrefix, parseEngineTopic } from '../shared/topics';
 import type { Logger } from '../server/logger';
+import { limitPacketSize, type PacketLimits } from './packet-limit';
+
+/**
+ * Largest packets the broker takes (declared length after the fixed header). A PUBLISH: the payload
+ * limit plus 8 KiB for the topic and MQTT 5 properties, so every payload up to the limit still arrives
+ * and is answered (a too-large payload just under this is refused as too_large, the connection kept).
+ * A CONNECT carries only ids, a will and credentials: 16 KiB is plenty and caps what an unauthenticated
+ * socket can make us hold.
+ */
+export const PACKET_LIMITS: PacketLimits = { connectBytes: 16 * 1024, packetBytes: MAX_PAYLOAD_BYTES + 8 * 1024 };
 
 export interface DeviceIdentity {
   deviceId: number;
@@ -31,6 +43,8 @@ export interface BrokerOptions {
   /** A telemetry payload on the device's own engine topic; call `done` when there is room for more. */
   onTelemetry(device: DeviceIdentity, engineId: number, payload: Buffer, done: (err?: Error) => void): void;
   onReject(device: DeviceIdentity | null, reason: string, detail: string): void;
+  /** A connection closed because a packet declared more than PACKET_LIMITS. */
+  onOversizePacket?(declaredBytes: number, beforeConnect: boolean): void;
   log: Logger;
   /** How long a good username/password stays trusted without a new bcrypt compare (ms). */
   authCacheMs?: number;
@@ -135,6 +149,10 @@ export async function createBroker(opts: BrokerOptions): Promise<Broker> {
 
   const server = net.createServer((socket) => {
     socket.on('error', () => undefined);
+    limitPacketSize(socket, PACKET_LIMITS, (declared, beforeConnect) => {
+      log.debug(`broker: closed ${socket.remoteAddress}: packet of ${declared} bytes declared${beforeConnect ? ' before CONNECT' : ''}`);
+      opts.onOversizePacket?.(declared, beforeConnect);
+    });
     aedes.handle(socket);
   });
   const host = opts.host ?? '127.0.0.1';

@@ -9,6 +9,8 @@ export interface Config {
   databaseUrl: string;
   /** When set, subscribe to this external broker instead of starting the embedded one. */
   mqttUrl: string | null;
+  /** Client id at the external broker: fixed, so its persistent session (unacked messages) survives a restart. */
+  mqttClientId: string;
   /** When set, send mail to this relay instead of the local mail catcher. */
   smtpHost: string | null;
   smtpUser: string | null;
@@ -44,6 +46,7 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
     dataDir,
     databaseUrl: env.DATABASE_URL || `sqlite:${path.join(dataDir, 'jacketwatch.sqlite')}`,
     mqttUrl: textFrom(env, 'MQTT_URL'),
+    mqttClientId: textFrom(env, 'MQTT_CLIENT_ID') ?? 'jacketwatch-server',
     smtpHost: textFrom(env, 'SMTP_HOST'),
     smtpUser: textFrom(env, 'SMTP_USER'),
     smtpPass: textFrom(env, 'SMTP_PASS'),

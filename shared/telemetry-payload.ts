@@ -8,7 +8,12 @@ import { z } from 'zod';
 import { CHANNELS, isChannelKey, QUALITY_BAD, QUALITY_GOOD, type ChannelKey, type Quantity } from './channels';
 import { toCelsius, toKpa, toMicroSiemens, type ConductivityUnit, type PressureUnit, type TemperatureUnit } from './units';
 
-export const MAX_PAYLOAD_BYTES = 16 * 1024;
+/**
+ * Byte limit of one payload. Chosen so that any batch within MAX_SAMPLES fits: 500 samples with all five
+ * channels in the longer { value, unit } form, full-precision numbers and ISO timestamps with an offset
+ * come to about 190 kB of compact JSON.
+ */
+export const MAX_PAYLOAD_BYTES = 256 * 1024;
 export const MAX_SAMPLES = 500;
 export const MAX_FUTURE_MS = 5 * 60 * 1000;
 export const MAX_AGE_MS = 31 * 24 * 60 * 60 * 1000;

@@ -6,6 +6,10 @@ export class Counters {
   messages = 0;
   received = 0;
   stored = 0;
+  /** Readings already in the store (a QoS 1 redelivery, a repeated sample): skipped, not stored twice. */
+  duplicate = 0;
+  /** Connections closed because a packet declared more than the broker's packet limit. */
+  oversizePacketsClosed = 0;
   outOfRange = 0;
   batches = 0;
   rejected: Record<string, number> = {};
@@ -47,10 +51,11 @@ export class Counters {
     this.rejected[reason] = (this.rejected[reason] ?? 0) + n;
   }
 
-  /** One flush written: its rows and how long the write took. */
-  batch(rows: number, ms: number): void {
+  /** One flush committed: rows inserted, rows skipped as already stored, and how long the write took. */
+  batch(rows: number, duplicates: number, ms: number): void {
     this.batches++;
     this.stored += rows;
+    this.duplicate += duplicates;
     this.last = ms;
     this.window.push(ms);
     if (this.window.length > this.windowSize) this.window.shift();
@@ -63,6 +68,8 @@ export class Counters {
       messages: this.messages,
       received: this.received,
       stored: this.stored,
+      duplicate: this.duplicate,
+      oversizePacketsClosed: this.oversizePacketsClosed,
       rejected: { ...this.rejected },
       outOfRange: this.outOfRange,
       buffered,

@@ -1,7 +1,13 @@
 /**
  * MQTT_URL set: no embedded broker; the server subscribes to every engine's telemetry on the external
- * broker (which authenticates devices itself) and feeds the same ingest. The ack of each QoS 1 message
- * is held until the buffer has room, so backpressure reaches the external broker too.
+ * broker (which authenticates devices itself) and feeds the same ingest.
+ *
+ * mqtt.js (5.x, lib/handlers/publish) handles incoming packets one at a time: the next packet is taken
+ * only when handleMessage calls back, and a callback without error sends the PUBACK. Holding that callback
+ * until the commit would allow one message per flush. So the two are split: once the buffer has room the
+ * callback is called with a marker error, which makes mqtt.js go on to the next packet WITHOUT a PUBACK;
+ * after the commit the PUBACK is sent here. A message never acked (server killed) is redelivered by the
+ * broker (persistent session: clean false, fixed client id). Backpressure: no room, no next message.
  */
 import mqtt from 'mqtt';
 import { parseEngineTopic, TOPIC_ROOT } from '../../shared/topics';
@@ -9,20 +15,36 @@ import type { Logger } from '../logger';
 
 export interface ExternalSubscriberOptions {
   url: string;
+  clientId: string;
   log: Logger;
-  ingest(deviceId: number | null, engineId: number, payload: Buffer, done: () => void): void;
+  ingest(deviceId: number | null, engineId: number, payload: Buffer, done: () => void, readMore?: () => void): void;
 }
 
+/** Passed to mqtt.js's handleMessage callback: "go on, but do not acknowledge" (we do after the commit). */
+const ACK_LATER = Object.assign(new Error('acknowledged after commit'), { code: 'JW_ACK_LATER' });
+
+type PubackSender = { _sendPacket?(packet: { cmd: 'puback'; messageId: number }, cb?: () => void): void };
+
 export async function startExternalSubscriber(opts: ExternalSubscriberOptions): Promise<{ close(): Promise<void> }> {
-  const client = mqtt.connect(opts.url, { clientId: `jacketwatch-server-${process.pid}`, clean: false, reconnectPeriod: 2000 });
+  const client = mqtt.connect(opts.url, { clientId: opts.clientId, clean: false, reconnectPeriod: 2000 });
   // mqtt.js sends the PUBACK when handleMessage calls back
+  const sender = client as unknown as PubackSender;
   client.handleMessage = (packet, callback) => {
     try {
       if (packet.cmd !== 'publish') return callback();
       const parsed = parseEngineTopic(packet.topic);
       if (!parsed || parsed.kind !== 'telemetry') return callback();
       const payload = Buffer.isBuffer(packet.payload) ? packet.payload : Buffer.from(packet.payload);
-      opts.ingest(null, parsed.engineId, payload, () => callback());
+      const messageId = packet.messageId;
+      if (packet.qos !== 1 || messageId === undefined || typeof sender._sendPacket !== 'function') {
+        // QoS 0 (nothing to ack), or a client without the hook: the callback is the ack, held until the commit
+        opts.ingest(null, parsed.engineId, payload, () => callback());
+        return;
+      }
+      let next = false;
+      opts.ingest(null, parsed.engineId, payload,
+        () => sender._sendPacket!({ cmd: 'puback', messageId }),
+        () => { if (!next) { next = true; callback(ACK_LATER); } });
     } catch (err) {
       opts.log.error('external broker: message handling failed', err);
       callback();

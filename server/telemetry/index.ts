@@ -46,9 +46,15 @@ export async function startTelemetry(deps: TelemetryDeps, options: TelemetryOpti
     activity.reject(deviceId, reason, detail);
   };
 
-  /** Hot path: parse, count, buffer, notify; `done` (the MQTT ack) once there is room. No await, no DB. */
-  const ingestNow = (deviceId: number | null, engineId: number, payload: Buffer, done: () => void) => {
+  /**
+   * Hot path: parse, count, buffer, notify. No await, no DB. `done` is the MQTT ack: it runs once every
+   * reading of the message is committed (and there is room in the buffer); a message with no accepted
+   * reading is acked at once. `readMore` (external broker only, whose client handles one message at a
+   * time) lets the next message in as soon as there is room, before this one is committed.
+   */
+  const ingestNow = (deviceId: number | null, engineId: number, payload: Buffer, done: () => void, readMore?: () => void) => {
     if (stopping) return; // no ack: a QoS 1 device sends it again after the restart
+    let buffered = false;
     try {
       const now = Date.now();
       counters.messages++;
@@ -67,6 +73,7 @@ export async function startTelemetry(deps: TelemetryDeps, options: TelemetryOpti
           batch[i] = { engineId, channel: a.channel, ts: a.ts, value: a.value, quality: a.quality };
         }
         counters.received += batch.length;
+        buffered = true;
         liveState.applyAll(batch, now);
         for (const l of listeners) {
           try { l(batch); } catch (err) { log.error('telemetry: readings listener failed', err); }
@@ -75,7 +82,13 @@ export async function startTelemetry(deps: TelemetryDeps, options: TelemetryOpti
     } catch (err) {
       log.error('telemetry: ingest failed on a message', err);
     }
-    buffer.whenRoom(done);
+    if (readMore) buffer.whenRoom(readMore);
+    if (buffered) {
+      buffer.afterCommit(() => buffer.whenRoom(done));
+      writer.nudge();
+    } else {
+      buffer.whenRoom(done);
+    }
   };
 
   /**
@@ -86,7 +99,7 @@ export async function startTelemetry(deps: TelemetryDeps, options: TelemetryOpti
    * the queue holds at most what aedes has already read, and TCP pushes back on the devices.
    */
   const TURN_BUDGET_MS = 15;
-  type Job = [number | null, number, Buffer, () => void];
+  type Job = [number | null, number, Buffer, () => void, (() => void) | undefined];
   let queue: Job[] = [];
   let head = 0;
   let spent = 0;
@@ -100,18 +113,18 @@ export async function startTelemetry(deps: TelemetryDeps, options: TelemetryOpti
       while (head < queue.length && performance.now() - started < TURN_BUDGET_MS) {
         const job = queue[head];
         queue[head++] = undefined as unknown as Job;
-        ingestNow(job[0], job[1], job[2], job[3]);
+        ingestNow(job[0], job[1], job[2], job[3], job[4]);
       }
       spent = 0; // the next poll phase is a new turn
       if (head >= queue.length) { queue = []; head = 0; } else nextTurn();
     });
   };
-  const ingest = (deviceId: number | null, engineId: number, payload: Buffer, done: () => void) => {
+  const ingest = (deviceId: number | null, engineId: number, payload: Buffer, done: () => void, readMore?: () => void) => {
     if (head < queue.length || spent >= TURN_BUDGET_MS) {
-      queue.push([deviceId, engineId, payload, done]);
+      queue.push([deviceId, engineId, payload, done, readMore]);
     } else {
       const started = performance.now();
-      ingestNow(deviceId, engineId, payload, done);
+      ingestNow(deviceId, engineId, payload, done, readMore);
       spent += performance.now() - started;
     }
     nextTurn();
@@ -124,7 +137,7 @@ export async function startTelemetry(deps: TelemetryDeps, options: TelemetryOpti
   let mqtt: Closable;
   let mqttPort: number | null = null;
   if (config.mqttUrl) {
-    mqtt = await startExternalSubscriber({ url: config.mqttUrl, log, ingest });
+    mqtt = await startExternalSubscriber({ url: config.mqttUrl, clientId: config.mqttClientId, log, ingest });
   } else {
     // required lazily so jest (which cannot load aedes) can still import this module's types
     // eslint-disable-next-line @typescript-eslint/no-require-imports
@@ -141,6 +154,7 @@ export async function startTelemetry(deps: TelemetryDeps, options: TelemetryOpti
       },
       onTelemetry: (device, engineId, payload, done) => ingest(device.deviceId, engineId, payload, done),
       onReject: (device, reason, detail) => reject(device?.deviceId ?? null, reason, detail),
+      onOversizePacket: () => { counters.oversizePacketsClosed++; },
     });
     mqttPort = broker.port;
     mqtt = broker;
@@ -156,8 +170,8 @@ export async function startTelemetry(deps: TelemetryDeps, options: TelemetryOpti
     async stop() {
       if (stopping) return;
       stopping = true;
-      await writer.stop();
-      buffer.releaseAll(); // their rows are written: the held acks may go out
+      await writer.stop(); // the final flush commits and acks what it wrote
+      buffer.releaseAll(); // acks held only for room may go out now
       await new Promise((r) => setTimeout(r, 50));
       await mqtt.close().catch((err) => log.warn('telemetry: closing MQTT failed', err));
       await activity.stop();

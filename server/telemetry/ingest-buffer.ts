@@ -2,6 +2,10 @@
  * Bounded ingest buffer. Accepted readings are never dropped: when more than `highWater` wait for the
  * writer, callers are told to wait (their MQTT publish callbacks are held back), which stops aedes
  * reading those sockets and so pushes back on the devices over TCP. Memory stays flat under a flood.
+ *
+ * Acknowledge after commit: every message registers its ack after pushing its rows (`afterCommit`).
+ * Rows leave in FIFO order, so an ack is due once the writer has committed as many rows as had been
+ * pushed when it was registered: one flush (one transaction) releases every ack it covers (group commit).
  */
 export interface BufferedReading {
   engineId: number;
@@ -15,6 +19,11 @@ export class IngestBuffer {
   private rows: BufferedReading[] = [];
   private head = 0;
   private waiters: Array<() => void> = [];
+  /** Rows ever pushed / ever committed: the positions acks wait for. */
+  private pushed = 0;
+  private committed = 0;
+  private acks: Array<{ at: number; ack: () => void }> = [];
+  private ackHead = 0;
 
   constructor(readonly highWater = 20_000) {}
 
@@ -26,8 +35,34 @@ export class IngestBuffer {
     return this.waiters.length;
   }
 
+  /** Acks waiting for a commit. */
+  get pendingAcks(): number {
+    return this.acks.length - this.ackHead;
+  }
+
   push(row: BufferedReading): void {
     this.rows.push(row);
+    this.pushed++;
+  }
+
+  /** Runs `ack` once every row pushed so far is committed (at once when there is none in flight). */
+  afterCommit(ack: () => void): void {
+    if (this.committed >= this.pushed) ack();
+    else this.acks.push({ at: this.pushed, ack });
+  }
+
+  /** The writer committed the `n` oldest taken rows: releases the acks they complete. */
+  committedRows(n: number): void {
+    this.committed += n;
+    while (this.ackHead < this.acks.length && this.acks[this.ackHead].at <= this.committed) {
+      const { ack } = this.acks[this.ackHead];
+      this.acks[this.ackHead++] = undefined as unknown as { at: number; ack: () => void };
+      try { ack(); } catch { /* a caller's failure must not stop the others */ }
+    }
+    if (this.ackHead > 10_000 || this.ackHead === this.acks.length) {
+      this.acks = this.acks.slice(this.ackHead);
+      this.ackHead = 0;
+    }
   }
 
   /** Runs `ready` now when there is room, else once the writer has drained below the high-water mark. */

@@ -2,7 +2,7 @@ import { QueryTypes, type Sequelize } from 'sequelize';
 import type { Logger } from '../logger';
 import type { Counters } from './counters';
 import type { BufferedReading, IngestBuffer } from './ingest-buffer';
-import { dialectOf, insertReadingsSql, upsertRollupsSql } from './sql';
+import { dialectOf, insertReadingsSql, upsertRollupsSql, type InsertedReadingRow } from './sql';
 
 export interface WriterOptions {
   /** Flush period (ms); a backlog is flushed again at once. */
@@ -11,6 +11,8 @@ export interface WriterOptions {
   maxRowsPerFlush?: number;
   /** Rows per multi-row INSERT statement. */
   rowsPerStatement?: number;
+  /** How long a flush waits for more messages once an ack is held (ms): small, acks wait for the commit. */
+  ackDelayMs?: number;
 }
 
 interface RollupRow {
@@ -48,12 +50,13 @@ export function aggregateRollups(rows: BufferedReading[]): RollupRow[] {
 /** The slice of node-sqlite3's Database the writer uses. */
 interface SqliteHandle {
   run(sql: string, params: unknown[], cb: (err: Error | null) => void): unknown;
+  all(sql: string, params: unknown[], cb: (err: Error | null, rows: InsertedReadingRow[]) => void): unknown;
   exec(sql: string, cb: (err: Error | null) => void): unknown;
   prepare(sql: string, cb: (err: Error | null) => void): SqliteStatement;
 }
 
 interface SqliteStatement {
-  run(params: unknown[], cb: (err: Error | null) => void): unknown;
+  all(params: unknown[], cb: (err: Error | null, rows: InsertedReadingRow[]) => void): unknown;
   finalize(cb: () => void): unknown;
 }
 
@@ -63,6 +66,9 @@ export const WRITER_CONNECTION = 'jw-telemetry-writer';
 /**
  * Writes the buffer to `readings` and `rollups`: every flush is ONE transaction of multi-row INSERTs
  * (one call into the driver per few hundred rows, never one per row) plus the rollup upsert.
+ * Readings already stored (same engine, channel, ts) are skipped by the insert and counted as duplicates;
+ * the rollups add only the rows actually inserted. After COMMIT the buffer releases the MQTT acks of
+ * every message whose rows are now all stored.
  *
  * SQLite: the writer keeps its own connection from Sequelize's connection manager (same file, same
  * pragmas) and talks to the node-sqlite3 handle directly. A Sequelize transaction would open and close
@@ -77,6 +83,8 @@ export class ReadingWriter {
   private readonly intervalMs: number;
   private readonly maxRows: number;
   private readonly perStatement: number;
+  private readonly ackDelayMs: number;
+  private timerDue = 0;
   private readonly dialect;
   private handle: Promise<SqliteHandle> | null = null;
   /** The full-size INSERT, prepared once: compiling a 500-row statement each time costs as much as running it. */
@@ -92,6 +100,7 @@ export class ReadingWriter {
     this.intervalMs = opts.intervalMs ?? 100;
     this.maxRows = opts.maxRowsPerFlush ?? 10_000;
     this.perStatement = opts.rowsPerStatement ?? 500;
+    this.ackDelayMs = opts.ackDelayMs ?? 2;
     this.dialect = dialectOf(sequelize.getDialect());
   }
 
@@ -101,10 +110,26 @@ export class ReadingWriter {
 
   private schedule(ms: number): void {
     if (this.stopped || this.timer) return;
+    this.timerDue = Date.now() + ms;
     this.timer = setTimeout(() => {
       this.timer = null;
-      void this.flushOnce().then(() => this.schedule(this.buffer.size >= this.maxRows ? 0 : this.intervalMs));
+      void this.flushOnce().then(() => this.schedule(this.nextDelay()));
     }, ms);
+  }
+
+  /** A backlog goes at once; held acks after a short gather; otherwise the regular period. */
+  private nextDelay(): number {
+    if (this.buffer.size >= this.maxRows) return 0;
+    return this.buffer.size > 0 && this.buffer.pendingAcks > 0 ? this.ackDelayMs : this.intervalMs;
+  }
+
+  /** A message now waits for its ack: flush soon instead of at the end of the period (group commit). */
+  nudge(): void {
+    if (this.stopped || this.running || !this.timer) return; // a running flush reschedules by itself
+    if (this.timerDue <= Date.now() + this.ackDelayMs) return;
+    clearTimeout(this.timer);
+    this.timer = null;
+    this.schedule(this.ackDelayMs);
   }
 
   /** One flush (waits for a running one first, so flushes never overlap). */
@@ -122,9 +147,9 @@ export class ReadingWriter {
     }
     const started = performance.now();
     try {
-      if (this.dialect === 'sqlite') await this.writeSqlite(rows);
-      else await this.writeSequelize(rows);
-      this.counters.batch(rows.length, performance.now() - started);
+      const inserted = this.dialect === 'sqlite' ? await this.writeSqlite(rows) : await this.writeSequelize(rows);
+      this.counters.batch(inserted, rows.length - inserted, performance.now() - started);
+      this.buffer.committedRows(rows.length);
     } catch (err) {
       // Keep the rows: put them back in front and try again next tick. Accepted data is never dropped.
       this.log.error('telemetry: batch write failed, will retry', err);
@@ -145,17 +170,22 @@ export class ReadingWriter {
     return this.handle;
   }
 
-  private async writeSqlite(rows: BufferedReading[]): Promise<void> {
+  /** One transaction; returns how many rows were inserted (the rest were already stored). */
+  private async writeSqlite(rows: BufferedReading[]): Promise<number> {
     const db = await this.sqliteHandle();
     await exec(db, 'BEGIN IMMEDIATE');
     try {
+      const stored = new NewRows(rows);
       for (let i = 0; i < rows.length; i += this.perStatement) {
         const n = Math.min(this.perStatement, rows.length - i);
-        if (n === this.perStatement) await runPrepared(await this.fullInsertStatement(db), readingBinds(rows, i, n));
-        else await run(db, insertReadingsSql(n), readingBinds(rows, i, n));
+        const back = n === this.perStatement
+          ? await allPrepared(await this.fullInsertStatement(db), readingBinds(rows, i, n))
+          : await all(db, insertReadingsSql(n), readingBinds(rows, i, n));
+        stored.add(i, n, back);
       }
-      for (const [sql, bind] of this.rollupStatements(rows)) await run(db, sql, bind);
+      for (const [sql, bind] of this.rollupStatements(stored.rows())) await run(db, sql, bind);
       await exec(db, 'COMMIT');
+      return stored.count;
     } catch (err) {
       await exec(db, 'ROLLBACK').catch(() => undefined);
       throw err;
@@ -169,16 +199,19 @@ export class ReadingWriter {
     return this.fullInsert;
   }
 
-  private async writeSequelize(rows: BufferedReading[]): Promise<void> {
+  private async writeSequelize(rows: BufferedReading[]): Promise<number> {
     const sequelize = this.sequelize;
     const t = await sequelize.transaction();
     try {
+      const stored = new NewRows(rows);
       for (let i = 0; i < rows.length; i += this.perStatement) {
         const n = Math.min(this.perStatement, rows.length - i);
-        await sequelize.query(insertReadingsSql(n), { bind: readingBinds(rows, i, n), transaction: t, type: QueryTypes.INSERT, logging: false });
+        const back = await sequelize.query<InsertedReadingRow>(insertReadingsSql(n), { bind: readingBinds(rows, i, n), transaction: t, type: QueryTypes.SELECT, logging: false });
+        stored.add(i, n, back);
       }
-      for (const [sql, bind] of this.rollupStatements(rows)) await sequelize.query(sql, { bind, transaction: t, type: QueryTypes.INSERT, logging: false });
+      for (const [sql, bind] of this.rollupStatements(stored.rows())) await sequelize.query(sql, { bind, transaction: t, type: QueryTypes.INSERT, logging: false });
       await t.commit();
+      return stored.count;
     } catch (err) {
       await t.rollback().catch(() => undefined);
       throw err;
@@ -222,6 +255,34 @@ export class ReadingWriter {
   }
 }
 
+/**
+ * The rows a flush actually inserted, for the rollups. A statement that inserted all of its rows (the
+ * usual case) keeps the buffered objects; only one that skipped duplicates maps what RETURNING gave back.
+ */
+class NewRows {
+  count = 0;
+  private all = true;
+  private readonly kept: BufferedReading[] = [];
+  constructor(private readonly batch: BufferedReading[]) {}
+
+  add(from: number, n: number, back: InsertedReadingRow[]): void {
+    this.count += back.length;
+    if (back.length === n) {
+      if (!this.all) for (let i = from; i < from + n; i++) this.kept.push(this.batch[i]);
+      return;
+    }
+    if (this.all) for (let i = 0; i < from; i++) this.kept.push(this.batch[i]);
+    this.all = false;
+    for (const r of back) {
+      this.kept.push({ engineId: Number(r.engine_id), channel: Number(r.channel), ts: Number(r.ts), value: Number(r.value), quality: Number(r.quality) === 0 ? 0 : 1 });
+    }
+  }
+
+  rows(): BufferedReading[] {
+    return this.all ? this.batch : this.kept;
+  }
+}
+
 function readingBinds(rows: BufferedReading[], from: number, n: number): number[] {
   const bind: number[] = new Array(n * 5);
   let k = 0;
@@ -234,7 +295,9 @@ function readingBinds(rows: BufferedReading[], from: number, n: number): number[
 
 const run = (db: SqliteHandle, sql: string, params: unknown[]) =>
   new Promise<void>((resolve, reject) => { db.run(sql, params, (err) => (err ? reject(err) : resolve())); });
-const runPrepared = (stmt: SqliteStatement, params: unknown[]) =>
-  new Promise<void>((resolve, reject) => { stmt.run(params, (err) => (err ? reject(err) : resolve())); });
+const all = (db: SqliteHandle, sql: string, params: unknown[]) =>
+  new Promise<InsertedReadingRow[]>((resolve, reject) => { db.all(sql, params, (err, rows) => (err ? reject(err) : resolve(rows))); });
+const allPrepared = (stmt: SqliteStatement, params: unknown[]) =>
+  new Promise<InsertedReadingRow[]>((resolve, reject) => { stmt.all(params, (err, rows) => (err ? reject(err) : resolve(rows))); });
 const exec = (db: SqliteHandle, sql: string) =>
   new Promise<void>((resolve, reject) => { db.exec(sql, (err) => (err ? reject(err) : resolve())); });

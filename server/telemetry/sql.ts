@@ -26,14 +26,24 @@ function placeholders(rows: number, cols: number): string {
 
 // The statement text depends only on the row count, so it is built once per count.
 const insertCache = new Map<number, string>();
+/**
+ * Multi-row insert that skips readings already stored (unique key engine_id, channel, ts: a QoS 1
+ * redelivery or a repeated sample) and returns the rows it did insert, so that only those reach the
+ * rollups. Same text and semantics in SQLite (3.35+) and PostgreSQL (9.5+); in both, a key repeated
+ * inside one statement is inserted once.
+ */
 export function insertReadingsSql(rows: number): string {
   let sql = insertCache.get(rows);
   if (!sql) {
-    sql = `INSERT INTO readings (engine_id, channel, ts, value, quality) VALUES ${placeholders(rows, 5)}`;
+    sql = `INSERT INTO readings (engine_id, channel, ts, value, quality) VALUES ${placeholders(rows, 5)}
+ON CONFLICT (engine_id, channel, ts) DO NOTHING RETURNING engine_id, channel, ts, value, quality`;
     insertCache.set(rows, sql);
   }
   return sql;
 }
+
+/** A row as the insert's RETURNING gives it back (BIGINT ts may come back as a string from PostgreSQL). */
+export interface InsertedReadingRow { engine_id: number | string; channel: number | string; ts: number | string; value: number | string; quality: number | string }
 
 const rollupCache = new Map<string, string>();
 /** Merges pre-aggregated per-minute rows; min/max stay NULL while a minute has only bad readings. */

@@ -31,6 +31,10 @@ export interface LiveState {
 export interface IngestCounters {
   received: number;
   stored: number;
+  /** Accepted readings not stored again because the same (engine, channel, ts) was already stored. */
+  duplicate: number;
+  /** MQTT connections closed for declaring a packet larger than the broker accepts. */
+  oversizePacketsClosed: number;
   rejected: Record<string, number>;
   outOfRange: number;
   buffered: number;

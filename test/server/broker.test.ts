@@ -6,6 +6,9 @@ import mqtt, { type MqttClient } from 'mqtt';
 import { io as ioClient, type Socket } from 'socket.io-client';
 import { loadJwtSecret } from '../../server/auth/jwt-secret';
 import { createTokenService } from '../../server/auth/tokens';
+import net from 'node:net';
+import bcrypt from 'bcryptjs';
+import { MAX_PAYLOAD_BYTES, MAX_SAMPLES } from '../../shared/telemetry-payload';
 import { telemetryTopic } from '../../shared/topics';
 import { Db, seedFleet, startServerProcess, type SeededDevice, type ServerProcess } from './support/telemetry-server';
 
@@ -90,7 +93,7 @@ test('every bad payload kind is rejected and counted; the good readings around t
   const good = (i: number) => JSON.stringify({ ts: now - 60_000 + i * 1000, values: { coolant_temp: 70 + i } });
   const bad = [
     '{not json',
-    JSON.stringify({ ts: now, values: { coolant_temp: 1 }, pad: 'x'.repeat(17 * 1024) }), // too_large
+    JSON.stringify({ ts: now, values: { coolant_temp: 1 }, pad: 'x'.repeat(MAX_PAYLOAD_BYTES) }), // too_large
     JSON.stringify({ when: now }), // schema
     `{"ts": ${now}, "values": {"coolant_temp": 1e999}}`, // not_finite
     JSON.stringify({ ts: now + 3_600_000, values: { coolant_temp: 80 } }), // future_timestamp
@@ -151,10 +154,91 @@ test('socket.io: a bad token is refused at the handshake; a good token receives 
   sock.close();
 });
 
+test('a redelivered or repeated reading is stored once, counted once in the rollup, and counted as duplicate', async () => {
+  const d = fleet[1];
+  const c = await connect(d);
+  const ts = Date.now() - 30_000;
+  const before = (await server.health()).ingest.duplicate;
+  const payload = JSON.stringify({ samples: [{ ts, values: { coolant_temp: 70, engine_speed: 1500 } }, { ts: ts + 1, values: { coolant_temp: 72 } }] });
+  await c.publishAsync(telemetryTopic(d.engineId), payload, { qos: 1 });
+  // the PUBACK means stored: the rows are in the file once publishAsync resolves
+  expect(await countReadings(d.engineId)).toBe(3);
+  await c.publishAsync(telemetryTopic(d.engineId), payload, { qos: 1 }); // as a QoS 1 redelivery would
+  // one message repeating a reading of its own, next to a new one
+  await c.publishAsync(telemetryTopic(d.engineId), JSON.stringify({ samples: [{ ts: ts + 2, values: { coolant_temp: 74 } }, { ts: ts + 2, values: { coolant_temp: 74 } }] }), { qos: 1 });
+  expect(await countReadings(d.engineId)).toBe(4);
+  expect((await server.health()).ingest.duplicate - before).toBe(4);
+  const roll = await db.get('SELECT SUM("count") AS n, SUM("sum") AS s FROM rollups WHERE engine_id = ? AND channel = 1', [d.engineId]);
+  expect(roll).toEqual({ n: 3, s: 216 });
+});
+
+test('QoS 2: the PUBREC waits for the commit too (the handshake completes with the readings in the file)', async () => {
+  const d = fleet[2];
+  const c = await connect(d);
+  const before = await countReadings(d.engineId);
+  const ts = Date.now() - 20_000;
+  await c.publishAsync(telemetryTopic(d.engineId), JSON.stringify({ ts, values: { coolant_temp: 71, coolant_pressure: 90 } }), { qos: 2 });
+  expect(await countReadings(d.engineId)).toBe(before + 2);
+});
+
+test('payload limits agree: the largest batch the contract allows is accepted; one byte over the byte limit is refused as too_large', async () => {
+  const d = fleet[3];
+  const c = await connect(d);
+  const base = Date.now() - 3_600_000;
+  // MAX_SAMPLES samples, all five channels in the { value, unit } form, 17-digit numbers, ISO timestamps with an offset
+  const v = (x: number, unit: string) => ({ value: x + 0.1234567890123, unit });
+  const samples = Array.from({ length: MAX_SAMPLES }, (_, i) => ({
+    ts: new Date(base + i * 1000).toISOString().replace('Z', '000000+00:00'),
+    values: { coolant_temp: v(80, 'degC'), coolant_pressure: v(95, 'kPa'), coolant_conductivity: v(2400, 'uS/cm'), engine_speed: v(1800, 'rpm'), ambient_temp: v(20, 'degC') },
+  }));
+  const largest = JSON.stringify({ samples });
+  expect(Buffer.byteLength(largest)).toBeLessThanOrEqual(MAX_PAYLOAD_BYTES);
+  await c.publishAsync(telemetryTopic(d.engineId), largest, { qos: 1 });
+  expect(await countReadings(d.engineId)).toBe(MAX_SAMPLES * 5);
+  // exactly at the byte limit: accepted; one byte more: too_large, and the connection stays
+  const one = (pad: number) => JSON.stringify({ ts: base - 1000, values: { coolant_temp: 81 }, pad: 'x'.repeat(pad) });
+  const atLimit = one(MAX_PAYLOAD_BYTES - Buffer.byteLength(one(0)));
+  expect(Buffer.byteLength(atLimit)).toBe(MAX_PAYLOAD_BYTES);
+  const before = (await rejections(d.deviceId)).too_large ?? 0;
+  await c.publishAsync(telemetryTopic(d.engineId), atLimit, { qos: 1 });
+  expect(await countReadings(d.engineId)).toBe(MAX_SAMPLES * 5 + 1);
+  await c.publishAsync(telemetryTopic(d.engineId), atLimit.replace('"pad":"', '"pad":"x'), { qos: 1 });
+  await until('too_large persisted', () => rejections(d.deviceId), (r) => r.too_large === before + 1);
+  expect(c.connected).toBe(true);
+});
+
+test('a CONNECT declaring a 200 MB packet is closed at once, before authentication, and counted', async () => {
+  const now = new Date().toISOString();
+  const adminId = await db.run(`INSERT INTO users (email, name, password_hash, role, disabled, created_at, updated_at) VALUES (?, ?, ?, 'admin', 0, ?, ?)`,
+    ['broker-admin@example.test', 'Broker admin', bcrypt.hashSync('unused-secret-1', 4), now, now]);
+  const token = createTokenService(loadJwtSecret(server.dataDir)).sign({ id: adminId, email: 'broker-admin@example.test', role: 'admin' });
+  const counters = async (): Promise<any> => ((await (await fetch(`${server.url}/api/admin/ingest`, { headers: { authorization: `Bearer ${token}` } })).json()) as any).counters;
+  const before = (await counters()).oversizePacketsClosed;
+  // fixed header of a CONNECT (type 1) with remaining length 200 MiB (4-byte variable length), then the
+  // start of a body; a broker that buffers would wait here for the rest
+  const declared = 200 * 1024 * 1024;
+  const len: number[] = [];
+  for (let x = declared; ; ) { let b = x % 128; x = Math.floor(x / 128); if (x > 0) b |= 0x80; len.push(b); if (x === 0) break; }
+  const sockets = await Promise.all([0, 1, 2, 3].map(() => new Promise<net.Socket>((resolve, reject) => {
+    const s = net.connect(server.mqttPort, '127.0.0.1', () => resolve(s));
+    s.once('error', reject);
+  })));
+  const closed = sockets.map((s) => new Promise<void>((resolve) => s.once('close', () => resolve())));
+  for (const s of sockets) {
+    s.on('error', () => undefined); // a reset while writing is the expected end
+    s.write(Buffer.concat([Buffer.from([0x10, ...len]), Buffer.alloc(64 * 1024, 0x41)]));
+  }
+  await Promise.all(closed);
+  await until('4 oversize connections counted', counters, (c) => c.oversizePacketsClosed === before + 4);
+  // the broker still serves good devices
+  const c = await connect(fleet[5]);
+  await c.publishAsync(telemetryTopic(fleet[5].engineId), JSON.stringify({ ts: Date.now() - 1000, values: { coolant_temp: 60 } }), { qos: 1 });
+});
+
 // last: it stops the server
 test('SIGTERM flushes: every reading acknowledged at QoS 1 is in the file after exit', async () => {
   const d = fleet[0];
-  await until('earlier readings written', () => server.health(), (h) => h.ingest.buffered === 0 && h.ingest.stored === h.ingest.received);
+  await until('earlier readings written', () => server.health(), (h) => h.ingest.buffered === 0 && h.ingest.stored + h.ingest.duplicate === h.ingest.received);
   const before = await countReadings(d.engineId);
   const c = await connect(d);
   const base = Date.now() - 120_000;

@@ -67,3 +67,42 @@ describe('migration 0001-core', () => {
     expect(mode).toBe(0o600);
   });
 });
+
+describe('migration 0006-readings-unique', () => {
+  it('removes stored duplicates, recomputes the rollups of their minutes from raw, and makes (engine_id, channel, ts) unique', async () => {
+    const os = await import('node:os');
+    const path = await import('node:path');
+    const { createMigrator } = await import('../../server/db/migrate');
+    const { createSequelize } = await import('../../server/db/sequelize');
+    const { loadConfig } = await import('../../server/config');
+    const { createLogger } = await import('../../server/logger');
+    const dataDir = fs.mkdtempSync(path.join(os.tmpdir(), 'jw-m6-'));
+    const sequelize = createSequelize(loadConfig({ DATA_DIR: dataDir, LOG_LEVEL: 'error' }), createLogger('error'));
+    try {
+      await createMigrator(sequelize).up({ to: '0005-user-sites' });
+      const q = (sql: string) => sequelize.query(sql, { type: QueryTypes.SELECT });
+      const m = 60_000 * 29_000_000; // a whole minute
+      // engine 1 channel 1: minute m has 10 @ m, 20 @ m+1 stored twice, bad 500 @ m+2 stored twice; minute m+60000 untouched
+      await sequelize.query(`INSERT INTO readings (engine_id, channel, ts, value, quality) VALUES
+        (1,1,${m},10,0), (1,1,${m + 1},20,0), (1,1,${m + 1},20,0), (1,1,${m + 2},500,1), (1,1,${m + 2},500,1), (1,1,${m + 60_000},30,0), (2,1,${m},40,0)`);
+      // rollups as the old writer kept them: every stored copy counted
+      await sequelize.query(`INSERT INTO rollups (engine_id, channel, minute, "min", "max", "sum", "count", bad_count) VALUES
+        (1,1,${m},10,20,50,3,2), (1,1,${m + 60_000},30,30,30,1,0), (2,1,${m},40,40,40,1,0)`);
+      await createMigrator(sequelize).up();
+      expect(await q('SELECT COUNT(*) AS n FROM readings')).toEqual([{ n: 5 }]);
+      expect(await q('SELECT engine_id, channel, ts, COUNT(*) AS n FROM readings GROUP BY engine_id, channel, ts HAVING COUNT(*) > 1')).toEqual([]);
+      expect(await q(`SELECT engine_id AS e, minute, "min", "max", "sum", "count", bad_count AS bad FROM rollups ORDER BY engine_id, minute`)).toEqual([
+        { e: 1, minute: m, min: 10, max: 20, sum: 30, count: 2, bad: 1 },
+        { e: 1, minute: m + 60_000, min: 30, max: 30, sum: 30, count: 1, bad: 0 },
+        { e: 2, minute: m, min: 40, max: 40, sum: 40, count: 1, bad: 0 },
+      ]);
+      const idx = await q(`SELECT "unique" AS u FROM pragma_index_list('readings') WHERE name = 'readings_engine_channel_ts'`);
+      expect(idx).toEqual([{ u: 1 }]);
+      await expect(sequelize.query(`INSERT INTO readings (engine_id, channel, ts, value, quality) VALUES (2,1,${m},41,0)`)).rejects.toThrow(/Validation error|UNIQUE/);
+      expect(await q(`SELECT name FROM sqlite_master WHERE name = 'readings_dup_minutes'`)).toEqual([]);
+    } finally {
+      await sequelize.close();
+      fs.rmSync(dataDir, { recursive: true, force: true });
+    }
+  });
+});

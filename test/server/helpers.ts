@@ -29,7 +29,7 @@ export function fixedLiveState(engineId: number, ts: number): LiveState {
 }
 
 const counters: IngestCounters = {
-  received: 12, stored: 10, rejected: { schema: 2 }, outOfRange: 1, buffered: 0, batches: 3,
+  received: 12, stored: 10, duplicate: 0, oversizePacketsClosed: 0, rejected: { schema: 2 }, outOfRange: 1, buffered: 0, batches: 3,
   batchLatencyMs: { last: 1, p50: 1, p95: 2, max: 3 }, startedAt: new Date(0).toISOString(),
 };
 

@@ -1,4 +1,4 @@
-import { MAX_PAYLOAD_BYTES, parseTelemetry } from '../../shared/telemetry-payload';
+import { MAX_PAYLOAD_BYTES, MAX_SAMPLES, parseTelemetry } from '../../shared/telemetry-payload';
 
 const NOW = Date.parse('2026-12-02T01:00:00.000Z');
 const buf = (x: unknown) => Buffer.from(typeof x === 'string' ? x : JSON.stringify(x));
@@ -78,11 +78,32 @@ describe('parseTelemetry: every reject reason', () => {
     expect(reasons(parseTelemetry(1, buf('{"ts": 1, values'), NOW))).toEqual(['not_json']);
     expect(reasons(parseTelemetry(1, Buffer.from([0xff, 0xfe, 0x00]), NOW))).toEqual(['not_json']);
   });
-  test('too_large: more than 16 KiB, checked before parsing', () => {
+  test('too_large: more than MAX_PAYLOAD_BYTES, checked before parsing', () => {
     const big = buf({ ts: NOW, values: { coolant_temp: 80 }, pad: 'x'.repeat(MAX_PAYLOAD_BYTES) });
     const r = parseTelemetry(1, big, NOW);
     expect(reasons(r)).toEqual(['too_large']);
     expect(r.accepted).toEqual([]);
+  });
+  test('byte-limit edge: exactly MAX_PAYLOAD_BYTES is parsed, one byte more is too_large', () => {
+    const one = (pad: number) => JSON.stringify({ ts: NOW, values: { coolant_temp: 80 }, pad: 'x'.repeat(pad) });
+    const at = one(MAX_PAYLOAD_BYTES - one(0).length);
+    expect(Buffer.byteLength(at)).toBe(MAX_PAYLOAD_BYTES);
+    expect(parseTelemetry(1, buf(at), NOW).accepted).toHaveLength(1);
+    expect(reasons(parseTelemetry(1, buf(at.replace('"pad":"', '"pad":"x')), NOW))).toEqual(['too_large']);
+  });
+  test('the sample limit fits the byte limit: MAX_SAMPLES samples, five channels in { value, unit } form, ISO timestamps', () => {
+    const v = (x: number, unit: string) => ({ value: x + 0.1234567890123, unit });
+    const samples = Array.from({ length: MAX_SAMPLES }, (_, i) => ({
+      ts: new Date(NOW - 600_000 + i * 1000).toISOString().replace('Z', '000000+00:00'),
+      values: { coolant_temp: v(80, 'degC'), coolant_pressure: v(95, 'kPa'), coolant_conductivity: v(2400, 'uS/cm'), engine_speed: v(1800, 'rpm'), ambient_temp: v(20, 'degC') },
+    }));
+    const payload = buf({ samples });
+    expect(payload.byteLength).toBeLessThanOrEqual(MAX_PAYLOAD_BYTES);
+    const r = parseTelemetry(1, payload, NOW);
+    expect(r.rejects).toEqual([]);
+    expect(r.accepted).toHaveLength(MAX_SAMPLES * 5);
+    // one sample more is refused by the sample limit, not the byte limit
+    expect(reasons(parseTelemetry(1, buf({ samples: [...samples, samples[0]] }), NOW))).toEqual(['schema']);
   });
   test('schema: wrong shapes', () => {
     for (const bad of [42, '"text"', null, [], {}, { ts: NOW }, { values: { coolant_temp: 1 } }, { samples: [] }, { samples: 'x' }]) {

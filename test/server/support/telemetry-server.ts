@@ -32,17 +32,43 @@ export interface ServerProcess {
   url: string;
   log(): string;
   health(): Promise<any>;
-  /** Sends SIGTERM and waits for the exit code. */
+  /** Sends SIGTERM (or `signal`; to the whole process group when started with `group`) and waits for the exit code. */
   stop(signal?: NodeJS.Signals): Promise<number | null>;
+  ports: { port: number; mqttPort: number; smtpPort: number };
 }
 
-export async function startServerProcess(opts: { dataDir?: string; env?: Record<string, string> } = {}): Promise<ServerProcess> {
+export interface ServerProcessOptions {
+  dataDir?: string;
+  env?: Record<string, string>;
+  /** Reuse these ports (a restart that devices reconnect to). */
+  ports?: { port: number; mqttPort: number; smtpPort: number };
+  /** Own process group; stop() signals the group and resolves once no process of it is left. */
+  group?: boolean;
+}
+
+/** No live process left in the group (a zombie waiting for a reaper counts as gone: it runs nothing). */
+const groupGone = (pgid: number): boolean => {
+  try { process.kill(-pgid, 0); } catch { return true; }
+  if (!fs.existsSync('/proc/self/stat')) return false;
+  for (const pid of fs.readdirSync('/proc').filter((d) => /^\d+$/.test(d))) {
+    try {
+      const stat = fs.readFileSync(`/proc/${pid}/stat`, 'utf8');
+      const fields = stat.slice(stat.lastIndexOf(')') + 2).split(' '); // state, ppid, pgrp, ...
+      if (Number(fields[2]) === pgid && fields[0] !== 'Z') return false;
+    } catch { /* ended meanwhile */ }
+  }
+  return true;
+};
+
+export async function startServerProcess(opts: ServerProcessOptions = {}): Promise<ServerProcess> {
   const dataDir = opts.dataDir ?? fs.mkdtempSync(path.join(os.tmpdir(), 'jw-telemetry-'));
-  const [port, mqttPort, smtpPort] = [await freePort(), await freePort(), await freePort()];
+  const ports = opts.ports ?? { port: await freePort(), mqttPort: await freePort(), smtpPort: await freePort() };
+  const { port, mqttPort, smtpPort } = ports;
   const child = spawn(process.execPath, [path.join(ROOT, 'node_modules/tsx/dist/cli.mjs'), path.join(ROOT, 'server/main.ts')], {
     cwd: ROOT,
     env: { ...process.env, PORT: String(port), MQTT_PORT: String(mqttPort), SMTP_PORT: String(smtpPort), DATA_DIR: dataDir, LOG_LEVEL: 'warn', ...opts.env },
     stdio: ['ignore', 'pipe', 'pipe'],
+    detached: opts.group ?? false,
   });
   let output = '';
   child.stdout!.on('data', (d) => { output += d; });
@@ -54,16 +80,26 @@ export async function startServerProcess(opts: { dataDir?: string; env?: Record<
   for (;;) {
     if (child.exitCode !== null) throw new Error('server exited during start:\n' + output);
     try { await health(); break; } catch { /* not yet */ }
-    if (Date.now() > deadline) { child.kill('SIGKILL'); throw new Error('server did not start:\n' + output); }
+    if (Date.now() > deadline) {
+      if (opts.group) process.kill(-child.pid!, 'SIGKILL'); else child.kill('SIGKILL');
+      throw new Error('server did not start:\n' + output);
+    }
     await new Promise((r) => setTimeout(r, 200));
   }
   return {
-    child, port, mqttPort, dataDir, url, dbFile: path.join(dataDir, 'jacketwatch.sqlite'),
+    child, port, mqttPort, dataDir, url, dbFile: path.join(dataDir, 'jacketwatch.sqlite'), ports,
     log: () => output,
     health,
     stop: async (signal = 'SIGTERM') => {
-      if (child.exitCode === null) child.kill(signal);
-      return exited;
+      if (!opts.group) {
+        if (child.exitCode === null) child.kill(signal);
+        return exited;
+      }
+      const pgid = child.pid!;
+      if (!groupGone(pgid)) process.kill(-pgid, signal);
+      const code = await exited;
+      while (!groupGone(pgid)) await new Promise((r) => setTimeout(r, 20)); // the tsx worker too
+      return code;
     },
   };
 }
