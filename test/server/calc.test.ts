@@ -137,6 +137,16 @@ describe('mix correction, make-up water, initial charge', () => {
     expect(res.body.drainL).toBeCloseTo(100 / 6, 6);
     expect(res.body.resultingPercent).toBeCloseTo(50, 9);
   });
+  it('a premix equal to the target: drain completely and refill with premix; the additive dilution and its dose (mass balance, NIST SP 811 gallon)', async () => {
+    const res = await post('mix-correction', { capacityL: 100, measuredPercent: 40, targetPercent: 50, premixPercent: 50, scaUnitsPerGal: 2, liquidUnitsPerLitre: 10 }).expect(200);
+    expect(res.body.fullDrain).toBe(true);
+    expect(res.body.drainL).toBe(100);
+    expect(res.body.reasons[0]).toMatch(/drain the system completely/);
+    // all 100 L replaced: 2 units/gal x 26.417 gal = 52.83 units; / 10 units/L = 5.283 L -> 5.30 L
+    expect(res.body.additive.restoreUnits).toBeCloseTo(2 * (100 / GAL), 6);
+    expect(res.body.additive.restoreLiquidL).toBeCloseTo(5.3, 10);
+    expect(res.body.reasons.join(' ')).toMatch(/removes 100 % of its additive/);
+  });
   it('chloride 41 mg/L fails the 40 mg/L limit (ASTM D6210 X1 / D4985)', async () => {
     const res = await post('make-up-water', { chlorideMgL: 41, sulfateMgL: 50, hardnessMgLCaCO3: 100, tdsMgL: 200, pH: 7 }).expect(200);
     expect(res.body.verdict).toBe('not-acceptable');
@@ -179,6 +189,8 @@ describe('bad input is 400 naming the field', () => {
     ['boiling-point', { gaugePressureKpa: 100, glycol: 'ethylene', percent: 95 }, 'percent'],
     ['mix-correction', { capacityL: 100, measuredPercent: 40, targetPercent: 50, premixPercent: 45 }, 'premixPercent'],
     ['mix-correction', { capacityL: 20000, measuredPercent: 40, targetPercent: 50 }, 'capacityL'],
+    ['mix-correction', { capacityL: 400, measuredPercent: 30, targetPercent: 100 }, 'targetPercent'],
+    ['mix-correction', { capacityL: 400, measuredPercent: 30, targetPercent: 60.5 }, 'targetPercent'],
     ['make-up-water', { pH: 15 }, 'pH'],
     ['initial-charge', { capacityL: 100, liquidUnitsPerLitre: -3 }, 'liquidUnitsPerLitre'],
   ])('%s %j -> field %s', async (path, body, field) => {
