@@ -8,3 +8,4 @@ export * from './additive';
 export * from './mix-correction';
 export * from './make-up-water';
 export * from './cautions';
+export * from './chemistry';
