@@ -8,6 +8,7 @@ import { addOpenApiGroup } from '../openapi';
 import { coolantOpenApi } from '../openapi/coolant-paths';
 import { TEST_METHODS } from '../models/coolant-models';
 import { getAdditiveProfile, saveAdditiveProfile } from '../services/coolant/additive-profile';
+import { getChemistryLimits, saveChemistryLimits } from '../services/coolant/chemistry-limits';
 import { importLabCsv, listCoolantTests, recordCoolantTest } from '../services/coolant/coolant-tests';
 import { runHoursCounterFor } from '../services/coolant';
 import { correctRunHours, runHoursHistory } from '../services/coolant/run-hours';
@@ -28,9 +29,18 @@ const testBody = z.strictObject({
   freezePointC: optionalReading(-80, 10, 'degC'),
   ph: optionalReading(0, 14, ''),
   conductivityUsCm: optionalReading(0, 200000, 'uS/cm'),
+  nitritePpm: optionalReading(0, 100000, 'ppm'),
+  molybdatePpm: optionalReading(0, 100000, 'ppm'),
+  reserveAlkalinityMl: optionalReading(0, 100, 'mL'),
   appearance: z.string().trim().max(200).nullable().default(null),
   notes: z.string().trim().max(2000).nullable().default(null),
 });
+const limitsBody = z.strictObject({
+  nitriteLowPpm: range(0, 100000, 'ppm'), nitriteHighPpm: range(0, 100000, 'ppm'),
+  molybdateLowPpm: range(0, 100000, 'ppm'), molybdateHighPpm: range(0, 100000, 'ppm'),
+  phLow: range(0, 14, ''), phHigh: range(0, 14, ''),
+  reserveAlkalinityLowMl: range(0, 100, 'mL'), freezeMarginK: range(0, 30, 'K'),
+}).partial();
 const runHoursBody = z.strictObject({ runHours: range(0, 1_000_000, 'h'), reason: z.string().trim().min(3, 'say why (at least 3 characters)').max(500) });
 const profileBody = z.strictObject({
   name: z.string().trim().min(1).max(80),
@@ -77,7 +87,7 @@ export function coolantRouter(ctx: AppContext): Router {
   addOpenApiGroup(coolantOpenApi);
   const r = Router();
   const m = ctx.models;
-  for (const p of ['/engines/:id/coolant-tests', '/engines/:id/run-hours', '/engines/:id/service-plan', '/coolant-tests', '/additive-profile', '/due-list']) r.use(p, requireAuth);
+  for (const p of ['/engines/:id/coolant-tests', '/engines/:id/run-hours', '/engines/:id/service-plan', '/coolant-tests', '/additive-profile', '/coolant-limits', '/due-list']) r.use(p, requireAuth);
   // an engine of a site the caller may not see reads as not found
   for (const p of ['/engines/:id/coolant-tests', '/engines/:id/run-hours', '/engines/:id/service-plan']) {
     r.use(p, async (req, _res, next) => {
@@ -110,6 +120,13 @@ export function coolantRouter(ctx: AppContext): Router {
   });
   r.put('/additive-profile', requireRole('admin'), async (req, res) => {
     res.json(await saveAdditiveProfile(m, parse(profileBody, req.body), req.user!.id));
+  });
+
+  r.get('/coolant-limits', async (_req, res) => {
+    res.json(await getChemistryLimits(m));
+  });
+  r.put('/coolant-limits', requireRole('admin'), async (req, res) => {
+    res.json(await saveChemistryLimits(m, parse(limitsBody, req.body), req.user!.id));
   });
 
   r.get('/engines/:id/run-hours', async (req, res) => {

@@ -8,11 +8,11 @@
  *   CRC densities (as in test/shared/glycol.test.ts).
  * Each boundary is checked on both sides: the limit itself is in range.
  */
-import { DEFAULT_CHEMISTRY_LIMITS, judgeChemistry, resolveChemistryLimits } from '../../shared/coolant/chemistry';
+import { DEFAULT_CHEMISTRY_LIMITS, judgeChemistry, resolveChemistryLimits, type ChemistryContext } from '../../shared/coolant/chemistry';
 import { freezePointC } from '../../shared/coolant/glycol';
 
-const ctx = { glycolType: 'propylene' as const, designLowC: -20 };
-const one = (reading: Parameters<typeof judgeChemistry>[0], c = ctx) => {
+const ctx: ChemistryContext = { glycolType: 'propylene', designLowC: -20 };
+const one = (reading: Parameters<typeof judgeChemistry>[0], c: ChemistryContext = ctx) => {
   const f = judgeChemistry(reading, c);
   expect(f).toHaveLength(1);
   return f[0];
