@@ -27,9 +27,10 @@ export interface CoolantTestView {
   freezePointC: number | null;
   ph: number | null;
   conductivityUsCm: number | null;
-  nitritePpm: number | null;
-  molybdatePpm: number | null;
-  reserveAlkalinityMl: number | null;
+  /** Inhibitor readings (always sent by the server; optional for older shapes). */
+  nitritePpm?: number | null;
+  molybdatePpm?: number | null;
+  reserveAlkalinityMl?: number | null;
   appearance: string | null;
   notes: string | null;
   testedBy: number | null;

@@ -14,6 +14,7 @@ import { fromCelsius, fromKpa, gallonsToLitres, litresToGallons, toCelsius, toKp
 import { PreferencesService } from '../core/preferences.service';
 import { AdditiveForm, parseNumber } from './additive-form';
 import { CoolantCautions } from './coolant-cautions';
+import { CoolantExplainer } from './coolant-explainer';
 
 type Outcome<T> = { value: T; error: null } | { value: null; error: string } | { value: null; error: null };
 
@@ -33,7 +34,7 @@ function run<T>(inputs: (number | null)[], fn: () => T): Outcome<T> {
 @Component({
   selector: 'jw-calculators-page',
   changeDetection: ChangeDetectionStrategy.OnPush,
-  imports: [FormsModule, MatCardModule, MatFormFieldModule, MatInputModule, MatSelectModule, MatButtonToggleModule, MatIconModule, AdditiveForm, CoolantCautions],
+  imports: [FormsModule, MatCardModule, MatFormFieldModule, MatInputModule, MatSelectModule, MatButtonToggleModule, MatIconModule, AdditiveForm, CoolantCautions, CoolantExplainer],
   templateUrl: './calculators-page.html',
   styleUrl: './calculators-page.scss',
 })

@@ -13,6 +13,9 @@ export interface NewCoolantTest {
   freezePointC: number | null;
   ph: number | null;
   conductivityUsCm: number | null;
+  nitritePpm?: number | null;
+  molybdatePpm?: number | null;
+  reserveAlkalinityMl?: number | null;
   appearance: string | null;
   notes: string | null;
 }
