@@ -76,6 +76,15 @@ export const coolantOpenApi: OpenApiGroup = {
         responses: { '200': json(anyObj), ...errors({ admin: true, input: true }) },
       },
     },
+    '/api/engines/{id}/coolant-top-ups': {
+      parameters: [idParam],
+      get: { summary: 'Coolant top-ups of an engine and the additive and glycol estimated since its last test (mass balance)', responses: { '200': json(obj({ topUps: { type: 'array' }, estimate: { type: ['object', 'null'] } })), ...errors({ notFound: true }) } },
+      post: {
+        summary: 'Record coolant added (technician, planner, admin): volume and what it was',
+        requestBody: body(obj({ addedAt: { type: 'string' }, volumeL: num('litres'), liquid: { enum: ['water', 'premix', 'glycol'] }, premixPercent: num('% by volume, for premix'), notes: { type: 'string' } }, ['volumeL', 'liquid'])),
+        responses: { '201': json(anyObj), ...errors({ admin: true, input: true, notFound: true }) },
+      },
+    },
     '/api/coolant-limits': {
       get: { summary: 'Coolant chemistry limits (nitrite, molybdate, pH, reserve alkalinity, freeze margin) with their defaults', responses: { '200': json(anyObj), ...errors() } },
       put: {

@@ -9,3 +9,4 @@ export * from './mix-correction';
 export * from './make-up-water';
 export * from './cautions';
 export * from './chemistry';
+export * from './top-up';

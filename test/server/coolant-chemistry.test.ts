@@ -96,3 +96,56 @@ describe('lab CSV with nitrite and molybdate columns', () => {
     expect(findings.map((f) => [f.field, f.status])).toEqual([['nitritePpm', 'high'], ['molybdatePpm', 'low'], ['ph', 'ok']]);
   });
 });
+
+describe('coolant top-ups and the additive estimate (mass balance; low limit 1.2 units/US gal, common practice)', () => {
+  let eid: number;
+  beforeAll(async () => {
+    eid = (await t.ctx.models.Engine.create({
+      siteId, name: 'Fire pump 2', duty: 'standby', glycolType: 'ethylene', glycolPercent: 40, capPressureKpa: 100, oilDrainIntervalH: 250, capacityL: 40, coolantFamily: 'conventional',
+    })).id;
+  });
+  const url = () => `/api/engines/${eid}/coolant-tests`;
+  const topUps = () => `/api/engines/${eid}/coolant-top-ups`;
+
+  it('no test yet: the top-ups are listed without an estimate', async () => {
+    await request(t.app).post(topUps()).set(as('technician')).send({ volumeL: 1, liquid: 'water', addedAt: Date.now() - 3 * 3600_000 }).expect(201);
+    const res = await request(t.app).get(topUps()).set(as('operator')).expect(200);
+    expect(res.body.topUps).toHaveLength(1);
+    expect(res.body.estimate).toBeNull();
+  });
+
+  it('after a test at 2.0 units/gal and 40 %: 4 L water then 4 L 50 % premix -> 1.62 units/gal, 37.4 % (hand arithmetic)', async () => {
+    await request(t.app).post(url()).set(as('technician')).send({ method: 'strip', scaUnitsPerGal: 2.0, glycolPercent: 40, testedAt: Date.now() - 2 * 3600_000 }).expect(201);
+    await request(t.app).post(topUps()).set(as('technician')).send({ volumeL: 4, liquid: 'water', addedAt: Date.now() - 3600_000 }).expect(201);
+    const p = await request(t.app).post(topUps()).set(as('planner')).send({ volumeL: 4, liquid: 'premix', premixPercent: 50, notes: 'after hose repair' }).expect(201);
+    expect(p.body).toMatchObject({ liquid: 'premix', premixPercent: 50, notes: 'after hose repair' });
+    const res = await request(t.app).get(topUps()).set(as('operator')).expect(200);
+    expect(res.body.topUps).toHaveLength(3);
+    expect(res.body.estimate.topUpsSince).toBe(2);
+    expect(res.body.estimate.scaUnitsPerGal).toBeCloseTo(1.62, 9);
+    expect(res.body.estimate.glycolPercent).toBeCloseTo(37.4, 9);
+    expect(res.body.estimate.belowLow).toBe(false);
+  });
+
+  it('enough water to fall below the low limit suggests a test', async () => {
+    await request(t.app).post(topUps()).set(as('technician')).send({ volumeL: 12, liquid: 'water' }).expect(201);
+    const res = await request(t.app).get(topUps()).set(as('operator')).expect(200);
+    expect(res.body.estimate.scaUnitsPerGal).toBeCloseTo(1.62 * 0.7, 9);
+    expect(res.body.estimate.belowLow).toBe(true);
+    expect(res.body.estimate.reasons.join(' ')).toMatch(/test the coolant now/);
+  });
+
+  it('bad input is 400 naming the field; operators may not record', async () => {
+    await request(t.app).post(topUps()).set(as('operator')).send({ volumeL: 1, liquid: 'water' }).expect(403);
+    for (const [body, field] of [
+      [{ volumeL: 0, liquid: 'water' }, 'volumeL'],
+      [{ volumeL: 41, liquid: 'water' }, 'volumeL'],
+      [{ volumeL: 1, liquid: 'juice' }, 'liquid'],
+      [{ volumeL: 1, liquid: 'premix' }, 'premixPercent'],
+      [{ volumeL: 1, liquid: 'water', addedAt: Date.now() + 86400_000 }, 'addedAt'],
+    ] as const) {
+      expect((await request(t.app).post(topUps()).set(as('technician')).send(body).expect(400)).body.field).toBe(field);
+    }
+    await request(t.app).get('/api/engines/99999/coolant-top-ups').set(as('operator')).expect(404);
+  });
+});
