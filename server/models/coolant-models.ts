@@ -74,6 +74,7 @@ export class RunHoursAdjustment extends Model<InferAttributes<RunHoursAdjustment
 export class CoolantSettings extends Model<InferAttributes<CoolantSettings>, InferCreationAttributes<CoolantSettings>> {
   declare id: CreationOptional<number>;
   declare chemistryLimits: Record<string, number>;
+  declare extenderInterval: CreationOptional<{ everyHours: number | null; everyDays: number | null } | null>;
   declare updatedBy: number | null;
   declare createdAt: CreationOptional<Date>;
   declare updatedAt: CreationOptional<Date>;
@@ -180,6 +181,7 @@ export function initCoolantModels(sequelize: Sequelize): CoolantModels {
     {
       id: { type: DataTypes.INTEGER, primaryKey: true, autoIncrement: true },
       chemistryLimits: { type: DataTypes.JSON, allowNull: false },
+      extenderInterval: { type: DataTypes.JSON, allowNull: true },
       updatedBy: { type: DataTypes.INTEGER, allowNull: true },
       createdAt: DataTypes.DATE,
       updatedAt: DataTypes.DATE,

@@ -41,6 +41,7 @@ const limitsBody = z.strictObject({
   molybdateLowPpm: range(0, 100000, 'ppm'), molybdateHighPpm: range(0, 100000, 'ppm'),
   phLow: range(0, 14, ''), phHigh: range(0, 14, ''),
   reserveAlkalinityLowMl: range(0, 100, 'mL'), freezeMarginK: range(0, 30, 'K'),
+  extender: z.strictObject({ everyHours: range(1, 100000, 'h').nullable().default(null), everyDays: range(1, 3650, 'days').nullable().default(null) }).nullable(),
 }).partial();
 const topUpBody = z.strictObject({
   addedAt: instant.optional(),

@@ -149,3 +149,24 @@ describe('coolant top-ups and the additive estimate (mass balance; low limit 1.2
     await request(t.app).get('/api/engines/99999/coolant-top-ups').set(as('operator')).expect(404);
   });
 });
+
+describe('extended-life coolant extender interval (admin setting; default common practice, from memory)', () => {
+  it('the plan of an extended-life engine has the extender; the admin sets its interval; bad intervals 400', async () => {
+    const eid = (await t.ctx.models.Engine.create({
+      siteId, name: 'Gen-set ELC', duty: 'prime', glycolType: 'ethylene', glycolPercent: 50, capPressureKpa: 100, oilDrainIntervalH: 500, capacityL: 80, coolantFamily: 'extended-life',
+    })).id;
+    const plan = async () => (await request(t.app).get(`/api/engines/${eid}/service-plan`).set(as('operator')).expect(200)).body as { key: string; everyHours: number | null; everyDays: number | null; placeholder?: boolean }[];
+    expect((await plan()).find((x) => x.key === 'coolant-extender')).toMatchObject({ everyHours: 6000, everyDays: 1095, placeholder: true });
+    expect((await request(t.app).put('/api/coolant-limits').set(as('admin')).send({ extender: { everyHours: 0 } }).expect(400)).body.field).toBe('extender.everyHours');
+    expect((await request(t.app).put('/api/coolant-limits').set(as('admin')).send({ extender: {} }).expect(400)).body.field).toBe('extender');
+    const put = await request(t.app).put('/api/coolant-limits').set(as('admin')).send({ extender: { everyHours: 4000, everyDays: 730 } }).expect(200);
+    expect(put.body.extender).toEqual({ everyHours: 4000, everyDays: 730 });
+    expect((await plan()).find((x) => x.key === 'coolant-extender')).toMatchObject({ everyHours: 4000, everyDays: 730 });
+    expect((await plan()).find((x) => x.key === 'coolant-extender')!.placeholder).toBeFalsy();
+    // a later limits change keeps the interval; null goes back to the default
+    await request(t.app).put('/api/coolant-limits').set(as('admin')).send({ phLow: 7.5 }).expect(200);
+    expect((await request(t.app).get('/api/coolant-limits').set(as('operator')).expect(200)).body.extender).toEqual({ everyHours: 4000, everyDays: 730 });
+    await request(t.app).put('/api/coolant-limits').set(as('admin')).send({ extender: null }).expect(200);
+    expect((await plan()).find((x) => x.key === 'coolant-extender')).toMatchObject({ everyHours: 6000, placeholder: true });
+  });
+});

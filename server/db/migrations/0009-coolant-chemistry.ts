@@ -3,7 +3,7 @@ import type { MigrationContext } from '../migrate';
 
 /**
  * Coolant chemistry in depth: inhibitor readings on coolant tests (nitrite, molybdate, reserve alkalinity),
- * the site's lowest expected temperature, the admin's chemistry limits (one row, JSON) and the record of
+ * the site's lowest expected temperature, the admin's chemistry limits and extender interval (one row, JSON) and the record of
  * coolant top-ups. Portable queryInterface calls only.
  */
 const real = () => ({ type: DataTypes.DOUBLE, allowNull: true });
@@ -18,6 +18,8 @@ export async function up({ queryInterface: q }: MigrationContext): Promise<void>
     id: { type: DataTypes.INTEGER, primaryKey: true, autoIncrement: true },
     /** Partial ChemistryLimits (shared/coolant/chemistry.ts); missing keys take the defaults. */
     chemistry_limits: { type: DataTypes.JSON, allowNull: false },
+    /** { everyHours, everyDays } of the extended-life coolant extender; null = the common-practice default. */
+    extender_interval: { type: DataTypes.JSON, allowNull: true },
     updated_by: { type: DataTypes.INTEGER, allowNull: true, references: { model: 'users', key: 'id' } },
     ...ts(),
   });
