@@ -88,3 +88,37 @@ export interface RunHoursEntry {
   reason: string;
   at: string;
 }
+
+export type TopUpLiquid = 'water' | 'premix' | 'glycol';
+
+export interface CoolantTopUp {
+  id: number;
+  engineId: number;
+  addedAt: string;
+  volumeL: number;
+  liquid: TopUpLiquid;
+  premixPercent: number | null;
+  notes: string | null;
+  addedBy: number | null;
+}
+
+export interface TopUpsAnswer {
+  topUps: CoolantTopUp[];
+  estimate: {
+    basedOnTestAt: string;
+    topUpsSince: number;
+    replacedFraction: number;
+    addedL: number;
+    scaUnitsPerGal: number | null;
+    glycolPercent: number | null;
+    belowLow: boolean;
+    reasons: string[];
+  } | null;
+}
+
+export interface NewTopUp {
+  volumeL: number;
+  liquid: TopUpLiquid;
+  premixPercent: number | null;
+  notes: string | null;
+}

@@ -1,7 +1,7 @@
 import { HttpClient } from '@angular/common/http';
 import { Injectable, inject } from '@angular/core';
 import { Observable } from 'rxjs';
-import { AdditiveProfile, AdditiveProfileInput, CoolantTest, RunHoursEntry, DueListResponse, ImportResult, NewCoolantTest } from './coolant-types';
+import { AdditiveProfile, AdditiveProfileInput, CoolantTest, RunHoursEntry, DueListResponse, ImportResult, NewCoolantTest, NewTopUp, CoolantTopUp, TopUpsAnswer } from './coolant-types';
 
 /** HTTP for the coolant screens; SI units both ways. */
 @Injectable({ providedIn: 'root' })
@@ -14,6 +14,14 @@ export class CoolantService {
 
   record(engineId: number, test: NewCoolantTest): Observable<CoolantTest> {
     return this.http.post<CoolantTest>(`/api/engines/${engineId}/coolant-tests`, test);
+  }
+
+  topUps(engineId: number): Observable<TopUpsAnswer> {
+    return this.http.get<TopUpsAnswer>(`/api/engines/${engineId}/coolant-top-ups`);
+  }
+
+  recordTopUp(engineId: number, t: NewTopUp): Observable<CoolantTopUp> {
+    return this.http.post<CoolantTopUp>(`/api/engines/${engineId}/coolant-top-ups`, t);
   }
 
   importLab(file: File, opts: { preview: boolean; engineId?: number }): Observable<ImportResult> {

@@ -25,6 +25,7 @@ import { AdditiveForm, parseNumber } from './additive-form';
 import { CoolantCautions } from './coolant-cautions';
 import { CoolantHistoryChart, HistoryPoint } from './coolant-history-chart';
 import { CoolantService } from './coolant.service';
+import { TopUpsCard } from './top-ups-card';
 import { AdditiveProfile, CoolantTest, ImportResult, NewCoolantTest, TestMethod } from './coolant-types';
 
 /** Glycol 40 to 60 % by volume: common practice for engine coolant (the coolant maker's figure first). */
@@ -43,7 +44,7 @@ const errorText = (e: unknown): string => {
   changeDetection: ChangeDetectionStrategy.OnPush,
   imports: [
     DatePipe, FormsModule, RouterLink, MatButtonModule, MatCardModule, MatFormFieldModule, MatIconModule, MatInputModule, MatSelectModule, MatTableModule,
-    AdditiveForm, AdditiveDecisionView, ChemistryFindings, CoolantCautions, CoolantExplainer, CoolantHistoryChart,
+    AdditiveForm, AdditiveDecisionView, ChemistryFindings, CoolantCautions, CoolantExplainer, CoolantHistoryChart, TopUpsCard,
   ],
   templateUrl: './engine-coolant-page.html',
   styleUrl: './engine-coolant-page.scss',
@@ -59,7 +60,7 @@ export class EngineCoolantPage {
   protected readonly canRecord = computed(() => this.auth.hasRole('technician', 'planner', 'admin'));
   protected readonly tUnit = computed(() => UNIT_SYMBOL[this.prefs.temperatureUnit()]);
 
-  private readonly reload = signal(0);
+  protected readonly reload = signal(0);
   protected readonly engine = toSignal(toObservable(this.engineId).pipe(switchMap((id) => this.engines.engine(id).pipe(catchError(() => of(null))))));
   protected readonly profile = toSignal(this.api.profile().pipe(catchError(() => of(null))), { initialValue: null as AdditiveProfile | null });
   protected readonly tests = toSignal(
