@@ -1,4 +1,5 @@
 import type { CoolantTestView, TestMethod } from '../../../shared/api/coolant-view';
+import type { ChemistryLimits } from '../../../shared/coolant';
 
 export type { CoolantDecision, CoolantTestSource, TestMethod } from '../../../shared/api/coolant-view';
 
@@ -121,4 +122,13 @@ export interface NewTopUp {
   liquid: TopUpLiquid;
   premixPercent: number | null;
   notes: string | null;
+}
+
+export interface ChemistryLimitsView {
+  limits: ChemistryLimits;
+  defaults: ChemistryLimits;
+  extender: { everyHours: number | null; everyDays: number | null } | null;
+  extenderDefault: { everyHours: number | null; everyDays: number | null };
+  configured: boolean;
+  updatedAt: string | null;
 }
