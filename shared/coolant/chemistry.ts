@@ -73,6 +73,8 @@ export interface ChemistryReading {
 
 export interface ChemistryContext {
   glycolType: GlycolType;
+  /** Extended-life coolant: the nitrite and molybdate limits (for conventional coolant) are not applied. */
+  coolantFamily?: 'conventional' | 'extended-life';
   /** The site's lowest expected temperature, °C; null when not set. */
   designLowC: number | null;
 }
@@ -217,13 +219,29 @@ function freezeProtection(r: ChemistryReading, ctx: ChemistryContext, l: Chemist
   };
 }
 
+/** Extended-life coolants differ (some carry no nitrite at all): the conventional limits would mislead. */
+function notForElc(field: 'nitritePpm' | 'molybdatePpm', name: string, v: number): ChemistryFinding {
+  return {
+    field, status: 'unknown', value: v, source: 'extended-life coolant: the coolant maker\'s figures',
+    message: `${name} ${v} ppm in extended-life coolant: the limits here are for conventional coolant, and some extended-life coolants carry none.`,
+    action: "Compare with the coolant maker's figures or the laboratory's judgement; add extender only as the coolant maker says.",
+  };
+}
+
 /** One finding per measured field (nitrite, molybdate, pH, reserve alkalinity, freeze protection). */
 export function judgeChemistry(reading: ChemistryReading, ctx: ChemistryContext, limits?: Partial<ChemistryLimits> | null): ChemistryFinding[] {
   const l = resolveChemistryLimits(limits);
   if (ctx.designLowC !== null) requireFinite('designLowC', ctx.designLowC);
   const out: ChemistryFinding[] = [];
-  if (present(reading.nitritePpm)) out.push(nitrite(requireInRange('nitritePpm', reading.nitritePpm, 0, 100000, 'ppm'), l));
-  if (present(reading.molybdatePpm)) out.push(molybdate(requireInRange('molybdatePpm', reading.molybdatePpm, 0, 100000, 'ppm'), l));
+  const elc = ctx.coolantFamily === 'extended-life';
+  if (present(reading.nitritePpm)) {
+    const v = requireInRange('nitritePpm', reading.nitritePpm, 0, 100000, 'ppm');
+    out.push(elc ? notForElc('nitritePpm', 'Nitrite', v) : nitrite(v, l));
+  }
+  if (present(reading.molybdatePpm)) {
+    const v = requireInRange('molybdatePpm', reading.molybdatePpm, 0, 100000, 'ppm');
+    out.push(elc ? notForElc('molybdatePpm', 'Molybdate', v) : molybdate(v, l));
+  }
   if (present(reading.ph)) out.push(ph(requireInRange('ph', reading.ph, 0, 14), l));
   if (present(reading.reserveAlkalinityMl)) out.push(reserveAlkalinity(requireInRange('reserveAlkalinityMl', reading.reserveAlkalinityMl, 0, 100, 'mL'), l));
   const f = freezeProtection(reading, ctx, l);

@@ -127,3 +127,11 @@ describe('all fields together, and limits', () => {
     expect(() => judgeChemistry({ ph: 15 }, ctx)).toThrow(/ph/);
   });
 });
+
+describe('extended-life coolant', () => {
+  it('nitrite and molybdate are not judged by the conventional limits (some extended-life coolants carry none); pH still is', () => {
+    const f = judgeChemistry({ nitritePpm: 0, molybdatePpm: 0, ph: 7 }, { glycolType: 'ethylene', coolantFamily: 'extended-life', designLowC: null });
+    expect(f.map((x) => [x.field, x.status])).toEqual([['nitritePpm', 'unknown'], ['molybdatePpm', 'unknown'], ['ph', 'low']]);
+    expect(f[0].action).toMatch(/coolant maker/);
+  });
+});

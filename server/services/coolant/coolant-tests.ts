@@ -62,7 +62,7 @@ export function decideForTest(
   const findings = chem
     ? judgeChemistry(
       { nitritePpm: t.nitritePpm, molybdatePpm: t.molybdatePpm, ph: t.ph, reserveAlkalinityMl: t.reserveAlkalinityMl, glycolPercent: t.glycolPercent, freezePointC: t.freezePointC },
-      { glycolType: engine.glycolType, designLowC: chem.designLowC },
+      { glycolType: engine.glycolType, coolantFamily: engine.coolantFamily, designLowC: chem.designLowC },
       chem.limits,
     )
     : [];
