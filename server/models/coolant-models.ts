@@ -15,6 +15,9 @@ export class CoolantTest extends Model<InferAttributes<CoolantTest>, InferCreati
   declare freezePointC: number | null;
   declare ph: number | null;
   declare conductivityUsCm: number | null;
+  declare nitritePpm: CreationOptional<number | null>;
+  declare molybdatePpm: CreationOptional<number | null>;
+  declare reserveAlkalinityMl: CreationOptional<number | null>;
   declare appearance: string | null;
   declare notes: string | null;
   declare testedBy: number | null;
@@ -67,11 +70,41 @@ export class RunHoursAdjustment extends Model<InferAttributes<RunHoursAdjustment
   declare at: Date;
 }
 
+/** The admin's coolant chemistry limits (one row; missing keys take the shared defaults). */
+export class CoolantSettings extends Model<InferAttributes<CoolantSettings>, InferCreationAttributes<CoolantSettings>> {
+  declare id: CreationOptional<number>;
+  declare chemistryLimits: Record<string, number>;
+  declare extenderInterval: CreationOptional<{ everyHours: number | null; everyDays: number | null } | null>;
+  declare updatedBy: number | null;
+  declare createdAt: CreationOptional<Date>;
+  declare updatedAt: CreationOptional<Date>;
+}
+
+export const TOP_UP_LIQUIDS = ['water', 'premix', 'glycol'] as const;
+export type TopUpLiquid = (typeof TOP_UP_LIQUIDS)[number];
+
+/** Coolant added to an engine between tests (it dilutes the additive). */
+export class CoolantTopUp extends Model<InferAttributes<CoolantTopUp>, InferCreationAttributes<CoolantTopUp>> {
+  declare id: CreationOptional<number>;
+  declare engineId: number;
+  declare addedAt: Date;
+  declare volumeL: number;
+  declare liquid: TopUpLiquid;
+  declare premixPercent: number | null;
+  declare notes: string | null;
+  declare addedBy: number | null;
+  declare workOrderId: CreationOptional<number | null>;
+  declare createdAt: CreationOptional<Date>;
+  declare updatedAt: CreationOptional<Date>;
+}
+
 export interface CoolantModels {
   CoolantTest: typeof CoolantTest;
   AdditiveProfile: typeof AdditiveProfile;
   ServiceTaskOverride: typeof ServiceTaskOverride;
   RunHoursAdjustment: typeof RunHoursAdjustment;
+  CoolantSettings: typeof CoolantSettings;
+  CoolantTopUp: typeof CoolantTopUp;
 }
 
 // a fresh object per attribute: Sequelize writes the column name into it
@@ -90,6 +123,9 @@ export function initCoolantModels(sequelize: Sequelize): CoolantModels {
       freezePointC: real(),
       ph: real(),
       conductivityUsCm: real(),
+      nitritePpm: real(),
+      molybdatePpm: real(),
+      reserveAlkalinityMl: real(),
       appearance: { type: DataTypes.STRING(200), allowNull: true },
       notes: { type: DataTypes.TEXT, allowNull: true },
       testedBy: { type: DataTypes.INTEGER, allowNull: true },
@@ -141,5 +177,32 @@ export function initCoolantModels(sequelize: Sequelize): CoolantModels {
     },
     { sequelize, tableName: 'run_hours_adjustments', underscored: true, timestamps: false },
   );
-  return { CoolantTest, AdditiveProfile, ServiceTaskOverride, RunHoursAdjustment };
+  CoolantSettings.init(
+    {
+      id: { type: DataTypes.INTEGER, primaryKey: true, autoIncrement: true },
+      chemistryLimits: { type: DataTypes.JSON, allowNull: false },
+      extenderInterval: { type: DataTypes.JSON, allowNull: true },
+      updatedBy: { type: DataTypes.INTEGER, allowNull: true },
+      createdAt: DataTypes.DATE,
+      updatedAt: DataTypes.DATE,
+    },
+    { sequelize, tableName: 'coolant_settings', underscored: true },
+  );
+  CoolantTopUp.init(
+    {
+      id: { type: DataTypes.INTEGER, primaryKey: true, autoIncrement: true },
+      engineId: { type: DataTypes.INTEGER, allowNull: false },
+      addedAt: { type: DataTypes.DATE, allowNull: false },
+      volumeL: { type: DataTypes.DOUBLE, allowNull: false },
+      liquid: { type: DataTypes.STRING(16), allowNull: false },
+      premixPercent: real(),
+      notes: { type: DataTypes.STRING(500), allowNull: true },
+      addedBy: { type: DataTypes.INTEGER, allowNull: true },
+      workOrderId: { type: DataTypes.INTEGER, allowNull: true },
+      createdAt: DataTypes.DATE,
+      updatedAt: DataTypes.DATE,
+    },
+    { sequelize, tableName: 'coolant_top_ups', underscored: true },
+  );
+  return { CoolantTest, AdditiveProfile, ServiceTaskOverride, RunHoursAdjustment, CoolantSettings, CoolantTopUp };
 }

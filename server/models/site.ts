@@ -6,6 +6,8 @@ export class Site extends Model<InferAttributes<Site>, InferCreationAttributes<S
   /** IANA zone name, e.g. America/Chicago: local times of the site (rota, schedules) use it. */
   declare timeZone: string;
   declare retiredAt: CreationOptional<Date | null>;
+  /** Lowest expected temperature at the site, °C (coolant freeze protection is judged against it); null when not set. */
+  declare designLowTempC: CreationOptional<number | null>;
 }
 
 export function initSite(sequelize: Sequelize): typeof Site {
@@ -15,6 +17,7 @@ export function initSite(sequelize: Sequelize): typeof Site {
       name: { type: DataTypes.STRING(120), allowNull: false },
       timeZone: { type: DataTypes.STRING(64), allowNull: false },
       retiredAt: { type: DataTypes.DATE, allowNull: true },
+      designLowTempC: { type: DataTypes.DOUBLE, allowNull: true, field: 'design_low_temp_c' },
     },
     { sequelize, tableName: 'sites', underscored: true, timestamps: false },
   );

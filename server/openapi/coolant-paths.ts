@@ -20,11 +20,13 @@ export const LAB_CSV_DESCRIPTION = [
 const decision: Json = obj({
   additive: { type: ['object', 'null'], description: 'decideAdditive result: status low|in-range|high|not-applicable, filter charged|blank|null, liquidAdditiveL, reasons, cautions' },
   freeze: { type: ['object', 'null'] },
+  findings: { type: 'array', description: 'one per measured field (nitritePpm, molybdatePpm, ph, reserveAlkalinityMl, freezeProtection against the site design low): field, status ok|low|high|short|unknown, value, message, action, source' },
   notes: { type: 'array', items: { type: 'string' } },
 });
 const coolantTest: Json = obj({
   id: { type: 'integer' }, engineId: { type: 'integer' }, testedAt: { type: 'string', format: 'date-time' }, method: { enum: ['strip', 'refractometer', 'lab'] },
   scaUnitsPerGal: num('units per US gallon'), glycolPercent: num('% by volume'), freezePointC: num(), ph: num(), conductivityUsCm: num('µS/cm'),
+  nitritePpm: num('ppm'), molybdatePpm: num('ppm'), reserveAlkalinityMl: num('mL (ASTM D1121)'),
   appearance: { type: ['string', 'null'] }, notes: { type: ['string', 'null'] }, testedBy: { type: ['integer', 'null'] }, testedByName: { type: ['string', 'null'] },
   decision, source: { enum: ['manual', 'lab-import'] },
 });
@@ -40,7 +42,7 @@ export const coolantOpenApi: OpenApiGroup = {
     '/api/calc/freeze-point': calc('Freeze point of a water-glycol mix (published tables, monotone interpolation)', obj({ glycol, percent: num(), basis }, ['glycol', 'percent']), obj({ freezePointC: { type: ['number', 'null'] }, warnings: { type: 'array' }, source: { type: 'string' } })),
     '/api/calc/glycol-for-freeze-point': calc('Glycol share needed for a freeze point', obj({ glycol, freezePointC: num(), basis }, ['glycol', 'freezePointC']), obj({ percent: num(), warnings: { type: 'array' } })),
     '/api/calc/boiling-point': calc('Boiling point at the cap pressure (IAPWS-IF97 + Raoult)', obj({ gaugePressureKpa: num('kPa gauge'), glycol, percent: num(), basis, atmosphereKpa: num('default 101.325') }, ['gaugePressureKpa', 'glycol', 'percent']), obj({ boilingPointC: num(), absolutePressureKpa: num() })),
-    '/api/calc/mix-correction': calc('Drain and refill to move the glycol share to a target (mass balance)', obj({ capacityL: num(), measuredPercent: num(), targetPercent: num(), premixPercent: num() }, ['capacityL', 'measuredPercent', 'targetPercent']), obj({ drainL: num(), addL: num(), refill: { enum: ['glycol', 'water', 'premix', null] }, reasons: { type: 'array' } })),
+    '/api/calc/mix-correction': calc('Drain and refill to move the glycol share to a target (mass balance)', obj({ capacityL: num(), measuredPercent: num(), targetPercent: num('at most 60 %: above it 400 naming targetPercent'), premixPercent: num(), scaUnitsPerGal: num('additive level before, for the dose to restore it'), liquidUnitsPerLitre: num('default: the additive profile') }, ['capacityL', 'measuredPercent', 'targetPercent']), obj({ drainL: num(), addL: num(), refill: { enum: ['glycol', 'water', 'premix', null] }, fullDrain: { type: 'boolean' }, additive: { type: ['object', 'null'], description: 'fractionReplaced, levelBeforeUnitsPerGal, levelAfterUnitsPerGal, restoreUnits, restoreLiquidL, doseNote' }, reasons: { type: 'array' } })),
     '/api/calc/make-up-water': calc('Check make-up water against ASTM D6210 / D4985 limits', obj({ chlorideMgL: num(), sulfateMgL: num(), hardnessMgLCaCO3: num(), tdsMgL: num(), pH: num(), conductivityUsCm: num() }), obj({ verdict: { enum: ['acceptable', 'not-acceptable', 'incomplete'] }, items: { type: 'array' } })),
     '/api/calc/initial-charge': calc('Liquid additive after a drain and refill (strength from the additive profile unless given)', obj({ capacityL: num(), filterPrechargeUnits: num(), liquidUnitsPerLitre: num(), targetUnitsPerGal: num(), upperUnitsPerGal: num() }, ['capacityL']), obj({ liquidL: num(), expectedUnitsPerGal: num(), reasons: { type: 'array' } })),
     '/api/engines/{id}/coolant-tests': {
@@ -48,7 +50,7 @@ export const coolantOpenApi: OpenApiGroup = {
       get: { summary: 'Coolant tests of an engine, newest first', responses: { '200': json({ type: 'array', items: coolantTest }), ...errors({ notFound: true }) } },
       post: {
         summary: 'Record a coolant test (technician, planner, admin); the additive decision is computed and stored with its reasons (none for extended-life coolant, saying why)',
-        requestBody: body(obj({ testedAt: { type: 'string' }, method: { enum: ['strip', 'refractometer', 'lab'] }, scaUnitsPerGal: num(), glycolPercent: num(), freezePointC: num(), ph: num(), conductivityUsCm: num(), appearance: { type: 'string' }, notes: { type: 'string' } }, ['method'])),
+        requestBody: body(obj({ testedAt: { type: 'string' }, method: { enum: ['strip', 'refractometer', 'lab'] }, scaUnitsPerGal: num(), glycolPercent: num(), freezePointC: num(), ph: num(), conductivityUsCm: num(), nitritePpm: num('ppm'), molybdatePpm: num('ppm'), reserveAlkalinityMl: num('mL'), appearance: { type: 'string' }, notes: { type: 'string' } }, ['method'])),
         responses: { '201': json(coolantTest), ...errors({ admin: true, input: true, notFound: true }) },
       },
     },
@@ -71,6 +73,23 @@ export const coolantOpenApi: OpenApiGroup = {
       put: {
         summary: 'Set the additive profile (admin); figures from the labels, no brand names',
         requestBody: body(obj({ name: { type: 'string' }, liquidUnitsPerLitre: num(), filterSizes: { type: 'array', items: obj({ label: { type: 'string' }, prechargeUnits: num() }) }, scaLow: num(), scaHigh: num() }, ['name', 'liquidUnitsPerLitre', 'filterSizes'])),
+        responses: { '200': json(anyObj), ...errors({ admin: true, input: true }) },
+      },
+    },
+    '/api/engines/{id}/coolant-top-ups': {
+      parameters: [idParam],
+      get: { summary: 'Coolant top-ups of an engine and the additive and glycol estimated since its last test (mass balance)', responses: { '200': json(obj({ topUps: { type: 'array' }, estimate: { type: ['object', 'null'] } })), ...errors({ notFound: true }) } },
+      post: {
+        summary: 'Record coolant added (technician, planner, admin): volume and what it was',
+        requestBody: body(obj({ addedAt: { type: 'string' }, volumeL: num('litres'), liquid: { enum: ['water', 'premix', 'glycol'] }, premixPercent: num('% by volume, for premix'), notes: { type: 'string' } }, ['volumeL', 'liquid'])),
+        responses: { '201': json(anyObj), ...errors({ admin: true, input: true, notFound: true }) },
+      },
+    },
+    '/api/coolant-limits': {
+      get: { summary: 'Coolant chemistry limits (nitrite, molybdate, pH, reserve alkalinity, freeze margin) with their defaults', responses: { '200': json(anyObj), ...errors() } },
+      put: {
+        summary: 'Set the coolant chemistry limits (admin); missing keys take the defaults',
+        requestBody: body(obj({ nitriteLowPpm: num(), nitriteHighPpm: num(), molybdateLowPpm: num(), molybdateHighPpm: num(), phLow: num(), phHigh: num(), reserveAlkalinityLowMl: num(), freezeMarginK: num() })),
         responses: { '200': json(anyObj), ...errors({ admin: true, input: true }) },
       },
     },

@@ -26,7 +26,10 @@ const additiveBody = z.strictObject({
 const freezeBody = z.strictObject({ glycol, percent: num, basis: basis.default('volume') });
 const glycolNeededBody = z.strictObject({ glycol, freezePointC: num, basis: basis.default('volume') });
 const boilingBody = z.strictObject({ gaugePressureKpa: num, glycol, percent: num, basis: basis.default('volume'), atmosphereKpa: num.optional() });
-const mixBody = z.strictObject({ capacityL: num, measuredPercent: num, targetPercent: num, premixPercent: num.optional() });
+const mixBody = z.strictObject({
+  capacityL: num, measuredPercent: num, targetPercent: num, premixPercent: num.optional(),
+  scaUnitsPerGal: num.optional(), liquidUnitsPerLitre: num.optional(),
+});
 const waterBody = z.strictObject({
   chlorideMgL: num.optional(), sulfateMgL: num.optional(), hardnessMgLCaCO3: num.optional(),
   tdsMgL: num.optional(), pH: num.optional(), conductivityUsCm: num.optional(),
@@ -95,9 +98,11 @@ export function calcRouter(ctx: AppContext): Router {
     });
   });
 
-  r.post('/calc/mix-correction', (req, res) => {
+  r.post('/calc/mix-correction', async (req, res) => {
     const b = parse(mixBody, req.body);
-    res.json({ ...computeOr400(() => correctMix(b)), coolantCautions: cautionsOf('hot-pressure', 'glycol-toxic', 'disposal', 'defer') });
+    // The dose to restore the additive needs the liquid's strength: from the request, else the additive profile.
+    const strength = b.liquidUnitsPerLitre ?? (await getAdditiveProfile(ctx.models)).liquidUnitsPerLitre ?? undefined;
+    res.json({ ...computeOr400(() => correctMix({ ...b, liquidUnitsPerLitre: strength })), coolantCautions: cautionsOf('hot-pressure', 'glycol-toxic', 'disposal', 'defer') });
   });
 
   r.post('/calc/make-up-water', (req, res) => {

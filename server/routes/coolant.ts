@@ -6,8 +6,10 @@ import { requireAuth, requireRole } from '../auth/middleware';
 import { badRequest, HttpError } from '../http-error';
 import { addOpenApiGroup } from '../openapi';
 import { coolantOpenApi } from '../openapi/coolant-paths';
-import { TEST_METHODS } from '../models/coolant-models';
+import { TEST_METHODS, TOP_UP_LIQUIDS } from '../models/coolant-models';
 import { getAdditiveProfile, saveAdditiveProfile } from '../services/coolant/additive-profile';
+import { getChemistryLimits, saveChemistryLimits } from '../services/coolant/chemistry-limits';
+import { listTopUps, recordTopUp } from '../services/coolant/top-ups';
 import { importLabCsv, listCoolantTests, recordCoolantTest } from '../services/coolant/coolant-tests';
 import { runHoursCounterFor } from '../services/coolant';
 import { correctRunHours, runHoursHistory } from '../services/coolant/run-hours';
@@ -28,8 +30,25 @@ const testBody = z.strictObject({
   freezePointC: optionalReading(-80, 10, 'degC'),
   ph: optionalReading(0, 14, ''),
   conductivityUsCm: optionalReading(0, 200000, 'uS/cm'),
+  nitritePpm: optionalReading(0, 100000, 'ppm'),
+  molybdatePpm: optionalReading(0, 100000, 'ppm'),
+  reserveAlkalinityMl: optionalReading(0, 100, 'mL'),
   appearance: z.string().trim().max(200).nullable().default(null),
   notes: z.string().trim().max(2000).nullable().default(null),
+});
+const limitsBody = z.strictObject({
+  nitriteLowPpm: range(0, 100000, 'ppm'), nitriteHighPpm: range(0, 100000, 'ppm'),
+  molybdateLowPpm: range(0, 100000, 'ppm'), molybdateHighPpm: range(0, 100000, 'ppm'),
+  phLow: range(0, 14, ''), phHigh: range(0, 14, ''),
+  reserveAlkalinityLowMl: range(0, 100, 'mL'), freezeMarginK: range(0, 30, 'K'),
+  extender: z.strictObject({ everyHours: range(1, 100000, 'h').nullable().default(null), everyDays: range(1, 3650, 'days').nullable().default(null) }).nullable(),
+}).partial();
+const topUpBody = z.strictObject({
+  addedAt: instant.optional(),
+  volumeL: z.number().gt(0, 'above 0 L').max(10000, 'at most 10000 L'),
+  liquid: z.enum(TOP_UP_LIQUIDS),
+  premixPercent: range(0, 100, '%').nullable().default(null),
+  notes: z.string().trim().max(500).nullable().default(null),
 });
 const runHoursBody = z.strictObject({ runHours: range(0, 1_000_000, 'h'), reason: z.string().trim().min(3, 'say why (at least 3 characters)').max(500) });
 const profileBody = z.strictObject({
@@ -77,9 +96,9 @@ export function coolantRouter(ctx: AppContext): Router {
   addOpenApiGroup(coolantOpenApi);
   const r = Router();
   const m = ctx.models;
-  for (const p of ['/engines/:id/coolant-tests', '/engines/:id/run-hours', '/engines/:id/service-plan', '/coolant-tests', '/additive-profile', '/due-list']) r.use(p, requireAuth);
+  for (const p of ['/engines/:id/coolant-tests', '/engines/:id/coolant-top-ups', '/engines/:id/run-hours', '/engines/:id/service-plan', '/coolant-tests', '/additive-profile', '/coolant-limits', '/due-list']) r.use(p, requireAuth);
   // an engine of a site the caller may not see reads as not found
-  for (const p of ['/engines/:id/coolant-tests', '/engines/:id/run-hours', '/engines/:id/service-plan']) {
+  for (const p of ['/engines/:id/coolant-tests', '/engines/:id/coolant-top-ups', '/engines/:id/run-hours', '/engines/:id/service-plan']) {
     r.use(p, async (req, _res, next) => {
       await assertEngineVisible(m, await siteScopeOf(req), parseId(req.params));
       next();
@@ -97,6 +116,17 @@ export function coolantRouter(ctx: AppContext): Router {
     res.status(201).json(await recordCoolantTest(m, id, { ...b, testedAt: new Date(testedAt) }, req.user!.id));
   });
 
+  r.get('/engines/:id/coolant-top-ups', async (req, res) => {
+    res.json(await listTopUps(m, parseId(req.params)));
+  });
+  r.post('/engines/:id/coolant-top-ups', requireRole(...RECORDERS), async (req, res) => {
+    const id = parseId(req.params);
+    const b = parse(topUpBody, req.body);
+    const addedAt = b.addedAt ?? Date.now();
+    if (addedAt > Date.now() + 5 * 60 * 1000) throw badRequest('addedAt is in the future', 'addedAt');
+    res.status(201).json(await recordTopUp(m, id, { ...b, addedAt: new Date(addedAt) }, req.user!.id));
+  });
+
   r.post('/coolant-tests/import', requireRole(...RECORDERS), labUpload, async (req, res) => {
     const q = parse(importQuery, req.query);
     if (!req.file) throw badRequest('send the CSV as multipart/form-data in the field "file"', 'file');
@@ -110,6 +140,13 @@ export function coolantRouter(ctx: AppContext): Router {
   });
   r.put('/additive-profile', requireRole('admin'), async (req, res) => {
     res.json(await saveAdditiveProfile(m, parse(profileBody, req.body), req.user!.id));
+  });
+
+  r.get('/coolant-limits', async (_req, res) => {
+    res.json(await getChemistryLimits(m));
+  });
+  r.put('/coolant-limits', requireRole('admin'), async (req, res) => {
+    res.json(await saveChemistryLimits(m, parse(limitsBody, req.body), req.user!.id));
   });
 
   r.get('/engines/:id/run-hours', async (req, res) => {

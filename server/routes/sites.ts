@@ -6,7 +6,12 @@ import { siteScopeOf } from '../services/site-access';
 import { createSite, listSites, retireSite, updateSite } from '../services/sites';
 import { parse, parseId, timeZone } from './validate';
 
-const siteFields = { name: z.string().trim().min(1).max(120), timeZone };
+const siteFields = {
+  name: z.string().trim().min(1).max(120),
+  timeZone,
+  /** Lowest expected temperature, °C (coolant freeze protection is judged against it). */
+  designLowTempC: z.number().min(-80, 'at least -80 degC').max(40, 'at most 40 degC').nullable().optional(),
+};
 const createBody = z.strictObject(siteFields);
 const patchBody = createBody.partial();
 const listQuery = z.object({ includeRetired: z.enum(['true', 'false']).optional() });

@@ -5,6 +5,7 @@ import { ALL_SITES, type SiteScope } from './site-access';
 export interface SiteInput {
   name: string;
   timeZone: string;
+  designLowTempC?: number | null;
 }
 
 export function listSites(models: Models, includeRetired = false, scope: SiteScope = ALL_SITES): Promise<Site[]> {

@@ -1,5 +1,5 @@
 /** JSON shapes of the coolant-test API (server/services/coolant/coolant-tests.ts), shared by server and client. Types only. */
-import type { AdditiveDecision, FreezeAssessment } from '../coolant';
+import type { AdditiveDecision, ChemistryFinding, FreezeAssessment } from '../coolant';
 
 export type TestMethod = 'strip' | 'refractometer' | 'lab';
 export type CoolantTestSource = 'manual' | 'lab-import';
@@ -10,8 +10,10 @@ export interface CoolantDecision {
   additive: AdditiveDecision | null;
   /** Freeze protection from the measured glycol share (by volume, the engine's glycol type), when measured. */
   freeze: FreezeAssessment | null;
+  /** One finding per measured chemistry field and the freeze protection against the site's design low (absent in older records). */
+  findings?: ChemistryFinding[];
   notes: string[];
-  engine: { capacityL: number; coolantFamily: string; glycolType: string };
+  engine: { capacityL: number; coolantFamily: string; glycolType: string; designLowC?: number | null };
 }
 
 /** One coolant test as the API answers it (times as ISO strings). */
@@ -25,6 +27,10 @@ export interface CoolantTestView {
   freezePointC: number | null;
   ph: number | null;
   conductivityUsCm: number | null;
+  /** Inhibitor readings (always sent by the server; optional for older shapes). */
+  nitritePpm?: number | null;
+  molybdatePpm?: number | null;
+  reserveAlkalinityMl?: number | null;
   appearance: string | null;
   notes: string | null;
   testedBy: number | null;

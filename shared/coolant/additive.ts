@@ -26,6 +26,43 @@ export const LOW_DOSE_PINTS_PER_4_GALLONS = 1;
 export const MAX_CAPACITY_L = 10000;
 /** Liquid doses are rounded to this step, litres. */
 export const DOSE_STEP_L = 0.05;
+/**
+ * Smallest practical dose, litres (5 mL, what a graduated syringe measures reliably; common practice). Doses
+ * under one DOSE_STEP_L are given in steps of this size instead of rounding to 0.00 L.
+ */
+export const MIN_PRACTICAL_DOSE_L = 0.005;
+
+export interface PracticalDose {
+  /** The dose to measure, litres: a multiple of DOSE_STEP_L, or of MIN_PRACTICAL_DOSE_L below it. */
+  litres: number;
+  /** The dose as computed, before rounding. */
+  exactL: number;
+  /** How it was rounded, in words (null when nothing is to be added). */
+  note: string | null;
+}
+
+/**
+ * Round a computed dose to something that can be measured: 0.05 L steps; below 0.05 L, 5 mL steps; never
+ * 0 L for a dose that is needed (the minimum practical dose 5 mL instead, said so).
+ */
+export function practicalDose(exactL: number): PracticalDose {
+  const exact = requireFinite('dose', exactL);
+  if (exact <= 0) return { litres: 0, exactL: Math.max(0, exact), note: null };
+  const ml = (l: number): string => `${Math.round(l * 1000)} mL`;
+  if (exact < MIN_PRACTICAL_DOSE_L) {
+    return {
+      litres: MIN_PRACTICAL_DOSE_L,
+      exactL: exact,
+      note: `The exact dose, ${ml(exact)}, is below the smallest practical dose of ${ml(MIN_PRACTICAL_DOSE_L)}: add ${ml(MIN_PRACTICAL_DOSE_L)} and test again, or refill with coolant that already carries its additive.`,
+    };
+  }
+  if (exact < DOSE_STEP_L) {
+    const litres = Math.max(MIN_PRACTICAL_DOSE_L, Math.round(Math.round(exact / MIN_PRACTICAL_DOSE_L) * MIN_PRACTICAL_DOSE_L * 1000) / 1000);
+    return { litres, exactL: exact, note: `Small dose: ${ml(exact)} exactly, rounded to ${ml(litres)} (5 mL steps under ${DOSE_STEP_L.toFixed(2)} L); measure it with a graduated syringe.` };
+  }
+  const litres = Math.max(DOSE_STEP_L, roundToStep(exact, 'nearest'));
+  return { litres, exactL: exact, note: `Rounded from ${exact.toFixed(3)} L to the nearest ${DOSE_STEP_L.toFixed(2)} L.` };
+}
 
 export const unitsPerGalToPerLitre = (unitsPerGal: number): number => unitsPerGal / LITRES_PER_US_GALLON;
 export const unitsPerLitreToPerGal = (unitsPerLitre: number): number => unitsPerLitre * LITRES_PER_US_GALLON;
@@ -47,6 +84,8 @@ export interface AdditiveDecision {
   liquidAdditiveL: number;
   /** The same dose in US pints, for people who measure that way. */
   liquidAdditiveUsPints: number;
+  /** How the dose was rounded, in words (only when a dose is given). */
+  doseNote?: string | null;
   /** The reading as given (per US gallon) and converted (per litre). */
   scaUnitsPerGal: number | null;
   scaUnitsPerLitre: number | null;
@@ -117,19 +156,23 @@ export function decideAdditive(input: AdditiveInput): AdditiveDecision {
   if (units < limits.low) {
     const gallons = capacityL / LITRES_PER_US_GALLON;
     const pints = (gallons / 4) * LOW_DOSE_PINTS_PER_4_GALLONS;
-    const litres = roundToStep(pints * LITRES_PER_US_PINT, 'nearest');
+    const dose = practicalDose(pints * LITRES_PER_US_PINT);
+    const litres = dose.litres;
+    const shownL = litres < DOSE_STEP_L ? fmt(litres, 3) : fmt(litres);
     return {
       status: 'low',
       filter: 'charged',
       liquidAdditiveL: litres,
-      liquidAdditiveUsPints: Math.round((litres / LITRES_PER_US_PINT) * 10) / 10,
+      liquidAdditiveUsPints: litres < DOSE_STEP_L ? Math.round((litres / LITRES_PER_US_PINT) * 1000) / 1000 : Math.round((litres / LITRES_PER_US_PINT) * 10) / 10,
+      doseNote: dose.note,
       scaUnitsPerGal: units,
       scaUnitsPerLitre: perL,
       limits,
       reasons: [
         `Additive low: ${reading} is below ${fmt(limits.low)} units/US gal.`,
         'Change the coolant filter for a charged one.',
-        `Add about one US pint of liquid additive per 4 US gallons of capacity: ${fmt(litres)} L for ${fmt(capacityL, 1)} L (${fmt(gallons, 1)} US gal).`,
+        `Add about one US pint of liquid additive per 4 US gallons of capacity: ${shownL} L for ${fmt(capacityL, 1)} L (${fmt(gallons, 1)} US gal).`,
+        ...(dose.note ? [dose.note] : []),
         'Test again after the engine has run and the coolant has mixed.',
       ],
       cautions,

@@ -5,6 +5,10 @@
  * - ethylene glycol, % by mass: ASHRAE Handbook - Fundamentals (2009), ch. 31, table 4;
  * - propylene glycol, % by volume: Lange's Handbook of Chemistry, 15th ed. (1999), table 5.13.
  * Both start at 0 % -> 0 °C, the ice point of water at one atmosphere.
+ * Both are extended to cover 0-60 % on either basis with points computed from CoolProp 8.0 (incompressible
+ * mixtures `AEG` and `APG`, its polynomial fits of ASHRAE Fundamentals glycol data, by volume; computed outside
+ * the project): ethylene 60 vol % -> -52.0 °C, propylene 55 vol % -> -41.6 °C and 60 vol % -> -51.1 °C.
+ * Each point carries its own source (`pointSources`).
  * The other two bases are reached by converting volume <-> mass fraction with the densities of the pure
  * liquids at 20 °C (CRC Handbook of Chemistry and Physics), which neglects the volume contraction on mixing
  * (a few tenths of a percentage point at 50 %).
@@ -30,21 +34,32 @@ interface FreezeTable {
   basis: ConcentrationBasis;
   percent: number[];
   freezeC: number[];
+  /** Where each point comes from (same order as percent). */
+  pointSources: string[];
   source: string;
 }
+
+const ASHRAE_EG = 'ASHRAE Fundamentals 2009 ch. 31 table 4';
+const LANGE_PG = "Lange's 15th ed. table 5.13";
+const COOLPROP_AEG = 'CoolProp 8.0 INCOMP::AEG (fit of ASHRAE data, vol %), 60 vol % = 62.6 mass % by the CRC densities';
+const COOLPROP_APG = 'CoolProp 8.0 INCOMP::APG (fit of ASHRAE data, vol %)';
+/** 60 % by volume of ethylene glycol on the mass basis of the ASHRAE table (CRC densities, ideal mixing). */
+const EG_60_VOL_AS_MASS = (100 * 0.6 * 1.1132) / (0.6 * 1.1132 + 0.4 * 0.9982);
 
 const TABLES: Record<GlycolType, FreezeTable> = {
   ethylene: {
     basis: 'mass',
-    percent: [0, 10, 20, 30, 40, 50, 60],
-    freezeC: [0, -3.3, -7.8, -14.0, -22.5, -33.8, -48.5],
-    source: 'ASHRAE Handbook - Fundamentals (2009), ch. 31, table 4 (ethylene glycol, % by mass)',
+    percent: [0, 10, 20, 30, 40, 50, 60, EG_60_VOL_AS_MASS],
+    freezeC: [0, -3.3, -7.8, -14.0, -22.5, -33.8, -48.5, -52.0],
+    pointSources: ['ice point', ASHRAE_EG, ASHRAE_EG, ASHRAE_EG, ASHRAE_EG, ASHRAE_EG, ASHRAE_EG, COOLPROP_AEG],
+    source: 'ASHRAE Handbook - Fundamentals (2009), ch. 31, table 4 (ethylene glycol, % by mass, to 60 %); 60 % by volume from CoolProp 8.0 AEG (ASHRAE fit)',
   },
   propylene: {
     basis: 'volume',
-    percent: [0, 10, 20, 30, 40, 50],
-    freezeC: [0, -2.2, -6.7, -12.8, -20.6, -33.3],
-    source: "Lange's Handbook of Chemistry, 15th ed. (1999), table 5.13 (propylene glycol, % by volume)",
+    percent: [0, 10, 20, 30, 40, 50, 55, 60],
+    freezeC: [0, -2.2, -6.7, -12.8, -20.6, -33.3, -41.6, -51.1],
+    pointSources: ['ice point', LANGE_PG, LANGE_PG, LANGE_PG, LANGE_PG, LANGE_PG, COOLPROP_APG, COOLPROP_APG],
+    source: "Lange's Handbook of Chemistry, 15th ed. (1999), table 5.13 (propylene glycol, % by volume, to 50 %); 55-60 % from CoolProp 8.0 APG (ASHRAE fit)",
   },
 };
 
@@ -56,7 +71,7 @@ const CURVES = {
 /** The published table behind a glycol type (a copy), with its own basis and source. */
 export function freezeTable(glycol: GlycolType): Readonly<FreezeTable> {
   const t = TABLES[requireOneOf('glycol', glycol, GLYCOL_TYPES)];
-  return { ...t, percent: [...t.percent], freezeC: [...t.freezeC] };
+  return { ...t, percent: [...t.percent], freezeC: [...t.freezeC], pointSources: [...t.pointSources] };
 }
 
 /** Volume % of glycol -> mass % (ideal mixing: no volume contraction). */
@@ -108,7 +123,7 @@ export function freezePointC(glycol: GlycolType, percent: number, basis: Concent
   requireOneOf('glycol', glycol, GLYCOL_TYPES);
   requireOneOf('basis', basis, CONCENTRATION_BASES);
   const max = tableMaxPercent(glycol, basis);
-  // Tolerance so that the converted table end (e.g. 57.37 vol %) is itself accepted.
+  // Tolerance so that the converted table end (e.g. 60.93 mass % of propylene glycol) is itself accepted.
   const p = requireFinite('percent', percent);
   if (p < 0 || p > max + 1e-9) {
     throw new CoolantInputError('percent', `the published ${glycol} glycol table covers 0 to ${max.toFixed(1)} % by ${basis} (got ${p} %)`);

@@ -8,3 +8,5 @@ export * from './additive';
 export * from './mix-correction';
 export * from './make-up-water';
 export * from './cautions';
+export * from './chemistry';
+export * from './top-up';

@@ -93,7 +93,17 @@ export function dueList(
 export interface PlanEngine {
   oilDrainIntervalH: number;
   duty: 'standby' | 'prime' | 'continuous';
+  /** Extended-life coolant adds the extender task and makes the coolant test a lab analysis. */
+  coolantFamily?: 'conventional' | 'extended-life';
+  /** The administrator's extender interval; the common-practice default (a placeholder) when absent. */
+  extender?: { everyHours: number | null; everyDays: number | null } | null;
 }
+
+/**
+ * Extended-life coolant extender: common practice (from memory) is one dose of extender about midway through
+ * the coolant's service life, often quoted as 6000 h or 3 years; the coolant maker's interval comes first.
+ */
+export const DEFAULT_EXTENDER_INTERVAL = Object.freeze({ everyHours: 6000, everyDays: 1095 });
 
 /**
  * Default service plan (common practice; replace with the engine maker's schedule):
@@ -110,6 +120,16 @@ export function defaultServicePlan(engine: PlanEngine): ServiceTask[] {
     { key: 'coolant-test', title: 'Coolant test: additive, glycol, freeze point, pH, conductivity', everyHours: h, everyDays: 182, basis: 'at least twice a year and at every service (common practice)' },
     { key: 'drain-flush-refill', title: 'Drain, flush and refill cooling system', everyHours: 3000, everyDays: 730, placeholder: true, basis: 'placeholder default; use the engine and coolant maker\'s interval' },
   ];
+  if (engine.coolantFamily === 'extended-life') {
+    const test = tasks.find((t) => t.key === 'coolant-test')!;
+    test.title = 'Coolant lab analysis (extended-life coolant: test strips do not apply)';
+    const set = engine.extender ?? null;
+    tasks.push(
+      set
+        ? { key: 'coolant-extender', title: 'Add extended-life coolant extender', everyHours: set.everyHours, everyDays: set.everyDays, basis: 'set by the administrator (from the coolant maker\'s literature)' }
+        : { key: 'coolant-extender', title: 'Add extended-life coolant extender', ...DEFAULT_EXTENDER_INTERVAL, placeholder: true, basis: 'common practice (from memory): about midway through the coolant\'s life; use the coolant maker\'s interval' },
+    );
+  }
   if (engine.duty === 'standby') {
     tasks.push(
       { key: 'weekly-inspection', title: 'Weekly inspection (coolant level, heater, leaks, hoses)', everyDays: 7, basis: 'in the spirit of NFPA 110 chapter 8 (weekly inspection)' },

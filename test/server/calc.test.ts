@@ -45,6 +45,39 @@ describe('freeze point and glycol needed', () => {
     expect(res.body.percent).toBeCloseTo(30, 4);
   });
 
+  // Contract: 0-60 % for both glycols on both bases. Table ends: ASHRAE 60 mass % EG -48.5 °C; CoolProp 8.0 AEG
+  // (ASHRAE fit) 60 vol % EG -52.0 °C; CoolProp 8.0 APG (ASHRAE fit) 60 vol % PG -51.1 °C (computed outside the project).
+  it.each([
+    ['ethylene', 'mass', 60, -48.5], ['ethylene', 'volume', 60, -52.0], ['propylene', 'volume', 60, -51.1], ['propylene', 'volume', 55, -41.6],
+  ])('%s %s %d %% -> %f °C, no warning at 60 %%, and the inverse gives the share back', async (glycol, basis, percent, fp) => {
+    const res = await post('freeze-point', { glycol, percent, basis }).expect(200);
+    expect(res.body.freezePointC).toBeCloseTo(fp as number, 6);
+    expect(res.body.warnings).toEqual([]);
+    const inv = await post('glycol-for-freeze-point', { glycol, freezePointC: fp, basis }).expect(200);
+    expect(inv.body.percent).toBeCloseTo(percent as number, 4);
+  });
+  it('every glycol and basis answers a freeze point from 0 to 60 %', async () => {
+    for (const glycol of ['ethylene', 'propylene']) {
+      for (const basis of ['volume', 'mass']) {
+        for (const percent of [0, 15, 35, 52.5, 60]) {
+          const res = await post('freeze-point', { glycol, percent, basis }).expect(200);
+          expect(typeof res.body.freezePointC).toBe('number');
+        }
+      }
+    }
+  });
+  it('PG 60 mass % (59.1 vol % by the CRC densities) lies near the CoolProp 8.0 MPG (Melinder) value -50.0 °C (within 2 K)', async () => {
+    const res = await post('freeze-point', { glycol: 'propylene', percent: 60, basis: 'mass' }).expect(200);
+    expect(Math.abs(res.body.freezePointC - -50.003)).toBeLessThan(2);
+  });
+  it('above 60 % the answer warns that protection gets worse', async () => {
+    const res = await post('freeze-point', { glycol: 'propylene', percent: 60.5, basis: 'mass' }).expect(200);
+    expect(res.body.warnings.join(' ')).toMatch(/more glycol protects less/);
+    const inv = await post('glycol-for-freeze-point', { glycol: 'ethylene', freezePointC: -51, basis: 'mass' }).expect(200);
+    expect(inv.body.percent).toBeGreaterThan(60);
+    expect(inv.body.warnings.join(' ')).toMatch(/more glycol protects less/);
+  });
+
   it('beyond the table names freezePointC (the API field, not the library one)', async () => {
     const res = await post('glycol-for-freeze-point', { glycol: 'propylene', freezePointC: -60, basis: 'volume' }).expect(400);
     expect(res.body.field).toBe('freezePointC');
@@ -104,6 +137,16 @@ describe('mix correction, make-up water, initial charge', () => {
     expect(res.body.drainL).toBeCloseTo(100 / 6, 6);
     expect(res.body.resultingPercent).toBeCloseTo(50, 9);
   });
+  it('a premix equal to the target: drain completely and refill with premix; the additive dilution and its dose (mass balance, NIST SP 811 gallon)', async () => {
+    const res = await post('mix-correction', { capacityL: 100, measuredPercent: 40, targetPercent: 50, premixPercent: 50, scaUnitsPerGal: 2, liquidUnitsPerLitre: 10 }).expect(200);
+    expect(res.body.fullDrain).toBe(true);
+    expect(res.body.drainL).toBe(100);
+    expect(res.body.reasons[0]).toMatch(/drain the system completely/);
+    // all 100 L replaced: 2 units/gal x 26.417 gal = 52.83 units; / 10 units/L = 5.283 L -> 5.30 L
+    expect(res.body.additive.restoreUnits).toBeCloseTo(2 * (100 / GAL), 6);
+    expect(res.body.additive.restoreLiquidL).toBeCloseTo(5.3, 10);
+    expect(res.body.reasons.join(' ')).toMatch(/removes 100 % of its additive/);
+  });
   it('chloride 41 mg/L fails the 40 mg/L limit (ASTM D6210 X1 / D4985)', async () => {
     const res = await post('make-up-water', { chlorideMgL: 41, sulfateMgL: 50, hardnessMgLCaCO3: 100, tdsMgL: 200, pH: 7 }).expect(200);
     expect(res.body.verdict).toBe('not-acceptable');
@@ -146,6 +189,8 @@ describe('bad input is 400 naming the field', () => {
     ['boiling-point', { gaugePressureKpa: 100, glycol: 'ethylene', percent: 95 }, 'percent'],
     ['mix-correction', { capacityL: 100, measuredPercent: 40, targetPercent: 50, premixPercent: 45 }, 'premixPercent'],
     ['mix-correction', { capacityL: 20000, measuredPercent: 40, targetPercent: 50 }, 'capacityL'],
+    ['mix-correction', { capacityL: 400, measuredPercent: 30, targetPercent: 100 }, 'targetPercent'],
+    ['mix-correction', { capacityL: 400, measuredPercent: 30, targetPercent: 60.5 }, 'targetPercent'],
     ['make-up-water', { pH: 15 }, 'pH'],
     ['initial-charge', { capacityL: 100, liquidUnitsPerLitre: -3 }, 'liquidUnitsPerLitre'],
   ])('%s %j -> field %s', async (path, body, field) => {

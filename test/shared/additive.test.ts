@@ -3,7 +3,7 @@
  * filter and "strips do not apply to extended-life coolant" are common practice of the trade (defaults, overridable).
  * Volume factors: NIST SP 811 Appendix B (1 US gal = 3.785411784 L, 1 US pint = 0.473176473 L).
  */
-import { decideAdditive, initialChargeAfterRefill, unitsPerGalToPerLitre, unitsPerLitreToPerGal } from '../../shared/coolant/additive';
+import { decideAdditive, initialChargeAfterRefill, MIN_PRACTICAL_DOSE_L, practicalDose, unitsPerGalToPerLitre, unitsPerLitreToPerGal } from '../../shared/coolant/additive';
 
 const conv = (scaUnitsPerGal: number, capacityL = 60.6) => decideAdditive({ coolantFamily: 'conventional', scaUnitsPerGal, capacityL });
 
@@ -154,5 +154,31 @@ describe('initial charge after a refill', () => {
   ])('bad input %# -> RangeError naming the field', (input, re) => {
     expect(() => initialChargeAfterRefill(input as never)).toThrow(RangeError);
     expect(() => initialChargeAfterRefill(input as never)).toThrow(re);
+  });
+});
+
+describe('minimum practical dose: never "low" with 0.00 L (5 mL minimum and 5 mL steps below 0.05 L are common practice)', () => {
+  it('0.5 L system: 0.5 / 3.785411784 / 4 pints x 0.473176473 = 0.015625 L exactly (NIST SP 811 factors) -> 15 mL, said so', () => {
+    const d = conv(0.5, 0.5);
+    expect(d.status).toBe('low');
+    expect(d.liquidAdditiveL).toBeCloseTo(0.015, 10);
+    expect(d.liquidAdditiveL).toBeGreaterThan(0);
+    expect(d.doseNote).toMatch(/16 mL exactly, rounded to 15 mL/);
+    expect(d.reasons.join(' ')).toMatch(/0\.015 L/);
+    expect(d.liquidAdditiveUsPints).toBeCloseTo(0.015 / 0.473176473, 3);
+  });
+  it('the smallest system still gets the 5 mL minimum with the reason', () => {
+    const d = conv(0.5, 0.05); // exact 1.6 mL
+    expect(d.liquidAdditiveL).toBe(MIN_PRACTICAL_DOSE_L);
+    expect(d.doseNote).toMatch(/below the smallest practical dose of 5 mL/);
+  });
+  it.each([
+    [0, 0], [0.0012, 0.005], [0.0074, 0.005], [0.0076, 0.01], [0.0249, 0.025], [0.049, 0.05], [0.074, 0.05], [0.076, 0.1], [1.894, 1.9],
+  ])('practicalDose(%f L) -> %f L (5 mL steps below 0.05 L, 0.05 L steps above, hand arithmetic)', (exact, litres) => {
+    expect(practicalDose(exact).litres).toBeCloseTo(litres, 10);
+  });
+  it('the note says how it was rounded', () => {
+    expect(practicalDose(0).note).toBeNull();
+    expect(practicalDose(1.894).note).toMatch(/Rounded from 1\.894 L to the nearest 0\.05 L/);
   });
 });

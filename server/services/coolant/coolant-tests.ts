@@ -1,5 +1,6 @@
 import {
-  assessFreezeProtection, CoolantInputError, decideAdditive, type AdditiveDecision, type FreezeAssessment, type ScaLimits,
+  assessFreezeProtection, CoolantInputError, decideAdditive, judgeChemistry, type AdditiveDecision, type ChemistryLimits,
+  type FreezeAssessment, type ScaLimits,
 } from '../../../shared/coolant';
 import { badRequest } from '../../http-error';
 import type { Engine, Models } from '../../models';
@@ -8,6 +9,7 @@ import { getEngine } from '../engines';
 import type { CoolantDecision, CoolantTestView } from '../../../shared/api/coolant-view';
 import { maySeeSite, type SiteScope } from '../site-access';
 import { getAdditiveProfile } from './additive-profile';
+import { getChemistryLimits } from './chemistry-limits';
 import { LabCsvError, parseLabCsv, type LabRow, type RowError } from './lab-csv';
 
 export type { CoolantDecision, CoolantTestView } from '../../../shared/api/coolant-view';
@@ -20,12 +22,26 @@ export interface TestInput {
   freezePointC: number | null;
   ph: number | null;
   conductivityUsCm: number | null;
+  nitritePpm?: number | null;
+  molybdatePpm?: number | null;
+  reserveAlkalinityMl?: number | null;
   appearance: string | null;
   notes?: string | null;
 }
 
+/** What the chemistry findings need besides the test: the limits and the site's design low temperature. */
+export interface ChemistryJudgeContext {
+  limits: ChemistryLimits;
+  designLowC: number | null;
+}
+
 /** The decision for one test of this engine (pure apart from its inputs). */
-export function decideForTest(engine: Pick<Engine, 'capacityL' | 'coolantFamily' | 'glycolType'>, t: Pick<TestInput, 'scaUnitsPerGal' | 'glycolPercent' | 'freezePointC'>, limits: ScaLimits): CoolantDecision {
+export function decideForTest(
+  engine: Pick<Engine, 'capacityL' | 'coolantFamily' | 'glycolType'>,
+  t: Pick<TestInput, 'scaUnitsPerGal' | 'glycolPercent' | 'freezePointC'> & Partial<Pick<TestInput, 'ph' | 'nitritePpm' | 'molybdatePpm' | 'reserveAlkalinityMl'>>,
+  limits: ScaLimits,
+  chem?: ChemistryJudgeContext,
+): CoolantDecision {
   const notes: string[] = [];
   let additive: AdditiveDecision | null = null;
   if (engine.coolantFamily === 'extended-life') {
@@ -43,7 +59,23 @@ export function decideForTest(engine: Pick<Engine, 'capacityL' | 'coolantFamily'
       notes.push(`Measured freeze point ${t.freezePointC.toFixed(1)} °C differs by more than 3 °C from the table value for ${t.glycolPercent} % ${engine.glycolType} glycol (${freeze.freezePointC.toFixed(1)} °C): check the glycol type and the instrument.`);
     }
   }
-  return { additive, freeze, notes, engine: { capacityL: engine.capacityL, coolantFamily: engine.coolantFamily, glycolType: engine.glycolType } };
+  const findings = chem
+    ? judgeChemistry(
+      { nitritePpm: t.nitritePpm, molybdatePpm: t.molybdatePpm, ph: t.ph, reserveAlkalinityMl: t.reserveAlkalinityMl, glycolPercent: t.glycolPercent, freezePointC: t.freezePointC },
+      { glycolType: engine.glycolType, coolantFamily: engine.coolantFamily, designLowC: chem.designLowC },
+      chem.limits,
+    )
+    : [];
+  return {
+    additive, freeze, findings, notes,
+    engine: { capacityL: engine.capacityL, coolantFamily: engine.coolantFamily, glycolType: engine.glycolType, designLowC: chem?.designLowC ?? null },
+  };
+}
+
+/** Limits and the design low temperature of the engine's site, for judging its tests. */
+async function chemistryContext(models: Models, engine: Engine, limits?: ChemistryLimits): Promise<ChemistryJudgeContext> {
+  const site = await models.Site.findByPk(engine.siteId);
+  return { limits: limits ?? (await getChemistryLimits(models)).limits, designLowC: site?.designLowTempC ?? null };
 }
 
 async function userNames(models: Models, ids: (number | null)[]): Promise<Map<number, string>> {
@@ -57,6 +89,7 @@ function view(t: CoolantTest, names: Map<number, string>): CoolantTestView {
   return {
     id: t.id, engineId: t.engineId, testedAt: new Date(t.testedAt).toISOString(), method: t.method,
     scaUnitsPerGal: t.scaUnitsPerGal, glycolPercent: t.glycolPercent, freezePointC: t.freezePointC, ph: t.ph, conductivityUsCm: t.conductivityUsCm,
+    nitritePpm: t.nitritePpm ?? null, molybdatePpm: t.molybdatePpm ?? null, reserveAlkalinityMl: t.reserveAlkalinityMl ?? null,
     appearance: t.appearance, notes: t.notes, testedBy: t.testedBy, testedByName: t.testedBy === null ? null : (names.get(t.testedBy) ?? null),
     decision: (t.decision as unknown as CoolantDecision) ?? null, source: t.source, createdAt: new Date(t.createdAt).toISOString(),
   };
@@ -69,9 +102,9 @@ export async function listCoolantTests(models: Models, engineId: number, limit =
   return rows.map((r) => view(r, names));
 }
 
-function decideOr400(engine: Engine, input: TestInput, limits: ScaLimits): CoolantDecision {
+function decideOr400(engine: Engine, input: TestInput, limits: ScaLimits, chem: ChemistryJudgeContext): CoolantDecision {
   try {
-    return decideForTest(engine, input, limits);
+    return decideForTest(engine, input, limits, chem);
   } catch (err) {
     if (err instanceof CoolantInputError) throw badRequest(err.message, err.field);
     throw err;
@@ -82,9 +115,10 @@ export async function recordCoolantTest(models: Models, engineId: number, input:
   const engine = await getEngine(models, engineId);
   if (engine.retiredAt) throw badRequest('engine is retired', 'engineId');
   const profile = await getAdditiveProfile(models);
-  const decision = decideOr400(engine, input, profile.limits);
+  const decision = decideOr400(engine, input, profile.limits, await chemistryContext(models, engine));
   const row = await models.CoolantTest.create({
-    engineId, ...input, notes: input.notes ?? null, testedBy: userId, decision: decision as unknown as Record<string, unknown>, source: 'manual',
+    engineId, ...input, nitritePpm: input.nitritePpm ?? null, molybdatePpm: input.molybdatePpm ?? null, reserveAlkalinityMl: input.reserveAlkalinityMl ?? null,
+    notes: input.notes ?? null, testedBy: userId, decision: decision as unknown as Record<string, unknown>, source: 'manual',
   });
   return view(row, await userNames(models, [userId]));
 }
@@ -117,6 +151,7 @@ export async function importLabCsv(models: Models, buf: Buffer, opts: { preview:
     throw err;
   }
   const profile = await getAdditiveProfile(models);
+  const chemLimits = (await getChemistryLimits(models)).limits;
   const ids = [...new Set(parsed.rows.map((r) => r.row.engineId ?? opts.engineId!))];
   const engines = new Map((await models.Engine.findAll({ where: { id: ids } })).map((e) => [e.id, e]));
   const rejected = [...parsed.errors];
@@ -133,7 +168,7 @@ export async function importLabCsv(models: Models, buf: Buffer, opts: { preview:
       continue;
     }
     try {
-      good.push({ line, row, engine, decision: decideForTest(engine, row, profile.limits) });
+      good.push({ line, row, engine, decision: decideForTest(engine, row, profile.limits, await chemistryContext(models, engine, chemLimits)) });
     } catch (err) {
       if (!(err instanceof CoolantInputError)) throw err;
       rejected.push({ line, field: null, error: err.message });
@@ -148,7 +183,8 @@ export async function importLabCsv(models: Models, buf: Buffer, opts: { preview:
     await models.CoolantTest.bulkCreate(
       good.map(({ row, engine, decision }) => ({
         engineId: engine.id, testedAt: row.testedAt, method: row.method, scaUnitsPerGal: row.scaUnitsPerGal, glycolPercent: row.glycolPercent,
-        freezePointC: row.freezePointC, ph: row.ph, conductivityUsCm: row.conductivityUsCm, appearance: row.appearance, notes: null,
+        freezePointC: row.freezePointC, ph: row.ph, conductivityUsCm: row.conductivityUsCm, nitritePpm: row.nitritePpm, molybdatePpm: row.molybdatePpm,
+        appearance: row.appearance, notes: null,
         testedBy: opts.userId, decision: decision as unknown as Record<string, unknown>, source: 'lab-import' as const,
       })),
     );

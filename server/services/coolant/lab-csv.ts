@@ -3,6 +3,8 @@
  *
  *   engine_id,tested_at,method,sca_units_per_gal,glycol_percent,freeze_point_c,ph,conductivity_us_cm,appearance
  *
+ * plus the optional columns nitrite_ppm and molybdate_ppm (as the lab reports them, mg/kg = ppm).
+ *
  * - UTF-8 text, optional byte-order mark, LF or CRLF line ends, comma-separated; the header row is required and
  *   names exactly these columns (any order; `engine_id` may be left out when the import is for one engine).
  * - Fields may be in double quotes (a quote inside is doubled), as RFC 4180 describes; no line breaks inside fields.
@@ -13,7 +15,7 @@
  */
 import type { TestMethod } from '../../models/coolant-models';
 
-export const LAB_CSV_COLUMNS = ['engine_id', 'tested_at', 'method', 'sca_units_per_gal', 'glycol_percent', 'freeze_point_c', 'ph', 'conductivity_us_cm', 'appearance'] as const;
+export const LAB_CSV_COLUMNS = ['engine_id', 'tested_at', 'method', 'sca_units_per_gal', 'glycol_percent', 'freeze_point_c', 'ph', 'conductivity_us_cm', 'appearance', 'nitrite_ppm', 'molybdate_ppm'] as const;
 export type LabCsvColumn = (typeof LAB_CSV_COLUMNS)[number];
 export const MAX_ROWS = 5000;
 
@@ -33,6 +35,8 @@ export interface LabRow {
   freezePointC: number | null;
   ph: number | null;
   conductivityUsCm: number | null;
+  nitritePpm: number | null;
+  molybdatePpm: number | null;
   appearance: string | null;
 }
 
@@ -113,6 +117,8 @@ const RANGES: Partial<Record<LabCsvColumn, [number, number, string]>> = {
   freeze_point_c: [-80, 10, '°C'],
   ph: [0, 14, ''],
   conductivity_us_cm: [0, 200000, 'µS/cm'],
+  nitrite_ppm: [0, 100000, 'ppm'],
+  molybdate_ppm: [0, 100000, 'ppm'],
 };
 
 /**
@@ -192,10 +198,12 @@ export function parseLabCsv(buf: Buffer, opts: { now?: number; engineIdOptional?
     const fp = numberOf('freeze_point_c');
     const ph = numberOf('ph');
     const ec = numberOf('conductivity_us_cm');
+    const no2 = numberOf('nitrite_ppm');
+    const mo = numberOf('molybdate_ppm');
     const appearance = get('appearance');
     if (appearance.length > 200) fail('appearance', 'longer than 200 characters');
     if (errors.length > before) continue;
-    if ([sca, glycol, fp, ph, ec].every((v) => v === null)) {
+    if ([sca, glycol, fp, ph, ec, no2, mo].every((v) => v === null)) {
       errors.push({ line, field: null, error: 'no measured value in the row' });
       continue;
     }
@@ -204,7 +212,7 @@ export function parseLabCsv(buf: Buffer, opts: { now?: number; engineIdOptional?
       row: {
         engineId, testedAt: testedAt!, method: m as TestMethod,
         scaUnitsPerGal: sca ?? null, glycolPercent: glycol ?? null, freezePointC: fp ?? null, ph: ph ?? null, conductivityUsCm: ec ?? null,
-        appearance: appearance || null,
+        nitritePpm: no2 ?? null, molybdatePpm: mo ?? null, appearance: appearance || null,
       },
     });
   }

@@ -3,6 +3,7 @@ import { defaultServicePlan, dueList, type DueState, type ServiceTask, type Task
 import { badRequest } from '../../http-error';
 import type { Engine, Models } from '../../models';
 import { getEngine } from '../engines';
+import { getChemistryLimits } from './chemistry-limits';
 import { WORK_KINDS, workTemplate, type WorkKind } from '../work-templates';
 
 /**
@@ -32,7 +33,7 @@ export async function servicePlan(models: Models, engine: Engine): Promise<PlanT
   const overrides = await models.ServiceTaskOverride.findAll({ where: { engineId: engine.id } });
   const byKey = new Map(overrides.map((o) => [o.taskKey, o]));
   const tasks: PlanTask[] = [];
-  for (const t of defaultServicePlan({ oilDrainIntervalH: engine.oilDrainIntervalH, duty: engine.duty })) {
+  for (const t of defaultServicePlan(await planEngine(models, engine))) {
     const o = byKey.get(t.key);
     byKey.delete(t.key);
     if (o?.disabled) continue;
@@ -54,13 +55,19 @@ export async function servicePlan(models: Models, engine: Engine): Promise<PlanT
   return tasks;
 }
 
+/** What the default plan needs of an engine, with the administrator's extender interval for extended-life coolant. */
+async function planEngine(models: Models, engine: Engine) {
+  const extender = engine.coolantFamily === 'extended-life' ? (await getChemistryLimits(models)).extender : null;
+  return { oilDrainIntervalH: engine.oilDrainIntervalH, duty: engine.duty, coolantFamily: engine.coolantFamily, extender };
+}
+
 export async function enginePlan(models: Models, engineId: number): Promise<PlanTask[]> {
   return servicePlan(models, await getEngine(models, engineId));
 }
 
 export async function setOverride(models: Models, engineId: number, taskKey: string, input: OverrideInput, userId: number): Promise<PlanTask[]> {
   const engine = await getEngine(models, engineId);
-  const known = defaultServicePlan({ oilDrainIntervalH: engine.oilDrainIntervalH, duty: engine.duty }).some((t) => t.key === taskKey);
+  const known = defaultServicePlan(await planEngine(models, engine)).some((t) => t.key === taskKey);
   const existing = await models.ServiceTaskOverride.findOne({ where: { engineId, taskKey } });
   if (!known && !existing && !input.title) throw badRequest('a task of its own needs a title', 'title');
   const values = {
@@ -139,7 +146,11 @@ async function lastDone(models: Models, engineIds: number[], now: number): Promi
   if (!engineIds.length) return out;
   const cutoff = new Date(now);
   const events = await models.ServiceEvent.findAll({ where: { engineId: engineIds, doneAt: { [Op.lte]: cutoff } }, order: [['doneAt', 'ASC']] });
-  for (const e of events) put(e.engineId, e.taskKey, new Date(e.doneAt).getTime(), e.runHours);
+  for (const e of events) {
+    put(e.engineId, e.taskKey, new Date(e.doneAt).getTime(), e.runHours);
+    // fresh extended-life coolant needs no extender until its interval has run from the refill
+    if (e.taskKey === 'drain-flush-refill') put(e.engineId, 'coolant-extender', new Date(e.doneAt).getTime(), e.runHours);
+  }
   const tests = await models.CoolantTest.findAll({ where: { engineId: engineIds, testedAt: { [Op.lte]: cutoff } }, attributes: ['engineId', 'testedAt'], order: [['testedAt', 'ASC']] });
   // a recorded test has no hour-meter reading with it: calendar only, unless a service event says more
   for (const t of tests) {

@@ -59,5 +59,9 @@ export class AdditiveDecisionView {
   private readonly prefs = inject(PreferencesService);
   readonly decision = input<AdditiveDecision | null>(null);
   protected readonly status = computed(() => STATUS[this.decision()?.status ?? 'not-applicable']);
-  protected readonly dose = computed(() => formatStored(this.decision()?.liquidAdditiveL ?? 0, 'volume', this.prefs.preferences(), 2));
+  // doses under 0.05 L come in 5 mL steps (shared/coolant/additive.ts): one more decimal so they do not read as 0.00 or 0.02
+  protected readonly dose = computed(() => {
+    const l = this.decision()?.liquidAdditiveL ?? 0;
+    return formatStored(l, 'volume', this.prefs.preferences(), l > 0 && l < 0.05 ? 3 : 2);
+  });
 }

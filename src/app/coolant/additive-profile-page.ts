@@ -6,6 +6,7 @@ import { MatButtonModule } from '@angular/material/button';
 import { MatFormFieldModule } from '@angular/material/form-field';
 import { MatIconModule } from '@angular/material/icon';
 import { MatInputModule } from '@angular/material/input';
+import { ChemistryLimitsForm } from './chemistry-limits-form';
 import { CoolantService } from './coolant.service';
 import { AdditiveProfile } from './coolant-types';
 
@@ -13,7 +14,7 @@ import { AdditiveProfile } from './coolant-types';
 @Component({
   selector: 'jw-additive-profile-page',
   changeDetection: ChangeDetectionStrategy.OnPush,
-  imports: [DatePipe, ReactiveFormsModule, MatButtonModule, MatFormFieldModule, MatIconModule, MatInputModule],
+  imports: [DatePipe, ReactiveFormsModule, MatButtonModule, MatFormFieldModule, MatIconModule, MatInputModule, ChemistryLimitsForm],
   template: `
     <p class="lead">
       The liquid additive's strength and the pre-charge of each charged filter size, as printed on their labels. The dose and
@@ -51,6 +52,7 @@ import { AdditiveProfile } from './coolant-types';
       @if (savedAt()) { <p class="ok" role="status">Saved.</p> }
       <div><button mat-flat-button type="submit" [disabled]="saving()">Save additive profile</button></div>
     </form>
+    <jw-chemistry-limits-form />
   `,
   styles: `
     :host { display: block; padding-top: 12px; max-width: 820px; }

@@ -14,6 +14,7 @@ import { fromCelsius, fromKpa, gallonsToLitres, litresToGallons, toCelsius, toKp
 import { PreferencesService } from '../core/preferences.service';
 import { AdditiveForm, parseNumber } from './additive-form';
 import { CoolantCautions } from './coolant-cautions';
+import { CoolantExplainer } from './coolant-explainer';
 
 type Outcome<T> = { value: T; error: null } | { value: null; error: string } | { value: null; error: null };
 
@@ -33,7 +34,7 @@ function run<T>(inputs: (number | null)[], fn: () => T): Outcome<T> {
 @Component({
   selector: 'jw-calculators-page',
   changeDetection: ChangeDetectionStrategy.OnPush,
-  imports: [FormsModule, MatCardModule, MatFormFieldModule, MatInputModule, MatSelectModule, MatButtonToggleModule, MatIconModule, AdditiveForm, CoolantCautions],
+  imports: [FormsModule, MatCardModule, MatFormFieldModule, MatInputModule, MatSelectModule, MatButtonToggleModule, MatIconModule, AdditiveForm, CoolantCautions, CoolantExplainer],
   templateUrl: './calculators-page.html',
   styleUrl: './calculators-page.scss',
 })
@@ -83,16 +84,22 @@ export class CalculatorsPage {
   readonly measuredText = signal('');
   readonly targetText = signal('50');
   readonly premixText = signal('');
+  /** Optional: the additive level before and the liquid's strength, for the dose that restores what the drain removes. */
+  readonly mixScaText = signal('');
+  readonly mixStrengthText = signal('');
   protected readonly mix = computed(() => {
     const cap = parseNumber(this.mixCapacityText());
     const m = parseNumber(this.measuredText());
     const t = parseNumber(this.targetText());
     const pre = parseNumber(this.premixText());
-    if (pre !== null && Number.isNaN(pre)) return { value: null, error: 'Type a number for the premix (use a point for decimals).' } as Outcome<never>;
+    const sca = parseNumber(this.mixScaText());
+    const strength = parseNumber(this.mixStrengthText());
+    if ([pre, sca, strength].some((v) => v !== null && Number.isNaN(v))) return { value: null, error: 'Type a number (use a point for decimals).' } as Outcome<never>;
     return run([cap, m, t], () =>
       correctMix({
         capacityL: this.prefs.volumeUnit() === 'gal' ? gallonsToLitres(cap!) : cap!,
         measuredPercent: m!, targetPercent: t!, premixPercent: pre ?? undefined,
+        scaUnitsPerGal: sca ?? undefined, liquidUnitsPerLitre: strength ?? undefined,
       }),
     );
   });

@@ -1,4 +1,5 @@
 import type { CoolantTestView, TestMethod } from '../../../shared/api/coolant-view';
+import type { ChemistryLimits } from '../../../shared/coolant';
 
 export type { CoolantDecision, CoolantTestSource, TestMethod } from '../../../shared/api/coolant-view';
 
@@ -13,6 +14,9 @@ export interface NewCoolantTest {
   freezePointC: number | null;
   ph: number | null;
   conductivityUsCm: number | null;
+  nitritePpm?: number | null;
+  molybdatePpm?: number | null;
+  reserveAlkalinityMl?: number | null;
   appearance: string | null;
   notes: string | null;
 }
@@ -84,4 +88,47 @@ export interface RunHoursEntry {
   userName: string | null;
   reason: string;
   at: string;
+}
+
+export type TopUpLiquid = 'water' | 'premix' | 'glycol';
+
+export interface CoolantTopUp {
+  id: number;
+  engineId: number;
+  addedAt: string;
+  volumeL: number;
+  liquid: TopUpLiquid;
+  premixPercent: number | null;
+  notes: string | null;
+  addedBy: number | null;
+}
+
+export interface TopUpsAnswer {
+  topUps: CoolantTopUp[];
+  estimate: {
+    basedOnTestAt: string;
+    topUpsSince: number;
+    replacedFraction: number;
+    addedL: number;
+    scaUnitsPerGal: number | null;
+    glycolPercent: number | null;
+    belowLow: boolean;
+    reasons: string[];
+  } | null;
+}
+
+export interface NewTopUp {
+  volumeL: number;
+  liquid: TopUpLiquid;
+  premixPercent: number | null;
+  notes: string | null;
+}
+
+export interface ChemistryLimitsView {
+  limits: ChemistryLimits;
+  defaults: ChemistryLimits;
+  extender: { everyHours: number | null; everyDays: number | null } | null;
+  extenderDefault: { everyHours: number | null; everyDays: number | null };
+  configured: boolean;
+  updatedAt: string | null;
 }

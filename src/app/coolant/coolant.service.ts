@@ -1,7 +1,8 @@
 import { HttpClient } from '@angular/common/http';
 import { Injectable, inject } from '@angular/core';
 import { Observable } from 'rxjs';
-import { AdditiveProfile, AdditiveProfileInput, CoolantTest, RunHoursEntry, DueListResponse, ImportResult, NewCoolantTest } from './coolant-types';
+import { AdditiveProfile, AdditiveProfileInput, CoolantTest, RunHoursEntry, DueListResponse, ImportResult, NewCoolantTest, NewTopUp, CoolantTopUp, TopUpsAnswer, ChemistryLimitsView } from './coolant-types';
+import type { ChemistryLimits } from '../../../shared/coolant';
 
 /** HTTP for the coolant screens; SI units both ways. */
 @Injectable({ providedIn: 'root' })
@@ -14,6 +15,14 @@ export class CoolantService {
 
   record(engineId: number, test: NewCoolantTest): Observable<CoolantTest> {
     return this.http.post<CoolantTest>(`/api/engines/${engineId}/coolant-tests`, test);
+  }
+
+  topUps(engineId: number): Observable<TopUpsAnswer> {
+    return this.http.get<TopUpsAnswer>(`/api/engines/${engineId}/coolant-top-ups`);
+  }
+
+  recordTopUp(engineId: number, t: NewTopUp): Observable<CoolantTopUp> {
+    return this.http.post<CoolantTopUp>(`/api/engines/${engineId}/coolant-top-ups`, t);
   }
 
   importLab(file: File, opts: { preview: boolean; engineId?: number }): Observable<ImportResult> {
@@ -30,6 +39,14 @@ export class CoolantService {
 
   saveProfile(p: AdditiveProfileInput): Observable<AdditiveProfile> {
     return this.http.put<AdditiveProfile>('/api/additive-profile', p);
+  }
+
+  chemistryLimits(): Observable<ChemistryLimitsView> {
+    return this.http.get<ChemistryLimitsView>('/api/coolant-limits');
+  }
+
+  saveChemistryLimits(body: Partial<ChemistryLimits> & { extender: { everyHours: number | null; everyDays: number | null } | null }): Observable<ChemistryLimitsView> {
+    return this.http.put<ChemistryLimitsView>('/api/coolant-limits', body);
   }
 
   runHoursHistory(engineId: number): Observable<RunHoursEntry[]> {

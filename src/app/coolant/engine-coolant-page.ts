@@ -19,10 +19,13 @@ import { PreferencesService } from '../core/preferences.service';
 import { EngineService } from '../engine/engine.service';
 import { Engine } from '../fleet/fleet-types';
 import { AdditiveDecisionView } from './additive-decision';
+import { ChemistryFindings } from './chemistry-findings';
+import { CoolantExplainer } from './coolant-explainer';
 import { AdditiveForm, parseNumber } from './additive-form';
 import { CoolantCautions } from './coolant-cautions';
 import { CoolantHistoryChart, HistoryPoint } from './coolant-history-chart';
 import { CoolantService } from './coolant.service';
+import { TopUpsCard } from './top-ups-card';
 import { AdditiveProfile, CoolantTest, ImportResult, NewCoolantTest, TestMethod } from './coolant-types';
 
 /** Glycol 40 to 60 % by volume: common practice for engine coolant (the coolant maker's figure first). */
@@ -41,7 +44,7 @@ const errorText = (e: unknown): string => {
   changeDetection: ChangeDetectionStrategy.OnPush,
   imports: [
     DatePipe, FormsModule, RouterLink, MatButtonModule, MatCardModule, MatFormFieldModule, MatIconModule, MatInputModule, MatSelectModule, MatTableModule,
-    AdditiveForm, AdditiveDecisionView, CoolantCautions, CoolantHistoryChart,
+    AdditiveForm, AdditiveDecisionView, ChemistryFindings, CoolantCautions, CoolantExplainer, CoolantHistoryChart, TopUpsCard,
   ],
   templateUrl: './engine-coolant-page.html',
   styleUrl: './engine-coolant-page.scss',
@@ -57,7 +60,7 @@ export class EngineCoolantPage {
   protected readonly canRecord = computed(() => this.auth.hasRole('technician', 'planner', 'admin'));
   protected readonly tUnit = computed(() => UNIT_SYMBOL[this.prefs.temperatureUnit()]);
 
-  private readonly reload = signal(0);
+  protected readonly reload = signal(0);
   protected readonly engine = toSignal(toObservable(this.engineId).pipe(switchMap((id) => this.engines.engine(id).pipe(catchError(() => of(null))))));
   protected readonly profile = toSignal(this.api.profile().pipe(catchError(() => of(null))), { initialValue: null as AdditiveProfile | null });
   protected readonly tests = toSignal(
@@ -93,6 +96,9 @@ export class EngineCoolantPage {
   readonly freezeText = signal('');
   readonly phText = signal('');
   readonly ecText = signal('');
+  readonly nitriteText = signal('');
+  readonly molybdateText = signal('');
+  readonly raText = signal('');
   readonly appearance = signal('');
   readonly notes = signal('');
   protected readonly scaValue = computed(() => {
@@ -104,7 +110,10 @@ export class EngineCoolantPage {
   protected readonly saved = signal<CoolantTest | null>(null);
 
   protected save(): void {
-    const nums = { scaUnitsPerGal: this.scaText(), glycolPercent: this.glycolText(), freezePointC: this.freezeText(), ph: this.phText(), conductivityUsCm: this.ecText() };
+    const nums = {
+      scaUnitsPerGal: this.scaText(), glycolPercent: this.glycolText(), freezePointC: this.freezeText(), ph: this.phText(), conductivityUsCm: this.ecText(),
+      nitritePpm: this.nitriteText(), molybdatePpm: this.molybdateText(), reserveAlkalinityMl: this.raText(),
+    };
     const parsed: Record<string, number | null> = {};
     for (const [k, text] of Object.entries(nums)) {
       const v = parseNumber(text);
@@ -123,6 +132,7 @@ export class EngineCoolantPage {
       scaUnitsPerGal: parsed['scaUnitsPerGal'], glycolPercent: parsed['glycolPercent'],
       freezePointC: parsed['freezePointC'] === null ? null : toCelsius(parsed['freezePointC'], this.prefs.temperatureUnit()),
       ph: parsed['ph'], conductivityUsCm: parsed['conductivityUsCm'],
+      nitritePpm: parsed['nitritePpm'], molybdatePpm: parsed['molybdatePpm'], reserveAlkalinityMl: parsed['reserveAlkalinityMl'],
       appearance: this.appearance().trim() || null, notes: this.notes().trim() || null,
     };
     this.saving.set(true);
@@ -131,7 +141,7 @@ export class EngineCoolantPage {
       next: (t) => {
         this.saving.set(false);
         this.saved.set(t);
-        for (const s of [this.scaText, this.glycolText, this.freezeText, this.phText, this.ecText, this.appearance, this.notes]) s.set('');
+        for (const s of [this.scaText, this.glycolText, this.freezeText, this.phText, this.ecText, this.nitriteText, this.molybdateText, this.raText, this.appearance, this.notes]) s.set('');
         this.reload.update((n) => n + 1);
       },
       error: (e) => {
@@ -172,11 +182,20 @@ export class EngineCoolantPage {
     });
   }
 
+  /** Findings out of range, in words (the history shows them beside the additive decision). */
+  protected findingsText(t: CoolantTest): string {
+    const bad = (t.decision?.findings ?? []).filter((f) => f.status === 'low' || f.status === 'high' || f.status === 'short');
+    const name = { nitritePpm: 'nitrite', molybdatePpm: 'molybdate', ph: 'pH', reserveAlkalinityMl: 'reserve alkalinity', freezeProtection: 'freeze protection' } as const;
+    return bad.map((f) => `${name[f.field]} ${f.status}`).join(', ');
+  }
+
   protected statusText(t: CoolantTest): string {
     const s = t.decision?.additive?.status;
-    if (!s) return t.decision?.notes[0] ?? '—';
+    const extra = this.findingsText(t);
+    if (!s) return extra || (t.decision?.notes[0] ?? '—');
     const f = t.decision!.additive!.filter;
     const text = { low: 'Low', 'in-range': 'In range', high: 'High', 'not-applicable': 'No strip decision' }[s];
-    return f ? `${text} · ${f} filter` : text;
+    const base = f ? `${text} · ${f} filter` : text;
+    return extra ? `${base} · ${extra}` : base;
   }
 }

@@ -1,0 +1,72 @@
+import { Op } from 'sequelize';
+import { CoolantInputError, estimateAfterTopUps, type TopUpEstimate } from '../../../shared/coolant';
+import { badRequest } from '../../http-error';
+import type { Models } from '../../models';
+import type { TopUpLiquid } from '../../models/coolant-models';
+import { getEngine } from '../engines';
+import { getAdditiveProfile } from './additive-profile';
+
+export interface TopUpInput {
+  addedAt: Date;
+  volumeL: number;
+  liquid: TopUpLiquid;
+  premixPercent: number | null;
+  notes: string | null;
+}
+
+export interface TopUpView {
+  id: number;
+  engineId: number;
+  addedAt: string;
+  volumeL: number;
+  liquid: TopUpLiquid;
+  premixPercent: number | null;
+  notes: string | null;
+  addedBy: number | null;
+}
+
+export interface TopUpsAnswer {
+  topUps: TopUpView[];
+  /** Estimate from the last test with a glycol or additive reading and the top-ups after it; null without such a test. */
+  estimate: (TopUpEstimate & { basedOnTestAt: string; topUpsSince: number }) | null;
+}
+
+export async function recordTopUp(models: Models, engineId: number, input: TopUpInput, userId: number): Promise<TopUpView> {
+  const engine = await getEngine(models, engineId);
+  if (engine.retiredAt) throw badRequest('engine is retired', 'engineId');
+  if (input.volumeL > engine.capacityL) throw badRequest(`volumeL: at most the system capacity ${engine.capacityL} L`, 'volumeL');
+  if (input.liquid === 'premix' && input.premixPercent === null) throw badRequest('premixPercent: give the glycol share of the premix', 'premixPercent');
+  const row = await models.CoolantTopUp.create({ engineId, ...input, premixPercent: input.liquid === 'premix' ? input.premixPercent : null, addedBy: userId });
+  return view(row);
+}
+
+const view = (r: InstanceType<Models['CoolantTopUp']>): TopUpView => ({
+  id: r.id, engineId: r.engineId, addedAt: new Date(r.addedAt).toISOString(), volumeL: r.volumeL, liquid: r.liquid,
+  premixPercent: r.premixPercent, notes: r.notes, addedBy: r.addedBy,
+});
+
+/** The engine's top-ups (newest first) and the additive and glycol estimated since its last test. */
+export async function listTopUps(models: Models, engineId: number): Promise<TopUpsAnswer> {
+  const engine = await getEngine(models, engineId);
+  const rows = await models.CoolantTopUp.findAll({ where: { engineId }, order: [['addedAt', 'DESC'], ['id', 'DESC']], limit: 500 });
+  const test = await models.CoolantTest.findOne({
+    where: { engineId, [Op.or]: [{ scaUnitsPerGal: { [Op.ne]: null } }, { glycolPercent: { [Op.ne]: null } }] },
+    order: [['testedAt', 'DESC'], ['id', 'DESC']],
+  });
+  if (!test) return { topUps: rows.map(view), estimate: null };
+  const since = rows.filter((r) => new Date(r.addedAt).getTime() > new Date(test.testedAt).getTime()).reverse();
+  const profile = await getAdditiveProfile(models);
+  try {
+    const e = estimateAfterTopUps({
+      capacityL: engine.capacityL,
+      scaUnitsPerGal: engine.coolantFamily === 'extended-life' ? null : test.scaUnitsPerGal,
+      glycolPercent: test.glycolPercent,
+      topUps: since.map((r) => ({ volumeL: Math.min(r.volumeL, engine.capacityL), liquid: r.liquid, premixPercent: r.premixPercent })),
+      lowUnitsPerGal: profile.limits.low,
+    });
+    return { topUps: rows.map(view), estimate: { ...e, basedOnTestAt: new Date(test.testedAt).toISOString(), topUpsSince: since.length } };
+  } catch (err) {
+    if (err instanceof CoolantInputError) return { topUps: rows.map(view), estimate: null };
+    throw err;
+  }
+}
