@@ -140,10 +140,16 @@ export function startOutbox(opts: OutboxOptions): Outbox {
     return picking;
   }
 
-  /** Start what is due, then wait for every message now on its way. */
+  /** Attempt every message due when called (a few at a time), and wait for those attempts. */
   async function flush(): Promise<void> {
-    await startDue();
-    await Promise.all([...inFlight.values()]);
+    const asked = new Date();
+    for (;;) {
+      await startDue();
+      if (!inFlight.size || stopped) return;
+      await Promise.all([...inFlight.values()]);
+      // a sent message has sentAt, a failed one a later nextAttemptAt: none left means each was tried
+      if (!(await model.count({ where: { sentAt: null, nextAttemptAt: { [Op.lte]: asked } } }))) return;
+    }
   }
 
   const timer = setInterval(() => void startDue(), opts.pollMs ?? 1000);

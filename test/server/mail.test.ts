@@ -85,6 +85,25 @@ describe('outbox', () => {
     }
   });
 
+  it('flush sends every due message, more than go at once, each once with its own Message-ID', async () => {
+    const catcher = await startMailCatcher({ port: 0, model: m.CaughtMail, log: quietLog });
+    const outbox = startOutbox({ config: config(catcher.port()), model: m.OutboxMessage, log: quietLog, pollMs: 60_000, parallel: 2 });
+    try {
+      const rows = [];
+      for (let n = 0; n < 9; n++) rows.push(await outbox.enqueue({ to: 'planner@jacketwatch.test', subject: `batch ${n}`, text: `n ${n}` }));
+      await outbox.flush();
+      for (const r of rows) {
+        await r.reload();
+        expect(r.sentAt).not.toBeNull();
+        const caught = await m.CaughtMail.findAll({ where: { subject: r.subject } });
+        expect(caught.map((c) => c.messageId)).toEqual([r.messageId]);
+      }
+    } finally {
+      await outbox.stop();
+      await catcher.stop();
+    }
+  });
+
   it('a relay that goes silent on one message holds only that one; its retry keeps the same Message-ID', async () => {
     const catcher = await startMailCatcher({ port: 0, model: m.CaughtMail, log: quietLog });
     // A real TCP relay in front of the catcher. On the first connection carrying the "stalled one" message it
