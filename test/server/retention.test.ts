@@ -1,8 +1,10 @@
 /** Retention of raw readings: old rows removed in batches, rollups kept, and the readings API says where a range comes from. */
+import fs from 'node:fs';
 import request from 'supertest';
 import { QueryTypes } from 'sequelize';
 import { DAY_MS, startRetention } from '../../server/services/retention';
 import { auth, makeTestApp, type TestApp } from './helpers';
+import { Db, seedFleet, startServerProcess } from './support/telemetry-server';
 
 let t: TestApp;
 let e1: number;
@@ -118,5 +120,32 @@ describe('readings API and the raw retention', () => {
     expect(res.body.source).toBe('raw');
     expect(res.body.beyondRawRetention).toBe(false);
     expect(res.body.buckets.reduce((n: number, b: { count: number }) => n + b.count, 0)).toBe(300);
+  });
+});
+
+describe('retention in the running server', () => {
+  it('sweeps old raw readings on its timer and keeps the rollups', async () => {
+    const server = await startServerProcess({ env: { RAW_RETENTION_DAYS: '30', RETENTION_EVERY_S: '1', RETENTION_BATCH: '250', RETENTION_PAUSE_MS: '10' } });
+    const db = new Db(server.dbFile);
+    try {
+      const [d] = await seedFleet(db, 1, 'ret');
+      const old = Date.now() - 31 * DAY_MS;
+      const recent = Date.now() - 29 * DAY_MS;
+      const values = [];
+      for (let i = 0; i < 1000; i++) values.push(`(${d.engineId}, 1, ${old + i * 1000}, 80, 0)`, `(${d.engineId}, 1, ${recent + i * 1000}, 81, 0)`);
+      await db.exec(`INSERT INTO readings (engine_id, channel, ts, value, quality) VALUES ${values.join(',')}`);
+      await db.exec(`INSERT INTO rollups (engine_id, channel, minute, "min", "max", "sum", "count", bad_count) VALUES (${d.engineId}, 1, ${Math.floor(old / MIN) * MIN}, 80, 80, 4800, 60, 0)`);
+      const deadline = Date.now() + 30_000;
+      while ((await db.get<{ n: number }>('SELECT COUNT(*) AS n FROM readings WHERE ts < ?', [old + 1000 * 1000])).n > 0) {
+        if (Date.now() > deadline) throw new Error('old raw readings were not removed:\n' + server.log());
+        await new Promise((r) => setTimeout(r, 100));
+      }
+      expect((await db.get<{ n: number }>('SELECT COUNT(*) AS n FROM readings WHERE engine_id = ?', [d.engineId])).n).toBe(1000);
+      expect((await db.get<{ n: number }>('SELECT COUNT(*) AS n FROM rollups WHERE engine_id = ?', [d.engineId])).n).toBe(1);
+    } finally {
+      await db.close();
+      expect(await server.stop()).toBe(0);
+      fs.rmSync(server.dataDir, { recursive: true, force: true });
+    }
   });
 });
