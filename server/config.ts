@@ -20,7 +20,7 @@ export interface Config {
   logLevel: 'debug' | 'info' | 'warn' | 'error';
   /** RAW_RETENTION_DAYS [400]: raw readings older than this are removed; per-minute rollups are kept for good. 0 keeps raw readings for good. */
   rawRetentionDays: number;
-  /** RETENTION_BATCH [4000], RETENTION_PAUSE_MS [100], RETENTION_EVERY_S [3600]: rows per delete, pause between deletes, time between sweeps. */
+  /** RETENTION_BATCH [4000], RETENTION_PAUSE_MS [100], RETENTION_EVERY_S [3600]: rows per step, pause between steps, time between sweeps. */
   retentionBatch: number;
   retentionPauseMs: number;
   retentionEveryMs: number;

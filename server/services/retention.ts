@@ -12,6 +12,7 @@ export function rawKeptFrom(rawRetentionDays: number, now: number): number | nul
 
 export interface SweepResult {
   deleted: number;
+  /** Steps of at most RETENTION_BATCH rows, each followed by a pause. */
   batches: number;
   cutoff: number | null;
   /** False when the sweep was stopped before it finished. */
@@ -40,7 +41,7 @@ const CODES = CHANNEL_KEYS.map((k) => CHANNELS[k].code);
  * Removes raw readings older than RAW_RETENTION_DAYS in small batches with a pause between them, so the
  * ingest writer never waits long for the database's write lock. Rollups are never touched: old ranges
  * are still drawn from them. Works per engine and channel along the (engine_id, channel, ts) index:
- * each batch finds the timestamp of its last row, then deletes up to it in one short statement.
+ * finds the timestamp of the last row the step may still remove, then deletes up to it in one short statement.
  */
 export function startRetention(opts: RetentionOptions): Retention {
   const { sequelize, log, config } = opts;
@@ -74,25 +75,28 @@ export function startRetention(opts: RetentionOptions): Retention {
     if (cutoff === null) return { ...result, complete: true };
     const started = Date.now();
     const engines = await sequelize.query<{ id: number }>('SELECT id FROM engines ORDER BY id', { type: QueryTypes.SELECT });
+    // a step removes at most retentionBatch rows (over one or several engine/channel pairs), then pauses
+    let budget = config.retentionBatch;
     for (const { id } of engines) {
       for (const code of CODES) {
         for (;;) {
           if (stopped) return result;
-          const bound = await sequelize.query<{ ts: number }>(boundSql, {
-            bind: [id, code, cutoff, config.retentionBatch - 1], type: QueryTypes.SELECT,
-          });
-          // up to and including the batch's last timestamp, or everything left below the cutoff
+          const bound = await sequelize.query<{ ts: number }>(boundSql, { bind: [id, code, cutoff, budget - 1], type: QueryTypes.SELECT });
+          // up to and including the timestamp of the budget's last row, or everything left below the cutoff
           const upTo = bound.length ? Number(bound[0].ts) + 1 : cutoff;
           const n = (await sequelize.query(deleteSql, { bind: [id, code, upTo], type: QueryTypes.BULKDELETE })) as unknown as number;
-          if (n > 0) {
-            result.deleted += n;
+          result.deleted += n;
+          budget -= n;
+          if (budget <= 0) {
             result.batches++;
+            budget = config.retentionBatch;
             await pause(config.retentionPauseMs);
           }
           if (!bound.length) break;
         }
       }
     }
+    if (budget < config.retentionBatch) result.batches++;
     result.complete = true;
     if (result.deleted) {
       log.info(`retention: ${result.deleted} raw readings before ${new Date(cutoff).toISOString()} removed in ${result.batches} batches, ${((Date.now() - started) / 1000).toFixed(1)} s`);
