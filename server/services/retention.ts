@@ -1,4 +1,4 @@
-import { QueryTypes, type Sequelize } from 'sequelize';
+import { QueryTypes, Transaction, type Sequelize } from 'sequelize';
 import { CHANNELS, CHANNEL_KEYS } from '../../shared/channels';
 import type { Config } from '../config';
 import type { Logger } from '../logger';
@@ -81,10 +81,15 @@ export function startRetention(opts: RetentionOptions): Retention {
       for (const code of CODES) {
         for (;;) {
           if (stopped) return result;
-          const bound = await sequelize.query<{ ts: number }>(boundSql, { bind: [id, code, cutoff, budget - 1], type: QueryTypes.SELECT });
-          // up to and including the timestamp of the budget's last row, or everything left below the cutoff
-          const upTo = bound.length ? Number(bound[0].ts) + 1 : cutoff;
-          const n = (await sequelize.query(deleteSql, { bind: [id, code, upTo], type: QueryTypes.BULKDELETE })) as unknown as number;
+          // its own short transaction (its own connection with SQLite): while it waits for the write lock,
+          // the API's reads on the shared connection do not wait behind it
+          const { bound, n } = await sequelize.transaction({ type: Transaction.TYPES.IMMEDIATE }, async (transaction) => {
+            const found = await sequelize.query<{ ts: number }>(boundSql, { bind: [id, code, cutoff, budget - 1], type: QueryTypes.SELECT, transaction });
+            // up to and including the timestamp of the budget's last row, or everything left below the cutoff
+            const upTo = found.length ? Number(found[0].ts) + 1 : cutoff;
+            const removed = (await sequelize.query(deleteSql, { bind: [id, code, upTo], type: QueryTypes.BULKDELETE, transaction })) as unknown as number;
+            return { bound: found, n: removed };
+          });
           result.deleted += n;
           budget -= n;
           if (budget <= 0) {
