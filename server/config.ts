@@ -20,6 +20,12 @@ export interface Config {
   publicUrl: string;
   production: boolean;
   logLevel: 'debug' | 'info' | 'warn' | 'error';
+  /** RAW_RETENTION_DAYS [400]: raw readings older than this are removed; per-minute rollups are kept for good. 0 keeps raw readings for good. */
+  rawRetentionDays: number;
+  /** RETENTION_BATCH [4000], RETENTION_PAUSE_MS [100], RETENTION_EVERY_S [3600]: rows per step, pause between steps, time between sweeps. */
+  retentionBatch: number;
+  retentionPauseMs: number;
+  retentionEveryMs: number;
 }
 
 function intFrom(env: NodeJS.ProcessEnv, name: string, fallback: number): number {
@@ -27,6 +33,14 @@ function intFrom(env: NodeJS.ProcessEnv, name: string, fallback: number): number
   if (raw === undefined || raw === '') return fallback;
   const n = Number(raw);
   if (!Number.isInteger(n) || n < 0 || n > 65535) throw new Error(`${name} must be a port number, got "${raw}"`);
+  return n;
+}
+
+function countFrom(env: NodeJS.ProcessEnv, name: string, fallback: number, min: number, max: number): number {
+  const raw = env[name];
+  if (raw === undefined || raw === '') return fallback;
+  const n = Number(raw);
+  if (!Number.isInteger(n) || n < min || n > max) throw new Error(`${name} must be a whole number from ${min} to ${max}, got "${raw}"`);
   return n;
 }
 
@@ -55,5 +69,9 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
     publicUrl: (env.PUBLIC_URL || `http://localhost:${port}`).replace(/\/$/, ''),
     production: env.NODE_ENV === 'production',
     logLevel: ['debug', 'info', 'warn', 'error'].includes(level) ? level : 'info',
+    rawRetentionDays: countFrom(env, 'RAW_RETENTION_DAYS', 400, 0, 100_000),
+    retentionBatch: countFrom(env, 'RETENTION_BATCH', 4000, 1, 1_000_000),
+    retentionPauseMs: countFrom(env, 'RETENTION_PAUSE_MS', 100, 0, 60_000),
+    retentionEveryMs: countFrom(env, 'RETENTION_EVERY_S', 3600, 1, 7 * 86_400) * 1000,
   };
 }

@@ -15,6 +15,7 @@ import { initModels, type Models } from './models';
 import { createAlarmFeature, type AlarmFeature } from './services/alarms';
 import { startRunHoursCounting } from './services/coolant';
 import { siteOfEngineLookup } from './services/engines';
+import { startRetention, type Retention } from './services/retention';
 import { siteScopeForUser } from './services/site-access';
 import { startTelemetry } from './telemetry';
 import type { Telemetry } from './telemetry/types';
@@ -26,6 +27,8 @@ export interface ServerHandle {
   models: Models;
   telemetry: Telemetry;
   alarms: AlarmFeature;
+  /** Removes raw readings past RAW_RETENTION_DAYS in small batches. */
+  retention: Retention;
   ctx: AppContext;
   /** The port actually bound (config.port may be 0). */
   port: number;
@@ -64,6 +67,7 @@ export async function startServer(config: Config, opts: StartOptions = {}): Prom
   ctx.telemetry = telemetry;
   await alarms.start(telemetry);
   const stopRunHours = startRunHoursCounting(ctx, telemetry);
+  const retention = startRetention({ sequelize, log, config });
 
   await new Promise<void>((resolve, reject) => {
     httpServer.once('error', reject);
@@ -78,6 +82,7 @@ export async function startServer(config: Config, opts: StartOptions = {}): Prom
   let stopping: Promise<void> | null = null;
   const stop = () =>
     (stopping ??= (async () => {
+      await retention.stop();
       await telemetry.stop();
       await alarms.stop();
       await stopRunHours();
@@ -88,5 +93,5 @@ export async function startServer(config: Config, opts: StartOptions = {}): Prom
       await sequelize.close();
     })());
 
-  return { app, httpServer, sequelize, models, telemetry, alarms, ctx, port, stop };
+  return { app, httpServer, sequelize, models, telemetry, alarms, retention, ctx, port, stop };
 }

@@ -1,4 +1,5 @@
 import nodemailer, { type Transporter } from 'nodemailer';
+import { randomUUID } from 'node:crypto';
 import { Op } from 'sequelize';
 import type { Config } from '../config';
 import type { Logger } from '../logger';
@@ -21,12 +22,16 @@ export interface OutboxOptions {
   retryMaxMs?: number;
   /** How often the sender looks for due messages (it also wakes at once when one is queued). */
   pollMs?: number;
+  /** Limit for connecting, the greeting and each answer of the relay (MAIL_TIMEOUT_S). */
+  timeoutMs?: number;
+  /** Messages on their way at once, each on its own connection (MAIL_PARALLEL). */
+  parallel?: number;
 }
 
 export interface Outbox {
   /** Store the message; the sender delivers it as soon as the relay takes it. */
   enqueue(mail: OutgoingMail): Promise<OutboxMessage>;
-  /** Try every due message now (also used by tests). Resolves when this pass is done. */
+  /** Start every due message now (also used by tests). Resolves when those on their way are done. */
   flush(): Promise<void>;
   stop(): Promise<void>;
 }
@@ -36,43 +41,57 @@ export function retryDelayMs(attempts: number, baseMs: number, maxMs: number): n
   return Math.min(maxMs, baseMs * 2 ** Math.max(0, attempts - 1));
 }
 
-function createTransport(config: OutboxOptions['config']): Transporter {
+function createTransport(config: OutboxOptions['config'], timeoutMs: number): Transporter {
+  // one limit for connecting, the greeting and every wait for an answer: a relay that takes the
+  // connection and then goes silent costs that one message a few seconds, not the queue
+  const timeouts = { connectionTimeout: timeoutMs, greetingTimeout: timeoutMs, socketTimeout: timeoutMs };
   if (config.smtpHost) {
     return nodemailer.createTransport({
       host: config.smtpHost,
       port: config.smtpPort,
       secure: config.smtpSecure,
       auth: config.smtpUser ? { user: config.smtpUser, pass: config.smtpPass ?? '' } : undefined,
-      connectionTimeout: 10000,
-      greetingTimeout: 10000,
-      socketTimeout: 20000,
+      ...timeouts,
     });
   }
   // the local mail catcher on loopback: plain SMTP, no TLS
-  return nodemailer.createTransport({
-    host: '127.0.0.1',
-    port: config.smtpPort,
-    secure: false,
-    ignoreTLS: true,
-    connectionTimeout: 5000,
-    greetingTimeout: 5000,
-    socketTimeout: 10000,
-  });
+  return nodemailer.createTransport({ host: '127.0.0.1', port: config.smtpPort, secure: false, ignoreTLS: true, ...timeouts });
 }
 
-/** Messages go to the `outbox` table first; a sender loop delivers them and retries with back-off, so none is lost. */
+/** A Message-ID in the sender's domain; generated once per outbox row and kept across retries. */
+export function newMessageId(mailFrom: string): string {
+  const at = mailFrom.lastIndexOf('@');
+  const domain = at >= 0 ? mailFrom.slice(at + 1).replace(/[>\s]/g, '') || 'jacketwatch.invalid' : 'jacketwatch.invalid';
+  return `<${randomUUID()}@${domain}>`;
+}
+
+/**
+ * Messages go to the `outbox` table first; a sender delivers them and retries with back-off, so none is lost.
+ * Up to `parallel` messages are on their way at once, each on its own connection, so a relay that hangs
+ * on one message holds only that one until its timeout; the others go on.
+ */
 export function startOutbox(opts: OutboxOptions): Outbox {
   const { model, log, config } = opts;
   const base = opts.retryBaseMs ?? 5000;
   const max = opts.retryMaxMs ?? 10 * 60 * 1000;
-  const transport = createTransport(config);
-  let running: Promise<void> | null = null;
+  const parallel = Math.max(1, opts.parallel ?? 4);
+  const transport = createTransport(config, opts.timeoutMs ?? 5000);
+  const inFlight = new Map<number, Promise<void>>();
+  let picking: Promise<void> | null = null;
   let again = false;
   let stopped = false;
 
   async function sendOne(msg: OutboxMessage): Promise<void> {
     try {
-      await transport.sendMail({ from: config.mailFrom, to: msg.to, subject: msg.subject, text: msg.text, html: msg.html ?? undefined });
+      if (!msg.messageId) await msg.update({ messageId: newMessageId(config.mailFrom) });
+      await transport.sendMail({
+        from: config.mailFrom,
+        to: msg.to,
+        subject: msg.subject,
+        text: msg.text,
+        html: msg.html ?? undefined,
+        messageId: msg.messageId!,
+      });
       await msg.update({ sentAt: new Date(), attempts: msg.attempts + 1, lastError: null });
     } catch (err) {
       const attempts = msg.attempts + 1;
@@ -83,35 +102,57 @@ export function startOutbox(opts: OutboxOptions): Outbox {
     }
   }
 
-  async function pass(): Promise<void> {
+  /** Start due messages (not already on their way) while there are free places. */
+  async function pick(): Promise<void> {
     do {
       again = false;
+      const free = parallel - inFlight.size;
+      if (free <= 0 || stopped) return;
+      const busy = [...inFlight.keys()];
       const due = await model.findAll({
-        where: { sentAt: null, nextAttemptAt: { [Op.lte]: new Date() } },
+        where: { sentAt: null, nextAttemptAt: { [Op.lte]: new Date() }, ...(busy.length ? { id: { [Op.notIn]: busy } } : {}) },
         order: [['id', 'ASC']],
-        limit: 50,
+        limit: free,
       });
       for (const msg of due) {
         if (stopped) return;
-        await sendOne(msg);
+        const sending = sendOne(msg)
+          .catch((err) => log.error(`outbox: mail ${msg.id} failed`, err))
+          .finally(() => {
+            inFlight.delete(msg.id);
+            if (!stopped) void startDue();
+          });
+        inFlight.set(msg.id, sending);
       }
     } while (again && !stopped);
   }
 
-  function flush(): Promise<void> {
-    if (running) {
+  function startDue(): Promise<void> {
+    if (picking) {
       again = true;
-      return running;
+      return picking;
     }
-    running = pass()
+    picking = pick()
       .catch((err) => log.error('outbox pass failed', err))
       .finally(() => {
-        running = null;
+        picking = null;
       });
-    return running;
+    return picking;
   }
 
-  const timer = setInterval(() => void flush(), opts.pollMs ?? 1000);
+  /** Attempt every message due when called (a few at a time), and wait for those attempts. */
+  async function flush(): Promise<void> {
+    const asked = new Date();
+    for (;;) {
+      await startDue();
+      if (!inFlight.size || stopped) return;
+      await Promise.all([...inFlight.values()]);
+      // a sent message has sentAt, a failed one a later nextAttemptAt: none left means each was tried
+      if (!(await model.count({ where: { sentAt: null, nextAttemptAt: { [Op.lte]: asked } } }))) return;
+    }
+  }
+
+  const timer = setInterval(() => void startDue(), opts.pollMs ?? 1000);
   timer.unref();
 
   return {
@@ -122,16 +163,18 @@ export function startOutbox(opts: OutboxOptions): Outbox {
         text: mail.text,
         html: mail.html ?? null,
         alarmId: mail.alarmId ?? null,
+        messageId: newMessageId(config.mailFrom),
         nextAttemptAt: new Date(),
       });
-      void flush();
+      void startDue();
       return row;
     },
     flush,
     async stop() {
       stopped = true;
       clearInterval(timer);
-      if (running) await running;
+      if (picking) await picking;
+      await Promise.all([...inFlight.values()]);
       transport.close();
     },
   };

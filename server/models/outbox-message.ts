@@ -8,6 +8,8 @@ export class OutboxMessage extends Model<InferAttributes<OutboxMessage>, InferCr
   declare text: string;
   declare html: string | null;
   declare alarmId: number | null;
+  /** `<random@domain>`, generated once when queued and sent with every attempt. */
+  declare messageId: CreationOptional<string | null>;
   declare attempts: CreationOptional<number>;
   declare nextAttemptAt: Date;
   declare sentAt: CreationOptional<Date | null>;
@@ -25,6 +27,7 @@ export function initOutboxMessage(sequelize: Sequelize): typeof OutboxMessage {
       text: { type: DataTypes.TEXT, allowNull: false },
       html: { type: DataTypes.TEXT, allowNull: true },
       alarmId: { type: DataTypes.INTEGER, allowNull: true },
+      messageId: { type: DataTypes.STRING(300), allowNull: true },
       attempts: { type: DataTypes.INTEGER, allowNull: false, defaultValue: 0 },
       nextAttemptAt: { type: DataTypes.DATE, allowNull: false },
       sentAt: { type: DataTypes.DATE, allowNull: true },

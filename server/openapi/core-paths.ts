@@ -58,7 +58,7 @@ export const enginePaths: OpenApiGroup = {
     '/api/engines/{id}/readings': {
       parameters: [idParam],
       get: {
-        summary: 'Bucketed readings: raw up to 6 h, per-minute rollups beyond',
+        summary: 'Bucketed readings: raw up to 6 h, per-minute rollups beyond or before the raw retention',
         parameters: [
           { name: 'channel', in: 'query', required: true, schema: { enum: ['coolant_temp', 'coolant_pressure', 'coolant_conductivity', 'engine_speed', 'ambient_temp'] } },
           { name: 'from', in: 'query', description: 'epoch ms or ISO 8601; default to - 24 h', schema: { type: 'string' } },

@@ -55,7 +55,10 @@ export const coreSchemas: Record<string, Json> = {
   Buckets: {
     type: 'object',
     properties: {
-      source: { enum: ['raw', 'rollup'] },
+      source: { enum: ['raw', 'rollup'], description: 'rollup: per-minute summaries (span over 6 h, or the range reaches back past the raw retention)' },
+      rawRetentionDays: { type: 'integer', description: 'RAW_RETENTION_DAYS; 0 keeps raw readings for good' },
+      rawKeptFrom: { type: ['integer', 'null'], description: 'raw readings are kept from this instant (epoch ms); older ranges come from rollups' },
+      beyondRawRetention: { type: 'boolean', description: 'the range starts before rawKeptFrom' },
       buckets: { type: 'array', items: { type: 'object', properties: { t: { type: 'integer' }, min: { type: 'number' }, max: { type: 'number' }, mean: { type: 'number' }, count: { type: 'integer' } } } },
     },
   },

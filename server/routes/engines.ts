@@ -79,7 +79,8 @@ export function enginesRouter(ctx: AppContext): Router {
     if (to - from > 400 * DAY_MS) throw badRequest('span is at most 400 days', 'from');
     await assertEngineVisible(ctx.models, await siteScopeOf(req), id);
     await getEngine(ctx.models, id);
-    res.json(await queryBuckets(ctx.sequelize, { engineId: id, channel: q.channel as (typeof CHANNEL_KEYS)[number], from, to, points: q.points }));
+    const retention = { rawRetentionDays: ctx.config.rawRetentionDays, now: Date.now() };
+    res.json(await queryBuckets(ctx.sequelize, { engineId: id, channel: q.channel as (typeof CHANNEL_KEYS)[number], from, to, points: q.points }, retention));
   });
   r.post('/engines', requireRole('admin'), async (req, res) => {
     res.status(201).json(engineView(await createEngine(ctx.models, parse(createBody, req.body)), live()));

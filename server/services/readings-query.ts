@@ -1,5 +1,6 @@
 import { QueryTypes, type Sequelize } from 'sequelize';
 import { CHANNELS, type ChannelKey } from '../../shared/channels';
+import { rawKeptFrom } from './retention';
 
 export interface Bucket {
   /** Start of the bucket, ms since epoch. */
@@ -12,7 +13,19 @@ export interface Bucket {
 
 export interface BucketResult {
   buckets: Bucket[];
+  /** 'rollup': per-minute summaries, because the span is long or it reaches back past the raw retention. */
   source: 'raw' | 'rollup';
+  /** RAW_RETENTION_DAYS (0: raw readings are kept for good). */
+  rawRetentionDays: number;
+  /** Raw readings are kept from this instant on (ms); null when kept for good. */
+  rawKeptFrom: number | null;
+  /** True when the range starts before rawKeptFrom: the raw readings of its start are removed, the rollups remain. */
+  beyondRawRetention: boolean;
+}
+
+export interface RawRetention {
+  rawRetentionDays: number;
+  now: number;
 }
 
 export interface ReadingsQuery {
@@ -38,11 +51,16 @@ interface Row {
   n: number | string;
 }
 
-/** Bucketed min/max/mean/count of good readings over [from, to): one grouped SQL query. */
-export async function queryBuckets(sequelize: Sequelize, q: ReadingsQuery): Promise<BucketResult> {
+/**
+ * Bucketed min/max/mean/count of good readings over [from, to): one grouped SQL query. A range reaching back
+ * past the raw retention is answered from the rollups whatever its length, and says so.
+ */
+export async function queryBuckets(sequelize: Sequelize, q: ReadingsQuery, retention: RawRetention = { rawRetentionDays: 0, now: Date.now() }): Promise<BucketResult> {
   const code = CHANNELS[q.channel].code;
   const span = q.to - q.from;
-  const source: BucketResult['source'] = span <= RAW_SPAN_LIMIT_MS ? 'raw' : 'rollup';
+  const keptFrom = rawKeptFrom(retention.rawRetentionDays, retention.now);
+  const beyondRawRetention = keptFrom !== null && q.from < keptFrom;
+  const source: BucketResult['source'] = span <= RAW_SPAN_LIMIT_MS && !beyondRawRetention ? 'raw' : 'rollup';
   const c = (n: number) => intCast(sequelize, n);
   let from = q.from;
   let width: number;
@@ -66,6 +84,9 @@ export async function queryBuckets(sequelize: Sequelize, q: ReadingsQuery): Prom
   const rows = await sequelize.query<Row>(sql, { bind: [q.engineId, code, from, q.to, width], type: QueryTypes.SELECT });
   return {
     source,
+    rawRetentionDays: retention.rawRetentionDays,
+    rawKeptFrom: keptFrom,
+    beyondRawRetention,
     buckets: rows.map((r) => ({ t: from + Number(r.b) * width, min: Number(r.mn), max: Number(r.mx), mean: Number(r.mean), count: Number(r.n) })),
   };
 }

@@ -176,12 +176,96 @@ async function waitDrained(server: Server, ms: number): Promise<{ received: numb
   }
 }
 
+// ---------- retention sweep (its own server and DATA_DIR) ----------
+const RETENTION_ROWS = Number(process.env.BENCH_RETENTION_ROWS ?? 600_000);
+const RETENTION_MS = Number(process.env.BENCH_RETENTION_MS ?? 30_000);
+
+/**
+ * A DATA_DIR with a backlog of raw readings older than RAW_RETENTION_DAYS; the server's first sweep removes
+ * it in batches while 200 engines publish at 1 Hz (QoS 1). Measures what ingest feels: event-loop delay,
+ * /api/health answer time and the writer's batch latency while the sweep runs, and the sweep's rate.
+ */
+async function retentionPhase(progress: (m: string) => void) {
+  const dataDir = fs.mkdtempSync(path.join(os.tmpdir(), 'jw-bench-retention-'));
+  const dbFile = path.join(dataDir, 'jacketwatch.sqlite');
+  const spawnServer = async () => {
+    const [port, mqttPort, smtpPort] = [await freePort(), await freePort(), await freePort()];
+    const child = spawn(process.execPath, ['--import', 'tsx', path.join(ROOT, 'server/main.ts')], {
+      cwd: ROOT, stdio: ['ignore', 'ignore', 'inherit'],
+      env: { ...process.env, PORT: String(port), MQTT_PORT: String(mqttPort), SMTP_PORT: String(smtpPort), DATA_DIR: dataDir, LOG_LEVEL: 'warn', RAW_RETENTION_DAYS: '400' },
+    });
+    const url = `http://127.0.0.1:${port}`;
+    const health = async () => (await fetch(`${url}/api/health`, { signal: AbortSignal.timeout(10_000) })).json();
+    for (let i = 0; ; i++) {
+      try { await health(); break; } catch { if (i > 300 || child.exitCode !== null) throw new Error('server did not start'); await sleep(200); }
+    }
+    const db = new Db(dbFile);
+    const stop = async () => { const exited = new Promise((r) => child.once('exit', r)); child.kill('SIGTERM'); await exited; await db.close(); };
+    return { child, pid: child.pid!, url, mqttPort, dataDir, db, health, stop };
+  };
+  // 1. schema and fleet, then the backlog written with the server stopped
+  let server = await spawnServer();
+  const fleet = await seedFleet(server.db, 200, 'ret');
+  const adminId = await server.db.run(`INSERT INTO users (email, name, password_hash, role, disabled, created_at, updated_at) VALUES (?, ?, ?, 'admin', 0, ?, ?)`,
+    ['bench-ret@example.test', 'Bench admin', bcrypt.hashSync(`bench-${Date.now()}`, 4), new Date().toISOString(), new Date().toISOString()]);
+  await server.stop();
+  const cutoff = Date.now() - 400 * 86_400_000;
+  const oldStart = cutoff - 30 * 86_400_000;
+  const perPair = Math.ceil(RETENTION_ROWS / (fleet.length * 5));
+  const db = new Db(dbFile);
+  const rows: string[] = [];
+  for (const d of fleet) for (let ch = 1; ch <= 5; ch++) for (let k = 0; k < perPair; k++) rows.push(`(${d.engineId},${ch},${oldStart + k * 1000},${50 + (k % 40)},0)`);
+  for (let i = 0; i < rows.length; i += 10_000) {
+    await db.exec('BEGIN');
+    for (let j = i; j < Math.min(rows.length, i + 10_000); j += 500) await db.exec(`INSERT INTO readings (engine_id, channel, ts, value, quality) VALUES ${rows.slice(j, j + 500).join(',')}`);
+    await db.exec('COMMIT');
+  }
+  await db.close();
+  progress(`retention: ${fmt(rows.length)} old raw readings written; server restarts and sweeps them while 200 engines publish`);
+
+  // 2. the server sweeps at start; publishers and the watch begin at once
+  server = await spawnServer();
+  const sweepStart = performance.now();
+  const adminToken = createTokenService(loadJwtSecret(dataDir)).sign({ id: adminId, email: 'bench-ret@example.test', role: 'admin' });
+  const pubs = split(fleet, PUBLISHERS).map((ds) => startPublisher({ mqttPort: server.mqttPort, devices: ds.map((d) => ({ username: d.username, secret: d.secret, engineId: d.engineId })), mode: 'paced', qos: 1, durationMs: RETENTION_MS, window: 1, samplesPerMsg: 1, baseTs: 0 }));
+  await Promise.all(pubs.map((p) => p.ready));
+  pubs.forEach((p) => p.go());
+  const w = watch(server as unknown as Server, adminToken);
+  let sweepS = NaN;
+  let left = rows.length;
+  const end = performance.now() + RETENTION_MS;
+  while (performance.now() < end) {
+    left = (await server.db.get<{ n: number }>('SELECT COUNT(*) AS n FROM readings WHERE ts < ?', [cutoff])).n;
+    if (left === 0) { sweepS = (performance.now() - sweepStart) / 1000; break; }
+    await sleep(250);
+  }
+  const published = (await Promise.all(pubs.map((p) => p.result))).reduce((a, r) => a + r.readings, 0);
+  w.stop();
+  const watched = w.summary();
+  const drained = await waitDrained(server as unknown as Server, 10_000);
+  const admin = (await (await fetch(`${server.url}/api/admin/ingest`, { headers: { authorization: `Bearer ${adminToken}` } })).json()) as { counters?: { batchLatencyMs?: { p95: number; max: number } } };
+  await server.stop();
+  fs.rmSync(dataDir, { recursive: true, force: true });
+  return { backlog: rows.length, left, sweepS, published, stored: drained.stored, batchLatency: admin.counters?.batchLatencyMs ?? null, ...watched };
+}
+
+function printRetention(r: Awaited<ReturnType<typeof retentionPhase>>): void {
+  const line = (k: string, v: string) => console.log(`  ${k.padEnd(46)} ${v}`);
+  console.log(`\n5. Retention sweep (${fmt(r.backlog)} raw readings past RAW_RETENTION_DAYS, while 200 engines x 5 channels x 1 Hz publish at QoS 1)`);
+  line('sweep time / rate', Number.isFinite(r.sweepS) ? `${r.sweepS.toFixed(1)} s / ${fmt(r.backlog / r.sweepS)} rows/s` : `not done in ${RETENTION_MS / 1000} s (${fmt(r.left)} left)`);
+  line('published (acknowledged) / stored during the sweep', `${fmt(r.published)} / ${fmt(r.stored)}`);
+  line('event-loop delay p99 / max (worst 2 s window)', `${r.loopP99} / ${r.loopMax} ms`);
+  line('GET /api/health answer p50 / max (samples)', `${r.healthP50.toFixed(0)} / ${r.healthMax.toFixed(0)} ms (${r.samples} answered, ${r.failures} failed or > 10 s)`);
+  if (r.batchLatency) line('ingest batch latency p95 / max (whole run)', `${r.batchLatency.p95} / ${r.batchLatency.max} ms`);
+}
+
 // ---------- main ----------
 async function main(): Promise<void> {
   const t0 = Date.now();
   console.log(`Jacketwatch ingest benchmark (${os.cpus().length} cores, Node ${process.version}, load average ${os.loadavg().map((x) => x.toFixed(1)).join(' ')})`);
 
   const progress = (m: string) => process.stderr.write(`[${((Date.now() - t0) / 1000).toFixed(1)} s] ${m}\n`);
+  if (process.env.BENCH_PHASE === 'retention') { printRetention(await retentionPhase(progress)); process.exit(0); }
   progress('raw ceiling (3 runs)');
   const rawRuns: Array<{ rate: number; rows: number }> = [];
   for (let i = 0; i < RAW_RUNS; i++) rawRuns.push(await rawCeilingOnce());
@@ -306,6 +390,8 @@ async function main(): Promise<void> {
   line('GET /api/health answer p50 / max (samples)', `${q0.healthP50.toFixed(0)} / ${q0.healthMax.toFixed(0)} ms (${q0.samples} answered, ${q0.failures} failed or > 10 s)`);
   line('RSS each second', mb(q0.rss));
   line('peak RSS (VmHWM) after the QoS 0 flood', `${hwmQos0.toFixed(0)} MB`);
+  const retention = await retentionPhase(progress);
+  printRetention(retention);
   const initialBundle = measureInitialBundle();
   console.log('\n4. App: first download (the production build in dist/, measured as the build estimates it)');
   line('initial bundle (initialTransferKb)', describeInitialBundle(initialBundle));
@@ -319,6 +405,10 @@ async function main(): Promise<void> {
       rssGrowthPct: r1(rssGrowthPct), rssMb: q1.rss.map((x) => Math.round(x)), peakRssMb: r1(hwmQos1),
       qos1LoopP99Ms: q1.loopP99, livePushP95Ms: q(0.95), livePushP50Ms: q(0.5),
       qos0Received: received0, qos0Stored: stored0,
+      initialTransferKb: initialBundle?.transferKb ?? null,
+      retentionRowsPerS: Number.isFinite(retention.sweepS) ? Math.round(retention.backlog / retention.sweepS) : null,
+      retentionLoopMaxMs: retention.loopMax, retentionHealthMaxMs: r1(retention.healthMax),
+      retentionBatchLatencyMaxMs: retention.batchLatency?.max ?? null,
     }, null, 2) + '\n');
     console.log(`figures written to ${process.env.BENCH_JSON}`);
   }

@@ -1,4 +1,5 @@
 /** Mail catcher and outbox over real SMTP on loopback (random ports), into a real SQLite file. */
+import net from 'node:net';
 import nodemailer from 'nodemailer';
 import { startMailCatcher, MAX_MESSAGE_BYTES, type MailCatcher } from '../../server/mail/mail-catcher';
 import { retryDelayMs, startOutbox, type Outbox } from '../../server/mail/outbox';
@@ -69,6 +70,9 @@ describe('outbox', () => {
         const caught = await waitFor(() => m.CaughtMail.findOne({ where: { subject: 'while down' } }), 10000);
         expect(caught.text!.trim()).toBe('kept');
         await msg.reload();
+        // the Message-ID given when queued is the one that arrives after the failed attempts
+        expect(msg.messageId).toMatch(/^<[^@\s]+@localhost>$/);
+        expect(caught.messageId).toBe(msg.messageId);
         expect(msg.sentAt).not.toBeNull();
         // sent once only
         await outbox.flush();
@@ -78,6 +82,98 @@ describe('outbox', () => {
       }
     } finally {
       await outbox.stop();
+    }
+  });
+
+  it('flush sends every due message, more than go at once, each once with its own Message-ID', async () => {
+    const catcher = await startMailCatcher({ port: 0, model: m.CaughtMail, log: quietLog });
+    const outbox = startOutbox({ config: config(catcher.port()), model: m.OutboxMessage, log: quietLog, pollMs: 60_000, parallel: 2 });
+    try {
+      const rows = [];
+      for (let n = 0; n < 9; n++) rows.push(await outbox.enqueue({ to: 'planner@jacketwatch.test', subject: `batch ${n}`, text: `n ${n}` }));
+      await outbox.flush();
+      for (const r of rows) {
+        await r.reload();
+        expect(r.sentAt).not.toBeNull();
+        const caught = await m.CaughtMail.findAll({ where: { subject: r.subject } });
+        expect(caught.map((c) => c.messageId)).toEqual([r.messageId]);
+      }
+    } finally {
+      await outbox.stop();
+      await catcher.stop();
+    }
+  });
+
+  it('a relay that goes silent on one message holds only that one; its retry keeps the same Message-ID', async () => {
+    const catcher = await startMailCatcher({ port: 0, model: m.CaughtMail, log: quietLog });
+    // A real TCP relay in front of the catcher. On the first connection carrying the "stalled one" message it
+    // passes everything on (the catcher keeps the message) but never forwards the catcher's answers: the
+    // sender hears nothing after DATA, like a relay that took the message and hung.
+    let stalledOnce = false;
+    let stallSeen = false;
+    const sockets = new Set<net.Socket>();
+    const relay = net.createServer((client) => {
+      const upstream = net.connect(catcher.port(), '127.0.0.1');
+      sockets.add(client).add(upstream);
+      let seen = '';
+      let silent = false;
+      client.on('data', (d) => {
+        seen += d.toString('latin1');
+        if (!stalledOnce && seen.includes('Subject: stalled one')) {
+          stalledOnce = true;
+          silent = true;
+          stallSeen = true;
+        }
+        upstream.write(d);
+      });
+      upstream.on('data', (d) => {
+        if (!silent) client.write(d);
+      });
+      const end = () => {
+        client.destroy();
+        upstream.destroy();
+      };
+      client.on('close', end).on('error', end);
+      upstream.on('close', end).on('error', end);
+    });
+    await new Promise<void>((resolve) => relay.listen(0, '127.0.0.1', resolve));
+    const relayPort = (relay.address() as net.AddressInfo).port;
+    const outbox = startOutbox({
+      config: config(relayPort), model: m.OutboxMessage, log: quietLog,
+      retryBaseMs: 200, retryMaxMs: 800, pollMs: 100, timeoutMs: 3000, parallel: 4,
+    });
+    try {
+      const stalled = await outbox.enqueue({ to: 'tech@jacketwatch.test', subject: 'stalled one', text: 'held by the relay' });
+      await waitFor(async () => stallSeen, 10000, 20);
+      const others = [];
+      for (const n of [1, 2, 3]) others.push(await outbox.enqueue({ to: 'tech@jacketwatch.test', subject: `goes on ${n}`, text: `body ${n}` }));
+
+      // the others arrive while the stalled message is still waiting for its answer
+      await waitFor(async () => ((await m.CaughtMail.count({ where: { subject: ['goes on 1', 'goes on 2', 'goes on 3'] } })) === 3 ? true : null), 10000, 20);
+      await stalled.reload();
+      expect(stalled.attempts).toBe(0);
+      expect(stalled.sentAt).toBeNull();
+
+      // after its timeout it is sent again, with the Message-ID it was given once
+      await waitFor(async () => ((await stalled.reload()).sentAt ? true : null), 15000);
+      expect(stalled.attempts).toBe(2);
+      expect(stalled.lastError).toBeNull();
+      const copies = await m.CaughtMail.findAll({ where: { subject: 'stalled one' } });
+      expect(copies).toHaveLength(2); // the relay kept the first copy too: the same Message-ID lets it drop one
+      expect(new Set(copies.map((c) => c.messageId))).toEqual(new Set([stalled.messageId]));
+      for (const o of others) {
+        await o.reload();
+        const caught = await m.CaughtMail.findAll({ where: { subject: o.subject } });
+        expect(caught).toHaveLength(1);
+        expect(caught[0].messageId).toBe(o.messageId);
+        expect(o.attempts).toBe(1);
+      }
+      expect(new Set([stalled, ...others].map((o) => o.messageId)).size).toBe(4);
+    } finally {
+      await outbox.stop();
+      for (const s of sockets) s.destroy();
+      await new Promise<void>((resolve) => relay.close(() => resolve()));
+      await catcher.stop();
     }
   });
 });

@@ -117,7 +117,7 @@ describe('GET /api/engines/:id/readings', () => {
 
   it('returns no buckets for a span without data and 404 for an unknown engine', async () => {
     const res = await request(t.app).get(`/api/engines/${engineId}/readings`).query({ channel: 'engine_speed', from: T0, to: T0 + 3600_000 }).set(auth(t.tokens.planner)).expect(200);
-    expect(res.body).toEqual({ source: 'raw', buckets: [] });
+    expect(res.body).toMatchObject({ source: 'raw', beyondRawRetention: false, buckets: [] });
     await request(t.app).get('/api/engines/9999/readings').query({ channel: 'coolant_temp' }).set(auth(t.tokens.planner)).expect(404);
   });
 });

@@ -11,6 +11,10 @@ export interface AlarmSettings {
   /** MAIL_RETRY_BASE_S [5] and MAIL_RETRY_MAX_S [600]: outbox back-off. */
   mailRetryBaseMs: number;
   mailRetryMaxMs: number;
+  /** MAIL_TIMEOUT_S [5]: limit for connecting to the relay, its greeting and each of its answers, per message. */
+  mailTimeoutMs: number;
+  /** MAIL_PARALLEL [4]: messages on their way at once, so one hanging message does not hold the others. */
+  mailParallel: number;
 }
 
 function seconds(env: NodeJS.ProcessEnv, name: string, fallback: number): number {
@@ -18,6 +22,14 @@ function seconds(env: NodeJS.ProcessEnv, name: string, fallback: number): number
   if (raw === undefined || raw === '') return fallback;
   const n = Number(raw);
   if (!Number.isFinite(n) || n <= 0) throw new Error(`${name} must be a positive number of seconds, got "${raw}"`);
+  return n;
+}
+
+function count(env: NodeJS.ProcessEnv, name: string, fallback: number): number {
+  const raw = env[name];
+  if (raw === undefined || raw === '') return fallback;
+  const n = Number(raw);
+  if (!Number.isInteger(n) || n < 1 || n > 100) throw new Error(`${name} must be a whole number from 1 to 100, got "${raw}"`);
   return n;
 }
 
@@ -30,5 +42,7 @@ export function loadAlarmSettings(env: NodeJS.ProcessEnv = process.env): AlarmSe
     tickMs: seconds(env, 'ALARM_TICK_MS', 1000),
     mailRetryBaseMs: seconds(env, 'MAIL_RETRY_BASE_S', 5) * 1000,
     mailRetryMaxMs: seconds(env, 'MAIL_RETRY_MAX_S', 600) * 1000,
+    mailTimeoutMs: seconds(env, 'MAIL_TIMEOUT_S', 5) * 1000,
+    mailParallel: count(env, 'MAIL_PARALLEL', 4),
   };
 }

@@ -82,7 +82,7 @@ export function createAlarmFeature(ctx: AppContext, settings: AlarmSettings = lo
       if (!config.smtpHost) catcher = await startMailCatcher({ port: config.smtpPort, model: models.CaughtMail, log });
       // when the catcher took a random port (SMTP_PORT=0), send to the one it got
       const smtpPort = catcher ? catcher.port() : config.smtpPort;
-      outbox = startOutbox({ config: { ...config, smtpPort }, model: models.OutboxMessage, log, retryBaseMs: settings.mailRetryBaseMs, retryMaxMs: settings.mailRetryMaxMs });
+      outbox = startOutbox({ config: { ...config, smtpPort }, model: models.OutboxMessage, log, retryBaseMs: settings.mailRetryBaseMs, retryMaxMs: settings.mailRetryMaxMs, timeoutMs: settings.mailTimeoutMs, parallel: settings.mailParallel });
       emit = (room, event, payload) => telemetry.emit(room, event, payload);
       lastSeen = (id) => telemetry.liveState.lastSeen(id);
       await rules.load();

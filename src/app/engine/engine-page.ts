@@ -25,6 +25,7 @@ import { RecentReading, RecentReadings } from './recent-readings';
 import { TREND_NOW, TrendRange, presetRange, refreshRange } from './trend-range';
 import { TrendChart, TrendWindow } from './trend-chart';
 import { Bucket, LiveSample, appendLive, bucketWidth, runChanges } from './trend-series';
+import { RAW_SOURCE, TrendSource, combineSources } from './trend-source';
 
 const STATE_TEXT: Record<RunState, string> = { running: 'Running', stopped: 'Stopped', 'no-data': 'No data' };
 const STATE_ICON: Record<RunState, string> = { running: 'sync', stopped: 'stop_circle', 'no-data': 'cloud_off' };
@@ -106,6 +107,8 @@ export class EnginePage {
   /** Live readings extend the trend only while it shows a window that ends now. */
   private readonly following = computed(() => this.zoom() === null && this.range().live);
   protected readonly data = signal<ReadonlyMap<ChannelKey, readonly Bucket[]>>(new Map());
+  /** Raw readings or per-minute summaries, and whether the window reaches back past the raw retention. */
+  protected readonly source = signal<TrendSource>(RAW_SOURCE);
   private readonly speed = signal<readonly Bucket[]>([]);
   protected readonly loadingTrend = signal(false);
   protected readonly trendError = signal<string | null>(null);
@@ -179,7 +182,7 @@ export class EnginePage {
     const win = this.trendWindow();
     const stamp = (ms: number) => new Date(ms).toISOString().slice(0, 16).replace(/[:]/g, '');
     const name = `engine-${e?.id ?? 'x'}-${stamp(win.from)}-${stamp(win.to)}.csv`;
-    downloadText(this.document, name, bucketsToCsv(this.data(), this.prefs.preferences()));
+    downloadText(this.document, name, bucketsToCsv(this.data(), this.prefs.preferences(), this.source()));
   }
 
   private load(id: number): Subscription {
@@ -206,9 +209,10 @@ export class EnginePage {
     this.trendError.set(null);
     const wanted = [...new Set<ChannelKey>([...req.channels, 'engine_speed'])];
     const q = (channel: ChannelKey) => this.api.readings(req.engineId, { channel, from: req.window.from, to: req.window.to, points: req.points });
-    return forkJoin(wanted.map((ch) => q(ch).pipe(map((b) => [ch, b] as const)))).pipe(
-      tap((pairs) => {
-        const all = new Map<ChannelKey, readonly Bucket[]>(pairs);
+    return forkJoin(wanted.map((ch) => q(ch).pipe(map((r) => [ch, r] as const)))).pipe(
+      tap((results) => {
+        const all = new Map<ChannelKey, readonly Bucket[]>(results.map(([ch, r]) => [ch, r.buckets]));
+        this.source.set(combineSources(results.map(([, r]) => r)));
         this.speed.set(all.get('engine_speed') ?? []);
         this.data.set(new Map(req.channels.map((ch) => [ch, all.get(ch) ?? []])));
         this.lastRequest = req;

@@ -4,6 +4,7 @@ import { Observable, map } from 'rxjs';
 import { ChannelKey } from '../../../shared/channels';
 import { Engine, Site } from '../fleet/fleet-types';
 import { Bucket } from './trend-series';
+import { RAW_SOURCE, TrendSource } from './trend-source';
 
 export interface ReadingsRequest {
   channel: ChannelKey;
@@ -11,6 +12,11 @@ export interface ReadingsRequest {
   to: number;
   /** How many buckets at most: the chart's width in pixels. */
   points: number;
+}
+
+/** Buckets of one channel and where they came from (raw readings or per-minute summaries). */
+export interface ReadingsResult extends TrendSource {
+  buckets: Bucket[];
 }
 
 /** HTTP for the engine page. Everything arrives and leaves in SI units. */
@@ -26,13 +32,15 @@ export class EngineService {
     return this.http.get<Site[]>('/api/sites');
   }
 
-  readings(engineId: number, q: ReadingsRequest): Observable<Bucket[]> {
+  readings(engineId: number, q: ReadingsRequest): Observable<ReadingsResult> {
     const params = {
       channel: q.channel,
       from: String(Math.floor(q.from)),
       to: String(Math.ceil(q.to)),
       points: String(Math.max(1, Math.min(2000, Math.round(q.points)))),
     };
-    return this.http.get<{ buckets: Bucket[] }>(`/api/engines/${engineId}/readings`, { params }).pipe(map((r) => r.buckets ?? []));
+    return this.http
+      .get<Partial<ReadingsResult>>(`/api/engines/${engineId}/readings`, { params })
+      .pipe(map((r) => ({ ...RAW_SOURCE, ...r, buckets: r.buckets ?? [] })));
   }
 }

@@ -1,6 +1,7 @@
 import { ChannelKey } from '../../../shared/channels';
 import { UnitPreferences, convertStored, quantityOf } from '../ui/unit-format';
 import { Bucket } from './trend-series';
+import { TrendSource, sourceWords } from './trend-source';
 
 const HEADER = 'time,channel,min,max,mean,count,unit';
 
@@ -9,15 +10,20 @@ const num = (v: number) => String(Math.round(v * 10000) / 10000);
 /**
  * The trend's buckets as CSV (RFC 4180, CRLF line ends): one row per bucket and channel, time as ISO 8601 UTC,
  * values in the units on screen, the unit as its plain key (degC, degF, kPa, psi, bar, uS/cm, rpm).
+ * With a source, a last column says in words whether the rows are raw readings or per-minute summaries
+ * (and why: a window older than the raw retention has only summaries left).
  */
-export function bucketsToCsv(data: ReadonlyMap<ChannelKey, readonly Bucket[]>, prefs: UnitPreferences): string {
-  const rows = [HEADER];
+export function bucketsToCsv(data: ReadonlyMap<ChannelKey, readonly Bucket[]>, prefs: UnitPreferences, source?: TrendSource): string {
+  const words = source ? sourceWords(source) : null;
+  const rows = [words === null ? HEADER : HEADER + ',source'];
   for (const [channel, buckets] of data) {
     const quantity = quantityOf(channel);
     const unit = convertStored(0, quantity, prefs).unit;
     const conv = (v: number) => num(convertStored(v, quantity, prefs).value);
     for (const b of buckets) {
-      rows.push([new Date(b.t).toISOString(), channel, conv(b.min), conv(b.max), conv(b.mean), String(b.count), unit].join(','));
+      const cells = [new Date(b.t).toISOString(), channel, conv(b.min), conv(b.max), conv(b.mean), String(b.count), unit];
+      if (words !== null) cells.push(`"${words}"`);
+      rows.push(cells.join(','));
     }
   }
   return rows.join('\r\n') + '\r\n';
