@@ -54,8 +54,12 @@ interface Slot {
 function channelsOf(def: RuleDefinition): ChannelKey[] | null {
   if (def.kind === 'no_data') return null;
   if (def.kind === 'boiling_margin') return ['coolant_temp', 'coolant_pressure'];
+  // stuck: the watched channel, with speed and pressure as evidence that the engine's condition changed
+  if (def.kind === 'stuck') return [def.channel, ...STUCK_CONTEXT.filter((c) => c !== def.channel)];
   return [def.channel];
 }
+
+const STUCK_CONTEXT: ChannelKey[] = ['engine_speed', 'coolant_pressure'];
 
 const SYMBOL: Record<string, string> = { degC: '°C', kPa: 'kPa', 'uS/cm': 'µS/cm', rpm: 'rpm' };
 
@@ -107,8 +111,11 @@ function step(slot: Slot, input: RuleInput & { channel?: ChannelKey }): StepResu
       return stepRate(slot.state as ReturnType<typeof initialRateState>, input, p as unknown as RateRuleParams);
     case 'no_data':
       return stepNoData(slot.state as NoDataRuleState, input, p as unknown as NoDataRuleParams);
-    case 'stuck':
-      return stepStuck(slot.state as ReturnType<typeof initialStuckState>, input, p as unknown as StuckRuleParams);
+    case 'stuck': {
+      const ch = input.channel;
+      const aux = ch === undefined || ch === slot.def.channel ? undefined : ch === 'engine_speed' ? 'speed' : 'pressure';
+      return stepStuck(slot.state as ReturnType<typeof initialStuckState>, aux ? { ...input, aux } : input, p as unknown as StuckRuleParams);
+    }
     case 'boiling_margin':
       return stepBoilingMargin(slot.state as BoilingMarginState, input as never, p as unknown as BoilingMarginParams);
     case 'conductivity':

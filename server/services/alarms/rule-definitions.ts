@@ -127,9 +127,11 @@ export const DEFAULT_RULES: RuleDefinition[] = [
     priority: 'medium',
     enabled: true,
     title: 'Coolant temperature not changing',
-    meaning: 'The coolant temperature reading has not moved for ten minutes while the engine runs: likely a sensor or wiring fault.',
+    meaning:
+      "The coolant temperature reading has not moved for ten minutes although the engine started, stopped or changed load: likely a sensor or wiring fault. A flat reading at steady load alone is not taken as a fault (a sensor reporting whole degrees may repeat one value for a long time).",
     firstStep: `Compare with a local gauge; treat the engine as unwatched for temperature until the sensor is checked. ${DEFER}`,
-    params: { epsilon: 0.05, durationS: 600, onlyWhenRunning: true },
+    // resolution 0 = learned from recent values (coarsest step they all lie on); set per engine to the sensor's step
+    params: { epsilon: 0.05, durationS: 600, resolution: 0, speedChangeRpm: 150, pressureChangeKpa: 15 },
   },
   {
     key: 'boiling_margin_low',
