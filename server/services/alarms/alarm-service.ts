@@ -30,6 +30,7 @@ export type ListState = 'active' | 'shelved' | 'open' | 'all';
 const ANNUNCIATED: AlarmState[] = ['unacknowledged', 'acknowledged', 'returned-unacknowledged'];
 const iso = (d: Date | null | undefined) => (d ? new Date(d).toISOString() : null);
 const ms = (d: Date | null | undefined) => (d ? new Date(d).getTime() : null);
+const stamp = (t: number) => new Date(t).toISOString().replace('T', ' ').slice(0, 19) + ' UTC';
 
 /** Which way is worse for the value an alarm of this rule carries. */
 export function directionOf(def: RuleDefinition): 'high' | 'low' {
@@ -57,6 +58,12 @@ export class AlarmService {
   private queue: Promise<unknown> = Promise.resolve();
   /** Open alarms by `${engineId}/${rule}`: id and the worst value written. */
   private readonly open = new Map<string, { id: number; worst: number | null; direction: 'high' | 'low' }>();
+  /**
+   * Alarms raised from late data (readings older than lateAfterMs when they arrived), by alarm id: not yet
+   * e-mailed. Cleared while still late: recorded and closed, never e-mailed. Still active once the engine's
+   * data has caught up (or lateAfterMs after they were raised): e-mailed once, saying the data came late.
+   */
+  private readonly pendingLate = new Map<number, { engineId: number; key: string; measuredAt: number; arrivedAt: number }>();
 
   constructor(private readonly deps: AlarmServiceDeps) {}
 
@@ -171,8 +178,8 @@ export class AlarmService {
     return { ok: true };
   }
 
-  /** A rule raised on an engine. */
-  raise(engine: EngineEntry, def: RuleDefinition, ev: RuleEvent): Promise<void> {
+  /** A rule raised on an engine. `arrivedAt`: when the readings behind it arrived (default now). */
+  raise(engine: EngineEntry, def: RuleDefinition, ev: RuleEvent, arrivedAt = Date.now()): Promise<void> {
     return this.serial(async () => {
       const key = `${engine.id}/${def.key}`;
       const known = this.open.get(key);
@@ -184,11 +191,34 @@ export class AlarmService {
         }
         this.open.delete(key);
       }
-      await this.create(engine, def, ev);
+      await this.create(engine, def, ev, arrivedAt);
     });
   }
 
-  private async create(engine: EngineEntry, def: RuleDefinition, ev: RuleEvent): Promise<void> {
+  /** True when alarms of this engine wait for its data to catch up. */
+  hasPendingLate(engineId: number): boolean {
+    for (const p of this.pendingLate.values()) if (p.engineId === engineId) return true;
+    return false;
+  }
+
+  /**
+   * The engine's data has caught up (its newest reading is recent), or `engineId` null: every pending alarm
+   * raised more than lateAfterMs ago. Alarms from late data still active now are e-mailed once.
+   */
+  caughtUp(engineId: number | null, now = Date.now()): Promise<void> {
+    return this.serial(async () => {
+      for (const [id, p] of [...this.pendingLate]) {
+        if (engineId !== null ? p.engineId !== engineId : now - p.arrivedAt < this.deps.settings.lateAfterMs) continue;
+        this.pendingLate.delete(id);
+        const a = await this.deps.models.Alarm.findByPk(id);
+        const engine = this.deps.directory.get(p.engineId);
+        if (!a || a.closedAt || !a.active || !engine) continue;
+        await this.notify(a, engine, 0, { measuredAt: p.measuredAt, arrivedAt: p.arrivedAt });
+      }
+    });
+  }
+
+  private async create(engine: EngineEntry, def: RuleDefinition, ev: RuleEvent, arrivedAt: number): Promise<void> {
     const direction = directionOf(def);
     const r = transition(newAlarm(direction), { type: 'activate', value: ev.value, message: ev.message }, ev.ts);
     if (!r.ok) return;
@@ -227,14 +257,23 @@ export class AlarmService {
     }
     this.open.set(`${engine.id}/${def.key}`, { id: a.id, worst: ev.value, direction });
     this.deps.publish(this.view(a));
-    if (atLeast(def.priority, this.deps.settings.notifyMinPriority)) await this.notify(a, engine, 0);
+    const late = arrivedAt - ev.ts > this.deps.settings.lateAfterMs;
+    if (late) {
+      await this.deps.models.AlarmEvent.create({
+        alarmId: a.id, at: new Date(arrivedAt), event: 'note', fromState: a.state, toState: a.state, userId: null, value: null,
+        note: `Raised from readings that arrived late (measured ${stamp(ev.ts)}, arrived ${stamp(arrivedAt)}): e-mailed only if still active once the data has caught up.`,
+      });
+    }
+    if (!atLeast(def.priority, this.deps.settings.notifyMinPriority)) return;
+    if (late) this.pendingLate.set(a.id, { engineId: engine.id, key: `${engine.id}/${def.key}`, measuredAt: ev.ts, arrivedAt });
+    else await this.notify(a, engine, 0);
   }
 
-  private async notify(a: Alarm, engine: EngineEntry, fromLevel: number): Promise<void> {
+  private async notify(a: Alarm, engine: EngineEntry, fromLevel: number, late?: { measuredAt: number; arrivedAt: number }): Promise<void> {
     const def = this.deps.ruleDef(a.engineId, a.rule);
     if (!def) return;
-    const sent = await this.deps.notifier.notify(a, def, engine, fromLevel);
-    const note = sent.to.length ? `e-mail to ${sent.to.map((u) => u.email).join(', ')}` : 'nobody to e-mail';
+    const sent = await this.deps.notifier.notify(a, def, engine, fromLevel, late);
+    const note = (sent.to.length ? `e-mail to ${sent.to.map((u) => u.email).join(', ')}` : 'nobody to e-mail') + (late ? ' (from late data, still active)' : '');
     await this.deps.sequelize.transaction(async (transaction) => {
       await a.update({ escalationLevel: sent.level, lastNotifiedAt: new Date() }, { transaction });
       await this.deps.models.AlarmEvent.create(
@@ -256,6 +295,11 @@ export class AlarmService {
         return;
       }
       if (a.active) await this.apply(a, { type: 'clear', value: ev.value }, Math.max(ev.ts, ms(a.raisedAt) ?? ev.ts));
+      if (this.pendingLate.delete(a.id) && !a.closedAt) {
+        // raised and cleared within late data: recorded, closed, never e-mailed (nobody is paged for history)
+        const note = `Raised and cleared within readings that arrived late (backfill or store-and-forward): the condition had already cleared when its data arrived, so nobody was e-mailed.`;
+        await this.apply(a, { type: 'acknowledge', by: 'Jacketwatch', comment: note }, Math.max(Date.now(), ms(a.clearedAt) ?? 0), { note });
+      }
     });
   }
 

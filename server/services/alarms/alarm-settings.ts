@@ -11,6 +11,11 @@ export interface AlarmSettings {
   /** MAIL_RETRY_BASE_S [5] and MAIL_RETRY_MAX_S [600]: outbox back-off. */
   mailRetryBaseMs: number;
   mailRetryMaxMs: number;
+  /**
+   * ALARM_LATE_AFTER_S [120]: an alarm raised from readings older than this when they arrive (backfill,
+   * store-and-forward) is "from late data": e-mailed only if still active once the engine's data catches up.
+   */
+  lateAfterMs: number;
 }
 
 function seconds(env: NodeJS.ProcessEnv, name: string, fallback: number): number {
@@ -30,5 +35,6 @@ export function loadAlarmSettings(env: NodeJS.ProcessEnv = process.env): AlarmSe
     tickMs: seconds(env, 'ALARM_TICK_MS', 1000),
     mailRetryBaseMs: seconds(env, 'MAIL_RETRY_BASE_S', 5) * 1000,
     mailRetryMaxMs: seconds(env, 'MAIL_RETRY_MAX_S', 600) * 1000,
+    lateAfterMs: seconds(env, 'ALARM_LATE_AFTER_S', 120) * 1000,
   };
 }

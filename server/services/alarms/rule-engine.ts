@@ -21,6 +21,8 @@ export interface RuleEngineDeps {
   alarms: AlarmService;
   /** Last time anything was heard from an engine (so no-data counts across a restart). */
   lastSeen(engineId: number): number | null;
+  /** Readings older than this when they arrive are late data (ALARM_LATE_AFTER_S). */
+  lateAfterMs: number;
 }
 
 /** The default profile row, written with the built-in rules when there is none. */
@@ -151,6 +153,12 @@ export class RuleEngine {
     }
     this.dispatch(engineId, ev.feed(list));
     this.afterStep(engineId, ev);
+    if (this.deps.alarms.hasPendingLate(engineId)) {
+      let newest = -Infinity;
+      for (const r of list) if (r.ts > newest) newest = r.ts;
+      // the engine's data has caught up: its alarms from late data that are still active are e-mailed now
+      if (Date.now() - newest <= this.deps.lateAfterMs) void this.deps.alarms.caughtUp(engineId).catch((err) => this.deps.log.error('alarms: late-data mail failed', err));
+    }
   }
 
   /** The 1 s clock. */
