@@ -42,6 +42,8 @@ export class RuleEngine {
   private readonly evaluators = new Map<number, EngineEvaluator>();
   private readonly facts = new Map<number, string>();
   private outOfService = new Set<number>();
+  /** Per engine: newest reading time and when its batch arrived (wall clock), for the clock of late data. */
+  private readonly arrivals = new Map<number, { newestTs: number; arrivedAt: number }>();
   private lastRefresh = 0;
   private refreshing: Promise<void> | null = null;
 
@@ -153,18 +155,32 @@ export class RuleEngine {
     }
     this.dispatch(engineId, ev.feed(list));
     this.afterStep(engineId, ev);
-    if (this.deps.alarms.hasPendingLate(engineId)) {
-      let newest = -Infinity;
-      for (const r of list) if (r.ts > newest) newest = r.ts;
-      // the engine's data has caught up: its alarms from late data that are still active are e-mailed now
-      if (Date.now() - newest <= this.deps.lateAfterMs) void this.deps.alarms.caughtUp(engineId).catch((err) => this.deps.log.error('alarms: late-data mail failed', err));
+    let newest = -Infinity;
+    for (const r of list) if (r.ts > newest) newest = r.ts;
+    const now = Date.now();
+    const seen = this.arrivals.get(engineId);
+    if (!seen || newest >= seen.newestTs) this.arrivals.set(engineId, { newestTs: newest, arrivedAt: now });
+    // the engine's data has caught up: its alarms from late data that are still active are e-mailed now
+    if (this.deps.alarms.hasPendingLate(engineId) && now - newest <= this.deps.lateAfterMs) {
+      void this.deps.alarms.caughtUp(engineId).catch((err) => this.deps.log.error('alarms: late-data mail failed', err));
     }
+  }
+
+  /**
+   * The rule clock of one engine. Live: now. While its data arrives late (a backfill or a gateway emptying its
+   * store), time runs on from its newest reading by the wall time since that arrived, so data in transit is not
+   * taken for silence; a gateway that really falls silent is still found after the usual silence.
+   */
+  private clockOf(engineId: number, now: number): number {
+    const seen = this.arrivals.get(engineId);
+    if (!seen || seen.arrivedAt - seen.newestTs <= this.deps.lateAfterMs) return now;
+    return Math.min(now, seen.newestTs + Math.max(0, now - seen.arrivedAt));
   }
 
   /** The 1 s clock. */
   tick(now = Date.now()): void {
     for (const [engineId, ev] of this.evaluators) {
-      this.dispatch(engineId, ev.tick(now));
+      this.dispatch(engineId, ev.tick(this.clockOf(engineId, now)));
       this.afterStep(engineId, ev);
     }
     if (now - this.lastRefresh > DIRECTORY_REFRESH_MS) void this.refreshEngines().catch((err) => this.deps.log.error('alarms: engine refresh failed', err));

@@ -41,6 +41,12 @@ describe('no-data rule', () => {
     expect(events).toEqual([]);
   });
 
+  it('the first interval of history sent at 300 s steps is learned, not taken for a silence', () => {
+    const { state, events } = runRule(stepNoData, initialNoDataState(), series([80, 80, 80, 80], 300), p);
+    expect(events).toEqual([]);
+    expect(silenceLimitMs(state, p)).toBe(1500 * S);
+  });
+
   it('with a start time, silence before the first reading counts', () => {
     const { events } = runRule(stepNoData, initialNoDataState(0), [{ ts: 31 * S }], p);
     expect(events.map((e) => [e.kind, e.ts])).toEqual([['raise', 30 * S]]);
