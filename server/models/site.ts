@@ -6,6 +6,8 @@ export class Site extends Model<InferAttributes<Site>, InferCreationAttributes<S
   /** IANA zone name, e.g. America/Chicago: local times of the site (rota, schedules) use it. */
   declare timeZone: string;
   declare retiredAt: CreationOptional<Date | null>;
+  /** Metres above mean sea level (null: unknown, taken as sea level) for the standard-atmosphere pressure. */
+  declare elevationM: CreationOptional<number | null>;
 }
 
 export function initSite(sequelize: Sequelize): typeof Site {
@@ -15,6 +17,7 @@ export function initSite(sequelize: Sequelize): typeof Site {
       name: { type: DataTypes.STRING(120), allowNull: false },
       timeZone: { type: DataTypes.STRING(64), allowNull: false },
       retiredAt: { type: DataTypes.DATE, allowNull: true },
+      elevationM: { type: DataTypes.DOUBLE, allowNull: true },
     },
     { sequelize, tableName: 'sites', underscored: true, timestamps: false },
   );

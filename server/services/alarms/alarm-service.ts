@@ -21,9 +21,9 @@ import { atLeast } from './priority';
 import type { RuleDefinition } from './rule-definitions';
 import { alarmUnit } from './value-format';
 import { CHANNELS } from '../../../shared/channels';
-import type { AlarmHistoryView, AlarmView } from '../../../shared/api/alarms-view';
+import type { AlarmHistoryPage, AlarmHistoryView, AlarmView } from '../../../shared/api/alarms-view';
 
-export type { AlarmHistoryView, AlarmView } from '../../../shared/api/alarms-view';
+export type { AlarmHistoryPage, AlarmHistoryView, AlarmView } from '../../../shared/api/alarms-view';
 
 export type ListState = 'active' | 'shelved' | 'open' | 'all';
 
@@ -63,6 +63,8 @@ export class AlarmService {
    * e-mailed. Cleared while still late: recorded and closed, never e-mailed. Still active once the engine's
    * data has caught up (or lateAfterMs after they were raised): e-mailed once, saying the data came late.
    */
+  /** Recent activation times of open alarms (by id), for chattering. */
+  private readonly recentActs = new Map<number, number[]>();
   private readonly pendingLate = new Map<number, { engineId: number; key: string; measuredAt: number; arrivedAt: number }>();
 
   constructor(private readonly deps: AlarmServiceDeps) {}
@@ -117,6 +119,7 @@ export class AlarmService {
       closedAt: iso(a.closedAt),
       escalationLevel: a.escalationLevel,
       lastNotifiedAt: iso(a.lastNotifiedAt),
+      chatteringAt: iso(a.chatteringAt),
     };
   }
 
@@ -173,7 +176,10 @@ export class AlarmService {
         { transaction },
       );
     });
-    if (closing) this.open.delete(key);
+    if (closing) {
+      this.open.delete(key);
+      this.recentActs.delete(a.id);
+    }
     this.deps.publish(this.view(a));
     return { ok: true };
   }
@@ -186,13 +192,34 @@ export class AlarmService {
       if (known) {
         const a = await this.deps.models.Alarm.findByPk(known.id);
         if (a && !a.closedAt) {
-          if (!a.active) await this.apply(a, { type: 'activate', value: ev.value, message: ev.message }, ev.ts, {}, { value: ev.value, worstValue: ev.value });
+          if (!a.active) {
+            const r = await this.apply(a, { type: 'activate', value: ev.value, message: ev.message }, ev.ts, {}, { value: ev.value, worstValue: ev.value });
+            if (r.ok) await this.countActivation(a, ev.ts);
+          }
           return;
         }
         this.open.delete(key);
       }
       await this.create(engine, def, ev, arrivedAt);
     });
+  }
+
+  /**
+   * Chattering (ISA-18.2: an alarm that repeatedly goes in and out of alarm in a short time): the alarm came into
+   * alarm chatterCount times within chatterWindowMs. Marked once, with a note saying what to do about it.
+   */
+  private async countActivation(a: Alarm, ts: number): Promise<void> {
+    const { chatterCount, chatterWindowMs } = this.deps.settings;
+    const list = (this.recentActs.get(a.id) ?? []).filter((t) => t > ts - chatterWindowMs);
+    list.push(ts);
+    this.recentActs.set(a.id, list.slice(-chatterCount));
+    if (list.length < chatterCount || a.chatteringAt) return;
+    const note = `Chattering: came into alarm ${list.length} times within ${Math.round(chatterWindowMs / 1000)} s. A candidate for a longer deadband or on-/off-delay on this rule (or a sensor to check).`;
+    await this.deps.sequelize.transaction(async (transaction) => {
+      await a.update({ chatteringAt: new Date(ts) }, { transaction });
+      await this.deps.models.AlarmEvent.create({ alarmId: a.id, at: new Date(ts), event: 'note', fromState: a.state, toState: a.state, userId: null, value: null, note }, { transaction });
+    });
+    this.deps.publish(this.view(a));
   }
 
   /** True when alarms of this engine wait for its data to catch up. */
@@ -256,6 +283,7 @@ export class AlarmService {
       throw err;
     }
     this.open.set(`${engine.id}/${def.key}`, { id: a.id, worst: ev.value, direction });
+    this.recentActs.set(a.id, [ev.ts]);
     this.deps.publish(this.view(a));
     const late = arrivedAt - ev.ts > this.deps.settings.lateAfterMs;
     if (late) {
@@ -420,16 +448,21 @@ export class AlarmService {
     return rows.map((a) => this.view(a));
   }
 
-  async get(id: number): Promise<AlarmView & { history: AlarmHistoryView[]; meaning: string | null; firstStep: string | null }> {
+  async get(id: number, page: { limit?: number; offset?: number } = {}): Promise<AlarmView & { history: AlarmHistoryView[]; historyTotal: number; meaning: string | null; firstStep: string | null }> {
     const a = await this.find(id);
-    // in the order recorded (event times come from devices and the server clock)
-    const events = await this.deps.models.AlarmEvent.findAll({ where: { alarmId: id }, order: [['id', 'ASC']] });
+    const h = await this.history(id, page);
     const def = this.deps.ruleDef(a.engineId, a.rule);
+    return { ...this.view(a), meaning: def?.meaning ?? null, firstStep: def?.firstStep ?? null, history: h.entries, historyTotal: h.total };
+  }
+
+  /** One page of an alarm's history in time order (ties in the order recorded). */
+  async history(id: number, page: { limit?: number; offset?: number } = {}): Promise<AlarmHistoryPage> {
+    const limit = page.limit ?? 200;
+    const offset = page.offset ?? 0;
+    const { rows, count } = await this.deps.models.AlarmEvent.findAndCountAll({ where: { alarmId: id }, order: [['at', 'ASC'], ['id', 'ASC']], limit, offset });
     return {
-      ...this.view(a),
-      meaning: def?.meaning ?? null,
-      firstStep: def?.firstStep ?? null,
-      history: events.map((e) => ({ at: iso(e.at)!, event: e.event, fromState: e.fromState as AlarmState | null, toState: e.toState as AlarmState | null, userId: e.userId, value: e.value, note: e.note })),
+      total: count, limit, offset,
+      entries: rows.map((e) => ({ at: iso(e.at)!, event: e.event, fromState: e.fromState as AlarmState | null, toState: e.toState as AlarmState | null, userId: e.userId, value: e.value, note: e.note })),
     };
   }
 
@@ -465,7 +498,7 @@ export class AlarmService {
   }
 
   /** ISA-18.2 style performance figures over [from, to) from the recorded activations. */
-  async performance(from: number, to: number, engineIds?: number[]): Promise<PerformanceReport> {
+  async performance(from: number, to: number, engineIds?: number[], chatter: { count?: number; windowMs?: number } = {}): Promise<PerformanceReport> {
     const { AlarmEvent, Alarm } = this.deps.models;
     const scoped = engineIds ? { alarmId: await this.alarmIdsOf(engineIds) } : {};
     const acts = await AlarmEvent.findAll({ where: { event: 'activate', at: { [Op.gte]: new Date(from), [Op.lt]: new Date(to) }, ...scoped }, order: [['at', 'ASC']] });
@@ -484,7 +517,11 @@ export class AlarmService {
       const clr = after('clear');
       return { key: keyOf.get(e.alarmId) ?? String(e.alarmId), activatedAt: at, acknowledgedAt: ack ? new Date(ack.at).getTime() : null, clearedAt: clr ? new Date(clr.at).getTime() : null };
     });
-    return alarmPerformance(activations, { from, to });
+    return alarmPerformance(activations, {
+      from, to,
+      chatterCount: chatter.count ?? this.deps.settings.chatterCount,
+      chatterWindowMs: chatter.windowMs ?? this.deps.settings.chatterWindowMs,
+    });
   }
 }
 

@@ -16,6 +16,12 @@ export interface AlarmSettings {
    * store-and-forward) is "from late data": e-mailed only if still active once the engine's data catches up.
    */
   lateAfterMs: number;
+  /**
+   * ALARM_CHATTER_COUNT [3] and ALARM_CHATTER_WINDOW_S [60]: an alarm that comes into alarm this many times
+   * within the window is chattering (ISA-18.2's notion; the figures are a common working threshold).
+   */
+  chatterCount: number;
+  chatterWindowMs: number;
 }
 
 function seconds(env: NodeJS.ProcessEnv, name: string, fallback: number): number {
@@ -36,5 +42,7 @@ export function loadAlarmSettings(env: NodeJS.ProcessEnv = process.env): AlarmSe
     mailRetryBaseMs: seconds(env, 'MAIL_RETRY_BASE_S', 5) * 1000,
     mailRetryMaxMs: seconds(env, 'MAIL_RETRY_MAX_S', 600) * 1000,
     lateAfterMs: seconds(env, 'ALARM_LATE_AFTER_S', 120) * 1000,
+    chatterCount: Math.max(2, Math.round(seconds(env, 'ALARM_CHATTER_COUNT', 3))),
+    chatterWindowMs: seconds(env, 'ALARM_CHATTER_WINDOW_S', 60) * 1000,
   };
 }
