@@ -158,7 +158,7 @@ export const alarmsOpenApi: OpenApiGroup = {
       type: 'object',
       properties: {
         key: { type: 'string' },
-        kind: { enum: ['limit', 'rate', 'no_data', 'stuck', 'boiling_margin', 'conductivity'] },
+        kind: { enum: ['limit', 'rate', 'no_data', 'stuck', 'boiling_margin', 'conductivity', 'heater_loss'] },
         channel: { type: 'string' },
         priority: { enum: ['low', 'medium', 'high', 'urgent'] },
         enabled: { type: 'boolean' },

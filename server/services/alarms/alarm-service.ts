@@ -37,7 +37,7 @@ export function directionOf(def: RuleDefinition): 'high' | 'low' {
   const p = def.params as { direction?: string };
   if (def.kind === 'limit') return p.direction === 'low' ? 'low' : 'high';
   if (def.kind === 'rate') return p.direction === 'falling' ? 'low' : 'high';
-  if (def.kind === 'boiling_margin') return 'low';
+  if (def.kind === 'boiling_margin' || def.kind === 'heater_loss') return 'low';
   return 'high';
 }
 

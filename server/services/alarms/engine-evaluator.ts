@@ -12,6 +12,7 @@ import { initialNoDataState, stepNoData, type NoDataRuleParams, type NoDataRuleS
 import { initialRateState, stepRate, type RateRuleParams } from '../../../shared/rules/rate-rule';
 import type { RuleEvent, RuleInput, StepResult } from '../../../shared/rules/rule-types';
 import { initialStuckState, stepStuck, type StuckRuleParams } from '../../../shared/rules/stuck-rule';
+import { initialHeaterLossState, stepHeaterLoss, type HeaterLossParams, type HeaterLossState } from '../../../shared/rules/heater-loss-rule';
 import type { RuleDefinition } from './rule-definitions';
 
 /** What an engine contributes to its rules' parameters. */
@@ -23,6 +24,11 @@ export interface EngineFacts {
   /** Conductivity baseline: from when (ms), and its value when already known. */
   baselineFrom: number;
   baselineValue: number | null;
+  /** Duty, heater setpoint, cap rating and site elevation (absent in older callers: rules that need them stay quiet). */
+  duty?: 'standby' | 'prime' | 'continuous';
+  heaterSetpointC?: number | null;
+  capPressureKpa?: number | null;
+  elevationM?: number | null;
 }
 
 export interface EvalReading {
@@ -72,6 +78,7 @@ function paramsFor(def: RuleDefinition, engine: EngineFacts): Record<string, unk
     return { glycol: engine.glycolType, glycolPercent: engine.glycolPercent, basis: 'volume', ...def.params };
   }
   if (def.kind === 'conductivity') return { baselineFrom: engine.baselineFrom, ...def.params };
+  if (def.kind === 'heater_loss') return { heaterSetpointC: engine.heaterSetpointC ?? null, ...def.params };
   return def.params;
 }
 
@@ -87,6 +94,8 @@ function initialState(def: RuleDefinition, engine: EngineFacts, startTs: number 
       return initialStuckState();
     case 'boiling_margin':
       return initialBoilingMarginState();
+    case 'heater_loss':
+      return initialHeaterLossState();
     case 'conductivity': {
       const s = initialConductivityState();
       // a stored baseline is reused, so a restart does not learn a new one from contaminated coolant
@@ -98,7 +107,7 @@ function initialState(def: RuleDefinition, engine: EngineFacts, startTs: number 
 /** The state of a rule whose alarm is still active (after a restart): it can then clear. */
 function activeState(def: RuleDefinition, state: unknown, worst: number | null): unknown {
   if (def.kind === 'no_data') return { ...(state as NoDataRuleState), active: true };
-  if (def.kind === 'stuck') return { ...(state as object), active: true };
+  if (def.kind === 'stuck' || def.kind === 'heater_loss') return { ...(state as object), active: true };
   return { ...(state as object), ...initialDelayedState(), active: true, worstValue: worst, raisedValue: worst };
 }
 
@@ -120,6 +129,8 @@ function step(slot: Slot, input: RuleInput & { channel?: ChannelKey }): StepResu
       return stepBoilingMargin(slot.state as BoilingMarginState, input as never, p as unknown as BoilingMarginParams);
     case 'conductivity':
       return stepConductivity(slot.state as ConductivityRuleState, input, p as unknown as ConductivityRuleParams);
+    case 'heater_loss':
+      return stepHeaterLoss(slot.state as HeaterLossState, input, p as unknown as HeaterLossParams);
   }
 }
 
@@ -131,6 +142,12 @@ function step(slot: Slot, input: RuleInput & { channel?: ChannelKey }): StepResu
 function armTemp(def: RuleDefinition): number | null {
   const t = def.params.armedAtTempC;
   return typeof t === 'number' && Number.isFinite(t) ? t : null;
+}
+
+/** `onlyDuty` (e.g. 'standby'): the rule is for engines of that duty only. */
+function appliesTo(def: RuleDefinition, engine: EngineFacts): boolean {
+  const duty = def.params.onlyDuty;
+  return typeof duty !== 'string' || engine.duty === duty;
 }
 
 const feedOrder = (a: EvalReading, b: EvalReading) => a.ts - b.ts || (a.channel === 'engine_speed' ? -1 : b.channel === 'engine_speed' ? 1 : 0);
@@ -159,7 +176,7 @@ export class EngineEvaluator {
     opts: { startTs?: number | null; activeRules?: Map<string, number | null> } = {},
   ) {
     this.slots = rules
-      .filter((d) => d.enabled)
+      .filter((d) => d.enabled && appliesTo(d, engine))
       .map((def) => {
         let state = initialState(def, engine, opts.startTs ?? null);
         if (opts.activeRules?.has(def.key)) state = activeState(def, state, opts.activeRules.get(def.key) ?? null);

@@ -32,8 +32,16 @@ export async function ensureDefaultProfile(models: Models): Promise<RuleDefiniti
     defaults: { name: DEFAULT_PROFILE_NAME, isDefault: true, rules: DEFAULT_RULES },
   });
   const rules = typeof row.rules === 'string' ? (JSON.parse(row.rules) as RuleDefinition[]) : row.rules;
-  return rules;
+  // rules added in later versions join a stored profile (its own rules and tuning stay as they are)
+  const missing = DEFAULT_RULES.filter((d) => !rules.some((r) => r.key === d.key));
+  if (!missing.length) return rules;
+  const merged = [...rules, ...missing];
+  await row.update({ rules: merged });
+  return merged;
 }
+
+/** What the evaluators depend on: a change rebuilds the engine's evaluator. */
+const factsKey = (e: EngineEntry) => [e.glycolType, e.glycolPercent, e.duty, e.heaterSetpointC, e.capPressureKpa, e.elevationM].join('/');
 
 export class RuleEngine {
   private profile: RuleDefinition[] = DEFAULT_RULES;
@@ -83,7 +91,10 @@ export class RuleEngine {
 
   private factsOf(e: EngineEntry): EngineFacts {
     const b = this.baselines.get(e.id);
-    return { id: e.id, glycolType: e.glycolType, glycolPercent: e.glycolPercent, baselineFrom: b?.from ?? e.createdAt, baselineValue: b?.value ?? null };
+    return {
+      id: e.id, glycolType: e.glycolType, glycolPercent: e.glycolPercent, baselineFrom: b?.from ?? e.createdAt, baselineValue: b?.value ?? null,
+      duty: e.duty, heaterSetpointC: e.heaterSetpointC, capPressureKpa: e.capPressureKpa, elevationM: e.elevationM,
+    };
   }
 
   private build(e: EngineEntry): void {
@@ -95,7 +106,7 @@ export class RuleEngine {
     }
     const facts = this.factsOf(e);
     this.evaluators.set(e.id, new EngineEvaluator(facts, this.rulesFor(e.id), { startTs: this.deps.lastSeen(e.id), activeRules: active }));
-    this.facts.set(e.id, `${e.glycolType}/${e.glycolPercent}`);
+    this.facts.set(e.id, factsKey(e));
   }
 
   /** Re-read engines: start evaluating new ones, stop and suppress those out of service, rebuild on a new glycol mix. */
@@ -114,7 +125,7 @@ export class RuleEngine {
           continue;
         }
         if (this.outOfService.has(e.id)) await this.deps.alarms.setOutOfService(e.id, false);
-        if (force || !this.evaluators.has(e.id) || this.facts.get(e.id) !== `${e.glycolType}/${e.glycolPercent}`) this.build(e);
+        if (force || !this.evaluators.has(e.id) || this.facts.get(e.id) !== factsKey(e)) this.build(e);
       }
       for (const id of [...this.evaluators.keys()]) if (!engines.has(id)) this.evaluators.delete(id);
       this.outOfService = nextOos;
