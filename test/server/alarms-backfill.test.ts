@@ -71,10 +71,15 @@ it('7 days of history then live data: nothing annunciated, no e-mail, history al
   expect(code).toBe(0);
   // every engine's live data stored (the simulator exits after LIVE_S s of live running)
   const engines = await waitFor(async () => {
-    const list = await get<{ id: number; lastSeenAt: string | null }[]>('/api/engines', admin);
+    const list = await get<{ id: number; lastSeenAt: string | null; duty: string; readiness?: { ready: boolean; reasons: string[] } }[]>('/api/engines', admin);
     return list.length === 8 && list.every((e) => e.lastSeenAt && new Date(e.lastSeenAt).getTime() > started) && list;
   }, 30_000, 500);
   expect(engines).toHaveLength(8);
+  // the seven standby sets sit warm on their heaters with fresh data and no alarm: Ready; the continuous engine has no readiness
+  for (const e of engines) {
+    if (e.duty === 'standby') expect({ id: e.id, readiness: e.readiness }).toEqual({ id: e.id, readiness: { ready: true, reasons: [] } });
+    else expect(e.readiness).toBeUndefined();
+  }
   // every rule has seen the last batch: ask through the health endpoint's writer counters and then the alarm list
   const all = await get<AlarmRow[]>('/api/alarms?state=all', admin);
   const active = await get<AlarmRow[]>('/api/alarms?state=active', admin);
