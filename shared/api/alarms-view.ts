@@ -31,7 +31,7 @@ export interface AlarmView {
   escalationLevel: number;
   lastNotifiedAt: string | null;
   /** First found chattering (came into alarm N times within the window; a candidate for a longer deadband or delay). */
-  chatteringAt: string | null;
+  chatteringAt?: string | null;
 }
 
 /** A page of an alarm's history (GET /api/alarms/:id/history), in time order. */

@@ -2,6 +2,7 @@
  * Runs one engine's rules over its readings, in time order, with the shared pure evaluators
  * (shared/rules). No I/O: the live rule engine and the 7-day preview both drive it.
  */
+import { standardAtmosphereKpa } from '../../../shared/atmosphere';
 import { CHANNELS, RUNNING_RPM, type ChannelKey } from '../../../shared/channels';
 import type { GlycolType } from '../../../shared/coolant/glycol';
 import { initialBoilingMarginState, stepBoilingMargin, type BoilingMarginParams, type BoilingMarginState } from '../../../shared/rules/boiling-margin-rule';
@@ -69,13 +70,25 @@ const STUCK_CONTEXT: ChannelKey[] = ['engine_speed', 'coolant_pressure'];
 
 const SYMBOL: Record<string, string> = { degC: '°C', kPa: 'kPa', 'uS/cm': 'µS/cm', rpm: 'rpm' };
 
+/** Standard-atmosphere pressure at the site; sea level when the elevation is unknown (or out of the model's range). */
+function siteAtmosphereKpa(elevationM: number | null | undefined): number {
+  try {
+    return standardAtmosphereKpa(elevationM ?? 0);
+  } catch {
+    return standardAtmosphereKpa(0);
+  }
+}
+
 function paramsFor(def: RuleDefinition, engine: EngineFacts): Record<string, unknown> {
   // words for the evaluators' messages
   const info = CHANNELS[def.channel];
   const words = { label: info.label, unit: SYMBOL[info.unit] ?? info.unit };
   if (def.kind === 'limit' || def.kind === 'rate' || def.kind === 'stuck' || def.kind === 'no_data') return { ...words, ...def.params, ...(def.kind === 'no_data' ? { label: 'Engine data' } : {}) };
   if (def.kind === 'boiling_margin') {
-    return { glycol: engine.glycolType, glycolPercent: engine.glycolPercent, basis: 'volume', ...def.params };
+    return {
+      glycol: engine.glycolType, glycolPercent: engine.glycolPercent, basis: 'volume',
+      atmosphereKpa: siteAtmosphereKpa(engine.elevationM), capPressureKpa: engine.capPressureKpa ?? null, ...def.params,
+    };
   }
   if (def.kind === 'conductivity') return { baselineFrom: engine.baselineFrom, ...def.params };
   if (def.kind === 'heater_loss') return { heaterSetpointC: engine.heaterSetpointC ?? null, ...def.params };

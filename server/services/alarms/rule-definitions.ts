@@ -168,7 +168,8 @@ export const DEFAULT_RULES: RuleDefinition[] = [
     priority: 'high',
     enabled: true,
     title: 'Boiling margin low',
-    meaning: 'The coolant is less than 10 °C below the boiling point of its water-glycol mix at the measured system pressure.',
+    meaning:
+      "The coolant is less than 10 °C below the boiling point of its water-glycol mix at the measured system pressure and the site's atmospheric pressure (from its elevation, ICAO standard atmosphere). Without a pressure reading the cap's rating is used only while the engine runs warm.",
     firstStep: `${HOT_CAP} Opening it now could make the coolant boil at once. Reduce the load from a safe distance and check the fan and belt. ${DEFER}`,
     params: { marginC: 10, deadbandC: 2, onDelayS: 10, offDelayS: 30 },
   },
