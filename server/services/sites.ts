@@ -5,6 +5,8 @@ import { ALL_SITES, type SiteScope } from './site-access';
 export interface SiteInput {
   name: string;
   timeZone: string;
+  /** Metres above mean sea level (null: unknown). */
+  elevationM?: number | null;
 }
 
 export function listSites(models: Models, includeRetired = false, scope: SiteScope = ALL_SITES): Promise<Site[]> {
