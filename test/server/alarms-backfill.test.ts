@@ -1,7 +1,7 @@
 /**
  * Integration: history does not page anyone. ONE real server process (broker, HTTP, mail catcher) on random
  * ports with the demo seed and NOTIFY_MIN_PRIORITY=low (every alarm would be e-mailed), and ONE real simulator
- * process doing what `npm start` does on a fresh DATA_DIR (seed 1, history every 300 s), here 7 days of history
+ * process doing what `npm start` does on a fresh DATA_DIR (seed 1, history every 300 s), here 7 days of history (BACKFILL_DAYS)
  * and then 60 s of live data at 1 Hz for all eight demo engines. Afterwards nothing is annunciated, no e-mail
  * was queued or caught, and whatever the rules found in the history is recorded as closed.
  */
@@ -15,6 +15,8 @@ const ROOT = path.resolve(__dirname, '../..');
 const TSX = path.join(ROOT, 'node_modules/.bin/tsx');
 const PASSWORD = 'jacketwatch-demo';
 const LIVE_S = 60;
+// BACKFILL_DAYS=30 runs exactly what a fresh `npm start` publishes (slower)
+const DAYS = Number(process.env.BACKFILL_DAYS ?? 7);
 
 jest.setTimeout(400_000);
 
@@ -63,10 +65,10 @@ afterAll(async () => {
 
 interface AlarmRow { id: number; engineId: number; rule: string; state: string; active: boolean; closedAt: string | null; raisedAt: string }
 
-it('7 days of history then live data: nothing annunciated, no e-mail, history alarms recorded as closed', async () => {
+it(`${DAYS} days of history then live data: nothing annunciated, no e-mail, history alarms recorded as closed`, async () => {
   const admin = ((await (await fetch(`${base}/api/auth/login`, { method: 'POST', headers: { 'content-type': 'application/json' }, body: JSON.stringify({ email: 'admin@jacketwatch.test', password: PASSWORD }) })).json()) as { token: string }).token;
   const started = Date.now();
-  sim = run(['simulator/cli.ts', '--rate', '1', '--seed', '1', '--backfill-days', '7', '--backfill-step', '300', '--duration', String(LIVE_S)], 'simulator');
+  sim = run(['simulator/cli.ts', '--rate', '1', '--seed', '1', '--backfill-days', String(DAYS), '--backfill-step', '300', '--duration', String(LIVE_S)], 'simulator');
   const code = await new Promise<number | null>((resolve) => sim!.once('exit', (c) => resolve(c)));
   expect(code).toBe(0);
   // every engine's live data stored (the simulator exits after LIVE_S s of live running)
