@@ -246,13 +246,12 @@ export class EngineModel {
     this.lastTs = Math.max(this.lastTs, ts);
     this.physMs += dt * SECOND;
 
-    this.running = this.command === 'run' ? true : this.command === 'stop' ? false : this.scheduledRun();
-
     let fault: Fault = NO_FAULT;
     if (ts >= this.faultStartTs) {
       fault = SCENARIOS[this.scenario].fault(this.faultPhysS);
       this.faultPhysS += dt;
     }
+    this.running = fault.holdStopped ? false : this.command === 'run' ? true : this.command === 'stop' ? false : this.scheduledRun();
 
     const ambient = this.trueAmbient();
     const T = this.tempC;
@@ -273,7 +272,7 @@ export class EngineModel {
     } else {
       // Newton's law of cooling: T(t) = Ta + (T0 - Ta) exp(-t / tau).
       const cooled = ambient + (T - ambient) * Math.exp(-dt / coolTauSeconds(this.spec.capacityL));
-      const sp = this.spec.heaterSetpointC;
+      const sp = fault.heaterOff ? null : this.spec.heaterSetpointC;
       if (sp !== null && cooled < sp) {
         // The heater holds the block at its setpoint (or brings a cold block up to it).
         this.tempC = T >= sp ? sp : sp + (T - sp) * Math.exp(-dt / HEATER_TAU_S);

@@ -4,7 +4,7 @@
  * time, so `--speed` shortens them like every other time constant.
  */
 
-export type ScenarioName = 'normal' | 'overheat' | 'leak' | 'contamination' | 'stuck-sensor' | 'lost-comms';
+export type ScenarioName = 'normal' | 'overheat' | 'leak' | 'contamination' | 'stuck-sensor' | 'lost-comms' | 'heater-failure';
 
 export interface Fault {
   /** 0 = radiator works; 1 = fan or belt gone, heat is no longer rejected. */
@@ -17,6 +17,10 @@ export interface Fault {
   freezeTemp: boolean;
   /** The gateway's uplink is down: nothing is published for this engine. */
   silent: boolean;
+  /** The engine is held stopped (whatever the command) while this is true. */
+  holdStopped: boolean;
+  /** The jacket-water heater does not heat (failed, breaker tripped or switched off). */
+  heaterOff: boolean;
 }
 
 export const NO_FAULT: Readonly<Fault> = Object.freeze({
@@ -25,6 +29,8 @@ export const NO_FAULT: Readonly<Fault> = Object.freeze({
   conductivityGain: 0,
   freezeTemp: false,
   silent: false,
+  holdStopped: false,
+  heaterOff: false,
 });
 
 export interface ScenarioInfo {
@@ -40,6 +46,8 @@ export const LEAK_EMPTY_MIN = 20;
 /** Physical minutes for contamination to reach its full gain. */
 export const CONTAMINATION_RAMP_MIN = 30;
 export const CONTAMINATION_FULL_GAIN = 0.6;
+/** Physical seconds a stuck-sensor engine is held stopped before it starts (the start shows the fault). */
+export const STUCK_STOP_S = 60;
 
 const clamp01 = (x: number): number => (x < 0 ? 0 : x > 1 ? 1 : x);
 
@@ -73,9 +81,16 @@ export const SCENARIOS: Record<ScenarioName, ScenarioInfo> = {
   },
   'stuck-sensor': {
     name: 'stuck-sensor',
-    description: 'coolant temperature sensor stuck: the same value, exactly, while the engine runs',
+    description:
+      'coolant temperature sensor stuck: the same value, exactly; the engine is stopped for a minute and started, and the reading does not follow (a flat reading at steady load alone is no fault)',
     requiresRunning: true,
-    fault: () => ({ ...NO_FAULT, freezeTemp: true }),
+    fault: (physS) => ({ ...NO_FAULT, freezeTemp: true, holdStopped: physS < STUCK_STOP_S }),
+  },
+  'heater-failure': {
+    name: 'heater-failure',
+    description: "jacket-water heater off (failed, breaker tripped or switched off): a stopped engine's coolant falls steadily toward ambient",
+    requiresRunning: false,
+    fault: () => ({ ...NO_FAULT, heaterOff: true }),
   },
   'lost-comms': {
     name: 'lost-comms',

@@ -24,6 +24,8 @@ export class Alarm extends Model<InferAttributes<Alarm>, InferCreationAttributes
   declare closedAt: CreationOptional<Date | null>;
   declare escalationLevel: CreationOptional<number>;
   declare lastNotifiedAt: CreationOptional<Date | null>;
+  /** First found chattering (returned to alarm N times within the window), null when never. */
+  declare chatteringAt: CreationOptional<Date | null>;
   declare createdAt: CreationOptional<Date>;
   declare updatedAt: CreationOptional<Date>;
 }
@@ -55,6 +57,7 @@ export function initAlarm(sequelize: Sequelize): typeof Alarm {
       closedAt: date(),
       escalationLevel: { type: DataTypes.INTEGER, allowNull: false, defaultValue: 0 },
       lastNotifiedAt: date(),
+      chatteringAt: date(),
       createdAt: DataTypes.DATE,
       updatedAt: DataTypes.DATE,
     },

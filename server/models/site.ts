@@ -8,6 +8,8 @@ export class Site extends Model<InferAttributes<Site>, InferCreationAttributes<S
   declare retiredAt: CreationOptional<Date | null>;
   /** Lowest expected temperature at the site, °C (coolant freeze protection is judged against it); null when not set. */
   declare designLowTempC: CreationOptional<number | null>;
+  /** Metres above mean sea level (null: unknown, taken as sea level) for the standard-atmosphere pressure. */
+  declare elevationM: CreationOptional<number | null>;
 }
 
 export function initSite(sequelize: Sequelize): typeof Site {
@@ -18,6 +20,7 @@ export function initSite(sequelize: Sequelize): typeof Site {
       timeZone: { type: DataTypes.STRING(64), allowNull: false },
       retiredAt: { type: DataTypes.DATE, allowNull: true },
       designLowTempC: { type: DataTypes.DOUBLE, allowNull: true, field: 'design_low_temp_c' },
+      elevationM: { type: DataTypes.DOUBLE, allowNull: true },
     },
     { sequelize, tableName: 'sites', underscored: true, timestamps: false },
   );

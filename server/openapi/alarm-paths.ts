@@ -22,11 +22,23 @@ export const alarmsOpenApi: OpenApiGroup = {
     '/api/alarms/performance': {
       get: {
         summary: 'Alarm performance: per day, per 10 min, most frequent, chattering, standing, time to acknowledge',
-        parameters: [{ name: 'from', in: 'query', schema: { type: 'string' } }, { name: 'to', in: 'query', schema: { type: 'string' } }],
+        parameters: [
+          { name: 'from', in: 'query', schema: { type: 'string' } },
+          { name: 'to', in: 'query', schema: { type: 'string' } },
+          { name: 'chatterCount', in: 'query', schema: { type: 'integer', minimum: 2, default: 3 }, description: 'activations within the window that make an alarm chattering' },
+          { name: 'chatterWindowS', in: 'query', schema: { type: 'integer', minimum: 1, default: 60 } },
+        ],
         responses: { '200': obj, ...errors({ input: true }) },
       },
     },
-    '/api/alarms/{id}': { parameters: [idParam], get: { summary: 'One alarm with its history', responses: { '200': json(ref('Alarm')), ...errors({ notFound: true }) } } },
+    '/api/alarms/{id}': {
+      parameters: [idParam, { name: 'limit', in: 'query', schema: { type: 'integer', default: 200, maximum: 1000 } }, { name: 'offset', in: 'query', schema: { type: 'integer', default: 0 } }],
+      get: { summary: 'One alarm with the first page of its history (time order) and historyTotal', responses: { '200': json(ref('Alarm')), ...errors({ input: true, notFound: true }) } },
+    },
+    '/api/alarms/{id}/history': {
+      parameters: [idParam, { name: 'limit', in: 'query', schema: { type: 'integer', default: 200, maximum: 1000 } }, { name: 'offset', in: 'query', schema: { type: 'integer', default: 0 } }],
+      get: { summary: "A page of an alarm's history in time order: { total, limit, offset, entries }", responses: { '200': obj, ...errors({ input: true, notFound: true }) } },
+    },
     '/api/alarms/{id}/acknowledge': {
       parameters: [idParam],
       post: {
@@ -146,7 +158,7 @@ export const alarmsOpenApi: OpenApiGroup = {
       type: 'object',
       properties: {
         key: { type: 'string' },
-        kind: { enum: ['limit', 'rate', 'no_data', 'stuck', 'boiling_margin', 'conductivity'] },
+        kind: { enum: ['limit', 'rate', 'no_data', 'stuck', 'boiling_margin', 'conductivity', 'heater_loss'] },
         channel: { type: 'string' },
         priority: { enum: ['low', 'medium', 'high', 'urgent'] },
         enabled: { type: 'boolean' },

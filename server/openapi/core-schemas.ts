@@ -48,6 +48,11 @@ export const coreSchemas: Record<string, Json> = {
       latest: { type: 'object', additionalProperties: latest, description: 'by channel key' },
       lastSeenAt: { type: ['integer', 'null'], description: 'ms since epoch of the last reading' },
       runState: { enum: ['running', 'stopped', 'no-data'] },
+      readiness: {
+        type: 'object',
+        description: 'standby engines only: "Ready" or "Not ready" with the reasons in words (cold jacket water, an active high or urgent alarm, stale data, an open lockout, out of service)',
+        properties: { ready: { type: 'boolean' }, reasons: { type: 'array', items: { type: 'string' } } },
+      },
     },
   },
   Device: { type: 'object', properties: { id: { type: 'integer' }, engineId: { type: 'integer' }, username: { type: 'string' }, revokedAt: { type: ['string', 'null'] }, lastSeenAt: { type: ['string', 'null'] } } },

@@ -20,7 +20,16 @@ const shelveBody = z.strictObject({
 });
 const noteBody = z.strictObject({ note: z.string().trim().min(1, 'a note is required').max(1000) });
 const DAY = 86400_000;
-const perfQuery = z.object({ from: instant.optional(), to: instant.optional() });
+const perfQuery = z.object({
+  from: instant.optional(),
+  to: instant.optional(),
+  chatterCount: z.coerce.number().int().min(2).max(100).optional(),
+  chatterWindowS: z.coerce.number().int().min(1).max(86_400).optional(),
+});
+const pageQuery = z.object({
+  limit: z.coerce.number().int().min(1).max(1000).default(200),
+  offset: z.coerce.number().int().min(0).default(0),
+});
 
 /** /api/alarms: lists, one alarm with history, acknowledge, shelve, notes, summary and performance. */
 export function alarmsRouter(ctx: AppContext, feature: AlarmFeature): Router {
@@ -43,12 +52,21 @@ export function alarmsRouter(ctx: AppContext, feature: AlarmFeature): Router {
     const from = q.from ?? to - 7 * DAY;
     if (from >= to) throw badRequest('from must be before to', 'from');
     if (to - from > 400 * DAY) throw badRequest('span is at most 400 days', 'from');
-    res.json(await svc.performance(from, to, (await engineIds(req)) ?? undefined));
+    const chatter = { count: q.chatterCount, windowMs: q.chatterWindowS === undefined ? undefined : q.chatterWindowS * 1000 };
+    res.json(await svc.performance(from, to, (await engineIds(req)) ?? undefined, chatter));
   });
   r.get('/alarms/:id', async (req, res) => {
     const id = parseId(req.params);
+    const page = parse(pageQuery, req.query);
     await visible(req, id);
-    res.json(await svc.get(id));
+    res.json(await svc.get(id, page));
+  });
+  r.get('/alarms/:id/history', async (req, res) => {
+    const id = parseId(req.params);
+    const page = parse(pageQuery, req.query);
+    await visible(req, id);
+    await svc.get(id, { limit: 1 }); // 404 for an unknown alarm
+    res.json(await svc.history(id, page));
   });
   r.post('/alarms/:id/acknowledge', requireRole('operator', 'technician', 'planner', 'admin'), async (req, res) => {
     const id = parseId(req.params);

@@ -1,5 +1,6 @@
 import { Router } from 'express';
 import { z } from 'zod';
+import { ELEVATION_MAX_M, ELEVATION_MIN_M, standardAtmosphereKpa } from '../../shared/atmosphere';
 import {
   assessFreezeProtection, boilingPointC, checkMakeUpWater, CONCENTRATION_BASES, COOLANT_CAUTIONS, COOLANT_FAMILIES,
   CoolantInputError, correctMix, decideAdditive, GLYCOL_TYPES, initialChargeAfterRefill, percentForFreezePoint,
@@ -25,7 +26,12 @@ const additiveBody = z.strictObject({
 });
 const freezeBody = z.strictObject({ glycol, percent: num, basis: basis.default('volume') });
 const glycolNeededBody = z.strictObject({ glycol, freezePointC: num, basis: basis.default('volume') });
-const boilingBody = z.strictObject({ gaugePressureKpa: num, glycol, percent: num, basis: basis.default('volume'), atmosphereKpa: num.optional() });
+const boilingBody = z.strictObject({
+  gaugePressureKpa: num, glycol, percent: num, basis: basis.default('volume'),
+  /** Measured atmospheric pressure (kPa absolute), or the site's elevation for the ICAO standard atmosphere. */
+  atmosphereKpa: num.optional(),
+  elevationM: num.min(ELEVATION_MIN_M).max(ELEVATION_MAX_M).optional(),
+});
 const mixBody = z.strictObject({
   capacityL: num, measuredPercent: num, targetPercent: num, premixPercent: num.optional(),
   scaUnitsPerGal: num.optional(), liquidUnitsPerLitre: num.optional(),
@@ -88,10 +94,14 @@ export function calcRouter(ctx: AppContext): Router {
 
   r.post('/calc/boiling-point', (req, res) => {
     const b = parse(boilingBody, req.body);
-    const atm = b.atmosphereKpa ?? KPA_PER_ATM;
+    if (b.atmosphereKpa !== undefined && b.elevationM !== undefined) throw badRequest('give either atmosphereKpa or elevationM, not both', 'elevationM');
+    const atm = b.atmosphereKpa ?? (b.elevationM !== undefined ? standardAtmosphereKpa(b.elevationM) : KPA_PER_ATM);
+    const atmosphereSource =
+      b.atmosphereKpa !== undefined ? 'given' : b.elevationM !== undefined ? `ICAO standard atmosphere at ${b.elevationM} m (ICAO Doc 7488)` : 'sea level (101.325 kPa)';
     const t = computeOr400(() => boilingPointC(b.gaugePressureKpa, b.glycol, b.percent, b.basis, atm), { gaugeKpa: 'gaugePressureKpa' });
     res.json({
-      boilingPointC: t, gaugePressureKpa: b.gaugePressureKpa, absolutePressureKpa: b.gaugePressureKpa + atm, glycol: b.glycol, percent: b.percent, basis: b.basis,
+      boilingPointC: t, gaugePressureKpa: b.gaugePressureKpa, absolutePressureKpa: b.gaugePressureKpa + atm, atmosphereKpa: atm, atmosphereSource,
+      ...(b.elevationM !== undefined ? { elevationM: b.elevationM } : {}), glycol: b.glycol, percent: b.percent, basis: b.basis,
       method: 'IAPWS-IF97 water saturation line with Raoult\'s law on the water mole fraction (ideal solution; about a degree or two at 30-60 % mixes)',
       warnings: b.gaugePressureKpa > 0 ? ['The cap holds this pressure only while it seals: a worn cap or a leak lowers the boiling point.'] : [],
       coolantCautions: cautionsOf('hot-pressure', 'defer'),

@@ -6,6 +6,7 @@ import type { AppContext } from '../app-context';
 import { badRequest } from '../http-error';
 import { COOLANT_FAMILIES, DUTIES, GLYCOL_TYPES } from '../models/engine';
 import { activeAlarmCounts } from '../services/alarms/alarm-service';
+import { standbyReadinessOf } from '../services/readiness';
 import { createEngine, engineView, getEngine, listEngines, retireEngine, updateEngine } from '../services/engines';
 import { queryBuckets } from '../services/readings-query';
 import { assertEngineVisible, siteFilter, siteScopeOf } from '../services/site-access';
@@ -61,14 +62,16 @@ export function enginesRouter(ctx: AppContext): Router {
     const q = parse(listQuery, req.query);
     const siteIds = siteFilter(await siteScopeOf(req), q.siteId);
     const engines = await listEngines(ctx.models, { siteIds: siteIds ?? undefined, includeRetired: q.includeRetired === 'true' });
-    const alarmCounts = await activeAlarmCounts(ctx.models);
-    res.json(engines.map((e) => ({ ...engineView(e, live()), activeAlarms: alarmCounts.get(e.id) ?? 0 })));
+    const [alarmCounts, readiness] = await Promise.all([activeAlarmCounts(ctx.models), standbyReadinessOf(ctx.models, engines, live())]);
+    // standby engines carry readiness: { ready, reasons } (reasons in words)
+    res.json(engines.map((e) => ({ ...engineView(e, live()), activeAlarms: alarmCounts.get(e.id) ?? 0, ...(readiness.has(e.id) ? { readiness: readiness.get(e.id) } : {}) })));
   });
   r.get('/engines/:id', async (req, res) => {
     const id = parseId(req.params);
     await assertEngineVisible(ctx.models, await siteScopeOf(req), id);
     const engine = await getEngine(ctx.models, id);
-    res.json({ ...engineView(engine, live()), activeAlarms: (await activeAlarmCounts(ctx.models)).get(engine.id) ?? 0 });
+    const readiness = (await standbyReadinessOf(ctx.models, [engine], live())).get(engine.id);
+    res.json({ ...engineView(engine, live()), activeAlarms: (await activeAlarmCounts(ctx.models)).get(engine.id) ?? 0, ...(readiness ? { readiness } : {}) });
   });
   r.get('/engines/:id/readings', async (req, res) => {
     const id = parseId(req.params);

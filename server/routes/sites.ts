@@ -5,6 +5,7 @@ import type { AppContext } from '../app-context';
 import { siteScopeOf } from '../services/site-access';
 import { createSite, listSites, retireSite, updateSite } from '../services/sites';
 import { parse, parseId, timeZone } from './validate';
+import { ELEVATION_MAX_M, ELEVATION_MIN_M } from '../../shared/atmosphere';
 
 const siteFields = {
   name: z.string().trim().min(1).max(120),
@@ -12,8 +13,10 @@ const siteFields = {
   /** Lowest expected temperature, °C (coolant freeze protection is judged against it). */
   designLowTempC: z.number().min(-80, 'at least -80 degC').max(40, 'at most 40 degC').nullable().optional(),
 };
+/** Metres above mean sea level (null: unknown, sea level); the ICAO standard atmosphere's range used here. */
+const elevationM = z.number().finite().min(ELEVATION_MIN_M).max(ELEVATION_MAX_M).nullable();
 const createBody = z.strictObject(siteFields);
-const patchBody = createBody.partial();
+const patchBody = z.strictObject({ ...siteFields, elevationM }).partial();
 const listQuery = z.object({ includeRetired: z.enum(['true', 'false']).optional() });
 
 export function sitesRouter(ctx: AppContext): Router {

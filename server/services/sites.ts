@@ -6,6 +6,8 @@ export interface SiteInput {
   name: string;
   timeZone: string;
   designLowTempC?: number | null;
+  /** Metres above mean sea level (null: unknown). */
+  elevationM?: number | null;
 }
 
 export function listSites(models: Models, includeRetired = false, scope: SiteScope = ALL_SITES): Promise<Site[]> {

@@ -41,6 +41,8 @@ export interface PerformanceReport {
   share10MinOver10: number;
   mostFrequent: { key: string; count: number; share: number }[];
   chattering: { key: string; bursts: number; maxInWindow: number }[];
+  /** The chattering test applied: this many activations within this window. */
+  chatter: { count: number; windowMs: number };
   standing: { key: string; activatedAt: number; activeMs: number }[];
   acknowledge: { count: number; meanMs: number | null; medianMs: number | null; unacknowledged: number };
 }
@@ -103,6 +105,7 @@ export function alarmPerformance(activations: readonly AlarmActivation[], opt: P
     share10MinOver10: periods ? buckets.filter((b) => b > 10).length / periods : 0,
     mostFrequent,
     chattering,
+    chatter: { count: chatterCount, windowMs: chatterWindow },
     standing,
     acknowledge: {
       count: ackTimes.length,

@@ -30,6 +30,16 @@ export interface AlarmView {
   closedAt: string | null;
   escalationLevel: number;
   lastNotifiedAt: string | null;
+  /** First found chattering (came into alarm N times within the window; a candidate for a longer deadband or delay). */
+  chatteringAt?: string | null;
+}
+
+/** A page of an alarm's history (GET /api/alarms/:id/history), in time order. */
+export interface AlarmHistoryPage {
+  total: number;
+  limit: number;
+  offset: number;
+  entries: AlarmHistoryView[];
 }
 
 /** One entry of an alarm's history in GET /api/alarms/:id. */

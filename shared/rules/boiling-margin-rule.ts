@@ -3,16 +3,19 @@
  * minus the coolant temperature. Alarm when the margin is below `marginC` for the on-delay;
  * back to normal when it is at least marginC + deadbandC for the off-delay.
  * Fed readings of two channels; the latest good pressure is paired with each temperature.
- * Without a usable pressure (none yet, or older than `maxPressureAgeS`) 0 kPa gauge is assumed:
- * the boiling point of the open system, lower than at any positive cap pressure, so the margin
- * errs on the side of an early alarm (the message says so).
+ * Absolute pressure = gauge + the site's atmospheric pressure (`atmosphereKpa`, from its elevation by the
+ * ICAO standard atmosphere; sea level when not given), so the margin is right at altitude.
+ * Without a usable pressure (none yet, or older than `maxPressureAgeS`) the rule uses the cap's rating
+ * only while the engine runs and the coolant is warm (at least `warmAboveC`), when a sound system holds
+ * near it, and says so in the alarm text; otherwise it gives no verdict: assuming an open system (0 kPa)
+ * would alarm inside the normal running band of a water-only engine.
  */
 import { boilingPointC as defaultBoilingPointC } from '../coolant/boiling-point';
 import { ConcentrationBasis, GlycolType } from '../coolant/glycol';
 import { DelayedState, DelayMessages, initialDelayedState, advanceDelays, applyStatus, forceNormal, ConditionStatus } from './delayed-condition';
 import { RuleInput, RuleReading, RunGate, StepResult, isReading, isGood, gateOpen, gateText, fmt } from './rule-types';
 
-export type BoilingPointFn = (gaugeKpa: number, glycol: GlycolType, percent: number, basis: ConcentrationBasis) => number;
+export type BoilingPointFn = (gaugeKpa: number, glycol: GlycolType, percent: number, basis: ConcentrationBasis, atmosphereKpa?: number) => number;
 
 export interface BoilingMarginReading extends RuleReading {
   channel: 'coolant_temp' | 'coolant_pressure';
@@ -32,6 +35,12 @@ export interface BoilingMarginParams extends RunGate {
   basis: ConcentrationBasis;
   /** Pressure older than this (relative to the temperature reading) is not used. Default 60 s. */
   maxPressureAgeS?: number;
+  /** Atmospheric pressure at the site (kPa absolute); default 101.325 (sea level). */
+  atmosphereKpa?: number;
+  /** Rated cap pressure (kPa gauge), used without a pressure reading while running and warm; null: unknown. */
+  capPressureKpa?: number | null;
+  /** "Warm" for the cap assumption (°C, default 80). */
+  warmAboveC?: number;
   /** Override of the boiling point function (default: shared/coolant/boiling-point.ts, IAPWS-IF97 + Raoult). */
   boilingPointC?: BoilingPointFn;
 }
@@ -40,7 +49,7 @@ export interface BoilingMarginState extends DelayedState {
   pressure: { ts: number; value: number } | null;
   lastMarginC: number | null;
   lastBoilingPointC: number | null;
-  /** True when the last margin assumed 0 kPa gauge for want of a pressure reading. */
+  /** True when the last margin assumed the cap's rating for want of a pressure reading. */
   assumedPressure: boolean;
 }
 
@@ -55,7 +64,8 @@ export function boilingMarginStatus(marginC: number, p: BoilingMarginParams): Co
 
 function messages(p: BoilingMarginParams, assumed: () => boolean): DelayMessages {
   return {
-    raise: (v) => `Boiling margin ${fmt(v)} °C below ${p.marginC} °C${assumed() ? ' (no pressure reading: 0 kPa gauge assumed)' : ''}`,
+    raise: (v) =>
+      `Boiling margin ${fmt(v)} °C below ${p.marginC} °C${assumed() ? ` (no pressure reading: the cap's rating of ${fmt(p.capPressureKpa ?? 0, 0)} kPa assumed, as the engine runs warm; a leaking cap or low coolant would leave less margin)` : ''}`,
     clear: (v) => `Boiling margin back to ${fmt(v)} °C`,
     worse: (a, b) => a < b,
   };
@@ -81,11 +91,18 @@ export function stepBoilingMargin(state: BoilingMarginState, input: BoilingMargi
   const maxAge = (params.maxPressureAgeS ?? 60) * 1000;
   const p = state.pressure;
   const usable = p !== null && Math.abs(reading.ts - p.ts) <= maxAge;
+  const cap = params.capPressureKpa;
+  const capUsable = !usable && reading.running === true && typeof cap === 'number' && cap > 0 && reading.value >= (params.warmAboveC ?? 80);
+  if (!usable && !capUsable) {
+    // no pressure and no safe assumption: no verdict (delays keep running on the held value)
+    const r = advanceDelays(state, reading.ts, params, m);
+    return { state: merge(r.state), events: r.events };
+  }
   assumed = !usable;
-  const gauge = usable ? p!.value : 0;
+  const gauge = usable ? p!.value : cap!;
   let bp: number;
   try {
-    bp = (params.boilingPointC ?? defaultBoilingPointC)(gauge, params.glycol, params.glycolPercent, params.basis);
+    bp = (params.boilingPointC ?? defaultBoilingPointC)(gauge, params.glycol, params.glycolPercent, params.basis, params.atmosphereKpa);
   } catch {
     // Outside the property equations: no verdict from this reading, delays keep running.
     const r = advanceDelays(state, reading.ts, params, m);

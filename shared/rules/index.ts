@@ -7,3 +7,4 @@ export * from './no-data-rule';
 export * from './stuck-rule';
 export * from './boiling-margin-rule';
 export * from './conductivity-rule';
+export * from './heater-loss-rule';

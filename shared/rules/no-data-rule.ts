@@ -44,7 +44,10 @@ export function stepNoData(state: NoDataRuleState, input: RuleInput, params: NoD
   const events: RuleEvent[] = [];
   const limit = silenceLimitMs(state, params);
   let s = state;
-  if (!s.active && s.lastTs !== null && input.ts - s.lastTs > limit) {
+  // A reading that ends the very first gap (nothing learned, no expected interval) is not a silence: with
+  // history sent at, say, 300 s steps, the first interval is simply the first thing learned. Clock ticks still judge it.
+  const judged = !isReading(input) || s.intervalsMs.length > 0 || params.initialIntervalS !== undefined;
+  if (judged && !s.active && s.lastTs !== null && input.ts - s.lastTs > limit) {
     const at = s.lastTs + limit;
     events.push({ kind: 'raise', ts: at, value: null, message: `${label}: no data for more than ${fmt(limit / 1000, 0)} s` });
     s = { ...s, active: true };

@@ -1,21 +1,40 @@
 /**
- * Stuck value: while the engine runs, the reading has not moved out of a band of width
- * `epsilon` for `durationS`. "Not moved since" is measured from the last reading that lay
- * outside the band of the present run (or the run's first reading), using sliding min/max
- * queues so the state stays small however long the value is flat. Clears as soon as the value
- * moves or the engine stops (a stopped engine may sit at one temperature for days).
+ * Stuck value: the reading has not moved out of a band for `durationS` although the engine's
+ * condition changed meanwhile (a start, a stop, or a load change seen in speed or pressure).
+ * A healthy sensor at steady load may well repeat one value for a long time, above all one that
+ * reports whole degrees, so a flat value alone proves nothing; a flat value through a start does.
+ *
+ * The band is the larger of `epsilon` and the sensor's resolution: the `resolution` parameter when
+ * set (per engine and channel, through the engine's rule override), otherwise the coarsest step
+ * that every recent value lies on (whole degrees, halves, tenths, ...).
+ * "Not moved since" is measured from the last reading that lay outside the band (sliding min/max
+ * queues keep the state small however long the value is flat). Clears as soon as the value moves.
+ *
+ * Inputs: readings of the watched channel, plus context readings marked `aux: 'speed' | 'pressure'`
+ * (engine speed in rpm, coolant pressure in kPa). `running` on the watched readings tells starts and stops.
  */
-import { RuleEvent, RuleInput, StepResult, isReading, isGood, fmt } from './rule-types';
+import { RuleEvent, RuleInput, StepResult, isReading, isGood, fmt, type RuleReading } from './rule-types';
 
 export interface StuckRuleParams {
-  /** Largest range (max - min) still counted as "not moving". */
+  /** Smallest range (max - min) counted as "moving"; widened to the sensor's resolution. */
   epsilon: number;
+  /** How long the value must stay flat after the engine's condition changed. */
   durationS: number;
-  /** Default true: evaluate only while running. */
+  /** Sensor resolution in the channel's unit; when 0 or absent it is learned from recent values. */
+  resolution?: number | null;
+  /** A change of engine speed this large counts as a change of condition (rpm). */
+  speedChangeRpm?: number;
+  /** A change of coolant pressure this large counts as a change of condition (kPa). */
+  pressureChangeKpa?: number;
+  /** How far back values count for the learned resolution (s). */
+  resolutionWindowS?: number;
+  /** Accepted for stored profiles of earlier versions; starts and stops are now part of the rule. */
   onlyWhenRunning?: boolean;
   label?: string;
   unit?: string;
 }
+
+export type StuckInput = RuleInput | (RuleReading & { aux?: 'speed' | 'pressure' });
 
 interface Point { ts: number; value: number }
 
@@ -25,24 +44,93 @@ export interface StuckRuleState {
   maxQ: Point[];
   minQ: Point[];
   active: boolean;
+  /** Per candidate step (as a string key): last time a value was not a multiple of it. */
+  offGridAt: Record<string, number>;
+  /** Values seen (the learned resolution needs a few). */
+  seen: number;
+  lastRunning: boolean | null;
+  refSpeed: number | null;
+  refPressure: number | null;
+  /** Last change of condition: when, and what. */
+  changeTs: number | null;
+  changeWhat: string | null;
+  /** First change of condition inside the present flat run. */
+  firstChangeTs: number | null;
+  firstChangeWhat: string | null;
 }
+
+/** Candidate resolutions, coarsest first (channel units). */
+export const RESOLUTION_STEPS = [1, 0.5, 0.2, 0.1, 0.05, 0.02, 0.01] as const;
+const MIN_VALUES_FOR_RESOLUTION = 10;
 
 export function initialStuckState(): StuckRuleState {
-  return { runStart: null, maxQ: [], minQ: [], active: false };
+  return {
+    runStart: null, maxQ: [], minQ: [], active: false, offGridAt: {}, seen: 0, lastRunning: null,
+    refSpeed: null, refPressure: null, changeTs: null, changeWhat: null, firstChangeTs: null, firstChangeWhat: null,
+  };
 }
 
-export function stepStuck(state: StuckRuleState, input: RuleInput, params: StuckRuleParams): StepResult<StuckRuleState> {
+const onGrid = (v: number, step: number) => Math.abs(v / step - Math.round(v / step)) < 1e-6;
+
+/** The resolution in force: the parameter, else the coarsest step every value of the window lies on (0 when unknown). */
+export function stuckResolution(state: StuckRuleState, params: StuckRuleParams, now: number): number {
+  if (typeof params.resolution === 'number' && params.resolution > 0) return params.resolution;
+  if (state.seen < MIN_VALUES_FOR_RESOLUTION) return 0;
+  const windowMs = (params.resolutionWindowS ?? 86_400) * 1000;
+  for (const step of RESOLUTION_STEPS) {
+    const off = state.offGridAt[String(step)];
+    if (off === undefined || now - off > windowMs) return step;
+  }
+  return 0;
+}
+
+/** Words for a speed change: a start or a stop when it crosses a crawl speed, otherwise a load change. */
+function speedChange(from: number, to: number): string {
+  const turning = (rpm: number) => rpm >= 100;
+  if (!turning(from) && turning(to)) return 'the engine started';
+  if (turning(from) && !turning(to)) return 'the engine stopped';
+  return `engine speed changed from ${fmt(from, 0)} to ${fmt(to, 0)} rpm`;
+}
+
+function noteChange(s: StuckRuleState, ts: number, what: string): void {
+  s.changeTs = ts;
+  s.changeWhat = what;
+  if (s.firstChangeTs === null && s.runStart !== null) {
+    s.firstChangeTs = ts;
+    s.firstChangeWhat = what;
+  }
+}
+
+export function stepStuck(state: StuckRuleState, input: StuckInput, params: StuckRuleParams): StepResult<StuckRuleState> {
   const label = params.label ?? 'Value';
   const unit = params.unit ? ` ${params.unit}` : '';
   const events: RuleEvent[] = [];
   if (!isReading(input) || !isGood(input)) return { state, events };
-  const gated = (params.onlyWhenRunning ?? true) && input.running !== true;
-  if (gated) {
-    if (state.active) events.push({ kind: 'clear', ts: input.ts, value: input.value, message: `${label}: no longer checked for a stuck value (engine not running)` });
-    return { state: initialStuckState(), events };
+  const aux = (input as { aux?: 'speed' | 'pressure' }).aux;
+  if (aux) {
+    const s = { ...state };
+    const limit = aux === 'speed' ? (params.speedChangeRpm ?? 150) : (params.pressureChangeKpa ?? 15);
+    const ref = aux === 'speed' ? s.refSpeed : s.refPressure;
+    if (ref !== null && Math.abs(input.value - ref) >= limit) {
+      noteChange(s, input.ts, aux === 'speed' ? speedChange(ref, input.value) : `coolant pressure changed from ${fmt(ref, 0)} to ${fmt(input.value, 0)} kPa`);
+    }
+    if (ref === null || Math.abs(input.value - ref) >= limit) {
+      if (aux === 'speed') s.refSpeed = input.value;
+      else s.refPressure = input.value;
+    }
+    return { state: s, events };
   }
+
   const lastTs = state.maxQ.length ? state.maxQ[state.maxQ.length - 1].ts : null;
   if (lastTs !== null && input.ts <= lastTs) return { state, events }; // out of order or duplicate time
+  const s: StuckRuleState = { ...state, offGridAt: { ...state.offGridAt }, seen: state.seen + 1 };
+  for (const step of RESOLUTION_STEPS) if (!onGrid(input.value, step)) s.offGridAt[String(step)] = input.ts;
+  if (input.running !== undefined) {
+    if (s.lastRunning !== null && input.running !== s.lastRunning) noteChange(s, input.ts, input.running ? 'the engine started' : 'the engine stopped');
+    s.lastRunning = input.running;
+  }
+  const band = Math.max(params.epsilon, stuckResolution(s, params, input.ts));
+
   const p = { ts: input.ts, value: input.value };
   const maxQ = [...state.maxQ];
   const minQ = [...state.minQ];
@@ -50,9 +138,9 @@ export function stepStuck(state: StuckRuleState, input: RuleInput, params: Stuck
   maxQ.push(p);
   while (minQ.length && minQ[minQ.length - 1].value >= p.value) minQ.pop();
   minQ.push(p);
-  let runStart = state.runStart ?? p.ts;
+  let runStart = s.runStart ?? p.ts;
   let moved = false;
-  while (maxQ[0].value - minQ[0].value > params.epsilon) {
+  while (maxQ[0].value - minQ[0].value > band) {
     // Drop the older extreme: the run now starts at it (the last reading outside the new band).
     const older = maxQ[0].ts <= minQ[0].ts ? maxQ : minQ;
     runStart = older.shift()!.ts;
@@ -60,17 +148,25 @@ export function stepStuck(state: StuckRuleState, input: RuleInput, params: Stuck
     while (maxQ.length && maxQ[0].ts <= runStart) maxQ.shift();
     while (minQ.length && minQ[0].ts <= runStart) minQ.shift();
   }
-  let active = state.active;
-  if (active && moved) {
-    events.push({ kind: 'clear', ts: p.ts, value: p.value, message: `${label} moving again (${fmt(p.value, 2)}${unit})` });
-    active = false;
+  if (s.runStart === null || moved) {
+    // a new flat run: only a change of condition inside it counts
+    const inside = s.changeTs !== null && s.changeTs > runStart;
+    s.firstChangeTs = inside ? s.changeTs : null;
+    s.firstChangeWhat = inside ? s.changeWhat : null;
   }
-  if (!active && p.ts - runStart >= params.durationS * 1000) {
-    active = true;
+  s.runStart = runStart;
+  s.maxQ = maxQ;
+  s.minQ = minQ;
+  if (s.active && moved) {
+    events.push({ kind: 'clear', ts: p.ts, value: p.value, message: `${label} moving again (${fmt(p.value, 2)}${unit})` });
+    s.active = false;
+  }
+  if (!s.active && s.firstChangeTs !== null && p.ts - s.firstChangeTs >= params.durationS * 1000) {
+    s.active = true;
     events.push({
       kind: 'raise', ts: p.ts, value: p.value,
-      message: `${label} stuck at ${fmt(p.value, 2)}${unit} for ${fmt((p.ts - runStart) / 1000, 0)} s while running (sensor or wiring?)`,
+      message: `${label} stuck at ${fmt(p.value, 2)}${unit} for ${fmt((p.ts - runStart) / 1000, 0)} s although ${s.firstChangeWhat} ${fmt((p.ts - s.firstChangeTs) / 1000, 0)} s ago (band ${fmt(band, 2)}${unit}; sensor or wiring?)`,
     });
   }
-  return { state: { runStart, maxQ, minQ, active }, events };
+  return { state: s, events };
 }

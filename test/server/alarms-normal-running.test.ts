@@ -30,7 +30,10 @@ function drive(spec: EngineSpec, minutes: number, plan: Plan[], rules = DEFAULT_
   const model = new EngineModel(spec, { seed: 7, startMs: T0, speed: 1 });
   const glycol = DEMO_ENGINES[spec.engineId - 1];
   const ev = new EngineEvaluator(
-    { id: spec.engineId, glycolType: glycol.glycolType, glycolPercent: glycol.glycolPercent, baselineFrom: T0, baselineValue: null },
+    {
+      id: spec.engineId, glycolType: glycol.glycolType, glycolPercent: glycol.glycolPercent, baselineFrom: T0, baselineValue: null,
+      duty: spec.duty, heaterSetpointC: spec.heaterSetpointC, capPressureKpa: spec.capPressureKpa, elevationM: 0,
+    },
     effectiveRules(rules, []),
     { startTs: T0 },
   );
@@ -77,5 +80,19 @@ describe('each fault at physical speed raises its matching rule', () => {
     expect(hit).toBeDefined();
     expect(hit!.atMin).toBeGreaterThanOrEqual(30);
     expect(raised.filter((r) => r.rule === rule)).toHaveLength(1);
+  });
+});
+
+describe('heater failure at physical speed', () => {
+  it('a stopped standby set with its heater off: heater_not_holding first, then coolant_temp_low_standby (high)', () => {
+    const spec = specs[0]; // Works gen-set A, 180 L, heater at 40 °C
+    const raised = drive(spec, 150, [{ at: 0, command: 'stop' }, { at: 10, scenario: 'heater-failure' }]);
+    const heater = raised.find((r) => r.rule === 'heater_not_holding');
+    const cold = raised.find((r) => r.rule === 'coolant_temp_low_standby');
+    expect(heater).toBeDefined();
+    expect(cold).toBeDefined();
+    expect(heater!.atMin).toBeGreaterThan(10);
+    expect(heater!.atMin).toBeLessThan(cold!.atMin);
+    expect(raised.map((r) => r.rule).sort()).toEqual(['coolant_temp_low_standby', 'heater_not_holding']);
   });
 });

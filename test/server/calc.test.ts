@@ -102,6 +102,28 @@ describe('boiling point at cap pressure', () => {
   });
 });
 
+describe('boiling point at altitude (ICAO Doc 7488 standard atmosphere)', () => {
+  it('elevationM 1,500 m: 84.56 kPa (ICAO check value); a 50 % mix under 100 kPa boils at about 126.7 °C instead of 129.5 °C', async () => {
+    const body = { gaugePressureKpa: 100, glycol: 'ethylene', percent: 50, basis: 'volume' };
+    const high = (await post('boiling-point', { ...body, elevationM: 1500 }).expect(200)).body;
+    expect(high.atmosphereKpa).toBeCloseTo(84.56, 2);
+    expect(high.absolutePressureKpa).toBeCloseTo(184.56, 2);
+    expect(high.atmosphereSource).toMatch(/ICAO/);
+    const sea = (await post('boiling-point', body).expect(200)).body;
+    expect(sea.atmosphereKpa).toBe(101.325);
+    expect(sea.boilingPointC).toBeCloseTo(129.5, 1);
+    expect(high.boilingPointC).toBeCloseTo(126.7, 1);
+    // the same as giving the pressure directly
+    const given = (await post('boiling-point', { ...body, atmosphereKpa: high.atmosphereKpa }).expect(200)).body;
+    expect(given.boilingPointC).toBeCloseTo(high.boilingPointC, 9);
+  });
+  it('refuses both at once, and an elevation outside -500..9000 m, naming the field', async () => {
+    const body = { gaugePressureKpa: 100, glycol: 'ethylene', percent: 50 };
+    expect((await post('boiling-point', { ...body, elevationM: 1500, atmosphereKpa: 90 }).expect(400)).body.field).toBe('elevationM');
+    expect((await post('boiling-point', { ...body, elevationM: 20000 }).expect(400)).body.field).toBe('elevationM');
+  });
+});
+
 describe('additive decision through the route: the table at and around 1.2 and 3.0 (common practice)', () => {
   const capacityL = 20 * GAL; // 20 US gal
   it.each([

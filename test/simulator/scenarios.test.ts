@@ -3,7 +3,7 @@
  * terms the alarm rules look for. Simulated time only (the model is stepped, nothing sleeps).
  */
 import { EngineModel, EngineSpec, StepResult } from '../../simulator/engine-model';
-import { SCENARIO_NAMES, SCENARIOS, ScenarioName } from '../../simulator/scenarios';
+import { SCENARIO_NAMES, SCENARIOS, STUCK_STOP_S, ScenarioName } from '../../simulator/scenarios';
 
 const T0 = Date.UTC(2026, 0, 7, 3, 0, 0); // a Wednesday night: no standby exercise, prime sets stopped
 const SPEED = 30;
@@ -79,13 +79,17 @@ describe.each(specs)('engine $engineId ($duty, $capacityL L)', (spec) => {
     expect(c[c.length - 1] / base).toBeGreaterThan(1.4);
   });
 
-  test('stuck-sensor: coolant_temp repeats one value exactly for more than 10 simulated minutes while running', () => {
+  test('stuck-sensor: coolant_temp repeats one value exactly for more than 10 simulated minutes; the engine stops a minute, then runs', () => {
     const { after } = simulate(spec, 'stuck-sensor');
     const t = ch(after, 'coolant_temp');
     expect(new Set(t).size).toBe(1);
     const simMinutes = (after.length * TICK_MS * SPEED) / 60_000;
     expect(simMinutes).toBeGreaterThan(10);
-    expect(after.every((r) => r.running)).toBe(true);
+    // held stopped for STUCK_STOP_S physical seconds, then started: the start is what shows the stuck sensor
+    const firstRunning = after.findIndex((r) => r.running);
+    expect(firstRunning).toBeGreaterThan(0);
+    expect(firstRunning * TICK_MS * SPEED).toBeGreaterThanOrEqual(STUCK_STOP_S * 1000);
+    expect(after.slice(firstRunning).every((r) => r.running)).toBe(true);
     // The other channels keep moving: it is the sensor, not the engine.
     expect(new Set(ch(after, 'coolant_pressure')).size).toBeGreaterThan(10);
   });
@@ -99,9 +103,25 @@ describe.each(specs)('engine $engineId ($duty, $capacityL L)', (spec) => {
   });
 });
 
+describe('heater-failure', () => {
+  test("a stopped standby engine's jacket water falls steadily from the heater setpoint toward ambient", () => {
+    const spec = specs[0]; // standby, heater at 40 °C
+    const { before, after } = simulate(spec, 'heater-failure');
+    expect(before.every((r) => !r.running) && after.every((r) => !r.running)).toBe(true);
+    const t = ch(after, 'coolant_temp');
+    const ambient = ch(after, 'ambient_temp');
+    expect(Math.min(...ch(before, 'coolant_temp'))).toBeGreaterThan(39);
+    // one physical hour at speed 30: several degrees lost, still above ambient
+    expect(t[t.length - 1]).toBeLessThan(36);
+    expect(t[t.length - 1]).toBeGreaterThan(ambient[ambient.length - 1]);
+    // steady: every 10-sample step (5 physical minutes) is lower than the one before
+    for (let i = 10; i < t.length; i += 10) expect(t[i]).toBeLessThan(t[i - 10]);
+  });
+});
+
 describe('scenario list', () => {
   test('every scenario is described, and the ones that need a running engine say so', () => {
-    expect(SCENARIO_NAMES.sort()).toEqual(['contamination', 'leak', 'lost-comms', 'normal', 'overheat', 'stuck-sensor']);
+    expect(SCENARIO_NAMES.sort()).toEqual(['contamination', 'heater-failure', 'leak', 'lost-comms', 'normal', 'overheat', 'stuck-sensor']);
     for (const n of SCENARIO_NAMES) expect(SCENARIOS[n].description.length).toBeGreaterThan(5);
     expect(SCENARIO_NAMES.filter((n) => SCENARIOS[n].requiresRunning).sort()).toEqual(['leak', 'overheat', 'stuck-sensor']);
   });

@@ -23,6 +23,8 @@ export function alarmMail(opts: {
   /** Why this person gets it: 'on call', 'backup', 'planner'. */
   reason: string;
   escalated: boolean;
+  /** The alarm came from readings that arrived late and was still active once they had caught up. */
+  late?: { measuredAt: number; arrivedAt: number };
 }): AlarmMail {
   const { alarm, def, engine } = opts;
   const link = `${opts.publicUrl}/alarms/${alarm.id}`;
@@ -30,7 +32,11 @@ export function alarmMail(opts: {
   const worst = alarm.worstValue !== null && alarm.worstValue !== alarm.value ? formatValue(alarm.worstValue, alarm.unit) : null;
   const raised = new Date(alarm.raisedAt).toISOString().replace('T', ' ').slice(0, 19) + ' UTC';
   const prefix = opts.escalated ? 'Not yet acknowledged: ' : '';
-  const subject = `${prefix}${alarm.priority.toUpperCase()} alarm: ${def.title} on ${engine.name} (${engine.siteName})`;
+  const when = (t: number) => new Date(t).toISOString().replace('T', ' ').slice(0, 19) + ' UTC';
+  const lateText = opts.late
+    ? `The data came late: the readings behind this alarm were measured at ${when(opts.late.measuredAt)} and arrived at ${when(opts.late.arrivedAt)} (sent from the gateway's store after an outage). The condition was still active when the data caught up.`
+    : null;
+  const subject = `${prefix}${alarm.priority.toUpperCase()} alarm: ${def.title} on ${engine.name} (${engine.siteName})${opts.late ? ' (from late data)' : ''}`;
   const lines = [
     `${prefix}${def.title}`,
     '',
@@ -42,6 +48,7 @@ export function alarmMail(opts: {
     ...(worst ? [`Worst:    ${worst}`] : []),
     `Detail:   ${alarm.message}`,
     '',
+    ...(lateText ? [lateText, ''] : []),
     `What it means: ${def.meaning}`,
     '',
     `First safe step: ${def.firstStep}`,
@@ -64,6 +71,7 @@ export function alarmMail(opts: {
       ['Detail', alarm.message],
     ].map(([k, v]) => `<tr><th align="left">${esc(k)}</th><td>${esc(v)}</td></tr>`),
     '</table>',
+    ...(lateText ? [`<p><strong>${esc(lateText)}</strong></p>`] : []),
     `<p><strong>What it means:</strong> ${esc(def.meaning)}</p>`,
     `<p><strong>First safe step:</strong> ${esc(def.firstStep)}</p>`,
     `<p><a href="${esc(link)}">Open the alarm to acknowledge or shelve it</a></p>`,

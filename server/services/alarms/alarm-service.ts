@@ -21,22 +21,23 @@ import { atLeast } from './priority';
 import type { RuleDefinition } from './rule-definitions';
 import { alarmUnit } from './value-format';
 import { CHANNELS } from '../../../shared/channels';
-import type { AlarmHistoryView, AlarmView } from '../../../shared/api/alarms-view';
+import type { AlarmHistoryPage, AlarmHistoryView, AlarmView } from '../../../shared/api/alarms-view';
 
-export type { AlarmHistoryView, AlarmView } from '../../../shared/api/alarms-view';
+export type { AlarmHistoryPage, AlarmHistoryView, AlarmView } from '../../../shared/api/alarms-view';
 
 export type ListState = 'active' | 'shelved' | 'open' | 'all';
 
 const ANNUNCIATED: AlarmState[] = ['unacknowledged', 'acknowledged', 'returned-unacknowledged'];
 const iso = (d: Date | null | undefined) => (d ? new Date(d).toISOString() : null);
 const ms = (d: Date | null | undefined) => (d ? new Date(d).getTime() : null);
+const stamp = (t: number) => new Date(t).toISOString().replace('T', ' ').slice(0, 19) + ' UTC';
 
 /** Which way is worse for the value an alarm of this rule carries. */
 export function directionOf(def: RuleDefinition): 'high' | 'low' {
   const p = def.params as { direction?: string };
   if (def.kind === 'limit') return p.direction === 'low' ? 'low' : 'high';
   if (def.kind === 'rate') return p.direction === 'falling' ? 'low' : 'high';
-  if (def.kind === 'boiling_margin') return 'low';
+  if (def.kind === 'boiling_margin' || def.kind === 'heater_loss') return 'low';
   return 'high';
 }
 
@@ -57,6 +58,14 @@ export class AlarmService {
   private queue: Promise<unknown> = Promise.resolve();
   /** Open alarms by `${engineId}/${rule}`: id and the worst value written. */
   private readonly open = new Map<string, { id: number; worst: number | null; direction: 'high' | 'low' }>();
+  /**
+   * Alarms raised from late data (readings older than lateAfterMs when they arrived), by alarm id: not yet
+   * e-mailed. Cleared while still late: recorded and closed, never e-mailed. Still active once the engine's
+   * data has caught up (or lateAfterMs after they were raised): e-mailed once, saying the data came late.
+   */
+  /** Recent activation times of open alarms (by id), for chattering. */
+  private readonly recentActs = new Map<number, number[]>();
+  private readonly pendingLate = new Map<number, { engineId: number; key: string; measuredAt: number; arrivedAt: number }>();
 
   constructor(private readonly deps: AlarmServiceDeps) {}
 
@@ -110,6 +119,7 @@ export class AlarmService {
       closedAt: iso(a.closedAt),
       escalationLevel: a.escalationLevel,
       lastNotifiedAt: iso(a.lastNotifiedAt),
+      chatteringAt: iso(a.chatteringAt),
     };
   }
 
@@ -166,29 +176,76 @@ export class AlarmService {
         { transaction },
       );
     });
-    if (closing) this.open.delete(key);
+    if (closing) {
+      this.open.delete(key);
+      this.recentActs.delete(a.id);
+    }
     this.deps.publish(this.view(a));
     return { ok: true };
   }
 
-  /** A rule raised on an engine. */
-  raise(engine: EngineEntry, def: RuleDefinition, ev: RuleEvent): Promise<void> {
+  /** A rule raised on an engine. `arrivedAt`: when the readings behind it arrived (default now). */
+  raise(engine: EngineEntry, def: RuleDefinition, ev: RuleEvent, arrivedAt = Date.now()): Promise<void> {
     return this.serial(async () => {
       const key = `${engine.id}/${def.key}`;
       const known = this.open.get(key);
       if (known) {
         const a = await this.deps.models.Alarm.findByPk(known.id);
         if (a && !a.closedAt) {
-          if (!a.active) await this.apply(a, { type: 'activate', value: ev.value, message: ev.message }, ev.ts, {}, { value: ev.value, worstValue: ev.value });
+          if (!a.active) {
+            const r = await this.apply(a, { type: 'activate', value: ev.value, message: ev.message }, ev.ts, {}, { value: ev.value, worstValue: ev.value });
+            if (r.ok) await this.countActivation(a, ev.ts);
+          }
           return;
         }
         this.open.delete(key);
       }
-      await this.create(engine, def, ev);
+      await this.create(engine, def, ev, arrivedAt);
     });
   }
 
-  private async create(engine: EngineEntry, def: RuleDefinition, ev: RuleEvent): Promise<void> {
+  /**
+   * Chattering (ISA-18.2: an alarm that repeatedly goes in and out of alarm in a short time): the alarm came into
+   * alarm chatterCount times within chatterWindowMs. Marked once, with a note saying what to do about it.
+   */
+  private async countActivation(a: Alarm, ts: number): Promise<void> {
+    const { chatterCount, chatterWindowMs } = this.deps.settings;
+    const list = (this.recentActs.get(a.id) ?? []).filter((t) => t > ts - chatterWindowMs);
+    list.push(ts);
+    this.recentActs.set(a.id, list.slice(-chatterCount));
+    if (list.length < chatterCount || a.chatteringAt) return;
+    const note = `Chattering: came into alarm ${list.length} times within ${Math.round(chatterWindowMs / 1000)} s. A candidate for a longer deadband or on-/off-delay on this rule (or a sensor to check).`;
+    await this.deps.sequelize.transaction(async (transaction) => {
+      await a.update({ chatteringAt: new Date(ts) }, { transaction });
+      await this.deps.models.AlarmEvent.create({ alarmId: a.id, at: new Date(ts), event: 'note', fromState: a.state, toState: a.state, userId: null, value: null, note }, { transaction });
+    });
+    this.deps.publish(this.view(a));
+  }
+
+  /** True when alarms of this engine wait for its data to catch up. */
+  hasPendingLate(engineId: number): boolean {
+    for (const p of this.pendingLate.values()) if (p.engineId === engineId) return true;
+    return false;
+  }
+
+  /**
+   * The engine's data has caught up (its newest reading is recent), or `engineId` null: every pending alarm
+   * raised more than lateAfterMs ago. Alarms from late data still active now are e-mailed once.
+   */
+  caughtUp(engineId: number | null, now = Date.now()): Promise<void> {
+    return this.serial(async () => {
+      for (const [id, p] of [...this.pendingLate]) {
+        if (engineId !== null ? p.engineId !== engineId : now - p.arrivedAt < this.deps.settings.lateAfterMs) continue;
+        this.pendingLate.delete(id);
+        const a = await this.deps.models.Alarm.findByPk(id);
+        const engine = this.deps.directory.get(p.engineId);
+        if (!a || a.closedAt || !a.active || !engine) continue;
+        await this.notify(a, engine, 0, { measuredAt: p.measuredAt, arrivedAt: p.arrivedAt });
+      }
+    });
+  }
+
+  private async create(engine: EngineEntry, def: RuleDefinition, ev: RuleEvent, arrivedAt: number): Promise<void> {
     const direction = directionOf(def);
     const r = transition(newAlarm(direction), { type: 'activate', value: ev.value, message: ev.message }, ev.ts);
     if (!r.ok) return;
@@ -226,15 +283,25 @@ export class AlarmService {
       throw err;
     }
     this.open.set(`${engine.id}/${def.key}`, { id: a.id, worst: ev.value, direction });
+    this.recentActs.set(a.id, [ev.ts]);
     this.deps.publish(this.view(a));
-    if (atLeast(def.priority, this.deps.settings.notifyMinPriority)) await this.notify(a, engine, 0);
+    const late = arrivedAt - ev.ts > this.deps.settings.lateAfterMs;
+    if (late) {
+      await this.deps.models.AlarmEvent.create({
+        alarmId: a.id, at: new Date(arrivedAt), event: 'note', fromState: a.state, toState: a.state, userId: null, value: null,
+        note: `Raised from readings that arrived late (measured ${stamp(ev.ts)}, arrived ${stamp(arrivedAt)}): e-mailed only if still active once the data has caught up.`,
+      });
+    }
+    if (!atLeast(def.priority, this.deps.settings.notifyMinPriority)) return;
+    if (late) this.pendingLate.set(a.id, { engineId: engine.id, key: `${engine.id}/${def.key}`, measuredAt: ev.ts, arrivedAt });
+    else await this.notify(a, engine, 0);
   }
 
-  private async notify(a: Alarm, engine: EngineEntry, fromLevel: number): Promise<void> {
+  private async notify(a: Alarm, engine: EngineEntry, fromLevel: number, late?: { measuredAt: number; arrivedAt: number }): Promise<void> {
     const def = this.deps.ruleDef(a.engineId, a.rule);
     if (!def) return;
-    const sent = await this.deps.notifier.notify(a, def, engine, fromLevel);
-    const note = sent.to.length ? `e-mail to ${sent.to.map((u) => u.email).join(', ')}` : 'nobody to e-mail';
+    const sent = await this.deps.notifier.notify(a, def, engine, fromLevel, late);
+    const note = (sent.to.length ? `e-mail to ${sent.to.map((u) => u.email).join(', ')}` : 'nobody to e-mail') + (late ? ' (from late data, still active)' : '');
     await this.deps.sequelize.transaction(async (transaction) => {
       await a.update({ escalationLevel: sent.level, lastNotifiedAt: new Date() }, { transaction });
       await this.deps.models.AlarmEvent.create(
@@ -256,6 +323,11 @@ export class AlarmService {
         return;
       }
       if (a.active) await this.apply(a, { type: 'clear', value: ev.value }, Math.max(ev.ts, ms(a.raisedAt) ?? ev.ts));
+      if (this.pendingLate.delete(a.id) && !a.closedAt) {
+        // raised and cleared within late data: recorded, closed, never e-mailed (nobody is paged for history)
+        const note = `Raised and cleared within readings that arrived late (backfill or store-and-forward): the condition had already cleared when its data arrived, so nobody was e-mailed.`;
+        await this.apply(a, { type: 'acknowledge', by: 'Jacketwatch', comment: note }, Math.max(Date.now(), ms(a.clearedAt) ?? 0), { note });
+      }
     });
   }
 
@@ -376,16 +448,21 @@ export class AlarmService {
     return rows.map((a) => this.view(a));
   }
 
-  async get(id: number): Promise<AlarmView & { history: AlarmHistoryView[]; meaning: string | null; firstStep: string | null }> {
+  async get(id: number, page: { limit?: number; offset?: number } = {}): Promise<AlarmView & { history: AlarmHistoryView[]; historyTotal: number; meaning: string | null; firstStep: string | null }> {
     const a = await this.find(id);
-    // in the order recorded (event times come from devices and the server clock)
-    const events = await this.deps.models.AlarmEvent.findAll({ where: { alarmId: id }, order: [['id', 'ASC']] });
+    const h = await this.history(id, page);
     const def = this.deps.ruleDef(a.engineId, a.rule);
+    return { ...this.view(a), meaning: def?.meaning ?? null, firstStep: def?.firstStep ?? null, history: h.entries, historyTotal: h.total };
+  }
+
+  /** One page of an alarm's history in time order (ties in the order recorded). */
+  async history(id: number, page: { limit?: number; offset?: number } = {}): Promise<AlarmHistoryPage> {
+    const limit = page.limit ?? 200;
+    const offset = page.offset ?? 0;
+    const { rows, count } = await this.deps.models.AlarmEvent.findAndCountAll({ where: { alarmId: id }, order: [['at', 'ASC'], ['id', 'ASC']], limit, offset });
     return {
-      ...this.view(a),
-      meaning: def?.meaning ?? null,
-      firstStep: def?.firstStep ?? null,
-      history: events.map((e) => ({ at: iso(e.at)!, event: e.event, fromState: e.fromState as AlarmState | null, toState: e.toState as AlarmState | null, userId: e.userId, value: e.value, note: e.note })),
+      total: count, limit, offset,
+      entries: rows.map((e) => ({ at: iso(e.at)!, event: e.event, fromState: e.fromState as AlarmState | null, toState: e.toState as AlarmState | null, userId: e.userId, value: e.value, note: e.note })),
     };
   }
 
@@ -421,7 +498,7 @@ export class AlarmService {
   }
 
   /** ISA-18.2 style performance figures over [from, to) from the recorded activations. */
-  async performance(from: number, to: number, engineIds?: number[]): Promise<PerformanceReport> {
+  async performance(from: number, to: number, engineIds?: number[], chatter: { count?: number; windowMs?: number } = {}): Promise<PerformanceReport> {
     const { AlarmEvent, Alarm } = this.deps.models;
     const scoped = engineIds ? { alarmId: await this.alarmIdsOf(engineIds) } : {};
     const acts = await AlarmEvent.findAll({ where: { event: 'activate', at: { [Op.gte]: new Date(from), [Op.lt]: new Date(to) }, ...scoped }, order: [['at', 'ASC']] });
@@ -440,7 +517,11 @@ export class AlarmService {
       const clr = after('clear');
       return { key: keyOf.get(e.alarmId) ?? String(e.alarmId), activatedAt: at, acknowledgedAt: ack ? new Date(ack.at).getTime() : null, clearedAt: clr ? new Date(clr.at).getTime() : null };
     });
-    return alarmPerformance(activations, { from, to });
+    return alarmPerformance(activations, {
+      from, to,
+      chatterCount: chatter.count ?? this.deps.settings.chatterCount,
+      chatterWindowMs: chatter.windowMs ?? this.deps.settings.chatterWindowMs,
+    });
   }
 }
 

@@ -15,6 +15,17 @@ export interface AlarmSettings {
   mailTimeoutMs: number;
   /** MAIL_PARALLEL [4]: messages on their way at once, so one hanging message does not hold the others. */
   mailParallel: number;
+  /**
+   * ALARM_LATE_AFTER_S [120]: an alarm raised from readings older than this when they arrive (backfill,
+   * store-and-forward) is "from late data": e-mailed only if still active once the engine's data catches up.
+   */
+  lateAfterMs: number;
+  /**
+   * ALARM_CHATTER_COUNT [3] and ALARM_CHATTER_WINDOW_S [60]: an alarm that comes into alarm this many times
+   * within the window is chattering (ISA-18.2's notion; the figures are a common working threshold).
+   */
+  chatterCount: number;
+  chatterWindowMs: number;
 }
 
 function seconds(env: NodeJS.ProcessEnv, name: string, fallback: number): number {
@@ -44,5 +55,8 @@ export function loadAlarmSettings(env: NodeJS.ProcessEnv = process.env): AlarmSe
     mailRetryMaxMs: seconds(env, 'MAIL_RETRY_MAX_S', 600) * 1000,
     mailTimeoutMs: seconds(env, 'MAIL_TIMEOUT_S', 5) * 1000,
     mailParallel: count(env, 'MAIL_PARALLEL', 4),
+    lateAfterMs: seconds(env, 'ALARM_LATE_AFTER_S', 120) * 1000,
+    chatterCount: Math.max(2, Math.round(seconds(env, 'ALARM_CHATTER_COUNT', 3))),
+    chatterWindowMs: seconds(env, 'ALARM_CHATTER_WINDOW_S', 60) * 1000,
   };
 }

@@ -7,6 +7,12 @@ export interface EngineEntry {
   siteName: string;
   glycolType: 'ethylene' | 'propylene';
   glycolPercent: number;
+  duty: 'standby' | 'prime' | 'continuous';
+  heaterSetpointC: number | null;
+  /** Rated cap pressure, kPa gauge. */
+  capPressureKpa: number;
+  /** Site elevation, m (null: unknown, sea level). */
+  elevationM: number | null;
   outOfService: boolean;
   retired: boolean;
   createdAt: number;
@@ -20,10 +26,11 @@ export class EngineDirectory {
 
   async refresh(): Promise<Map<number, EngineEntry>> {
     const [engines, sites] = await Promise.all([
-      this.models.Engine.findAll({ attributes: ['id', 'name', 'siteId', 'glycolType', 'glycolPercent', 'outOfService', 'retiredAt', 'createdAt'] }),
-      this.models.Site.findAll({ attributes: ['id', 'name'] }),
+      this.models.Engine.findAll({ attributes: ['id', 'name', 'siteId', 'glycolType', 'glycolPercent', 'duty', 'heaterSetpointC', 'capPressureKpa', 'outOfService', 'retiredAt', 'createdAt'] }),
+      this.models.Site.findAll({ attributes: ['id', 'name', 'elevationM'] }),
     ]);
     const siteName = new Map(sites.map((s) => [s.id, s.name]));
+    const siteElevation = new Map(sites.map((s) => [s.id, s.elevationM ?? null]));
     const next = new Map<number, EngineEntry>();
     for (const e of engines) {
       next.set(e.id, {
@@ -33,6 +40,10 @@ export class EngineDirectory {
         siteName: siteName.get(e.siteId) ?? `site ${e.siteId}`,
         glycolType: e.glycolType,
         glycolPercent: e.glycolPercent,
+        duty: e.duty,
+        heaterSetpointC: e.heaterSetpointC ?? null,
+        capPressureKpa: e.capPressureKpa,
+        elevationM: siteElevation.get(e.siteId) ?? null,
         outOfService: e.outOfService,
         retired: e.retiredAt !== null && e.retiredAt !== undefined,
         createdAt: new Date(e.createdAt).getTime(),

@@ -2,6 +2,7 @@
  * Runs one engine's rules over its readings, in time order, with the shared pure evaluators
  * (shared/rules). No I/O: the live rule engine and the 7-day preview both drive it.
  */
+import { standardAtmosphereKpa } from '../../../shared/atmosphere';
 import { CHANNELS, RUNNING_RPM, type ChannelKey } from '../../../shared/channels';
 import type { GlycolType } from '../../../shared/coolant/glycol';
 import { initialBoilingMarginState, stepBoilingMargin, type BoilingMarginParams, type BoilingMarginState } from '../../../shared/rules/boiling-margin-rule';
@@ -12,6 +13,7 @@ import { initialNoDataState, stepNoData, type NoDataRuleParams, type NoDataRuleS
 import { initialRateState, stepRate, type RateRuleParams } from '../../../shared/rules/rate-rule';
 import type { RuleEvent, RuleInput, StepResult } from '../../../shared/rules/rule-types';
 import { initialStuckState, stepStuck, type StuckRuleParams } from '../../../shared/rules/stuck-rule';
+import { initialHeaterLossState, stepHeaterLoss, type HeaterLossParams, type HeaterLossState } from '../../../shared/rules/heater-loss-rule';
 import type { RuleDefinition } from './rule-definitions';
 
 /** What an engine contributes to its rules' parameters. */
@@ -23,6 +25,11 @@ export interface EngineFacts {
   /** Conductivity baseline: from when (ms), and its value when already known. */
   baselineFrom: number;
   baselineValue: number | null;
+  /** Duty, heater setpoint, cap rating and site elevation (absent in older callers: rules that need them stay quiet). */
+  duty?: 'standby' | 'prime' | 'continuous';
+  heaterSetpointC?: number | null;
+  capPressureKpa?: number | null;
+  elevationM?: number | null;
 }
 
 export interface EvalReading {
@@ -54,10 +61,23 @@ interface Slot {
 function channelsOf(def: RuleDefinition): ChannelKey[] | null {
   if (def.kind === 'no_data') return null;
   if (def.kind === 'boiling_margin') return ['coolant_temp', 'coolant_pressure'];
+  // stuck: the watched channel, with speed and pressure as evidence that the engine's condition changed
+  if (def.kind === 'stuck') return [def.channel, ...STUCK_CONTEXT.filter((c) => c !== def.channel)];
   return [def.channel];
 }
 
+const STUCK_CONTEXT: ChannelKey[] = ['engine_speed', 'coolant_pressure'];
+
 const SYMBOL: Record<string, string> = { degC: '°C', kPa: 'kPa', 'uS/cm': 'µS/cm', rpm: 'rpm' };
+
+/** Standard-atmosphere pressure at the site; sea level when the elevation is unknown (or out of the model's range). */
+function siteAtmosphereKpa(elevationM: number | null | undefined): number {
+  try {
+    return standardAtmosphereKpa(elevationM ?? 0);
+  } catch {
+    return standardAtmosphereKpa(0);
+  }
+}
 
 function paramsFor(def: RuleDefinition, engine: EngineFacts): Record<string, unknown> {
   // words for the evaluators' messages
@@ -65,9 +85,13 @@ function paramsFor(def: RuleDefinition, engine: EngineFacts): Record<string, unk
   const words = { label: info.label, unit: SYMBOL[info.unit] ?? info.unit };
   if (def.kind === 'limit' || def.kind === 'rate' || def.kind === 'stuck' || def.kind === 'no_data') return { ...words, ...def.params, ...(def.kind === 'no_data' ? { label: 'Engine data' } : {}) };
   if (def.kind === 'boiling_margin') {
-    return { glycol: engine.glycolType, glycolPercent: engine.glycolPercent, basis: 'volume', ...def.params };
+    return {
+      glycol: engine.glycolType, glycolPercent: engine.glycolPercent, basis: 'volume',
+      atmosphereKpa: siteAtmosphereKpa(engine.elevationM), capPressureKpa: engine.capPressureKpa ?? null, ...def.params,
+    };
   }
   if (def.kind === 'conductivity') return { baselineFrom: engine.baselineFrom, ...def.params };
+  if (def.kind === 'heater_loss') return { heaterSetpointC: engine.heaterSetpointC ?? null, ...def.params };
   return def.params;
 }
 
@@ -83,6 +107,8 @@ function initialState(def: RuleDefinition, engine: EngineFacts, startTs: number 
       return initialStuckState();
     case 'boiling_margin':
       return initialBoilingMarginState();
+    case 'heater_loss':
+      return initialHeaterLossState();
     case 'conductivity': {
       const s = initialConductivityState();
       // a stored baseline is reused, so a restart does not learn a new one from contaminated coolant
@@ -94,7 +120,7 @@ function initialState(def: RuleDefinition, engine: EngineFacts, startTs: number 
 /** The state of a rule whose alarm is still active (after a restart): it can then clear. */
 function activeState(def: RuleDefinition, state: unknown, worst: number | null): unknown {
   if (def.kind === 'no_data') return { ...(state as NoDataRuleState), active: true };
-  if (def.kind === 'stuck') return { ...(state as object), active: true };
+  if (def.kind === 'stuck' || def.kind === 'heater_loss') return { ...(state as object), active: true };
   return { ...(state as object), ...initialDelayedState(), active: true, worstValue: worst, raisedValue: worst };
 }
 
@@ -107,12 +133,17 @@ function step(slot: Slot, input: RuleInput & { channel?: ChannelKey }): StepResu
       return stepRate(slot.state as ReturnType<typeof initialRateState>, input, p as unknown as RateRuleParams);
     case 'no_data':
       return stepNoData(slot.state as NoDataRuleState, input, p as unknown as NoDataRuleParams);
-    case 'stuck':
-      return stepStuck(slot.state as ReturnType<typeof initialStuckState>, input, p as unknown as StuckRuleParams);
+    case 'stuck': {
+      const ch = input.channel;
+      const aux = ch === undefined || ch === slot.def.channel ? undefined : ch === 'engine_speed' ? 'speed' : 'pressure';
+      return stepStuck(slot.state as ReturnType<typeof initialStuckState>, aux ? { ...input, aux } : input, p as unknown as StuckRuleParams);
+    }
     case 'boiling_margin':
       return stepBoilingMargin(slot.state as BoilingMarginState, input as never, p as unknown as BoilingMarginParams);
     case 'conductivity':
       return stepConductivity(slot.state as ConductivityRuleState, input, p as unknown as ConductivityRuleParams);
+    case 'heater_loss':
+      return stepHeaterLoss(slot.state as HeaterLossState, input, p as unknown as HeaterLossParams);
   }
 }
 
@@ -124,6 +155,12 @@ function step(slot: Slot, input: RuleInput & { channel?: ChannelKey }): StepResu
 function armTemp(def: RuleDefinition): number | null {
   const t = def.params.armedAtTempC;
   return typeof t === 'number' && Number.isFinite(t) ? t : null;
+}
+
+/** `onlyDuty` (e.g. 'standby'): the rule is for engines of that duty only. */
+function appliesTo(def: RuleDefinition, engine: EngineFacts): boolean {
+  const duty = def.params.onlyDuty;
+  return typeof duty !== 'string' || engine.duty === duty;
 }
 
 const feedOrder = (a: EvalReading, b: EvalReading) => a.ts - b.ts || (a.channel === 'engine_speed' ? -1 : b.channel === 'engine_speed' ? 1 : 0);
@@ -152,7 +189,7 @@ export class EngineEvaluator {
     opts: { startTs?: number | null; activeRules?: Map<string, number | null> } = {},
   ) {
     this.slots = rules
-      .filter((d) => d.enabled)
+      .filter((d) => d.enabled && appliesTo(d, engine))
       .map((def) => {
         let state = initialState(def, engine, opts.startTs ?? null);
         if (opts.activeRules?.has(def.key)) state = activeState(def, state, opts.activeRules.get(def.key) ?? null);

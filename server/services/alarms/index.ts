@@ -69,7 +69,7 @@ export function createAlarmFeature(ctx: AppContext, settings: AlarmSettings = lo
       if (emit && view.siteId !== null) emit(alarmsSiteRoom(view.siteId), 'alarm', view);
     },
   });
-  rules = new RuleEngine({ models, log, directory, alarms, lastSeen: (id) => lastSeen(id) });
+  rules = new RuleEngine({ models, log, directory, alarms, lastSeen: (id) => lastSeen(id), lateAfterMs: settings.lateAfterMs });
 
   const feature: AlarmFeature = {
     settings,
@@ -95,6 +95,8 @@ export function createAlarmFeature(ctx: AppContext, settings: AlarmSettings = lo
         ticking = true;
         alarms
           .housekeeping()
+          // alarms from late data whose engine never caught up: e-mailed once lateAfterMs after they arrived, if still active
+          .then(() => alarms.caughtUp(null))
           .catch((err) => log.error('alarms: housekeeping failed', err))
           .finally(() => {
             ticking = false;

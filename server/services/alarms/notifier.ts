@@ -42,11 +42,11 @@ export class Notifier {
    * Mail the first level from `fromLevel` that has someone on it. Returns the level reached and who was told
    * (nobody when even the planners are missing).
    */
-  async notify(alarm: Alarm, def: RuleDefinition, engine: EngineEntry, fromLevel: number): Promise<Notified> {
+  async notify(alarm: Alarm, def: RuleDefinition, engine: EngineEntry, fromLevel: number, late?: { measuredAt: number; arrivedAt: number }): Promise<Notified> {
     for (let level = fromLevel; level <= LAST_LEVEL; level++) {
       const to = await this.recipients(level, engine.siteId);
       if (!to.length) continue;
-      const mail = alarmMail({ alarm, def, engine, publicUrl: this.deps.publicUrl, reason: REASON[level], escalated: level > 0 && fromLevel > 0 });
+      const mail = alarmMail({ alarm, def, engine, publicUrl: this.deps.publicUrl, reason: REASON[level], escalated: level > 0 && fromLevel > 0, late });
       for (const u of to) await this.deps.enqueue({ to: u.email, subject: mail.subject, text: mail.text, html: mail.html, alarmId: alarm.id });
       return { level, to };
     }

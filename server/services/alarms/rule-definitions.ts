@@ -8,7 +8,7 @@
 import type { ChannelKey } from '../../../shared/channels';
 import type { AlarmPriority } from './priority';
 
-export const RULE_KINDS = ['limit', 'rate', 'no_data', 'stuck', 'boiling_margin', 'conductivity'] as const;
+export const RULE_KINDS = ['limit', 'rate', 'no_data', 'stuck', 'boiling_margin', 'conductivity', 'heater_loss'] as const;
 export type RuleKind = (typeof RULE_KINDS)[number];
 
 export interface RuleDefinition {
@@ -41,6 +41,9 @@ export const DEFAULT_PROFILE_NAME = 'default';
 const DEFER = "Follow the engine maker's instructions and your site's procedures.";
 const HOT_CAP =
   'Do not open the radiator or expansion-tank cap while the system is hot: it is under pressure and can spray scalding coolant.';
+
+const HEATER_STEP =
+  "Check the jacket-water heater: its supply and breaker (reset it once only; a breaker that trips again means a fault for an electrician), its thermostat setting, and its hoses and valves (open, not kinked or leaking). Isolate the heater's supply before opening its terminal box. Until the engine is warm again, tell whoever relies on it that it may start slowly or not take load at once.";
 
 export const DEFAULT_RULES: RuleDefinition[] = [
   {
@@ -75,6 +78,31 @@ export const DEFAULT_RULES: RuleDefinition[] = [
     meaning: 'The engine has run for a long time without reaching working temperature (thermostat stuck open, or a sensor fault).',
     firstStep: `Check the reading against a local gauge; have the thermostat checked at the next stop. ${DEFER}`,
     params: { direction: 'low', limit: 60, deadband: 3, onDelayS: 900, offDelayS: 60, onlyWhenRunning: true },
+  },
+  {
+    key: 'coolant_temp_low_standby',
+    kind: 'limit',
+    channel: 'coolant_temp',
+    priority: 'high',
+    enabled: true,
+    title: 'Standby engine too cold',
+    meaning:
+      "The jacket water of a stopped standby engine has stayed below the minimum that lets it start and take load at once. NFPA 110 asks for the jacket water of an emergency engine to be kept at not less than 32 °C (90 °F) (clause 5.3.1 in recent editions; quoted from memory, check the edition that applies to you). The jacket-water heater is most likely off or failed.",
+    firstStep: `${HEATER_STEP} ${DEFER}`,
+    // onlyDuty: standby engines only; the delay lets a heater bring a block back after an exercise run or a cold night
+    params: { direction: 'low', limit: 32, deadband: 3, onDelayS: 900, offDelayS: 120, onlyWhenStopped: true, onlyDuty: 'standby' },
+  },
+  {
+    key: 'heater_not_holding',
+    kind: 'heater_loss',
+    channel: 'coolant_temp',
+    priority: 'medium',
+    enabled: true,
+    title: 'Jacket-water heater not holding',
+    meaning:
+      'The jacket water of a stopped engine is falling steadily toward ambient below its heater setpoint: the heater is not heating (switched off, breaker tripped, failed, or a blocked hose). Found before the engine is too cold to start.',
+    firstStep: `${HEATER_STEP} ${DEFER}`,
+    params: { belowByC: 3, minDropC: 2, windowS: 1800 },
   },
   {
     key: 'coolant_pressure_low_running',
@@ -127,9 +155,11 @@ export const DEFAULT_RULES: RuleDefinition[] = [
     priority: 'medium',
     enabled: true,
     title: 'Coolant temperature not changing',
-    meaning: 'The coolant temperature reading has not moved for ten minutes while the engine runs: likely a sensor or wiring fault.',
+    meaning:
+      "The coolant temperature reading has not moved for ten minutes although the engine started, stopped or changed load: likely a sensor or wiring fault. A flat reading at steady load alone is not taken as a fault (a sensor reporting whole degrees may repeat one value for a long time).",
     firstStep: `Compare with a local gauge; treat the engine as unwatched for temperature until the sensor is checked. ${DEFER}`,
-    params: { epsilon: 0.05, durationS: 600, onlyWhenRunning: true },
+    // resolution 0 = learned from recent values (coarsest step they all lie on); set per engine to the sensor's step
+    params: { epsilon: 0.05, durationS: 600, resolution: 0, speedChangeRpm: 150, pressureChangeKpa: 15 },
   },
   {
     key: 'boiling_margin_low',
@@ -138,7 +168,8 @@ export const DEFAULT_RULES: RuleDefinition[] = [
     priority: 'high',
     enabled: true,
     title: 'Boiling margin low',
-    meaning: 'The coolant is less than 10 °C below the boiling point of its water-glycol mix at the measured system pressure.',
+    meaning:
+      "The coolant is less than 10 °C below the boiling point of its water-glycol mix at the measured system pressure and the site's atmospheric pressure (from its elevation, ICAO standard atmosphere). Without a pressure reading the cap's rating is used only while the engine runs warm.",
     firstStep: `${HOT_CAP} Opening it now could make the coolant boil at once. Reduce the load from a safe distance and check the fan and belt. ${DEFER}`,
     params: { marginC: 10, deadbandC: 2, onDelayS: 10, offDelayS: 30 },
   },

@@ -21,6 +21,8 @@ export interface RuleEngineDeps {
   alarms: AlarmService;
   /** Last time anything was heard from an engine (so no-data counts across a restart). */
   lastSeen(engineId: number): number | null;
+  /** Readings older than this when they arrive are late data (ALARM_LATE_AFTER_S). */
+  lateAfterMs: number;
 }
 
 /** The default profile row, written with the built-in rules when there is none. */
@@ -30,8 +32,16 @@ export async function ensureDefaultProfile(models: Models): Promise<RuleDefiniti
     defaults: { name: DEFAULT_PROFILE_NAME, isDefault: true, rules: DEFAULT_RULES },
   });
   const rules = typeof row.rules === 'string' ? (JSON.parse(row.rules) as RuleDefinition[]) : row.rules;
-  return rules;
+  // rules added in later versions join a stored profile (its own rules and tuning stay as they are)
+  const missing = DEFAULT_RULES.filter((d) => !rules.some((r) => r.key === d.key));
+  if (!missing.length) return rules;
+  const merged = [...rules, ...missing];
+  await row.update({ rules: merged });
+  return merged;
 }
+
+/** What the evaluators depend on: a change rebuilds the engine's evaluator. */
+const factsKey = (e: EngineEntry) => [e.glycolType, e.glycolPercent, e.duty, e.heaterSetpointC, e.capPressureKpa, e.elevationM].join('/');
 
 export class RuleEngine {
   private profile: RuleDefinition[] = DEFAULT_RULES;
@@ -40,6 +50,8 @@ export class RuleEngine {
   private readonly evaluators = new Map<number, EngineEvaluator>();
   private readonly facts = new Map<number, string>();
   private outOfService = new Set<number>();
+  /** Per engine: newest reading time and when its batch arrived (wall clock), for the clock of late data. */
+  private readonly arrivals = new Map<number, { newestTs: number; arrivedAt: number }>();
   private lastRefresh = 0;
   private refreshing: Promise<void> | null = null;
 
@@ -79,7 +91,10 @@ export class RuleEngine {
 
   private factsOf(e: EngineEntry): EngineFacts {
     const b = this.baselines.get(e.id);
-    return { id: e.id, glycolType: e.glycolType, glycolPercent: e.glycolPercent, baselineFrom: b?.from ?? e.createdAt, baselineValue: b?.value ?? null };
+    return {
+      id: e.id, glycolType: e.glycolType, glycolPercent: e.glycolPercent, baselineFrom: b?.from ?? e.createdAt, baselineValue: b?.value ?? null,
+      duty: e.duty, heaterSetpointC: e.heaterSetpointC, capPressureKpa: e.capPressureKpa, elevationM: e.elevationM,
+    };
   }
 
   private build(e: EngineEntry): void {
@@ -91,7 +106,7 @@ export class RuleEngine {
     }
     const facts = this.factsOf(e);
     this.evaluators.set(e.id, new EngineEvaluator(facts, this.rulesFor(e.id), { startTs: this.deps.lastSeen(e.id), activeRules: active }));
-    this.facts.set(e.id, `${e.glycolType}/${e.glycolPercent}`);
+    this.facts.set(e.id, factsKey(e));
   }
 
   /** Re-read engines: start evaluating new ones, stop and suppress those out of service, rebuild on a new glycol mix. */
@@ -110,7 +125,7 @@ export class RuleEngine {
           continue;
         }
         if (this.outOfService.has(e.id)) await this.deps.alarms.setOutOfService(e.id, false);
-        if (force || !this.evaluators.has(e.id) || this.facts.get(e.id) !== `${e.glycolType}/${e.glycolPercent}`) this.build(e);
+        if (force || !this.evaluators.has(e.id) || this.facts.get(e.id) !== factsKey(e)) this.build(e);
       }
       for (const id of [...this.evaluators.keys()]) if (!engines.has(id)) this.evaluators.delete(id);
       this.outOfService = nextOos;
@@ -151,12 +166,32 @@ export class RuleEngine {
     }
     this.dispatch(engineId, ev.feed(list));
     this.afterStep(engineId, ev);
+    let newest = -Infinity;
+    for (const r of list) if (r.ts > newest) newest = r.ts;
+    const now = Date.now();
+    const seen = this.arrivals.get(engineId);
+    if (!seen || newest >= seen.newestTs) this.arrivals.set(engineId, { newestTs: newest, arrivedAt: now });
+    // the engine's data has caught up: its alarms from late data that are still active are e-mailed now
+    if (this.deps.alarms.hasPendingLate(engineId) && now - newest <= this.deps.lateAfterMs) {
+      void this.deps.alarms.caughtUp(engineId).catch((err) => this.deps.log.error('alarms: late-data mail failed', err));
+    }
+  }
+
+  /**
+   * The rule clock of one engine. Live: now. While its data arrives late (a backfill or a gateway emptying its
+   * store), time runs on from its newest reading by the wall time since that arrived, so data in transit is not
+   * taken for silence; a gateway that really falls silent is still found after the usual silence.
+   */
+  private clockOf(engineId: number, now: number): number {
+    const seen = this.arrivals.get(engineId);
+    if (!seen || seen.arrivedAt - seen.newestTs <= this.deps.lateAfterMs) return now;
+    return Math.min(now, seen.newestTs + Math.max(0, now - seen.arrivedAt));
   }
 
   /** The 1 s clock. */
   tick(now = Date.now()): void {
     for (const [engineId, ev] of this.evaluators) {
-      this.dispatch(engineId, ev.tick(now));
+      this.dispatch(engineId, ev.tick(this.clockOf(engineId, now)));
       this.afterStep(engineId, ev);
     }
     if (now - this.lastRefresh > DIRECTORY_REFRESH_MS) void this.refreshEngines().catch((err) => this.deps.log.error('alarms: engine refresh failed', err));

@@ -88,6 +88,14 @@ export class AlarmDetailPage {
   protected async unshelve(a: Alarm): Promise<void> {
     if (await this.actions.unshelve(a)) await this.load(a.id);
   }
+  protected async more(a: AlarmDetail): Promise<void> {
+    try {
+      const page = await this.api.history(a.id, a.history.length);
+      this.alarm.set({ ...a, history: [...a.history, ...page.entries], historyTotal: page.total });
+    } catch (err) {
+      this.error.set(errorText(err, 'More of the history could not be loaded'));
+    }
+  }
   protected async note(a: Alarm): Promise<void> {
     if (await this.actions.note(a)) await this.load(a.id);
   }

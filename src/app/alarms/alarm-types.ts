@@ -14,6 +14,8 @@ export interface AlarmDetail extends Alarm {
   meaning: string | null;
   firstStep: string | null;
   history: AlarmHistoryEntry[];
+  /** Entries in all (the history comes in pages of 200, in time order). */
+  historyTotal?: number;
 }
 
 /** GET /api/alarms/summary */

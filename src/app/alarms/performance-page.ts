@@ -71,16 +71,23 @@ const SPANS = [
         } @else { <p class="muted">No alarms in this period.</p> }
 
         <h2>Chattering</h2>
-        <p class="muted">Raised 3 or more times within one minute (a common working threshold, not a figure of the standard).</p>
+        <p class="muted">
+          Came into alarm {{ r.chatter.count }} or more times within {{ windowText(r.chatter.windowMs) }} (a common working threshold,
+          not a figure of the standard).
+        </p>
+        <p class="advice">
+          Chattering alarms are candidates for a longer deadband or on-/off-delay on their rule (or for a check of the sensor):
+          each return to alarm asks for attention that the process does not need.
+        </p>
         @if (r.chattering.length) {
           <table mat-table [dataSource]="r.chattering">
             <ng-container matColumnDef="key"><th mat-header-cell *matHeaderCellDef>Engine / rule</th><td mat-cell *matCellDef="let x">{{ label(x.key) }}</td></ng-container>
             <ng-container matColumnDef="bursts"><th mat-header-cell *matHeaderCellDef>Bursts</th><td mat-cell *matCellDef="let x" class="jw-num">{{ x.bursts }}</td></ng-container>
-            <ng-container matColumnDef="max"><th mat-header-cell *matHeaderCellDef>Most in one minute</th><td mat-cell *matCellDef="let x" class="jw-num">{{ x.maxInWindow }}</td></ng-container>
+            <ng-container matColumnDef="max"><th mat-header-cell *matHeaderCellDef>Most in one window</th><td mat-cell *matCellDef="let x" class="jw-num">{{ x.maxInWindow }}</td></ng-container>
             <tr mat-header-row *matHeaderRowDef="['key', 'bursts', 'max']"></tr>
             <tr mat-row *matRowDef="let row; columns: ['key', 'bursts', 'max']"></tr>
           </table>
-        } @else { <p class="muted">None.</p> }
+        } @else { <p class="muted" data-testid="no-chattering">None found.</p> }
 
         <h2>Standing</h2>
         <p class="muted">Active for more than 24 hours (a common working threshold).</p>
@@ -134,6 +141,10 @@ export class PerformancePage {
   }
   protected duration(ms: number): string {
     return formatDuration(ms);
+  }
+  protected windowText(ms: number): string {
+    const s = Math.round(ms / 1000);
+    return s % 60 === 0 ? `${s / 60} min` : `${s} s`;
   }
 
   private async load(days: number): Promise<void> {

@@ -28,7 +28,12 @@ export const PARAM_FIELDS: Record<string, ParamField[]> = {
     { name: 'deadband', label: 'Deadband', kind: 'difference' },
     ...DELAYS,
   ],
-  stuck: [{ name: 'durationS', label: 'Unchanged for', kind: 'plain', unit: 's' }, { name: 'epsilon', label: 'Counts as a change above', kind: 'difference' }],
+  stuck: [{ name: 'durationS', label: 'Unchanged for', kind: 'plain', unit: 's' }, { name: 'epsilon', label: 'Counts as a change above', kind: 'difference' }, { name: 'resolution', label: 'Sensor resolution (0 = learned)', kind: 'difference' }],
+  heater_loss: [
+    { name: 'belowByC', label: 'Below the heater setpoint by', kind: 'difference' },
+    { name: 'minDropC', label: 'Fallen at least', kind: 'difference' },
+    { name: 'windowS', label: 'Over', kind: 'plain', unit: 's' },
+  ],
   no_data: [{ name: 'factor', label: 'Silence, times the usual interval', kind: 'plain', unit: '×' }, { name: 'minSilenceS', label: 'At least', kind: 'plain', unit: 's' }],
 };
 

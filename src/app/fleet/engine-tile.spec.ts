@@ -112,6 +112,18 @@ describe('EngineTile', () => {
     expect(text('.alarms')).toBe('1 alarm');
   });
 
+  it('shows a standby engine as Ready, or Not ready with its reasons in words', () => {
+    render(engine({ readiness: { ready: true, reasons: [] } }));
+    expect(text('[data-testid="readiness"]')).toBe('Ready');
+    expect(el.querySelector('[data-testid="readiness"]')!.classList).not.toContain('not-ready');
+    render(engine({ readiness: { ready: false, reasons: ['Jacket water cold: 20.0 °C (68.0 °F), below the 32.0 °C (89.6 °F) needed to start and take load at once', 'Out of service'] } }));
+    expect(text('.readiness-text')).toBe('Not ready');
+    expect(text('.reasons')).toContain('Jacket water cold: 20.0 °C (68.0 °F)');
+    expect(el.querySelector('[data-testid="readiness"]')!.classList).toContain('not-ready');
+    render(engine({ duty: 'continuous' }));
+    expect(el.querySelector('[data-testid="readiness"]')).toBeNull();
+  });
+
   it('says "bad reading" instead of a number of bad quality', () => {
     const e = engine();
     render({ ...e, latest: { ...e.latest, coolant_pressure: { value: 999, ts: Date.now(), quality: 1 } } });

@@ -61,6 +61,15 @@ interface TileRow {
             <span class="jw-num">{{ alarms() }} {{ alarms() === 1 ? 'alarm' : 'alarms' }}</span>
           </span>
         </div>
+        @if (engine().readiness; as r) {
+          <div class="readiness" [class.not-ready]="!r.ready" data-testid="readiness" [attr.data-ready]="r.ready">
+            <mat-icon aria-hidden="true" [fontIcon]="r.ready ? 'check_circle' : 'report'" />
+            <span class="readiness-text">{{ r.ready ? 'Ready' : 'Not ready' }}</span>
+            @if (!r.ready) {
+              <span class="reasons">{{ r.reasons.join('; ') }}</span>
+            }
+          </div>
+        }
         <dl class="rows">
           @for (row of rows(); track row.key) {
             <div class="row" [class.stale]="state() === 'no-data'">
@@ -126,6 +135,8 @@ export class EngineTile {
     const prefs = this.prefs.preferences();
     const parts = [`${this.engine().name}, ${this.dutyText()}`, this.stateText() + (this.age() ? `, last reading ${this.age()} ago` : '')];
     if (this.engine().outOfService) parts.push('out of service');
+    const ready = this.engine().readiness;
+    if (ready) parts.push(ready.ready ? 'ready to start' : `not ready: ${ready.reasons.join('; ')}`);
     for (const row of this.rows()) {
       if (row.bad) {
         parts.push(`${row.short} bad reading`);

@@ -29,4 +29,6 @@ export interface Engine {
   runState: RunState;
   /** Filled in by the alarms feature when it exists. */
   activeAlarms?: number;
+  /** Standby engines only: ready to start and take load, or the reasons why not, in words. */
+  readiness?: { ready: boolean; reasons: string[] };
 }

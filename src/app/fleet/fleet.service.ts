@@ -8,6 +8,8 @@ import { Engine, Site } from './fleet-types';
 
 /** Live readings are gathered and applied together at most this often, so 200 engines stay cheap to draw. */
 const APPLY_EVERY_MS = 500;
+/** Standby readiness (heater, alarms, lockouts) is computed by the server: asked again this often. */
+const READINESS_EVERY_MS = 30_000;
 
 /** Sites and engines with their latest values, kept current from the live push while a screen uses it. */
 @Injectable({ providedIn: 'root' })
@@ -50,10 +52,22 @@ export class FleetService {
   followFleet(destroyRef: DestroyRef): void {
     const unwatch = this.live.watch({ fleet: true });
     const sub = this.live.readings$.subscribe((r) => this.queue(r));
+    const readiness = setInterval(() => void this.refreshReadiness(), READINESS_EVERY_MS);
     destroyRef.onDestroy(() => {
       unwatch();
       sub.unsubscribe();
+      clearInterval(readiness);
     });
+  }
+
+  /** Take the standby engines' readiness from a fresh engine list (values stay from the live push). */
+  private async refreshReadiness(): Promise<void> {
+    try {
+      const fresh = new Map((await firstValueFrom(this.http.get<Engine[]>('/api/engines'))).map((e) => [e.id, e.readiness]));
+      this.enginesSignal.update((list) => list.map((e) => (JSON.stringify(e.readiness) === JSON.stringify(fresh.get(e.id)) ? e : { ...e, readiness: fresh.get(e.id) })));
+    } catch {
+      // kept as it was; the next round tries again
+    }
   }
 
   private queue(r: LiveReadings): void {

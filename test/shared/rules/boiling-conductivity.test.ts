@@ -44,18 +44,41 @@ describe('boiling-margin rule', () => {
     expect(mix).toBeGreaterThan(water + 2);
   });
 
-  it('no pressure reading: assumes 0 kPa gauge and says so; stale pressure is not used', () => {
-    const none = runRule(stepBoilingMargin, initialBoilingMarginState(), [temp(0, 95)], params);
-    expect(none.events).toHaveLength(1);
-    expect(none.events[0].message).toMatch(/0 kPa gauge assumed/);
+  it('no pressure reading, water only: silent at 90 °C and 95 °C (inside the normal band); stale pressure is not used', () => {
+    // 0 kPa would give a margin of about 10 °C at 90 °C: an alarm inside the normal running band. No verdict instead.
+    expect(runRule(stepBoilingMargin, initialBoilingMarginState(), [temp(0, 90), temp(1 * S, 95)], params).events).toEqual([]);
+    const stopped = (ts: number, value: number): BoilingMarginInput => ({ ts, value, quality: 0, running: false, channel: 'coolant_temp' });
+    expect(runRule(stepBoilingMargin, initialBoilingMarginState(), [stopped(0, 95)], { ...params, capPressureKpa: 100 }).events).toEqual([]);
     const stale = runRule(stepBoilingMargin, initialBoilingMarginState(), [pres(0, 100), temp(120 * S, 95)], params);
-    expect(stale.state.assumedPressure).toBe(true);
-    expect(stale.events).toHaveLength(1);
+    expect(stale.events).toEqual([]);
+    expect(stale.state.lastMarginC).toBeNull();
+  });
+
+  it("no pressure reading, running and warm: the cap's rating is used and the alarm text says so", () => {
+    const p = { ...params, capPressureKpa: 100 };
+    // 90 °C with a 100 kPa cap: boiling point ≈ 120.6 °C (IAPWS-IF97), margin ≈ 30 °C, no alarm
+    const warm = runRule(stepBoilingMargin, initialBoilingMarginState(), [temp(0, 90)], p);
+    expect(warm.events).toEqual([]);
+    expect(warm.state.assumedPressure).toBe(true);
+    expect(warm.state.lastBoilingPointC).toBeCloseTo(boilingPointC(100, 'ethylene', 0, 'volume'), 9);
+    const hot = runRule(stepBoilingMargin, initialBoilingMarginState(), [temp(0, 115)], p);
+    expect(hot.events).toHaveLength(1);
+    expect(hot.events[0].message).toMatch(/no pressure reading: the cap's rating of 100 kPa assumed/);
+  });
+
+  it("at 1,500 m (84.56 kPa, ICAO Doc 7488 standard atmosphere) a 50 % glycol mix under 100 kPa alarms about 3 °C earlier than at sea level", () => {
+    const mix = { ...params, glycolPercent: 50 };
+    const sea = runRule(stepBoilingMargin, initialBoilingMarginState(), [pres(0, 100), temp(1 * S, 118)], mix);
+    const high = runRule(stepBoilingMargin, initialBoilingMarginState(), [pres(0, 100), temp(1 * S, 118)], { ...mix, atmosphereKpa: 84.56 });
+    // boiling points ≈ 129.5 °C and ≈ 126.7 °C: margins 11.5 °C (no alarm) and 8.7 °C (alarm)
+    expect(sea.events).toEqual([]);
+    expect(high.events.map((e) => e.kind)).toEqual(['raise']);
+    expect(sea.state.lastBoilingPointC! - high.state.lastBoilingPointC!).toBeCloseTo(2.88, 1);
   });
 
   it('deadband: clears only at margin >= set + deadband', () => {
     const p = { ...params, boilingPointC: () => 120 }; // boiling point fixed at 120 °C through an injected function
-    const { events } = runRule(stepBoilingMargin, initialBoilingMarginState(), [temp(0, 111), temp(1 * S, 109), temp(2 * S, 108.5), temp(3 * S, 108)], p);
+    const { events } = runRule(stepBoilingMargin, initialBoilingMarginState(), [pres(0, 50), temp(0, 111), temp(1 * S, 109), temp(2 * S, 108.5), temp(3 * S, 108)], p);
     expect(events.map((e) => [e.kind, e.ts])).toEqual([['raise', 0], ['clear', 3 * S]]);
   });
 

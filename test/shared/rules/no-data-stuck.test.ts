@@ -1,5 +1,5 @@
 import { initialNoDataState, stepNoData, silenceLimitMs, NoDataRuleParams } from '../../../shared/rules/no-data-rule';
-import { initialStuckState, stepStuck, StuckRuleParams } from '../../../shared/rules/stuck-rule';
+import { initialStuckState, stepStuck, stuckResolution, StuckRuleParams } from '../../../shared/rules/stuck-rule';
 import { runRule, series, S, MIN } from './run-rule';
 
 describe('no-data rule', () => {
@@ -41,6 +41,12 @@ describe('no-data rule', () => {
     expect(events).toEqual([]);
   });
 
+  it('the first interval of history sent at 300 s steps is learned, not taken for a silence', () => {
+    const { state, events } = runRule(stepNoData, initialNoDataState(), series([80, 80, 80, 80], 300), p);
+    expect(events).toEqual([]);
+    expect(silenceLimitMs(state, p)).toBe(1500 * S);
+  });
+
   it('with a start time, silence before the first reading counts', () => {
     const { events } = runRule(stepNoData, initialNoDataState(0), [{ ts: 31 * S }], p);
     expect(events.map((e) => [e.kind, e.ts])).toEqual([['raise', 30 * S]]);
@@ -50,34 +56,68 @@ describe('no-data rule', () => {
 
 describe('stuck rule', () => {
   const p: StuckRuleParams = { epsilon: 0.05, durationS: 300, label: 'Coolant temperature', unit: '°C' };
+  /** One sample every 10 s: the watched value with the running flag, plus speed and pressure as context. */
+  function samples(rows: { value: number; running: boolean; rpm?: number; kPa?: number }[], t0 = 0) {
+    return rows.flatMap((r, i) => {
+      const ts = t0 + i * 10 * S;
+      return [
+        { ts, value: r.rpm ?? (r.running ? 1800 : 0), quality: 0, aux: 'speed' as const },
+        { ts, value: r.kPa ?? 60, quality: 0, aux: 'pressure' as const },
+        { ts, value: r.value, quality: 0, running: r.running },
+      ];
+    });
+  }
+  const rows = (n: number, f: (i: number) => number, running: boolean, extra: { rpm?: number; kPa?: number } = {}) =>
+    Array.from({ length: n }, (_, i) => ({ value: f(i), running, ...extra }));
 
-  it('a value flat within epsilon while running raises after the duration, clears when it moves', () => {
-    const flat = Array.from({ length: 40 }, (_, i) => 82.0 + (i % 2) * 0.03); // 0..390 s
-    const moving = [82.5, 83.0];
-    const { events, state } = runRule(stepStuck, initialStuckState(), series([...flat, ...moving], 10), p);
-    expect(events.map((e) => [e.kind, e.ts])).toEqual([['raise', 300 * S], ['clear', 400 * S]]);
-    expect(state.active).toBe(false);
+  it('a whole-degree sensor at steady load repeats one value for an hour: no alarm', () => {
+    // 85 °C, now and then 86 (whole degrees), 360 samples = 1 h at steady speed and pressure
+    const steady = rows(360, (i) => (i % 47 === 0 ? 86 : 85), true);
+    const { events, state } = runRule(stepStuck, initialStuckState(), samples(steady), p);
+    expect(events).toEqual([]);
+    expect(stuckResolution(state, p, 3600 * S)).toBe(1);
   });
 
-  it('a slow genuine drift is not stuck', () => {
-    const drift = Array.from({ length: 60 }, (_, i) => 80 + i * 0.02);
-    expect(runRule(stepStuck, initialStuckState(), series(drift, 10), p).events).toEqual([]);
+  it('stuck while the engine starts: raises the duration after the start, clears when the value moves', () => {
+    // stopped at 40 °C (heater) for 5 min, then the engine starts and the reading stays at exactly 40
+    const seq = [...rows(30, () => 40, false), ...rows(40, () => 40, true), ...rows(3, (i) => 45 + i, true)];
+    const { events } = runRule(stepStuck, initialStuckState(), samples(seq), p);
+    expect(events.map((e) => [e.kind, e.ts])).toEqual([['raise', (300 + 300) * S], ['clear', 700 * S]]);
+    expect(events[0].message).toMatch(/the engine started/);
   });
 
-  it('the flat run is timed from the last reading outside the band', () => {
-    // moves until 100 s, then flat: raise when 300 s have passed since the 100 s reading's band was left.
-    const values = [70, 72, 74, 76, 78, 80, ...Array.from({ length: 40 }, () => 81)];
-    const { events } = runRule(stepStuck, initialStuckState(), series(values, 10), p);
-    // last reading outside the band of 81: 80 at 50 s -> raise at 350 s
-    expect(events.map((e) => [e.kind, e.ts])).toEqual([['raise', 350 * S]]);
+  it('a whole-degree sensor that stays at one degree through a start is stuck too', () => {
+    const seq = [...rows(30, () => 40, false), ...rows(40, () => 40, true)];
+    const { events } = runRule(stepStuck, initialStuckState(), samples(seq), p);
+    expect(events.map((e) => e.kind)).toEqual(['raise']);
   });
 
-  it('not evaluated while stopped (a stopped engine can sit at one temperature)', () => {
-    const flat = Array.from({ length: 60 }, () => 25);
-    expect(runRule(stepStuck, initialStuckState(), series(flat, 10, 0, false), p).events).toEqual([]);
-    const inputs = [...series(flat.slice(0, 35), 10, 0, true), ...series([25], 10, 350 * S, false)];
-    const { events } = runRule(stepStuck, initialStuckState(), inputs, p);
-    expect(events.map((e) => e.kind)).toEqual(['raise', 'clear']);
+  it('a healthy sensor through a start: the value rises, no alarm', () => {
+    const seq = [...rows(30, () => 40, false), ...rows(60, (i) => Math.min(85, 40 + i), true)];
+    expect(runRule(stepStuck, initialStuckState(), samples(seq), p).events).toEqual([]);
+  });
+
+  it('a load change seen in pressure while the value stays flat raises; a stop does too', () => {
+    const load = [...rows(30, () => 85, true), ...rows(40, () => 85, true, { kPa: 85 })];
+    const { events } = runRule(stepStuck, initialStuckState(), samples(load), p);
+    expect(events.map((e) => [e.kind, e.ts])).toEqual([['raise', 600 * S]]);
+    expect(events[0].message).toMatch(/pressure changed/);
+    const stop = [...rows(30, () => 85, true), ...rows(40, () => 85, false)];
+    expect(runRule(stepStuck, initialStuckState(), samples(stop), p).events.map((e) => e.kind)).toEqual(['raise']);
+  });
+
+  it('the resolution setting widens the band: jitter within one step of a coarse sensor counts as flat', () => {
+    const seq = [...rows(30, () => 40, false), ...rows(40, (i) => 40 + (i % 3) * 0.2, true)];
+    expect(runRule(stepStuck, initialStuckState(), samples(seq), p).events).toEqual([]);
+    expect(runRule(stepStuck, initialStuckState(), samples(seq), { ...p, resolution: 1 }).events.map((e) => e.kind)).toEqual(['raise']);
+  });
+
+  it('learns the coarsest step every recent value lies on', () => {
+    const tenths = runRule(stepStuck, initialStuckState(), series(Array.from({ length: 20 }, (_, i) => 80 + i / 10), 10), p).state;
+    expect(stuckResolution(tenths, p, 200 * S)).toBe(0.1);
+    const fine = runRule(stepStuck, initialStuckState(), series(Array.from({ length: 20 }, (_, i) => 80 + i * 0.013), 10), p).state;
+    expect(stuckResolution(fine, p, 200 * S)).toBe(0);
+    expect(stuckResolution(fine, { ...p, resolution: 0.5 }, 200 * S)).toBe(0.5);
   });
 
   it('keeps a small state on a long flat run', () => {
