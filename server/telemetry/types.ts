@@ -39,6 +39,8 @@ export interface IngestCounters {
   /** Event-loop delay over the last few seconds (and the worst window since start), ms. */
   eventLoopDelayMs?: LoopDelay & { worst: number };
   startedAt: string;
+  /** Sparkplug B sessions (embedded broker only). */
+  sparkplug?: { births: number; deaths: number; seqGaps: number; rebirthRequests: number; nodesOnline: number };
 }
 
 export interface LoopDelay { p50: number; p99: number; max: number }
