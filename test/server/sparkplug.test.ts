@@ -100,8 +100,8 @@ beforeAll(async () => {
 });
 
 afterAll(async () => {
-  for (const c of clients) c.end(true);
-  await server?.stop('SIGKILL');
+  await Promise.all(clients.map((c) => c.endAsync(true).catch(() => undefined)));
+  await server?.stop('SIGTERM');
   await db?.close();
 });
 
