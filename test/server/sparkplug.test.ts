@@ -4,6 +4,9 @@
  * with protobufjs from the JSON descriptor below (written here from the specification's field numbers,
  * not from the server's schema text), and once as hand-assembled protobuf bytes.
  */
+import { spawn } from 'node:child_process';
+import fs from 'node:fs';
+import path from 'node:path';
 import mqtt, { type MqttClient } from 'mqtt';
 import protobuf from 'protobufjs';
 import bcrypt from 'bcryptjs';
@@ -251,4 +254,27 @@ test('a wrong group, edge node or device for the credentials is refused and coun
   other.publish('spBv1.0/PlantE/NDATA/gw5', encode({ seq: 1, metrics: [] }), { qos: 1 });
   await closed;
   await until('wrong_topic of the JSON device', () => rejections(fleet[0].deviceId), (r) => r.wrong_topic === 1);
+});
+
+test('the simulator speaks Sparkplug B with its device credentials; killed with -9, its will (NDEATH) marks the engine lost', async () => {
+  const [d] = await seedFleet(db, 1, 'spsim');
+  const gw = await register(d.engineId, { groupId: 'SimPlant', edgeNodeId: 'sim-gw', deviceId: 'genset' });
+  const file = path.join(server.dataDir, 'sparkplug-devices.json');
+  fs.writeFileSync(file, JSON.stringify({ devices: [{
+    engineId: d.engineId, username: gw.username, secret: gw.secret, duty: 'standby', capacityL: 60, capPressureKpa: 100, heaterSetpointC: 40,
+    sparkplug: { groupId: 'SimPlant', edgeNodeId: 'sim-gw', deviceId: 'genset' },
+  }] }));
+  const root = path.resolve(__dirname, '../..');
+  const sim = spawn(process.execPath, [path.join(root, 'node_modules/tsx/dist/cli.mjs'), path.join(root, 'simulator/cli.ts'),
+    '--protocol', 'sparkplug', '--devices', file, '--mqtt-url', `mqtt://127.0.0.1:${server.mqttPort}`, '--rate', '5'], { cwd: root, detached: true, stdio: 'ignore' });
+  try {
+    // every channel arrives as a reading of the engine, by alias after the birth
+    await until('readings of every channel', () => db.all<{ channel: number }>('SELECT DISTINCT channel FROM readings WHERE engine_id = ?', [d.engineId]), (r) => r.length === 5, 30_000);
+    await until('more than one data message', () => readings(d.engineId), (r) => r.length >= 15, 30_000);
+    expect(await rejections(gw.id)).toEqual({});
+    expect((await engine(d.engineId)).runState).not.toBe('no-data');
+  } finally {
+    process.kill(-sim.pid!, 'SIGKILL'); // the simulator's own process group
+  }
+  await until('engine data lost', () => engine(d.engineId), (e) => e.runState === 'no-data', 30_000);
 });

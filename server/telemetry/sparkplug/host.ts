@@ -78,6 +78,8 @@ type Callback = (err?: Error | null) => void;
 export class SparkplugHost {
   private readonly sessions = new Map<string, NodeSession>();
   private readonly lastRebirth = new Map<string, number>();
+  /** Nodes with a birth in progress: their later messages wait here, in order. */
+  private readonly waiting = new Map<string, Array<() => Promise<void> | void>>();
   private publish: ((topic: string, payload: Buffer) => void) | null = null;
   private readonly stats = { births: 0, deaths: 0, seqGaps: 0, rebirthRequests: 0 };
   private readonly now: () => number;
@@ -133,19 +135,41 @@ export class SparkplugHost {
       this.deps.reject(client.deviceId, decoded.reason, `${t.type}: ${decoded.detail}`);
       return cb(null);
     }
-    try {
-      this.handle(client, t, decoded.payload, cb);
-    } catch (err) {
-      this.deps.log.warn('sparkplug: message handling failed', err);
-      cb(null);
-    }
+    this.serial(this.nodeKey(t), () => {
+      try {
+        return this.handle(client, t, decoded.payload, cb);
+      } catch (err) {
+        this.deps.log.warn('sparkplug: message handling failed', err);
+        cb(null);
+      }
+    });
+  }
+
+  /**
+   * One node's messages are handled in arrival order: a birth reads the device records (async), and
+   * aedes may hand us the DBIRTH and DDATA behind it before that read is back.
+   */
+  private serial(key: string, job: () => Promise<void> | void): void {
+    const queue = this.waiting.get(key);
+    if (queue) { queue.push(job); return; }
+    const run = (j: () => Promise<void> | void): void => {
+      const pending = j();
+      if (pending) { this.waiting.set(key, this.waiting.get(key) ?? []); pending.then(next, next); } else next();
+    };
+    const next = (): void => {
+      const q = this.waiting.get(key);
+      const j = q?.shift();
+      if (j) run(j);
+      else this.waiting.delete(key);
+    };
+    run(job);
   }
 
   private nodeKey(t: { groupId: string; edgeNodeId: string }): string {
     return t.groupId + '/' + t.edgeNodeId;
   }
 
-  private handle(client: SparkplugClient, t: SparkplugTopic, p: SparkplugPayload, cb: Callback): void {
+  private handle(client: SparkplugClient, t: SparkplugTopic, p: SparkplugPayload, cb: Callback): Promise<void> | void {
     const key = this.nodeKey(t);
     switch (t.type) {
       case 'NBIRTH': return this.nodeBirth(client, t, key, p, cb);
@@ -168,9 +192,9 @@ export class SparkplugHost {
     }
   }
 
-  private nodeBirth(client: SparkplugClient, t: SparkplugTopic, key: string, p: SparkplugPayload, cb: Callback): void {
+  private nodeBirth(client: SparkplugClient, t: SparkplugTopic, key: string, p: SparkplugPayload, cb: Callback): Promise<void> {
     // births are rare: read the records now, so new devices and mapping edits take effect here
-    this.deps.nodeRecords(t.groupId, t.edgeNodeId).then((records) => {
+    return this.deps.nodeRecords(t.groupId, t.edgeNodeId).then((records) => {
       const nodeRecord = records.find((r) => r.sparkplugDeviceId === null) ?? null;
       const session: NodeSession = {
         seq: p.seq ?? 0,
@@ -191,7 +215,7 @@ export class SparkplugHost {
     });
   }
 
-  private deviceBirth(client: SparkplugClient, t: SparkplugTopic, key: string, p: SparkplugPayload, cb: Callback): void {
+  private deviceBirth(client: SparkplugClient, t: SparkplugTopic, key: string, p: SparkplugPayload, cb: Callback): Promise<void> | void {
     const s = this.sessions.get(key);
     if (!s) {
       this.deps.reject(client.deviceId, 'sparkplug_not_born', `DBIRTH for "${t.deviceId}" before the node's NBIRTH`);
@@ -199,7 +223,7 @@ export class SparkplugHost {
       return cb(null);
     }
     this.checkSeq(client, s, t, p);
-    this.deps.nodeRecords(t.groupId, t.edgeNodeId).then((records) => {
+    return this.deps.nodeRecords(t.groupId, t.edgeNodeId).then((records) => {
       const record = records.find((r) => r.sparkplugDeviceId === t.deviceId) ?? null;
       if (!record) {
         // an edge node may speak for the devices registered under it, no others
