@@ -37,6 +37,7 @@ export async function startTelemetry(deps: TelemetryDeps, options: TelemetryOpti
   const activity = new DeviceActivity(sequelize, log);
   const writer = new ReadingWriter(sequelize, buffer, counters, log, options.writer);
   const listeners: Array<(readings: AcceptedReading[]) => void> = [];
+  const lostListeners: Array<(engineId: number, at: number) => void> = [];
   let stopping = false;
 
   await liveState.load(sequelize);
@@ -124,6 +125,9 @@ export async function startTelemetry(deps: TelemetryDeps, options: TelemetryOpti
 
   /** A Sparkplug death certificate: the engine's data is lost now, not after the no-data delay. */
   const markLost = (engineId: number, at: number) => {
+    for (const l of lostListeners) {
+      try { l(engineId, at); } catch (err) { log.error('telemetry: lost listener failed', err); }
+    }
     const values = liveState.markLost(engineId, at);
     if (!values) return;
     const send = (siteId: number | null) => {
@@ -178,6 +182,7 @@ export async function startTelemetry(deps: TelemetryDeps, options: TelemetryOpti
     counters: () => ({ ...counters.snapshot(buffer.size), sparkplug: sparkplug.counters() }),
     rejectsByDevice: () => activity.rejectsByDevice(),
     onReadings: (listener) => { listeners.push(listener); },
+    onLost: (listener) => { lostListeners.push(listener); },
     emit: (room, event, payload) => livePush.emit(room, event, payload),
     async stop() {
       if (stopping) return;

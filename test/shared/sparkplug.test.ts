@@ -3,6 +3,7 @@ import { checkMetricValue, mapMetric, isSparkplugControlMetric } from '../../sha
 import { decodeSparkplugPayload, metricValue } from '../../shared/sparkplug/payload';
 import { DataType } from '../../shared/sparkplug/schema';
 import { parseSparkplugTopic, sparkplugTopic } from '../../shared/sparkplug/topic';
+import { lostNoData, stepNoData } from '../../shared/rules/no-data-rule';
 
 test('topics: node and device messages parse; other levels and STATE do not', () => {
   expect(parseSparkplugTopic('spBv1.0/Plant A/NDATA/gw-1')).toEqual({ groupId: 'Plant A', type: 'NDATA', edgeNodeId: 'gw-1', deviceId: null });
@@ -50,4 +51,15 @@ test('names map to channels by key or by the device table; units convert as for 
   expect(checkMetricValue('coolant_temp', 80, null, now + 3_600_000, now)).toMatchObject({ ok: false, reason: 'future_timestamp' });
   const hot = checkMetricValue('coolant_temp', 400, null, now, now);
   expect(hot.ok && hot.reading).toMatchObject({ quality: 1, outOfRange: true });
+});
+
+test('a death certificate raises the no-data rule at once; the next reading clears it (common practice, no published source)', () => {
+  const params = { factor: 3, minSilenceS: 60, label: 'Engine data' };
+  const s0 = { lastTs: 1000, intervalsMs: [1000, 1000, 1000], active: false };
+  const lost = lostNoData(s0, 1500, params);
+  expect(lost.events).toEqual([{ kind: 'raise', ts: 1500, value: null, message: 'Engine data: the gateway reported its data lost' }]);
+  expect(lostNoData(lost.state, 1600, params).events).toEqual([]); // once
+  const back = stepNoData(lost.state, { ts: 9000, value: 80, quality: 0 }, params);
+  expect(back.events.map((e) => e.kind)).toEqual(['clear']);
+  expect(back.state.intervalsMs).toEqual([1000, 1000, 1000]); // the outage is not learned as an interval
 });
