@@ -19,6 +19,8 @@ import crypto from 'node:crypto';
 import { MAX_PAYLOAD_BYTES } from '../shared/telemetry-payload';
 import { engineTopicPrefix, parseEngineTopic } from '../shared/topics';
 import type { Logger } from '../server/logger';
+import { isSparkplugTopic } from '../shared/sparkplug/topic';
+import type { SparkplugHost, SparkplugIdentity } from '../server/telemetry/sparkplug/host';
 import { limitPacketSize, type PacketLimits } from './packet-limit';
 
 /**
@@ -34,18 +36,21 @@ export interface DeviceIdentity {
   deviceId: number;
   engineId: number;
   username: string;
+  sparkplug?: SparkplugIdentity | null;
 }
 
 export interface BrokerOptions {
   port: number;
   host?: string;
-  authenticate(username: string, password: string): Promise<{ deviceId: number; engineId: number } | null>;
+  authenticate(username: string, password: string): Promise<{ deviceId: number; engineId: number; sparkplug?: SparkplugIdentity | null } | null>;
   /** A telemetry payload on the device's own engine topic; call `done` when there is room for more. */
   onTelemetry(device: DeviceIdentity, engineId: number, payload: Buffer, done: (err?: Error) => void): void;
   onReject(device: DeviceIdentity | null, reason: string, detail: string): void;
   /** A connection closed because a packet declared more than PACKET_LIMITS. */
   onOversizePacket?(declaredBytes: number, beforeConnect: boolean): void;
   log: Logger;
+  /** Sparkplug B topics (spBv1.0/...) are handed to it whole: ACL, payload, commands. */
+  sparkplug?: Pick<SparkplugHost, 'authorizePublish' | 'maySubscribe' | 'forwards' | 'attach'>;
   /** How long a good username/password stays trusted without a new bcrypt compare (ms). */
   authCacheMs?: number;
 }
@@ -63,6 +68,7 @@ const { Aedes } = require('aedes') as { Aedes: { createBroker(opts: object): Pro
 interface AedesClient { id: string; jw?: DeviceIdentity; close(): void }
 interface AedesLike {
   handle(socket: net.Socket): void;
+  publish(packet: object, cb: (err?: Error) => void): void;
   close(cb: () => void): void;
   connectedClients: number;
   on(event: string, listener: (...args: any[]) => void): void;
@@ -114,6 +120,9 @@ export async function createBroker(opts: BrokerOptions): Promise<Broker> {
       try {
         const device = client?.jw;
         if (!device) return cb(new Error('not authenticated'));
+        if (opts.sparkplug && isSparkplugTopic(packet.topic)) {
+          return opts.sparkplug.authorizePublish(device, packet.topic, Buffer.isBuffer(packet.payload) ? packet.payload : Buffer.from(packet.payload ?? ''), cb);
+        }
         const parsed = parseEngineTopic(packet.topic);
         if (!parsed || parsed.engineId !== device.engineId) {
           opts.onReject(device, 'wrong_topic', `topic "${packet.topic.slice(0, 120)}" is not under ${engineTopicPrefix(device.engineId)}`);
@@ -134,15 +143,19 @@ export async function createBroker(opts: BrokerOptions): Promise<Broker> {
     },
     authorizeSubscribe(client: AedesClient | null, sub: { topic: string; qos: number }, cb: (err: Error | null, sub: unknown) => void) {
       const device = client?.jw;
+      if (device && opts.sparkplug && isSparkplugTopic(sub.topic)) return cb(null, opts.sparkplug.maySubscribe(device, sub.topic) ? sub : null);
       // null grants nothing (SUBACK 128) but keeps the connection
       if (!device || !sub.topic.startsWith(engineTopicPrefix(device.engineId))) return cb(null, null);
       cb(null, sub);
     },
     // telemetry is for the server, not for other MQTT subscribers
     authorizeForward(_client: AedesClient, packet: { topic: string }) {
+      if (opts.sparkplug && isSparkplugTopic(packet.topic)) return opts.sparkplug.forwards(packet.topic) ? packet : null;
       return packet.topic.endsWith('/telemetry') ? null : packet;
     },
   });
+
+  opts.sparkplug?.attach((topic, payload) => aedes.publish({ cmd: 'publish', topic, payload, qos: 0, retain: false, dup: false }, () => undefined));
 
   aedes.on('clientError', (client: AedesClient, err: Error) => log.debug(`broker: client ${client?.id} error: ${err.message}`));
   aedes.on('connectionError', (_client: AedesClient, err: Error) => log.debug(`broker: connection error: ${err.message}`));

@@ -28,6 +28,8 @@ export const USAGE = `Usage: npm run simulate -- [options]
   --backfill-step S    seconds between history samples (default 60)
   --buffer-minutes M   samples kept per engine while offline (default 60)
   --control-port P     HTTP control endpoint on 127.0.0.1:P (0 = any free port)
+  --protocol P         json (our topics, default) | sparkplug (Sparkplug B; each device in the file
+                       needs "sparkplug": { "groupId", "edgeNodeId", "deviceId"? } as registered)
   --status             publish retained online/offline on the status topic (with a last will)
   --verbose            print counters every 10 s
   --help`;
@@ -50,6 +52,7 @@ export interface SimOptions {
   controlPort: number | null;
   status: boolean;
   verbose: boolean;
+  protocol: 'json' | 'sparkplug';
 }
 
 export class UsageError extends Error {}
@@ -85,6 +88,7 @@ export function parseCli(argv: string[], env: NodeJS.ProcessEnv = process.env): 
         'buffer-minutes': { type: 'string' },
         'control-port': { type: 'string' },
         status: { type: 'boolean' },
+        protocol: { type: 'string' },
         verbose: { type: 'boolean' },
         help: { type: 'boolean', short: 'h' },
       },
@@ -96,6 +100,8 @@ export function parseCli(argv: string[], env: NodeJS.ProcessEnv = process.env): 
   const int = Number.isInteger;
   const scenario = v.scenario ?? 'normal';
   if (!isScenarioName(scenario)) throw new UsageError(`--scenario must be one of ${SCENARIO_NAMES.join(', ')}, got "${scenario}"`);
+  const protocol = v.protocol ?? 'json';
+  if (protocol !== 'json' && protocol !== 'sparkplug') throw new UsageError(`--protocol must be json or sparkplug, got "${protocol}"`);
   const qos = num(v.qos, 'qos', 1, (n) => n === 0 || n === 1, '0 or 1') as 0 | 1;
   const dataDir = env.DATA_DIR || './data';
   return {
@@ -118,6 +124,7 @@ export function parseCli(argv: string[], env: NodeJS.ProcessEnv = process.env): 
       v['control-port'] === undefined ? null : num(v['control-port'], 'control-port', 0, (n) => int(n) && n >= 0 && n <= 65535, 'a port number'),
     status: !!v.status,
     verbose: !!v.verbose,
+    protocol,
   };
 }
 
@@ -136,6 +143,7 @@ const devicesFileSchema = z.object({
         capPressureKpa: z.number().positive(),
         heaterSetpointC: z.number().nullable(),
         coolantFamily: z.string().optional(),
+        sparkplug: z.object({ groupId: z.string().min(1), edgeNodeId: z.string().min(1), deviceId: z.string().min(1).nullish() }).optional(),
       }),
     )
     .min(1),
@@ -173,6 +181,8 @@ export async function runSimulator(
   if (o.engines !== null && o.engines > file.devices.length) {
     log(`simulator: asked for ${o.engines} engines, the devices file has ${file.devices.length}; using all of them`);
   }
+  const noIdentity = o.protocol === 'sparkplug' ? devices.find((d) => !d.sparkplug) : undefined;
+  if (noIdentity) throw new UsageError(`--protocol sparkplug: engine ${noIdentity.engineId} in ${o.devicesFile} has no "sparkplug" identity (register one with POST /api/devices)`);
   const scenarioEngine = o.scenarioEngine ?? devices[0].engineId;
   if (o.scenario !== 'normal' && !devices.some((d) => d.engineId === scenarioEngine)) {
     throw new UsageError(`--scenario-engine ${scenarioEngine} is not among the simulated engines (${devices.map((d) => d.engineId).join(', ')})`);
@@ -191,6 +201,7 @@ export async function runSimulator(
     rateHz: o.rateHz,
     maxBufferSamples: Math.max(1, Math.round(o.bufferMinutes * 60 * o.rateHz)),
     status: o.status,
+    protocol: o.protocol,
     log: (s) => log(`simulator: ${s}`),
     onLive: (link, ts) => {
       link.model.speed = o.speed; // history runs at physical speed 1; live at --speed

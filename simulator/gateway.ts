@@ -8,6 +8,7 @@
 import mqtt, { MqttClient } from 'mqtt';
 import { telemetryTopic, statusTopic } from '../shared/topics';
 import { EngineModel, Sample } from './engine-model';
+import { SPARKPLUG_BATCH_SAMPLES, SparkplugEdge, type SparkplugId } from './sparkplug';
 
 export interface DeviceRecord {
   engineId: number;
@@ -20,6 +21,8 @@ export interface DeviceRecord {
   capPressureKpa: number;
   heaterSetpointC: number | null;
   coolantFamily?: string;
+  /** The record's Sparkplug B identity (needed with --protocol sparkplug). */
+  sparkplug?: SparkplugId;
 }
 
 export interface GatewayOptions {
@@ -35,6 +38,8 @@ export interface GatewayOptions {
   log?: (line: string) => void;
   /** Connection attempts started at once (the broker checks a bcrypt hash for each). */
   connectConcurrency?: number;
+  /** `json` (our topics, default) or `sparkplug` (Sparkplug B births, alias-only data, NDEATH will). */
+  protocol?: 'json' | 'sparkplug';
 }
 
 /** Contract limits (DEVELOPERS.md): at most 500 samples and 16 KiB per payload. */
@@ -101,12 +106,22 @@ export class EngineLink {
   private uplinkDown = false;
   private history: Iterator<Sample> | null = null;
   private lastError = '';
+  private readonly sp: SparkplugEdge | null;
+  private lastSample: Sample | null = null;
 
   constructor(
     readonly device: DeviceRecord,
     readonly model: EngineModel,
     private readonly gw: Gateway,
-  ) {}
+  ) {
+    if (gw.opts.protocol === 'sparkplug' && !device.sparkplug) throw new Error(`engine ${device.engineId}: --protocol sparkplug needs a "sparkplug" identity in the devices file`);
+    this.sp = gw.opts.protocol === 'sparkplug' ? new SparkplugEdge(device.sparkplug!) : null;
+  }
+
+  /** Sparkplug: the births (again after a reconnect or an NCMD rebirth); they go out before any data. */
+  private birth(client: MqttClient): void {
+    for (const b of this.sp!.births(this.lastSample)) client.publish(b.topic, b.payload, { qos: this.gw.opts.qos });
+  }
 
   get engineId(): number {
     return this.device.engineId;
@@ -129,11 +144,21 @@ export class EngineLink {
       reconnectPeriod: 1000,
       connectTimeout: 60_000,
       protocolVersion: 4, // aedes speaks MQTT 3.1.1
-      will: o.status ? { topic: statusTopic(id), payload: Buffer.from('offline'), qos: 1, retain: true } : undefined,
+      will: this.sp ? { ...this.sp.will(), qos: 0, retain: false } : o.status ? { topic: statusTopic(id), payload: Buffer.from('offline'), qos: 1, retain: true } : undefined,
     });
     this.client = client;
+    const sp = this.sp;
+    if (sp) {
+      client.on('message', (_topic, payload) => {
+        if (sp.isRebirth(payload)) this.birth(client);
+      });
+    }
     client.on('connect', () => {
-      if (o.status) client.publish(statusTopic(id), 'online', { qos: 1, retain: true });
+      if (sp) {
+        client.subscribe(sp.commandTopic(), { qos: 0 });
+        this.birth(client);
+      }
+      if (o.status && !sp) client.publish(statusTopic(id), 'online', { qos: 1, retain: true });
       void this.flush();
     });
     client.on('error', (err) => {
@@ -175,10 +200,11 @@ export class EngineLink {
     if (this.history) return; // the model belongs to the backfill until it has caught up
     if (!this.live) this.goLive(ts);
     const r = this.model.step(ts);
+    this.lastSample = r.sample;
     this.uplinkDown = !r.publish;
     const canSend = this.connected && !this.uplinkDown;
     if (canSend && this.queue.length === 0 && !this.flushing) {
-      this.send(singlePayload(r.sample), 1);
+      this.send(this.sp ? this.sp.data([r.sample]) : singlePayload(r.sample), 1);
       return;
     }
     this.queue.push(r.sample);
@@ -189,12 +215,12 @@ export class EngineLink {
     if (canSend) void this.flush();
   }
 
-  private send(payload: string, count: number): Promise<boolean> {
+  private send(payload: string | Buffer, count: number): Promise<boolean> {
     const client = this.client!;
     this.stats.published += count;
     this.stats.messages++;
     return new Promise((resolve) => {
-      client.publish(telemetryTopic(this.engineId), payload, { qos: this.gw.opts.qos }, (err) => {
+      client.publish(this.sp ? this.sp.dataTopic() : telemetryTopic(this.engineId), payload, { qos: this.gw.opts.qos }, (err) => {
         if (err) {
           this.stats.errors++;
           resolve(false);
@@ -223,7 +249,7 @@ export class EngineLink {
           if (this.queue.length - sentAhead === 0 && this.history) this.refillFromHistory();
           unsent.length = this.queue.length - sentAhead;
           if (unsent.length === 0) break;
-          const { payload, count } = buildBatch(unsent);
+          const { payload, count } = this.sp ? this.sparkplugBatch(unsent) : buildBatch(unsent);
           inflight.push(this.send(payload, count).then((ok) => ({ ok, count })));
           sentAhead += count;
         }
@@ -237,6 +263,12 @@ export class EngineLink {
     } finally {
       this.flushing = false;
     }
+  }
+
+  private sparkplugBatch(unsent: { length: number; at(i: number): Sample }): { payload: Buffer; count: number } {
+    const samples: Sample[] = [];
+    for (let i = 0; i < unsent.length && i < SPARKPLUG_BATCH_SAMPLES; i++) samples.push(unsent.at(i));
+    return { payload: this.sp!.data(samples), count: samples.length };
   }
 
   private refillFromHistory(): void {
@@ -257,7 +289,11 @@ export class EngineLink {
   async close(): Promise<void> {
     const c = this.client;
     if (!c) return;
-    if (this.gw.opts.status && c.connected) {
+    if (this.sp && c.connected) {
+      // a clean goodbye: the broker does not send the will then, so say it ourselves
+      const { topic, payload } = this.sp.will();
+      await new Promise<void>((r) => c.publish(topic, payload, { qos: 1 }, () => r()));
+    } else if (this.gw.opts.status && c.connected) {
       await new Promise<void>((r) => c.publish(statusTopic(this.engineId), 'offline', { qos: 1, retain: true }, () => r()));
     }
     await c.endAsync(false).catch(() => undefined);

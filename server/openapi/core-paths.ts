@@ -78,11 +78,23 @@ export const devicePaths: OpenApiGroup = {
       get: { summary: 'Devices (admin)', responses: { '200': list('Device'), ...errors({ admin: true }) } },
       post: {
         summary: 'Create a device; the secret is returned once (admin)',
-        requestBody: body({ type: 'object', required: ['engineId'], properties: { engineId: { type: 'integer' }, username: { type: 'string' } } }),
+        requestBody: body({ type: 'object', required: ['engineId'], properties: {
+          engineId: { type: 'integer' },
+          username: { type: 'string' },
+          sparkplug: { type: 'object', required: ['groupId', 'edgeNodeId'], description: 'Sparkplug B identity: the device may publish only under spBv1.0/{groupId}/.../{edgeNodeId}[/{deviceId}]', properties: { groupId: { type: 'string' }, edgeNodeId: { type: 'string' }, deviceId: { type: 'string' } } },
+        } }),
         responses: { '201': json(ref('DeviceWithSecret')), ...errors({ admin: true, input: true }) },
       },
     },
     '/api/devices/{id}/rotate': { parameters: [idParam], post: { summary: 'New secret, returned once (admin)', responses: { '200': json(ref('DeviceWithSecret')), ...errors({ admin: true, notFound: true }) } } },
+    '/api/devices/{id}/metric-map': {
+      parameters: [idParam],
+      put: {
+        summary: 'Sparkplug metric names to channels, e.g. { "Engine/Coolant/Temp": "coolant_temp" } or { channel, unit }; applies from the next birth (admin)',
+        requestBody: body({ type: 'object', additionalProperties: { oneOf: [{ type: 'string' }, { type: 'object', required: ['channel'], properties: { channel: { type: 'string' }, unit: { type: 'string' } } }] } }),
+        responses: { '200': json(ref('Device')), ...errors({ admin: true, input: true, notFound: true }) },
+      },
+    },
     '/api/devices/{id}/revoke': { parameters: [idParam], post: { summary: 'Revoke a device (admin)', responses: { '200': json(ref('Device')), ...errors({ admin: true, notFound: true }) } } },
   },
 };

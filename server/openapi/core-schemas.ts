@@ -55,7 +55,7 @@ export const coreSchemas: Record<string, Json> = {
       },
     },
   },
-  Device: { type: 'object', properties: { id: { type: 'integer' }, engineId: { type: 'integer' }, username: { type: 'string' }, revokedAt: { type: ['string', 'null'] }, lastSeenAt: { type: ['string', 'null'] } } },
+  Device: { type: 'object', properties: { id: { type: 'integer' }, engineId: { type: 'integer' }, username: { type: 'string' }, revokedAt: { type: ['string', 'null'] }, lastSeenAt: { type: ['string', 'null'] }, sparkplug: { type: ['object', 'null'] }, metricMap: { type: ['object', 'null'] } } },
   DeviceWithSecret: { allOf: [ref('Device'), { type: 'object', properties: { secret: { type: 'string', description: 'shown only in this response' } } }] },
   Buckets: {
     type: 'object',

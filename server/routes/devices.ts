@@ -2,13 +2,28 @@ import { Router } from 'express';
 import { z } from 'zod';
 import { requireAuth, requireRole } from '../auth/middleware';
 import type { AppContext } from '../app-context';
-import { createDevice, listDevices, revokeDevice, rotateDevice } from '../services/devices';
+import { createDevice, listDevices, revokeDevice, rotateDevice, setMetricMap } from '../services/devices';
 import { parse, parseId } from './validate';
+import { CHANNEL_KEYS, type ChannelKey } from '../../shared/channels';
+import { SPARKPLUG_ID_PATTERN } from '../../shared/sparkplug/topic';
+
+const sparkplugId = z.string().regex(SPARKPLUG_ID_PATTERN, '1-64 letters, digits, dot, colon, dash or underscore');
 
 const createBody = z.strictObject({
   engineId: z.number().int().positive(),
   username: z.string().regex(/^[A-Za-z0-9._-]{3,64}$/, '3-64 letters, digits, dot, dash or underscore').optional(),
+  sparkplug: z.strictObject({
+    groupId: sparkplugId,
+    edgeNodeId: sparkplugId,
+    deviceId: sparkplugId.optional(),
+  }).optional(),
 });
+
+const channelKey = z.enum(CHANNEL_KEYS as [ChannelKey, ...ChannelKey[]]);
+const metricMapBody = z.record(
+  z.string().min(1).max(200),
+  z.union([channelKey, z.strictObject({ channel: channelKey, unit: z.string().min(1).max(16).optional() })]),
+).refine((m) => Object.keys(m).length <= 500, 'at most 500 entries');
 
 export function devicesRouter(ctx: AppContext): Router {
   const r = Router();
@@ -23,6 +38,9 @@ export function devicesRouter(ctx: AppContext): Router {
   r.post('/devices/:id/rotate', async (req, res) => {
     const { device, secret } = await rotateDevice(ctx.models, parseId(req.params));
     res.json({ ...device.toJSON(), secret });
+  });
+  r.put('/devices/:id/metric-map', async (req, res) => {
+    res.json(await setMetricMap(ctx.models, parseId(req.params), parse(metricMapBody, req.body)));
   });
   r.post('/devices/:id/revoke', async (req, res) => {
     res.json(await revokeDevice(ctx.models, parseId(req.params)));

@@ -2,6 +2,7 @@ import crypto from 'node:crypto';
 import { badRequest, conflict, notFound } from '../http-error';
 import type { Device, Models } from '../models';
 import { checkSecret, hashSecret } from './passwords';
+import type { MetricMap } from '../../shared/sparkplug/channels';
 
 /** 24 random bytes as base64url: 32 characters, 192 bits. */
 export const newDeviceSecret = (): string => crypto.randomBytes(24).toString('base64url');
@@ -20,18 +21,42 @@ async function getDevice(models: Models, id: number): Promise<Device> {
   return device;
 }
 
+export interface SparkplugIdentityInput {
+  groupId: string;
+  edgeNodeId: string;
+  deviceId?: string | null;
+}
+
 export async function createDevice(
   models: Models,
-  input: { engineId: number; username?: string; secret?: string },
+  input: { engineId: number; username?: string; secret?: string; sparkplug?: SparkplugIdentityInput },
   cost?: number,
 ): Promise<DeviceWithSecret> {
   const engine = await models.Engine.findByPk(input.engineId);
   if (!engine || engine.retiredAt) throw badRequest('engine does not exist or is retired', 'engineId');
   const username = input.username ?? `engine-${engine.id}-${crypto.randomBytes(3).toString('hex')}`;
   if (await models.Device.findOne({ where: { username } })) throw conflict('username is already in use', 'username');
+  const sp = input.sparkplug;
+  if (sp) {
+    // one live record per Sparkplug identity: two would make an edge node's data ambiguous
+    const taken = await models.Device.findOne({
+      where: { sparkplugGroupId: sp.groupId, sparkplugEdgeNodeId: sp.edgeNodeId, sparkplugDeviceId: sp.deviceId ?? null, revokedAt: null },
+    });
+    if (taken) throw conflict('this Sparkplug identity already belongs to another device', 'sparkplug');
+  }
   const secret = input.secret ?? newDeviceSecret();
-  const device = await models.Device.create({ engineId: engine.id, username, secretHash: await hashSecret(secret, cost) });
+  const device = await models.Device.create({
+    engineId: engine.id, username, secretHash: await hashSecret(secret, cost),
+    ...(sp ? { sparkplugGroupId: sp.groupId, sparkplugEdgeNodeId: sp.edgeNodeId, sparkplugDeviceId: sp.deviceId ?? null } : {}),
+  });
   return { device, secret };
+}
+
+/** The metric-name mapping of a Sparkplug device; it applies from the gateway's next birth certificate. */
+export async function setMetricMap(models: Models, id: number, map: MetricMap): Promise<Device> {
+  const device = await getDevice(models, id);
+  if (!device.sparkplugGroupId) throw badRequest('device has no Sparkplug identity', 'sparkplug');
+  return device.update({ sparkplugMetricMap: Object.keys(map).length ? JSON.stringify(map) : null });
 }
 
 /** New secret, old one stops working; a revoked device comes back to life only through a new device. */

@@ -5,7 +5,7 @@
 import bcrypt from 'bcryptjs';
 import { QueryTypes } from 'sequelize';
 import { CHANNELS } from '../../shared/channels';
-import { parseTelemetry } from '../../shared/telemetry-payload';
+import { parseTelemetry, type ParsedReading } from '../../shared/telemetry-payload';
 import { LivePush } from '../realtime/live-push';
 import { Counters } from './counters';
 import { DeviceActivity } from './device-activity';
@@ -14,6 +14,8 @@ import { MemoryLiveState } from './live-state';
 import { ReadingWriter, type WriterOptions } from './reading-writer';
 import { DEVICE_BY_USERNAME_SQL } from './sql';
 import { startExternalSubscriber } from './external-broker';
+import { SparkplugHost } from './sparkplug/host';
+import { readNodeRecords } from './sparkplug/records';
 import type { AcceptedReading, Telemetry, TelemetryDeps } from './types';
 
 export interface TelemetryOptions {
@@ -35,6 +37,7 @@ export async function startTelemetry(deps: TelemetryDeps, options: TelemetryOpti
   const activity = new DeviceActivity(sequelize, log);
   const writer = new ReadingWriter(sequelize, buffer, counters, log, options.writer);
   const listeners: Array<(readings: AcceptedReading[]) => void> = [];
+  const lostListeners: Array<(engineId: number, at: number) => void> = [];
   let stopping = false;
 
   await liveState.load(sequelize);
@@ -50,16 +53,17 @@ export async function startTelemetry(deps: TelemetryDeps, options: TelemetryOpti
    * Hot path: parse, count, buffer, notify. No await, no DB. `done` is the MQTT ack: it runs once every
    * reading of the message is committed (and there is room in the buffer); a message with no accepted
    * reading is acked at once. `readMore` (external broker only, whose client handles one message at a
-   * time) lets the next message in as soon as there is room, before this one is committed.
+   * time) lets the next message in as soon as there is room, before this one is committed. `payload` is a JSON
+   * message, or readings a Sparkplug B message has already been decoded into.
    */
-  const ingestNow = (deviceId: number | null, engineId: number, payload: Buffer, done: () => void, readMore?: () => void) => {
+  const ingestNow = (deviceId: number | null, engineId: number, payload: Buffer | ParsedReading[], done: () => void, readMore?: () => void) => {
     if (stopping) return; // no ack: a QoS 1 device sends it again after the restart
     let buffered = false;
     try {
       const now = Date.now();
       counters.messages++;
       activity.seenDevice(deviceId);
-      const result = parseTelemetry(engineId, payload, now);
+      const result = Buffer.isBuffer(payload) ? parseTelemetry(engineId, payload, now) : { accepted: payload, rejects: [] };
       for (const r of result.rejects) reject(deviceId, r.reason, r.detail);
       if (result.accepted.length) {
         const batch: AcceptedReading[] = new Array(result.accepted.length);
@@ -99,7 +103,7 @@ export async function startTelemetry(deps: TelemetryDeps, options: TelemetryOpti
    * the queue holds at most what aedes has already read, and TCP pushes back on the devices.
    */
   const TURN_BUDGET_MS = 15;
-  type Job = [number | null, number, Buffer, () => void, (() => void) | undefined];
+  type Job = [number | null, number, Buffer | ParsedReading[], () => void, (() => void) | undefined];
   let queue: Job[] = [];
   let head = 0;
   let spent = 0;
@@ -119,7 +123,7 @@ export async function startTelemetry(deps: TelemetryDeps, options: TelemetryOpti
       if (head >= queue.length) { queue = []; head = 0; } else nextTurn();
     });
   };
-  const ingest = (deviceId: number | null, engineId: number, payload: Buffer, done: () => void, readMore?: () => void) => {
+  const ingest = (deviceId: number | null, engineId: number, payload: Buffer | ParsedReading[], done: () => void, readMore?: () => void) => {
     if (head < queue.length || spent >= TURN_BUDGET_MS) {
       queue.push([deviceId, engineId, payload, done, readMore]);
     } else {
@@ -129,6 +133,27 @@ export async function startTelemetry(deps: TelemetryDeps, options: TelemetryOpti
     }
     nextTurn();
   };
+
+  /** A Sparkplug death certificate: the engine's data is lost now, not after the no-data delay. */
+  const markLost = (engineId: number, at: number) => {
+    for (const l of lostListeners) {
+      try { l(engineId, at); } catch (err) { log.error('telemetry: lost listener failed', err); }
+    }
+    const values = liveState.markLost(engineId, at);
+    if (!values) return;
+    const send = (siteId: number | null) => {
+      const msg = { engineId, siteId, ts: at, values, lost: true };
+      for (const room of ['fleet', `engine:${engineId}`, ...(siteId !== null ? [`site:${siteId}`] : [])]) livePush.emit(room, 'readings', msg);
+    };
+    deps.siteOfEngine(engineId).then(send, () => send(null));
+  };
+  const sparkplug = new SparkplugHost({
+    ingest: (recordId, engineId, readings, done) => ingest(recordId, engineId, readings, done),
+    reject: (recordId, reason, detail) => reject(recordId, reason, detail),
+    markLost,
+    nodeRecords: (groupId, edgeNodeId) => readNodeRecords(sequelize, groupId, edgeNodeId),
+    log,
+  });
 
   writer.start();
   activity.start();
@@ -146,15 +171,18 @@ export async function startTelemetry(deps: TelemetryDeps, options: TelemetryOpti
       port: config.mqttPort,
       log,
       authenticate: async (username, password) => {
-        const rows = await sequelize.query<{ id: number; engineId: number; secretHash: string; revokedAt: unknown }>(
+        const rows = await sequelize.query<{ id: number; engineId: number; secretHash: string; revokedAt: unknown; spGroup: string | null; spNode: string | null; spDevice: string | null }>(
           DEVICE_BY_USERNAME_SQL, { bind: [username], type: QueryTypes.SELECT, logging: false });
         const row = rows[0];
         if (!row || row.revokedAt) return null;
-        return (await bcrypt.compare(password, row.secretHash)) ? { deviceId: Number(row.id), engineId: Number(row.engineId) } : null;
+        if (!(await bcrypt.compare(password, row.secretHash))) return null;
+        const sp = row.spGroup && row.spNode ? { groupId: row.spGroup, edgeNodeId: row.spNode, deviceId: row.spDevice ?? null } : null;
+        return { deviceId: Number(row.id), engineId: Number(row.engineId), sparkplug: sp };
       },
       onTelemetry: (device, engineId, payload, done) => ingest(device.deviceId, engineId, payload, done),
       onReject: (device, reason, detail) => reject(device?.deviceId ?? null, reason, detail),
       onOversizePacket: () => { counters.oversizePacketsClosed++; },
+      sparkplug,
     });
     mqttPort = broker.port;
     mqtt = broker;
@@ -163,9 +191,10 @@ export async function startTelemetry(deps: TelemetryDeps, options: TelemetryOpti
   return {
     liveState,
     mqttPort,
-    counters: () => counters.snapshot(buffer.size),
+    counters: () => ({ ...counters.snapshot(buffer.size), sparkplug: sparkplug.counters() }),
     rejectsByDevice: () => activity.rejectsByDevice(),
     onReadings: (listener) => { listeners.push(listener); },
+    onLost: (listener) => { lostListeners.push(listener); },
     emit: (room, event, payload) => livePush.emit(room, event, payload),
     async stop() {
       if (stopping) return;

@@ -9,6 +9,8 @@ export const NO_DATA_AFTER_MS = 5 * 60 * 1000;
 interface EngineLive {
   latest: Partial<Record<ChannelKey, LatestValue>>;
   lastSeen: number;
+  /** A death certificate arrived at this time and no data since: the engine's data is lost. */
+  lostAt?: number;
 }
 
 /** Latest value per engine and channel, kept in memory from the ingest stream. */
@@ -34,6 +36,7 @@ export class MemoryLiveState implements LiveState {
       this.engines.set(engineId, e);
     }
     if (arrivedAt > e.lastSeen) e.lastSeen = arrivedAt;
+    if (e.lostAt !== undefined && arrivedAt >= e.lostAt) e.lostAt = undefined;
     const prev = e.latest[channel];
     // late samples (a gateway's offline backlog) must not replace a newer value
     if (!prev || ts >= prev.ts) e.latest[channel] = { value, ts, quality };
@@ -41,6 +44,18 @@ export class MemoryLiveState implements LiveState {
 
   applyAll(readings: AcceptedReading[], arrivedAt: number): void {
     for (const r of readings) this.apply(r.engineId, r.channel, r.ts, r.value, r.quality, arrivedAt);
+  }
+
+  /**
+   * The engine's data is lost now (a Sparkplug NDEATH/DDEATH): its latest values turn bad quality and
+   * its run state is no-data until new data arrives. Returns the values as they now stand (null: none).
+   */
+  markLost(engineId: number, at: number): Partial<Record<ChannelKey, LatestValue>> | null {
+    const e = this.engines.get(engineId);
+    if (!e) return null;
+    e.lostAt = at;
+    for (const key of Object.keys(e.latest) as ChannelKey[]) e.latest[key] = { ...e.latest[key]!, quality: 1 };
+    return { ...e.latest };
   }
 
   latest(engineId: number): Partial<Record<ChannelKey, LatestValue>> {
@@ -58,7 +73,7 @@ export class MemoryLiveState implements LiveState {
    */
   runState(engineId: number, now = Date.now()): RunState {
     const e = this.engines.get(engineId);
-    if (!e || now - e.lastSeen > NO_DATA_AFTER_MS) return 'no-data';
+    if (!e || now - e.lastSeen > NO_DATA_AFTER_MS || e.lostAt !== undefined) return 'no-data';
     const speed = e.latest.engine_speed;
     if (!speed || speed.quality !== 0 || now - speed.ts > NO_DATA_AFTER_MS) return 'no-data';
     return speed.value >= RUNNING_RPM ? 'running' : 'stopped';

@@ -73,7 +73,8 @@ FROM (SELECT engine_id, channel FROM rollups GROUP BY engine_id, channel) p
 JOIN readings r ON r.engine_id = p.engine_id AND r.channel = p.channel
   AND r.ts = (SELECT MAX(x.ts) FROM readings x WHERE x.engine_id = p.engine_id AND x.channel = p.channel)`;
 
-export const DEVICE_BY_USERNAME_SQL = `SELECT id, engine_id AS "engineId", secret_hash AS "secretHash", revoked_at AS "revokedAt" FROM devices WHERE username = $1`;
+export const DEVICE_BY_USERNAME_SQL = `SELECT id, engine_id AS "engineId", secret_hash AS "secretHash", revoked_at AS "revokedAt",
+  sparkplug_group_id AS "spGroup", sparkplug_edge_node_id AS "spNode", sparkplug_device_id AS "spDevice" FROM devices WHERE username = $1`;
 
 export function touchDevicesSql(count: number): string {
   const ids = Array.from({ length: count }, (_, i) => '$' + (i + 2)).join(',');

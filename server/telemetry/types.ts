@@ -43,6 +43,8 @@ export interface IngestCounters {
   /** Event-loop delay over the last few seconds (and the worst window since start), ms. */
   eventLoopDelayMs?: LoopDelay & { worst: number };
   startedAt: string;
+  /** Sparkplug B sessions (embedded broker only). */
+  sparkplug?: { births: number; deaths: number; seqGaps: number; rebirthRequests: number; nodesOnline: number };
 }
 
 export interface LoopDelay { p50: number; p99: number; max: number }
@@ -72,6 +74,8 @@ export interface Telemetry {
   /** Per-device reject counts since start (also persisted in device_rejections). */
   /** Called for every batch of accepted readings (after validation, before the write). */
   onReadings(listener: (readings: AcceptedReading[]) => void): void;
+  /** Called when a gateway declares an engine's data lost (Sparkplug NDEATH/DDEATH). */
+  onLost?(listener: (engineId: number, at: number) => void): void;
   /** Emit an event to a socket.io room (`fleet`, `site:<id>`, `engine:<id>`). */
   emit(room: string, event: string, payload: unknown): void;
   /** Flush the buffer and close broker and sockets. */

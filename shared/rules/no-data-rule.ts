@@ -39,6 +39,16 @@ export function silenceLimitMs(state: NoDataRuleState, params: NoDataRuleParams)
   return Math.max(min, (params.factor ?? 5) * usual);
 }
 
+/**
+ * The source has declared its data lost (a Sparkplug death certificate): raise now, not after the
+ * silence limit. The next reading clears it as after any silence.
+ */
+export function lostNoData(state: NoDataRuleState, at: number, params: NoDataRuleParams): StepResult<NoDataRuleState> {
+  if (state.active) return { state, events: [] };
+  const label = params.label ?? 'Channel';
+  return { state: { ...state, active: true }, events: [{ kind: 'raise', ts: at, value: null, message: `${label}: the gateway reported its data lost` }] };
+}
+
 export function stepNoData(state: NoDataRuleState, input: RuleInput, params: NoDataRuleParams): StepResult<NoDataRuleState> {
   const label = params.label ?? 'Channel';
   const events: RuleEvent[] = [];

@@ -9,7 +9,7 @@ import { initialBoilingMarginState, stepBoilingMargin, type BoilingMarginParams,
 import { initialConductivityState, stepConductivity, type ConductivityRuleParams, type ConductivityRuleState } from '../../../shared/rules/conductivity-rule';
 import { initialDelayedState } from '../../../shared/rules/delayed-condition';
 import { initialLimitState, stepLimit, type LimitRuleParams } from '../../../shared/rules/limit-rule';
-import { initialNoDataState, stepNoData, type NoDataRuleParams, type NoDataRuleState } from '../../../shared/rules/no-data-rule';
+import { initialNoDataState, lostNoData, stepNoData, type NoDataRuleParams, type NoDataRuleState } from '../../../shared/rules/no-data-rule';
 import { initialRateState, stepRate, type RateRuleParams } from '../../../shared/rules/rate-rule';
 import type { RuleEvent, RuleInput, StepResult } from '../../../shared/rules/rule-types';
 import { initialStuckState, stepStuck, type StuckRuleParams } from '../../../shared/rules/stuck-rule';
@@ -245,6 +245,18 @@ export class EngineEvaluator {
           this.apply(slot, { ts: r.ts, value: r.value, quality: r.quality, running: armed, channel: r.channel }, hits);
         }
       }
+    }
+    return hits;
+  }
+
+  /** The gateway declared this engine's data lost (death certificate): no-data rules raise now. */
+  lost(at: number): RuleHit[] {
+    const hits: RuleHit[] = [];
+    for (const slot of this.slots) {
+      if (slot.def.kind !== 'no_data') continue;
+      const r = lostNoData(slot.state as NoDataRuleState, at, slot.params as unknown as NoDataRuleParams);
+      slot.state = r.state;
+      for (const event of r.events) hits.push({ def: slot.def, event });
     }
     return hits;
   }

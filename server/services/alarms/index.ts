@@ -29,7 +29,7 @@ export interface AlarmFeature {
   /** Null until started. */
   outbox(): Outbox | null;
   mailCatcher(): MailCatcher | null;
-  start(telemetry: Pick<Telemetry, 'onReadings' | 'emit' | 'liveState'>): Promise<void>;
+  start(telemetry: Pick<Telemetry, 'onReadings' | 'onLost' | 'emit' | 'liveState'>): Promise<void>;
   stop(): Promise<void>;
 }
 
@@ -89,6 +89,7 @@ export function createAlarmFeature(ctx: AppContext, settings: AlarmSettings = lo
       await alarms.loadOpen();
       await rules.refreshEngines(true);
       telemetry.onReadings((batch) => rules.handleReadings(batch));
+      telemetry.onLost?.((engineId, at) => rules.engineLost(engineId, at));
       timer = setInterval(() => {
         rules.tick();
         if (ticking) return; // a slow database: skip a housekeeping round rather than pile them up

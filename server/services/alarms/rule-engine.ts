@@ -188,6 +188,12 @@ export class RuleEngine {
     return Math.min(now, seen.newestTs + Math.max(0, now - seen.arrivedAt));
   }
 
+  /** A death certificate for the engine (telemetry.onLost): its no-data rule raises at once. */
+  engineLost(engineId: number, at: number): void {
+    const ev = this.evaluators.get(engineId);
+    if (ev) this.dispatch(engineId, ev.lost(at));
+  }
+
   /** The 1 s clock. */
   tick(now = Date.now()): void {
     for (const [engineId, ev] of this.evaluators) {
