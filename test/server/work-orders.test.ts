@@ -381,6 +381,88 @@ describe('from an alarm in one click', () => {
   });
 });
 
+describe('drafts that stay, locked steps and the single coolant test', () => {
+  type Step = { id: number; key: string; resultValue: number | null; resultUnit: string | null; resultText: string | null; doneAt: string | null; lockoutConfirmed: boolean | null };
+  let order: { id: number; steps: Step[] };
+  let cooledId: number;
+  const step = (key: string) => order.steps.find((s) => s.key === key)!;
+  const patch = (key: string, body: object) => request(t.app).patch(`/api/work-orders/${order.id}/steps/${step(key).id}`).set(as('technician')).send(body);
+  beforeAll(async () => {
+    cooledId = (await t.ctx.models.Engine.create({ siteId: (await t.ctx.models.Site.findOne())!.id, name: 'Sampled engine', duty: 'standby', capacityL: 60, coolantFamily: 'conventional', glycolType: 'ethylene', glycolPercent: 50, capPressureKpa: 100, oilDrainIntervalH: 250 })).id;
+    order = (await plannedOrder(cooledId, 'coolant-test')) as unknown as typeof order;
+  });
+
+  it('a draft is saved without completing the step and comes back on GET', async () => {
+    await patch('freeze-point', { value: -29.2, unit: 'degF', note: 'refractometer' }).expect(200);
+    await patch('sca-level', { value: 0.8 }).expect(200);
+    await patch('glycol-percent', { value: 48 }).expect(200);
+    const res = await request(t.app).get(`/api/work-orders/${order.id}`).set(as('technician')).expect(200);
+    const fp = res.body.steps.find((s: Step) => s.key === 'freeze-point');
+    expect(fp).toMatchObject({ resultValue: -29.2, resultUnit: 'degF', resultText: 'refractometer', doneAt: null });
+    expect(res.body.steps.find((s: Step) => s.key === 'sca-level')).toMatchObject({ resultValue: 0.8, resultUnit: 'units/gal', doneAt: null });
+    expect(res.body.stepsDone).toBe(0);
+  });
+
+  it('bad drafts: a unit the step does not take, a value on a confirmation step, another technician, a planner', async () => {
+    expect((await patch('freeze-point', { value: 3, unit: 'psi' }).expect(400)).body.field).toBe('unit');
+    expect((await patch('method', { value: 3 }).expect(400)).body.field).toBe('value');
+    expect((await patch('freeze-point', { value: 'cold' }).expect(400)).body.field).toBe('value');
+    await request(t.app).patch(`/api/work-orders/${order.id}/steps/${step('ph').id}`).set(auth(otherTechToken)).send({ value: 9 }).expect(403);
+    await request(t.app).patch(`/api/work-orders/${order.id}/steps/${step('ph').id}`).set(as('planner')).send({ value: 9 }).expect(403);
+  });
+
+  it('a locked gated step accepts no results (409 with the unmet conditions)', async () => {
+    const res = await patch('take-sample', { note: 'from the block drain' }).expect(409);
+    expect(res.body.conditions.map((c: { name: string }) => c.name)).toContain('lockout-confirmed');
+    const after = await request(t.app).get(`/api/work-orders/${order.id}`).set(as('technician')).expect(200);
+    expect(after.body.steps.find((s: Step) => s.key === 'take-sample').resultText).toBeNull();
+  });
+
+  it('the test cannot be recorded before the sample is taken', async () => {
+    const res = await request(t.app).post(`/api/work-orders/${order.id}/coolant-test`).set(as('technician')).send({}).expect(409);
+    expect(res.body.error).toMatch(/sample/);
+  });
+
+  it('lockout/tagout confirmed on the lock-out step is carried to the gated sampling step', async () => {
+    const lock = await request(t.app).post(`/api/work-orders/${order.id}/steps/${step('stop-and-lock-out').id}/complete`).set(as('technician')).send({}).expect(200);
+    expect(lock.body.steps.find((s: Step) => s.key === 'stop-and-lock-out').lockoutConfirmed).toBe(true);
+    // still shut while no readings say the system is safe, even with lockout carried
+    const shut = await patch('take-sample', { note: 'x' }).expect(409);
+    expect(shut.body.conditions.map((c: { name: string }) => c.name)).not.toContain('lockout-confirmed');
+    // ran until 40 min ago, then cooled (Newton, tau 900 s): 29.2 °C, no pressure
+    await feed(history(cooledId, { stopAtMin: -40, fromMin: -60 }));
+    await patch('take-sample', { note: 'from the block drain' }).expect(200);
+    const done = await request(t.app).post(`/api/work-orders/${order.id}/steps/${step('take-sample').id}/complete`).set(as('technician')).send({}).expect(200);
+    const s = done.body.steps.find((x: Step) => x.key === 'take-sample');
+    expect(s).toMatchObject({ lockoutConfirmed: true, resultText: 'from the block drain' });
+    expect(s.doneAt).not.toBeNull();
+  });
+
+  it('completing keeps the drafted values (converted to the step unit) and the remark', async () => {
+    const res = await request(t.app).post(`/api/work-orders/${order.id}/steps/${step('freeze-point').id}/complete`).set(as('technician')).send({}).expect(200);
+    const fp = res.body.steps.find((s: Step) => s.key === 'freeze-point');
+    // (-29.2 °F - 32) x 5/9 = -34.0 °C (definition of the Fahrenheit scale, NIST SP 811 B.8)
+    expect(fp.resultValue).toBeCloseTo(-34, 6);
+    expect(fp).toMatchObject({ resultUnit: 'degC', resultText: 'refractometer' });
+    await patch('freeze-point', { value: 1 }).expect(409);
+  });
+
+  it('records the coolant test once; a second attempt answers 409 with the recorded test', async () => {
+    const first = await request(t.app).post(`/api/work-orders/${order.id}/coolant-test`).set(as('technician')).send({ method: 'refractometer' }).expect(201);
+    expect(first.body.coolantTest).toMatchObject({ engineId: cooledId, scaUnitsPerGal: 0.8, glycolPercent: 48, method: 'refractometer' });
+    expect(first.body.coolantTest.freezePointC).toBeCloseTo(-34, 6);
+    expect(first.body.order.coolantTestId).toBe(first.body.coolantTest.id);
+    const again = await request(t.app).post(`/api/work-orders/${order.id}/coolant-test`).set(as('technician')).send({}).expect(409);
+    expect(again.body.coolantTest.id).toBe(first.body.coolantTest.id);
+    const both = await Promise.all([1, 2].map(() => request(t.app).post(`/api/work-orders/${order.id}/coolant-test`).set(as('planner')).send({})));
+    expect(both.map((r) => r.status)).toEqual([409, 409]);
+    expect(await t.ctx.models.CoolantTest.count({ where: { engineId: cooledId } })).toBe(1);
+    const detail = await request(t.app).get(`/api/work-orders/${order.id}`).set(as('operator')).expect(200);
+    expect(detail.body.coolantTest.id).toBe(first.body.coolantTest.id);
+    expect(detail.body.history.some((h: { event: string }) => h.event === 'coolant-test-recorded')).toBe(true);
+  });
+});
+
 describe('OpenAPI', () => {
   it('documents every work-order route', async () => {
     const { buildOpenApi } = await import('../../server/openapi');
@@ -389,7 +471,7 @@ describe('OpenAPI', () => {
       ['/api/work-order-templates', 'get'], ['/api/engines/{id}/opening-check', 'get'], ['/api/work-orders', 'get'], ['/api/work-orders', 'post'],
       ['/api/work-orders/{id}', 'get'], ['/api/work-orders/{id}', 'patch'], ['/api/work-orders/{id}/transition', 'post'],
       ['/api/work-orders/{id}/steps/{stepId}/complete', 'post'], ['/api/work-orders/{id}/parts', 'post'], ['/api/work-orders/{id}/amendments', 'post'],
-      ['/api/work-orders/{id}/attachments', 'post'], ['/api/attachments/{id}', 'get'], ['/api/work-orders/assignees', 'get'],
+      ['/api/work-orders/{id}/attachments', 'post'], ['/api/work-orders/{id}/steps/{stepId}', 'patch'], ['/api/work-orders/{id}/coolant-test', 'post'], ['/api/attachments/{id}', 'get'], ['/api/work-orders/assignees', 'get'],
     ];
     for (const [p, m] of routes) expect({ p, m, documented: !!doc.paths[p]?.[m] }).toEqual({ p, m, documented: true });
   });

@@ -4,6 +4,7 @@ import { badRequest, conflict, HttpError, notFound } from '../../http-error';
 import type { WorkOrder, WorkPriority, WorkStatus } from '../../models/work-order';
 import type { AuthUser } from '../../telemetry/types';
 import { formatValue } from '../alarms/value-format';
+import { coolantTestView } from '../coolant/coolant-tests';
 import { workTemplate, type WorkKind } from '../work-templates';
 import { pushWorkOrder } from './notify';
 import type { ReadingHistory } from './reading-history';
@@ -273,8 +274,11 @@ export class WorkOrderService {
     const users = userIds.size ? await this.models.User.findAll({ where: { id: [...userIds] }, attributes: ['id', 'name'] }) : [];
     const name = (uid: number | null) => (uid ? (users.find((u) => u.id === uid)?.name ?? null) : null);
     const template = workTemplate(order.kind);
+    const coolantTest = order.coolantTestId ? await coolantTestView(this.models, order.coolantTestId) : null;
     return {
       ...summary,
+      coolantTestId: order.coolantTestId ?? null,
+      coolantTest,
       cautions: template?.cautions ?? [],
       steps: steps.map((s) => ({
         id: s.id, position: s.position, key: s.key, title: s.title, detail: s.detail, input: s.input, unit: s.unit,
