@@ -31,7 +31,7 @@ const HOLD_S = 15;
  */
 const ENGINE_NAME = 'Intake gen-set south';
 
-interface Step { id: number; key: string; title: string; input: 'confirmation' | 'value' | 'photo'; unit: string | null; gated: boolean; optional: boolean; doneAt: string | null; resultValue: number | null }
+interface Step { id: number; key: string; title: string; input: 'confirmation' | 'value' | 'photo'; unit: string | null; gated: boolean; optional: boolean; doneAt: string | null; resultValue: number | null; resultText: string | null }
 interface Order { id: number; status: string; engineId: number; assigneeId: number | null; alarmIds: number[]; steps: Step[]; parts: { kind: string; quantity: number; unit: string }[]; attachments: { id: number; stepId: number | null }[] }
 interface Condition { name: string; met: boolean; value: unknown; limit: unknown; unit: string }
 interface Gate { clear: boolean; conditions: Condition[]; clearAt: number | null; settings: { minStoppedS: number; holdS: number; safeOpenTempC: number } }
@@ -204,8 +204,12 @@ describe('work order with the live opening check (planner and technician)', () =
     // marker: if the page reloads, it is gone
     await tech.evaluate(() => ((window as unknown as { jwNoReload: boolean }).jwNoReload = true));
 
+    // lockout/tagout is confirmed on the step that says to lock out, and carried to the gated steps
+    const lock = stepItem(tech, order.steps.find((s) => s.key === 'stop-and-lock-out')!);
+    await lock.getByRole('button', { name: /Mark done/ }).click();
+    await lock.locator('.badge.done').waitFor();
     const first = stepItem(tech, gatedSteps()[0]);
-    await first.getByRole('checkbox', { name: /I have locked out and tagged out/ }).check();
+    await first.getByText(/Lockout\/tagout confirmed on step \d+/).waitFor();
     const panel = tech.getByRole('region', { name: 'Opening check' });
     await panel.getByText('Not clear: keep the cooling system closed').waitFor();
     await panel.locator('li', { hasText: 'Coolant cool enough' }).getByText('Not met').waitFor();
@@ -308,11 +312,26 @@ describe('work order with the live opening check (planner and technician)', () =
     assert.equal(filter, 'charged', 'additive in range: the rule asks for a charged filter');
 
     const values: Record<string, number> = { 'fit-filter': 0.75, refill: 1.5 };
+    // a draft survives a reload: typed, saved on the server as typed, and there again after the reload
+    const fit = stepItem(tech, order.steps.find((s) => s.key === 'fit-filter')!);
+    await fit.getByLabel('Value').fill('0.75');
+    await fit.getByLabel('Remark').fill('three quarters of a turn');
+    await fit.getByText('Draft saved').waitFor();
+    await until(async () => {
+      const o = (await stack.api<Order>('GET', `/api/work-orders/${orderId}`, techToken)).body;
+      const st = o.steps.find((s) => s.key === 'fit-filter')!;
+      return st.resultValue === 0.75 && st.resultText === 'three quarters of a turn' && st.doneAt === null;
+    }, 10000, 'the draft on the server');
+    await tech.reload();
+    await stepItem(tech, order.steps.find((s) => s.key === 'fit-filter')!).getByLabel('Remark').waitFor();
+    assert.equal(await stepItem(tech, order.steps.find((s) => s.key === 'fit-filter')!).getByLabel('Value').inputValue(), '0.75', 'the drafted value after a reload');
+    assert.equal(await stepItem(tech, order.steps.find((s) => s.key === 'fit-filter')!).getByLabel('Remark').inputValue(), 'three quarters of a turn', 'the drafted remark after a reload');
+    await shot(tech, 'wo-07c-draft-after-reload');
     for (const s of order.steps) {
       if (s.optional && s.input !== 'photo') continue;
+      if (s.key === 'stop-and-lock-out') continue; // done above
       const li = stepItem(tech, s);
-      if (s.gated) await li.getByRole('checkbox', { name: /I have locked out and tagged out/ }).check();
-      if (s.input === 'value') await li.getByLabel('Value').fill(String(values[s.key] ?? 1));
+      if (s.input === 'value' && s.key !== 'fit-filter') await li.getByLabel('Value').fill(String(values[s.key] ?? 1));
       if (s.input === 'photo') {
         await li.locator('input[type=file]').setInputFiles({ name: 'fitted-filter.png', mimeType: 'image/png', buffer: makePng() });
         await li.locator('jw-attachment-thumb').waitFor();

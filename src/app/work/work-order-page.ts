@@ -95,6 +95,18 @@ export class WorkOrderPage {
   protected readonly hasGated = computed(() => (this.order()?.steps ?? []).some((s) => s.gated && !s.doneAt));
   protected readonly openRequired = computed(() => (this.order()?.steps ?? []).filter((s) => !s.optional && !s.doneAt).length);
   protected readonly anyLockout = signal(false);
+  /** Per step: 'saving', 'saved' or an error text, shown under the inputs. */
+  protected readonly draftState = signal<Record<number, string>>({});
+  private readonly draftTimers = new Map<number, ReturnType<typeof setTimeout>>();
+  /** The step that says to lock out (confirmed there, carried to the gated steps), if the template has one. */
+  protected readonly lockoutStep = computed(() => this.order()?.steps.find((s) => s.key === 'stop-and-lock-out') ?? null);
+  /** Lockout/tagout confirmed on its step and not yet removed by a later step. */
+  protected readonly lockoutCarried = computed(() => {
+    const steps = this.order()?.steps ?? [];
+    const locked = steps.some((s) => s.key === 'stop-and-lock-out' && s.doneAt);
+    return locked && !steps.some((s) => (s.key === 'leak-run' || s.key === 'return-to-service') && s.doneAt);
+  });
+  protected readonly sampleTaken = computed(() => !!this.order()?.steps.find((s) => s.key === 'take-sample')?.doneAt);
 
   /** Moves this user may offer now; the server decides again. */
   protected readonly moves = computed<{ to: WorkStatus; label: string; icon: string; needsNote?: boolean; primary?: boolean }[]>(() => {
@@ -146,11 +158,50 @@ export class WorkOrderPage {
 
   private set(o: WorkOrderDetail): void {
     for (const s of o.steps) {
-      this.drafts[s.id] ??= { value: null, unit: s.unit ?? '', note: '', lockout: false, manual: false, gaugeKpa: null, tempC: null, minutesSinceStop: null, checkedBy: this.auth.user()?.name ?? '', reason: '' };
-      if (s.unit && this.drafts[s.id].value === null) this.drafts[s.id].unit = this.preferredUnit(s.unit);
+      if (!this.drafts[s.id]) {
+        // a step not done shows the draft the server keeps (as typed, with its unit)
+        const saved = !s.doneAt && s.resultValue !== null;
+        this.drafts[s.id] = {
+          value: saved ? s.resultValue : null, unit: saved && s.resultUnit ? s.resultUnit : (s.unit ?? ''), note: !s.doneAt ? (s.resultText ?? '') : '',
+          lockout: false, manual: false, gaugeKpa: null, tempC: null, minutesSinceStop: null, checkedBy: this.auth.user()?.name ?? '', reason: '',
+        };
+        if (s.unit && !saved) this.drafts[s.id].unit = this.preferredUnit(s.unit);
+      }
     }
     this.order.set(o);
+    this.anyLockout.set(this.lockoutCarried() || Object.values(this.drafts).some((d) => d.lockout));
     this.error.set(null);
+  }
+
+  /** Typed into a step: saved on the server after a short pause (not for a locked gated step, which takes nothing). */
+  protected draftChanged(s: WorkStep): void {
+    if (!this.working() || s.doneAt || (s.gated && !this.unlocked(s))) return;
+    clearTimeout(this.draftTimers.get(s.id));
+    this.draftTimers.set(s.id, setTimeout(() => void this.saveDraft(s), 600));
+  }
+
+  private async saveDraft(s: WorkStep): Promise<void> {
+    this.draftTimers.delete(s.id);
+    const d = this.drafts[s.id];
+    const body: { value?: number | null; unit?: string; note?: string } = { note: d.note };
+    if (s.input === 'value') {
+      const v = d.value === null || d.value === undefined || (d.value as unknown) === '' ? null : Number(d.value);
+      body.value = v !== null && Number.isFinite(v) ? v : null;
+      body.unit = d.unit;
+    }
+    this.draftState.set({ ...this.draftState(), [s.id]: 'saving' });
+    try {
+      const o = await this.api.saveDraft(this.order()!.id, s.id, body);
+      // keep what is being typed; take the rest of the order as the server has it
+      this.order.set(o);
+      this.draftState.set({ ...this.draftState(), [s.id]: 'saved' });
+    } catch (e) {
+      this.draftState.set({ ...this.draftState(), [s.id]: `Not saved: ${errorText(e)}` });
+    }
+  }
+
+  protected orderChanged(o: WorkOrderDetail): void {
+    this.set(o);
   }
 
   private preferredUnit(stepUnit: string): string {
@@ -183,7 +234,7 @@ export class WorkOrderPage {
   protected lockText(s: WorkStep): string {
     const g = this.gate();
     if (!g) return 'Locked until the opening check has been read';
-    if (g.clear) return 'Opening check clear: tick lockout/tagout to unlock';
+    if (g.clear) return this.lockoutStep() ? `Opening check clear: do step ${this.lockoutStep()!.position} (lock out and tag out) to unlock` : 'Opening check clear: tick lockout/tagout to unlock';
     return g.stale ? 'Locked: live data missing or stale (a manual check is possible)' : 'Locked: opening check not clear';
   }
 
@@ -191,7 +242,7 @@ export class WorkOrderPage {
     if (!s.gated) return true;
     const d = this.drafts[s.id];
     const g = this.gate();
-    if (!d?.lockout) return false;
+    if (!d?.lockout && !this.lockoutCarried()) return false;
     return !!g && (g.clear || (g.stale && d.manual));
   }
 
@@ -200,7 +251,7 @@ export class WorkOrderPage {
   }
 
   protected onLockout(): void {
-    this.anyLockout.set(Object.values(this.drafts).some((d) => d.lockout));
+    this.anyLockout.set(this.lockoutCarried() || Object.values(this.drafts).some((d) => d.lockout));
   }
 
   protected async act(fn: () => Promise<WorkOrderDetail>): Promise<void> {
@@ -229,6 +280,8 @@ export class WorkOrderPage {
 
   protected async complete(s: WorkStep): Promise<void> {
     const d = this.drafts[s.id];
+    clearTimeout(this.draftTimers.get(s.id));
+    this.draftTimers.delete(s.id);
     const body: Parameters<WorkApi['completeStep']>[2] = {};
     if (s.input === 'value') {
       if (d.value === null || d.value === undefined) return this.stepError(s.id, 'Enter the value first.', []);
@@ -237,7 +290,7 @@ export class WorkOrderPage {
     }
     if (d.note.trim()) body.note = d.note.trim();
     if (s.gated) {
-      body.lockoutConfirmed = d.lockout;
+      body.lockoutConfirmed = d.lockout || this.lockoutCarried();
       if (d.manual) {
         body.manualCheck = { gaugeKpa: Number(d.gaugeKpa), tempC: Number(d.tempC), minutesSinceStop: Number(d.minutesSinceStop), checkedBy: d.checkedBy.trim(), reason: d.reason.trim() };
       }

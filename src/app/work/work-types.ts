@@ -104,7 +104,21 @@ export interface WorkAmendment {
   createdAt: string;
 }
 
+/** The coolant test a work order recorded (once per order). */
+export interface OrderCoolantTest {
+  id: number;
+  engineId: number;
+  testedAt: string;
+  method: string;
+  scaUnitsPerGal: number | null;
+  glycolPercent: number | null;
+  freezePointC: number | null;
+  ph: number | null;
+}
+
 export interface WorkOrderDetail extends WorkOrderSummary {
+  coolantTestId: number | null;
+  coolantTest: OrderCoolantTest | null;
   cautions: WorkCaution[];
   steps: WorkStep[];
   parts: WorkPart[];
