@@ -46,6 +46,12 @@ export interface OpeningCheckInput {
   readings: { coolant_temp: TimedValue[]; coolant_pressure: TimedValue[]; engine_speed: TimedValue[] };
   settings?: Partial<OpeningSettings>;
   lockoutConfirmed: boolean;
+  /**
+   * From the stored record: ms of the first engine-speed reading after the last reading that showed the
+   * engine running (null or absent: not known). The readings passed in may begin later (a cache, a gap
+   * in the data) or miss a short run; when no reading passed in shows it running since, the stop counts from here.
+   */
+  stoppedSinceTs?: number | null;
 }
 
 export type OpeningConditionName = 'engine-stopped' | 'coolant-temperature' | 'coolant-pressure' | 'telemetry-fresh' | 'lockout-confirmed' | 'held';
@@ -86,6 +92,8 @@ function trailingRunStart(list: readonly TimedValue[], ok: (v: number) => boolea
 }
 
 const fmt = (n: number, d = 1) => n.toFixed(d);
+/** Durations of minutes read in minutes everywhere in the check (one decimal): 235 s -> "3.9". */
+export const minutesText = (seconds: number) => (seconds / 60).toFixed(1);
 
 /** Readings within this of the highest since the stop count as its plateau: about 5 sigma of a gauge's noise, or 3 %. */
 export const PRESSURE_PLATEAU_TOL_KPA = 2;
@@ -129,11 +137,17 @@ export function openingCheck(input: OpeningCheckInput, now: number): OpeningChec
 
   // Engine stopped
   const isStopped = (v: number) => v <= s.runningRpm;
-  const stoppedSince = trailingRunStart(speed, isStopped, maxGap);
+  let stoppedSince = trailingRunStart(speed, isStopped, maxGap);
+  const recorded = input.stoppedSinceTs;
+  if (stoppedSince !== null && typeof recorded === 'number' && Number.isFinite(recorded) && recorded <= now) {
+    // the record knows the real stop: earlier when the series passed in only starts later (a gap, a
+    // cache); later when a short run fell between the series' samples. A run in the series since wins.
+    if (!speed.some((r) => r.ts >= recorded && !isStopped(r.value))) stoppedSince = recorded;
+  }
   const stoppedForS = stoppedSince === null ? 0 : (now - stoppedSince) / 1000;
   const stoppedMet = stoppedSince !== null && stoppedForS >= s.minStoppedS;
   if (ls && !isStopped(ls.value)) reasons.push(`Engine running (${fmt(ls.value, 0)} rpm).`);
-  else if (ls && !stoppedMet) reasons.push(`Engine stopped for ${fmt(stoppedForS, 0)} s; needs ${s.minStoppedS} s.`);
+  else if (ls && !stoppedMet) reasons.push(`Engine stopped for ${minutesText(stoppedForS)} min; needs ${minutesText(s.minStoppedS)} min.`);
 
   // Temperature and pressure
   const tempOk = (v: number) => v <= s.safeOpenTempC;
@@ -150,7 +164,7 @@ export function openingCheck(input: OpeningCheckInput, now: number): OpeningChec
   const metSince = dataMet ? Math.max(stoppedSince! + s.minStoppedS * 1000, tempSince!, presSince!) : null;
   const heldS = metSince === null ? 0 : (now - metSince) / 1000;
   const heldMet = dataMet && heldS >= s.holdS;
-  if (dataMet && !heldMet) reasons.push(`All measured conditions met for ${fmt(heldS, 0)} s; they must hold for ${s.holdS} s.`);
+  if (dataMet && !heldMet) reasons.push(`All measured conditions met for ${minutesText(heldS)} min; they must hold for ${minutesText(s.holdS)} min.`);
   if (!input.lockoutConfirmed) reasons.push(LOCKOUT_REASON);
 
   const conditions: OpeningCondition[] = [

@@ -223,6 +223,30 @@ describe('the opening check on gated steps (server re-computes it; the client is
   });
 });
 
+describe('the stop comes from the stored record', () => {
+  it('stopped two days ago with only the last 4 minutes of readings since: met; a new run resets it', async () => {
+    const e = await t.ctx.models.Engine.create({ siteId: (await t.ctx.models.Site.findOne())!.id, name: 'Long-stopped engine', duty: 'standby', capacityL: 60, coolantFamily: 'conventional', glycolType: 'ethylene', glycolPercent: 50, capPressureKpa: 100, oilDrainIntervalH: 250 });
+    const now = Date.now();
+    const stop = now - 2 * 24 * 60 * MIN;
+    const rows: AcceptedReading[] = [{ engineId: e.id, channel: 'engine_speed', ts: stop - 10_000, value: 1800, quality: 0 }, { engineId: e.id, channel: 'engine_speed', ts: stop, value: 0, quality: 0 }];
+    for (let ts = now - 4 * MIN; ts <= now; ts += 10_000) {
+      for (const [channel, value] of [['engine_speed', 0], ['coolant_temp', 21], ['coolant_pressure', 0], ['ambient_temp', 20]] as const) rows.push({ engineId: e.id, channel, ts, value, quality: 0 });
+    }
+    await feed(rows);
+    const res = await request(t.app).get(`/api/engines/${e.id}/opening-check`).set(as('technician')).expect(200);
+    const c = res.body.conditions.find((x: { name: string }) => x.name.includes('stop'));
+    expect(c.met).toBe(true);
+    expect(Math.abs(c.value - (Date.now() - stop) / 1000)).toBeLessThan(60);
+    // the engine runs again (an exercise): the record follows the live readings
+    await feed([{ engineId: e.id, channel: 'engine_speed', ts: Date.now(), value: 1500, quality: 0 }]);
+    await feed([{ engineId: e.id, channel: 'engine_speed', ts: Date.now() + 1, value: 0, quality: 0 }]);
+    const after = await request(t.app).get(`/api/engines/${e.id}/opening-check`).set(as('technician')).expect(200);
+    const c2 = after.body.conditions.find((x: { name: string }) => x.name.includes('stop'));
+    expect(c2.met).toBe(false);
+    expect(c2.value).toBeLessThan(60);
+  });
+});
+
 describe('manual check when live data is stale or missing', () => {
   let order: Awaited<ReturnType<typeof plannedOrder>>;
   beforeAll(async () => {

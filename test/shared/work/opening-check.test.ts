@@ -67,6 +67,23 @@ describe('opening check', () => {
     expect(r.clearAt).toBe(NOW - 300 * S + 600 * S + 120 * S);
   });
 
+  it('the stop from the stored record counts when the readings passed in begin later (a gap, a cache)', () => {
+    // readings only for the last 4 min, all stopped and cold; the record says the stop was 3 days ago
+    const recent: Scenario = { stoppedAgoS: 3 * 86400, tempAt: () => 22, pressureAt: () => 0, historyS: 240 };
+    const without = openingCheck(base({ readings: scenario(recent) }), NOW);
+    expect(cond(without, 'engine-stopped')).toMatchObject({ met: false, value: 240 });
+    expect(without.reasons.join(' ')).toContain('Engine stopped for 4.0 min; needs 10.0 min.');
+    const withRecord = openingCheck(base({ readings: scenario(recent), stoppedSinceTs: NOW - 3 * 86400 * S }), NOW);
+    expect(cond(withRecord, 'engine-stopped')).toMatchObject({ met: true, value: 3 * 86400 });
+    expect(withRecord.clear).toBe(true);
+  });
+
+  it('a run seen in the readings after the recorded stop wins over the record', () => {
+    const readings = scenario({ stoppedAgoS: 300, tempAt: () => 40, pressureAt: () => 0 });
+    const r = openingCheck(base({ readings, stoppedSinceTs: NOW - 86400 * S }), NOW);
+    expect(cond(r, 'engine-stopped')).toMatchObject({ met: false, value: 300 });
+  });
+
   it('temperature alone above the limit: not clear', () => {
     const hot: Scenario = { ...cooled, tempAt: () => 51 };
     const r = openingCheck(base({ readings: scenario(hot) }), NOW);
