@@ -154,7 +154,7 @@ export function workOrdersRouterWithService(ctx: AppContext): WorkRouterHandle {
     if (!engine) throw new HttpError(404, 'engine not found');
     // lockout is the technician's confirmation on the step; shown here as not yet confirmed
     const g = await computeGate(history, engine, req.query.lockoutConfirmed === 'true');
-    res.json({ engineId: engine.id, at: new Date().toISOString(), clear: g.clear, conditions: g.conditions, clearAt: g.clearAt, reasons: g.reasons, stale: g.stale, settings: g.settings });
+    res.json({ engineId: engine.id, at: new Date().toISOString(), clear: g.clear, conditions: g.conditions, clearAt: g.clearAt, forecast: g.forecast, reasons: g.reasons, stale: g.stale, settings: g.settings });
   });
 
   r.get('/work-orders/assignees', async (_req, res) => {

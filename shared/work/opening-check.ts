@@ -9,6 +9,7 @@
  * site procedures and local codes come first.
  */
 import { RUNNING_RPM } from '../channels';
+import { forecastCooling } from '../cooling/forecast';
 import { fitCooling, timeToReachS } from '../cooling/newton-cooling';
 
 export interface TimedValue {
@@ -69,8 +70,13 @@ export interface OpeningCondition {
 export interface OpeningCheckResult {
   clear: boolean;
   conditions: OpeningCondition[];
-  /** ms when the check is predicted to become clear (now when clear), null when it cannot be predicted. */
+  /** ms when the check is forecast to become clear (now when clear), null when it cannot be forecast. */
   clearAt: number | null;
+  /**
+   * The forecast's band, earliest to latest (latest null: a fit as good as the best never clears). Equal
+   * to clearAt when the ambient is measured; wider when it had to be fitted. Null without a forecast.
+   */
+  forecast: { at: number; earliest: number; latest: number | null; ambientFitted: boolean } | null;
   reasons: string[];
   stale: boolean;
 }
@@ -176,12 +182,16 @@ export function openingCheck(input: OpeningCheckInput, now: number): OpeningChec
     { name: 'held', met: heldMet, value: heldS, limit: s.holdS, unit: 's' },
   ];
   const clear = conditions.every((c) => c.met);
-  return { clear, conditions, clearAt: clear ? now : predictClearAt(), reasons, stale };
+  let band: { earliest: number; latest: number | null; ambientFitted: boolean } = { earliest: 0, latest: 0, ambientFitted: false };
+  const clearAt = clear ? now : predictClearAt();
+  const forecast = clear || clearAt === null ? null : { at: clearAt, earliest: Math.min(clearAt, band.earliest), latest: band.latest === null ? null : Math.max(clearAt, band.latest), ambientFitted: band.ambientFitted };
+  return { clear, conditions, clearAt, forecast, reasons, stale };
 
   function predictClearAt(): number | null {
-    if (stale) { reasons.push('No prediction while data is missing or stale.'); return null; }
-    if (stoppedSince === null) { reasons.push('No prediction until the engine has stopped.'); return null; }
+    if (stale) { reasons.push('No forecast while data is missing or stale.'); return null; }
+    if (stoppedSince === null) { reasons.push('No forecast until the engine has stopped.'); return null; }
     const times: number[] = [stoppedSince + s.minStoppedS * 1000];
+    let tempBand: { at: number; earliest: number; latest: number | null; ambientFitted: boolean } | null = null;
     // Temperature
     if (tempMet) times.push(tempSince!);
     else {
@@ -196,11 +206,13 @@ export function openingCheck(input: OpeningCheckInput, now: number): OpeningChec
         return null;
       }
       const since = temp.filter((r) => r.ts >= stoppedSince);
-      const fit = fitCooling(since.map((r) => ({ t: r.ts / 1000, temp: r.value })), towards);
-      if (!fit) { reasons.push('Not enough cooling data since the engine stopped to predict the temperature.'); return null; }
-      const dt = timeToReachS(lt!.value, fit.ambientC, fit.tauS, s.safeOpenTempC);
-      if (!Number.isFinite(dt)) { reasons.push(`The coolant is levelling off near ${fmt(fit.ambientC)} °C, above the safe opening temperature: no prediction.`); return null; }
-      times.push(lt!.ts + dt * 1000);
+      // no forecast while rising or flat; a band when the ambient is fitted (shared/cooling/forecast.ts)
+      const fc = forecastCooling(since, s.safeOpenTempC, towards);
+      if (fc.kind === 'none') { reasons.push(fc.text); return null; }
+      if (fc.kind === 'forecast') {
+        times.push(fc.at);
+        tempBand = { at: fc.at, earliest: fc.earliest, latest: fc.latest, ambientFitted: fc.ambientFitted };
+      }
     }
     // Pressure: a first-order decay toward 0 kPa gauge (an empirical fit, not a model of the system), fitted
     // only from where the pressure leaves its plateau after the stop (see pressureFalling).
@@ -213,12 +225,23 @@ export function openingCheck(input: OpeningCheckInput, now: number): OpeningChec
       if (!Number.isFinite(dt)) {
         const held = since.length > 0 && falling.length < 3;
         reasons.push(held
-          ? `Coolant pressure is not falling yet (still near ${fmt(Math.max(...since.map((r) => r.value)))} kPa since the stop): no prediction until it starts to fall.`
-          : 'Coolant pressure is not falling toward zero: no prediction.');
+          ? `Coolant pressure is not falling yet (still near ${fmt(Math.max(...since.map((r) => r.value)))} kPa since the stop): no forecast until it starts to fall.`
+          : 'Coolant pressure is not falling toward zero: no forecast.');
         return null;
       }
       times.push(lp!.ts + dt * 1000);
     }
-    return Math.max(now, Math.max(...times) + s.holdS * 1000);
+    const at = Math.max(now, Math.max(...times) + s.holdS * 1000);
+    if (tempBand) {
+      // the stop and pressure times bound the band from below; the hold comes after every one of them
+      const others = times.filter((t) => t !== tempBand!.at);
+      const base = others.length ? Math.max(...others) : -Infinity;
+      band = {
+        earliest: Math.max(now, Math.max(base, tempBand.earliest) + s.holdS * 1000),
+        latest: tempBand.latest === null ? null : Math.max(now, Math.max(base, tempBand.latest) + s.holdS * 1000),
+        ambientFitted: tempBand.ambientFitted,
+      };
+    } else band = { earliest: at, latest: at, ambientFitted: false };
+    return at;
   }
 }

@@ -246,7 +246,7 @@ describe('work order with the live opening check (planner and technician)', () =
     await stack.control(`/engines/${engineId}/stop`);
     stoppedAt = Date.now();
     const panel = tech.getByRole('region', { name: 'Opening check' });
-    await panel.getByText(/Predicted clear at .+ \(in about \d+ min\)/).waitFor({ timeout: 45000 });
+    await panel.getByText(/Forecast: clear in about \d+ min/).waitFor({ timeout: 45000 });
     const text = await panel.innerText();
     assert.match(text, /Not clear/);
     assert.match(text, /Coolant\s*[\d.]+\s*°C/);

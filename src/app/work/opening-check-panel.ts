@@ -27,8 +27,14 @@ const POLL_MS = 5000;
             <div class="word">{{ c.clear ? 'Clear: the cooling system may be opened' : 'Not clear: keep the cooling system closed' }}</div>
             <div class="sub">
               @if (c.stale) { Live data is missing or stale. }
-              @else if (!c.clear && c.clearAt) { Predicted clear at {{ when(c.clearAt) }} (in about {{ minutesUntil(c.clearAt) }} min). }
-              @else if (!c.clear) { No clear time can be predicted yet. }
+              @else if (!c.clear && c.clearAt) {
+                Forecast: clear in about {{ minutesUntil(c.clearAt) }} min ({{ when(c.clearAt) }}).
+                @if (c.forecast?.ambientFitted) {
+                  Could be from {{ when(c.forecast!.earliest) }} to {{ c.forecast!.latest === null ? 'later than can be said' : when(c.forecast!.latest) }}: the surroundings' temperature is estimated, not measured.
+                }
+                A forecast only: the lock opens when the check is clear.
+              }
+              @else if (!c.clear) { No forecast yet. }
               Checked {{ when(c.at) }}.
             </div>
           </div>

@@ -133,6 +133,8 @@ export interface OpeningCheck {
   clear: boolean;
   conditions: OpeningCondition[];
   clearAt: number | null;
+  /** The forecast's band (earliest-latest); wider than a point when the ambient had to be fitted. */
+  forecast?: { at: number; earliest: number; latest: number | null; ambientFitted: boolean } | null;
   reasons: string[];
   stale: boolean;
   settings: { safeOpenTempC: number; maxPressureKpa: number; minStoppedS: number; holdS: number; staleAfterS: number; heaterSetpointC?: number | null; ambientC?: number | null };

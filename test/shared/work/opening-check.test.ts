@@ -165,6 +165,29 @@ describe('opening check prediction from synthetic cooling data', () => {
     expect(Math.abs(r.clearAt! - expected)).toBeLessThan(30 * S);
   });
 
+  it('heat soak after the stop (88 -> 96 °C, still rising at 95.9 °C): no forecast, and says it is rising', () => {
+    const sc: Scenario = { stoppedAgoS: 900, tempAt: (s) => 96 - 8 * Math.exp(-s / 200), pressureAt: () => 0 };
+    for (const ambientC of [25, null]) {
+      const r = openingCheck(base({ readings: scenario(sc), settings: { ambientC } }), NOW);
+      expect(r.clearAt).toBeNull();
+      expect(r.forecast).toBeNull();
+      expect(r.reasons.join(' ')).toMatch(/rising|not falling/);
+    }
+  });
+
+  it('ambient not measured: a forecast with a band, earliest <= forecast <= latest', () => {
+    const sc: Scenario = { stoppedAgoS: 900, tempAt: (s) => coolingTemperature(85, 25, 1800, s), pressureAt: () => 0 };
+    const r = openingCheck(base({ readings: scenario(sc), settings: { ambientC: null } }), NOW);
+    expect(r.forecast).not.toBeNull();
+    expect(r.forecast!.ambientFitted).toBe(true);
+    expect(r.forecast!.earliest).toBeLessThanOrEqual(r.clearAt!);
+    if (r.forecast!.latest !== null) expect(r.forecast!.latest).toBeGreaterThanOrEqual(r.clearAt!);
+    // Newton, true crossing: stop + 1800 ln(60/25) s, plus the hold, inside the band
+    const truth = NOW - 900 * S + 1800 * Math.log(60 / 25) * S + 120 * S;
+    expect(r.forecast!.earliest).toBeLessThanOrEqual(truth + S);
+    if (r.forecast!.latest !== null) expect(r.forecast!.latest).toBeGreaterThanOrEqual(truth - S);
+  });
+
   it('cooling toward a heater setpoint of 40 °C: 1800 ln(45/10) s after the stop, plus hold', () => {
     const sc: Scenario = { stoppedAgoS: 1200, tempAt: (s) => coolingTemperature(85, 40, 1800, s) + noise(), pressureAt: () => 0 };
     const r = openingCheck(base({ readings: scenario(sc), settings: { heaterSetpointC: 40, ambientC: 22 } }), NOW);
