@@ -19,7 +19,11 @@ import { TEST_METHODS } from '../models/coolant-models';
 import { WorkOrderService } from '../services/work-orders/work-order-service';
 import { parse, parseId } from './validate';
 
-const dateOnly = z.string().regex(/^\d{4}-\d{2}-\d{2}$/, 'a date YYYY-MM-DD').refine((s) => !Number.isNaN(Date.parse(`${s}T00:00:00Z`)), 'not a date');
+/** A whole calendar date, YYYY-MM-DD, that exists (no 2026-02-30), in 2000..2100: a half-typed year (0002, 0202) is refused. */
+const dateOnly = z.string().regex(/^\d{4}-\d{2}-\d{2}$/, 'a date YYYY-MM-DD').refine((s) => {
+  const d = new Date(`${s}T00:00:00Z`);
+  return !Number.isNaN(d.getTime()) && d.toISOString().slice(0, 10) === s;
+}, 'not a date').refine((s) => Number(s.slice(0, 4)) >= 2000 && Number(s.slice(0, 4)) <= 2100, 'a year from 2000 to 2100');
 const note = z.string().trim().max(2000);
 const createBody = z.strictObject({
   engineId: z.number().int().positive(),

@@ -88,7 +88,7 @@ async function plannedOrder(engine: number, kind = 'filter-change'): Promise<{ i
 describe('templates', () => {
   it('serves every kind; steps that open the system are gated and carry the hot-coolant caution', async () => {
     const res = await request(t.app).get('/api/work-order-templates').set(as('operator')).expect(200);
-    expect(res.body.map((x: { kind: string }) => x.kind).sort()).toEqual(['coolant-test', 'drain-flush-refill', 'filter-change', 'leak-check', 'top-up']);
+    expect(res.body.map((x: { kind: string }) => x.kind).sort()).toEqual(['coolant-test', 'drain-flush-refill', 'filter-change', 'general-repair', 'leak-check', 'monthly-exercise', 'oil-drain', 'top-up', 'weekly-inspection']);
     const filter = res.body.find((x: { kind: string }) => x.kind === 'filter-change');
     const gated = filter.steps.filter((s: { gated: boolean }) => s.gated).map((s: { key: string }) => s.key);
     expect(gated).toEqual(['relieve-pressure', 'remove-filter']);
@@ -117,6 +117,18 @@ describe('creation and transitions by role', () => {
     expect((await request(t.app).post('/api/work-orders').set(as('planner')).send({ engineId: 9999, kind: 'top-up' }).expect(400)).body.field).toBe('engineId');
     expect((await request(t.app).post('/api/work-orders').set(as('planner')).send({ engineId, kind: 'top-up', dueDate: '10/12/2026' }).expect(400)).body.field).toBe('dueDate');
     expect((await request(t.app).post('/api/work-orders').set(as('planner')).send({ engineId, kind: 'top-up', assigneeId: t.userIds.operator }).expect(400)).body.field).toBe('assigneeId');
+  });
+  it('due dates: only whole, valid dates from the year 2000 are saved; half-typed years are refused naming the field', async () => {
+    for (const dueDate of ['0002-12-05', '0020-12-05', '0202-12-05', '1999-12-31', '2026-02-30', '2026-13-01', '2026-12-5', '20261205', '2026-12-05T10:00']) {
+      const res = await request(t.app).post('/api/work-orders').set(as('planner')).send({ engineId, kind: 'top-up', dueDate }).expect(400);
+      expect({ dueDate, field: res.body.field }).toEqual({ dueDate, field: 'dueDate' });
+    }
+    const ok = await request(t.app).post('/api/work-orders').set(as('planner')).send({ engineId, kind: 'top-up', dueDate: '2026-12-05' }).expect(201);
+    expect(ok.body.dueDate).toBe('2026-12-05');
+    expect((await request(t.app).patch(`/api/work-orders/${ok.body.id}`).set(as('planner')).send({ dueDate: '0202-12-05' }).expect(400)).body.field).toBe('dueDate');
+    const after = await request(t.app).get(`/api/work-orders/${ok.body.id}`).set(as('planner')).expect(200);
+    expect(after.body.dueDate).toBe('2026-12-05');
+    expect(after.body.history.filter((h: { event: string }) => h.event !== 'created').length).toBe(0);
   });
   it('only a planner or admin accepts; operator and technician are refused', async () => {
     await request(t.app).post(`/api/work-orders/${id}/transition`).set(as('operator')).send({ to: 'planned' }).expect(403);

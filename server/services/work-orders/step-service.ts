@@ -3,6 +3,8 @@ import { LITRES_PER_US_GALLON } from '../../../shared/units';
 import { badRequest, conflict, HttpError, notFound } from '../../http-error';
 import type { ManualCheck } from '../../models/work-order-step';
 import type { AuthUser } from '../../telemetry/types';
+import { workTemplate } from '../work-templates';
+import { LOCK_STEP_KEYS, lockoutFor, UNLOCK_STEP_KEYS } from '../../../shared/work/lockout';
 import { computeGate, liveObjections, type GateResult } from './gate';
 import { pushWorkOrder, tellPlanners } from './notify';
 import type { WorkOrderService } from './work-order-service';
@@ -40,19 +42,13 @@ function snapshot(g: GateResult, at: Date, manual: boolean): Record<string, unkn
   return { at: at.toISOString(), clear: g.clear, stale: g.stale, manual, conditions: g.conditions, reasons: g.reasons };
 }
 
-/** Keys of the step that says to lock out, and of the steps that say to remove the lock again. */
-export const LOCKOUT_STEP_KEY = 'stop-and-lock-out';
-const LOCK_REMOVED_KEYS = ['leak-run', 'return-to-service'];
-
 /**
- * Lockout/tagout is confirmed once, on the step that says to lock out, and holds for the gated steps
- * after it until a step that removes the lock is done.
+ * Lockout/tagout for a gated step: confirmed once, on the step that says to lock out, and carried to the
+ * gated steps after it until a step that takes the lock off is done (shared/work/lockout.ts).
  */
-export async function lockoutCarried(svc: WorkOrderService, orderId: number): Promise<boolean> {
-  const steps = await svc.models.WorkOrderStep.findAll({ where: { workOrderId: orderId, key: [LOCKOUT_STEP_KEY, ...LOCK_REMOVED_KEYS] }, attributes: ['key', 'doneAt'] });
-  const locked = steps.some((s) => s.key === LOCKOUT_STEP_KEY && s.doneAt);
-  const removed = steps.some((s) => LOCK_REMOVED_KEYS.includes(s.key) && s.doneAt);
-  return locked && !removed;
+export async function lockoutCarried(svc: WorkOrderService, orderId: number, gated: { position: number }): Promise<boolean> {
+  const steps = await svc.models.WorkOrderStep.findAll({ where: { workOrderId: orderId, key: [...LOCK_STEP_KEYS, ...UNLOCK_STEP_KEYS] }, attributes: ['key', 'position', 'doneAt'] });
+  return lockoutFor(steps.map((s) => ({ key: s.key, position: s.position, doneAt: s.doneAt ?? null })), gated) !== null;
 }
 
 /** The step of an order the assigned technician may work on now (in progress, not done). */
@@ -82,7 +78,7 @@ export async function saveDraft(svc: WorkOrderService, user: AuthUser, orderId: 
   if (step.gated) {
     const engine = await svc.models.Engine.findByPk(order.engineId);
     if (!engine) throw notFound('engine');
-    const lockout = await lockoutCarried(svc, orderId);
+    const lockout = await lockoutCarried(svc, orderId, step);
     const gate = await computeGate(svc.history, engine, lockout);
     if (!gate.clear) {
       const why = lockout ? 'this step is locked: the opening check is not clear' : 'this step is locked: confirm lockout/tagout on its step first';
@@ -123,7 +119,7 @@ export async function completeStep(svc: WorkOrderService, user: AuthUser, orderI
     const stepUnit = step.unit ?? '';
     const v = toStepUnit(entered.value, entered.unit ?? stepUnit, stepUnit);
     if (v === null) throw badRequest(`unit must be ${stepUnit}`, 'unit');
-    const range = RANGES[stepUnit];
+    const range = workTemplate(order.kind)?.steps.find((t) => t.key === step.key)?.range ?? RANGES[stepUnit];
     if (range && (v < range[0] || v > range[1])) throw badRequest(`value must be between ${range[0]} and ${range[1]} ${stepUnit}`, 'value');
     patch.resultValue = v;
     patch.resultUnit = stepUnit;
@@ -141,7 +137,7 @@ export async function completeStep(svc: WorkOrderService, user: AuthUser, orderI
   if (step.gated) {
     const engine = await models.Engine.findByPk(order.engineId);
     if (!engine) throw notFound('engine');
-    const lockout = input.lockoutConfirmed === true || (await lockoutCarried(svc, orderId));
+    const lockout = input.lockoutConfirmed === true || (await lockoutCarried(svc, orderId, step));
     const gate = await computeGate(svc.history, engine, lockout, now.getTime());
     if (!lockout) {
       throw new GateShutError('confirm lockout/tagout before this step', { error: 'confirm lockout/tagout before this step', conditions: gate.conditions.filter((c) => !c.met), clearAt: gate.clearAt, reasons: gate.reasons, stale: gate.stale });
@@ -170,7 +166,7 @@ export async function completeStep(svc: WorkOrderService, user: AuthUser, orderI
     patch.gateSnapshot = snapshot(gate, now, manual);
   }
   // the lock-out step is where lockout/tagout is confirmed
-  if (step.key === LOCKOUT_STEP_KEY) patch.lockoutConfirmed = true;
+  if (LOCK_STEP_KEYS.includes(step.key)) patch.lockoutConfirmed = true;
   patch.doneAt = now;
   patch.doneBy = user.id;
 
