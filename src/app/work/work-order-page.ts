@@ -21,7 +21,13 @@ import { WorkApi, errorText } from './work-api';
 import { CONDITION_TEXT, EVENT_TEXT, PART_TEXT, PRIORITY_TEXT, STATUS_ICON, STATUS_TEXT, STEP_UNIT_TEXT, formatDate, formatDateTime } from './work-labels';
 import { Assignee, GateRefusal, OpeningCheck, OpeningCondition, WorkOrderDetail, WorkStatus, WorkStep } from './work-types';
 import { StepCoolantCheck } from './step-coolant-check';
+import { TransitionNoteData, TransitionNoteDialog } from './transition-note-dialog';
+import { MatDialog } from '@angular/material/dialog';
+import { MatDatepickerModule } from '@angular/material/datepicker';
+import { provideNativeDateAdapter } from '@angular/material/core';
+import { checkDueDate, fromDateOnly, MAX_DUE, MIN_DUE } from './due-date';
 import { toCelsius } from '../../../shared/units';
+import { lockoutFor, lockStepBefore } from '../../../shared/work/lockout';
 
 interface StepDraft {
   value: number | null;
@@ -45,8 +51,9 @@ const ENTRY_UNITS: Record<string, string[]> = { degC: ['degC', 'degF'], kPa: ['k
   changeDetection: ChangeDetectionStrategy.OnPush,
   imports: [
     FormsModule, RouterLink, MatButtonModule, MatCardModule, MatCheckboxModule, MatExpansionModule, MatFormFieldModule, MatIconModule,
-    MatInputModule, MatProgressBarModule, MatSelectModule, MatTableModule, OpeningCheckPanel, AttachmentThumb, StepCoolantCheck,
+    MatInputModule, MatProgressBarModule, MatSelectModule, MatTableModule, MatDatepickerModule, OpeningCheckPanel, AttachmentThumb, StepCoolantCheck,
   ],
+  providers: [provideNativeDateAdapter()],
   templateUrl: './work-order-page.html',
   styleUrl: './work-order-page.scss',
 })
@@ -54,6 +61,7 @@ export class WorkOrderPage {
   private readonly api = inject(WorkApi);
   protected readonly auth = inject(AuthService);
   private readonly prefs = inject(PreferencesService);
+  private readonly dialog = inject(MatDialog);
 
   /** Route parameter. */
   readonly id = input.required<string>();
@@ -65,7 +73,6 @@ export class WorkOrderPage {
   protected readonly gate = signal<OpeningCheck | null>(null);
   protected readonly assignees = signal<Assignee[]>([]);
   protected readonly drafts: Record<number, StepDraft> = {};
-  protected transitionNote = '';
   protected amendmentText = '';
   /** Nothing chosen until the additive test says which filter (or the user chooses). */
   protected part = { kind: '', quantity: 1 as number | null, unit: 'pcs' as 'L' | 'gal' | 'pcs', description: '' };
@@ -98,14 +105,16 @@ export class WorkOrderPage {
   /** Per step: 'saving', 'saved' or an error text, shown under the inputs. */
   protected readonly draftState = signal<Record<number, string>>({});
   private readonly draftTimers = new Map<number, ReturnType<typeof setTimeout>>();
-  /** The step that says to lock out (confirmed there, carried to the gated steps), if the template has one. */
-  protected readonly lockoutStep = computed(() => this.order()?.steps.find((s) => s.key === 'stop-and-lock-out') ?? null);
-  /** Lockout/tagout confirmed on its step and not yet removed by a later step. */
-  protected readonly lockoutCarried = computed(() => {
-    const steps = this.order()?.steps ?? [];
-    const locked = steps.some((s) => s.key === 'stop-and-lock-out' && s.doneAt);
-    return locked && !steps.some((s) => (s.key === 'leak-run' || s.key === 'return-to-service') && s.doneAt);
-  });
+  /** Per gated step: the lock step whose confirmation holds for it (shared/work/lockout.ts), or null. */
+  protected carriedLock(s: WorkStep): WorkStep | null {
+    return lockoutFor(this.order()?.steps ?? [], s);
+  }
+  /** The lock step a gated step needs done first, if the template has one. */
+  protected lockStep(s: WorkStep): WorkStep | null {
+    return lockStepBefore(this.order()?.steps ?? [], s);
+  }
+  /** Some gated step not yet done has its lockout carried (for the opening-check panel). */
+  protected readonly lockoutCarried = computed(() => (this.order()?.steps ?? []).some((s) => s.gated && !s.doneAt && lockoutFor(this.order()!.steps, s) !== null));
   protected readonly sampleTaken = computed(() => !!this.order()?.steps.find((s) => s.key === 'take-sample')?.doneAt);
 
   /** Moves this user may offer now; the server decides again. */
@@ -234,7 +243,8 @@ export class WorkOrderPage {
   protected lockText(s: WorkStep): string {
     const g = this.gate();
     if (!g) return 'Locked until the opening check has been read';
-    if (g.clear) return this.lockoutStep() ? `Opening check clear: do step ${this.lockoutStep()!.position} (lock out and tag out) to unlock` : 'Opening check clear: tick lockout/tagout to unlock';
+    const lock = this.lockStep(s);
+    if (g.clear) return lock ? `Opening check clear: do step ${lock.position} (lock out and tag out) to unlock` : 'Opening check clear: tick lockout/tagout to unlock';
     return g.stale ? 'Locked: live data missing or stale (a manual check is possible)' : 'Locked: opening check not clear';
   }
 
@@ -242,7 +252,7 @@ export class WorkOrderPage {
     if (!s.gated) return true;
     const d = this.drafts[s.id];
     const g = this.gate();
-    if (!d?.lockout && !this.lockoutCarried()) return false;
+    if (!d?.lockout && !this.carriedLock(s)) return false;
     return !!g && (g.clear || (g.stale && d.manual));
   }
 
@@ -267,11 +277,34 @@ export class WorkOrderPage {
   }
 
   protected move(to: WorkStatus, needsNote?: boolean): void {
-    if (needsNote && !this.transitionNote.trim()) {
-      this.error.set('Write a note saying why, then press the button again.');
+    const o = this.order()!;
+    if (!needsNote) {
+      void this.act(() => this.api.transition(o.id, to));
       return;
     }
-    void this.act(() => this.api.transition(this.order()!.id, to, this.transitionNote.trim() || undefined)).then(() => (this.transitionNote = ''));
+    // decline, cancel, send back: the note belongs to the action, and the action is confirmed first
+    const data: TransitionNoteData =
+      to === 'in-progress'
+        ? { title: `Send work order #${o.id} back?`, message: 'It goes back to the technician as in progress.', confirm: 'Send back', noteLabel: 'What is still to do' }
+        : o.status === 'requested'
+          ? { title: `Decline request #${o.id}?`, message: 'The request is closed as cancelled; the person who raised it sees your note.', confirm: 'Decline the request', noteLabel: 'Why it is declined' }
+          : { title: `Cancel work order #${o.id}?`, message: 'The work order is closed as cancelled and cannot be reopened; what was recorded stays in the history.', confirm: 'Cancel the work order', noteLabel: 'Why it is cancelled' };
+    this.dialog.open<TransitionNoteDialog, TransitionNoteData, string>(TransitionNoteDialog, { data, width: '480px' }).afterClosed().subscribe((note) => {
+      if (note) void this.act(() => this.api.transition(o.id, to, note));
+    });
+  }
+
+  protected readonly minDue = MIN_DUE;
+  protected readonly maxDue = MAX_DUE;
+  protected readonly dueError = signal<string | null>(null);
+  protected readonly dueValue = fromDateOnly;
+
+  /** A due date is saved only when whole and valid (typed in full or picked); a half-typed one is never sent. */
+  protected dueChanged(d: Date | null, el: HTMLElement): void {
+    const r = checkDueDate(d, (el as HTMLInputElement).value ?? '');
+    if (!r.ok) return void this.dueError.set(r.message);
+    this.dueError.set(null);
+    if (r.value !== this.order()?.dueDate) this.plan('dueDate', r.value ?? '');
   }
 
   protected plan(field: 'assigneeId' | 'dueDate' | 'priority', value: unknown): void {
@@ -290,7 +323,7 @@ export class WorkOrderPage {
     }
     if (d.note.trim()) body.note = d.note.trim();
     if (s.gated) {
-      body.lockoutConfirmed = d.lockout || this.lockoutCarried();
+      body.lockoutConfirmed = d.lockout || !!this.carriedLock(s);
       if (d.manual) {
         body.manualCheck = { gaugeKpa: Number(d.gaugeKpa), tempC: Number(d.tempC), minutesSinceStop: Number(d.minutesSinceStop), checkedBy: d.checkedBy.trim(), reason: d.reason.trim() };
       }
