@@ -17,7 +17,7 @@ import path from 'node:path';
 import zlib from 'node:zlib';
 import { after, before, describe, it } from 'node:test';
 import type { Browser, BrowserContext, Locator, Page } from 'playwright-core';
-import { ACCOUNTS, launchBrowser, SHOTS, shot as pageShot, signIn, startStack, type Stack } from './harness';
+import { ACCOUNTS, fillChecked, launchBrowser, openDialog, SHOTS, shot as pageShot, signIn, startStack, type Stack } from './harness';
 
 const OUT = path.resolve(__dirname, '../../test-output');
 const SPEED = '60';
@@ -167,16 +167,25 @@ describe('work order with the live opening check (planner and technician)', () =
     await planner.getByRole('heading', { name: /coolant temperature/i }).waitFor();
     await shot(planner, 'wo-01-alarm');
 
-    await planner.getByRole('link', { name: /create work order/i }).click();
-    await planner.waitForURL(/\/work\/new\?/);
-    await planner.getByText(`From alarm #`).waitFor();
-    // engine and kind come from the alarm; the planner only picks the technician
-    await assertSelectShows(planner, 'Engine', ENGINE_NAME);
-    await assertSelectShows(planner, 'Kind of work', /coolant filter change/i);
-    await planner.getByRole('combobox', { name: 'Assign to' }).click();
+    // a short dialog first: the kind suggested by the alarm's rule, the technician and the due date
+    await planner.getByRole('button', { name: /create work order/i }).click();
+    const dialog = await openDialog(planner);
+    await dialog.getByText(/^Alarm #\d+/).waitFor();
+    await dialog.getByRole('heading', { name: new RegExp(ENGINE_NAME) }).waitFor();
+    // an overheating engine suggests a leak check (shared/alarms/work-kind.ts); here the planner picks the filter change
+    await assertSelectShows(planner, 'Kind of work', /leak check/i);
+    await dialog.getByRole('combobox', { name: 'Kind of work' }).click();
+    await planner.getByRole('option', { name: /coolant filter change/i }).click();
+    await dialog.getByRole('combobox', { name: 'Assign to' }).click();
     await planner.getByRole('option', { name: 'Tobias Renwick' }).click();
-    await shot(planner, 'wo-02-new-order-from-alarm');
-    await planner.getByRole('button', { name: 'Create work order' }).click();
+    await fillChecked(dialog.getByLabel('Due date'), '12/24/2026');
+    await shot(planner, 'wo-02-create-dialog-from-alarm');
+    await planner.setViewportSize({ width: 820, height: 900 });
+    await shot(planner, 'wo-02a-create-dialog-820');
+    const box = await dialog.boundingBox();
+    assert.ok(box && box.x >= 0 && box.x + box.width <= 820, `the dialog fits 820 px (${JSON.stringify(box)})`);
+    await planner.setViewportSize({ width: 1366, height: 900 });
+    await dialog.getByRole('button', { name: 'Create', exact: true }).click();
     await planner.waitForURL(/\/work\/\d+$/);
     orderId = Number(new URL(planner.url()).pathname.split('/').pop());
     await planner.getByRole('heading', { name: new RegExp(`#${orderId}`) }).waitFor();
@@ -185,6 +194,8 @@ describe('work order with the live opening check (planner and technician)', () =
     assert.equal(order.engineId, engineId);
     assert.equal(order.status, 'planned', 'a planner’s order is planned at once');
     assert.ok(order.assigneeId, 'assigned');
+    assert.equal((order as unknown as { dueDate: string | null }).dueDate, '2026-12-24', 'the due date from the dialog, whole');
+    assert.equal((order as unknown as { kind: string }).kind, 'filter-change');
     assert.ok(order.alarmIds.includes(alarmId), `alarm #${alarmId} linked to the order`);
     assert.ok(gatedSteps().length >= 1, 'the filter change has gated steps');
     await planner.getByText('Assignee: Tobias Renwick').waitFor();

@@ -412,7 +412,9 @@ describe('from an alarm in one click', () => {
     const alarm = await t.ctx.models.Alarm.create({ engineId, rule: 'coolant_temp_high', priority: 'high', state: 'unacknowledged', raisedAt: new Date('2026-12-01T10:00:00Z'), value: 104.2, worstValue: 106, unit: 'degC', message: 'Coolant temperature high' });
     const res = await request(t.app).post('/api/work-orders').set(as('planner')).send({ engineId, kind: 'leak-check', alarmId: alarm.id }).expect(201);
     expect(res.body).toMatchObject({ status: 'planned', priority: 'high', alarmIds: [alarm.id] });
-    expect(res.body.description).toMatch(/alarm #\d+ .*Coolant temperature high; value 104\.2 °C \(219\.6 °F\); worst 106\.0 °C \(222\.8 °F\)/);
+    // in words: the rule's title, the priority, the time in the site's zone (UTC here), values with units (°F = 1.8 °C + 32)
+    expect(res.body.description).toBe(`From alarm #${alarm.id}: Coolant temperature high, high priority, raised 1 Dec 2026, 10:00 (UTC). Coolant temperature high. Value when raised: 104.2 °C (219.6 °F). Worst since: 106.0 °C (222.8 °F).`);
+    expect(res.body.description).not.toMatch(/coolant_temp_high|T10:00/);
     await request(t.app).post('/api/work-orders').set(as('planner')).send({ engineId: coldEngineId, kind: 'leak-check', alarmId: alarm.id }).expect(400);
   });
 });
