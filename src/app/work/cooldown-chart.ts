@@ -152,7 +152,7 @@ export class CooldownChart {
     const dec = t.unit === 'bar' ? 2 : t.unit === 'kPa' ? 0 : 1;
     const xaxis: XAxisAnnotations[] = [];
     if (clearAt !== null) {
-      xaxis.push({ x: clearAt, borderColor: ink.mark, strokeDashArray: 3, label: { text: `predicted clear ${time(clearAt)}`, orientation: 'horizontal', position: 'top', textAnchor: 'end', borderWidth: 0, style: { background: 'transparent', color: ink.mark, fontSize: '11px' } } });
+      xaxis.push({ x: clearAt, borderColor: ink.mark, strokeDashArray: 3, label: { text: `forecast clear ${time(clearAt)}`, orientation: 'horizontal', position: 'top', textAnchor: 'end', borderWidth: 0, style: { background: 'transparent', color: ink.mark, fontSize: '11px' } } });
     }
     const points: PointAnnotations[] = [];
     if (t.reachAt !== null) {

@@ -167,7 +167,7 @@ export class OpeningCheckPanel {
     if (c.name === 'engine-stopped') return c.detail === 'no data' ? 'no data' : `${duration(c.value)}, needs ${duration(c.limit)} · ${c.detail ?? ''}`;
     if (c.name === 'held') return `${duration(c.value)}, needs ${duration(c.limit)}`;
     if (c.name === 'telemetry-fresh') return c.value === null ? 'no data' : `newest ${Math.round(Number(c.value))} s old (max ${s?.staleAfterS ?? c.limit} s)`;
-    if (c.name === 'lockout-confirmed') return c.met ? 'ticked below' : 'tick it on the step';
+    if (c.name === 'lockout-confirmed') return c.met ? 'confirmed on the lock-out step' : 'do the lock-out step first';
     return '';
   }
 

@@ -244,6 +244,7 @@ export class WorkOrderPage {
     const g = this.gate();
     if (!g) return 'Locked until the opening check has been read';
     const lock = this.lockStep(s);
+    if (this.unlocked(s)) return g.clear ? 'Unlocked: the opening check is clear and lockout/tagout is confirmed' : 'Unlocked on a manual check (live data stale)';
     if (g.clear) return lock ? `Opening check clear: do step ${lock.position} (lock out and tag out) to unlock` : 'Opening check clear: tick lockout/tagout to unlock';
     return g.stale ? 'Locked: live data missing or stale (a manual check is possible)' : 'Locked: opening check not clear';
   }
