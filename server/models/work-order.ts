@@ -24,6 +24,8 @@ export class WorkOrder extends Model<InferAttributes<WorkOrder>, InferCreationAt
   declare signedOffBy: CreationOptional<number | null>;
   declare signedOffAt: CreationOptional<Date | null>;
   declare closedAt: CreationOptional<Date | null>;
+  /** The coolant test recorded from this order (once per order). */
+  declare coolantTestId: CreationOptional<number | null>;
   declare createdAt: CreationOptional<Date>;
   declare updatedAt: CreationOptional<Date>;
 }
@@ -49,6 +51,7 @@ export function initWorkOrder(sequelize: Sequelize): typeof WorkOrder {
       signedOffBy: { type: DataTypes.INTEGER, allowNull: true },
       signedOffAt: date(),
       closedAt: date(),
+      coolantTestId: { type: DataTypes.INTEGER, allowNull: true },
       createdAt: DataTypes.DATE,
       updatedAt: DataTypes.DATE,
     },

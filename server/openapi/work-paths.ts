@@ -55,6 +55,22 @@ export const workPaths: OpenApiGroup = {
         responses: { '200': json(ref('WorkOrderDetail')), ...errors({ input: true, admin: true, notFound: true }), '409': json(ref('Error'), 'move not allowed from this status') },
       },
     },
+    '/api/work-orders/{id}/steps/{stepId}': {
+      parameters: [idParam, stepParam],
+      patch: {
+        summary: 'Save a draft of a step (assigned technician) without completing it: the value as typed with its unit, and the remark. Completing keeps them. A locked gated step (opening check not clear) takes nothing: 409',
+        requestBody: body({ type: 'object', properties: { value: { type: ['number', 'null'] }, unit: { type: 'string' }, note: { type: 'string' } } }),
+        responses: { '200': json(ref('WorkOrderDetail')), ...errors({ input: true, admin: true, notFound: true }), '409': gateShut },
+      },
+    },
+    '/api/work-orders/{id}/coolant-test': {
+      parameters: [idParam],
+      post: {
+        summary: 'Record the coolant test of a coolant-test work order from its steps, once per order and only after the sampling step is done. A second attempt answers 409 with the recorded test; a correction is an amendment',
+        requestBody: body({ type: 'object', properties: { method: { enum: ['strip', 'refractometer', 'lab'] } } }),
+        responses: { '201': json({ type: 'object', properties: { coolantTest: { type: 'object' }, order: ref('WorkOrderDetail') } }), ...errors({ input: true, admin: true, notFound: true }), '409': json({ type: 'object', properties: { error: { type: 'string' }, coolantTest: { type: 'object' } } }) },
+      },
+    },
     '/api/work-orders/{id}/steps/{stepId}/complete': {
       parameters: [idParam, stepParam],
       post: {

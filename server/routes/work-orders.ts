@@ -13,11 +13,17 @@ import { addAttachment, attachmentFile, MAX_ATTACHMENT_BYTES } from '../services
 import { computeGate } from '../services/work-orders/gate';
 import { ReadingHistory } from '../services/work-orders/reading-history';
 import { addAmendment, addPart } from '../services/work-orders/record-service';
-import { completeStep, GateShutError } from '../services/work-orders/step-service';
+import { completeStep, GateShutError, saveDraft } from '../services/work-orders/step-service';
+import { AlreadyRecordedError, recordOrderCoolantTest } from '../services/work-orders/coolant-test-service';
+import { TEST_METHODS } from '../models/coolant-models';
 import { WorkOrderService } from '../services/work-orders/work-order-service';
 import { parse, parseId } from './validate';
 
-const dateOnly = z.string().regex(/^\d{4}-\d{2}-\d{2}$/, 'a date YYYY-MM-DD').refine((s) => !Number.isNaN(Date.parse(`${s}T00:00:00Z`)), 'not a date');
+/** A whole calendar date, YYYY-MM-DD, that exists (no 2026-02-30), in 2000..2100: a half-typed year (0002, 0202) is refused. */
+const dateOnly = z.string().regex(/^\d{4}-\d{2}-\d{2}$/, 'a date YYYY-MM-DD').refine((s) => {
+  const d = new Date(`${s}T00:00:00Z`);
+  return !Number.isNaN(d.getTime()) && d.toISOString().slice(0, 10) === s;
+}, 'not a date').refine((s) => Number(s.slice(0, 4)) >= 2000 && Number(s.slice(0, 4)) <= 2100, 'a year from 2000 to 2100');
 const note = z.string().trim().max(2000);
 const createBody = z.strictObject({
   engineId: z.number().int().positive(),
@@ -64,6 +70,12 @@ const completeBody = z.strictObject({
   lockoutConfirmed: z.boolean().optional(),
   manualCheck: manualCheck.optional(),
 });
+const draftBody = z.strictObject({
+  value: z.number().finite().nullable().optional(),
+  unit: z.string().max(16).optional(),
+  note: z.string().max(2000).optional(),
+});
+const orderTestBody = z.strictObject({ method: z.enum(TEST_METHODS).optional() });
 const partBody = z.strictObject({
   kind: z.enum(PART_KINDS),
   description: z.string().trim().max(300).optional(),
@@ -123,6 +135,7 @@ export function workOrdersRouterWithService(ctx: AppContext): WorkRouterHandle {
       await fn(req, res);
     } catch (err) {
       if (err instanceof GateShutError) return void res.status(409).json(err.body);
+      if (err instanceof AlreadyRecordedError) return void res.status(409).json({ error: err.message, coolantTest: err.coolantTest });
       throw err;
     }
   };
@@ -145,7 +158,7 @@ export function workOrdersRouterWithService(ctx: AppContext): WorkRouterHandle {
     if (!engine) throw new HttpError(404, 'engine not found');
     // lockout is the technician's confirmation on the step; shown here as not yet confirmed
     const g = await computeGate(history, engine, req.query.lockoutConfirmed === 'true');
-    res.json({ engineId: engine.id, at: new Date().toISOString(), clear: g.clear, conditions: g.conditions, clearAt: g.clearAt, reasons: g.reasons, stale: g.stale, settings: g.settings });
+    res.json({ engineId: engine.id, at: new Date().toISOString(), clear: g.clear, conditions: g.conditions, clearAt: g.clearAt, forecast: g.forecast, reasons: g.reasons, stale: g.stale, settings: g.settings });
   });
 
   r.get('/work-orders/assignees', async (_req, res) => {
@@ -188,6 +201,20 @@ export function workOrdersRouterWithService(ctx: AppContext): WorkRouterHandle {
     const p = parse(stepParams, req.params);
     await completeStep(svc, req.user!, p.id, p.stepId, parse(completeBody, req.body));
     res.json(await svc.detail(p.id));
+  }));
+
+  // a draft: what is typed into a step, saved without completing it
+  r.patch('/work-orders/:id/steps/:stepId', gated(async (req, res) => {
+    const p = parse(stepParams, req.params);
+    await saveDraft(svc, req.user!, p.id, p.stepId, parse(draftBody, req.body ?? {}));
+    res.json(await svc.detail(p.id));
+  }));
+
+  r.post('/work-orders/:id/coolant-test', gated(async (req, res) => {
+    const id = parseId(req.params);
+    const body = parse(orderTestBody, req.body ?? {});
+    const test = await recordOrderCoolantTest(svc, req.user!, id, body.method);
+    res.status(201).json({ coolantTest: test, order: await svc.detail(id) });
   }));
 
   r.post('/work-orders/:id/parts', async (req, res) => {

@@ -6,7 +6,9 @@
  */
 import { COOLANT_CAUTIONS } from '../../shared/coolant/cautions';
 
-export const WORK_KINDS = ['filter-change', 'coolant-test', 'drain-flush-refill', 'leak-check', 'top-up'] as const;
+export const WORK_KINDS = [
+  'filter-change', 'coolant-test', 'drain-flush-refill', 'leak-check', 'top-up', 'oil-drain', 'weekly-inspection', 'monthly-exercise', 'general-repair',
+] as const;
 export type WorkKind = (typeof WORK_KINDS)[number];
 
 export interface TemplateStep {
@@ -19,6 +21,8 @@ export interface TemplateStep {
   optional?: boolean;
   detail?: string;
   caution?: string;
+  /** Plausible range of the value in the step's unit, when the unit's common range does not fit this step. */
+  range?: [number, number];
 }
 
 export interface WorkCaution {
@@ -154,14 +158,25 @@ export const WORK_TEMPLATES: readonly WorkTemplate[] = Object.freeze([
         detail: 'The cap goes back on while the engine runs. Lock out again after stopping.', caution: ROTATING_CAUTION.text,
       },
       {
+        key: 'lock-out-again', title: 'Stop the engine and lock out and tag out again before draining the flush', input: 'confirmation', gated: false,
+        detail: 'The lock came off to run the flush: fit your lock and tag again.', caution: LOCKOUT_CAUTION.text,
+      },
+      {
         key: 'flush-drain', title: 'Once cool again, open the drains and drain the flush; repeat until it runs clear', input: 'confirmation', gated: true,
         detail: 'The flush was just hot: this step waits for the opening check again.', caution: STEAM_CAUTION_TEXT,
       },
       { key: 'new-filter', title: 'Fit a new coolant filter (as in the filter change)', input: 'confirmation', gated: false, optional: true },
-      { key: 'refill', title: 'Close the drains and fill slowly with the new coolant mix, letting the air out', input: 'value', unit: 'L', gated: false, detail: 'Record the volume; also enter it under Parts & fluids.' },
+      {
+        key: 'refill', title: 'Close the drains and fill slowly with a 50/50 mix of glycol and clean water (or the mix this engine\'s plan sets), letting the air out', input: 'value', unit: 'L', gated: false,
+        detail: 'Premix before filling; use water of the quality the coolant maker asks for. Record the volume; also enter it under Parts & fluids.',
+      },
+      {
+        key: 'initial-charge', title: 'Add the initial additive (SCA) charge for the system\'s capacity, unless the coolant came precharged', input: 'confirmation', gated: false,
+        detail: 'The initial-charge calculator gives the amount for this engine\'s capacity. Extended-life coolant: follow the coolant maker. Record the additive under Parts & fluids.',
+      },
       capOnStep,
       leakRunStep,
-      { key: 'freeze-point', title: 'Freeze point of the new mix', input: 'value', unit: 'degC', gated: false },
+      { key: 'freeze-point', title: 'Freeze point of the new mix (a 50/50 ethylene glycol mix is about -37 °C)', input: 'value', unit: 'degC', gated: false },
       { key: 'dispose', title: 'Dispose of the drained coolant and flush as local rules require', input: 'confirmation', gated: false },
     ],
   },
@@ -200,6 +215,74 @@ export const WORK_TEMPLATES: readonly WorkTemplate[] = Object.freeze([
       capOnStep,
       { key: 'why-low', title: 'Say why it was low (leak found, none found, recent drain)', input: 'confirmation', gated: false, detail: 'Write it in the remark. A repeat top-up calls for a leak check.' },
       { ...leakRunStep, key: 'return-to-service', title: 'Remove your lock and tag and return the engine to automatic', detail: 'Check the controller is back in automatic and the heater is on.' },
+    ],
+  },
+  {
+    kind: 'oil-drain',
+    title: 'Oil drain and oil filter',
+    serviceTask: 'oil-drain',
+    resetsConductivityBaseline: false,
+    cautions: [...WORK_CAUTIONS],
+    steps: [
+      lockoutStep,
+      { key: 'drain-oil', title: 'Drain the engine oil while still warm (not hot) into a container', input: 'value', unit: 'L', gated: false, detail: 'Record the volume drained. Hot oil burns: let it cool to a safe handling temperature.' },
+      { key: 'oil-filter', title: 'Change the oil filter(s) as the engine maker describes', input: 'confirmation', gated: false },
+      { key: 'refill-oil', title: 'Refill with the oil grade and volume the engine maker gives, then check the dipstick', input: 'value', unit: 'L', gated: false, detail: 'Record the volume; also enter it under Parts & fluids.' },
+      { key: 'coolant-filter-too', title: 'The coolant filter change falls due at the same interval: do it now if it is on the due list', input: 'confirmation', gated: false, optional: true, detail: 'It has its own work order, so the additive decision and the record stay with it.' },
+      { key: 'leak-run', title: 'Remove your lock and tag, run the engine and look for oil leaks at the filter and drain plug', input: 'confirmation', gated: false, caution: ROTATING_CAUTION.text },
+      { key: 'dispose-oil', title: 'Dispose of the used oil and filter as local rules require', input: 'confirmation', gated: false },
+    ],
+  },
+  {
+    // the weekly items of NFPA 110 chapter 8 (its annex maintenance table) that touch the cooling system; clause cited from memory
+    kind: 'weekly-inspection',
+    title: 'Weekly standby inspection (cooling system)',
+    serviceTask: 'weekly-inspection',
+    resetsConductivityBaseline: false,
+    cautions: [LOCKOUT_CAUTION, ROTATING_CAUTION],
+    steps: [
+      { key: 'coolant-level', title: 'Coolant level on the reservoir marks, read cold without opening the cap', input: 'confirmation', gated: false, detail: 'Low: raise a top-up and look for the leak.' },
+      { key: 'heater-working', title: 'Jacket-water heater working: coolant temperature at the block', input: 'value', unit: 'degC', gated: false, range: [-40, 120], detail: 'A standby engine with a heater should read near the heater setpoint. Cold block: check the heater supply and thermostat.' },
+      { key: 'hoses', title: 'Hoses and clamps: no cracks, swelling, softness or chafing', input: 'confirmation', gated: false },
+      lockoutStep,
+      { key: 'belts', title: 'Fan and pump belts: tension and wear, with the engine locked out', input: 'confirmation', gated: false, caution: ROTATING_CAUTION.text },
+      { key: 'leaks', title: 'Leaks: pump weep hole, radiator, heater, drain cocks, filter', input: 'confirmation', gated: false, detail: 'Write what you found in the remark, with where.' },
+      { ...leakRunStep, key: 'return-to-service', title: 'Remove your lock and tag and return the engine to automatic', detail: 'Check the controller is back in automatic and the heater is on.' },
+      { key: 'records', title: 'Note the readings and anything found in the remark: it is the inspection record', input: 'confirmation', gated: false },
+    ],
+  },
+  {
+    // NFPA 110 chapter 8: monthly exercise for at least 30 minutes under load (at least 30 % of the nameplate rating,
+    // or the maker's minimum exhaust temperature); clause numbers cited from memory
+    kind: 'monthly-exercise',
+    title: 'Monthly exercise run under load',
+    serviceTask: 'monthly-exercise',
+    resetsConductivityBaseline: false,
+    cautions: [ROTATING_CAUTION, ...COOLANT_CAUTIONS.slice(0, 1)],
+    steps: [
+      { key: 'pre-start', title: 'Before starting: coolant level, heater working, nothing left on or near the engine', input: 'confirmation', gated: false },
+      { key: 'run-time', title: 'Run under load for at least 30 minutes: minutes run', input: 'value', unit: 'min', gated: false, range: [0, 600], caution: ROTATING_CAUTION.text },
+      { key: 'load', title: 'Load during the run, % of the nameplate rating (at least 30 %, or as the maker sets)', input: 'value', unit: '%', gated: false },
+      { key: 'coolant-temp-under-load', title: 'Coolant temperature under load, once steady', input: 'value', unit: 'degC', gated: false, range: [-40, 130] },
+      { key: 'coolant-pressure-under-load', title: 'Coolant pressure under load, once steady', input: 'value', unit: 'kPa', gated: false, optional: true },
+      { key: 'leaks-running', title: 'Look for leaks and listen for unusual noise while it runs (keep clear of rotating parts)', input: 'confirmation', gated: false },
+      { key: 'cool-down-run', title: 'Cool-down run unloaded as the maker says, then back to automatic with the heater on', input: 'confirmation', gated: false },
+    ],
+  },
+  {
+    kind: 'general-repair',
+    title: 'General repair or sensor fault',
+    serviceTask: null,
+    resetsConductivityBaseline: false,
+    cautions: [...WORK_CAUTIONS],
+    steps: [
+      { key: 'describe', title: 'Say what is wrong, as found (reading stuck, missing, implausible, or the fault seen)', input: 'confirmation', gated: false, detail: 'Write it in the remark.' },
+      lockoutStep,
+      { key: 'check-sensor', title: 'Check the sensor, its connector and wiring; compare with a hand gauge or thermometer', input: 'confirmation', gated: false, detail: 'Write the hand reading and the sensor reading in the remark.' },
+      { key: 'repair', title: 'Repair or replace what is faulty, as the maker describes', input: 'confirmation', gated: false, detail: 'Write what was done in the remark; record parts under Parts & fluids.' },
+      { key: 'photo', title: 'Photo of the repair', input: 'photo', gated: false, optional: true },
+      { ...leakRunStep, key: 'return-to-service', title: 'Remove your lock and tag and return the engine to automatic', detail: 'Check the controller is back in automatic and the heater is on.' },
+      { key: 'verify', title: 'Watch the live readings come back plausible for a few minutes', input: 'confirmation', gated: false },
     ],
   },
 ]);

@@ -9,6 +9,7 @@
  * site procedures and local codes come first.
  */
 import { RUNNING_RPM } from '../channels';
+import { forecastCooling } from '../cooling/forecast';
 import { fitCooling, timeToReachS } from '../cooling/newton-cooling';
 
 export interface TimedValue {
@@ -46,6 +47,12 @@ export interface OpeningCheckInput {
   readings: { coolant_temp: TimedValue[]; coolant_pressure: TimedValue[]; engine_speed: TimedValue[] };
   settings?: Partial<OpeningSettings>;
   lockoutConfirmed: boolean;
+  /**
+   * From the stored record: ms of the first engine-speed reading after the last reading that showed the
+   * engine running (null or absent: not known). The readings passed in may begin later (a cache, a gap
+   * in the data) or miss a short run; when no reading passed in shows it running since, the stop counts from here.
+   */
+  stoppedSinceTs?: number | null;
 }
 
 export type OpeningConditionName = 'engine-stopped' | 'coolant-temperature' | 'coolant-pressure' | 'telemetry-fresh' | 'lockout-confirmed' | 'held';
@@ -63,8 +70,13 @@ export interface OpeningCondition {
 export interface OpeningCheckResult {
   clear: boolean;
   conditions: OpeningCondition[];
-  /** ms when the check is predicted to become clear (now when clear), null when it cannot be predicted. */
+  /** ms when the check is forecast to become clear (now when clear), null when it cannot be forecast. */
   clearAt: number | null;
+  /**
+   * The forecast's band, earliest to latest (latest null: a fit as good as the best never clears). Equal
+   * to clearAt when the ambient is measured; wider when it had to be fitted. Null without a forecast.
+   */
+  forecast: { at: number; earliest: number; latest: number | null; ambientFitted: boolean } | null;
   reasons: string[];
   stale: boolean;
 }
@@ -86,6 +98,8 @@ function trailingRunStart(list: readonly TimedValue[], ok: (v: number) => boolea
 }
 
 const fmt = (n: number, d = 1) => n.toFixed(d);
+/** Durations of minutes read in minutes everywhere in the check (one decimal): 235 s -> "3.9". */
+export const minutesText = (seconds: number) => (seconds / 60).toFixed(1);
 
 /** Readings within this of the highest since the stop count as its plateau: about 5 sigma of a gauge's noise, or 3 %. */
 export const PRESSURE_PLATEAU_TOL_KPA = 2;
@@ -129,11 +143,17 @@ export function openingCheck(input: OpeningCheckInput, now: number): OpeningChec
 
   // Engine stopped
   const isStopped = (v: number) => v <= s.runningRpm;
-  const stoppedSince = trailingRunStart(speed, isStopped, maxGap);
+  let stoppedSince = trailingRunStart(speed, isStopped, maxGap);
+  const recorded = input.stoppedSinceTs;
+  if (stoppedSince !== null && typeof recorded === 'number' && Number.isFinite(recorded) && recorded <= now) {
+    // the record knows the real stop: earlier when the series passed in only starts later (a gap, a
+    // cache); later when a short run fell between the series' samples. A run in the series since wins.
+    if (!speed.some((r) => r.ts >= recorded && !isStopped(r.value))) stoppedSince = recorded;
+  }
   const stoppedForS = stoppedSince === null ? 0 : (now - stoppedSince) / 1000;
   const stoppedMet = stoppedSince !== null && stoppedForS >= s.minStoppedS;
   if (ls && !isStopped(ls.value)) reasons.push(`Engine running (${fmt(ls.value, 0)} rpm).`);
-  else if (ls && !stoppedMet) reasons.push(`Engine stopped for ${fmt(stoppedForS, 0)} s; needs ${s.minStoppedS} s.`);
+  else if (ls && !stoppedMet) reasons.push(`Engine stopped for ${minutesText(stoppedForS)} min; needs ${minutesText(s.minStoppedS)} min.`);
 
   // Temperature and pressure
   const tempOk = (v: number) => v <= s.safeOpenTempC;
@@ -150,7 +170,7 @@ export function openingCheck(input: OpeningCheckInput, now: number): OpeningChec
   const metSince = dataMet ? Math.max(stoppedSince! + s.minStoppedS * 1000, tempSince!, presSince!) : null;
   const heldS = metSince === null ? 0 : (now - metSince) / 1000;
   const heldMet = dataMet && heldS >= s.holdS;
-  if (dataMet && !heldMet) reasons.push(`All measured conditions met for ${fmt(heldS, 0)} s; they must hold for ${s.holdS} s.`);
+  if (dataMet && !heldMet) reasons.push(`All measured conditions met for ${minutesText(heldS)} min; they must hold for ${minutesText(s.holdS)} min.`);
   if (!input.lockoutConfirmed) reasons.push(LOCKOUT_REASON);
 
   const conditions: OpeningCondition[] = [
@@ -162,12 +182,16 @@ export function openingCheck(input: OpeningCheckInput, now: number): OpeningChec
     { name: 'held', met: heldMet, value: heldS, limit: s.holdS, unit: 's' },
   ];
   const clear = conditions.every((c) => c.met);
-  return { clear, conditions, clearAt: clear ? now : predictClearAt(), reasons, stale };
+  let band: { earliest: number; latest: number | null; ambientFitted: boolean } = { earliest: 0, latest: 0, ambientFitted: false };
+  const clearAt = clear ? now : predictClearAt();
+  const forecast = clear || clearAt === null ? null : { at: clearAt, earliest: Math.min(clearAt, band.earliest), latest: band.latest === null ? null : Math.max(clearAt, band.latest), ambientFitted: band.ambientFitted };
+  return { clear, conditions, clearAt, forecast, reasons, stale };
 
   function predictClearAt(): number | null {
-    if (stale) { reasons.push('No prediction while data is missing or stale.'); return null; }
-    if (stoppedSince === null) { reasons.push('No prediction until the engine has stopped.'); return null; }
+    if (stale) { reasons.push('No forecast while data is missing or stale.'); return null; }
+    if (stoppedSince === null) { reasons.push('No forecast until the engine has stopped.'); return null; }
     const times: number[] = [stoppedSince + s.minStoppedS * 1000];
+    let tempBand: { at: number; earliest: number; latest: number | null; ambientFitted: boolean } | null = null;
     // Temperature
     if (tempMet) times.push(tempSince!);
     else {
@@ -182,11 +206,13 @@ export function openingCheck(input: OpeningCheckInput, now: number): OpeningChec
         return null;
       }
       const since = temp.filter((r) => r.ts >= stoppedSince);
-      const fit = fitCooling(since.map((r) => ({ t: r.ts / 1000, temp: r.value })), towards);
-      if (!fit) { reasons.push('Not enough cooling data since the engine stopped to predict the temperature.'); return null; }
-      const dt = timeToReachS(lt!.value, fit.ambientC, fit.tauS, s.safeOpenTempC);
-      if (!Number.isFinite(dt)) { reasons.push(`The coolant is levelling off near ${fmt(fit.ambientC)} °C, above the safe opening temperature: no prediction.`); return null; }
-      times.push(lt!.ts + dt * 1000);
+      // no forecast while rising or flat; a band when the ambient is fitted (shared/cooling/forecast.ts)
+      const fc = forecastCooling(since, s.safeOpenTempC, towards);
+      if (fc.kind === 'none') { reasons.push(fc.text); return null; }
+      if (fc.kind === 'forecast') {
+        times.push(fc.at);
+        tempBand = { at: fc.at, earliest: fc.earliest, latest: fc.latest, ambientFitted: fc.ambientFitted };
+      }
     }
     // Pressure: a first-order decay toward 0 kPa gauge (an empirical fit, not a model of the system), fitted
     // only from where the pressure leaves its plateau after the stop (see pressureFalling).
@@ -199,12 +225,23 @@ export function openingCheck(input: OpeningCheckInput, now: number): OpeningChec
       if (!Number.isFinite(dt)) {
         const held = since.length > 0 && falling.length < 3;
         reasons.push(held
-          ? `Coolant pressure is not falling yet (still near ${fmt(Math.max(...since.map((r) => r.value)))} kPa since the stop): no prediction until it starts to fall.`
-          : 'Coolant pressure is not falling toward zero: no prediction.');
+          ? `Coolant pressure is not falling yet (still near ${fmt(Math.max(...since.map((r) => r.value)))} kPa since the stop): no forecast until it starts to fall.`
+          : 'Coolant pressure is not falling toward zero: no forecast.');
         return null;
       }
       times.push(lp!.ts + dt * 1000);
     }
-    return Math.max(now, Math.max(...times) + s.holdS * 1000);
+    const at = Math.max(now, Math.max(...times) + s.holdS * 1000);
+    if (tempBand) {
+      // the stop and pressure times bound the band from below; the hold comes after every one of them
+      const others = times.filter((t) => t !== tempBand!.at);
+      const base = others.length ? Math.max(...others) : -Infinity;
+      band = {
+        earliest: Math.max(now, Math.max(base, tempBand.earliest) + s.holdS * 1000),
+        latest: tempBand.latest === null ? null : Math.max(now, Math.max(base, tempBand.latest) + s.holdS * 1000),
+        ambientFitted: tempBand.ambientFitted,
+      };
+    } else band = { earliest: at, latest: at, ambientFitted: false };
+    return at;
   }
 }

@@ -17,7 +17,7 @@ import path from 'node:path';
 import zlib from 'node:zlib';
 import { after, before, describe, it } from 'node:test';
 import type { Browser, BrowserContext, Locator, Page } from 'playwright-core';
-import { ACCOUNTS, launchBrowser, SHOTS, shot as pageShot, signIn, startStack, type Stack } from './harness';
+import { ACCOUNTS, fillChecked, launchBrowser, openDialog, SHOTS, shot as pageShot, signIn, startStack, type Stack } from './harness';
 
 const OUT = path.resolve(__dirname, '../../test-output');
 const SPEED = '60';
@@ -31,7 +31,7 @@ const HOLD_S = 15;
  */
 const ENGINE_NAME = 'Intake gen-set south';
 
-interface Step { id: number; key: string; title: string; input: 'confirmation' | 'value' | 'photo'; unit: string | null; gated: boolean; optional: boolean; doneAt: string | null; resultValue: number | null }
+interface Step { id: number; key: string; title: string; input: 'confirmation' | 'value' | 'photo'; unit: string | null; gated: boolean; optional: boolean; doneAt: string | null; resultValue: number | null; resultText: string | null }
 interface Order { id: number; status: string; engineId: number; assigneeId: number | null; alarmIds: number[]; steps: Step[]; parts: { kind: string; quantity: number; unit: string }[]; attachments: { id: number; stepId: number | null }[] }
 interface Condition { name: string; met: boolean; value: unknown; limit: unknown; unit: string }
 interface Gate { clear: boolean; conditions: Condition[]; clearAt: number | null; settings: { minStoppedS: number; holdS: number; safeOpenTempC: number } }
@@ -167,16 +167,25 @@ describe('work order with the live opening check (planner and technician)', () =
     await planner.getByRole('heading', { name: /coolant temperature/i }).waitFor();
     await shot(planner, 'wo-01-alarm');
 
-    await planner.getByRole('link', { name: /create work order/i }).click();
-    await planner.waitForURL(/\/work\/new\?/);
-    await planner.getByText(`From alarm #`).waitFor();
-    // engine and kind come from the alarm; the planner only picks the technician
-    await assertSelectShows(planner, 'Engine', ENGINE_NAME);
-    await assertSelectShows(planner, 'Kind of work', /coolant filter change/i);
-    await planner.getByRole('combobox', { name: 'Assign to' }).click();
+    // a short dialog first: the kind suggested by the alarm's rule, the technician and the due date
+    await planner.getByRole('button', { name: /create work order/i }).click();
+    const dialog = await openDialog(planner);
+    await dialog.getByText(/^Alarm #\d+/).waitFor();
+    await dialog.getByRole('heading', { name: new RegExp(ENGINE_NAME) }).waitFor();
+    // an overheating engine suggests a leak check (shared/alarms/work-kind.ts); here the planner picks the filter change
+    await assertSelectShows(planner, 'Kind of work', /leak check/i);
+    await dialog.getByRole('combobox', { name: 'Kind of work' }).click();
+    await planner.getByRole('option', { name: /coolant filter change/i }).click();
+    await dialog.getByRole('combobox', { name: 'Assign to' }).click();
     await planner.getByRole('option', { name: 'Tobias Renwick' }).click();
-    await shot(planner, 'wo-02-new-order-from-alarm');
-    await planner.getByRole('button', { name: 'Create work order' }).click();
+    await fillChecked(dialog.getByLabel('Due date'), '12/24/2026');
+    await shot(planner, 'wo-02-create-dialog-from-alarm');
+    await planner.setViewportSize({ width: 820, height: 900 });
+    await shot(planner, 'wo-02a-create-dialog-820');
+    const box = await dialog.boundingBox();
+    assert.ok(box && box.x >= 0 && box.x + box.width <= 820, `the dialog fits 820 px (${JSON.stringify(box)})`);
+    await planner.setViewportSize({ width: 1366, height: 900 });
+    await dialog.getByRole('button', { name: 'Create', exact: true }).click();
     await planner.waitForURL(/\/work\/\d+$/);
     orderId = Number(new URL(planner.url()).pathname.split('/').pop());
     await planner.getByRole('heading', { name: new RegExp(`#${orderId}`) }).waitFor();
@@ -185,6 +194,8 @@ describe('work order with the live opening check (planner and technician)', () =
     assert.equal(order.engineId, engineId);
     assert.equal(order.status, 'planned', 'a planner’s order is planned at once');
     assert.ok(order.assigneeId, 'assigned');
+    assert.equal((order as unknown as { dueDate: string | null }).dueDate, '2026-12-24', 'the due date from the dialog, whole');
+    assert.equal((order as unknown as { kind: string }).kind, 'filter-change');
     assert.ok(order.alarmIds.includes(alarmId), `alarm #${alarmId} linked to the order`);
     assert.ok(gatedSteps().length >= 1, 'the filter change has gated steps');
     await planner.getByText('Assignee: Tobias Renwick').waitFor();
@@ -204,8 +215,12 @@ describe('work order with the live opening check (planner and technician)', () =
     // marker: if the page reloads, it is gone
     await tech.evaluate(() => ((window as unknown as { jwNoReload: boolean }).jwNoReload = true));
 
+    // lockout/tagout is confirmed on the step that says to lock out, and carried to the gated steps
+    const lock = stepItem(tech, order.steps.find((s) => s.key === 'stop-and-lock-out')!);
+    await lock.getByRole('button', { name: /Mark done/ }).click();
+    await lock.locator('.badge.done').waitFor();
     const first = stepItem(tech, gatedSteps()[0]);
-    await first.getByRole('checkbox', { name: /I have locked out and tagged out/ }).check();
+    await first.getByText(/Lockout\/tagout confirmed on step \d+/).waitFor();
     const panel = tech.getByRole('region', { name: 'Opening check' });
     await panel.getByText('Not clear: keep the cooling system closed').waitFor();
     await panel.locator('li', { hasText: 'Coolant cool enough' }).getByText('Not met').waitFor();
@@ -242,7 +257,7 @@ describe('work order with the live opening check (planner and technician)', () =
     await stack.control(`/engines/${engineId}/stop`);
     stoppedAt = Date.now();
     const panel = tech.getByRole('region', { name: 'Opening check' });
-    await panel.getByText(/Predicted clear at .+ \(in about \d+ min\)/).waitFor({ timeout: 45000 });
+    await panel.getByText(/Forecast: clear in about \d+ min/).waitFor({ timeout: 45000 });
     const text = await panel.innerText();
     assert.match(text, /Not clear/);
     assert.match(text, /Coolant\s*[\d.]+\s*°C/);
@@ -308,11 +323,26 @@ describe('work order with the live opening check (planner and technician)', () =
     assert.equal(filter, 'charged', 'additive in range: the rule asks for a charged filter');
 
     const values: Record<string, number> = { 'fit-filter': 0.75, refill: 1.5 };
+    // a draft survives a reload: typed, saved on the server as typed, and there again after the reload
+    const fit = stepItem(tech, order.steps.find((s) => s.key === 'fit-filter')!);
+    await fit.getByLabel('Value').fill('0.75');
+    await fit.getByLabel('Remark').fill('three quarters of a turn');
+    await fit.getByText('Draft saved').waitFor();
+    await until(async () => {
+      const o = (await stack.api<Order>('GET', `/api/work-orders/${orderId}`, techToken)).body;
+      const st = o.steps.find((s) => s.key === 'fit-filter')!;
+      return st.resultValue === 0.75 && st.resultText === 'three quarters of a turn' && st.doneAt === null;
+    }, 10000, 'the draft on the server');
+    await tech.reload();
+    await stepItem(tech, order.steps.find((s) => s.key === 'fit-filter')!).getByLabel('Remark').waitFor();
+    assert.equal(await stepItem(tech, order.steps.find((s) => s.key === 'fit-filter')!).getByLabel('Value').inputValue(), '0.75', 'the drafted value after a reload');
+    assert.equal(await stepItem(tech, order.steps.find((s) => s.key === 'fit-filter')!).getByLabel('Remark').inputValue(), 'three quarters of a turn', 'the drafted remark after a reload');
+    await shot(tech, 'wo-07c-draft-after-reload');
     for (const s of order.steps) {
       if (s.optional && s.input !== 'photo') continue;
+      if (s.key === 'stop-and-lock-out') continue; // done above
       const li = stepItem(tech, s);
-      if (s.gated) await li.getByRole('checkbox', { name: /I have locked out and tagged out/ }).check();
-      if (s.input === 'value') await li.getByLabel('Value').fill(String(values[s.key] ?? 1));
+      if (s.input === 'value' && s.key !== 'fit-filter') await li.getByLabel('Value').fill(String(values[s.key] ?? 1));
       if (s.input === 'photo') {
         await li.locator('input[type=file]').setInputFiles({ name: 'fitted-filter.png', mimeType: 'image/png', buffer: makePng() });
         await li.locator('jw-attachment-thumb').waitFor();

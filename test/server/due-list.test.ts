@@ -51,10 +51,42 @@ describe('due list on a fixed clock', () => {
   it('one name per task: plan task key = work-order kind = the service event its template writes', () => {
     const plan = defaultServicePlan({ oilDrainIntervalH: 250, duty: 'standby' });
     const withTemplate = plan.filter((p) => workKindFor(p.key)).map((p) => p.key);
-    expect(withTemplate).toEqual(['filter-change', 'coolant-test', 'drain-flush-refill']);
+    // every task of the plan (standby duty has them all) has its own template
+    expect(withTemplate).toEqual(plan.map((p) => p.key));
+    expect(withTemplate).toEqual(expect.arrayContaining(['oil-drain', 'filter-change', 'coolant-test', 'drain-flush-refill', 'weekly-inspection', 'monthly-exercise']));
     for (const k of withTemplate) expect(WORK_TEMPLATES.find((w) => w.kind === k)?.serviceTask).toBe(k);
     for (const w of WORK_TEMPLATES) if (w.serviceTask) expect(plan.some((p) => p.key === w.serviceTask)).toBe(true);
-    expect(workKindFor('oil-drain')).toBeNull();
+    expect(workKindFor('paint-the-skid')).toBeNull();
+  });
+
+  it('every entry of GET /api/due-list has a workKind, and every due task creates its work order', async () => {
+    const res = await request(t.app).get('/api/due-list?include=all&windowDays=365').set(auth(t.tokens.planner)).expect(200);
+    const entries: Array<{ engineId: number; taskKey: string; workKind: string | null }> = (res.body.sites ?? res.body).flatMap((s: { entries: unknown[] }) => s.entries);
+    expect(entries.length).toBe(14); // two prime sets with 4 tasks, one standby set with 6
+    const tasks = new Set(entries.map((e) => e.taskKey));
+    for (const k of ['oil-drain', 'filter-change', 'coolant-test', 'drain-flush-refill', 'weekly-inspection', 'monthly-exercise']) expect(tasks.has(k)).toBe(true);
+    for (const e of entries) expect({ task: e.taskKey, workKind: typeof e.workKind }).toEqual({ task: e.taskKey, workKind: 'string' });
+    const kinds = new Map<string, { engineId: number; workKind: string }>();
+    for (const e of entries) kinds.set(e.workKind!, { engineId: e.engineId, workKind: e.workKind! });
+    for (const e of kinds.values()) {
+      const wo = await request(t.app).post('/api/work-orders').set(auth(t.tokens.planner)).send({ engineId: e.engineId, kind: e.workKind, assigneeId: t.userIds.technician, dueDate: '2026-06-08' }).expect(201);
+      expect(wo.body.kind).toBe(e.workKind);
+      expect(wo.body.steps.length).toBeGreaterThanOrEqual(4);
+    }
+    // a task this engine's plan added (no template of its own) is a general repair
+    await request(t.app).put(`/api/engines/${prime}/service-plan/belt-guard-check`).set(auth(t.tokens.planner)).send({ title: 'Belt guard check', everyDays: 30 });
+    const again = await request(t.app).get('/api/due-list?include=all&windowDays=365').set(auth(t.tokens.planner)).expect(200);
+    for (const e of (again.body.sites ?? again.body).flatMap((s: { entries: Array<{ workKind: unknown }> }) => s.entries)) expect(typeof e.workKind).toBe('string');
+  });
+
+  it('the drain-flush-refill refills to a 50/50 mix and adds the initial additive charge as steps; the weekly inspection and monthly exercise carry their cooling items', () => {
+    const dfr = WORK_TEMPLATES.find((w) => w.kind === 'drain-flush-refill')!;
+    expect(dfr.steps.find((s) => s.key === 'refill')!.title).toMatch(/50\/50/);
+    expect(dfr.steps.some((s) => s.key === 'initial-charge')).toBe(true);
+    const weekly = WORK_TEMPLATES.find((w) => w.kind === 'weekly-inspection')!.steps.map((s) => s.key);
+    expect(weekly).toEqual(expect.arrayContaining(['coolant-level', 'heater-working', 'hoses', 'belts', 'leaks', 'records']));
+    const monthly = WORK_TEMPLATES.find((w) => w.kind === 'monthly-exercise')!.steps.map((s) => s.key);
+    expect(monthly).toEqual(expect.arrayContaining(['run-time', 'load', 'coolant-temp-under-load']));
   });
 
   it('hours first: 1000 h + 250 h = 1250 h < 1260 h now -> overdue, though the yearly date is 335 days off', async () => {

@@ -88,7 +88,7 @@ async function plannedOrder(engine: number, kind = 'filter-change'): Promise<{ i
 describe('templates', () => {
   it('serves every kind; steps that open the system are gated and carry the hot-coolant caution', async () => {
     const res = await request(t.app).get('/api/work-order-templates').set(as('operator')).expect(200);
-    expect(res.body.map((x: { kind: string }) => x.kind).sort()).toEqual(['coolant-test', 'drain-flush-refill', 'filter-change', 'leak-check', 'top-up']);
+    expect(res.body.map((x: { kind: string }) => x.kind).sort()).toEqual(['coolant-test', 'drain-flush-refill', 'filter-change', 'general-repair', 'leak-check', 'monthly-exercise', 'oil-drain', 'top-up', 'weekly-inspection']);
     const filter = res.body.find((x: { kind: string }) => x.kind === 'filter-change');
     const gated = filter.steps.filter((s: { gated: boolean }) => s.gated).map((s: { key: string }) => s.key);
     expect(gated).toEqual(['relieve-pressure', 'remove-filter']);
@@ -117,6 +117,18 @@ describe('creation and transitions by role', () => {
     expect((await request(t.app).post('/api/work-orders').set(as('planner')).send({ engineId: 9999, kind: 'top-up' }).expect(400)).body.field).toBe('engineId');
     expect((await request(t.app).post('/api/work-orders').set(as('planner')).send({ engineId, kind: 'top-up', dueDate: '10/12/2026' }).expect(400)).body.field).toBe('dueDate');
     expect((await request(t.app).post('/api/work-orders').set(as('planner')).send({ engineId, kind: 'top-up', assigneeId: t.userIds.operator }).expect(400)).body.field).toBe('assigneeId');
+  });
+  it('due dates: only whole, valid dates from the year 2000 are saved; half-typed years are refused naming the field', async () => {
+    for (const dueDate of ['0002-12-05', '0020-12-05', '0202-12-05', '1999-12-31', '2026-02-30', '2026-13-01', '2026-12-5', '20261205', '2026-12-05T10:00']) {
+      const res = await request(t.app).post('/api/work-orders').set(as('planner')).send({ engineId, kind: 'top-up', dueDate }).expect(400);
+      expect({ dueDate, field: res.body.field }).toEqual({ dueDate, field: 'dueDate' });
+    }
+    const ok = await request(t.app).post('/api/work-orders').set(as('planner')).send({ engineId, kind: 'top-up', dueDate: '2026-12-05' }).expect(201);
+    expect(ok.body.dueDate).toBe('2026-12-05');
+    expect((await request(t.app).patch(`/api/work-orders/${ok.body.id}`).set(as('planner')).send({ dueDate: '0202-12-05' }).expect(400)).body.field).toBe('dueDate');
+    const after = await request(t.app).get(`/api/work-orders/${ok.body.id}`).set(as('planner')).expect(200);
+    expect(after.body.dueDate).toBe('2026-12-05');
+    expect(after.body.history.filter((h: { event: string }) => h.event !== 'created').length).toBe(0);
   });
   it('only a planner or admin accepts; operator and technician are refused', async () => {
     await request(t.app).post(`/api/work-orders/${id}/transition`).set(as('operator')).send({ to: 'planned' }).expect(403);
@@ -220,6 +232,30 @@ describe('the opening check on gated steps (server re-computes it; the client is
     const done = res.body.steps.find((x: { id: number }) => x.id === s.id);
     expect(done).toMatchObject({ lockoutConfirmed: true, manualCheck: null, doneByName: 'Test technician' });
     expect(done.gateSnapshot).toMatchObject({ clear: true, manual: false });
+  });
+});
+
+describe('the stop comes from the stored record', () => {
+  it('stopped two days ago with only the last 4 minutes of readings since: met; a new run resets it', async () => {
+    const e = await t.ctx.models.Engine.create({ siteId: (await t.ctx.models.Site.findOne())!.id, name: 'Long-stopped engine', duty: 'standby', capacityL: 60, coolantFamily: 'conventional', glycolType: 'ethylene', glycolPercent: 50, capPressureKpa: 100, oilDrainIntervalH: 250 });
+    const now = Date.now();
+    const stop = now - 2 * 24 * 60 * MIN;
+    const rows: AcceptedReading[] = [{ engineId: e.id, channel: 'engine_speed', ts: stop - 10_000, value: 1800, quality: 0 }, { engineId: e.id, channel: 'engine_speed', ts: stop, value: 0, quality: 0 }];
+    for (let ts = now - 4 * MIN; ts <= now; ts += 10_000) {
+      for (const [channel, value] of [['engine_speed', 0], ['coolant_temp', 21], ['coolant_pressure', 0], ['ambient_temp', 20]] as const) rows.push({ engineId: e.id, channel, ts, value, quality: 0 });
+    }
+    await feed(rows);
+    const res = await request(t.app).get(`/api/engines/${e.id}/opening-check`).set(as('technician')).expect(200);
+    const c = res.body.conditions.find((x: { name: string }) => x.name.includes('stop'));
+    expect(c.met).toBe(true);
+    expect(Math.abs(c.value - (Date.now() - stop) / 1000)).toBeLessThan(60);
+    // the engine runs again (an exercise): the record follows the live readings
+    await feed([{ engineId: e.id, channel: 'engine_speed', ts: Date.now(), value: 1500, quality: 0 }]);
+    await feed([{ engineId: e.id, channel: 'engine_speed', ts: Date.now() + 1, value: 0, quality: 0 }]);
+    const after = await request(t.app).get(`/api/engines/${e.id}/opening-check`).set(as('technician')).expect(200);
+    const c2 = after.body.conditions.find((x: { name: string }) => x.name.includes('stop'));
+    expect(c2.met).toBe(false);
+    expect(c2.value).toBeLessThan(60);
   });
 });
 
@@ -376,8 +412,92 @@ describe('from an alarm in one click', () => {
     const alarm = await t.ctx.models.Alarm.create({ engineId, rule: 'coolant_temp_high', priority: 'high', state: 'unacknowledged', raisedAt: new Date('2026-12-01T10:00:00Z'), value: 104.2, worstValue: 106, unit: 'degC', message: 'Coolant temperature high' });
     const res = await request(t.app).post('/api/work-orders').set(as('planner')).send({ engineId, kind: 'leak-check', alarmId: alarm.id }).expect(201);
     expect(res.body).toMatchObject({ status: 'planned', priority: 'high', alarmIds: [alarm.id] });
-    expect(res.body.description).toMatch(/alarm #\d+ .*Coolant temperature high; value 104\.2 °C \(219\.6 °F\); worst 106\.0 °C \(222\.8 °F\)/);
+    // in words: the rule's title, the priority, the time in the site's zone (UTC here), values with units (°F = 1.8 °C + 32)
+    expect(res.body.description).toBe(`From alarm #${alarm.id}: Coolant temperature high, high priority, raised 1 Dec 2026, 10:00 (UTC). Coolant temperature high. Value when raised: 104.2 °C (219.6 °F). Worst since: 106.0 °C (222.8 °F).`);
+    expect(res.body.description).not.toMatch(/coolant_temp_high|T10:00/);
     await request(t.app).post('/api/work-orders').set(as('planner')).send({ engineId: coldEngineId, kind: 'leak-check', alarmId: alarm.id }).expect(400);
+  });
+});
+
+describe('drafts that stay, locked steps and the single coolant test', () => {
+  type Step = { id: number; key: string; resultValue: number | null; resultUnit: string | null; resultText: string | null; doneAt: string | null; lockoutConfirmed: boolean | null };
+  let order: { id: number; steps: Step[] };
+  let cooledId: number;
+  const step = (key: string) => order.steps.find((s) => s.key === key)!;
+  const patch = (key: string, body: object) => request(t.app).patch(`/api/work-orders/${order.id}/steps/${step(key).id}`).set(as('technician')).send(body);
+  beforeAll(async () => {
+    cooledId = (await t.ctx.models.Engine.create({ siteId: (await t.ctx.models.Site.findOne())!.id, name: 'Sampled engine', duty: 'standby', capacityL: 60, coolantFamily: 'conventional', glycolType: 'ethylene', glycolPercent: 50, capPressureKpa: 100, oilDrainIntervalH: 250 })).id;
+    order = (await plannedOrder(cooledId, 'coolant-test')) as unknown as typeof order;
+  });
+
+  it('a draft is saved without completing the step and comes back on GET', async () => {
+    await patch('freeze-point', { value: -29.2, unit: 'degF', note: 'refractometer' }).expect(200);
+    await patch('sca-level', { value: 0.8 }).expect(200);
+    await patch('glycol-percent', { value: 48 }).expect(200);
+    const res = await request(t.app).get(`/api/work-orders/${order.id}`).set(as('technician')).expect(200);
+    const fp = res.body.steps.find((s: Step) => s.key === 'freeze-point');
+    expect(fp).toMatchObject({ resultValue: -29.2, resultUnit: 'degF', resultText: 'refractometer', doneAt: null });
+    expect(res.body.steps.find((s: Step) => s.key === 'sca-level')).toMatchObject({ resultValue: 0.8, resultUnit: 'units/gal', doneAt: null });
+    expect(res.body.stepsDone).toBe(0);
+  });
+
+  it('bad drafts: a unit the step does not take, a value on a confirmation step, another technician, a planner', async () => {
+    expect((await patch('freeze-point', { value: 3, unit: 'psi' }).expect(400)).body.field).toBe('unit');
+    expect((await patch('method', { value: 3 }).expect(400)).body.field).toBe('value');
+    expect((await patch('freeze-point', { value: 'cold' }).expect(400)).body.field).toBe('value');
+    await request(t.app).patch(`/api/work-orders/${order.id}/steps/${step('ph').id}`).set(auth(otherTechToken)).send({ value: 9 }).expect(403);
+    await request(t.app).patch(`/api/work-orders/${order.id}/steps/${step('ph').id}`).set(as('planner')).send({ value: 9 }).expect(403);
+  });
+
+  it('a locked gated step accepts no results (409 with the unmet conditions)', async () => {
+    const res = await patch('take-sample', { note: 'from the block drain' }).expect(409);
+    expect(res.body.conditions.map((c: { name: string }) => c.name)).toContain('lockout-confirmed');
+    const after = await request(t.app).get(`/api/work-orders/${order.id}`).set(as('technician')).expect(200);
+    expect(after.body.steps.find((s: Step) => s.key === 'take-sample').resultText).toBeNull();
+  });
+
+  it('the test cannot be recorded before the sample is taken', async () => {
+    const res = await request(t.app).post(`/api/work-orders/${order.id}/coolant-test`).set(as('technician')).send({}).expect(409);
+    expect(res.body.error).toMatch(/sample/);
+  });
+
+  it('lockout/tagout confirmed on the lock-out step is carried to the gated sampling step', async () => {
+    const lock = await request(t.app).post(`/api/work-orders/${order.id}/steps/${step('stop-and-lock-out').id}/complete`).set(as('technician')).send({}).expect(200);
+    expect(lock.body.steps.find((s: Step) => s.key === 'stop-and-lock-out').lockoutConfirmed).toBe(true);
+    // still shut while no readings say the system is safe, even with lockout carried
+    const shut = await patch('take-sample', { note: 'x' }).expect(409);
+    expect(shut.body.conditions.map((c: { name: string }) => c.name)).not.toContain('lockout-confirmed');
+    // ran until 40 min ago, then cooled (Newton, tau 900 s): 29.2 °C, no pressure
+    await feed(history(cooledId, { stopAtMin: -40, fromMin: -60 }));
+    await patch('take-sample', { note: 'from the block drain' }).expect(200);
+    const done = await request(t.app).post(`/api/work-orders/${order.id}/steps/${step('take-sample').id}/complete`).set(as('technician')).send({}).expect(200);
+    const s = done.body.steps.find((x: Step) => x.key === 'take-sample');
+    expect(s).toMatchObject({ lockoutConfirmed: true, resultText: 'from the block drain' });
+    expect(s.doneAt).not.toBeNull();
+  });
+
+  it('completing keeps the drafted values (converted to the step unit) and the remark', async () => {
+    const res = await request(t.app).post(`/api/work-orders/${order.id}/steps/${step('freeze-point').id}/complete`).set(as('technician')).send({}).expect(200);
+    const fp = res.body.steps.find((s: Step) => s.key === 'freeze-point');
+    // (-29.2 °F - 32) x 5/9 = -34.0 °C (definition of the Fahrenheit scale, NIST SP 811 B.8)
+    expect(fp.resultValue).toBeCloseTo(-34, 6);
+    expect(fp).toMatchObject({ resultUnit: 'degC', resultText: 'refractometer' });
+    await patch('freeze-point', { value: 1 }).expect(409);
+  });
+
+  it('records the coolant test once; a second attempt answers 409 with the recorded test', async () => {
+    const first = await request(t.app).post(`/api/work-orders/${order.id}/coolant-test`).set(as('technician')).send({ method: 'refractometer' }).expect(201);
+    expect(first.body.coolantTest).toMatchObject({ engineId: cooledId, scaUnitsPerGal: 0.8, glycolPercent: 48, method: 'refractometer' });
+    expect(first.body.coolantTest.freezePointC).toBeCloseTo(-34, 6);
+    expect(first.body.order.coolantTestId).toBe(first.body.coolantTest.id);
+    const again = await request(t.app).post(`/api/work-orders/${order.id}/coolant-test`).set(as('technician')).send({}).expect(409);
+    expect(again.body.coolantTest.id).toBe(first.body.coolantTest.id);
+    const both = await Promise.all([1, 2].map(() => request(t.app).post(`/api/work-orders/${order.id}/coolant-test`).set(as('planner')).send({})));
+    expect(both.map((r) => r.status)).toEqual([409, 409]);
+    expect(await t.ctx.models.CoolantTest.count({ where: { engineId: cooledId } })).toBe(1);
+    const detail = await request(t.app).get(`/api/work-orders/${order.id}`).set(as('operator')).expect(200);
+    expect(detail.body.coolantTest.id).toBe(first.body.coolantTest.id);
+    expect(detail.body.history.some((h: { event: string }) => h.event === 'coolant-test-recorded')).toBe(true);
   });
 });
 
@@ -389,7 +509,7 @@ describe('OpenAPI', () => {
       ['/api/work-order-templates', 'get'], ['/api/engines/{id}/opening-check', 'get'], ['/api/work-orders', 'get'], ['/api/work-orders', 'post'],
       ['/api/work-orders/{id}', 'get'], ['/api/work-orders/{id}', 'patch'], ['/api/work-orders/{id}/transition', 'post'],
       ['/api/work-orders/{id}/steps/{stepId}/complete', 'post'], ['/api/work-orders/{id}/parts', 'post'], ['/api/work-orders/{id}/amendments', 'post'],
-      ['/api/work-orders/{id}/attachments', 'post'], ['/api/attachments/{id}', 'get'], ['/api/work-orders/assignees', 'get'],
+      ['/api/work-orders/{id}/attachments', 'post'], ['/api/work-orders/{id}/steps/{stepId}', 'patch'], ['/api/work-orders/{id}/coolant-test', 'post'], ['/api/attachments/{id}', 'get'], ['/api/work-orders/assignees', 'get'],
     ];
     for (const [p, m] of routes) expect({ p, m, documented: !!doc.paths[p]?.[m] }).toEqual({ p, m, documented: true });
   });

@@ -191,3 +191,9 @@ export async function importLabCsv(models: Models, buf: Buffer, opts: { preview:
   }
   return { preview: opts.preview, accepted, rejected, stored: opts.preview ? 0 : good.length };
 }
+
+/** One test as the API shows it, or null. */
+export async function coolantTestView(models: Models, id: number): Promise<CoolantTestView | null> {
+  const row = await models.CoolantTest.findByPk(id);
+  return row ? view(row, await userNames(models, [row.testedBy])) : null;
+}

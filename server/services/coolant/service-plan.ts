@@ -15,10 +15,15 @@ export function workKindFor(taskKey: string): WorkKind | null {
   return kind && workTemplate(kind)?.serviceTask === taskKey ? kind : null;
 }
 
+/** The kind of work for a due task: its own template, else a general repair (a task this engine's plan added). */
+export function workKindForTask(taskKey: string): WorkKind {
+  return workKindFor(taskKey) ?? 'general-repair';
+}
+
 export interface PlanTask extends ServiceTask {
   /** True when this engine's plan changes the default for this task (or adds it). */
   overridden: boolean;
-  workKind: WorkKind | null;
+  workKind: WorkKind;
 }
 
 export interface OverrideInput {
@@ -45,12 +50,12 @@ export async function servicePlan(models: Models, engine: Engine): Promise<PlanT
       placeholder: o && (o.everyHours !== null || o.everyDays !== null) ? false : t.placeholder,
       basis: o && (o.everyHours !== null || o.everyDays !== null) ? 'set for this engine' : t.basis,
       overridden: !!o,
-      workKind: workKindFor(t.key),
+      workKind: workKindForTask(t.key),
     });
   }
   for (const o of byKey.values()) {
     if (o.disabled || (!o.everyHours && !o.everyDays)) continue;
-    tasks.push({ key: o.taskKey, title: o.title ?? o.taskKey, everyHours: o.everyHours, everyDays: o.everyDays, basis: 'set for this engine', overridden: true, workKind: null });
+    tasks.push({ key: o.taskKey, title: o.title ?? o.taskKey, everyHours: o.everyHours, everyDays: o.everyDays, basis: 'set for this engine', overridden: true, workKind: workKindForTask(o.taskKey) });
   }
   return tasks;
 }
@@ -106,7 +111,8 @@ export interface DueEntryView {
   everyDays: number | null;
   placeholder: boolean;
   basis: string;
-  workKind: WorkKind | null;
+  /** The kind of work order that does this task (every task has one). */
+  workKind: WorkKind;
   /** An open work order of that kind on this engine, so the planner does not create a second one. */
   openWorkOrderId: number | null;
 }

@@ -27,12 +27,14 @@ export interface GateResult extends OpeningCheckResult {
  */
 export async function computeGate(history: ReadingHistory, engine: Engine, lockoutConfirmed: boolean, now = Date.now()): Promise<GateResult> {
   const s = await history.series(engine.id, now);
+  // the stop as the stored record shows it, however long ago (the series above holds only the last hours)
+  const stop = await history.stopRecord(engine.id, now);
   const amb = s.ambient_temp[s.ambient_temp.length - 1];
   // ambient is only a hint for the prediction; an hour-old value is still better than none
   const ambientC = amb && now - amb.ts < 3600_000 ? amb.value : null;
   const settings = gateSettings(engine, ambientC);
   const result = openingCheck(
-    { readings: { coolant_temp: s.coolant_temp, coolant_pressure: s.coolant_pressure, engine_speed: s.engine_speed }, settings, lockoutConfirmed },
+    { readings: { coolant_temp: s.coolant_temp, coolant_pressure: s.coolant_pressure, engine_speed: s.engine_speed }, settings, lockoutConfirmed, stoppedSinceTs: stop?.stoppedSinceTs ?? null },
     now,
   );
   const newest = (l: readonly { ts: number; quality?: number }[]) => {

@@ -1,5 +1,5 @@
 import { QueryTypes, type Sequelize } from 'sequelize';
-import { CHANNELS, type ChannelKey } from '../../../shared/channels';
+import { CHANNELS, RUNNING_RPM, type ChannelKey } from '../../../shared/channels';
 import type { TimedValue } from '../../../shared/work/opening-check';
 import type { AcceptedReading } from '../../telemetry/types';
 
@@ -16,6 +16,14 @@ export interface HistoryOptions {
 
 type Series = Record<GateChannel, TimedValue[]>;
 
+/** What the stored readings say about the engine's last stop. */
+export interface StopRecord {
+  /** ms of the newest good engine-speed reading above RUNNING_RPM; null when the record shows none. */
+  lastRunTs: number | null;
+  /** ms of the first good engine-speed reading after lastRunTs (the stop); null when none yet. */
+  stoppedSinceTs: number | null;
+}
+
 const emptySeries = (): Series => ({ coolant_temp: [], coolant_pressure: [], engine_speed: [], ambient_temp: [], coolant_conductivity: [] });
 
 /**
@@ -25,11 +33,14 @@ const emptySeries = (): Series => ({ coolant_temp: [], coolant_pressure: [], eng
  * readings table, so a restart (or an engine first asked about late) still has its cool-down curve.
  * Only engines asked about in the last keepMs are followed: a fleet of hundreds would otherwise hold
  * hours of samples for every engine (about 1 MB each) although only engines under work need them.
+ * The engine's last stop comes from the stored record too (see stopRecord), however long ago it was,
+ * so a restart or a gap in the data never shortens "stopped for".
  */
 export class ReadingHistory {
   private readonly engines = new Map<number, Series>();
   private readonly loaded = new Map<number, Promise<void>>();
   private readonly askedAt = new Map<number, number>();
+  private readonly stops = new Map<number, StopRecord>();
   private readonly keepMs: number;
   private readonly spacingMs: number;
 
@@ -44,8 +55,21 @@ export class ReadingHistory {
       // without a database (tests) every engine is followed; with one, only engines asked about lately
       if (this.sequelize && !this.loaded.has(r.engineId)) continue;
       if ((GATE_CHANNELS as readonly string[]).includes(r.channel)) this.add(r.engineId, r.channel as GateChannel, { ts: r.ts, value: r.value, quality: r.quality });
+      if (r.channel === 'engine_speed' && r.quality === 0) this.noteSpeed(r.engineId, r.ts, r.value);
     }
   };
+
+  /** Keeps the stop record of a followed engine current as readings arrive (a late backlog included). */
+  private noteSpeed(engineId: number, ts: number, rpm: number): void {
+    const rec = this.stops.get(engineId);
+    if (rec) this.noteSpeedInto(rec, ts, rpm);
+  }
+
+  /** The engine's last stop as the stored readings show it (null without a database). */
+  async stopRecord(engineId: number, now = Date.now()): Promise<StopRecord | null> {
+    await this.series(engineId, now);
+    return this.stops.get(engineId) ?? null;
+  }
 
   add(engineId: number, channel: GateChannel, v: TimedValue): void {
     let s = this.engines.get(engineId);
@@ -91,6 +115,7 @@ export class ReadingHistory {
       this.askedAt.delete(engineId);
       this.loaded.delete(engineId);
       this.engines.delete(engineId);
+      this.stops.delete(engineId);
     }
   }
 
@@ -120,6 +145,54 @@ export class ReadingHistory {
     for (const r of rows) {
       const key = byCode.get(Number(r.channel));
       if (key) this.add(engineId, key, { ts: Number(r.ts), value: Number(r.value), quality: 0 });
+    }
+    this.stops.set(engineId, await this.loadStop(engineId));
+  }
+
+  /**
+   * The last running reading and the first reading after it, from the stored record however old: the
+   * per-minute rollups find the minute (a few thousand rows a month, not every reading), the raw readings
+   * of that minute the exact time. Without rollups for the engine the raw readings are searched instead.
+   */
+  private async loadStop(engineId: number): Promise<StopRecord> {
+    const code = CHANNELS.engine_speed.code;
+    const q = async <T extends object>(sql: string, replacements: unknown[]) =>
+      (await this.sequelize!.query<T>(sql, { replacements, type: QueryTypes.SELECT, logging: false }))[0];
+    const rolled = await q<{ minute: number | null; n: number }>(
+      'SELECT MAX(CASE WHEN "max" > ? THEN minute END) AS minute, COUNT(*) AS n FROM rollups WHERE engine_id = ? AND channel = ?',
+      [RUNNING_RPM, engineId, code],
+    );
+    let lastRunTs: number | null = null;
+    if (Number(rolled?.n ?? 0) > 0) {
+      if (rolled.minute !== null) {
+        const row = await q<{ ts: number | null }>(
+          'SELECT MAX(ts) AS ts FROM readings WHERE engine_id = ? AND channel = ? AND quality = 0 AND value > ? AND ts >= CAST(? AS INTEGER) AND ts < CAST(? AS INTEGER)',
+          [engineId, code, RUNNING_RPM, Number(rolled.minute), Number(rolled.minute) + 60_000],
+        );
+        lastRunTs = row?.ts === null || row?.ts === undefined ? null : Number(row.ts);
+      }
+    } else {
+      const row = await q<{ ts: number | null }>('SELECT MAX(ts) AS ts FROM readings WHERE engine_id = ? AND channel = ? AND quality = 0 AND value > ?', [engineId, code, RUNNING_RPM]);
+      lastRunTs = row?.ts === null || row?.ts === undefined ? null : Number(row.ts);
+    }
+    const first = await q<{ ts: number | null }>(
+      'SELECT MIN(ts) AS ts FROM readings WHERE engine_id = ? AND channel = ? AND quality = 0 AND ts > CAST(? AS INTEGER)',
+      [engineId, code, lastRunTs ?? -1],
+    );
+    const rec: StopRecord = { lastRunTs, stoppedSinceTs: first?.ts === null || first?.ts === undefined ? null : Number(first.ts) };
+    // readings that arrived while this was loading
+    for (const v of this.engines.get(engineId)?.engine_speed ?? []) if ((v.quality ?? 0) === 0) this.noteSpeedInto(rec, v.ts, v.value);
+    return rec;
+  }
+
+  private noteSpeedInto(rec: StopRecord, ts: number, rpm: number): void {
+    if (rpm > RUNNING_RPM) {
+      if (rec.lastRunTs === null || ts > rec.lastRunTs) {
+        rec.lastRunTs = ts;
+        if (rec.stoppedSinceTs !== null && rec.stoppedSinceTs <= ts) rec.stoppedSinceTs = null;
+      }
+    } else if ((rec.lastRunTs === null || ts > rec.lastRunTs) && (rec.stoppedSinceTs === null || ts < rec.stoppedSinceTs)) {
+      rec.stoppedSinceTs = ts;
     }
   }
 }

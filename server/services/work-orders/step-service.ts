@@ -3,6 +3,8 @@ import { LITRES_PER_US_GALLON } from '../../../shared/units';
 import { badRequest, conflict, HttpError, notFound } from '../../http-error';
 import type { ManualCheck } from '../../models/work-order-step';
 import type { AuthUser } from '../../telemetry/types';
+import { workTemplate } from '../work-templates';
+import { LOCK_STEP_KEYS, lockoutFor, UNLOCK_STEP_KEYS } from '../../../shared/work/lockout';
 import { computeGate, liveObjections, type GateResult } from './gate';
 import { pushWorkOrder, tellPlanners } from './notify';
 import type { WorkOrderService } from './work-order-service';
@@ -40,27 +42,92 @@ function snapshot(g: GateResult, at: Date, manual: boolean): Record<string, unkn
   return { at: at.toISOString(), clear: g.clear, stale: g.stale, manual, conditions: g.conditions, reasons: g.reasons };
 }
 
-export async function completeStep(svc: WorkOrderService, user: AuthUser, orderId: number, stepId: number, input: CompleteInput) {
-  const { models } = svc;
+/**
+ * Lockout/tagout for a gated step: confirmed once, on the step that says to lock out, and carried to the
+ * gated steps after it until a step that takes the lock off is done (shared/work/lockout.ts).
+ */
+export async function lockoutCarried(svc: WorkOrderService, orderId: number, gated: { position: number }): Promise<boolean> {
+  const steps = await svc.models.WorkOrderStep.findAll({ where: { workOrderId: orderId, key: [...LOCK_STEP_KEYS, ...UNLOCK_STEP_KEYS] }, attributes: ['key', 'position', 'doneAt'] });
+  return lockoutFor(steps.map((s) => ({ key: s.key, position: s.position, doneAt: s.doneAt ?? null })), gated) !== null;
+}
+
+/** The step of an order the assigned technician may work on now (in progress, not done). */
+async function workableStep(svc: WorkOrderService, user: AuthUser, orderId: number, stepId: number) {
   const order = await svc.getOrder(orderId);
-  const step = await models.WorkOrderStep.findOne({ where: { id: stepId, workOrderId: orderId } });
+  const step = await svc.models.WorkOrderStep.findOne({ where: { id: stepId, workOrderId: orderId } });
   if (!step) throw notFound('step');
   if (order.status !== 'in-progress') throw conflict('steps are done while the work order is in progress; start it first');
   if (user.role !== 'technician') throw new HttpError(403, 'steps are done by the technician');
   if (order.assigneeId !== user.id) throw new HttpError(403, 'this work order is assigned to another technician');
   if (step.doneAt) throw conflict('this step is already done');
+  return { order, step };
+}
 
-  const patch: Record<string, unknown> = { resultText: input.note?.trim() || null };
-  if (step.input === 'value') {
-    if (input.value === undefined) throw badRequest('this step records a value', 'value');
+export interface DraftInput {
+  value?: number | null;
+  unit?: string;
+  note?: string;
+}
+
+/**
+ * Saves what is typed into a step without completing it: the value as entered (with its unit, so the
+ * technician sees it as typed after a reload) and the remark. A locked gated step takes nothing (409).
+ */
+export async function saveDraft(svc: WorkOrderService, user: AuthUser, orderId: number, stepId: number, input: DraftInput) {
+  const { order, step } = await workableStep(svc, user, orderId, stepId);
+  if (step.gated) {
+    const engine = await svc.models.Engine.findByPk(order.engineId);
+    if (!engine) throw notFound('engine');
+    const lockout = await lockoutCarried(svc, orderId, step);
+    const gate = await computeGate(svc.history, engine, lockout);
+    if (!gate.clear) {
+      const why = lockout ? 'this step is locked: the opening check is not clear' : 'this step is locked: confirm lockout/tagout on its step first';
+      throw new GateShutError(why, { error: why, conditions: gate.conditions.filter((c) => !c.met), clearAt: gate.clearAt, reasons: gate.reasons, stale: gate.stale });
+    }
+  }
+  const patch: Record<string, unknown> = {};
+  if (input.value !== undefined) {
+    if (step.input !== 'value') throw badRequest('this step records no value', 'value');
     const stepUnit = step.unit ?? '';
-    const v = toStepUnit(input.value, input.unit ?? stepUnit, stepUnit);
+    const unit = input.unit ?? step.resultUnit ?? stepUnit;
+    if (toStepUnit(1, unit, stepUnit) === null) throw badRequest(`unit must be ${[stepUnit, ...(ENTRY_UNITS[stepUnit] ?? [])].join(', ')}`, 'unit');
+    patch.resultValue = input.value;
+    patch.resultUnit = input.value === null ? null : unit;
+  } else if (input.unit !== undefined) {
+    if (step.input !== 'value' || toStepUnit(1, input.unit, step.unit ?? '') === null) throw badRequest(`unit must be ${step.unit ?? 'none'}`, 'unit');
+    patch.resultUnit = input.unit;
+  }
+  if (input.note !== undefined) patch.resultText = input.note.trim() || null;
+  if (Object.keys(patch).length) await step.update(patch);
+  pushWorkOrder(svc.ctx, order, 'draft');
+  return step;
+}
+
+/** Other units a step's value may be typed in (the server converts on completion). */
+const ENTRY_UNITS: Record<string, string[]> = { degC: ['degF', 'K'], kPa: ['psi', 'bar'], L: ['gal'] };
+
+export async function completeStep(svc: WorkOrderService, user: AuthUser, orderId: number, stepId: number, input: CompleteInput) {
+  const { models } = svc;
+  const { order, step } = await workableStep(svc, user, orderId, stepId);
+
+  // what is not sent again is taken from the draft, so completing keeps what was typed
+  const note = input.note !== undefined ? input.note : (step.resultText ?? undefined);
+  const entered = input.value !== undefined ? { value: input.value, unit: input.unit } : step.resultValue !== null && step.resultValue !== undefined ? { value: step.resultValue, unit: step.resultUnit ?? undefined } : null;
+  const patch: Record<string, unknown> = { resultText: note?.trim() || null };
+  if (step.input === 'value') {
+    if (!entered) throw badRequest('this step records a value', 'value');
+    const stepUnit = step.unit ?? '';
+    const v = toStepUnit(entered.value, entered.unit ?? stepUnit, stepUnit);
     if (v === null) throw badRequest(`unit must be ${stepUnit}`, 'unit');
-    const range = RANGES[stepUnit];
+    const range = workTemplate(order.kind)?.steps.find((t) => t.key === step.key)?.range ?? RANGES[stepUnit];
     if (range && (v < range[0] || v > range[1])) throw badRequest(`value must be between ${range[0]} and ${range[1]} ${stepUnit}`, 'value');
     patch.resultValue = v;
     patch.resultUnit = stepUnit;
-  } else if (step.input === 'photo') {
+  } else {
+    patch.resultValue = null;
+    patch.resultUnit = null;
+  }
+  if (step.input === 'photo') {
     const photos = await models.Attachment.count({ where: { workOrderId: orderId, stepId: step.id } });
     if (!photos) throw badRequest('attach a photo to this step first', 'photo');
   }
@@ -70,7 +137,7 @@ export async function completeStep(svc: WorkOrderService, user: AuthUser, orderI
   if (step.gated) {
     const engine = await models.Engine.findByPk(order.engineId);
     if (!engine) throw notFound('engine');
-    const lockout = input.lockoutConfirmed === true;
+    const lockout = input.lockoutConfirmed === true || (await lockoutCarried(svc, orderId, step));
     const gate = await computeGate(svc.history, engine, lockout, now.getTime());
     if (!lockout) {
       throw new GateShutError('confirm lockout/tagout before this step', { error: 'confirm lockout/tagout before this step', conditions: gate.conditions.filter((c) => !c.met), clearAt: gate.clearAt, reasons: gate.reasons, stale: gate.stale });
@@ -98,6 +165,8 @@ export async function completeStep(svc: WorkOrderService, user: AuthUser, orderI
     patch.lockoutConfirmed = true;
     patch.gateSnapshot = snapshot(gate, now, manual);
   }
+  // the lock-out step is where lockout/tagout is confirmed
+  if (LOCK_STEP_KEYS.includes(step.key)) patch.lockoutConfirmed = true;
   patch.doneAt = now;
   patch.doneBy = user.id;
 
@@ -105,7 +174,7 @@ export async function completeStep(svc: WorkOrderService, user: AuthUser, orderI
     await step.update(patch, { transaction });
     await svc.event(orderId, user.id, manual ? 'step-done-manual-check' : 'step-done', {
       note: (patch.resultText as string | null) ?? null,
-      details: { stepId: step.id, key: step.key, value: patch.resultValue ?? null, unit: patch.resultUnit ?? null, entered: input.value !== undefined ? { value: input.value, unit: input.unit ?? step.unit } : null, manualCheck: manual ? input.manualCheck! : null },
+      details: { stepId: step.id, key: step.key, value: patch.resultValue ?? null, unit: patch.resultUnit ?? null, entered: entered ? { value: entered.value, unit: entered.unit ?? step.unit } : null, manualCheck: manual ? input.manualCheck! : null },
     }, transaction);
     if (manual) {
       await svc.audit(user.id, 'opening-check-manual-override', 'work_order_step', step.id, { workOrderId: orderId, engineId: order.engineId, manualCheck: input.manualCheck!, gate: patch.gateSnapshot as Record<string, unknown> }, transaction);

@@ -4,6 +4,8 @@ import { badRequest, conflict, HttpError, notFound } from '../../http-error';
 import type { WorkOrder, WorkPriority, WorkStatus } from '../../models/work-order';
 import type { AuthUser } from '../../telemetry/types';
 import { formatValue } from '../alarms/value-format';
+import { DEFAULT_RULES } from '../alarms/rule-definitions';
+import { coolantTestView } from '../coolant/coolant-tests';
 import { workTemplate, type WorkKind } from '../work-templates';
 import { pushWorkOrder } from './notify';
 import type { ReadingHistory } from './reading-history';
@@ -37,6 +39,17 @@ export interface ListQuery {
   assigneeId?: number;
   siteId?: number;
   mine?: boolean;
+}
+
+/** A rule's title in words (no raw keys in a description for people). */
+function ruleTitle(rule: string): string {
+  return DEFAULT_RULES.find((r) => r.key === rule)?.title ?? rule.replace(/_/g, ' ');
+}
+
+/** A time as the site reads it, with its zone: "25 Nov 2026, 15:28 (Europe/Berlin)". */
+function siteTime(d: Date, timeZone: string): string {
+  const f = new Intl.DateTimeFormat('en-GB', { timeZone, day: 'numeric', month: 'short', year: 'numeric', hour: '2-digit', minute: '2-digit', hourCycle: 'h23' });
+  return `${f.format(d)} (${timeZone})`;
 }
 
 const PLANNERS = ['planner', 'admin'] as const;
@@ -93,9 +106,10 @@ export class WorkOrderService {
       const alarm = await this.models.Alarm.findByPk(input.alarmId);
       if (!alarm) throw badRequest('alarm not found', 'alarmId');
       if (alarm.engineId !== engine.id) throw badRequest('alarm belongs to another engine', 'alarmId');
-      const value = alarm.value === null ? '' : `; value ${formatValue(alarm.value, alarm.unit)}`;
-      const worst = alarm.worstValue === null ? '' : `; worst ${formatValue(alarm.worstValue, alarm.unit)}`;
-      const fromAlarm = `From alarm #${alarm.id} (${alarm.rule}, ${alarm.priority}) raised ${new Date(alarm.raisedAt).toISOString()}: ${alarm.message}${value}${worst}.`;
+      const value = alarm.value === null ? '' : ` Value when raised: ${formatValue(alarm.value, alarm.unit)}.`;
+      const worst = alarm.worstValue === null ? '' : ` Worst since: ${formatValue(alarm.worstValue, alarm.unit)}.`;
+      const site = await this.models.Site.findByPk(engine.siteId, { attributes: ['timeZone'] });
+      const fromAlarm = `From alarm #${alarm.id}: ${ruleTitle(alarm.rule)}, ${alarm.priority} priority, raised ${siteTime(new Date(alarm.raisedAt), site?.timeZone ?? 'UTC')}. ${alarm.message.replace(/\.?$/, '.')}${value}${worst}`;
       description = description ? `${fromAlarm}\n\n${description}` : fromAlarm;
       if (!input.priority) priority = alarm.priority as WorkPriority;
       if (!input.title) title = `${template.title}: ${engine.name} (alarm #${alarm.id})`;
@@ -273,8 +287,11 @@ export class WorkOrderService {
     const users = userIds.size ? await this.models.User.findAll({ where: { id: [...userIds] }, attributes: ['id', 'name'] }) : [];
     const name = (uid: number | null) => (uid ? (users.find((u) => u.id === uid)?.name ?? null) : null);
     const template = workTemplate(order.kind);
+    const coolantTest = order.coolantTestId ? await coolantTestView(this.models, order.coolantTestId) : null;
     return {
       ...summary,
+      coolantTestId: order.coolantTestId ?? null,
+      coolantTest,
       cautions: template?.cautions ?? [],
       steps: steps.map((s) => ({
         id: s.id, position: s.position, key: s.key, title: s.title, detail: s.detail, input: s.input, unit: s.unit,

@@ -4,7 +4,11 @@ import { MatCardModule } from '@angular/material/card';
 import { MatIconModule } from '@angular/material/icon';
 import { MatProgressBarModule } from '@angular/material/progress-bar';
 import { MatTableModule } from '@angular/material/table';
-import { RouterLink } from '@angular/router';
+import { Router, RouterLink } from '@angular/router';
+import { MatDialog } from '@angular/material/dialog';
+import { suggestedWorkKind } from '../../../shared/alarms/work-kind';
+import { CreateWorkData, CreateWorkDialog } from '../work/create-work-dialog';
+import { WorkOrderDetail } from '../work/work-types';
 import { ClockService } from '../core/clock.service';
 import { PreferencesService } from '../core/preferences.service';
 import { AlarmActions } from './alarm-actions';
@@ -27,6 +31,8 @@ export class AlarmDetailPage {
   private readonly actions = inject(AlarmActions);
   private readonly prefs = inject(PreferencesService);
   private readonly clock = inject(ClockService);
+  private readonly dialog = inject(MatDialog);
+  private readonly router = inject(Router);
 
   /** Route parameter. */
   readonly id = input.required<string>();
@@ -44,10 +50,13 @@ export class AlarmDetailPage {
     return a ? formatDuration(this.clock.now() - Date.parse(a.raisedAt)) : '';
   });
   protected readonly notes = computed(() => (this.alarm()?.history ?? []).filter((h) => h.note && h.userId !== null));
-  protected readonly workOrderLink = computed(() => {
-    const a = this.alarm();
-    return a ? { engineId: a.engineId, alarmId: a.id, kind: 'filter-change' } : {};
-  });
+  /** A short dialog first (kind suggested by the alarm's rule, assignee, due date); then to the new work order. */
+  protected createWorkOrder(a: Alarm): void {
+    const data: CreateWorkData = { engineId: a.engineId, engineName: a.engineName ?? `Engine ${a.engineId}`, kind: suggestedWorkKind(a.rule), alarmId: a.id, from: `Alarm #${a.id}: ${a.title}` };
+    this.dialog.open<CreateWorkDialog, CreateWorkData, WorkOrderDetail>(CreateWorkDialog, { data, width: '520px', maxWidth: '95vw' }).afterClosed().subscribe((wo) => {
+      if (wo) void this.router.navigate(['/work', wo.id]);
+    });
+  }
   protected readonly canShelve = computed(() => {
     const s = this.alarm()?.state;
     return this.can.shelve && !this.alarm()?.closedAt && s !== 'shelved' && s !== 'out-of-service' && s !== 'suppressed-by-design';

@@ -1,4 +1,6 @@
 import { DatePipe } from '@angular/common';
+import { CreateWorkData, CreateWorkDialog } from '../work/create-work-dialog';
+import { WorkOrderDetail } from '../work/work-types';
 import { HttpErrorResponse } from '@angular/common/http';
 import { ChangeDetectionStrategy, Component, computed, inject, signal } from '@angular/core';
 import { toObservable, toSignal } from '@angular/core/rxjs-interop';
@@ -60,10 +62,8 @@ import { RunHoursDialog, type RunHoursDialogData } from './run-hours-dialog';
                     <td class="act">
                       @if (e.openWorkOrderId) {
                         <a mat-stroked-button [routerLink]="['/work', e.openWorkOrderId]">Open work order #{{ e.openWorkOrderId }}</a>
-                      } @else if (e.workKind && canCreate()) {
-                        <button mat-flat-button type="button" [disabled]="busy() === key(e)" (click)="create(e)">Create work order</button>
-                      } @else if (!e.workKind) {
-                        <span class="sub">no template for this task</span>
+                      } @else if (canCreate()) {
+                        <button mat-flat-button type="button" (click)="create(e)">Create work order</button>
                       }
                       @if (!e.openWorkOrderId && created()[key(e)]; as id) { <a [routerLink]="['/work', id]">Work order #{{ id }} created</a> }
                     </td>
@@ -142,20 +142,14 @@ export class DueListPage {
     });
   }
 
+  /** Opens the short dialog (kind suggested by the task, assignee, due date) before anything is created. */
   protected create(e: DueEntry): void {
-    if (!e.workKind) return;
-    this.busy.set(this.key(e));
+    const data: CreateWorkData = { engineId: e.engineId, engineName: e.engineName, kind: e.workKind ?? 'general-repair', title: `${e.title}: ${e.engineName}`, from: `Due task: ${e.title} (${e.reason})` };
     this.error.set(null);
-    this.api.createWorkOrder(e.engineId, e.workKind, `${e.title}: ${e.engineName}`).subscribe({
-      next: (wo) => {
-        this.busy.set(null);
-        this.created.update((c) => ({ ...c, [this.key(e)]: wo.id }));
-        this.reload.update((n) => n + 1);
-      },
-      error: (err) => {
-        this.busy.set(null);
-        this.error.set(`Could not create the work order: ${err instanceof HttpErrorResponse ? (err.error?.error ?? err.message) : String(err)}`);
-      },
+    this.dialog.open<CreateWorkDialog, CreateWorkData, WorkOrderDetail>(CreateWorkDialog, { data, width: '520px', maxWidth: '95vw' }).afterClosed().subscribe((wo) => {
+      if (!wo) return;
+      this.created.update((c) => ({ ...c, [this.key(e)]: wo.id }));
+      this.reload.update((n) => n + 1);
     });
   }
 }

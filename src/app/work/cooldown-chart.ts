@@ -152,7 +152,7 @@ export class CooldownChart {
     const dec = t.unit === 'bar' ? 2 : t.unit === 'kPa' ? 0 : 1;
     const xaxis: XAxisAnnotations[] = [];
     if (clearAt !== null) {
-      xaxis.push({ x: clearAt, borderColor: ink.mark, strokeDashArray: 3, label: { text: `predicted clear ${time(clearAt)}`, orientation: 'horizontal', position: 'top', textAnchor: 'end', borderWidth: 0, style: { background: 'transparent', color: ink.mark, fontSize: '11px' } } });
+      xaxis.push({ x: clearAt, borderColor: ink.mark, strokeDashArray: 3, label: { text: `forecast clear ${time(clearAt)}`, orientation: 'horizontal', position: 'top', textAnchor: 'end', borderWidth: 0, style: { background: 'transparent', color: ink.mark, fontSize: '11px' } } });
     }
     const points: PointAnnotations[] = [];
     if (t.reachAt !== null) {
@@ -195,8 +195,12 @@ export function describe(title: string, t: CooldownTrace): string {
   if (!last) return `${title}: no readings since the stop yet.`;
   const now = `${title} ${fmt(last.y, t.unit)}`;
   if (t.met) return `${now}: at or below the limit ${fmt(t.limit, t.unit)}.`;
-  if (t.reachAt !== null) return `${now}, above the limit ${fmt(t.limit, t.unit)}: the fitted curve reaches it at about ${time(t.reachAt)}.`;
+  if (t.reachAt !== null && t.band) {
+    return `${now}, above the limit ${fmt(t.limit, t.unit)}: forecast to reach it about ${time(t.reachAt)} (between ${time(t.band.earliest)} and ${t.band.latest === null ? 'an unknown later time' : time(t.band.latest)}; the surroundings' temperature is estimated, not measured).`;
+  }
+  if (t.reachAt !== null) return `${now}, above the limit ${fmt(t.limit, t.unit)}: forecast to reach it about ${time(t.reachAt)}.`;
+  if (t.why === 'rising') return `${now}, above the limit ${fmt(t.limit, t.unit)}: rising (heat soak after the stop), no forecast until it falls.`;
   if (t.why === 'heater') return `${now}, above the limit ${fmt(t.limit, t.unit)}: it levels off at the heater setpoint and can never reach the limit while the heater is on.`;
   if (t.why === 'ambient') return `${now}, above the limit ${fmt(t.limit, t.unit)}: the surroundings are as warm as the limit, so it will not cool below it by itself.`;
-  return `${now}, above the limit ${fmt(t.limit, t.unit)}: ${t.why ?? 'no prediction'}, no crossing time yet.`;
+  return `${now}, above the limit ${fmt(t.limit, t.unit)}: ${t.why ?? 'no forecast'}, no forecast yet.`;
 }

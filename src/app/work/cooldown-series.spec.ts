@@ -50,6 +50,23 @@ describe('buildCooldown', () => {
     expect(Math.abs(at.y - coolingTemperature(88, 25, 1800, (at.x - STOP) / 1000))).toBeLessThan(0.05);
   });
 
+  it('a rising curve (heat soak 88 -> 96 °C) gets no forecast, as on the server (shared forecastCooling)', () => {
+    const m = buildCooldown(input({ temp: buckets(60, 10, (s) => 96 - 8 * Math.exp(-s / 200)) }));
+    expect(m.temp.reachAt).toBeNull();
+    expect(m.temp.fitted).toEqual([]);
+    expect(m.temp.why).toBe('rising');
+    const flat = buildCooldown(input({ temp: buckets(60, 10, () => 62), ambientC: null }));
+    expect(flat.temp.reachAt).toBeNull();
+    expect(flat.temp.why).toBe('not falling');
+  });
+
+  it('with the ambient fitted, the forecast carries a band around it', () => {
+    const m = buildCooldown(input({ ambientC: null }));
+    expect(m.temp.reachAt).not.toBeNull();
+    expect(m.temp.band).not.toBeNull();
+    expect(m.temp.band!.earliest).toBeLessThanOrEqual(m.temp.reachAt!);
+  });
+
   it('fits the pressure from where it leaves its plateau and reaches the limit at 100 + 300 ln(95/7) s', () => {
     const m = buildCooldown(input());
     expect(Math.abs(m.pressure.reachAt! - (STOP + (100 + 300 * Math.log(95 / 7)) * 1000))).toBeLessThan(1000);

@@ -1,3 +1,4 @@
+import { forecastCooling } from '../../../shared/cooling/forecast';
 import { coolingTemperature, fitCooling, timeToReachS } from '../../../shared/cooling/newton-cooling';
 import { pressureFalling } from '../../../shared/work/opening-check';
 import { UnitPreferences, convertStored, unitSymbol } from '../ui/unit-format';
@@ -30,8 +31,10 @@ export interface CooldownTrace {
   fitted: XY[];
   /** The limit in display units. */
   limit: number;
-  /** ms when the fitted curve reaches the limit; null when it does not (see `why`). */
+  /** ms when the fitted curve reaches the limit (the forecast); null when it does not (see `why`). */
   reachAt: number | null;
+  /** The forecast's band when the ambient had to be fitted (latest null: cannot say); null otherwise. */
+  band: { earliest: number; latest: number | null } | null;
   /** The newest reading is at or below the limit. */
   met: boolean;
   /** Why there is no crossing, in words; null when there is one or the limit is met. */
@@ -89,30 +92,28 @@ export function buildCooldown(input: CooldownInput): { temp: CooldownTrace; pres
   const tLimit = input.safeOpenTempC;
   const towards = [input.heaterSetpointC, input.ambientC].filter((v): v is number => v !== null && Number.isFinite(v));
   const ta = towards.length ? Math.max(...towards) : null;
-  const tTrace: CooldownTrace = { unit: unitSymbol('temperature', input.prefs), measured: bounded(temp, n).map((b) => ({ x: b.t, y: cT(b.mean) })), fitted: [], limit: cT(tLimit), reachAt: null, met: false, why: null };
+  const tTrace: CooldownTrace = { unit: unitSymbol('temperature', input.prefs), measured: bounded(temp, n).map((b) => ({ x: b.t, y: cT(b.mean) })), fitted: [], limit: cT(tLimit), reachAt: null, band: null, met: false, why: null };
   const tLast = temp.length ? { ts: temp[temp.length - 1].t, value: temp[temp.length - 1].mean } : null;
   tTrace.met = !!tLast && tLast.value <= tLimit;
-  const tFit = temp.length >= 3 ? fitCooling(temp.map((b) => ({ t: b.t / 1000, temp: b.mean })), ta) : null;
-  if (tLast && tFit && !tTrace.met) {
-    const dt = timeToReachS(tLast.value, tFit.ambientC, tFit.tauS, tLimit);
-    if (Number.isFinite(dt)) {
-      tTrace.reachAt = tLast.ts + dt * 1000;
-      tTrace.fitted = curve(temp[0].t, tTrace.reachAt, tLast, tFit.ambientC, tFit.tauS, cT);
-    } else {
-      // Levelling off above the limit: draw three time constants ahead to show where it settles.
-      tTrace.fitted = curve(temp[0].t, tLast.ts + 3 * tFit.tauS * 1000, tLast, tFit.ambientC, tFit.tauS, cT);
-    }
+  // the shared forecast (the opening check uses the same): none while rising or flat, a band when Ta is fitted
+  const fc = tLast && !tTrace.met ? forecastCooling(temp.map((b) => ({ ts: b.t, value: b.mean })), tLimit, ta) : null;
+  if (tLast && fc?.kind === 'forecast') {
+    tTrace.reachAt = fc.at;
+    tTrace.fitted = curve(temp[0].t, fc.at, tLast, fc.ambientC, fc.tauS, cT);
+    if (fc.ambientFitted) tTrace.band = { earliest: fc.earliest, latest: fc.latest };
   }
   if (!tTrace.met && tTrace.reachAt === null) {
     if (input.heaterSetpointC !== null && input.heaterSetpointC >= tLimit) tTrace.why = 'heater';
     else if (ta !== null && ta >= tLimit) tTrace.why = 'ambient';
+    else if (fc?.kind === 'none' && fc.why === 'rising') tTrace.why = 'rising';
+    else if (fc?.kind === 'none' && (fc.why === 'flat' || fc.why === 'levels-off')) tTrace.why = 'not falling';
     else tTrace.why = temp.length < 3 ? 'too few readings since the stop' : 'not cooling toward the limit';
   }
 
   // Pressure: decay toward 0 kPa gauge fitted from where it leaves its plateau, as the check does.
   const pres = good(input.pressure, input.stopTs);
   const pLimit = input.maxPressureKpa;
-  const pTrace: CooldownTrace = { unit: unitSymbol('pressure', input.prefs), measured: bounded(pres, n).map((b) => ({ x: b.t, y: cP(b.mean) })), fitted: [], limit: cP(pLimit), reachAt: null, met: false, why: null };
+  const pTrace: CooldownTrace = { unit: unitSymbol('pressure', input.prefs), measured: bounded(pres, n).map((b) => ({ x: b.t, y: cP(b.mean) })), fitted: [], limit: cP(pLimit), reachAt: null, band: null, met: false, why: null };
   const pLast = pres.length ? { ts: pres[pres.length - 1].t, value: pres[pres.length - 1].mean } : null;
   pTrace.met = !!pLast && pLast.value <= pLimit;
   if (pLast && !pTrace.met) {

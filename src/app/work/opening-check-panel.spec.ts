@@ -21,7 +21,7 @@ function hotWithHeater(over: Partial<OpeningCheck['settings']> = {}): OpeningChe
       { name: 'held', met: false, value: 0, limit: 120, unit: 's' },
     ],
     reasons: [
-      'Engine stopped for 300 s; needs 600 s.',
+      'Engine stopped for 5.0 min; needs 10.0 min.',
       'Coolant 71.4 °C is above the safe opening temperature 50 °C.',
       'The jacket-water heater is set to 55 °C, at or above the safe opening temperature 50 °C: the coolant will not cool below it until the heater is switched off (and locked out).',
     ],
@@ -70,8 +70,19 @@ describe('OpeningCheckPanel', () => {
     const states = Array.from(el.querySelectorAll('.conditions li .state')).map((e) => e.textContent!.trim());
     expect(states).toEqual(['Not met', 'Not met', 'Not met', 'Met', 'Not met', 'Not met']);
     expect(el.querySelectorAll('.reasons li').length).toBe(3);
-    expect(text()).toContain('Engine stopped for 300 s; needs 600 s.');
+    expect(text()).toContain('Engine stopped for 5.0 min; needs 10.0 min.');
     expect(text()).toContain('Not clear: keep the cooling system closed');
+    // one unit style: durations of minutes in minutes, in the conditions and in the reasons alike
+    expect(rows[0]).toContain('5.0 min, needs 10.0 min');
+    expect(rows[5]).toContain('0.0 min, needs 2.0 min');
+    expect(text()).not.toMatch(/stopped for \d+ s/);
+  });
+
+  it('a stop of days reads in days, not thousands of minutes', async () => {
+    const c = hotWithHeater();
+    c.conditions[0] = { name: 'engine-stopped', met: true, value: 3 * 86400, limit: 600, unit: 's', detail: '0 rpm' };
+    await answer(c);
+    expect(el.querySelector('.conditions li')!.textContent).toContain('3.0 d, needs 10.0 min');
   });
 
   it('says plainly that the check can never clear while the heater is on', async () => {

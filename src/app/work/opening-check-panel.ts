@@ -27,8 +27,14 @@ const POLL_MS = 5000;
             <div class="word">{{ c.clear ? 'Clear: the cooling system may be opened' : 'Not clear: keep the cooling system closed' }}</div>
             <div class="sub">
               @if (c.stale) { Live data is missing or stale. }
-              @else if (!c.clear && c.clearAt) { Predicted clear at {{ when(c.clearAt) }} (in about {{ minutesUntil(c.clearAt) }} min). }
-              @else if (!c.clear) { No clear time can be predicted yet. }
+              @else if (!c.clear && c.clearAt) {
+                Forecast: clear in about {{ minutesUntil(c.clearAt) }} min ({{ when(c.clearAt) }}).
+                @if (c.forecast?.ambientFitted) {
+                  Could be from {{ when(c.forecast!.earliest) }} to {{ c.forecast!.latest === null ? 'later than can be said' : when(c.forecast!.latest) }}: the surroundings' temperature is estimated, not measured.
+                }
+                A forecast only: the lock opens when the check is clear.
+              }
+              @else if (!c.clear) { No forecast yet. }
               Checked {{ when(c.at) }}.
             </div>
           </div>
@@ -158,10 +164,10 @@ export class OpeningCheckPanel {
   protected valueText(c: OpeningCondition): string {
     const s = this.check()?.settings;
     // "1.4 min, needs 0.5 min" reads right whether the time is short of the limit or past it
-    if (c.name === 'engine-stopped') return c.detail === 'no data' ? 'no data' : `${minutes(c.value)} min, needs ${minutes(c.limit)} min · ${c.detail ?? ''}`;
-    if (c.name === 'held') return `${minutes(c.value)} min, needs ${minutes(c.limit)} min`;
+    if (c.name === 'engine-stopped') return c.detail === 'no data' ? 'no data' : `${duration(c.value)}, needs ${duration(c.limit)} · ${c.detail ?? ''}`;
+    if (c.name === 'held') return `${duration(c.value)}, needs ${duration(c.limit)}`;
     if (c.name === 'telemetry-fresh') return c.value === null ? 'no data' : `newest ${Math.round(Number(c.value))} s old (max ${s?.staleAfterS ?? c.limit} s)`;
-    if (c.name === 'lockout-confirmed') return c.met ? 'ticked below' : 'tick it on the step';
+    if (c.name === 'lockout-confirmed') return c.met ? 'confirmed on the lock-out step' : 'do the lock-out step first';
     return '';
   }
 
@@ -175,4 +181,10 @@ export class OpeningCheckPanel {
 }
 
 const num = (v: unknown): number | null => (typeof v === 'number' ? v : null);
-const minutes = (v: unknown): string => (typeof v === 'number' ? (v / 60).toFixed(1) : '—');
+/** Seconds as the panel writes every duration: minutes (one decimal) up to two hours, then hours, then days. */
+export function duration(v: unknown): string {
+  if (typeof v !== 'number' || !Number.isFinite(v)) return '—';
+  if (v < 2 * 3600) return `${(v / 60).toFixed(1)} min`;
+  if (v < 48 * 3600) return `${(v / 3600).toFixed(1)} h`;
+  return `${(v / 86400).toFixed(1)} d`;
+}

@@ -1,14 +1,14 @@
-import { HttpClient } from '@angular/common/http';
-import { ChangeDetectionStrategy, Component, computed, effect, inject, input, signal, untracked } from '@angular/core';
+import { HttpClient, HttpErrorResponse } from '@angular/common/http';
+import { ChangeDetectionStrategy, Component, computed, effect, inject, input, output, signal, untracked } from '@angular/core';
 import { MatButtonModule } from '@angular/material/button';
 import { MatIconModule } from '@angular/material/icon';
 import { RouterLink } from '@angular/router';
-import { firstValueFrom } from 'rxjs';
 import { CoolantInputError, decideAdditive, type AdditiveDecision, type CoolantFamily } from '../../../shared/coolant';
 import { AdditiveDecisionView } from '../coolant/additive-decision';
-import { AdditiveProfile, CoolantTest } from '../coolant/coolant-types';
+import { AdditiveProfile } from '../coolant/coolant-types';
 import { CoolantService } from '../coolant/coolant.service';
-import { errorText } from './work-api';
+import { errorText, WorkApi } from './work-api';
+import { OrderCoolantTest, WorkOrderDetail } from './work-types';
 
 interface EngineFacts {
   id: number;
@@ -20,7 +20,8 @@ interface EngineFacts {
 /**
  * Inside a coolant-test work order: the additive decision and dose for THIS engine from the readings
  * entered in the steps (decideAdditive from shared/, the same rule the server stores with a test), and
- * a button that records them as a coolant test so the coolant history and the due list see it.
+ * a button that records them as a coolant test so the coolant history and the due list see it: once per
+ * order, after the sampling step is done (the server enforces both; a correction is an amendment).
  */
 @Component({
   selector: 'jw-step-coolant-check',
@@ -36,11 +37,12 @@ interface EngineFacts {
       } @else {
         <jw-additive-decision [decision]="decision()" />
       }
-      @if (recorded(); as t) {
-        <p class="ok" role="status"><mat-icon fontIcon="check_circle" aria-hidden="true" />Recorded as coolant test #{{ t.id }}; it is in the
-          <a [routerLink]="['/engines', t.engineId, 'coolant']">coolant history</a> and the due list.</p>
+      @if (shownTest(); as t) {
+        <p class="ok" role="status" data-test="coolant-test-recorded"><mat-icon fontIcon="check_circle" aria-hidden="true" />Recorded as coolant test #{{ t.id }}; it is in the
+          <a [routerLink]="['/engines', t.engineId, 'coolant']">coolant history</a> and the due list. A correction is an amendment to this record.</p>
       } @else if (canRecord()) {
-        <button mat-stroked-button type="button" (click)="record()" [disabled]="busy() || !hasReading()" data-test="record-coolant-test">
+        @if (!sampleTaken()) { <p class="hint"><mat-icon fontIcon="lock" aria-hidden="true" />The test can be recorded once the sampling step is done.</p> }
+        <button mat-stroked-button type="button" (click)="record()" [disabled]="busy() || !hasReading() || !sampleTaken()" data-test="record-coolant-test">
           <mat-icon fontIcon="playlist_add_check" />Record as a coolant test
         </button>
         @if (error(); as e) { <p class="err" role="alert">{{ e }}</p> }
@@ -68,12 +70,20 @@ export class StepCoolantCheck {
   readonly phValue = input<number | null>(null);
   /** The technician doing the work may record. */
   readonly canRecord = input(false);
+  /** The test this order already recorded, if any. */
+  readonly recordedTest = input<OrderCoolantTest | null>(null);
+  /** The sampling step is done. */
+  readonly sampleTaken = input(false);
+  /** The order after recording (or as the server has it when it was recorded before). */
+  readonly orderChanged = output<WorkOrderDetail>();
+  private readonly work = inject(WorkApi);
 
   protected readonly engine = signal<EngineFacts | null>(null);
   private readonly profile = signal<AdditiveProfile | null>(null);
   protected readonly busy = signal(false);
   protected readonly error = signal<string | null>(null);
-  protected readonly recorded = signal<CoolantTest | null>(null);
+  protected readonly recorded = signal<OrderCoolantTest | null>(null);
+  protected readonly shownTest = computed(() => this.recordedTest() ?? this.recorded());
 
   private readonly outcome = computed<{ decision: AdditiveDecision | null; error: string | null }>(() => {
     const e = this.engine();
@@ -105,13 +115,14 @@ export class StepCoolantCheck {
     this.busy.set(true);
     this.error.set(null);
     try {
-      const t = await firstValueFrom(this.coolant.record(this.engineId(), {
-        method: 'strip', scaUnitsPerGal: this.scaUnitsPerGal(), glycolPercent: this.glycolPercent(), freezePointC: this.freezePointC(),
-        ph: this.phValue(), conductivityUsCm: null, appearance: null, notes: `From work order #${this.workOrderId()}`,
-      }));
-      this.recorded.set(t);
+      const r = await this.work.recordCoolantTest(this.workOrderId());
+      this.recorded.set(r.coolantTest);
+      this.orderChanged.emit(r.order);
     } catch (e) {
-      this.error.set(errorText(e));
+      // recorded before (another tab or device): show that test instead of offering again
+      const earlier = e instanceof HttpErrorResponse && e.status === 409 ? (e.error as { coolantTest?: OrderCoolantTest | null }).coolantTest : null;
+      if (earlier) this.recorded.set(earlier);
+      else this.error.set(errorText(e));
     } finally {
       this.busy.set(false);
     }

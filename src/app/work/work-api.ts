@@ -2,7 +2,7 @@ import { HttpClient, HttpErrorResponse } from '@angular/common/http';
 import { Injectable, inject } from '@angular/core';
 import { firstValueFrom } from 'rxjs';
 import { ReadingBucket } from './cooldown-series';
-import { Assignee, CoolantTestSummary, ManualCheck, OpeningCheck, WorkOrderDetail, WorkOrderSummary, WorkPriority, WorkStatus, WorkTemplate } from './work-types';
+import { Assignee, CoolantTestSummary, ManualCheck, OpeningCheck, OrderCoolantTest, WorkOrderDetail, WorkOrderSummary, WorkPriority, WorkStatus, WorkTemplate } from './work-types';
 
 export interface ListFilter {
   status?: WorkStatus[];
@@ -73,6 +73,16 @@ export class WorkApi {
 
   completeStep(id: number, stepId: number, body: CompleteRequest): Promise<WorkOrderDetail> {
     return firstValueFrom(this.http.post<WorkOrderDetail>(`/api/work-orders/${id}/steps/${stepId}/complete`, body));
+  }
+
+  /** Saves what is typed into a step without completing it (the server keeps it for a reload or another device). */
+  saveDraft(id: number, stepId: number, body: { value?: number | null; unit?: string; note?: string }): Promise<WorkOrderDetail> {
+    return firstValueFrom(this.http.patch<WorkOrderDetail>(`/api/work-orders/${id}/steps/${stepId}`, body));
+  }
+
+  /** Records the order's coolant test from its steps (once per order; a second call answers 409 with the recorded test). */
+  recordCoolantTest(id: number, method?: string): Promise<{ coolantTest: OrderCoolantTest; order: WorkOrderDetail }> {
+    return firstValueFrom(this.http.post<{ coolantTest: OrderCoolantTest; order: WorkOrderDetail }>(`/api/work-orders/${id}/coolant-test`, method ? { method } : {}));
   }
 
   addPart(id: number, body: { kind: string; quantity: number; unit: 'L' | 'gal' | 'pcs'; description?: string }): Promise<WorkOrderDetail> {

@@ -1,4 +1,4 @@
-import { ChangeDetectionStrategy, Component, computed, effect, inject, input, signal, untracked } from '@angular/core';
+import { ChangeDetectionStrategy, Component, ElementRef, computed, effect, inject, input, signal, untracked, viewChild } from '@angular/core';
 import { FormsModule } from '@angular/forms';
 import { MatButtonModule } from '@angular/material/button';
 import { MatCardModule } from '@angular/material/card';
@@ -6,6 +6,9 @@ import { MatFormFieldModule } from '@angular/material/form-field';
 import { MatIconModule } from '@angular/material/icon';
 import { MatInputModule } from '@angular/material/input';
 import { MatSelectModule } from '@angular/material/select';
+import { MatDatepickerModule } from '@angular/material/datepicker';
+import { provideNativeDateAdapter } from '@angular/material/core';
+import { checkDueDate, MAX_DUE, MIN_DUE } from './due-date';
 import { Router, RouterLink } from '@angular/router';
 import { AuthService } from '../core/auth.service';
 import { WorkApi, errorText } from './work-api';
@@ -19,13 +22,14 @@ import { Assignee, WorkPriority, WorkTemplate } from './work-types';
 @Component({
   selector: 'jw-work-new-page',
   changeDetection: ChangeDetectionStrategy.OnPush,
-  imports: [FormsModule, MatButtonModule, MatCardModule, MatFormFieldModule, MatIconModule, MatInputModule, MatSelectModule, RouterLink],
+  imports: [FormsModule, MatButtonModule, MatCardModule, MatFormFieldModule, MatIconModule, MatInputModule, MatSelectModule, MatDatepickerModule, RouterLink],
+  providers: [provideNativeDateAdapter()],
   template: `
     <div class="page">
       <h1>{{ planner() ? 'New work order' : 'Request work' }}</h1>
       @if (alarmId()) { <p class="from-alarm"><mat-icon fontIcon="link" aria-hidden="true" />From alarm #{{ alarmId() }}: its details are copied into the description and the alarm is linked.</p> }
       @if (!planner()) { <p class="hint">Your request goes to the planner, who accepts or declines it.</p> }
-      <form class="form" (ngSubmit)="submit()">
+      <form class="form" (ngSubmit)="submit(dueText())">
         <mat-form-field appearance="outline">
           <mat-label>Engine</mat-label>
           <mat-select name="engine" [(ngModel)]="engine" required>
@@ -56,7 +60,9 @@ import { Assignee, WorkPriority, WorkTemplate } from './work-types';
         @if (planner()) {
           <mat-form-field appearance="outline">
             <mat-label>Due date</mat-label>
-            <input matInput type="date" name="due" [(ngModel)]="dueDate" />
+            <input matInput name="due" [matDatepicker]="duePicker" [min]="minDue" [max]="maxDue" [(ngModel)]="dueDate" #dueInput />
+            <mat-datepicker-toggle matIconSuffix [for]="duePicker" />
+            <mat-datepicker #duePicker />
           </mat-form-field>
           <mat-form-field appearance="outline">
             <mat-label>Assign to</mat-label>
@@ -108,7 +114,13 @@ export class WorkNewPage {
   protected title = '';
   protected description = '';
   protected priority: WorkPriority | null = null;
-  protected dueDate = '';
+  protected dueDate: Date | null = null;
+  protected readonly minDue = MIN_DUE;
+  protected readonly maxDue = MAX_DUE;
+  private readonly dueInput = viewChild<ElementRef<HTMLInputElement>>('dueInput');
+  protected dueText(): string {
+    return this.dueInput()?.nativeElement.value ?? '';
+  }
   protected assigneeId: number | null = null;
 
   constructor() {
@@ -130,8 +142,10 @@ export class WorkNewPage {
     return this.sites().find((s) => s.id === id)?.name ?? '';
   }
 
-  protected async submit(): Promise<void> {
+  protected async submit(typedDue = ''): Promise<void> {
     if (!this.engine || !this.kind) return;
+    const due = checkDueDate(this.dueDate, typedDue);
+    if (!due.ok) return void this.error.set(`Due date: ${due.message}`);
     this.busy.set(true);
     this.error.set(null);
     try {
@@ -142,7 +156,7 @@ export class WorkNewPage {
         ...(this.title.trim() ? { title: this.title.trim() } : {}),
         ...(this.description.trim() ? { description: this.description.trim() } : {}),
         ...(this.priority ? { priority: this.priority } : {}),
-        ...(this.planner() && this.dueDate ? { dueDate: this.dueDate } : {}),
+        ...(this.planner() && due.value ? { dueDate: due.value } : {}),
         ...(this.planner() && this.assigneeId ? { assigneeId: this.assigneeId } : {}),
       });
       void this.router.navigate(['/work', o.id]);

@@ -21,7 +21,13 @@ import { WorkApi, errorText } from './work-api';
 import { CONDITION_TEXT, EVENT_TEXT, PART_TEXT, PRIORITY_TEXT, STATUS_ICON, STATUS_TEXT, STEP_UNIT_TEXT, formatDate, formatDateTime } from './work-labels';
 import { Assignee, GateRefusal, OpeningCheck, OpeningCondition, WorkOrderDetail, WorkStatus, WorkStep } from './work-types';
 import { StepCoolantCheck } from './step-coolant-check';
+import { TransitionNoteData, TransitionNoteDialog } from './transition-note-dialog';
+import { MatDialog } from '@angular/material/dialog';
+import { MatDatepickerModule } from '@angular/material/datepicker';
+import { provideNativeDateAdapter } from '@angular/material/core';
+import { checkDueDate, fromDateOnly, MAX_DUE, MIN_DUE } from './due-date';
 import { toCelsius } from '../../../shared/units';
+import { lockoutFor, lockStepBefore } from '../../../shared/work/lockout';
 
 interface StepDraft {
   value: number | null;
@@ -45,8 +51,9 @@ const ENTRY_UNITS: Record<string, string[]> = { degC: ['degC', 'degF'], kPa: ['k
   changeDetection: ChangeDetectionStrategy.OnPush,
   imports: [
     FormsModule, RouterLink, MatButtonModule, MatCardModule, MatCheckboxModule, MatExpansionModule, MatFormFieldModule, MatIconModule,
-    MatInputModule, MatProgressBarModule, MatSelectModule, MatTableModule, OpeningCheckPanel, AttachmentThumb, StepCoolantCheck,
+    MatInputModule, MatProgressBarModule, MatSelectModule, MatTableModule, MatDatepickerModule, OpeningCheckPanel, AttachmentThumb, StepCoolantCheck,
   ],
+  providers: [provideNativeDateAdapter()],
   templateUrl: './work-order-page.html',
   styleUrl: './work-order-page.scss',
 })
@@ -54,6 +61,7 @@ export class WorkOrderPage {
   private readonly api = inject(WorkApi);
   protected readonly auth = inject(AuthService);
   private readonly prefs = inject(PreferencesService);
+  private readonly dialog = inject(MatDialog);
 
   /** Route parameter. */
   readonly id = input.required<string>();
@@ -65,7 +73,6 @@ export class WorkOrderPage {
   protected readonly gate = signal<OpeningCheck | null>(null);
   protected readonly assignees = signal<Assignee[]>([]);
   protected readonly drafts: Record<number, StepDraft> = {};
-  protected transitionNote = '';
   protected amendmentText = '';
   /** Nothing chosen until the additive test says which filter (or the user chooses). */
   protected part = { kind: '', quantity: 1 as number | null, unit: 'pcs' as 'L' | 'gal' | 'pcs', description: '' };
@@ -95,6 +102,20 @@ export class WorkOrderPage {
   protected readonly hasGated = computed(() => (this.order()?.steps ?? []).some((s) => s.gated && !s.doneAt));
   protected readonly openRequired = computed(() => (this.order()?.steps ?? []).filter((s) => !s.optional && !s.doneAt).length);
   protected readonly anyLockout = signal(false);
+  /** Per step: 'saving', 'saved' or an error text, shown under the inputs. */
+  protected readonly draftState = signal<Record<number, string>>({});
+  private readonly draftTimers = new Map<number, ReturnType<typeof setTimeout>>();
+  /** Per gated step: the lock step whose confirmation holds for it (shared/work/lockout.ts), or null. */
+  protected carriedLock(s: WorkStep): WorkStep | null {
+    return lockoutFor(this.order()?.steps ?? [], s);
+  }
+  /** The lock step a gated step needs done first, if the template has one. */
+  protected lockStep(s: WorkStep): WorkStep | null {
+    return lockStepBefore(this.order()?.steps ?? [], s);
+  }
+  /** Some gated step not yet done has its lockout carried (for the opening-check panel). */
+  protected readonly lockoutCarried = computed(() => (this.order()?.steps ?? []).some((s) => s.gated && !s.doneAt && lockoutFor(this.order()!.steps, s) !== null));
+  protected readonly sampleTaken = computed(() => !!this.order()?.steps.find((s) => s.key === 'take-sample')?.doneAt);
 
   /** Moves this user may offer now; the server decides again. */
   protected readonly moves = computed<{ to: WorkStatus; label: string; icon: string; needsNote?: boolean; primary?: boolean }[]>(() => {
@@ -146,11 +167,50 @@ export class WorkOrderPage {
 
   private set(o: WorkOrderDetail): void {
     for (const s of o.steps) {
-      this.drafts[s.id] ??= { value: null, unit: s.unit ?? '', note: '', lockout: false, manual: false, gaugeKpa: null, tempC: null, minutesSinceStop: null, checkedBy: this.auth.user()?.name ?? '', reason: '' };
-      if (s.unit && this.drafts[s.id].value === null) this.drafts[s.id].unit = this.preferredUnit(s.unit);
+      if (!this.drafts[s.id]) {
+        // a step not done shows the draft the server keeps (as typed, with its unit)
+        const saved = !s.doneAt && s.resultValue !== null;
+        this.drafts[s.id] = {
+          value: saved ? s.resultValue : null, unit: saved && s.resultUnit ? s.resultUnit : (s.unit ?? ''), note: !s.doneAt ? (s.resultText ?? '') : '',
+          lockout: false, manual: false, gaugeKpa: null, tempC: null, minutesSinceStop: null, checkedBy: this.auth.user()?.name ?? '', reason: '',
+        };
+        if (s.unit && !saved) this.drafts[s.id].unit = this.preferredUnit(s.unit);
+      }
     }
     this.order.set(o);
+    this.anyLockout.set(this.lockoutCarried() || Object.values(this.drafts).some((d) => d.lockout));
     this.error.set(null);
+  }
+
+  /** Typed into a step: saved on the server after a short pause (not for a locked gated step, which takes nothing). */
+  protected draftChanged(s: WorkStep): void {
+    if (!this.working() || s.doneAt || (s.gated && !this.unlocked(s))) return;
+    clearTimeout(this.draftTimers.get(s.id));
+    this.draftTimers.set(s.id, setTimeout(() => void this.saveDraft(s), 600));
+  }
+
+  private async saveDraft(s: WorkStep): Promise<void> {
+    this.draftTimers.delete(s.id);
+    const d = this.drafts[s.id];
+    const body: { value?: number | null; unit?: string; note?: string } = { note: d.note };
+    if (s.input === 'value') {
+      const v = d.value === null || d.value === undefined || (d.value as unknown) === '' ? null : Number(d.value);
+      body.value = v !== null && Number.isFinite(v) ? v : null;
+      body.unit = d.unit;
+    }
+    this.draftState.set({ ...this.draftState(), [s.id]: 'saving' });
+    try {
+      const o = await this.api.saveDraft(this.order()!.id, s.id, body);
+      // keep what is being typed; take the rest of the order as the server has it
+      this.order.set(o);
+      this.draftState.set({ ...this.draftState(), [s.id]: 'saved' });
+    } catch (e) {
+      this.draftState.set({ ...this.draftState(), [s.id]: `Not saved: ${errorText(e)}` });
+    }
+  }
+
+  protected orderChanged(o: WorkOrderDetail): void {
+    this.set(o);
   }
 
   private preferredUnit(stepUnit: string): string {
@@ -183,7 +243,9 @@ export class WorkOrderPage {
   protected lockText(s: WorkStep): string {
     const g = this.gate();
     if (!g) return 'Locked until the opening check has been read';
-    if (g.clear) return 'Opening check clear: tick lockout/tagout to unlock';
+    const lock = this.lockStep(s);
+    if (this.unlocked(s)) return g.clear ? 'Unlocked: the opening check is clear and lockout/tagout is confirmed' : 'Unlocked on a manual check (live data stale)';
+    if (g.clear) return lock ? `Opening check clear: do step ${lock.position} (lock out and tag out) to unlock` : 'Opening check clear: tick lockout/tagout to unlock';
     return g.stale ? 'Locked: live data missing or stale (a manual check is possible)' : 'Locked: opening check not clear';
   }
 
@@ -191,7 +253,7 @@ export class WorkOrderPage {
     if (!s.gated) return true;
     const d = this.drafts[s.id];
     const g = this.gate();
-    if (!d?.lockout) return false;
+    if (!d?.lockout && !this.carriedLock(s)) return false;
     return !!g && (g.clear || (g.stale && d.manual));
   }
 
@@ -200,7 +262,7 @@ export class WorkOrderPage {
   }
 
   protected onLockout(): void {
-    this.anyLockout.set(Object.values(this.drafts).some((d) => d.lockout));
+    this.anyLockout.set(this.lockoutCarried() || Object.values(this.drafts).some((d) => d.lockout));
   }
 
   protected async act(fn: () => Promise<WorkOrderDetail>): Promise<void> {
@@ -216,11 +278,34 @@ export class WorkOrderPage {
   }
 
   protected move(to: WorkStatus, needsNote?: boolean): void {
-    if (needsNote && !this.transitionNote.trim()) {
-      this.error.set('Write a note saying why, then press the button again.');
+    const o = this.order()!;
+    if (!needsNote) {
+      void this.act(() => this.api.transition(o.id, to));
       return;
     }
-    void this.act(() => this.api.transition(this.order()!.id, to, this.transitionNote.trim() || undefined)).then(() => (this.transitionNote = ''));
+    // decline, cancel, send back: the note belongs to the action, and the action is confirmed first
+    const data: TransitionNoteData =
+      to === 'in-progress'
+        ? { title: `Send work order #${o.id} back?`, message: 'It goes back to the technician as in progress.', confirm: 'Send back', noteLabel: 'What is still to do' }
+        : o.status === 'requested'
+          ? { title: `Decline request #${o.id}?`, message: 'The request is closed as cancelled; the person who raised it sees your note.', confirm: 'Decline the request', noteLabel: 'Why it is declined' }
+          : { title: `Cancel work order #${o.id}?`, message: 'The work order is closed as cancelled and cannot be reopened; what was recorded stays in the history.', confirm: 'Cancel the work order', noteLabel: 'Why it is cancelled' };
+    this.dialog.open<TransitionNoteDialog, TransitionNoteData, string>(TransitionNoteDialog, { data, width: '480px' }).afterClosed().subscribe((note) => {
+      if (note) void this.act(() => this.api.transition(o.id, to, note));
+    });
+  }
+
+  protected readonly minDue = MIN_DUE;
+  protected readonly maxDue = MAX_DUE;
+  protected readonly dueError = signal<string | null>(null);
+  protected readonly dueValue = fromDateOnly;
+
+  /** A due date is saved only when whole and valid (typed in full or picked); a half-typed one is never sent. */
+  protected dueChanged(d: Date | null, el: HTMLElement): void {
+    const r = checkDueDate(d, (el as HTMLInputElement).value ?? '');
+    if (!r.ok) return void this.dueError.set(r.message);
+    this.dueError.set(null);
+    if (r.value !== this.order()?.dueDate) this.plan('dueDate', r.value ?? '');
   }
 
   protected plan(field: 'assigneeId' | 'dueDate' | 'priority', value: unknown): void {
@@ -229,6 +314,8 @@ export class WorkOrderPage {
 
   protected async complete(s: WorkStep): Promise<void> {
     const d = this.drafts[s.id];
+    clearTimeout(this.draftTimers.get(s.id));
+    this.draftTimers.delete(s.id);
     const body: Parameters<WorkApi['completeStep']>[2] = {};
     if (s.input === 'value') {
       if (d.value === null || d.value === undefined) return this.stepError(s.id, 'Enter the value first.', []);
@@ -237,7 +324,7 @@ export class WorkOrderPage {
     }
     if (d.note.trim()) body.note = d.note.trim();
     if (s.gated) {
-      body.lockoutConfirmed = d.lockout;
+      body.lockoutConfirmed = d.lockout || !!this.carriedLock(s);
       if (d.manual) {
         body.manualCheck = { gaugeKpa: Number(d.gaugeKpa), tempC: Number(d.tempC), minutesSinceStop: Number(d.minutesSinceStop), checkedBy: d.checkedBy.trim(), reason: d.reason.trim() };
       }

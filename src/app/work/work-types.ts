@@ -104,7 +104,21 @@ export interface WorkAmendment {
   createdAt: string;
 }
 
+/** The coolant test a work order recorded (once per order). */
+export interface OrderCoolantTest {
+  id: number;
+  engineId: number;
+  testedAt: string;
+  method: string;
+  scaUnitsPerGal: number | null;
+  glycolPercent: number | null;
+  freezePointC: number | null;
+  ph: number | null;
+}
+
 export interface WorkOrderDetail extends WorkOrderSummary {
+  coolantTestId: number | null;
+  coolantTest: OrderCoolantTest | null;
   cautions: WorkCaution[];
   steps: WorkStep[];
   parts: WorkPart[];
@@ -119,6 +133,8 @@ export interface OpeningCheck {
   clear: boolean;
   conditions: OpeningCondition[];
   clearAt: number | null;
+  /** The forecast's band (earliest-latest); wider than a point when the ambient had to be fitted. */
+  forecast?: { at: number; earliest: number; latest: number | null; ambientFitted: boolean } | null;
   reasons: string[];
   stale: boolean;
   settings: { safeOpenTempC: number; maxPressureKpa: number; minStoppedS: number; holdS: number; staleAfterS: number; heaterSetpointC?: number | null; ambientC?: number | null };

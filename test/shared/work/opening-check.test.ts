@@ -67,6 +67,23 @@ describe('opening check', () => {
     expect(r.clearAt).toBe(NOW - 300 * S + 600 * S + 120 * S);
   });
 
+  it('the stop from the stored record counts when the readings passed in begin later (a gap, a cache)', () => {
+    // readings only for the last 4 min, all stopped and cold; the record says the stop was 3 days ago
+    const recent: Scenario = { stoppedAgoS: 3 * 86400, tempAt: () => 22, pressureAt: () => 0, historyS: 240 };
+    const without = openingCheck(base({ readings: scenario(recent) }), NOW);
+    expect(cond(without, 'engine-stopped')).toMatchObject({ met: false, value: 240 });
+    expect(without.reasons.join(' ')).toContain('Engine stopped for 4.0 min; needs 10.0 min.');
+    const withRecord = openingCheck(base({ readings: scenario(recent), stoppedSinceTs: NOW - 3 * 86400 * S }), NOW);
+    expect(cond(withRecord, 'engine-stopped')).toMatchObject({ met: true, value: 3 * 86400 });
+    expect(withRecord.clear).toBe(true);
+  });
+
+  it('a run seen in the readings after the recorded stop wins over the record', () => {
+    const readings = scenario({ stoppedAgoS: 300, tempAt: () => 40, pressureAt: () => 0 });
+    const r = openingCheck(base({ readings, stoppedSinceTs: NOW - 86400 * S }), NOW);
+    expect(cond(r, 'engine-stopped')).toMatchObject({ met: false, value: 300 });
+  });
+
   it('temperature alone above the limit: not clear', () => {
     const hot: Scenario = { ...cooled, tempAt: () => 51 };
     const r = openingCheck(base({ readings: scenario(hot) }), NOW);
@@ -146,6 +163,29 @@ describe('opening check prediction from synthetic cooling data', () => {
     const expected = NOW - 1200 * S + 1800 * Math.log(60 / 25) * S + 120 * S;
     expect(r.clear).toBe(false);
     expect(Math.abs(r.clearAt! - expected)).toBeLessThan(30 * S);
+  });
+
+  it('heat soak after the stop (88 -> 96 °C, still rising at 95.9 °C): no forecast, and says it is rising', () => {
+    const sc: Scenario = { stoppedAgoS: 900, tempAt: (s) => 96 - 8 * Math.exp(-s / 200), pressureAt: () => 0 };
+    for (const ambientC of [25, null]) {
+      const r = openingCheck(base({ readings: scenario(sc), settings: { ambientC } }), NOW);
+      expect(r.clearAt).toBeNull();
+      expect(r.forecast).toBeNull();
+      expect(r.reasons.join(' ')).toMatch(/rising|not falling/);
+    }
+  });
+
+  it('ambient not measured: a forecast with a band, earliest <= forecast <= latest', () => {
+    const sc: Scenario = { stoppedAgoS: 900, tempAt: (s) => coolingTemperature(85, 25, 1800, s), pressureAt: () => 0 };
+    const r = openingCheck(base({ readings: scenario(sc), settings: { ambientC: null } }), NOW);
+    expect(r.forecast).not.toBeNull();
+    expect(r.forecast!.ambientFitted).toBe(true);
+    expect(r.forecast!.earliest).toBeLessThanOrEqual(r.clearAt!);
+    if (r.forecast!.latest !== null) expect(r.forecast!.latest).toBeGreaterThanOrEqual(r.clearAt!);
+    // Newton, true crossing: stop + 1800 ln(60/25) s, plus the hold, inside the band
+    const truth = NOW - 900 * S + 1800 * Math.log(60 / 25) * S + 120 * S;
+    expect(r.forecast!.earliest).toBeLessThanOrEqual(truth + S);
+    if (r.forecast!.latest !== null) expect(r.forecast!.latest).toBeGreaterThanOrEqual(truth - S);
   });
 
   it('cooling toward a heater setpoint of 40 °C: 1800 ln(45/10) s after the stop, plus hold', () => {
