@@ -53,6 +53,8 @@ export async function standbyReadinessOf(models: Models, engines: Engine[], live
         coolantTs: t && t.quality === 0 ? t.ts : null,
         lastSeenAt: live ? live.lastSeen(e.id) : null,
         running: live ? live.runState(e.id, now) === 'running' : false,
+        // every latest value bad: the gateway declared its data lost (or all sensors failed)
+        dataLost: Object.values(latest).length > 0 && Object.values(latest).every((v) => v.quality !== 0),
         minTempC: limits.get(e.id) ?? STANDBY_MIN_TEMP_C,
         urgentAlarms: alarms.filter((a) => a.engineId === e.id).map((a) => ({ title: title(a.rule), priority: a.priority })),
         lockouts: orders.filter((o) => o.engineId === e.id && locked.has(o.id)).map((o) => ({ workOrderId: o.id, title: o.title })),

@@ -14,6 +14,8 @@ export interface ReadinessFacts {
   /** Last time anything was heard from the engine (ms), or null. */
   lastSeenAt: number | null;
   running: boolean;
+  /** Every latest value is bad: the source declared its data lost (a Sparkplug death certificate) or all sensors failed. */
+  dataLost?: boolean;
   /** Minimum jacket-water temperature while stopped (°C). */
   minTempC: number;
   /** Active alarms of high or urgent priority (titles). */
@@ -41,6 +43,7 @@ export function standbyReadiness(f: ReadinessFacts): Readiness {
   if (f.outOfService) reasons.push('Out of service');
   if (f.lastSeenAt === null) reasons.push('No data from the engine: its state is not known');
   else if (f.now - f.lastSeenAt > f.staleAfterMs) reasons.push(`Data stale: last reading ${ago(f.now - f.lastSeenAt)}`);
+  else if (f.dataLost) reasons.push('No good reading: the gateway reported its data lost or every sensor reads bad; the state is not known');
   const fresh = f.coolantTs !== null && f.now - f.coolantTs <= f.staleAfterMs;
   if (!f.running && fresh && f.coolantTempC !== null && f.coolantTempC < f.minTempC) {
     reasons.push(

@@ -153,6 +153,8 @@ test('contract: DBIRTH and DDATA by our channel keys are stored as readings of t
   const lost = await until('engine data lost', () => engine(d.engineId), (e) => e.runState === 'no-data');
   expect(lost.latest.engine_speed).toMatchObject({ value: 1500, quality: 1 });
   expect(lost.latest.coolant_temp.quality).toBe(1);
+  // a standby engine whose data is declared lost is not ready to start (its state is not known)
+  if (lost.duty === 'standby') expect(lost.readiness).toMatchObject({ ready: false });
   // and the no-data alarm is raised now, not after its silence limit
   const alarm = await until('no-data alarm', () => db.get('SELECT rule, active, message FROM alarms WHERE engine_id = ? AND rule = ?', [d.engineId, 'no_data']), (a) => !!a);
   expect(alarm).toMatchObject({ active: 1 });

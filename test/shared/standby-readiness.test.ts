@@ -34,3 +34,14 @@ describe('standby readiness', () => {
     expect(standbyReadiness({ ...ok, lastSeenAt: null, coolantTs: null, coolantTempC: null }).reasons).toEqual(['No data from the engine: its state is not known']);
   });
 });
+
+describe('standby readiness when the data is declared lost', () => {
+  it('says Not ready with the reason in words (common practice: an engine whose state is not known is not ready)', () => {
+    const r = standbyReadiness({
+      outOfService: false, coolantTempC: null, coolantTs: null, lastSeenAt: 1_000, running: false, dataLost: true,
+      minTempC: 32, urgentAlarms: [], lockouts: [], staleAfterMs: 300_000, now: 2_000,
+    });
+    expect(r.ready).toBe(false);
+    expect(r.reasons.join(' ')).toMatch(/data lost/);
+  });
+});

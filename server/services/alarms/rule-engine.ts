@@ -191,7 +191,18 @@ export class RuleEngine {
   /** A death certificate for the engine (telemetry.onLost): its no-data rule raises at once. */
   engineLost(engineId: number, at: number): void {
     const ev = this.evaluators.get(engineId);
-    if (ev) this.dispatch(engineId, ev.lost(at));
+    if (ev) {
+      this.dispatch(engineId, ev.lost(at));
+      return;
+    }
+    if (this.outOfService.has(engineId)) return;
+    // An engine added since the last refresh: pick it up (a refresh already running may predate it), then apply.
+    void (async () => {
+      await this.refreshEngines();
+      if (!this.evaluators.has(engineId)) await this.refreshEngines();
+      const added = this.evaluators.get(engineId);
+      if (added) this.dispatch(engineId, added.lost(at));
+    })().catch((err) => this.deps.log.error('alarms: engine refresh failed', err));
   }
 
   /** The 1 s clock. */
