@@ -27,7 +27,8 @@ export interface DeviceIdentity {
 export interface BrokerOptions {
   port: number;
   host?: string;
-  authenticate(username: string, password: string): Promise<{ deviceId: number; engineId: number } | null>;
+  /** `address`: the client's IP address, for throttling failed logins. */
+  authenticate(username: string, password: string, address: string): Promise<{ deviceId: number; engineId: number } | null>;
   /** A telemetry payload on the device's own engine topic; call `done` when there is room for more. */
   onTelemetry(device: DeviceIdentity, engineId: number, payload: Buffer, done: (err?: Error) => void): void;
   onReject(device: DeviceIdentity | null, reason: string, detail: string): void;
@@ -39,6 +40,8 @@ export interface BrokerOptions {
 export interface Broker {
   port: number;
   connectedClients(): number;
+  /** A device was revoked or got a new secret: forget its cached login and close its connections now. */
+  dropDevice(deviceId: number): number;
   close(): Promise<void>;
 }
 
@@ -46,8 +49,9 @@ export interface Broker {
 // eslint-disable-next-line @typescript-eslint/no-require-imports
 const { Aedes } = require('aedes') as { Aedes: { createBroker(opts: object): Promise<AedesLike> } };
 
-interface AedesClient { id: string; jw?: DeviceIdentity; close(): void }
+interface AedesClient { id: string; jw?: DeviceIdentity; conn?: { remoteAddress?: string }; close(): void }
 interface AedesLike {
+  clients: Record<string, AedesClient>;
   handle(socket: net.Socket): void;
   close(cb: () => void): void;
   connectedClients: number;
@@ -57,11 +61,39 @@ type AuthError = Error & { returnCode?: number };
 
 const sha256 = (s: string) => crypto.createHash('sha256').update(s).digest('hex');
 
+/**
+ * Revoke and rotate take effect at once: the device's cached good login is forgotten, its open
+ * connections are closed, and a login whose secret check began before the change is refused.
+ */
+class DeviceDrops {
+  generation = 0;
+  private readonly droppedAt = new Map<number, number>();
+
+  drop(deviceId: number, goodLogins: Map<string, { device: DeviceIdentity }>, clients: Record<string, AedesClient>): number {
+    this.droppedAt.set(deviceId, ++this.generation);
+    for (const [username, entry] of goodLogins) if (entry.device.deviceId === deviceId) goodLogins.delete(username);
+    let closed = 0;
+    for (const client of Object.values(clients)) {
+      if (client.jw?.deviceId === deviceId) {
+        client.jw = undefined; // nothing more from it is accepted, even before the socket is gone
+        client.close();
+        closed++;
+      }
+    }
+    return closed;
+  }
+
+  droppedSince(deviceId: number, generation: number): boolean {
+    return (this.droppedAt.get(deviceId) ?? 0) > generation;
+  }
+}
+
 export async function createBroker(opts: BrokerOptions): Promise<Broker> {
   const { log } = opts;
   const cacheMs = opts.authCacheMs ?? 30_000;
   // username -> sha256(password) of a recent good login: reconnect storms skip bcrypt
   const goodLogins = new Map<string, { digest: string; until: number; device: DeviceIdentity }>();
+  const drops = new DeviceDrops();
 
   const refuse = (cb: (err: AuthError | null, ok: boolean) => void) => {
     const err: AuthError = new Error('bad username or password');
@@ -81,8 +113,11 @@ export async function createBroker(opts: BrokerOptions): Promise<Broker> {
           client.jw = cached.device;
           return cb(null, true);
         }
-        opts.authenticate(username, secret).then((found) => {
+        const asked = drops.generation;
+        opts.authenticate(username, secret, client.conn?.remoteAddress ?? '').then((found) => {
           if (!found) return refuse(cb);
+          // revoked or rotated while its secret was being checked: the answer is stale
+          if (drops.droppedSince(found.deviceId, asked)) return refuse(cb);
           const device = { ...found, username };
           goodLogins.set(username, { digest, until: Date.now() + cacheMs, device });
           client.jw = device;
@@ -149,6 +184,7 @@ export async function createBroker(opts: BrokerOptions): Promise<Broker> {
   return {
     port,
     connectedClients: () => aedes.connectedClients,
+    dropDevice: (deviceId) => drops.drop(deviceId, goodLogins, aedes.clients),
     close: () => new Promise<void>((resolve) => {
       server.close(() => undefined);
       aedes.close(() => resolve());

@@ -18,7 +18,8 @@ export function createApp(ctx: AppContext, opts: AppOptions = {}): Express {
   const app = express();
   app.locals.ctx = ctx;
   app.disable('x-powered-by');
-  app.set('trust proxy', 'loopback');
+  // X-Forwarded-For counts only behind a proxy the operator named (TRUST_PROXY); else any client could pick its own address
+  app.set('trust proxy', ctx.config.trustProxy ?? false);
 
   const api = express.Router();
   api.use(express.json({ limit: '256kb' }));

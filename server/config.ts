@@ -18,6 +18,8 @@ export interface Config {
   publicUrl: string;
   production: boolean;
   logLevel: 'debug' | 'info' | 'warn' | 'error';
+  /** Express 'trust proxy': false (default) ignores X-Forwarded-For; set only behind your own reverse proxy. */
+  trustProxy: boolean | number | string;
 }
 
 function intFrom(env: NodeJS.ProcessEnv, name: string, fallback: number): number {
@@ -31,6 +33,14 @@ function intFrom(env: NodeJS.ProcessEnv, name: string, fallback: number): number
 function textFrom(env: NodeJS.ProcessEnv, name: string): string | null {
   const raw = env[name];
   return raw === undefined || raw === '' ? null : raw;
+}
+
+/** TRUST_PROXY: empty/false, true, a hop count, or addresses/subnets (e.g. `loopback` or `10.0.0.0/8`). */
+function trustProxyFrom(raw: string | undefined): boolean | number | string {
+  if (!raw || raw === 'false' || raw === '0') return false;
+  if (raw === 'true') return true;
+  if (/^\d+$/.test(raw)) return Number(raw);
+  return raw;
 }
 
 export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
@@ -52,5 +62,6 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
     publicUrl: (env.PUBLIC_URL || `http://localhost:${port}`).replace(/\/$/, ''),
     production: env.NODE_ENV === 'production',
     logLevel: ['debug', 'info', 'warn', 'error'].includes(level) ? level : 'info',
+    trustProxy: trustProxyFrom(env.TRUST_PROXY),
   };
 }

@@ -5,6 +5,8 @@ import type { Express } from 'express';
 import type { Sequelize } from 'sequelize';
 import type { AppContext } from './app-context';
 import { createApp, type AppOptions } from './app';
+import { AccessEvents } from './auth/access-events';
+import { sessionStillValid } from './auth/middleware';
 import { loadJwtSecret } from './auth/jwt-secret';
 import { createTokenService } from './auth/tokens';
 import type { Config } from './config';
@@ -47,7 +49,8 @@ export async function startServer(config: Config, opts: StartOptions = {}): Prom
   if (applied.length) log.info(`migrations applied: ${applied.join(', ')}`);
   const models = initModels(sequelize);
   const tokens = createTokenService(loadJwtSecret(config.dataDir));
-  const ctx: AppContext = { config, log, sequelize, models, tokens, telemetry: null, startedAt: Date.now() };
+  const access = new AccessEvents();
+  const ctx: AppContext = { config, log, sequelize, models, tokens, telemetry: null, startedAt: Date.now(), access };
   const alarms = createAlarmFeature(ctx);
   const app = createApp(ctx, { ...opts, extraRouters: [...(opts.extraRouters ?? []), ...alarms.routers] });
   const httpServer = http.createServer(app);
@@ -59,6 +62,8 @@ export async function startServer(config: Config, opts: StartOptions = {}): Prom
     verifyToken: (t) => tokens.verify(t),
     siteOfEngine: siteOfEngineLookup(models),
     siteScope: (user) => siteScopeForUser(models, user),
+    sessionValid: (user) => sessionStillValid(models, user),
+    access,
     log,
   });
   ctx.telemetry = telemetry;

@@ -16,6 +16,8 @@ export interface LivePushOptions {
   siteOfEngine(engineId: number): Promise<number | null>;
   /** Sites the user may see (server/services/site-access.ts); absent: every site. */
   siteScope?(user: AuthUser): Promise<{ all: boolean; siteIds: readonly number[] }>;
+  /** Whether the token's session still holds (user enabled, session version current); absent: yes. */
+  sessionValid?(user: AuthUser): Promise<boolean>;
   log: Logger;
   throttleMs?: number;
 }
@@ -44,6 +46,9 @@ export const ALARMS_ROOM = 'alarms';
 /** Alarm events of one site, for users limited to some sites (they never join ALARMS_ROOM). */
 export const alarmsSiteRoom = (siteId: number) => `alarms:site:${siteId}`;
 
+/** Every socket of one user, so their sessions can be ended together. */
+const userRoom = (userId: number) => `user:${userId}`;
+
 export class LivePush {
   readonly io: Server;
   private readonly throttleMs: number;
@@ -58,8 +63,12 @@ export class LivePush {
         const token = socket.handshake.auth?.token;
         const user = typeof token === 'string' ? opts.verifyToken(token) : null;
         if (!user) return next(new Error('unauthorized'));
-        socket.data.user = user;
-        next();
+        const valid = opts.sessionValid ? opts.sessionValid(user) : Promise.resolve(true);
+        valid.then((ok) => {
+          if (!ok) return next(new Error('unauthorized'));
+          socket.data.user = user;
+          next();
+        }, () => next(new Error('unauthorized')));
       } catch {
         next(new Error('unauthorized'));
       }
@@ -68,6 +77,7 @@ export class LivePush {
   }
 
   private onConnection(socket: Socket): void {
+    void socket.join(userRoom((socket.data.user as AuthUser).id));
     socket.on('watch', (raw: unknown, ack?: unknown) => {
       const parsed = watchSchema.safeParse(raw);
       const reply = typeof ack === 'function' ? (ack as (x: unknown) => void) : () => undefined;
@@ -76,7 +86,7 @@ export class LivePush {
       this.allowedRooms(socket.data.user as AuthUser, parsed.data).then((rooms) => {
         if (seq !== socket.data.watchSeq) return; // a later watch won
         // a new watch replaces the previous one
-        for (const room of socket.rooms) if (room !== socket.id) void socket.leave(room);
+        for (const room of socket.rooms) if (room !== socket.id && !room.startsWith('user:')) void socket.leave(room);
         void socket.join(rooms);
         reply({ rooms });
       }, (err) => {
@@ -106,6 +116,11 @@ export class LivePush {
       if (siteId !== null && mine.has(siteId)) rooms.push(`engine:${id}`);
     }
     return rooms;
+  }
+
+  /** The user's sessions ended (disabled, role, sites or password changed): close their sockets now. */
+  endSessions(userId: number): void {
+    this.io.in(userRoom(userId)).disconnectSockets(true);
   }
 
   emit(room: string, event: string, payload: unknown): void {

@@ -22,10 +22,13 @@ export function devicesRouter(ctx: AppContext): Router {
   });
   r.post('/devices/:id/rotate', async (req, res) => {
     const { device, secret } = await rotateDevice(ctx.models, parseId(req.params));
+    ctx.access?.deviceChanged(device.id); // the old secret and its connections end now
     res.json({ ...device.toJSON(), secret });
   });
   r.post('/devices/:id/revoke', async (req, res) => {
-    res.json(await revokeDevice(ctx.models, parseId(req.params)));
+    const device = await revokeDevice(ctx.models, parseId(req.params));
+    ctx.access?.deviceChanged(device.id);
+    res.json(device);
   });
   return r;
 }

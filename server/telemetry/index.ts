@@ -4,6 +4,8 @@
  */
 import bcrypt from 'bcryptjs';
 import { QueryTypes } from 'sequelize';
+import { FailureThrottle } from '../auth/failure-throttle';
+import { hashGate } from '../auth/hash-gate';
 import { CHANNELS } from '../../shared/channels';
 import { parseTelemetry } from '../../shared/telemetry-payload';
 import { LivePush } from '../realtime/live-push';
@@ -38,7 +40,8 @@ export async function startTelemetry(deps: TelemetryDeps, options: TelemetryOpti
   let stopping = false;
 
   await liveState.load(sequelize);
-  const livePush = new LivePush({ httpServer: deps.httpServer, verifyToken: deps.verifyToken, siteOfEngine: deps.siteOfEngine, siteScope: deps.siteScope, log });
+  const livePush = new LivePush({ httpServer: deps.httpServer, verifyToken: deps.verifyToken, siteOfEngine: deps.siteOfEngine, siteScope: deps.siteScope, sessionValid: deps.sessionValid, log });
+  deps.access?.onUserChanged((userId) => livePush.endSessions(userId));
   listeners.push((readings) => livePush.push(readings));
 
   const reject = (deviceId: number | null, reason: string, detail: string) => {
@@ -121,6 +124,8 @@ export async function startTelemetry(deps: TelemetryDeps, options: TelemetryOpti
   activity.start();
   counters.watchEventLoop();
 
+  const deviceLogin = new DeviceLogin(sequelize, (deviceId, detail) => activity.reject(deviceId, 'login_failed', detail));
+
   let mqtt: Closable;
   let mqttPort: number | null = null;
   if (config.mqttUrl) {
@@ -132,18 +137,16 @@ export async function startTelemetry(deps: TelemetryDeps, options: TelemetryOpti
     const broker = await createBroker({
       port: config.mqttPort,
       log,
-      authenticate: async (username, password) => {
-        const rows = await sequelize.query<{ id: number; engineId: number; secretHash: string; revokedAt: unknown }>(
-          DEVICE_BY_USERNAME_SQL, { bind: [username], type: QueryTypes.SELECT, logging: false });
-        const row = rows[0];
-        if (!row || row.revokedAt) return null;
-        return (await bcrypt.compare(password, row.secretHash)) ? { deviceId: Number(row.id), engineId: Number(row.engineId) } : null;
-      },
+      authenticate: (username, password, address) => deviceLogin.check(username, password, address),
       onTelemetry: (device, engineId, payload, done) => ingest(device.deviceId, engineId, payload, done),
       onReject: (device, reason, detail) => reject(device?.deviceId ?? null, reason, detail),
     });
     mqttPort = broker.port;
     mqtt = broker;
+    deps.access?.onDeviceChanged((deviceId) => {
+      const closed = broker.dropDevice(deviceId);
+      if (closed) log.info(`broker: closed ${closed} connection(s) of device ${deviceId} (revoked or rotated)`);
+    });
   }
 
   return {
@@ -165,4 +168,43 @@ export async function startTelemetry(deps: TelemetryDeps, options: TelemetryOpti
       counters.stopWatching();
     },
   };
+}
+
+/**
+ * MQTT device logins: failures counted per device (reason `login_failed`, shown to the admin in
+ * GET /api/admin/ingest), throttled per client address and per username before any hashing, and
+ * the bcrypt work shared fairly with HTTP sign-ins through the hash gate.
+ */
+class DeviceLogin {
+  /** Per address: a plant's gateways may share one NAT address, so this is generous. */
+  private readonly byAddress = new FailureThrottle(30, 5 * 60_000);
+  private readonly byUsername = new FailureThrottle(10, 5 * 60_000);
+
+  constructor(private readonly sequelize: import('sequelize').Sequelize, private readonly onFailure: (deviceId: number, detail: string) => void) {}
+
+  private blocked(username: string, address: string): boolean {
+    return this.byAddress.blocked(address) || this.byUsername.blocked(username);
+  }
+
+  async check(username: string, password: string, address: string): Promise<{ deviceId: number; engineId: number } | null> {
+    if (this.blocked(username, address)) return null;
+    const rows = await this.sequelize.query<{ id: number; engineId: number; secretHash: string; revokedAt: unknown }>(
+      DEVICE_BY_USERNAME_SQL, { bind: [username], type: QueryTypes.SELECT, logging: false });
+    const row = rows[0];
+    let ok = false;
+    try {
+      ok = await hashGate.run(address, async () => {
+        // checked again once it is our turn: a flood queued before the limit hit is refused without hashing
+        if (this.blocked(username, address)) return false;
+        return row && !row.revokedAt ? bcrypt.compare(password, row.secretHash) : false;
+      });
+    } catch {
+      return null; // too many waiting from this address
+    }
+    if (ok) return { deviceId: Number(row.id), engineId: Number(row.engineId) };
+    this.byAddress.fail(address);
+    this.byUsername.fail(username);
+    if (row) this.onFailure(Number(row.id), row.revokedAt ? `revoked device tried to connect from ${address}` : `wrong secret from ${address}`);
+    return null;
+  }
 }
