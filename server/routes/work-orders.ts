@@ -94,7 +94,8 @@ function attachHistory(ctx: AppContext, history: ReadingHistory): () => void {
   return tryAttach;
 }
 
-const upload = multer({ storage: multer.memoryStorage(), limits: { fileSize: MAX_ATTACHMENT_BYTES, files: 1, fields: 5, parts: 6 } });
+// defParamCharset utf8: browsers send a file name as raw UTF-8 bytes; multer's default (latin1) garbles it
+const upload = multer({ storage: multer.memoryStorage(), defParamCharset: 'utf8', limits: { fileSize: MAX_ATTACHMENT_BYTES, files: 1, fields: 5, parts: 6 } });
 function singleFile(req: Request, res: Response, next: NextFunction) {
   upload.single('file')(req, res, (err: unknown) => {
     if (!err) return next();

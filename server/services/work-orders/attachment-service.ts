@@ -26,7 +26,8 @@ export function sniffContent(buf: Buffer): Sniffed | null {
 export function cleanOriginalName(name: string | undefined): string {
   const base = (name ?? '').split(/[\\/]/).pop() ?? '';
   // eslint-disable-next-line no-control-regex
-  const cleaned = base.replace(/[\u0000-\u001f\u007f"<>|:*?]/g, '_').replace(/^\.+/, '').trim().slice(0, 200);
+  // bidirectional overrides would let `x\u202Egnp.exe` display as `xexe.png`
+  const cleaned = base.replace(/[\u0000-\u001f\u007f-\u009f\u202a-\u202e\u2066-\u2069"<>|:*?]/g, '_').replace(/^\.+/, '').trim().slice(0, 200);
   return cleaned || 'file';
 }
 
