@@ -14,6 +14,7 @@
  *   wrong_topic and refused with an error, which closes that connection.
  */
 import net from 'node:net';
+import tls from 'node:tls';
 import crypto from 'node:crypto';
 import { engineTopicPrefix, parseEngineTopic } from '../shared/topics';
 import type { Logger } from '../server/logger';
@@ -35,10 +36,14 @@ export interface BrokerOptions {
   log: Logger;
   /** How long a good username/password stays trusted without a new bcrypt compare (ms). */
   authCacheMs?: number;
+  /** MQTT over TLS on a second port (same host), beside plain TCP. */
+  tls?: { cert: Buffer; key: Buffer; port: number };
 }
 
 export interface Broker {
   port: number;
+  /** Port of MQTT over TLS, or null when not configured. */
+  tlsPort: number | null;
   connectedClients(): number;
   /** A device was revoked or got a new secret: forget its cached login and close its connections now. */
   dropDevice(deviceId: number): number;
@@ -180,14 +185,33 @@ export async function createBroker(opts: BrokerOptions): Promise<Broker> {
   const address = server.address();
   const port = typeof address === 'object' && address ? address.port : opts.port;
   log.info(`broker: MQTT on ${host}:${port}`);
+  const tlsServer = opts.tls ? await listenTls(aedes, host, opts.tls, log) : null;
 
   return {
     port,
     connectedClients: () => aedes.connectedClients,
     dropDevice: (deviceId) => drops.drop(deviceId, goodLogins, aedes.clients),
+    tlsPort: tlsServer ? (tlsServer.address() as net.AddressInfo).port : null,
     close: () => new Promise<void>((resolve) => {
       server.close(() => undefined);
+      tlsServer?.close(() => undefined);
       aedes.close(() => resolve());
     }),
   };
+}
+
+/** MQTT over TLS: the same broker behind a TLS listener (devices on a plant network, not loopback). */
+async function listenTls(aedes: AedesLike, host: string, opts: { cert: Buffer; key: Buffer; port: number }, log: Logger): Promise<tls.Server> {
+  const server = tls.createServer({ cert: opts.cert, key: opts.key, minVersion: 'TLSv1.2' }, (socket) => {
+    socket.on('error', () => undefined);
+    aedes.handle(socket);
+  });
+  // a failed handshake (wrong CA on the device, plain TCP on the TLS port) is the client's problem
+  server.on('tlsClientError', (err) => log.debug(`broker: TLS handshake failed: ${err.message}`));
+  await new Promise<void>((resolve, reject) => {
+    server.once('error', reject);
+    server.listen(opts.port, host, () => { server.off('error', reject); resolve(); });
+  });
+  log.info(`broker: MQTT over TLS on ${host}:${(server.address() as net.AddressInfo).port}`);
+  return server;
 }

@@ -18,6 +18,12 @@ export interface Config {
   publicUrl: string;
   production: boolean;
   logLevel: 'debug' | 'info' | 'warn' | 'error';
+  /** Interface of the HTTP server (HOST); loopback by default, 0.0.0.0 for every interface. */
+  host: string;
+  /** Interface of the embedded MQTT broker (MQTT_HOST); loopback by default. */
+  mqttHost: string;
+  /** MQTT over TLS when both are set: PEM files of the certificate (chain) and its key; port MQTT_TLS_PORT. */
+  mqttTls: { certFile: string; keyFile: string; port: number } | null;
   /** Express 'trust proxy': false (default) ignores X-Forwarded-For; set only behind your own reverse proxy. */
   trustProxy: boolean | number | string;
 }
@@ -63,5 +69,10 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
     production: env.NODE_ENV === 'production',
     logLevel: ['debug', 'info', 'warn', 'error'].includes(level) ? level : 'info',
     trustProxy: trustProxyFrom(env.TRUST_PROXY),
+    host: env.HOST || '127.0.0.1',
+    mqttHost: env.MQTT_HOST || '127.0.0.1',
+    mqttTls: env.MQTT_TLS_CERT && env.MQTT_TLS_KEY
+      ? { certFile: path.resolve(env.MQTT_TLS_CERT), keyFile: path.resolve(env.MQTT_TLS_KEY), port: intFrom(env, 'MQTT_TLS_PORT', 8883) }
+      : null,
   };
 }

@@ -2,6 +2,7 @@
  * The telemetry path: MQTT (embedded aedes, or an external broker) -> payload check ->
  * bounded buffer -> batched SQLite writes, with live state, live push and counters beside it.
  */
+import fs from 'node:fs';
 import bcrypt from 'bcryptjs';
 import { QueryTypes } from 'sequelize';
 import { FailureThrottle } from '../auth/failure-throttle';
@@ -136,6 +137,10 @@ export async function startTelemetry(deps: TelemetryDeps, options: TelemetryOpti
     const { createBroker } = require('../../broker/broker') as typeof import('../../broker/broker');
     const broker = await createBroker({
       port: config.mqttPort,
+      host: config.mqttHost,
+      tls: config.mqttTls
+        ? { cert: fs.readFileSync(config.mqttTls.certFile), key: fs.readFileSync(config.mqttTls.keyFile), port: config.mqttTls.port }
+        : undefined,
       log,
       authenticate: (username, password, address) => deviceLogin.check(username, password, address),
       onTelemetry: (device, engineId, payload, done) => ingest(device.deviceId, engineId, payload, done),
