@@ -7,9 +7,18 @@ import { EventEmitter } from 'node:events';
 export class AccessEvents {
   private readonly emitter = new EventEmitter().setMaxListeners(50);
 
-  /** A user was disabled, or their role, sites or password changed: end their open sessions. */
+  /** A user was disabled, or their role or password changed: end their open sessions. */
   userChanged(userId: number): void {
     this.emitter.emit('user', userId);
+  }
+
+  /** A user's sites changed: their sessions stay (HTTP reads the sites per request), open sockets are re-scoped. */
+  sitesChanged(userId: number): void {
+    this.emitter.emit('sites', userId);
+  }
+
+  onSitesChanged(listener: (userId: number) => void): void {
+    this.emitter.on('sites', listener);
   }
 
   /** A device was revoked or its secret rotated: close its connections, forget cached logins. */

@@ -82,18 +82,40 @@ export class LivePush {
       const parsed = watchSchema.safeParse(raw);
       const reply = typeof ack === 'function' ? (ack as (x: unknown) => void) : () => undefined;
       if (!parsed.success) return reply({ error: 'watch takes { fleet?, alarms?, siteIds?, engineIds? }' });
-      const seq = (socket.data.watchSeq = ((socket.data.watchSeq as number | undefined) ?? 0) + 1);
-      this.allowedRooms(socket.data.user as AuthUser, parsed.data).then((rooms) => {
-        if (seq !== socket.data.watchSeq) return; // a later watch won
-        // a new watch replaces the previous one
-        for (const room of socket.rooms) if (room !== socket.id && !room.startsWith('user:')) void socket.leave(room);
-        void socket.join(rooms);
-        reply({ rooms });
+      socket.data.watch = parsed.data;
+      this.applyWatch(socket, parsed.data).then((rooms) => {
+        if (rooms) reply({ rooms });
       }, (err) => {
         this.opts.log.warn('live push: watch failed', err instanceof Error ? err.message : err);
         reply({ error: 'watch failed' });
       });
     });
+  }
+
+  /** Joins the rooms of a watch under the user's current sites; null when a later watch won meanwhile. */
+  private async applyWatch(socket: Socket, w: z.infer<typeof watchSchema>): Promise<string[] | null> {
+    const seq = (socket.data.watchSeq = ((socket.data.watchSeq as number | undefined) ?? 0) + 1);
+    const rooms = await this.allowedRooms(socket.data.user as AuthUser, w);
+    if (seq !== socket.data.watchSeq) return null; // a later watch won
+    // a new watch replaces the previous one
+    for (const room of socket.rooms) if (room !== socket.id && !room.startsWith('user:')) void socket.leave(room);
+    void socket.join(rooms);
+    return rooms;
+  }
+
+  /** The user's sites changed: every open socket of theirs keeps its watch, under the new sites. */
+  async rescope(userId: number): Promise<void> {
+    for (const socket of await this.io.in(userRoom(userId)).fetchSockets()) {
+      const local = this.io.sockets.sockets.get(socket.id);
+      if (!local) continue;
+      const w = local.data.watch as z.infer<typeof watchSchema> | undefined;
+      if (!w) continue;
+      const rooms = await this.applyWatch(local, w).catch((err) => {
+        this.opts.log.warn('live push: re-scope failed', err instanceof Error ? err.message : err);
+        return null;
+      });
+      if (rooms) local.emit('rooms', { rooms }); // what the socket now receives, as a watch reply would say
+    }
   }
 
   /** Rooms of a watch, limited to the user's sites: fleet becomes their sites, other sites and engines are left out. */

@@ -71,9 +71,7 @@ export async function setSitesOfUser(models: Models, id: number, siteIds: number
   const found = unique.length ? await models.Site.count({ where: { id: unique } }) : 0;
   if (found !== unique.length) throw badRequest('siteIds: every id must be an existing site', 'siteIds');
   await setUserSites(models, id, unique);
-  // a new scope: sessions and sockets joined under the old one end
-  await user.increment('sessionVersion');
-  await user.reload();
-  access?.userChanged(id);
+  // HTTP reads the sites per request; open sockets joined rooms under the old sites and are re-scoped
+  access?.sitesChanged(id);
   return userView(models, user);
 }

@@ -43,6 +43,7 @@ export async function startTelemetry(deps: TelemetryDeps, options: TelemetryOpti
   await liveState.load(sequelize);
   const livePush = new LivePush({ httpServer: deps.httpServer, verifyToken: deps.verifyToken, siteOfEngine: deps.siteOfEngine, siteScope: deps.siteScope, sessionValid: deps.sessionValid, log });
   deps.access?.onUserChanged((userId) => livePush.endSessions(userId));
+  deps.access?.onSitesChanged((userId) => void livePush.rescope(userId));
   listeners.push((readings) => livePush.push(readings));
 
   const reject = (deviceId: number | null, reason: string, detail: string) => {

@@ -157,21 +157,37 @@ describe('people', () => {
     await openSocket(fresh);
   });
 
-  test('new sites or a new role end the sessions signed under the old ones', async () => {
+  test('new sites re-scope the open socket at once (HTTP reads the new sites); a new role ends the sessions', async () => {
+    const other = (await seedFleet(db, 1, 'ae-other'))[0];
     const id = await addUser('tech1@example.test', 'technician', 'valve-gasket-sprocket');
     let token = await signIn('tech1@example.test', 'valve-gasket-sprocket');
     let sock = await openSocket(token);
-    let gone = serverClosed(sock);
+    expect((await sock.emitWithAck('watch', { fleet: true, alarms: true })).rooms).toEqual(['fleet', 'alarms']);
+    expect((await api('GET', `/api/engines/${other.engineId}`, token)).status).toBe(200);
+    const rescoped = new Promise<{ rooms: string[] }>((resolve) => sock.once('rooms', resolve));
     expect((await api('PUT', `/api/users/${id}/sites`, adminToken, { siteIds: [fleet[0].siteId] })).status).toBe(200);
-    expect(await gone).toBe('io server disconnect');
-    expect((await api('GET', '/api/auth/me', token)).status).toBe(401);
+    expect((await rescoped).rooms).toEqual([`site:${fleet[0].siteId}`, `alarms:site:${fleet[0].siteId}`]);
+    expect(sock.connected).toBe(true);
+    expect((await api('GET', `/api/engines/${other.engineId}`, token)).status).toBe(404);
+    // readings of the other site no longer reach the socket; its own site's still do
+    const seen: number[] = [];
+    sock.on('readings', (m: { engineId: number }) => seen.push(m.engineId));
+    const own = fleet[3];
+    const otherClient = await connect(other.username, other.secret);
+    await otherClient.publishAsync(telemetryTopic(other.engineId), JSON.stringify({ ts: Date.now() - 1000, values: { coolant_temp: 60 } }), { qos: 1 });
+    await until('other reading stored', () => countReadings(other.engineId), (n) => n === 1);
+    const ownClient = await connect(own.username, own.secret);
+    await ownClient.publishAsync(telemetryTopic(own.engineId), JSON.stringify({ ts: Date.now() - 1000, values: { coolant_temp: 61 } }), { qos: 1 });
+    await until('own site reading pushed', async () => seen, (s) => s.includes(own.engineId));
+    expect(seen).not.toContain(other.engineId);
 
     token = await signIn('tech1@example.test', 'valve-gasket-sprocket');
     sock = await openSocket(token);
-    gone = serverClosed(sock);
+    const gone = serverClosed(sock);
     expect((await api('PATCH', `/api/users/${id}`, adminToken, { role: 'operator' })).status).toBe(200);
     expect(await gone).toBe('io server disconnect');
     expect((await refusedSocket(token)).message).toMatch(/unauthorized/);
+    expect((await api('GET', '/api/auth/me', token)).status).toBe(401);
     // other changes (the name) keep sessions
     token = await signIn('tech1@example.test', 'valve-gasket-sprocket');
     expect((await api('PATCH', `/api/users/${id}`, adminToken, { name: 'Renamed technician' })).status).toBe(200);
