@@ -63,7 +63,7 @@ export async function loginUnderBurst(httpBurst = 200, mqttBurst = 300): Promise
     return { quietMs: quiet.ms, underBurstMs: good.ms, status: good.status, deviceQuietMs, deviceUnderBurstMs, burstAnswers: answers };
   } finally {
     await db.close();
-    await server.stop('SIGKILL');
+    await server.stop('SIGTERM');
   }
 }
 

@@ -85,7 +85,8 @@ beforeAll(async () => {
 afterAll(async () => {
   for (const c of clients) c.end(true);
   for (const s of sockets) s.close();
-  await server?.stop('SIGKILL');
+  // SIGTERM: tsx passes it on to the server (SIGKILL would leave the server process orphaned)
+  await server?.stop('SIGTERM');
   await db?.close();
 });
 

@@ -53,7 +53,8 @@ beforeAll(async () => {
 
 afterAll(async () => {
   for (const c of clients) c.end(true);
-  await server?.stop('SIGKILL');
+  // SIGTERM: tsx passes it on to the server (SIGKILL would leave the server process orphaned)
+  await server?.stop('SIGTERM');
   await db?.close();
   fs.rmSync(certs, { recursive: true, force: true });
 });
@@ -97,7 +98,7 @@ describe('files of the service', () => {
       expect(mode('uploads')).toBe(0o700);
       expect(mode('uploads/old.jpg')).toBe(0o600);
     } finally {
-      await other.stop('SIGKILL');
+      await other.stop('SIGTERM');
       fs.rmSync(dir, { recursive: true, force: true });
     }
   });
