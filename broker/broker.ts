@@ -15,6 +15,7 @@
  *   wrong_topic and refused with an error, which closes that connection.
  */
 import net from 'node:net';
+import tls from 'node:tls';
 import crypto from 'node:crypto';
 import { MAX_PAYLOAD_BYTES } from '../shared/telemetry-payload';
 import { engineTopicPrefix, parseEngineTopic } from '../shared/topics';
@@ -42,7 +43,8 @@ export interface DeviceIdentity {
 export interface BrokerOptions {
   port: number;
   host?: string;
-  authenticate(username: string, password: string): Promise<{ deviceId: number; engineId: number; sparkplug?: SparkplugIdentity | null } | null>;
+  /** `address`: the client's IP address, for throttling failed logins. */
+  authenticate(username: string, password: string, address: string): Promise<{ deviceId: number; engineId: number; sparkplug?: SparkplugIdentity | null } | null>;
   /** A telemetry payload on the device's own engine topic; call `done` when there is room for more. */
   onTelemetry(device: DeviceIdentity, engineId: number, payload: Buffer, done: (err?: Error) => void): void;
   onReject(device: DeviceIdentity | null, reason: string, detail: string): void;
@@ -53,11 +55,17 @@ export interface BrokerOptions {
   sparkplug?: Pick<SparkplugHost, 'authorizePublish' | 'maySubscribe' | 'forwards' | 'attach'>;
   /** How long a good username/password stays trusted without a new bcrypt compare (ms). */
   authCacheMs?: number;
+  /** MQTT over TLS on a second port (same host), beside plain TCP. */
+  tls?: { cert: Buffer; key: Buffer; port: number };
 }
 
 export interface Broker {
   port: number;
+  /** Port of MQTT over TLS, or null when not configured. */
+  tlsPort: number | null;
   connectedClients(): number;
+  /** A device was revoked or got a new secret: forget its cached login and close its connections now. */
+  dropDevice(deviceId: number): number;
   close(): Promise<void>;
 }
 
@@ -65,8 +73,9 @@ export interface Broker {
 // eslint-disable-next-line @typescript-eslint/no-require-imports
 const { Aedes } = require('aedes') as { Aedes: { createBroker(opts: object): Promise<AedesLike> } };
 
-interface AedesClient { id: string; jw?: DeviceIdentity; close(): void }
+interface AedesClient { id: string; jw?: DeviceIdentity; conn?: { remoteAddress?: string }; close(): void }
 interface AedesLike {
+  clients: Record<string, AedesClient>;
   handle(socket: net.Socket): void;
   publish(packet: object, cb: (err?: Error) => void): void;
   close(cb: () => void): void;
@@ -77,11 +86,39 @@ type AuthError = Error & { returnCode?: number };
 
 const sha256 = (s: string) => crypto.createHash('sha256').update(s).digest('hex');
 
+/**
+ * Revoke and rotate take effect at once: the device's cached good login is forgotten, its open
+ * connections are closed, and a login whose secret check began before the change is refused.
+ */
+class DeviceDrops {
+  generation = 0;
+  private readonly droppedAt = new Map<number, number>();
+
+  drop(deviceId: number, goodLogins: Map<string, { device: DeviceIdentity }>, clients: Record<string, AedesClient>): number {
+    this.droppedAt.set(deviceId, ++this.generation);
+    for (const [username, entry] of goodLogins) if (entry.device.deviceId === deviceId) goodLogins.delete(username);
+    let closed = 0;
+    for (const client of Object.values(clients)) {
+      if (client.jw?.deviceId === deviceId) {
+        client.jw = undefined; // nothing more from it is accepted, even before the socket is gone
+        client.close();
+        closed++;
+      }
+    }
+    return closed;
+  }
+
+  droppedSince(deviceId: number, generation: number): boolean {
+    return (this.droppedAt.get(deviceId) ?? 0) > generation;
+  }
+}
+
 export async function createBroker(opts: BrokerOptions): Promise<Broker> {
   const { log } = opts;
   const cacheMs = opts.authCacheMs ?? 30_000;
   // username -> sha256(password) of a recent good login: reconnect storms skip bcrypt
   const goodLogins = new Map<string, { digest: string; until: number; device: DeviceIdentity }>();
+  const drops = new DeviceDrops();
 
   const refuse = (cb: (err: AuthError | null, ok: boolean) => void) => {
     const err: AuthError = new Error('bad username or password');
@@ -101,8 +138,11 @@ export async function createBroker(opts: BrokerOptions): Promise<Broker> {
           client.jw = cached.device;
           return cb(null, true);
         }
-        opts.authenticate(username, secret).then((found) => {
+        const asked = drops.generation;
+        opts.authenticate(username, secret, client.conn?.remoteAddress ?? '').then((found) => {
           if (!found) return refuse(cb);
+          // revoked or rotated while its secret was being checked: the answer is stale
+          if (drops.droppedSince(found.deviceId, asked)) return refuse(cb);
           const device = { ...found, username };
           goodLogins.set(username, { digest, until: Date.now() + cacheMs, device });
           client.jw = device;
@@ -176,13 +216,33 @@ export async function createBroker(opts: BrokerOptions): Promise<Broker> {
   const address = server.address();
   const port = typeof address === 'object' && address ? address.port : opts.port;
   log.info(`broker: MQTT on ${host}:${port}`);
+  const tlsServer = opts.tls ? await listenTls(aedes, host, opts.tls, log) : null;
 
   return {
     port,
     connectedClients: () => aedes.connectedClients,
+    dropDevice: (deviceId) => drops.drop(deviceId, goodLogins, aedes.clients),
+    tlsPort: tlsServer ? (tlsServer.address() as net.AddressInfo).port : null,
     close: () => new Promise<void>((resolve) => {
       server.close(() => undefined);
+      tlsServer?.close(() => undefined);
       aedes.close(() => resolve());
     }),
   };
+}
+
+/** MQTT over TLS: the same broker behind a TLS listener (devices on a plant network, not loopback). */
+async function listenTls(aedes: AedesLike, host: string, opts: { cert: Buffer; key: Buffer; port: number }, log: Logger): Promise<tls.Server> {
+  const server = tls.createServer({ cert: opts.cert, key: opts.key, minVersion: 'TLSv1.2' }, (socket) => {
+    socket.on('error', () => undefined);
+    aedes.handle(socket);
+  });
+  // a failed handshake (wrong CA on the device, plain TCP on the TLS port) is the client's problem
+  server.on('tlsClientError', (err) => log.debug(`broker: TLS handshake failed: ${err.message}`));
+  await new Promise<void>((resolve, reject) => {
+    server.once('error', reject);
+    server.listen(opts.port, host, () => { server.off('error', reject); resolve(); });
+  });
+  log.info(`broker: MQTT over TLS on ${host}:${(server.address() as net.AddressInfo).port}`);
+  return server;
 }

@@ -1,4 +1,5 @@
 import type { Sequelize } from 'sequelize';
+import type { AccessEvents } from './auth/access-events';
 import type { TokenService } from './auth/tokens';
 import type { Config } from './config';
 import type { Logger } from './logger';
@@ -15,4 +16,6 @@ export interface AppContext {
   /** Set once telemetry has started; before that every engine reads as having no data. */
   telemetry: Pick<Telemetry, 'liveState' | 'counters'> | null;
   startedAt: number;
+  /** Ends sessions and device connections at once on revoke, rotate, disable, role/site/password change. */
+  access?: AccessEvents;
 }

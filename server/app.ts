@@ -4,6 +4,7 @@ import express, { type Express, type Router } from 'express';
 import type { AppContext } from './app-context';
 import { apiErrors, apiNotFound } from './routes/errors';
 import { coreRouters } from './routes';
+import { HASHED_ASSET, securityHeaders } from './security-headers';
 
 export const BROWSER_DIST = path.resolve(__dirname, '..', 'dist', 'jacketwatch', 'browser');
 
@@ -18,7 +19,9 @@ export function createApp(ctx: AppContext, opts: AppOptions = {}): Express {
   const app = express();
   app.locals.ctx = ctx;
   app.disable('x-powered-by');
-  app.set('trust proxy', 'loopback');
+  // X-Forwarded-For counts only behind a proxy the operator named (TRUST_PROXY); else any client could pick its own address
+  app.set('trust proxy', ctx.config.trustProxy ?? false);
+  app.use(securityHeaders());
 
   const api = express.Router();
   api.use(express.json({ limit: '256kb' }));
@@ -29,9 +32,23 @@ export function createApp(ctx: AppContext, opts: AppOptions = {}): Express {
 
   const dir = opts.staticDir ?? BROWSER_DIST;
   if (fs.existsSync(path.join(dir, 'index.html'))) {
-    app.use(express.static(dir, { index: 'index.html', maxAge: '1h' }));
-    // deep links of the single-page app; /api/* never reaches here (404 JSON above)
-    app.get('/{*splat}', (_req, res) => {
+    // index.html is never cached (it names the current chunks); hashed files never change
+    app.use(express.static(dir, {
+      index: 'index.html',
+      setHeaders: (res, file) => {
+        if (path.basename(file) === 'index.html') res.setHeader('Cache-Control', 'no-cache');
+        else if (HASHED_ASSET.test(file)) res.setHeader('Cache-Control', 'public, max-age=31536000, immutable');
+        else res.setHeader('Cache-Control', 'public, max-age=3600');
+      },
+    }));
+    // deep links of the single-page app; /api/* never reaches here (404 JSON above). A path naming a
+    // file (an extension) that is not there is a 404: a stale chunk must not be answered with HTML.
+    app.get('/{*splat}', (req, res) => {
+      if (path.extname(req.path)) {
+        res.status(404).type('text/plain').send('not found');
+        return;
+      }
+      res.setHeader('Cache-Control', 'no-cache');
       res.sendFile(path.join(dir, 'index.html'));
     });
   }

@@ -26,6 +26,14 @@ export interface Config {
   retentionBatch: number;
   retentionPauseMs: number;
   retentionEveryMs: number;
+  /** Interface of the HTTP server (HOST); loopback by default, 0.0.0.0 for every interface. */
+  host: string;
+  /** Interface of the embedded MQTT broker (MQTT_HOST); loopback by default. */
+  mqttHost: string;
+  /** MQTT over TLS when both are set: PEM files of the certificate (chain) and its key; port MQTT_TLS_PORT. */
+  mqttTls: { certFile: string; keyFile: string; port: number } | null;
+  /** Express 'trust proxy': false (default) ignores X-Forwarded-For; set only behind your own reverse proxy. */
+  trustProxy: boolean | number | string;
 }
 
 function intFrom(env: NodeJS.ProcessEnv, name: string, fallback: number): number {
@@ -47,6 +55,14 @@ function countFrom(env: NodeJS.ProcessEnv, name: string, fallback: number, min: 
 function textFrom(env: NodeJS.ProcessEnv, name: string): string | null {
   const raw = env[name];
   return raw === undefined || raw === '' ? null : raw;
+}
+
+/** TRUST_PROXY: empty/false, true, a hop count, or addresses/subnets (e.g. `loopback` or `10.0.0.0/8`). */
+function trustProxyFrom(raw: string | undefined): boolean | number | string {
+  if (!raw || raw === 'false' || raw === '0') return false;
+  if (raw === 'true') return true;
+  if (/^\d+$/.test(raw)) return Number(raw);
+  return raw;
 }
 
 export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
@@ -73,5 +89,11 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
     retentionBatch: countFrom(env, 'RETENTION_BATCH', 4000, 1, 1_000_000),
     retentionPauseMs: countFrom(env, 'RETENTION_PAUSE_MS', 100, 0, 60_000),
     retentionEveryMs: countFrom(env, 'RETENTION_EVERY_S', 3600, 1, 7 * 86_400) * 1000,
+    trustProxy: trustProxyFrom(env.TRUST_PROXY),
+    host: env.HOST || '127.0.0.1',
+    mqttHost: env.MQTT_HOST || '127.0.0.1',
+    mqttTls: env.MQTT_TLS_CERT && env.MQTT_TLS_KEY
+      ? { certFile: path.resolve(env.MQTT_TLS_CERT), keyFile: path.resolve(env.MQTT_TLS_KEY), port: intFrom(env, 'MQTT_TLS_PORT', 8883) }
+      : null,
   };
 }

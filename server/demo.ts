@@ -3,6 +3,7 @@ import path from 'node:path';
 import { seedDemo } from '../seeds/seed';
 import { loadConfig } from './config';
 import { createLogger } from './logger';
+import { installProcessGuards } from './process-guards';
 import { startServer } from './start';
 
 /**
@@ -14,6 +15,7 @@ import { startServer } from './start';
 async function main(): Promise<void> {
   const config = loadConfig();
   const log = createLogger(config.logLevel, 'demo');
+  installProcessGuards(log);
   if (config.production) throw new Error('npm start is the demo; with NODE_ENV=production use npm run server');
   const server = await startServer(config, { log });
   const seeded = await seedDemo(server.sequelize, server.models, config);

@@ -1,11 +1,13 @@
 import { loadConfig } from './config';
 import { createLogger } from './logger';
+import { installProcessGuards } from './process-guards';
 import { startServer } from './start';
 
 /** `npm run server`: everything on the configured ports, no demo data. */
 async function main(): Promise<void> {
   const config = loadConfig();
   const log = createLogger(config.logLevel);
+  installProcessGuards(log);
   const server = await startServer(config, { log });
   let exiting = false;
   const shutdown = (signal: string) => {

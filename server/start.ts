@@ -5,6 +5,9 @@ import type { Express } from 'express';
 import type { Sequelize } from 'sequelize';
 import type { AppContext } from './app-context';
 import { createApp, type AppOptions } from './app';
+import { restrictDataFiles, sqliteFileOf } from './data-files';
+import { AccessEvents } from './auth/access-events';
+import { sessionStillValid } from './auth/middleware';
 import { loadJwtSecret } from './auth/jwt-secret';
 import { createTokenService } from './auth/tokens';
 import type { Config } from './config';
@@ -38,19 +41,21 @@ export interface ServerHandle {
 
 export interface StartOptions extends AppOptions {
   log?: Logger;
-  /** Interface to listen on; loopback unless told otherwise. */
+  /** Interface to listen on; config.host (HOST, loopback by default) unless told otherwise. */
   host?: string;
 }
 
 export async function startServer(config: Config, opts: StartOptions = {}): Promise<ServerHandle> {
   const log = opts.log ?? createLogger(config.logLevel);
   fs.mkdirSync(config.dataDir, { recursive: true });
+  restrictDataFiles(config.dataDir, sqliteFileOf(config.databaseUrl));
   const sequelize = createSequelize(config, log);
   const applied = await migrate(sequelize, log);
   if (applied.length) log.info(`migrations applied: ${applied.join(', ')}`);
   const models = initModels(sequelize);
   const tokens = createTokenService(loadJwtSecret(config.dataDir));
-  const ctx: AppContext = { config, log, sequelize, models, tokens, telemetry: null, startedAt: Date.now() };
+  const access = new AccessEvents();
+  const ctx: AppContext = { config, log, sequelize, models, tokens, telemetry: null, startedAt: Date.now(), access };
   const alarms = createAlarmFeature(ctx);
   const app = createApp(ctx, { ...opts, extraRouters: [...(opts.extraRouters ?? []), ...alarms.routers] });
   const httpServer = http.createServer(app);
@@ -62,6 +67,8 @@ export async function startServer(config: Config, opts: StartOptions = {}): Prom
     verifyToken: (t) => tokens.verify(t),
     siteOfEngine: siteOfEngineLookup(models),
     siteScope: (user) => siteScopeForUser(models, user),
+    sessionValid: (user) => sessionStillValid(models, user),
+    access,
     log,
   });
   ctx.telemetry = telemetry;
@@ -71,13 +78,13 @@ export async function startServer(config: Config, opts: StartOptions = {}): Prom
 
   await new Promise<void>((resolve, reject) => {
     httpServer.once('error', reject);
-    httpServer.listen(config.port, opts.host ?? '127.0.0.1', () => {
+    httpServer.listen(config.port, opts.host ?? config.host, () => {
       httpServer.off('error', reject);
       resolve();
     });
   });
   const port = (httpServer.address() as AddressInfo).port;
-  log.info(`HTTP listening on ${opts.host ?? '127.0.0.1'}:${port}`);
+  log.info(`HTTP listening on ${opts.host ?? config.host}:${port}`);
 
   let stopping: Promise<void> | null = null;
   const stop = () =>

@@ -25,10 +25,12 @@ export async function requireAuth(req: Request, _res: Response, next: NextFuncti
   const ctx = req.app.locals.ctx as AppContext;
   const claims = ctx.tokens.verify(bearer(req));
   if (!claims) throw new HttpError(401, 'sign-in required');
-  // a disabled or deleted user loses access at once, not when the token expires
-  const user = await ctx.models.User.findByPk(claims.id, { attributes: ['id', 'email', 'role', 'disabled'] });
+  // a disabled or deleted user loses access at once, not when the token expires; so does a token
+  // signed before the user's role, sites or password changed (session version)
+  const user = await ctx.models.User.findByPk(claims.id, { attributes: ['id', 'email', 'role', 'disabled', 'sessionVersion'] });
   if (!user || user.disabled) throw new HttpError(401, 'account is not active');
-  req.user = { id: user.id, email: user.email, role: user.role };
+  if ((claims.sv ?? 0) !== user.sessionVersion) throw new HttpError(401, 'session ended; sign in again');
+  req.user = { id: user.id, email: user.email, role: user.role, sv: user.sessionVersion };
   next();
 }
 
@@ -39,4 +41,10 @@ export function requireRole(...roles: Role[]) {
     if (!roles.includes(req.user.role)) throw new HttpError(403, `needs role ${roles.join(' or ')}`);
     next();
   };
+}
+
+/** For the socket.io handshake: the same checks as requireAuth, on a verified token's claims. */
+export async function sessionStillValid(models: AppContext['models'], claims: AuthUser): Promise<boolean> {
+  const user = await models.User.findByPk(claims.id, { attributes: ['id', 'disabled', 'sessionVersion', 'role'] });
+  return !!user && !user.disabled && user.role === claims.role && (claims.sv ?? 0) === user.sessionVersion;
 }

@@ -12,14 +12,14 @@ const ISSUER = 'jacketwatch';
 
 export function createTokenService(secret: string, expiresInSeconds = 12 * 3600): TokenService {
   return {
-    sign: (user) => jwt.sign({ email: user.email, role: user.role }, secret, { subject: String(user.id), issuer: ISSUER, expiresIn: expiresInSeconds, algorithm: 'HS256' }),
+    sign: (user) => jwt.sign({ email: user.email, role: user.role, sv: user.sv ?? 0 }, secret, { subject: String(user.id), issuer: ISSUER, expiresIn: expiresInSeconds, algorithm: 'HS256' }),
     verify(token) {
       if (!token) return null;
       try {
         const p = jwt.verify(token, secret, { issuer: ISSUER, algorithms: ['HS256'] }) as jwt.JwtPayload;
         const id = Number(p.sub);
         if (!Number.isInteger(id) || typeof p.email !== 'string' || !(ROLES as readonly string[]).includes(p.role)) return null;
-        return { id, email: p.email, role: p.role };
+        return { id, email: p.email, role: p.role, sv: typeof p.sv === 'number' ? p.sv : 0 };
       } catch {
         return null;
       }

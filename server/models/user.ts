@@ -10,13 +10,15 @@ export class User extends Model<InferAttributes<User>, InferCreationAttributes<U
   declare passwordHash: string;
   declare role: Role;
   declare disabled: CreationOptional<boolean>;
+  /** Raised to end every session signed before (disable, role, sites, password). */
+  declare sessionVersion: CreationOptional<number>;
   declare createdAt: CreationOptional<Date>;
   declare updatedAt: CreationOptional<Date>;
 
   /** Never expose the hash. */
   override toJSON(): Omit<InferAttributes<User>, 'passwordHash'> {
-    const { passwordHash: _hash, ...rest } = this.get({ plain: true });
-    return rest;
+    const { passwordHash: _hash, sessionVersion: _sv, ...rest } = this.get({ plain: true });
+    return rest as Omit<InferAttributes<User>, 'passwordHash'>;
   }
 }
 
@@ -29,6 +31,7 @@ export function initUser(sequelize: Sequelize): typeof User {
       passwordHash: { type: DataTypes.STRING(100), allowNull: false },
       role: { type: DataTypes.STRING(16), allowNull: false, validate: { isIn: [ROLES as unknown as string[]] } },
       disabled: { type: DataTypes.BOOLEAN, allowNull: false, defaultValue: false },
+      sessionVersion: { type: DataTypes.INTEGER, allowNull: false, defaultValue: 0 },
       createdAt: DataTypes.DATE,
       updatedAt: DataTypes.DATE,
     },

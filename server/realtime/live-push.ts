@@ -16,6 +16,8 @@ export interface LivePushOptions {
   siteOfEngine(engineId: number): Promise<number | null>;
   /** Sites the user may see (server/services/site-access.ts); absent: every site. */
   siteScope?(user: AuthUser): Promise<{ all: boolean; siteIds: readonly number[] }>;
+  /** Whether the token's session still holds (user enabled, session version current); absent: yes. */
+  sessionValid?(user: AuthUser): Promise<boolean>;
   log: Logger;
   throttleMs?: number;
 }
@@ -44,6 +46,9 @@ export const ALARMS_ROOM = 'alarms';
 /** Alarm events of one site, for users limited to some sites (they never join ALARMS_ROOM). */
 export const alarmsSiteRoom = (siteId: number) => `alarms:site:${siteId}`;
 
+/** Every socket of one user, so their sessions can be ended together. */
+const userRoom = (userId: number) => `user:${userId}`;
+
 export class LivePush {
   readonly io: Server;
   private readonly throttleMs: number;
@@ -58,8 +63,12 @@ export class LivePush {
         const token = socket.handshake.auth?.token;
         const user = typeof token === 'string' ? opts.verifyToken(token) : null;
         if (!user) return next(new Error('unauthorized'));
-        socket.data.user = user;
-        next();
+        const valid = opts.sessionValid ? opts.sessionValid(user) : Promise.resolve(true);
+        valid.then((ok) => {
+          if (!ok) return next(new Error('unauthorized'));
+          socket.data.user = user;
+          next();
+        }, () => next(new Error('unauthorized')));
       } catch {
         next(new Error('unauthorized'));
       }
@@ -68,22 +77,45 @@ export class LivePush {
   }
 
   private onConnection(socket: Socket): void {
+    void socket.join(userRoom((socket.data.user as AuthUser).id));
     socket.on('watch', (raw: unknown, ack?: unknown) => {
       const parsed = watchSchema.safeParse(raw);
       const reply = typeof ack === 'function' ? (ack as (x: unknown) => void) : () => undefined;
       if (!parsed.success) return reply({ error: 'watch takes { fleet?, alarms?, siteIds?, engineIds? }' });
-      const seq = (socket.data.watchSeq = ((socket.data.watchSeq as number | undefined) ?? 0) + 1);
-      this.allowedRooms(socket.data.user as AuthUser, parsed.data).then((rooms) => {
-        if (seq !== socket.data.watchSeq) return; // a later watch won
-        // a new watch replaces the previous one
-        for (const room of socket.rooms) if (room !== socket.id) void socket.leave(room);
-        void socket.join(rooms);
-        reply({ rooms });
+      socket.data.watch = parsed.data;
+      this.applyWatch(socket, parsed.data).then((rooms) => {
+        if (rooms) reply({ rooms });
       }, (err) => {
         this.opts.log.warn('live push: watch failed', err instanceof Error ? err.message : err);
         reply({ error: 'watch failed' });
       });
     });
+  }
+
+  /** Joins the rooms of a watch under the user's current sites; null when a later watch won meanwhile. */
+  private async applyWatch(socket: Socket, w: z.infer<typeof watchSchema>): Promise<string[] | null> {
+    const seq = (socket.data.watchSeq = ((socket.data.watchSeq as number | undefined) ?? 0) + 1);
+    const rooms = await this.allowedRooms(socket.data.user as AuthUser, w);
+    if (seq !== socket.data.watchSeq) return null; // a later watch won
+    // a new watch replaces the previous one
+    for (const room of socket.rooms) if (room !== socket.id && !room.startsWith('user:')) void socket.leave(room);
+    void socket.join(rooms);
+    return rooms;
+  }
+
+  /** The user's sites changed: every open socket of theirs keeps its watch, under the new sites. */
+  async rescope(userId: number): Promise<void> {
+    for (const socket of await this.io.in(userRoom(userId)).fetchSockets()) {
+      const local = this.io.sockets.sockets.get(socket.id);
+      if (!local) continue;
+      const w = local.data.watch as z.infer<typeof watchSchema> | undefined;
+      if (!w) continue;
+      const rooms = await this.applyWatch(local, w).catch((err) => {
+        this.opts.log.warn('live push: re-scope failed', err instanceof Error ? err.message : err);
+        return null;
+      });
+      if (rooms) local.emit('rooms', { rooms }); // what the socket now receives, as a watch reply would say
+    }
   }
 
   /** Rooms of a watch, limited to the user's sites: fleet becomes their sites, other sites and engines are left out. */
@@ -106,6 +138,11 @@ export class LivePush {
       if (siteId !== null && mine.has(siteId)) rooms.push(`engine:${id}`);
     }
     return rooms;
+  }
+
+  /** The user's sessions ended (disabled, role, sites or password changed): close their sockets now. */
+  endSessions(userId: number): void {
+    this.io.in(userRoom(userId)).disconnectSockets(true);
   }
 
   emit(room: string, event: string, payload: unknown): void {

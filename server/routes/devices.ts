@@ -37,13 +37,16 @@ export function devicesRouter(ctx: AppContext): Router {
   });
   r.post('/devices/:id/rotate', async (req, res) => {
     const { device, secret } = await rotateDevice(ctx.models, parseId(req.params));
+    ctx.access?.deviceChanged(device.id); // the old secret and its connections end now
     res.json({ ...device.toJSON(), secret });
   });
   r.put('/devices/:id/metric-map', async (req, res) => {
     res.json(await setMetricMap(ctx.models, parseId(req.params), parse(metricMapBody, req.body)));
   });
   r.post('/devices/:id/revoke', async (req, res) => {
-    res.json(await revokeDevice(ctx.models, parseId(req.params)));
+    const device = await revokeDevice(ctx.models, parseId(req.params));
+    ctx.access?.deviceChanged(device.id);
+    res.json(device);
   });
   return r;
 }

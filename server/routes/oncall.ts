@@ -4,6 +4,8 @@ import { requireAuth, requireRole } from '../auth/middleware';
 import type { AppContext } from '../app-context';
 import { ROLES } from '../models/user';
 import { createShift, deleteShift, listPeople, listShifts, updateShift } from '../services/alarms/oncall';
+import { badRequest, notFound } from '../http-error';
+import { maySeeSite, siteFilter, siteScopeOf, visibleUserIds } from '../services/site-access';
 import { instant, parse, parseId } from './validate';
 
 const fields = {
@@ -32,21 +34,38 @@ const listQuery = z.object({ siteId: z.coerce.number().int().positive().optional
 export function oncallRouter(ctx: AppContext): Router {
   const r = Router();
   r.get('/people', requireAuth, requireRole('planner', 'admin'), async (req, res) => {
-    res.json(await listPeople(ctx.models, parse(peopleQuery, req.query).role));
+    const roles = parse(peopleQuery, req.query).role;
+    res.json(await listPeople(ctx.models, roles, await visibleUserIds(ctx.models, await siteScopeOf(req))));
   });
+  // a user limited to some sites reads and plans only their rota; other sites' shifts read as unknown
+  const assertShiftSite = async (req: Parameters<typeof siteScopeOf>[0], siteId: number | undefined, what: 'siteId' | 'shift') => {
+    if (siteId === undefined || maySeeSite(await siteScopeOf(req), siteId)) return;
+    if (what === 'shift') throw notFound('shift');
+    throw badRequest('site does not exist or is retired', 'siteId');
+  };
+  const shiftSite = async (id: number) => (await ctx.models.OncallShift.findByPk(id, { attributes: ['id', 'siteId'] }))?.siteId;
   r.use('/oncall', requireAuth);
   r.get('/oncall', async (req, res) => {
-    res.json(await listShifts(ctx.models, parse(listQuery, req.query)));
+    const q = parse(listQuery, req.query);
+    const siteIds = siteFilter(await siteScopeOf(req), q.siteId);
+    res.json(await listShifts(ctx.models, { ...q, siteIds }));
   });
   r.post('/oncall', requireRole('planner', 'admin'), async (req, res) => {
-    res.status(201).json(await createShift(ctx.models, parse(createBody, req.body)));
+    const body = parse(createBody, req.body);
+    await assertShiftSite(req, body.siteId, 'siteId');
+    res.status(201).json(await createShift(ctx.models, body));
   });
   r.patch('/oncall/:id', requireRole('planner', 'admin'), async (req, res) => {
     const id = parseId(req.params);
-    res.json(await updateShift(ctx.models, id, parse(patchBody, req.body)));
+    const body = parse(patchBody, req.body);
+    await assertShiftSite(req, await shiftSite(id), 'shift');
+    await assertShiftSite(req, body.siteId, 'siteId');
+    res.json(await updateShift(ctx.models, id, body));
   });
   r.delete('/oncall/:id', requireRole('planner', 'admin'), async (req, res) => {
-    await deleteShift(ctx.models, parseId(req.params));
+    const id = parseId(req.params);
+    await assertShiftSite(req, await shiftSite(id), 'shift');
+    await deleteShift(ctx.models, id);
     res.status(204).end();
   });
   return r;

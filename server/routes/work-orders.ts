@@ -8,7 +8,7 @@ import { PART_KINDS } from '../models/work-order-part';
 import { WORK_PRIORITIES, WORK_STATUSES } from '../models/work-order';
 import type { Telemetry } from '../telemetry/types';
 import { WORK_KINDS, WORK_TEMPLATES } from '../services/work-templates';
-import { assertAttachmentVisible, assertEngineVisible, assertWorkOrderVisible, engineVisible, siteScopeOf, visibleEngineIds } from '../services/site-access';
+import { assertAttachmentVisible, assertEngineVisible, assertWorkOrderVisible, engineVisible, siteScopeOf, visibleEngineIds, visibleUserIds } from '../services/site-access';
 import { addAttachment, attachmentFile, MAX_ATTACHMENT_BYTES } from '../services/work-orders/attachment-service';
 import { computeGate } from '../services/work-orders/gate';
 import { ReadingHistory } from '../services/work-orders/reading-history';
@@ -106,7 +106,8 @@ function attachHistory(ctx: AppContext, history: ReadingHistory): () => void {
   return tryAttach;
 }
 
-const upload = multer({ storage: multer.memoryStorage(), limits: { fileSize: MAX_ATTACHMENT_BYTES, files: 1, fields: 5, parts: 6 } });
+// defParamCharset utf8: browsers send a file name as raw UTF-8 bytes; multer's default (latin1) garbles it
+const upload = multer({ storage: multer.memoryStorage(), defParamCharset: 'utf8', limits: { fileSize: MAX_ATTACHMENT_BYTES, files: 1, fields: 5, parts: 6 } });
 function singleFile(req: Request, res: Response, next: NextFunction) {
   upload.single('file')(req, res, (err: unknown) => {
     if (!err) return next();
@@ -161,8 +162,10 @@ export function workOrdersRouterWithService(ctx: AppContext): WorkRouterHandle {
     res.json({ engineId: engine.id, at: new Date().toISOString(), clear: g.clear, conditions: g.conditions, clearAt: g.clearAt, forecast: g.forecast, reasons: g.reasons, stale: g.stale, settings: g.settings });
   });
 
-  r.get('/work-orders/assignees', async (_req, res) => {
-    const users = await ctx.models.User.findAll({ where: { role: 'technician', disabled: false }, attributes: ['id', 'name', 'email'], order: [['name', 'ASC']] });
+  r.get('/work-orders/assignees', async (req, res) => {
+    // the picker follows the asker's sites: no names of people who work only elsewhere
+    const ids = await visibleUserIds(ctx.models, await siteScopeOf(req));
+    const users = await ctx.models.User.findAll({ where: { role: 'technician', disabled: false, ...(ids ? { id: ids } : {}) }, attributes: ['id', 'name', 'email'], order: [['name', 'ASC']] });
     res.json(users.map((u) => ({ id: u.id, name: u.name, email: u.email })));
   });
 

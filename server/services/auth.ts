@@ -1,4 +1,5 @@
 import type { TokenService } from '../auth/tokens';
+import { hashGate } from '../auth/hash-gate';
 import { HttpError } from '../http-error';
 import type { Models } from '../models';
 import { checkAgainstDummy, checkSecret } from './passwords';
@@ -10,11 +11,17 @@ export interface SessionUser {
   role: string;
 }
 
-export async function login(models: Models, tokens: TokenService, email: string, password: string): Promise<{ token: string; user: SessionUser }> {
+/** `clientKey` (the client's address) shares the hashing fairly among addresses under a flood. */
+export async function login(models: Models, tokens: TokenService, email: string, password: string, clientKey = ''): Promise<{ token: string; user: SessionUser }> {
   const user = await models.User.findOne({ where: { email: email.trim().toLowerCase() } });
-  const ok = user ? await checkSecret(password, user.passwordHash) : await checkAgainstDummy(password);
+  let ok: boolean;
+  try {
+    ok = await hashGate.run(clientKey, () => (user ? checkSecret(password, user.passwordHash) : checkAgainstDummy(password)));
+  } catch {
+    throw new HttpError(429, 'too many sign-in attempts waiting; try again later');
+  }
   if (!user || !ok || user.disabled) throw new HttpError(401, 'e-mail or password is wrong');
-  return { token: tokens.sign({ id: user.id, email: user.email, role: user.role }), user: sessionUser(user) };
+  return { token: tokens.sign({ id: user.id, email: user.email, role: user.role, sv: user.sessionVersion }), user: sessionUser(user) };
 }
 
 export async function me(models: Models, id: number): Promise<SessionUser> {

@@ -111,3 +111,18 @@ export async function sitesByUser(models: Models, userIds?: number[]): Promise<M
   }
   return out;
 }
+
+/**
+ * Ids of the users a scope may see in people pickers and the rota: everyone for an all-sites scope;
+ * otherwise users who share one of its sites, users without site rows (they work at every site) and
+ * admins. Null means every user.
+ */
+export async function visibleUserIds(models: Models, scope: SiteScope): Promise<number[] | null> {
+  if (scope.all) return null;
+  const limited = await sitesByUser(models);
+  const users = await models.User.findAll({ attributes: ['id', 'role'] });
+  const mine = new Set(scope.siteIds);
+  return users
+    .filter((u) => u.role === 'admin' || !limited.has(u.id) || limited.get(u.id)!.some((id) => mine.has(id)))
+    .map((u) => u.id);
+}

@@ -2,8 +2,11 @@
  * The telemetry path: MQTT (embedded aedes, or an external broker) -> payload check ->
  * bounded buffer -> batched SQLite writes, with live state, live push and counters beside it.
  */
+import fs from 'node:fs';
 import bcrypt from 'bcryptjs';
 import { QueryTypes } from 'sequelize';
+import { FailureThrottle } from '../auth/failure-throttle';
+import { hashGate } from '../auth/hash-gate';
 import { CHANNELS } from '../../shared/channels';
 import { parseTelemetry, type ParsedReading } from '../../shared/telemetry-payload';
 import { LivePush } from '../realtime/live-push';
@@ -14,7 +17,7 @@ import { MemoryLiveState } from './live-state';
 import { ReadingWriter, type WriterOptions } from './reading-writer';
 import { DEVICE_BY_USERNAME_SQL } from './sql';
 import { startExternalSubscriber } from './external-broker';
-import { SparkplugHost } from './sparkplug/host';
+import { SparkplugHost, type SparkplugIdentity } from './sparkplug/host';
 import { readNodeRecords } from './sparkplug/records';
 import type { AcceptedReading, Telemetry, TelemetryDeps } from './types';
 
@@ -41,7 +44,9 @@ export async function startTelemetry(deps: TelemetryDeps, options: TelemetryOpti
   let stopping = false;
 
   await liveState.load(sequelize);
-  const livePush = new LivePush({ httpServer: deps.httpServer, verifyToken: deps.verifyToken, siteOfEngine: deps.siteOfEngine, siteScope: deps.siteScope, log });
+  const livePush = new LivePush({ httpServer: deps.httpServer, verifyToken: deps.verifyToken, siteOfEngine: deps.siteOfEngine, siteScope: deps.siteScope, sessionValid: deps.sessionValid, log });
+  deps.access?.onUserChanged((userId) => livePush.endSessions(userId));
+  deps.access?.onSitesChanged((userId) => void livePush.rescope(userId));
   listeners.push((readings) => livePush.push(readings));
 
   const reject = (deviceId: number | null, reason: string, detail: string) => {
@@ -159,6 +164,8 @@ export async function startTelemetry(deps: TelemetryDeps, options: TelemetryOpti
   activity.start();
   counters.watchEventLoop();
 
+  const deviceLogin = new DeviceLogin(sequelize, (deviceId, detail) => activity.reject(deviceId, 'login_failed', detail));
+
   let mqtt: Closable;
   let mqttPort: number | null = null;
   if (config.mqttUrl) {
@@ -169,16 +176,12 @@ export async function startTelemetry(deps: TelemetryDeps, options: TelemetryOpti
     const { createBroker } = require('../../broker/broker') as typeof import('../../broker/broker');
     const broker = await createBroker({
       port: config.mqttPort,
+      host: config.mqttHost,
+      tls: config.mqttTls
+        ? { cert: fs.readFileSync(config.mqttTls.certFile), key: fs.readFileSync(config.mqttTls.keyFile), port: config.mqttTls.port }
+        : undefined,
       log,
-      authenticate: async (username, password) => {
-        const rows = await sequelize.query<{ id: number; engineId: number; secretHash: string; revokedAt: unknown; spGroup: string | null; spNode: string | null; spDevice: string | null }>(
-          DEVICE_BY_USERNAME_SQL, { bind: [username], type: QueryTypes.SELECT, logging: false });
-        const row = rows[0];
-        if (!row || row.revokedAt) return null;
-        if (!(await bcrypt.compare(password, row.secretHash))) return null;
-        const sp = row.spGroup && row.spNode ? { groupId: row.spGroup, edgeNodeId: row.spNode, deviceId: row.spDevice ?? null } : null;
-        return { deviceId: Number(row.id), engineId: Number(row.engineId), sparkplug: sp };
-      },
+      authenticate: (username, password, address) => deviceLogin.check(username, password, address),
       onTelemetry: (device, engineId, payload, done) => ingest(device.deviceId, engineId, payload, done),
       onReject: (device, reason, detail) => reject(device?.deviceId ?? null, reason, detail),
       onOversizePacket: () => { counters.oversizePacketsClosed++; },
@@ -186,6 +189,10 @@ export async function startTelemetry(deps: TelemetryDeps, options: TelemetryOpti
     });
     mqttPort = broker.port;
     mqtt = broker;
+    deps.access?.onDeviceChanged((deviceId) => {
+      const closed = broker.dropDevice(deviceId);
+      if (closed) log.info(`broker: closed ${closed} connection(s) of device ${deviceId} (revoked or rotated)`);
+    });
   }
 
   return {
@@ -208,4 +215,46 @@ export async function startTelemetry(deps: TelemetryDeps, options: TelemetryOpti
       counters.stopWatching();
     },
   };
+}
+
+/**
+ * MQTT device logins: failures counted per device (reason `login_failed`, shown to the admin in
+ * GET /api/admin/ingest), throttled per client address and per username before any hashing, and
+ * the bcrypt work shared fairly with HTTP sign-ins through the hash gate.
+ */
+class DeviceLogin {
+  /** Per address: a plant's gateways may share one NAT address, so this is generous. */
+  private readonly byAddress = new FailureThrottle(30, 5 * 60_000);
+  private readonly byUsername = new FailureThrottle(10, 5 * 60_000);
+
+  constructor(private readonly sequelize: import('sequelize').Sequelize, private readonly onFailure: (deviceId: number, detail: string) => void) {}
+
+  private blocked(username: string, address: string): boolean {
+    return this.byAddress.blocked(address) || this.byUsername.blocked(username);
+  }
+
+  async check(username: string, password: string, address: string): Promise<{ deviceId: number; engineId: number; sparkplug: SparkplugIdentity | null } | null> {
+    if (this.blocked(username, address)) return null;
+    const rows = await this.sequelize.query<{ id: number; engineId: number; secretHash: string; revokedAt: unknown; spGroup: string | null; spNode: string | null; spDevice: string | null }>(
+      DEVICE_BY_USERNAME_SQL, { bind: [username], type: QueryTypes.SELECT, logging: false });
+    const row = rows[0];
+    let ok = false;
+    try {
+      ok = await hashGate.run(address, async () => {
+        // checked again once it is our turn: a flood queued before the limit hit is refused without hashing
+        if (this.blocked(username, address)) return false;
+        return row && !row.revokedAt ? bcrypt.compare(password, row.secretHash) : false;
+      });
+    } catch {
+      return null; // too many waiting from this address
+    }
+    if (ok) {
+      const sparkplug = row.spGroup && row.spNode ? { groupId: row.spGroup, edgeNodeId: row.spNode, deviceId: row.spDevice ?? null } : null;
+      return { deviceId: Number(row.id), engineId: Number(row.engineId), sparkplug };
+    }
+    this.byAddress.fail(address);
+    this.byUsername.fail(username);
+    if (row) this.onFailure(Number(row.id), row.revokedAt ? `revoked device tried to connect from ${address}` : `wrong secret from ${address}`);
+    return null;
+  }
 }

@@ -1,6 +1,7 @@
 import type http from 'node:http';
 import type { Sequelize } from 'sequelize';
 import type { ChannelKey } from '../../shared/channels';
+import type { AccessEvents } from '../auth/access-events';
 import type { Config } from '../config';
 import type { Logger } from '../logger';
 
@@ -53,6 +54,8 @@ export interface AuthUser {
   id: number;
   email: string;
   role: 'admin' | 'planner' | 'technician' | 'operator';
+  /** The user's session version when the token was signed; a change ends the session. */
+  sv?: number;
 }
 
 export interface TelemetryDeps {
@@ -65,6 +68,10 @@ export interface TelemetryDeps {
   siteOfEngine(engineId: number): Promise<number | null>;
   /** Sites a user may see, for the rooms of a live-push watch; absent: every site. */
   siteScope?(user: AuthUser): Promise<{ all: boolean; siteIds: readonly number[] }>;
+  /** Whether a verified token's session is still valid (user enabled, session version current). */
+  sessionValid?(user: AuthUser): Promise<boolean>;
+  /** Revoke/rotate and user changes, to cut devices and sockets off at once. */
+  access?: AccessEvents;
   log: Logger;
 }
 

@@ -138,8 +138,11 @@ test('socket.io: a bad token is refused at the handshake; a good token receives 
   expect(err.message).toMatch(/unauthorized/);
   bad.close();
 
+  // the handshake checks the session against the users table: the user must exist and be enabled
+  const now = new Date().toISOString();
+  const userId = await db.run(`INSERT INTO users (email, name, password_hash, role, disabled, created_at, updated_at) VALUES ('operator@example.test', 'Test operator', 'x', 'operator', 0, ?, ?)`, [now, now]);
   const tokens = createTokenService(loadJwtSecret(server.dataDir));
-  const token = tokens.sign({ id: 1, email: 'operator@example.test', role: 'operator' });
+  const token = tokens.sign({ id: userId, email: 'operator@example.test', role: 'operator' });
   const sock: Socket = ioClient(url, { auth: { token }, transports: ['websocket'], reconnection: false });
   await new Promise<void>((resolve, reject) => { sock.once('connect', () => resolve()); sock.once('connect_error', reject); });
   const d = fleet[0];

@@ -327,6 +327,13 @@ describe('attachments', () => {
     expect(fs.existsSync(path.join(t.dataDir, '..', 'etc', 'evil.jpg'))).toBe(false);
   });
 
+  it('a non-ASCII file name keeps its UTF-8 characters; a text-direction override is not kept', async () => {
+    const res = await upload(t.tokens.technician, Buffer.from('%PDF-1.4\n%...'), 'Prüfbericht Kühlmittel.pdf').expect(201);
+    expect(res.body.originalName).toBe('Prüfbericht Kühlmittel.pdf');
+    const tricky = await upload(t.tokens.technician, JPEG, 'photo\u202Egpj.exe.jpg').expect(201);
+    expect(tricky.body.originalName).not.toMatch(/\u202E/);
+  });
+
   it('served only to signed-in users, with the type found by content', async () => {
     const up = await upload(t.tokens.technician, JPEG, 'pump.jpg').expect(201);
     await request(t.app).get(`/api/attachments/${up.body.id}`).expect(401);

@@ -62,9 +62,11 @@ async function views(models: Models, shifts: OncallShift[]): Promise<ShiftView[]
   }));
 }
 
-export async function listShifts(models: Models, q: { siteId?: number; from?: number; to?: number }): Promise<ShiftView[]> {
+/** `siteIds`: the sites the asker may see (null: every site); a siteId outside them gives an empty list. */
+export async function listShifts(models: Models, q: { siteId?: number; siteIds?: number[] | null; from?: number; to?: number }): Promise<ShiftView[]> {
   const where: Record<string | symbol, unknown> = {};
   if (q.siteId !== undefined) where.siteId = q.siteId;
+  if (q.siteIds) where.siteId = q.siteIds.filter((id) => q.siteId === undefined || id === q.siteId);
   if (q.to !== undefined) where.startsAt = { [Op.lt]: new Date(q.to) };
   if (q.from !== undefined) where.endsAt = { [Op.gt]: new Date(q.from) };
   const shifts = await models.OncallShift.findAll({ where, order: [['startsAt', 'ASC'], ['id', 'ASC']], limit: 1000 });
@@ -113,8 +115,9 @@ export async function onCallFor(models: Models, siteId: number, at: number): Pro
 export interface PersonView { id: number; name: string; email: string; role: string }
 
 /** People (enabled accounts) to choose from for the rota, optionally of some roles: no admin rights needed. */
-export async function listPeople(models: Models, roles?: string[]): Promise<PersonView[]> {
+export async function listPeople(models: Models, roles?: string[], userIds?: number[] | null): Promise<PersonView[]> {
   const where: Record<string, unknown> = { disabled: false };
+  if (userIds) where.id = userIds;
   if (roles?.length) where.role = { [Op.in]: roles };
   const users = await models.User.findAll({ where, order: [['name', 'ASC'], ['id', 'ASC']] });
   return users.map((u) => ({ id: u.id, name: u.name, email: u.email, role: u.role }));

@@ -26,7 +26,8 @@ export function sniffContent(buf: Buffer): Sniffed | null {
 export function cleanOriginalName(name: string | undefined): string {
   const base = (name ?? '').split(/[\\/]/).pop() ?? '';
   // eslint-disable-next-line no-control-regex
-  const cleaned = base.replace(/[\u0000-\u001f\u007f"<>|:*?]/g, '_').replace(/^\.+/, '').trim().slice(0, 200);
+  // bidirectional overrides would let `x\u202Egnp.exe` display as `xexe.png`
+  const cleaned = base.replace(/[\u0000-\u001f\u007f-\u009f\u202a-\u202e\u2066-\u2069"<>|:*?]/g, '_').replace(/^\.+/, '').trim().slice(0, 200);
   return cleaned || 'file';
 }
 
@@ -44,9 +45,9 @@ export async function addAttachment(svc: WorkOrderService, user: AuthUser, order
   const kind = sniffContent(file.buffer);
   if (!kind) throw new HttpError(415, 'only JPEG, PNG or WebP photos and PDF documents are accepted (checked by content)', 'file');
   const dir = uploadsDir(svc.ctx.config.dataDir);
-  fs.mkdirSync(dir, { recursive: true });
+  fs.mkdirSync(dir, { recursive: true, mode: 0o700 });
   const storedName = `${crypto.randomUUID()}.${kind.ext}`;
-  await fs.promises.writeFile(path.join(dir, storedName), file.buffer, { flag: 'wx', mode: 0o640 });
+  await fs.promises.writeFile(path.join(dir, storedName), file.buffer, { flag: 'wx', mode: 0o600 });
   try {
     const row = await svc.ctx.sequelize.transaction(async (transaction) => {
       const a = await svc.models.Attachment.create({ workOrderId: orderId, stepId, storedName, originalName: cleanOriginalName(file.originalname), contentType: kind.contentType, size: file.buffer.length, uploadedBy: user.id }, { transaction });

@@ -102,7 +102,7 @@ export class UserDialog {
     email: [this.data.user?.email ?? '', [Validators.required, Validators.email, Validators.maxLength(254)]],
     role: [this.data.user?.role ?? ('operator' as Role), Validators.required],
     siteIds: [this.data.user?.siteIds ?? ([] as number[])],
-    password: [this.data.mode === 'edit' ? '' : generatePassword(), this.data.mode === 'edit' ? [] : [Validators.required, Validators.minLength(10), Validators.maxLength(200)]],
+    password: [this.data.mode === 'edit' ? '' : generatePassword(), this.data.mode === 'edit' ? [] : [Validators.required, Validators.minLength(12), Validators.maxLength(72)]],
   });
 
   protected err(name: keyof typeof this.form.controls): string {
