@@ -13,6 +13,7 @@ import { map } from 'rxjs';
 import { AlarmFeed } from './alarms/alarm-feed';
 import { AppBarStatus } from './core/app-bar-status';
 import { AuthService } from './core/auth.service';
+import { ConnectionBanner } from './core/connection-banner';
 import { PreferencesService } from './core/preferences.service';
 import { Role } from './core/user';
 
@@ -45,7 +46,7 @@ const ROLE_TEXT: Record<Role, string> = { admin: 'Administrator', planner: 'Plan
   selector: 'jw-root',
   changeDetection: ChangeDetectionStrategy.OnPush,
   imports: [
-    RouterOutlet, RouterLink, RouterLinkActive,
+    RouterOutlet, RouterLink, RouterLinkActive, ConnectionBanner,
     MatToolbarModule, MatSidenavModule, MatListModule, MatIconModule, MatButtonModule, MatMenuModule, MatDividerModule,
   ],
   templateUrl: './app.html',

@@ -1,4 +1,4 @@
-import { DOCUMENT, DatePipe, DecimalPipe } from '@angular/common';
+import { DOCUMENT, DecimalPipe } from '@angular/common';
 import { ChangeDetectionStrategy, Component, DestroyRef, computed, effect, inject, input, signal, untracked } from '@angular/core';
 import { toObservable } from '@angular/core/rxjs-interop';
 import { MatButtonModule } from '@angular/material/button';
@@ -11,11 +11,14 @@ import { RouterLink } from '@angular/router';
 import { EMPTY, Subscription, catchError, debounceTime, forkJoin, map, of, switchMap, tap } from 'rxjs';
 import { CHANNELS, CHANNEL_KEYS, ChannelKey, isChannelKey } from '../../../shared/channels';
 import { ClockService } from '../core/clock.service';
+import { DisplayZone } from '../core/display-zone';
+import { ReadingCadence, isStale, staleText } from '../core/staleness';
 import { ChannelValues } from '../core/live-reading';
 import { LiveService } from '../core/live.service';
 import { PreferencesService } from '../core/preferences.service';
 import { Engine, RunState, Site } from '../fleet/fleet-types';
-import { runStateAt, toMillis } from '../fleet/run-state';
+import { lastReadingAt, runStateAt, toMillis } from '../fleet/run-state';
+import { JwTimePipe, zoneAbbreviation } from '../ui/time-format';
 import { UnitValuePipe } from '../ui/unit-value.pipe';
 import { EngineService } from './engine.service';
 import { LiveValues } from './live-values';
@@ -51,7 +54,7 @@ interface TrendRequest {
   changeDetection: ChangeDetectionStrategy.OnPush,
   imports: [
     RouterLink, MatCardModule, MatIconModule, MatButtonModule, MatChipsModule, MatProgressBarModule,
-    DatePipe, DecimalPipe, UnitValuePipe, LiveValues, RangePicker, TrendChart, RecentReadings,
+    DecimalPipe, UnitValuePipe, JwTimePipe, LiveValues, RangePicker, TrendChart, RecentReadings,
   ],
   templateUrl: './engine-page.html',
   styleUrl: './engine-page.scss',
@@ -65,10 +68,12 @@ export class EnginePage {
   private readonly title = inject(Title);
   private readonly document = inject(DOCUMENT);
   private readonly destroyRef = inject(DestroyRef);
+  private readonly zones = inject(DisplayZone);
+  private readonly cadence = inject(ReadingCadence);
 
   /** Route parameter (withComponentInputBinding). */
   readonly id = input<string>();
-  private readonly engineId = computed(() => {
+  protected readonly engineId = computed(() => {
     const n = Number(this.id());
     return Number.isInteger(n) && n > 0 ? n : null;
   });
@@ -76,6 +81,12 @@ export class EnginePage {
   protected readonly engine = signal<Engine | null>(null);
   protected readonly site = signal<Site | null>(null);
   protected readonly loadError = signal<string | null>(null);
+  protected readonly notFound = signal(false);
+  /** Bumped by Retry: loads the engine again. */
+  private readonly attempt = signal(0);
+  /** Times on this page: the site's zone, or the browser's by preference. */
+  protected readonly zone = computed(() => this.zones.zoneFor(this.site()?.timeZone));
+  protected readonly zoneLabel = computed(() => `${this.zone()} (${zoneAbbreviation(this.clock.now(), this.zone())})`);
 
   protected readonly state = computed<RunState>(() => {
     const e = this.engine();
@@ -90,6 +101,14 @@ export class EnginePage {
     equal: (a, b) => a.heaterSetpointC === b.heaterSetpointC,
   });
   protected readonly lastSeen = computed(() => toMillis(this.engine()?.lastSeenAt));
+  /** "last 11:15 MST · 12 min ago" once the newest reading is older than the engine's expected interval. */
+  protected readonly staleNow = computed(() => {
+    const e = this.engine();
+    const last = e ? lastReadingAt(e) : null;
+    const now = this.clock.now();
+    if (!e || last === null || !isStale(last, now, this.cadence.intervalFor(e.id))) return null;
+    return staleText(last, now, this.zone());
+  });
 
   // --- trend ---
   protected readonly allChannels = CHANNEL_KEYS.map((key) => ({ key, label: CHANNELS[key].label }));
@@ -120,12 +139,25 @@ export class EnginePage {
   constructor() {
     effect((onCleanup) => {
       const id = this.engineId();
+      this.attempt();
       if (id === null) {
+        this.notFound.set(true);
         this.loadError.set('There is no engine with this address.');
         return;
       }
       const sub = untracked(() => this.load(id));
       onCleanup(() => sub.unsubscribe());
+    });
+
+    // Back from a lost connection: a page that failed to load tries again by itself.
+    let wasLost = false;
+    effect(() => {
+      if (this.live.lostSince() !== null) {
+        wasLost = true;
+      } else if (wasLost && this.live.connection() === 'connected') {
+        wasLost = false;
+        if (untracked(() => this.loadError() !== null && !this.notFound())) this.retry();
+      }
     });
 
     effect(() => {
@@ -148,6 +180,10 @@ export class EnginePage {
 
     const timer = setInterval(() => this.applyLive(), LIVE_REDRAW_MS);
     this.destroyRef.onDestroy(() => clearInterval(timer));
+  }
+
+  protected retry(): void {
+    this.attempt.update((n) => n + 1);
   }
 
   protected chooseRange(range: TrendRange): void {
@@ -184,6 +220,7 @@ export class EnginePage {
 
   private load(id: number): Subscription {
     this.loadError.set(null);
+    this.notFound.set(false);
     // One parent for all three: the HTTP part completes, the live part must not end with it.
     const sub = new Subscription();
     sub.add(forkJoin([this.api.engine(id), this.api.sites().pipe(catchError(() => of([] as Site[])))]).subscribe({
@@ -192,8 +229,10 @@ export class EnginePage {
         this.site.set(sites.find((s) => s.id === engine.siteId) ?? null);
         this.recent.set(recentFrom(engine.latest ?? {}));
       },
-      error: (err: { status?: number }) =>
-        this.loadError.set(err?.status === 404 ? 'There is no engine with this address.' : 'The engine could not be loaded. Reload the page to try again.'),
+      error: (err: { status?: number }) => {
+        this.notFound.set(err?.status === 404);
+        this.loadError.set(err?.status === 404 ? 'There is no engine with this address.' : 'The engine could not be loaded.');
+      },
     }));
     const unwatch = this.live.watch({ engineIds: [id] });
     sub.add(unwatch);
