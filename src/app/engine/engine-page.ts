@@ -7,7 +7,7 @@ import { MatChipsModule } from '@angular/material/chips';
 import { MatIconModule } from '@angular/material/icon';
 import { MatProgressBarModule } from '@angular/material/progress-bar';
 import { Title } from '@angular/platform-browser';
-import { RouterLink } from '@angular/router';
+import { ActivatedRoute, Router, RouterLink } from '@angular/router';
 import { EMPTY, Subscription, catchError, debounceTime, forkJoin, map, of, switchMap, tap } from 'rxjs';
 import { CHANNELS, CHANNEL_KEYS, ChannelKey, isChannelKey } from '../../../shared/channels';
 import { ClockService } from '../core/clock.service';
@@ -25,7 +25,7 @@ import { LiveValues } from './live-values';
 import { RangePicker } from './range-picker';
 import { bucketsToCsv, downloadText } from './readings-csv';
 import { RecentReading, RecentReadings } from './recent-readings';
-import { TREND_NOW, TrendRange, presetRange, refreshRange } from './trend-range';
+import { DEFAULT_PRESET, TREND_NOW, TrendRange, presetRange, rangeFromQuery, rangeToQuery, refreshRange, sameRange } from './trend-range';
 import { TrendChart, TrendWindow } from './trend-chart';
 import { Bucket, LiveSample, appendLive, bucketWidth, runChanges } from './trend-series';
 
@@ -73,6 +73,13 @@ export class EnginePage {
 
   /** Route parameter (withComponentInputBinding). */
   readonly id = input<string>();
+  /** Query parameters (withComponentInputBinding): the trend's range and channels live in the address. */
+  readonly rangeParam = input<string | undefined>(undefined, { alias: 'range' });
+  readonly fromParam = input<string | undefined>(undefined, { alias: 'from' });
+  readonly toParam = input<string | undefined>(undefined, { alias: 'to' });
+  readonly channelsParam = input<string | undefined>(undefined, { alias: 'channels' });
+  private readonly router = inject(Router);
+  private readonly route = inject(ActivatedRoute);
   protected readonly engineId = computed(() => {
     const n = Number(this.id());
     return Number.isInteger(n) && n > 0 ? n : null;
@@ -112,8 +119,8 @@ export class EnginePage {
 
   // --- trend ---
   protected readonly allChannels = CHANNEL_KEYS.map((key) => ({ key, label: CHANNELS[key].label }));
-  protected readonly channels = signal<ChannelKey[]>(['coolant_temp', 'coolant_pressure', 'coolant_conductivity']);
-  protected readonly range = signal<TrendRange>(presetRange('24h', this.now()));
+  protected readonly channels = signal<ChannelKey[]>(DEFAULT_CHANNELS);
+  protected readonly range = signal<TrendRange>(presetRange(DEFAULT_PRESET, this.now()));
   /** A window the user zoomed into; null shows the whole range. */
   protected readonly zoom = signal<TrendWindow | null>(null);
   protected readonly width = signal(0);
@@ -137,6 +144,19 @@ export class EnginePage {
   protected readonly recent = signal<RecentReading[]>([]);
 
   constructor() {
+    // The address says which range and channels to show (back, reload and shared links keep them).
+    effect(() => {
+      const fromQuery = rangeFromQuery({ range: this.rangeParam(), from: this.fromParam(), to: this.toParam() }, this.now());
+      const channels = channelsFromQuery(this.channelsParam());
+      untracked(() => {
+        if (!sameRange(fromQuery, this.range())) {
+          this.zoom.set(null);
+          this.range.set(fromQuery);
+        }
+        if (channels.join() !== this.channels().join()) this.channels.set(channels);
+      });
+    });
+
     effect((onCleanup) => {
       const id = this.engineId();
       this.attempt();
@@ -189,6 +209,7 @@ export class EnginePage {
   protected chooseRange(range: TrendRange): void {
     this.zoom.set(null);
     this.range.set(range);
+    this.setQuery(rangeToQuery(range));
   }
 
   protected toggleChannel(key: ChannelKey, on: boolean): void {
@@ -196,6 +217,12 @@ export class EnginePage {
       const next = on ? [...new Set([...list, key])] : list.filter((k) => k !== key);
       return CHANNEL_KEYS.filter((k) => next.includes(k));
     });
+    this.setQuery({ channels: channelsToQuery(this.channels()) });
+  }
+
+  /** A new entry in the browser history, so the back button returns to the range shown before. */
+  private setQuery(params: Record<string, string | null>): void {
+    void this.router.navigate([], { relativeTo: this.route, queryParams: params, queryParamsHandling: 'merge' });
   }
 
   protected onZoom(win: TrendWindow): void {
@@ -302,6 +329,19 @@ export class EnginePage {
       return next;
     });
   }
+}
+
+const DEFAULT_CHANNELS: ChannelKey[] = ['coolant_temp', 'coolant_pressure', 'coolant_conductivity'];
+
+/** `channels=coolant_temp,engine_speed`; absent: the default three; empty: none. */
+export function channelsFromQuery(value: string | null | undefined): ChannelKey[] {
+  if (value === undefined || value === null) return DEFAULT_CHANNELS;
+  const asked = new Set(value.split(',').map((v) => v.trim()));
+  return CHANNEL_KEYS.filter((k) => asked.has(k));
+}
+
+function channelsToQuery(channels: ChannelKey[]): string | null {
+  return channels.join() === DEFAULT_CHANNELS.join() ? null : channels.join(',');
 }
 
 /** Live values keyed by channel (the server may also use channel codes). */

@@ -81,3 +81,23 @@ export class JwTimePipe implements PipeTransform {
     return formatInZone(at, zone, style, withZone);
   }
 }
+
+/** How far the zone's wall clock is ahead of UTC at `ms` (ms; negative west of Greenwich). */
+export function zoneOffsetMs(ms: number, zone: string): number {
+  const p = parts(ms, validZone(zone));
+  const wall = Date.UTC(+p['year'], +p['month'] - 1, +p['day'], p['hour'] === '24' ? 0 : +p['hour'], +p['minute'], +p['second']);
+  return wall - Math.floor(ms / 1000) * 1000;
+}
+
+/** The instant a wall-clock time in `zone` stands for (the earlier one when the clock is set back). */
+export function wallTimeToUtc(y: number, month: number, d: number, h: number, min: number, s: number, zone: string): number {
+  const guess = Date.UTC(y, month - 1, d, h, min, s);
+  const first = guess - zoneOffsetMs(guess, zone);
+  return guess - zoneOffsetMs(first, zone);
+}
+
+/** `yyyy-MM-ddTHH:mm` of an instant in `zone`, as an <input type="datetime-local"> wants it. */
+export function toZonedInput(ms: number, zone: string): string {
+  const p = parts(ms, validZone(zone));
+  return `${p['year']}-${p['month']}-${p['day']}T${p['hour'] === '24' ? '00' : p['hour']}:${p['minute']}`;
+}
