@@ -6,6 +6,8 @@ import { MatProgressBarModule } from '@angular/material/progress-bar';
 import { MatTableModule } from '@angular/material/table';
 import { RouterLink } from '@angular/router';
 import { ClockService } from '../core/clock.service';
+import { DisplayZone } from '../core/display-zone';
+import { FleetService } from '../fleet/fleet.service';
 import { PreferencesService } from '../core/preferences.service';
 import { AlarmActions } from './alarm-actions';
 import { eventText, formatAlarmValue, formatDuration, formatTime, needsAcknowledge, priorityLook, stateText } from './alarm-labels';
@@ -43,7 +45,18 @@ export class AlarmDetailPage {
     const a = this.alarm();
     return a ? formatDuration(this.clock.now() - Date.parse(a.raisedAt)) : '';
   });
-  protected readonly notes = computed(() => (this.alarm()?.history ?? []).filter((h) => h.note && h.userId !== null));
+  /** The alarm's history in time order, oldest first (as it happened). */
+  protected readonly history = computed(() =>
+    [...(this.alarm()?.history ?? [])].sort((a, b) => Date.parse(a.at) - Date.parse(b.at)),
+  );
+  protected readonly notes = computed(() => this.history().filter((h) => h.note && h.userId !== null));
+  private readonly fleet = inject(FleetService);
+  private readonly zones = inject(DisplayZone);
+  /** The alarm's site zone (or the browser's by preference). */
+  protected readonly zone = computed(() => {
+    const siteId = this.alarm()?.siteId;
+    return this.zones.zoneFor(siteId == null ? null : this.fleet.siteById().get(siteId)?.timeZone);
+  });
   protected readonly workOrderLink = computed(() => {
     const a = this.alarm();
     return a ? { engineId: a.engineId, alarmId: a.id, kind: 'filter-change' } : {};
@@ -54,6 +67,7 @@ export class AlarmDetailPage {
   });
 
   constructor() {
+    if (!this.fleet.sites().length) void this.fleet.load();
     effect(() => {
       const id = Number(this.id());
       untracked(() => void this.load(id));
@@ -69,7 +83,7 @@ export class AlarmDetailPage {
     return formatAlarmValue(v, this.alarm()?.unit, this.prefs.preferences());
   }
   protected time(t: string | null | undefined): string {
-    return formatTime(t);
+    return formatTime(t, this.zone());
   }
   protected event(h: AlarmHistoryEntry): string {
     return eventText(h.event);
