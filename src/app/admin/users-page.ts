@@ -1,4 +1,4 @@
-import { DatePipe } from '@angular/common';
+import { JwTimePipe } from '../ui/time-format';
 import { ChangeDetectionStrategy, Component, computed, inject, signal, viewChild } from '@angular/core';
 import { MatButtonModule } from '@angular/material/button';
 import { MatDialog } from '@angular/material/dialog';
@@ -24,7 +24,7 @@ import { filterAdminTable, linkAdminTable } from './admin-table';
 @Component({
   selector: 'jw-users-page',
   changeDetection: ChangeDetectionStrategy.OnPush,
-  imports: [MatTableModule, MatSortModule, MatPaginatorModule, MatFormFieldModule, MatInputModule, MatButtonModule, MatIconModule, MatMenuModule, DatePipe],
+  imports: [MatTableModule, MatSortModule, MatPaginatorModule, MatFormFieldModule, MatInputModule, MatButtonModule, MatIconModule, MatMenuModule, JwTimePipe],
   template: `
     <div class="bar">
       <mat-form-field class="filter" subscriptSizing="dynamic">
@@ -66,7 +66,7 @@ import { filterAdminTable, linkAdminTable } from './admin-table';
         </ng-container>
         <ng-container matColumnDef="createdAt">
           <th mat-header-cell *matHeaderCellDef mat-sort-header>Added</th>
-          <td mat-cell *matCellDef="let u" class="jw-num">{{ u.createdAt | date: 'yyyy-MM-dd' }}</td>
+          <td mat-cell *matCellDef="let u" class="jw-num">{{ u.createdAt | jwTime: null : 'date' }}</td>
         </ng-container>
         <ng-container matColumnDef="actions">
           <th mat-header-cell *matHeaderCellDef><span class="jw-visually-hidden">Actions</span></th>

@@ -1,4 +1,4 @@
-import { DatePipe } from '@angular/common';
+import { JwTimePipe } from '../ui/time-format';
 import { HttpErrorResponse } from '@angular/common/http';
 import { ChangeDetectionStrategy, Component, computed, inject, signal } from '@angular/core';
 import { toObservable, toSignal } from '@angular/core/rxjs-interop';
@@ -20,7 +20,7 @@ import { RunHoursDialog, type RunHoursDialogData } from './run-hours-dialog';
 @Component({
   selector: 'jw-due-list-page',
   changeDetection: ChangeDetectionStrategy.OnPush,
-  imports: [DatePipe, RouterLink, MatButtonModule, MatButtonToggleModule, MatFormFieldModule, MatIconModule, MatSelectModule],
+  imports: [JwTimePipe, RouterLink, MatButtonModule, MatButtonToggleModule, MatFormFieldModule, MatIconModule, MatSelectModule],
   template: `
     <h1>Service due</h1>
     <p class="lead">Tasks of each engine's service plan that are overdue or due soon, by run hours or calendar, whichever comes first. Intervals are defaults of common practice until set from the engine maker's schedule.</p>
@@ -56,7 +56,7 @@ import { RunHoursDialog, type RunHoursDialogData } from './run-hours-dialog';
                     </td>
                     <td>{{ e.title }}@if (e.placeholder) { <br /><span class="sub">placeholder interval: set the maker's figure</span> }</td>
                     <td class="reason">{{ e.reason }}</td>
-                    <td>{{ e.lastDoneAt ? (e.lastDoneAt | date: 'mediumDate') : 'never recorded' }}@if (e.lastDoneRunHours !== null) { <br /><span class="sub">at {{ e.lastDoneRunHours.toFixed(0) }} h</span> }</td>
+                    <td>{{ e.lastDoneAt ? (e.lastDoneAt | jwTime: null : 'date') : 'never recorded' }}@if (e.lastDoneRunHours !== null) { <br /><span class="sub">at {{ e.lastDoneRunHours.toFixed(0) }} h</span> }</td>
                     <td class="act">
                       @if (e.openWorkOrderId) {
                         <a mat-stroked-button [routerLink]="['/work', e.openWorkOrderId]">Open work order #{{ e.openWorkOrderId }}</a>

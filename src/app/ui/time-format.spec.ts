@@ -15,6 +15,11 @@ describe('time format', () => {
     expect(formatInZone(new Date(t).toISOString(), 'America/Denver')).toBe('2026-12-02 14:05 MST');
   });
 
+  it('keeps a bare calendar date as the day it names', () => {
+    expect(formatInZone('2026-11-02', 'America/Denver', 'date')).toBe('2026-11-02');
+    expect(formatInZone('2026-11-02', 'Asia/Tokyo', 'datetime')).toBe('2026-11-02');
+  });
+
   it('midnight is 00, never 24', () => {
     expect(formatInZone(Date.UTC(2026, 11, 2, 7, 0), 'America/Denver', 'datetime')).toBe('2026-12-02 00:00 MST');
   });

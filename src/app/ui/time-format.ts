@@ -59,6 +59,8 @@ export function zoneAbbreviation(at: TimeInput, zone: string | null | undefined)
 
 /** A time in the given zone; '—' when there is none. `withZone` adds the zone's abbreviation (default true). */
 export function formatInZone(at: TimeInput, zone: string | null | undefined, style: TimeStyle = 'datetime', withZone = true): string {
+  // A bare calendar date (a lab's test date) names a day, not a moment: never shift it into another zone.
+  if (typeof at === 'string' && /^\d{4}-\d{2}-\d{2}$/.test(at)) return at;
   const ms = toMs(at);
   if (ms === null) return '—';
   const z = validZone(zone);
