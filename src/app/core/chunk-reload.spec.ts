@@ -1,4 +1,4 @@
-import { CHUNK_RELOAD_KEY, isChunkLoadError, reloadOnceForChunk } from './chunk-reload';
+import { CHUNK_RELOAD_KEY, isChunkLoadError, reloadForChunk, reloadOnceForChunk } from './chunk-reload';
 
 function fakeWindow() {
   const store = new Map<string, string>();
@@ -37,5 +37,14 @@ describe('reload after a failed lazy chunk', () => {
     const w = fakeWindow();
     expect(reloadOnceForChunk(new Error('boom'), null, w.target)).toBe(false);
     expect(w.calls).toEqual([]);
+  });
+
+  it('does not reload while the server is down (that would show the browser error page), and does once it answers', async () => {
+    const w = fakeWindow();
+    const err = new TypeError('Failed to fetch dynamically imported module');
+    expect(await reloadForChunk(err, '/alarms', w.target, async () => false)).toBe(false);
+    expect(w.calls).toEqual([]);
+    expect(await reloadForChunk(err, '/alarms', w.target, async () => true)).toBe(true);
+    expect(w.calls).toEqual(['assign /alarms']);
   });
 });

@@ -36,16 +36,45 @@ export function reloadOnceForChunk(err: unknown, url: string | null = null, targ
   return true;
 }
 
+/** The server answers at all (any HTTP status): then a missing chunk is a new build, not an outage. */
+export async function serverAnswers(): Promise<boolean> {
+  try {
+    await fetch('/api/health', { cache: 'no-store' });
+    return true;
+  } catch {
+    return false;
+  }
+}
+
+/**
+ * Reloads for a failed chunk only while the server answers. While it is down, reloading would replace the
+ * app with the browser's error page: the navigation is dropped instead, the connection banner says why,
+ * and the next try after the server returns loads the chunk or reloads then.
+ */
+export async function reloadForChunk(
+  err: unknown,
+  url: string | null = null,
+  target: ReloadTarget = window,
+  probe: () => Promise<boolean> = serverAnswers,
+): Promise<boolean> {
+  if (!isChunkLoadError(err)) return false;
+  if (!(await probe())) return false;
+  return reloadOnceForChunk(err, url, target);
+}
+
 /** For provideRouter(withNavigationErrorHandler(...)): a failed lazy route reloads the app at that address. */
 export function navigationChunkErrorHandler(e: NavigationError): void {
-  reloadOnceForChunk(e.error, e.url);
+  void reloadForChunk(e.error, e.url);
 }
 
 /** Catches chunk errors that happen outside navigation too (e.g. a lazy import in a component). */
 @Injectable()
 export class ChunkReloadErrorHandler extends ErrorHandler {
   override handleError(error: unknown): void {
-    if (reloadOnceForChunk(error)) return;
+    if (isChunkLoadError(error)) {
+      void reloadForChunk(error).then((reloaded) => reloaded || console.warn('A part of the app could not be loaded:', error));
+      return;
+    }
     super.handleError(error);
   }
 }

@@ -21,6 +21,7 @@ import { lastReadingAt, runStateAt, toMillis } from '../fleet/run-state';
 import { JwTimePipe, zoneAbbreviation } from '../ui/time-format';
 import { UnitValuePipe } from '../ui/unit-value.pipe';
 import { EngineService } from './engine.service';
+import { EngineHome } from './engine-home';
 import { LiveValues } from './live-values';
 import { RangePicker } from './range-picker';
 import { bucketsToCsv, downloadText } from './readings-csv';
@@ -54,7 +55,7 @@ interface TrendRequest {
   changeDetection: ChangeDetectionStrategy.OnPush,
   imports: [
     RouterLink, MatCardModule, MatIconModule, MatButtonModule, MatChipsModule, MatProgressBarModule,
-    DecimalPipe, UnitValuePipe, JwTimePipe, LiveValues, RangePicker, TrendChart, RecentReadings,
+    DecimalPipe, UnitValuePipe, JwTimePipe, LiveValues, RangePicker, TrendChart, RecentReadings, EngineHome,
   ],
   templateUrl: './engine-page.html',
   styleUrl: './engine-page.scss',
