@@ -18,6 +18,7 @@ describe('live truth (server stopped and back)', () => {
   let browser: Browser;
   let enginePage: Page;
   let fleetPage: Page;
+  let errorPage: Page;
   let engineName: string;
 
   before(async () => {
@@ -28,6 +29,7 @@ describe('live truth (server stopped and back)', () => {
     enginePage = await context.newPage();
     await signIn(enginePage, stack, ACCOUNTS.operator);
     fleetPage = await context.newPage(); // same context: same session
+    errorPage = await context.newPage();
   });
 
   after(async () => {
@@ -50,6 +52,11 @@ describe('live truth (server stopped and back)', () => {
       return !!t && /°C/.test(t.textContent ?? '') && !t.querySelector('[data-stale]');
     }, engineName, { timeout: 30000 });
     assert.equal(await enginePage.locator('[data-test=connection-banner]').count(), 0, 'no banner while live');
+    // A third page has the fleet board's code loaded and sits on the alarm list.
+    await errorPage.goto(`${stack.baseUrl}/fleet`);
+    await errorPage.locator('jw-engine-tile').first().waitFor({ timeout: 20000 });
+    await errorPage.locator('a[href="/alarms"]').first().click();
+    await errorPage.getByRole('heading', { name: 'Alarms', level: 1 }).waitFor();
   });
 
   it('says "Live data lost since" and marks the values stale when the server stops', async () => {
@@ -72,6 +79,12 @@ describe('live truth (server stopped and back)', () => {
     }, engineName, { timeout: STALE_WAIT_MS });
     assert.match((await tile(fleetPage).textContent()) ?? '', /last \d{2}:\d{2} \S+ · \d+ (s|min) ago/);
     await shot(fleetPage, 'live-truth-fleet-stale');
+
+    // Opening the fleet board now: its list cannot load, and it says so with a retry.
+    await errorPage.locator('a[href="/fleet"]').first().click();
+    await errorPage.locator('[data-test=load-error]').waitFor({ timeout: 30000 });
+    assert.match((await errorPage.locator('[data-test=load-error]').textContent()) ?? '', /could not be loaded.*Retry/s);
+    await shot(errorPage, 'live-truth-fleet-load-error');
   });
 
   it('recovers by itself when the server returns', async () => {
@@ -84,6 +97,9 @@ describe('live truth (server stopped and back)', () => {
       return !!t && !t.querySelector('[data-stale]');
     }, engineName, { timeout: 60000 });
     assert.equal(await fleetPage.locator('[data-test=load-error]').count(), 0, 'no old error left on the board');
+    // The error that no longer applies goes away by itself, and the board fills.
+    await errorPage.locator('[data-test=load-error]').waitFor({ state: 'detached', timeout: 60000 });
+    await errorPage.locator('jw-engine-tile').first().waitFor({ timeout: 30000 });
     await shot(enginePage, 'live-truth-engine-recovered');
     await shot(fleetPage, 'live-truth-fleet-recovered');
   });
