@@ -35,7 +35,7 @@ import { filterAdminTable, linkAdminTable } from './admin-table';
       <span class="spacer"></span>
       <button mat-flat-button type="button" (click)="add()"><mat-icon fontIcon="person_add" />Add user</button>
     </div>
-    @if (error(); as e) { <p class="load-error" role="alert">{{ e }}</p> }
+    @if (error(); as e) { <p class="load-error" role="alert">{{ e }} <button mat-stroked-button type="button" (click)="load()"><mat-icon fontIcon="refresh" />Retry</button></p> }
     <div class="table-wrap">
       <table mat-table [dataSource]="source" matSort matSortActive="name" matSortDirection="asc" aria-label="Users">
         <ng-container matColumnDef="name">
@@ -168,7 +168,7 @@ export class UsersPage {
       });
   }
 
-  private load(): void {
+  protected load(): void {
     // site names for the Sites column; the users are shown whether or not they arrive
     this.api.sites().subscribe({ next: (sites) => { for (const s of sites) this.siteNames.set(s.id, s.name); this.source.data = [...this.source.data]; }, error: () => undefined });
     this.api.users().subscribe({
@@ -176,7 +176,7 @@ export class UsersPage {
         this.error.set(null);
         this.source.data = users;
       },
-      error: () => this.error.set('The users could not be loaded. Reload the page to try again.'),
+      error: () => this.error.set('The users could not be loaded.'),
     });
   }
 }
