@@ -58,7 +58,7 @@ interface DeviceRow extends Device {
       <button mat-stroked-button type="button" (click)="load()"><mat-icon fontIcon="refresh" />Refresh counts</button>
       <button mat-flat-button type="button" (click)="add()" [disabled]="!engines().length"><mat-icon fontIcon="add" />Add device</button>
     </div>
-    @if (error(); as e) { <p class="load-error" role="alert">{{ e }}</p> }
+    @if (error(); as e) { <p class="load-error" role="alert">{{ e }} <button mat-stroked-button type="button" (click)="load()"><mat-icon fontIcon="refresh" />Retry</button></p> }
     <div class="table-wrap">
       <table mat-table [dataSource]="source" matSort matSortActive="username" matSortDirection="asc" aria-label="Devices">
         <ng-container matColumnDef="username">
@@ -174,7 +174,7 @@ export class DevicesPage {
         this.engines.set(engines);
         this.source.data = toRows(devices, engines, report.rejections ?? []);
       },
-      error: () => this.error.set('The devices could not be loaded. Reload the page to try again.'),
+      error: () => this.error.set('The devices could not be loaded.'),
     });
   }
 
