@@ -52,6 +52,12 @@ describe('live truth (server stopped and back)', () => {
       return !!t && /°C/.test(t.textContent ?? '') && !t.querySelector('[data-stale]');
     }, engineName, { timeout: 30000 });
     assert.equal(await enginePage.locator('[data-test=connection-banner]').count(), 0, 'no banner while live');
+    // The engine's home below the trend loads when scrolled to: its alarms, due work and last coolant test, with links.
+    await enginePage.locator('.home-placeholder').scrollIntoViewIfNeeded();
+    await enginePage.locator('[data-test=engine-coolant-test] a[href="/engines/1/coolant"]').waitFor({ timeout: 20000 });
+    await enginePage.locator('[data-test=engine-alarms] a[href^="/alarms"]').first().waitFor();
+    await enginePage.locator('[data-test=engine-due]').filter({ hasNotText: 'Loading…' }).waitFor({ timeout: 20000 });
+    await shot(enginePage, 'live-truth-engine-home');
     // A third page has the fleet board's code loaded and sits on the alarm list.
     await errorPage.goto(`${stack.baseUrl}/fleet`);
     await errorPage.locator('jw-engine-tile').first().waitFor({ timeout: 20000 });
