@@ -15,5 +15,6 @@ export const routes: Routes = [
   { path: 'engines/:id/coolant', title: 'Coolant · Jacketwatch', canMatch: [signedInGuard], loadComponent: () => import('./coolant/engine-coolant-page').then((m) => m.EngineCoolantPage) },
   { path: 'calculators', title: 'Coolant calculators · Jacketwatch', canMatch: [signedInGuard], loadComponent: () => import('./coolant/calculators-page').then((m) => m.CalculatorsPage) },
   { path: 'due', title: 'Service due · Jacketwatch', canMatch: [signedInGuard], loadComponent: () => import('./coolant/due-list-page').then((m) => m.DueListPage) },
-  { path: '**', redirectTo: 'fleet' },
+  { path: 'not-allowed', title: 'Not for your role · Jacketwatch', canMatch: [signedInGuard], loadComponent: () => import('./errors/not-allowed-page').then((m) => m.NotAllowedPage) },
+  { path: '**', title: 'Page not found · Jacketwatch', canMatch: [signedInGuard], loadComponent: () => import('./errors/not-found-page').then((m) => m.NotFoundPage) },
 ];

@@ -10,6 +10,7 @@ import { map } from 'rxjs';
 import { AlarmFeed } from './alarms/alarm-feed';
 import { AppBarStatus } from './core/app-bar-status';
 import { AuthService } from './core/auth.service';
+import { ConnectionBanner } from './core/connection-banner';
 import { PreferencesService } from './core/preferences.service';
 import { Role } from './core/user';
 import { UserMenu } from './ui/user-menu';
@@ -43,7 +44,7 @@ const ROLE_TEXT: Record<Role, string> = { admin: 'Administrator', planner: 'Plan
   selector: 'jw-root',
   changeDetection: ChangeDetectionStrategy.OnPush,
   imports: [
-    RouterOutlet, RouterLink, RouterLinkActive,
+    RouterOutlet, RouterLink, RouterLinkActive, ConnectionBanner,
     // The navigation is plain links and the user menu a plain disclosure: Material's list and menu would bring
     // forms and the overlay into the first download.
     MatToolbarModule, MatSidenavModule, MatIconModule, MatButtonModule, UserMenu,

@@ -161,7 +161,11 @@ describe('engine page (history and live)', () => {
       0.5 * body.buckets.length,
       { timeout: 20000 },
     );
-    await page.locator('p.window').filter({ hasText: new Date(Date.now() - 30 * DAY_MS).toISOString().slice(0, 10) }).waitFor();
+    // The window is written in the site's zone (yyyy-mm-dd).
+    const engine = (await stack.api<{ siteId: number }>('GET', `/api/engines/${ENGINE_ID}`, token)).body;
+    const zone = (await stack.api<{ id: number; timeZone: string }[]>('GET', '/api/sites', token)).body.find((s) => s.id === engine.siteId)?.timeZone;
+    const monthAgo = new Intl.DateTimeFormat('en-CA', { timeZone: zone }).format(Date.now() - 30 * DAY_MS);
+    await page.locator('p.window').filter({ hasText: monthAgo }).waitFor();
     const charts = await drawnCharts(page);
     assert.ok(charts.every((c) => c.bands >= 1), 'normal band drawn on the 30-day charts');
     await shot(page, 'engine-page-30d');

@@ -43,12 +43,12 @@ describe('fleet board (operator)', () => {
     await page.waitForFunction(() => /°C|°F/.test(document.querySelector('jw-engine-tile')?.textContent ?? ''), null, { timeout: 20000 });
     const before = await tiles.allTextContents();
     assert.ok(before.some((t) => /kPa|psi|bar/.test(t)), 'pressure shown with a unit');
-    // Wait for any tile to show other values (the "last reading … ago" text alone does not count).
+    // Wait for any tile to show other values (the "last 11:15 MST · 12 min ago" text alone does not count).
     // No named functions inside page functions: tsx's keepNames would wrap them in a __name() the page lacks.
     await page.waitForFunction(
       (initial) =>
         [...document.querySelectorAll('jw-engine-tile')].some(
-          (el, i) => (el.textContent ?? '').replace(/last reading .* ago/, '') !== (initial[i] ?? '').replace(/last reading .* ago/, ''),
+          (el, i) => (el.textContent ?? '').replace(/last .* ago/, '') !== (initial[i] ?? '').replace(/last .* ago/, ''),
         ),
       before,
       { timeout: 30000, polling: 500 },
@@ -58,12 +58,26 @@ describe('fleet board (operator)', () => {
 
   it('refuses the administration pages to an operator', async () => {
     await page.goto(`${stack.baseUrl}/admin/users`);
-    // The role guard sends a non-admin to the fleet board; the admin screens never render.
-    await page.waitForURL((url) => url.pathname === '/fleet', { timeout: 15000 });
-    await page.getByRole('heading', { name: 'Fleet board' }).waitFor();
+    // The role guard shows a page that says so, at the address asked for; the admin screens never render.
+    await page.getByRole('heading', { name: 'This page is for administrators' }).waitFor({ timeout: 15000 });
+    assert.equal(new URL(page.url()).pathname, '/admin/users', 'the address stays, so a reload asks again');
+    await shot(page, 'not-allowed-operator');
     assert.equal(await page.getByRole('heading', { name: 'Administration' }).count(), 0);
     assert.equal(await page.locator('jw-users-page').count(), 0);
     const token = await stack.login(ACCOUNTS.operator);
     assert.equal((await stack.api('GET', '/api/users', token)).status, 403);
+    // The way home works.
+    await page.getByRole('link', { name: 'To the fleet board' }).click();
+    await page.getByRole('heading', { name: 'Fleet board' }).waitFor();
+  });
+
+  it('shows a not-found page with a way home for an unknown address', async () => {
+    await page.goto(`${stack.baseUrl}/no-such-page/42`);
+    await page.getByRole('heading', { name: 'There is no page at this address' }).waitFor({ timeout: 15000 });
+    assert.equal(new URL(page.url()).pathname, '/no-such-page/42');
+    assert.match((await page.locator('[data-test=not-found]').textContent()) ?? '', /\/no-such-page\/42/);
+    await shot(page, 'not-found');
+    await page.getByRole('link', { name: 'To the fleet board' }).click();
+    await page.getByRole('heading', { name: 'Fleet board' }).waitFor();
   });
 });

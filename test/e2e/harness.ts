@@ -66,6 +66,10 @@ export interface Stack {
   startSimulator(args: string[]): ChildProcess;
   /** Like startSimulator, but resolves when its control port answers (fails early with the log if it exits). */
   startSimulatorReady(args: string[]): Promise<ChildProcess>;
+  /** Kill the server process group (SIGKILL, as a crash); the DATA_DIR and the ports stay for restartServer. */
+  killServer(): Promise<void>;
+  /** Start the server again on the same ports and DATA_DIR; resolves when /api/health answers. */
+  restartServer(): Promise<void>;
   stop(): Promise<void>;
 }
 
@@ -209,6 +213,18 @@ export async function startStack(opts: StackOptions = {}): Promise<Stack> {
     return sim;
   };
 
+  let server: ChildProcess | null = null;
+  const launchServer = async () => {
+    const child = run('server/main.ts', [], env, 'server', logDir);
+    server = child;
+    children.push(child);
+    await waitUntil(async () => (await fetch(`${baseUrl}/api/health`)).ok, {
+      timeoutMs: 60000,
+      what: `server on ${baseUrl}`,
+      dies: { child, log: logOf('server') },
+    });
+  };
+
   try {
     if (!opts.noSeed) {
       const seed = run('seeds/cli.ts', [], env, 'seed', logDir);
@@ -217,13 +233,7 @@ export async function startStack(opts: StackOptions = {}): Promise<Stack> {
       if (code !== 0) throw new Error(`demo seed exited with ${code}; see ${logOf('seed')}\n${logTail(logOf('seed'))}`);
     }
 
-    const server = run('server/main.ts', [], env, 'server', logDir);
-    children.push(server);
-    await waitUntil(async () => (await fetch(`${baseUrl}/api/health`)).ok, {
-      timeoutMs: 60000,
-      what: `server on ${baseUrl}`,
-      dies: { child: server, log: logOf('server') },
-    });
+    await launchServer();
 
     if (opts.simulate !== false) await startSimulatorReady(opts.simulatorArgs ?? ['--rate', '1', '--speed', '30', '--seed', '7']);
   } catch (err) {
@@ -274,6 +284,21 @@ export async function startStack(opts: StackOptions = {}): Promise<Stack> {
       const res = await api<{ token: string }>('POST', '/api/auth/login', undefined, { email, password: DEMO_PASSWORD });
       if (res.status !== 200) throw new Error(`login ${email}: ${res.status}`);
       return res.body.token;
+    },
+    async killServer() {
+      const child = server;
+      if (!child) return;
+      server = null;
+      if (exited(child)) return;
+      await new Promise<void>((resolve) => {
+        child.once('exit', () => resolve());
+        killGroup(child, 'SIGKILL');
+      });
+      children.splice(children.indexOf(child), 1);
+    },
+    async restartServer() {
+      if (server) throw new Error('restartServer: the server is still running');
+      await launchServer();
     },
     async stop() {
       await stopAll();

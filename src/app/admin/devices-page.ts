@@ -1,4 +1,4 @@
-import { DatePipe } from '@angular/common';
+import { JwTimePipe } from '../ui/time-format';
 import { ChangeDetectionStrategy, Component, inject, signal, viewChild } from '@angular/core';
 import { MatButtonModule } from '@angular/material/button';
 import { MatDialog } from '@angular/material/dialog';
@@ -46,7 +46,7 @@ interface DeviceRow extends Device {
 @Component({
   selector: 'jw-devices-page',
   changeDetection: ChangeDetectionStrategy.OnPush,
-  imports: [MatTableModule, MatSortModule, MatPaginatorModule, MatFormFieldModule, MatInputModule, MatButtonModule, MatIconModule, MatTooltipModule, DatePipe],
+  imports: [MatTableModule, MatSortModule, MatPaginatorModule, MatFormFieldModule, MatInputModule, MatButtonModule, MatIconModule, MatTooltipModule, JwTimePipe],
   template: `
     <div class="bar">
       <mat-form-field class="filter" subscriptSizing="dynamic">
@@ -58,7 +58,7 @@ interface DeviceRow extends Device {
       <button mat-stroked-button type="button" (click)="load()"><mat-icon fontIcon="refresh" />Refresh counts</button>
       <button mat-flat-button type="button" (click)="add()" [disabled]="!engines().length"><mat-icon fontIcon="add" />Add device</button>
     </div>
-    @if (error(); as e) { <p class="load-error" role="alert">{{ e }}</p> }
+    @if (error(); as e) { <p class="load-error" role="alert">{{ e }} <button mat-stroked-button type="button" (click)="load()"><mat-icon fontIcon="refresh" />Retry</button></p> }
     <div class="table-wrap">
       <table mat-table [dataSource]="source" matSort matSortActive="username" matSortDirection="asc" aria-label="Devices">
         <ng-container matColumnDef="username">
@@ -73,7 +73,7 @@ interface DeviceRow extends Device {
           <th mat-header-cell *matHeaderCellDef mat-sort-header>Status</th>
           <td mat-cell *matCellDef="let d">
             @if (d.status === 'revoked') {
-              <span class="status off"><mat-icon aria-hidden="true" fontIcon="block" />Revoked {{ d.revokedAt | date: 'yyyy-MM-dd' }}</span>
+              <span class="status off"><mat-icon aria-hidden="true" fontIcon="block" />Revoked {{ d.revokedAt | jwTime: null : 'date' }}</span>
             } @else {
               <span class="status"><mat-icon aria-hidden="true" fontIcon="check_circle_outline" />Active</span>
             }
@@ -82,7 +82,7 @@ interface DeviceRow extends Device {
         <ng-container matColumnDef="lastSeen">
           <th mat-header-cell *matHeaderCellDef mat-sort-header>Last seen</th>
           <td mat-cell *matCellDef="let d" class="jw-num">
-            @if (d.lastSeen) { {{ d.lastSeen | date: 'yyyy-MM-dd HH:mm:ss' }} } @else { <span class="muted">never</span> }
+            @if (d.lastSeen) { {{ d.lastSeen | jwTime: null : 'datetime-s' }} } @else { <span class="muted">never</span> }
           </td>
         </ng-container>
         <ng-container matColumnDef="rejected">
@@ -174,7 +174,7 @@ export class DevicesPage {
         this.engines.set(engines);
         this.source.data = toRows(devices, engines, report.rejections ?? []);
       },
-      error: () => this.error.set('The devices could not be loaded. Reload the page to try again.'),
+      error: () => this.error.set('The devices could not be loaded.'),
     });
   }
 

@@ -40,7 +40,7 @@ const FAMILY: Partial<Record<string, string>> = { conventional: 'Conventional', 
       <span class="spacer"></span>
       <button mat-flat-button type="button" (click)="open(null)" [disabled]="!sites().length"><mat-icon fontIcon="add" />Add engine</button>
     </div>
-    @if (error(); as e) { <p class="load-error" role="alert">{{ e }}</p> }
+    @if (error(); as e) { <p class="load-error" role="alert">{{ e }} <button mat-stroked-button type="button" (click)="load()"><mat-icon fontIcon="refresh" />Retry</button></p> }
     <div class="table-wrap">
       <table mat-table [dataSource]="source" matSort matSortActive="name" matSortDirection="asc" aria-label="Engines">
         <ng-container matColumnDef="name">
@@ -146,7 +146,7 @@ export class EnginesPage {
       });
   }
 
-  private load(): void {
+  protected load(): void {
     forkJoin([this.api.sites(), this.api.engines()]).subscribe({
       next: ([sites, engines]) => {
         this.error.set(null);
@@ -154,7 +154,7 @@ export class EnginesPage {
         const names = new Map(sites.map((s) => [s.id, s.name]));
         this.source.data = engines.map((e) => ({ ...e, siteName: names.get(e.siteId) ?? `Site ${e.siteId}` }));
       },
-      error: () => this.error.set('The engines could not be loaded. Reload the page to try again.'),
+      error: () => this.error.set('The engines could not be loaded.'),
     });
   }
 }

@@ -34,7 +34,7 @@ interface SiteRow extends Site {
       <span class="spacer"></span>
       <button mat-flat-button type="button" (click)="open(null)"><mat-icon fontIcon="add_location_alt" />Add site</button>
     </div>
-    @if (error(); as e) { <p class="load-error" role="alert">{{ e }}</p> }
+    @if (error(); as e) { <p class="load-error" role="alert">{{ e }} <button mat-stroked-button type="button" (click)="load()"><mat-icon fontIcon="refresh" />Retry</button></p> }
     <div class="table-wrap">
       <table mat-table [dataSource]="source" matSort matSortActive="name" matSortDirection="asc" aria-label="Sites">
         <ng-container matColumnDef="name">
@@ -114,13 +114,13 @@ export class SitesPage {
       });
   }
 
-  private load(): void {
+  protected load(): void {
     forkJoin([this.api.sites(), this.api.engines()]).subscribe({
       next: ([sites, engines]) => {
         this.error.set(null);
         this.source.data = sites.map((s) => ({ ...s, engines: engines.filter((e) => e.siteId === s.id).length }));
       },
-      error: () => this.error.set('The sites could not be loaded. Reload the page to try again.'),
+      error: () => this.error.set('The sites could not be loaded.'),
     });
   }
 }

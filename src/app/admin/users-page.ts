@@ -1,4 +1,4 @@
-import { DatePipe } from '@angular/common';
+import { JwTimePipe } from '../ui/time-format';
 import { ChangeDetectionStrategy, Component, computed, inject, signal, viewChild } from '@angular/core';
 import { MatButtonModule } from '@angular/material/button';
 import { MatDialog } from '@angular/material/dialog';
@@ -24,7 +24,7 @@ import { filterAdminTable, linkAdminTable } from './admin-table';
 @Component({
   selector: 'jw-users-page',
   changeDetection: ChangeDetectionStrategy.OnPush,
-  imports: [MatTableModule, MatSortModule, MatPaginatorModule, MatFormFieldModule, MatInputModule, MatButtonModule, MatIconModule, MatMenuModule, DatePipe],
+  imports: [MatTableModule, MatSortModule, MatPaginatorModule, MatFormFieldModule, MatInputModule, MatButtonModule, MatIconModule, MatMenuModule, JwTimePipe],
   template: `
     <div class="bar">
       <mat-form-field class="filter" subscriptSizing="dynamic">
@@ -35,7 +35,7 @@ import { filterAdminTable, linkAdminTable } from './admin-table';
       <span class="spacer"></span>
       <button mat-flat-button type="button" (click)="add()"><mat-icon fontIcon="person_add" />Add user</button>
     </div>
-    @if (error(); as e) { <p class="load-error" role="alert">{{ e }}</p> }
+    @if (error(); as e) { <p class="load-error" role="alert">{{ e }} <button mat-stroked-button type="button" (click)="load()"><mat-icon fontIcon="refresh" />Retry</button></p> }
     <div class="table-wrap">
       <table mat-table [dataSource]="source" matSort matSortActive="name" matSortDirection="asc" aria-label="Users">
         <ng-container matColumnDef="name">
@@ -66,7 +66,7 @@ import { filterAdminTable, linkAdminTable } from './admin-table';
         </ng-container>
         <ng-container matColumnDef="createdAt">
           <th mat-header-cell *matHeaderCellDef mat-sort-header>Added</th>
-          <td mat-cell *matCellDef="let u" class="jw-num">{{ u.createdAt | date: 'yyyy-MM-dd' }}</td>
+          <td mat-cell *matCellDef="let u" class="jw-num">{{ u.createdAt | jwTime: null : 'date' }}</td>
         </ng-container>
         <ng-container matColumnDef="actions">
           <th mat-header-cell *matHeaderCellDef><span class="jw-visually-hidden">Actions</span></th>
@@ -168,7 +168,7 @@ export class UsersPage {
       });
   }
 
-  private load(): void {
+  protected load(): void {
     // site names for the Sites column; the users are shown whether or not they arrive
     this.api.sites().subscribe({ next: (sites) => { for (const s of sites) this.siteNames.set(s.id, s.name); this.source.data = [...this.source.data]; }, error: () => undefined });
     this.api.users().subscribe({
@@ -176,7 +176,7 @@ export class UsersPage {
         this.error.set(null);
         this.source.data = users;
       },
-      error: () => this.error.set('The users could not be loaded. Reload the page to try again.'),
+      error: () => this.error.set('The users could not be loaded.'),
     });
   }
 }

@@ -10,6 +10,8 @@ import { suggestedWorkKind } from '../../../shared/alarms/work-kind';
 import { CreateWorkData, CreateWorkDialog } from '../work/create-work-dialog';
 import { WorkOrderDetail } from '../work/work-types';
 import { ClockService } from '../core/clock.service';
+import { DisplayZone } from '../core/display-zone';
+import { FleetService } from '../fleet/fleet.service';
 import { PreferencesService } from '../core/preferences.service';
 import { AlarmActions } from './alarm-actions';
 import { eventText, formatAlarmValue, formatDuration, formatTime, needsAcknowledge, priorityLook, stateText } from './alarm-labels';
@@ -49,7 +51,18 @@ export class AlarmDetailPage {
     const a = this.alarm();
     return a ? formatDuration(this.clock.now() - Date.parse(a.raisedAt)) : '';
   });
-  protected readonly notes = computed(() => (this.alarm()?.history ?? []).filter((h) => h.note && h.userId !== null));
+  /** The alarm's history in time order, oldest first (as it happened). */
+  protected readonly history = computed(() =>
+    [...(this.alarm()?.history ?? [])].sort((a, b) => Date.parse(a.at) - Date.parse(b.at)),
+  );
+  protected readonly notes = computed(() => this.history().filter((h) => h.note && h.userId !== null));
+  private readonly fleet = inject(FleetService);
+  private readonly zones = inject(DisplayZone);
+  /** The alarm's site zone (or the browser's by preference). */
+  protected readonly zone = computed(() => {
+    const siteId = this.alarm()?.siteId;
+    return this.zones.zoneFor(siteId == null ? null : this.fleet.siteById().get(siteId)?.timeZone);
+  });
   /** A short dialog first (kind suggested by the alarm's rule, assignee, due date); then to the new work order. */
   protected createWorkOrder(a: Alarm): void {
     const data: CreateWorkData = { engineId: a.engineId, engineName: a.engineName ?? `Engine ${a.engineId}`, kind: suggestedWorkKind(a.rule), alarmId: a.id, from: `Alarm #${a.id}: ${a.title}` };
@@ -63,6 +76,7 @@ export class AlarmDetailPage {
   });
 
   constructor() {
+    if (!this.fleet.sites().length) void this.fleet.load();
     effect(() => {
       const id = Number(this.id());
       untracked(() => void this.load(id));
@@ -78,7 +92,7 @@ export class AlarmDetailPage {
     return formatAlarmValue(v, this.alarm()?.unit, this.prefs.preferences());
   }
   protected time(t: string | null | undefined): string {
-    return formatTime(t);
+    return formatTime(t, this.zone());
   }
   protected event(h: AlarmHistoryEntry): string {
     return eventText(h.event);

@@ -1,3 +1,4 @@
+import { browserZone, formatInZone } from '../ui/time-format';
 import { AlarmState } from '../../../shared/alarms/alarm-state';
 import { UnitPreferences, displayValue, formatStored } from '../ui/unit-format';
 import { AlarmPriority } from './alarm-types';
@@ -103,11 +104,7 @@ export function formatDuration(ms: number): string {
   return h % 24 ? `${d} d ${h % 24} h` : `${d} d`;
 }
 
-const timeFormat = new Intl.DateTimeFormat(undefined, { year: 'numeric', month: 'short', day: 'numeric', hour: '2-digit', minute: '2-digit', second: '2-digit' });
-
-/** A moment in the browser's time zone, with seconds. */
-export function formatTime(at: string | number | null | undefined): string {
-  if (at === null || at === undefined) return '—';
-  const t = typeof at === 'number' ? at : Date.parse(at);
-  return Number.isFinite(t) ? timeFormat.format(t) : '—';
+/** A moment with seconds in the app's one format, in `zone` (the site's; the browser's when not known). */
+export function formatTime(at: string | number | null | undefined, zone?: string | null): string {
+  return formatInZone(at, zone ?? browserZone(), 'datetime-s');
 }

@@ -8,6 +8,7 @@ import { MatSelectModule } from '@angular/material/select';
 import { ActivatedRoute, Router, RouterLink } from '@angular/router';
 import { ALARM_STATES, AlarmState, isAnnunciated } from '../../../shared/alarms/alarm-state';
 import { ClockService } from '../core/clock.service';
+import { DisplayZone } from '../core/display-zone';
 import { FleetService } from '../fleet/fleet.service';
 import { AlarmActions } from './alarm-actions';
 import { PRIORITY_LOOK, PRIORITY_ORDER, formatTime, needsAcknowledge, priorityLook, stateText } from './alarm-labels';
@@ -33,6 +34,7 @@ export class AlarmListPage {
   private readonly clock = inject(ClockService);
   private readonly actions = inject(AlarmActions);
   private readonly router = inject(Router);
+  private readonly zones = inject(DisplayZone);
 
   protected readonly views = Object.entries(VIEW_TEXT) as [AlarmListView, string][];
   protected readonly priorities = PRIORITY_ORDER.map((p) => ({ value: p, ...PRIORITY_LOOK[p] }));
@@ -75,7 +77,8 @@ export class AlarmListPage {
     const list = this.source().filter(
       (a) => (site === null || a.siteId === site) && (engine === null || a.engineId === engine) && (priority === null || a.priority === priority) && (state === null || a.state === state),
     );
-    if (this.view() === 'all') return list;
+    // History in time order: the newest raised first.
+    if (this.view() === 'all') return [...list].sort((a, b) => Date.parse(b.raisedAt) - Date.parse(a.raisedAt) || b.id - a.id);
     // Waiting for acknowledge first, then the most urgent, then the newest.
     return [...list].sort(
       (a, b) =>
@@ -95,6 +98,22 @@ export class AlarmListPage {
     const num = (k: string) => (q.get(k) && Number.isInteger(Number(q.get(k))) ? Number(q.get(k)) : null);
     this.engineId.set(num('engineId'));
     this.siteId.set(num('siteId'));
+    const priority = q.get('priority');
+    if (priority && (PRIORITY_ORDER as readonly string[]).includes(priority)) this.priority.set(priority as AlarmPriority);
+    const state = q.get('state');
+    if (state && this.states.some((s) => s.value === state)) this.state.set(state as AlarmState);
+
+    // The view and the filters live in the address, so back, reload and a shared link keep them.
+    effect(() => {
+      const queryParams = {
+        view: this.view() === 'active' ? null : this.view(),
+        siteId: this.siteId(),
+        engineId: this.engineId(),
+        priority: this.priority(),
+        state: this.state(),
+      };
+      untracked(() => void this.router.navigate([], { queryParams, replaceUrl: true }));
+    });
     if (!this.fleet.engines().length) void this.fleet.load();
 
     effect(() => {
@@ -116,10 +135,13 @@ export class AlarmListPage {
     });
   }
 
+  protected zoneOf(siteId: number | null): string {
+    return this.zones.zoneFor(siteId === null ? null : this.fleet.siteById().get(siteId)?.timeZone);
+  }
+
   protected setView(v: AlarmListView): void {
     this.view.set(v);
     if (v !== 'all') this.state.set(null);
-    void this.router.navigate([], { queryParams: { view: v === 'active' ? null : v }, queryParamsHandling: 'merge', replaceUrl: true });
   }
 
   protected setSite(id: number | null): void {
@@ -146,6 +168,10 @@ export class AlarmListPage {
   }
   protected note(a: Alarm): void {
     void this.actions.note(a);
+  }
+
+  protected retryHistory(): void {
+    void this.loadHistory();
   }
 
   private async loadHistory(): Promise<void> {

@@ -78,6 +78,8 @@ export class AlarmRow {
   readonly canAcknowledge = input(false);
   readonly canShelve = input(false);
   readonly canNote = input(false);
+  /** The zone times are written in (the site's, or the browser's by preference). */
+  readonly zone = input<string | null>(null);
 
   readonly acknowledge = output<Alarm>();
   readonly shelve = output<Alarm>();
@@ -88,10 +90,10 @@ export class AlarmRow {
   protected readonly unack = computed(() => needsAcknowledge(this.alarm().state));
   protected readonly stateWords = computed(() => stateText(this.alarm().state));
   protected readonly value = computed(() => formatAlarmValue(this.alarm().value, this.alarm().unit, this.prefs.preferences()));
-  protected readonly raised = computed(() => formatTime(this.alarm().raisedAt));
+  protected readonly raised = computed(() => formatTime(this.alarm().raisedAt, this.zone()));
   // the shared clock ticks once a second and may lag a just-raised alarm: never a negative age
   protected readonly age = computed(() => formatDuration(Math.max(0, this.now() - Date.parse(this.alarm().raisedAt))));
-  protected readonly shelvedUntil = computed(() => formatTime(this.alarm().shelvedUntil));
+  protected readonly shelvedUntil = computed(() => formatTime(this.alarm().shelvedUntil, this.zone()));
 
   protected readonly summary = computed(() => {
     const a = this.alarm();

@@ -1,5 +1,5 @@
+import { JwTimePipe } from '../ui/time-format';
 import { HttpErrorResponse } from '@angular/common/http';
-import { DatePipe } from '@angular/common';
 import { ChangeDetectionStrategy, Component, inject, signal } from '@angular/core';
 import { FormArray, FormBuilder, ReactiveFormsModule, Validators } from '@angular/forms';
 import { MatButtonModule } from '@angular/material/button';
@@ -14,7 +14,7 @@ import { AdditiveProfile } from './coolant-types';
 @Component({
   selector: 'jw-additive-profile-page',
   changeDetection: ChangeDetectionStrategy.OnPush,
-  imports: [DatePipe, ReactiveFormsModule, MatButtonModule, MatFormFieldModule, MatIconModule, MatInputModule, ChemistryLimitsForm],
+  imports: [JwTimePipe, ReactiveFormsModule, MatButtonModule, MatFormFieldModule, MatIconModule, MatInputModule, ChemistryLimitsForm],
   template: `
     <p class="lead">
       The liquid additive's strength and the pre-charge of each charged filter size, as printed on their labels. The dose and
@@ -22,7 +22,7 @@ import { AdditiveProfile } from './coolant-types';
     </p>
     @if (profile(); as p) {
       <p class="state" data-test="profile-state">
-        @if (p.configured) { Last changed {{ p.updatedAt | date: 'medium' }}. } @else { <mat-icon aria-hidden="true" fontIcon="info" /> Not set yet: the initial-charge calculator asks for the strength each time. }
+        @if (p.configured) { Last changed {{ p.updatedAt | jwTime: null : 'datetime' }}. } @else { <mat-icon aria-hidden="true" fontIcon="info" /> Not set yet: the initial-charge calculator asks for the strength each time. }
       </p>
     }
     <form [formGroup]="form" (ngSubmit)="save()" novalidate class="form">

@@ -57,9 +57,10 @@ export class CoolantService {
     return this.http.post<{ runHours: number; oldRunHours: number }>(`/api/engines/${engineId}/run-hours`, { runHours, reason });
   }
 
-  dueList(q: { siteId?: number; windowDays: number }): Observable<DueListResponse> {
+  dueList(q: { siteId?: number; engineId?: number; windowDays: number }): Observable<DueListResponse> {
     const params: Record<string, string> = { windowDays: String(q.windowDays) };
     if (q.siteId) params['siteId'] = String(q.siteId);
+    if (q.engineId) params['engineId'] = String(q.engineId);
     return this.http.get<DueListResponse>('/api/due-list', { params });
   }
 

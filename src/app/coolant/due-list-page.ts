@@ -1,6 +1,8 @@
 import { DatePipe } from '@angular/common';
 import { CreateWorkData, CreateWorkDialog } from '../work/create-work-dialog';
 import { WorkOrderDetail } from '../work/work-types';
+import { DisplayZone } from '../core/display-zone';
+import { JwTimePipe } from '../ui/time-format';
 import { HttpErrorResponse } from '@angular/common/http';
 import { ChangeDetectionStrategy, Component, computed, inject, signal } from '@angular/core';
 import { toObservable, toSignal } from '@angular/core/rxjs-interop';
@@ -22,7 +24,7 @@ import { RunHoursDialog, type RunHoursDialogData } from './run-hours-dialog';
 @Component({
   selector: 'jw-due-list-page',
   changeDetection: ChangeDetectionStrategy.OnPush,
-  imports: [DatePipe, RouterLink, MatButtonModule, MatButtonToggleModule, MatFormFieldModule, MatIconModule, MatSelectModule],
+  imports: [JwTimePipe, RouterLink, MatButtonModule, MatButtonToggleModule, MatFormFieldModule, MatIconModule, MatSelectModule],
   template: `
     <h1>Service due</h1>
     <p class="lead">Tasks of each engine's service plan that are overdue or due soon, by run hours or calendar, whichever comes first. Intervals are defaults of common practice until set from the engine maker's schedule.</p>
@@ -58,7 +60,7 @@ import { RunHoursDialog, type RunHoursDialogData } from './run-hours-dialog';
                     </td>
                     <td>{{ e.title }}@if (e.placeholder) { <br /><span class="sub">placeholder interval: set the maker's figure</span> }</td>
                     <td class="reason">{{ e.reason }}</td>
-                    <td>{{ e.lastDoneAt ? (e.lastDoneAt | date: 'mediumDate') : 'never recorded' }}@if (e.lastDoneRunHours !== null) { <br /><span class="sub">at {{ e.lastDoneRunHours.toFixed(0) }} h</span> }</td>
+                    <td><span class="nowrap jw-num">{{ e.lastDoneAt ? (e.lastDoneAt | jwTime: zones.zoneFor(s.timeZone) : 'date') : 'never recorded' }}</span>@if (e.lastDoneRunHours !== null) { <br /><span class="sub">at {{ e.lastDoneRunHours.toFixed(0) }} h</span> }</td>
                     <td class="act">
                       @if (e.openWorkOrderId) {
                         <a mat-stroked-button [routerLink]="['/work', e.openWorkOrderId]">Open work order #{{ e.openWorkOrderId }}</a>
@@ -83,6 +85,7 @@ import { RunHoursDialog, type RunHoursDialogData } from './run-hours-dialog';
     }
   `,
   styles: `
+    .nowrap { white-space: nowrap; }
     :host { display: block; max-width: 1300px; padding-right: 16px; }
     h1 { margin: 0 0 4px; font-size: 1.5rem; }
     .lead, .hint, .sub, .none, .counts { color: var(--jw-muted-text); }
@@ -107,6 +110,7 @@ import { RunHoursDialog, type RunHoursDialogData } from './run-hours-dialog';
   `,
 })
 export class DueListPage {
+  protected readonly zones = inject(DisplayZone);
   private readonly api = inject(CoolantService);
   private readonly auth = inject(AuthService);
   protected readonly sites = toSignal(inject(EngineService).sites().pipe(catchError(() => of([]))), { initialValue: [] });

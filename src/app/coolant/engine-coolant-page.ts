@@ -1,4 +1,4 @@
-import { DatePipe } from '@angular/common';
+import { JwTimePipe } from '../ui/time-format';
 import { HttpErrorResponse } from '@angular/common/http';
 import { ChangeDetectionStrategy, Component, computed, inject, input, signal } from '@angular/core';
 import { toObservable, toSignal } from '@angular/core/rxjs-interop';
@@ -43,7 +43,7 @@ const errorText = (e: unknown): string => {
   selector: 'jw-engine-coolant-page',
   changeDetection: ChangeDetectionStrategy.OnPush,
   imports: [
-    DatePipe, FormsModule, RouterLink, MatButtonModule, MatCardModule, MatFormFieldModule, MatIconModule, MatInputModule, MatSelectModule, MatTableModule,
+    JwTimePipe, FormsModule, RouterLink, MatButtonModule, MatCardModule, MatFormFieldModule, MatIconModule, MatInputModule, MatSelectModule, MatTableModule,
     AdditiveForm, AdditiveDecisionView, ChemistryFindings, CoolantCautions, CoolantExplainer, CoolantHistoryChart, TopUpsCard,
   ],
   templateUrl: './engine-coolant-page.html',

@@ -1,4 +1,4 @@
-import { DatePipe } from '@angular/common';
+import { JwTimePipe } from '../ui/time-format';
 import { HttpErrorResponse } from '@angular/common/http';
 import { ChangeDetectionStrategy, Component, inject, signal, viewChild } from '@angular/core';
 import { FormBuilder, FormGroupDirective, ReactiveFormsModule, Validators } from '@angular/forms';
@@ -19,7 +19,7 @@ export interface RunHoursDialogData {
 @Component({
   selector: 'jw-run-hours-dialog',
   changeDetection: ChangeDetectionStrategy.OnPush,
-  imports: [DatePipe, ReactiveFormsModule, MatButtonModule, MatDialogModule, MatFormFieldModule, MatInputModule],
+  imports: [JwTimePipe, ReactiveFormsModule, MatButtonModule, MatDialogModule, MatFormFieldModule, MatInputModule],
   template: `
     <h2 mat-dialog-title>Run hours of {{ data.engineName }}</h2>
     <form [formGroup]="form" (ngSubmit)="save()" novalidate>
@@ -42,7 +42,7 @@ export interface RunHoursDialogData {
         @if (history().length) {
           <ul class="audit" aria-label="Run-hours corrections">
             @for (h of history(); track h.id) {
-              <li>{{ h.at | date: 'medium' }} · {{ h.oldRunHours.toFixed(1) }} h → {{ h.newRunHours.toFixed(1) }} h · {{ h.userName ?? 'unknown user' }} · “{{ h.reason }}”</li>
+              <li>{{ h.at | jwTime: null : 'datetime' }} · {{ h.oldRunHours.toFixed(1) }} h → {{ h.newRunHours.toFixed(1) }} h · {{ h.userName ?? 'unknown user' }} · “{{ h.reason }}”</li>
             }
           </ul>
         } @else {

@@ -27,6 +27,9 @@ export class LiveService {
   /** Every `readings` message, for all that is watched. */
   readonly readings$: Observable<LiveReadings> = this.readingsSubject.asObservable().pipe(share());
   readonly connection = this.connectionSignal.asReadonly();
+  private readonly lostSinceSignal = signal<number | null>(null);
+  /** When the open connection was lost (ms), while it stays lost; null when live or signed out. */
+  readonly lostSince = this.lostSinceSignal.asReadonly();
   /** Every `alarm` message (an alarm changed); they come to a watch with `alarms: true`. */
   readonly alarms$: Observable<LiveAlarmMessage> = this.alarmSubject.asObservable().pipe(share());
 
@@ -79,10 +82,15 @@ export class LiveService {
     this.socket = socket;
     socket.on('connect', () => {
       this.connectionSignal.set('connected');
+      this.lostSinceSignal.set(null);
       this.sendWatches();
     });
-    socket.on('disconnect', () => this.connectionSignal.set(socket.active ? 'connecting' : 'offline'));
+    socket.on('disconnect', () => {
+      this.connectionSignal.set(socket.active ? 'connecting' : 'offline');
+      this.markLost();
+    });
     socket.on('connect_error', () => {
+      this.markLost();
       if (socket.active) {
         this.connectionSignal.set('connecting'); // a network problem: socket.io retries by itself
         return;
@@ -102,6 +110,10 @@ export class LiveService {
     });
   }
 
+  private markLost(): void {
+    if (this.lostSinceSignal() === null) this.lostSinceSignal.set(Date.now());
+  }
+
   private close(): void {
     this.openGeneration++;
     if (this.retryTimer) clearTimeout(this.retryTimer);
@@ -110,6 +122,7 @@ export class LiveService {
     this.socket?.disconnect();
     this.socket = null;
     this.connectionSignal.set('offline');
+    this.lostSinceSignal.set(null); // signed out: nothing was lost
   }
 }
 

@@ -4,18 +4,21 @@ import { PressureUnit, TemperatureUnit } from '../../../shared/units';
 export type UnitSystem = 'metric' | 'us';
 export type DisplayVolumeUnit = 'L' | 'gal';
 export type ThemeChoice = 'light' | 'dark' | 'system';
+/** Times in each site's zone (default) or in the browser's zone. */
+export type TimeZoneChoice = 'site' | 'browser';
 
 export interface Preferences {
   temperature: Extract<TemperatureUnit, 'degC' | 'degF'>;
   pressure: PressureUnit;
   volume: DisplayVolumeUnit;
   theme: ThemeChoice;
+  timeZone: TimeZoneChoice;
 }
 
 export const METRIC_UNITS: Pick<Preferences, 'temperature' | 'pressure' | 'volume'> = { temperature: 'degC', pressure: 'kPa', volume: 'L' };
 export const US_UNITS: Pick<Preferences, 'temperature' | 'pressure' | 'volume'> = { temperature: 'degF', pressure: 'psi', volume: 'gal' };
 
-const DEFAULTS: Preferences = { ...METRIC_UNITS, theme: 'system' };
+const DEFAULTS: Preferences = { ...METRIC_UNITS, theme: 'system', timeZone: 'site' };
 const STORAGE_KEY = 'jw.preferences';
 
 /** Display units and theme, per browser. Storage and the API stay in SI whatever is chosen here. */
@@ -70,6 +73,7 @@ function load(): Preferences {
       pressure: p.pressure === 'psi' || p.pressure === 'bar' ? p.pressure : 'kPa',
       volume: p.volume === 'gal' ? 'gal' : 'L',
       theme: p.theme === 'light' || p.theme === 'dark' ? p.theme : 'system',
+      timeZone: p.timeZone === 'browser' ? 'browser' : 'site',
     };
   } catch {
     return DEFAULTS;

@@ -1,5 +1,5 @@
 import { inject } from '@angular/core';
-import { CanMatchFn, Router } from '@angular/router';
+import { CanMatchFn, RedirectCommand, Router } from '@angular/router';
 import { AuthService } from './auth.service';
 import { Role } from './user';
 
@@ -13,13 +13,15 @@ export const signedInGuard: CanMatchFn = (_route, segments) => {
 
 /**
  * Only for the given roles. This only keeps screens tidy: the server checks every call itself.
- * A user without the role goes to the fleet board.
+ * A user without the role sees a page that says so, at the address they asked for (so a reload asks again).
  */
 export function roleGuard(...roles: Role[]): CanMatchFn {
   return (route, segments) => {
     const auth = inject(AuthService);
     if (!auth.signedIn()) return signedInGuard(route, segments);
-    return auth.hasRole(...roles) ? true : inject(Router).createUrlTree(['/fleet']);
+    if (auth.hasRole(...roles)) return true;
+    const tree = inject(Router).createUrlTree(['/not-allowed'], { queryParams: { roles: roles.join(',') } });
+    return new RedirectCommand(tree, { skipLocationChange: true });
   };
 }
 

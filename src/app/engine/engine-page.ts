@@ -1,4 +1,4 @@
-import { DOCUMENT, DatePipe, DecimalPipe } from '@angular/common';
+import { DOCUMENT, DecimalPipe } from '@angular/common';
 import { ChangeDetectionStrategy, Component, DestroyRef, computed, effect, inject, input, signal, untracked } from '@angular/core';
 import { toObservable } from '@angular/core/rxjs-interop';
 import { MatButtonModule } from '@angular/material/button';
@@ -7,22 +7,26 @@ import { MatChipsModule } from '@angular/material/chips';
 import { MatIconModule } from '@angular/material/icon';
 import { MatProgressBarModule } from '@angular/material/progress-bar';
 import { Title } from '@angular/platform-browser';
-import { RouterLink } from '@angular/router';
+import { ActivatedRoute, Router, RouterLink } from '@angular/router';
 import { EMPTY, Subscription, catchError, debounceTime, forkJoin, map, of, switchMap, tap } from 'rxjs';
 import { CHANNELS, CHANNEL_KEYS, ChannelKey, isChannelKey } from '../../../shared/channels';
 import { ClockService } from '../core/clock.service';
+import { DisplayZone } from '../core/display-zone';
+import { ReadingCadence, isStale, staleText } from '../core/staleness';
 import { ChannelValues } from '../core/live-reading';
 import { LiveService } from '../core/live.service';
 import { PreferencesService } from '../core/preferences.service';
 import { Engine, RunState, Site } from '../fleet/fleet-types';
-import { runStateAt, toMillis } from '../fleet/run-state';
+import { lastReadingAt, runStateAt, toMillis } from '../fleet/run-state';
+import { JwTimePipe, zoneAbbreviation } from '../ui/time-format';
 import { UnitValuePipe } from '../ui/unit-value.pipe';
 import { EngineService } from './engine.service';
+import { EngineHome } from './engine-home';
 import { LiveValues } from './live-values';
 import { RangePicker } from './range-picker';
 import { bucketsToCsv, downloadText } from './readings-csv';
 import { RecentReading, RecentReadings } from './recent-readings';
-import { TREND_NOW, TrendRange, presetRange, refreshRange } from './trend-range';
+import { DEFAULT_PRESET, TREND_NOW, TrendRange, presetRange, rangeFromQuery, rangeToQuery, refreshRange, sameRange } from './trend-range';
 import { TrendChart, TrendWindow } from './trend-chart';
 import { Bucket, LiveSample, appendLive, bucketWidth, runChanges } from './trend-series';
 import { RAW_SOURCE, TrendSource, combineSources } from './trend-source';
@@ -52,7 +56,7 @@ interface TrendRequest {
   changeDetection: ChangeDetectionStrategy.OnPush,
   imports: [
     RouterLink, MatCardModule, MatIconModule, MatButtonModule, MatChipsModule, MatProgressBarModule,
-    DatePipe, DecimalPipe, UnitValuePipe, LiveValues, RangePicker, TrendChart, RecentReadings,
+    DecimalPipe, UnitValuePipe, JwTimePipe, LiveValues, RangePicker, TrendChart, RecentReadings, EngineHome,
   ],
   templateUrl: './engine-page.html',
   styleUrl: './engine-page.scss',
@@ -66,10 +70,19 @@ export class EnginePage {
   private readonly title = inject(Title);
   private readonly document = inject(DOCUMENT);
   private readonly destroyRef = inject(DestroyRef);
+  private readonly zones = inject(DisplayZone);
+  private readonly cadence = inject(ReadingCadence);
 
   /** Route parameter (withComponentInputBinding). */
   readonly id = input<string>();
-  private readonly engineId = computed(() => {
+  /** Query parameters (withComponentInputBinding): the trend's range and channels live in the address. */
+  readonly rangeParam = input<string | undefined>(undefined, { alias: 'range' });
+  readonly fromParam = input<string | undefined>(undefined, { alias: 'from' });
+  readonly toParam = input<string | undefined>(undefined, { alias: 'to' });
+  readonly channelsParam = input<string | undefined>(undefined, { alias: 'channels' });
+  private readonly router = inject(Router);
+  private readonly route = inject(ActivatedRoute);
+  protected readonly engineId = computed(() => {
     const n = Number(this.id());
     return Number.isInteger(n) && n > 0 ? n : null;
   });
@@ -77,6 +90,12 @@ export class EnginePage {
   protected readonly engine = signal<Engine | null>(null);
   protected readonly site = signal<Site | null>(null);
   protected readonly loadError = signal<string | null>(null);
+  protected readonly notFound = signal(false);
+  /** Bumped by Retry: loads the engine again. */
+  private readonly attempt = signal(0);
+  /** Times on this page: the site's zone, or the browser's by preference. */
+  protected readonly zone = computed(() => this.zones.zoneFor(this.site()?.timeZone));
+  protected readonly zoneLabel = computed(() => `${this.zone()} (${zoneAbbreviation(this.clock.now(), this.zone())})`);
 
   protected readonly state = computed<RunState>(() => {
     const e = this.engine();
@@ -91,11 +110,19 @@ export class EnginePage {
     equal: (a, b) => a.heaterSetpointC === b.heaterSetpointC,
   });
   protected readonly lastSeen = computed(() => toMillis(this.engine()?.lastSeenAt));
+  /** "last 11:15 MST · 12 min ago" once the newest reading is older than the engine's expected interval. */
+  protected readonly staleNow = computed(() => {
+    const e = this.engine();
+    const last = e ? lastReadingAt(e) : null;
+    const now = this.clock.now();
+    if (!e || last === null || !isStale(last, now, this.cadence.intervalFor(e.id))) return null;
+    return staleText(last, now, this.zone());
+  });
 
   // --- trend ---
   protected readonly allChannels = CHANNEL_KEYS.map((key) => ({ key, label: CHANNELS[key].label }));
-  protected readonly channels = signal<ChannelKey[]>(['coolant_temp', 'coolant_pressure', 'coolant_conductivity']);
-  protected readonly range = signal<TrendRange>(presetRange('24h', this.now()));
+  protected readonly channels = signal<ChannelKey[]>(DEFAULT_CHANNELS);
+  protected readonly range = signal<TrendRange>(presetRange(DEFAULT_PRESET, this.now()));
   /** A window the user zoomed into; null shows the whole range. */
   protected readonly zoom = signal<TrendWindow | null>(null);
   protected readonly width = signal(0);
@@ -121,14 +148,40 @@ export class EnginePage {
   protected readonly recent = signal<RecentReading[]>([]);
 
   constructor() {
+    // The address says which range and channels to show (back, reload and shared links keep them).
+    effect(() => {
+      const fromQuery = rangeFromQuery({ range: this.rangeParam(), from: this.fromParam(), to: this.toParam() }, this.now());
+      const channels = channelsFromQuery(this.channelsParam());
+      untracked(() => {
+        if (!sameRange(fromQuery, this.range())) {
+          this.zoom.set(null);
+          this.range.set(fromQuery);
+        }
+        if (channels.join() !== this.channels().join()) this.channels.set(channels);
+      });
+    });
+
     effect((onCleanup) => {
       const id = this.engineId();
+      this.attempt();
       if (id === null) {
+        this.notFound.set(true);
         this.loadError.set('There is no engine with this address.');
         return;
       }
       const sub = untracked(() => this.load(id));
       onCleanup(() => sub.unsubscribe());
+    });
+
+    // Back from a lost connection: a page that failed to load tries again by itself.
+    let wasLost = false;
+    effect(() => {
+      if (this.live.lostSince() !== null) {
+        wasLost = true;
+      } else if (wasLost && this.live.connection() === 'connected') {
+        wasLost = false;
+        if (untracked(() => this.loadError() !== null && !this.notFound())) this.retry();
+      }
     });
 
     effect(() => {
@@ -153,9 +206,14 @@ export class EnginePage {
     this.destroyRef.onDestroy(() => clearInterval(timer));
   }
 
+  protected retry(): void {
+    this.attempt.update((n) => n + 1);
+  }
+
   protected chooseRange(range: TrendRange): void {
     this.zoom.set(null);
     this.range.set(range);
+    this.setQuery(rangeToQuery(range));
   }
 
   protected toggleChannel(key: ChannelKey, on: boolean): void {
@@ -163,6 +221,12 @@ export class EnginePage {
       const next = on ? [...new Set([...list, key])] : list.filter((k) => k !== key);
       return CHANNEL_KEYS.filter((k) => next.includes(k));
     });
+    this.setQuery({ channels: channelsToQuery(this.channels()) });
+  }
+
+  /** A new entry in the browser history, so the back button returns to the range shown before. */
+  private setQuery(params: Record<string, string | null>): void {
+    void this.router.navigate([], { relativeTo: this.route, queryParams: params, queryParamsHandling: 'merge' });
   }
 
   protected onZoom(win: TrendWindow): void {
@@ -187,6 +251,7 @@ export class EnginePage {
 
   private load(id: number): Subscription {
     this.loadError.set(null);
+    this.notFound.set(false);
     // One parent for all three: the HTTP part completes, the live part must not end with it.
     const sub = new Subscription();
     sub.add(forkJoin([this.api.engine(id), this.api.sites().pipe(catchError(() => of([] as Site[])))]).subscribe({
@@ -195,8 +260,10 @@ export class EnginePage {
         this.site.set(sites.find((s) => s.id === engine.siteId) ?? null);
         this.recent.set(recentFrom(engine.latest ?? {}));
       },
-      error: (err: { status?: number }) =>
-        this.loadError.set(err?.status === 404 ? 'There is no engine with this address.' : 'The engine could not be loaded. Reload the page to try again.'),
+      error: (err: { status?: number }) => {
+        this.notFound.set(err?.status === 404);
+        this.loadError.set(err?.status === 404 ? 'There is no engine with this address.' : 'The engine could not be loaded.');
+      },
     }));
     const unwatch = this.live.watch({ engineIds: [id] });
     sub.add(unwatch);
@@ -267,6 +334,19 @@ export class EnginePage {
       return next;
     });
   }
+}
+
+const DEFAULT_CHANNELS: ChannelKey[] = ['coolant_temp', 'coolant_pressure', 'coolant_conductivity'];
+
+/** `channels=coolant_temp,engine_speed`; absent: the default three; empty: none. */
+export function channelsFromQuery(value: string | null | undefined): ChannelKey[] {
+  if (value === undefined || value === null) return DEFAULT_CHANNELS;
+  const asked = new Set(value.split(',').map((v) => v.trim()));
+  return CHANNEL_KEYS.filter((k) => asked.has(k));
+}
+
+function channelsToQuery(channels: ChannelKey[]): string | null {
+  return channels.join() === DEFAULT_CHANNELS.join() ? null : channels.join(',');
 }
 
 /** Live values keyed by channel (the server may also use channel codes). */

@@ -1,6 +1,8 @@
-import { ChangeDetectionStrategy, Component, computed, input } from '@angular/core';
+import { ChangeDetectionStrategy, Component, computed, inject, input } from '@angular/core';
 import { CHANNELS, ChannelKey } from '../../../shared/channels';
 import { DISPLAY_SCALES, NormalBand, bandPosition, normalBand } from '../../../shared/normal-bands';
+import { ClockService } from '../core/clock.service';
+import { ReadingCadence, isStale, staleText } from '../core/staleness';
 import { Engine, RunState } from '../fleet/fleet-types';
 import { toMillis } from '../fleet/run-state';
 import { BandIndicator } from '../ui/band-indicator';
@@ -17,6 +19,7 @@ interface Row {
   value: number | null;
   bad: boolean;
   at: number | null;
+  stale: boolean;
   band: NormalBand | null;
   scale: NormalBand;
   judged: string;
@@ -31,7 +34,7 @@ interface Row {
   template: `
     <dl class="rows">
       @for (r of rows(); track r.key) {
-        <div class="row" [class.stale]="state() === 'no-data'">
+        <div class="row" [class.stale]="r.stale" [attr.data-stale]="r.stale ? 'true' : null">
           <dt>{{ r.label }}</dt>
           <dd class="value jw-num">
             @if (r.bad) { <span class="bad">bad reading</span> } @else { {{ r.value | unitValue: r.key }} }
@@ -51,21 +54,32 @@ interface Row {
     .bad { font-size: 14px; color: var(--jw-warning); font-weight: 700; }
     .judged { font-size: 13px; color: var(--jw-muted-text); }
     .judged.abnormal { color: var(--jw-warning); font-weight: 700; }
-    .stale .value { color: var(--jw-stale); }
+    .stale .value { color: var(--jw-stale); font-style: italic; }
+    .stale { opacity: 0.65; }
+    .stale .judged { color: var(--jw-stale); }
     @media (max-width: 599.98px) { .row { grid-template-columns: 1fr auto; } .bar, .judged { grid-column: 1 / -1; } }
   `,
 })
 export class LiveValues {
   readonly engine = input.required<Engine>();
   readonly state = input.required<RunState>();
+  /** The zone times are written in (the site's, or the browser's by preference). */
+  readonly zone = input<string | null>(null);
+
+  private readonly clock = inject(ClockService);
+  private readonly cadence = inject(ReadingCadence);
 
   protected readonly rows = computed<Row[]>(() => {
     const e = this.engine();
     const state = this.state();
+    const now = this.clock.now();
+    const interval = this.cadence.intervalFor(e.id);
     return ORDER.map((key) => {
       const latest = e.latest?.[key];
       const bad = !!latest && latest.quality !== 0;
       const value = latest && !bad ? latest.value : null;
+      const at = toMillis(latest?.ts);
+      const stale = !!latest && isStale(at, now, interval);
       const band = normalBand(key, state, e);
       const pos = value !== null && band ? bandPosition(value, band) : null;
       const judged = bad ? 'Sensor value refused' : value === null ? 'No value' : pos ? POSITION_TEXT[pos] : 'Not judged in this state';
@@ -74,11 +88,13 @@ export class LiveValues {
         label: CHANNELS[key].label,
         value,
         bad,
-        at: toMillis(latest?.ts),
+        at,
+        stale,
         band,
         scale: DISPLAY_SCALES[key] ?? EXTRA_SCALES[key] ?? { low: 0, high: 100 },
-        judged: state === 'no-data' && value !== null ? 'Last known, not live' : judged,
-        abnormal: bad || pos === 'low' || pos === 'high',
+        // A stale value is never judged as if it were current: it says how old it is instead.
+        judged: stale && at !== null ? `Not current: ${staleText(at, now, this.zone())}` : judged,
+        abnormal: bad || (!stale && (pos === 'low' || pos === 'high')),
       };
     });
   });

@@ -88,4 +88,21 @@ describe('RangePicker', () => {
     expect(emitted[0].to).toBe(NOW);
     expect(emitted[0].live).toBe(true);
   });
+
+  it('reads typed times in the zone it is given and says which zone that is', () => {
+    fixture.componentRef.setInput('zone', 'America/Denver');
+    fixture.detectChanges();
+    toggle('From–to');
+    expect(el.querySelector('.zone')!.textContent).toContain('America/Denver (MDT)'); // 2026-03-10 is after the switch to summer time
+    const [from, to] = Array.from(el.querySelectorAll<HTMLInputElement>('input[type=datetime-local]'));
+    // the fields start from the window on screen, written in Denver time: 24 h back from 06:00 MDT
+    expect(to.value).toBe('2026-03-10T06:00');
+    from.value = '2026-03-01T08:00'; // MST, UTC-7
+    from.dispatchEvent(new Event('input'));
+    to.value = '2026-03-09T08:00'; // MDT, UTC-6
+    to.dispatchEvent(new Event('input'));
+    el.querySelector('form')!.dispatchEvent(new Event('submit'));
+    expect(new Date(emitted[0].from).toISOString()).toBe('2026-03-01T15:00:00.000Z');
+    expect(new Date(emitted[0].to).toISOString()).toBe('2026-03-09T14:00:00.000Z');
+  });
 });

@@ -4,11 +4,12 @@ import { MatButtonModule } from '@angular/material/button';
 import { MatButtonToggleModule } from '@angular/material/button-toggle';
 import { MatFormFieldModule } from '@angular/material/form-field';
 import { MatInputModule } from '@angular/material/input';
+import { browserZone, zoneAbbreviation } from '../ui/time-format';
 import { PRESET_LABEL, RangePreset, TREND_NOW, TrendRange, customRange, fromLocalInput, presetRange, toLocalInput } from './trend-range';
 
 const PRESETS: RangePreset[] = ['1h', '24h', '7d', '30d', 'custom'];
 
-/** Chooses the trend's time window: a span ending now, or a typed from/to in the browser's time zone. */
+/** Chooses the trend's time window: a span ending now, or a typed from/to in the page's time zone (the site's). */
 @Component({
   selector: 'jw-range-picker',
   changeDetection: ChangeDetectionStrategy.OnPush,
@@ -33,7 +34,7 @@ const PRESETS: RangePreset[] = ['1h', '24h', '7d', '30d', 'custom'];
         @if (customError(); as e) {
           <span class="error" role="alert">{{ e }}</span>
         }
-        <span class="zone">Times in {{ zone }}</span>
+        <span class="zone">Times in {{ zoneText() }}</span>
       </form>
     }
   `,
@@ -53,7 +54,10 @@ export class RangePicker {
 
   protected readonly presets = PRESETS;
   protected readonly label = PRESET_LABEL;
-  protected readonly zone = Intl.DateTimeFormat().resolvedOptions().timeZone || 'your time zone';
+  /** The zone typed times are read in (the site's, or the browser's by preference); the browser's when not given. */
+  readonly zone = input<string | null>(null);
+  private readonly shownZone = computed(() => this.zone() || browserZone());
+  protected readonly zoneText = computed(() => `${this.shownZone()} (${zoneAbbreviation(this.now(), this.shownZone())})`);
 
   private readonly editingCustom = signal(false);
   protected readonly shownPreset = computed<RangePreset | null>(() => (this.editingCustom() ? 'custom' : (this.value()?.preset ?? null)));
@@ -66,7 +70,8 @@ export class RangePicker {
       // Start from the window on screen, so a small change is a small edit.
       const v = this.value();
       const now = this.now();
-      this.custom.setValue({ from: toLocalInput(v?.from ?? now - 24 * 3600_000), to: toLocalInput(v?.to ?? now) });
+      const z = this.shownZone();
+      this.custom.setValue({ from: toLocalInput(v?.from ?? now - 24 * 3600_000, z), to: toLocalInput(v?.to ?? now, z) });
       this.editingCustom.set(true);
       return;
     }
@@ -75,8 +80,8 @@ export class RangePicker {
   }
 
   protected applyCustom(): void {
-    const from = fromLocalInput(this.custom.controls.from.value);
-    const to = fromLocalInput(this.custom.controls.to.value);
+    const from = fromLocalInput(this.custom.controls.from.value, this.shownZone());
+    const to = fromLocalInput(this.custom.controls.to.value, this.shownZone());
     if (from === null || to === null) {
       this.customError.set('Enter both a start and an end.');
       return;

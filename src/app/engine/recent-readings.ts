@@ -1,8 +1,8 @@
 import { ChangeDetectionStrategy, Component, computed, effect, input, viewChild } from '@angular/core';
-import { DatePipe } from '@angular/common';
 import { MatPaginator, MatPaginatorModule } from '@angular/material/paginator';
 import { MatTableDataSource, MatTableModule } from '@angular/material/table';
 import { CHANNELS, ChannelKey } from '../../../shared/channels';
+import { JwTimePipe } from '../ui/time-format';
 import { UnitValuePipe } from '../ui/unit-value.pipe';
 
 /** One reading as it arrived, in stored units. */
@@ -17,12 +17,12 @@ export interface RecentReading {
 @Component({
   selector: 'jw-recent-readings',
   changeDetection: ChangeDetectionStrategy.OnPush,
-  imports: [MatTableModule, MatPaginatorModule, DatePipe, UnitValuePipe],
+  imports: [MatTableModule, MatPaginatorModule, JwTimePipe, UnitValuePipe],
   template: `
     <table mat-table [dataSource]="source" class="readings" aria-label="Recent readings">
       <ng-container matColumnDef="t">
         <th mat-header-cell *matHeaderCellDef>Time</th>
-        <td mat-cell *matCellDef="let r" class="jw-num">{{ r.t | date: 'yyyy-MM-dd HH:mm:ss' }}</td>
+        <td mat-cell *matCellDef="let r" class="jw-num">{{ r.t | jwTime: zone() : 'datetime-s' }}</td>
       </ng-container>
       <ng-container matColumnDef="channel">
         <th mat-header-cell *matHeaderCellDef>Channel</th>
@@ -51,6 +51,8 @@ export interface RecentReading {
 })
 export class RecentReadings {
   readonly readings = input.required<readonly RecentReading[]>();
+  /** The zone times are written in (the site's, or the browser's by preference). */
+  readonly zone = input<string | null>(null);
   protected readonly columns = ['t', 'channel', 'value', 'quality'];
   protected readonly source = new MatTableDataSource<RecentReading>([]);
   private readonly paginator = viewChild(MatPaginator);

@@ -92,8 +92,9 @@ describe('EngineTile', () => {
     render(engine({}, 10 * 60 * 1000));
     expect(text('.state-text')).toBe('No data');
     expect(el.querySelector('.state mat-icon')!.getAttribute('fonticon')).toBe('cloud_off');
-    expect(text('.age')).toBe('· last reading 10 min ago');
+    expect(text('.age')).toMatch(/^· last (\d{4}-\d{2}-\d{2} )?\d{2}:\d{2} \S+ · 10 min ago$/);
     expect(el.querySelector('mat-card')!.classList).toContain('no-data');
+    expect(el.querySelector('mat-card')!.getAttribute('data-stale')).toBe('true');
     expect(words()).toEqual([]); // stale values are not judged against a band
   });
 
@@ -101,7 +102,24 @@ describe('EngineTile', () => {
     const old = engine({}, 14 * 60 * 1000);
     render({ ...old, lastSeenAt: Date.now() - 1000 });
     expect(text('.state-text')).toBe('No data');
-    expect(text('.age')).toBe('· last reading 14 min ago');
+    expect(text('.age')).toMatch(/· 14 min ago$/);
+  });
+
+  it('marks values older than the expected interval as stale before the engine counts as "no data"', () => {
+    render(engine({}, 45 * 1000));
+    expect(text('.state-text')).toBe('Running');
+    expect(el.querySelectorAll('.row[data-stale="true"]').length).toBe(3);
+    expect(el.querySelector('mat-card')!.getAttribute('data-stale')).toBe('true');
+    expect(text('.age')).toMatch(/^· last (\d{4}-\d{2}-\d{2} )?\d{2}:\d{2} \S+ · 45 s ago$/);
+    expect(el.querySelector('a')!.getAttribute('aria-label')).toContain('not current: last');
+    render(engine({}, 5000));
+    expect(el.querySelector('[data-stale]')).toBeNull();
+  });
+
+  it('writes the time of a stale value in the site zone', () => {
+    fixture.componentRef.setInput('timeZone', 'America/Denver');
+    render(engine({}, 10 * 60 * 1000));
+    expect(text('.age')).toMatch(/^· last (\d{4}-\d{2}-\d{2} )?\d{2}:\d{2} M[SD]T · 10 min ago$/);
   });
 
   it('shows the active alarm count when the engine carries one', () => {

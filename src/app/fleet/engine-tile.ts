@@ -6,12 +6,14 @@ import { CHANNELS, ChannelKey } from '../../../shared/channels';
 import { DISPLAY_SCALES, NormalBand, bandPosition, normalBand } from '../../../shared/normal-bands';
 import { AlarmStore } from '../alarms/alarm-store';
 import { ClockService } from '../core/clock.service';
+import { ReadingCadence, isStale, staleText } from '../core/staleness';
+import { DisplayZone } from '../core/display-zone';
 import { PreferencesService } from '../core/preferences.service';
 import { BandIndicator } from '../ui/band-indicator';
 import { formatStored } from '../ui/unit-format';
 import { UnitValuePipe } from '../ui/unit-value.pipe';
 import { Engine, RunState } from './fleet-types';
-import { formatAge, lastReadingAt, runStateAt } from './run-state';
+import { lastReadingAt, runStateAt, toMillis } from './run-state';
 
 const TILE_CHANNELS: { key: ChannelKey; short: string }[] = [
   { key: 'coolant_temp', short: 'Temperature' },
@@ -29,6 +31,7 @@ interface TileRow {
   short: string;
   value: number | null;
   bad: boolean;
+  stale: boolean;
   band: NormalBand | null;
   scale: NormalBand;
 }
@@ -40,7 +43,7 @@ interface TileRow {
   imports: [MatCardModule, MatIconModule, RouterLink, BandIndicator, UnitValuePipe],
   template: `
     <a class="link" [routerLink]="['/engines', engine().id]" [attr.aria-label]="summary()">
-      <mat-card appearance="outlined" class="tile" [class.no-data]="state() === 'no-data'" [class.has-alarms]="alarms() > 0">
+      <mat-card appearance="outlined" class="tile" [class.no-data]="state() === 'no-data'" [class.stale]="stale()" [attr.data-stale]="stale() ? 'true' : null" [class.has-alarms]="alarms() > 0">
         <div class="head">
           <span class="name">{{ engine().name }}</span>
           <span class="duty">{{ dutyText() }}</span>
@@ -50,7 +53,7 @@ interface TileRow {
             <mat-icon aria-hidden="true" [fontIcon]="stateIcon()" />
             <span class="state-text">{{ stateText() }}</span>
             @if (age(); as a) {
-              <span class="age">· last reading {{ a }} ago</span>
+              <span class="age" data-test="stale-age">· {{ a }}</span>
             }
           </span>
           @if (engine().outOfService) {
@@ -72,7 +75,7 @@ interface TileRow {
         }
         <dl class="rows">
           @for (row of rows(); track row.key) {
-            <div class="row" [class.stale]="state() === 'no-data'">
+            <div class="row" [class.stale]="row.stale" [attr.data-stale]="row.stale ? 'true' : null">
               <dt>{{ row.short }}</dt>
               <dd class="value jw-num">
                 @if (row.bad) {
@@ -96,8 +99,13 @@ export class EngineTile {
   private readonly clock = inject(ClockService);
   private readonly prefs = inject(PreferencesService);
   private readonly alarmStore = inject(AlarmStore);
+  private readonly zones = inject(DisplayZone);
+
+  private readonly cadence = inject(ReadingCadence);
 
   readonly engine = input.required<Engine>();
+  /** The site's zone, for "last 11:15" (the browser's when not given). */
+  readonly timeZone = input<string | null>(null);
 
   protected readonly state = computed(() => runStateAt(this.engine(), this.clock.now()));
   protected readonly stateText = computed(() => STATE_TEXT[this.state()]);
@@ -106,15 +114,25 @@ export class EngineTile {
   // Live count from the alarms feature once it has loaded; the engine's own field until then.
   protected readonly alarms = computed(() => this.alarmStore.activeFor(this.engine().id) ?? this.engine().activeAlarms ?? 0);
 
+  private readonly zone = computed(() => this.zones.zoneFor(this.timeZone()));
+  private readonly interval = computed(() => {
+    this.clock.now(); // learned from live messages, read again on each tick
+    return this.cadence.intervalFor(this.engine().id);
+  });
+  /** Any value on the tile is older than the engine's expected interval. */
+  protected readonly stale = computed(() => this.rows().some((r) => r.stale) || (this.state() === 'no-data' && lastReadingAt(this.engine()) !== null));
+  /** "last 11:15 · 12 min ago" while stale. */
   protected readonly age = computed(() => {
-    if (this.state() !== 'no-data') return null;
+    if (!this.stale()) return null;
     const last = lastReadingAt(this.engine());
-    return last === null ? null : formatAge(this.clock.now() - last);
+    return last === null ? null : staleText(last, this.clock.now(), this.zone());
   });
 
   protected readonly rows = computed<TileRow[]>(() => {
     const e = this.engine();
     const state = this.state();
+    const now = this.clock.now();
+    const interval = this.interval();
     return TILE_CHANNELS.map(({ key, short }) => {
       const latest = e.latest?.[key];
       const bad = !!latest && latest.quality !== 0;
@@ -124,6 +142,7 @@ export class EngineTile {
         label: CHANNELS[key].label,
         value: latest && !bad ? latest.value : null,
         bad,
+        stale: !!latest && isStale(toMillis(latest.ts), now, interval),
         band: normalBand(key, state, e),
         scale: DISPLAY_SCALES[key] ?? { low: 0, high: 100 },
       };
@@ -133,7 +152,7 @@ export class EngineTile {
   /** Everything the tile says, for a screen reader in one sentence. */
   protected readonly summary = computed(() => {
     const prefs = this.prefs.preferences();
-    const parts = [`${this.engine().name}, ${this.dutyText()}`, this.stateText() + (this.age() ? `, last reading ${this.age()} ago` : '')];
+    const parts = [`${this.engine().name}, ${this.dutyText()}`, this.stateText() + (this.age() ? `, not current: ${this.age()}` : '')];
     if (this.engine().outOfService) parts.push('out of service');
     const ready = this.engine().readiness;
     if (ready) parts.push(ready.ready ? 'ready to start' : `not ready: ${ready.reasons.join('; ')}`);

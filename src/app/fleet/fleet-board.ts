@@ -1,4 +1,5 @@
-import { ChangeDetectionStrategy, Component, DestroyRef, computed, inject, signal } from '@angular/core';
+import { ChangeDetectionStrategy, Component, DestroyRef, computed, effect, inject, signal, untracked } from '@angular/core';
+import { MatButtonModule } from '@angular/material/button';
 import { MatButtonToggleModule } from '@angular/material/button-toggle';
 import { MatChipsModule } from '@angular/material/chips';
 import { MatIconModule } from '@angular/material/icon';
@@ -23,7 +24,7 @@ const CONNECTION_TEXT = { connected: 'Live', connecting: 'Connecting…', offlin
 @Component({
   selector: 'jw-fleet-board',
   changeDetection: ChangeDetectionStrategy.OnPush,
-  imports: [MatButtonToggleModule, MatChipsModule, MatIconModule, MatProgressBarModule, EngineTile],
+  imports: [MatButtonModule, MatButtonToggleModule, MatChipsModule, MatIconModule, MatProgressBarModule, EngineTile],
   templateUrl: './fleet-board.html',
   styleUrl: './fleet-board.scss',
 })
@@ -83,6 +84,20 @@ export class FleetBoard {
   constructor() {
     void this.fleet.load();
     this.fleet.followFleet(inject(DestroyRef));
+    // Back from a lost connection: load the list again, so values are current and an old error goes away.
+    let wasLost = false;
+    effect(() => {
+      if (this.live.lostSince() !== null) {
+        wasLost = true;
+      } else if (wasLost && this.connection() === 'connected') {
+        wasLost = false;
+        untracked(() => void this.fleet.load());
+      }
+    });
+  }
+
+  protected retry(): void {
+    void this.fleet.load();
   }
 
   protected setSites(ids: number[] | number | null | undefined): void {

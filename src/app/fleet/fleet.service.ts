@@ -42,7 +42,7 @@ export class FleetService {
       this.sitesSignal.set(sites);
       this.enginesSignal.set(engines.map((e) => ({ ...e, latest: normaliseValues(e.latest ?? {}) })));
     } catch {
-      this.errorSignal.set('The engine list could not be loaded. It is tried again when you reload the page.');
+      this.errorSignal.set('The engine list could not be loaded.');
     } finally {
       this.loadingSignal.set(false);
     }

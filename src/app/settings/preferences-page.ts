@@ -2,6 +2,7 @@ import { ChangeDetectionStrategy, Component, inject } from '@angular/core';
 import { MatButtonToggleModule } from '@angular/material/button-toggle';
 import { MatCardModule } from '@angular/material/card';
 import { PreferencesService } from '../core/preferences.service';
+import { browserZone, formatInZone } from '../ui/time-format';
 import { UnitValuePipe } from '../ui/unit-value.pipe';
 
 /** Display units and theme for this browser. */
@@ -53,6 +54,18 @@ import { UnitValuePipe } from '../ui/unit-value.pipe';
     </mat-card>
 
     <mat-card appearance="outlined" class="card">
+      <h2>Times</h2>
+      <div class="setting">
+        <span class="name" id="zone-label">Time zone</span>
+        <mat-button-toggle-group aria-labelledby="zone-label" [value]="prefs.preferences().timeZone" (change)="prefs.update({ timeZone: $event.value })">
+          <mat-button-toggle value="site">Each site's zone</mat-button-toggle>
+          <mat-button-toggle value="browser">This browser's zone ({{ browserZone }})</mat-button-toggle>
+        </mat-button-toggle-group>
+      </div>
+      <p class="example jw-num">Times are written as {{ sample }}, with the zone's abbreviation.</p>
+    </mat-card>
+
+    <mat-card appearance="outlined" class="card">
       <h2>Theme</h2>
       <div class="setting">
         <span class="name" id="theme-label">Appearance</span>
@@ -77,4 +90,6 @@ import { UnitValuePipe } from '../ui/unit-value.pipe';
 })
 export class PreferencesPage {
   protected readonly prefs = inject(PreferencesService);
+  protected readonly browserZone = browserZone();
+  protected readonly sample = formatInZone(Date.now(), browserZone(), 'datetime');
 }

@@ -1,3 +1,4 @@
+import { browserZone, formatInZone } from '../ui/time-format';
 import { ChangeDetectionStrategy, Component, DestroyRef, ElementRef, afterNextRender, computed, effect, inject, input, signal, untracked } from '@angular/core';
 import { ApexAnnotations, ApexAxisChartSeries, ApexChart, ApexStroke, ApexXAxis, ApexYAxis, ChartComponent, PointAnnotations, XAxisAnnotations } from 'ng-apexcharts';
 import { PreferencesService } from '../core/preferences.service';
@@ -19,7 +20,7 @@ interface TraceView {
   text: string;
 }
 
-const time = (t: number) => new Date(t).toLocaleTimeString(undefined, { hour: '2-digit', minute: '2-digit', second: '2-digit' });
+const time = (t: number) => formatInZone(t, browserZone(), 'time-s');
 const fmt = (v: number, unit: string) => `${v.toFixed(unit === 'kPa' ? 0 : unit === 'bar' ? 2 : 1)} ${unit}`;
 
 /**

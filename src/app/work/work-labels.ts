@@ -1,3 +1,4 @@
+import { browserZone, formatInZone } from '../ui/time-format';
 import { WorkPriority, WorkStatus } from './work-types';
 
 export const STATUS_TEXT: Record<WorkStatus, string> = {
@@ -49,15 +50,17 @@ export const PART_TEXT: Record<string, string> = {
 
 export const STEP_UNIT_TEXT: Record<string, string> = { degC: '°C', kPa: 'kPa', L: 'L', turns: 'turns', '%': '%', 'units/gal': 'units/gal', pH: 'pH' };
 
-export function formatDate(iso: string | null): string {
+/** A date in the app's one format (yyyy-mm-dd); a bare date stays the calendar date it names. */
+export function formatDate(iso: string | null, zone?: string | null): string {
   if (!iso) return '—';
-  const d = new Date(iso.length === 10 ? `${iso}T00:00:00` : iso);
-  return d.toLocaleDateString(undefined, { year: 'numeric', month: 'short', day: 'numeric' });
+  if (/^\d{4}-\d{2}-\d{2}$/.test(iso)) return iso;
+  return formatInZone(iso, zone ?? browserZone(), 'date');
 }
 
-export function formatDateTime(iso: string | number | null): string {
+/** A moment in the app's one format (yyyy-mm-dd hh:mm and the zone), in `zone` (default the browser's). */
+export function formatDateTime(iso: string | number | null, zone?: string | null): string {
   if (iso === null) return '—';
-  return new Date(iso).toLocaleString(undefined, { year: 'numeric', month: 'short', day: 'numeric', hour: '2-digit', minute: '2-digit' });
+  return formatInZone(iso, zone ?? browserZone(), 'datetime');
 }
 
 /** Monday of the ISO week of a YYYY-MM-DD date, as YYYY-MM-DD (local calendar). */
