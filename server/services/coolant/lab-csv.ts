@@ -81,13 +81,23 @@ export function decodeText(buf: Buffer): { text: string; encoding: LabCsvEncodin
   try {
     text = new TextDecoder('utf-8', { fatal: true }).decode(buf);
   } catch {
-    text = new TextDecoder('windows-1252').decode(buf);
+    text = fixWindows1252(new TextDecoder('windows-1252').decode(buf));
     encoding = 'windows-1252';
   }
   // C0 controls but tab and line ends, and C1 controls (what undefined Windows-1252 bytes decode to): binary.
   // eslint-disable-next-line no-control-regex
   if (/[\x01-\x08\x0b\x0c\x0e-\x1f\x7f-\x9f]/.test(text)) throw new LabCsvError('file is not text (contains control characters)');
   return { text: text.replace(/^\uFEFF/, ''), encoding };
+}
+
+/**
+ * Windows-1252 bytes 0x80-0x9F (the WHATWG Encoding Standard's index-windows-1252); undefined bytes stay C1 controls.
+ * Node 20's TextDecoder('windows-1252') decodes these bytes as Latin-1 (U+0080-U+009F), so they are mapped here.
+ */
+const WINDOWS_1252_80_9F = '\u20ac\u0081\u201a\u0192\u201e\u2026\u2020\u2021\u02c6\u2030\u0160\u2039\u0152\u008d\u017d\u008f'
+  + '\u0090\u2018\u2019\u201c\u201d\u2022\u2013\u2014\u02dc\u2122\u0161\u203a\u0153\u009d\u017e\u0178';
+function fixWindows1252(text: string): string {
+  return text.replace(/[\x80-\x9f]/g, (c) => WINDOWS_1252_80_9F[c.charCodeAt(0) - 0x80]);
 }
 
 /** The separator is whichever of `,` and `;` the header row uses more (column names contain neither). */
