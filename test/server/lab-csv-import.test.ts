@@ -20,8 +20,10 @@ beforeAll(async () => {
 afterAll(() => t.close());
 
 const upload = (bytes: Buffer, query = '') =>
-  request(t.app).post(`/api/coolant-tests/import${query}`).set(auth(t.tokens.technician)).attach('file', bytes, { filename: 'lab.csv', contentType: 'text/csv' });
-const stored = (ids: number[]) => t.ctx.models.CoolantTest.findAll({ where: { id: ids }, order: [['testedAt', 'ASC']] });
+  request(t.app)
+    .post(`/api/coolant-tests/import${query}`)
+    .set(auth(t.tokens.technician))
+    .attach('file', bytes, { filename: 'lab.csv', contentType: 'text/csv' });
 const linesAndFields = (rejected: { line: number; field: string | null }[]) => rejected.map((e) => [e.line, e.field]);
 
 /** Text -> Windows-1252 bytes (Latin-1 agrees with it for the letters used here; the others are listed). */
@@ -32,21 +34,23 @@ function windows1252(text: string): Buffer {
   return Buffer.from(bytes);
 }
 
-async function importedRows(lines: number[]) {
+/** The last `n` imported tests, oldest first. */
+async function lastImported(n: number) {
   const all = await t.ctx.models.CoolantTest.findAll({ where: { source: 'lab-import' }, order: [['id', 'ASC']] });
-  return all.slice(-lines.length).map((r) => r.toJSON());
+  return all.slice(-n).map((r) => r.toJSON());
 }
 
 describe('lab CSV as spreadsheets write it', () => {
   it('Windows-1252, ";" with decimal commas, CRLF, an appearance over two lines: converted, and the import says so', async () => {
-    const csv = [
-      'engine_id;tested_at;method;sca_units_per_gal;glycol_percent;freeze_point_c;ph;conductivity_us_cm;appearance',
-      `${conv};2026-04-01;lab;1,8;49,5;-32,5;9,6;2900;"trouble, légèrement`,
-      `jaune – dépôt d’eau à 20 °C, 3 €"`,
-      `${conv};2026-04-02;lab;beaucoup;50;;;;`,
-      ';;;;;;;;',
-      `${elc};2026-04-03;refractometer;;51;-34;;;clair`,
-    ].join('\r\n') + '\r\n';
+    const csv =
+      [
+        'engine_id;tested_at;method;sca_units_per_gal;glycol_percent;freeze_point_c;ph;conductivity_us_cm;appearance',
+        `${conv};2026-04-01;lab;1,8;49,5;-32,5;9,6;2900;"trouble, légèrement`,
+        `jaune – dépôt d’eau à 20 °C, 3 €"`,
+        `${conv};2026-04-02;lab;beaucoup;50;;;;`,
+        ';;;;;;;;',
+        `${elc};2026-04-03;refractometer;;51;-34;;;clair`,
+      ].join('\r\n') + '\r\n';
     const bytes = windows1252(csv);
     expect(() => new TextDecoder('utf-8', { fatal: true }).decode(bytes)).toThrow(); // really not UTF-8
     const res = await upload(bytes).expect(201);
@@ -54,26 +58,35 @@ describe('lab CSV as spreadsheets write it', () => {
     expect(res.body.notices.join(' ')).toMatch(/Windows-1252.*converted/);
     expect(res.body.accepted.map((a: { line: number }) => a.line)).toEqual([2, 6]);
     expect(linesAndFields(res.body.rejected)).toEqual([[4, 'sca_units_per_gal']]);
-    const [first, second] = await importedRows([2, 6]);
-    expect(first).toMatchObject({ engineId: conv, scaUnitsPerGal: 1.8, glycolPercent: 49.5, freezePointC: -32.5, ph: 9.6, conductivityUsCm: 2900, appearance: 'trouble, légèrement jaune – dépôt d’eau à 20 °C, 3 €' });
+    const [first, second] = await lastImported(2);
+    expect(first).toMatchObject({
+      engineId: conv,
+      scaUnitsPerGal: 1.8,
+      glycolPercent: 49.5,
+      freezePointC: -32.5,
+      ph: 9.6,
+      conductivityUsCm: 2900,
+      appearance: 'trouble, légèrement jaune – dépôt d’eau à 20 °C, 3 €',
+    });
     expect(second).toMatchObject({ engineId: elc, method: 'refractometer', glycolPercent: 51, freezePointC: -34, appearance: 'clair' });
   });
 
-  it('UTF-8 with a byte-order mark, spaces before quotes, a quoted field over three lines: line numbers stay the file\'s', async () => {
-    const csv = [
-      'engine_id, tested_at, method, glycol_percent, appearance',
-      `${conv}, 2026-05-01, refractometer, 48, "clear,`,
-      'slight',
-      'foam"',
-      `${conv}, 2026-05-02, refractometer, 480, "clear"`,
-      `${conv}, "2026-05-03", "refractometer", "47", "a ""quoted"" word"`,
-    ].join('\r\n') + '\r\n';
+  it("UTF-8 with a byte-order mark, spaces before quotes, a quoted field over three lines: line numbers stay the file's", async () => {
+    const csv =
+      [
+        'engine_id, tested_at, method, glycol_percent, appearance',
+        `${conv}, 2026-05-01, refractometer, 48, "clear,`,
+        'slight',
+        'foam"',
+        `${conv}, 2026-05-02, refractometer, 480, "clear"`,
+        `${conv}, "2026-05-03", "refractometer", "47", "a ""quoted"" word"`,
+      ].join('\r\n') + '\r\n';
     const res = await upload(Buffer.concat([Buffer.from([0xef, 0xbb, 0xbf]), Buffer.from(csv, 'utf8')])).expect(201);
     expect(res.body.format).toEqual({ encoding: 'utf-8', separator: ',', decimalComma: false });
     expect(res.body.notices).toEqual([]);
     expect(res.body.accepted.map((a: { line: number }) => a.line)).toEqual([2, 6]);
     expect(linesAndFields(res.body.rejected)).toEqual([[5, 'glycol_percent']]);
-    const [first, second] = await importedRows([2, 6]);
+    const [first, second] = await lastImported(2);
     expect(first).toMatchObject({ glycolPercent: 48, appearance: 'clear, slight foam' });
     expect(second).toMatchObject({ glycolPercent: 47, appearance: 'a "quoted" word' });
   });
@@ -89,7 +102,10 @@ describe('lab CSV as spreadsheets write it', () => {
     ].join('\n');
     const res = await upload(Buffer.from(csv, 'utf8'), '?preview=1').expect(200);
     expect(res.body.accepted.map((a: { line: number }) => a.line)).toEqual([2]);
-    expect(linesAndFields(res.body.rejected)).toEqual([[3, 'sca_units_per_gal'], [5, null]]);
+    expect(linesAndFields(res.body.rejected)).toEqual([
+      [3, 'sca_units_per_gal'],
+      [5, null],
+    ]);
     expect(res.body.rejected[1].error).toMatch(/quot/i);
   });
 

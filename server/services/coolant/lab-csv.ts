@@ -94,8 +94,9 @@ export function decodeText(buf: Buffer): { text: string; encoding: LabCsvEncodin
  * Windows-1252 bytes 0x80-0x9F (the WHATWG Encoding Standard's index-windows-1252); undefined bytes stay C1 controls.
  * Node 20's TextDecoder('windows-1252') decodes these bytes as Latin-1 (U+0080-U+009F), so they are mapped here.
  */
-const WINDOWS_1252_80_9F = '\u20ac\u0081\u201a\u0192\u201e\u2026\u2020\u2021\u02c6\u2030\u0160\u2039\u0152\u008d\u017d\u008f'
-  + '\u0090\u2018\u2019\u201c\u201d\u2022\u2013\u2014\u02dc\u2122\u0161\u203a\u0153\u009d\u017e\u0178';
+const WINDOWS_1252_80_9F =
+  '\u20ac\u0081\u201a\u0192\u201e\u2026\u2020\u2021\u02c6\u2030\u0160\u2039\u0152\u008d\u017d\u008f' +
+  '\u0090\u2018\u2019\u201c\u201d\u2022\u2013\u2014\u02dc\u2122\u0161\u203a\u0153\u009d\u017e\u0178';
 function fixWindows1252(text: string): string {
   return text.replace(/[\x80-\x9f]/g, (c) => WINDOWS_1252_80_9F[c.charCodeAt(0) - 0x80]);
 }
@@ -220,7 +221,8 @@ export function parseLabCsv(buf: Buffer, opts: { now?: number; engineIdOptional?
     const at = get('tested_at');
     let testedAt: Date | null = null;
     if (at === '') fail('tested_at', 'missing');
-    else if (!DATE_TIME.test(at) && !DATE_ONLY.test(at)) fail('tested_at', `not an ISO 8601 date-time with offset, nor a YYYY-MM-DD date (${JSON.stringify(at.slice(0, 40))})`);
+    else if (!DATE_TIME.test(at) && !DATE_ONLY.test(at))
+      fail('tested_at', `not an ISO 8601 date-time with offset, nor a YYYY-MM-DD date (${JSON.stringify(at.slice(0, 40))})`);
     else {
       const ms = Date.parse(DATE_ONLY.test(at) ? `${at}T00:00:00Z` : at);
       if (!Number.isFinite(ms)) fail('tested_at', `not a real date (${at})`);
