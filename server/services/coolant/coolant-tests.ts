@@ -10,7 +10,7 @@ import type { CoolantDecision, CoolantTestView } from '../../../shared/api/coola
 import { maySeeSite, type SiteScope } from '../site-access';
 import { getAdditiveProfile } from './additive-profile';
 import { getChemistryLimits } from './chemistry-limits';
-import { LabCsvError, parseLabCsv, type LabRow, type RowError } from './lab-csv';
+import { LabCsvError, parseLabCsv, type LabRow, type ParsedLabCsv, type RowError } from './lab-csv';
 
 export type { CoolantDecision, CoolantTestView } from '../../../shared/api/coolant-view';
 
@@ -138,6 +138,19 @@ export interface ImportResult {
   /** Rows left out, with the reason. */
   rejected: RowError[];
   stored: number;
+  /** How the file was read: encoding (a Windows-1252 file is converted), separator, decimal comma seen. */
+  format: ParsedLabCsv['format'];
+  /** Plain-language notes on the reading, e.g. the conversion from Windows-1252. */
+  notices: string[];
+}
+
+/** What the user should know about how the file was read. */
+function formatNotices(format: ParsedLabCsv['format']): string[] {
+  const notices: string[] = [];
+  if (format.encoding === 'windows-1252') notices.push('the file is not UTF-8; it was read as Windows-1252 (the usual "CSV" of spreadsheets on Windows) and converted');
+  if (format.separator === ';') notices.push('fields separated by ";"');
+  if (format.decimalComma) notices.push('numbers with a decimal comma were read as decimals (e.g. 9,6 = 9.6)');
+  return notices;
 }
 
 /** Lab CSV import: every good row is stored (unless preview), every bad row reported; never all-or-nothing. */
@@ -182,14 +195,13 @@ export async function importLabCsv(models: Models, buf: Buffer, opts: { preview:
   if (!opts.preview && good.length) {
     await models.CoolantTest.bulkCreate(
       good.map(({ row, engine, decision }) => ({
-        engineId: engine.id, testedAt: row.testedAt, method: row.method, scaUnitsPerGal: row.scaUnitsPerGal, glycolPercent: row.glycolPercent,
-        freezePointC: row.freezePointC, ph: row.ph, conductivityUsCm: row.conductivityUsCm, nitritePpm: row.nitritePpm, molybdatePpm: row.molybdatePpm,
-        appearance: row.appearance, notes: null,
+        ...row, // the row's fields are named as the stored test's
+        engineId: engine.id, notes: null,
         testedBy: opts.userId, decision: decision as unknown as Record<string, unknown>, source: 'lab-import' as const,
       })),
     );
   }
-  return { preview: opts.preview, accepted, rejected, stored: opts.preview ? 0 : good.length };
+  return { preview: opts.preview, accepted, rejected, stored: opts.preview ? 0 : good.length, format: parsed.format, notices: formatNotices(parsed.format) };
 }
 
 /** One test as the API shows it, or null. */
