@@ -5,11 +5,12 @@
  * and then 60 s of live data at 1 Hz for all eight demo engines. Afterwards nothing is annunciated, no e-mail
  * was queued or caught, and whatever the rules found in the history is recorded as closed.
  */
-import { spawn, spawnSync, type ChildProcess } from 'node:child_process';
+import { spawnSync, type ChildProcess } from 'node:child_process';
 import fs from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
 import { freePort, waitFor } from './support/alarm-db';
+import { spawnInGroup, stopGroup } from './support/process-group';
 
 const ROOT = path.resolve(__dirname, '../..');
 const TSX = path.join(ROOT, 'node_modules/.bin/tsx');
@@ -28,16 +29,10 @@ let env: NodeJS.ProcessEnv;
 
 function run(args: string[], name: string): ChildProcess {
   const out = fs.openSync(path.join(dataDir, `${name}.log`), 'a');
-  return spawn(TSX, args, { cwd: ROOT, env, stdio: ['ignore', out, out] });
+  return spawnInGroup(TSX, args, { cwd: ROOT, env, stdio: ['ignore', out, out] });
 }
 
-const stopChild = (c: ChildProcess | null) =>
-  new Promise<void>((resolve) => {
-    if (!c || c.exitCode !== null) return resolve();
-    c.once('exit', () => resolve());
-    c.kill('SIGTERM');
-    setTimeout(() => c.exitCode === null && c.kill('SIGKILL'), 10_000).unref();
-  });
+const stopChild = (c: ChildProcess | null) => stopGroup(c);
 
 async function get<T>(p: string, token: string): Promise<T> {
   const res = await fetch(base + p, { headers: { authorization: `Bearer ${token}` } });

@@ -17,12 +17,13 @@
  *   the rule clocks, so the test sets a per-engine override of 60 s on the stuck engine, as an administrator
  *   would through the rules API. Every other rule runs with its default parameters.
  */
-import { spawn, spawnSync, type ChildProcess } from 'node:child_process';
+import { spawnSync, type ChildProcess } from 'node:child_process';
 import fs from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
 import { io as ioClient, type Socket } from 'socket.io-client';
 import { freePort, waitFor } from './support/alarm-db';
+import { spawnInGroup, stopGroup } from './support/process-group';
 
 const ROOT = path.resolve(__dirname, '../..');
 const TSX = path.join(ROOT, 'node_modules/.bin/tsx');
@@ -41,7 +42,7 @@ let env: NodeJS.ProcessEnv;
 
 function run(args: string[], name: string): ChildProcess {
   const out = fs.openSync(path.join(dataDir, `${name}.log`), 'a');
-  return spawn(TSX, args, { cwd: ROOT, env, stdio: ['ignore', out, out] });
+  return spawnInGroup(TSX, args, { cwd: ROOT, env, stdio: ['ignore', out, out] });
 }
 
 async function api<T>(method: string, p: string, token?: string, body?: unknown): Promise<{ status: number; body: T }> {
@@ -58,13 +59,7 @@ async function control(p: string, body: unknown = {}): Promise<void> {
   if (!res.ok) throw new Error(`simulator control ${p}: ${res.status} ${await res.text()}`);
 }
 
-const stopChild = (c: ChildProcess | null) =>
-  new Promise<void>((resolve) => {
-    if (!c || c.exitCode !== null) return resolve();
-    c.once('exit', () => resolve());
-    c.kill('SIGTERM');
-    setTimeout(() => c.exitCode === null && c.kill('SIGKILL'), 10_000).unref();
-  });
+const stopChild = (c: ChildProcess | null) => stopGroup(c);
 
 interface AlarmRow { id: number; engineId: number; rule: string; state: string; priority: string; value: number | null; unit: string | null; escalationLevel: number; raisedAt: string }
 interface Mail { id: number; to: string; subject: string; text: string }

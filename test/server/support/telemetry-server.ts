@@ -42,7 +42,10 @@ export interface ServerProcessOptions {
   env?: Record<string, string>;
   /** Reuse these ports (a restart that devices reconnect to). */
   ports?: { port: number; mqttPort: number; smtpPort: number };
-  /** Own process group; stop() signals the group and resolves once no process of it is left. */
+  /**
+   * Own process group (the default): stop() signals the group, tsx's worker included, and resolves once no
+   * process of it is left. `false` signals the tsx wrapper only.
+   */
   group?: boolean;
 }
 
@@ -68,7 +71,7 @@ export async function startServerProcess(opts: ServerProcessOptions = {}): Promi
     cwd: ROOT,
     env: { ...process.env, PORT: String(port), MQTT_PORT: String(mqttPort), SMTP_PORT: String(smtpPort), DATA_DIR: dataDir, LOG_LEVEL: 'warn', ...opts.env },
     stdio: ['ignore', 'pipe', 'pipe'],
-    detached: opts.group ?? false,
+    detached: opts.group !== false,
   });
   let output = '';
   child.stdout!.on('data', (d) => { output += d; });
@@ -81,7 +84,7 @@ export async function startServerProcess(opts: ServerProcessOptions = {}): Promi
     if (child.exitCode !== null) throw new Error('server exited during start:\n' + output);
     try { await health(); break; } catch { /* not yet */ }
     if (Date.now() > deadline) {
-      if (opts.group) process.kill(-child.pid!, 'SIGKILL'); else child.kill('SIGKILL');
+      if (opts.group !== false) process.kill(-child.pid!, 'SIGKILL'); else child.kill('SIGKILL');
       throw new Error('server did not start:\n' + output);
     }
     await new Promise((r) => setTimeout(r, 200));
@@ -91,7 +94,7 @@ export async function startServerProcess(opts: ServerProcessOptions = {}): Promi
     log: () => output,
     health,
     stop: async (signal = 'SIGTERM') => {
-      if (!opts.group) {
+      if (opts.group === false) {
         if (child.exitCode === null) child.kill(signal);
         return exited;
       }
