@@ -40,7 +40,7 @@ const rejections = async (deviceId: number) =>
 
 beforeAll(async () => {
   server = await startServerProcess();
-  db = new Db(server.dbFile);
+  db = new Db(server.databaseUrl);
   fleet = await seedFleet(db, 6, 'bt');
 });
 

@@ -59,7 +59,7 @@ test('SIGKILL mid-flood, three times: every acknowledged reading is stored, none
   ackFile = path.join(dataDir, 'acked.txt');
   server = await startServerProcess({ dataDir, group: true });
   const ports = server.ports;
-  const seedDb = new Db(server.dbFile);
+  const seedDb = new Db(server.databaseUrl);
   const [device] = await seedFleet(seedDb, 1, 'crash');
   await seedDb.close();
 
@@ -80,7 +80,7 @@ test('SIGKILL mid-flood, three times: every acknowledged reading is stored, none
     await server.stop('SIGKILL'); // the whole group, no clean flush
     // the server is gone: whatever the publisher recorded as acknowledged must be in the file now
     const acked = ackedMessages();
-    const stored = await storedPerMessage(server.dbFile, device.engineId, baseTs);
+    const stored = await storedPerMessage(server.databaseUrl, device.engineId, baseTs);
     const missing = acked.filter((m) => stored.get(m) !== SAMPLES * CHANNELS);
     expect({ killedAfter: share, acked: acked.length, missing }).toEqual({ killedAfter: share, acked: acked.length, missing: [] });
     figures.push(`kill ${figures.length + 1}: ${acked.length * SAMPLES * CHANNELS} readings acknowledged, all stored (${[...stored.values()].reduce((a, b) => a + b, 0)} in the file)`);
@@ -94,13 +94,13 @@ test('SIGKILL mid-flood, three times: every acknowledged reading is stored, none
   // one more SIGKILL after the last ack: nothing may depend on a clean shutdown
   await server.stop('SIGKILL');
 
-  const db = new Db(server.dbFile);
+  const db = new Db(server.databaseUrl);
   try {
     expect(await db.get('PRAGMA integrity_check')).toEqual({ integrity_check: 'ok' });
     const total = await db.get<{ n: number }>('SELECT COUNT(*) AS n FROM readings WHERE engine_id = ?', [device.engineId]);
     expect(total.n).toBe(MESSAGES * SAMPLES * CHANNELS);
     expect(await db.all('SELECT engine_id, channel, ts, COUNT(*) AS n FROM readings GROUP BY engine_id, channel, ts HAVING COUNT(*) > 1')).toEqual([]);
-    const stored = await storedPerMessage(server.dbFile, device.engineId, baseTs);
+    const stored = await storedPerMessage(server.databaseUrl, device.engineId, baseTs);
     expect([...acked].filter((m) => stored.get(m) !== SAMPLES * CHANNELS)).toEqual([]);
     // rollups of the window equal the raw counts, minute by minute
     const raw = await db.all<{ channel: number; minute: number; n: number }>(
