@@ -9,6 +9,7 @@ import { spawn, type ChildProcess } from 'node:child_process';
 import fs from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
+import { isPg } from './support/test-db';
 import { Db, seedFleet, startServerProcess, type ServerProcess } from './support/telemetry-server';
 
 jest.setTimeout(120_000);
@@ -41,7 +42,7 @@ async function storedPerMessage(dbFile: string, engineId: number, baseTs: number
   const db = new Db(dbFile);
   try {
     const rows = await db.all<{ m: number; n: number }>(
-      `SELECT (ts - CAST(? AS INTEGER)) / CAST(? AS INTEGER) AS m, COUNT(*) AS n FROM readings WHERE engine_id = ? GROUP BY m`, [baseTs, SAMPLES, engineId]);
+      `SELECT (ts - CAST(? AS BIGINT)) / CAST(? AS BIGINT) AS m, COUNT(*) AS n FROM readings WHERE engine_id = ? GROUP BY m`, [baseTs, SAMPLES, engineId]);
     return new Map(rows.map((r) => [r.m, r.n]));
   } finally {
     await db.close();
@@ -96,7 +97,14 @@ test('SIGKILL mid-flood, three times: every acknowledged reading is stored, none
 
   const db = new Db(server.databaseUrl);
   try {
-    expect(await db.get('PRAGMA integrity_check')).toEqual({ integrity_check: 'ok' });
+    if (isPg) {
+      // the PostgreSQL twin of integrity_check: amcheck verifies the table's pages and its unique index against them
+      await db.exec('CREATE EXTENSION IF NOT EXISTS amcheck');
+      expect(await db.all(`SELECT * FROM verify_heapam('readings')`)).toEqual([]);
+      await db.exec(`SELECT bt_index_check('readings_engine_channel_ts'::regclass, true)`);
+    } else {
+      expect(await db.get('PRAGMA integrity_check')).toEqual({ integrity_check: 'ok' });
+    }
     const total = await db.get<{ n: number }>('SELECT COUNT(*) AS n FROM readings WHERE engine_id = ?', [device.engineId]);
     expect(total.n).toBe(MESSAGES * SAMPLES * CHANNELS);
     expect(await db.all('SELECT engine_id, channel, ts, COUNT(*) AS n FROM readings GROUP BY engine_id, channel, ts HAVING COUNT(*) > 1')).toEqual([]);

@@ -185,7 +185,7 @@ export async function seedFleet(db: Db, count: number, prefix = 'gw'): Promise<S
   for (let i = 0; i < count; i++) {
     const engineId = await db.run(
       `INSERT INTO engines (site_id, name, duty, capacity_l, coolant_family, glycol_type, glycol_percent, cap_pressure_kpa, oil_drain_interval_h, run_hours, safe_open_temp_c, out_of_service, created_at, updated_at)
-       VALUES (?, ?, 'standby', 60, 'conventional', 'ethylene', 50, 100, 250, 0, 50, 0, ?, ?)`, [siteId, `Test engine ${prefix}-${i}`, now, now]);
+       VALUES (?, ?, 'standby', 60, 'conventional', 'ethylene', 50, 100, 250, 0, 50, FALSE, ?, ?)`, [siteId, `Test engine ${prefix}-${i}`, now, now]);
     const username = `${prefix}-${engineId}`;
     const secret = `secret-${prefix}-${i}-x7`;
     const deviceId = await db.run(`INSERT INTO devices (engine_id, username, secret_hash, created_at, updated_at) VALUES (?, ?, ?, ?, ?)`,
