@@ -20,6 +20,8 @@ export interface Config {
   publicUrl: string;
   production: boolean;
   logLevel: 'debug' | 'info' | 'warn' | 'error';
+  /** PostgreSQL: drop months of raw readings that ended longer ago than this (rollups stay); null keeps all. */
+  readingsRetentionDays: number | null;
 }
 
 function intFrom(env: NodeJS.ProcessEnv, name: string, fallback: number): number {
@@ -33,6 +35,14 @@ function intFrom(env: NodeJS.ProcessEnv, name: string, fallback: number): number
 function textFrom(env: NodeJS.ProcessEnv, name: string): string | null {
   const raw = env[name];
   return raw === undefined || raw === '' ? null : raw;
+}
+
+function daysFrom(env: NodeJS.ProcessEnv, name: string): number | null {
+  const raw = env[name];
+  if (raw === undefined || raw === '') return null;
+  const n = Number(raw);
+  if (!Number.isInteger(n) || n < 1) throw new Error(`${name} must be a whole number of days (1 or more), got "${raw}"`);
+  return n;
 }
 
 export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
@@ -55,5 +65,6 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
     publicUrl: (env.PUBLIC_URL || `http://localhost:${port}`).replace(/\/$/, ''),
     production: env.NODE_ENV === 'production',
     logLevel: ['debug', 'info', 'warn', 'error'].includes(level) ? level : 'info',
+    readingsRetentionDays: daysFrom(env, 'READINGS_RETENTION_DAYS'),
   };
 }

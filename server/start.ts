@@ -9,6 +9,7 @@ import { loadJwtSecret } from './auth/jwt-secret';
 import { createTokenService } from './auth/tokens';
 import type { Config } from './config';
 import { migrate } from './db/migrate';
+import { startReadingPartitionUpkeep } from './db/reading-partitions';
 import { createSequelize } from './db/sequelize';
 import { createLogger, type Logger } from './logger';
 import { initModels, type Models } from './models';
@@ -45,6 +46,8 @@ export async function startServer(config: Config, opts: StartOptions = {}): Prom
   const sequelize = createSequelize(config, log);
   const applied = await migrate(sequelize, log);
   if (applied.length) log.info(`migrations applied: ${applied.join(', ')}`);
+  const partitions = startReadingPartitionUpkeep(sequelize, log, config.readingsRetentionDays);
+  await partitions.ready;
   const models = initModels(sequelize);
   const tokens = createTokenService(loadJwtSecret(config.dataDir));
   const ctx: AppContext = { config, log, sequelize, models, tokens, telemetry: null, startedAt: Date.now() };
@@ -78,6 +81,7 @@ export async function startServer(config: Config, opts: StartOptions = {}): Prom
   let stopping: Promise<void> | null = null;
   const stop = () =>
     (stopping ??= (async () => {
+      partitions.stop();
       await telemetry.stop();
       await alarms.stop();
       await stopRunHours();
