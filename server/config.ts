@@ -11,6 +11,8 @@ export interface Config {
   mqttUrl: string | null;
   /** Client id at the external broker: fixed, so its persistent session (unacked messages) survives a restart. */
   mqttClientId: string;
+  /** `dynsec`: device accounts are kept in the external broker's dynamic-security plugin; null: the broker's own business. */
+  mqttDeviceAccounts: 'dynsec' | null;
   /** When set, send mail to this relay instead of the local mail catcher. */
   smtpHost: string | null;
   smtpUser: string | null;
@@ -45,6 +47,13 @@ function daysFrom(env: NodeJS.ProcessEnv, name: string): number | null {
   return n;
 }
 
+function deviceAccountsFrom(env: NodeJS.ProcessEnv): 'dynsec' | null {
+  const raw = textFrom(env, 'MQTT_DEVICE_ACCOUNTS');
+  if (raw === null) return null;
+  if (raw !== 'dynsec') throw new Error(`MQTT_DEVICE_ACCOUNTS must be "dynsec" or empty, got "${raw}"`);
+  return raw;
+}
+
 export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
   const port = intFrom(env, 'PORT', 3000);
   const dataDir = path.resolve(env.DATA_DIR || './data');
@@ -57,6 +66,7 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
     databaseUrl: env.DATABASE_URL || `sqlite:${path.join(dataDir, 'jacketwatch.sqlite')}`,
     mqttUrl: textFrom(env, 'MQTT_URL'),
     mqttClientId: textFrom(env, 'MQTT_CLIENT_ID') ?? 'jacketwatch-server',
+    mqttDeviceAccounts: deviceAccountsFrom(env),
     smtpHost: textFrom(env, 'SMTP_HOST'),
     smtpUser: textFrom(env, 'SMTP_USER'),
     smtpPass: textFrom(env, 'SMTP_PASS'),

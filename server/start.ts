@@ -2,7 +2,7 @@ import fs from 'node:fs';
 import http from 'node:http';
 import type { AddressInfo } from 'node:net';
 import type { Express } from 'express';
-import type { Sequelize } from 'sequelize';
+import { Op, type Sequelize } from 'sequelize';
 import type { AppContext } from './app-context';
 import { createApp, type AppOptions } from './app';
 import { loadJwtSecret } from './auth/jwt-secret';
@@ -17,6 +17,7 @@ import { createAlarmFeature, type AlarmFeature } from './services/alarms';
 import { startRunHoursCounting } from './services/coolant';
 import { siteOfEngineLookup } from './services/engines';
 import { siteScopeForUser } from './services/site-access';
+import { createDynsecAccounts } from './telemetry/broker-accounts';
 import { startTelemetry } from './telemetry';
 import type { Telemetry } from './telemetry/types';
 
@@ -51,6 +52,12 @@ export async function startServer(config: Config, opts: StartOptions = {}): Prom
   const models = initModels(sequelize);
   const tokens = createTokenService(loadJwtSecret(config.dataDir));
   const ctx: AppContext = { config, log, sequelize, models, tokens, telemetry: null, startedAt: Date.now() };
+  if (config.mqttUrl && config.mqttDeviceAccounts === 'dynsec') {
+    ctx.deviceAccounts = createDynsecAccounts({
+      url: config.mqttUrl, clientId: `${config.mqttClientId}-accounts`, log,
+      revokedUsernames: async () => (await models.Device.findAll({ where: { revokedAt: { [Op.ne]: null } }, attributes: ['username'] })).map((d) => d.username),
+    });
+  }
   const alarms = createAlarmFeature(ctx);
   const app = createApp(ctx, { ...opts, extraRouters: [...(opts.extraRouters ?? []), ...alarms.routers] });
   const httpServer = http.createServer(app);
@@ -83,6 +90,7 @@ export async function startServer(config: Config, opts: StartOptions = {}): Prom
     (stopping ??= (async () => {
       partitions.stop();
       await telemetry.stop();
+      await ctx.deviceAccounts?.close();
       await alarms.stop();
       await stopRunHours();
       await new Promise<void>((resolve) => {

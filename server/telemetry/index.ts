@@ -14,7 +14,7 @@ import { MemoryLiveState } from './live-state';
 import { ReadingWriter, type WriterOptions } from './reading-writer';
 import { DEVICE_BY_USERNAME_SQL } from './sql';
 import { startExternalSubscriber } from './external-broker';
-import type { AcceptedReading, Telemetry, TelemetryDeps } from './types';
+import type { AcceptedReading, BrokerState, Telemetry, TelemetryDeps } from './types';
 
 export interface TelemetryOptions {
   highWater?: number;
@@ -136,8 +136,11 @@ export async function startTelemetry(deps: TelemetryDeps, options: TelemetryOpti
 
   let mqtt: Closable;
   let mqttPort: number | null = null;
+  let brokerState: () => BrokerState | null = () => null;
   if (config.mqttUrl) {
-    mqtt = await startExternalSubscriber({ url: config.mqttUrl, clientId: config.mqttClientId, log, ingest });
+    const ext = await startExternalSubscriber({ url: config.mqttUrl, clientId: config.mqttClientId, log, ingest });
+    brokerState = ext.state;
+    mqtt = ext;
   } else {
     // required lazily so jest (which cannot load aedes) can still import this module's types
     // eslint-disable-next-line @typescript-eslint/no-require-imports
@@ -165,6 +168,7 @@ export async function startTelemetry(deps: TelemetryDeps, options: TelemetryOpti
     mqttPort,
     counters: () => counters.snapshot(buffer.size),
     rejectsByDevice: () => activity.rejectsByDevice(),
+    brokerState: () => brokerState(),
     onReadings: (listener) => { listeners.push(listener); },
     emit: (room, event, payload) => livePush.emit(room, event, payload),
     async stop() {
