@@ -80,4 +80,23 @@ describe('outbox', () => {
       await outbox.stop();
     }
   });
+
+  it('two senders on one outbox (two servers): each message goes out once', async () => {
+    const catcher = await startMailCatcher({ port: 0, model: m.CaughtMail, log: quietLog });
+    const a = startOutbox({ config: config(catcher.port()), model: m.OutboxMessage, log: quietLog, pollMs: 60_000 });
+    const b = startOutbox({ config: config(catcher.port()), model: m.OutboxMessage, log: quietLog, pollMs: 60_000 });
+    try {
+      const subjects = Array.from({ length: 12 }, (_, i) => `shared outbox ${i}`);
+      // written directly, so that neither sender has started on them before both look
+      await m.OutboxMessage.bulkCreate(subjects.map((subject) => ({ to: 'tech@jacketwatch.test', subject, text: 'once', nextAttemptAt: new Date() })));
+      await Promise.all([a.flush(), b.flush(), a.flush(), b.flush()]);
+      await waitFor(async () => ((await m.OutboxMessage.count({ where: { subject: subjects, sentAt: null } })) === 0 ? true : null), 10000);
+      const caught = await m.CaughtMail.findAll({ where: { subject: subjects } });
+      expect(caught.map((c) => c.subject).sort()).toEqual([...subjects].sort());
+    } finally {
+      await a.stop();
+      await b.stop();
+      await catcher.stop();
+    }
+  });
 });
