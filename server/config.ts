@@ -24,6 +24,8 @@ export interface Config {
   logLevel: 'debug' | 'info' | 'warn' | 'error';
   /** PostgreSQL: drop months of raw readings that ended longer ago than this (rollups stay); null keeps all. */
   readingsRetentionDays: number | null;
+  /** JWT signing secret shared by several servers; null: generated once into DATA_DIR/jwt-secret. */
+  jwtSecret: string | null;
 }
 
 function intFrom(env: NodeJS.ProcessEnv, name: string, fallback: number): number {
@@ -54,6 +56,12 @@ function deviceAccountsFrom(env: NodeJS.ProcessEnv): 'dynsec' | null {
   return raw;
 }
 
+function secretFrom(env: NodeJS.ProcessEnv, name: string): string | null {
+  const raw = textFrom(env, name);
+  if (raw !== null && raw.length < 32) throw new Error(`${name} must be at least 32 characters (a random string, e.g. openssl rand -base64 48)`);
+  return raw;
+}
+
 export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
   const port = intFrom(env, 'PORT', 3000);
   const dataDir = path.resolve(env.DATA_DIR || './data');
@@ -76,5 +84,6 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
     production: env.NODE_ENV === 'production',
     logLevel: ['debug', 'info', 'warn', 'error'].includes(level) ? level : 'info',
     readingsRetentionDays: daysFrom(env, 'READINGS_RETENTION_DAYS'),
+    jwtSecret: secretFrom(env, 'JWT_SECRET'),
   };
 }

@@ -50,7 +50,7 @@ export async function startServer(config: Config, opts: StartOptions = {}): Prom
   const partitions = startReadingPartitionUpkeep(sequelize, log, config.readingsRetentionDays);
   await partitions.ready;
   const models = initModels(sequelize);
-  const tokens = createTokenService(loadJwtSecret(config.dataDir));
+  const tokens = createTokenService(config.jwtSecret ?? loadJwtSecret(config.dataDir));
   const ctx: AppContext = { config, log, sequelize, models, tokens, telemetry: null, startedAt: Date.now() };
   if (config.mqttUrl && config.mqttDeviceAccounts === 'dynsec') {
     ctx.deviceAccounts = createDynsecAccounts({
