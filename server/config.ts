@@ -13,6 +13,8 @@ export interface Config {
   mqttClientId: string;
   /** `dynsec`: device accounts are kept in the external broker's dynamic-security plugin; null: the broker's own business. */
   mqttDeviceAccounts: 'dynsec' | null;
+  /** Several servers: subscribe as members of this MQTT v5 shared-subscription group, so each message goes to one. */
+  mqttSharedGroup: string | null;
   /** When set, send mail to this relay instead of the local mail catcher. */
   smtpHost: string | null;
   smtpUser: string | null;
@@ -62,6 +64,12 @@ function secretFrom(env: NodeJS.ProcessEnv, name: string): string | null {
   return raw;
 }
 
+function sharedGroupFrom(env: NodeJS.ProcessEnv): string | null {
+  const raw = textFrom(env, 'MQTT_SHARED_GROUP');
+  if (raw !== null && !/^[A-Za-z0-9_-]{1,64}$/.test(raw)) throw new Error(`MQTT_SHARED_GROUP must be 1-64 letters, digits, - or _, got "${raw}"`);
+  return raw;
+}
+
 export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
   const port = intFrom(env, 'PORT', 3000);
   const dataDir = path.resolve(env.DATA_DIR || './data');
@@ -75,6 +83,7 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
     mqttUrl: textFrom(env, 'MQTT_URL'),
     mqttClientId: textFrom(env, 'MQTT_CLIENT_ID') ?? 'jacketwatch-server',
     mqttDeviceAccounts: deviceAccountsFrom(env),
+    mqttSharedGroup: sharedGroupFrom(env),
     smtpHost: textFrom(env, 'SMTP_HOST'),
     smtpUser: textFrom(env, 'SMTP_USER'),
     smtpPass: textFrom(env, 'SMTP_PASS'),

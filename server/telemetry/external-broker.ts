@@ -17,6 +17,8 @@ import type { BrokerState } from './types';
 export interface ExternalSubscriberOptions {
   url: string;
   clientId: string;
+  /** MQTT_SHARED_GROUP: `$share/<group>/...`, the broker hands each message to one server of the group. */
+  sharedGroup?: string | null;
   log: Logger;
   ingest(deviceId: number | null, engineId: number, payload: Buffer, done: () => void, readMore?: () => void): void;
 }
@@ -84,7 +86,8 @@ export async function startExternalSubscriber(opts: ExternalSubscriberOptions): 
     lastLogged = '';
     state.retryInMs = RETRY_MIN_MS;
     client.options.reconnectPeriod = RETRY_MIN_MS;
-    client.subscribe(`${TOPIC_ROOT}/+/telemetry`, { qos: 1 }, (err) => {
+    const topic = `${TOPIC_ROOT}/+/telemetry`;
+    client.subscribe(opts.sharedGroup ? `$share/${opts.sharedGroup}/${topic}` : topic, { qos: 1 }, (err) => {
       if (err) opts.log.error('external broker: subscribe failed', err);
       else opts.log.info(`external broker: subscribed at ${opts.url.replace(/\/\/[^@]*@/, '//')}`);
     });

@@ -138,7 +138,7 @@ export async function startTelemetry(deps: TelemetryDeps, options: TelemetryOpti
   let mqttPort: number | null = null;
   let brokerState: () => BrokerState | null = () => null;
   if (config.mqttUrl) {
-    const ext = await startExternalSubscriber({ url: config.mqttUrl, clientId: config.mqttClientId, log, ingest });
+    const ext = await startExternalSubscriber({ url: config.mqttUrl, clientId: config.mqttClientId, sharedGroup: config.mqttSharedGroup, log, ingest });
     brokerState = ext.state;
     mqtt = ext;
   } else {

@@ -159,3 +159,29 @@ itBroker("the server's own credentials refused: degraded with the broker's reaso
     fs.rmSync(other.dataDir, { recursive: true, force: true });
   }
 });
+
+itBroker('two servers in one shared-subscription group on one database: each message is taken by one of them, every reading stored once', async () => {
+  await server.stop('SIGKILL');
+  const shared = { ...env, MQTT_SHARED_GROUP: 'jw' };
+  const a = await startServerProcess({ dataDir, group: true, env: { ...shared, MQTT_CLIENT_ID: 'jw-server-a' } });
+  const b = await startServerProcess({ dataDir, group: true, env: { ...shared, MQTT_CLIENT_ID: 'jw-server-b' } });
+  server = a; // stopped by afterAll
+  try {
+    for (const s of [a, b]) await waitFor('connected', s.health, (h) => h.broker?.connected === true);
+    const d = devices[0];
+    const before = await stored(d.engineId);
+    const c = await connect(d.username, d.secret);
+    const N = 200;
+    const t0 = Date.now() - 20_000;
+    for (let i = 0; i < N; i++) await c.publishAsync(telemetryTopic(d.engineId), sample(t0 + i * 10), { qos: 1 });
+    c.end(true);
+    await waitFor('every reading stored', () => stored(d.engineId), (n) => n === before + N);
+    const [ha, hb] = [await a.health(), await b.health()];
+    // the broker handed each message to one server only: nothing arrived twice, both took a share
+    expect(ha.ingest.received + hb.ingest.received).toBe(N);
+    expect(ha.ingest.duplicate + hb.ingest.duplicate).toBe(0);
+    expect(Math.min(ha.ingest.received, hb.ingest.received)).toBeGreaterThan(0);
+  } finally {
+    await b.stop('SIGKILL');
+  }
+});
