@@ -36,6 +36,18 @@ describe('SQLite connection pragmas', () => {
   });
 });
 
+describe('database errors in the log', () => {
+  it('carry the database message and the SQL (Sequelize puts the call site, not the message, in the stack)', async () => {
+    const { describeError } = await import('../../server/logger');
+    const err = await t.ctx.sequelize.query('SELECT no_such_column FROM readings').then(() => null, (e: Error) => e);
+    expect(err).not.toBeNull();
+    const text = describeError(err!);
+    // SQLite: "no such column: no_such_column"; PostgreSQL: 'column "no_such_column" does not exist'
+    expect(text.split('\n')[0]).toMatch(/^SequelizeDatabaseError: .*no_such_column/);
+    expect(text).toContain('sql: SELECT no_such_column FROM readings');
+  });
+});
+
 describe('migration 0001-core', () => {
   sqliteOnly('creates exactly the core tables and records itself', async () => {
     const rows = await t.ctx.sequelize.query<{ name: string }>(`SELECT name FROM sqlite_master WHERE type = 'table' AND name NOT LIKE 'sqlite_%'`, { type: QueryTypes.SELECT });
