@@ -1,7 +1,7 @@
 /**
- * `npm test`: every part in turn (jest, component tests, end-to-end), each in its own process group,
- * with its duration printed at the end; exits non-zero when any part failed. A part that fails does not
- * stop the others, so one run shows every failure.
+ * `npm test`: every part in turn (jest, the server tests again on PostgreSQL, component tests, end-to-end),
+ * each in its own process group, with its duration printed at the end; exits non-zero when any part failed.
+ * A part that fails does not stop the others, so one run shows every failure.
  */
 import { spawn } from 'node:child_process';
 
@@ -12,6 +12,7 @@ interface Part {
 
 const PARTS: Part[] = [
   { name: 'unit and server (jest)', script: 'test:unit' },
+  { name: 'server on PostgreSQL (jest, throwaway cluster)', script: 'test:unit:pg' },
   { name: 'components (ng test)', script: 'test:components' },
   { name: 'end-to-end (Chromium)', script: 'test:e2e' },
 ];

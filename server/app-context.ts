@@ -4,6 +4,7 @@ import type { TokenService } from './auth/tokens';
 import type { Config } from './config';
 import type { Logger } from './logger';
 import type { Models } from './models';
+import type { DeviceAccounts } from './telemetry/broker-accounts';
 import type { Telemetry } from './telemetry/types';
 
 /** What routes and services need; one per running server (app.locals.ctx). */
@@ -14,7 +15,9 @@ export interface AppContext {
   models: Models;
   tokens: TokenService;
   /** Set once telemetry has started; before that every engine reads as having no data. */
-  telemetry: Pick<Telemetry, 'liveState' | 'counters'> | null;
+  telemetry: (Pick<Telemetry, 'liveState' | 'counters'> & Partial<Pick<Telemetry, 'brokerState'>>) | null;
+  /** Device accounts in the external broker (MQTT_DEVICE_ACCOUNTS=dynsec); absent otherwise. */
+  deviceAccounts?: DeviceAccounts | null;
   startedAt: number;
   /** Ends sessions and device connections at once on revoke, rotate, disable, role/site/password change. */
   access?: AccessEvents;

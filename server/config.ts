@@ -11,6 +11,10 @@ export interface Config {
   mqttUrl: string | null;
   /** Client id at the external broker: fixed, so its persistent session (unacked messages) survives a restart. */
   mqttClientId: string;
+  /** `dynsec`: device accounts are kept in the external broker's dynamic-security plugin; null: the broker's own business. */
+  mqttDeviceAccounts: 'dynsec' | null;
+  /** Several servers: subscribe as members of this MQTT v5 shared-subscription group, so each message goes to one. */
+  mqttSharedGroup: string | null;
   /** When set, send mail to this relay instead of the local mail catcher. */
   smtpHost: string | null;
   smtpUser: string | null;
@@ -34,6 +38,10 @@ export interface Config {
   mqttTls: { certFile: string; keyFile: string; port: number } | null;
   /** Express 'trust proxy': false (default) ignores X-Forwarded-For; set only behind your own reverse proxy. */
   trustProxy: boolean | number | string;
+  /** PostgreSQL: drop months of raw readings that ended longer ago than this (RAW_RETENTION_DAYS; rollups stay); null keeps all. */
+  readingsRetentionDays: number | null;
+  /** JWT signing secret shared by several servers; null: generated once into DATA_DIR/jwt-secret. */
+  jwtSecret: string | null;
 }
 
 function intFrom(env: NodeJS.ProcessEnv, name: string, fallback: number): number {
@@ -65,10 +73,30 @@ function trustProxyFrom(raw: string | undefined): boolean | number | string {
   return raw;
 }
 
+function deviceAccountsFrom(env: NodeJS.ProcessEnv): 'dynsec' | null {
+  const raw = textFrom(env, 'MQTT_DEVICE_ACCOUNTS');
+  if (raw === null) return null;
+  if (raw !== 'dynsec') throw new Error(`MQTT_DEVICE_ACCOUNTS must be "dynsec" or empty, got "${raw}"`);
+  return raw;
+}
+
+function secretFrom(env: NodeJS.ProcessEnv, name: string): string | null {
+  const raw = textFrom(env, name);
+  if (raw !== null && raw.length < 32) throw new Error(`${name} must be at least 32 characters (a random string, e.g. openssl rand -base64 48)`);
+  return raw;
+}
+
+function sharedGroupFrom(env: NodeJS.ProcessEnv): string | null {
+  const raw = textFrom(env, 'MQTT_SHARED_GROUP');
+  if (raw !== null && !/^[A-Za-z0-9_-]{1,64}$/.test(raw)) throw new Error(`MQTT_SHARED_GROUP must be 1-64 letters, digits, - or _, got "${raw}"`);
+  return raw;
+}
+
 export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
   const port = intFrom(env, 'PORT', 3000);
   const dataDir = path.resolve(env.DATA_DIR || './data');
   const level = (env.LOG_LEVEL || 'info') as Config['logLevel'];
+  const rawRetention = countFrom(env, 'RAW_RETENTION_DAYS', 400, 0, 100_000);
   return {
     port,
     mqttPort: intFrom(env, 'MQTT_PORT', 1883),
@@ -77,6 +105,8 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
     databaseUrl: env.DATABASE_URL || `sqlite:${path.join(dataDir, 'jacketwatch.sqlite')}`,
     mqttUrl: textFrom(env, 'MQTT_URL'),
     mqttClientId: textFrom(env, 'MQTT_CLIENT_ID') ?? 'jacketwatch-server',
+    mqttDeviceAccounts: deviceAccountsFrom(env),
+    mqttSharedGroup: sharedGroupFrom(env),
     smtpHost: textFrom(env, 'SMTP_HOST'),
     smtpUser: textFrom(env, 'SMTP_USER'),
     smtpPass: textFrom(env, 'SMTP_PASS'),
@@ -85,7 +115,9 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
     publicUrl: (env.PUBLIC_URL || `http://localhost:${port}`).replace(/\/$/, ''),
     production: env.NODE_ENV === 'production',
     logLevel: ['debug', 'info', 'warn', 'error'].includes(level) ? level : 'info',
-    rawRetentionDays: countFrom(env, 'RAW_RETENTION_DAYS', 400, 0, 100_000),
+    rawRetentionDays: rawRetention,
+    // PostgreSQL drops whole months past the same retention (the batched sweep removes the rest)
+    readingsRetentionDays: rawRetention > 0 ? rawRetention : null,
     retentionBatch: countFrom(env, 'RETENTION_BATCH', 4000, 1, 1_000_000),
     retentionPauseMs: countFrom(env, 'RETENTION_PAUSE_MS', 100, 0, 60_000),
     retentionEveryMs: countFrom(env, 'RETENTION_EVERY_S', 3600, 1, 7 * 86_400) * 1000,
@@ -95,5 +127,7 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
     mqttTls: env.MQTT_TLS_CERT && env.MQTT_TLS_KEY
       ? { certFile: path.resolve(env.MQTT_TLS_CERT), keyFile: path.resolve(env.MQTT_TLS_KEY), port: intFrom(env, 'MQTT_TLS_PORT', 8883) }
       : null,
+    
+    jwtSecret: secretFrom(env, 'JWT_SECRET'),
   };
 }

@@ -2,7 +2,7 @@ import fs from 'node:fs';
 import http from 'node:http';
 import type { AddressInfo } from 'node:net';
 import type { Express } from 'express';
-import type { Sequelize } from 'sequelize';
+import { Op, type Sequelize } from 'sequelize';
 import type { AppContext } from './app-context';
 import { createApp, type AppOptions } from './app';
 import { restrictDataFiles, sqliteFileOf } from './data-files';
@@ -12,6 +12,7 @@ import { loadJwtSecret } from './auth/jwt-secret';
 import { createTokenService } from './auth/tokens';
 import type { Config } from './config';
 import { migrate } from './db/migrate';
+import { startReadingPartitionUpkeep } from './db/reading-partitions';
 import { createSequelize } from './db/sequelize';
 import { createLogger, type Logger } from './logger';
 import { initModels, type Models } from './models';
@@ -20,6 +21,7 @@ import { startRunHoursCounting } from './services/coolant';
 import { siteOfEngineLookup } from './services/engines';
 import { startRetention, type Retention } from './services/retention';
 import { siteScopeForUser } from './services/site-access';
+import { createDynsecAccounts } from './telemetry/broker-accounts';
 import { startTelemetry } from './telemetry';
 import type { Telemetry } from './telemetry/types';
 
@@ -52,10 +54,18 @@ export async function startServer(config: Config, opts: StartOptions = {}): Prom
   const sequelize = createSequelize(config, log);
   const applied = await migrate(sequelize, log);
   if (applied.length) log.info(`migrations applied: ${applied.join(', ')}`);
+  const partitions = startReadingPartitionUpkeep(sequelize, log, config.readingsRetentionDays);
+  await partitions.ready;
   const models = initModels(sequelize);
-  const tokens = createTokenService(loadJwtSecret(config.dataDir));
+  const tokens = createTokenService(config.jwtSecret ?? loadJwtSecret(config.dataDir));
   const access = new AccessEvents();
   const ctx: AppContext = { config, log, sequelize, models, tokens, telemetry: null, startedAt: Date.now(), access };
+  if (config.mqttUrl && config.mqttDeviceAccounts === 'dynsec') {
+    ctx.deviceAccounts = createDynsecAccounts({
+      url: config.mqttUrl, clientId: `${config.mqttClientId}-accounts`, log,
+      revokedUsernames: async () => (await models.Device.findAll({ where: { revokedAt: { [Op.ne]: null } }, attributes: ['username'] })).map((d) => d.username),
+    });
+  }
   const alarms = createAlarmFeature(ctx);
   const app = createApp(ctx, { ...opts, extraRouters: [...(opts.extraRouters ?? []), ...alarms.routers] });
   const httpServer = http.createServer(app);
@@ -90,7 +100,9 @@ export async function startServer(config: Config, opts: StartOptions = {}): Prom
   const stop = () =>
     (stopping ??= (async () => {
       await retention.stop();
+      partitions.stop();
       await telemetry.stop();
+      await ctx.deviceAccounts?.close();
       await alarms.stop();
       await stopRunHours();
       await new Promise<void>((resolve) => {

@@ -36,6 +36,13 @@ export interface Outbox {
   stop(): Promise<void>;
 }
 
+/**
+ * Several servers share one outbox: a message is sent by the one whose conditional update moves its
+ * next attempt this far ahead (a lease); the others see it changed and leave it. If that server dies
+ * mid-send, the message is due again once the lease ends.
+ */
+export const CLAIM_MS = 120_000;
+
 /** Exponential back-off: base, 2 base, 4 base, ... at most max. */
 export function retryDelayMs(attempts: number, baseMs: number, maxMs: number): number {
   return Math.min(maxMs, baseMs * 2 ** Math.max(0, attempts - 1));
@@ -81,7 +88,17 @@ export function startOutbox(opts: OutboxOptions): Outbox {
   let again = false;
   let stopped = false;
 
+  /** True when this sender took the message: still unsent and untouched since it was read. */
+  async function claim(msg: OutboxMessage): Promise<boolean> {
+    const [taken] = await model.update(
+      { nextAttemptAt: new Date(Date.now() + CLAIM_MS) },
+      { where: { id: msg.id, sentAt: null, nextAttemptAt: msg.nextAttemptAt } },
+    );
+    return taken === 1;
+  }
+
   async function sendOne(msg: OutboxMessage): Promise<void> {
+    if (!(await claim(msg))) return;
     try {
       if (!msg.messageId) await msg.update({ messageId: newMessageId(config.mailFrom) });
       await transport.sendMail({
@@ -145,9 +162,13 @@ export function startOutbox(opts: OutboxOptions): Outbox {
     const asked = new Date();
     for (;;) {
       await startDue();
-      if (!inFlight.size || stopped) return;
-      await Promise.all([...inFlight.values()]);
-      // a sent message has sentAt, a failed one a later nextAttemptAt: none left means each was tried
+      if (stopped) return;
+      // a finished send starts the next due one: wait until nothing is on its way any more
+      if (inFlight.size) {
+        await Promise.all([...inFlight.values()]);
+        continue;
+      }
+      // a sent message has sentAt, a failed or claimed one a later nextAttemptAt: none left means each was tried
       if (!(await model.count({ where: { sentAt: null, nextAttemptAt: { [Op.lte]: asked } } }))) return;
     }
   }

@@ -33,11 +33,13 @@ export function devicesRouter(ctx: AppContext): Router {
   });
   r.post('/devices', async (req, res) => {
     const { device, secret } = await createDevice(ctx.models, parse(createBody, req.body));
+    await ctx.deviceAccounts?.setDevice(device.username, secret, device.engineId);
     res.status(201).json({ ...device.toJSON(), secret });
   });
   r.post('/devices/:id/rotate', async (req, res) => {
     const { device, secret } = await rotateDevice(ctx.models, parseId(req.params));
     ctx.access?.deviceChanged(device.id); // the old secret and its connections end now
+    await ctx.deviceAccounts?.setDevice(device.username, secret, device.engineId);
     res.json({ ...device.toJSON(), secret });
   });
   r.put('/devices/:id/metric-map', async (req, res) => {
@@ -46,6 +48,8 @@ export function devicesRouter(ctx: AppContext): Router {
   r.post('/devices/:id/revoke', async (req, res) => {
     const device = await revokeDevice(ctx.models, parseId(req.params));
     ctx.access?.deviceChanged(device.id);
+    // stored first: if the broker is away now, the revoke is applied again when it is back
+    await ctx.deviceAccounts?.removeDevice(device.username);
     res.json(device);
   });
   return r;

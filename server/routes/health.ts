@@ -10,8 +10,11 @@ export function healthRouter(ctx: AppContext): Router {
   const r = Router();
   r.get('/health', (_req, res) => {
     const c = ctx.telemetry?.counters() ?? null;
+    const broker = ctx.telemetry?.brokerState?.() ?? null;
     res.json({
-      status: 'ok',
+      // degraded: up, but readings from the external broker are not arriving
+      status: broker && !broker.connected ? 'degraded' : 'ok',
+      ...(broker ? { broker } : {}),
       uptimeS: Math.round((Date.now() - ctx.startedAt) / 1000),
       version: VERSION,
       ingest: c

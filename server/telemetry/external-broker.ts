@@ -12,10 +12,13 @@
 import mqtt from 'mqtt';
 import { parseEngineTopic, TOPIC_ROOT } from '../../shared/topics';
 import type { Logger } from '../logger';
+import type { BrokerState } from './types';
 
 export interface ExternalSubscriberOptions {
   url: string;
   clientId: string;
+  /** MQTT_SHARED_GROUP: `$share/<group>/...`, the broker hands each message to one server of the group. */
+  sharedGroup?: string | null;
   log: Logger;
   ingest(deviceId: number | null, engineId: number, payload: Buffer, done: () => void, readMore?: () => void): void;
 }
@@ -25,8 +28,30 @@ const ACK_LATER = Object.assign(new Error('acknowledged after commit'), { code: 
 
 type PubackSender = { _sendPacket?(packet: { cmd: 'puback'; messageId: number }, cb?: () => void): void };
 
-export async function startExternalSubscriber(opts: ExternalSubscriberOptions): Promise<{ close(): Promise<void> }> {
-  const client = mqtt.connect(opts.url, { clientId: opts.clientId, clean: false, reconnectPeriod: 2000 });
+/** Reconnect back-off: 1 s doubling to 30 s; back to 1 s once connected. */
+export const RETRY_MIN_MS = 1000;
+export const RETRY_MAX_MS = 30_000;
+
+export async function startExternalSubscriber(opts: ExternalSubscriberOptions): Promise<{ close(): Promise<void>; state(): BrokerState }> {
+  // refused credentials are retried too (mqtt.js gives up on a refused CONNACK unless told otherwise)
+  const client = mqtt.connect(opts.url, { clientId: opts.clientId, clean: false, reconnectPeriod: RETRY_MIN_MS, reconnectOnConnackError: true });
+  const state: BrokerState = { connected: false, lastError: 'connecting', retryInMs: RETRY_MIN_MS, since: new Date().toISOString() };
+  const change = (connected: boolean, lastError: string | null) => {
+    if (state.connected !== connected) state.since = new Date().toISOString();
+    state.connected = connected;
+    state.lastError = lastError;
+  };
+  let lastLogged = '';
+  client.on('close', () => {
+    if (state.connected) {
+      change(false, 'connection lost');
+      opts.log.warn('external broker: connection lost, retrying');
+    } else {
+      // one more failed attempt: wait longer before the next
+      state.retryInMs = Math.min(RETRY_MAX_MS, state.retryInMs * 2);
+    }
+    client.options.reconnectPeriod = state.retryInMs;
+  });
   // mqtt.js sends the PUBACK when handleMessage calls back
   const sender = client as unknown as PubackSender;
   client.handleMessage = (packet, callback) => {
@@ -50,12 +75,22 @@ export async function startExternalSubscriber(opts: ExternalSubscriberOptions): 
       callback();
     }
   };
-  client.on('error', (err) => opts.log.warn('external broker: ' + err.message));
+  client.on('error', (err) => {
+    change(false, err.message);
+    // the same refusal on every retry is logged once, not every few seconds
+    if (err.message !== lastLogged) opts.log.warn(`external broker: ${err.message}; retrying with back-off`);
+    lastLogged = err.message;
+  });
   client.on('connect', () => {
-    client.subscribe(`${TOPIC_ROOT}/+/telemetry`, { qos: 1 }, (err) => {
+    change(true, null);
+    lastLogged = '';
+    state.retryInMs = RETRY_MIN_MS;
+    client.options.reconnectPeriod = RETRY_MIN_MS;
+    const topic = `${TOPIC_ROOT}/+/telemetry`;
+    client.subscribe(opts.sharedGroup ? `$share/${opts.sharedGroup}/${topic}` : topic, { qos: 1 }, (err) => {
       if (err) opts.log.error('external broker: subscribe failed', err);
       else opts.log.info(`external broker: subscribed at ${opts.url.replace(/\/\/[^@]*@/, '//')}`);
     });
   });
-  return { close: () => client.endAsync().then(() => undefined) };
+  return { close: () => client.endAsync().then(() => undefined), state: () => ({ ...state }) };
 }

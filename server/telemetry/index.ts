@@ -19,7 +19,7 @@ import { DEVICE_BY_USERNAME_SQL } from './sql';
 import { startExternalSubscriber } from './external-broker';
 import { SparkplugHost, type SparkplugIdentity } from './sparkplug/host';
 import { readNodeRecords } from './sparkplug/records';
-import type { AcceptedReading, Telemetry, TelemetryDeps } from './types';
+import type { AcceptedReading, BrokerState, Telemetry, TelemetryDeps } from './types';
 
 export interface TelemetryOptions {
   highWater?: number;
@@ -168,8 +168,11 @@ export async function startTelemetry(deps: TelemetryDeps, options: TelemetryOpti
 
   let mqtt: Closable;
   let mqttPort: number | null = null;
+  let brokerState: () => BrokerState | null = () => null;
   if (config.mqttUrl) {
-    mqtt = await startExternalSubscriber({ url: config.mqttUrl, clientId: config.mqttClientId, log, ingest });
+    const ext = await startExternalSubscriber({ url: config.mqttUrl, clientId: config.mqttClientId, sharedGroup: config.mqttSharedGroup, log, ingest });
+    brokerState = ext.state;
+    mqtt = ext;
   } else {
     // required lazily so jest (which cannot load aedes) can still import this module's types
     // eslint-disable-next-line @typescript-eslint/no-require-imports
@@ -200,6 +203,7 @@ export async function startTelemetry(deps: TelemetryDeps, options: TelemetryOpti
     mqttPort,
     counters: () => ({ ...counters.snapshot(buffer.size), sparkplug: sparkplug.counters() }),
     rejectsByDevice: () => activity.rejectsByDevice(),
+    brokerState: () => brokerState(),
     onReadings: (listener) => { listeners.push(listener); },
     onLost: (listener) => { lostListeners.push(listener); },
     emit: (room, event, payload) => livePush.emit(room, event, payload),

@@ -87,4 +87,15 @@ export interface Telemetry {
   emit(room: string, event: string, payload: unknown): void;
   /** Flush the buffer and close broker and sockets. */
   stop(): Promise<void>;
+  /** The external broker connection (MQTT_URL); null with the embedded broker. */
+  brokerState(): BrokerState | null;
+}
+
+export interface BrokerState {
+  connected: boolean;
+  /** Why it is not connected (refused credentials, connection lost); null while connected. */
+  lastError: string | null;
+  /** Next reconnect attempt in ms (doubles on each failure, capped). */
+  retryInMs: number;
+  since: string;
 }

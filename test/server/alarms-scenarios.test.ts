@@ -24,6 +24,7 @@ import path from 'node:path';
 import { io as ioClient, type Socket } from 'socket.io-client';
 import { freePort, waitFor } from './support/alarm-db';
 import { spawnInGroup, stopGroup } from './support/process-group';
+import { createTestDatabase, type TestDatabase } from './support/test-db';
 
 const ROOT = path.resolve(__dirname, '../..');
 const TSX = path.join(ROOT, 'node_modules/.bin/tsx');
@@ -39,6 +40,7 @@ let sim: ChildProcess | null = null;
 let base: string;
 let controlBase: string;
 let env: NodeJS.ProcessEnv;
+let database: TestDatabase | null = null;
 
 function run(args: string[], name: string): ChildProcess {
   const out = fs.openSync(path.join(dataDir, `${name}.log`), 'a');
@@ -85,8 +87,9 @@ beforeAll(async () => {
   const [port, mqttPort, smtpPort, controlPort] = [await freePort(), await freePort(), await freePort(), await freePort()];
   base = `http://127.0.0.1:${port}`;
   controlBase = `http://127.0.0.1:${controlPort}`;
+  database = await createTestDatabase(dataDir);
   env = {
-    ...process.env, PORT: String(port), MQTT_PORT: String(mqttPort), SMTP_PORT: String(smtpPort), DATA_DIR: dataDir,
+    ...process.env, PORT: String(port), MQTT_PORT: String(mqttPort), SMTP_PORT: String(smtpPort), DATA_DIR: dataDir, DATABASE_URL: database.url,
     LOG_LEVEL: 'info', PUBLIC_URL: base, ESCALATE_AFTER_S: String(ESCALATE_AFTER_S), NOTIFY_MIN_PRIORITY: 'low',
   };
   const seeded = spawnSync(TSX, ['seeds/cli.ts'], { cwd: ROOT, env, encoding: 'utf8' });
@@ -103,6 +106,7 @@ afterAll(async () => {
   socket?.close();
   await stopChild(sim);
   await stopChild(server);
+  if (!process.env.KEEP_DATA) await database?.drop();
   if (process.env.KEEP_DATA) process.stdout.write(`data kept in ${dataDir}\n`);
   else fs.rmSync(dataDir, { recursive: true, force: true });
 });

@@ -40,7 +40,7 @@ const rejections = async (deviceId: number) =>
 
 beforeAll(async () => {
   server = await startServerProcess();
-  db = new Db(server.dbFile);
+  db = new Db(server.databaseUrl);
   fleet = await seedFleet(db, 6, 'bt');
 });
 
@@ -212,7 +212,7 @@ test('payload limits agree: the largest batch the contract allows is accepted; o
 
 test('a CONNECT declaring a 200 MB packet is closed at once, before authentication, and counted', async () => {
   const now = new Date().toISOString();
-  const adminId = await db.run(`INSERT INTO users (email, name, password_hash, role, disabled, created_at, updated_at) VALUES (?, ?, ?, 'admin', 0, ?, ?)`,
+  const adminId = await db.run(`INSERT INTO users (email, name, password_hash, role, disabled, created_at, updated_at) VALUES (?, ?, ?, 'admin', FALSE, ?, ?)`,
     ['broker-admin@example.test', 'Broker admin', bcrypt.hashSync('unused-secret-1', 4), now, now]);
   const token = createTokenService(loadJwtSecret(server.dataDir)).sign({ id: adminId, email: 'broker-admin@example.test', role: 'admin' });
   const counters = async (): Promise<any> => ((await (await fetch(`${server.url}/api/admin/ingest`, { headers: { authorization: `Bearer ${token}` } })).json()) as any).counters;

@@ -56,7 +56,7 @@ test('external broker: SIGKILL of the server mid-flood loses nothing the broker 
   server = await startServerProcess({ dataDir, group: true, env });
   await waitFor('server subscribed', () => subscriptions() === 1, 30_000, broker.out);
   const ports = server.ports;
-  const seed = new Db(server.dbFile);
+  const seed = new Db(server.databaseUrl);
   const [device] = await seedFleet(seed, 1, 'ext');
   await seed.close();
 
@@ -67,7 +67,7 @@ test('external broker: SIGKILL of the server mid-flood loses nothing the broker 
     messages: MESSAGES, samplesPerMsg: SAMPLES, baseTs, window: 16, ackFile }) });
   const pubExit = new Promise<number | null>((resolve) => pub.child.once('exit', (code) => resolve(code)));
 
-  const db = new Db(server.dbFile);
+  const db = new Db(server.databaseUrl);
   const count = async () => (await db.get<{ n: number }>('SELECT COUNT(*) AS n FROM readings WHERE engine_id = ?', [device.engineId])).n;
   try {
     await waitFor('a third stored', async () => (await count()) >= (MESSAGES * SAMPLES * 5) / 3, 60_000, count);

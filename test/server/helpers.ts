@@ -15,6 +15,9 @@ import { initModels } from '../../server/models';
 import type { Role } from '../../server/models/user';
 import { createUser } from '../../server/services/users';
 import type { IngestCounters, LiveState } from '../../server/telemetry/types';
+import { createTestDatabase } from './support/test-db';
+
+export { DB_KIND, isPg } from './support/test-db';
 
 export const PASSWORD = 'correct-horse-battery';
 export const ROLE_LIST: Role[] = ['admin', 'planner', 'technician', 'operator'];
@@ -42,10 +45,11 @@ export interface TestApp {
   close(): Promise<void>;
 }
 
-/** A real SQLite file in a fresh DATA_DIR, migrated, with one signed-in user per role. */
+/** A real database (SQLite file in a fresh DATA_DIR, or a fresh PostgreSQL database with JW_TEST_PG_URL), migrated, with one signed-in user per role. */
 export async function makeTestApp(opts: { signIn?: boolean } = {}): Promise<TestApp> {
   const dataDir = fs.mkdtempSync(path.join(os.tmpdir(), 'jw-server-'));
-  const config = loadConfig({ DATA_DIR: dataDir, PORT: '0', MQTT_PORT: '0', SMTP_PORT: '0', LOG_LEVEL: 'error' });
+  const db = await createTestDatabase(dataDir);
+  const config = loadConfig({ DATA_DIR: dataDir, DATABASE_URL: db.url, PORT: '0', MQTT_PORT: '0', SMTP_PORT: '0', LOG_LEVEL: 'error' });
   const log = createLogger('error');
   const sequelize = createSequelize(config, log);
   await migrate(sequelize);
@@ -67,6 +71,7 @@ export async function makeTestApp(opts: { signIn?: boolean } = {}): Promise<Test
     app, ctx, dataDir, ...out,
     async close() {
       await sequelize.close();
+      await db.drop();
       fs.rmSync(dataDir, { recursive: true, force: true });
     },
   };

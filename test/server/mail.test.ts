@@ -92,6 +92,7 @@ describe('outbox', () => {
       const rows = [];
       for (let n = 0; n < 9; n++) rows.push(await outbox.enqueue({ to: 'planner@jacketwatch.test', subject: `batch ${n}`, text: `n ${n}` }));
       await outbox.flush();
+      console.log(JSON.stringify((await m.OutboxMessage.findAll()).map((o) => [o.id, o.subject, o.sentAt, o.nextAttemptAt, o.attempts, o.lastError])));
       for (const r of rows) {
         await r.reload();
         expect(r.sentAt).not.toBeNull();
@@ -173,6 +174,25 @@ describe('outbox', () => {
       await outbox.stop();
       for (const s of sockets) s.destroy();
       await new Promise<void>((resolve) => relay.close(() => resolve()));
+      await catcher.stop();
+    }
+  });
+
+  it('two senders on one outbox (two servers): each message goes out once', async () => {
+    const catcher = await startMailCatcher({ port: 0, model: m.CaughtMail, log: quietLog });
+    const a = startOutbox({ config: config(catcher.port()), model: m.OutboxMessage, log: quietLog, pollMs: 60_000 });
+    const b = startOutbox({ config: config(catcher.port()), model: m.OutboxMessage, log: quietLog, pollMs: 60_000 });
+    try {
+      const subjects = Array.from({ length: 12 }, (_, i) => `shared outbox ${i}`);
+      // written directly, so that neither sender has started on them before both look
+      await m.OutboxMessage.bulkCreate(subjects.map((subject) => ({ to: 'tech@jacketwatch.test', subject, text: 'once', nextAttemptAt: new Date() })));
+      await Promise.all([a.flush(), b.flush(), a.flush(), b.flush()]);
+      await waitFor(async () => ((await m.OutboxMessage.count({ where: { subject: subjects, sentAt: null } })) === 0 ? true : null), 10000);
+      const caught = await m.CaughtMail.findAll({ where: { subject: subjects } });
+      expect(caught.map((c) => c.subject).sort()).toEqual([...subjects].sort());
+    } finally {
+      await a.stop();
+      await b.stop();
       await catcher.stop();
     }
   });

@@ -135,10 +135,12 @@ export class ReadingHistory {
   /** One query: per channel and per spacing window, the last good reading (portable SQL). */
   private async load(engineId: number, now: number): Promise<void> {
     const codes = GATE_CHANNELS.map((k) => CHANNELS[k].code);
+    // timestamps are milliseconds: 64-bit on both databases (PostgreSQL's INTEGER is 32-bit)
+    const int = this.sequelize!.getDialect() === 'postgres' ? 'BIGINT' : 'INTEGER';
     const rows = await this.sequelize!.query<{ channel: number; ts: number; value: number }>(
       `SELECT channel, MAX(ts) AS ts, AVG(value) AS value FROM readings
-        WHERE engine_id = ? AND channel IN (${codes.map(() => '?').join(',')}) AND quality = 0 AND ts >= CAST(? AS INTEGER)
-        GROUP BY channel, CAST(ts / ? AS INTEGER) ORDER BY ts`,
+        WHERE engine_id = ? AND channel IN (${codes.map(() => '?').join(',')}) AND quality = 0 AND ts >= CAST(? AS ${int})
+        GROUP BY channel, CAST(ts / ? AS ${int}) ORDER BY ts`,
       { replacements: [engineId, ...codes, now - this.keepMs, this.spacingMs], type: QueryTypes.SELECT, logging: false },
     );
     const byCode = new Map(GATE_CHANNELS.map((k) => [CHANNELS[k].code, k]));

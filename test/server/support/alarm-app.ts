@@ -23,6 +23,7 @@ import { createAlarmFeature, type AlarmFeature } from '../../../server/services/
 import { loadAlarmSettings, type AlarmSettings } from '../../../server/services/alarms/alarm-settings';
 import { createUser } from '../../../server/services/users';
 import type { AcceptedReading } from '../../../server/telemetry/types';
+import { createTestDatabase } from './test-db';
 
 export const PASSWORD = 'correct-horse-battery';
 const ROLES: Role[] = ['admin', 'planner', 'technician', 'operator'];
@@ -44,7 +45,8 @@ export interface AlarmApp {
 
 export async function makeAlarmApp(settings: Partial<AlarmSettings> = {}): Promise<AlarmApp> {
   const dataDir = fs.mkdtempSync(path.join(os.tmpdir(), 'jw-alarmapp-'));
-  const config = loadConfig({ DATA_DIR: dataDir, PORT: '0', MQTT_PORT: '0', SMTP_PORT: '0', LOG_LEVEL: 'error', PUBLIC_URL: 'http://jacketwatch.test' });
+  const db = await createTestDatabase(dataDir);
+  const config = loadConfig({ DATA_DIR: dataDir, DATABASE_URL: db.url, PORT: '0', MQTT_PORT: '0', SMTP_PORT: '0', LOG_LEVEL: 'error', PUBLIC_URL: 'http://jacketwatch.test' });
   const log = createLogger('error');
   const sequelize = createSequelize(config, log);
   await migrate(sequelize);
@@ -87,6 +89,7 @@ export async function makeAlarmApp(settings: Partial<AlarmSettings> = {}): Promi
     async close() {
       await feature.stop();
       await sequelize.close();
+      await db.drop();
       fs.rmSync(dataDir, { recursive: true, force: true });
     },
   };

@@ -1,4 +1,4 @@
-/** A real SQLite file in a temp folder with every migration applied, for the alarm and mail tests. */
+/** A real database (SQLite file in a temp folder, or a fresh PostgreSQL database with JW_TEST_PG_URL) with every migration applied, for the alarm and mail tests. */
 import fs from 'node:fs';
 import net from 'node:net';
 import os from 'node:os';
@@ -7,6 +7,7 @@ import type { Sequelize } from 'sequelize';
 import { createLogger } from '../../../server/logger';
 import { createSequelize } from '../../../server/db/sequelize';
 import { migrate } from '../../../server/db/migrate';
+import { createTestDatabase } from './test-db';
 
 export const quietLog = createLogger('error', 'test');
 
@@ -18,13 +19,15 @@ export interface TempDb {
 
 export async function tempDb(prefix = 'jw-alarms-'): Promise<TempDb> {
   const dir = fs.mkdtempSync(path.join(os.tmpdir(), prefix));
-  const sequelize = createSequelize({ databaseUrl: `sqlite:${path.join(dir, 'test.sqlite')}`, logLevel: 'error' }, quietLog);
+  const db = await createTestDatabase(dir, 'test.sqlite');
+  const sequelize = createSequelize({ databaseUrl: db.url, logLevel: 'error' }, quietLog);
   await migrate(sequelize);
   return {
     dir,
     sequelize,
     async close() {
       await sequelize.close();
+      await db.drop();
       fs.rmSync(dir, { recursive: true, force: true });
     },
   };

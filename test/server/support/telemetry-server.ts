@@ -1,6 +1,7 @@
 /**
  * A real Jacketwatch server in a child process (jest cannot load aedes), on random free ports with a
- * fresh DATA_DIR, plus a direct sqlite3 handle on its database file for seeding and checking.
+ * fresh DATA_DIR and its own database (SQLite file, or a fresh PostgreSQL database with JW_TEST_PG_URL),
+ * plus a direct handle on that database for seeding and checking.
  */
 import { spawn, type ChildProcess } from 'node:child_process';
 import fs from 'node:fs';
@@ -9,6 +10,7 @@ import os from 'node:os';
 import path from 'node:path';
 import bcrypt from 'bcryptjs';
 import sqlite3 from 'sqlite3';
+import { Client, createTestDatabase, numericTypes, type PgClient, type TestDatabase } from './test-db';
 
 const ROOT = path.resolve(__dirname, '../../..');
 
@@ -29,6 +31,8 @@ export interface ServerProcess {
   mqttPort: number;
   dataDir: string;
   dbFile: string;
+  /** DATABASE_URL the server runs on (for `new Db(...)`). */
+  databaseUrl: string;
   url: string;
   log(): string;
   health(): Promise<any>;
@@ -63,13 +67,19 @@ const groupGone = (pgid: number): boolean => {
   return true;
 };
 
+/** One database per DATA_DIR, so a restart on the same folder finds its data again (dropped with the test cluster). */
+const databases = new Map<string, TestDatabase>();
+
 export async function startServerProcess(opts: ServerProcessOptions = {}): Promise<ServerProcess> {
   const dataDir = opts.dataDir ?? fs.mkdtempSync(path.join(os.tmpdir(), 'jw-telemetry-'));
+  let database = databases.get(dataDir);
+  if (!database) databases.set(dataDir, (database = await createTestDatabase(dataDir)));
+  const databaseUrl = database.url;
   const ports = opts.ports ?? { port: await freePort(), mqttPort: await freePort(), smtpPort: await freePort() };
   const { port, mqttPort, smtpPort } = ports;
   const child = spawn(process.execPath, [path.join(ROOT, 'node_modules/tsx/dist/cli.mjs'), path.join(ROOT, 'server/main.ts')], {
     cwd: ROOT,
-    env: { ...process.env, PORT: String(port), MQTT_PORT: String(mqttPort), SMTP_PORT: String(smtpPort), DATA_DIR: dataDir, LOG_LEVEL: 'warn', ...opts.env },
+    env: { ...process.env, PORT: String(port), MQTT_PORT: String(mqttPort), SMTP_PORT: String(smtpPort), DATA_DIR: dataDir, DATABASE_URL: databaseUrl, LOG_LEVEL: 'warn', ...opts.env },
     stdio: ['ignore', 'pipe', 'pipe'],
     detached: opts.group !== false,
   });
@@ -90,7 +100,7 @@ export async function startServerProcess(opts: ServerProcessOptions = {}): Promi
     await new Promise((r) => setTimeout(r, 200));
   }
   return {
-    child, port, mqttPort, dataDir, url, dbFile: path.join(dataDir, 'jacketwatch.sqlite'), ports,
+    child, port, mqttPort, dataDir, url, dbFile: path.join(dataDir, 'jacketwatch.sqlite'), databaseUrl, ports,
     log: () => output,
     health,
     stop: async (signal = 'SIGTERM') => {
@@ -107,36 +117,60 @@ export async function startServerProcess(opts: ServerProcessOptions = {}): Promi
   };
 }
 
-/** A small promise wrapper over node-sqlite3 on the server's own file. */
+/**
+ * A small promise wrapper over the server's own database: node-sqlite3 on its file (a path or a `sqlite:` URL),
+ * or one pg connection for a `postgres://` URL. SQL is written with `?` placeholders; on PostgreSQL they become
+ * $1..$n and an INSERT returns its row so `run` can give the new id, as sqlite's lastID does.
+ */
 export class Db {
-  private readonly db: sqlite3.Database;
-  constructor(file: string) {
-    this.db = new sqlite3.Database(file);
+  private readonly db: sqlite3.Database | null = null;
+  private readonly pg: PgClient | null = null;
+  private readonly pgReady: Promise<void> = Promise.resolve();
+  constructor(target: string) {
+    if (/^postgres(ql)?:/.test(target)) {
+      this.pg = new Client({ connectionString: target, types: numericTypes });
+      this.pgReady = this.pg.connect();
+      this.pgReady.catch(() => undefined);
+      return;
+    }
+    this.db = new sqlite3.Database(target.replace(/^sqlite:(\/\/)?/, ''));
     this.db.configure('busyTimeout', 10_000);
   }
+  private async pgQuery(sql: string, params: unknown[]): Promise<any[]> {
+    await this.pgReady;
+    let n = 0;
+    const text = sql.replace(/\?/g, () => `$${++n}`);
+    const insert = /^\s*INSERT\b/i.test(text) && !/\bRETURNING\b/i.test(text);
+    return (await this.pg!.query(insert ? `${text} RETURNING *` : text, params)).rows;
+  }
   all<T = any>(sql: string, params: unknown[] = []): Promise<T[]> {
-    return new Promise((resolve, reject) => this.db.all(sql, params, (err, rows) => (err ? reject(err) : resolve(rows as T[]))));
+    if (this.pg) return this.pgQuery(sql, params);
+    return new Promise((resolve, reject) => this.db!.all(sql, params, (err, rows) => (err ? reject(err) : resolve(rows as T[]))));
   }
   async get<T = any>(sql: string, params: unknown[] = []): Promise<T> {
     return (await this.all<T>(sql, params))[0];
   }
-  run(sql: string, params: unknown[] = []): Promise<number> {
-    return new Promise((resolve, reject) => this.db.run(sql, params, function (err) { if (err) reject(err); else resolve(this.lastID); }));
+  async run(sql: string, params: unknown[] = []): Promise<number> {
+    if (this.pg) return (await this.pgQuery(sql, params)).at(-1)?.id ?? 0;
+    return new Promise((resolve, reject) => this.db!.run(sql, params, function (err) { if (err) reject(err); else resolve(this.lastID); }));
   }
   private readonly prepared = new Map<string, sqlite3.Statement>();
   /** Runs `sql` as a statement prepared once and reused, the way the server's writer does for full batches. */
-  runPrepared(sql: string, params: unknown[]): Promise<void> {
+  async runPrepared(sql: string, params: unknown[]): Promise<void> {
+    if (this.pg) return void (await this.pgQuery(sql, params));
     let stmt = this.prepared.get(sql);
-    if (!stmt) this.prepared.set(sql, (stmt = this.db.prepare(sql)));
+    if (!stmt) this.prepared.set(sql, (stmt = this.db!.prepare(sql)));
     return new Promise((resolve, reject) => stmt!.run(params, (err) => (err ? reject(err) : resolve())));
   }
-  exec(sql: string): Promise<void> {
-    return new Promise((resolve, reject) => this.db.exec(sql, (err) => (err ? reject(err) : resolve())));
+  async exec(sql: string): Promise<void> {
+    if (this.pg) return void (await this.pgQuery(sql, []));
+    return new Promise((resolve, reject) => this.db!.exec(sql, (err) => (err ? reject(err) : resolve())));
   }
   async close(): Promise<void> {
+    if (this.pg) return void (await this.pgReady.then(() => this.pg!.end(), () => undefined));
     for (const stmt of this.prepared.values()) await new Promise<void>((resolve) => stmt.finalize(() => resolve()));
     this.prepared.clear();
-    return new Promise((resolve) => this.db.close(() => resolve()));
+    return new Promise((resolve) => this.db!.close(() => resolve()));
   }
 }
 
@@ -154,7 +188,7 @@ export async function seedFleet(db: Db, count: number, prefix = 'gw'): Promise<S
   for (let i = 0; i < count; i++) {
     const engineId = await db.run(
       `INSERT INTO engines (site_id, name, duty, capacity_l, coolant_family, glycol_type, glycol_percent, cap_pressure_kpa, oil_drain_interval_h, run_hours, safe_open_temp_c, out_of_service, created_at, updated_at)
-       VALUES (?, ?, 'standby', 60, 'conventional', 'ethylene', 50, 100, 250, 0, 50, 0, ?, ?)`, [siteId, `Test engine ${prefix}-${i}`, now, now]);
+       VALUES (?, ?, 'standby', 60, 'conventional', 'ethylene', 50, 100, 250, 0, 50, FALSE, ?, ?)`, [siteId, `Test engine ${prefix}-${i}`, now, now]);
     const username = `${prefix}-${engineId}`;
     const secret = `secret-${prefix}-${i}-x7`;
     const deviceId = await db.run(`INSERT INTO devices (engine_id, username, secret_hash, created_at, updated_at) VALUES (?, ?, ?, ?, ?)`,

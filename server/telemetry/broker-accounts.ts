@@ -1,0 +1,107 @@
+/**
+ * MQTT_URL with MQTT_DEVICE_ACCOUNTS=dynsec: device accounts live in the external broker's dynamic-security
+ * plugin (mosquitto 2), driven over MQTT at $CONTROL/dynamic-security/v1 with the server's own (admin)
+ * credentials. Each engine has a role that may publish and subscribe under its own topics only; each device
+ * is a client with that role. Creating or rotating a device sets its password there (the secret is known
+ * in plain text only at that moment), revoking deletes the client, which the broker disconnects at once.
+ * On every (re)connect the revoked devices are deleted again, so a revoke made while the broker was away
+ * still takes effect.
+ */
+import mqtt from 'mqtt';
+import { TOPIC_ROOT } from '../../shared/topics';
+import type { Logger } from '../logger';
+
+const CONTROL = '$CONTROL/dynamic-security/v1';
+
+export interface DeviceAccounts {
+  /** The device may connect with this secret and publish under its engine's topics. */
+  setDevice(username: string, secret: string, engineId: number): Promise<void>;
+  /** The device is gone from the broker (disconnected if connected). */
+  removeDevice(username: string): Promise<void>;
+  close(): Promise<void>;
+}
+
+interface DynsecResponse { command: string; error?: string }
+type Command = Record<string, unknown> & { command: string };
+
+export const engineRole = (engineId: number) => `jw-engine-${engineId}`;
+
+export function createDynsecAccounts(opts: {
+  url: string;
+  clientId: string;
+  log: Logger;
+  /** Usernames of revoked devices, deleted again on each connect. */
+  revokedUsernames(): Promise<string[]>;
+}): DeviceAccounts {
+  const client = mqtt.connect(opts.url, { clientId: opts.clientId, clean: true, reconnectPeriod: 1000, reconnectOnConnackError: true });
+  client.on('error', (err) => opts.log.warn('device accounts (broker): ' + err.message));
+  // one request at a time: the broker answers in order on one response topic
+  let chain: Promise<unknown> = Promise.resolve();
+  let waiting: ((r: DynsecResponse[]) => void) | null = null;
+  client.on('message', (topic, payload) => {
+    if (topic !== `${CONTROL}/response` || !waiting) return;
+    const w = waiting;
+    waiting = null;
+    try {
+      w((JSON.parse(payload.toString()) as { responses: DynsecResponse[] }).responses ?? []);
+    } catch {
+      w([]);
+    }
+  });
+  const subscribed = new Promise<void>((resolve) => {
+    client.on('connect', () => {
+      client.subscribe(`${CONTROL}/response`, { qos: 1 }, (err) => {
+        if (err) return opts.log.error('device accounts: subscribe failed', err);
+        resolve();
+        void opts.revokedUsernames()
+          .then((names) => Promise.all(names.map((n) => send([{ command: 'deleteClient', username: n }]))))
+          .catch((e) => opts.log.error('device accounts: re-applying revokes failed', e));
+      });
+    });
+  });
+
+  const send = (commands: Command[]): Promise<DynsecResponse[]> => {
+    const run = chain.then(async () => {
+      await subscribed;
+      return new Promise<DynsecResponse[]>((resolve, reject) => {
+        const timer = setTimeout(() => {
+          waiting = null;
+          reject(new Error('the broker did not answer the dynamic-security command within 10 s'));
+        }, 10_000);
+        waiting = (r) => { clearTimeout(timer); resolve(r); };
+        client.publish(CONTROL, JSON.stringify({ commands }), { qos: 1 });
+      });
+    });
+    chain = run.catch(() => undefined);
+    return run;
+  };
+  const failed = (responses: DynsecResponse[], ignore: RegExp) => responses.find((r) => r.error && !ignore.test(r.error));
+
+  return {
+    async setDevice(username, secret, engineId) {
+      const rolename = engineRole(engineId);
+      const prefix = `${TOPIC_ROOT}/${engineId}/#`;
+      const created = await send([
+        { command: 'createRole', rolename, acls: [
+          { acltype: 'publishClientSend', topic: prefix, priority: 0, allow: true },
+          { acltype: 'subscribePattern', topic: prefix, priority: 0, allow: true },
+        ] },
+        { command: 'createClient', username, password: secret, roles: [{ rolename }] },
+      ]);
+      let bad = failed(created, /already exists/i);
+      if (!bad && created.some((r) => r.command === 'createClient' && r.error)) {
+        // an existing client (rotation): new password, same role
+        bad = failed(await send([
+          { command: 'setClientPassword', username, password: secret },
+          { command: 'addClientRole', username, rolename },
+        ]), /already/i);
+      }
+      if (bad) throw new Error(`broker refused ${bad.command}: ${bad.error}`);
+    },
+    async removeDevice(username) {
+      const bad = failed(await send([{ command: 'deleteClient', username }]), /not found/i);
+      if (bad) throw new Error(`broker refused ${bad.command}: ${bad.error}`);
+    },
+    close: () => client.endAsync().then(() => undefined),
+  };
+}
