@@ -139,6 +139,12 @@ describe('coolant: tests, calculators, due list to work order', () => {
     await shot(planner, 'coolant-4-due-list');
 
     await row.getByRole('button', { name: 'Create work order' }).click();
+    // a short dialog first: the kind suggested by the task, then Create
+    const dialog = await openDialog(planner);
+    await dialog.getByRole('heading', { name: /Create work order/ }).waitFor();
+    await shot(planner, 'coolant-4b-create-dialog');
+    await dialog.getByRole('button', { name: 'Create', exact: true }).click();
+    await dialog.waitFor({ state: 'detached' });
     const link = row.getByRole('link', { name: /Work order #\d+ created|Open work order #\d+/ }).first();
     await link.waitFor({ timeout: 15000 });
     const id = numberIn((await link.textContent()) ?? '', '#');
