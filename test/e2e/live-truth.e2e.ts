@@ -53,7 +53,8 @@ describe('live truth (server stopped and back)', () => {
     }, engineName, { timeout: 30000 });
     assert.equal(await enginePage.locator('[data-test=connection-banner]').count(), 0, 'no banner while live');
     // The engine's home below the trend loads when scrolled to: its alarms, due work and last coolant test, with links.
-    await enginePage.locator('.home-placeholder').scrollIntoViewIfNeeded();
+    // (scroll past it to the recent readings below; with a short trend it may already be in view and loaded)
+    await enginePage.getByRole('heading', { name: /Recent readings/ }).scrollIntoViewIfNeeded();
     await enginePage.locator('[data-test=engine-coolant-test] a[href="/engines/1/coolant"]').waitFor({ timeout: 20000 });
     await enginePage.locator('[data-test=engine-alarms] a[href^="/alarms"]').first().waitFor();
     await enginePage.locator('[data-test=engine-due]').filter({ hasNotText: 'Loading…' }).waitFor({ timeout: 20000 });
