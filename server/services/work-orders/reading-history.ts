@@ -158,6 +158,8 @@ export class ReadingHistory {
    */
   private async loadStop(engineId: number): Promise<StopRecord> {
     const code = CHANNELS.engine_speed.code;
+    // timestamps are milliseconds: 64-bit on both databases (PostgreSQL's INTEGER is 32-bit)
+    const int = this.sequelize!.getDialect() === 'postgres' ? 'BIGINT' : 'INTEGER';
     const q = async <T extends object>(sql: string, replacements: unknown[]) =>
       (await this.sequelize!.query<T>(sql, { replacements, type: QueryTypes.SELECT, logging: false }))[0];
     const rolled = await q<{ minute: number | null; n: number }>(
@@ -168,7 +170,7 @@ export class ReadingHistory {
     if (Number(rolled?.n ?? 0) > 0) {
       if (rolled.minute !== null) {
         const row = await q<{ ts: number | null }>(
-          'SELECT MAX(ts) AS ts FROM readings WHERE engine_id = ? AND channel = ? AND quality = 0 AND value > ? AND ts >= CAST(? AS INTEGER) AND ts < CAST(? AS INTEGER)',
+          `SELECT MAX(ts) AS ts FROM readings WHERE engine_id = ? AND channel = ? AND quality = 0 AND value > ? AND ts >= CAST(? AS ${int}) AND ts < CAST(? AS ${int})`,
           [engineId, code, RUNNING_RPM, Number(rolled.minute), Number(rolled.minute) + 60_000],
         );
         lastRunTs = row?.ts === null || row?.ts === undefined ? null : Number(row.ts);
@@ -178,7 +180,7 @@ export class ReadingHistory {
       lastRunTs = row?.ts === null || row?.ts === undefined ? null : Number(row.ts);
     }
     const first = await q<{ ts: number | null }>(
-      'SELECT MIN(ts) AS ts FROM readings WHERE engine_id = ? AND channel = ? AND quality = 0 AND ts > CAST(? AS INTEGER)',
+      `SELECT MIN(ts) AS ts FROM readings WHERE engine_id = ? AND channel = ? AND quality = 0 AND ts > CAST(? AS ${int})`,
       [engineId, code, lastRunTs ?? -1],
     );
     const rec: StopRecord = { lastRunTs, stoppedSinceTs: first?.ts === null || first?.ts === undefined ? null : Number(first.ts) };
