@@ -33,14 +33,3 @@ export function runStateAt(engine: Engine, now: number): RunState {
   if (speed && speed.quality === 0 && Number.isFinite(speed.value)) return speed.value > RUNNING_RPM ? 'running' : 'stopped';
   return engine.runState === 'no-data' ? 'stopped' : engine.runState;
 }
-
-/** "45 s", "12 min", "3 h", "2 d". */
-export function formatAge(ms: number): string {
-  const s = Math.max(0, Math.round(ms / 1000));
-  if (s < 90) return `${s} s`;
-  const min = Math.round(s / 60);
-  if (min < 90) return `${min} min`;
-  const h = Math.round(min / 60);
-  if (h < 48) return `${h} h`;
-  return `${Math.round(h / 24)} d`;
-}
