@@ -8,6 +8,7 @@ import mqtt, { type MqttClient } from 'mqtt';
 import { io as ioClient, type Socket } from 'socket.io-client';
 import { telemetryTopic } from '../../shared/topics';
 import { Db, seedFleet, startServerProcess, type SeededDevice, type ServerProcess } from './support/telemetry-server';
+import { until } from './support/until';
 
 let server: ServerProcess;
 let db: Db;
@@ -23,16 +24,6 @@ const connect = async (username: string, password: string): Promise<MqttClient> 
   return c;
 };
 
-async function until<T>(what: string, fn: () => Promise<T>, ok: (v: T) => boolean, ms = 10_000): Promise<T> {
-  const end = Date.now() + ms;
-  let v = await fn();
-  while (!ok(v)) {
-    if (Date.now() > end) throw new Error(`timed out waiting for ${what}; last value ${JSON.stringify(v)}`);
-    await new Promise((r) => setTimeout(r, 50));
-    v = await fn();
-  }
-  return v;
-}
 
 async function api(method: string, path: string, token: string | null, body?: unknown): Promise<{ status: number; body: any }> {
   const res = await fetch(server.url + path, {
@@ -46,7 +37,7 @@ async function api(method: string, path: string, token: string | null, body?: un
 
 async function addUser(email: string, role: string, password: string): Promise<number> {
   const now = new Date().toISOString();
-  return db.run(`INSERT INTO users (email, name, password_hash, role, disabled, created_at, updated_at) VALUES (?, ?, ?, ?, 0, ?, ?)`,
+  return db.run(`INSERT INTO users (email, name, password_hash, role, disabled, created_at, updated_at) VALUES (?, ?, ?, ?, FALSE, ?, ?)`,
     [email, `Test ${role}`, bcrypt.hashSync(password, 4), role, now, now]);
 }
 
@@ -76,7 +67,7 @@ const countReadings = (engineId: number) => db.get<{ n: number }>('SELECT COUNT(
 
 beforeAll(async () => {
   server = await startServerProcess();
-  db = new Db(server.dbFile);
+  db = new Db(server.databaseUrl);
   fleet = await seedFleet(db, 4, 'ae');
   await addUser('admin@example.test', 'admin', ADMIN_PASSWORD);
   adminToken = await signIn('admin@example.test', ADMIN_PASSWORD);

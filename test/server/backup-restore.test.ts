@@ -12,6 +12,8 @@ import path from 'node:path';
 import mqtt, { type MqttClient } from 'mqtt';
 import { telemetryTopic } from '../../shared/topics';
 import { Db, seedFleet, startServerProcess, type SeededDevice, type ServerProcess } from './support/telemetry-server';
+import { until as untilOf } from './support/until';
+import { isPg } from './support/test-db';
 
 const ROOT = path.resolve(__dirname, '../..');
 const work = fs.mkdtempSync(path.join(os.tmpdir(), 'jw-backup-'));
@@ -33,16 +35,7 @@ function npmRun(script: string, args: string[], dataDir: string): Promise<Run> {
   });
 }
 
-async function until<T>(what: string, fn: () => Promise<T>, ok: (v: T) => boolean, ms = 30_000): Promise<T> {
-  const end = Date.now() + ms;
-  let v = await fn();
-  while (!ok(v)) {
-    if (Date.now() > end) throw new Error(`timed out waiting for ${what}; last value ${JSON.stringify(v)}`);
-    await new Promise((r) => setTimeout(r, 100));
-    v = await fn();
-  }
-  return v;
-}
+const until = <T>(what: string, fn: () => Promise<T>, ok: (v: T) => boolean, ms = 30_000) => untilOf(what, fn, ok, ms);
 
 interface Pair { engine_id: number; channel: number; newest: number }
 /** Row count and sha256 of the readings of one engine and channel up to `upTo`, in key order. */
@@ -73,7 +66,8 @@ afterAll(async () => {
   fs.rmSync(work, { recursive: true, force: true });
 });
 
-test('a backup taken during ingest restores into an empty DATA_DIR, consistent and complete up to its instant', async () => {
+// `npm run backup` copies the SQLite file (VACUUM INTO); a PostgreSQL store is backed up with its own tools (pg_dump).
+(isPg ? test.skip : test)('a backup taken during ingest restores into an empty DATA_DIR, consistent and complete up to its instant', async () => {
   const d = fleet[0];
   client = await mqtt.connectAsync(`mqtt://127.0.0.1:${server.mqttPort}`, { username: d.username, password: d.secret, reconnectPeriod: 0, connectTimeout: 5000 });
   // QoS 1 publisher: 100 samples x 2 channels a message, unique increasing timestamps, until told to stop

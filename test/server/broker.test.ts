@@ -11,6 +11,7 @@ import bcrypt from 'bcryptjs';
 import { MAX_PAYLOAD_BYTES, MAX_SAMPLES } from '../../shared/telemetry-payload';
 import { telemetryTopic } from '../../shared/topics';
 import { Db, seedFleet, startServerProcess, type SeededDevice, type ServerProcess } from './support/telemetry-server';
+import { until } from './support/until';
 
 let server: ServerProcess;
 let db: Db;
@@ -23,16 +24,6 @@ const connect = async (d: SeededDevice, password = d.secret): Promise<MqttClient
   return c;
 };
 
-async function until<T>(what: string, fn: () => Promise<T>, ok: (v: T) => boolean, ms = 10_000): Promise<T> {
-  const end = Date.now() + ms;
-  let v = await fn();
-  while (!ok(v)) {
-    if (Date.now() > end) throw new Error(`timed out waiting for ${what}; last value ${JSON.stringify(v)}`);
-    await new Promise((r) => setTimeout(r, 100));
-    v = await fn();
-  }
-  return v;
-}
 
 const countReadings = (engineId: number) => db.get<{ n: number }>('SELECT COUNT(*) AS n FROM readings WHERE engine_id = ?', [engineId]).then((r) => r.n);
 const rejections = async (deviceId: number) =>
@@ -140,7 +131,7 @@ test('socket.io: a bad token is refused at the handshake; a good token receives 
 
   // the handshake checks the session against the users table: the user must exist and be enabled
   const now = new Date().toISOString();
-  const userId = await db.run(`INSERT INTO users (email, name, password_hash, role, disabled, created_at, updated_at) VALUES ('operator@example.test', 'Test operator', 'x', 'operator', 0, ?, ?)`, [now, now]);
+  const userId = await db.run(`INSERT INTO users (email, name, password_hash, role, disabled, created_at, updated_at) VALUES ('operator@example.test', 'Test operator', 'x', 'operator', FALSE, ?, ?)`, [now, now]);
   const tokens = createTokenService(loadJwtSecret(server.dataDir));
   const token = tokens.sign({ id: userId, email: 'operator@example.test', role: 'operator' });
   const sock: Socket = ioClient(url, { auth: { token }, transports: ['websocket'], reconnection: false });

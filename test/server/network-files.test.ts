@@ -11,6 +11,7 @@ import path from 'node:path';
 import mqtt, { type MqttClient } from 'mqtt';
 import { telemetryTopic } from '../../shared/topics';
 import { Db, freePort, seedFleet, startServerProcess, type SeededDevice, type ServerProcess } from './support/telemetry-server';
+import { isPg } from './support/test-db';
 
 const ROOT = path.resolve(__dirname, '../..');
 let server: ServerProcess;
@@ -47,7 +48,7 @@ beforeAll(async () => {
   server = await startServerProcess({
     env: { MQTT_TLS_CERT: path.join(certs, 'server.pem'), MQTT_TLS_KEY: path.join(certs, 'server.key'), MQTT_TLS_PORT: String(tlsPort) },
   });
-  db = new Db(server.dbFile);
+  db = new Db(server.databaseUrl);
   fleet = await seedFleet(db, 2, 'tls');
 });
 
@@ -75,8 +76,11 @@ describe('MQTT over TLS', () => {
   });
 });
 
+// The database's own files exist only with SQLite (on PostgreSQL the cluster owns them): SQLite-only by nature.
+const sqliteOnly = isPg ? test.skip : test;
+
 describe('files of the service', () => {
-  test('the data folder, the database, its WAL and the JWT secret are owner-only', () => {
+  sqliteOnly('the data folder, the database, its WAL and the JWT secret are owner-only', () => {
     const mode = (f: string) => fs.statSync(f).mode & 0o777;
     expect(mode(server.dataDir)).toBe(0o700);
     expect(mode(server.dbFile)).toBe(0o600);
@@ -85,7 +89,7 @@ describe('files of the service', () => {
     expect(mode(path.join(server.dataDir, 'jwt-secret'))).toBe(0o600);
   });
 
-  test('files left readable by an older version are tightened at start; uploads too', async () => {
+  sqliteOnly('files left readable by an older version are tightened at start; uploads too', async () => {
     const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'jw-modes-'));
     fs.chmodSync(dir, 0o755);
     fs.mkdirSync(path.join(dir, 'uploads'), { mode: 0o755 });

@@ -54,11 +54,11 @@ let stoppedAt: number;
 
 beforeAll(async () => {
   server = await startServerProcess();
-  const db = new Db(server.dbFile);
+  const db = new Db(server.databaseUrl);
   try {
     [{ engineId }] = await seedFleet(db, 1, 'oc');
     const now = new Date().toISOString();
-    await db.run('INSERT INTO users (email, name, password_hash, role, disabled, created_at, updated_at) VALUES (?, ?, ?, ?, 0, ?, ?)', ['tech@example.test', 'Test technician', bcrypt.hashSync('correct-horse-battery', 4), 'technician', now, now]);
+    await db.run('INSERT INTO users (email, name, password_hash, role, disabled, created_at, updated_at) VALUES (?, ?, ?, ?, FALSE, ?, ?)', ['tech@example.test', 'Test technician', bcrypt.hashSync('correct-horse-battery', 4), 'technician', now, now]);
     const t = Date.now();
     stoppedAt = t - 3 * DAY;
     const rows: Array<{ ts: number; channel: ChannelKey; value: number }> = [];

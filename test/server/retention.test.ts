@@ -20,7 +20,11 @@ async function insertRows(table: string, cols: string[], rows: number[][]): Prom
     await t.ctx.sequelize.query(`INSERT INTO ${table} (${cols.join(',')}) VALUES ${values}`);
   }
 }
-const one = async <T extends object = { n: number }>(sql: string): Promise<T> => (await t.ctx.sequelize.query<T>(sql, { type: QueryTypes.SELECT }))[0]!;
+/** One row; numbers as numbers (PostgreSQL returns COUNT and BIGINT columns as strings). */
+const one = async <T extends object = { n: number }>(sql: string): Promise<T> => {
+  const row = (await t.ctx.sequelize.query<Record<string, unknown>>(sql, { type: QueryTypes.SELECT }))[0]!;
+  return Object.fromEntries(Object.entries(row).map(([k, v]) => [k, typeof v === 'string' && /^-?\d+(\.\d+)?$/.test(v) ? Number(v) : v])) as T;
+};
 
 const engineFields = { duty: 'standby' as const, capacityL: 50, coolantFamily: 'conventional' as const, glycolType: 'ethylene' as const, glycolPercent: 50, capPressureKpa: 100, oilDrainIntervalH: 250 };
 
@@ -126,7 +130,7 @@ describe('readings API and the raw retention', () => {
 describe('retention in the running server', () => {
   it('sweeps old raw readings on its timer and keeps the rollups', async () => {
     const server = await startServerProcess({ env: { RAW_RETENTION_DAYS: '30', RETENTION_EVERY_S: '1', RETENTION_BATCH: '250', RETENTION_PAUSE_MS: '10' } });
-    const db = new Db(server.dbFile);
+    const db = new Db(server.databaseUrl);
     try {
       const [d] = await seedFleet(db, 1, 'ret');
       const old = Date.now() - 31 * DAY_MS;
