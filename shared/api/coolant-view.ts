@@ -1,5 +1,6 @@
 /** JSON shapes of the coolant-test API (server/services/coolant/coolant-tests.ts), shared by server and client. Types only. */
 import type { AdditiveDecision, ChemistryFinding, FreezeAssessment } from '../coolant';
+import type { TopUpEstimate, TopUpLiquid } from '../coolant/top-up';
 
 export type TestMethod = 'strip' | 'refractometer' | 'lab';
 export type CoolantTestSource = 'manual' | 'lab-import';
@@ -38,4 +39,22 @@ export interface CoolantTestView {
   decision: CoolantDecision | null;
   source: CoolantTestSource;
   createdAt: string;
+}
+
+/** One coolant top-up as the API answers it (GET/POST /api/engines/:id/coolant-top-ups). */
+export interface TopUpView {
+  id: number;
+  engineId: number;
+  addedAt: string;
+  volumeL: number;
+  liquid: TopUpLiquid;
+  premixPercent: number | null;
+  notes: string | null;
+  addedBy: number | null;
+}
+
+export interface TopUpsAnswer {
+  topUps: TopUpView[];
+  /** Estimate from the last test with a glycol or additive reading and the top-ups after it; null without such a test. */
+  estimate: (TopUpEstimate & { basedOnTestAt: string; topUpsSince: number }) | null;
 }

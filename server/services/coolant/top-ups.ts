@@ -5,6 +5,7 @@ import type { Models } from '../../models';
 import type { TopUpLiquid } from '../../models/coolant-models';
 import { getEngine } from '../engines';
 import { getAdditiveProfile } from './additive-profile';
+import type { TopUpView, TopUpsAnswer } from '../../../shared/api/coolant-view';
 
 export interface TopUpInput {
   addedAt: Date;
@@ -14,22 +15,7 @@ export interface TopUpInput {
   notes: string | null;
 }
 
-export interface TopUpView {
-  id: number;
-  engineId: number;
-  addedAt: string;
-  volumeL: number;
-  liquid: TopUpLiquid;
-  premixPercent: number | null;
-  notes: string | null;
-  addedBy: number | null;
-}
-
-export interface TopUpsAnswer {
-  topUps: TopUpView[];
-  /** Estimate from the last test with a glycol or additive reading and the top-ups after it; null without such a test. */
-  estimate: (TopUpEstimate & { basedOnTestAt: string; topUpsSince: number }) | null;
-}
+export type { TopUpView, TopUpsAnswer };
 
 export async function recordTopUp(models: Models, engineId: number, input: TopUpInput, userId: number): Promise<TopUpView> {
   const engine = await getEngine(models, engineId);

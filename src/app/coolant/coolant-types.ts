@@ -1,5 +1,6 @@
 import type { CoolantTestView, TestMethod } from '../../../shared/api/coolant-view';
 import type { ChemistryLimits } from '../../../shared/coolant';
+import type { TopUpLiquid } from '../../../shared/coolant/top-up';
 
 export type { CoolantDecision, CoolantTestSource, TestMethod } from '../../../shared/api/coolant-view';
 
@@ -90,32 +91,8 @@ export interface RunHoursEntry {
   at: string;
 }
 
-export type TopUpLiquid = 'water' | 'premix' | 'glycol';
-
-export interface CoolantTopUp {
-  id: number;
-  engineId: number;
-  addedAt: string;
-  volumeL: number;
-  liquid: TopUpLiquid;
-  premixPercent: number | null;
-  notes: string | null;
-  addedBy: number | null;
-}
-
-export interface TopUpsAnswer {
-  topUps: CoolantTopUp[];
-  estimate: {
-    basedOnTestAt: string;
-    topUpsSince: number;
-    replacedFraction: number;
-    addedL: number;
-    scaUnitsPerGal: number | null;
-    glycolPercent: number | null;
-    belowLow: boolean;
-    reasons: string[];
-  } | null;
-}
+export type { TopUpLiquid };
+export type { TopUpView as CoolantTopUp, TopUpsAnswer } from '../../../shared/api/coolant-view';
 
 export interface NewTopUp {
   volumeL: number;
