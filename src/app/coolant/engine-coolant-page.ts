@@ -18,6 +18,8 @@ import { AuthService } from '../core/auth.service';
 import { PreferencesService } from '../core/preferences.service';
 import { EngineService } from '../engine/engine.service';
 import { Engine } from '../fleet/fleet-types';
+import { FleetService } from '../fleet/fleet.service';
+import { DisplayZone } from '../core/display-zone';
 import { AdditiveDecisionView } from './additive-decision';
 import { ChemistryFindings } from './chemistry-findings';
 import { CoolantExplainer } from './coolant-explainer';
@@ -54,6 +56,8 @@ export class EngineCoolantPage {
   private readonly engines = inject(EngineService);
   private readonly prefs = inject(PreferencesService);
   private readonly auth = inject(AuthService);
+  private readonly fleet = inject(FleetService);
+  private readonly zones = inject(DisplayZone);
   /** Route parameter (component input binding). */
   readonly id = input.required<string>();
   protected readonly engineId = computed(() => Number(this.id()));
@@ -67,6 +71,15 @@ export class EngineCoolantPage {
     toObservable(computed(() => ({ id: this.engineId(), n: this.reload() }))).pipe(switchMap(({ id }) => this.api.tests(id).pipe(catchError(() => of([] as CoolantTest[]))))),
     { initialValue: [] as CoolantTest[] },
   );
+  /** Times in the engine's site zone (or the browser's by preference), as on the other pages. */
+  protected readonly zone = computed(() => {
+    const siteId = this.engine()?.siteId;
+    return this.zones.zoneFor(siteId == null ? null : this.fleet.siteById().get(siteId)?.timeZone);
+  });
+  constructor() {
+    if (!this.fleet.sites().length) void this.fleet.load();
+  }
+
   protected readonly family = computed(() => (this.engine()?.coolantFamily === 'extended-life' ? 'extended-life' : 'conventional') as CoolantFamily);
   protected readonly columns = ['testedAt', 'method', 'sca', 'glycol', 'freeze', 'ph', 'ec', 'decision', 'by'];
 
