@@ -17,10 +17,14 @@ const PARTS: Part[] = [
   { name: 'end-to-end (Chromium)', script: 'test:e2e' },
 ];
 
+/** Set by SIGINT/SIGTERM: the running part is stopped and no further part starts. */
+let interrupted = false;
+
 function run(script: string): Promise<number> {
   return new Promise((resolve) => {
     const child = spawn('npm', ['run', '--silent', script], { stdio: 'inherit', detached: true });
     const stop = () => {
+      interrupted = true;
       if (child.pid) {
         try {
           process.kill(-child.pid, 'SIGTERM');
@@ -44,6 +48,7 @@ async function main(): Promise<void> {
   const results: { name: string; code: number; seconds: number }[] = [];
   for (const part of PARTS) {
     if (only.length && !only.includes(part.script)) continue;
+    if (interrupted) break;
     const started = Date.now();
     const code = await run(part.script);
     results.push({ name: part.name, code, seconds: (Date.now() - started) / 1000 });
@@ -52,7 +57,7 @@ async function main(): Promise<void> {
   for (const r of results) console.log(`  ${r.code === 0 ? 'passed' : 'FAILED'}  ${r.seconds.toFixed(0).padStart(5)} s  ${r.name}`);
   const total = results.reduce((s, r) => s + r.seconds, 0);
   console.log(`  total ${total.toFixed(0)} s`);
-  process.exitCode = results.some((r) => r.code !== 0) ? 1 : 0;
+  process.exitCode = interrupted || results.some((r) => r.code !== 0) ? 1 : 0;
 }
 
 void main();
