@@ -1,12 +1,20 @@
-/** A small levelled logger writing one line per event to stderr; enough for a single process. */
-export type LogLevel = 'debug' | 'info' | 'warn' | 'error';
-const ORDER: Record<LogLevel, number> = { debug: 10, info: 20, warn: 30, error: 40 };
+import pino, { type Logger as PinoLogger } from 'pino';
+
+/**
+ * The server's log: pino, one JSON object per line on stderr. This thin wrapper keeps the call style of the
+ * whole code base (`log.warn('text', extra)`); the underlying pino logger (`log.pino`) feeds the request log
+ * (pino-http, see app.ts). `silent` turns everything off (tests: LOG_LEVEL=silent).
+ */
+export const LOG_LEVELS = ['debug', 'info', 'warn', 'error', 'silent'] as const;
+export type LogLevel = (typeof LOG_LEVELS)[number];
 
 export interface Logger {
   debug(msg: string, extra?: unknown): void;
   info(msg: string, extra?: unknown): void;
   warn(msg: string, extra?: unknown): void;
   error(msg: string, extra?: unknown): void;
+  /** The pino logger behind this one (request logging, child loggers). */
+  readonly pino?: PinoLogger;
 }
 
 /**
@@ -22,11 +30,29 @@ export function describeError(err: Error): string {
   return head + (typeof sql === 'string' ? `\n  sql: ${sql.slice(0, 500)}` : '') + frames.replace(/\n$/, '');
 }
 
-export function createLogger(level: LogLevel = 'info', name = 'jacketwatch'): Logger {
-  const write = (at: LogLevel) => (msg: string, extra?: unknown) => {
-    if (ORDER[at] < ORDER[level]) return;
-    const tail = extra === undefined ? '' : ' ' + (extra instanceof Error ? describeError(extra) : JSON.stringify(extra));
-    process.stderr.write(`${new Date().toISOString()} ${at.toUpperCase()} [${name}] ${msg}${tail}\n`);
+/** pino's error serializer, with the message and SQL of database errors kept (see describeError). */
+function serializeError(err: unknown): unknown {
+  if (!(err instanceof Error)) return err;
+  const base = pino.stdSerializers.err(err) as unknown as Record<string, unknown>;
+  const sql = (err as { sql?: unknown }).sql;
+  return { ...base, stack: describeError(err), ...(typeof sql === 'string' ? { sql: sql.slice(0, 500) } : {}) };
+}
+
+/** Wraps a pino logger in the code base's call style. */
+export function wrapPino(p: PinoLogger): Logger {
+  const write = (at: 'debug' | 'info' | 'warn' | 'error') => (msg: string, extra?: unknown) => {
+    if (extra === undefined) p[at](msg);
+    else if (extra instanceof Error) p[at]({ err: extra }, msg);
+    else p[at]({ detail: extra }, msg);
   };
-  return { debug: write('debug'), info: write('info'), warn: write('warn'), error: write('error') };
+  return { debug: write('debug'), info: write('info'), warn: write('warn'), error: write('error'), pino: p };
+}
+
+export function createLogger(level: LogLevel = 'info', name = 'jacketwatch'): Logger {
+  const p = pino(
+    { name, level, serializers: { err: serializeError }, base: { pid: process.pid } },
+    // synchronous: a line logged just before the process ends (or crashes) is not lost
+    pino.destination({ fd: 2, sync: true }),
+  );
+  return wrapPino(p);
 }
