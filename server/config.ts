@@ -1,6 +1,10 @@
 import path from 'node:path';
+import { z } from 'zod';
+import { DEFAULT_OPENING_SETTINGS } from '../shared/work/opening-check';
+import { LOG_LEVELS, type LogLevel } from './logger';
+import { PRIORITIES } from './services/alarms/priority';
 
-/** Every setting of the server, read from the environment with safe defaults (listed in the README). */
+/** Every setting of the server, read from the environment (envSchema below) with safe defaults (listed in the README). */
 export interface Config {
   port: number;
   mqttPort: number;
@@ -23,7 +27,7 @@ export interface Config {
   mailFrom: string;
   publicUrl: string;
   production: boolean;
-  logLevel: 'debug' | 'info' | 'warn' | 'error';
+  logLevel: LogLevel;
   /** RAW_RETENTION_DAYS [400]: raw readings older than this are removed; per-minute rollups are kept for good. 0 keeps raw readings for good. */
   rawRetentionDays: number;
   /** RETENTION_BATCH [4000], RETENTION_PAUSE_MS [100], RETENTION_EVERY_S [3600]: rows per step, pause between steps, time between sweeps. */
@@ -44,25 +48,89 @@ export interface Config {
   jwtSecret: string | null;
 }
 
-function intFrom(env: NodeJS.ProcessEnv, name: string, fallback: number): number {
-  const raw = env[name];
-  if (raw === undefined || raw === '') return fallback;
-  const n = Number(raw);
-  if (!Number.isInteger(n) || n < 0 || n > 65535) throw new Error(`${name} must be a port number, got "${raw}"`);
-  return n;
+const empty = (v: unknown) => (v === '' ? undefined : v);
+/** An optional variable: empty counts as unset. */
+const opt = <T extends z.ZodType>(schema: T) => z.preprocess(empty, schema.optional());
+const text = () => opt(z.string());
+/** A number with its rule: the same message for text that is no number and for a number out of range. */
+const num = (rule: string, ok: (n: number) => boolean) => z.coerce.number({ error: rule }).refine(ok, { error: rule });
+const whole = (min: number, max: number) => num(`must be a whole number from ${min} to ${max}`, (n) => Number.isInteger(n) && n >= min && n <= max);
+const port = () => num('must be a port number', (n) => Number.isInteger(n) && n >= 0 && n <= 65535);
+const positiveSeconds = () => num('must be a positive number of seconds', (n) => Number.isFinite(n) && n > 0);
+const secondsAtLeast0 = () => num('must be a number of seconds >= 0', (n) => Number.isFinite(n) && n >= 0);
+const withDefault = <T extends z.ZodType>(schema: T, fallback: z.input<T>) => z.preprocess(empty, schema.default(fallback as never));
+
+/**
+ * Every environment variable the server, the seed and the demo read, in one place. The README's and
+ * DEVELOPERS.md's configuration tables list exactly these (test/server/config.test.ts checks it).
+ */
+export const envSchema = z.object({
+  PORT: withDefault(port(), 3000),
+  MQTT_PORT: withDefault(port(), 1883),
+  SMTP_PORT: withDefault(port(), 2525),
+  DATA_DIR: withDefault(z.string(), './data'),
+  DATABASE_URL: text(),
+  MQTT_URL: text(),
+  MQTT_CLIENT_ID: withDefault(z.string(), 'jacketwatch-server'),
+  MQTT_DEVICE_ACCOUNTS: opt(z.literal('dynsec', { error: 'must be "dynsec" or empty' })),
+  MQTT_SHARED_GROUP: opt(z.string().regex(/^[A-Za-z0-9_-]{1,64}$/, { error: 'must be 1-64 letters, digits, - or _' })),
+  SMTP_HOST: text(),
+  SMTP_USER: text(),
+  SMTP_PASS: text(),
+  SMTP_SECURE: withDefault(z.enum(['true', 'false'], { error: 'must be true or false' }), 'false'),
+  MAIL_FROM: withDefault(z.string(), 'jacketwatch@localhost'),
+  PUBLIC_URL: text(),
+  NODE_ENV: text(),
+  LOG_LEVEL: withDefault(z.enum(LOG_LEVELS, { error: `must be one of ${LOG_LEVELS.join(', ')}` }), 'info'),
+  RAW_RETENTION_DAYS: withDefault(whole(0, 100_000), 400),
+  RETENTION_BATCH: withDefault(whole(1, 1_000_000), 4000),
+  RETENTION_PAUSE_MS: withDefault(whole(0, 60_000), 100),
+  RETENTION_EVERY_S: withDefault(whole(1, 7 * 86_400), 3600),
+  TRUST_PROXY: text(),
+  HOST: withDefault(z.string(), '127.0.0.1'),
+  MQTT_HOST: withDefault(z.string(), '127.0.0.1'),
+  MQTT_TLS_CERT: text(),
+  MQTT_TLS_KEY: text(),
+  MQTT_TLS_PORT: withDefault(port(), 8883),
+  JWT_SECRET: opt(z.string().min(32, { error: 'must be at least 32 characters (a random string, e.g. openssl rand -base64 48)' })),
+  // alarms and mail (server/services/alarms/alarm-settings.ts)
+  ESCALATE_AFTER_S: withDefault(positiveSeconds(), 15 * 60),
+  NOTIFY_MIN_PRIORITY: withDefault(z.enum(PRIORITIES, { error: `must be ${PRIORITIES.join(', ')}` }), 'medium'),
+  ALARM_TICK_MS: withDefault(num('must be a positive number of milliseconds', (n) => Number.isFinite(n) && n > 0), 1000),
+  MAIL_RETRY_BASE_S: withDefault(positiveSeconds(), 5),
+  MAIL_RETRY_MAX_S: withDefault(positiveSeconds(), 600),
+  MAIL_TIMEOUT_S: withDefault(positiveSeconds(), 5),
+  MAIL_PARALLEL: withDefault(whole(1, 100), 4),
+  ALARM_LATE_AFTER_S: withDefault(positiveSeconds(), 120),
+  ALARM_CHATTER_COUNT: withDefault(whole(2, 1000), 3),
+  ALARM_CHATTER_WINDOW_S: withDefault(positiveSeconds(), 60),
+  // opening check of gated work-order steps (server/services/work-orders/opening-settings.ts)
+  OPENING_MIN_STOPPED_S: withDefault(secondsAtLeast0(), DEFAULT_OPENING_SETTINGS.minStoppedS),
+  OPENING_HOLD_S: withDefault(secondsAtLeast0(), DEFAULT_OPENING_SETTINGS.holdS),
+  // the demo (npm start): arguments of the simulator it starts
+  SIM_ARGS: withDefault(z.string(), '--rate 1 --seed 1'),
+});
+
+export type Env = z.output<typeof envSchema>;
+/** The names of every configuration variable. */
+export const CONFIG_VARIABLES = Object.keys(envSchema.shape) as (keyof Env)[];
+
+/** Thrown for a wrong setting; the message names every wrong variable, its rule and its value. */
+export class ConfigError extends Error {
+  override name = 'ConfigError';
 }
 
-function countFrom(env: NodeJS.ProcessEnv, name: string, fallback: number, min: number, max: number): number {
-  const raw = env[name];
-  if (raw === undefined || raw === '') return fallback;
-  const n = Number(raw);
-  if (!Number.isInteger(n) || n < min || n > max) throw new Error(`${name} must be a whole number from ${min} to ${max}, got "${raw}"`);
-  return n;
-}
-
-function textFrom(env: NodeJS.ProcessEnv, name: string): string | null {
-  const raw = env[name];
-  return raw === undefined || raw === '' ? null : raw;
+/** The environment checked against the one schema; throws a ConfigError naming each wrong variable. */
+export function parseEnv(env: NodeJS.ProcessEnv = process.env): Env {
+  const picked = Object.fromEntries(CONFIG_VARIABLES.map((k) => [k, env[k]]));
+  const result = envSchema.safeParse(picked);
+  if (result.success) return result.data;
+  const lines = result.error.issues.map((i) => {
+    const name = String(i.path[0]);
+    const rule = i.message.startsWith('must ') ? i.message : `is not valid (${i.message})`;
+    return `${name} ${rule}, got "${env[name]}"`;
+  });
+  throw new ConfigError(lines.join('; '));
 }
 
 /** TRUST_PROXY: empty/false, true, a hop count, or addresses/subnets (e.g. `loopback` or `10.0.0.0/8`). */
@@ -73,61 +141,39 @@ function trustProxyFrom(raw: string | undefined): boolean | number | string {
   return raw;
 }
 
-function deviceAccountsFrom(env: NodeJS.ProcessEnv): 'dynsec' | null {
-  const raw = textFrom(env, 'MQTT_DEVICE_ACCOUNTS');
-  if (raw === null) return null;
-  if (raw !== 'dynsec') throw new Error(`MQTT_DEVICE_ACCOUNTS must be "dynsec" or empty, got "${raw}"`);
-  return raw;
-}
-
-function secretFrom(env: NodeJS.ProcessEnv, name: string): string | null {
-  const raw = textFrom(env, name);
-  if (raw !== null && raw.length < 32) throw new Error(`${name} must be at least 32 characters (a random string, e.g. openssl rand -base64 48)`);
-  return raw;
-}
-
-function sharedGroupFrom(env: NodeJS.ProcessEnv): string | null {
-  const raw = textFrom(env, 'MQTT_SHARED_GROUP');
-  if (raw !== null && !/^[A-Za-z0-9_-]{1,64}$/.test(raw)) throw new Error(`MQTT_SHARED_GROUP must be 1-64 letters, digits, - or _, got "${raw}"`);
-  return raw;
-}
-
 export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
-  const port = intFrom(env, 'PORT', 3000);
-  const dataDir = path.resolve(env.DATA_DIR || './data');
-  const level = (env.LOG_LEVEL || 'info') as Config['logLevel'];
-  const rawRetention = countFrom(env, 'RAW_RETENTION_DAYS', 400, 0, 100_000);
+  const e = parseEnv(env);
+  const dataDir = path.resolve(e.DATA_DIR);
   return {
-    port,
-    mqttPort: intFrom(env, 'MQTT_PORT', 1883),
-    smtpPort: intFrom(env, 'SMTP_PORT', 2525),
+    port: e.PORT,
+    mqttPort: e.MQTT_PORT,
+    smtpPort: e.SMTP_PORT,
     dataDir,
-    databaseUrl: env.DATABASE_URL || `sqlite:${path.join(dataDir, 'jacketwatch.sqlite')}`,
-    mqttUrl: textFrom(env, 'MQTT_URL'),
-    mqttClientId: textFrom(env, 'MQTT_CLIENT_ID') ?? 'jacketwatch-server',
-    mqttDeviceAccounts: deviceAccountsFrom(env),
-    mqttSharedGroup: sharedGroupFrom(env),
-    smtpHost: textFrom(env, 'SMTP_HOST'),
-    smtpUser: textFrom(env, 'SMTP_USER'),
-    smtpPass: textFrom(env, 'SMTP_PASS'),
-    smtpSecure: env.SMTP_SECURE === 'true',
-    mailFrom: env.MAIL_FROM || 'jacketwatch@localhost',
-    publicUrl: (env.PUBLIC_URL || `http://localhost:${port}`).replace(/\/$/, ''),
-    production: env.NODE_ENV === 'production',
-    logLevel: ['debug', 'info', 'warn', 'error'].includes(level) ? level : 'info',
-    rawRetentionDays: rawRetention,
+    databaseUrl: e.DATABASE_URL ?? `sqlite:${path.join(dataDir, 'jacketwatch.sqlite')}`,
+    mqttUrl: e.MQTT_URL ?? null,
+    mqttClientId: e.MQTT_CLIENT_ID,
+    mqttDeviceAccounts: e.MQTT_DEVICE_ACCOUNTS ?? null,
+    mqttSharedGroup: e.MQTT_SHARED_GROUP ?? null,
+    smtpHost: e.SMTP_HOST ?? null,
+    smtpUser: e.SMTP_USER ?? null,
+    smtpPass: e.SMTP_PASS ?? null,
+    smtpSecure: e.SMTP_SECURE === 'true',
+    mailFrom: e.MAIL_FROM,
+    publicUrl: (e.PUBLIC_URL ?? `http://localhost:${e.PORT}`).replace(/\/$/, ''),
+    production: e.NODE_ENV === 'production',
+    logLevel: e.LOG_LEVEL,
+    rawRetentionDays: e.RAW_RETENTION_DAYS,
     // PostgreSQL drops whole months past the same retention (the batched sweep removes the rest)
-    readingsRetentionDays: rawRetention > 0 ? rawRetention : null,
-    retentionBatch: countFrom(env, 'RETENTION_BATCH', 4000, 1, 1_000_000),
-    retentionPauseMs: countFrom(env, 'RETENTION_PAUSE_MS', 100, 0, 60_000),
-    retentionEveryMs: countFrom(env, 'RETENTION_EVERY_S', 3600, 1, 7 * 86_400) * 1000,
-    trustProxy: trustProxyFrom(env.TRUST_PROXY),
-    host: env.HOST || '127.0.0.1',
-    mqttHost: env.MQTT_HOST || '127.0.0.1',
-    mqttTls: env.MQTT_TLS_CERT && env.MQTT_TLS_KEY
-      ? { certFile: path.resolve(env.MQTT_TLS_CERT), keyFile: path.resolve(env.MQTT_TLS_KEY), port: intFrom(env, 'MQTT_TLS_PORT', 8883) }
+    readingsRetentionDays: e.RAW_RETENTION_DAYS > 0 ? e.RAW_RETENTION_DAYS : null,
+    retentionBatch: e.RETENTION_BATCH,
+    retentionPauseMs: e.RETENTION_PAUSE_MS,
+    retentionEveryMs: e.RETENTION_EVERY_S * 1000,
+    trustProxy: trustProxyFrom(e.TRUST_PROXY),
+    host: e.HOST,
+    mqttHost: e.MQTT_HOST,
+    mqttTls: e.MQTT_TLS_CERT && e.MQTT_TLS_KEY
+      ? { certFile: path.resolve(e.MQTT_TLS_CERT), keyFile: path.resolve(e.MQTT_TLS_KEY), port: e.MQTT_TLS_PORT }
       : null,
-    
-    jwtSecret: secretFrom(env, 'JWT_SECRET'),
+    jwtSecret: e.JWT_SECRET ?? null,
   };
 }

@@ -1,7 +1,7 @@
 import { spawn, type ChildProcess } from 'node:child_process';
 import path from 'node:path';
 import { seedDemo } from '../seeds/seed';
-import { loadConfig } from './config';
+import { loadConfig, parseEnv } from './config';
 import { createLogger } from './logger';
 import { installProcessGuards } from './process-guards';
 import { startServer } from './start';
@@ -21,7 +21,7 @@ async function main(): Promise<void> {
   const seeded = await seedDemo(server.sequelize, server.models, config);
   log.info(seeded.created ? 'demo data created' : 'demo data present');
 
-  const simArgs = (process.env.SIM_ARGS ?? '--rate 1 --seed 1').split(/\s+/).filter(Boolean);
+  const simArgs = parseEnv().SIM_ARGS.split(/\s+/).filter(Boolean);
   if (seeded.created) simArgs.push('--backfill-days', '30', '--backfill-step', '300');
   const tsx = path.resolve(__dirname, '../node_modules/.bin/tsx');
   const sim: ChildProcess = spawn(tsx, [path.resolve(__dirname, '../simulator/cli.ts'), ...simArgs], {

@@ -1,4 +1,4 @@
-import { loadConfig } from './config';
+import { ConfigError, loadConfig } from './config';
 import { createLogger } from './logger';
 import { installProcessGuards } from './process-guards';
 import { startServer } from './start';
@@ -27,6 +27,8 @@ async function main(): Promise<void> {
 }
 
 main().catch((err) => {
-  process.stderr.write(`jacketwatch failed to start: ${err instanceof Error ? (err.stack ?? err.message) : String(err)}\n`);
+  // a wrong setting says which variable and why; anything else gets its stack
+  const text = err instanceof ConfigError ? `configuration: ${err.message}` : err instanceof Error ? (err.stack ?? err.message) : String(err);
+  process.stderr.write(`jacketwatch failed to start: ${text}\n`);
   process.exit(1);
 });

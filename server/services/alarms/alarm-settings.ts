@@ -1,6 +1,7 @@
-import { isPriority, type AlarmPriority } from './priority';
+import { parseEnv } from '../../config';
+import type { AlarmPriority } from './priority';
 
-/** Settings of the alarm feature, from the environment (defaults in brackets). */
+/** Settings of the alarm feature, from the environment (defaults in brackets; rules in server/config.ts envSchema). */
 export interface AlarmSettings {
   /** ESCALATE_AFTER_S [900]: not acknowledged this long after an e-mail -> the next person is told. */
   escalateAfterMs: number;
@@ -28,35 +29,19 @@ export interface AlarmSettings {
   chatterWindowMs: number;
 }
 
-function seconds(env: NodeJS.ProcessEnv, name: string, fallback: number): number {
-  const raw = env[name];
-  if (raw === undefined || raw === '') return fallback;
-  const n = Number(raw);
-  if (!Number.isFinite(n) || n <= 0) throw new Error(`${name} must be a positive number of seconds, got "${raw}"`);
-  return n;
-}
-
-function count(env: NodeJS.ProcessEnv, name: string, fallback: number): number {
-  const raw = env[name];
-  if (raw === undefined || raw === '') return fallback;
-  const n = Number(raw);
-  if (!Number.isInteger(n) || n < 1 || n > 100) throw new Error(`${name} must be a whole number from 1 to 100, got "${raw}"`);
-  return n;
-}
-
+/** The alarm settings of the one configuration schema (server/config.ts). */
 export function loadAlarmSettings(env: NodeJS.ProcessEnv = process.env): AlarmSettings {
-  const min = env.NOTIFY_MIN_PRIORITY || 'medium';
-  if (!isPriority(min)) throw new Error(`NOTIFY_MIN_PRIORITY must be low, medium, high or urgent, got "${min}"`);
+  const e = parseEnv(env);
   return {
-    escalateAfterMs: seconds(env, 'ESCALATE_AFTER_S', 15 * 60) * 1000,
-    notifyMinPriority: min,
-    tickMs: seconds(env, 'ALARM_TICK_MS', 1000),
-    mailRetryBaseMs: seconds(env, 'MAIL_RETRY_BASE_S', 5) * 1000,
-    mailRetryMaxMs: seconds(env, 'MAIL_RETRY_MAX_S', 600) * 1000,
-    mailTimeoutMs: seconds(env, 'MAIL_TIMEOUT_S', 5) * 1000,
-    mailParallel: count(env, 'MAIL_PARALLEL', 4),
-    lateAfterMs: seconds(env, 'ALARM_LATE_AFTER_S', 120) * 1000,
-    chatterCount: Math.max(2, Math.round(seconds(env, 'ALARM_CHATTER_COUNT', 3))),
-    chatterWindowMs: seconds(env, 'ALARM_CHATTER_WINDOW_S', 60) * 1000,
+    escalateAfterMs: e.ESCALATE_AFTER_S * 1000,
+    notifyMinPriority: e.NOTIFY_MIN_PRIORITY,
+    tickMs: e.ALARM_TICK_MS,
+    mailRetryBaseMs: e.MAIL_RETRY_BASE_S * 1000,
+    mailRetryMaxMs: e.MAIL_RETRY_MAX_S * 1000,
+    mailTimeoutMs: e.MAIL_TIMEOUT_S * 1000,
+    mailParallel: e.MAIL_PARALLEL,
+    lateAfterMs: e.ALARM_LATE_AFTER_S * 1000,
+    chatterCount: e.ALARM_CHATTER_COUNT,
+    chatterWindowMs: e.ALARM_CHATTER_WINDOW_S * 1000,
   };
 }
