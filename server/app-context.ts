@@ -4,6 +4,7 @@ import type { TokenService } from './auth/tokens';
 import type { Config } from './config';
 import type { Logger } from './logger';
 import type { Models } from './models';
+import type { ReadingHistory } from './services/work-orders/reading-history';
 import type { DeviceAccounts } from './telemetry/broker-accounts';
 import type { Telemetry } from './telemetry/types';
 
@@ -19,6 +20,8 @@ export interface AppContext {
   /** Device accounts in the external broker (MQTT_DEVICE_ACCOUNTS=dynsec); absent otherwise. */
   deviceAccounts?: DeviceAccounts | null;
   startedAt: number;
+  /** Recent readings of engines under work for the opening check, fed by telemetry (see openingHistoryOf). */
+  openingHistory?: ReadingHistory;
   /** Ends sessions and device connections at once on revoke, rotate, disable, role/site/password change. */
   access?: AccessEvents;
 }

@@ -16,10 +16,12 @@ import { startReadingPartitionUpkeep } from './db/reading-partitions';
 import { createSequelize } from './db/sequelize';
 import { createLogger, type Logger } from './logger';
 import { initModels, type Models } from './models';
+import { alarmRouters } from './routes';
 import { createAlarmFeature, type AlarmFeature } from './services/alarms';
 import { startRunHoursCounting } from './services/coolant';
 import { siteOfEngineLookup } from './services/engines';
 import { startRetention, type Retention } from './services/retention';
+import { openingHistoryOf } from './services/work-orders/reading-history';
 import { siteScopeForUser } from './services/site-access';
 import { createDynsecAccounts } from './telemetry/broker-accounts';
 import { startTelemetry } from './telemetry';
@@ -66,8 +68,9 @@ export async function startServer(config: Config, opts: StartOptions = {}): Prom
       revokedUsernames: async () => (await models.Device.findAll({ where: { revokedAt: { [Op.ne]: null } }, attributes: ['username'] })).map((d) => d.username),
     });
   }
+  const openingHistory = openingHistoryOf(ctx);
   const alarms = createAlarmFeature(ctx);
-  const app = createApp(ctx, { ...opts, extraRouters: [...(opts.extraRouters ?? []), ...alarms.routers] });
+  const app = createApp(ctx, { ...opts, extraRouters: [...(opts.extraRouters ?? []), ...alarmRouters(ctx, alarms)] });
   const httpServer = http.createServer(app);
 
   const telemetry = await startTelemetry({
@@ -82,6 +85,7 @@ export async function startServer(config: Config, opts: StartOptions = {}): Prom
     log,
   });
   ctx.telemetry = telemetry;
+  telemetry.onReadings(openingHistory.onReadings);
   await alarms.start(telemetry);
   const stopRunHours = startRunHoursCounting(ctx, telemetry);
   const retention = startRetention({ sequelize, log, config });

@@ -5,7 +5,7 @@ import { requireAuth, requireRole } from '../auth/middleware';
 import type { AppContext } from '../app-context';
 import { badRequest } from '../http-error';
 import { COOLANT_FAMILIES, DUTIES, GLYCOL_TYPES } from '../models/engine';
-import { activeAlarmCounts } from '../services/alarms/alarm-service';
+import { activeAlarmCounts } from '../services/alarms/alarm-queries';
 import { standbyReadinessOf } from '../services/readiness';
 import { createEngine, engineView, getEngine, listEngines, retireEngine, updateEngine } from '../services/engines';
 import { queryBuckets } from '../services/readings-query';

@@ -1,6 +1,9 @@
 import { Router } from 'express';
 import type { AppContext } from '../app-context';
-import { buildOpenApi } from '../openapi';
+import { addOpenApiGroup, buildOpenApi } from '../openapi';
+import { alarmsOpenApi } from '../openapi/alarm-paths';
+import type { AlarmFeature } from '../services/alarms';
+import { alarmsRouter } from './alarms';
 import { authRouter } from './auth';
 import { calcRouter } from './calc';
 import { coolantRouter } from './coolant';
@@ -8,6 +11,9 @@ import { devicesRouter } from './devices';
 import { engineHistoryRouter } from './engine-history';
 import { enginesRouter } from './engines';
 import { healthRouter } from './health';
+import { mailAdminRouter } from './mail-admin';
+import { oncallRouter } from './oncall';
+import { rulesRouter } from './rules';
 import { sitesRouter } from './sites';
 import { usersRouter } from './users';
 import { workOrdersRouter } from './work-orders';
@@ -19,4 +25,10 @@ export function coreRouters(ctx: AppContext): Router[] {
     res.json(buildOpenApi());
   });
   return [docs, healthRouter(ctx), authRouter(ctx), sitesRouter(ctx), enginesRouter(ctx), devicesRouter(ctx), usersRouter(ctx), workOrdersRouter(ctx), calcRouter(ctx), coolantRouter(ctx), engineHistoryRouter(ctx)];
+}
+
+/** The alarm feature's routers (alarms, on-call, rules, mail), mounted by startServer after the core ones. */
+export function alarmRouters(ctx: AppContext, feature: AlarmFeature): Router[] {
+  addOpenApiGroup(alarmsOpenApi);
+  return [alarmsRouter(ctx, feature), oncallRouter(ctx), rulesRouter(ctx, feature), mailAdminRouter(ctx)];
 }

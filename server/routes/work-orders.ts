@@ -6,12 +6,11 @@ import { requireAuth, requireRole } from '../auth/middleware';
 import { HttpError } from '../http-error';
 import { PART_KINDS } from '../models/work-order-part';
 import { WORK_PRIORITIES, WORK_STATUSES } from '../models/work-order';
-import type { Telemetry } from '../telemetry/types';
 import { WORK_KINDS, WORK_TEMPLATES } from '../services/work-templates';
 import { assertAttachmentVisible, assertEngineVisible, assertWorkOrderVisible, engineVisible, siteScopeOf, visibleEngineIds, visibleUserIds } from '../services/site-access';
 import { addAttachment, attachmentFile, MAX_ATTACHMENT_BYTES } from '../services/work-orders/attachment-service';
-import { computeGate } from '../services/work-orders/gate';
-import { ReadingHistory } from '../services/work-orders/reading-history';
+import { openingCheckOf } from '../services/work-orders/gate';
+import { openingHistoryOf, type ReadingHistory } from '../services/work-orders/reading-history';
 import { addAmendment, addPart } from '../services/work-orders/record-service';
 import { completeStep, GateShutError, saveDraft } from '../services/work-orders/step-service';
 import { AlreadyRecordedError, recordOrderCoolantTest } from '../services/work-orders/coolant-test-service';
@@ -86,26 +85,6 @@ const amendmentBody = z.strictObject({ text: z.string().trim().min(1).max(4000) 
 const stepParams = z.object({ id: z.coerce.number().int().positive(), stepId: z.coerce.number().int().positive() });
 const uploadFields = z.object({ stepId: z.coerce.number().int().positive().optional() });
 
-/** One history per running server: the router hooks it onto telemetry.onReadings as soon as telemetry exists. */
-function attachHistory(ctx: AppContext, history: ReadingHistory): () => void {
-  let attached = false;
-  const tryAttach = () => {
-    if (attached) return;
-    const t = ctx.telemetry as Partial<Telemetry> | null;
-    if (t && typeof t.onReadings === 'function') {
-      t.onReadings(history.onReadings);
-      attached = true;
-    }
-  };
-  // routers are built before telemetry starts; look again shortly and on every request
-  const timer = setInterval(() => {
-    tryAttach();
-    if (attached) clearInterval(timer);
-  }, 100);
-  timer.unref();
-  return tryAttach;
-}
-
 // defParamCharset utf8: browsers send a file name as raw UTF-8 bytes; multer's default (latin1) garbles it
 const upload = multer({ storage: multer.memoryStorage(), defParamCharset: 'utf8', limits: { fileSize: MAX_ATTACHMENT_BYTES, files: 1, fields: 5, parts: 6 } });
 function singleFile(req: Request, res: Response, next: NextFunction) {
@@ -126,9 +105,9 @@ export interface WorkRouterHandle {
 }
 
 export function workOrdersRouterWithService(ctx: AppContext): WorkRouterHandle {
-  const history = new ReadingHistory(ctx.sequelize);
+  // fed by telemetry (startServer wires it); the routes only read it
+  const history = openingHistoryOf(ctx);
   const svc = new WorkOrderService(ctx, history);
-  const attach = attachHistory(ctx, history);
   const r = Router();
   const planners = requireRole('planner', 'admin');
   const gated = (fn: (req: Request, res: Response) => Promise<void>) => async (req: Request, res: Response) => {
@@ -140,7 +119,7 @@ export function workOrdersRouterWithService(ctx: AppContext): WorkRouterHandle {
       throw err;
     }
   };
-  for (const p of ['/work-orders', '/work-order-templates', '/attachments', '/engines/:id/opening-check']) r.use(p, requireAuth, (_req, _res, next) => { attach(); next(); });
+  for (const p of ['/work-orders', '/work-order-templates', '/attachments', '/engines/:id/opening-check']) r.use(p, requireAuth);
   // a work order of a site the caller may not see reads as not found, whatever is done to it
   r.use('/work-orders/:id', async (req, _res, next) => {
     const id = Number(req.params.id);
@@ -155,18 +134,13 @@ export function workOrdersRouterWithService(ctx: AppContext): WorkRouterHandle {
   r.get('/engines/:id/opening-check', async (req, res) => {
     const id = parseId(req.params);
     await assertEngineVisible(ctx.models, await siteScopeOf(req), id);
-    const engine = await ctx.models.Engine.findByPk(id);
-    if (!engine) throw new HttpError(404, 'engine not found');
     // lockout is the technician's confirmation on the step; shown here as not yet confirmed
-    const g = await computeGate(history, engine, req.query.lockoutConfirmed === 'true');
-    res.json({ engineId: engine.id, at: new Date().toISOString(), clear: g.clear, conditions: g.conditions, clearAt: g.clearAt, forecast: g.forecast, reasons: g.reasons, stale: g.stale, settings: g.settings });
+    res.json(await openingCheckOf(ctx.models, history, id, req.query.lockoutConfirmed === 'true'));
   });
 
   r.get('/work-orders/assignees', async (req, res) => {
     // the picker follows the asker's sites: no names of people who work only elsewhere
-    const ids = await visibleUserIds(ctx.models, await siteScopeOf(req));
-    const users = await ctx.models.User.findAll({ where: { role: 'technician', disabled: false, ...(ids ? { id: ids } : {}) }, attributes: ['id', 'name', 'email'], order: [['name', 'ASC']] });
-    res.json(users.map((u) => ({ id: u.id, name: u.name, email: u.email })));
+    res.json(await svc.assignees(await visibleUserIds(ctx.models, await siteScopeOf(req))));
   });
 
   r.get('/work-orders', async (req, res) => {

@@ -11,11 +11,11 @@ import { io as ioClient, type Socket } from 'socket.io-client';
 import request from 'supertest';
 import path from 'node:path';
 import { createApp } from '../../server/app';
+import { alarmRouters } from '../../server/routes';
 import { createLogger } from '../../server/logger';
 import { LivePush } from '../../server/realtime/live-push';
 import { createAlarmFeature } from '../../server/services/alarms';
 import { siteScopeForUser } from '../../server/services/site-access';
-import { createUser } from '../../server/services/users';
 import type { AuthUser } from '../../server/telemetry/types';
 import { auth, makeTestApp, PASSWORD, type TestApp } from './helpers';
 
@@ -40,7 +40,7 @@ beforeAll(async () => {
     emit: () => undefined,
   } as unknown as typeof t.ctx.telemetry;
   // the core routers plus the alarm routers, over the same context and database
-  app = createApp(t.ctx, { staticDir: path.join(t.dataDir, 'no-app'), extraRouters: createAlarmFeature(t.ctx).routers });
+  app = createApp(t.ctx, { staticDir: path.join(t.dataDir, 'no-app'), extraRouters: alarmRouters(t.ctx, createAlarmFeature(t.ctx)) });
   const { Site, Engine, Alarm } = t.ctx.models;
   const row = (siteId: number, name: string) => ({ siteId, name, duty: 'standby' as const, capacityL: 60, coolantFamily: 'conventional' as const, glycolType: 'ethylene' as const, glycolPercent: 50, capPressureKpa: 100, oilDrainIntervalH: 250, runHours: 100 });
   ids.siteA = (await Site.create({ name: 'Alpha works', timeZone: 'UTC' })).id;

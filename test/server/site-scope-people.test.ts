@@ -6,6 +6,7 @@ import path from 'node:path';
 import type { Express } from 'express';
 import request from 'supertest';
 import { createApp } from '../../server/app';
+import { alarmRouters } from '../../server/routes';
 import { createAlarmFeature } from '../../server/services/alarms';
 import { auth, makeTestApp, PASSWORD, type TestApp } from './helpers';
 
@@ -16,7 +17,7 @@ let plannerA = '';
 
 beforeAll(async () => {
   t = await makeTestApp();
-  app = createApp(t.ctx, { staticDir: path.join(t.dataDir, 'no-app'), extraRouters: createAlarmFeature(t.ctx).routers });
+  app = createApp(t.ctx, { staticDir: path.join(t.dataDir, 'no-app'), extraRouters: alarmRouters(t.ctx, createAlarmFeature(t.ctx)) });
   ids.siteA = (await t.ctx.models.Site.create({ name: 'Alpha works', timeZone: 'UTC' })).id;
   ids.siteB = (await t.ctx.models.Site.create({ name: 'Bravo works', timeZone: 'UTC' })).id;
   const admin = auth(t.tokens.admin);

@@ -16,12 +16,12 @@ import { CHANNELS, type ChannelKey } from '../../shared/channels';
 import { MemoryLiveState } from '../../server/telemetry/live-state';
 import type { AcceptedReading } from '../../server/telemetry/types';
 import { auth, makeTestApp, type TestApp } from './helpers';
+import { openingHistoryOf } from '../../server/services/work-orders/reading-history';
 
 let t: TestApp;
 let engineId: number;
 let coldEngineId: number;
 let staleEngineId: number;
-let otherTechId: number;
 let otherTechToken: string;
 const listeners: Array<(r: AcceptedReading[]) => void> = [];
 const live = new MemoryLiveState();
@@ -71,8 +71,10 @@ beforeAll(async () => {
     onReadings: (l: (r: AcceptedReading[]) => void) => { listeners.push(l); },
     emit: (room: string, event: string, payload: unknown) => { emitted.push({ room, event, payload }); },
   } as unknown as typeof t.ctx.telemetry;
+  // as startServer does: the opening-check history is fed by telemetry
+  listeners.push(openingHistoryOf(t.ctx).onReadings);
   const { createUser } = await import('../../server/services/users');
-  otherTechId = (await createUser(t.ctx.models, { email: 'tech2@example.test', name: 'Second tech', password: 'correct-horse-battery', role: 'technician' }, 4)).id;
+  await createUser(t.ctx.models, { email: 'tech2@example.test', name: 'Second tech', password: 'correct-horse-battery', role: 'technician' }, 4);
   otherTechToken = (await request(t.app).post('/api/auth/login').send({ email: 'tech2@example.test', password: 'correct-horse-battery' }).expect(200)).body.token;
 });
 afterAll(() => t.close());

@@ -4,42 +4,32 @@
  * One open alarm per (engine, rule): a rule that fires again while its alarm is still open
  * re-activates that alarm instead of making a second one. All changes run one after another.
  */
-import { Op, UniqueConstraintError, type Sequelize } from 'sequelize';
-import { floodPeriods, ISA_18_2_FLOOD } from '../../../shared/alarms/flood';
-import { alarmPerformance, type AlarmActivation, type PerformanceReport } from '../../../shared/alarms/performance';
-import { isAnnunciated, newAlarm, transition, type AlarmEvent as MachineEvent, type AlarmRecord, type AlarmState } from '../../../shared/alarms/alarm-state';
+import { UniqueConstraintError, type Sequelize } from 'sequelize';
+import type { PerformanceReport } from '../../../shared/alarms/performance';
+import { newAlarm, transition, type AlarmEvent as MachineEvent } from '../../../shared/alarms/alarm-state';
 import type { RuleEvent } from '../../../shared/rules/rule-types';
-import { HttpError, notFound } from '../../http-error';
+import { HttpError } from '../../http-error';
 import type { Logger } from '../../logger';
 import type { Models } from '../../models';
 import type { Alarm } from '../../models/alarm';
 import type { AuthUser } from '../../telemetry/types';
+import { housekeepingRound } from './alarm-housekeeping';
+import { performanceReport } from './alarm-performance';
+import { alarmHistory, alarmSummary, findAlarm, listAlarms, type ListState } from './alarm-queries';
 import type { AlarmSettings } from './alarm-settings';
+import { alarmRecord, alarmView, directionOf, ms } from './alarm-view';
 import type { EngineDirectory, EngineEntry } from './engine-directory';
-import { LAST_LEVEL, type Notifier } from './notifier';
+import type { Notifier } from './notifier';
 import { atLeast } from './priority';
 import type { RuleDefinition } from './rule-definitions';
 import { alarmUnit } from './value-format';
+import { WriteQueue } from './write-queue';
 import { CHANNELS } from '../../../shared/channels';
 import type { AlarmHistoryPage, AlarmHistoryView, AlarmView } from '../../../shared/api/alarms-view';
 
 export type { AlarmHistoryPage, AlarmHistoryView, AlarmView } from '../../../shared/api/alarms-view';
 
-export type ListState = 'active' | 'shelved' | 'open' | 'all';
-
-const ANNUNCIATED: AlarmState[] = ['unacknowledged', 'acknowledged', 'returned-unacknowledged'];
-const iso = (d: Date | null | undefined) => (d ? new Date(d).toISOString() : null);
-const ms = (d: Date | null | undefined) => (d ? new Date(d).getTime() : null);
 const stamp = (t: number) => new Date(t).toISOString().replace('T', ' ').slice(0, 19) + ' UTC';
-
-/** Which way is worse for the value an alarm of this rule carries. */
-export function directionOf(def: RuleDefinition): 'high' | 'low' {
-  const p = def.params as { direction?: string };
-  if (def.kind === 'limit') return p.direction === 'low' ? 'low' : 'high';
-  if (def.kind === 'rate') return p.direction === 'falling' ? 'low' : 'high';
-  if (def.kind === 'boiling_margin' || def.kind === 'heater_loss') return 'low';
-  return 'high';
-}
 
 export interface AlarmServiceDeps {
   models: Models;
@@ -54,8 +44,12 @@ export interface AlarmServiceDeps {
   publish(view: AlarmView): void;
 }
 
+/**
+ * The alarm lifecycle (raise, clear, acknowledge, shelve, notes, out of service, late data, chattering),
+ * written through the write queue; reads, the performance report and housekeeping are in their own files.
+ */
 export class AlarmService {
-  private queue: Promise<unknown> = Promise.resolve();
+  private readonly queue = new WriteQueue();
   /** Open alarms by `${engineId}/${rule}`: id and the worst value written. */
   private readonly open = new Map<string, { id: number; worst: number | null; direction: 'high' | 'low' }>();
   /**
@@ -71,14 +65,12 @@ export class AlarmService {
 
   /** Run `fn` after every change queued before it. */
   private serial<T>(fn: () => Promise<T>): Promise<T> {
-    const p = this.queue.then(fn, fn);
-    this.queue = p.catch(() => undefined);
-    return p;
+    return this.queue.run(fn);
   }
 
   /** Wait for every queued change (tests, shutdown). */
   idle(): Promise<void> {
-    return this.serial(async () => undefined);
+    return this.queue.idle();
   }
 
   async loadOpen(): Promise<Alarm[]> {
@@ -92,54 +84,7 @@ export class AlarmService {
   }
 
   view(a: Alarm): AlarmView {
-    const e = this.deps.directory.get(a.engineId);
-    const def = this.deps.ruleDef(a.engineId, a.rule);
-    return {
-      id: a.id,
-      engineId: a.engineId,
-      engineName: e?.name ?? null,
-      siteId: e?.siteId ?? null,
-      siteName: e?.siteName ?? null,
-      rule: a.rule,
-      title: def?.title ?? a.rule,
-      priority: a.priority,
-      state: a.state as AlarmState,
-      active: a.active,
-      raisedAt: iso(a.raisedAt)!,
-      value: a.value,
-      worstValue: a.worstValue,
-      unit: a.unit,
-      message: a.message,
-      acknowledgedAt: iso(a.acknowledgedAt),
-      acknowledgedBy: a.acknowledgedBy ?? null,
-      note: a.note ?? null,
-      shelvedUntil: iso(a.shelvedUntil),
-      shelveReason: a.shelveReason ?? null,
-      clearedAt: iso(a.clearedAt),
-      closedAt: iso(a.closedAt),
-      escalationLevel: a.escalationLevel,
-      lastNotifiedAt: iso(a.lastNotifiedAt),
-      chatteringAt: iso(a.chatteringAt),
-    };
-  }
-
-  private record(a: Alarm, direction: 'high' | 'low'): AlarmRecord {
-    return {
-      ...newAlarm(direction),
-      state: a.state as AlarmState,
-      active: a.active,
-      raisedValue: a.value,
-      worstValue: a.worstValue,
-      lastValue: a.value,
-      message: a.message,
-      activatedAt: ms(a.raisedAt),
-      clearedAt: ms(a.clearedAt),
-      acknowledgedAt: ms(a.acknowledgedAt),
-      shelvedUntil: ms(a.shelvedUntil),
-      shelveReason: a.shelveReason ?? null,
-      // the database keeps the history; the machine only needs the present state
-      history: [],
-    };
+    return alarmView(a, this.deps.directory, this.deps.ruleDef);
   }
 
   /** One transition through the shared machine, written with its event row; refused ones change nothing. */
@@ -152,7 +97,7 @@ export class AlarmService {
   ): Promise<{ ok: true } | { ok: false; reason: string }> {
     const key = `${a.engineId}/${a.rule}`;
     const direction = this.open.get(key)?.direction ?? 'high';
-    const r = transition(this.record(a, direction), event, at);
+    const r = transition(alarmRecord(a, direction), event, at);
     if (!r.ok) return { ok: false, reason: r.reason };
     const n = r.alarm;
     const entry = n.history[n.history.length - 1];
@@ -351,10 +296,8 @@ export class AlarmService {
     return new Map([...this.open].map(([k, v]) => [k, v.id]));
   }
 
-  private async find(id: number): Promise<Alarm> {
-    const a = await this.deps.models.Alarm.findByPk(id);
-    if (!a) throw notFound('alarm');
-    return a;
+  private find(id: number): Promise<Alarm> {
+    return findAlarm(this.deps.models, id);
   }
 
   acknowledge(id: number, user: AuthUser, note: string | null): Promise<AlarmView> {
@@ -412,40 +355,19 @@ export class AlarmService {
     });
   }
 
-  /** Each tick: shelves that have run out come back; unacknowledged alarms escalate. */
+  /** Each tick: shelves that have run out come back; unacknowledged alarms escalate (alarm-housekeeping.ts). */
   housekeeping(now = Date.now()): Promise<void> {
-    return this.serial(async () => {
-      const { Alarm } = this.deps.models;
-      const expired = await Alarm.findAll({ where: { state: 'shelved', closedAt: null, shelvedUntil: { [Op.lte]: new Date(now) } } });
-      for (const a of expired) {
-        await this.apply(a, { type: 'shelf-expired' }, Math.max(now, ms(a.shelvedUntil) ?? now));
-      }
-      const due = await Alarm.findAll({
-        where: {
-          state: 'unacknowledged',
-          closedAt: null,
-          acknowledgedAt: null,
-          escalationLevel: { [Op.lt]: LAST_LEVEL },
-          lastNotifiedAt: { [Op.lte]: new Date(now - this.deps.settings.escalateAfterMs) },
-        },
-      });
-      for (const a of due) {
-        const engine = this.deps.directory.get(a.engineId);
-        if (engine) await this.notify(a, engine, a.escalationLevel + 1);
-      }
-    });
+    return this.serial(() =>
+      housekeepingRound({ models: this.deps.models, directory: this.deps.directory, escalateAfterMs: this.deps.settings.escalateAfterMs }, {
+        shelfExpired: (a, at) => this.apply(a, { type: 'shelf-expired' }, at),
+        escalate: (a, engine) => this.notify(a, engine, a.escalationLevel + 1),
+      }, now),
+    );
   }
 
-  /** `engineIds` (the caller's visible engines) narrows the list. */
-  async list(q: { state: ListState; engineId?: number; engineIds?: number[]; limit?: number }): Promise<AlarmView[]> {
-    const where: Record<string, unknown> = {};
-    if (q.engineIds !== undefined) where.engineId = q.engineId === undefined ? q.engineIds : q.engineIds.filter((id) => id === q.engineId);
-    else if (q.engineId !== undefined) where.engineId = q.engineId;
-    if (q.state === 'active') Object.assign(where, { closedAt: null, state: ANNUNCIATED });
-    else if (q.state === 'shelved') Object.assign(where, { closedAt: null, state: 'shelved' });
-    else if (q.state === 'open') where.closedAt = null;
-    const rows = await this.deps.models.Alarm.findAll({ where, order: [['raisedAt', 'DESC'], ['id', 'DESC']], limit: q.limit ?? 500 });
-    return rows.map((a) => this.view(a));
+  /** `engineIds` (the caller's visible engines) narrows the list (alarm-queries.ts). */
+  list(q: { state: ListState; engineId?: number; engineIds?: number[]; limit?: number }): Promise<AlarmView[]> {
+    return listAlarms(this.deps.models, (a) => this.view(a), q);
   }
 
   async get(id: number, page: { limit?: number; offset?: number } = {}): Promise<AlarmView & { history: AlarmHistoryView[]; historyTotal: number; meaning: string | null; firstStep: string | null }> {
@@ -456,79 +378,17 @@ export class AlarmService {
   }
 
   /** One page of an alarm's history in time order (ties in the order recorded). */
-  async history(id: number, page: { limit?: number; offset?: number } = {}): Promise<AlarmHistoryPage> {
-    const limit = page.limit ?? 200;
-    const offset = page.offset ?? 0;
-    const { rows, count } = await this.deps.models.AlarmEvent.findAndCountAll({ where: { alarmId: id }, order: [['at', 'ASC'], ['id', 'ASC']], limit, offset });
-    return {
-      total: count, limit, offset,
-      entries: rows.map((e) => ({ at: iso(e.at)!, event: e.event, fromState: e.fromState as AlarmState | null, toState: e.toState as AlarmState | null, userId: e.userId, value: e.value, note: e.note })),
-    };
+  history(id: number, page: { limit?: number; offset?: number } = {}): Promise<AlarmHistoryPage> {
+    return alarmHistory(this.deps.models, id, page);
   }
 
-  /** Ids of every alarm of these engines (site-scoped summaries). */
-  private async alarmIdsOf(engineIds: number[]): Promise<number[]> {
-    const rows = await this.deps.models.Alarm.findAll({ where: { engineId: engineIds }, attributes: ['id'] });
-    return rows.map((a) => a.id);
+  /** Open alarms counted by state, and the flood state (alarm-queries.ts). */
+  summary(now = Date.now(), engineIds?: number[]) {
+    return alarmSummary(this.deps.models, now, engineIds);
   }
 
-  /** Open alarms counted by state, and whether an alarm flood is going on (ISA-18.2: > 10 in 10 min begins, < 5 ends). */
-  async summary(now = Date.now(), engineIds?: number[]) {
-    const open = await this.deps.models.Alarm.findAll({ where: { closedAt: null, ...(engineIds ? { engineId: engineIds } : {}) }, attributes: ['state', 'priority'] });
-    const byState: Record<string, number> = {};
-    const byPriority: Record<string, number> = {};
-    for (const a of open) {
-      byState[a.state] = (byState[a.state] ?? 0) + 1;
-      if (isAnnunciated(a.state as AlarmState)) byPriority[a.priority] = (byPriority[a.priority] ?? 0) + 1;
-    }
-    // a flood that began up to an hour ago can still be going on
-    const since = now - 60 * 60_000;
-    const acts = await this.deps.models.AlarmEvent.findAll({ where: { event: 'activate', at: { [Op.gte]: new Date(since) }, ...(engineIds ? { alarmId: await this.alarmIdsOf(engineIds) } : {}) }, attributes: ['at'] });
-    const times = acts.map((e) => new Date(e.at).getTime());
-    const periods = floodPeriods(times, ISA_18_2_FLOOD, now);
-    const last = periods[periods.length - 1];
-    const flooding = !!last && last.end === null;
-    return {
-      open: open.length,
-      active: ANNUNCIATED.reduce((n, s) => n + (byState[s] ?? 0), 0),
-      byState,
-      byPriority,
-      flood: { flooding, since: flooding ? new Date(last.start).toISOString() : null, inLast10Min: times.filter((t) => t > now - ISA_18_2_FLOOD.windowMs).length },
-    };
+  /** ISA-18.2 style performance figures over [from, to) (alarm-performance.ts). */
+  performance(from: number, to: number, engineIds?: number[], chatter: { count?: number; windowMs?: number } = {}): Promise<PerformanceReport> {
+    return performanceReport(this.deps, from, to, engineIds, chatter);
   }
-
-  /** ISA-18.2 style performance figures over [from, to) from the recorded activations. */
-  async performance(from: number, to: number, engineIds?: number[], chatter: { count?: number; windowMs?: number } = {}): Promise<PerformanceReport> {
-    const { AlarmEvent, Alarm } = this.deps.models;
-    const scoped = engineIds ? { alarmId: await this.alarmIdsOf(engineIds) } : {};
-    const acts = await AlarmEvent.findAll({ where: { event: 'activate', at: { [Op.gte]: new Date(from), [Op.lt]: new Date(to) }, ...scoped }, order: [['at', 'ASC']] });
-    const ids = [...new Set(acts.map((e) => e.alarmId))];
-    const [alarms, later] = ids.length
-      ? await Promise.all([
-          Alarm.findAll({ where: { id: ids }, attributes: ['id', 'engineId', 'rule'] }),
-          AlarmEvent.findAll({ where: { alarmId: ids, event: ['acknowledge', 'clear'] }, order: [['at', 'ASC']] }),
-        ])
-      : [[], []];
-    const keyOf = new Map(alarms.map((a) => [a.id, `${this.deps.directory.get(a.engineId)?.name ?? `engine ${a.engineId}`}/${a.rule}`]));
-    const activations: AlarmActivation[] = acts.map((e) => {
-      const at = new Date(e.at).getTime();
-      const after = (kind: string) => later.find((l) => l.alarmId === e.alarmId && l.event === kind && new Date(l.at).getTime() >= at);
-      const ack = after('acknowledge');
-      const clr = after('clear');
-      return { key: keyOf.get(e.alarmId) ?? String(e.alarmId), activatedAt: at, acknowledgedAt: ack ? new Date(ack.at).getTime() : null, clearedAt: clr ? new Date(clr.at).getTime() : null };
-    });
-    return alarmPerformance(activations, {
-      from, to,
-      chatterCount: chatter.count ?? this.deps.settings.chatterCount,
-      chatterWindowMs: chatter.windowMs ?? this.deps.settings.chatterWindowMs,
-    });
-  }
-}
-
-/** Annunciated alarms per engine (for the engine list). */
-export async function activeAlarmCounts(models: Models): Promise<Map<number, number>> {
-  const rows = await models.Alarm.findAll({ where: { closedAt: null, state: ANNUNCIATED }, attributes: ['engineId'] });
-  const counts = new Map<number, number>();
-  for (const r of rows) counts.set(r.engineId, (counts.get(r.engineId) ?? 0) + 1);
-  return counts;
 }

@@ -1,18 +1,11 @@
 /**
  * The alarm feature in one place: mail catcher and outbox, rule engine fed by telemetry,
- * alarm lifecycle, notification and escalation, and its HTTP routers.
- * startServer creates it before the app (for the routers) and starts it once telemetry runs.
+ * alarm lifecycle, notification and escalation. Its HTTP routers are in server/routes (alarmRouters),
+ * wired by startServer, which creates the feature before the app and starts it once telemetry runs.
  */
-import type { Router } from 'express';
 import type { AppContext } from '../../app-context';
 import { startMailCatcher, type MailCatcher } from '../../mail/mail-catcher';
 import { startOutbox, type Outbox } from '../../mail/outbox';
-import { addOpenApiGroup } from '../../openapi';
-import { alarmsOpenApi } from '../../openapi/alarm-paths';
-import { alarmsRouter } from '../../routes/alarms';
-import { mailAdminRouter } from '../../routes/mail-admin';
-import { oncallRouter } from '../../routes/oncall';
-import { rulesRouter } from '../../routes/rules';
 import type { Telemetry } from '../../telemetry/types';
 import { ALARMS_ROOM, alarmsSiteRoom } from '../../realtime/live-push';
 import { loadAlarmSettings, type AlarmSettings } from './alarm-settings';
@@ -25,7 +18,6 @@ export interface AlarmFeature {
   settings: AlarmSettings;
   alarms: AlarmService;
   rules: RuleEngine;
-  routers: Router[];
   /** Null until started. */
   outbox(): Outbox | null;
   mailCatcher(): MailCatcher | null;
@@ -52,9 +44,8 @@ export function createAlarmFeature(ctx: AppContext, settings: AlarmSettings = lo
       return outbox.enqueue(mail);
     },
   });
-  // the rule engine and the alarm service need each other: the service asks for rule texts
-  let rules: RuleEngine;
-  const alarms = new AlarmService({
+  // the rule engine and the alarm service need each other: the service asks for rule texts (from `rules`, made below)
+  const alarms: AlarmService = new AlarmService({
     models,
     sequelize,
     log,
@@ -69,13 +60,12 @@ export function createAlarmFeature(ctx: AppContext, settings: AlarmSettings = lo
       if (emit && view.siteId !== null) emit(alarmsSiteRoom(view.siteId), 'alarm', view);
     },
   });
-  rules = new RuleEngine({ models, log, directory, alarms, lastSeen: (id) => lastSeen(id), lateAfterMs: settings.lateAfterMs });
+  const rules: RuleEngine = new RuleEngine({ models, log, directory, alarms, lastSeen: (id) => lastSeen(id), lateAfterMs: settings.lateAfterMs });
 
-  const feature: AlarmFeature = {
+  return {
     settings,
     alarms,
     rules,
-    routers: [],
     outbox: () => outbox,
     mailCatcher: () => catcher,
     async start(telemetry) {
@@ -114,7 +104,4 @@ export function createAlarmFeature(ctx: AppContext, settings: AlarmSettings = lo
       await catcher?.stop();
     },
   };
-  feature.routers = [alarmsRouter(ctx, feature), oncallRouter(ctx), rulesRouter(ctx, feature), mailAdminRouter(ctx)];
-  addOpenApiGroup(alarmsOpenApi);
-  return feature;
 }

@@ -22,12 +22,14 @@ export function sniffContent(buf: Buffer): Sniffed | null {
   return null;
 }
 
+/** C0 and C1 controls, DEL, and the bidirectional embeddings, overrides and isolates. */
+const UNSAFE_IN_NAME = (c: number) => c <= 0x1f || (c >= 0x7f && c <= 0x9f) || (c >= 0x202a && c <= 0x202e) || (c >= 0x2066 && c <= 0x2069);
+
 /** The client's file name, kept only as a label: no folders, no control characters, bounded. */
 export function cleanOriginalName(name: string | undefined): string {
   const base = (name ?? '').split(/[\\/]/).pop() ?? '';
-  // eslint-disable-next-line no-control-regex
-  // bidirectional overrides would let `x\u202Egnp.exe` display as `xexe.png`
-  const cleaned = base.replace(/[\u0000-\u001f\u007f-\u009f\u202a-\u202e\u2066-\u2069"<>|:*?]/g, '_').replace(/^\.+/, '').trim().slice(0, 200);
+  // control characters out; bidirectional overrides would let `x\u202Egnp.exe` display as `xexe.png`
+  const cleaned = [...base].map((ch) => (UNSAFE_IN_NAME(ch.codePointAt(0)!) || '"<>|:*?'.includes(ch) ? '_' : ch)).join('').replace(/^\.+/, '').trim().slice(0, 200);
   return cleaned || 'file';
 }
 

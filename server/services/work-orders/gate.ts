@@ -1,5 +1,6 @@
 import { openingCheck, DEFAULT_OPENING_SETTINGS, type OpeningCheckResult, type OpeningSettings } from '../../../shared/work/opening-check';
-import type { Engine } from '../../models';
+import { HttpError } from '../../http-error';
+import type { Engine, Models } from '../../models';
 import { openingTimings, type OpeningTimings } from './opening-settings';
 import type { ReadingHistory } from './reading-history';
 
@@ -69,4 +70,12 @@ export function liveObjections(g: GateResult, now = Date.now()): Objection[] {
     }
   }
   return out;
+}
+
+/** GET /api/engines/:id/opening-check: the check for one engine now, as the work-order page shows it. */
+export async function openingCheckOf(models: Models, history: ReadingHistory, engineId: number, lockoutConfirmed: boolean) {
+  const engine = await models.Engine.findByPk(engineId);
+  if (!engine) throw new HttpError(404, 'engine not found');
+  const g = await computeGate(history, engine, lockoutConfirmed);
+  return { engineId: engine.id, at: new Date().toISOString(), clear: g.clear, conditions: g.conditions, clearAt: g.clearAt, forecast: g.forecast, reasons: g.reasons, stale: g.stale, settings: g.settings };
 }

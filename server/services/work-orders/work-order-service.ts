@@ -224,6 +224,12 @@ export class WorkOrderService {
     await this.event(order.id, user.id, 'baseline-reset', { details: { channel: 'coolant_conductivity', baselineFrom: new Date(from).toISOString(), value: median, unit: 'uS/cm', samples: recent.length } }, transaction);
   }
 
+  /** Technicians who may be assigned, by name; `ids` limits them to the asker's sites (null: all). */
+  async assignees(ids: number[] | null) {
+    const users = await this.models.User.findAll({ where: { role: 'technician', disabled: false, ...(ids ? { id: ids } : {}) }, attributes: ['id', 'name', 'email'], order: [['name', 'ASC']] });
+    return users.map((u) => ({ id: u.id, name: u.name, email: u.email }));
+  }
+
   async list(user: AuthUser, q: ListQuery): Promise<WorkOrderSummary[]> {
     const where: WhereOptions = {};
     const w = where as Record<string | symbol, unknown>;

@@ -11,6 +11,7 @@ import request from 'supertest';
 import type { ChannelKey } from '../../../shared/channels';
 import type { AppContext } from '../../../server/app-context';
 import { createApp } from '../../../server/app';
+import { alarmRouters } from '../../../server/routes';
 import { loadJwtSecret } from '../../../server/auth/jwt-secret';
 import { createTokenService } from '../../../server/auth/tokens';
 import { loadConfig } from '../../../server/config';
@@ -54,7 +55,7 @@ export async function makeAlarmApp(settings: Partial<AlarmSettings> = {}): Promi
   const tokens = createTokenService(loadJwtSecret(dataDir));
   const ctx: AppContext = { config, log, sequelize, models, tokens, telemetry: null, startedAt: Date.now() };
   const feature = createAlarmFeature(ctx, { ...loadAlarmSettings({}), mailRetryBaseMs: 200, mailRetryMaxMs: 1000, ...settings });
-  const app = createApp(ctx, { staticDir: path.join(dataDir, 'no-app'), extraRouters: feature.routers });
+  const app = createApp(ctx, { staticDir: path.join(dataDir, 'no-app'), extraRouters: alarmRouters(ctx, feature) });
 
   const users = {} as AlarmApp['users'];
   const toks = {} as AlarmApp['tokens'];
