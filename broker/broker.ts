@@ -80,7 +80,7 @@ interface AedesLike {
   publish(packet: object, cb: (err?: Error) => void): void;
   close(cb: () => void): void;
   connectedClients: number;
-  on(event: string, listener: (...args: any[]) => void): void;
+  on(event: string, listener: (...args: never[]) => void): void;
 }
 type AuthError = Error & { returnCode?: number };
 

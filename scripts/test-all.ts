@@ -1,5 +1,5 @@
 /**
- * `npm test`: every part in turn (jest, the server tests again on PostgreSQL, component tests, end-to-end),
+ * `npm test`: every part in turn (lint and import cycles, jest, the server tests again on PostgreSQL, component tests, end-to-end),
  * each in its own process group, with its duration printed at the end; exits non-zero when any part failed.
  * A part that fails does not stop the others, so one run shows every failure.
  */
@@ -11,6 +11,9 @@ interface Part {
 }
 
 const PARTS: Part[] = [
+  // first and fast: a lint error or an import cycle fails the run before the long parts
+  { name: 'lint (ESLint, no warnings)', script: 'lint' },
+  { name: 'import cycles (madge)', script: 'lint:cycles' },
   { name: 'unit and server (jest)', script: 'test:unit' },
   { name: 'server on PostgreSQL (jest, throwaway cluster)', script: 'test:unit:pg' },
   { name: 'components (ng test)', script: 'test:components' },

@@ -24,9 +24,11 @@ export class Device extends Model<InferAttributes<Device>, InferCreationAttribut
   declare updatedAt: CreationOptional<Date>;
 
   override toJSON(): Omit<InferAttributes<Device>, 'secretHash' | SparkplugColumns> & DeviceSparkplugView {
-    const { secretHash: _hash, sparkplugGroupId, sparkplugEdgeNodeId, sparkplugDeviceId, sparkplugMetricMap, ...rest } = this.get({ plain: true });
+    const { sparkplugGroupId, sparkplugEdgeNodeId, sparkplugDeviceId, sparkplugMetricMap, ...plain } = this.get({ plain: true });
+    const rest: Partial<typeof plain> = plain;
+    delete rest.secretHash;
     const sparkplug = sparkplugGroupId && sparkplugEdgeNodeId ? { groupId: sparkplugGroupId, edgeNodeId: sparkplugEdgeNodeId, deviceId: sparkplugDeviceId ?? null } : null;
-    return { ...rest, sparkplug, metricMap: sparkplugMetricMap ? (JSON.parse(sparkplugMetricMap) as Record<string, unknown>) : null };
+    return { ...(rest as Omit<typeof plain, 'secretHash'>), sparkplug, metricMap: sparkplugMetricMap ? (JSON.parse(sparkplugMetricMap) as Record<string, unknown>) : null };
   }
 }
 

@@ -17,7 +17,9 @@ export class User extends Model<InferAttributes<User>, InferCreationAttributes<U
 
   /** Never expose the hash. */
   override toJSON(): Omit<InferAttributes<User>, 'passwordHash'> {
-    const { passwordHash: _hash, sessionVersion: _sv, ...rest } = this.get({ plain: true });
+    const rest: Partial<InferAttributes<User>> = this.get({ plain: true });
+    delete rest.passwordHash;
+    delete rest.sessionVersion;
     return rest as Omit<InferAttributes<User>, 'passwordHash'>;
   }
 }

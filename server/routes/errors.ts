@@ -9,7 +9,9 @@ export const apiNotFound: RequestHandler = (req, res) => {
 
 /** Every error leaves as `{ error, field? }` JSON; unexpected ones are logged and hidden. */
 export function apiErrors(log: Logger): ErrorRequestHandler {
-  return (err, req, res, _next) => {
+  return (err, req, res, next) => {
+    // an answer already on its way (a stream failed midway): Express closes the connection
+    if (res.headersSent) return next(err);
     if (err instanceof HttpError) {
       res.status(err.status).json(err.field ? { error: err.message, field: err.field } : { error: err.message });
       return;

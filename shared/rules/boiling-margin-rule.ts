@@ -13,7 +13,7 @@
 import { boilingPointC as defaultBoilingPointC } from '../coolant/boiling-point';
 import { ConcentrationBasis, GlycolType } from '../coolant/glycol';
 import { DelayedState, DelayMessages, initialDelayedState, advanceDelays, applyStatus, forceNormal, ConditionStatus } from './delayed-condition';
-import { RuleInput, RuleReading, RunGate, StepResult, isReading, isGood, gateOpen, gateText, fmt } from './rule-types';
+import { RuleReading, RunGate, StepResult, isReading, isGood, gateOpen, gateText, fmt } from './rule-types';
 
 export type BoilingPointFn = (gaugeKpa: number, glycol: GlycolType, percent: number, basis: ConcentrationBasis, atmosphereKpa?: number) => number;
 

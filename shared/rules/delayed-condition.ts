@@ -71,7 +71,7 @@ export function applyStatus(
   m: DelayMessages,
 ): { state: DelayedState; events: RuleEvent[] } {
   const first = advanceDelays(st, t, d, m, true);
-  let s = { ...first.state, heldValue: value };
+  const s = { ...first.state, heldValue: value };
   if (s.active) {
     if (s.worstValue === null || m.worse(value, s.worstValue)) s.worstValue = value;
     s.clearSince = status === 'normal' ? (s.clearSince ?? t) : null;

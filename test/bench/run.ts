@@ -25,6 +25,7 @@ import { loadJwtSecret } from '../../server/auth/jwt-secret';
 import { createTokenService } from '../../server/auth/tokens';
 import { describeInitialBundle, measureInitialBundle } from './initial-bundle';
 import { Db, freePort, seedFleet, type SeededDevice } from '../server/support/telemetry-server';
+import type { ServerHealth } from '../server/support/telemetry-server';
 
 const ROOT = path.resolve(__dirname, '../..');
 const FLOOD_MS = Number(process.env.BENCH_FLOOD_MS ?? 15_000);
@@ -67,7 +68,7 @@ function rawCeilingOnce(): Promise<{ rate: number; rows: number }> {
 }
 
 // ---------- server and publishers ----------
-interface Server { child: ChildProcess; pid: number; url: string; mqttPort: number; dataDir: string; db: Db; health(): Promise<any>; stop(): Promise<void> }
+interface Server { child: ChildProcess; pid: number; url: string; mqttPort: number; dataDir: string; db: Db; health(): Promise<ServerHealth>; stop(): Promise<void> }
 
 async function startServer(): Promise<Server> {
   const dataDir = fs.mkdtempSync(path.join(os.tmpdir(), 'jw-bench-'));
@@ -78,7 +79,7 @@ async function startServer(): Promise<Server> {
     env: { ...process.env, PORT: String(port), MQTT_PORT: String(mqttPort), SMTP_PORT: String(smtpPort), DATA_DIR: dataDir, LOG_LEVEL: 'warn' },
   });
   const url = `http://127.0.0.1:${port}`;
-  const health = async () => (await fetch(`${url}/api/health`, { signal: AbortSignal.timeout(10_000) })).json();
+  const health = async () => (await fetch(`${url}/api/health`, { signal: AbortSignal.timeout(10_000) })).json() as Promise<ServerHealth>;
   for (let i = 0; ; i++) {
     try { await health(); break; } catch { if (i > 300 || child.exitCode !== null) throw new Error('server did not start'); await sleep(200); }
   }

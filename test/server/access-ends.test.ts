@@ -9,6 +9,7 @@ import { io as ioClient, type Socket } from 'socket.io-client';
 import { telemetryTopic } from '../../shared/topics';
 import { Db, seedFleet, startServerProcess, type SeededDevice, type ServerProcess } from './support/telemetry-server';
 import { until } from './support/until';
+import type { ApiAnswer } from './support/api-answer';
 
 let server: ServerProcess;
 let db: Db;
@@ -25,7 +26,7 @@ const connect = async (username: string, password: string): Promise<MqttClient> 
 };
 
 
-async function api(method: string, path: string, token: string | null, body?: unknown): Promise<{ status: number; body: any }> {
+async function api(method: string, path: string, token: string | null, body?: unknown): Promise<{ status: number; body: ApiAnswer }> {
   const res = await fetch(server.url + path, {
     method,
     headers: { 'content-type': 'application/json', ...(token ? { authorization: `Bearer ${token}` } : {}) },
@@ -115,10 +116,10 @@ describe('devices', () => {
     const d = fleet[2];
     for (let i = 0; i < 3; i++) await expect(connect(d.username, 'wrong-secret')).rejects.toThrow();
     const report = await until('login_failed persisted', () => api('GET', '/api/admin/ingest', adminToken),
-      (r) => r.body.rejections.some((x: any) => x.deviceId === d.deviceId && x.reason === 'login_failed' && x.count === 3));
-    const row = report.body.rejections.find((x: any) => x.deviceId === d.deviceId && x.reason === 'login_failed');
+      (r) => r.body.rejections!.some((x) => x.deviceId === d.deviceId && x.reason === 'login_failed' && x.count === 3));
+    const row = report.body.rejections!.find((x) => x.deviceId === d.deviceId && x.reason === 'login_failed');
     expect(row).toMatchObject({ username: d.username, engineId: d.engineId });
-    expect(row.lastDetail).toMatch(/wrong secret/);
+    expect(row!.lastDetail).toMatch(/wrong secret/);
   });
 });
 

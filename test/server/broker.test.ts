@@ -12,6 +12,7 @@ import { MAX_PAYLOAD_BYTES, MAX_SAMPLES } from '../../shared/telemetry-payload';
 import { telemetryTopic } from '../../shared/topics';
 import { Db, seedFleet, startServerProcess, type SeededDevice, type ServerProcess } from './support/telemetry-server';
 import { until } from './support/until';
+import type { IngestReport } from './support/api-answer';
 
 let server: ServerProcess;
 let db: Db;
@@ -139,7 +140,7 @@ test('socket.io: a bad token is refused at the handshake; a good token receives 
   const d = fleet[0];
   const joined = await sock.emitWithAck('watch', { engineIds: [d.engineId] });
   expect(joined.rooms).toEqual([`engine:${d.engineId}`]);
-  const got = new Promise<any>((resolve) => sock.once('readings', resolve));
+  const got = new Promise<unknown>((resolve) => sock.once('readings', resolve));
   const c = await connect(d);
   const ts = Date.now();
   await c.publishAsync(telemetryTopic(d.engineId), JSON.stringify({ ts, values: { coolant_temp: 77.5 } }), { qos: 1 });
@@ -206,7 +207,7 @@ test('a CONNECT declaring a 200 MB packet is closed at once, before authenticati
   const adminId = await db.run(`INSERT INTO users (email, name, password_hash, role, disabled, created_at, updated_at) VALUES (?, ?, ?, 'admin', FALSE, ?, ?)`,
     ['broker-admin@example.test', 'Broker admin', bcrypt.hashSync('unused-secret-1', 4), now, now]);
   const token = createTokenService(loadJwtSecret(server.dataDir)).sign({ id: adminId, email: 'broker-admin@example.test', role: 'admin' });
-  const counters = async (): Promise<any> => ((await (await fetch(`${server.url}/api/admin/ingest`, { headers: { authorization: `Bearer ${token}` } })).json()) as any).counters;
+  const counters = async () => ((await (await fetch(`${server.url}/api/admin/ingest`, { headers: { authorization: `Bearer ${token}` } })).json()) as IngestReport).counters!;
   const before = (await counters()).oversizePacketsClosed;
   // fixed header of a CONNECT (type 1) with remaining length 200 MiB (4-byte variable length), then the
   // start of a body; a broker that buffers would wait here for the rest

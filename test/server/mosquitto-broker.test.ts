@@ -16,6 +16,7 @@ import { createTokenService } from '../../server/auth/tokens';
 import { telemetryTopic } from '../../shared/topics';
 import { mosquittoInstalled, startMosquitto, type Mosquitto } from './support/mosquitto';
 import { Db, seedFleet, startServerProcess, type ServerProcess } from './support/telemetry-server';
+import type { ApiAnswer } from './support/api-answer';
 
 jest.setTimeout(120_000);
 
@@ -44,7 +45,7 @@ const api = async (method: string, p: string, body?: unknown) => {
   const res = await fetch(server.url + p, {
     method, headers: { 'content-type': 'application/json', authorization: `Bearer ${token}` }, body: body === undefined ? undefined : JSON.stringify(body),
   });
-  return { status: res.status, body: (await res.json()) as any };
+  return { status: res.status, body: (await res.json()) as ApiAnswer };
 };
 const stored = async (engineId: number) => Number((await db.get<{ n: number }>('SELECT COUNT(*) AS n FROM readings WHERE engine_id = ?', [engineId])).n);
 const health = () => server.health();
@@ -136,7 +137,7 @@ itBroker('a lost broker shows as degraded in /api/health; the server reconnects 
   await mq.stop();
   const down = await waitFor('degraded', health, (h) => h.status === 'degraded');
   expect(down.broker).toMatchObject({ connected: false });
-  expect(down.broker.lastError).toEqual(expect.any(String));
+  expect(down.broker!.lastError).toEqual(expect.any(String));
   await mq.restart();
   await waitFor('connected again', health, (h) => h.status === 'ok' && h.broker?.connected === true, 60_000);
   // and readings flow again
@@ -152,8 +153,8 @@ itBroker("the server's own credentials refused: degraded with the broker's reaso
   const other = await startServerProcess({ group: true, env: { ...env, MQTT_URL: mq.adminUrl.replace(mq.admin.password, 'wrong-password'), MQTT_CLIENT_ID: 'jw-server-refused' } });
   try {
     const h1 = await waitFor('refused', other.health, (h) => h.status === 'degraded' && /authori[sz]ed|password/i.test(h.broker?.lastError ?? ''));
-    const h2 = await waitFor('a longer wait after more refusals', other.health, (h) => h.broker.retryInMs > h1.broker.retryInMs);
-    expect(h2.broker.connected).toBe(false);
+    const h2 = await waitFor('a longer wait after more refusals', other.health, (h) => h.broker!.retryInMs > h1.broker!.retryInMs);
+    expect(h2.broker!.connected).toBe(false);
   } finally {
     await other.stop('SIGKILL');
     fs.rmSync(other.dataDir, { recursive: true, force: true });

@@ -14,6 +14,7 @@ import { loadJwtSecret } from '../../server/auth/jwt-secret';
 import { createTokenService } from '../../server/auth/tokens';
 import { Db, seedFleet, startServerProcess, type SeededDevice, type ServerProcess } from './support/telemetry-server';
 import { until } from './support/until';
+import type { ApiAnswer } from './support/api-answer';
 
 // Sparkplug 3.0 Payload: timestamp = 1, metrics = 2, seq = 3. Metric: name = 1, alias = 2, timestamp = 3,
 // datatype = 4, is_null = 7, properties = 9, int_value = 10, long_value = 11, float_value = 12,
@@ -58,7 +59,7 @@ const api = async (method: string, path: string, body?: unknown) => {
   const res = await fetch(server.url + path, {
     method, headers: { Authorization: `Bearer ${adminToken}`, 'Content-Type': 'application/json' }, body: body === undefined ? undefined : JSON.stringify(body),
   });
-  return { status: res.status, body: await res.json() as any };
+  return { status: res.status, body: await res.json() as ApiAnswer };
 };
 
 interface Gateway { id: number; username: string; secret: string }
@@ -166,7 +167,7 @@ test('data for an unknown alias is counted and asks the edge node for a rebirth 
   expect(decode(cmd.payload).metrics).toEqual([expect.objectContaining({ name: 'Node Control/Rebirth', datatype: Boolean_, booleanValue: true })]);
   await until('unknown alias counted', () => rejections(gw.id), (r) => r.sparkplug_unknown_alias === 1);
   const report = await api('GET', '/api/admin/ingest');
-  expect(report.body.counters.sparkplug.rebirthRequests).toBeGreaterThanOrEqual(1);
+  expect(report.body.counters!.sparkplug!.rebirthRequests).toBeGreaterThanOrEqual(1);
   expect(await readings(d.engineId)).toEqual([]);
 
   // the rebirth arrives; then an alias the birth did not announce is still unknown, the announced one stored

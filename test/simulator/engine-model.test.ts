@@ -13,7 +13,6 @@ import {
 } from '../../simulator/engine-model';
 
 const T0 = Date.UTC(2026, 0, 5, 0, 0, 0); // a Monday, 00:00 UTC
-const MIN = 60_000;
 
 const standby: EngineSpec = { engineId: 7, duty: 'standby', capacityL: 120, capPressureKpa: 103, heaterSetpointC: 40, coolantFamily: 'conventional' };
 const continuous: EngineSpec = { engineId: 8, duty: 'continuous', capacityL: 200, capPressureKpa: 110, heaterSetpointC: null, coolantFamily: 'extended-life' };

@@ -1,5 +1,5 @@
 import { Op } from 'sequelize';
-import { CoolantInputError, estimateAfterTopUps, type TopUpEstimate } from '../../../shared/coolant';
+import { CoolantInputError, estimateAfterTopUps } from '../../../shared/coolant';
 import { badRequest } from '../../http-error';
 import type { Models } from '../../models';
 import type { TopUpLiquid } from '../../models/coolant-models';

@@ -1,7 +1,6 @@
 import { QueryTypes, type Sequelize } from 'sequelize';
 import { CHANNELS, RUNNING_RPM, type ChannelKey } from '../../../shared/channels';
 import type { TimedValue } from '../../../shared/work/opening-check';
-import type { AppContext } from '../../app-context';
 import type { AcceptedReading } from '../../telemetry/types';
 
 /** The channels the opening check reads. */
@@ -206,6 +205,6 @@ export class ReadingHistory {
  * The server's one opening-check history: startServer creates it and feeds it from telemetry.onReadings;
  * an app built without telemetry (tests) gets one that reads the stored record only.
  */
-export function openingHistoryOf(ctx: Pick<AppContext, 'sequelize' | 'openingHistory'>): ReadingHistory {
+export function openingHistoryOf(ctx: { sequelize: Sequelize; openingHistory?: ReadingHistory }): ReadingHistory {
   return (ctx.openingHistory ??= new ReadingHistory(ctx.sequelize));
 }

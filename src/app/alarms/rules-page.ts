@@ -106,7 +106,11 @@ export class RulesPage {
 
   /** A preview shown for numbers that were since changed would mislead: drop it. */
   private forgetPreview(key: string): void {
-    this.previews.update(({ [key]: _gone, ...rest }) => rest);
+    this.previews.update((all) => {
+      const rest = { ...all };
+      delete rest[key];
+      return rest;
+    });
   }
 
   protected setEnabled(key: string, enabled: boolean): void {
@@ -166,7 +170,13 @@ export class RulesPage {
     this.saving.set(true);
     try {
       if (engineId === null) {
-        const body = rules.map(({ overridden: _o, override: _v, ...def }) => ({ ...def, enabled: this.drafts()[def.key].enabled, params: { ...def.params, ...this.siParams(def) } }));
+        // the profile as sent: the definitions without the per-engine override fields
+        const body = rules.map((rule) => {
+          const def: Partial<typeof rule> = { ...rule };
+          delete def.overridden;
+          delete def.override;
+          return { ...def, enabled: this.drafts()[rule.key].enabled, params: { ...rule.params, ...this.siParams(rule) } };
+        });
         await firstValueFrom(this.http.put('/api/rules', { rules: body }));
       } else {
         // Keep earlier overrides; add one for every rule changed here.

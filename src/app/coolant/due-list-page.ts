@@ -1,4 +1,3 @@
-import { DatePipe } from '@angular/common';
 import { CreateWorkData, CreateWorkDialog } from '../work/create-work-dialog';
 import { WorkOrderDetail } from '../work/work-types';
 import { DisplayZone } from '../core/display-zone';

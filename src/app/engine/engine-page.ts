@@ -1,6 +1,6 @@
 import { DOCUMENT, DecimalPipe } from '@angular/common';
 import { ChangeDetectionStrategy, Component, DestroyRef, computed, effect, inject, input, signal, untracked } from '@angular/core';
-import { toObservable } from '@angular/core/rxjs-interop';
+import { toObservable, toSignal } from '@angular/core/rxjs-interop';
 import { MatButtonModule } from '@angular/material/button';
 import { MatCardModule } from '@angular/material/card';
 import { MatChipsModule } from '@angular/material/chips';
@@ -75,13 +75,14 @@ export class EnginePage {
 
   /** Route parameter (withComponentInputBinding). */
   readonly id = input<string>();
-  /** Query parameters (withComponentInputBinding): the trend's range and channels live in the address. */
-  readonly rangeParam = input<string | undefined>(undefined, { alias: 'range' });
-  readonly fromParam = input<string | undefined>(undefined, { alias: 'from' });
-  readonly toParam = input<string | undefined>(undefined, { alias: 'to' });
-  readonly channelsParam = input<string | undefined>(undefined, { alias: 'channels' });
   private readonly router = inject(Router);
   private readonly route = inject(ActivatedRoute);
+  /** Query parameters: the trend's range and channels live in the address. */
+  private readonly query = toSignal(this.route.queryParamMap);
+  private readonly rangeParam = computed(() => this.query()?.get('range') ?? undefined);
+  private readonly fromParam = computed(() => this.query()?.get('from') ?? undefined);
+  private readonly toParam = computed(() => this.query()?.get('to') ?? undefined);
+  private readonly channelsParam = computed(() => this.query()?.get('channels') ?? undefined);
   protected readonly engineId = computed(() => {
     const n = Number(this.id());
     return Number.isInteger(n) && n > 0 ? n : null;

@@ -8,7 +8,7 @@ import { CHANNELS, ChannelKey } from '../../../shared/channels';
 import { BandEngine, NormalBand, normalBand } from '../../../shared/normal-bands';
 import { PreferencesService } from '../core/preferences.service';
 import { convertStored, quantityOf } from '../ui/unit-format';
-import { Bucket, RunChange, channelTitle, toChannelSeries } from './trend-series';
+import { Bucket, RunChange, toChannelSeries } from './trend-series';
 
 /** The window on screen, ms since epoch. */
 export interface TrendWindow {

@@ -1,4 +1,5 @@
 import { ChangeDetectionStrategy, Component, ElementRef, computed, effect, inject, input, signal, untracked, viewChild } from '@angular/core';
+import { toSignal } from '@angular/core/rxjs-interop';
 import { FormsModule } from '@angular/forms';
 import { MatButtonModule } from '@angular/material/button';
 import { MatCardModule } from '@angular/material/card';
@@ -9,7 +10,8 @@ import { MatSelectModule } from '@angular/material/select';
 import { MatDatepickerModule } from '@angular/material/datepicker';
 import { provideNativeDateAdapter } from '@angular/material/core';
 import { checkDueDate, MAX_DUE, MIN_DUE } from './due-date';
-import { Router, RouterLink } from '@angular/router';
+import { ActivatedRoute, Router, RouterLink } from '@angular/router';
+import { map } from 'rxjs';
 import { AuthService } from '../core/auth.service';
 import { WorkApi, errorText } from './work-api';
 import { KIND_ALIASES, PRIORITY_TEXT } from './work-labels';
@@ -93,11 +95,12 @@ export class WorkNewPage {
   private readonly api = inject(WorkApi);
   private readonly auth = inject(AuthService);
   private readonly router = inject(Router);
+  /** The work kind asked for in the address (?kind=). */
+  private readonly kindParam = toSignal(inject(ActivatedRoute).queryParamMap.pipe(map((q) => q.get('kind') ?? undefined)));
 
   /** Query parameters (component input binding). */
   readonly engineId = input<string | undefined>();
   readonly alarmId = input<string | undefined>();
-  readonly kindParam = input<string | undefined>(undefined, { alias: 'kind' });
 
   protected readonly planner = computed(() => this.auth.hasRole('planner', 'admin'));
   protected readonly templates = signal<WorkTemplate[]>([]);

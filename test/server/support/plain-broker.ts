@@ -6,8 +6,12 @@
  */
 import net from 'node:net';
 
+interface PlainBroker {
+  on(event: 'subscribe', listener: (subs: unknown, client: { id: string } | null) => void): void;
+  handle(socket: net.Socket): void;
+}
 // eslint-disable-next-line @typescript-eslint/no-require-imports
-const { Aedes } = require('aedes') as { Aedes: { createBroker(opts?: object): Promise<any> } };
+const { Aedes } = require('aedes') as { Aedes: { createBroker(opts?: object): Promise<PlainBroker> } };
 
 async function main(): Promise<void> {
   const broker = await Aedes.createBroker();

@@ -11,6 +11,7 @@ import path from 'node:path';
 import bcrypt from 'bcryptjs';
 import sqlite3 from 'sqlite3';
 import { Client, createTestDatabase, numericTypes, type PgClient, type TestDatabase } from './test-db';
+import type { BrokerState } from '../../../server/telemetry/types';
 
 const ROOT = path.resolve(__dirname, '../../..');
 
@@ -25,6 +26,19 @@ export function freePort(): Promise<number> {
   });
 }
 
+/** A row as the tests read it: the columns they ask for are counts, ids, times and values. */
+export type Row = Record<string, number>;
+
+/** GET /api/health of a running server (telemetry always runs there, so `ingest` is set). */
+export interface ServerHealth {
+  status: 'ok' | 'degraded';
+  /** With an external broker (MQTT_URL) only. */
+  broker?: BrokerState;
+  uptimeS: number;
+  version: string;
+  ingest: { received: number; stored: number; duplicate: number; rejected: number; buffered: number };
+}
+
 export interface ServerProcess {
   child: ChildProcess;
   port: number;
@@ -35,7 +49,7 @@ export interface ServerProcess {
   databaseUrl: string;
   url: string;
   log(): string;
-  health(): Promise<any>;
+  health(): Promise<ServerHealth>;
   /** Sends SIGTERM (or `signal`; to the whole process group when started with `group`) and waits for the exit code. */
   stop(signal?: NodeJS.Signals): Promise<number | null>;
   ports: { port: number; mqttPort: number; smtpPort: number };
@@ -88,7 +102,7 @@ export async function startServerProcess(opts: ServerProcessOptions = {}): Promi
   child.stderr!.on('data', (d) => { output += d; });
   const exited = new Promise<number | null>((resolve) => child.once('exit', (code) => resolve(code)));
   const url = `http://127.0.0.1:${port}`;
-  const health = async () => (await fetch(`${url}/api/health`)).json();
+  const health = async () => (await fetch(`${url}/api/health`)).json() as Promise<ServerHealth>;
   const deadline = Date.now() + 45_000;
   for (;;) {
     if (child.exitCode !== null) throw new Error('server exited during start:\n' + output);
@@ -136,22 +150,22 @@ export class Db {
     this.db = new sqlite3.Database(target.replace(/^sqlite:(\/\/)?/, ''));
     this.db.configure('busyTimeout', 10_000);
   }
-  private async pgQuery(sql: string, params: unknown[]): Promise<any[]> {
+  private async pgQuery<T>(sql: string, params: unknown[]): Promise<T[]> {
     await this.pgReady;
     let n = 0;
     const text = sql.replace(/\?/g, () => `$${++n}`);
     const insert = /^\s*INSERT\b/i.test(text) && !/\bRETURNING\b/i.test(text);
-    return (await this.pg!.query(insert ? `${text} RETURNING *` : text, params)).rows;
+    return (await this.pg!.query<T>(insert ? `${text} RETURNING *` : text, params)).rows;
   }
-  all<T = any>(sql: string, params: unknown[] = []): Promise<T[]> {
-    if (this.pg) return this.pgQuery(sql, params);
+  all<T = Row>(sql: string, params: unknown[] = []): Promise<T[]> {
+    if (this.pg) return this.pgQuery<T>(sql, params);
     return new Promise((resolve, reject) => this.db!.all(sql, params, (err, rows) => (err ? reject(err) : resolve(rows as T[]))));
   }
-  async get<T = any>(sql: string, params: unknown[] = []): Promise<T> {
+  async get<T = Row>(sql: string, params: unknown[] = []): Promise<T> {
     return (await this.all<T>(sql, params))[0];
   }
   async run(sql: string, params: unknown[] = []): Promise<number> {
-    if (this.pg) return (await this.pgQuery(sql, params)).at(-1)?.id ?? 0;
+    if (this.pg) return (await this.pgQuery<Row>(sql, params)).at(-1)?.id ?? 0;
     return new Promise((resolve, reject) => this.db!.run(sql, params, function (err) { if (err) reject(err); else resolve(this.lastID); }));
   }
   private readonly prepared = new Map<string, sqlite3.Statement>();

@@ -10,7 +10,7 @@ import path from 'node:path';
 /** The few calls of `pg` used by the tests (the tree has no @types/pg). */
 export interface PgClient {
   connect(): Promise<void>;
-  query<R = any>(sql: string, params?: unknown[]): Promise<{ rows: R[]; rowCount: number | null }>;
+  query<R = Record<string, unknown>>(sql: string, params?: unknown[]): Promise<{ rows: R[]; rowCount: number | null }>;
   end(): Promise<void>;
 }
 // eslint-disable-next-line @typescript-eslint/no-require-imports
