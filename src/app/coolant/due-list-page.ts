@@ -49,13 +49,13 @@ import { RunHoursDialog, type RunHoursDialogData } from './run-hours-dialog';
           <h2>{{ s.siteName }} <span class="counts">{{ s.overdue }} overdue · {{ s.dueSoon }} due soon</span></h2>
           @if (s.entries.length) {
             <table class="due">
-              <thead><tr><th>State</th><th>Engine</th><th>Task</th><th>Why</th><th>Last done</th><th></th></tr></thead>
+              <thead><tr><th>State</th><th>Engine</th><th>Task</th><th>Why</th><th>Last done</th><th><span class="jw-visually-hidden">Actions</span></th></tr></thead>
               <tbody>
                 @for (e of s.entries; track e.engineId + e.taskKey) {
                   <tr [class.overdue]="e.state === 'overdue'" [class.soon]="e.state === 'due-soon'">
                     <td class="state"><mat-icon aria-hidden="true" [fontIcon]="e.state === 'overdue' ? 'error_outline' : 'schedule'" />{{ e.state === 'overdue' ? 'Overdue' : 'Due soon' }}</td>
                     <td class="engine"><a [routerLink]="['/engines', e.engineId]">{{ e.engineName }}</a><br /><span class="sub">{{ e.runHours.toFixed(1) }} h</span>
-                      @if (canCorrect()) { <button mat-button type="button" class="hours" (click)="correctHours(e)" [attr.aria-label]="'Correct run hours of ' + e.engineName">Correct hours</button> }
+                      @if (canCorrect()) { <button mat-button type="button" class="hours" (click)="correctHours(e)" [attr.aria-label]="'Correct hours of ' + e.engineName">Correct hours</button> }
                     </td>
                     <td>{{ e.title }}@if (e.placeholder) { <br /><span class="sub">placeholder interval: set the maker's figure</span> }</td>
                     <td class="reason">{{ e.reason }}</td>

@@ -7,7 +7,7 @@ describe('UserMenu', () => {
   let host: HTMLElement;
   let signOuts: number;
 
-  const trigger = () => host.querySelector<HTMLButtonElement>('button[aria-label="User menu"]')!;
+  const trigger = () => host.querySelector<HTMLButtonElement>('button.user-button')!;
   const panel = () => host.querySelector<HTMLElement>('.panel');
 
   beforeEach(() => {

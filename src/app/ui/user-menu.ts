@@ -20,7 +20,7 @@ let nextId = 0;
     '(focusout)': 'onFocusOut($event)',
   },
   template: `
-    <button #trigger mat-button type="button" class="user-button" aria-label="User menu"
+    <button #trigger mat-button type="button" class="user-button" [attr.aria-label]="name() + ', user menu'"
             [attr.aria-expanded]="open()" [attr.aria-controls]="panelId" (click)="toggle()">
       <mat-icon fontIcon="account_circle" />
       <span class="user-name">{{ name() }}</span>
