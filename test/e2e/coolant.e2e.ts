@@ -167,7 +167,7 @@ describe('coolant: tests, calculators, due list to work order', () => {
     const planner = await ctx.newPage();
     await signIn(planner, stack, ACCOUNTS.planner);
     await planner.goto(`${stack.baseUrl}/due`);
-    await planner.getByRole('button', { name: `Correct run hours of ${conventional.name}` }).first().click();
+    await planner.getByRole('button', { name: `Correct hours of ${conventional.name}` }).first().click();
     const dialog = await openDialog(planner);
     await fillChecked(dialog.getByLabel('Hour meter reads'), '1330');
     await fillChecked(dialog.getByLabel('Reason'), 'read from the hour meter at the monthly run');
