@@ -3,6 +3,7 @@ import type { Logger } from '../logger';
 import type { Counters } from './counters';
 import type { BufferedReading, IngestBuffer } from './ingest-buffer';
 import { dialectOf, insertReadingsSql, upsertRollupsSql, type InsertedReadingRow } from './sql';
+import { faultPoint } from './fault-point';
 
 export interface WriterOptions {
   /** Flush period (ms); a backlog is flushed again at once. */
@@ -184,6 +185,7 @@ export class ReadingWriter {
         stored.add(i, n, back);
       }
       for (const [sql, bind] of this.rollupStatements(stored.rows())) await run(db, sql, bind);
+      await faultPoint('rollup');
       await exec(db, 'COMMIT');
       return stored.count;
     } catch (err) {
@@ -210,6 +212,7 @@ export class ReadingWriter {
         stored.add(i, n, back);
       }
       for (const [sql, bind] of this.rollupStatements(stored.rows())) await sequelize.query(sql, { bind, transaction: t, type: QueryTypes.INSERT, logging: false });
+      await faultPoint('rollup');
       await t.commit();
       return stored.count;
     } catch (err) {
