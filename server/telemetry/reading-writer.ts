@@ -1,7 +1,7 @@
 import { QueryTypes, type Sequelize } from 'sequelize';
 import type { Logger } from '../logger';
 import type { Counters } from './counters';
-import type { BufferedReading, IngestBuffer } from './ingest-buffer';
+import { ReadingBlock, type IngestBuffer } from './ingest-buffer';
 import { dialectOf, insertReadingsSql, upsertRollupsSql, type InsertedReadingRow } from './sql';
 import { faultPoint } from './fault-point';
 
@@ -22,24 +22,26 @@ interface RollupRow {
 }
 
 /** Pre-aggregates a batch per (engine, channel, minute) so the upsert has one row per key. */
-export function aggregateRollups(rows: BufferedReading[]): RollupRow[] {
+export function aggregateRollups(rows: ReadingBlock): RollupRow[] {
   // a numeric key (no string per reading); ids beyond its range fall back to a string key
   const byKey = new Map<number | string, RollupRow>();
+  const { engine, channel, ts, value, quality } = rows;
   for (let i = 0; i < rows.length; i++) {
-    const r = rows[i];
-    const minute = r.ts - (r.ts % 60_000);
-    const key = r.engineId < 1_048_576 && r.channel < 16 && r.engineId >= 0 && r.channel >= 0
-      ? ((minute / 60_000) * 1_048_576 + r.engineId) * 16 + r.channel
-      : `${r.engineId}:${r.channel}:${minute}`;
+    const engineId = engine[i]; const ch = channel[i]; const t = ts[i];
+    const minute = t - (t % 60_000);
+    const key = engineId < 1_048_576 && engineId >= 0 && ch < 16
+      ? ((minute / 60_000) * 1_048_576 + engineId) * 16 + ch
+      : `${engineId}:${ch}:${minute}`;
     let agg = byKey.get(key);
     if (!agg) {
-      agg = { engineId: r.engineId, channel: r.channel, minute, min: null, max: null, sum: 0, count: 0, bad: 0 };
+      agg = { engineId, channel: ch, minute, min: null, max: null, sum: 0, count: 0, bad: 0 };
       byKey.set(key, agg);
     }
-    if (r.quality === 0) {
-      if (agg.min === null || r.value < agg.min) agg.min = r.value;
-      if (agg.max === null || r.value > agg.max) agg.max = r.value;
-      agg.sum += r.value;
+    if (quality[i] === 0) {
+      const v = value[i];
+      if (agg.min === null || v < agg.min) agg.min = v;
+      if (agg.max === null || v > agg.max) agg.max = v;
+      agg.sum += v;
       agg.count++;
     } else {
       agg.bad++;
@@ -86,6 +88,8 @@ export class ReadingWriter {
   private readonly perStatement: number;
   private readonly ackDelayMs: number;
   private timerDue = 0;
+  /** The rows of the current flush (flushes never overlap, so one block serves them all). */
+  private readonly block = new ReadingBlock(1024);
   private readonly dialect;
   private handle: Promise<SqliteHandle> | null = null;
   /** The full-size INSERT, prepared once: compiling a 500-row statement each time costs as much as running it. */
@@ -141,7 +145,7 @@ export class ReadingWriter {
   }
 
   private async writeBatch(): Promise<void> {
-    const rows = this.buffer.take(this.maxRows);
+    const rows = this.buffer.take(this.maxRows, this.block);
     if (rows.length === 0) {
       this.buffer.release();
       return;
@@ -172,7 +176,7 @@ export class ReadingWriter {
   }
 
   /** One transaction; returns how many rows were inserted (the rest were already stored). */
-  private async writeSqlite(rows: BufferedReading[]): Promise<number> {
+  private async writeSqlite(rows: ReadingBlock): Promise<number> {
     const db = await this.sqliteHandle();
     await exec(db, 'BEGIN IMMEDIATE');
     try {
@@ -201,7 +205,7 @@ export class ReadingWriter {
     return this.fullInsert;
   }
 
-  private async writeSequelize(rows: BufferedReading[]): Promise<number> {
+  private async writeSequelize(rows: ReadingBlock): Promise<number> {
     const sequelize = this.sequelize;
     const t = await sequelize.transaction();
     try {
@@ -222,7 +226,7 @@ export class ReadingWriter {
   }
 
   /** The rollup upsert of a batch, in statements of a few hundred keys. */
-  private rollupStatements(rows: BufferedReading[]): Array<[string, Array<number | null>]> {
+  private rollupStatements(rows: ReadingBlock): Array<[string, Array<number | null>]> {
     const rollups = aggregateRollups(rows);
     const perRollup = Math.floor(this.perStatement * 5 / 8);
     const out: Array<[string, Array<number | null>]> = [];
@@ -265,33 +269,34 @@ export class ReadingWriter {
 class NewRows {
   count = 0;
   private all = true;
-  private readonly kept: BufferedReading[] = [];
-  constructor(private readonly batch: BufferedReading[]) {}
+  private kept: ReadingBlock | null = null;
+  constructor(private readonly batch: ReadingBlock) {}
 
   add(from: number, n: number, back: InsertedReadingRow[]): void {
     this.count += back.length;
     if (back.length === n) {
-      if (!this.all) for (let i = from; i < from + n; i++) this.kept.push(this.batch[i]);
+      if (!this.all) this.kept!.append(this.batch, from, from + n);
       return;
     }
-    if (this.all) for (let i = 0; i < from; i++) this.kept.push(this.batch[i]);
-    this.all = false;
-    for (const r of back) {
-      this.kept.push({ engineId: Number(r.engine_id), channel: Number(r.channel), ts: Number(r.ts), value: Number(r.value), quality: Number(r.quality) === 0 ? 0 : 1 });
+    if (this.all) {
+      this.kept = new ReadingBlock(this.batch.length);
+      this.kept.append(this.batch, 0, from);
     }
+    this.all = false;
+    for (const r of back) this.kept!.push(Number(r.engine_id), Number(r.channel), Number(r.ts), Number(r.value), Number(r.quality) === 0 ? 0 : 1);
   }
 
-  rows(): BufferedReading[] {
-    return this.all ? this.batch : this.kept;
+  rows(): ReadingBlock {
+    return this.all ? this.batch : this.kept!;
   }
 }
 
-function readingBinds(rows: BufferedReading[], from: number, n: number): number[] {
+function readingBinds(rows: ReadingBlock, from: number, n: number): number[] {
   const bind: number[] = new Array(n * 5);
+  const { engine, channel, ts, value, quality } = rows;
   let k = 0;
   for (let i = from; i < from + n; i++) {
-    const r = rows[i];
-    bind[k++] = r.engineId; bind[k++] = r.channel; bind[k++] = r.ts; bind[k++] = r.value; bind[k++] = r.quality;
+    bind[k++] = engine[i]; bind[k++] = channel[i]; bind[k++] = ts[i]; bind[k++] = value[i]; bind[k++] = quality[i];
   }
   return bind;
 }
