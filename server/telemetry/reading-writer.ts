@@ -2,7 +2,7 @@ import { QueryTypes, type Sequelize } from 'sequelize';
 import type { Logger } from '../logger';
 import type { Counters } from './counters';
 import { ReadingBlock, type IngestBuffer } from './ingest-buffer';
-import { dialectOf, insertReadingsSql, upsertRollupsSql, type InsertedReadingRow } from './sql';
+import { dialectOf, insertReadingsSql, upsertRollupsSql, type InsertedReadingRow, type RollupPeriod } from './sql';
 import { faultPoint } from './fault-point';
 
 export interface WriterOptions {
@@ -50,6 +50,23 @@ export function aggregateRollups(rows: ReadingBlock): RollupRow[] {
   return [...byKey.values()];
 }
 
+/** Merges per-minute rows into per-hour rows (same key layout; `minute` holds the hour's start). */
+export function aggregateHours(minutes: RollupRow[]): RollupRow[] {
+  const byKey = new Map<string, RollupRow>();
+  for (const m of minutes) {
+    const hour = m.minute - (m.minute % 3_600_000);
+    const key = `${m.engineId}:${m.channel}:${hour}`;
+    const agg = byKey.get(key);
+    if (!agg) { byKey.set(key, { ...m, minute: hour }); continue; }
+    if (m.min !== null && (agg.min === null || m.min < agg.min)) agg.min = m.min;
+    if (m.max !== null && (agg.max === null || m.max > agg.max)) agg.max = m.max;
+    agg.sum += m.sum;
+    agg.count += m.count;
+    agg.bad += m.bad;
+  }
+  return [...byKey.values()];
+}
+
 /** The slice of node-sqlite3's Database the writer uses. */
 interface SqliteHandle {
   run(sql: string, params: unknown[], cb: (err: Error | null) => void): unknown;
@@ -60,6 +77,7 @@ interface SqliteHandle {
 
 interface SqliteStatement {
   all(params: unknown[], cb: (err: Error | null, rows: InsertedReadingRow[]) => void): unknown;
+  run(params: unknown[], cb: (err: Error | null) => void): unknown;
   finalize(cb: () => void): unknown;
 }
 
@@ -86,6 +104,8 @@ export class ReadingWriter {
   private readonly intervalMs: number;
   private readonly maxRows: number;
   private readonly perStatement: number;
+  /** Rollup rows per upsert: 8 binds each, about as many binds as a reading insert. */
+  private readonly perRollup: number;
   private readonly ackDelayMs: number;
   private timerDue = 0;
   /** The rows of the current flush (flushes never overlap, so one block serves them all). */
@@ -94,6 +114,8 @@ export class ReadingWriter {
   private handle: Promise<SqliteHandle> | null = null;
   /** The full-size INSERT, prepared once: compiling a 500-row statement each time costs as much as running it. */
   private fullInsert: Promise<SqliteStatement> | null = null;
+  /** The full-size rollup upsert, prepared once for the same reason (a flood fills several per flush). */
+  private fullRollup: Promise<SqliteStatement> | null = null;
 
   constructor(
     private readonly sequelize: Sequelize,
@@ -105,6 +127,7 @@ export class ReadingWriter {
     this.intervalMs = opts.intervalMs ?? 100;
     this.maxRows = opts.maxRowsPerFlush ?? 10_000;
     this.perStatement = opts.rowsPerStatement ?? 500;
+    this.perRollup = Math.floor(this.perStatement * 5 / 8);
     this.ackDelayMs = opts.ackDelayMs ?? 2;
     this.dialect = dialectOf(sequelize.getDialect());
   }
@@ -188,7 +211,11 @@ export class ReadingWriter {
           : await all(db, insertReadingsSql(n), readingBinds(rows, i, n));
         stored.add(i, n, back);
       }
-      for (const [sql, bind] of this.rollupStatements(stored.rows())) await run(db, sql, bind);
+      const fullRollupSql = upsertRollupsSql(this.dialect, this.perRollup);
+      for (const [sql, bind] of this.rollupStatements(stored.rows())) {
+        if (sql === fullRollupSql) await runPrepared(await this.fullRollupStatement(db), bind);
+        else await run(db, sql, bind);
+      }
       await faultPoint('rollup');
       await exec(db, 'COMMIT');
       return stored.count;
@@ -196,6 +223,13 @@ export class ReadingWriter {
       await exec(db, 'ROLLBACK').catch(() => undefined);
       throw err;
     }
+  }
+
+  private fullRollupStatement(db: SqliteHandle): Promise<SqliteStatement> {
+    this.fullRollup ??= new Promise<SqliteStatement>((resolve, reject) => {
+      const stmt = db.prepare(upsertRollupsSql(this.dialect, this.perRollup), (err) => (err ? reject(err) : resolve(stmt)));
+    }).catch((err) => { this.fullRollup = null; throw err; });
+    return this.fullRollup;
   }
 
   private fullInsertStatement(db: SqliteHandle): Promise<SqliteStatement> {
@@ -225,11 +259,17 @@ export class ReadingWriter {
     }
   }
 
-  /** The rollup upsert of a batch, in statements of a few hundred keys. */
+  /** The rollup upserts of a batch (per minute, then per hour), in statements of a few hundred keys. */
   private rollupStatements(rows: ReadingBlock): Array<[string, Array<number | null>]> {
-    const rollups = aggregateRollups(rows);
-    const perRollup = Math.floor(this.perStatement * 5 / 8);
+    const minutes = aggregateRollups(rows);
     const out: Array<[string, Array<number | null>]> = [];
+    this.upserts(minutes, 'minute', out);
+    this.upserts(aggregateHours(minutes), 'hour', out);
+    return out;
+  }
+
+  private upserts(rollups: RollupRow[], period: RollupPeriod, out: Array<[string, Array<number | null>]>): void {
+    const perRollup = this.perRollup;
     for (let i = 0; i < rollups.length; i += perRollup) {
       const chunk = rollups.slice(i, i + perRollup);
       const bind: Array<number | null> = new Array(chunk.length * 8);
@@ -238,9 +278,8 @@ export class ReadingWriter {
         bind[k++] = r.engineId; bind[k++] = r.channel; bind[k++] = r.minute; bind[k++] = r.min;
         bind[k++] = r.max; bind[k++] = r.sum; bind[k++] = r.count; bind[k++] = r.bad;
       }
-      out.push([upsertRollupsSql(this.dialect, chunk.length), bind]);
+      out.push([upsertRollupsSql(this.dialect, chunk.length, period), bind]);
     }
-    return out;
   }
 
   /** Stops the timer and writes everything still buffered. */
@@ -256,9 +295,12 @@ export class ReadingWriter {
       if (this.buffer.size >= before) attempts++;
     }
     // an unfinalized statement would keep the connection from closing with the others in sequelize.close()
-    const stmt = await this.fullInsert?.catch(() => null);
-    if (stmt) await new Promise<void>((resolve) => stmt.finalize(() => resolve()));
+    for (const prepared of [this.fullInsert, this.fullRollup]) {
+      const stmt = await prepared?.catch(() => null);
+      if (stmt) await new Promise<void>((resolve) => stmt.finalize(() => resolve()));
+    }
     this.fullInsert = null;
+    this.fullRollup = null;
   }
 }
 
@@ -305,6 +347,8 @@ const run = (db: SqliteHandle, sql: string, params: unknown[]) =>
   new Promise<void>((resolve, reject) => { db.run(sql, params, (err) => (err ? reject(err) : resolve())); });
 const all = (db: SqliteHandle, sql: string, params: unknown[]) =>
   new Promise<InsertedReadingRow[]>((resolve, reject) => { db.all(sql, params, (err, rows) => (err ? reject(err) : resolve(rows))); });
+const runPrepared = (stmt: SqliteStatement, params: unknown[]) =>
+  new Promise<void>((resolve, reject) => { stmt.run(params, (err) => (err ? reject(err) : resolve())); });
 const allPrepared = (stmt: SqliteStatement, params: unknown[]) =>
   new Promise<InsertedReadingRow[]>((resolve, reject) => { stmt.all(params, (err, rows) => (err ? reject(err) : resolve(rows))); });
 const exec = (db: SqliteHandle, sql: string) =>

@@ -77,6 +77,7 @@ test('SIGKILL while a rollup is being written: consistent after restart, acknowl
     await expectIntact(db);
     const counts = await rawAndRollupCounts(db, device.engineId);
     expect(counts.rollups).toEqual(counts.raw);
+    expect(counts.hourly).toEqual(counts.rawHours);
     const perMessage = new Map((await db.all<{ m: number; n: number }>(
       `SELECT (ts - CAST(? AS BIGINT)) / CAST(? AS BIGINT) AS m, COUNT(*) AS n FROM readings WHERE engine_id = ? GROUP BY m`,
       [baseTs, SAMPLES, device.engineId])).map((r) => [Number(r.m), Number(r.n)]));
@@ -101,6 +102,7 @@ test('SIGKILL while a rollup is being written: consistent after restart, acknowl
     expect(await db.all('SELECT engine_id, channel, ts FROM readings GROUP BY engine_id, channel, ts HAVING COUNT(*) > 1')).toEqual([]);
     const counts = await rawAndRollupCounts(db, device.engineId);
     expect(counts.rollups).toEqual(counts.raw);
+    expect(counts.hourly).toEqual(counts.rawHours);
     console.log(`rollup crash test: killed inside a flush after its rollup upsert with ${ackedAtKill.length * SAMPLES * CHANNELS} readings acknowledged, all stored; `
       + `end: ${total.n} readings stored once, integrity ok, rollups = raw`);
   } finally {

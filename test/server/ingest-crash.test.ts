@@ -106,6 +106,7 @@ test('SIGKILL mid-flood, three times: every acknowledged reading is stored, none
     // rollups of the window equal the raw counts, minute by minute
     const counts = await rawAndRollupCounts(db, device.engineId);
     expect(counts.rollups).toEqual(counts.raw);
+    expect(counts.hourly).toEqual(counts.rawHours);
     console.log(`ingest crash test: ${figures.join('; ')}; end: ${total.n} readings stored once, 0 acknowledged lost, 0 duplicates, integrity ok, rollups = raw`);
   } finally {
     await db.close();

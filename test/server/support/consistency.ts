@@ -24,11 +24,18 @@ export async function expectIntact(db: Db): Promise<void> {
   }
 }
 
-/** Per channel and minute: raw readings counted, and the rollup's count + bad_count, of one engine. */
-export async function rawAndRollupCounts(db: Db, engineId: number): Promise<{ raw: unknown[]; rollups: unknown[] }> {
+/**
+ * Per channel and minute: raw readings counted, and the rollup's count + bad_count, of one engine; the same
+ * per hour against the per-hour rollups.
+ */
+export async function rawAndRollupCounts(db: Db, engineId: number): Promise<{ raw: unknown[]; rollups: unknown[]; rawHours: unknown[]; hourly: unknown[] }> {
   const raw = await db.all<{ channel: number; minute: number; n: number }>(
     `SELECT channel, ts - (ts % 60000) AS minute, COUNT(*) AS n FROM readings WHERE engine_id = ? GROUP BY channel, minute ORDER BY channel, minute`, [engineId]);
   const rollups = await db.all<{ channel: number; minute: number; n: number }>(
     `SELECT channel, minute, "count" + bad_count AS n FROM rollups WHERE engine_id = ? ORDER BY channel, minute`, [engineId]);
-  return { raw, rollups };
+  const rawHours = await db.all(
+    `SELECT channel, ts - (ts % 3600000) AS hour, COUNT(*) AS n FROM readings WHERE engine_id = ? GROUP BY channel, hour ORDER BY channel, hour`, [engineId]);
+  const hourly = await db.all(
+    `SELECT channel, hour, "count" + bad_count AS n FROM rollups_hourly WHERE engine_id = ? ORDER BY channel, hour`, [engineId]);
+  return { raw, rollups, rawHours, hourly };
 }
