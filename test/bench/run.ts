@@ -11,7 +11,8 @@
  *  3. QoS 0 flood: memory and responsiveness while TCP backpressure holds the inflow; bounded in time
  *     (publishers stop, the server gets a bounded drain time), then published (handed to TCP) vs
  *     received vs stored. QoS 0 has no acknowledgement: "nothing lost" is a QoS 1 claim only;
- * Phase lengths: BENCH_FLOOD_MS, BENCH_LATENCY_MS, BENCH_QOS0_MS, BENCH_DRAIN_MS.
+ *  then the retention sweep and the long-trend phase (trend.ts: trend30dMs / trend1hMs with 200 engines x 30 days).
+ * Phase lengths: BENCH_FLOOD_MS, BENCH_LATENCY_MS, BENCH_QOS0_MS, BENCH_DRAIN_MS. One phase alone: BENCH_PHASE=qos1|retention|trend.
  * BENCH_JSON=file: the figures also as JSON (ingestPerS, rawCeilingPerS, lostAcknowledged, duplicatesStored,
  * rssGrowthPct, ...), to compare runs.
  */
@@ -24,6 +25,7 @@ import { io as ioClient } from 'socket.io-client';
 import { loadJwtSecret } from '../../server/auth/jwt-secret';
 import { createTokenService } from '../../server/auth/tokens';
 import { describeInitialBundle, measureInitialBundle } from './initial-bundle';
+import { printTrend, trendPhase } from './trend';
 import { Db, freePort, seedFleet, type SeededDevice } from '../server/support/telemetry-server';
 
 const ROOT = path.resolve(__dirname, '../..');
@@ -266,6 +268,7 @@ async function main(): Promise<void> {
 
   const progress = (m: string) => process.stderr.write(`[${((Date.now() - t0) / 1000).toFixed(1)} s] ${m}\n`);
   if (process.env.BENCH_PHASE === 'retention') { printRetention(await retentionPhase(progress)); process.exit(0); }
+  if (process.env.BENCH_PHASE === 'trend') { printTrend(await trendPhase(progress)); process.exit(0); }
   progress('raw ceiling (3 runs)');
   const rawRuns: Array<{ rate: number; rows: number }> = [];
   const qos1Only = process.env.BENCH_PHASE === 'qos1'; // the QoS 1 flood alone, no ceiling (to compare memory or speed quickly)
@@ -400,6 +403,8 @@ async function main(): Promise<void> {
   line('peak RSS (VmHWM) after the QoS 0 flood', `${hwmQos0.toFixed(0)} MB`);
   const retention = await retentionPhase(progress);
   printRetention(retention);
+  const trend = await trendPhase(progress);
+  printTrend(trend);
   const initialBundle = measureInitialBundle();
   console.log('\n4. App: first download (the production build in dist/, measured as the build estimates it)');
   line('initial bundle (initialTransferKb)', describeInitialBundle(initialBundle));
@@ -417,6 +422,7 @@ async function main(): Promise<void> {
       retentionRowsPerS: Number.isFinite(retention.sweepS) ? Math.round(retention.backlog / retention.sweepS) : null,
       retentionLoopMaxMs: retention.loopMax, retentionHealthMaxMs: r1(retention.healthMax),
       retentionBatchLatencyMaxMs: retention.batchLatency?.max ?? null,
+      trend30dMs: r1(trend.trend30dMs), trend1hMs: r1(trend.trend1hMs), trend30dMinuteRollupsMs: r1(trend.trend30dMinutesMs), trendEngines: trend.engines, trendDays: trend.days,
     }, null, 2) + '\n');
     console.log(`figures written to ${process.env.BENCH_JSON}`);
   }

@@ -24,6 +24,8 @@ const HOUR = 3_600_000;
 export interface TrendFigures {
   engines: number; days: number; minuteRows: number; hourRows: number; rawRows: number; seedS: number;
   trend30dMs: number; trend1hMs: number; trend30dRuns: number[]; trend1hRuns: number[]; source30d: string;
+  /** The same 30 days at 2,000 points: 22-minute buckets, so from the per-minute rollups (the path every 30-day chart took before 0020). */
+  trend30dMinutesMs: number;
 }
 
 const median = (xs: number[]) => [...xs].sort((a, b) => a - b)[Math.floor(xs.length / 2)];
@@ -71,26 +73,27 @@ export async function trendPhase(progress: (m: string) => void): Promise<TrendFi
     server = await startServerProcess({ dataDir, ports, group: true });
     try {
       const token = createTokenService(loadJwtSecret(dataDir)).sign({ id: adminId, email: 'bench-trend@example.test', role: 'admin' });
-      const time = async (engineId: number, from: number, to: number): Promise<{ ms: number; source: string }> => {
+      const time = async (engineId: number, from: number, to: number, points = POINTS): Promise<{ ms: number; source: string }> => {
         const t = performance.now();
-        const res = await fetch(`${server.url}/api/engines/${engineId}/readings?channel=coolant_temp&from=${from}&to=${to}&points=${POINTS}`, { headers: { authorization: `Bearer ${token}` } });
+        const res = await fetch(`${server.url}/api/engines/${engineId}/readings?channel=coolant_temp&from=${from}&to=${to}&points=${points}`, { headers: { authorization: `Bearer ${token}` } });
         const body = (await res.json()) as { buckets: unknown[]; source: string; rollupPeriod?: string | null };
         const ms = performance.now() - t;
         if (!res.ok || body.buckets.length === 0) throw new Error(`trend request answered ${res.status} with ${body.buckets?.length} buckets`);
         return { ms, source: `${body.source}${body.rollupPeriod ? `/${body.rollupPeriod}` : ''} (${body.buckets.length} buckets)` };
       };
       await time(fleet[0].engineId, now - DAYS * 24 * HOUR, now); // warm the route once
-      const runs30: number[] = []; const runs1h: number[] = [];
+      const runs30: number[] = []; const runs1h: number[] = []; const runs30m: number[] = [];
       let source30d = '';
       for (let i = 0; i < REQUESTS; i++) {
         const engineId = fleet[(i * 37 + 11) % fleet.length].engineId;
         const long = await time(engineId, now - DAYS * 24 * HOUR, now);
         runs30.push(long.ms); source30d = long.source;
         runs1h.push((await time(engineId, now - HOUR, now)).ms);
+        runs30m.push((await time(engineId, now - DAYS * 24 * HOUR, now, 2000)).ms);
       }
       return {
         engines: ENGINES, days: DAYS, minuteRows, hourRows, rawRows, seedS,
-        trend30dMs: median(runs30), trend1hMs: median(runs1h), trend30dRuns: runs30, trend1hRuns: runs1h, source30d,
+        trend30dMs: median(runs30), trend1hMs: median(runs1h), trend30dRuns: runs30, trend1hRuns: runs1h, source30d, trend30dMinutesMs: median(runs30m),
       };
     } finally {
       await server.stop();
@@ -107,4 +110,5 @@ export function printTrend(r: TrendFigures): void {
   line(`${r.days}-day trend (trend30dMs)`, `${r.trend30dMs.toFixed(1)} ms from ${r.source30d}`);
   line('1-hour trend (trend1hMs)', `${r.trend1hMs.toFixed(1)} ms from raw readings`);
   line('ratio 30-day / 1-hour', `${(r.trend30dMs / r.trend1hMs).toFixed(2)}   (goal <= 2)`);
+  line(`${r.days} days from per-minute rollups (2,000 points)`, `${r.trend30dMinutesMs.toFixed(1)} ms (the path before per-hour rollups)`);
 }
