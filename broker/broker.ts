@@ -170,7 +170,15 @@ export async function createBroker(opts: BrokerOptions): Promise<Broker> {
         }
         if (parsed.kind === 'status') return cb(null);
         let called = false;
-        const payload = Buffer.isBuffer(packet.payload) ? packet.payload : Buffer.from(packet.payload ?? '');
+        let payload = Buffer.isBuffer(packet.payload) ? packet.payload : Buffer.from(packet.payload ?? '');
+        // The parser hands over a view into the socket's read chunk (up to 64 KiB, shared by the packets
+        // that arrived together). The packet is held until its readings are committed, so that view kept the
+        // whole chunk alive long enough to be promoted: under a flood the old generation filled with read
+        // chunks. A copy of just the payload (same bytes, also kept for aedes) lets the chunk die young.
+        if (payload.buffer.byteLength > 2 * payload.length + 1024) {
+          payload = Buffer.from(payload);
+          packet.payload = payload;
+        }
         opts.onTelemetry(device, parsed.engineId, payload, () => {
           if (called) return;
           called = true;

@@ -1,10 +1,12 @@
 import { ConfigError, loadConfig } from './config';
+import { boundHeapGrowth } from './heap-growth';
 import { createLogger } from './logger';
 import { installProcessGuards } from './process-guards';
 import { startServer } from './start';
 
 /** `npm run server`: everything on the configured ports, no demo data. */
 async function main(): Promise<void> {
+  boundHeapGrowth();
   const config = loadConfig();
   const log = createLogger(config.logLevel);
   installProcessGuards(log);

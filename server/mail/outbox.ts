@@ -38,10 +38,13 @@ export interface Outbox {
 
 /**
  * Several servers share one outbox: a message is sent by the one whose conditional update moves its
- * next attempt this far ahead (a lease); the others see it changed and leave it. If that server dies
- * mid-send, the message is due again once the lease ends.
+ * next attempt ahead by the lease; the others see it changed and leave it. If that server dies
+ * mid-send (or is killed and restarted), the message is due again once the lease ends, with its one
+ * Message-ID. The lease follows the relay timeout: a send waits for the connection, the greeting and
+ * five answers (EHLO, MAIL, RCPT, DATA, end of data), each limited by the timeout, so CLAIM_TIMEOUTS
+ * timeouts outlast any send that has not failed by itself (5 s timeout: a 40 s lease).
  */
-export const CLAIM_MS = 120_000;
+export const CLAIM_TIMEOUTS = 8;
 
 /** Exponential back-off: base, 2 base, 4 base, ... at most max. */
 export function retryDelayMs(attempts: number, baseMs: number, maxMs: number): number {
@@ -82,7 +85,9 @@ export function startOutbox(opts: OutboxOptions): Outbox {
   const base = opts.retryBaseMs ?? 5000;
   const max = opts.retryMaxMs ?? 10 * 60 * 1000;
   const parallel = Math.max(1, opts.parallel ?? 4);
-  const transport = createTransport(config, opts.timeoutMs ?? 5000);
+  const timeoutMs = opts.timeoutMs ?? 5000;
+  const claimMs = CLAIM_TIMEOUTS * timeoutMs;
+  const transport = createTransport(config, timeoutMs);
   const inFlight = new Map<number, Promise<void>>();
   let picking: Promise<void> | null = null;
   let again = false;
@@ -91,7 +96,7 @@ export function startOutbox(opts: OutboxOptions): Outbox {
   /** True when this sender took the message: still unsent and untouched since it was read. */
   async function claim(msg: OutboxMessage): Promise<boolean> {
     const [taken] = await model.update(
-      { nextAttemptAt: new Date(Date.now() + CLAIM_MS) },
+      { nextAttemptAt: new Date(Date.now() + claimMs) },
       { where: { id: msg.id, sentAt: null, nextAttemptAt: msg.nextAttemptAt } },
     );
     return taken === 1;

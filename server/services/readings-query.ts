@@ -13,8 +13,10 @@ export interface Bucket {
 
 export interface BucketResult {
   buckets: Bucket[];
-  /** 'rollup': per-minute summaries, because the span is long or it reaches back past the raw retention. */
+  /** 'rollup': summaries, because the span is long or it reaches back past the raw retention. */
   source: 'raw' | 'rollup';
+  /** Which summaries a 'rollup' answer read: per minute, or per hour when a bucket spans an hour or more (null: raw). */
+  rollupPeriod: 'minute' | 'hour' | null;
   /** RAW_RETENTION_DAYS (0: raw readings are kept for good). */
   rawRetentionDays: number;
   /** Raw readings are kept from this instant on (ms); null when kept for good. */
@@ -39,6 +41,7 @@ export interface ReadingsQuery {
 /** Spans up to this length come from raw readings; longer ones from the per-minute rollups. */
 export const RAW_SPAN_LIMIT_MS = 6 * 3600 * 1000;
 const MINUTE_MS = 60_000;
+const HOUR_MS = 3_600_000;
 
 // node-sqlite3 binds numbers beyond 32 bits as REAL: cast so the bucket division stays integer
 const intCast = (sequelize: Sequelize, n: number) => `CAST($${n} AS ${sequelize.getDialect() === 'postgres' ? 'BIGINT' : 'INTEGER'})`;
@@ -65,6 +68,7 @@ export async function queryBuckets(sequelize: Sequelize, q: ReadingsQuery, reten
   let from = q.from;
   let width: number;
   let sql: string;
+  let period: 'minute' | 'hour' | null = null;
   if (source === 'raw') {
     width = Math.max(1, Math.ceil(span / q.points));
     sql = `SELECT (ts - ${c(3)}) / ${c(5)} AS b, MIN(value) AS mn, MAX(value) AS mx, AVG(value) AS mean, COUNT(*) AS n
@@ -72,18 +76,24 @@ export async function queryBuckets(sequelize: Sequelize, q: ReadingsQuery, reten
       WHERE engine_id = $1 AND channel = $2 AND quality = 0 AND ts >= ${c(3)} AND ts < ${c(4)}
       GROUP BY b ORDER BY b`;
   } else {
-    // buckets are whole minutes, aligned to the minute of `from`
-    from = Math.floor(q.from / MINUTE_MS) * MINUTE_MS;
-    width = Math.max(1, Math.ceil((q.to - from) / MINUTE_MS / q.points)) * MINUTE_MS;
-    sql = `SELECT (minute - ${c(3)}) / ${c(5)} AS b, MIN("min") AS mn, MAX("max") AS mx,
+    // buckets are whole minutes, aligned to the minute of `from`; when a bucket would span half an hour or more
+    // (a 30-day chart), whole hours from the per-hour rollups: 24 rows a day instead of 1,440
+    const minuteFrom = Math.floor(q.from / MINUTE_MS) * MINUTE_MS;
+    period = Math.ceil((q.to - minuteFrom) / MINUTE_MS / q.points) >= 30 ? 'hour' : 'minute';
+    const unit = period === 'hour' ? HOUR_MS : MINUTE_MS;
+    from = Math.floor(q.from / unit) * unit;
+    width = Math.max(1, Math.ceil((q.to - from) / unit / q.points)) * unit;
+    const [table, key] = period === 'hour' ? ['rollups_hourly', 'hour'] : ['rollups', 'minute'];
+    sql = `SELECT (${key} - ${c(3)}) / ${c(5)} AS b, MIN("min") AS mn, MAX("max") AS mx,
         SUM("sum") * 1.0 / SUM("count") AS mean, SUM("count") AS n
-      FROM rollups
-      WHERE engine_id = $1 AND channel = $2 AND "count" > 0 AND minute >= ${c(3)} AND minute < ${c(4)}
+      FROM ${table}
+      WHERE engine_id = $1 AND channel = $2 AND "count" > 0 AND ${key} >= ${c(3)} AND ${key} < ${c(4)}
       GROUP BY b ORDER BY b`;
   }
   const rows = await sequelize.query<Row>(sql, { bind: [q.engineId, code, from, q.to, width], type: QueryTypes.SELECT });
   return {
     source,
+    rollupPeriod: period,
     rawRetentionDays: retention.rawRetentionDays,
     rawKeptFrom: keptFrom,
     beyondRawRetention,

@@ -78,7 +78,7 @@ export async function startTelemetry(deps: TelemetryDeps, options: TelemetryOpti
             counters.outOfRange++;
             activity.reject(deviceId, 'out_of_range', `${a.channel} = ${a.value} outside ${CHANNELS[a.channel].physicalMin}..${CHANNELS[a.channel].physicalMax}`);
           }
-          buffer.push({ engineId, channel: CHANNELS[a.channel].code, ts: a.ts, value: a.value, quality: a.quality });
+          buffer.push(engineId, CHANNELS[a.channel].code, a.ts, a.value, a.quality);
           batch[i] = { engineId, channel: a.channel, ts: a.ts, value: a.value, quality: a.quality };
         }
         counters.received += batch.length;

@@ -1,8 +1,9 @@
 import { QueryTypes, type Sequelize } from 'sequelize';
 import type { Logger } from '../logger';
 import type { Counters } from './counters';
-import type { BufferedReading, IngestBuffer } from './ingest-buffer';
-import { dialectOf, insertReadingsSql, upsertRollupsSql, type InsertedReadingRow } from './sql';
+import { ReadingBlock, type IngestBuffer } from './ingest-buffer';
+import { dialectOf, insertReadingsSql, upsertRollupsSql, type InsertedReadingRow, type RollupPeriod } from './sql';
+import { faultPoint } from './fault-point';
 
 export interface WriterOptions {
   /** Flush period (ms); a backlog is flushed again at once. */
@@ -21,28 +22,47 @@ interface RollupRow {
 }
 
 /** Pre-aggregates a batch per (engine, channel, minute) so the upsert has one row per key. */
-export function aggregateRollups(rows: BufferedReading[]): RollupRow[] {
+export function aggregateRollups(rows: ReadingBlock): RollupRow[] {
   // a numeric key (no string per reading); ids beyond its range fall back to a string key
   const byKey = new Map<number | string, RollupRow>();
+  const { engine, channel, ts, value, quality } = rows;
   for (let i = 0; i < rows.length; i++) {
-    const r = rows[i];
-    const minute = r.ts - (r.ts % 60_000);
-    const key = r.engineId < 1_048_576 && r.channel < 16 && r.engineId >= 0 && r.channel >= 0
-      ? ((minute / 60_000) * 1_048_576 + r.engineId) * 16 + r.channel
-      : `${r.engineId}:${r.channel}:${minute}`;
+    const engineId = engine[i]; const ch = channel[i]; const t = ts[i];
+    const minute = t - (t % 60_000);
+    const key = engineId < 1_048_576 && engineId >= 0 && ch < 16
+      ? ((minute / 60_000) * 1_048_576 + engineId) * 16 + ch
+      : `${engineId}:${ch}:${minute}`;
     let agg = byKey.get(key);
     if (!agg) {
-      agg = { engineId: r.engineId, channel: r.channel, minute, min: null, max: null, sum: 0, count: 0, bad: 0 };
+      agg = { engineId, channel: ch, minute, min: null, max: null, sum: 0, count: 0, bad: 0 };
       byKey.set(key, agg);
     }
-    if (r.quality === 0) {
-      if (agg.min === null || r.value < agg.min) agg.min = r.value;
-      if (agg.max === null || r.value > agg.max) agg.max = r.value;
-      agg.sum += r.value;
+    if (quality[i] === 0) {
+      const v = value[i];
+      if (agg.min === null || v < agg.min) agg.min = v;
+      if (agg.max === null || v > agg.max) agg.max = v;
+      agg.sum += v;
       agg.count++;
     } else {
       agg.bad++;
     }
+  }
+  return [...byKey.values()];
+}
+
+/** Merges per-minute rows into per-hour rows (same key layout; `minute` holds the hour's start). */
+export function aggregateHours(minutes: RollupRow[]): RollupRow[] {
+  const byKey = new Map<string, RollupRow>();
+  for (const m of minutes) {
+    const hour = m.minute - (m.minute % 3_600_000);
+    const key = `${m.engineId}:${m.channel}:${hour}`;
+    const agg = byKey.get(key);
+    if (!agg) { byKey.set(key, { ...m, minute: hour }); continue; }
+    if (m.min !== null && (agg.min === null || m.min < agg.min)) agg.min = m.min;
+    if (m.max !== null && (agg.max === null || m.max > agg.max)) agg.max = m.max;
+    agg.sum += m.sum;
+    agg.count += m.count;
+    agg.bad += m.bad;
   }
   return [...byKey.values()];
 }
@@ -57,6 +77,7 @@ interface SqliteHandle {
 
 interface SqliteStatement {
   all(params: unknown[], cb: (err: Error | null, rows: InsertedReadingRow[]) => void): unknown;
+  run(params: unknown[], cb: (err: Error | null) => void): unknown;
   finalize(cb: () => void): unknown;
 }
 
@@ -83,12 +104,18 @@ export class ReadingWriter {
   private readonly intervalMs: number;
   private readonly maxRows: number;
   private readonly perStatement: number;
+  /** Rollup rows per upsert: 8 binds each, about as many binds as a reading insert. */
+  private readonly perRollup: number;
   private readonly ackDelayMs: number;
   private timerDue = 0;
+  /** The rows of the current flush (flushes never overlap, so one block serves them all). */
+  private readonly block = new ReadingBlock(1024);
   private readonly dialect;
   private handle: Promise<SqliteHandle> | null = null;
   /** The full-size INSERT, prepared once: compiling a 500-row statement each time costs as much as running it. */
   private fullInsert: Promise<SqliteStatement> | null = null;
+  /** The full-size rollup upsert, prepared once for the same reason (a flood fills several per flush). */
+  private fullRollup: Promise<SqliteStatement> | null = null;
 
   constructor(
     private readonly sequelize: Sequelize,
@@ -100,6 +127,7 @@ export class ReadingWriter {
     this.intervalMs = opts.intervalMs ?? 100;
     this.maxRows = opts.maxRowsPerFlush ?? 10_000;
     this.perStatement = opts.rowsPerStatement ?? 500;
+    this.perRollup = Math.floor(this.perStatement * 5 / 8);
     this.ackDelayMs = opts.ackDelayMs ?? 2;
     this.dialect = dialectOf(sequelize.getDialect());
   }
@@ -140,7 +168,7 @@ export class ReadingWriter {
   }
 
   private async writeBatch(): Promise<void> {
-    const rows = this.buffer.take(this.maxRows);
+    const rows = this.buffer.take(this.maxRows, this.block);
     if (rows.length === 0) {
       this.buffer.release();
       return;
@@ -171,7 +199,7 @@ export class ReadingWriter {
   }
 
   /** One transaction; returns how many rows were inserted (the rest were already stored). */
-  private async writeSqlite(rows: BufferedReading[]): Promise<number> {
+  private async writeSqlite(rows: ReadingBlock): Promise<number> {
     const db = await this.sqliteHandle();
     await exec(db, 'BEGIN IMMEDIATE');
     try {
@@ -183,13 +211,25 @@ export class ReadingWriter {
           : await all(db, insertReadingsSql(n), readingBinds(rows, i, n));
         stored.add(i, n, back);
       }
-      for (const [sql, bind] of this.rollupStatements(stored.rows())) await run(db, sql, bind);
+      const fullRollupSql = upsertRollupsSql(this.dialect, this.perRollup);
+      for (const [sql, bind] of this.rollupStatements(stored.rows())) {
+        if (sql === fullRollupSql) await runPrepared(await this.fullRollupStatement(db), bind);
+        else await run(db, sql, bind);
+      }
+      await faultPoint('rollup');
       await exec(db, 'COMMIT');
       return stored.count;
     } catch (err) {
       await exec(db, 'ROLLBACK').catch(() => undefined);
       throw err;
     }
+  }
+
+  private fullRollupStatement(db: SqliteHandle): Promise<SqliteStatement> {
+    this.fullRollup ??= new Promise<SqliteStatement>((resolve, reject) => {
+      const stmt = db.prepare(upsertRollupsSql(this.dialect, this.perRollup), (err) => (err ? reject(err) : resolve(stmt)));
+    }).catch((err) => { this.fullRollup = null; throw err; });
+    return this.fullRollup;
   }
 
   private fullInsertStatement(db: SqliteHandle): Promise<SqliteStatement> {
@@ -199,7 +239,7 @@ export class ReadingWriter {
     return this.fullInsert;
   }
 
-  private async writeSequelize(rows: BufferedReading[]): Promise<number> {
+  private async writeSequelize(rows: ReadingBlock): Promise<number> {
     const sequelize = this.sequelize;
     const t = await sequelize.transaction();
     try {
@@ -210,6 +250,7 @@ export class ReadingWriter {
         stored.add(i, n, back);
       }
       for (const [sql, bind] of this.rollupStatements(stored.rows())) await sequelize.query(sql, { bind, transaction: t, type: QueryTypes.INSERT, logging: false });
+      await faultPoint('rollup');
       await t.commit();
       return stored.count;
     } catch (err) {
@@ -218,11 +259,17 @@ export class ReadingWriter {
     }
   }
 
-  /** The rollup upsert of a batch, in statements of a few hundred keys. */
-  private rollupStatements(rows: BufferedReading[]): Array<[string, Array<number | null>]> {
-    const rollups = aggregateRollups(rows);
-    const perRollup = Math.floor(this.perStatement * 5 / 8);
+  /** The rollup upserts of a batch (per minute, then per hour), in statements of a few hundred keys. */
+  private rollupStatements(rows: ReadingBlock): Array<[string, Array<number | null>]> {
+    const minutes = aggregateRollups(rows);
     const out: Array<[string, Array<number | null>]> = [];
+    this.upserts(minutes, 'minute', out);
+    this.upserts(aggregateHours(minutes), 'hour', out);
+    return out;
+  }
+
+  private upserts(rollups: RollupRow[], period: RollupPeriod, out: Array<[string, Array<number | null>]>): void {
+    const perRollup = this.perRollup;
     for (let i = 0; i < rollups.length; i += perRollup) {
       const chunk = rollups.slice(i, i + perRollup);
       const bind: Array<number | null> = new Array(chunk.length * 8);
@@ -231,9 +278,8 @@ export class ReadingWriter {
         bind[k++] = r.engineId; bind[k++] = r.channel; bind[k++] = r.minute; bind[k++] = r.min;
         bind[k++] = r.max; bind[k++] = r.sum; bind[k++] = r.count; bind[k++] = r.bad;
       }
-      out.push([upsertRollupsSql(this.dialect, chunk.length), bind]);
+      out.push([upsertRollupsSql(this.dialect, chunk.length, period), bind]);
     }
-    return out;
   }
 
   /** Stops the timer and writes everything still buffered. */
@@ -249,9 +295,12 @@ export class ReadingWriter {
       if (this.buffer.size >= before) attempts++;
     }
     // an unfinalized statement would keep the connection from closing with the others in sequelize.close()
-    const stmt = await this.fullInsert?.catch(() => null);
-    if (stmt) await new Promise<void>((resolve) => stmt.finalize(() => resolve()));
+    for (const prepared of [this.fullInsert, this.fullRollup]) {
+      const stmt = await prepared?.catch(() => null);
+      if (stmt) await new Promise<void>((resolve) => stmt.finalize(() => resolve()));
+    }
     this.fullInsert = null;
+    this.fullRollup = null;
   }
 }
 
@@ -262,33 +311,34 @@ export class ReadingWriter {
 class NewRows {
   count = 0;
   private all = true;
-  private readonly kept: BufferedReading[] = [];
-  constructor(private readonly batch: BufferedReading[]) {}
+  private kept: ReadingBlock | null = null;
+  constructor(private readonly batch: ReadingBlock) {}
 
   add(from: number, n: number, back: InsertedReadingRow[]): void {
     this.count += back.length;
     if (back.length === n) {
-      if (!this.all) for (let i = from; i < from + n; i++) this.kept.push(this.batch[i]);
+      if (!this.all) this.kept!.append(this.batch, from, from + n);
       return;
     }
-    if (this.all) for (let i = 0; i < from; i++) this.kept.push(this.batch[i]);
-    this.all = false;
-    for (const r of back) {
-      this.kept.push({ engineId: Number(r.engine_id), channel: Number(r.channel), ts: Number(r.ts), value: Number(r.value), quality: Number(r.quality) === 0 ? 0 : 1 });
+    if (this.all) {
+      this.kept = new ReadingBlock(this.batch.length);
+      this.kept.append(this.batch, 0, from);
     }
+    this.all = false;
+    for (const r of back) this.kept!.push(Number(r.engine_id), Number(r.channel), Number(r.ts), Number(r.value), Number(r.quality) === 0 ? 0 : 1);
   }
 
-  rows(): BufferedReading[] {
-    return this.all ? this.batch : this.kept;
+  rows(): ReadingBlock {
+    return this.all ? this.batch : this.kept!;
   }
 }
 
-function readingBinds(rows: BufferedReading[], from: number, n: number): number[] {
+function readingBinds(rows: ReadingBlock, from: number, n: number): number[] {
   const bind: number[] = new Array(n * 5);
+  const { engine, channel, ts, value, quality } = rows;
   let k = 0;
   for (let i = from; i < from + n; i++) {
-    const r = rows[i];
-    bind[k++] = r.engineId; bind[k++] = r.channel; bind[k++] = r.ts; bind[k++] = r.value; bind[k++] = r.quality;
+    bind[k++] = engine[i]; bind[k++] = channel[i]; bind[k++] = ts[i]; bind[k++] = value[i]; bind[k++] = quality[i];
   }
   return bind;
 }
@@ -297,6 +347,8 @@ const run = (db: SqliteHandle, sql: string, params: unknown[]) =>
   new Promise<void>((resolve, reject) => { db.run(sql, params, (err) => (err ? reject(err) : resolve())); });
 const all = (db: SqliteHandle, sql: string, params: unknown[]) =>
   new Promise<InsertedReadingRow[]>((resolve, reject) => { db.all(sql, params, (err, rows) => (err ? reject(err) : resolve(rows))); });
+const runPrepared = (stmt: SqliteStatement, params: unknown[]) =>
+  new Promise<void>((resolve, reject) => { stmt.run(params, (err) => (err ? reject(err) : resolve())); });
 const allPrepared = (stmt: SqliteStatement, params: unknown[]) =>
   new Promise<InsertedReadingRow[]>((resolve, reject) => { stmt.all(params, (err, rows) => (err ? reject(err) : resolve(rows))); });
 const exec = (db: SqliteHandle, sql: string) =>

@@ -45,23 +45,27 @@ ON CONFLICT (engine_id, channel, ts) DO NOTHING RETURNING engine_id, channel, ts
 /** A row as the insert's RETURNING gives it back (BIGINT ts may come back as a string from PostgreSQL). */
 export interface InsertedReadingRow { engine_id: number | string; channel: number | string; ts: number | string; value: number | string; quality: number | string }
 
+/** Per-minute rollups (`rollups`, key `minute`) or per-hour ones (`rollups_hourly`, key `hour`, migration 0020). */
+export type RollupPeriod = 'minute' | 'hour';
+
 const rollupCache = new Map<string, string>();
-/** Merges pre-aggregated per-minute rows; min/max stay NULL while a minute has only bad readings. */
-export function upsertRollupsSql(dialect: Dialect, rows: number): string {
-  const key = dialect + rows;
+/** Merges pre-aggregated rows; min/max stay NULL while a minute (hour) has only bad readings. */
+export function upsertRollupsSql(dialect: Dialect, rows: number, period: RollupPeriod = 'minute'): string {
+  const key = dialect + period + rows;
   let sql = rollupCache.get(key);
   if (!sql) {
+    const t = period === 'minute' ? 'rollups' : 'rollups_hourly';
     const least = dialect === 'postgres'
-      ? 'LEAST(rollups."min", excluded."min")' // LEAST/GREATEST skip NULLs
-      : 'min(coalesce(rollups."min", excluded."min"), coalesce(excluded."min", rollups."min"))';
+      ? `LEAST(${t}."min", excluded."min")` // LEAST/GREATEST skip NULLs
+      : `min(coalesce(${t}."min", excluded."min"), coalesce(excluded."min", ${t}."min"))`;
     const greatest = dialect === 'postgres'
-      ? 'GREATEST(rollups."max", excluded."max")'
-      : 'max(coalesce(rollups."max", excluded."max"), coalesce(excluded."max", rollups."max"))';
-    sql = `INSERT INTO rollups (engine_id, channel, minute, "min", "max", "sum", "count", bad_count) VALUES ${placeholders(rows, 8)}
-ON CONFLICT (engine_id, channel, minute) DO UPDATE SET
+      ? `GREATEST(${t}."max", excluded."max")`
+      : `max(coalesce(${t}."max", excluded."max"), coalesce(excluded."max", ${t}."max"))`;
+    sql = `INSERT INTO ${t} (engine_id, channel, ${period}, "min", "max", "sum", "count", bad_count) VALUES ${placeholders(rows, 8)}
+ON CONFLICT (engine_id, channel, ${period}) DO UPDATE SET
   "min" = ${least}, "max" = ${greatest},
-  "sum" = rollups."sum" + excluded."sum", "count" = rollups."count" + excluded."count",
-  bad_count = rollups.bad_count + excluded.bad_count`;
+  "sum" = ${t}."sum" + excluded."sum", "count" = ${t}."count" + excluded."count",
+  bad_count = ${t}.bad_count + excluded.bad_count`;
     rollupCache.set(key, sql);
   }
   return sql;

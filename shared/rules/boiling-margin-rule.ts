@@ -62,31 +62,43 @@ export function boilingMarginStatus(marginC: number, p: BoilingMarginParams): Co
   return marginC >= p.marginC + Math.max(0, p.deadbandC ?? 0) ? 'normal' : 'between';
 }
 
-function messages(p: BoilingMarginParams, assumed: () => boolean): DelayMessages {
+/** Per params object (stable per engine and rule) and pressure basis: built once, not per reading. */
+const messageCache = new WeakMap<BoilingMarginParams, [DelayMessages, DelayMessages]>();
+
+function messages(p: BoilingMarginParams, assumed: boolean): DelayMessages {
+  let pair = messageCache.get(p);
+  if (!pair) messageCache.set(p, (pair = [buildMessages(p, false), buildMessages(p, true)]));
+  return pair[assumed ? 1 : 0];
+}
+
+function merge(state: BoilingMarginState, s: DelayedState, extra: Partial<BoilingMarginState> = {}): BoilingMarginState {
+  return { ...state, ...s, ...extra };
+}
+
+function buildMessages(p: BoilingMarginParams, assumed: boolean): DelayMessages {
   return {
     raise: (v) =>
-      `Boiling margin ${fmt(v)} °C below ${p.marginC} °C${assumed() ? ` (no pressure reading: the cap's rating of ${fmt(p.capPressureKpa ?? 0, 0)} kPa assumed, as the engine runs warm; a leaking cap or low coolant would leave less margin)` : ''}`,
+      `Boiling margin ${fmt(v)} °C below ${p.marginC} °C${assumed ? ` (no pressure reading: the cap's rating of ${fmt(p.capPressureKpa ?? 0, 0)} kPa assumed, as the engine runs warm; a leaking cap or low coolant would leave less margin)` : ''}`,
     clear: (v) => `Boiling margin back to ${fmt(v)} °C`,
     worse: (a, b) => a < b,
   };
 }
 
 export function stepBoilingMargin(state: BoilingMarginState, input: BoilingMarginInput, params: BoilingMarginParams): StepResult<BoilingMarginState> {
-  let assumed = state.assumedPressure;
-  const m = messages(params, () => assumed);
-  const merge = (s: DelayedState, extra: Partial<BoilingMarginState> = {}): BoilingMarginState => ({ ...state, ...s, ...extra });
+  // the messages say whether the cap's rating stood in for a pressure reading: as the state had it, until this reading decides
+  const m = messages(params, state.assumedPressure);
   if (!isReading(input) || !isGood(input as BoilingMarginReading)) {
     const r = advanceDelays(state, input.ts, params, m);
-    return { state: merge(r.state), events: r.events };
+    return { state: merge(state, r.state), events: r.events };
   }
   const reading = input as BoilingMarginReading;
   if (reading.channel === 'coolant_pressure') {
     const r = advanceDelays(state, reading.ts, params, m);
-    return { state: merge(r.state, { pressure: { ts: reading.ts, value: reading.value } }), events: r.events };
+    return { state: merge(state, r.state, { pressure: { ts: reading.ts, value: reading.value } }), events: r.events };
   }
   if (!gateOpen(params, reading.running)) {
     const r = forceNormal(state, reading.ts, params, m, gateText(params));
-    return { state: merge(r.state), events: r.events };
+    return { state: merge(state, r.state), events: r.events };
   }
   const maxAge = (params.maxPressureAgeS ?? 60) * 1000;
   const p = state.pressure;
@@ -96,9 +108,9 @@ export function stepBoilingMargin(state: BoilingMarginState, input: BoilingMargi
   if (!usable && !capUsable) {
     // no pressure and no safe assumption: no verdict (delays keep running on the held value)
     const r = advanceDelays(state, reading.ts, params, m);
-    return { state: merge(r.state), events: r.events };
+    return { state: merge(state, r.state), events: r.events };
   }
-  assumed = !usable;
+  const assumed = !usable;
   const gauge = usable ? p!.value : cap!;
   let bp: number;
   try {
@@ -106,9 +118,9 @@ export function stepBoilingMargin(state: BoilingMarginState, input: BoilingMargi
   } catch {
     // Outside the property equations: no verdict from this reading, delays keep running.
     const r = advanceDelays(state, reading.ts, params, m);
-    return { state: merge(r.state), events: r.events };
+    return { state: merge(state, r.state), events: r.events };
   }
   const margin = bp - reading.value;
-  const r = applyStatus(state, reading.ts, boilingMarginStatus(margin, params), margin, params, m);
-  return { state: merge(r.state, { lastMarginC: margin, lastBoilingPointC: bp, assumedPressure: assumed }), events: r.events };
+  const r = applyStatus(state, reading.ts, boilingMarginStatus(margin, params), margin, params, messages(params, assumed));
+  return { state: merge(state, r.state, { lastMarginC: margin, lastBoilingPointC: bp, assumedPressure: assumed }), events: r.events };
 }

@@ -40,37 +40,56 @@ export function conductivityLimit(baseline: number | null, p: ConductivityRulePa
   return limits.length ? Math.min(...limits) : null;
 }
 
-export function stepConductivity(state: ConductivityRuleState, input: RuleInput, params: ConductivityRuleParams): StepResult<ConductivityRuleState> {
-  let s: ConductivityRuleState = state.baselineFrom === params.baselineFrom
-    ? state
-    : { ...state, baselineFrom: params.baselineFrom, baselineSamples: [], baseline: null };
-  const limitNow = () => conductivityLimit(s.baseline, params);
-  const m: DelayMessages = {
+/** Messages per params object (stable per engine and rule), built once; `baseline` is set before each use. */
+interface ConductivityMessages extends DelayMessages { baseline: number | null }
+const messageCache = new WeakMap<ConductivityRuleParams, ConductivityMessages>();
+
+function messages(params: ConductivityRuleParams, baseline: number | null): DelayMessages {
+  let m = messageCache.get(params);
+  if (!m) messageCache.set(params, (m = buildMessages(params)));
+  m.baseline = baseline;
+  return m;
+}
+
+function buildMessages(params: ConductivityRuleParams): ConductivityMessages {
+  const m: ConductivityMessages = {
+    baseline: null,
     raise: (v) => {
-      const lim = limitNow();
-      const rel = s.baseline !== null && v !== null ? ` (+${fmt(((v - s.baseline) / s.baseline) * 100, 0)} % on baseline ${fmt(s.baseline, 0)} µS/cm)` : '';
+      const base = m.baseline;
+      const lim = conductivityLimit(base, params);
+      const rel = base !== null && v !== null ? ` (+${fmt(((v - base) / base) * 100, 0)} % on baseline ${fmt(base, 0)} µS/cm)` : '';
       return `Coolant conductivity ${fmt(v, 0)} µS/cm above ${fmt(lim, 0)} µS/cm${rel}`;
     },
     clear: (v) => `Coolant conductivity back to ${fmt(v, 0)} µS/cm`,
     worse: (a, b) => a > b,
   };
-  const merge = (d: DelayedState): ConductivityRuleState => ({ ...s, ...d });
+  return m;
+}
+
+function merge(s: ConductivityRuleState, d: DelayedState): ConductivityRuleState {
+  return { ...s, ...d };
+}
+
+export function stepConductivity(state: ConductivityRuleState, input: RuleInput, params: ConductivityRuleParams): StepResult<ConductivityRuleState> {
+  let s: ConductivityRuleState = state.baselineFrom === params.baselineFrom
+    ? state
+    : { ...state, baselineFrom: params.baselineFrom, baselineSamples: [], baseline: null };
   if (!isReading(input) || !isGood(input) || input.ts < params.baselineFrom) {
-    const r = advanceDelays(s, input.ts, params, m);
-    return { state: merge(r.state), events: r.events };
+    const r = advanceDelays(s, input.ts, params, messages(params, s.baseline));
+    return { state: merge(s, r.state), events: r.events };
   }
   if (s.baseline === null) {
     const samples = [...s.baselineSamples, input.value];
     const n = params.baselineCount ?? 5;
     s = { ...s, baselineSamples: samples, baseline: samples.length >= n ? median(samples) : null };
   }
-  const limit = limitNow();
+  const limit = conductivityLimit(s.baseline, params);
   if (limit === null) {
-    const r = advanceDelays(s, input.ts, params, m);
-    return { state: merge(r.state), events: r.events };
+    const r = advanceDelays(s, input.ts, params, messages(params, s.baseline));
+    return { state: merge(s, r.state), events: r.events };
   }
   const db = Math.max(0, params.deadband ?? 0);
   const status: ConditionStatus = input.value > limit ? 'alarm' : input.value <= limit - db ? 'normal' : 'between';
-  const r = applyStatus(s, input.ts, status, input.value, params, m);
-  return { state: merge(r.state), events: r.events };
+  const r = applyStatus(s, input.ts, status, input.value, params, messages(params, s.baseline));
+  return { state: merge(s, r.state), events: r.events };
 }

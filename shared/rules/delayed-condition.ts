@@ -38,22 +38,30 @@ export function initialDelayedState(): DelayedState {
 }
 
 /**
+ * A deadline reached at `t` (strictly after it when `before`). A module-level function, not a closure per call:
+ * this runs for every reading of every rule, and the server's TypeScript loader names each inner function on
+ * every call (esbuild keepNames), which cost more than the rule itself.
+ */
+function isDue(t: number, deadline: number, before: boolean): boolean {
+  return before ? t > deadline : t >= deadline;
+}
+
+/**
  * Let time pass to `t` with the held value: complete any on- or off-delay that has run out.
  * `before` (used when a new value arrives at t): the held value only counts strictly before t,
  * so a delay that would end exactly when a contrary reading arrives does not complete.
  */
 export function advanceDelays(st: DelayedState, t: number, d: DelayTimes, m: DelayMessages, before = false): { state: DelayedState; events: RuleEvent[] } {
-  const due = (deadline: number) => (before ? t > deadline : t >= deadline);
   const events: RuleEvent[] = [];
   let s = st;
   const on = (d.onDelayS ?? 0) * 1000;
   const off = (d.offDelayS ?? 0) * 1000;
-  if (!s.active && s.since !== null && due(s.since + on)) {
+  if (!s.active && s.since !== null && isDue(t, s.since + on, before)) {
     const at = s.since + on;
     s = { ...s, active: true, since: null, clearSince: null, raisedValue: s.heldValue, worstValue: s.heldValue };
     events.push({ kind: 'raise', ts: at, value: s.heldValue, message: m.raise(s.heldValue) });
   }
-  if (s.active && s.clearSince !== null && due(s.clearSince + off)) {
+  if (s.active && s.clearSince !== null && isDue(t, s.clearSince + off, before)) {
     const at = s.clearSince + off;
     events.push({ kind: 'clear', ts: at, value: s.heldValue, message: m.clear(s.heldValue) });
     s = { ...s, active: false, since: null, clearSince: null };

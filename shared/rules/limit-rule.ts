@@ -36,7 +36,16 @@ export function limitStatus(value: number, p: LimitRuleParams): ConditionStatus 
   return value >= p.limit + db ? 'normal' : 'between';
 }
 
+/** Per params object (stable per engine and rule): built once, not per reading. */
+const messageCache = new WeakMap<LimitRuleParams, DelayMessages>();
+
 function messages(p: LimitRuleParams): DelayMessages {
+  let m = messageCache.get(p);
+  if (!m) messageCache.set(p, (m = buildMessages(p)));
+  return m;
+}
+
+function buildMessages(p: LimitRuleParams): DelayMessages {
   const label = p.label ?? 'Value';
   const unit = p.unit ? ` ${p.unit}` : '';
   const word = p.direction === 'high' ? 'above' : 'below';

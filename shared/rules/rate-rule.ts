@@ -51,7 +51,20 @@ export function leastSquaresSlope(points: readonly { ts: number; value: number }
   return den === 0 ? null : num / den;
 }
 
+/** Per params object (stable per engine and rule): built once, not per reading. */
+const messageCache = new WeakMap<RateRuleParams, DelayMessages>();
+
 function messages(p: RateRuleParams): DelayMessages {
+  let m = messageCache.get(p);
+  if (!m) messageCache.set(p, (m = buildMessages(p)));
+  return m;
+}
+
+function keep(state: RateRuleState, s: DelayedState, extra: Partial<RateRuleState> = {}): RateRuleState {
+  return { ...state, ...s, ...extra };
+}
+
+function buildMessages(p: RateRuleParams): DelayMessages {
   const label = p.label ?? 'Value';
   const unit = p.unit ?? 'units';
   const word = p.direction === 'rising' ? 'rising' : 'falling';
@@ -71,15 +84,14 @@ export function rateStatus(slopePerMin: number, p: RateRuleParams): ConditionSta
 
 export function stepRate(state: RateRuleState, input: RuleInput, params: RateRuleParams): StepResult<RateRuleState> {
   const m = messages(params);
-  const keep = (s: DelayedState, extra: Partial<RateRuleState> = {}): RateRuleState => ({ ...state, ...s, ...extra });
   if (!isReading(input) || !isGood(input)) {
     const r = advanceDelays(state, input.ts, params, m);
-    return { state: keep(r.state), events: r.events };
+    return { state: keep(state, r.state), events: r.events };
   }
   if (!gateOpen(params, input.running)) {
     // A window that spans a start or a stop mixes two regimes: start again.
     const r = forceNormal(state, input.ts, params, m, gateText(params));
-    return { state: keep(r.state, { window: [], slopePerMin: null }), events: r.events };
+    return { state: keep(state, r.state, { window: [], slopePerMin: null }), events: r.events };
   }
   const from = input.ts - params.windowS * 1000;
   const window = [...state.window.filter((p) => p.ts >= from && p.ts < input.ts), { ts: input.ts, value: input.value }];
@@ -89,8 +101,8 @@ export function stepRate(state: RateRuleState, input: RuleInput, params: RateRul
   const slopePerMin = slope === null ? null : slope * 60000;
   if (slopePerMin === null) {
     const r = advanceDelays(state, input.ts, params, m);
-    return { state: keep(r.state, { window, slopePerMin: null }), events: r.events };
+    return { state: keep(state, r.state, { window, slopePerMin: null }), events: r.events };
   }
   const r = applyStatus(state, input.ts, rateStatus(slopePerMin, params), slopePerMin, params, m);
-  return { state: keep(r.state, { window, slopePerMin }), events: r.events };
+  return { state: keep(state, r.state, { window, slopePerMin }), events: r.events };
 }

@@ -11,7 +11,8 @@
  *  3. QoS 0 flood: memory and responsiveness while TCP backpressure holds the inflow; bounded in time
  *     (publishers stop, the server gets a bounded drain time), then published (handed to TCP) vs
  *     received vs stored. QoS 0 has no acknowledgement: "nothing lost" is a QoS 1 claim only;
- * Phase lengths: BENCH_FLOOD_MS, BENCH_LATENCY_MS, BENCH_QOS0_MS, BENCH_DRAIN_MS.
+ *  then the retention sweep and the long-trend phase (trend.ts: trend30dMs / trend1hMs with 200 engines x 30 days).
+ * Phase lengths: BENCH_FLOOD_MS, BENCH_LATENCY_MS, BENCH_QOS0_MS, BENCH_DRAIN_MS. One phase alone: BENCH_PHASE=qos1|retention|trend.
  * BENCH_JSON=file: the figures also as JSON (ingestPerS, rawCeilingPerS, lostAcknowledged, duplicatesStored,
  * rssGrowthPct, ...), to compare runs.
  */
@@ -24,6 +25,7 @@ import { io as ioClient } from 'socket.io-client';
 import { loadJwtSecret } from '../../server/auth/jwt-secret';
 import { createTokenService } from '../../server/auth/tokens';
 import { describeInitialBundle, measureInitialBundle } from './initial-bundle';
+import { printTrend, trendPhase } from './trend';
 import { Db, freePort, seedFleet, type SeededDevice } from '../server/support/telemetry-server';
 import type { ServerHealth } from '../server/support/telemetry-server';
 
@@ -267,9 +269,12 @@ async function main(): Promise<void> {
 
   const progress = (m: string) => process.stderr.write(`[${((Date.now() - t0) / 1000).toFixed(1)} s] ${m}\n`);
   if (process.env.BENCH_PHASE === 'retention') { printRetention(await retentionPhase(progress)); process.exit(0); }
+  if (process.env.BENCH_PHASE === 'trend') { printTrend(await trendPhase(progress)); process.exit(0); }
   progress('raw ceiling (3 runs)');
   const rawRuns: Array<{ rate: number; rows: number }> = [];
-  for (let i = 0; i < RAW_RUNS; i++) rawRuns.push(await rawCeilingOnce());
+  const qos1Only = process.env.BENCH_PHASE === 'qos1'; // the QoS 1 flood alone, no ceiling (to compare memory or speed quickly)
+  for (let i = 0; i < (qos1Only ? 0 : RAW_RUNS); i++) rawRuns.push(await rawCeilingOnce());
+  if (qos1Only) rawRuns.push({ rate: NaN, rows: 0 });
   const raw = [...rawRuns].sort((a, b) => a.rate - b.rate)[Math.floor(RAW_RUNS / 2)];
   const server = await startServer();
   progress('server up');
@@ -307,6 +312,12 @@ async function main(): Promise<void> {
   // RSS growth after the first 5 s of the flood: from the sample at 5 s to the largest one after it
   const rssAt5 = q1.rss[Math.min(4, q1.rss.length - 1)];
   const rssGrowthPct = q1.rss.length > 5 ? (100 * (Math.max(...q1.rss.slice(5)) - rssAt5)) / rssAt5 : NaN;
+  if (qos1Only) {
+    console.log(`QoS 1 flood: ${fmt(published)} acknowledged, ${fmt(rows)} in the file, ${fmt(stored / ((performance.now() - started) / 1000))} readings/s, `
+      + `lost ${lostAcknowledged}, duplicates ${duplicatesStored}; RSS ${q1.rss.map((x) => x.toFixed(0)).join(' ')} MB; growth after 5 s ${rssGrowthPct.toFixed(1)} %`);
+    await server.stop();
+    process.exit(0);
+  }
 
   // 2. latency at 500 x 5 x 1 Hz
   const token = tokens.sign({ id: adminId, email: 'bench-admin@example.test', role: 'admin' });
@@ -393,6 +404,8 @@ async function main(): Promise<void> {
   line('peak RSS (VmHWM) after the QoS 0 flood', `${hwmQos0.toFixed(0)} MB`);
   const retention = await retentionPhase(progress);
   printRetention(retention);
+  const trend = await trendPhase(progress);
+  printTrend(trend);
   const initialBundle = measureInitialBundle();
   console.log('\n4. App: first download (the production build in dist/, measured as the build estimates it)');
   line('initial bundle (initialTransferKb)', describeInitialBundle(initialBundle));
@@ -410,6 +423,7 @@ async function main(): Promise<void> {
       retentionRowsPerS: Number.isFinite(retention.sweepS) ? Math.round(retention.backlog / retention.sweepS) : null,
       retentionLoopMaxMs: retention.loopMax, retentionHealthMaxMs: r1(retention.healthMax),
       retentionBatchLatencyMaxMs: retention.batchLatency?.max ?? null,
+      trend30dMs: r1(trend.trend30dMs), trend1hMs: r1(trend.trend1hMs), trend30dMinuteRollupsMs: r1(trend.trend30dMinutesMs), trendEngines: trend.engines, trendDays: trend.days,
     }, null, 2) + '\n');
     console.log(`figures written to ${process.env.BENCH_JSON}`);
   }

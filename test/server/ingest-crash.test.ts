@@ -9,7 +9,7 @@ import { spawn, type ChildProcess } from 'node:child_process';
 import fs from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
-import { isPg } from './support/test-db';
+import { expectIntact, rawAndRollupCounts } from './support/consistency';
 import { Db, seedFleet, startServerProcess, type ServerProcess } from './support/telemetry-server';
 
 jest.setTimeout(120_000);
@@ -97,30 +97,16 @@ test('SIGKILL mid-flood, three times: every acknowledged reading is stored, none
 
   const db = new Db(server.databaseUrl);
   try {
-    if (isPg) {
-      // the PostgreSQL twin of integrity_check: amcheck verifies each partition's pages, and its unique index against them
-      await db.exec('CREATE EXTENSION IF NOT EXISTS amcheck');
-      const parts = await db.all<{ t: string; i: string }>(`SELECT i.indrelid::regclass::text AS t, i.indexrelid::regclass::text AS i
-        FROM pg_inherits h JOIN pg_index i ON i.indrelid = h.inhrelid WHERE h.inhparent = 'readings'::regclass`);
-      expect(parts.length).toBeGreaterThan(1);
-      for (const p of parts) {
-        expect(await db.all(`SELECT * FROM verify_heapam('${p.t}')`)).toEqual([]);
-        await db.exec(`SELECT bt_index_check('${p.i}'::regclass, true)`);
-      }
-    } else {
-      expect(await db.get('PRAGMA integrity_check')).toEqual({ integrity_check: 'ok' });
-    }
+    await expectIntact(db);
     const total = await db.get<{ n: number }>('SELECT COUNT(*) AS n FROM readings WHERE engine_id = ?', [device.engineId]);
     expect(total.n).toBe(MESSAGES * SAMPLES * CHANNELS);
     expect(await db.all('SELECT engine_id, channel, ts, COUNT(*) AS n FROM readings GROUP BY engine_id, channel, ts HAVING COUNT(*) > 1')).toEqual([]);
     const stored = await storedPerMessage(server.databaseUrl, device.engineId, baseTs);
     expect([...acked].filter((m) => stored.get(m) !== SAMPLES * CHANNELS)).toEqual([]);
     // rollups of the window equal the raw counts, minute by minute
-    const raw = await db.all<{ channel: number; minute: number; n: number }>(
-      `SELECT channel, ts - (ts % 60000) AS minute, COUNT(*) AS n FROM readings WHERE engine_id = ? GROUP BY channel, minute ORDER BY channel, minute`, [device.engineId]);
-    const roll = await db.all<{ channel: number; minute: number; n: number }>(
-      `SELECT channel, minute, "count" + bad_count AS n FROM rollups WHERE engine_id = ? ORDER BY channel, minute`, [device.engineId]);
-    expect(roll).toEqual(raw);
+    const counts = await rawAndRollupCounts(db, device.engineId);
+    expect(counts.rollups).toEqual(counts.raw);
+    expect(counts.hourly).toEqual(counts.rawHours);
     console.log(`ingest crash test: ${figures.join('; ')}; end: ${total.n} readings stored once, 0 acknowledged lost, 0 duplicates, integrity ok, rollups = raw`);
   } finally {
     await db.close();

@@ -6,6 +6,7 @@ let t: TestApp;
 let engineId: number;
 const T0 = Date.UTC(2026, 0, 10, 0, 0, 0); // beyond 32 bits, as every real timestamp is
 const MIN = 60_000;
+const HOUR = 60 * MIN;
 
 async function insertRows(table: string, cols: string[], rows: number[][]): Promise<void> {
   for (let i = 0; i < rows.length; i += 500) {
@@ -92,27 +93,46 @@ describe('GET /api/engines/:id/readings', () => {
       kept.push({ ts: minute, min, max, sum, count });
     }
     await insertRows('rollups', ['engine_id', 'channel', 'minute', 'min', 'max', 'sum', 'count', 'bad_count'], rows);
+    // the per-hour rollups as the writer keeps them beside (the same rows summed per hour, computed here)
+    const hours = new Map<number, number[]>();
+    for (const [, , minute, min, max, sum, count, bad] of rows) {
+      const hour = minute - (minute % HOUR);
+      const h = hours.get(hour);
+      const isNull = (x: unknown) => (x as unknown as string) === 'NULL';
+      if (!h) { hours.set(hour, [engineId, 1, hour, min, max, sum, count, bad]); continue; }
+      if (!isNull(min) && (isNull(h[3]) || min < h[3])) h[3] = min;
+      if (!isNull(max) && (isNull(h[4]) || max > h[4])) h[4] = max;
+      h[5] += sum; h[6] += count; h[7] += bad;
+    }
+    await insertRows('rollups_hourly', ['engine_id', 'channel', 'hour', 'min', 'max', 'sum', 'count', 'bad_count'], [...hours.values()]);
 
     const to = T0 - 17_123; // not on a minute boundary
     const from = to - 30 * 24 * 3600_000;
-    const res = await request(t.app)
-      .get(`/api/engines/${engineId}/readings`)
-      .query({ channel: 'coolant_temp', from, to, points: 30 })
-      .set(auth(t.tokens.technician))
-      .expect(200);
-    expect(res.body.source).toBe('rollup');
-    const alignedFrom = Math.floor(from / MIN) * MIN;
-    const width = Math.ceil((to - alignedFrom) / MIN / 30) * MIN;
-    const expected = bucketise(kept.filter((k) => k.ts >= alignedFrom && k.ts < to), alignedFrom, width);
-    expect(res.body.buckets.length).toBe(expected.length);
-    expect(expected.length).toBeGreaterThanOrEqual(30);
-    res.body.buckets.forEach((b: Expect, i: number) => {
-      expect(b.t).toBe(expected[i].t);
-      expect(b.count).toBe(expected[i].count);
-      expect(b.min).toBe(expected[i].min);
-      expect(b.max).toBe(expected[i].max);
-      expect(b.mean).toBeCloseTo(expected[i].mean, 9);
-    });
+    const check = async (points: number, unit: number, period: string) => {
+      const res = await request(t.app)
+        .get(`/api/engines/${engineId}/readings`)
+        .query({ channel: 'coolant_temp', from, to, points })
+        .set(auth(t.tokens.technician))
+        .expect(200);
+      expect({ source: res.body.source, period: res.body.rollupPeriod }).toEqual({ source: 'rollup', period });
+      const alignedFrom = Math.floor(from / unit) * unit;
+      const width = Math.ceil((to - alignedFrom) / unit / points) * unit;
+      const expected = bucketise(kept.filter((k) => k.ts >= alignedFrom && k.ts < to), alignedFrom, width);
+      expect(res.body.buckets.length).toBe(expected.length);
+      expect(expected.length).toBeGreaterThanOrEqual(Math.floor(Math.min(points, 30) * 0.9)); // whole hours: a few fewer than asked
+      res.body.buckets.forEach((b: Expect, i: number) => {
+        expect(b.t).toBe(expected[i].t);
+        expect(b.count).toBe(expected[i].count);
+        expect(b.min).toBe(expected[i].min);
+        expect(b.max).toBe(expected[i].max);
+        expect(b.mean).toBeCloseTo(expected[i].mean, 9);
+      });
+    };
+    // chart width 30 or 700: a bucket spans half an hour or more, so whole hours from the per-hour rollups
+    await check(30, HOUR, 'hour');
+    await check(700, HOUR, 'hour');
+    // 2,000 points: 22-minute buckets from the per-minute rollups
+    await check(2000, MIN, 'minute');
   });
 
   it('returns no buckets for a span without data and 404 for an unknown engine', async () => {

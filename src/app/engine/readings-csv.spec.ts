@@ -17,4 +17,11 @@ describe('CSV source column', () => {
     expect(sourceWords(raw)).toBe('raw readings');
     expect(sourceWords(combineSources([raw, { ...raw, source: 'rollup' }]))).toBe('per-minute summaries');
   });
+
+  it('names per-hour summaries when any channel of the window came from them', () => {
+    const raw = { source: 'raw' as const, rawRetentionDays: 400, rawKeptFrom: 0, beyondRawRetention: false };
+    const hourly = { ...raw, source: 'rollup' as const, rollupPeriod: 'hour' as const };
+    expect(sourceWords(combineSources([{ ...raw, source: 'rollup', rollupPeriod: 'minute' }, hourly]))).toBe('per-hour summaries');
+    expect(sourceWords({ ...hourly, beyondRawRetention: true })).toBe('per-hour summaries (raw readings are kept 400 days)');
+  });
 });
