@@ -46,6 +46,8 @@ export interface Config {
   readingsRetentionDays: number | null;
   /** JWT signing secret shared by several servers; null: generated once into DATA_DIR/jwt-secret. */
   jwtSecret: string | null;
+  /** V8 heap growth bound in per cent (0: V8's own choice), applied by server/heap-growth.ts */
+  heapGrowingPercent: number;
 }
 
 const empty = (v: unknown) => (v === '' ? undefined : v);
@@ -93,6 +95,7 @@ export const envSchema = z.object({
   MQTT_TLS_KEY: text(),
   MQTT_TLS_PORT: withDefault(port(), 8883),
   JWT_SECRET: opt(z.string().min(32, { error: 'must be at least 32 characters (a random string, e.g. openssl rand -base64 48)' })),
+  HEAP_GROWING_PERCENT: withDefault(whole(0, 1000), 50),
   // alarms and mail (server/services/alarms/alarm-settings.ts)
   ESCALATE_AFTER_S: withDefault(positiveSeconds(), 15 * 60),
   NOTIFY_MIN_PRIORITY: withDefault(z.enum(PRIORITIES, { error: `must be ${PRIORITIES.join(', ')}` }), 'medium'),
@@ -175,5 +178,6 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
       ? { certFile: path.resolve(e.MQTT_TLS_CERT), keyFile: path.resolve(e.MQTT_TLS_KEY), port: e.MQTT_TLS_PORT }
       : null,
     jwtSecret: e.JWT_SECRET ?? null,
+    heapGrowingPercent: e.HEAP_GROWING_PERCENT,
   };
 }

@@ -9,10 +9,6 @@ import v8 from 'node:v8';
  * flood); bounded here, RSS stays near the live size, for some more full collections.
  * V8's --heap-growing-percent, applied at start (it is read each time V8 sets the next limit).
  */
-export function boundHeapGrowth(env: NodeJS.ProcessEnv = process.env): number {
-  const raw = env.HEAP_GROWING_PERCENT;
-  const pct = raw === undefined || raw === '' ? 50 : Number(raw);
-  if (!Number.isInteger(pct) || pct < 0 || pct > 1000) throw new Error(`HEAP_GROWING_PERCENT must be a whole number from 0 to 1000, got "${raw}"`);
+export function boundHeapGrowth(pct: number): void {
   if (pct > 0) v8.setFlagsFromString(`--heap-growing-percent=${pct}`);
-  return pct;
 }

@@ -6,8 +6,8 @@ import { startServer } from './start';
 
 /** `npm run server`: everything on the configured ports, no demo data. */
 async function main(): Promise<void> {
-  boundHeapGrowth();
   const config = loadConfig();
+  boundHeapGrowth(config.heapGrowingPercent);
   const log = createLogger(config.logLevel);
   installProcessGuards(log);
   const server = await startServer(config, { log });
