@@ -23,6 +23,7 @@ import { UnitValuePipe } from '../ui/unit-value.pipe';
 import { EngineService } from './engine.service';
 import { EngineHome } from './engine-home';
 import { LiveValues } from './live-values';
+import { ReadinessStatus } from '../ui/readiness-status';
 import { RangePicker } from './range-picker';
 import { bucketsToCsv, downloadText } from './readings-csv';
 import { RecentReading, RecentReadings } from './recent-readings';
@@ -42,6 +43,8 @@ const LIVE_REDRAW_MS = 2000;
 const RECENT_MAX = 200;
 /** Live samples held between redraws, per channel (the server sends at most 4 a second). */
 const PENDING_MAX = 100;
+/** A standby engine's readiness (heater, alarms, lockouts) is computed by the server: asked again this often. */
+const READINESS_EVERY_MS = 15_000;
 
 interface TrendRequest {
   engineId: number;
@@ -56,7 +59,7 @@ interface TrendRequest {
   changeDetection: ChangeDetectionStrategy.OnPush,
   imports: [
     RouterLink, MatCardModule, MatIconModule, MatButtonModule, MatChipsModule, MatProgressBarModule,
-    DecimalPipe, UnitValuePipe, JwTimePipe, LiveValues, RangePicker, TrendChart, RecentReadings, EngineHome,
+    DecimalPipe, UnitValuePipe, JwTimePipe, LiveValues, RangePicker, TrendChart, RecentReadings, EngineHome, ReadinessStatus,
   ],
   templateUrl: './engine-page.html',
   styleUrl: './engine-page.scss',
@@ -267,6 +270,15 @@ export class EnginePage {
     }));
     const unwatch = this.live.watch({ engineIds: [id] });
     sub.add(unwatch);
+    // readiness changes without a reload: ask the server again now and then (only the readiness is taken)
+    const readiness = setInterval(() => {
+      if (this.engine()?.readiness === undefined) return;
+      sub.add(this.api.engine(id).subscribe({
+        next: (fresh) => this.engine.update((e) => (e && JSON.stringify(e.readiness) !== JSON.stringify(fresh.readiness) ? { ...e, readiness: fresh.readiness } : e)),
+        error: () => undefined, // kept as it was; the next round tries again
+      }));
+    }, READINESS_EVERY_MS);
+    sub.add(() => clearInterval(readiness));
     sub.add(this.live.readingsFor(id).subscribe((msg) => this.onLive(liveValues(msg.values))));
     return sub;
   }
