@@ -92,6 +92,8 @@ export class EnginePage {
 
   protected readonly engine = signal<Engine | null>(null);
   protected readonly site = signal<Site | null>(null);
+  /** A standby engine's readiness to start (from the server); undefined for other duties. */
+  protected readonly readiness = signal<Engine['readiness']>(undefined, { equal: (a, b) => JSON.stringify(a) === JSON.stringify(b) });
   protected readonly loadError = signal<string | null>(null);
   protected readonly notFound = signal(false);
   /** Bumped by Retry: loads the engine again. */
@@ -260,6 +262,7 @@ export class EnginePage {
     sub.add(forkJoin([this.api.engine(id), this.api.sites().pipe(catchError(() => of([] as Site[])))]).subscribe({
       next: ([engine, sites]) => {
         this.engine.set({ ...engine, latest: liveValues(engine.latest ?? {}) });
+        this.readiness.set(engine.readiness);
         this.site.set(sites.find((s) => s.id === engine.siteId) ?? null);
         this.recent.set(recentFrom(engine.latest ?? {}));
       },
@@ -270,13 +273,11 @@ export class EnginePage {
     }));
     const unwatch = this.live.watch({ engineIds: [id] });
     sub.add(unwatch);
-    // readiness changes without a reload: ask the server again now and then (only the readiness is taken)
+    // a standby engine's readiness changes without a reload: asked again now and then, kept in its own signal
+    // (the engine itself, which the trend's inputs come from, is left alone)
     const readiness = setInterval(() => {
-      if (this.engine()?.readiness === undefined) return;
-      sub.add(this.api.engine(id).subscribe({
-        next: (fresh) => this.engine.update((e) => (e && JSON.stringify(e.readiness) !== JSON.stringify(fresh.readiness) ? { ...e, readiness: fresh.readiness } : e)),
-        error: () => undefined, // kept as it was; the next round tries again
-      }));
+      if (this.readiness() === undefined) return;
+      sub.add(this.api.readiness(id).subscribe({ next: (r) => this.readiness.set(r), error: () => undefined })); // kept on a failure; the next round tries again
     }, READINESS_EVERY_MS);
     sub.add(() => clearInterval(readiness));
     sub.add(this.live.readingsFor(id).subscribe((msg) => this.onLive(liveValues(msg.values))));
