@@ -26,6 +26,8 @@ export class Alarm extends Model<InferAttributes<Alarm>, InferCreationAttributes
   declare lastNotifiedAt: CreationOptional<Date | null>;
   /** First found chattering (returned to alarm N times within the window), null when never. */
   declare chatteringAt: CreationOptional<Date | null>;
+  /** Raised from late data: its e-mail is held since the data arrived (0014), until the data catches up; null = none held. */
+  declare mailHeldSince: CreationOptional<Date | null>;
   declare createdAt: CreationOptional<Date>;
   declare updatedAt: CreationOptional<Date>;
 }
@@ -58,6 +60,7 @@ export function initAlarm(sequelize: Sequelize): typeof Alarm {
       escalationLevel: { type: DataTypes.INTEGER, allowNull: false, defaultValue: 0 },
       lastNotifiedAt: date(),
       chatteringAt: date(),
+      mailHeldSince: date(),
       createdAt: DataTypes.DATE,
       updatedAt: DataTypes.DATE,
     },

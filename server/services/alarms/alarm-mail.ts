@@ -1,4 +1,5 @@
 /** The e-mail for an alarm: what, where, the value with units, what the rule means, the first safe step, the link. */
+import { formatInZone } from '../../../shared/time/zoned-time';
 import type { Alarm } from '../../models/alarm';
 import type { EngineEntry } from './engine-directory';
 import type { RuleDefinition } from './rule-definitions';
@@ -18,7 +19,8 @@ export const GENERAL_CAUTION =
 export function alarmMail(opts: {
   alarm: Alarm;
   def: Pick<RuleDefinition, 'title' | 'meaning' | 'firstStep'>;
-  engine: Pick<EngineEntry, 'name' | 'siteName'>;
+  /** `timeZone`: the site's zone, in which every time of the e-mail is written (UTC when not known). */
+  engine: Pick<EngineEntry, 'name' | 'siteName'> & { timeZone?: string | null };
   publicUrl: string;
   /** Why this person gets it: 'on call', 'backup', 'planner'. */
   reason: string;
@@ -30,9 +32,10 @@ export function alarmMail(opts: {
   const link = `${opts.publicUrl}/alarms/${alarm.id}`;
   const value = formatValue(alarm.value, alarm.unit);
   const worst = alarm.worstValue !== null && alarm.worstValue !== alarm.value ? formatValue(alarm.worstValue, alarm.unit) : null;
-  const raised = new Date(alarm.raisedAt).toISOString().replace('T', ' ').slice(0, 19) + ' UTC';
+  // the app's one format in the site's zone: "2026-12-02 14:05 MST"
+  const when = (t: number | Date) => formatInZone(t, engine.timeZone || 'UTC', 'datetime');
+  const raised = when(alarm.raisedAt);
   const prefix = opts.escalated ? 'Not yet acknowledged: ' : '';
-  const when = (t: number) => new Date(t).toISOString().replace('T', ' ').slice(0, 19) + ' UTC';
   const lateText = opts.late
     ? `The data came late: the readings behind this alarm were measured at ${when(opts.late.measuredAt)} and arrived at ${when(opts.late.arrivedAt)} (sent from the gateway's store after an outage). The condition was still active when the data caught up.`
     : null;

@@ -26,10 +26,12 @@ import { alarmUnit } from './value-format';
 import { WriteQueue } from './write-queue';
 import { CHANNELS } from '../../../shared/channels';
 import type { AlarmHistoryPage, AlarmHistoryView, AlarmView } from '../../../shared/api/alarms-view';
+import { formatInZone } from '../../../shared/time/zoned-time';
 
 export type { AlarmHistoryPage, AlarmHistoryView, AlarmView } from '../../../shared/api/alarms-view';
 
-const stamp = (t: number) => new Date(t).toISOString().replace('T', ' ').slice(0, 19) + ' UTC';
+/** A time in a note or e-mail: the app's one format in the site's zone ("2026-12-02 14:05:09 MST"). */
+const stamp = (t: number, zone: string) => formatInZone(t, zone || 'UTC', 'datetime-s');
 
 export interface AlarmServiceDeps {
   models: Models;
@@ -52,14 +54,15 @@ export class AlarmService {
   private readonly queue = new WriteQueue();
   /** Open alarms by `${engineId}/${rule}`: id and the worst value written. */
   private readonly open = new Map<string, { id: number; worst: number | null; direction: 'high' | 'low' }>();
+  /** Recent activation times of open alarms (by id), for chattering. */
+  private readonly recentActs = new Map<number, number[]>();
   /**
    * Alarms raised from late data (readings older than lateAfterMs when they arrived), by alarm id: not yet
    * e-mailed. Cleared while still late: recorded and closed, never e-mailed. Still active once the engine's
    * data has caught up (or lateAfterMs after they were raised): e-mailed once, saying the data came late.
+   * Mirrored in `alarms.mail_held_since`, so a held e-mail survives a restart (loadOpen reads it back).
    */
-  /** Recent activation times of open alarms (by id), for chattering. */
-  private readonly recentActs = new Map<number, number[]>();
-  private readonly pendingLate = new Map<number, { engineId: number; key: string; measuredAt: number; arrivedAt: number }>();
+  private readonly pendingLate = new Map<number, { engineId: number; measuredAt: number; arrivedAt: number }>();
 
   constructor(private readonly deps: AlarmServiceDeps) {}
 
@@ -76,9 +79,12 @@ export class AlarmService {
   async loadOpen(): Promise<Alarm[]> {
     const rows = await this.deps.models.Alarm.findAll({ where: { closedAt: null } });
     this.open.clear();
+    this.pendingLate.clear();
     for (const a of rows) {
       const def = this.deps.ruleDef(a.engineId, a.rule);
       this.open.set(`${a.engineId}/${a.rule}`, { id: a.id, worst: a.worstValue, direction: def ? directionOf(def) : 'high' });
+      // an e-mail held for late data before a restart is held again (and sent once the data has caught up)
+      if (a.mailHeldSince) this.pendingLate.set(a.id, { engineId: a.engineId, measuredAt: new Date(a.raisedAt).getTime(), arrivedAt: new Date(a.mailHeldSince).getTime() });
     }
     return rows;
   }
@@ -183,8 +189,12 @@ export class AlarmService {
         if (engineId !== null ? p.engineId !== engineId : now - p.arrivedAt < this.deps.settings.lateAfterMs) continue;
         this.pendingLate.delete(id);
         const a = await this.deps.models.Alarm.findByPk(id);
+        if (!a) continue;
         const engine = this.deps.directory.get(p.engineId);
-        if (!a || a.closedAt || !a.active || !engine) continue;
+        if (a.closedAt || !a.active || !engine) {
+          if (a.mailHeldSince) await a.update({ mailHeldSince: null });
+          continue;
+        }
         await this.notify(a, engine, 0, { measuredAt: p.measuredAt, arrivedAt: p.arrivedAt });
       }
     });
@@ -192,6 +202,8 @@ export class AlarmService {
 
   private async create(engine: EngineEntry, def: RuleDefinition, ev: RuleEvent, arrivedAt: number): Promise<void> {
     const direction = directionOf(def);
+    const late = arrivedAt - ev.ts > this.deps.settings.lateAfterMs;
+    const mailed = atLeast(def.priority, this.deps.settings.notifyMinPriority);
     const r = transition(newAlarm(direction), { type: 'activate', value: ev.value, message: ev.message }, ev.ts);
     if (!r.ok) return;
     const entry = r.alarm.history[0];
@@ -210,6 +222,8 @@ export class AlarmService {
             worstValue: ev.value,
             unit: alarmUnit(def.kind, CHANNELS[def.channel].unit),
             message: ev.message.slice(0, 500),
+            // from late data: its e-mail waits for the data to catch up (kept across a restart)
+            mailHeldSince: late && mailed ? new Date(arrivedAt) : null,
           },
           { transaction },
         );
@@ -230,15 +244,14 @@ export class AlarmService {
     this.open.set(`${engine.id}/${def.key}`, { id: a.id, worst: ev.value, direction });
     this.recentActs.set(a.id, [ev.ts]);
     this.deps.publish(this.view(a));
-    const late = arrivedAt - ev.ts > this.deps.settings.lateAfterMs;
     if (late) {
       await this.deps.models.AlarmEvent.create({
         alarmId: a.id, at: new Date(arrivedAt), event: 'note', fromState: a.state, toState: a.state, userId: null, value: null,
-        note: `Raised from readings that arrived late (measured ${stamp(ev.ts)}, arrived ${stamp(arrivedAt)}): e-mailed only if still active once the data has caught up.`,
+        note: `Raised from readings that arrived late (measured ${stamp(ev.ts, engine.timeZone)}, arrived ${stamp(arrivedAt, engine.timeZone)}): e-mailed only if still active once the data has caught up.`,
       });
     }
-    if (!atLeast(def.priority, this.deps.settings.notifyMinPriority)) return;
-    if (late) this.pendingLate.set(a.id, { engineId: engine.id, key: `${engine.id}/${def.key}`, measuredAt: ev.ts, arrivedAt });
+    if (!mailed) return;
+    if (late) this.pendingLate.set(a.id, { engineId: engine.id, measuredAt: ev.ts, arrivedAt });
     else await this.notify(a, engine, 0);
   }
 
@@ -248,13 +261,67 @@ export class AlarmService {
     const sent = await this.deps.notifier.notify(a, def, engine, fromLevel, late);
     const note = (sent.to.length ? `e-mail to ${sent.to.map((u) => u.email).join(', ')}` : 'nobody to e-mail') + (late ? ' (from late data, still active)' : '');
     await this.deps.sequelize.transaction(async (transaction) => {
-      await a.update({ escalationLevel: sent.level, lastNotifiedAt: new Date() }, { transaction });
+      await a.update({ escalationLevel: sent.level, lastNotifiedAt: new Date(), ...(a.mailHeldSince ? { mailHeldSince: null } : {}) }, { transaction });
       await this.deps.models.AlarmEvent.create(
         { alarmId: a.id, at: new Date(), event: fromLevel === 0 ? 'notified' : 'escalated', fromState: a.state, toState: a.state, userId: null, value: null, note },
         { transaction },
       );
     });
     this.deps.publish(this.view(a));
+  }
+
+  /**
+   * A condition found in late readings older than the newest already evaluated (late-evaluation.ts). The newer
+   * readings decide the present state, so this is history: with no alarm of the rule open it is recorded as an
+   * alarm raised, cleared (at its clear, or at the end of the late data when newer readings show it gone) and
+   * closed, never e-mailed; with one open, that alarm gets a note. Nobody is paged for history.
+   */
+  recordPast(engine: EngineEntry, f: { def: RuleDefinition; raise: RuleEvent; clear: RuleEvent | null; endTs: number; arrivedAt: number }): Promise<void> {
+    return this.serial(async () => {
+      const { def, raise } = f;
+      const clearedAt = Math.max(raise.ts, f.clear?.ts ?? f.endTs);
+      const zone = engine.timeZone;
+      const span = `measured ${stamp(raise.ts, zone)}, arrived ${stamp(f.arrivedAt, zone)}`;
+      const known = this.open.get(`${engine.id}/${def.key}`);
+      if (known) {
+        const note = `Late readings (${span}) show this condition then as well: ${raise.message.slice(0, 300)}`;
+        await this.deps.models.AlarmEvent.create({ alarmId: known.id, at: new Date(f.arrivedAt), event: 'note', fromState: null, toState: null, userId: null, value: raise.value, note });
+        return;
+      }
+      const direction = directionOf(def);
+      const note = f.clear
+        ? `Found in readings that arrived late, older than readings already evaluated (${span}): raised and cleared within them, recorded for the record; nobody was e-mailed.`
+        : `Found in readings that arrived late, older than readings already evaluated (${span}): still present at their end (${stamp(f.endTs, zone)}), and the newer readings already evaluated do not show it, so it is recorded as cleared; nobody was e-mailed.`;
+      let rec = newAlarm(direction);
+      for (const [event, at] of [
+        [{ type: 'activate', value: raise.value, message: raise.message }, raise.ts],
+        [{ type: 'clear', value: f.clear?.value ?? null }, clearedAt],
+        [{ type: 'acknowledge', by: 'Jacketwatch', comment: note }, Math.max(clearedAt, f.arrivedAt)],
+      ] as [MachineEvent, number][]) {
+        const r = transition(rec, event, at);
+        if (!r.ok) return;
+        rec = r.alarm;
+      }
+      const a = await this.deps.sequelize.transaction(async (transaction) => {
+        const row = await this.deps.models.Alarm.create(
+          {
+            engineId: engine.id, rule: def.key, priority: def.priority, state: rec.state, active: false,
+            raisedAt: new Date(raise.ts), value: raise.value, worstValue: rec.worstValue ?? raise.value,
+            unit: alarmUnit(def.kind, CHANNELS[def.channel].unit), message: raise.message.slice(0, 500),
+            clearedAt: new Date(clearedAt), acknowledgedAt: new Date(Math.max(clearedAt, f.arrivedAt)), closedAt: new Date(),
+          },
+          { transaction },
+        );
+        for (const h of rec.history) {
+          await this.deps.models.AlarmEvent.create(
+            { alarmId: row.id, at: new Date(h.at), event: h.event, fromState: h.from, toState: h.to, userId: null, value: h.value ?? null, note: h.event === 'acknowledge' ? note : (h.note ?? null) },
+            { transaction },
+          );
+        }
+        return row;
+      });
+      this.deps.publish(this.view(a));
+    });
   }
 
   /** A rule returned to normal on an engine. */
@@ -268,10 +335,13 @@ export class AlarmService {
         return;
       }
       if (a.active) await this.apply(a, { type: 'clear', value: ev.value }, Math.max(ev.ts, ms(a.raisedAt) ?? ev.ts));
-      if (this.pendingLate.delete(a.id) && !a.closedAt) {
+      const held = this.pendingLate.delete(a.id);
+      if (held && a.closedAt) {
+        if (a.mailHeldSince) await a.update({ mailHeldSince: null }); // acknowledged before it cleared: closed now, nothing to send
+      } else if (held) {
         // raised and cleared within late data: recorded, closed, never e-mailed (nobody is paged for history)
         const note = `Raised and cleared within readings that arrived late (backfill or store-and-forward): the condition had already cleared when its data arrived, so nobody was e-mailed.`;
-        await this.apply(a, { type: 'acknowledge', by: 'Jacketwatch', comment: note }, Math.max(Date.now(), ms(a.clearedAt) ?? 0), { note });
+        await this.apply(a, { type: 'acknowledge', by: 'Jacketwatch', comment: note }, Math.max(Date.now(), ms(a.clearedAt) ?? 0), { note }, { mailHeldSince: null });
       }
     });
   }

@@ -5,6 +5,8 @@ export interface EngineEntry {
   name: string;
   siteId: number;
   siteName: string;
+  /** The site's IANA zone: times in e-mails and notes are written in it. */
+  timeZone: string;
   glycolType: 'ethylene' | 'propylene';
   glycolPercent: number;
   duty: 'standby' | 'prime' | 'continuous';
@@ -27,10 +29,11 @@ export class EngineDirectory {
   async refresh(): Promise<Map<number, EngineEntry>> {
     const [engines, sites] = await Promise.all([
       this.models.Engine.findAll({ attributes: ['id', 'name', 'siteId', 'glycolType', 'glycolPercent', 'duty', 'heaterSetpointC', 'capPressureKpa', 'outOfService', 'retiredAt', 'createdAt'] }),
-      this.models.Site.findAll({ attributes: ['id', 'name', 'elevationM'] }),
+      this.models.Site.findAll({ attributes: ['id', 'name', 'elevationM', 'timeZone'] }),
     ]);
     const siteName = new Map(sites.map((s) => [s.id, s.name]));
     const siteElevation = new Map(sites.map((s) => [s.id, s.elevationM ?? null]));
+    const siteZone = new Map(sites.map((s) => [s.id, s.timeZone]));
     const next = new Map<number, EngineEntry>();
     for (const e of engines) {
       next.set(e.id, {
@@ -38,6 +41,7 @@ export class EngineDirectory {
         name: e.name,
         siteId: e.siteId,
         siteName: siteName.get(e.siteId) ?? `site ${e.siteId}`,
+        timeZone: siteZone.get(e.siteId) ?? 'UTC',
         glycolType: e.glycolType,
         glycolPercent: e.glycolPercent,
         duty: e.duty,

@@ -44,6 +44,10 @@ export interface RuleHit {
   event: RuleEvent;
 }
 
+/** Readings further apart than this leave a gap that late readings may fill (see `unseen`). */
+export const GAP_MS = 5000;
+const MAX_GAPS = 64;
+
 /** A speed reading older than this no longer tells whether the engine runs. */
 export const RUN_STATE_FRESH_MS = 60_000;
 
@@ -182,6 +186,9 @@ export class EngineEvaluator {
   private coolantTemp: number | null = null;
   /** Newest reading time seen: older ones (a gateway's backlog) only count for no-data. */
   private newestTs = -Infinity;
+  /** Oldest reading time evaluated, and the recent gaps between evaluated readings (for `unseen`). */
+  private firstTs = Infinity;
+  private readonly gaps: [number, number][] = [];
 
   constructor(
     readonly engine: EngineFacts,
@@ -219,6 +226,39 @@ export class EngineEvaluator {
     return out;
   }
 
+  /** Newest reading time evaluated (-Infinity before the first). */
+  newest(): number {
+    return this.newestTs;
+  }
+
+  /**
+   * True when a reading at `ts`, older than the newest evaluated, was not evaluated before: it is older than the
+   * first reading, or it falls inside a gap (over GAP_MS) between evaluated readings. A repeat of a reading already
+   * evaluated (a QoS 1 redelivery) is not unseen. Only the last MAX_GAPS gaps are kept.
+   */
+  unseen(ts: number): boolean {
+    if (ts < this.firstTs) return true;
+    for (const [from, to] of this.gaps) if (ts > from && ts < to) return true;
+    return false;
+  }
+
+  /** Late readings from `from` to `to` were evaluated elsewhere (for the record): a repeat of them is no longer unseen. */
+  markSeen(from: number, to: number): void {
+    if (from < this.firstTs) {
+      if (this.firstTs !== Infinity && this.firstTs - to > GAP_MS) this.gaps.unshift([to, this.firstTs]);
+      this.firstTs = from;
+    }
+    for (let i = this.gaps.length - 1; i >= 0; i--) {
+      const [a, b] = this.gaps[i];
+      if (to <= a || from >= b) continue;
+      const parts: [number, number][] = [];
+      if (from - a > GAP_MS) parts.push([a, from]);
+      if (b - to > GAP_MS) parts.push([to, b]);
+      this.gaps.splice(i, 1, ...parts);
+    }
+    while (this.gaps.length > MAX_GAPS) this.gaps.shift();
+  }
+
   /** Feed readings of this engine (any order): sorted by time, speed first at equal times. */
   feed(readings: EvalReading[]): RuleHit[] {
     const hits: RuleHit[] = [];
@@ -226,7 +266,14 @@ export class EngineEvaluator {
     for (let i = 0; i < sorted.length; i++) {
       const r = sorted[i];
       const late = r.ts < this.newestTs;
-      if (!late) this.newestTs = r.ts;
+      if (!late) {
+        if (r.ts - this.newestTs > GAP_MS && Number.isFinite(this.newestTs)) {
+          this.gaps.push([this.newestTs, r.ts]);
+          if (this.gaps.length > MAX_GAPS) this.gaps.shift();
+        }
+        if (this.firstTs === Infinity) this.firstTs = r.ts;
+        this.newestTs = r.ts;
+      }
       if (r.channel === 'engine_speed' && r.quality === 0 && !late) this.speed = { ts: r.ts, running: r.value >= RUNNING_RPM };
       if (r.channel === 'coolant_temp' && r.quality === 0 && !late) this.coolantTemp = r.value;
       const running = this.running(r.ts);

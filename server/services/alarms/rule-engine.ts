@@ -9,6 +9,7 @@ import type { AcceptedReading } from '../../telemetry/types';
 import type { AlarmService } from './alarm-service';
 import type { EngineDirectory, EngineEntry } from './engine-directory';
 import { EngineEvaluator, type EngineFacts, type RuleHit } from './engine-evaluator';
+import { LateEvaluation, type LateFinding } from './late-evaluation';
 import { DEFAULT_PROFILE_NAME, DEFAULT_RULES, effectiveRules, type RuleDefinition, type RuleOverride } from './rule-definitions';
 
 /** How often engines (out of service, glycol mix) are re-read from the database. */
@@ -54,8 +55,12 @@ export class RuleEngine {
   private readonly arrivals = new Map<number, { newestTs: number; arrivedAt: number }>();
   private lastRefresh = 0;
   private refreshing: Promise<void> | null = null;
+  /** Late readings older than the newest evaluated: evaluated for the record (late-evaluation.ts). */
+  private readonly late: LateEvaluation;
 
-  constructor(private readonly deps: RuleEngineDeps) {}
+  constructor(private readonly deps: RuleEngineDeps) {
+    this.late = new LateEvaluation(deps.lateAfterMs);
+  }
 
   /** The rule definitions in force for an engine (profile + overrides). */
   rulesFor(engineId: number): RuleDefinition[] {
@@ -121,6 +126,7 @@ export class RuleEngine {
         if (off) {
           nextOos.add(e.id);
           this.evaluators.delete(e.id);
+          this.late.drop(e.id);
           if (!this.outOfService.has(e.id)) await this.deps.alarms.setOutOfService(e.id, true);
           continue;
         }
@@ -164,8 +170,24 @@ export class RuleEngine {
       if (!this.outOfService.has(engineId) && Date.now() - this.lastRefresh > 1000) void this.refreshEngines().catch((err) => this.deps.log.error('alarms: engine refresh failed', err));
       return;
     }
+    // readings older than the newest already evaluated, not seen before: the live rules have moved on, so they
+    // are evaluated for the record (the scan allocates nothing unless there are some)
+    const cutoff = ev.newest();
+    let older: AcceptedReading[] | null = null;
+    for (const r of list) if (r.ts < cutoff && ev.unseen(r.ts)) (older ??= []).push(r);
     this.dispatch(engineId, ev.feed(list));
     this.afterStep(engineId, ev);
+    if (older) {
+      const engine = this.deps.directory.get(engineId);
+      if (engine) this.recordLate(this.late.feed(engineId, this.factsOf(engine), this.rulesFor(engineId), older, Date.now()));
+      let from = Infinity;
+      let to = -Infinity;
+      for (const r of older) {
+        if (r.ts < from) from = r.ts;
+        if (r.ts > to) to = r.ts;
+      }
+      ev.markSeen(from, to); // a redelivery of them is not evaluated twice
+    }
     let newest = -Infinity;
     for (const r of list) if (r.ts > newest) newest = r.ts;
     const now = Date.now();
@@ -205,8 +227,23 @@ export class RuleEngine {
     })().catch((err) => this.deps.log.error('alarms: engine refresh failed', err));
   }
 
+  /** Findings from late readings go on record (never e-mailed). */
+  private recordLate(findings: LateFinding[]): void {
+    for (const f of findings) {
+      const engine = this.deps.directory.get(f.engineId);
+      if (!engine) continue;
+      this.deps.alarms.recordPast(engine, f).catch((err) => this.deps.log.error(`alarms: recording ${f.def.key} from late data on engine ${f.engineId} failed`, err));
+    }
+  }
+
+  /** Finish late segments quiet for ALARM_LATE_AFTER_S (all with `all`): what was still raised at their end goes on record. */
+  finishLate(now = Date.now(), all = false): void {
+    this.recordLate(this.late.finish(now, all));
+  }
+
   /** The 1 s clock. */
   tick(now = Date.now()): void {
+    this.finishLate(now);
     for (const [engineId, ev] of this.evaluators) {
       this.dispatch(engineId, ev.tick(this.clockOf(engineId, now)));
       this.afterStep(engineId, ev);

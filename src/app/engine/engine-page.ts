@@ -23,6 +23,7 @@ import { UnitValuePipe } from '../ui/unit-value.pipe';
 import { EngineService } from './engine.service';
 import { EngineHome } from './engine-home';
 import { LiveValues } from './live-values';
+import { ReadinessStatus } from '../ui/readiness-status';
 import { RangePicker } from './range-picker';
 import { bucketsToCsv, downloadText } from './readings-csv';
 import { RecentReading, RecentReadings } from './recent-readings';
@@ -42,6 +43,8 @@ const LIVE_REDRAW_MS = 2000;
 const RECENT_MAX = 200;
 /** Live samples held between redraws, per channel (the server sends at most 4 a second). */
 const PENDING_MAX = 100;
+/** A standby engine's readiness (heater, alarms, lockouts) is computed by the server: asked again this often. */
+const READINESS_EVERY_MS = 15_000;
 
 interface TrendRequest {
   engineId: number;
@@ -56,7 +59,7 @@ interface TrendRequest {
   changeDetection: ChangeDetectionStrategy.OnPush,
   imports: [
     RouterLink, MatCardModule, MatIconModule, MatButtonModule, MatChipsModule, MatProgressBarModule,
-    DecimalPipe, UnitValuePipe, JwTimePipe, LiveValues, RangePicker, TrendChart, RecentReadings, EngineHome,
+    DecimalPipe, UnitValuePipe, JwTimePipe, LiveValues, RangePicker, TrendChart, RecentReadings, EngineHome, ReadinessStatus,
   ],
   templateUrl: './engine-page.html',
   styleUrl: './engine-page.scss',
@@ -90,6 +93,8 @@ export class EnginePage {
 
   protected readonly engine = signal<Engine | null>(null);
   protected readonly site = signal<Site | null>(null);
+  /** A standby engine's readiness to start (from the server); undefined for other duties. */
+  protected readonly readiness = signal<Engine['readiness']>(undefined, { equal: (a, b) => JSON.stringify(a) === JSON.stringify(b) });
   protected readonly loadError = signal<string | null>(null);
   protected readonly notFound = signal(false);
   /** Bumped by Retry: loads the engine again. */
@@ -258,6 +263,7 @@ export class EnginePage {
     sub.add(forkJoin([this.api.engine(id), this.api.sites().pipe(catchError(() => of([] as Site[])))]).subscribe({
       next: ([engine, sites]) => {
         this.engine.set({ ...engine, latest: liveValues(engine.latest ?? {}) });
+        this.readiness.set(engine.readiness);
         this.site.set(sites.find((s) => s.id === engine.siteId) ?? null);
         this.recent.set(recentFrom(engine.latest ?? {}));
       },
@@ -268,6 +274,13 @@ export class EnginePage {
     }));
     const unwatch = this.live.watch({ engineIds: [id] });
     sub.add(unwatch);
+    // a standby engine's readiness changes without a reload: asked again now and then, kept in its own signal
+    // (the engine itself, which the trend's inputs come from, is left alone)
+    const readiness = setInterval(() => {
+      if (this.readiness() === undefined) return;
+      sub.add(this.api.readiness(id).subscribe({ next: (r) => this.readiness.set(r), error: () => undefined })); // kept on a failure; the next round tries again
+    }, READINESS_EVERY_MS);
+    sub.add(() => clearInterval(readiness));
     sub.add(this.live.readingsFor(id).subscribe((msg) => this.onLive(liveValues(msg.values))));
     return sub;
   }

@@ -28,6 +28,11 @@ export class EngineService {
     return this.http.get<Engine>(`/api/engines/${id}`);
   }
 
+  /** A standby engine's readiness to start, read again from the engine (undefined for other duties). */
+  readiness(id: number): Observable<Engine['readiness']> {
+    return this.engine(id).pipe(map((e) => e.readiness));
+  }
+
   sites(): Observable<Site[]> {
     return this.http.get<Site[]>('/api/sites');
   }

@@ -7,7 +7,9 @@ import {
 import { CHANNELS, ChannelKey } from '../../../shared/channels';
 import { BandEngine, NormalBand, normalBand } from '../../../shared/normal-bands';
 import { PreferencesService } from '../core/preferences.service';
+import { formatInZone } from '../ui/time-format';
 import { convertStored, quantityOf } from '../ui/unit-format';
+import { trendAxisLabel } from './trend-axis';
 import { Bucket, RunChange, toChannelSeries } from './trend-series';
 
 /** The window on screen, ms since epoch. */
@@ -55,7 +57,7 @@ const INK = { light: { line: '#3b4247', range: '#8d969c', band: '#7d878e', mark:
         <h3 class="title">{{ v.label }} <span class="unit">{{ v.unit }}</span></h3>
         <apx-chart
           [chart]="v.chart" [series]="seriesOf(v.channel)" [xaxis]="v.xaxis" [yaxis]="v.yaxis" [annotations]="v.annotations"
-          [stroke]="stroke" [fill]="fill()" [colors]="colors()" [legend]="legend" [dataLabels]="dataLabels" [tooltip]="tooltip"
+          [stroke]="stroke" [fill]="fill()" [colors]="colors()" [legend]="legend" [dataLabels]="dataLabels" [tooltip]="tooltip()"
           [grid]="grid()" [markers]="markers" [noData]="noData" [theme]="theme()" />
       </section>
     } @empty {
@@ -98,6 +100,8 @@ export class TrendChart {
   readonly runChanges = input<readonly RunChange[]>([]);
   /** Height of each channel's chart in px. */
   readonly height = input(190);
+  /** The zone times are written in (the site's, or the browser's by preference): axis labels and the tooltip. */
+  readonly zone = input<string | null>(null);
 
   /** The user dragged out a smaller window. */
   readonly zoomed = output<TrendWindow>();
@@ -117,7 +121,10 @@ export class TrendChart {
   protected readonly dataLabels = { enabled: false };
   protected readonly markers = { size: 0, hover: { size: 3 } };
   protected readonly noData = { text: 'No readings in this range' };
-  protected readonly tooltip: ApexTooltip = { shared: true, x: { format: 'dd MMM yyyy HH:mm:ss' } };
+  protected readonly tooltip = computed<ApexTooltip>(() => {
+    const zone = this.zone();
+    return { shared: true, x: { formatter: (v: number) => formatInZone(v, zone, 'datetime-s') } };
+  });
 
   protected readonly series = computed(() => {
     const prefs = this.prefs.preferences();
@@ -165,6 +172,7 @@ export class TrendChart {
     const engine = this.engine();
     const moving = untracked(this.moving);
     const ink = this.ink();
+    const zone = this.zone();
     return this.channels().map((channel, index) => {
       const quantity = quantityOf(channel);
       const unit = toChannelSeries(channel, [], prefs).unit;
@@ -216,7 +224,7 @@ export class TrendChart {
         strokeDashArray: 4,
         label: { text, position: 'left', textAnchor: 'start', offsetX: 4, borderWidth: 0, style: { background: 'transparent', color: ink.mark, fontSize: '11px' } },
       })) as YAxisAnnotations[];
-      const moved = movingOptions(moving, index, ink);
+      const moved = movingOptions(moving, index, ink, zone);
       return {
         channel,
         label: CHANNELS[channel].label,
@@ -247,6 +255,7 @@ export class TrendChart {
       const moving = this.moving();
       const views = this.views();
       const ink = this.ink();
+      const zone = untracked(this.zone);
       for (const chart of this.charts()) {
         const instance = chart.chartInstance();
         if (!instance) continue;
@@ -255,7 +264,7 @@ export class TrendChart {
         const was = this.applied.get(instance) ?? views[index].drawnFor;
         if (was.win === moving.win && was.changes === moving.changes) continue;
         this.applied.set(instance, moving);
-        const opts = movingOptions(moving, index, ink);
+        const opts = movingOptions(moving, index, ink, zone);
         const yaxis = views[index].annotations.yaxis;
         untracked(() => void instance.updateOptions({ xaxis: opts.xaxis, annotations: { yaxis, xaxis: opts.annotations.xaxis } }, false, false, false));
       }
@@ -288,10 +297,18 @@ export class TrendChart {
 }
 
 /** The x axis and the start/stop marks of one channel's chart (index 0 names the marks in words). */
-function movingOptions(moving: Moving, index: number, ink: (typeof INK)['light']): { xaxis: ApexXAxis; annotations: { xaxis: XAxisAnnotations[] } } {
+function movingOptions(
+  moving: Moving, index: number, ink: (typeof INK)['light'], zone: string | null,
+): { xaxis: ApexXAxis; annotations: { xaxis: XAxisAnnotations[] } } {
   const { win, changes } = moving;
+  const span = win.to - win.from;
   return {
-    xaxis: { type: 'datetime', min: win.from, max: win.to, labels: { datetimeUTC: false }, tooltip: { enabled: false } },
+    // apexcharts writes datetime ticks in the browser's zone; the formatter writes them in the page's zone
+    // (with a formatter the ticks are evenly spaced across the window rather than on round hours)
+    xaxis: {
+      type: 'datetime', min: win.from, max: win.to, tickAmount: 6, tooltip: { enabled: false },
+      labels: { datetimeUTC: false, hideOverlappingLabels: true, formatter: (v: string | number) => trendAxisLabel(Number(v), span, zone) },
+    },
     annotations: {
       xaxis: changes
         .filter((c) => c.t >= win.from && c.t <= win.to)
