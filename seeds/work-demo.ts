@@ -29,15 +29,15 @@ export interface DemoWorkOrder {
 }
 
 export const DEMO_WORK_ORDERS: DemoWorkOrder[] = [
-  // the fire-pump engine's weekly inspection is overdue on the due list: the technician is on it
+  // the fire-pump engine is behind on its checks (overdue on the due list): the technician is on its weekly inspection
   { engine: 'Fire-pump engine', kind: 'weekly-inspection', assignee: 'tech@jacketwatch.test', status: 'in-progress', priority: 'high', dueInDays: 0, startedMinAgo: 25, stepsDone: 1, draft: { value: 41, unit: 'degC' } },
-  { engine: 'Works gen-set A', kind: 'filter-change', assignee: 'tech@jacketwatch.test', status: 'planned', priority: 'medium', dueInDays: 5 },
-  { engine: 'Works gen-set A', kind: 'coolant-test', assignee: 'tech@jacketwatch.test', status: 'planned', priority: 'low', dueInDays: 9 },
+  { engine: 'Fire-pump engine', kind: 'filter-change', assignee: 'tech@jacketwatch.test', status: 'planned', priority: 'medium', dueInDays: 1 },
+  { engine: 'Intake gen-set north', kind: 'coolant-test', assignee: 'tech@jacketwatch.test', status: 'planned', priority: 'low', dueInDays: 9 },
   // the booster engine is past its oil-drain hours
   { engine: 'Booster pump engine', kind: 'oil-drain', assignee: 'tech2@jacketwatch.test', status: 'planned', priority: 'high', dueInDays: -1 },
   { engine: 'Ridgeback gen-set 2', kind: 'monthly-exercise', assignee: 'tech2@jacketwatch.test', status: 'in-progress', priority: 'medium', dueInDays: 1, startedMinAgo: 50, stepsDone: 1 },
   // raised by the operator, waiting for the planner
-  { engine: 'Intake gen-set south', kind: 'leak-check', assignee: null, status: 'requested', priority: 'medium', dueInDays: null, description: 'Drops of coolant under the lower radiator hose after the weekly run; the reservoir level looks normal.' },
+  { engine: 'Ridgeback gen-set 1', kind: 'leak-check', assignee: null, status: 'requested', priority: 'medium', dueInDays: null, description: 'Drops of coolant under the lower radiator hose after the weekly run; the reservoir level looks normal.' },
 ];
 
 /** YYYY-MM-DD of `ms` in `zone`. */
