@@ -20,10 +20,11 @@ import { TopUpLiquid, TopUpsAnswer } from './coolant-types';
 const LIQUID: Record<TopUpLiquid, string> = { water: 'Water', premix: 'Premix', glycol: 'Glycol' };
 
 /** Coolant added between tests, and the additive and glycol estimated from them since the last test. */
+import { JwQuantitiesPipe } from '../ui/quantity-text';
 @Component({
   selector: 'jw-top-ups-card',
   changeDetection: ChangeDetectionStrategy.OnPush,
-  imports: [DatePipe, FormsModule, MatButtonModule, MatCardModule, MatFormFieldModule, MatIconModule, MatInputModule, MatSelectModule],
+  imports: [DatePipe, JwQuantitiesPipe, FormsModule, MatButtonModule, MatCardModule, MatFormFieldModule, MatIconModule, MatInputModule, MatSelectModule],
   template: `
     <mat-card appearance="outlined">
       <mat-card-header><mat-card-title>Coolant added (top-ups)</mat-card-title></mat-card-header>
@@ -32,7 +33,7 @@ const LIQUID: Record<TopUpLiquid, string> = { water: 'Water', premix: 'Premix', 
           <section class="estimate" [class.abnormal]="e.belowLow" aria-label="Estimate since the last test" data-test="top-up-estimate">
             <p class="head"><mat-icon aria-hidden="true" [fontIcon]="e.belowLow ? 'science' : 'calculate'" />
               <strong>{{ e.belowLow ? 'Additive probably low: test now' : 'Estimate since the test of ' }}{{ e.belowLow ? '' : (e.basedOnTestAt | date: 'mediumDate') }}</strong></p>
-            <ul>@for (r of e.reasons; track $index) { <li>{{ r }}</li> }</ul>
+            <ul>@for (r of e.reasons; track $index) { <li>{{ r | jwQuantities }}</li> }</ul>
             <p class="why">Mass balance: each top-up replaces coolant that was lost with its additive; the added liquid brings none.</p>
           </section>
         } @else {
