@@ -152,10 +152,11 @@ describe('service planning at 1366 and 820 px (technician and planner)', () => {
       const mixText = await mix.locator('ul.why').innerText();
       assert.doesNotMatch(mixText, /\d L\b/, `no litres in the mix explanation: ${mixText}`);
       await assertFits(page, `calculators at ${width}`);
+      await page.evaluate(() => window.scrollTo(0, 0));
       await shot(page, `plan-${width}-6-calculators-us`);
     });
 
-    it(`rota at ${width} px: the week of a site in its zone, 24-hour times`, async () => {
+    it(`rota at ${width} px: the week of a site in its zone, 24-hour times; an overlap and uncovered hours are warned before saving`, async () => {
       const page = await pageAs(ACCOUNTS.planner, width);
       await page.goto(`${stack.baseUrl}/alarms/on-call`);
       await page.locator('jw-rota-week-view li.day').nth(6).waitFor();
@@ -163,6 +164,42 @@ describe('service planning at 1366 and 820 px (technician and planner)', () => {
       assert.doesNotMatch((await page.locator('jw-rota-week-view').innerText()) ?? '', /\b(AM|PM)\b/);
       await assertFits(page, `rota at ${width}`);
       await shot(page, `plan-${width}-7-rota-week`);
+
+      // a shift on top of the seeded one, tomorrow 08:00-12:00 in the site's zone: the dialog names the overlap
+      const tomorrow = (await page.locator('jw-rota-week-view li.day').nth(width === 1366 ? 2 : 3).getAttribute('data-date'))!;
+      await page.getByRole('button', { name: /New shift/ }).click();
+      const dialog = await openDialog(page);
+      await pickOption(page, dialog.getByRole('combobox', { name: 'On call' }), /Dagny Ferreira-Holt/);
+      await fillChecked(dialog.getByLabel('From'), `${tomorrow} 08:00`);
+      await fillChecked(dialog.getByLabel('Until'), `${tomorrow} 12:00`);
+      const warning = dialog.getByRole('status', { name: 'Warnings before saving' });
+      await warning.getByText(new RegExp(`Overlaps Tobias Renwick's shift: ${tomorrow} 08:00 to ${tomorrow} 12:00`)).waitFor();
+      await shot(page, `plan-${width}-8-rota-overlap-warned`);
+      await dialog.getByRole('button', { name: 'Save anyway' }).click();
+      await dialog.waitFor({ state: 'detached' });
+      const day = page.locator(`jw-rota-week-view li.day[data-date="${tomorrow}"]`);
+      await day.getByText(/Overlap 08:00–12:00: Tobias Renwick and Dagny Ferreira-Holt/).waitFor();
+      await page.getByText(/This week: .*\d+ overlaps?\./).waitFor();
+      await day.scrollIntoViewIfNeeded();
+      await shot(page, `plan-${width}-9-rota-overlap-shown`);
+
+      // half a year ahead the demo rota has ended: every hour is marked uncovered
+      for (let i = 0; i < 30; i++) await page.getByRole('button', { name: 'Next week' }).click();
+      await page.getByText('This week: 168 h with nobody on call, no overlaps.').waitFor();
+      assert.equal(await page.locator('jw-rota-week-view .warn', { hasText: 'Uncovered 00:00–24:00' }).count(), 7);
+      await page.evaluate(() => window.scrollTo(0, 0));
+      await shot(page, `plan-${width}-10-rota-uncovered`);
+    });
+
+    it(`an account with no work at ${width} px: My work says what to do next`, async () => {
+      const page = await pageAs(ACCOUNTS.admin, width);
+      await page.goto(`${stack.baseUrl}/work/mine`);
+      const empty = page.getByRole('status').filter({ hasText: 'Nothing assigned to you right now.' });
+      await empty.waitFor();
+      await empty.getByRole('link', { name: 'See what is due' }).waitFor();
+      await shot(page, `plan-${width}-11-my-work-empty`);
+      await empty.getByRole('link', { name: 'See what is due' }).click();
+      await page.getByRole('heading', { name: 'Service due' }).waitFor();
     });
   }
 });

@@ -109,7 +109,7 @@ import { RunHoursDialog, type RunHoursDialogData } from './run-hours-dialog';
     .engine { min-width: 150px; }
     .engine a { white-space: nowrap; }
     .hours { display: block; font-size: 0.8rem; min-height: 28px; height: 28px; padding: 0 6px; margin-left: -6px; }
-    .act a { display: block; margin-top: 4px; }
+    .act a:not(.mat-mdc-button-base) { display: block; margin-top: 4px; }
     .error { color: var(--jw-alarm-high); }
   `,
 })

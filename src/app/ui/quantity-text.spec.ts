@@ -12,6 +12,10 @@ describe('localizeQuantities', () => {
     expect(localizeQuantities('Add about one US pint per 4 US gallons: 5.30 L for 170.3 L (45.0 US gal).', US)).toBe('Add about one US pint per 4 US gallons: 1.40 US gal for 45.0 US gal.');
   });
 
+  it('keeps two significant digits of small volumes (0.05 L is 0.013 US gal, not 0.01)', () => {
+    expect(localizeQuantities('Rounded from 5.321 L to the nearest 0.05 L.', US)).toBe('Rounded from 1.406 US gal to the nearest 0.013 US gal.');
+  });
+
   it('leaves rates per litre alone', () => {
     expect(localizeQuantities('at 2.1 units/L and 250 mg/L', US)).toBe('at 2.1 units/L and 250 mg/L');
   });

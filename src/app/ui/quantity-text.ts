@@ -3,9 +3,12 @@ import { KPA_PER_BAR, KPA_PER_PSI, LITRES_PER_US_GALLON, cToF } from '../../../s
 import { PreferencesService } from '../core/preferences.service';
 import type { UnitPreferences } from './unit-format';
 
-/** Digits after the point as the source number wrote them (at least `min`). */
-function decimalsOf(n: string, min: number): number {
-  return Math.max(min, n.includes('.') ? n.split('.')[1].length : 0);
+/** Digits after the point as the source number wrote them (at least `min`), and enough for two significant digits of `converted`. */
+function decimalsOf(n: string, min: number, converted?: number): number {
+  const written = n.includes('.') ? n.split('.')[1].length : 0;
+  const abs = Math.abs(converted ?? 0);
+  const significant = abs > 0 && abs < 1 ? Math.min(4, 1 - Math.floor(Math.log10(abs))) : 0;
+  return Math.max(min, written, significant);
 }
 
 function fixed(v: number, d: number): string {
@@ -24,7 +27,7 @@ export function localizeQuantities(text: string, prefs: UnitPreferences): string
   let out = text;
   if (prefs.volume === 'gal') {
     out = out.replace(/(-?\d+(?:\.\d+)?) L \((-?\d+(?:\.\d+)?) US gal\)/g, '$2 US gal');
-    out = out.replace(/(?<![\w/])(-?\d+(?:\.\d+)?) L\b(?!\/)/g, (_m, n: string) => `${fixed(Number(n) / LITRES_PER_US_GALLON, decimalsOf(n, 1))} US gal`);
+    out = out.replace(/(?<![\w/])(-?\d+(?:\.\d+)?) L\b(?!\/)/g, (_m, n: string) => { const g = Number(n) / LITRES_PER_US_GALLON; return `${fixed(g, decimalsOf(n, 1, g))} US gal`; });
     out = out.replace(/(?<![\w/])(\d+(?:\.\d+)?) mL\b(?!\/)/g, (_m, n: string) => `${fixed(Number(n) / US_FL_OZ_ML, 2)} US fl oz`);
   }
   if (prefs.pressure !== 'kPa') {
