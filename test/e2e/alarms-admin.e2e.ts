@@ -114,7 +114,9 @@ describe('alarm screens of admins and planners', () => {
     // the week view: one site's week in its zone, 24-hour times
     await page.locator('jw-rota-week-view li.day').first().waitFor();
     assert.equal(await page.locator('jw-rota-week-view li.day').count(), 7, 'seven days in the week');
-    const siteName = (await page.getByLabel('Site of the week shown').textContent())?.trim() ?? '';
+    const sitePick = page.getByRole('combobox', { name: 'Site of the week shown' });
+    await waitUntil(async () => !!((await sitePick.textContent()) ?? '').trim(), { timeoutMs: 10000, what: 'the site of the week chosen' });
+    const siteName = ((await sitePick.textContent()) ?? '').trim();
     const sites = (await stack.api<{ id: number; name: string; timeZone: string }[]>('GET', '/api/sites', plannerToken)).body;
     const site = sites.find((s) => s.name === siteName);
     assert.ok(site, `the week is of a site (${siteName})`);

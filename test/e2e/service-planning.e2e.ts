@@ -191,6 +191,29 @@ describe('service planning at 1366 and 820 px (technician and planner)', () => {
       await shot(page, `plan-${width}-10-rota-uncovered`);
     });
 
+    it(`coolant page at ${width} px: reached from the engine page and the service history, one field per quantity`, async () => {
+      const token = await stack.login(ACCOUNTS.technician);
+      const engine = (await stack.api<{ id: number; name: string }[]>('GET', '/api/engines', token)).body.find((e) => e.name === 'Works gen-set A')!;
+      const page = await pageAs(ACCOUNTS.technician, width, { temperature: 'degF', pressure: 'psi', volume: 'gal', theme: 'light' });
+      await page.goto(`${stack.baseUrl}/engines/${engine.id}/history`);
+      await page.locator('[data-test=coolant-link]').click();
+      await page.getByRole('heading', { name: `Coolant of ${engine.name}` }).waitFor();
+      await page.goto(`${stack.baseUrl}/engines/${engine.id}`);
+      await page.getByRole('link', { name: 'Coolant tests' }).click();
+      await page.getByRole('heading', { name: `Coolant of ${engine.name}` }).waitFor();
+      const form = page.locator('mat-card.record');
+      await fillChecked(form.getByLabel('SCA', { exact: true }), '0.8');
+      assert.equal(await form.getByLabel('SCA reading').count(), 0, 'the SCA is asked for once');
+      assert.equal(await form.getByLabel('Cooling-system capacity').count(), 0, "the engine's capacity is not asked for again");
+      const text = await page.locator('main, body').first().innerText();
+      assert.doesNotMatch(text, /pH pH/, 'no doubled unit on pH');
+      const reasons = await form.locator('jw-additive-decision [data-test=reasons]').innerText();
+      assert.doesNotMatch(reasons, /\d L\b/, `no litres in the explanation: ${reasons}`);
+      await assertFits(page, `coolant page at ${width}`);
+      await page.evaluate(() => window.scrollTo(0, 0));
+      await shot(page, `plan-${width}-12-coolant-page`);
+    });
+
     it(`an account with no work at ${width} px: My work says what to do next`, async () => {
       const page = await pageAs(ACCOUNTS.admin, width);
       await page.goto(`${stack.baseUrl}/work/mine`);

@@ -93,6 +93,7 @@ const ONCALL_ROLES = ['technician', 'planner', 'admin'];
     .current, .saved { display: inline-flex; align-items: center; font-weight: 700; }
     .saved { font-weight: 400; }
     .actions { text-align: right; white-space: nowrap; }
+    td.jw-num { white-space: nowrap; }
     .error { color: var(--jw-alarm-high); }
   `,
 })
@@ -124,7 +125,7 @@ export class OnCallPage {
     const days = this.weekView();
     const gaps = days.reduce((n, d) => n + d.uncovered.reduce((h, g) => h + (g.to - g.from), 0), 0) / 3_600_000;
     const overlaps = days.reduce((n, d) => n + d.overlaps.length, 0);
-    const parts = [gaps ? `${Math.round(gaps * 10) / 10} h with nobody on call` : 'Every hour covered', overlaps ? `${overlaps} overlap${overlaps > 1 ? 's' : ''}` : 'no overlaps'];
+    const parts = [gaps ? `${Math.round(gaps * 10) / 10} h with nobody on call` : 'every hour covered', overlaps ? `${overlaps} overlap${overlaps > 1 ? 's' : ''}` : 'no overlaps'];
     return { gaps, overlaps, text: `This week: ${parts.join(', ')}.` };
   });
   private readonly users = signal<Person[] | null>(null);
@@ -229,7 +230,10 @@ export class OnCallPage {
       const saved = shift
         ? await firstValueFrom(this.http.patch<Shift>(`/api/oncall/${shift.id}`, input))
         : await firstValueFrom(this.http.post<Shift>('/api/oncall', input));
-      this.snack.open('Shift saved', undefined, { duration: 2500 });
+      // the server's own check of what the saved shift leaves (the same shared function as the dialog's)
+      const c = saved.coverage;
+      const left = c ? [c.overlaps.length ? `${c.overlaps.length} overlap${c.overlaps.length > 1 ? 's' : ''}` : '', c.uncovered.length ? 'uncovered hours nearby' : ''].filter(Boolean) : [];
+      this.snack.open(left.length ? `Shift saved, with ${left.join(' and ')}: see the week` : 'Shift saved', undefined, { duration: left.length ? 5000 : 2500 });
       await this.load();
       this.showShift(saved.id);
       this.refreshWeek();

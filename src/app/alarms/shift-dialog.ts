@@ -10,7 +10,11 @@ import { MatSelectModule } from '@angular/material/select';
 import { checkCoverage } from '../../../shared/oncall/coverage';
 import { formatInZone, wallTimeToUtc, zoneAbbreviation } from '../ui/time-format';
 
-export interface Shift { id: number; siteId: number; userId: number; userName: string | null; backupUserId: number | null; backupUserName: string | null; startsAt: string; endsAt: string }
+export interface Shift {
+  id: number; siteId: number; userId: number; userName: string | null; backupUserId: number | null; backupUserName: string | null; startsAt: string; endsAt: string;
+  /** In the answer to a save: what the shift leaves at its site (server/services/alarms/oncall.ts). */
+  coverage?: { overlaps: { shiftId: number | null; from: string; to: string }[]; uncovered: { from: string; to: string }[] };
+}
 export interface ShiftInput { siteId: number; userId: number; backupUserId: number | null; startsAt: string; endsAt: string }
 /** Someone who can be on call (from GET /api/people); role when known, shown beside the name. */
 export interface Person { id: number; name: string; role?: string }
