@@ -17,7 +17,6 @@ import { fromCelsius, toCelsius, UNIT_SYMBOL } from '../../../shared/units';
 import { AuthService } from '../core/auth.service';
 import { PreferencesService } from '../core/preferences.service';
 import { EngineService } from '../engine/engine.service';
-import { Engine } from '../fleet/fleet-types';
 import { FleetService } from '../fleet/fleet.service';
 import { DisplayZone } from '../core/display-zone';
 import { AdditiveDecisionView } from './additive-decision';

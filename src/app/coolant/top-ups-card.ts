@@ -1,4 +1,3 @@
-import { DatePipe } from '@angular/common';
 import { HttpErrorResponse } from '@angular/common/http';
 import { ChangeDetectionStrategy, Component, computed, inject, input, signal } from '@angular/core';
 import { toObservable, toSignal } from '@angular/core/rxjs-interop';
@@ -21,10 +20,11 @@ const LIQUID: Record<TopUpLiquid, string> = { water: 'Water', premix: 'Premix', 
 
 /** Coolant added between tests, and the additive and glycol estimated from them since the last test. */
 import { JwQuantitiesPipe } from '../ui/quantity-text';
+import { JwTimePipe } from '../ui/time-format';
 @Component({
   selector: 'jw-top-ups-card',
   changeDetection: ChangeDetectionStrategy.OnPush,
-  imports: [DatePipe, JwQuantitiesPipe, FormsModule, MatButtonModule, MatCardModule, MatFormFieldModule, MatIconModule, MatInputModule, MatSelectModule],
+  imports: [JwTimePipe, JwQuantitiesPipe, FormsModule, MatButtonModule, MatCardModule, MatFormFieldModule, MatIconModule, MatInputModule, MatSelectModule],
   template: `
     <mat-card appearance="outlined">
       <mat-card-header><mat-card-title>Coolant added (top-ups)</mat-card-title></mat-card-header>
@@ -61,7 +61,7 @@ import { JwQuantitiesPipe } from '../ui/quantity-text';
         @if (answer().topUps.length) {
           <ul class="list" aria-label="Recent top-ups">
             @for (t of answer().topUps.slice(0, 10); track t.id) {
-              <li>{{ t.addedAt | date: 'medium' }}: {{ vol(t.volumeL) }} {{ liquidText(t.liquid) }}{{ t.liquid === 'premix' ? ' ' + t.premixPercent + ' %' : '' }}{{ t.notes ? ' · ' + t.notes : '' }}</li>
+              <li>{{ t.addedAt | jwTime: zone() }}: {{ vol(t.volumeL) }} {{ liquidText(t.liquid) }}{{ t.liquid === 'premix' ? ' ' + t.premixPercent + ' %' : '' }}{{ t.notes ? ' · ' + t.notes : '' }}</li>
             }
           </ul>
         }
@@ -88,6 +88,8 @@ export class TopUpsCard {
   readonly canRecord = input(false);
   /** Bumped by the page when a test is saved (the estimate starts from the latest test). */
   readonly refresh = input(0);
+  /** Zone of the engine's site for the times shown (null: the browser's). */
+  readonly zone = input<string | null>(null);
 
   protected readonly volumeUnit = this.prefs.volumeUnit;
   private readonly reload = signal(0);
