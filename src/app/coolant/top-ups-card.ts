@@ -32,7 +32,7 @@ import { JwTimePipe } from '../ui/time-format';
         @if (answer().estimate; as e) {
           <section class="estimate" [class.abnormal]="e.belowLow" aria-label="Estimate since the last test" data-test="top-up-estimate">
             <p class="head"><mat-icon aria-hidden="true" [fontIcon]="e.belowLow ? 'science' : 'calculate'" />
-              <strong>{{ e.belowLow ? 'Additive probably low: test now' : 'Estimate since the test of ' }}{{ e.belowLow ? '' : (e.basedOnTestAt | date: 'mediumDate') }}</strong></p>
+              <strong>{{ e.belowLow ? 'Additive probably low: test now' : 'Estimate since the test of ' }}{{ e.belowLow ? '' : (e.basedOnTestAt | jwTime: zone() : 'date') }}</strong></p>
             <ul>@for (r of e.reasons; track $index) { <li>{{ r | jwQuantities }}</li> }</ul>
             <p class="why">Mass balance: each top-up replaces coolant that was lost with its additive; the added liquid brings none.</p>
           </section>
