@@ -13,6 +13,7 @@ export const DEMO_USERS: DemoUser[] = [
   { email: 'planner@jacketwatch.test', name: 'Marisol Okonkwo-Hart', role: 'planner' },
   { email: 'tech@jacketwatch.test', name: 'Tobias Renwick', role: 'technician' },
   { email: 'operator@jacketwatch.test', name: 'Priya Halvorsen', role: 'operator' },
+  { email: 'tech2@jacketwatch.test', name: 'Dagny Ferreira-Holt', role: 'technician' },
 ];
 
 /** Demo accounts limited to some sites (user_sites): they see only those sites' engines, alarms and work. */

@@ -8,6 +8,7 @@ import { hashSecret } from '../server/services/passwords';
 import { DEMO_ENGINES, DEMO_PASSWORD, DEMO_SITE_USERS, DEMO_SITES, DEMO_USERS } from './demo-scenario';
 import { seedCoolantDemo } from './coolant-demo';
 import { seedOncall } from './oncall';
+import { seedWorkDemo } from './work-demo';
 
 /** One line of the devices file the simulator reads. */
 export interface DeviceRecord {
@@ -61,7 +62,7 @@ export interface SeedResult {
   devices: DeviceRecord[];
 }
 
-/** The invented demo fleet, its four accounts that see every site and one limited to a site. Does nothing (but rewrite the devices file) when users exist. */
+/** The invented demo fleet, its accounts that see every site (two technicians) and one limited to a site. Does nothing (but rewrite the devices file) when users exist. */
 export async function seedDemo(sequelize: Sequelize, models: Models, config: Config, opts: SeedOptions = {}): Promise<SeedResult> {
   if (config.production) throw new Error('refusing to create demo accounts with NODE_ENV=production');
   const devicesFile = opts.devicesFile ?? path.join(config.dataDir, 'demo-devices.json');
@@ -87,6 +88,7 @@ export async function seedDemo(sequelize: Sequelize, models: Models, config: Con
     for (const { site, ...e } of DEMO_ENGINES) engines.push(await models.Engine.create({ ...e, siteId: siteIds.get(site)! }, { transaction }));
     await seedOncall(models, { transaction });
     await seedCoolantDemo(models, engines, { transaction });
+    await seedWorkDemo(models, engines, { transaction });
     return addDevices(models, engines, 'demo-engine', cost, transaction);
   });
   writeDevicesFile(devicesFile, config.mqttPort, devices);

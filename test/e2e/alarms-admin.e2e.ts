@@ -111,30 +111,52 @@ describe('alarm screens of admins and planners', () => {
     const page = await pageAs(ACCOUNTS.planner, 820);
     await page.goto(`${stack.baseUrl}/alarms/on-call`);
     await page.getByRole('heading', { name: 'On-call rota' }).waitFor();
+    // the week view: one site's week in its zone, 24-hour times
+    await page.locator('jw-rota-week-view li.day').first().waitFor();
+    assert.equal(await page.locator('jw-rota-week-view li.day').count(), 7, 'seven days in the week');
+    const sitePick = page.getByRole('combobox', { name: 'Site of the week shown' });
+    await waitUntil(async () => !!((await sitePick.textContent()) ?? '').trim(), { timeoutMs: 10000, what: 'the site of the week chosen' });
+    const siteName = ((await sitePick.textContent()) ?? '').trim();
+    const sites = (await stack.api<{ id: number; name: string; timeZone: string }[]>('GET', '/api/sites', plannerToken)).body;
+    const site = sites.find((s) => s.name === siteName);
+    assert.ok(site, `the week is of a site (${siteName})`);
+    assert.ok(await page.getByText(`Times in ${site.timeZone}`).isVisible(), "the week names the site's zone");
+    assert.doesNotMatch((await page.locator('jw-rota-week-view').textContent()) ?? '', /\b(AM|PM)\b/, 'no 12-hour times');
+    await shot(page, 'alarms-admin-03a-rota-week');
+    const wall = (iso: string) => {
+      // the instant of a wall-clock time in the site's zone
+      const guess = Date.parse(`${iso}:00Z`);
+      const p = Object.fromEntries(new Intl.DateTimeFormat('en-US', { timeZone: site.timeZone, hourCycle: 'h23', year: 'numeric', month: '2-digit', day: '2-digit', hour: '2-digit', minute: '2-digit' }).formatToParts(guess).map((x) => [x.type, x.value]));
+      const shown = Date.parse(`${p.year}-${p.month}-${p.day}T${p.hour}:${p.minute}:00Z`);
+      return new Date(guess - (shown - guess)).toISOString();
+    };
     await page.getByRole('button', { name: /New shift/ }).click();
     const dialog = await openDialog(page);
+    await pickOption(page, dialog.getByLabel('Site', { exact: true }), new RegExp(siteName));
     await pickOption(page, dialog.getByLabel('On call'), /technician/);
-    await fillChecked(dialog.getByLabel('From'), '2030-03-04T07:00');
-    await fillChecked(dialog.getByLabel('Until'), '2030-03-04T19:00');
+    await fillChecked(dialog.getByLabel('From'), '2030-03-04 07:00');
+    await fillChecked(dialog.getByLabel('Until'), '2030-03-04 19:00');
+    // nobody else is on call that day: the uncovered hours are named before saving
+    await dialog.getByRole('status', { name: 'Warnings before saving' }).getByText(/Nobody on call at this site from 2030-03-04 00:00 to 2030-03-04 07:00/).waitFor();
     await shot(page, 'alarms-admin-03-shift-dialog');
-    await dialog.getByRole('button', { name: 'Save' }).click();
+    await dialog.getByRole('button', { name: 'Save anyway' }).click();
     const row = page.locator('tr', { hasText: 'Just saved' });
     await row.waitFor({ timeout: 10000 });
     assert.match((await row.textContent()) ?? '', /2030-03-04/, 'the shift in the one date style');
     await shot(page, 'alarms-admin-04-shift-saved');
 
     const mine = async () =>
-      (await stack.api<Shift[]>('GET', `/api/oncall?from=${Date.parse('2030-03-01T00:00:00Z')}`, plannerToken)).body.filter((s) => s.startsAt === new Date('2030-03-04T07:00').toISOString());
+      (await stack.api<Shift[]>('GET', `/api/oncall?from=${Date.parse('2030-03-01T00:00:00Z')}`, plannerToken)).body.filter((s) => s.startsAt === wall('2030-03-04T07:00'));
     const created = await mine();
     assert.equal(created.length, 1, 'the shift is in the rota');
     assert.equal(Date.parse(created[0].endsAt) - Date.parse(created[0].startsAt), 12 * 3600_000);
 
     await row.getByRole('button', { name: /Change shift/ }).click();
     const change = await openDialog(page);
-    await fillChecked(change.getByLabel('Until'), '2030-03-04T21:00');
-    await change.getByRole('button', { name: 'Save' }).click();
+    await fillChecked(change.getByLabel('Until'), '2030-03-04 21:00');
+    await change.getByRole('button', { name: /^Save/ }).click();
     await change.waitFor({ state: 'detached' });
-    await waitUntil(async () => (await mine())[0]?.endsAt === new Date('2030-03-04T21:00').toISOString(), { timeoutMs: 10000, what: 'the changed end of the shift' });
+    await waitUntil(async () => (await mine())[0]?.endsAt === wall('2030-03-04T21:00'), { timeoutMs: 10000, what: 'the changed end of the shift' });
 
     await page.locator('tr', { hasText: 'Just saved' }).getByRole('button', { name: /Delete shift/ }).click();
     await page.getByRole('button', { name: 'Delete', exact: true }).click();

@@ -1,5 +1,6 @@
 /** The on-call rota: who answers alarms for which site, when, with a backup. */
 import { Op } from 'sequelize';
+import { checkCoverage } from '../../../shared/oncall/coverage';
 import { badRequest, notFound } from '../../http-error';
 import type { Models } from '../../models';
 import type { OncallShift } from '../../models/oncall-shift';
@@ -73,13 +74,35 @@ export async function listShifts(models: Models, q: { siteId?: number; siteIds?:
   return views(models, shifts);
 }
 
-export async function createShift(models: Models, input: ShiftInput): Promise<ShiftView> {
-  await check(models, input);
-  const s = await models.OncallShift.create({ ...input, startsAt: new Date(input.startsAt), endsAt: new Date(input.endsAt) });
-  return (await views(models, [s]))[0];
+/** What a saved shift leaves at its site: overlaps with other shifts, and hours nobody covers from a day before it to a day after. */
+export interface ShiftCoverage {
+  overlaps: { shiftId: number | null; userId: number; samePerson: boolean; from: string; to: string }[];
+  uncovered: { from: string; to: string }[];
 }
 
-export async function updateShift(models: Models, id: number, patch: Partial<ShiftInput>): Promise<ShiftView> {
+const DAY_MS = 86_400_000;
+
+async function coverageOf(models: Models, s: OncallShift): Promise<ShiftCoverage> {
+  const from = new Date(s.startsAt).getTime() - DAY_MS;
+  const to = new Date(s.endsAt).getTime() + DAY_MS;
+  const near = await models.OncallShift.findAll({ where: { siteId: s.siteId, startsAt: { [Op.lt]: new Date(to) }, endsAt: { [Op.gt]: new Date(from) } } });
+  const plain = (x: OncallShift) => ({ id: x.id, userId: x.userId, startsAt: new Date(x.startsAt).getTime(), endsAt: new Date(x.endsAt).getTime() });
+  const c = checkCoverage(plain(s), near.map(plain), { from, to });
+  const iso = (ms: number) => new Date(ms).toISOString();
+  return {
+    overlaps: c.overlaps.map((o) => ({ shiftId: o.other.id ?? null, userId: o.other.userId, samePerson: o.samePerson, from: iso(o.from), to: iso(o.to) })),
+    uncovered: c.uncovered.map((g) => ({ from: iso(g.from), to: iso(g.to) })),
+  };
+}
+
+/** The saved shift, with the overlaps and uncovered hours it leaves (a warning: saving is the planner's call). */
+export async function createShift(models: Models, input: ShiftInput): Promise<ShiftView & { coverage: ShiftCoverage }> {
+  await check(models, input);
+  const s = await models.OncallShift.create({ ...input, startsAt: new Date(input.startsAt), endsAt: new Date(input.endsAt) });
+  return { ...(await views(models, [s]))[0], coverage: await coverageOf(models, s) };
+}
+
+export async function updateShift(models: Models, id: number, patch: Partial<ShiftInput>): Promise<ShiftView & { coverage: ShiftCoverage }> {
   const s = await models.OncallShift.findByPk(id);
   if (!s) throw notFound('on-call shift');
   const merged: ShiftInput = {
@@ -91,7 +114,7 @@ export async function updateShift(models: Models, id: number, patch: Partial<Shi
   };
   await check(models, merged);
   await s.update({ ...merged, startsAt: new Date(merged.startsAt), endsAt: new Date(merged.endsAt) });
-  return (await views(models, [s]))[0];
+  return { ...(await views(models, [s]))[0], coverage: await coverageOf(models, s) };
 }
 
 export async function deleteShift(models: Models, id: number): Promise<void> {

@@ -3,6 +3,7 @@ import { MatIconModule } from '@angular/material/icon';
 import { AdditiveDecision } from '../../../shared/coolant';
 import { PreferencesService } from '../core/preferences.service';
 import { formatStored } from '../ui/unit-format';
+import { JwQuantitiesPipe } from '../ui/quantity-text';
 
 const STATUS: Record<AdditiveDecision['status'], { text: string; icon: string; abnormal: boolean }> = {
   low: { text: 'Additive low', icon: 'arrow_downward', abnormal: true },
@@ -15,7 +16,7 @@ const STATUS: Record<AdditiveDecision['status'], { text: string; icon: string; a
 @Component({
   selector: 'jw-additive-decision',
   changeDetection: ChangeDetectionStrategy.OnPush,
-  imports: [MatIconModule],
+  imports: [MatIconModule, JwQuantitiesPipe],
   template: `
     @if (decision(); as d) {
       <section class="decision" [class.abnormal]="status().abnormal" aria-live="polite" [attr.aria-label]="status().text">
@@ -32,10 +33,10 @@ const STATUS: Record<AdditiveDecision['status'], { text: string; icon: string; a
         </dl>
         <h4>Why</h4>
         <ul data-test="reasons">
-          @for (r of d.reasons; track $index) { <li>{{ r }}</li> }
+          @for (r of d.reasons; track $index) { <li>{{ r | jwQuantities }}</li> }
         </ul>
         <ul class="cautions" aria-label="Cautions for this work">
-          @for (c of d.cautions; track $index) { <li><mat-icon aria-hidden="true" fontIcon="warning_amber" />{{ c }}</li> }
+          @for (c of d.cautions; track $index) { <li><mat-icon aria-hidden="true" fontIcon="warning_amber" />{{ c | jwQuantities }}</li> }
         </ul>
         <p class="source">Limits and dose are common practice of the trade (defaults); the engine and coolant maker's figures come first.</p>
       </section>

@@ -21,31 +21,46 @@ export const parseNumber = (text: string | null | undefined): number | null => {
   changeDetection: ChangeDetectionStrategy.OnPush,
   imports: [FormsModule, MatFormFieldModule, MatInputModule, MatButtonToggleModule, AdditiveDecisionView],
   template: `
-    <div class="row">
-      <mat-button-toggle-group [value]="family()" (change)="family.set($event.value)" aria-label="Coolant family" [disabled]="familyLocked()">
-        <mat-button-toggle value="conventional">Conventional</mat-button-toggle>
-        <mat-button-toggle value="extended-life">Extended-life</mat-button-toggle>
-      </mat-button-toggle-group>
-    </div>
-    <div class="row">
-      <mat-form-field>
-        <mat-label>SCA reading</mat-label>
-        <input matInput inputmode="decimal" name="sca" [ngModel]="scaText()" (ngModelChange)="scaText.set($event)" data-test="sca" />
-        <span matTextSuffix>units/US gal</span>
-        @if (error()?.field === 'scaUnitsPerGal') { <mat-hint class="err" role="alert">{{ error()!.message }}</mat-hint> }
-      </mat-form-field>
-      <mat-form-field>
-        <mat-label>Cooling-system capacity</mat-label>
-        <input matInput inputmode="decimal" name="capacity" [ngModel]="capacityText()" (ngModelChange)="capacityText.set($event)" [readonly]="capacityLocked()" data-test="capacity" />
-        <span matTextSuffix>{{ volumeUnit() === 'gal' ? 'US gal' : 'L' }}</span>
-        @if (error()?.field === 'capacityL') { <mat-hint class="err" role="alert">{{ error()!.message }}</mat-hint> }
-      </mat-form-field>
-    </div>
+    @if (!familyLocked()) {
+      <div class="row">
+        <mat-button-toggle-group [value]="family()" (change)="family.set($event.value)" aria-label="Coolant family">
+          <mat-button-toggle value="conventional">Conventional</mat-button-toggle>
+          <mat-button-toggle value="extended-life">Extended-life</mat-button-toggle>
+        </mat-button-toggle-group>
+      </div>
+    }
+    @if (capacityLocked() || scaDriven()) {
+      <p class="fixed">For {{ familyLocked() ? (family() === 'extended-life' ? 'extended-life' : 'conventional') + ' coolant' : 'this coolant' }}@if (capacityLocked()) { in this engine's {{ capacityText() }} {{ volumeUnit() === 'gal' ? 'US gal' : 'L' }}}@if (scaDriven()) {, with the SCA reading typed above}.</p>
+    }
+    @if (!scaDriven() || !capacityLocked()) {
+      <div class="row">
+        @if (!scaDriven()) {
+          <mat-form-field>
+            <mat-label>SCA reading</mat-label>
+            <input matInput inputmode="decimal" name="sca" [ngModel]="scaText()" (ngModelChange)="scaText.set($event)" data-test="sca" />
+            <span matTextSuffix>units/US gal</span>
+            @if (error()?.field === 'scaUnitsPerGal') { <mat-hint class="err" role="alert">{{ error()!.message }}</mat-hint> }
+          </mat-form-field>
+        }
+        @if (!capacityLocked()) {
+          <mat-form-field>
+            <mat-label>Cooling-system capacity</mat-label>
+            <input matInput inputmode="decimal" name="capacity" [ngModel]="capacityText()" (ngModelChange)="capacityText.set($event)" data-test="capacity" />
+            <span matTextSuffix>{{ volumeUnit() === 'gal' ? 'US gal' : 'L' }}</span>
+            @if (error()?.field === 'capacityL') { <mat-hint class="err" role="alert">{{ error()!.message }}</mat-hint> }
+          </mat-form-field>
+        }
+      </div>
+    }
+    @if (error(); as e) {
+      @if ((scaDriven() && e.field === 'scaUnitsPerGal') || (capacityLocked() && e.field === 'capacityL')) { <p class="err" role="alert">{{ e.message }}</p> }
+    }
     <jw-additive-decision [decision]="decision()" />
   `,
   styles: `
     .row { display: flex; flex-wrap: wrap; gap: 12px; margin-bottom: 8px; }
     .err { color: var(--jw-alarm-high); }
+    .fixed { color: var(--jw-muted-text); margin: 0 0 8px; }
   `,
 })
 export class AdditiveForm {
@@ -60,6 +75,8 @@ export class AdditiveForm {
   protected readonly volumeUnit = this.prefs.volumeUnit;
   protected readonly familyLocked = computed(() => this.coolantFamily() !== null);
   protected readonly capacityLocked = computed(() => this.capacityL() !== null);
+  /** The SCA reading comes from the form around this one: no second field for it. */
+  protected readonly scaDriven = computed(() => this.scaUnitsPerGal() !== undefined);
   readonly family = linkedSignal<CoolantFamily>(() => this.coolantFamily() ?? 'conventional');
   readonly scaText = linkedSignal<string>(() => {
     const v = this.scaUnitsPerGal();

@@ -15,6 +15,7 @@ import { PreferencesService } from '../core/preferences.service';
 import { AdditiveForm, parseNumber } from './additive-form';
 import { CoolantCautions } from './coolant-cautions';
 import { CoolantExplainer } from './coolant-explainer';
+import { JwQuantitiesPipe } from '../ui/quantity-text';
 
 type Outcome<T> = { value: T; error: null } | { value: null; error: string } | { value: null; error: null };
 
@@ -34,7 +35,7 @@ function run<T>(inputs: (number | null)[], fn: () => T): Outcome<T> {
 @Component({
   selector: 'jw-calculators-page',
   changeDetection: ChangeDetectionStrategy.OnPush,
-  imports: [FormsModule, MatCardModule, MatFormFieldModule, MatInputModule, MatSelectModule, MatButtonToggleModule, MatIconModule, AdditiveForm, CoolantCautions, CoolantExplainer],
+  imports: [FormsModule, MatCardModule, MatFormFieldModule, MatInputModule, MatSelectModule, MatButtonToggleModule, MatIconModule, AdditiveForm, CoolantCautions, CoolantExplainer, JwQuantitiesPipe],
   templateUrl: './calculators-page.html',
   styleUrl: './calculators-page.scss',
 })
@@ -75,9 +76,15 @@ export class CalculatorsPage {
       capped: boilingPointC(toKpa(cap!, this.prefs.pressureUnit()), this.glycol(), p!, this.basis()),
       open: boilingPointC(0, this.glycol(), p!, this.basis()),
       capKpa: toKpa(cap!, this.prefs.pressureUnit()),
+      /** The cap as it was entered, in the unit it was entered in. */
+      capText: `${this.capText().trim()} ${this.pUnit()}`,
     }));
   });
-  protected readonly capInKpa = (kpa: number) => `${fromKpa(kpa, 'kPa').toFixed(0)} kPa`;
+  /** A pressure in the user's unit (kPa whole, psi one decimal, bar two). */
+  protected readonly pressure = (kpa: number) => {
+    const unit = this.prefs.pressureUnit();
+    return `${fromKpa(kpa, unit).toFixed(unit === 'kPa' ? 1 : unit === 'psi' ? 1 : 2)} ${UNIT_SYMBOL[unit]}`;
+  };
 
   // mix correction
   readonly mixCapacityText = signal('');

@@ -13,7 +13,7 @@ export interface HistoryPoint {
   changeDetection: ChangeDetectionStrategy.OnPush,
   imports: [ChartComponent],
   template: `
-    <section [attr.aria-label]="title() + ' over time, in ' + unit()">
+    <section [attr.aria-label]="title() + ' over time' + (unit() ? ', in ' + unit() : '')">
       <h3>{{ title() }} <span class="unit">{{ unit() }}</span></h3>
       @if (points().length) {
         <apx-chart [chart]="chart" [series]="series()" [xaxis]="xaxis" [yaxis]="yaxis()" [annotations]="annotations()" [stroke]="stroke"
@@ -63,6 +63,6 @@ export class CoolantHistoryChart {
   protected readonly bandText = computed(() => {
     const b = this.band();
     const d = this.decimals();
-    return b ? `Shaded: target ${b.low.toFixed(d)} to ${b.high.toFixed(d)} ${this.unit()} (${b.source}).` : 'No target band: watch the trend (a steady rise points to contamination).';
+    return b ? `Shaded: target ${b.low.toFixed(d)} to ${b.high.toFixed(d)}${this.unit() ? ' ' + this.unit() : ''} (${b.source}).` : 'No target band: watch the trend (a steady rise points to contamination).';
   });
 }

@@ -48,6 +48,7 @@ import { RunHoursDialog, type RunHoursDialogData } from './run-hours-dialog';
         <section class="site" [attr.aria-label]="s.siteName">
           <h2>{{ s.siteName }} <span class="counts">{{ s.overdue }} overdue · {{ s.dueSoon }} due soon</span></h2>
           @if (s.entries.length) {
+            <div class="table-wrap">
             <table class="due">
               <thead><tr><th>State</th><th>Engine</th><th>Task</th><th>Why</th><th>Last done</th><th><span class="jw-visually-hidden">Actions</span></th></tr></thead>
               <tbody>
@@ -72,12 +73,15 @@ import { RunHoursDialog, type RunHoursDialogData } from './run-hours-dialog';
                 }
               </tbody>
             </table>
+            </div>
           } @else {
-            <p class="none"><mat-icon aria-hidden="true" fontIcon="check" /> Nothing due at this site.</p>
+            <p class="none"><mat-icon aria-hidden="true" fontIcon="check" /> Nothing due at this site within {{ windowDays() }} days or 50 run hours.
+              @if (windowDays() < 30) { <button mat-button type="button" (click)="windowDays.set(30)">Look 30 days ahead</button> }
+              @else { Next: check the plan intervals on each engine's page, or record a coolant test when one is due by the calendar. }</p>
           }
         </section>
       } @empty {
-        <p class="none">No engines to plan for.</p>
+        <p class="none">No engines to plan for here. @if (siteId()) { <button mat-button type="button" (click)="siteId.set(0)">Show all sites</button> } @else { An administrator adds engines under Administration, Engines; their service plan then fills this list. }</p>
       }
     } @else {
       <p>Loading…</p>
@@ -85,7 +89,8 @@ import { RunHoursDialog, type RunHoursDialogData } from './run-hours-dialog';
   `,
   styles: `
     .nowrap { white-space: nowrap; }
-    :host { display: block; max-width: 1300px; padding-right: 16px; }
+    :host { display: block; max-width: 1300px; padding: 16px 24px 32px; box-sizing: border-box; }
+    .table-wrap { overflow-x: auto; }
     h1 { margin: 0 0 4px; font-size: 1.5rem; }
     .lead, .hint, .sub, .none, .counts { color: var(--jw-muted-text); }
     .sub { font-size: 0.8rem; }
@@ -104,7 +109,7 @@ import { RunHoursDialog, type RunHoursDialogData } from './run-hours-dialog';
     .engine { min-width: 150px; }
     .engine a { white-space: nowrap; }
     .hours { display: block; font-size: 0.8rem; min-height: 28px; height: 28px; padding: 0 6px; margin-left: -6px; }
-    .act a { display: block; margin-top: 4px; }
+    .act a:not(.mat-mdc-button-base) { display: block; margin-top: 4px; }
     .error { color: var(--jw-alarm-high); }
   `,
 })

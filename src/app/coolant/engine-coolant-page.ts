@@ -28,6 +28,7 @@ import { CoolantHistoryChart, HistoryPoint } from './coolant-history-chart';
 import { CoolantService } from './coolant.service';
 import { TopUpsCard } from './top-ups-card';
 import { AdditiveProfile, CoolantTest, ImportResult, NewCoolantTest, TestMethod } from './coolant-types';
+import { JwQuantitiesPipe } from '../ui/quantity-text';
 
 /** Glycol 40 to 60 % by volume: common practice for engine coolant (the coolant maker's figure first). */
 const GLYCOL_BAND = { low: 40, high: 60, source: 'common practice' };
@@ -44,7 +45,7 @@ const errorText = (e: unknown): string => {
   selector: 'jw-engine-coolant-page',
   changeDetection: ChangeDetectionStrategy.OnPush,
   imports: [
-    JwTimePipe, FormsModule, RouterLink, MatButtonModule, MatCardModule, MatFormFieldModule, MatIconModule, MatInputModule, MatSelectModule, MatTableModule,
+    JwTimePipe, JwQuantitiesPipe, FormsModule, RouterLink, MatButtonModule, MatCardModule, MatFormFieldModule, MatIconModule, MatInputModule, MatSelectModule, MatTableModule,
     AdditiveForm, AdditiveDecisionView, ChemistryFindings, CoolantCautions, CoolantExplainer, CoolantHistoryChart, TopUpsCard,
   ],
   templateUrl: './engine-coolant-page.html',

@@ -1,4 +1,3 @@
-import { DatePipe } from '@angular/common';
 import { HttpErrorResponse } from '@angular/common/http';
 import { ChangeDetectionStrategy, Component, computed, inject, input, signal } from '@angular/core';
 import { toObservable, toSignal } from '@angular/core/rxjs-interop';
@@ -20,10 +19,12 @@ import { TopUpLiquid, TopUpsAnswer } from './coolant-types';
 const LIQUID: Record<TopUpLiquid, string> = { water: 'Water', premix: 'Premix', glycol: 'Glycol' };
 
 /** Coolant added between tests, and the additive and glycol estimated from them since the last test. */
+import { JwQuantitiesPipe } from '../ui/quantity-text';
+import { JwTimePipe } from '../ui/time-format';
 @Component({
   selector: 'jw-top-ups-card',
   changeDetection: ChangeDetectionStrategy.OnPush,
-  imports: [DatePipe, FormsModule, MatButtonModule, MatCardModule, MatFormFieldModule, MatIconModule, MatInputModule, MatSelectModule],
+  imports: [JwTimePipe, JwQuantitiesPipe, FormsModule, MatButtonModule, MatCardModule, MatFormFieldModule, MatIconModule, MatInputModule, MatSelectModule],
   template: `
     <mat-card appearance="outlined">
       <mat-card-header><mat-card-title>Coolant added (top-ups)</mat-card-title></mat-card-header>
@@ -31,8 +32,8 @@ const LIQUID: Record<TopUpLiquid, string> = { water: 'Water', premix: 'Premix', 
         @if (answer().estimate; as e) {
           <section class="estimate" [class.abnormal]="e.belowLow" aria-label="Estimate since the last test" data-test="top-up-estimate">
             <p class="head"><mat-icon aria-hidden="true" [fontIcon]="e.belowLow ? 'science' : 'calculate'" />
-              <strong>{{ e.belowLow ? 'Additive probably low: test now' : 'Estimate since the test of ' }}{{ e.belowLow ? '' : (e.basedOnTestAt | date: 'mediumDate') }}</strong></p>
-            <ul>@for (r of e.reasons; track $index) { <li>{{ r }}</li> }</ul>
+              <strong>{{ e.belowLow ? 'Additive probably low: test now' : 'Estimate since the test of ' }}{{ e.belowLow ? '' : (e.basedOnTestAt | jwTime: zone() : 'date') }}</strong></p>
+            <ul>@for (r of e.reasons; track $index) { <li>{{ r | jwQuantities }}</li> }</ul>
             <p class="why">Mass balance: each top-up replaces coolant that was lost with its additive; the added liquid brings none.</p>
           </section>
         } @else {
@@ -60,7 +61,7 @@ const LIQUID: Record<TopUpLiquid, string> = { water: 'Water', premix: 'Premix', 
         @if (answer().topUps.length) {
           <ul class="list" aria-label="Recent top-ups">
             @for (t of answer().topUps.slice(0, 10); track t.id) {
-              <li>{{ t.addedAt | date: 'medium' }}: {{ vol(t.volumeL) }} {{ liquidText(t.liquid) }}{{ t.liquid === 'premix' ? ' ' + t.premixPercent + ' %' : '' }}{{ t.notes ? ' · ' + t.notes : '' }}</li>
+              <li>{{ t.addedAt | jwTime: zone() }}: {{ vol(t.volumeL) }} {{ liquidText(t.liquid) }}{{ t.liquid === 'premix' ? ' ' + t.premixPercent + ' %' : '' }}{{ t.notes ? ' · ' + t.notes : '' }}</li>
             }
           </ul>
         }
@@ -87,6 +88,8 @@ export class TopUpsCard {
   readonly canRecord = input(false);
   /** Bumped by the page when a test is saved (the estimate starts from the latest test). */
   readonly refresh = input(0);
+  /** Zone of the engine's site for the times shown (null: the browser's). */
+  readonly zone = input<string | null>(null);
 
   protected readonly volumeUnit = this.prefs.volumeUnit;
   private readonly reload = signal(0);

@@ -18,7 +18,16 @@ import { WorkOrderSummary } from './work-types';
       <h1>My work</h1>
       @if (loading()) { <mat-progress-bar mode="indeterminate" /> }
       @if (error(); as e) { <p class="error" role="alert">{{ e }}</p> }
-      @if (!loading() && !sorted().length && !error()) { <p class="empty">Nothing assigned to you right now.</p> }
+      @if (!loading() && !sorted().length && !error()) {
+        <div class="empty" role="status">
+          <p><strong>Nothing assigned to you right now.</strong></p>
+          <p>Work the planner gives you appears here, in progress first. Meanwhile:</p>
+          <div class="next">
+            <a mat-stroked-button routerLink="/due"><mat-icon fontIcon="event_upcoming" />See what is due</a>
+            <a mat-stroked-button routerLink="/work/new"><mat-icon fontIcon="add" />Raise a work request</a>
+          </div>
+        </div>
+      }
       <div class="cards">
         @for (o of sorted(); track o.id) {
           <a class="card-link" [routerLink]="['/work', o.id]" [attr.aria-label]="'Work order ' + o.id + ': ' + o.title">
@@ -42,7 +51,7 @@ import { WorkOrderSummary } from './work-types';
     </div>
   `,
   styles: `
-    .page { padding: 16px; max-width: 900px; }
+    .page { padding: 16px 24px 32px; max-width: 900px; }
     h1 { font: var(--mat-sys-headline-small); }
     .cards { display: grid; gap: 12px; }
     .card-link { text-decoration: none; color: inherit; display: block; }
@@ -55,6 +64,8 @@ import { WorkOrderSummary } from './work-types';
     .late { color: var(--jw-warning); font-weight: 700; }
     .error { color: var(--jw-alarm-high); }
     .empty { color: var(--jw-muted-text); font: var(--mat-sys-body-large); }
+    .empty p { margin: 0 0 8px; }
+    .next { display: flex; flex-wrap: wrap; gap: 8px; }
   `,
 })
 export class MyWorkPage {

@@ -29,7 +29,7 @@ import { Assignee, WorkPriority, WorkTemplate } from './work-types';
   template: `
     <div class="page">
       <h1>{{ planner() ? 'New work order' : 'Request work' }}</h1>
-      @if (alarmId()) { <p class="from-alarm"><mat-icon fontIcon="link" aria-hidden="true" />From alarm #{{ alarmId() }}: its details are copied into the description and the alarm is linked.</p> }
+      @if (alarmId()) { <p class="from-alarm"><mat-icon fontIcon="link" aria-hidden="true" />From alarm #{{ alarmId() }}: when you create the order, the alarm is linked and described in words at the top of its description (rule, priority, time, values); add your own notes below.</p> }
       @if (!planner()) { <p class="hint">Your request goes to the planner, who accepts or declines it.</p> }
       <form class="form" (ngSubmit)="submit(dueText())">
         <mat-form-field appearance="outline">

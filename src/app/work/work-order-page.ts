@@ -28,6 +28,8 @@ import { provideNativeDateAdapter } from '@angular/material/core';
 import { checkDueDate, fromDateOnly, MAX_DUE, MIN_DUE } from './due-date';
 import { toCelsius } from '../../../shared/units';
 import { lockoutFor, lockStepBefore } from '../../../shared/work/lockout';
+import { DisplayZone } from '../core/display-zone';
+import { FleetService } from '../fleet/fleet.service';
 
 interface StepDraft {
   value: number | null;
@@ -89,7 +91,15 @@ export class WorkOrderPage {
   protected readonly conditionText: Record<string, string | undefined> = CONDITION_TEXT;
   protected readonly partKinds = Object.keys(PART_TEXT);
   protected readonly fmtDate = formatDate;
-  protected readonly fmtTime = formatDateTime;
+  private readonly fleet = inject(FleetService);
+  private readonly zones = inject(DisplayZone);
+  /** Times in the engine's site zone (or the browser's by preference), as on the other pages. */
+  private readonly zone = computed(() => {
+    const engineId = this.order()?.engineId;
+    const siteId = this.fleet.engines().find((e) => e.id === engineId)?.siteId;
+    return this.zones.zoneFor(siteId === undefined ? null : this.fleet.siteById().get(siteId)?.timeZone);
+  });
+  protected readonly fmtTime = (iso: string | number | null) => formatDateTime(iso, this.zone());
 
   protected readonly isPlanner = computed(() => this.auth.hasRole('planner', 'admin'));
   protected readonly isAssignee = computed(() => {
@@ -134,6 +144,7 @@ export class WorkOrderPage {
   });
 
   constructor() {
+    if (!this.fleet.engines().length) void this.fleet.load();
     effect(() => {
       const id = Number(this.id());
       untracked(() => void this.load(id));
