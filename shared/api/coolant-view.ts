@@ -1,5 +1,5 @@
 /** JSON shapes of the coolant-test API (server/services/coolant/coolant-tests.ts), shared by server and client. Types only. */
-import type { AdditiveDecision, ChemistryFinding, FreezeAssessment } from '../coolant';
+import type { AdditiveDecision, BreakdownSign, ChemistryFinding, FreezeAssessment } from '../coolant';
 import type { TopUpEstimate, TopUpLiquid } from '../coolant/top-up';
 
 export type TestMethod = 'strip' | 'refractometer' | 'lab';
@@ -32,6 +32,8 @@ export interface CoolantTestView {
   nitritePpm?: number | null;
   molybdatePpm?: number | null;
   reserveAlkalinityMl?: number | null;
+  /** Signs of glycol breakdown looked for: null = not looked at, [] = none seen. */
+  breakdownSigns?: BreakdownSign[] | null;
   appearance: string | null;
   notes: string | null;
   testedBy: number | null;

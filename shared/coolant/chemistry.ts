@@ -44,11 +44,25 @@ export const CHEMISTRY_LIMIT_SOURCES = Object.freeze({
   nitrite: 'common practice for conventional heavy-duty coolant with additive (from memory)',
   molybdate: 'common practice for conventional heavy-duty coolant with additive (from memory)',
   reserveAlkalinity: 'common practice, ASTM D1121 method (from memory)',
+  breakdown: 'signs of glycol breakdown, common practice (from memory)',
   freeze: 'site design low temperature with a safety margin (common practice)',
 });
 
-export type FindingField = 'nitritePpm' | 'molybdatePpm' | 'ph' | 'reserveAlkalinityMl' | 'freezeProtection';
-export type FindingStatus = 'ok' | 'low' | 'high' | 'short' | 'unknown';
+export type FindingField = 'nitritePpm' | 'molybdatePpm' | 'ph' | 'reserveAlkalinityMl' | 'freezeProtection' | 'breakdownSigns';
+/** `signs`: signs of glycol breakdown were seen. */
+export type FindingStatus = 'ok' | 'low' | 'high' | 'short' | 'unknown' | 'signs';
+
+/**
+ * What a technician sees or smells in a sample when glycol has broken down (oxidised to organic acids such as
+ * glycolic, formic and acetic acid by overheating or air drawn in): common practice of the trade, from memory.
+ */
+export const BREAKDOWN_SIGNS = ['sour-smell', 'dark-colour', 'sludge'] as const;
+export type BreakdownSign = (typeof BREAKDOWN_SIGNS)[number];
+export const BREAKDOWN_SIGN_TEXT: Readonly<Record<BreakdownSign, string>> = Object.freeze({
+  'sour-smell': 'sour or burnt smell',
+  'dark-colour': 'dark brown or black colour',
+  sludge: 'sludge or sediment',
+});
 
 export interface ChemistryFinding {
   field: FindingField;
@@ -69,6 +83,8 @@ export interface ChemistryReading {
   reserveAlkalinityMl?: number | null;
   glycolPercent?: number | null;
   freezePointC?: number | null;
+  /** Signs of glycol breakdown the technician looked for: null/absent = not looked at; [] = looked, none seen. */
+  breakdownSigns?: readonly BreakdownSign[] | null;
 }
 
 export interface ChemistryContext {
@@ -219,6 +235,26 @@ function freezeProtection(r: ChemistryReading, ctx: ChemistryContext, l: Chemist
   };
 }
 
+function breakdown(signs: readonly BreakdownSign[], phValue: number | null, l: ChemistryLimits): ChemistryFinding {
+  const base = { field: 'breakdownSigns' as const, value: null, source: CHEMISTRY_LIMIT_SOURCES.breakdown };
+  const phLow = phValue !== null && phValue < l.phLow;
+  if (!signs.length) {
+    return {
+      ...base, status: phLow ? 'unknown' : 'ok',
+      message: phLow
+        ? `No sign of glycol breakdown seen, but the pH is low (${phValue}): breakdown acids can be present before they show.`
+        : 'No sign of glycol breakdown seen (smell, colour, sludge).',
+      action: phLow ? 'Have a laboratory check the sample for glycol breakdown products (organic acids).' : 'No action.',
+    };
+  }
+  const seen = signs.map((s) => BREAKDOWN_SIGN_TEXT[s]).join(', ');
+  return {
+    ...base, status: 'signs',
+    message: `Signs of glycol breakdown: ${seen}${phLow ? `, with a low pH (${phValue})` : ''}. Overheated or aerated glycol turns into organic acids (glycolic, formic, acetic) that use up the additive and the alkaline buffer and then attack iron, copper, solder and aluminium.`,
+    action: 'Have a laboratory confirm (pH, reserve alkalinity, breakdown acids); plan a drain, flush and refill with new coolant; find the cause (overheating, air drawn in at a pump seal or a low level, exhaust gas in the coolant).',
+  };
+}
+
 /** Extended-life coolants differ (some carry no nitrite at all): the conventional limits would mislead. */
 function notForElc(field: 'nitritePpm' | 'molybdatePpm', name: string, v: number): ChemistryFinding {
   return {
@@ -228,7 +264,7 @@ function notForElc(field: 'nitritePpm' | 'molybdatePpm', name: string, v: number
   };
 }
 
-/** One finding per measured field (nitrite, molybdate, pH, reserve alkalinity, freeze protection). */
+/** One finding per measured field (nitrite, molybdate, pH, reserve alkalinity, glycol-breakdown signs, freeze protection). */
 export function judgeChemistry(reading: ChemistryReading, ctx: ChemistryContext, limits?: Partial<ChemistryLimits> | null): ChemistryFinding[] {
   const l = resolveChemistryLimits(limits);
   if (ctx.designLowC !== null) requireFinite('designLowC', ctx.designLowC);
@@ -244,6 +280,13 @@ export function judgeChemistry(reading: ChemistryReading, ctx: ChemistryContext,
   }
   if (present(reading.ph)) out.push(ph(requireInRange('ph', reading.ph, 0, 14), l));
   if (present(reading.reserveAlkalinityMl)) out.push(reserveAlkalinity(requireInRange('reserveAlkalinityMl', reading.reserveAlkalinityMl, 0, 100, 'mL'), l));
+  if (reading.breakdownSigns !== null && reading.breakdownSigns !== undefined) {
+    if (!Array.isArray(reading.breakdownSigns)) throw new CoolantInputError('breakdownSigns', 'must be a list of signs');
+    for (const s of reading.breakdownSigns) {
+      if (!BREAKDOWN_SIGNS.includes(s)) throw new CoolantInputError('breakdownSigns', `unknown sign "${String(s)}" (one of ${BREAKDOWN_SIGNS.join(', ')})`);
+    }
+    out.push(breakdown([...new Set(reading.breakdownSigns)], present(reading.ph) ? reading.ph : null, l));
+  }
   const f = freezeProtection(reading, ctx, l);
   if (f) out.push(f);
   return out;

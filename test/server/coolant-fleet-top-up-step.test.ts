@@ -118,7 +118,7 @@ describe('top-up work order: the step records the coolant added through the top-
   it('10 L of plain water into 40 L: step done, top-up stored with the order, additive 2.0 x 0.75 = 1.50, glycol 50 x 0.75 = 37.5 %', async () => {
     const o = await startedTopUp();
     const res = await complete(o, { value: 10, unit: 'L', note: 'hose weep found', topUp: { liquid: 'water' } }).expect(200);
-    expect(res.body.steps.find((s: Step) => s.key === 'add')).toMatchObject({ resultValue: 10 });
+    expect(res.body.steps.find((s: Step) => s.key === 'add')).toMatchObject({ resultValue: 10, resultText: 'Plain water: hose weep found' });
     const list = await request(t.app).get(`/api/engines/${topUpEngine}/coolant-top-ups`).set(as('operator')).expect(200);
     expect(list.body.topUps[0]).toMatchObject({ volumeL: 10, liquid: 'water', premixPercent: null, workOrderId: o.id, addedBy: t.userIds.technician });
     expect(list.body.topUps[0].notes).toMatch(new RegExp(`Work order #${o.id}: hose weep found`));

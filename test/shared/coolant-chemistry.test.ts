@@ -135,3 +135,29 @@ describe('extended-life coolant', () => {
     expect(f[0].action).toMatch(/coolant maker/);
   });
 });
+
+describe('signs of glycol breakdown (what they are: common practice, from memory; pH limit 7.5 ASTM D3306 / D6210, from memory)', () => {
+  it('not looked at (null or absent): no finding', () => {
+    expect(judgeChemistry({ breakdownSigns: null }, ctx)).toHaveLength(0);
+    expect(judgeChemistry({}, ctx)).toHaveLength(0);
+  });
+  it('looked, none seen: ok; with a low pH it asks for a lab check instead', () => {
+    expect(one({ breakdownSigns: [] })).toMatchObject({ field: 'breakdownSigns', status: 'ok' });
+    const f = judgeChemistry({ breakdownSigns: [], ph: 7.4 }, ctx).find((x) => x.field === 'breakdownSigns')!;
+    expect(f.status).toBe('unknown');
+    expect(f.action).toMatch(/laboratory/);
+    // the pH limit itself is in range: 7.5 is not low
+    expect(judgeChemistry({ breakdownSigns: [], ph: 7.5 }, ctx).find((x) => x.field === 'breakdownSigns')!.status).toBe('ok');
+  });
+  it('signs seen: named in words, why it matters, and a drain, flush and refill with the cause found', () => {
+    const f = judgeChemistry({ breakdownSigns: ['sour-smell', 'dark-colour', 'sour-smell'], ph: 7.0 }, ctx).find((x) => x.field === 'breakdownSigns')!;
+    expect(f.status).toBe('signs');
+    expect(f.message).toMatch(/sour or burnt smell, dark brown or black colour, with a low pH \(7\)/);
+    expect(f.message).toMatch(/organic acids/);
+    expect(f.action).toMatch(/drain, flush and refill/);
+    expect(f.source).toMatch(/common practice/);
+  });
+  it('an unknown sign is refused naming the field', () => {
+    expect(() => judgeChemistry({ breakdownSigns: ['green' as never] }, ctx)).toThrow(/breakdownSigns/);
+  });
+});

@@ -143,6 +143,9 @@ export async function completeStep(svc: WorkOrderService, user: AuthUser, orderI
   if (topUpStep) {
     if (!input.topUp) throw badRequest('say what was added: water, premix or glycol', 'liquid');
     await checkTopUp(models, order.engineId, { volumeL: patch.resultValue as number, liquid: input.topUp.liquid, premixPercent: input.topUp.premixPercent }, 'value');
+    // the step's record says what was added, before the technician's remark
+    const what = input.topUp.liquid === 'premix' ? `Premix, ${input.topUp.premixPercent} % glycol` : input.topUp.liquid === 'water' ? 'Plain water' : 'Glycol concentrate';
+    patch.resultText = `${what}${note?.trim() ? `: ${note.trim()}` : ''}`.slice(0, 2000);
   }
 
   const now = new Date();
@@ -188,7 +191,7 @@ export async function completeStep(svc: WorkOrderService, user: AuthUser, orderI
     const topUp = topUpStep && input.topUp
       ? await recordTopUp(models, order.engineId, {
         addedAt: now, volumeL: patch.resultValue as number, liquid: input.topUp.liquid, premixPercent: input.topUp.premixPercent,
-        notes: `Work order #${order.id}${patch.resultText ? `: ${String(patch.resultText).slice(0, 400)}` : ''}`,
+        notes: `Work order #${order.id}${note?.trim() ? `: ${note.trim().slice(0, 400)}` : ''}`,
       }, user.id, { transaction, workOrderId: order.id })
       : null;
     await svc.event(orderId, user.id, manual ? 'step-done-manual-check' : 'step-done', {

@@ -1,4 +1,3 @@
-import { DatePipe } from '@angular/common';
 import { HttpErrorResponse } from '@angular/common/http';
 import { ChangeDetectionStrategy, Component, computed, inject, input, signal } from '@angular/core';
 import { toObservable, toSignal } from '@angular/core/rxjs-interop';
@@ -12,6 +11,7 @@ import { MatSelectModule } from '@angular/material/select';
 import { catchError, of, switchMap } from 'rxjs';
 import { gallonsToLitres } from '../../../shared/units';
 import { PreferencesService } from '../core/preferences.service';
+import { JwTimePipe } from '../ui/time-format';
 import { formatStored } from '../ui/unit-format';
 import { parseNumber } from './additive-form';
 import { CoolantService } from './coolant.service';
@@ -23,7 +23,7 @@ const LIQUID: Record<TopUpLiquid, string> = { water: 'Water', premix: 'Premix', 
 @Component({
   selector: 'jw-top-ups-card',
   changeDetection: ChangeDetectionStrategy.OnPush,
-  imports: [DatePipe, FormsModule, MatButtonModule, MatCardModule, MatFormFieldModule, MatIconModule, MatInputModule, MatSelectModule],
+  imports: [JwTimePipe, FormsModule, MatButtonModule, MatCardModule, MatFormFieldModule, MatIconModule, MatInputModule, MatSelectModule],
   template: `
     <mat-card appearance="outlined">
       <mat-card-header><mat-card-title>Coolant added (top-ups)</mat-card-title></mat-card-header>
@@ -31,7 +31,7 @@ const LIQUID: Record<TopUpLiquid, string> = { water: 'Water', premix: 'Premix', 
         @if (answer().estimate; as e) {
           <section class="estimate" [class.abnormal]="e.belowLow" aria-label="Estimate since the last test" data-test="top-up-estimate">
             <p class="head"><mat-icon aria-hidden="true" [fontIcon]="e.belowLow ? 'science' : 'calculate'" />
-              <strong>{{ e.belowLow ? 'Additive probably low: test now' : 'Estimate since the test of ' }}{{ e.belowLow ? '' : (e.basedOnTestAt | date: 'mediumDate') }}</strong></p>
+              <strong>{{ e.belowLow ? 'Additive probably low: test now' : 'Estimate since the test of ' }}{{ e.belowLow ? '' : (e.basedOnTestAt | jwTime: zone() : 'datetime') }}</strong></p>
             <ul>@for (r of e.reasons; track $index) { <li>{{ r }}</li> }</ul>
             <p class="why">Mass balance: each top-up replaces coolant that was lost with its additive; the added liquid brings none.</p>
           </section>
@@ -60,7 +60,7 @@ const LIQUID: Record<TopUpLiquid, string> = { water: 'Water', premix: 'Premix', 
         @if (answer().topUps.length) {
           <ul class="list" aria-label="Recent top-ups">
             @for (t of answer().topUps.slice(0, 10); track t.id) {
-              <li>{{ t.addedAt | date: 'medium' }}: {{ vol(t.volumeL) }} {{ liquidText(t.liquid) }}{{ t.liquid === 'premix' ? ' ' + t.premixPercent + ' %' : '' }}{{ t.notes ? ' · ' + t.notes : '' }}</li>
+              <li>{{ t.addedAt | jwTime: zone() : 'datetime' }}: {{ vol(t.volumeL) }} {{ liquidText(t.liquid) }}{{ t.liquid === 'premix' ? ' ' + t.premixPercent + ' %' : '' }}{{ t.notes ? ' · ' + t.notes : '' }}</li>
             }
           </ul>
         }
@@ -85,6 +85,8 @@ export class TopUpsCard {
   private readonly prefs = inject(PreferencesService);
   readonly engineId = input.required<number>();
   readonly canRecord = input(false);
+  /** The engine's site zone (the page's display zone); times are written as everywhere else. */
+  readonly zone = input<string | null>(null);
   /** Bumped by the page when a test is saved (the estimate starts from the latest test). */
   readonly refresh = input(0);
 
