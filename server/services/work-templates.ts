@@ -135,6 +135,8 @@ export const WORK_TEMPLATES: readonly WorkTemplate[] = Object.freeze([
       { key: 'glycol-percent', title: 'Glycol concentration', input: 'value', unit: '%', gated: false, optional: true },
       { key: 'sca-level', title: 'Additive (SCA) level from the test strip', input: 'value', unit: 'units/gal', gated: false, optional: true },
       { key: 'ph', title: 'pH', input: 'value', unit: 'pH', gated: false, optional: true },
+      { key: 'nitrite', title: 'Nitrite from the strip or the lab report', input: 'value', unit: 'ppm', gated: false, optional: true, range: [0, 100000] },
+      { key: 'molybdate', title: 'Molybdate, where the strip or the lab gives it', input: 'value', unit: 'ppm', gated: false, optional: true, range: [0, 100000] },
       { key: 'strip-photo', title: 'Photo of the strip against its colour chart, or of the sample label', input: 'photo', gated: false, optional: true },
       { key: 'lab-sample', title: 'For a lab sample: label the bottle with engine, date and run hours and send it', input: 'confirmation', gated: false, optional: true },
       { ...leakRunStep, key: 'return-to-service', title: 'Remove your lock and tag and return the engine to automatic', detail: 'Check the controller is back in automatic and the heater is on.' },

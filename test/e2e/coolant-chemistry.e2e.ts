@@ -23,9 +23,10 @@ interface UserRow { id: number; role: string; email: string }
 /** Screenshots also kept under /tmp/wt-chem for looking at them. */
 const LOOK = '/tmp/wt-chem';
 async function look(page: Page, name: string): Promise<void> {
-  const file = await shot(page, name);
+  await shot(page, name);
+  // what the user sees at this scroll position (the full page is in test-output/screenshots)
   fs.mkdirSync(LOOK, { recursive: true });
-  fs.copyFileSync(file, path.join(LOOK, `${name}.png`));
+  await page.screenshot({ path: path.join(LOOK, `${name}.png`) });
 }
 /** The same screen at 1366 px and at 820 px wide. */
 async function lookBoth(page: Page, name: string): Promise<void> {

@@ -52,7 +52,7 @@ export function timeZoneValidator(control: AbstractControl): ValidationErrors | 
           <input matInput formControlName="name" required />
           <mat-error>{{ err('name') }}</mat-error>
         </mat-form-field>
-        <mat-form-field>
+        <mat-form-field subscriptSizing="dynamic">
           <mat-label>Time zone</mat-label>
           <input matInput formControlName="timeZone" [matAutocomplete]="zones" required />
           <mat-autocomplete #zones="matAutocomplete">
@@ -61,7 +61,7 @@ export function timeZoneValidator(control: AbstractControl): ValidationErrors | 
           <mat-hint>IANA name, e.g. America/Chicago. Schedules and day boundaries of the site use it.</mat-hint>
           <mat-error>{{ err('timeZone') }}</mat-error>
         </mat-form-field>
-        <mat-form-field>
+        <mat-form-field subscriptSizing="dynamic">
           <mat-label>Lowest expected temperature</mat-label>
           <input matInput type="number" inputmode="decimal" formControlName="designLow" data-test="design-low" />
           <span matTextSuffix>{{ tempSymbol }}</span>
@@ -78,7 +78,7 @@ export function timeZoneValidator(control: AbstractControl): ValidationErrors | 
     </form>
   `,
   styles: `
-    .fields { display: flex; flex-direction: column; gap: 8px; min-width: min(420px, 80vw); }
+    .fields { display: flex; flex-direction: column; gap: 12px; min-width: min(420px, 80vw); max-width: 520px; }
     .form-error { color: var(--jw-alarm-high); }
   `,
 })
