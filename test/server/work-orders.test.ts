@@ -21,7 +21,6 @@ let t: TestApp;
 let engineId: number;
 let coldEngineId: number;
 let staleEngineId: number;
-let otherTechId: number;
 let otherTechToken: string;
 const listeners: Array<(r: AcceptedReading[]) => void> = [];
 const live = new MemoryLiveState();
@@ -72,7 +71,7 @@ beforeAll(async () => {
     emit: (room: string, event: string, payload: unknown) => { emitted.push({ room, event, payload }); },
   } as unknown as typeof t.ctx.telemetry;
   const { createUser } = await import('../../server/services/users');
-  otherTechId = (await createUser(t.ctx.models, { email: 'tech2@example.test', name: 'Second tech', password: 'correct-horse-battery', role: 'technician' }, 4)).id;
+  await createUser(t.ctx.models, { email: 'tech2@example.test', name: 'Second tech', password: 'correct-horse-battery', role: 'technician' }, 4);
   otherTechToken = (await request(t.app).post('/api/auth/login').send({ email: 'tech2@example.test', password: 'correct-horse-battery' }).expect(200)).body.token;
 });
 afterAll(() => t.close());

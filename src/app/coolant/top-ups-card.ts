@@ -74,7 +74,8 @@ const LIQUID: Record<TopUpLiquid, string> = { water: 'Water', premix: 'Premix', 
     .abnormal .head { color: var(--jw-warning); }
     .why { color: var(--jw-muted-text); font-size: 0.85rem; }
     .form { display: flex; flex-wrap: wrap; gap: 0 8px; align-items: baseline; }
-    .form mat-form-field { width: 200px; }
+    .form mat-form-field { width: 220px; }
+    .form [matTextSuffix] { white-space: nowrap; }
     .form mat-form-field.wide { width: 100%; }
     .error { color: var(--jw-alarm-high); width: 100%; }
     .list { font-size: 0.9rem; padding-left: 18px; }

@@ -75,6 +75,7 @@ import { WorkOrderDetail, WorkStep } from './work-types';
     .form mat-form-field.wide { flex: 1 1 100%; width: auto; }
     .hint { display: flex; align-items: center; gap: 6px; color: var(--jw-muted-text); margin: 0; flex: 1 1 100%; }
     .err { color: var(--jw-alarm-high); flex: 1 1 100%; }
+    .big { min-height: 48px; font-size: 16px; }
     .estimate { border: 1px solid var(--jw-band); border-radius: 4px; padding: 4px 12px; margin-top: 8px; }
     .estimate.abnormal { border-color: var(--jw-warning); background: var(--jw-warning-bg); }
     .head { display: flex; gap: 8px; align-items: center; margin: 4px 0; }
