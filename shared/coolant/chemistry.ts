@@ -113,6 +113,8 @@ export function resolveChemistryLimits(partial?: Partial<ChemistryLimits> | null
 }
 
 const present = (v: number | null | undefined): v is number => v !== null && v !== undefined;
+/** "-30.0 °C (-22.0 °F)": the words are read in either unit system (°F = °C x 1.8 + 32, NIST SP 811). */
+const both = (c: number): string => `${c.toFixed(1)} °C (${(c * 1.8 + 32).toFixed(1)} °F)`;
 
 function nitrite(v: number, l: ChemistryLimits): ChemistryFinding {
   const base = { field: 'nitritePpm' as const, value: v, source: CHEMISTRY_LIMIT_SOURCES.nitrite };
@@ -199,12 +201,12 @@ function freezeProtection(r: ChemistryReading, ctx: ChemistryContext, l: Chemist
   if (ctx.designLowC === null) {
     return {
       ...base, status: 'unknown', value: fp,
-      message: `No design low temperature is set for this site, so the ${how}${fp === null ? '' : ` (${fp.toFixed(1)} °C)`} cannot be judged.${overNote}`,
+      message: `No design low temperature is set for this site, so the ${how}${fp === null ? '' : ` (${both(fp)})`} cannot be judged.${overNote}`,
       action: 'Ask an administrator to set the site\'s lowest expected temperature.',
     };
   }
   const need = ctx.designLowC - l.freezeMarginK;
-  const needText = `design low ${ctx.designLowC.toFixed(1)} °C less the ${l.freezeMarginK} K margin = ${need.toFixed(1)} °C`;
+  const needText = `design low ${both(ctx.designLowC)} less the ${l.freezeMarginK} K (${+(l.freezeMarginK * 1.8).toFixed(1)} °F) margin = ${both(need)}`;
   if (fp === null) {
     return {
       ...base, status: over ? 'high' : 'unknown', value: null,
@@ -215,7 +217,7 @@ function freezeProtection(r: ChemistryReading, ctx: ChemistryContext, l: Chemist
   if (fp <= need) {
     return {
       ...base, status: over ? 'high' : 'ok', value: fp,
-      message: `Freeze protection ${fp.toFixed(1)} °C (${how}) meets the ${needText}.${overNote}`,
+      message: `Freeze protection ${both(fp)} (${how}) meets the ${needText}.${overNote}`,
       action: over ? 'Dilute towards 50 % glycol with water (see the mix correction).' : 'No action.',
     };
   }
@@ -223,14 +225,14 @@ function freezeProtection(r: ChemistryReading, ctx: ChemistryContext, l: Chemist
   try {
     const p = percentForFreezePoint(ctx.glycolType, need, 'volume');
     target = p > OVER_CONCENTRATION_PERCENT
-      ? `${ctx.glycolType} glycol cannot reach ${need.toFixed(1)} °C at ${OVER_CONCENTRATION_PERCENT} % or less: take advice on the coolant or the design temperature.`
+      ? `${ctx.glycolType} glycol cannot reach ${both(need)} at ${OVER_CONCENTRATION_PERCENT} % or less: take advice on the coolant or the design temperature.`
       : `Raise the glycol to at least ${p.toFixed(1)} % by volume (see the mix correction) and test again.`;
   } catch {
-    target = `${ctx.glycolType} glycol cannot reach ${need.toFixed(1)} °C within the published table: take advice on the coolant or the design temperature.`;
+    target = `${ctx.glycolType} glycol cannot reach ${both(need)} within the published table: take advice on the coolant or the design temperature.`;
   }
   return {
     ...base, status: 'short', value: fp,
-    message: `Freeze protection short: ${fp.toFixed(1)} °C (${how}) is warmer than the ${needText}. The coolant could freeze, crack the block or radiator and stop the engine starting.`,
+    message: `Freeze protection short: ${both(fp)} (${how}) is warmer than the ${needText}. The coolant could freeze, crack the block or radiator and stop the engine starting.`,
     action: `${target}${over ? overNote : ''}`,
   };
 }

@@ -61,6 +61,9 @@ describe('freeze protection against the site design low with a 5 K margin', () =
     const f = one({ freezePointC: -24.9 });
     expect(f.status).toBe('short');
     expect(f.message).toMatch(/-25\.0 °C/);
+    // both unit systems in the words: -25 °C = -13.0 °F, -24.9 °C = -12.8 °F, 5 K = 9 °F (NIST SP 811: °F = °C x 1.8 + 32)
+    expect(f.message).toContain('-24.9 °C (-12.8 °F)');
+    expect(f.message).toContain('design low -20.0 °C (-4.0 °F) less the 5 K (9 °F) margin = -25.0 °C (-13.0 °F)');
     // -25 °C needs 44.0 vol % PG by Lange's table (between 40 -> -20.6 and 50 -> -33.3)
     expect(f.action).toMatch(/Raise the glycol to at least 4\d\.\d % by volume/);
   });
