@@ -22,11 +22,15 @@ export const DEMO_SITE_USERS: DemoSiteUser[] = [
   { email: 'ridge-operator@jacketwatch.test', name: 'Ines Valcourt', role: 'operator', sites: ['ridge'] },
 ];
 
-export interface DemoSite { key: string; name: string; timeZone: string }
+/**
+ * `designLowTempC`: the site's lowest expected temperature, invented but plausible for the climate its zone suggests
+ * (a cold continental plain, a high dry plateau, a mild coast); coolant freeze protection is judged against it.
+ */
+export interface DemoSite { key: string; name: string; timeZone: string; designLowTempC: number }
 export const DEMO_SITES: DemoSite[] = [
-  { key: 'works', name: 'Hollowmere Treatment Works', timeZone: 'America/Chicago' },
-  { key: 'ridge', name: 'Ridgeback Booster Station', timeZone: 'America/Denver' },
-  { key: 'marsh', name: 'Saltmarsh Reservoir Intake', timeZone: 'America/Los_Angeles' },
+  { key: 'works', name: 'Hollowmere Treatment Works', timeZone: 'America/Chicago', designLowTempC: -28 },
+  { key: 'ridge', name: 'Ridgeback Booster Station', timeZone: 'America/Denver', designLowTempC: -30 },
+  { key: 'marsh', name: 'Saltmarsh Reservoir Intake', timeZone: 'America/Los_Angeles', designLowTempC: -3 },
 ];
 
 export interface DemoEngine {

@@ -79,7 +79,7 @@ export async function seedDemo(sequelize: Sequelize, models: Models, config: Con
     const passwordHash = await hashSecret(DEMO_PASSWORD, cost);
     await models.User.bulkCreate(DEMO_USERS.map((u) => ({ ...u, passwordHash })), { transaction });
     const siteIds = new Map<string, number>();
-    for (const s of DEMO_SITES) siteIds.set(s.key, (await models.Site.create({ name: s.name, timeZone: s.timeZone }, { transaction })).id);
+    for (const s of DEMO_SITES) siteIds.set(s.key, (await models.Site.create({ name: s.name, timeZone: s.timeZone, designLowTempC: s.designLowTempC }, { transaction })).id);
     for (const { sites, ...u } of DEMO_SITE_USERS) {
       const user = await models.User.create({ ...u, passwordHash }, { transaction });
       await models.UserSite.bulkCreate(sites.map((key) => ({ userId: user.id, siteId: siteIds.get(key)! })), { transaction });

@@ -18,6 +18,8 @@ export class CoolantTest extends Model<InferAttributes<CoolantTest>, InferCreati
   declare nitritePpm: CreationOptional<number | null>;
   declare molybdatePpm: CreationOptional<number | null>;
   declare reserveAlkalinityMl: CreationOptional<number | null>;
+  /** Signs of glycol breakdown looked for (migration 0016): null = not looked at. */
+  declare breakdownSigns: CreationOptional<string[] | null>;
   declare appearance: string | null;
   declare notes: string | null;
   declare testedBy: number | null;
@@ -126,6 +128,7 @@ export function initCoolantModels(sequelize: Sequelize): CoolantModels {
       nitritePpm: real(),
       molybdatePpm: real(),
       reserveAlkalinityMl: real(),
+      breakdownSigns: { type: DataTypes.JSON, allowNull: true },
       appearance: { type: DataTypes.STRING(200), allowNull: true },
       notes: { type: DataTypes.TEXT, allowNull: true },
       testedBy: { type: DataTypes.INTEGER, allowNull: true },

@@ -20,13 +20,13 @@ export const LAB_CSV_DESCRIPTION = [
 const decision: Json = obj({
   additive: { type: ['object', 'null'], description: 'decideAdditive result: status low|in-range|high|not-applicable, filter charged|blank|null, liquidAdditiveL, reasons, cautions' },
   freeze: { type: ['object', 'null'] },
-  findings: { type: 'array', description: 'one per measured field (nitritePpm, molybdatePpm, ph, reserveAlkalinityMl, freezeProtection against the site design low): field, status ok|low|high|short|unknown, value, message, action, source' },
+  findings: { type: 'array', description: 'one per measured field (nitritePpm, molybdatePpm, ph, reserveAlkalinityMl, breakdownSigns, freezeProtection against the site design low): field, status ok|low|high|short|unknown|signs, value, message, action, source' },
   notes: { type: 'array', items: { type: 'string' } },
 });
 const coolantTest: Json = obj({
   id: { type: 'integer' }, engineId: { type: 'integer' }, testedAt: { type: 'string', format: 'date-time' }, method: { enum: ['strip', 'refractometer', 'lab'] },
   scaUnitsPerGal: num('units per US gallon'), glycolPercent: num('% by volume'), freezePointC: num(), ph: num(), conductivityUsCm: num('µS/cm'),
-  nitritePpm: num('ppm'), molybdatePpm: num('ppm'), reserveAlkalinityMl: num('mL (ASTM D1121)'),
+  nitritePpm: num('ppm'), molybdatePpm: num('ppm'), reserveAlkalinityMl: num('mL (ASTM D1121)'), breakdownSigns: { type: ['array', 'null'], items: { type: 'string' } },
   appearance: { type: ['string', 'null'] }, notes: { type: ['string', 'null'] }, testedBy: { type: ['integer', 'null'] }, testedByName: { type: ['string', 'null'] },
   decision, source: { enum: ['manual', 'lab-import'] },
 });
@@ -50,7 +50,7 @@ export const coolantOpenApi: OpenApiGroup = {
       get: { summary: 'Coolant tests of an engine, newest first', responses: { '200': json({ type: 'array', items: coolantTest }), ...errors({ notFound: true }) } },
       post: {
         summary: 'Record a coolant test (technician, planner, admin); the additive decision is computed and stored with its reasons (none for extended-life coolant, saying why)',
-        requestBody: body(obj({ testedAt: { type: 'string' }, method: { enum: ['strip', 'refractometer', 'lab'] }, scaUnitsPerGal: num(), glycolPercent: num(), freezePointC: num(), ph: num(), conductivityUsCm: num(), nitritePpm: num('ppm'), molybdatePpm: num('ppm'), reserveAlkalinityMl: num('mL'), appearance: { type: 'string' }, notes: { type: 'string' } }, ['method'])),
+        requestBody: body(obj({ testedAt: { type: 'string' }, method: { enum: ['strip', 'refractometer', 'lab'] }, scaUnitsPerGal: num(), glycolPercent: num(), freezePointC: num(), ph: num(), conductivityUsCm: num(), nitritePpm: num('ppm'), molybdatePpm: num('ppm'), reserveAlkalinityMl: num('mL'), breakdownSigns: { type: ['array', 'null'], items: { enum: ['sour-smell', 'dark-colour', 'sludge'] }, description: 'signs of glycol breakdown looked for; [] = none seen, null = not looked at' }, appearance: { type: 'string' }, notes: { type: 'string' } }, ['method'])),
         responses: { '201': json(coolantTest), ...errors({ admin: true, input: true, notFound: true }) },
       },
     },

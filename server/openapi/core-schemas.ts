@@ -36,8 +36,8 @@ export const coreSchemas: Record<string, Json> = {
     required: ['email', 'name', 'password', 'role'],
     properties: { email: { type: 'string', format: 'email' }, name: { type: 'string' }, password: { type: 'string', minLength: 10 }, role: { enum: ['admin', 'planner', 'technician', 'operator'] }, disabled: { type: 'boolean' } },
   },
-  Site: { type: 'object', properties: { id: { type: 'integer' }, name: { type: 'string' }, timeZone: { type: 'string', description: 'IANA zone' }, retiredAt: { type: ['string', 'null'], format: 'date-time' } } },
-  SiteInput: { type: 'object', required: ['name', 'timeZone'], properties: { name: { type: 'string' }, timeZone: { type: 'string' } } },
+  Site: { type: 'object', properties: { id: { type: 'integer' }, name: { type: 'string' }, timeZone: { type: 'string', description: 'IANA zone' }, designLowTempC: { type: ['number', 'null'], description: 'lowest expected temperature, degC' }, retiredAt: { type: ['string', 'null'], format: 'date-time' } } },
+  SiteInput: { type: 'object', required: ['name', 'timeZone'], properties: { name: { type: 'string' }, timeZone: { type: 'string' }, designLowTempC: { type: ['number', 'null'], description: 'lowest expected temperature, degC (-80 to 40)' } } },
   EngineInput: { type: 'object', required: ['siteId', 'name', 'capacityL'], properties: engineFields, additionalProperties: false },
   Engine: {
     type: 'object',
@@ -52,6 +52,14 @@ export const coreSchemas: Record<string, Json> = {
         type: 'object',
         description: 'standby engines only: "Ready" or "Not ready" with the reasons in words (cold jacket water, an active high or urgent alarm, stale data, an open lockout, out of service)',
         properties: { ready: { type: 'boolean' }, reasons: { type: 'array', items: { type: 'string' } } },
+      },
+      freezeProtection: {
+        type: 'object',
+        description: 'engines with a glycol or freeze-point test: the latest such test judged now against the site design low less the freeze margin',
+        properties: {
+          status: { enum: ['ok', 'short', 'high', 'unknown'] }, freezePointC: { type: ['number', 'null'] }, requiredC: { type: ['number', 'null'] }, designLowC: { type: ['number', 'null'] },
+          marginK: { type: 'number' }, testId: { type: 'integer' }, testedAt: { type: 'string', format: 'date-time' }, message: { type: 'string' }, action: { type: 'string' },
+        },
       },
     },
   },

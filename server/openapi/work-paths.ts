@@ -75,7 +75,7 @@ export const workPaths: OpenApiGroup = {
       parameters: [idParam, stepParam],
       post: {
         summary: 'Do a step (assigned technician). Gated steps need lockout confirmation and a clear opening check, re-computed here; a manual check is accepted only when live data is stale or missing',
-        requestBody: body({ type: 'object', properties: { value: { type: 'number' }, unit: { type: 'string' }, note: { type: 'string' }, lockoutConfirmed: { type: 'boolean' }, manualCheck: { type: 'object', required: ['gaugeKpa', 'tempC', 'minutesSinceStop', 'checkedBy', 'reason'], properties: { gaugeKpa: { type: 'number' }, tempC: { type: 'number' }, minutesSinceStop: { type: 'number' }, checkedBy: { type: 'string' }, reason: { type: 'string' } } } } }),
+        requestBody: body({ type: 'object', properties: { value: { type: 'number' }, unit: { type: 'string' }, note: { type: 'string' }, lockoutConfirmed: { type: 'boolean' }, topUp: { type: 'object', description: 'the top-up step of a top-up order only: what was added (value = volume, L or gal); recorded as a coolant top-up', required: ['liquid'], properties: { liquid: { enum: ['water', 'premix', 'glycol'] }, premixPercent: { type: ['number', 'null'] } } }, manualCheck: { type: 'object', required: ['gaugeKpa', 'tempC', 'minutesSinceStop', 'checkedBy', 'reason'], properties: { gaugeKpa: { type: 'number' }, tempC: { type: 'number' }, minutesSinceStop: { type: 'number' }, checkedBy: { type: 'string' }, reason: { type: 'string' } } } } }),
         responses: { '200': json(ref('WorkOrderDetail')), ...errors({ input: true, admin: true, notFound: true }), '409': gateShut },
       },
     },

@@ -7,6 +7,7 @@ import { badRequest, HttpError } from '../http-error';
 import { addOpenApiGroup } from '../openapi';
 import { coolantOpenApi } from '../openapi/coolant-paths';
 import { TEST_METHODS, TOP_UP_LIQUIDS } from '../models/coolant-models';
+import { BREAKDOWN_SIGNS } from '../../shared/coolant/chemistry';
 import { getAdditiveProfile, saveAdditiveProfile } from '../services/coolant/additive-profile';
 import { getChemistryLimits, saveChemistryLimits } from '../services/coolant/chemistry-limits';
 import { listTopUps, recordTopUp } from '../services/coolant/top-ups';
@@ -33,6 +34,8 @@ const testBody = z.strictObject({
   nitritePpm: optionalReading(0, 100000, 'ppm'),
   molybdatePpm: optionalReading(0, 100000, 'ppm'),
   reserveAlkalinityMl: optionalReading(0, 100, 'mL'),
+  /** Signs of glycol breakdown looked for; absent or null = not looked at, [] = none seen. */
+  breakdownSigns: z.array(z.enum(BREAKDOWN_SIGNS)).max(BREAKDOWN_SIGNS.length).nullable().default(null),
   appearance: z.string().trim().max(200).nullable().default(null),
   notes: z.string().trim().max(2000).nullable().default(null),
 });

@@ -7,6 +7,7 @@ import { badRequest } from '../http-error';
 import { COOLANT_FAMILIES, DUTIES, GLYCOL_TYPES } from '../models/engine';
 import { activeAlarmCounts } from '../services/alarms/alarm-queries';
 import { standbyReadinessOf } from '../services/readiness';
+import { freezeStatusOf } from '../services/coolant/freeze-status';
 import { createEngine, engineView, getEngine, listEngines, retireEngine, updateEngine } from '../services/engines';
 import { queryBuckets } from '../services/readings-query';
 import { assertEngineVisible, siteFilter, siteScopeOf } from '../services/site-access';
@@ -62,16 +63,20 @@ export function enginesRouter(ctx: AppContext): Router {
     const q = parse(listQuery, req.query);
     const siteIds = siteFilter(await siteScopeOf(req), q.siteId);
     const engines = await listEngines(ctx.models, { siteIds: siteIds ?? undefined, includeRetired: q.includeRetired === 'true' });
-    const [alarmCounts, readiness] = await Promise.all([activeAlarmCounts(ctx.models), standbyReadinessOf(ctx.models, engines, live())]);
-    // standby engines carry readiness: { ready, reasons } (reasons in words)
-    res.json(engines.map((e) => ({ ...engineView(e, live()), activeAlarms: alarmCounts.get(e.id) ?? 0, ...(readiness.has(e.id) ? { readiness: readiness.get(e.id) } : {}) })));
+    const [alarmCounts, readiness, freeze] = await Promise.all([activeAlarmCounts(ctx.models), standbyReadinessOf(ctx.models, engines, live()), freezeStatusOf(ctx.models, engines)]);
+    // standby engines carry readiness: { ready, reasons } (reasons in words); engines with a glycol or freeze-point test carry freezeProtection
+    res.json(engines.map((e) => ({
+      ...engineView(e, live()), activeAlarms: alarmCounts.get(e.id) ?? 0,
+      ...(readiness.has(e.id) ? { readiness: readiness.get(e.id) } : {}), ...(freeze.has(e.id) ? { freezeProtection: freeze.get(e.id) } : {}),
+    })));
   });
   r.get('/engines/:id', async (req, res) => {
     const id = parseId(req.params);
     await assertEngineVisible(ctx.models, await siteScopeOf(req), id);
     const engine = await getEngine(ctx.models, id);
     const readiness = (await standbyReadinessOf(ctx.models, [engine], live())).get(engine.id);
-    res.json({ ...engineView(engine, live()), activeAlarms: (await activeAlarmCounts(ctx.models)).get(engine.id) ?? 0, ...(readiness ? { readiness } : {}) });
+    const freeze = (await freezeStatusOf(ctx.models, [engine])).get(engine.id);
+    res.json({ ...engineView(engine, live()), activeAlarms: (await activeAlarmCounts(ctx.models)).get(engine.id) ?? 0, ...(readiness ? { readiness } : {}), ...(freeze ? { freezeProtection: freeze } : {}) });
   });
   r.get('/engines/:id/readings', async (req, res) => {
     const id = parseId(req.params);

@@ -12,6 +12,7 @@ import { addAttachment, attachmentFile, MAX_ATTACHMENT_BYTES } from '../services
 import { openingCheckOf } from '../services/work-orders/gate';
 import { openingHistoryOf, type ReadingHistory } from '../services/work-orders/reading-history';
 import { addAmendment, addPart } from '../services/work-orders/record-service';
+import { TOP_UP_LIQUIDS } from '../models/coolant-models';
 import { completeStep, GateShutError, saveDraft } from '../services/work-orders/step-service';
 import { AlreadyRecordedError, recordOrderCoolantTest } from '../services/work-orders/coolant-test-service';
 import { TEST_METHODS } from '../models/coolant-models';
@@ -68,6 +69,11 @@ const completeBody = z.strictObject({
   note: note.optional(),
   lockoutConfirmed: z.boolean().optional(),
   manualCheck: manualCheck.optional(),
+  /** The top-up step of a top-up order: what was added; the volume is the step's value (L or gal). */
+  topUp: z.strictObject({
+    liquid: z.enum(TOP_UP_LIQUIDS),
+    premixPercent: finite(0, 100, '%').nullable().default(null),
+  }).optional(),
 });
 const draftBody = z.strictObject({
   value: z.number().finite().nullable().optional(),

@@ -135,6 +135,8 @@ export const WORK_TEMPLATES: readonly WorkTemplate[] = Object.freeze([
       { key: 'glycol-percent', title: 'Glycol concentration', input: 'value', unit: '%', gated: false, optional: true },
       { key: 'sca-level', title: 'Additive (SCA) level from the test strip', input: 'value', unit: 'units/gal', gated: false, optional: true },
       { key: 'ph', title: 'pH', input: 'value', unit: 'pH', gated: false, optional: true },
+      { key: 'nitrite', title: 'Nitrite from the strip or the lab report', input: 'value', unit: 'ppm', gated: false, optional: true, range: [0, 100000] },
+      { key: 'molybdate', title: 'Molybdate, where the strip or the lab gives it', input: 'value', unit: 'ppm', gated: false, optional: true, range: [0, 100000] },
       { key: 'strip-photo', title: 'Photo of the strip against its colour chart, or of the sample label', input: 'photo', gated: false, optional: true },
       { key: 'lab-sample', title: 'For a lab sample: label the bottle with engine, date and run hours and send it', input: 'confirmation', gated: false, optional: true },
       { ...leakRunStep, key: 'return-to-service', title: 'Remove your lock and tag and return the engine to automatic', detail: 'Check the controller is back in automatic and the heater is on.' },
@@ -211,7 +213,11 @@ export const WORK_TEMPLATES: readonly WorkTemplate[] = Object.freeze([
       { key: 'check-level', title: 'Read the level on the overflow reservoir marks', input: 'confirmation', gated: false },
       lockoutStep,
       capOffStep,
-      { key: 'add', title: 'Add premixed coolant of the same kind and mix as in the system', input: 'value', unit: 'L', gated: false, detail: 'Never plain water alone. Record the volume; also enter it under Parts & fluids.' },
+      {
+        key: 'add', title: 'Add coolant and record how much and what it was', input: 'value', unit: 'L', gated: false, range: [0.01, 5000],
+        detail: 'Best is premix of the same kind and mix as in the system. Plain water dilutes the glycol and the additive; neat glycol raises the mix. ' +
+          'Record the volume and what you added: the additive left is estimated from it. Also enter it under Parts & fluids.',
+      },
       capOnStep,
       { key: 'why-low', title: 'Say why it was low (leak found, none found, recent drain)', input: 'confirmation', gated: false, detail: 'Write it in the remark. A repeat top-up calls for a leak check.' },
       { ...leakRunStep, key: 'return-to-service', title: 'Remove your lock and tag and return the engine to automatic', detail: 'Check the controller is back in automatic and the heater is on.' },

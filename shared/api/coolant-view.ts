@@ -1,5 +1,5 @@
 /** JSON shapes of the coolant-test API (server/services/coolant/coolant-tests.ts), shared by server and client. Types only. */
-import type { AdditiveDecision, ChemistryFinding, FreezeAssessment } from '../coolant';
+import type { AdditiveDecision, BreakdownSign, ChemistryFinding, FreezeAssessment } from '../coolant';
 import type { TopUpEstimate, TopUpLiquid } from '../coolant/top-up';
 
 export type TestMethod = 'strip' | 'refractometer' | 'lab';
@@ -32,6 +32,8 @@ export interface CoolantTestView {
   nitritePpm?: number | null;
   molybdatePpm?: number | null;
   reserveAlkalinityMl?: number | null;
+  /** Signs of glycol breakdown looked for: null = not looked at, [] = none seen. */
+  breakdownSigns?: BreakdownSign[] | null;
   appearance: string | null;
   notes: string | null;
   testedBy: number | null;
@@ -51,10 +53,31 @@ export interface TopUpView {
   premixPercent: number | null;
   notes: string | null;
   addedBy: number | null;
+  /** The work order whose top-up step recorded it, if any. */
+  workOrderId?: number | null;
 }
 
 export interface TopUpsAnswer {
   topUps: TopUpView[];
   /** Estimate from the last test with a glycol or additive reading and the top-ups after it; null without such a test. */
   estimate: (TopUpEstimate & { basedOnTestAt: string; topUpsSince: number }) | null;
+}
+
+/**
+ * An engine's freeze protection from its latest coolant test with a glycol or freeze-point reading, judged now against
+ * its site's design low temperature less the admin's margin (GET /api/engines `freezeProtection`; absent without such a test).
+ */
+export interface EngineFreezeStatus {
+  /** short: warmer than needed; ok: meets it; high: over-concentrated glycol; unknown: no design low set or beyond the table. */
+  status: 'ok' | 'short' | 'high' | 'unknown';
+  /** Freeze point used (measured, else from the glycol share by the published table), °C. */
+  freezePointC: number | null;
+  /** Design low less the margin, °C; null without a design low. */
+  requiredC: number | null;
+  designLowC: number | null;
+  marginK: number;
+  testId: number;
+  testedAt: string;
+  message: string;
+  action: string;
 }

@@ -44,11 +44,25 @@ export const CHEMISTRY_LIMIT_SOURCES = Object.freeze({
   nitrite: 'common practice for conventional heavy-duty coolant with additive (from memory)',
   molybdate: 'common practice for conventional heavy-duty coolant with additive (from memory)',
   reserveAlkalinity: 'common practice, ASTM D1121 method (from memory)',
+  breakdown: 'signs of glycol breakdown, common practice (from memory)',
   freeze: 'site design low temperature with a safety margin (common practice)',
 });
 
-export type FindingField = 'nitritePpm' | 'molybdatePpm' | 'ph' | 'reserveAlkalinityMl' | 'freezeProtection';
-export type FindingStatus = 'ok' | 'low' | 'high' | 'short' | 'unknown';
+export type FindingField = 'nitritePpm' | 'molybdatePpm' | 'ph' | 'reserveAlkalinityMl' | 'freezeProtection' | 'breakdownSigns';
+/** `signs`: signs of glycol breakdown were seen. */
+export type FindingStatus = 'ok' | 'low' | 'high' | 'short' | 'unknown' | 'signs';
+
+/**
+ * What a technician sees or smells in a sample when glycol has broken down (oxidised to organic acids such as
+ * glycolic, formic and acetic acid by overheating or air drawn in): common practice of the trade, from memory.
+ */
+export const BREAKDOWN_SIGNS = ['sour-smell', 'dark-colour', 'sludge'] as const;
+export type BreakdownSign = (typeof BREAKDOWN_SIGNS)[number];
+export const BREAKDOWN_SIGN_TEXT: Readonly<Record<BreakdownSign, string>> = Object.freeze({
+  'sour-smell': 'sour or burnt smell',
+  'dark-colour': 'dark brown or black colour',
+  sludge: 'sludge or sediment',
+});
 
 export interface ChemistryFinding {
   field: FindingField;
@@ -69,6 +83,8 @@ export interface ChemistryReading {
   reserveAlkalinityMl?: number | null;
   glycolPercent?: number | null;
   freezePointC?: number | null;
+  /** Signs of glycol breakdown the technician looked for: null/absent = not looked at; [] = looked, none seen. */
+  breakdownSigns?: readonly BreakdownSign[] | null;
 }
 
 export interface ChemistryContext {
@@ -97,6 +113,8 @@ export function resolveChemistryLimits(partial?: Partial<ChemistryLimits> | null
 }
 
 const present = (v: number | null | undefined): v is number => v !== null && v !== undefined;
+/** "-30.0 °C (-22.0 °F)": the words are read in either unit system (°F = °C x 1.8 + 32, NIST SP 811). */
+const both = (c: number): string => `${c.toFixed(1)} °C (${(c * 1.8 + 32).toFixed(1)} °F)`;
 
 function nitrite(v: number, l: ChemistryLimits): ChemistryFinding {
   const base = { field: 'nitritePpm' as const, value: v, source: CHEMISTRY_LIMIT_SOURCES.nitrite };
@@ -183,12 +201,12 @@ function freezeProtection(r: ChemistryReading, ctx: ChemistryContext, l: Chemist
   if (ctx.designLowC === null) {
     return {
       ...base, status: 'unknown', value: fp,
-      message: `No design low temperature is set for this site, so the ${how}${fp === null ? '' : ` (${fp.toFixed(1)} °C)`} cannot be judged.${overNote}`,
+      message: `No design low temperature is set for this site, so the ${how}${fp === null ? '' : ` (${both(fp)})`} cannot be judged.${overNote}`,
       action: 'Ask an administrator to set the site\'s lowest expected temperature.',
     };
   }
   const need = ctx.designLowC - l.freezeMarginK;
-  const needText = `design low ${ctx.designLowC.toFixed(1)} °C less the ${l.freezeMarginK} K margin = ${need.toFixed(1)} °C`;
+  const needText = `design low ${both(ctx.designLowC)} less the ${l.freezeMarginK} K (${+(l.freezeMarginK * 1.8).toFixed(1)} °F) margin = ${both(need)}`;
   if (fp === null) {
     return {
       ...base, status: over ? 'high' : 'unknown', value: null,
@@ -199,7 +217,7 @@ function freezeProtection(r: ChemistryReading, ctx: ChemistryContext, l: Chemist
   if (fp <= need) {
     return {
       ...base, status: over ? 'high' : 'ok', value: fp,
-      message: `Freeze protection ${fp.toFixed(1)} °C (${how}) meets the ${needText}.${overNote}`,
+      message: `Freeze protection ${both(fp)} (${how}) meets the ${needText}.${overNote}`,
       action: over ? 'Dilute towards 50 % glycol with water (see the mix correction).' : 'No action.',
     };
   }
@@ -207,15 +225,35 @@ function freezeProtection(r: ChemistryReading, ctx: ChemistryContext, l: Chemist
   try {
     const p = percentForFreezePoint(ctx.glycolType, need, 'volume');
     target = p > OVER_CONCENTRATION_PERCENT
-      ? `${ctx.glycolType} glycol cannot reach ${need.toFixed(1)} °C at ${OVER_CONCENTRATION_PERCENT} % or less: take advice on the coolant or the design temperature.`
+      ? `${ctx.glycolType} glycol cannot reach ${both(need)} at ${OVER_CONCENTRATION_PERCENT} % or less: take advice on the coolant or the design temperature.`
       : `Raise the glycol to at least ${p.toFixed(1)} % by volume (see the mix correction) and test again.`;
   } catch {
-    target = `${ctx.glycolType} glycol cannot reach ${need.toFixed(1)} °C within the published table: take advice on the coolant or the design temperature.`;
+    target = `${ctx.glycolType} glycol cannot reach ${both(need)} within the published table: take advice on the coolant or the design temperature.`;
   }
   return {
     ...base, status: 'short', value: fp,
-    message: `Freeze protection short: ${fp.toFixed(1)} °C (${how}) is warmer than the ${needText}. The coolant could freeze, crack the block or radiator and stop the engine starting.`,
+    message: `Freeze protection short: ${both(fp)} (${how}) is warmer than the ${needText}. The coolant could freeze, crack the block or radiator and stop the engine starting.`,
     action: `${target}${over ? overNote : ''}`,
+  };
+}
+
+function breakdown(signs: readonly BreakdownSign[], phValue: number | null, l: ChemistryLimits): ChemistryFinding {
+  const base = { field: 'breakdownSigns' as const, value: null, source: CHEMISTRY_LIMIT_SOURCES.breakdown };
+  const phLow = phValue !== null && phValue < l.phLow;
+  if (!signs.length) {
+    return {
+      ...base, status: phLow ? 'unknown' : 'ok',
+      message: phLow
+        ? `No sign of glycol breakdown seen, but the pH is low (${phValue}): breakdown acids can be present before they show.`
+        : 'No sign of glycol breakdown seen (smell, colour, sludge).',
+      action: phLow ? 'Have a laboratory check the sample for glycol breakdown products (organic acids).' : 'No action.',
+    };
+  }
+  const seen = signs.map((s) => BREAKDOWN_SIGN_TEXT[s]).join(', ');
+  return {
+    ...base, status: 'signs',
+    message: `Signs of glycol breakdown: ${seen}${phLow ? `, with a low pH (${phValue})` : ''}. Overheated or aerated glycol turns into organic acids (glycolic, formic, acetic) that use up the additive and the alkaline buffer and then attack iron, copper, solder and aluminium.`,
+    action: 'Have a laboratory confirm (pH, reserve alkalinity, breakdown acids); plan a drain, flush and refill with new coolant; find the cause (overheating, air drawn in at a pump seal or a low level, exhaust gas in the coolant).',
   };
 }
 
@@ -228,7 +266,7 @@ function notForElc(field: 'nitritePpm' | 'molybdatePpm', name: string, v: number
   };
 }
 
-/** One finding per measured field (nitrite, molybdate, pH, reserve alkalinity, freeze protection). */
+/** One finding per measured field (nitrite, molybdate, pH, reserve alkalinity, glycol-breakdown signs, freeze protection). */
 export function judgeChemistry(reading: ChemistryReading, ctx: ChemistryContext, limits?: Partial<ChemistryLimits> | null): ChemistryFinding[] {
   const l = resolveChemistryLimits(limits);
   if (ctx.designLowC !== null) requireFinite('designLowC', ctx.designLowC);
@@ -244,6 +282,13 @@ export function judgeChemistry(reading: ChemistryReading, ctx: ChemistryContext,
   }
   if (present(reading.ph)) out.push(ph(requireInRange('ph', reading.ph, 0, 14), l));
   if (present(reading.reserveAlkalinityMl)) out.push(reserveAlkalinity(requireInRange('reserveAlkalinityMl', reading.reserveAlkalinityMl, 0, 100, 'mL'), l));
+  if (reading.breakdownSigns !== null && reading.breakdownSigns !== undefined) {
+    if (!Array.isArray(reading.breakdownSigns)) throw new CoolantInputError('breakdownSigns', 'must be a list of signs');
+    for (const s of reading.breakdownSigns) {
+      if (!BREAKDOWN_SIGNS.includes(s)) throw new CoolantInputError('breakdownSigns', `unknown sign "${String(s)}" (one of ${BREAKDOWN_SIGNS.join(', ')})`);
+    }
+    out.push(breakdown([...new Set(reading.breakdownSigns)], present(reading.ph) ? reading.ph : null, l));
+  }
   const f = freezeProtection(reading, ctx, l);
   if (f) out.push(f);
   return out;

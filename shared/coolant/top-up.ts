@@ -28,6 +28,10 @@ export interface TopUpEstimateInput {
   topUps: TopUp[];
   /** The additive low limit, units per US gallon. */
   lowUnitsPerGal: number;
+  /** Nitrite at the last test, ppm (a strip or lab reading); null or absent when not measured. */
+  nitritePpm?: number | null;
+  /** The nitrite low limit, ppm (admin setting); needed with nitritePpm. */
+  nitriteLowPpm?: number;
 }
 
 export interface TopUpEstimate {
@@ -36,7 +40,9 @@ export interface TopUpEstimate {
   addedL: number;
   scaUnitsPerGal: number | null;
   glycolPercent: number | null;
-  /** True when the estimated additive level is below the low limit: test now. */
+  /** Nitrite estimated the same way (the added liquid carries none), ppm; null when not measured. */
+  nitritePpm: number | null;
+  /** True when the estimated additive level (or nitrite) is below its low limit: test now. */
   belowLow: boolean;
   reasons: string[];
 }
@@ -49,6 +55,8 @@ export function estimateAfterTopUps(input: TopUpEstimateInput): TopUpEstimate {
   if (V <= 0) throw new CoolantInputError('capacityL', `must be above 0 L (got ${V} L)`);
   let sca = input.scaUnitsPerGal === null ? null : requireInRange('scaUnitsPerGal', input.scaUnitsPerGal, 0, 100, 'units/gal');
   let glycol = input.glycolPercent === null ? null : requireInRange('glycolPercent', input.glycolPercent, 0, 100, '%');
+  let nitrite = input.nitritePpm === null || input.nitritePpm === undefined ? null : requireInRange('nitritePpm', input.nitritePpm, 0, 100000, 'ppm');
+  const nitriteLow = nitrite === null ? null : requireInRange('nitriteLowPpm', input.nitriteLowPpm, 0, 100000, 'ppm');
   let kept = 1;
   let added = 0;
   for (const t of input.topUps) {
@@ -58,19 +66,27 @@ export function estimateAfterTopUps(input: TopUpEstimateInput): TopUpEstimate {
     kept *= 1 - f;
     added += v;
     if (sca !== null) sca *= 1 - f;
+    if (nitrite !== null) nitrite *= 1 - f;
     if (glycol !== null) glycol = glycol * (1 - f) + glycolOf(t) * f;
   }
   const replaced = 1 - kept;
-  const belowLow = sca !== null && sca < input.lowUnitsPerGal;
+  const scaLow = sca !== null && sca < input.lowUnitsPerGal;
+  const nitriteBelow = nitrite !== null && nitriteLow !== null && nitrite < nitriteLow;
+  const belowLow = scaLow || nitriteBelow;
   const reasons: string[] = [];
   if (!input.topUps.length) reasons.push('No top-ups since the last test.');
   else reasons.push(`${input.topUps.length} top-up(s), ${added.toFixed(1)} L in all, replaced about ${(replaced * 100).toFixed(0)} % of the ${V.toFixed(1)} L system.`);
   if (sca !== null) {
     reasons.push(`Additive estimated at ${sca.toFixed(2)} units/US gal (the added liquid carries none; assumes the lost coolant leaked out with its additive).`);
-    if (belowLow) reasons.push(`That is below ${input.lowUnitsPerGal.toFixed(2)} units/US gal: test the coolant now.`);
-  } else {
+    if (scaLow) reasons.push(`That is below ${input.lowUnitsPerGal.toFixed(2)} units/US gal: test the coolant now.`);
+  }
+  if (nitrite !== null) {
+    reasons.push(`Nitrite estimated at ${nitrite.toFixed(0)} ppm.`);
+    if (nitriteBelow) reasons.push(`That is below ${nitriteLow} ppm: test the coolant now.`);
+  }
+  if (sca === null && nitrite === null) {
     reasons.push('No additive reading at the last test: the top-ups dilute the inhibitors by the same share; test to know the level.');
   }
   if (glycol !== null) reasons.push(`Glycol estimated at ${glycol.toFixed(1)} % by volume.`);
-  return { replacedFraction: replaced, addedL: added, scaUnitsPerGal: sca, glycolPercent: glycol, belowLow, reasons };
+  return { replacedFraction: replaced, addedL: added, scaUnitsPerGal: sca, glycolPercent: glycol, nitritePpm: nitrite, belowLow, reasons };
 }

@@ -61,6 +61,21 @@ describe('a coolant test with inhibitor readings', () => {
     expect(f.ph.status).toBe('low');
   });
 
+  it('glycol-breakdown signs: stored, judged with their action, listed; an unknown sign is 400 naming the field', async () => {
+    const res = await record({ breakdownSigns: ['sludge'], ph: 7.2 }).expect(201);
+    expect(res.body.breakdownSigns).toEqual(['sludge']);
+    const f = res.body.decision.findings.find((x: { field: string }) => x.field === 'breakdownSigns');
+    expect(f).toMatchObject({ status: 'signs' });
+    expect(f.message).toMatch(/sludge or sediment, with a low pH/);
+    expect(f.action).toMatch(/drain, flush and refill/);
+    const none = await record({ breakdownSigns: [], ph: 9 }).expect(201);
+    expect(none.body.breakdownSigns).toEqual([]);
+    expect(none.body.decision.findings.find((x: { field: string }) => x.field === 'breakdownSigns').status).toBe('ok');
+    expect((await record({ ph: 9 }).expect(201)).body.breakdownSigns).toBeNull();
+    expect((await record({ breakdownSigns: ['green'] }).expect(400)).body.field).toMatch(/breakdownSigns/);
+    expect((await record({ breakdownSigns: 'sludge' }).expect(400)).body.field).toMatch(/breakdownSigns/);
+  });
+
   it('the new fields are optional; bad values are 400 naming the field', async () => {
     const res = await record({ glycolPercent: 55 }).expect(201);
     expect(res.body.nitritePpm).toBeNull();

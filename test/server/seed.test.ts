@@ -19,6 +19,8 @@ describe('seeds', () => {
     expect(r.created).toBe(true);
     const sites = await models.Site.findAll();
     expect(new Set(sites.map((s) => s.timeZone)).size).toBe(3);
+    // every demo site has an (invented) design low temperature, so the freeze-protection verdicts show in the demo
+    for (const s of sites) expect(typeof s.designLowTempC).toBe('number');
     const engines = await models.Engine.findAll();
     expect(engines).toHaveLength(8);
     for (const e of engines) {

@@ -443,6 +443,7 @@ describe('drafts that stay, locked steps and the single coolant test', () => {
     await patch('freeze-point', { value: -29.2, unit: 'degF', note: 'refractometer' }).expect(200);
     await patch('sca-level', { value: 0.8 }).expect(200);
     await patch('glycol-percent', { value: 48 }).expect(200);
+    await patch('nitrite', { value: 650 }).expect(200);
     const res = await request(t.app).get(`/api/work-orders/${order.id}`).set(as('technician')).expect(200);
     const fp = res.body.steps.find((s: Step) => s.key === 'freeze-point');
     expect(fp).toMatchObject({ resultValue: -29.2, resultUnit: 'degF', resultText: 'refractometer', doneAt: null });
@@ -498,6 +499,9 @@ describe('drafts that stay, locked steps and the single coolant test', () => {
     const first = await request(t.app).post(`/api/work-orders/${order.id}/coolant-test`).set(as('technician')).send({ method: 'refractometer' }).expect(201);
     expect(first.body.coolantTest).toMatchObject({ engineId: cooledId, scaUnitsPerGal: 0.8, glycolPercent: 48, method: 'refractometer' });
     expect(first.body.coolantTest.freezePointC).toBeCloseTo(-34, 6);
+    // nitrite from its step, judged against the 800 ppm low limit (common practice, from memory; admin setting)
+    expect(first.body.coolantTest.nitritePpm).toBe(650);
+    expect(first.body.coolantTest.decision.findings.find((f: { field: string }) => f.field === 'nitritePpm')).toMatchObject({ status: 'low' });
     expect(first.body.order.coolantTestId).toBe(first.body.coolantTest.id);
     const again = await request(t.app).post(`/api/work-orders/${order.id}/coolant-test`).set(as('technician')).send({}).expect(409);
     expect(again.body.coolantTest.id).toBe(first.body.coolantTest.id);

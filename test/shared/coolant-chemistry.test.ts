@@ -61,6 +61,9 @@ describe('freeze protection against the site design low with a 5 K margin', () =
     const f = one({ freezePointC: -24.9 });
     expect(f.status).toBe('short');
     expect(f.message).toMatch(/-25\.0 °C/);
+    // both unit systems in the words: -25 °C = -13.0 °F, -24.9 °C = -12.8 °F, 5 K = 9 °F (NIST SP 811: °F = °C x 1.8 + 32)
+    expect(f.message).toContain('-24.9 °C (-12.8 °F)');
+    expect(f.message).toContain('design low -20.0 °C (-4.0 °F) less the 5 K (9 °F) margin = -25.0 °C (-13.0 °F)');
     // -25 °C needs 44.0 vol % PG by Lange's table (between 40 -> -20.6 and 50 -> -33.3)
     expect(f.action).toMatch(/Raise the glycol to at least 4\d\.\d % by volume/);
   });
@@ -133,5 +136,31 @@ describe('extended-life coolant', () => {
     const f = judgeChemistry({ nitritePpm: 0, molybdatePpm: 0, ph: 7 }, { glycolType: 'ethylene', coolantFamily: 'extended-life', designLowC: null });
     expect(f.map((x) => [x.field, x.status])).toEqual([['nitritePpm', 'unknown'], ['molybdatePpm', 'unknown'], ['ph', 'low']]);
     expect(f[0].action).toMatch(/coolant maker/);
+  });
+});
+
+describe('signs of glycol breakdown (what they are: common practice, from memory; pH limit 7.5 ASTM D3306 / D6210, from memory)', () => {
+  it('not looked at (null or absent): no finding', () => {
+    expect(judgeChemistry({ breakdownSigns: null }, ctx)).toHaveLength(0);
+    expect(judgeChemistry({}, ctx)).toHaveLength(0);
+  });
+  it('looked, none seen: ok; with a low pH it asks for a lab check instead', () => {
+    expect(one({ breakdownSigns: [] })).toMatchObject({ field: 'breakdownSigns', status: 'ok' });
+    const f = judgeChemistry({ breakdownSigns: [], ph: 7.4 }, ctx).find((x) => x.field === 'breakdownSigns')!;
+    expect(f.status).toBe('unknown');
+    expect(f.action).toMatch(/laboratory/);
+    // the pH limit itself is in range: 7.5 is not low
+    expect(judgeChemistry({ breakdownSigns: [], ph: 7.5 }, ctx).find((x) => x.field === 'breakdownSigns')!.status).toBe('ok');
+  });
+  it('signs seen: named in words, why it matters, and a drain, flush and refill with the cause found', () => {
+    const f = judgeChemistry({ breakdownSigns: ['sour-smell', 'dark-colour', 'sour-smell'], ph: 7.0 }, ctx).find((x) => x.field === 'breakdownSigns')!;
+    expect(f.status).toBe('signs');
+    expect(f.message).toMatch(/sour or burnt smell, dark brown or black colour, with a low pH \(7\)/);
+    expect(f.message).toMatch(/organic acids/);
+    expect(f.action).toMatch(/drain, flush and refill/);
+    expect(f.source).toMatch(/common practice/);
+  });
+  it('an unknown sign is refused naming the field', () => {
+    expect(() => judgeChemistry({ breakdownSigns: ['green' as never] }, ctx)).toThrow(/breakdownSigns/);
   });
 });

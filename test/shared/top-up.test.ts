@@ -36,6 +36,18 @@ describe('estimate after top-ups', () => {
     expect(e.scaUnitsPerGal).toBeNull();
     expect(e.reasons.join(' ')).toMatch(/same share/);
   });
+  it('nitrite is diluted by the same share: 1000 ppm, 8 L water into 40 L -> 1000 x 0.8 = 800 ppm (not below 800); 9 L -> 775 ppm, test now', () => {
+    const n = { ...base, scaUnitsPerGal: null, nitritePpm: 1000, nitriteLowPpm: 800 };
+    const at = estimateAfterTopUps({ ...n, topUps: [{ volumeL: 8, liquid: 'water' }] });
+    expect(at.nitritePpm).toBeCloseTo(800, 9);
+    expect(at.belowLow).toBe(false);
+    const below = estimateAfterTopUps({ ...n, topUps: [{ volumeL: 9, liquid: 'premix', premixPercent: 50 }] });
+    expect(below.nitritePpm).toBeCloseTo(775, 9);
+    expect(below.belowLow).toBe(true);
+    expect(below.reasons.join(' ')).toMatch(/below 800 ppm: test the coolant now/);
+    expect(below.reasons.join(' ')).not.toMatch(/same share/);
+    expect(() => estimateAfterTopUps({ ...n, nitriteLowPpm: undefined, topUps: [] })).toThrow(/nitriteLowPpm/);
+  });
   it.each([
     [{ ...base, topUps: [{ volumeL: 41, liquid: 'water' as const }] }, /volumeL/],
     [{ ...base, topUps: [{ volumeL: -1, liquid: 'water' as const }] }, /volumeL/],

@@ -1,6 +1,6 @@
 import {
   assessFreezeProtection, CoolantInputError, decideAdditive, judgeChemistry, type AdditiveDecision, type ChemistryLimits,
-  type FreezeAssessment, type ScaLimits,
+  type BreakdownSign, type FreezeAssessment, type ScaLimits,
 } from '../../../shared/coolant';
 import { badRequest } from '../../http-error';
 import type { Engine, Models } from '../../models';
@@ -25,6 +25,7 @@ export interface TestInput {
   nitritePpm?: number | null;
   molybdatePpm?: number | null;
   reserveAlkalinityMl?: number | null;
+  breakdownSigns?: BreakdownSign[] | null;
   appearance: string | null;
   notes?: string | null;
 }
@@ -38,7 +39,7 @@ export interface ChemistryJudgeContext {
 /** The decision for one test of this engine (pure apart from its inputs). */
 export function decideForTest(
   engine: Pick<Engine, 'capacityL' | 'coolantFamily' | 'glycolType'>,
-  t: Pick<TestInput, 'scaUnitsPerGal' | 'glycolPercent' | 'freezePointC'> & Partial<Pick<TestInput, 'ph' | 'nitritePpm' | 'molybdatePpm' | 'reserveAlkalinityMl'>>,
+  t: Pick<TestInput, 'scaUnitsPerGal' | 'glycolPercent' | 'freezePointC'> & Partial<Pick<TestInput, 'ph' | 'nitritePpm' | 'molybdatePpm' | 'reserveAlkalinityMl' | 'breakdownSigns'>>,
   limits: ScaLimits,
   chem?: ChemistryJudgeContext,
 ): CoolantDecision {
@@ -61,7 +62,10 @@ export function decideForTest(
   }
   const findings = chem
     ? judgeChemistry(
-      { nitritePpm: t.nitritePpm, molybdatePpm: t.molybdatePpm, ph: t.ph, reserveAlkalinityMl: t.reserveAlkalinityMl, glycolPercent: t.glycolPercent, freezePointC: t.freezePointC },
+      {
+        nitritePpm: t.nitritePpm, molybdatePpm: t.molybdatePpm, ph: t.ph, reserveAlkalinityMl: t.reserveAlkalinityMl, glycolPercent: t.glycolPercent, freezePointC: t.freezePointC,
+        breakdownSigns: t.breakdownSigns,
+      },
       { glycolType: engine.glycolType, coolantFamily: engine.coolantFamily, designLowC: chem.designLowC },
       chem.limits,
     )
@@ -90,6 +94,7 @@ function view(t: CoolantTest, names: Map<number, string>): CoolantTestView {
     id: t.id, engineId: t.engineId, testedAt: new Date(t.testedAt).toISOString(), method: t.method,
     scaUnitsPerGal: t.scaUnitsPerGal, glycolPercent: t.glycolPercent, freezePointC: t.freezePointC, ph: t.ph, conductivityUsCm: t.conductivityUsCm,
     nitritePpm: t.nitritePpm ?? null, molybdatePpm: t.molybdatePpm ?? null, reserveAlkalinityMl: t.reserveAlkalinityMl ?? null,
+    breakdownSigns: (t.breakdownSigns as BreakdownSign[] | null) ?? null,
     appearance: t.appearance, notes: t.notes, testedBy: t.testedBy, testedByName: t.testedBy === null ? null : (names.get(t.testedBy) ?? null),
     decision: (t.decision as unknown as CoolantDecision) ?? null, source: t.source, createdAt: new Date(t.createdAt).toISOString(),
   };
@@ -118,6 +123,7 @@ export async function recordCoolantTest(models: Models, engineId: number, input:
   const decision = decideOr400(engine, input, profile.limits, await chemistryContext(models, engine));
   const row = await models.CoolantTest.create({
     engineId, ...input, nitritePpm: input.nitritePpm ?? null, molybdatePpm: input.molybdatePpm ?? null, reserveAlkalinityMl: input.reserveAlkalinityMl ?? null,
+    breakdownSigns: input.breakdownSigns ?? null,
     notes: input.notes ?? null, testedBy: userId, decision: decision as unknown as Record<string, unknown>, source: 'manual',
   });
   return view(row, await userNames(models, [userId]));

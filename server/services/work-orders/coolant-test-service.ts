@@ -41,8 +41,13 @@ export async function recordOrderCoolantTest(svc: WorkOrderService, user: AuthUs
   const steps = await svc.models.WorkOrderStep.findAll({ where: { workOrderId: orderId } });
   const sample = steps.find((s) => s.key === SAMPLE_STEP_KEY);
   if (sample && !sample.doneAt) throw conflict('take the sample first: its step is not done');
-  const values = { scaUnitsPerGal: reading(steps, 'sca-level'), glycolPercent: reading(steps, 'glycol-percent'), freezePointC: reading(steps, 'freeze-point'), ph: reading(steps, 'ph') };
-  if (values.scaUnitsPerGal === null && values.glycolPercent === null && values.freezePointC === null) throw new HttpError(400, 'enter at least the freeze point, glycol or additive level in its step', 'steps');
+  const values = {
+    scaUnitsPerGal: reading(steps, 'sca-level'), glycolPercent: reading(steps, 'glycol-percent'), freezePointC: reading(steps, 'freeze-point'), ph: reading(steps, 'ph'),
+    nitritePpm: reading(steps, 'nitrite'), molybdatePpm: reading(steps, 'molybdate'),
+  };
+  if (values.scaUnitsPerGal === null && values.glycolPercent === null && values.freezePointC === null && values.nitritePpm === null) {
+    throw new HttpError(400, 'enter at least the freeze point, glycol, additive level or nitrite in its step', 'steps');
+  }
   const test = await recordCoolantTest(svc.models, order.engineId, {
     testedAt: sample?.doneAt ? new Date(sample.doneAt) : new Date(), method, ...values, conductivityUsCm: null, appearance: null, notes: `From work order #${order.id}`,
   }, user.id);

@@ -5,6 +5,9 @@ import type { ManualCheck } from '../../models/work-order-step';
 import type { AuthUser } from '../../telemetry/types';
 import { workTemplate } from '../work-templates';
 import { LOCK_STEP_KEYS, lockoutFor, UNLOCK_STEP_KEYS } from '../../../shared/work/lockout';
+import { isTopUpStep } from '../../../shared/work/top-up-step';
+import type { TopUpLiquid } from '../../models/coolant-models';
+import { checkTopUp, recordTopUp } from '../coolant/top-ups';
 import { computeGate, liveObjections, type GateResult } from './gate';
 import { pushWorkOrder, tellPlanners } from './notify';
 import type { WorkOrderService } from './work-order-service';
@@ -15,6 +18,8 @@ export interface CompleteInput {
   note?: string;
   lockoutConfirmed?: boolean;
   manualCheck?: ManualCheck;
+  /** The top-up step of a top-up order: what was added (the volume is the step's value). */
+  topUp?: { liquid: TopUpLiquid; premixPercent: number | null };
 }
 
 /** The answer to a gated step while the opening check is not clear: 409 with the unmet conditions. */
@@ -132,6 +137,17 @@ export async function completeStep(svc: WorkOrderService, user: AuthUser, orderI
     if (!photos) throw badRequest('attach a photo to this step first', 'photo');
   }
 
+  // the top-up step records the coolant added through the top-up service (same checks, same transaction as the step)
+  const topUpStep = isTopUpStep(order.kind, step.key);
+  if (input.topUp && !topUpStep) throw badRequest('only the top-up step of a top-up order records a top-up', 'topUp');
+  if (topUpStep) {
+    if (!input.topUp) throw badRequest('say what was added: water, premix or glycol', 'liquid');
+    await checkTopUp(models, order.engineId, { volumeL: patch.resultValue as number, liquid: input.topUp.liquid, premixPercent: input.topUp.premixPercent }, 'value');
+    // the step's record says what was added, before the technician's remark
+    const what = input.topUp.liquid === 'premix' ? `Premix, ${input.topUp.premixPercent} % glycol` : input.topUp.liquid === 'water' ? 'Plain water' : 'Glycol concentrate';
+    patch.resultText = `${what}${note?.trim() ? `: ${note.trim()}` : ''}`.slice(0, 2000);
+  }
+
   const now = new Date();
   let manual = false;
   if (step.gated) {
@@ -172,9 +188,18 @@ export async function completeStep(svc: WorkOrderService, user: AuthUser, orderI
 
   await svc.ctx.sequelize.transaction(async (transaction) => {
     await step.update(patch, { transaction });
+    const topUp = topUpStep && input.topUp
+      ? await recordTopUp(models, order.engineId, {
+        addedAt: now, volumeL: patch.resultValue as number, liquid: input.topUp.liquid, premixPercent: input.topUp.premixPercent,
+        notes: `Work order #${order.id}${note?.trim() ? `: ${note.trim().slice(0, 400)}` : ''}`,
+      }, user.id, { transaction, workOrderId: order.id })
+      : null;
     await svc.event(orderId, user.id, manual ? 'step-done-manual-check' : 'step-done', {
       note: (patch.resultText as string | null) ?? null,
-      details: { stepId: step.id, key: step.key, value: patch.resultValue ?? null, unit: patch.resultUnit ?? null, entered: entered ? { value: entered.value, unit: entered.unit ?? step.unit } : null, manualCheck: manual ? input.manualCheck! : null },
+      details: {
+        stepId: step.id, key: step.key, value: patch.resultValue ?? null, unit: patch.resultUnit ?? null, entered: entered ? { value: entered.value, unit: entered.unit ?? step.unit } : null, manualCheck: manual ? input.manualCheck! : null,
+        ...(topUp ? { topUp: { id: topUp.id, volumeL: topUp.volumeL, liquid: topUp.liquid, premixPercent: topUp.premixPercent } } : {}),
+      },
     }, transaction);
     if (manual) {
       await svc.audit(user.id, 'opening-check-manual-override', 'work_order_step', step.id, { workOrderId: orderId, engineId: order.engineId, manualCheck: input.manualCheck!, gate: patch.gateSnapshot as Record<string, unknown> }, transaction);

@@ -26,10 +26,10 @@ export class AdminService {
   sites(): Observable<Site[]> {
     return this.http.get<Site[]>('/api/sites');
   }
-  createSite(body: { name: string; timeZone: string }): Observable<Site> {
+  createSite(body: { name: string; timeZone: string; designLowTempC?: number | null }): Observable<Site> {
     return this.http.post<Site>('/api/sites', body);
   }
-  updateSite(id: number, patch: Partial<{ name: string; timeZone: string }>): Observable<Site> {
+  updateSite(id: number, patch: Partial<{ name: string; timeZone: string; designLowTempC: number | null }>): Observable<Site> {
     return this.http.patch<Site>(`/api/sites/${id}`, patch);
   }
   retireSite(id: number): Observable<Site> {

@@ -14,6 +14,7 @@ import { Site } from './admin-types';
 import { ConfirmDialog } from './confirm-dialog';
 import { SiteDialog } from './site-dialog';
 import { filterAdminTable, linkAdminTable } from './admin-table';
+import { UnitValuePipe } from '../ui/unit-value.pipe';
 
 interface SiteRow extends Site {
   engines: number;
@@ -23,7 +24,7 @@ interface SiteRow extends Site {
 @Component({
   selector: 'jw-sites-page',
   changeDetection: ChangeDetectionStrategy.OnPush,
-  imports: [MatTableModule, MatSortModule, MatPaginatorModule, MatFormFieldModule, MatInputModule, MatButtonModule, MatIconModule],
+  imports: [MatTableModule, MatSortModule, MatPaginatorModule, MatFormFieldModule, MatInputModule, MatButtonModule, MatIconModule, UnitValuePipe],
   template: `
     <div class="bar">
       <mat-form-field class="filter" subscriptSizing="dynamic">
@@ -44,6 +45,12 @@ interface SiteRow extends Site {
         <ng-container matColumnDef="timeZone">
           <th mat-header-cell *matHeaderCellDef mat-sort-header>Time zone</th>
           <td mat-cell *matCellDef="let s">{{ s.timeZone }}</td>
+        </ng-container>
+        <ng-container matColumnDef="designLowTempC">
+          <th mat-header-cell *matHeaderCellDef mat-sort-header arrowPosition="before" class="num">Lowest expected</th>
+          <td mat-cell *matCellDef="let s" class="num jw-num" data-test="design-low-cell">
+            @if (s.designLowTempC === null || s.designLowTempC === undefined) { <span class="muted">not set</span> } @else { {{ s.designLowTempC | unitValue: 'temperature' }} }
+          </td>
         </ng-container>
         <ng-container matColumnDef="engines">
           <th mat-header-cell *matHeaderCellDef mat-sort-header arrowPosition="before" class="num">Engines</th>
@@ -69,7 +76,7 @@ export class SitesPage {
   private readonly api = inject(AdminService);
   private readonly dialog = inject(MatDialog);
   private readonly snack = inject(MatSnackBar);
-  protected readonly columns = ['name', 'timeZone', 'engines', 'actions'];
+  protected readonly columns = ['name', 'timeZone', 'designLowTempC', 'engines', 'actions'];
   protected readonly source = new MatTableDataSource<SiteRow>([]);
   protected readonly error = signal<string | null>(null);
   private readonly sort = viewChild(MatSort);

@@ -10,6 +10,7 @@ const LABEL: Record<ChemistryFinding['field'], string> = {
   ph: 'pH',
   reserveAlkalinityMl: 'Reserve alkalinity',
   freezeProtection: 'Freeze protection',
+  breakdownSigns: 'Glycol breakdown',
 };
 const STATUS: Record<ChemistryFinding['status'], { text: string; icon: string; abnormal: boolean }> = {
   ok: { text: 'In range', icon: 'check', abnormal: false },
@@ -17,8 +18,9 @@ const STATUS: Record<ChemistryFinding['status'], { text: string; icon: string; a
   high: { text: 'High', icon: 'arrow_upward', abnormal: true },
   short: { text: 'Short of the design low', icon: 'ac_unit', abnormal: true },
   unknown: { text: 'Not judged', icon: 'help_outline', abnormal: false },
+  signs: { text: 'Signs seen', icon: 'report', abnormal: true },
 };
-const UNIT: Record<ChemistryFinding['field'], string> = { nitritePpm: 'ppm', molybdatePpm: 'ppm', ph: '', reserveAlkalinityMl: 'mL', freezeProtection: '' };
+const UNIT: Record<ChemistryFinding['field'], string> = { nitritePpm: 'ppm', molybdatePpm: 'ppm', ph: '', reserveAlkalinityMl: 'mL', freezeProtection: '', breakdownSigns: '' };
 
 /** The judgement of each measured chemistry field: state in words and shape (colour only when abnormal), finding, action, source. */
 @Component({

@@ -5,6 +5,8 @@ import { MatButtonModule } from '@angular/material/button';
 import { MatFormFieldModule } from '@angular/material/form-field';
 import { MatInputModule } from '@angular/material/input';
 import { CHEMISTRY_LIMIT_SOURCES, ChemistryLimits } from '../../../shared/coolant';
+import { PreferencesService } from '../core/preferences.service';
+import { differenceForEntry, differenceFromEntry, differenceSymbol } from '../ui/temperature-entry';
 import { CoolantService } from './coolant.service';
 import { ChemistryLimitsView } from './coolant-types';
 
@@ -32,7 +34,8 @@ import { ChemistryLimitsView } from './coolant-types';
       </div>
       <div class="row">
         <mat-form-field><mat-label>Reserve alkalinity, lowest</mat-label><input matInput type="number" formControlName="reserveAlkalinityLowMl" /><span matTextSuffix>mL</span></mat-form-field>
-        <mat-form-field><mat-label>Freeze margin below the design low</mat-label><input matInput type="number" formControlName="freezeMarginK" /><span matTextSuffix>K</span></mat-form-field>
+        <mat-form-field><mat-label>Freeze margin below the design low</mat-label><input matInput type="number" formControlName="freezeMargin" data-test="freeze-margin" /><span matTextSuffix>{{ marginSymbol }}</span>
+          <mat-hint>Each site's lowest expected temperature is set under Administration, Sites.</mat-hint></mat-form-field>
       </div>
       <h3>Extended-life coolant extender</h3>
       <p class="lead">Blank for the common-practice placeholder ({{ extenderDefault() }}); the coolant maker's interval belongs here.</p>
@@ -63,11 +66,15 @@ export class ChemistryLimitsForm {
   protected readonly saving = signal(false);
   protected readonly saved = signal(false);
   protected readonly extenderDefault = signal('6000 h or 1095 days');
+  /** The margin is a temperature difference: typed in K, or in °F for US units. */
+  private readonly unit = inject(PreferencesService).temperatureUnit();
+  protected readonly marginSymbol = differenceSymbol(this.unit);
+  private loadedMarginK: number | null = null;
 
   private readonly num = (v: number | null = null) => this.fb.control<number | null>(v, [Validators.min(0)]);
   protected readonly form = this.fb.group({
     nitriteLowPpm: this.num(), nitriteHighPpm: this.num(), molybdateLowPpm: this.num(), molybdateHighPpm: this.num(),
-    phLow: this.num(), phHigh: this.num(), reserveAlkalinityLowMl: this.num(), freezeMarginK: this.num(),
+    phLow: this.num(), phHigh: this.num(), reserveAlkalinityLowMl: this.num(), freezeMargin: this.num(),
     extenderHours: this.num(), extenderDays: this.num(),
   });
 
@@ -76,7 +83,9 @@ export class ChemistryLimitsForm {
   }
 
   private fill(v: ChemistryLimitsView): void {
-    this.form.patchValue({ ...v.limits, extenderHours: v.extender?.everyHours ?? null, extenderDays: v.extender?.everyDays ?? null });
+    this.loadedMarginK = v.limits.freezeMarginK;
+    this.form.patchValue({ ...v.limits, freezeMargin: differenceForEntry(v.limits.freezeMarginK, this.unit), extenderHours: v.extender?.everyHours ?? null, extenderDays: v.extender?.everyDays ?? null });
+    this.form.markAsPristine();
     this.extenderDefault.set(`${v.extenderDefault.everyHours} h or ${v.extenderDefault.everyDays} days`);
   }
 
@@ -84,9 +93,13 @@ export class ChemistryLimitsForm {
     this.saved.set(false);
     const v = this.form.getRawValue();
     const limits: Partial<ChemistryLimits> = {};
-    for (const k of ['nitriteLowPpm', 'nitriteHighPpm', 'molybdateLowPpm', 'molybdateHighPpm', 'phLow', 'phHigh', 'reserveAlkalinityLowMl', 'freezeMarginK'] as const) {
+    for (const k of ['nitriteLowPpm', 'nitriteHighPpm', 'molybdateLowPpm', 'molybdateHighPpm', 'phLow', 'phHigh', 'reserveAlkalinityLowMl'] as const) {
       if (v[k] !== null && String(v[k]) !== '') limits[k] = Number(v[k]);
     }
+    // unchanged: the stored K (a margin shown rounded in °F is not rewritten); changed: converted from the user's unit
+    const margin = this.form.controls.freezeMargin;
+    if (!margin.dirty && this.loadedMarginK !== null) limits.freezeMarginK = this.loadedMarginK;
+    else if (v.freezeMargin !== null && String(v.freezeMargin) !== '') limits.freezeMarginK = Math.round(differenceFromEntry(Number(v.freezeMargin), this.unit) * 1000) / 1000;
     const hasExt = (v.extenderHours !== null && String(v.extenderHours) !== '') || (v.extenderDays !== null && String(v.extenderDays) !== '');
     const extender = hasExt ? { everyHours: v.extenderHours === null ? null : Number(v.extenderHours), everyDays: v.extenderDays === null ? null : Number(v.extenderDays) } : null;
     this.saving.set(true);

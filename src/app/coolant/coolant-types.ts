@@ -1,5 +1,5 @@
 import type { CoolantTestView, TestMethod } from '../../../shared/api/coolant-view';
-import type { ChemistryLimits } from '../../../shared/coolant';
+import type { BreakdownSign, ChemistryLimits } from '../../../shared/coolant';
 import type { TopUpLiquid } from '../../../shared/coolant/top-up';
 
 export type { CoolantDecision, CoolantTestSource, TestMethod } from '../../../shared/api/coolant-view';
@@ -18,6 +18,8 @@ export interface NewCoolantTest {
   nitritePpm?: number | null;
   molybdatePpm?: number | null;
   reserveAlkalinityMl?: number | null;
+  /** Glycol-breakdown signs looked for: null = not looked at, [] = none seen. */
+  breakdownSigns?: BreakdownSign[] | null;
   appearance: string | null;
   notes: string | null;
 }

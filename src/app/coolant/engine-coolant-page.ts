@@ -5,6 +5,7 @@ import { toObservable, toSignal } from '@angular/core/rxjs-interop';
 import { FormsModule } from '@angular/forms';
 import { MatButtonModule } from '@angular/material/button';
 import { MatCardModule } from '@angular/material/card';
+import { MatCheckboxModule } from '@angular/material/checkbox';
 import { MatFormFieldModule } from '@angular/material/form-field';
 import { MatIconModule } from '@angular/material/icon';
 import { MatInputModule } from '@angular/material/input';
@@ -12,7 +13,7 @@ import { MatSelectModule } from '@angular/material/select';
 import { MatTableModule } from '@angular/material/table';
 import { RouterLink } from '@angular/router';
 import { catchError, of, switchMap } from 'rxjs';
-import { CoolantFamily } from '../../../shared/coolant';
+import { BREAKDOWN_SIGN_TEXT, BREAKDOWN_SIGNS, type BreakdownSign, CoolantFamily } from '../../../shared/coolant';
 import { fromCelsius, toCelsius, UNIT_SYMBOL } from '../../../shared/units';
 import { AuthService } from '../core/auth.service';
 import { PreferencesService } from '../core/preferences.service';
@@ -46,7 +47,7 @@ const errorText = (e: unknown): string => {
   changeDetection: ChangeDetectionStrategy.OnPush,
   imports: [
     JwTimePipe, JwQuantitiesPipe, FormsModule, RouterLink, MatButtonModule, MatCardModule, MatFormFieldModule, MatIconModule, MatInputModule, MatSelectModule, MatTableModule,
-    AdditiveForm, AdditiveDecisionView, ChemistryFindings, CoolantCautions, CoolantExplainer, CoolantHistoryChart, TopUpsCard,
+    AdditiveForm, AdditiveDecisionView, ChemistryFindings, CoolantCautions, CoolantExplainer, CoolantHistoryChart, TopUpsCard, MatCheckboxModule,
   ],
   templateUrl: './engine-coolant-page.html',
   styleUrl: './engine-coolant-page.scss',
@@ -114,6 +115,22 @@ export class EngineCoolantPage {
   readonly raText = signal('');
   readonly appearance = signal('');
   readonly notes = signal('');
+  /** Glycol-breakdown signs ticked, and "looked, none seen" (neither: not looked at). */
+  protected readonly signText = BREAKDOWN_SIGN_TEXT;
+  protected readonly signKeys = BREAKDOWN_SIGNS;
+  readonly signs = signal<ReadonlySet<BreakdownSign>>(new Set());
+  readonly noSigns = signal(false);
+  protected toggleSign(s: BreakdownSign, on: boolean): void {
+    const next = new Set(this.signs());
+    if (on) next.add(s);
+    else next.delete(s);
+    this.signs.set(next);
+    if (on) this.noSigns.set(false);
+  }
+  protected setNoSigns(on: boolean): void {
+    this.noSigns.set(on);
+    if (on) this.signs.set(new Set());
+  }
   protected readonly scaValue = computed(() => {
     const v = parseNumber(this.scaText());
     return v === null || Number.isNaN(v) ? null : v;
@@ -136,7 +153,8 @@ export class EngineCoolantPage {
       }
       parsed[k] = v;
     }
-    if (Object.values(parsed).every((v) => v === null)) {
+    const breakdownSigns: BreakdownSign[] | null = this.signs().size ? [...this.signs()] : this.noSigns() ? [] : null;
+    if (Object.values(parsed).every((v) => v === null) && breakdownSigns === null) {
       this.saveError.set('Enter at least one measured value.');
       return;
     }
@@ -146,6 +164,7 @@ export class EngineCoolantPage {
       freezePointC: parsed['freezePointC'] === null ? null : toCelsius(parsed['freezePointC'], this.prefs.temperatureUnit()),
       ph: parsed['ph'], conductivityUsCm: parsed['conductivityUsCm'],
       nitritePpm: parsed['nitritePpm'], molybdatePpm: parsed['molybdatePpm'], reserveAlkalinityMl: parsed['reserveAlkalinityMl'],
+      breakdownSigns,
       appearance: this.appearance().trim() || null, notes: this.notes().trim() || null,
     };
     this.saving.set(true);
@@ -155,6 +174,8 @@ export class EngineCoolantPage {
         this.saving.set(false);
         this.saved.set(t);
         for (const s of [this.scaText, this.glycolText, this.freezeText, this.phText, this.ecText, this.nitriteText, this.molybdateText, this.raText, this.appearance, this.notes]) s.set('');
+        this.signs.set(new Set());
+        this.noSigns.set(false);
         this.reload.update((n) => n + 1);
       },
       error: (e) => {
@@ -197,9 +218,9 @@ export class EngineCoolantPage {
 
   /** Findings out of range, in words (the history shows them beside the additive decision). */
   protected findingsText(t: CoolantTest): string {
-    const bad = (t.decision?.findings ?? []).filter((f) => f.status === 'low' || f.status === 'high' || f.status === 'short');
-    const name = { nitritePpm: 'nitrite', molybdatePpm: 'molybdate', ph: 'pH', reserveAlkalinityMl: 'reserve alkalinity', freezeProtection: 'freeze protection' } as const;
-    return bad.map((f) => `${name[f.field]} ${f.status}`).join(', ');
+    const bad = (t.decision?.findings ?? []).filter((f) => f.status === 'low' || f.status === 'high' || f.status === 'short' || f.status === 'signs');
+    const name = { nitritePpm: 'nitrite', molybdatePpm: 'molybdate', ph: 'pH', reserveAlkalinityMl: 'reserve alkalinity', freezeProtection: 'freeze protection', breakdownSigns: 'glycol breakdown' } as const;
+    return bad.map((f) => `${name[f.field]} ${f.status === 'signs' ? 'signs seen' : f.status}`).join(', ');
   }
 
   protected statusText(t: CoolantTest): string {

@@ -11,6 +11,7 @@ import { MatSelectModule } from '@angular/material/select';
 import { catchError, of, switchMap } from 'rxjs';
 import { gallonsToLitres } from '../../../shared/units';
 import { PreferencesService } from '../core/preferences.service';
+import { JwTimePipe } from '../ui/time-format';
 import { formatStored } from '../ui/unit-format';
 import { parseNumber } from './additive-form';
 import { CoolantService } from './coolant.service';
@@ -32,7 +33,7 @@ import { JwTimePipe } from '../ui/time-format';
         @if (answer().estimate; as e) {
           <section class="estimate" [class.abnormal]="e.belowLow" aria-label="Estimate since the last test" data-test="top-up-estimate">
             <p class="head"><mat-icon aria-hidden="true" [fontIcon]="e.belowLow ? 'science' : 'calculate'" />
-              <strong>{{ e.belowLow ? 'Additive probably low: test now' : 'Estimate since the test of ' }}{{ e.belowLow ? '' : (e.basedOnTestAt | jwTime: zone() : 'date') }}</strong></p>
+              <strong>{{ e.belowLow ? 'Additive probably low: test now' : 'Estimate since the test of ' }}{{ e.belowLow ? '' : (e.basedOnTestAt | jwTime: zone() : 'datetime') }}</strong></p>
             <ul>@for (r of e.reasons; track $index) { <li>{{ r | jwQuantities }}</li> }</ul>
             <p class="why">Mass balance: each top-up replaces coolant that was lost with its additive; the added liquid brings none.</p>
           </section>
@@ -61,7 +62,7 @@ import { JwTimePipe } from '../ui/time-format';
         @if (answer().topUps.length) {
           <ul class="list" aria-label="Recent top-ups">
             @for (t of answer().topUps.slice(0, 10); track t.id) {
-              <li>{{ t.addedAt | jwTime: zone() }}: {{ vol(t.volumeL) }} {{ liquidText(t.liquid) }}{{ t.liquid === 'premix' ? ' ' + t.premixPercent + ' %' : '' }}{{ t.notes ? ' · ' + t.notes : '' }}</li>
+              <li>{{ t.addedAt | jwTime: zone() : 'datetime' }}: {{ vol(t.volumeL) }} {{ liquidText(t.liquid) }}{{ t.liquid === 'premix' ? ' ' + t.premixPercent + ' %' : '' }}{{ t.notes ? ' · ' + t.notes : '' }}</li>
             }
           </ul>
         }
@@ -75,7 +76,8 @@ import { JwTimePipe } from '../ui/time-format';
     .abnormal .head { color: var(--jw-warning); }
     .why { color: var(--jw-muted-text); font-size: 0.85rem; }
     .form { display: flex; flex-wrap: wrap; gap: 0 8px; align-items: baseline; }
-    .form mat-form-field { width: 200px; }
+    .form mat-form-field { width: 220px; }
+    .form [matTextSuffix] { white-space: nowrap; }
     .form mat-form-field.wide { width: 100%; }
     .error { color: var(--jw-alarm-high); width: 100%; }
     .list { font-size: 0.9rem; padding-left: 18px; }
@@ -86,10 +88,10 @@ export class TopUpsCard {
   private readonly prefs = inject(PreferencesService);
   readonly engineId = input.required<number>();
   readonly canRecord = input(false);
+  /** The engine's site zone (the page's display zone); times are written as everywhere else. */
+  readonly zone = input<string | null>(null);
   /** Bumped by the page when a test is saved (the estimate starts from the latest test). */
   readonly refresh = input(0);
-  /** Zone of the engine's site for the times shown (null: the browser's). */
-  readonly zone = input<string | null>(null);
 
   protected readonly volumeUnit = this.prefs.volumeUnit;
   private readonly reload = signal(0);

@@ -158,4 +158,26 @@ describe('EngineTile', () => {
     render(engine({ outOfService: true }));
     expect(text('.oos')).toBe('Out of service');
   });
+
+  // PG 40 vol % freezes at -20.6 °C (Lange's Handbook of Chemistry 15th ed., table 5.13); -25 °C = -13 °F (NIST SP 811: °F = °C x 1.8 + 32)
+  const short = {
+    status: 'short' as const, freezePointC: -20.6, requiredC: -25, designLowC: -20, marginK: 5, testId: 3, testedAt: '2026-11-01T17:00:00Z',
+    message: 'Freeze protection short', action: 'Raise the glycol',
+  };
+  it('flags freeze protection short of the design low in words and with a snowflake, in the user units', () => {
+    fixture.componentRef.setInput('timeZone', 'America/Denver');
+    render(engine({ freezeProtection: short }));
+    expect(text('[data-testid="freeze-short"]')).toBe('Freeze protection short:freezes at -20.6 °C, needs -25.0 °C or colder (test 2026-11-01 10:00 MST)');
+    expect(el.querySelector('[data-testid="freeze-short"] mat-icon')?.getAttribute('fonticon')).toBe('ac_unit');
+    expect(el.querySelector('a')!.getAttribute('aria-label')).toContain('freeze protection short: freezes at -20.6 °C');
+    TestBed.inject(PreferencesService).useSystem('us');
+    fixture.detectChanges();
+    expect(text('[data-testid="freeze-short"]')).toContain('needs -13.0 °F or colder');
+  });
+  it('no flag when the protection meets the design low or cannot be judged', () => {
+    render(engine({ freezeProtection: { ...short, status: 'ok', freezePointC: -33.3 } }));
+    expect(el.querySelector('[data-testid="freeze-short"]')).toBeNull();
+    render(engine({ freezeProtection: { ...short, status: 'unknown', requiredC: null, designLowC: null } }));
+    expect(el.querySelector('[data-testid="freeze-short"]')).toBeNull();
+  });
 });

@@ -10,6 +10,7 @@ import { ReadingCadence, isStale, staleText } from '../core/staleness';
 import { DisplayZone } from '../core/display-zone';
 import { PreferencesService } from '../core/preferences.service';
 import { BandIndicator } from '../ui/band-indicator';
+import { formatInZone } from '../ui/time-format';
 import { formatStored } from '../ui/unit-format';
 import { UnitValuePipe } from '../ui/unit-value.pipe';
 import { Engine, RunState } from './fleet-types';
@@ -73,6 +74,13 @@ interface TileRow {
             @if (!r.ready) {
               <span class="reasons">{{ r.reasons.join('; ') }}</span>
             }
+          </div>
+        }
+        @if (freezeShort(); as f) {
+          <div class="freeze-short" data-testid="freeze-short">
+            <mat-icon aria-hidden="true" fontIcon="ac_unit" />
+            <span class="freeze-text">Freeze protection short:</span>
+            <span class="reasons">{{ f }}</span>
           </div>
         }
         <dl class="rows">
@@ -151,6 +159,15 @@ export class EngineTile {
     });
   });
 
+  /** "freezes at -20.6 °C, needs -25.0 °C or colder (test 2026-11-01 10:00 MST)" when the latest test is short of the site's design low. */
+  protected readonly freezeShort = computed(() => {
+    const f = this.engine().freezeProtection;
+    if (!f || f.status !== 'short') return null;
+    const prefs = this.prefs.preferences();
+    const at = formatInZone(f.testedAt, this.zone());
+    return `freezes at ${formatStored(f.freezePointC, 'temperature', prefs)}, needs ${formatStored(f.requiredC, 'temperature', prefs)} or colder (test ${at})`;
+  });
+
   /** Everything the tile says, for a screen reader in one sentence. */
   protected readonly summary = computed(() => {
     const prefs = this.prefs.preferences();
@@ -158,6 +175,8 @@ export class EngineTile {
     if (this.engine().outOfService) parts.push('out of service');
     const ready = this.engine().readiness;
     if (ready) parts.push(ready.ready ? 'ready to start' : `not ready: ${ready.reasons.join('; ')}`);
+    const freeze = this.freezeShort();
+    if (freeze) parts.push(`freeze protection short: ${freeze}`);
     for (const row of this.rows()) {
       if (row.bad) {
         parts.push(`${row.short} bad reading`);

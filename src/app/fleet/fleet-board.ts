@@ -42,6 +42,9 @@ export class FleetBoard {
   /** Empty means every site. */
   protected readonly siteFilter = signal<number[]>([]);
   protected readonly stateFilter = signal<StateFilter>('all');
+  /** Only engines whose latest coolant test is short of their site's design low temperature. */
+  protected readonly freezeOnly = signal(false);
+  protected readonly freezeShortCount = computed(() => this.fleet.engines().filter((e) => e.freezeProtection?.status === 'short').length);
 
   private readonly states = computed(() => {
     const now = this.clock.now();
@@ -66,6 +69,7 @@ export class FleetBoard {
     for (const e of this.fleet.engines()) {
       if (siteIds.size && !siteIds.has(e.siteId)) continue;
       if (state !== 'all' && states.get(e.id) !== state) continue;
+      if (this.freezeOnly() && e.freezeProtection?.status !== 'short') continue;
       const list = bySite.get(e.siteId);
       if (list) list.push(e);
       else bySite.set(e.siteId, [e]);
@@ -107,6 +111,7 @@ export class FleetBoard {
   protected clearFilters(): void {
     this.siteFilter.set([]);
     this.stateFilter.set('all');
+    this.freezeOnly.set(false);
   }
 }
 

@@ -1,3 +1,4 @@
+import type { EngineFreezeStatus } from '../../../shared/api/coolant-view';
 import { ChannelValues } from '../core/live-reading';
 
 export type RunState = 'running' | 'stopped' | 'no-data';
@@ -6,6 +7,9 @@ export interface Site {
   id: number;
   name: string;
   timeZone: string;
+  /** Lowest expected temperature, °C; null when not set. */
+  designLowTempC?: number | null;
+  elevationM?: number | null;
 }
 
 /** GET /api/engines item (SI units). */
@@ -31,4 +35,6 @@ export interface Engine {
   activeAlarms?: number;
   /** Standby engines only: ready to start and take load, or the reasons why not, in words. */
   readiness?: { ready: boolean; reasons: string[] };
+  /** Freeze protection of the latest glycol or freeze-point test against the site's design low (absent without such a test). */
+  freezeProtection?: EngineFreezeStatus;
 }

@@ -5,6 +5,7 @@ import { MatIconModule } from '@angular/material/icon';
 import { RouterLink } from '@angular/router';
 import { CoolantInputError, decideAdditive, type AdditiveDecision, type CoolantFamily } from '../../../shared/coolant';
 import { AdditiveDecisionView } from '../coolant/additive-decision';
+import { ChemistryFindings } from '../coolant/chemistry-findings';
 import { AdditiveProfile } from '../coolant/coolant-types';
 import { CoolantService } from '../coolant/coolant.service';
 import { errorText, WorkApi } from './work-api';
@@ -26,7 +27,7 @@ interface EngineFacts {
 @Component({
   selector: 'jw-step-coolant-check',
   changeDetection: ChangeDetectionStrategy.OnPush,
-  imports: [MatButtonModule, MatIconModule, RouterLink, AdditiveDecisionView],
+  imports: [MatButtonModule, MatIconModule, RouterLink, AdditiveDecisionView, ChemistryFindings],
   template: `
     <section class="check" aria-labelledby="coolant-check-h">
       <h3 id="coolant-check-h"><mat-icon fontIcon="science" aria-hidden="true" />Additive decision for {{ engine()?.name ?? 'this engine' }}</h3>
@@ -40,6 +41,7 @@ interface EngineFacts {
       @if (shownTest(); as t) {
         <p class="ok" role="status" data-test="coolant-test-recorded"><mat-icon fontIcon="check_circle" aria-hidden="true" />Recorded as coolant test #{{ t.id }}; it is in the
           <a [routerLink]="['/engines', t.engineId, 'coolant']">coolant history</a> and the due list. A correction is an amendment to this record.</p>
+        <jw-chemistry-findings [findings]="t.decision?.findings" />
       } @else if (canRecord()) {
         @if (!sampleTaken()) { <p class="hint"><mat-icon fontIcon="lock" aria-hidden="true" />The test can be recorded once the sampling step is done.</p> }
         <button mat-stroked-button type="button" (click)="record()" [disabled]="busy() || !hasReading() || !sampleTaken()" data-test="record-coolant-test">
@@ -68,6 +70,7 @@ export class StepCoolantCheck {
   readonly glycolPercent = input<number | null>(null);
   readonly freezePointC = input<number | null>(null);
   readonly phValue = input<number | null>(null);
+  readonly nitritePpm = input<number | null>(null);
   /** The technician doing the work may record. */
   readonly canRecord = input(false);
   /** The test this order already recorded, if any. */
@@ -99,7 +102,7 @@ export class StepCoolantCheck {
   });
   protected readonly decision = computed(() => this.outcome().decision);
   protected readonly inputError = computed(() => this.outcome().error);
-  protected readonly hasReading = computed(() => [this.scaUnitsPerGal(), this.glycolPercent(), this.freezePointC()].some((v) => v !== null));
+  protected readonly hasReading = computed(() => [this.scaUnitsPerGal(), this.glycolPercent(), this.freezePointC(), this.nitritePpm()].some((v) => v !== null));
 
   constructor() {
     effect(() => {

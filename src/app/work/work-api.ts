@@ -29,6 +29,8 @@ export interface CompleteRequest {
   note?: string;
   lockoutConfirmed?: boolean;
   manualCheck?: ManualCheck;
+  /** The top-up step of a top-up order: what was added (the value is the volume). */
+  topUp?: { liquid: 'water' | 'premix' | 'glycol'; premixPercent: number | null };
 }
 
 /** HTTP calls of the work feature; the server decides every permission and the opening check. */

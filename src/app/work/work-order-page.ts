@@ -21,6 +21,8 @@ import { WorkApi, errorText } from './work-api';
 import { CONDITION_TEXT, EVENT_TEXT, PART_TEXT, PRIORITY_TEXT, STATUS_ICON, STATUS_TEXT, STEP_UNIT_TEXT, formatDate, formatDateTime } from './work-labels';
 import { Assignee, GateRefusal, OpeningCheck, OpeningCondition, WorkOrderDetail, WorkStatus, WorkStep } from './work-types';
 import { StepCoolantCheck } from './step-coolant-check';
+import { StepTopUp } from './step-top-up';
+import { isTopUpStep } from '../../../shared/work/top-up-step';
 import { TransitionNoteData, TransitionNoteDialog } from './transition-note-dialog';
 import { MatDialog } from '@angular/material/dialog';
 import { MatDatepickerModule } from '@angular/material/datepicker';
@@ -53,7 +55,7 @@ const ENTRY_UNITS: Record<string, string[]> = { degC: ['degC', 'degF'], kPa: ['k
   changeDetection: ChangeDetectionStrategy.OnPush,
   imports: [
     FormsModule, RouterLink, MatButtonModule, MatCardModule, MatCheckboxModule, MatExpansionModule, MatFormFieldModule, MatIconModule,
-    MatInputModule, MatProgressBarModule, MatSelectModule, MatTableModule, MatDatepickerModule, OpeningCheckPanel, AttachmentThumb, StepCoolantCheck,
+    MatInputModule, MatProgressBarModule, MatSelectModule, MatTableModule, MatDatepickerModule, OpeningCheckPanel, AttachmentThumb, StepCoolantCheck, StepTopUp,
   ],
   providers: [provideNativeDateAdapter()],
   templateUrl: './work-order-page.html',
@@ -218,6 +220,11 @@ export class WorkOrderPage {
     } catch (e) {
       this.draftState.set({ ...this.draftState(), [s.id]: `Not saved: ${errorText(e)}` });
     }
+  }
+
+  /** The step of a top-up order that records the coolant added (volume and what it was). */
+  protected isTopUp(o: WorkOrderDetail, s: WorkStep): boolean {
+    return isTopUpStep(o.kind, s.key);
   }
 
   protected orderChanged(o: WorkOrderDetail): void {

@@ -1,3 +1,4 @@
+import type { ChemistryFinding } from '../../../shared/coolant';
 /** Shapes of the work-order API (server/routes/work-orders.ts). Quantities in SI as stored. */
 import type { WorkOrderSummary, WorkStatus } from '../../../shared/api/work-view';
 export type { WorkOrderSummary, WorkPriority, WorkStatus } from '../../../shared/api/work-view';
@@ -114,6 +115,9 @@ export interface OrderCoolantTest {
   glycolPercent: number | null;
   freezePointC: number | null;
   ph: number | null;
+  nitritePpm?: number | null;
+  /** The decision stored with the test: its chemistry findings with their actions. */
+  decision?: { findings?: ChemistryFinding[] } | null;
 }
 
 export interface WorkOrderDetail extends WorkOrderSummary {
