@@ -11,6 +11,7 @@ import { MatSelectModule } from '@angular/material/select';
 import { catchError, of, switchMap } from 'rxjs';
 import { gallonsToLitres } from '../../../shared/units';
 import { PreferencesService } from '../core/preferences.service';
+import { JwQuantitiesPipe } from '../ui/quantity-text';
 import { JwTimePipe } from '../ui/time-format';
 import { formatStored } from '../ui/unit-format';
 import { parseNumber } from './additive-form';
@@ -20,8 +21,6 @@ import { TopUpLiquid, TopUpsAnswer } from './coolant-types';
 const LIQUID: Record<TopUpLiquid, string> = { water: 'Water', premix: 'Premix', glycol: 'Glycol' };
 
 /** Coolant added between tests, and the additive and glycol estimated from them since the last test. */
-import { JwQuantitiesPipe } from '../ui/quantity-text';
-import { JwTimePipe } from '../ui/time-format';
 @Component({
   selector: 'jw-top-ups-card',
   changeDetection: ChangeDetectionStrategy.OnPush,
