@@ -11,7 +11,7 @@
  *  3. QoS 0 flood: memory and responsiveness while TCP backpressure holds the inflow; bounded in time
  *     (publishers stop, the server gets a bounded drain time), then published (handed to TCP) vs
  *     received vs stored. QoS 0 has no acknowledgement: "nothing lost" is a QoS 1 claim only;
- *  5. sign-in under a burst (login-burst.ts, its own server process): a good sign-in and a good device connect
+ *  6. sign-in under a burst (login-burst.ts, its own server process): a good sign-in and a good device connect
  *     timed beside 200 wrong HTTP sign-ins and 300 wrong MQTT logins (loginUnderBurstMs, deviceConnectUnderBurstMs).
  * Phase lengths: BENCH_FLOOD_MS, BENCH_LATENCY_MS, BENCH_QOS0_MS, BENCH_DRAIN_MS.
  * BENCH_JSON=file: the figures also as JSON (ingestPerS, rawCeilingPerS, lostAcknowledged, duplicatesStored,
@@ -403,7 +403,7 @@ async function main(): Promise<void> {
     console.error('login burst failed:', err instanceof Error ? err.message : err);
     return null;
   });
-  console.log('\n5. Sign-in under a burst of wrong passwords (200 wrong HTTP sign-ins from 5 addresses + 300 wrong MQTT logins)');
+  console.log('\n6. Sign-in under a burst of wrong passwords (200 wrong HTTP sign-ins from 5 addresses + 300 wrong MQTT logins)');
   if (burst) {
     line('good sign-in quiet / under the burst (loginUnderBurstMs)', `${burst.quietMs.toFixed(0)} / ${burst.underBurstMs.toFixed(0)} ms (HTTP ${burst.status})   (goal: at most 1 s more than quiet)`);
     line('good device connect quiet / under the burst', `${burst.deviceQuietMs.toFixed(0)} / ${burst.deviceUnderBurstMs.toFixed(0)} ms`);
