@@ -3,6 +3,7 @@ import { HttpError } from '../http-error';
 import type { Role } from '../models/user';
 import type { AuthUser } from '../telemetry/types';
 import type { AppContext } from '../app-context';
+import { crossSiteRefusal, sessionCookieToken } from './session-cookie';
 
 declare global {
   // eslint-disable-next-line @typescript-eslint/no-namespace
@@ -20,10 +21,24 @@ function bearer(req: Request): string | null {
   return m ? m[1] : null;
 }
 
+/**
+ * The request's token: `Authorization: Bearer` (API clients, tests), else the browser's session cookie.
+ * A request that uses the cookie is checked for cross-site use first (403).
+ */
+export function requestToken(req: Request): string | null {
+  const fromHeader = bearer(req);
+  if (fromHeader) return fromHeader;
+  const fromCookie = sessionCookieToken(req.get('cookie'));
+  if (!fromCookie) return null;
+  const refusal = crossSiteRefusal(req.method, req.headers, req.host, { needHeader: true });
+  if (refusal) throw new HttpError(403, refusal);
+  return fromCookie;
+}
+
 /** 401 unless the request carries a valid token of an enabled user; sets req.user. Works in any router of the app. */
 export async function requireAuth(req: Request, _res: Response, next: NextFunction): Promise<void> {
   const ctx = req.app.locals.ctx as AppContext;
-  const claims = ctx.tokens.verify(bearer(req));
+  const claims = ctx.tokens.verify(requestToken(req));
   if (!claims) throw new HttpError(401, 'sign-in required');
   // a disabled or deleted user loses access at once, not when the token expires; so does a token
   // signed before the user's role, sites or password changed (session version)

@@ -3,6 +3,8 @@ import { ROLES } from '../models/user';
 import type { AuthUser } from '../telemetry/types';
 
 export interface TokenService {
+  /** How long a token (and the browser's session cookie) lasts, in seconds. */
+  readonly lifetimeS: number;
   sign(user: AuthUser): string;
   /** The user a token stands for, or null when it is missing, expired, forged or malformed. */
   verify(token: string | undefined | null): AuthUser | null;
@@ -12,6 +14,7 @@ const ISSUER = 'jacketwatch';
 
 export function createTokenService(secret: string, expiresInSeconds = 12 * 3600): TokenService {
   return {
+    lifetimeS: expiresInSeconds,
     sign: (user) => jwt.sign({ email: user.email, role: user.role, sv: user.sv ?? 0 }, secret, { subject: String(user.id), issuer: ISSUER, expiresIn: expiresInSeconds, algorithm: 'HS256' }),
     verify(token) {
       if (!token) return null;

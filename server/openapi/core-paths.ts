@@ -8,10 +8,12 @@ export const authPaths: OpenApiGroup = {
   paths: {
     '/api/auth/login': {
       post: {
-        summary: 'Sign in', security: [], requestBody: body({ type: 'object', required: ['email', 'password'], properties: { email: { type: 'string' }, password: { type: 'string' } } }),
-        responses: { '200': json({ type: 'object', properties: { token: { type: 'string' }, user: ref('User') } }), ...errors({ input: true }), '429': json(ref('Error'), 'too many failed attempts') },
+        summary: 'Sign in. `session: "cookie"` (the browser app, with the x-jw-request header): the token is set as an httpOnly SameSite=Strict cookie and left out of the answer; otherwise the answer carries the bearer token',
+        security: [], requestBody: body({ type: 'object', required: ['email', 'password'], properties: { email: { type: 'string' }, password: { type: 'string' }, session: { enum: ['cookie', 'token'] } } }),
+        responses: { '200': json({ type: 'object', properties: { token: { type: 'string' }, user: ref('User') } }), ...errors({ input: true }), '403': json(ref('Error'), 'a cookie sign-in from another site'), '429': json(ref('Error'), 'too many failed attempts') },
       },
     },
+    '/api/auth/logout': { post: { summary: 'Sign out: clears the session cookie', security: [], responses: { '200': json({ type: 'object', properties: { signedOut: { type: 'boolean' } } }) } } },
     '/api/auth/me': { get: { summary: 'The signed-in user', responses: { '200': json(ref('User')), ...errors() } } },
   },
 };

@@ -9,6 +9,7 @@ import { z } from 'zod';
 import type { ChannelKey } from '../../shared/channels';
 import type { Logger } from '../logger';
 import type { AcceptedReading, AuthUser, LatestValue } from '../telemetry/types';
+import { crossSiteRefusal, sessionCookieToken } from '../auth/session-cookie';
 
 export interface LivePushOptions {
   httpServer: http.Server;
@@ -20,6 +21,8 @@ export interface LivePushOptions {
   sessionValid?(user: AuthUser): Promise<boolean>;
   log: Logger;
   throttleMs?: number;
+  /** Behind a trusted proxy (TRUST_PROXY) the browser's host is in X-Forwarded-Host when the proxy sets it. */
+  trustForwardedHost?: boolean;
 }
 
 export interface ReadingsMessage {
@@ -60,8 +63,8 @@ export class LivePush {
     this.io = new Server(opts.httpServer, { serveClient: false, cors: { origin: false } });
     this.io.use((socket, next) => {
       try {
-        const token = socket.handshake.auth?.token;
-        const user = typeof token === 'string' ? opts.verifyToken(token) : null;
+        const token = this.handshakeToken(socket);
+        const user = token ? opts.verifyToken(token) : null;
         if (!user) return next(new Error('unauthorized'));
         const valid = opts.sessionValid ? opts.sessionValid(user) : Promise.resolve(true);
         valid.then((ok) => {
@@ -74,6 +77,26 @@ export class LivePush {
       }
     });
     this.io.on('connection', (socket) => this.onConnection(socket));
+  }
+
+  /**
+   * An API client's token (`auth: { token }`), else the browser's session cookie: the same session as
+   * HTTP. A handshake with the cookie from a page of another site is refused (Sec-Fetch-Site / Origin).
+   */
+  private handshakeToken(socket: Socket): string | null {
+    const explicit = socket.handshake.auth?.token;
+    if (typeof explicit === 'string' && explicit) return explicit;
+    const headers = socket.handshake.headers;
+    const fromCookie = sessionCookieToken(headers.cookie);
+    if (!fromCookie) return null;
+    const forwarded = this.opts.trustForwardedHost ? headers['x-forwarded-host'] : undefined;
+    const host = (typeof forwarded === 'string' && forwarded ? forwarded.split(',')[0].trim() : undefined) ?? headers.host;
+    const refusal = crossSiteRefusal('GET', headers, host, { needHeader: false });
+    if (refusal) {
+      this.opts.log.warn(`live push: handshake refused: ${refusal}`);
+      return null;
+    }
+    return fromCookie;
   }
 
   private onConnection(socket: Socket): void {
@@ -142,10 +165,13 @@ export class LivePush {
 
   /** The user's sessions ended (disabled, role, sites or password changed): close their sockets now. */
   endSessions(userId: number): void {
+    // said first, so the page can tell the user why before the socket closes
+    this.io.in(userRoom(userId)).emit('session-ended', { reason: 'Your account or its access was changed by an administrator.' });
     this.io.in(userRoom(userId)).disconnectSockets(true);
   }
 
-  emit(room: string, event: string, payload: unknown): void {
+  /** To a room, or to several at once (a socket in more than one of them gets the event once). */
+  emit(room: string | string[], event: string, payload: unknown): void {
     this.io.to(room).emit(event, payload);
   }
 

@@ -44,7 +44,7 @@ export async function startTelemetry(deps: TelemetryDeps, options: TelemetryOpti
   let stopping = false;
 
   await liveState.load(sequelize);
-  const livePush = new LivePush({ httpServer: deps.httpServer, verifyToken: deps.verifyToken, siteOfEngine: deps.siteOfEngine, siteScope: deps.siteScope, sessionValid: deps.sessionValid, log });
+  const livePush = new LivePush({ httpServer: deps.httpServer, verifyToken: deps.verifyToken, siteOfEngine: deps.siteOfEngine, siteScope: deps.siteScope, sessionValid: deps.sessionValid, log, trustForwardedHost: !!deps.config.trustProxy });
   deps.access?.onUserChanged((userId) => livePush.endSessions(userId));
   deps.access?.onSitesChanged((userId) => void livePush.rescope(userId));
   listeners.push((readings) => livePush.push(readings));
@@ -148,7 +148,7 @@ export async function startTelemetry(deps: TelemetryDeps, options: TelemetryOpti
     if (!values) return;
     const send = (siteId: number | null) => {
       const msg = { engineId, siteId, ts: at, values, lost: true };
-      for (const room of ['fleet', `engine:${engineId}`, ...(siteId !== null ? [`site:${siteId}`] : [])]) livePush.emit(room, 'readings', msg);
+      livePush.emit(['fleet', `engine:${engineId}`, ...(siteId !== null ? [`site:${siteId}`] : [])], 'readings', msg);
     };
     deps.siteOfEngine(engineId).then(send, () => send(null));
   };

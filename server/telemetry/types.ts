@@ -83,8 +83,8 @@ export interface Telemetry {
   onReadings(listener: (readings: AcceptedReading[]) => void): void;
   /** Called when a gateway declares an engine's data lost (Sparkplug NDEATH/DDEATH). */
   onLost?(listener: (engineId: number, at: number) => void): void;
-  /** Emit an event to a socket.io room (`fleet`, `site:<id>`, `engine:<id>`). */
-  emit(room: string, event: string, payload: unknown): void;
+  /** Emit an event to a socket.io room (`fleet`, `site:<id>`, `engine:<id>`), or to several (each socket once). */
+  emit(room: string | string[], event: string, payload: unknown): void;
   /** Flush the buffer and close broker and sockets. */
   stop(): Promise<void>;
   /** The external broker connection (MQTT_URL); null with the embedded broker. */

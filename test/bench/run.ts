@@ -12,9 +12,11 @@
  *     (publishers stop, the server gets a bounded drain time), then published (handed to TCP) vs
  *     received vs stored. QoS 0 has no acknowledgement: "nothing lost" is a QoS 1 claim only;
  *  then the retention sweep and the long-trend phase (trend.ts: trend30dMs / trend1hMs with 200 engines x 30 days).
+ *  then sign-in under a burst (login-burst.ts, its own server process): a good sign-in and a good device connect
+ *     timed beside 200 wrong HTTP sign-ins and 300 wrong MQTT logins (loginUnderBurstMs, deviceConnectUnderBurstMs).
  * Phase lengths: BENCH_FLOOD_MS, BENCH_LATENCY_MS, BENCH_QOS0_MS, BENCH_DRAIN_MS. One phase alone: BENCH_PHASE=qos1|retention|trend.
  * BENCH_JSON=file: the figures also as JSON (ingestPerS, rawCeilingPerS, lostAcknowledged, duplicatesStored,
- * rssGrowthPct, ...), to compare runs.
+ * rssGrowthPct, loginUnderBurstMs, ...), to compare runs.
  */
 import { spawn, type ChildProcess } from 'node:child_process';
 import fs from 'node:fs';
@@ -26,6 +28,7 @@ import { loadJwtSecret } from '../../server/auth/jwt-secret';
 import { createTokenService } from '../../server/auth/tokens';
 import { describeInitialBundle, measureInitialBundle } from './initial-bundle';
 import { printTrend, trendPhase } from './trend';
+import { loginUnderBurst, type LoginBurstFigures } from './login-burst';
 import { Db, freePort, seedFleet, type SeededDevice } from '../server/support/telemetry-server';
 import type { ServerHealth } from '../server/support/telemetry-server';
 
@@ -409,6 +412,19 @@ async function main(): Promise<void> {
   const initialBundle = measureInitialBundle();
   console.log('\n4. App: first download (the production build in dist/, measured as the build estimates it)');
   line('initial bundle (initialTransferKb)', describeInitialBundle(initialBundle));
+  progress('sign-in under a burst of wrong passwords (its own server)');
+  const burst: LoginBurstFigures | null = await loginUnderBurst().catch((err) => {
+    console.error('login burst failed:', err instanceof Error ? err.message : err);
+    return null;
+  });
+  console.log('\n6. Sign-in under a burst of wrong passwords (200 wrong HTTP sign-ins from 5 addresses + 300 wrong MQTT logins)');
+  if (burst) {
+    line('good sign-in quiet / under the burst (loginUnderBurstMs)', `${burst.quietMs.toFixed(0)} / ${burst.underBurstMs.toFixed(0)} ms (HTTP ${burst.status})   (goal: at most 1 s more than quiet)`);
+    line('good device connect quiet / under the burst', `${burst.deviceQuietMs.toFixed(0)} / ${burst.deviceUnderBurstMs.toFixed(0)} ms`);
+    line('answers to the burst', JSON.stringify(burst.burstAnswers));
+  } else {
+    line('good sign-in under the burst', 'not measured (see the error above)');
+  }
   console.log(`\nbench took ${((Date.now() - t0) / 1000).toFixed(0)} s`);
   if (process.env.BENCH_JSON) {
     const r1 = (x: number) => (Number.isFinite(x) ? Math.round(x * 10) / 10 : null);
@@ -424,6 +440,8 @@ async function main(): Promise<void> {
       retentionLoopMaxMs: retention.loopMax, retentionHealthMaxMs: r1(retention.healthMax),
       retentionBatchLatencyMaxMs: retention.batchLatency?.max ?? null,
       trend30dMs: r1(trend.trend30dMs), trend1hMs: r1(trend.trend1hMs), trend30dMinuteRollupsMs: r1(trend.trend30dMinutesMs), trendEngines: trend.engines, trendDays: trend.days,
+      loginQuietMs: burst ? r1(burst.quietMs) : null, loginUnderBurstMs: burst ? r1(burst.underBurstMs) : null,
+      deviceConnectQuietMs: burst ? r1(burst.deviceQuietMs) : null, deviceConnectUnderBurstMs: burst ? r1(burst.deviceUnderBurstMs) : null,
     }, null, 2) + '\n');
     console.log(`figures written to ${process.env.BENCH_JSON}`);
   }

@@ -41,6 +41,7 @@ const cases: Case[] = [
   { method: 'get', path: () => '/api/health', doc: '/api/health', who: 'public', ok: 200 },
   { method: 'get', path: () => '/api/openapi.json', doc: '/api/openapi.json', who: 'public', ok: 200 },
   { method: 'get', path: () => '/api/auth/me', doc: '/api/auth/me', who: 'read', ok: 200 },
+  { method: 'post', path: () => '/api/auth/logout', doc: '/api/auth/logout', who: 'public', ok: 200 },
   { method: 'get', path: () => '/api/sites', doc: '/api/sites', who: 'read', ok: 200 },
   { method: 'get', path: () => '/api/engines', doc: '/api/engines', who: 'read', ok: 200 },
   { method: 'get', path: () => `/api/engines/${engineId}`, doc: '/api/engines/{id}', who: 'read', ok: 200 },

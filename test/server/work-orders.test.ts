@@ -17,15 +17,17 @@ import { MemoryLiveState } from '../../server/telemetry/live-state';
 import type { AcceptedReading } from '../../server/telemetry/types';
 import { auth, makeTestApp, type TestApp } from './helpers';
 import { openingHistoryOf } from '../../server/services/work-orders/reading-history';
+import { until } from './support/until';
 
 let t: TestApp;
 let engineId: number;
+let siteId: number;
 let coldEngineId: number;
 let staleEngineId: number;
 let otherTechToken: string;
 const listeners: Array<(r: AcceptedReading[]) => void> = [];
 const live = new MemoryLiveState();
-const emitted: Array<{ room: string; event: string; payload: unknown }> = [];
+const emitted: Array<{ room: string | string[]; event: string; payload: unknown }> = [];
 
 /** Readings enter as the ingest hands them on: stored in SQLite (as the writer does), live state, then every onReadings listener. */
 async function feed(readings: AcceptedReading[]): Promise<void> {
@@ -61,7 +63,7 @@ beforeAll(async () => {
   t = await makeTestApp();
   const { Site, Engine } = t.ctx.models;
   const row = (siteId: number, name: string) => ({ siteId, name, duty: 'standby' as const, capacityL: 60, coolantFamily: 'conventional' as const, glycolType: 'ethylene' as const, glycolPercent: 50, capPressureKpa: 100, oilDrainIntervalH: 250, runHours: 1234 });
-  const siteId = (await Site.create({ name: 'Test site', timeZone: 'UTC' })).id;
+  siteId = (await Site.create({ name: 'Test site', timeZone: 'UTC' })).id;
   engineId = (await Engine.create(row(siteId, 'Hot engine'))).id;
   coldEngineId = (await Engine.create(row(siteId, 'Cold engine'))).id;
   staleEngineId = (await Engine.create(row(siteId, 'Quiet engine'))).id;
@@ -69,7 +71,7 @@ beforeAll(async () => {
     liveState: live,
     counters: t.ctx.telemetry!.counters,
     onReadings: (l: (r: AcceptedReading[]) => void) => { listeners.push(l); },
-    emit: (room: string, event: string, payload: unknown) => { emitted.push({ room, event, payload }); },
+    emit: (room: string | string[], event: string, payload: unknown) => { emitted.push({ room, event, payload }); },
   } as unknown as typeof t.ctx.telemetry;
   // as startServer does: the opening-check history is fed by telemetry
   listeners.push(openingHistoryOf(t.ctx).onReadings);
@@ -292,7 +294,9 @@ describe('manual check when live data is stale or missing', () => {
     expect(audit.map((a) => a.action).sort()).toEqual(['opening-check-manual-override', 'planners-told']);
     const mail = await t.ctx.models.OutboxMessage.findAll();
     expect(mail.some((m) => m.to.includes('planner@example.test') && /Manual opening check/.test(m.subject) && /31 °C/.test(m.text))).toBe(true);
-    expect(emitted.some((e) => e.event === 'work-order-notice')).toBe(true);
+    // pushed after the engine's site is looked up (to the rooms of that site only)
+    const pushed = await until('work-order-notice pushed', async () => emitted.find((e) => e.event === 'work-order-notice'), (e) => e !== undefined);
+    expect(pushed!.room).toEqual(expect.arrayContaining(['fleet', `site:${siteId}`]));
   });
 });
 

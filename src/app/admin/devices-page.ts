@@ -40,7 +40,13 @@ interface DeviceRow extends Device {
   rejected: number;
   reasons: string;
   lastRejection: string;
+  /** MQTT connects refused for a wrong secret (reason `login_failed`), not messages. */
+  failedLogins: number;
+  lastFailedLogin: number | null;
 }
+
+/** Counted per device by the broker; shown in its own column, apart from refused messages. */
+const LOGIN_FAILED = 'login_failed';
 
 /** The MQTT identities gateways report with: one engine each; secrets shown once, rotated or revoked here. */
 @Component({
@@ -89,6 +95,13 @@ interface DeviceRow extends Device {
           <th mat-header-cell *matHeaderCellDef mat-sort-header arrowPosition="before" class="num">Refused messages</th>
           <td mat-cell *matCellDef="let d" class="num jw-num" [class.attention]="d.rejected > 0">{{ d.rejected }}</td>
         </ng-container>
+        <ng-container matColumnDef="failedLogins">
+          <th mat-header-cell *matHeaderCellDef mat-sort-header arrowPosition="before" class="num">Failed logins</th>
+          <td mat-cell *matCellDef="let d" class="num jw-num" [class.attention]="d.failedLogins > 0">
+            {{ d.failedLogins }}
+            @if (d.lastFailedLogin) { <span class="sub">latest {{ d.lastFailedLogin | jwTime: null : 'datetime-s' }}</span> }
+          </td>
+        </ng-container>
         <ng-container matColumnDef="reasons">
           <th mat-header-cell *matHeaderCellDef>Why refused</th>
           <td mat-cell *matCellDef="let d" [matTooltip]="d.lastRejection" [matTooltipDisabled]="!d.lastRejection">
@@ -115,7 +128,7 @@ export class DevicesPage {
   private readonly api = inject(AdminService);
   private readonly dialog = inject(MatDialog);
   private readonly snack = inject(MatSnackBar);
-  protected readonly columns = ['username', 'engineName', 'status', 'lastSeen', 'rejected', 'reasons', 'actions'];
+  protected readonly columns = ['username', 'engineName', 'status', 'lastSeen', 'failedLogins', 'rejected', 'reasons', 'actions'];
   protected readonly source = new MatTableDataSource<DeviceRow>([]);
   protected readonly engines = signal<Engine[]>([]);
   protected readonly error = signal<string | null>(null);
@@ -195,7 +208,9 @@ export class DevicesPage {
 export function toRows(devices: Device[], engines: Engine[], rejections: DeviceRejection[]): DeviceRow[] {
   const names = new Map(engines.map((e) => [e.id, e.name]));
   return devices.map((d) => {
-    const own = rejections.filter((r) => r.deviceId === d.id).sort((a, b) => b.count - a.count);
+    const mine = rejections.filter((r) => r.deviceId === d.id);
+    const logins = mine.find((r) => r.reason === LOGIN_FAILED);
+    const own = mine.filter((r) => r.reason !== LOGIN_FAILED).sort((a, b) => b.count - a.count);
     const newest = own.slice().sort((a, b) => (toMillis(b.lastAt) ?? 0) - (toMillis(a.lastAt) ?? 0))[0];
     return {
       ...d,
@@ -205,6 +220,8 @@ export function toRows(devices: Device[], engines: Engine[], rejections: DeviceR
       rejected: own.reduce((n, r) => n + r.count, 0),
       reasons: own.map((r) => `${REASON_TEXT[r.reason] ?? r.reason} × ${r.count}`).join(', '),
       lastRejection: newest?.lastDetail ? `Latest: ${newest.lastDetail}` : '',
+      failedLogins: logins?.count ?? 0,
+      lastFailedLogin: toMillis(logins?.lastAt ?? null),
     };
   });
 }

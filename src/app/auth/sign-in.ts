@@ -73,6 +73,7 @@ import { AuthService, SignInError } from '../core/auth.service';
     .mark { color: var(--mat-sys-primary); }
     .lead { color: var(--jw-muted-text); margin: 4px 0 20px; }
     .notice, .failure { display: flex; gap: 8px; align-items: flex-start; margin: 0 0 16px; padding: 8px 10px; border-radius: 6px; }
+    .notice mat-icon, .failure mat-icon { flex: none; }
     .notice { background: var(--mat-sys-surface-container-high); }
     .failure { color: var(--jw-alarm-high); background: var(--jw-alarm-high-bg); }
     .submit { margin-top: 8px; height: 44px; }

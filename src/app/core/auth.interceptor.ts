@@ -2,14 +2,17 @@ import { HttpErrorResponse, HttpInterceptorFn } from '@angular/common/http';
 import { inject } from '@angular/core';
 import { catchError, throwError } from 'rxjs';
 import { AuthService } from './auth.service';
+import { CSRF_HEADERS } from './user';
 
-/** Adds the bearer token to our API calls; a 401 from any of them means the session is over. */
+/**
+ * Our API calls go with the session cookie (the browser sends it) and the header that marks them as
+ * the app's own; a 401 from any of them means the session is over.
+ */
 export const authInterceptor: HttpInterceptorFn = (req, next) => {
   const auth = inject(AuthService);
-  const token = auth.token();
   const isApi = req.url.startsWith('/api/');
-  const authed = isApi && token ? req.clone({ setHeaders: { Authorization: `Bearer ${token}` } }) : req;
-  return next(authed).pipe(
+  const marked = isApi ? req.clone({ setHeaders: CSRF_HEADERS }) : req;
+  return next(marked).pipe(
     catchError((err: unknown) => {
       if (isApi && err instanceof HttpErrorResponse && err.status === 401 && !req.url.startsWith('/api/auth/login')) {
         auth.expire();

@@ -35,8 +35,8 @@ export class LiveService {
 
   constructor() {
     effect(() => {
-      const token = this.auth.token();
-      untracked(() => (token ? this.open(token) : this.close()));
+      const signedIn = this.auth.signedIn();
+      untracked(() => (signedIn ? this.open() : this.close()));
     });
     inject(DestroyRef).onDestroy(() => this.close());
   }
@@ -61,7 +61,7 @@ export class LiveService {
     return this.readings$.pipe(filter((r) => r.engineId === engineId));
   }
 
-  private open(token: string): void {
+  private open(): void {
     this.close();
     this.connectionSignal.set('connecting');
     const generation = ++this.openGeneration;
@@ -69,7 +69,8 @@ export class LiveService {
     import('socket.io-client').then(
       ({ io }) => {
         if (generation !== this.openGeneration) return; // signed out or signed in again meanwhile
-        this.connect(io({ auth: { token }, reconnection: true, reconnectionDelayMax: 10000 }));
+        // the handshake carries the session cookie (same origin); no token is handled by page script
+        this.connect(io({ reconnection: true, reconnectionDelayMax: 10000 }));
       },
       () => {
         // The app was updated on the server or the network dropped: a reload fetches it again.
@@ -85,9 +86,26 @@ export class LiveService {
       this.lostSinceSignal.set(null);
       this.sendWatches();
     });
-    socket.on('disconnect', () => {
+    // The server ended the session (account disabled, role, sites or password changed): it says so, then closes.
+    socket.on('session-ended', (msg: { reason?: unknown } | null) => {
+      const reason = typeof msg?.reason === 'string' ? msg.reason : null;
+      this.auth.expire(reason ? `${reason} Please sign in again.` : undefined);
+    });
+    socket.on('disconnect', (reason: string) => {
       this.connectionSignal.set(socket.active ? 'connecting' : 'offline');
       this.markLost();
+      // closed by the server on purpose: ask whether the session still holds (a 401 signs out with a message)
+      if (reason === 'io server disconnect') {
+        void this.auth.refresh().then(() => {
+          // still signed in (e.g. the server was restarted): connect again a little later
+          if (this.socket === socket && this.auth.signedIn() && !this.retryTimer) {
+            this.retryTimer = setTimeout(() => {
+              this.retryTimer = null;
+              if (this.socket === socket && this.auth.signedIn()) socket.connect();
+            }, RETRY_AFTER_REFUSAL_MS);
+          }
+        });
+      }
     });
     socket.on('connect_error', () => {
       this.markLost();
@@ -95,11 +113,13 @@ export class LiveService {
         this.connectionSignal.set('connecting'); // a network problem: socket.io retries by itself
         return;
       }
-      // Refused at the handshake (bad or expired token): check the session, then retry later.
+      // Refused at the handshake (session ended or expired): check the session, then retry later.
       this.connectionSignal.set('refused');
       void this.auth.refresh();
+      if (this.retryTimer) clearTimeout(this.retryTimer);
       this.retryTimer = setTimeout(() => {
-        if (this.socket === socket && this.auth.token()) socket.connect();
+        this.retryTimer = null;
+        if (this.socket === socket && this.auth.signedIn()) socket.connect();
       }, RETRY_AFTER_REFUSAL_MS);
     });
     socket.on('readings', (msg: LiveReadings) => {

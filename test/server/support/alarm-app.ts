@@ -80,7 +80,7 @@ export async function makeAlarmApp(settings: Partial<AlarmSettings> = {}): Promi
       listener = l;
     },
     emit: (room, event, payload) => {
-      pushed.push([room, event, payload]);
+      for (const r of [room].flat()) pushed.push([r, event, payload]);
     },
     liveState: { latest: () => ({}), lastSeen: () => null, runState: () => 'no-data' },
   });
