@@ -42,6 +42,8 @@ export interface Config {
   readingsRetentionDays: number | null;
   /** JWT signing secret shared by several servers; null: generated once into DATA_DIR/jwt-secret. */
   jwtSecret: string | null;
+  /** CLUSTER [on]: with PostgreSQL, live push between servers and engine leases (server/cluster); `off` for one server only. */
+  cluster: boolean;
 }
 
 function intFrom(env: NodeJS.ProcessEnv, name: string, fallback: number): number {
@@ -92,6 +94,12 @@ function sharedGroupFrom(env: NodeJS.ProcessEnv): string | null {
   return raw;
 }
 
+function clusterFrom(env: NodeJS.ProcessEnv): boolean {
+  const raw = textFrom(env, 'CLUSTER') ?? 'on';
+  if (raw !== 'on' && raw !== 'off') throw new Error(`CLUSTER must be "on" or "off", got "${raw}"`);
+  return raw === 'on';
+}
+
 export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
   const port = intFrom(env, 'PORT', 3000);
   const dataDir = path.resolve(env.DATA_DIR || './data');
@@ -127,7 +135,8 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
     mqttTls: env.MQTT_TLS_CERT && env.MQTT_TLS_KEY
       ? { certFile: path.resolve(env.MQTT_TLS_CERT), keyFile: path.resolve(env.MQTT_TLS_KEY), port: intFrom(env, 'MQTT_TLS_PORT', 8883) }
       : null,
-    
+
     jwtSecret: secretFrom(env, 'JWT_SECRET'),
+    cluster: clusterFrom(env),
   };
 }

@@ -67,7 +67,14 @@ export class AlarmService {
   private readonly recentActs = new Map<number, number[]>();
   private readonly pendingLate = new Map<number, { engineId: number; key: string; measuredAt: number; arrivedAt: number }>();
 
+  /** Several servers: housekeeping (shelf expiry, escalation) only for engines whose lease this server holds. */
+  private owns: (engineId: number) => boolean = () => true;
+
   constructor(private readonly deps: AlarmServiceDeps) {}
+
+  setOwnership(owns: (engineId: number) => boolean): void {
+    this.owns = owns;
+  }
 
   /** Run `fn` after every change queued before it. */
   private serial<T>(fn: () => Promise<T>): Promise<T> {
@@ -418,6 +425,7 @@ export class AlarmService {
       const { Alarm } = this.deps.models;
       const expired = await Alarm.findAll({ where: { state: 'shelved', closedAt: null, shelvedUntil: { [Op.lte]: new Date(now) } } });
       for (const a of expired) {
+        if (!this.owns(a.engineId)) continue;
         await this.apply(a, { type: 'shelf-expired' }, Math.max(now, ms(a.shelvedUntil) ?? now));
       }
       const due = await Alarm.findAll({
@@ -429,9 +437,18 @@ export class AlarmService {
           lastNotifiedAt: { [Op.lte]: new Date(now - this.deps.settings.escalateAfterMs) },
         },
       });
+      const cutoff = new Date(now - this.deps.settings.escalateAfterMs);
       for (const a of due) {
         const engine = this.deps.directory.get(a.engineId);
-        if (engine) await this.notify(a, engine, a.escalationLevel + 1);
+        if (!engine || !this.owns(a.engineId)) continue;
+        // claimed once: only the server whose update finds the alarm still due sends the escalation (a lease that
+        // moved between two servers' housekeeping rounds must not escalate twice)
+        const [claimed] = await Alarm.update(
+          { lastNotifiedAt: new Date(now) },
+          { where: { id: a.id, escalationLevel: a.escalationLevel, acknowledgedAt: null, lastNotifiedAt: { [Op.lte]: cutoff } } },
+        );
+        if (claimed !== 1) continue;
+        await this.notify(a, engine, a.escalationLevel + 1);
       }
     });
   }
