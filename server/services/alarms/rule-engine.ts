@@ -220,11 +220,21 @@ export class RuleEngine {
    * yet is raised (or cleared) now, as the previous owner would have done. Live readings wait meanwhile.
    */
   async adopt(): Promise<void> {
-    const engines = await this.deps.directory.refresh();
-    const fresh = [...engines.values()].filter((e) => this.owns(e.id) && !this.evaluators.has(e.id) && !this.adopting.has(e.id) && !e.outOfService && !e.retired);
-    if (!fresh.length) return this.refreshEngines();
-    for (const e of fresh) this.adopting.set(e.id, []);
+    // before any await: engines known to be ours now hold their readings, so nothing builds them without the replay
+    const early: number[] = [];
+    for (const e of this.deps.directory.all()) {
+      if (this.owns(e.id) && !this.evaluators.has(e.id) && !this.adopting.has(e.id)) {
+        this.adopting.set(e.id, []);
+        early.push(e.id);
+      }
+    }
+    let fresh: EngineEntry[] = [];
     try {
+      const engines = await this.deps.directory.refresh();
+      fresh = [...engines.values()].filter((e) => this.owns(e.id) && !this.evaluators.has(e.id) && (early.includes(e.id) || !this.adopting.has(e.id)) && !e.outOfService && !e.retired);
+      for (const id of early) if (!fresh.some((e) => e.id === id)) this.adopting.delete(id); // out of service or gone
+      if (!fresh.length) return this.refreshEngines();
+      for (const e of fresh) if (!this.adopting.has(e.id)) this.adopting.set(e.id, []);
       const openRows = await this.deps.alarms.loadOpen();
       const since = Date.now() - REPLAY_MS;
       const stored = this.deps.storedReadings ? await this.deps.storedReadings(fresh.map((e) => e.id), since) : [];
@@ -263,6 +273,7 @@ export class RuleEngine {
       }
     } finally {
       for (const e of fresh) this.adopting.delete(e.id);
+      for (const id of early) this.adopting.delete(id);
     }
   }
 
