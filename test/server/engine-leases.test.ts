@@ -1,8 +1,7 @@
 /**
  * Engine leases (server/cluster/engine-leases.ts) on a real PostgreSQL database: two holders split the 64
- * partitions evenly and never own the same one; when one closes, or its connection is cut by the database
- * (as when its process dies), the other takes everything; a holder whose connection was cut stops owning at
- * once and comes back for its share. PostgreSQL by nature (advisory locks): skipped on SQLite. The readings
+ * partitions evenly and never own the same one; when one closes, the other takes everything; a holder whose
+ * connection the database cuts (as when its process dies) stops owning at once and comes back for its share. PostgreSQL by nature (advisory locks): skipped on SQLite. The readings
  * relay's message format is checked on both.
  */
 import fs from 'node:fs';
