@@ -12,6 +12,7 @@
  *     (publishers stop, the server gets a bounded drain time), then published (handed to TCP) vs
  *     received vs stored. QoS 0 has no acknowledgement: "nothing lost" is a QoS 1 claim only;
  * Phase lengths: BENCH_FLOOD_MS, BENCH_LATENCY_MS, BENCH_QOS0_MS, BENCH_DRAIN_MS.
+ * BENCH_SCALE=1: instead, several servers on PostgreSQL and mosquitto (scale.ts), one server vs two.
  * BENCH_JSON=file: the figures also as JSON (ingestPerS, rawCeilingPerS, lostAcknowledged, duplicatesStored,
  * rssGrowthPct, ...), to compare runs.
  */
@@ -24,6 +25,7 @@ import { io as ioClient } from 'socket.io-client';
 import { loadJwtSecret } from '../../server/auth/jwt-secret';
 import { createTokenService } from '../../server/auth/tokens';
 import { describeInitialBundle, measureInitialBundle } from './initial-bundle';
+import { printScale, runScaleBench } from './scale';
 import { Db, freePort, seedFleet, type SeededDevice } from '../server/support/telemetry-server';
 
 const ROOT = path.resolve(__dirname, '../..');
@@ -266,6 +268,13 @@ async function main(): Promise<void> {
 
   const progress = (m: string) => process.stderr.write(`[${((Date.now() - t0) / 1000).toFixed(1)} s] ${m}\n`);
   if (process.env.BENCH_PHASE === 'retention') { printRetention(await retentionPhase(progress)); process.exit(0); }
+  if (process.env.BENCH_SCALE === '1') {
+    // several servers: needs Debian's PostgreSQL and mosquitto, so only when asked for
+    const scale = await runScaleBench(progress);
+    printScale(scale);
+    if (process.env.BENCH_JSON) fs.writeFileSync(process.env.BENCH_JSON, JSON.stringify({ at: new Date().toISOString(), cores: os.cpus().length, node: process.version, scale }, null, 2) + '\n');
+    process.exit(0);
+  }
   progress('raw ceiling (3 runs)');
   const rawRuns: Array<{ rate: number; rows: number }> = [];
   for (let i = 0; i < RAW_RUNS; i++) rawRuns.push(await rawCeilingOnce());
