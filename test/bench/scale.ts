@@ -161,7 +161,9 @@ async function sizes(db: PgClient): Promise<number> {
 
 export async function runScaleBench(progress: (m: string) => void): Promise<ScaleFigures[]> {
   const pg = await startPgCluster();
-  const mq = await startMosquitto();
+  // the server acknowledges a message once its readings are committed: the broker's default window of 20
+  // unacknowledged messages per client would cap ingest at 20 messages per commit (see the README)
+  const mq = await startMosquitto([`max_inflight_messages ${process.env.BENCH_SCALE_INFLIGHT ?? 1000}`]);
   try {
     await until('PostgreSQL accepting sessions', async () => {
       const c = new Client({ connectionString: pg.url });
