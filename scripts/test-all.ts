@@ -1,5 +1,6 @@
 /**
- * `npm test`: every part in turn (lint and import cycles, jest, the server tests again on PostgreSQL, component tests, end-to-end),
+ * `npm test`: every part in turn (lint and import cycles, jest, the server tests again on PostgreSQL, two servers on
+ * PostgreSQL and mosquitto, component tests, end-to-end),
  * each in its own process group, with its duration printed at the end; exits non-zero when any part failed.
  * A part that fails does not stop the others, so one run shows every failure.
  */
@@ -16,6 +17,7 @@ const PARTS: Part[] = [
   { name: 'import cycles (madge)', script: 'lint:cycles' },
   { name: 'unit and server (jest)', script: 'test:unit' },
   { name: 'server on PostgreSQL (jest, throwaway cluster)', script: 'test:unit:pg' },
+  { name: 'several servers (two processes, PostgreSQL, mosquitto)', script: 'test:scale' },
   { name: 'components (ng test)', script: 'test:components' },
   { name: 'end-to-end (Chromium)', script: 'test:e2e' },
 ];

@@ -1,5 +1,6 @@
 import type { Sequelize } from 'sequelize';
 import type { AccessEvents } from './auth/access-events';
+import type { Cluster } from './cluster';
 import type { TokenService } from './auth/tokens';
 import type { Config } from './config';
 import type { Logger } from './logger';
@@ -16,7 +17,7 @@ export interface AppContext {
   models: Models;
   tokens: TokenService;
   /** Set once telemetry has started; before that every engine reads as having no data. */
-  telemetry: (Pick<Telemetry, 'liveState' | 'counters'> & Partial<Pick<Telemetry, 'brokerState'>>) | null;
+  telemetry: (Pick<Telemetry, 'liveState' | 'counters'> & Partial<Pick<Telemetry, 'brokerState' | 'relayCounters'>>) | null;
   /** Device accounts in the external broker (MQTT_DEVICE_ACCOUNTS=dynsec); absent otherwise. */
   deviceAccounts?: DeviceAccounts | null;
   startedAt: number;
@@ -24,4 +25,6 @@ export interface AppContext {
   openingHistory?: ReadingHistory;
   /** Ends sessions and device connections at once on revoke, rotate, disable, role/site/password change. */
   access?: AccessEvents;
+  /** Several servers on PostgreSQL (server/cluster): engine leases and live push between servers; absent with one. */
+  cluster?: Cluster | null;
 }

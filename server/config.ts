@@ -48,6 +48,8 @@ export interface Config {
   jwtSecret: string | null;
   /** V8 heap growth bound in per cent (0: V8's own choice), applied by server/heap-growth.ts */
   heapGrowingPercent: number;
+  /** CLUSTER [on]: with PostgreSQL, live push between servers and engine leases (server/cluster); `off` for one server only. */
+  cluster: boolean;
 }
 
 const empty = (v: unknown) => (v === '' ? undefined : v);
@@ -96,6 +98,7 @@ export const envSchema = z.object({
   MQTT_TLS_PORT: withDefault(port(), 8883),
   JWT_SECRET: opt(z.string().min(32, { error: 'must be at least 32 characters (a random string, e.g. openssl rand -base64 48)' })),
   HEAP_GROWING_PERCENT: withDefault(whole(0, 1000), 50),
+  CLUSTER: withDefault(z.enum(['on', 'off'], { error: 'must be "on" or "off"' }), 'on'),
   // alarms and mail (server/services/alarms/alarm-settings.ts)
   ESCALATE_AFTER_S: withDefault(positiveSeconds(), 15 * 60),
   NOTIFY_MIN_PRIORITY: withDefault(z.enum(PRIORITIES, { error: `must be ${PRIORITIES.join(', ')}` }), 'medium'),
@@ -179,5 +182,6 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
       : null,
     jwtSecret: e.JWT_SECRET ?? null,
     heapGrowingPercent: e.HEAP_GROWING_PERCENT,
+    cluster: e.CLUSTER === 'on',
   };
 }

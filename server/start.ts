@@ -11,6 +11,8 @@ import { sessionStillValid } from './auth/middleware';
 import { loadJwtSecret } from './auth/jwt-secret';
 import { createTokenService } from './auth/tokens';
 import type { Config } from './config';
+import { clusterWanted, createCluster } from './cluster';
+import { underMigrationLock } from './cluster/migration-lock';
 import { migrate } from './db/migrate';
 import { startReadingPartitionUpkeep } from './db/reading-partitions';
 import { createSequelize } from './db/sequelize';
@@ -54,14 +56,18 @@ export async function startServer(config: Config, opts: StartOptions = {}): Prom
   fs.mkdirSync(config.dataDir, { recursive: true });
   restrictDataFiles(config.dataDir, sqliteFileOf(config.databaseUrl));
   const sequelize = createSequelize(config, log);
-  const applied = await migrate(sequelize, log);
-  if (applied.length) log.info(`migrations applied: ${applied.join(', ')}`);
-  const partitions = startReadingPartitionUpkeep(sequelize, log, config.readingsRetentionDays);
-  await partitions.ready;
+  const partitions = await underMigrationLock(config.databaseUrl, async () => {
+    const applied = await migrate(sequelize, log);
+    if (applied.length) log.info(`migrations applied: ${applied.join(', ')}`);
+    const upkeep = startReadingPartitionUpkeep(sequelize, log, config.readingsRetentionDays);
+    await upkeep.ready;
+    return upkeep;
+  });
   const models = initModels(sequelize);
   const tokens = createTokenService(config.jwtSecret ?? loadJwtSecret(config.dataDir));
   const access = new AccessEvents();
-  const ctx: AppContext = { config, log, sequelize, models, tokens, telemetry: null, startedAt: Date.now(), access };
+  const cluster = clusterWanted(config) ? createCluster(config, log) : null;
+  const ctx: AppContext = { config, log, sequelize, models, tokens, telemetry: null, startedAt: Date.now(), access, cluster };
   if (config.mqttUrl && config.mqttDeviceAccounts === 'dynsec') {
     ctx.deviceAccounts = createDynsecAccounts({
       url: config.mqttUrl, clientId: `${config.mqttClientId}-accounts`, log,
@@ -83,11 +89,14 @@ export async function startServer(config: Config, opts: StartOptions = {}): Prom
     sessionValid: (user) => sessionStillValid(models, user),
     access,
     log,
+    adapter: cluster?.adapter,
   });
   ctx.telemetry = telemetry;
   telemetry.onReadings(openingHistory.onReadings);
   await alarms.start(telemetry);
   const stopRunHours = startRunHoursCounting(ctx, telemetry);
+  // several servers: this one evaluates the engines whose leases it holds (all of them while it is alone)
+  await cluster?.startLeases();
   const retention = startRetention({ sequelize, log, config });
 
   await new Promise<void>((resolve, reject) => {
@@ -107,6 +116,7 @@ export async function startServer(config: Config, opts: StartOptions = {}): Prom
       partitions.stop();
       await telemetry.stop();
       await ctx.deviceAccounts?.close();
+      await cluster?.close();
       await alarms.stop();
       await stopRunHours();
       await new Promise<void>((resolve) => {

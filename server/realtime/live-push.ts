@@ -4,7 +4,7 @@
  * per window with the latest values, and a trailing flush).
  */
 import type http from 'node:http';
-import { Server, type Socket } from 'socket.io';
+import { Server, type ServerOptions, type Socket } from 'socket.io';
 import { z } from 'zod';
 import type { ChannelKey } from '../../shared/channels';
 import type { Logger } from '../logger';
@@ -23,6 +23,8 @@ export interface LivePushOptions {
   throttleMs?: number;
   /** Behind a trusted proxy (TRUST_PROXY) the browser's host is in X-Forwarded-Host when the proxy sets it. */
   trustForwardedHost?: boolean;
+  /** Several servers: the socket.io adapter that passes events between them (server/cluster). */
+  adapter?: ServerOptions['adapter'];
 }
 
 export interface ReadingsMessage {
@@ -60,7 +62,7 @@ export class LivePush {
 
   constructor(private readonly opts: LivePushOptions) {
     this.throttleMs = opts.throttleMs ?? 250;
-    this.io = new Server(opts.httpServer, { serveClient: false, cors: { origin: false } });
+    this.io = new Server(opts.httpServer, { serveClient: false, cors: { origin: false }, ...(opts.adapter ? { adapter: opts.adapter } : {}) });
     this.io.use((socket, next) => {
       try {
         const token = this.handshakeToken(socket);
@@ -170,7 +172,10 @@ export class LivePush {
     this.io.in(userRoom(userId)).disconnectSockets(true);
   }
 
-  /** To a room, or to several at once (a socket in more than one of them gets the event once). */
+  /**
+   * To a room, or to several at once (a socket in more than one of them gets the event once), on every
+   * server (through the adapter when there are several).
+   */
   emit(room: string | string[], event: string, payload: unknown): void {
     this.io.to(room).emit(event, payload);
   }
@@ -224,15 +229,17 @@ export class LivePush {
   private deliver(msg: ReadingsMessage): void {
     const rooms = ['fleet', `engine:${msg.engineId}`];
     if (msg.siteId !== null) rooms.push(`site:${msg.siteId}`);
-    // a socket in several of these rooms still gets the message once
-    this.io.to(rooms).emit('readings', msg);
+    // a socket in several of these rooms still gets the message once. Only this server's sockets: with several
+    // servers every server gets every reading (relayed, server/cluster) and pushes it to its own browsers
+    this.io.local.to(rooms).emit('readings', msg);
   }
 
   async close(): Promise<void> {
     for (const p of this.pending.values()) if (p.timer) clearTimeout(p.timer);
     this.pending.clear();
     // close sockets but not the HTTP server, which belongs to the caller
-    this.io.disconnectSockets(true);
+    this.io.local.disconnectSockets(true);
     this.io.engine?.close();
+    if (this.opts.adapter) await this.io.of('/').adapter.close();
   }
 }

@@ -11,10 +11,13 @@ export function healthRouter(ctx: AppContext): Router {
   r.get('/health', (_req, res) => {
     const c = ctx.telemetry?.counters() ?? null;
     const broker = ctx.telemetry?.brokerState?.() ?? null;
+    const cluster = ctx.cluster ? { ...ctx.cluster.state(), relay: ctx.telemetry?.relayCounters?.() ?? null } : null;
     res.json({
-      // degraded: up, but readings from the external broker are not arriving
-      status: broker && !broker.connected ? 'degraded' : 'ok',
+      // degraded: up, but readings from the external broker are not arriving (or, with several servers, this one
+      // has lost its lease connection and evaluates no engine)
+      status: (broker && !broker.connected) || (cluster && !cluster.connected) ? 'degraded' : 'ok',
       ...(broker ? { broker } : {}),
+      ...(cluster ? { cluster } : {}),
       uptimeS: Math.round((Date.now() - ctx.startedAt) / 1000),
       version: VERSION,
       ingest: c

@@ -9,6 +9,7 @@ import { FailureThrottle } from '../auth/failure-throttle';
 import { hashGate } from '../auth/hash-gate';
 import { CHANNELS } from '../../shared/channels';
 import { parseTelemetry, type ParsedReading } from '../../shared/telemetry-payload';
+import { ReadingRelay } from '../cluster/reading-relay';
 import { LivePush } from '../realtime/live-push';
 import { Counters } from './counters';
 import { DeviceActivity } from './device-activity';
@@ -44,7 +45,17 @@ export async function startTelemetry(deps: TelemetryDeps, options: TelemetryOpti
   let stopping = false;
 
   await liveState.load(sequelize);
-  const livePush = new LivePush({ httpServer: deps.httpServer, verifyToken: deps.verifyToken, siteOfEngine: deps.siteOfEngine, siteScope: deps.siteScope, sessionValid: deps.sessionValid, log, trustForwardedHost: !!deps.config.trustProxy });
+  const livePush = new LivePush({ httpServer: deps.httpServer, verifyToken: deps.verifyToken, siteOfEngine: deps.siteOfEngine, siteScope: deps.siteScope, sessionValid: deps.sessionValid, log, trustForwardedHost: !!deps.config.trustProxy, adapter: deps.adapter });
+  // several servers: readings another server accepted come here too (live state, live push, rules), not to the writer
+  const relay = deps.adapter
+    ? new ReadingRelay(livePush.io, log, (batch) => {
+      if (stopping) return;
+      liveState.applyAll(batch, Date.now());
+      for (const l of listeners) {
+        try { l(batch); } catch (err) { log.error('telemetry: readings listener failed', err); }
+      }
+    })
+    : null;
   deps.access?.onUserChanged((userId) => livePush.endSessions(userId));
   deps.access?.onSitesChanged((userId) => void livePush.rescope(userId));
   listeners.push((readings) => livePush.push(readings));
@@ -87,6 +98,7 @@ export async function startTelemetry(deps: TelemetryDeps, options: TelemetryOpti
         for (const l of listeners) {
           try { l(batch); } catch (err) { log.error('telemetry: readings listener failed', err); }
         }
+        relay?.send(batch);
       }
     } catch (err) {
       log.error('telemetry: ingest failed on a message', err);
@@ -204,6 +216,7 @@ export async function startTelemetry(deps: TelemetryDeps, options: TelemetryOpti
     counters: () => ({ ...counters.snapshot(buffer.size), sparkplug: sparkplug.counters() }),
     rejectsByDevice: () => activity.rejectsByDevice(),
     brokerState: () => brokerState(),
+    relayCounters: () => (relay ? { ...relay.counters } : null),
     onReadings: (listener) => { listeners.push(listener); },
     onLost: (listener) => { lostListeners.push(listener); },
     emit: (room, event, payload) => livePush.emit(room, event, payload),
@@ -215,6 +228,7 @@ export async function startTelemetry(deps: TelemetryDeps, options: TelemetryOpti
       await new Promise((r) => setTimeout(r, 50));
       await mqtt.close().catch((err) => log.warn('telemetry: closing MQTT failed', err));
       await activity.stop();
+      relay?.close();
       await livePush.close();
       counters.stopWatching();
     },

@@ -1,5 +1,6 @@
 import type http from 'node:http';
 import type { Sequelize } from 'sequelize';
+import type { ServerOptions } from 'socket.io';
 import type { ChannelKey } from '../../shared/channels';
 import type { AccessEvents } from '../auth/access-events';
 import type { Config } from '../config';
@@ -73,6 +74,8 @@ export interface TelemetryDeps {
   /** Revoke/rotate and user changes, to cut devices and sockets off at once. */
   access?: AccessEvents;
   log: Logger;
+  /** Several servers (server/cluster): socket.io adapter between them; readings are relayed through it too. */
+  adapter?: ServerOptions['adapter'];
 }
 
 export interface Telemetry {
@@ -89,6 +92,8 @@ export interface Telemetry {
   stop(): Promise<void>;
   /** The external broker connection (MQTT_URL); null with the embedded broker. */
   brokerState(): BrokerState | null;
+  /** Several servers: readings relayed to and from the other servers since start; null with one server. */
+  relayCounters?(): { sentReadings: number; sentMessages: number; receivedReadings: number; badMessages: number } | null;
 }
 
 export interface BrokerState {

@@ -15,6 +15,7 @@
  *  then sign-in under a burst (login-burst.ts, its own server process): a good sign-in and a good device connect
  *     timed beside 200 wrong HTTP sign-ins and 300 wrong MQTT logins (loginUnderBurstMs, deviceConnectUnderBurstMs).
  * Phase lengths: BENCH_FLOOD_MS, BENCH_LATENCY_MS, BENCH_QOS0_MS, BENCH_DRAIN_MS. One phase alone: BENCH_PHASE=qos1|retention|trend.
+ * BENCH_SCALE=1: instead, several servers on PostgreSQL and mosquitto (scale.ts), one server vs two.
  * BENCH_JSON=file: the figures also as JSON (ingestPerS, rawCeilingPerS, lostAcknowledged, duplicatesStored,
  * rssGrowthPct, loginUnderBurstMs, ...), to compare runs.
  */
@@ -29,6 +30,7 @@ import { createTokenService } from '../../server/auth/tokens';
 import { describeInitialBundle, measureInitialBundle } from './initial-bundle';
 import { printTrend, trendPhase } from './trend';
 import { loginUnderBurst, type LoginBurstFigures } from './login-burst';
+import { printScale, runScaleBench } from './scale';
 import { Db, freePort, seedFleet, type SeededDevice } from '../server/support/telemetry-server';
 import type { ServerHealth } from '../server/support/telemetry-server';
 
@@ -273,6 +275,13 @@ async function main(): Promise<void> {
   const progress = (m: string) => process.stderr.write(`[${((Date.now() - t0) / 1000).toFixed(1)} s] ${m}\n`);
   if (process.env.BENCH_PHASE === 'retention') { printRetention(await retentionPhase(progress)); process.exit(0); }
   if (process.env.BENCH_PHASE === 'trend') { printTrend(await trendPhase(progress)); process.exit(0); }
+  if (process.env.BENCH_SCALE === '1') {
+    // several servers: needs Debian's PostgreSQL and mosquitto, so only when asked for
+    const scale = await runScaleBench(progress);
+    printScale(scale);
+    if (process.env.BENCH_JSON) fs.writeFileSync(process.env.BENCH_JSON, JSON.stringify({ at: new Date().toISOString(), cores: os.cpus().length, node: process.version, scale }, null, 2) + '\n');
+    process.exit(0);
+  }
   progress('raw ceiling (3 runs)');
   const rawRuns: Array<{ rate: number; rows: number }> = [];
   const qos1Only = process.env.BENCH_PHASE === 'qos1'; // the QoS 1 flood alone, no ceiling (to compare memory or speed quickly)

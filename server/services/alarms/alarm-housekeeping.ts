@@ -14,13 +14,16 @@ export interface HousekeepingActions {
 }
 
 export async function housekeepingRound(
-  deps: { models: Models; directory: EngineDirectory; escalateAfterMs: number },
+  deps: { models: Models; directory: EngineDirectory; escalateAfterMs: number; owns: (engineId: number) => boolean },
   act: HousekeepingActions,
   now: number,
 ): Promise<void> {
   const { Alarm } = deps.models;
   const expired = await Alarm.findAll({ where: { state: 'shelved', closedAt: null, shelvedUntil: { [Op.lte]: new Date(now) } } });
-  for (const a of expired) await act.shelfExpired(a, Math.max(now, ms(a.shelvedUntil) ?? now));
+  for (const a of expired) {
+    if (!deps.owns(a.engineId)) continue; // several servers: only the engine's lease holder
+    await act.shelfExpired(a, Math.max(now, ms(a.shelvedUntil) ?? now));
+  }
   const due = await Alarm.findAll({
     where: {
       state: 'unacknowledged',
@@ -30,8 +33,17 @@ export async function housekeepingRound(
       lastNotifiedAt: { [Op.lte]: new Date(now - deps.escalateAfterMs) },
     },
   });
+  const cutoff = new Date(now - deps.escalateAfterMs);
   for (const a of due) {
     const engine = deps.directory.get(a.engineId);
-    if (engine) await act.escalate(a, engine);
+    if (!engine || !deps.owns(a.engineId)) continue;
+    // claimed once: only the server whose update finds the alarm still due sends the escalation (a lease that
+    // moved between two servers' housekeeping rounds must not escalate twice)
+    const [claimed] = await Alarm.update(
+      { lastNotifiedAt: new Date(now) },
+      { where: { id: a.id, escalationLevel: a.escalationLevel, acknowledgedAt: null, lastNotifiedAt: { [Op.lte]: cutoff } } },
+    );
+    if (claimed !== 1) continue;
+    await act.escalate(a, engine);
   }
 }

@@ -64,7 +64,14 @@ export class AlarmService {
    */
   private readonly pendingLate = new Map<number, { engineId: number; measuredAt: number; arrivedAt: number }>();
 
+  /** Several servers: housekeeping (shelf expiry, escalation) only for engines whose lease this server holds. */
+  private owns: (engineId: number) => boolean = () => true;
+
   constructor(private readonly deps: AlarmServiceDeps) {}
+
+  setOwnership(owns: (engineId: number) => boolean): void {
+    this.owns = owns;
+  }
 
   /** Run `fn` after every change queued before it. */
   private serial<T>(fn: () => Promise<T>): Promise<T> {
@@ -428,7 +435,7 @@ export class AlarmService {
   /** Each tick: shelves that have run out come back; unacknowledged alarms escalate (alarm-housekeeping.ts). */
   housekeeping(now = Date.now()): Promise<void> {
     return this.serial(() =>
-      housekeepingRound({ models: this.deps.models, directory: this.deps.directory, escalateAfterMs: this.deps.settings.escalateAfterMs }, {
+      housekeepingRound({ models: this.deps.models, directory: this.deps.directory, escalateAfterMs: this.deps.settings.escalateAfterMs, owns: this.owns }, {
         shelfExpired: (a, at) => this.apply(a, { type: 'shelf-expired' }, at),
         escalate: (a, engine) => this.notify(a, engine, a.escalationLevel + 1),
       }, now),

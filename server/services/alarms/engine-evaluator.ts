@@ -259,6 +259,14 @@ export class EngineEvaluator {
     while (this.gaps.length > MAX_GAPS) this.gaps.shift();
   }
 
+  /** The rule's alarm is active (in the database): its state says so too, so the rule can clear it. */
+  markActive(key: string, worst: number | null): void {
+    for (const slot of this.slots) {
+      if (slot.def.key !== key || (slot.state as { active?: boolean }).active) continue;
+      slot.state = activeState(slot.def, slot.state, worst);
+    }
+  }
+
   /** Feed readings of this engine (any order): sorted by time, speed first at equal times. */
   feed(readings: EvalReading[]): RuleHit[] {
     const hits: RuleHit[] = [];

@@ -13,6 +13,7 @@ import { AlarmService, type AlarmView } from './alarm-service';
 import { EngineDirectory } from './engine-directory';
 import { Notifier } from './notifier';
 import { RuleEngine } from './rule-engine';
+import { storedReadings } from './stored-readings';
 
 export interface AlarmFeature {
   settings: AlarmSettings;
@@ -60,7 +61,16 @@ export function createAlarmFeature(ctx: AppContext, settings: AlarmSettings = lo
       if (emit && view.siteId !== null) emit(alarmsSiteRoom(view.siteId), 'alarm', view);
     },
   });
-  const rules: RuleEngine = new RuleEngine({ models, log, directory, alarms, lastSeen: (id) => lastSeen(id), lateAfterMs: settings.lateAfterMs });
+  const cluster = ctx.cluster ?? null;
+  const rules: RuleEngine = new RuleEngine({
+    models, log, directory, alarms, lastSeen: (id) => lastSeen(id), lateAfterMs: settings.lateAfterMs,
+    ...(cluster ? { owns: (id: number) => cluster.owns(id), storedReadings: (ids: number[], since: number) => storedReadings(sequelize, ids, since) } : {}),
+  });
+  if (cluster) {
+    alarms.setOwnership((id) => cluster.owns(id));
+    cluster.onGained(() => rules.adopt().catch((err) => log.error('alarms: taking engines over failed', err)));
+    cluster.onLost(() => rules.release());
+  }
 
   return {
     settings,

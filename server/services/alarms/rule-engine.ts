@@ -24,7 +24,14 @@ export interface RuleEngineDeps {
   lastSeen(engineId: number): number | null;
   /** Readings older than this when they arrive are late data (ALARM_LATE_AFTER_S). */
   lateAfterMs: number;
+  /** Several servers: whether this server holds the engine's lease (absent: every engine is ours). */
+  owns?(engineId: number): boolean;
+  /** Stored readings of these engines since `sinceTs`, in time order (to rebuild rule state on taking an engine over). */
+  storedReadings?(engineIds: number[], sinceTs: number): Promise<AcceptedReading[]>;
 }
+
+/** Taking an engine over from another server: its rules are replayed over this much stored history. */
+export const REPLAY_MS = 10 * 60_000;
 
 /** The default profile row, written with the built-in rules when there is none. */
 export async function ensureDefaultProfile(models: Models): Promise<RuleDefinition[]> {
@@ -57,6 +64,8 @@ export class RuleEngine {
   private refreshing: Promise<void> | null = null;
   /** Late readings older than the newest evaluated: evaluated for the record (late-evaluation.ts). */
   private readonly late: LateEvaluation;
+  /** Engines being taken over: live readings wait here until the replay of their stored history is done. */
+  private readonly adopting = new Map<number, AcceptedReading[]>();
 
   constructor(private readonly deps: RuleEngineDeps) {
     this.late = new LateEvaluation(deps.lateAfterMs);
@@ -102,6 +111,10 @@ export class RuleEngine {
     };
   }
 
+  private owns(engineId: number): boolean {
+    return this.deps.owns ? this.deps.owns(engineId) : true;
+  }
+
   private build(e: EngineEntry): void {
     const open = this.deps.alarms.openAlarms();
     const active = new Map<string, number | null>();
@@ -122,6 +135,11 @@ export class RuleEngine {
       this.lastRefresh = Date.now();
       const nextOos = new Set<number>();
       for (const e of engines.values()) {
+        // another server evaluates it (several servers), or it is being taken over right now
+        if (!this.owns(e.id) || this.adopting.has(e.id)) {
+          if (!this.adopting.has(e.id)) this.evaluators.delete(e.id);
+          continue;
+        }
         const off = e.outOfService || e.retired;
         if (off) {
           nextOos.add(e.id);
@@ -164,6 +182,12 @@ export class RuleEngine {
   }
 
   private handleEngine(engineId: number, list: AcceptedReading[]): void {
+    const held = this.adopting.get(engineId);
+    if (held) {
+      for (const r of list) held.push(r);
+      return;
+    }
+    if (!this.owns(engineId)) return; // another server's engine
     const ev = this.evaluators.get(engineId);
     if (!ev) {
       // an engine added since the last refresh: pick it up soon (readings until then are not evaluated)
@@ -210,8 +234,85 @@ export class RuleEngine {
     return Math.min(now, seen.newestTs + Math.max(0, now - seen.arrivedAt));
   }
 
+  /**
+   * Several servers: this server took over the leases of some engines (at start, or from a server that died or
+   * gave them up). Each such engine's rules are rebuilt from its stored readings of the last REPLAY_MS (rule
+   * events of the replay are not acted on), then squared with its open alarms: an alarm still active keeps its
+   * rule active so it can clear; a condition the replay found raised (or cleared) that the alarms do not show
+   * yet is raised (or cleared) now, as the previous owner would have done. Live readings wait meanwhile.
+   */
+  async adopt(): Promise<void> {
+    // before any await: engines known to be ours now hold their readings, so nothing builds them without the replay
+    const early: number[] = [];
+    for (const e of this.deps.directory.all()) {
+      if (this.owns(e.id) && !this.evaluators.has(e.id) && !this.adopting.has(e.id)) {
+        this.adopting.set(e.id, []);
+        early.push(e.id);
+      }
+    }
+    let fresh: EngineEntry[] = [];
+    try {
+      const engines = await this.deps.directory.refresh();
+      fresh = [...engines.values()].filter((e) => this.owns(e.id) && !this.evaluators.has(e.id) && (early.includes(e.id) || !this.adopting.has(e.id)) && !e.outOfService && !e.retired);
+      for (const id of early) if (!fresh.some((e) => e.id === id)) this.adopting.delete(id); // out of service or gone
+      if (!fresh.length) return this.refreshEngines();
+      for (const e of fresh) if (!this.adopting.has(e.id)) this.adopting.set(e.id, []);
+      const openRows = await this.deps.alarms.loadOpen();
+      const since = Date.now() - REPLAY_MS;
+      const stored = this.deps.storedReadings ? await this.deps.storedReadings(fresh.map((e) => e.id), since) : [];
+      const byEngine = new Map<number, AcceptedReading[]>();
+      for (const r of stored) {
+        const list = byEngine.get(r.engineId);
+        if (list) list.push(r);
+        else byEngine.set(r.engineId, [r]);
+      }
+      for (const e of fresh) {
+        const held = this.adopting.get(e.id) ?? [];
+        this.adopting.delete(e.id);
+        if (!this.owns(e.id)) continue; // lost again meanwhile
+        const past = byEngine.get(e.id) ?? [];
+        const newestStored = past.length ? past[past.length - 1].ts : -Infinity;
+        const ev = new EngineEvaluator(this.factsOf(e), this.rulesFor(e.id), { startTs: past.length ? past[0].ts : this.deps.lastSeen(e.id) });
+        this.evaluators.set(e.id, ev);
+        this.facts.set(e.id, factsKey(e));
+        const last = new Map<string, RuleHit>();
+        for (const h of ev.feed(past)) last.set(h.def.key, h);
+        const toDispatch: RuleHit[] = [];
+        for (const def of this.rulesFor(e.id)) {
+          const row = openRows.find((a) => a.engineId === e.id && a.rule === def.key && !a.closedAt);
+          const hit = last.get(def.key);
+          if (row?.active) {
+            if (hit?.event.kind === 'clear') toDispatch.push(hit);
+            else if (hit?.event.kind !== 'raise') ev.markActive(def.key, row.worstValue ?? null);
+          } else if (hit?.event.kind === 'raise') {
+            toDispatch.push(hit);
+          }
+        }
+        this.dispatch(e.id, toDispatch);
+        // live readings that came while the history was read, past what was stored
+        const live = held.filter((r) => r.ts > newestStored);
+        if (live.length) this.handleEngine(e.id, live);
+      }
+    } finally {
+      for (const e of fresh) this.adopting.delete(e.id);
+      for (const id of early) this.adopting.delete(id);
+    }
+  }
+
+  /** Several servers: leases given up (or the lease connection lost): their engines are no longer evaluated here. */
+  release(): void {
+    for (const id of [...this.evaluators.keys()]) {
+      if (this.owns(id)) continue;
+      this.evaluators.delete(id);
+      this.facts.delete(id);
+      this.arrivals.delete(id);
+    }
+    for (const id of [...this.adopting.keys()]) if (!this.owns(id)) this.adopting.delete(id);
+  }
+
   /** A death certificate for the engine (telemetry.onLost): its no-data rule raises at once. */
   engineLost(engineId: number, at: number): void {
+    if (!this.owns(engineId)) return;
     const ev = this.evaluators.get(engineId);
     if (ev) {
       this.dispatch(engineId, ev.lost(at));

@@ -15,7 +15,9 @@ export function runHoursCounterFor(ctx: AppContext): RunHoursCounter {
 /** Count run hours from live speed readings; returns the stop function (flushes what is pending). */
 export function startRunHoursCounting(ctx: AppContext, telemetry: Pick<Telemetry, 'onReadings'>): () => Promise<void> {
   const counter = runHoursCounterFor(ctx);
-  telemetry.onReadings(counter.onReadings);
+  const cluster = ctx.cluster;
+  // several servers see every reading: only the engine's lease holder counts its hours (else they add up twice)
+  telemetry.onReadings(cluster ? (batch) => counter.onReadings(batch.filter((r) => cluster.owns(r.engineId))) : counter.onReadings);
   counter.start();
   return () => counter.stop();
 }

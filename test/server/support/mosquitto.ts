@@ -42,7 +42,8 @@ async function listening(port: number, child: ChildProcess, logFile: string, ms 
   }
 }
 
-export async function startMosquitto(): Promise<Mosquitto> {
+/** `extraConfig`: more lines for mosquitto.conf (e.g. the benchmark's in-flight window). */
+export async function startMosquitto(extraConfig: string[] = []): Promise<Mosquitto> {
   const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'jw-mosquitto-'));
   const port = await freePort();
   const admin = { username: 'jw-admin', password: 'admin-secret-for-tests-1' };
@@ -61,6 +62,7 @@ export async function startMosquitto(): Promise<Mosquitto> {
     `plugin_opt_config_file ${dynsec}`,
     `log_dest file ${logFile}`,
     'log_type all',
+    ...extraConfig,
     '',
   ].join('\n'));
   if (asRoot) execFileSync('chown', ['-R', 'mosquitto:mosquitto', dir]);
