@@ -22,7 +22,11 @@ export function idempotent(ctx: AppContext) {
     const path = req.originalUrl.slice(0, 300);
     const start = await svc.start(userId, key, req.method, path);
     if (start.kind === 'mismatch') throw new HttpError(422, 'this Idempotency-Key was used for another request', 'Idempotency-Key');
-    if (start.kind === 'busy') throw new HttpError(409, 'a request with this Idempotency-Key is still being handled; try again');
+    if (start.kind === 'busy') {
+      // not a conflict with the data: the first request is still running (Retry-After tells the client to try again)
+      res.setHeader('Retry-After', '2');
+      throw new HttpError(409, 'a request with this Idempotency-Key is still being handled; try again');
+    }
     if (start.kind === 'replay') {
       res.setHeader('Idempotent-Replayed', 'true');
       res.status(start.statusCode).json(start.body);
