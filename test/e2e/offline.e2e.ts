@@ -132,7 +132,9 @@ describe('the technician app without a network (service worker, IndexedDB outbox
     await ctx.setOffline(true);
     await tid('offline-banner').waitFor();
 
-    // a gated step: no live opening check without a network
+    // a gated step: no live opening check without a network (an earlier reading is not shown as if current)
+    await tid('gate-offline').waitFor();
+    assert.equal(await page.locator('jw-opening-check-panel').count(), 0);
     const gated = stepItem('relieve-pressure');
     await gated.getByText('Locked: no network for the live opening check (a manual check is possible)').waitFor();
     assert.equal(await gated.getByRole('button', { name: 'Locked' }).isDisabled(), true);
@@ -224,6 +226,8 @@ describe('the technician app without a network (service worker, IndexedDB outbox
     await refused.getByText('“base was pitted, cleaned twice”').waitFor();
     await refused.getByRole('alert').getByText(/The server refused it: .*assigned/).waitFor();
     await tid('outbox-indicator').getByText('not accepted').waitFor();
+    // the page shows the order as the server has it now
+    await page.getByText('Assignee: not assigned').waitFor();
     await shot(page, 'offline-04-conflict');
   });
 

@@ -37,17 +37,19 @@ const UNIT_EXTRA: Record<string, string> = { degF: '°F', psi: 'psi', bar: 'bar'
                   @case ('conflict') { <mat-icon fontIcon="report" aria-hidden="true" />NOT ACCEPTED }
                 }
               </span>
-              <span class="what"><strong>{{ kindText[e.kind] }}</strong>{{ e.stepTitle ? ': ' + e.stepTitle : '' }}</span>
-              <span class="detail">{{ detail(e) }}</span>
-              @if (e.file && thumbs().get(e.seq!); as url) { <img class="thumb" [src]="url" [alt]="'Photo ' + (e.fileName ?? '')" /> }
-              <span class="when">recorded {{ time(e.recordedAt) }}</span>
-              @if (e.state === 'conflict') {
-                <p class="conflict" role="alert">The server refused it: {{ e.message }}. Nothing is lost: what you recorded is shown here. Tell the planner, or send it again once the order is yours and in progress.</p>
-                <span class="actions">
-                  <button mat-stroked-button type="button" (click)="outbox.retry(e.seq!)"><mat-icon fontIcon="send" />Send again</button>
-                  <button mat-button type="button" (click)="dismiss(e)"><mat-icon fontIcon="delete" />Remove from this device</button>
-                </span>
-              }
+              <div class="body">
+                <span class="what"><strong>{{ kindText[e.kind] }}</strong>{{ e.stepTitle ? ': ' + e.stepTitle : '' }}</span>
+                @if (detail(e); as d) { <span class="detail">{{ d }}</span> }
+                @if (e.file && thumbs().get(e.seq!); as url) { <img class="thumb" [src]="url" [alt]="'Photo ' + (e.fileName ?? '')" /> }
+                <span class="when">recorded {{ time(e.recordedAt) }}</span>
+                @if (e.state === 'conflict') {
+                  <p class="conflict" role="alert">The server refused it: {{ e.message }}. Nothing is lost: what you recorded is shown here. Tell the planner, or send it again once the order is yours and in progress.</p>
+                  <span class="actions">
+                    <button mat-stroked-button type="button" (click)="outbox.retry(e.seq!)"><mat-icon fontIcon="send" />Send again</button>
+                    <button mat-button type="button" (click)="dismiss(e)"><mat-icon fontIcon="delete" />Remove from this device</button>
+                  </span>
+                }
+              </div>
             </li>
           }
         </ol>
@@ -59,14 +61,16 @@ const UNIT_EXTRA: Record<string, string> = { degF: '°F', psi: 'psi', bar: 'bar'
     h2 { margin: 0 0 4px; font-size: 18px; }
     .summary { display: flex; align-items: center; gap: 6px; margin: 0 0 8px; }
     .list { list-style: none; margin: 0; padding: 0; display: grid; gap: 6px; }
-    li { display: flex; flex-wrap: wrap; align-items: center; gap: 4px 12px; padding: 6px 8px; border-left: 4px solid var(--jw-band-normal); }
+    li { display: grid; grid-template-columns: 200px 1fr; align-items: start; gap: 4px 12px; padding: 6px 8px; border-left: 4px solid var(--jw-band-normal); }
+    .body { display: flex; flex-direction: column; align-items: flex-start; gap: 2px; min-width: 0; }
+    @media (max-width: 599.98px) { li { grid-template-columns: 1fr; } }
     li[data-state='waiting'] { border-left-style: dashed; }
     li[data-state='conflict'] { border-left-color: var(--jw-warning); background: var(--jw-warning-bg); }
-    .state { display: inline-flex; align-items: center; gap: 4px; min-width: 190px; font-weight: 500; }
+    .state { display: inline-flex; align-items: center; gap: 4px; font-weight: 500; }
     li[data-state='conflict'] .state { color: var(--jw-warning); }
     .detail, .when { color: var(--jw-muted-text); }
     .thumb { width: 48px; height: 48px; object-fit: cover; border-radius: 4px; }
-    .conflict { flex-basis: 100%; margin: 4px 0; }
+    .conflict { margin: 4px 0; }
     .actions { display: flex; gap: 8px; flex-wrap: wrap; }
     mat-icon { flex: none; }
   `,

@@ -50,7 +50,7 @@ export class Outbox {
   readonly waiting = computed(() => this.entriesSignal().filter((e) => e.state === 'waiting'));
   readonly conflicts = computed(() => this.entriesSignal().filter((e) => e.state === 'conflict'));
   readonly sending = signal(false);
-  /** Raised after entries were stored on the server: screens showing those orders load them again. */
+  /** Raised after entries were stored or refused by the server: screens showing those orders load them again. */
   readonly sentRound = signal(0);
   /** The last reason a send stopped and will be tried again, for the screen. */
   readonly retryReason = signal<string | null>(null);
@@ -125,13 +125,13 @@ export class Outbox {
     const waiting = this.waiting();
     if (!waiting.length) return;
     this.sending.set(true);
-    let sent = 0;
+    let answered = 0;
     try {
       for (const e of waiting) {
         try {
           await this.send(e);
           await this.store.put({ ...e, state: 'sent', sentAt: Date.now(), file: null }); // the photo is on the server now
-          sent++;
+          answered++;
           this.net.answered();
           this.retryReason.set(null);
         } catch (err) {
@@ -141,6 +141,7 @@ export class Outbox {
             break; // keep the order: nothing after it goes before it
           }
           this.net.answered();
+          answered++;
           await this.store.put({ ...e, state: 'conflict', message: errorText(err) });
         }
         await this.load(userId);
@@ -148,7 +149,7 @@ export class Outbox {
       await this.prune(userId);
     } finally {
       this.sending.set(false);
-      if (sent) this.sentRound.update((n) => n + 1);
+      if (answered) this.sentRound.update((n) => n + 1);
     }
   }
 
