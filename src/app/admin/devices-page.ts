@@ -167,7 +167,7 @@ export class DevicesPage {
       .afterClosed()
       .subscribe((saved) => {
         if (!saved) return;
-        this.snack.open(`Metric names of ${d.username} saved; they apply from the gateway's next birth certificate.`, undefined, { duration: 5000 });
+        this.snack.open(`Metric names of ${d.username} saved; the gateway is asked for new birth certificates.`, undefined, { duration: 5000 });
         this.load();
       });
   }

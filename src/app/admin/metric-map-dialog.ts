@@ -20,7 +20,7 @@ type Row = FormGroup<{ name: FormControl<string>; channel: FormControl<ChannelKe
 /**
  * A Sparkplug gateway's metric names to our channels, for names a gateway already uses
  * ("Engine/Coolant/Temp"). Names not listed are taken as our channel keys. The unit here counts only
- * when the birth certificate gives none. Applies from the gateway's next birth.
+ * when the birth certificate gives none. Saving asks the edge node for a rebirth (server/routes/devices.ts).
  */
 @Component({
   selector: 'jw-metric-map-dialog',
@@ -33,7 +33,7 @@ type Row = FormGroup<{ name: FormControl<string>; channel: FormControl<ChannelKe
         <p class="hint">
           Sparkplug {{ device.sparkplug?.groupId }} / {{ device.sparkplug?.edgeNodeId }}{{ device.sparkplug?.deviceId ? ' / ' + device.sparkplug?.deviceId : '' }}.
           Names not listed here are read as our channel keys ({{ keys.join(', ') }}). The unit is used only when the gateway's birth certificate states none.
-          A change applies from the gateway's next birth certificate.
+          On saving, the edge node is asked for new birth certificates (NCMD Node Control/Rebirth), so a change applies at once.
         </p>
         <div formArrayName="rows" class="rows">
           @for (row of rows.controls; track row; let i = $index) {
@@ -42,7 +42,7 @@ type Row = FormGroup<{ name: FormControl<string>; channel: FormControl<ChannelKe
                 <mat-label>Metric name</mat-label>
                 <input matInput formControlName="name" autocomplete="off" />
               </mat-form-field>
-              <mat-form-field subscriptSizing="dynamic">
+              <mat-form-field subscriptSizing="dynamic" class="channel">
                 <mat-label>Channel</mat-label>
                 <mat-select formControlName="channel">
                   @for (k of keys; track k) { <mat-option [value]="k">{{ channelText(k) }}</mat-option> }
@@ -73,6 +73,7 @@ type Row = FormGroup<{ name: FormControl<string>; channel: FormControl<ChannelKe
     .rows { display: grid; gap: 8px; margin-bottom: 12px; }
     .row { display: flex; flex-wrap: wrap; gap: 8px; align-items: center; }
     .name { flex: 1 1 220px; }
+    .channel { width: 280px; }
     .unit { width: 150px; }
     .form-error { color: var(--jw-alarm-high); }
   `,
