@@ -126,6 +126,15 @@ describe('the technician app without a network (service worker, IndexedDB outbox
     await stepItem('fit-filter').getByLabel('Remark').waitFor();
     const manifestLink = await page.evaluate(() => document.querySelector('link[rel="manifest"]')?.getAttribute('href'));
     assert.equal(manifestLink, 'manifest.webmanifest');
+    // Chromium's own installability check (DevTools protocol): no errors means it offers to install the app
+    const cdp = await ctx.newCDPSession(page);
+    const manifestSeen = (await cdp.send('Page.getAppManifest')) as { url: string; errors: unknown[] };
+    assert.match(manifestSeen.url, /manifest\.webmanifest$/);
+    assert.deepEqual(manifestSeen.errors, []);
+    const installability = (await cdp.send('Page.getInstallabilityErrors')) as { installabilityErrors: { errorId: string }[] };
+    // a test browser context is always off the record ("in-incognito"); any other reason would be ours
+    assert.deepEqual(installability.installabilityErrors.map((e) => e.errorId).filter((id) => id !== 'in-incognito'), [], 'Chromium finds the app installable');
+    await cdp.detach();
   });
 
   it('offline: steps, a value with its remark, a manual check and a photo are kept on the device; a gated step waits for the manual check', async () => {
