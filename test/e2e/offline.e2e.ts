@@ -124,6 +124,11 @@ describe('the technician app without a network (service worker, IndexedDB outbox
     await page.reload();
     await page.getByRole('heading', { name: `#${order.id} Filter change in the basement` }).waitFor();
     await stepItem('fit-filter').getByLabel('Remark').waitFor();
+    // "My work" opened online once, so it is there offline too
+    await page.goto(`${stack.baseUrl}/work/mine`);
+    await page.getByRole('link', { name: new RegExp(`^Work order ${order.id}:`) }).waitFor();
+    await page.goto(`${stack.baseUrl}/work/${order.id}`);
+    await stepItem('fit-filter').getByLabel('Remark').waitFor();
     const manifestLink = await page.evaluate(() => document.querySelector('link[rel="manifest"]')?.getAttribute('href'));
     assert.equal(manifestLink, 'manifest.webmanifest');
     // Chromium's own installability check (DevTools protocol): no errors means it offers to install the app
@@ -189,6 +194,15 @@ describe('the technician app without a network (service worker, IndexedDB outbox
     await tid('outbox-summary').getByText('6 waiting to be sent').waitFor();
     for (const key of ['choose-filter', 'fit-filter', 'relieve-pressure', 'photo']) await tid(`kept-${key}`).waitFor();
     await shot(page, 'offline-02-after-reload');
+    // the technician's other screens come from the cache too: My work (as last seen online) and the calculators (computed in the browser)
+    await page.getByRole('link', { name: 'My work' }).click();
+    await page.getByRole('link', { name: new RegExp(`^Work order ${order.id}:`) }).waitFor();
+    await page.getByRole('link', { name: 'Coolant calculators' }).click();
+    await page.getByRole('heading', { name: 'Coolant calculators' }).waitFor();
+    await shot(page, 'offline-02a-calculators-offline');
+    await page.getByRole('link', { name: 'My work' }).click();
+    await page.getByRole('link', { name: new RegExp(`^Work order ${order.id}:`) }).click();
+    await tid('outbox-summary').getByText('6 waiting to be sent').waitFor();
     await page.setViewportSize({ width: 820, height: 1100 });
     await shot(page, 'offline-02b-after-reload-820');
     await page.setViewportSize({ width: 1366, height: 900 });
