@@ -17,7 +17,7 @@ export interface AppContext {
   models: Models;
   tokens: TokenService;
   /** Set once telemetry has started; before that every engine reads as having no data. */
-  telemetry: (Pick<Telemetry, 'liveState' | 'counters'> & Partial<Pick<Telemetry, 'brokerState' | 'relayCounters'>>) | null;
+  telemetry: (Pick<Telemetry, 'liveState' | 'counters'> & Partial<Pick<Telemetry, 'brokerState' | 'relayCounters' | 'requestRebirth'>>) | null;
   /** Device accounts in the external broker (MQTT_DEVICE_ACCOUNTS=dynsec); absent otherwise. */
   deviceAccounts?: DeviceAccounts | null;
   startedAt: number;

@@ -9,6 +9,9 @@ import { apiErrors, apiNotFound } from './routes/errors';
 import { coreRouters } from './routes';
 import { HASHED_ASSET, securityHeaders } from './security-headers';
 
+/** Files of the build that name the current version: the HTTP cache must always ask again. */
+const NEVER_CACHED = new Set(['index.html', 'ngsw.json', 'ngsw-worker.js', 'safety-worker.js', 'worker-basic.min.js', 'manifest.webmanifest']);
+
 export const BROWSER_DIST = path.resolve(__dirname, '..', 'dist', 'jacketwatch', 'browser');
 
 export interface AppOptions {
@@ -58,11 +61,12 @@ export function createApp(ctx: AppContext, opts: AppOptions = {}): Express {
 
   const dir = opts.staticDir ?? BROWSER_DIST;
   if (fs.existsSync(path.join(dir, 'index.html'))) {
-    // index.html is never cached (it names the current chunks); hashed files never change
+    // index.html is never cached (it names the current chunks), nor are the service worker and its
+    // manifest of files (a cached one would hold users on an old app); hashed files never change
     app.use(express.static(dir, {
       index: 'index.html',
       setHeaders: (res, file) => {
-        if (path.basename(file) === 'index.html') res.setHeader('Cache-Control', 'no-cache');
+        if (NEVER_CACHED.has(path.basename(file))) res.setHeader('Cache-Control', 'no-cache');
         else if (HASHED_ASSET.test(file)) res.setHeader('Cache-Control', 'public, max-age=31536000, immutable');
         else res.setHeader('Cache-Control', 'public, max-age=3600');
       },

@@ -4,6 +4,7 @@ import { initCoolantModels, type CoolantModels } from './coolant-models';
 import { Device, initDevice } from './device';
 import { DeviceRejection, initDeviceRejection } from './device-rejection';
 import { Engine, initEngine } from './engine';
+import { IdempotencyKey, initIdempotencyKey } from './idempotency-key';
 import { Site, initSite } from './site';
 import { User, initUser } from './user';
 import { UserSite, initUserSite } from './user-site';
@@ -16,6 +17,7 @@ export interface Models extends AlarmModels, WorkModels, CoolantModels {
   Engine: typeof Engine;
   Device: typeof Device;
   DeviceRejection: typeof DeviceRejection;
+  IdempotencyKey: typeof IdempotencyKey;
 }
 
 /** Initialise every model on this Sequelize instance and wire the associations. */
@@ -27,6 +29,7 @@ export function initModels(sequelize: Sequelize): Models {
     Engine: initEngine(sequelize),
     Device: initDevice(sequelize),
     DeviceRejection: initDeviceRejection(sequelize),
+    IdempotencyKey: initIdempotencyKey(sequelize),
     ...initAlarmModels(sequelize),
     ...initWorkModels(sequelize),
     ...initCoolantModels(sequelize),
@@ -40,4 +43,4 @@ export function initModels(sequelize: Sequelize): Models {
   return models;
 }
 
-export { Device, DeviceRejection, Engine, Site, User, UserSite };
+export { Device, DeviceRejection, Engine, IdempotencyKey, Site, User, UserSite };

@@ -43,7 +43,10 @@ export function devicesRouter(ctx: AppContext): Router {
     res.json({ ...device.toJSON(), secret });
   });
   r.put('/devices/:id/metric-map', async (req, res) => {
-    res.json(await setMetricMap(ctx.models, parseId(req.params), parse(metricMapBody, req.body)));
+    const device = await setMetricMap(ctx.models, parseId(req.params), parse(metricMapBody, req.body));
+    // the new names apply from the next birth: ask the edge node for one now
+    if (!device.revokedAt && device.sparkplugGroupId && device.sparkplugEdgeNodeId) ctx.telemetry?.requestRebirth?.(device.sparkplugGroupId, device.sparkplugEdgeNodeId);
+    res.json(device);
   });
   r.post('/devices/:id/revoke', async (req, res) => {
     const device = await revokeDevice(ctx.models, parseId(req.params));

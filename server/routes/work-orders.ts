@@ -1,5 +1,6 @@
 import { Router, type NextFunction, type Request, type Response } from 'express';
 import multer from 'multer';
+import { idempotent } from './idempotency';
 import { z } from 'zod';
 import type { AppContext } from '../app-context';
 import { requireAuth, requireRole } from '../auth/middleware';
@@ -126,6 +127,8 @@ export function workOrdersRouterWithService(ctx: AppContext): WorkRouterHandle {
     }
   };
   for (const p of ['/work-orders', '/work-order-templates', '/attachments', '/engines/:id/opening-check']) r.use(p, requireAuth);
+  // a change sent again with the same Idempotency-Key (the offline queue's retry) is done once
+  r.use('/work-orders', idempotent(ctx));
   // a work order of a site the caller may not see reads as not found, whatever is done to it
   r.use('/work-orders/:id', async (req, _res, next) => {
     const id = Number(req.params.id);

@@ -219,6 +219,7 @@ export async function startTelemetry(deps: TelemetryDeps, options: TelemetryOpti
     relayCounters: () => (relay ? { ...relay.counters } : null),
     onReadings: (listener) => { listeners.push(listener); },
     onLost: (listener) => { lostListeners.push(listener); },
+    requestRebirth: (groupId, edgeNodeId) => sparkplug.requestRebirth({ groupId, edgeNodeId }),
     emit: (room, event, payload) => livePush.emit(room, event, payload),
     async stop() {
       if (stopping) return;

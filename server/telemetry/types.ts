@@ -86,6 +86,8 @@ export interface Telemetry {
   onReadings(listener: (readings: AcceptedReading[]) => void): void;
   /** Called when a gateway declares an engine's data lost (Sparkplug NDEATH/DDEATH). */
   onLost?(listener: (engineId: number, at: number) => void): void;
+  /** Ask a Sparkplug edge node for its births again (embedded broker only), e.g. after its metric names were remapped. */
+  requestRebirth?(groupId: string, edgeNodeId: string): void;
   /** Emit an event to a socket.io room (`fleet`, `site:<id>`, `engine:<id>`), or to several (each socket once). */
   emit(room: string | string[], event: string, payload: unknown): void;
   /** Flush the buffer and close broker and sockets. */

@@ -14,6 +14,8 @@ import { ConnectionBanner } from './core/connection-banner';
 import { PreferencesService } from './core/preferences.service';
 import { Role } from './core/user';
 import { UserMenu } from './ui/user-menu';
+import { UpdatePrompt } from './core/update-prompt';
+import { OutboxIndicator } from './work/offline/outbox-indicator';
 
 interface NavItem {
   path: string;
@@ -44,7 +46,7 @@ const ROLE_TEXT: Record<Role, string> = { admin: 'Administrator', planner: 'Plan
   selector: 'jw-root',
   changeDetection: ChangeDetectionStrategy.OnPush,
   imports: [
-    RouterOutlet, RouterLink, RouterLinkActive, ConnectionBanner,
+    RouterOutlet, RouterLink, RouterLinkActive, ConnectionBanner, UpdatePrompt, OutboxIndicator,
     // The navigation is plain links and the user menu a plain disclosure: Material's list and menu would bring
     // forms and the overlay into the first download.
     MatToolbarModule, MatSidenavModule, MatIconModule, MatButtonModule, UserMenu,

@@ -37,6 +37,12 @@ describe('static app with SPA fallback', () => {
     expect((await request(app).get('/fleet').expect(200)).headers['cache-control']).toBe('no-cache');
     expect((await request(app).get('/chunk-34477KXJ.js').expect(200)).headers['cache-control']).toBe('public, max-age=31536000, immutable');
     expect((await request(app).get('/favicon.svg').expect(200)).headers['cache-control']).toBe('public, max-age=3600');
+    // the service worker, its file list and the app manifest name the current version
+    for (const f of ['ngsw-worker.js', 'ngsw.json', 'safety-worker.js', 'manifest.webmanifest']) {
+      fs.writeFileSync(path.join(dir, f), '{}');
+      expect([f, (await request(app).get(`/${f}`).expect(200)).headers['cache-control']]).toEqual([f, 'no-cache']);
+    }
+    expect((await request(app).get('/manifest.webmanifest').expect(200)).headers['content-type']).toMatch(/^application\/manifest\+json/);
     const missing = await request(app).get('/chunk-ZZZZZZZZ.js').expect(404);
     expect(missing.text).not.toContain('<title>');
   });

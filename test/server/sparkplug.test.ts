@@ -87,7 +87,7 @@ const engine = async (id: number) => (await api('GET', `/api/engines/${id}`)).bo
 beforeAll(async () => {
   server = await startServerProcess();
   db = new Db(server.databaseUrl);
-  fleet = await seedFleet(db, 6, 'sp');
+  fleet = await seedFleet(db, 7, 'sp');
   const now = new Date().toISOString();
   const adminId = await db.run(`INSERT INTO users (email, name, password_hash, role, disabled, created_at, updated_at) VALUES (?, ?, ?, 'admin', FALSE, ?, ?)`,
     ['sp-admin@example.test', 'Test admin', bcrypt.hashSync('not-used-here', 4), now, now]);
@@ -275,4 +275,17 @@ test('the simulator speaks Sparkplug B with its device credentials; killed with 
     process.kill(-sim.pid!, 'SIGKILL'); // the simulator's own process group
   }
   await until('engine data lost', () => engine(d.engineId), (e) => e.runState === 'no-data', 30_000);
+});
+
+test('a changed metric map asks the edge node for a rebirth, so the new names apply at once', async () => {
+  const d = fleet[6];
+  const gw = await register(d.engineId, { groupId: 'PlantE', edgeNodeId: 'gw5' });
+  const c = await connect(gw);
+  const ncmd = new Promise<{ topic: string; payload: Buffer }>((resolve) => c.on('message', (topic, payload) => resolve({ topic, payload })));
+  await c.subscribeAsync('spBv1.0/PlantE/NCMD/gw5', { qos: 0 });
+  const map = await api('PUT', `/api/devices/${gw.id}/metric-map`, { 'Engine/Coolant/Temp': 'coolant_temp' });
+  expect(map.status).toBe(200);
+  const cmd = await ncmd;
+  expect(cmd.topic).toBe('spBv1.0/PlantE/NCMD/gw5');
+  expect(decode(cmd.payload).metrics).toEqual([expect.objectContaining({ name: 'Node Control/Rebirth', datatype: Boolean_, booleanValue: true })]);
 });

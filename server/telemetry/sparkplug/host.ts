@@ -337,7 +337,8 @@ export class SparkplugHost {
     return m.name !== null ? dev.names.get(m.name) ?? null : null;
   }
 
-  private requestRebirth(t: { groupId: string; edgeNodeId: string }): void {
+  /** Asks an edge node to send its births again (NCMD Node Control/Rebirth), at most once per REBIRTH_MIN_INTERVAL_MS per node. */
+  requestRebirth(t: { groupId: string; edgeNodeId: string }): void {
     const key = this.nodeKey(t);
     const now = this.now();
     const last = this.lastRebirth.get(key);

@@ -17,6 +17,16 @@ export interface AdminUser {
 }
 
 /** GET /api/devices item; the secret never comes back after creation or rotation. */
+/** A gateway's Sparkplug B identity (server/models/device.ts toJSON). */
+export interface SparkplugIdentity {
+  groupId: string;
+  edgeNodeId: string;
+  deviceId: string | null;
+}
+
+/** A gateway's metric names to our channels (shared/sparkplug/channels.ts MetricMap). */
+export type MetricMapEntry = string | { channel: string; unit?: string };
+
 export interface Device {
   id: number;
   engineId: number;
@@ -24,6 +34,8 @@ export interface Device {
   revokedAt: string | null;
   lastSeenAt: string | number | null;
   createdAt?: string;
+  sparkplug?: SparkplugIdentity | null;
+  metricMap?: Record<string, MetricMapEntry> | null;
 }
 
 export interface DeviceWithSecret extends Device {

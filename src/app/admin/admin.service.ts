@@ -2,7 +2,7 @@ import { HttpClient } from '@angular/common/http';
 import { Injectable, inject } from '@angular/core';
 import { Observable } from 'rxjs';
 import { Role } from '../core/user';
-import { AdminUser, Device, DeviceWithSecret, Engine, EngineInput, IngestReport, Site } from './admin-types';
+import { AdminUser, Device, DeviceWithSecret, Engine, EngineInput, IngestReport, MetricMapEntry, Site } from './admin-types';
 
 /** HTTP for the administration screens. Values leave in SI units; the server checks every call's role itself. */
 @Injectable({ providedIn: 'root' })
@@ -52,8 +52,12 @@ export class AdminService {
   devices(): Observable<Device[]> {
     return this.http.get<Device[]>('/api/devices');
   }
-  createDevice(body: { engineId: number; username?: string }): Observable<DeviceWithSecret> {
+  createDevice(body: { engineId: number; username?: string; sparkplug?: { groupId: string; edgeNodeId: string; deviceId?: string } }): Observable<DeviceWithSecret> {
     return this.http.post<DeviceWithSecret>('/api/devices', body);
+  }
+  /** A Sparkplug gateway's metric names to our channels; applies from its next birth certificate. */
+  setMetricMap(id: number, map: Record<string, MetricMapEntry>): Observable<Device> {
+    return this.http.put<Device>(`/api/devices/${id}/metric-map`, map);
   }
   rotateDevice(id: number): Observable<DeviceWithSecret> {
     return this.http.post<DeviceWithSecret>(`/api/devices/${id}/rotate`, {});

@@ -16,6 +16,7 @@ import { AdminService } from './admin.service';
 import { Device, DeviceRejection, DeviceWithSecret, Engine, IngestReport } from './admin-types';
 import { ConfirmDialog } from './confirm-dialog';
 import { DeviceDialog } from './device-dialog';
+import { MetricMapDialog } from './metric-map-dialog';
 import { SecretDialog, SecretData } from './secret-dialog';
 import { filterAdminTable, linkAdminTable } from './admin-table';
 
@@ -31,6 +32,12 @@ export const REASON_TEXT: Record<string, string> = {
   bad_unit: 'unit not accepted',
   wrong_topic: 'wrong topic',
   out_of_range: 'outside the physical range',
+  sparkplug_decode: 'not Sparkplug B',
+  sparkplug_unknown_alias: 'unknown alias (rebirth asked)',
+  sparkplug_seq_gap: 'sequence gap',
+  sparkplug_not_born: 'data before birth',
+  sparkplug_stale_death: 'death of an old session',
+  sparkplug_type: 'wrong data type',
 };
 
 interface DeviceRow extends Device {
@@ -39,6 +46,8 @@ interface DeviceRow extends Device {
   lastSeen: number | null;
   rejected: number;
   reasons: string;
+  sparkplugText: string;
+  mappedNames: number;
   lastRejection: string;
   /** MQTT connects refused for a wrong secret (reason `login_failed`), not messages. */
   failedLogins: number;
@@ -74,6 +83,15 @@ const LOGIN_FAILED = 'login_failed';
         <ng-container matColumnDef="engineName">
           <th mat-header-cell *matHeaderCellDef mat-sort-header>Engine</th>
           <td mat-cell *matCellDef="let d">{{ d.engineName }}</td>
+        </ng-container>
+        <ng-container matColumnDef="sparkplugText">
+          <th mat-header-cell *matHeaderCellDef mat-sort-header>Sparkplug B</th>
+          <td mat-cell *matCellDef="let d">
+            @if (d.sparkplug; as sp) {
+              <code>{{ sp.groupId }} / {{ sp.edgeNodeId }}{{ sp.deviceId ? ' / ' + sp.deviceId : '' }}</code>
+              <div class="muted">{{ d.mappedNames ? d.mappedNames + ' mapped name' + (d.mappedNames === 1 ? '' : 's') : 'channel keys as names' }}</div>
+            } @else { <span class="muted">JSON topics</span> }
+          </td>
         </ng-container>
         <ng-container matColumnDef="status">
           <th mat-header-cell *matHeaderCellDef mat-sort-header>Status</th>
@@ -111,6 +129,7 @@ const LOGIN_FAILED = 'login_failed';
         <ng-container matColumnDef="actions">
           <th mat-header-cell *matHeaderCellDef><span class="jw-visually-hidden">Actions</span></th>
           <td mat-cell *matCellDef="let d" class="actions">
+            @if (d.sparkplug) { <button mat-button type="button" (click)="editNames(d)" [disabled]="d.status === 'revoked'">Metric names</button> }
             <button mat-button type="button" (click)="rotate(d)" [disabled]="d.status === 'revoked'">New secret</button>
             <button mat-button type="button" (click)="revoke(d)" [disabled]="d.status === 'revoked'">Revoke</button>
           </td>
@@ -128,7 +147,7 @@ export class DevicesPage {
   private readonly api = inject(AdminService);
   private readonly dialog = inject(MatDialog);
   private readonly snack = inject(MatSnackBar);
-  protected readonly columns = ['username', 'engineName', 'status', 'lastSeen', 'failedLogins', 'rejected', 'reasons', 'actions'];
+  protected readonly columns = ['username', 'engineName', 'sparkplugText', 'status', 'lastSeen', 'failedLogins', 'rejected', 'reasons', 'actions'];
   protected readonly source = new MatTableDataSource<DeviceRow>([]);
   protected readonly engines = signal<Engine[]>([]);
   protected readonly error = signal<string | null>(null);
@@ -136,7 +155,7 @@ export class DevicesPage {
   private readonly paginator = viewChild(MatPaginator);
 
   constructor() {
-    linkAdminTable(this.source, this.sort, this.paginator, (d) => `${d.username} ${d.engineName} ${d.status} ${d.reasons}`);
+    linkAdminTable(this.source, this.sort, this.paginator, (d) => `${d.username} ${d.engineName} ${d.sparkplugText} ${d.status} ${d.reasons}`);
     this.load();
   }
 
@@ -151,6 +170,17 @@ export class DevicesPage {
       .subscribe((d) => {
         if (!d) return;
         this.showSecret(d, 'Device added');
+        this.load();
+      });
+  }
+
+  protected editNames(d: DeviceRow): void {
+    this.dialog
+      .open(MetricMapDialog, { data: d, width: '820px', maxWidth: '95vw' })
+      .afterClosed()
+      .subscribe((saved) => {
+        if (!saved) return;
+        this.snack.open(`Metric names of ${d.username} saved; the gateway is asked for new birth certificates.`, undefined, { duration: 5000 });
         this.load();
       });
   }
@@ -215,6 +245,8 @@ export function toRows(devices: Device[], engines: Engine[], rejections: DeviceR
     return {
       ...d,
       engineName: names.get(d.engineId) ?? `Engine ${d.engineId}`,
+      sparkplugText: d.sparkplug ? [d.sparkplug.groupId, d.sparkplug.edgeNodeId, d.sparkplug.deviceId].filter(Boolean).join(' / ') : '',
+      mappedNames: Object.keys(d.metricMap ?? {}).length,
       status: d.revokedAt ? 'revoked' : 'active',
       lastSeen: toMillis(d.lastSeenAt),
       rejected: own.reduce((n, r) => n + r.count, 0),

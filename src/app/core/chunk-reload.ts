@@ -39,7 +39,8 @@ export function reloadOnceForChunk(err: unknown, url: string | null = null, targ
 /** The server answers at all (any HTTP status): then a missing chunk is a new build, not an outage. */
 export async function serverAnswers(): Promise<boolean> {
   try {
-    await fetch('/api/health', { cache: 'no-store' });
+    // past the service worker (ngsw-bypass): offline it would answer 504 itself
+    await fetch('/api/health', { cache: 'no-store', headers: { 'ngsw-bypass': 'true' } });
     return true;
   } catch {
     return false;

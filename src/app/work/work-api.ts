@@ -1,6 +1,7 @@
 import { HttpClient, HttpErrorResponse } from '@angular/common/http';
 import { Injectable, inject } from '@angular/core';
 import { firstValueFrom } from 'rxjs';
+import { isNoAnswer } from '../core/network-status';
 import { ReadingBucket } from './cooldown-series';
 import { Assignee, CoolantTestSummary, ManualCheck, OpeningCheck, OrderCoolantTest, WorkOrderDetail, WorkOrderSummary, WorkPriority, WorkStatus, WorkTemplate } from './work-types';
 
@@ -108,7 +109,8 @@ export class WorkApi {
   }
 
   openingCheck(engineId: number, lockoutConfirmed = false): Promise<OpeningCheck> {
-    return firstValueFrom(this.http.get<OpeningCheck>(`/api/engines/${engineId}/opening-check`, { params: { lockoutConfirmed: String(lockoutConfirmed) } }));
+    // never from the service worker's cache: the opening check is live data or nothing (ngsw-bypass)
+    return firstValueFrom(this.http.get<OpeningCheck>(`/api/engines/${engineId}/opening-check`, { params: { lockoutConfirmed: String(lockoutConfirmed) }, headers: { 'ngsw-bypass': 'true' } }));
   }
 
   /** Readings of one channel as buckets (at most `points`), stored units. */
@@ -138,7 +140,7 @@ export class WorkApi {
 /** The server's words for a failed call, or a plain fallback. */
 export function errorText(err: unknown): string {
   if (err instanceof HttpErrorResponse) {
-    if (err.status === 0) return 'The server cannot be reached. Try again.';
+    if (isNoAnswer(err)) return 'The server cannot be reached. Try again.';
     const e = err.error as { error?: string } | null;
     if (e && typeof e.error === 'string') return e.error;
     return `The server answered ${err.status}.`;

@@ -32,6 +32,10 @@ import { toCelsius } from '../../../shared/units';
 import { lockoutFor, lockStepBefore } from '../../../shared/work/lockout';
 import { DisplayZone } from '../core/display-zone';
 import { FleetService } from '../fleet/fleet.service';
+import { NetworkStatus, isNoAnswer } from '../core/network-status';
+import { OutboxPanel } from './offline/outbox-panel';
+import { Outbox } from './offline/outbox.service';
+import type { OutboxEntry } from './offline/outbox-entry';
 
 interface StepDraft {
   value: number | null;
@@ -55,7 +59,7 @@ const ENTRY_UNITS: Record<string, string[]> = { degC: ['degC', 'degF'], kPa: ['k
   changeDetection: ChangeDetectionStrategy.OnPush,
   imports: [
     FormsModule, RouterLink, MatButtonModule, MatCardModule, MatCheckboxModule, MatExpansionModule, MatFormFieldModule, MatIconModule,
-    MatInputModule, MatProgressBarModule, MatSelectModule, MatTableModule, MatDatepickerModule, OpeningCheckPanel, AttachmentThumb, StepCoolantCheck, StepTopUp,
+    MatInputModule, MatProgressBarModule, MatSelectModule, MatTableModule, MatDatepickerModule, OpeningCheckPanel, AttachmentThumb, StepCoolantCheck, StepTopUp, OutboxPanel,
   ],
   providers: [provideNativeDateAdapter()],
   templateUrl: './work-order-page.html',
@@ -66,6 +70,8 @@ export class WorkOrderPage {
   protected readonly auth = inject(AuthService);
   private readonly prefs = inject(PreferencesService);
   private readonly dialog = inject(MatDialog);
+  private readonly outbox = inject(Outbox);
+  private readonly net = inject(NetworkStatus);
 
   /** Route parameter. */
   readonly id = input.required<string>();
@@ -114,6 +120,15 @@ export class WorkOrderPage {
   protected readonly hasGated = computed(() => (this.order()?.steps ?? []).some((s) => s.gated && !s.doneAt));
   protected readonly openRequired = computed(() => (this.order()?.steps ?? []).filter((s) => !s.optional && !s.doneAt).length);
   protected readonly anyLockout = signal(false);
+  /** No network: changes are kept on the device (offline/outbox.service.ts) and sent when it returns. */
+  protected readonly offline = computed(() => !this.net.online());
+  /** Per step: its completion kept on this device, waiting to be sent (a refused one shows in the outbox panel). */
+  protected readonly pendingDone = computed(() => {
+    const id = this.order()?.id;
+    const out: Record<number, OutboxEntry> = {};
+    for (const e of this.outbox.entries()) if (e.orderId === id && e.kind === 'complete' && e.stepId !== null && e.state === 'waiting') out[e.stepId] = e;
+    return out;
+  });
   /** Per step: 'saving', 'saved' or an error text, shown under the inputs. */
   protected readonly draftState = signal<Record<number, string>>({});
   private readonly draftTimers = new Map<number, ReturnType<typeof setTimeout>>();
@@ -152,7 +167,25 @@ export class WorkOrderPage {
       untracked(() => void this.load(id));
     });
     if (this.auth.hasRole('planner', 'admin')) this.api.assignees().then((a) => this.assignees.set(a), () => undefined);
+    // what the outbox stored on the server shows as the server has it
+    let round = this.outbox.sentRound();
+    effect(() => {
+      const r = this.outbox.sentRound();
+      if (r === round) return;
+      round = r;
+      const o = untracked(this.order);
+      if (o) untracked(() => void this.reloadQuietly(o.id));
+    });
   }
+
+  private async reloadQuietly(id: number): Promise<void> {
+    try {
+      this.set(await this.api.get(id));
+    } catch {
+      /* still offline: the page keeps what it shows */
+    }
+  }
+
 
   private async load(id: number): Promise<void> {
     try {
@@ -188,11 +221,24 @@ export class WorkOrderPage {
           lockout: false, manual: false, gaugeKpa: null, tempC: null, minutesSinceStop: null, checkedBy: this.auth.user()?.name ?? '', reason: '',
         };
         if (s.unit && !saved) this.drafts[s.id].unit = this.preferredUnit(s.unit);
+        this.overlayKept(o.id, s);
       }
     }
     this.order.set(o);
     this.anyLockout.set(this.lockoutCarried() || Object.values(this.drafts).some((d) => d.lockout));
     this.error.set(null);
+  }
+
+  /** What this device still keeps for a step (typed offline, not yet on the server) is what the step shows. */
+  private overlayKept(orderId: number, s: WorkStep): void {
+    const d = this.drafts[s.id];
+    for (const e of this.outbox.entries()) {
+      if (e.orderId !== orderId || e.stepId !== s.id || e.state === 'sent' || !e.body || e.kind === 'photo') continue;
+      const b = e.body as { value?: number | null; unit?: string; note?: string };
+      if (b.value !== undefined) d.value = b.value;
+      if (b.unit) d.unit = b.unit;
+      if (b.note !== undefined) d.note = b.note;
+    }
   }
 
   /** Typed into a step: saved on the server after a short pause (not for a locked gated step, which takes nothing). */
@@ -211,12 +257,24 @@ export class WorkOrderPage {
       body.value = v !== null && Number.isFinite(v) ? v : null;
       body.unit = d.unit;
     }
+    if (this.offline()) return this.keepDraft(s, body);
     this.draftState.set({ ...this.draftState(), [s.id]: 'saving' });
     try {
       const o = await this.api.saveDraft(this.order()!.id, s.id, body);
       // keep what is being typed; take the rest of the order as the server has it
       this.order.set(o);
       this.draftState.set({ ...this.draftState(), [s.id]: 'saved' });
+    } catch (e) {
+      if (isNoAnswer(e)) return this.keepDraft(s, body);
+      this.draftState.set({ ...this.draftState(), [s.id]: `Not saved: ${errorText(e)}` });
+    }
+  }
+
+  private async keepDraft(s: WorkStep, body: Record<string, unknown>): Promise<void> {
+    const o = this.order()!;
+    try {
+      await this.outbox.record({ orderId: o.id, orderTitle: o.title, stepId: s.id, stepTitle: `${s.position}. ${s.title}`, kind: 'draft', body });
+      this.draftState.set({ ...this.draftState(), [s.id]: 'kept' });
     } catch (e) {
       this.draftState.set({ ...this.draftState(), [s.id]: `Not saved: ${errorText(e)}` });
     }
@@ -260,6 +318,7 @@ export class WorkOrderPage {
 
   protected lockText(s: WorkStep): string {
     const g = this.gate();
+    if (this.offline()) return this.unlocked(s) ? 'Unlocked on a manual check: the server judges it when the network returns' : 'Locked: no network for the live opening check (a manual check is possible)';
     if (!g) return 'Locked until the opening check has been read';
     const lock = this.lockStep(s);
     if (this.unlocked(s)) return g.clear ? 'Unlocked: the opening check is clear and lockout/tagout is confirmed' : 'Unlocked on a manual check (live data stale)';
@@ -272,6 +331,8 @@ export class WorkOrderPage {
     const d = this.drafts[s.id];
     const g = this.gate();
     if (!d?.lockout && !this.carriedLock(s)) return false;
+    // without a network the live check cannot be read: only a recorded manual check, judged by the server when sent
+    if (this.offline()) return d.manual;
     return !!g && (g.clear || (g.stale && d.manual));
   }
 
@@ -347,15 +408,32 @@ export class WorkOrderPage {
         body.manualCheck = { gaugeKpa: Number(d.gaugeKpa), tempC: Number(d.tempC), minutesSinceStop: Number(d.minutesSinceStop), checkedBy: d.checkedBy.trim(), reason: d.reason.trim() };
       }
     }
+    if (this.offline()) return this.keepDone(s, body);
     this.busy.set(true);
     try {
       this.set(await this.api.completeStep(this.order()!.id, s.id, body));
       this.stepError(s.id, null, []);
     } catch (e) {
+      if (isNoAnswer(e)) return this.keepDone(s, body);
       const refusal = e instanceof HttpErrorResponse && e.status === 409 ? (e.error as GateRefusal) : null;
       this.stepError(s.id, errorText(e), refusal?.conditions ?? []);
     } finally {
       this.busy.set(false);
+    }
+  }
+
+  /** A step done without a network: kept on the device and sent when it returns. A gated step needs the recorded manual check. */
+  private async keepDone(s: WorkStep, body: Parameters<WorkApi['completeStep']>[2]): Promise<void> {
+    this.busy.set(false);
+    if (s.gated && !body.manualCheck) {
+      return this.stepError(s.id, 'This step cannot be done offline: the opening check needs live data from the engine. Record a manual check (gauge, coolant temperature, time since stop) to go ahead; it is sent, judged and recorded by the server, and the planner is told, when the network returns.', []);
+    }
+    const o = this.order()!;
+    try {
+      await this.outbox.record({ orderId: o.id, orderTitle: o.title, stepId: s.id, stepTitle: `${s.position}. ${s.title}`, kind: 'complete', body: body as Record<string, unknown> });
+      this.stepError(s.id, null, []);
+    } catch (e) {
+      this.stepError(s.id, errorText(e), []);
     }
   }
 
@@ -375,10 +453,31 @@ export class WorkOrderPage {
       this.error.set('The file is larger than 8 MB.');
       return;
     }
-    await this.act(async () => {
-      await this.api.upload(this.order()!.id, file, stepId);
-      return this.api.get(this.order()!.id);
-    });
+    if (this.offline()) return this.keepPhoto(file, stepId);
+    const id = this.order()!.id;
+    this.busy.set(true);
+    this.error.set(null);
+    try {
+      await this.api.upload(id, file, stepId);
+    } catch (e) {
+      if (isNoAnswer(e)) await this.keepPhoto(file, stepId);
+      else this.error.set(errorText(e));
+      return;
+    } finally {
+      this.busy.set(false);
+    }
+    await this.reloadQuietly(id);
+  }
+
+  private async keepPhoto(file: File, stepId: number | null): Promise<void> {
+    const o = this.order()!;
+    const step = o.steps.find((x) => x.id === stepId);
+    try {
+      await this.outbox.record({ orderId: o.id, orderTitle: o.title, stepId, stepTitle: step ? `${step.position}. ${step.title}` : '', kind: 'photo', file, fileName: file.name });
+      this.error.set(null);
+    } catch (e) {
+      this.error.set(`The photo could not be kept on this device: ${errorText(e)}`);
+    }
   }
 
   protected addPart(): void {
