@@ -34,6 +34,8 @@ interface ChannelView {
 interface Moving {
   win: TrendWindow;
   changes: readonly RunChange[];
+  /** The zone the axis labels are written in (the site's arrives after the first draw at times). */
+  zone: string | null;
 }
 
 const DECIMALS: Record<string, number> = { '°C': 1, '°F': 1, kPa: 0, psi: 1, bar: 2, 'µS/cm': 0, rpm: 0 };
@@ -57,7 +59,7 @@ const INK = { light: { line: '#3b4247', range: '#8d969c', band: '#7d878e', mark:
         <h3 class="title">{{ v.label }} <span class="unit">{{ v.unit }}</span></h3>
         <apx-chart
           [chart]="v.chart" [series]="seriesOf(v.channel)" [xaxis]="v.xaxis" [yaxis]="v.yaxis" [annotations]="v.annotations"
-          [stroke]="stroke" [fill]="fill()" [colors]="colors()" [legend]="legend" [dataLabels]="dataLabels" [tooltip]="tooltip()"
+          [stroke]="stroke" [fill]="fill()" [colors]="colors()" [legend]="legend" [dataLabels]="dataLabels" [tooltip]="tooltip"
           [grid]="grid()" [markers]="markers" [noData]="noData" [theme]="theme()" />
       </section>
     } @empty {
@@ -121,10 +123,8 @@ export class TrendChart {
   protected readonly dataLabels = { enabled: false };
   protected readonly markers = { size: 0, hover: { size: 3 } };
   protected readonly noData = { text: 'No readings in this range' };
-  protected readonly tooltip = computed<ApexTooltip>(() => {
-    const zone = this.zone();
-    return { shared: true, x: { formatter: (v: number) => formatInZone(v, zone, 'datetime-s') } };
-  });
+  // The zone is read when the tooltip is shown: a tooltip input that changed would rebuild the chart (a blank frame).
+  protected readonly tooltip: ApexTooltip = { shared: true, x: { formatter: (v: number) => formatInZone(v, untracked(this.zone), 'datetime-s') } };
 
   protected readonly series = computed(() => {
     const prefs = this.prefs.preferences();
@@ -160,7 +160,7 @@ export class TrendChart {
   /** Charts moved since they were drawn, and to what. */
   private readonly applied = new WeakMap<object, Moving>();
 
-  private readonly moving = computed<Moving>(() => ({ win: this.window(), changes: this.runChanges() }));
+  private readonly moving = computed<Moving>(() => ({ win: this.window(), changes: this.runChanges(), zone: this.zone() }));
 
   /**
    * Everything but the data and what moves with it; it changes rarely, and a change builds the chart again
@@ -172,7 +172,6 @@ export class TrendChart {
     const engine = this.engine();
     const moving = untracked(this.moving);
     const ink = this.ink();
-    const zone = this.zone();
     return this.channels().map((channel, index) => {
       const quantity = quantityOf(channel);
       const unit = toChannelSeries(channel, [], prefs).unit;
@@ -224,7 +223,7 @@ export class TrendChart {
         strokeDashArray: 4,
         label: { text, position: 'left', textAnchor: 'start', offsetX: 4, borderWidth: 0, style: { background: 'transparent', color: ink.mark, fontSize: '11px' } },
       })) as YAxisAnnotations[];
-      const moved = movingOptions(moving, index, ink, zone);
+      const moved = movingOptions(moving, index, ink);
       return {
         channel,
         label: CHANNELS[channel].label,
@@ -255,16 +254,15 @@ export class TrendChart {
       const moving = this.moving();
       const views = this.views();
       const ink = this.ink();
-      const zone = untracked(this.zone);
       for (const chart of this.charts()) {
         const instance = chart.chartInstance();
         if (!instance) continue;
         const index = views.findIndex((v) => v.chart.id === chart.chart()?.id);
         if (index < 0) continue;
         const was = this.applied.get(instance) ?? views[index].drawnFor;
-        if (was.win === moving.win && was.changes === moving.changes) continue;
+        if (was.win === moving.win && was.changes === moving.changes && was.zone === moving.zone) continue;
         this.applied.set(instance, moving);
-        const opts = movingOptions(moving, index, ink, zone);
+        const opts = movingOptions(moving, index, ink);
         const yaxis = views[index].annotations.yaxis;
         untracked(() => void instance.updateOptions({ xaxis: opts.xaxis, annotations: { yaxis, xaxis: opts.annotations.xaxis } }, false, false, false));
       }
@@ -298,9 +296,9 @@ export class TrendChart {
 
 /** The x axis and the start/stop marks of one channel's chart (index 0 names the marks in words). */
 function movingOptions(
-  moving: Moving, index: number, ink: (typeof INK)['light'], zone: string | null,
+  moving: Moving, index: number, ink: (typeof INK)['light'],
 ): { xaxis: ApexXAxis; annotations: { xaxis: XAxisAnnotations[] } } {
-  const { win, changes } = moving;
+  const { win, changes, zone } = moving;
   const span = win.to - win.from;
   return {
     // apexcharts writes datetime ticks in the browser's zone; the formatter writes them in the page's zone
