@@ -96,7 +96,8 @@ describe('the session cookie in the browser', () => {
   it('an HTTP 401 (the session cookie gone) takes the page to the sign-in page with a message', async () => {
     const { context, page } = await fresh();
     await signIn(page, stack, ACCOUNTS.technician);
-    await page.getByRole('heading', { name: 'Fleet board' }).waitFor({ timeout: 20000 });
+    // a technician starts at their own work
+    await page.getByRole('heading', { name: 'My work' }).waitFor({ timeout: 20000 });
     await context.clearCookies();
     // a screen that asks the server when it opens (the alarm list may already be held by the app bar's feed)
     await page.getByRole('link', { name: 'My work' }).click();

@@ -8,6 +8,7 @@ import { MatInputModule } from '@angular/material/input';
 import { MatProgressBarModule } from '@angular/material/progress-bar';
 import { ActivatedRoute, Router } from '@angular/router';
 import { AuthService, SignInError } from '../core/auth.service';
+import type { Role } from '../core/user';
 
 /** E-mail and password; errors say what went wrong and what to do. */
 @Component({
@@ -101,8 +102,8 @@ export class SignIn {
     this.failure.set(null);
     try {
       const { email, password } = this.form.getRawValue();
-      await this.auth.signIn(email.trim(), password);
-      await this.router.navigateByUrl(safeReturnUrl(this.route.snapshot.queryParamMap.get('returnUrl')));
+      const user = await this.auth.signIn(email.trim(), password);
+      await this.router.navigateByUrl(safeReturnUrl(this.route.snapshot.queryParamMap.get('returnUrl'), user.role));
     } catch (err) {
       this.failure.set(err instanceof SignInError ? err.message : 'Sign-in failed. Try again.');
     } finally {
@@ -111,7 +112,8 @@ export class SignIn {
   }
 }
 
-/** Only our own paths: a return address never leads off the site. */
-function safeReturnUrl(url: string | null): string {
-  return url && url.startsWith('/') && !url.startsWith('//') && !url.startsWith('/sign-in') ? url : '/fleet';
+/** Only our own paths: a return address never leads off the site. Without one, each role starts at its day's work. */
+function safeReturnUrl(url: string | null, role: Role): string {
+  if (url && url.startsWith('/') && !url.startsWith('//') && !url.startsWith('/sign-in')) return url;
+  return role === 'technician' ? '/work/mine' : '/fleet';
 }
