@@ -3,7 +3,7 @@
  * bounded buffer -> batched SQLite writes, with live state, live push and counters beside it.
  */
 import fs from 'node:fs';
-import bcrypt from 'bcryptjs';
+import { compareOffThread as checkSecret } from '../auth/hash-workers';
 import { QueryTypes } from 'sequelize';
 import { FailureThrottle } from '../auth/failure-throttle';
 import { hashGate } from '../auth/hash-gate';
@@ -262,7 +262,7 @@ class DeviceLogin {
       ok = await hashGate.run(address, async () => {
         // checked again once it is our turn: a flood queued before the limit hit is refused without hashing
         if (this.blocked(username, address)) return false;
-        return row && !row.revokedAt ? bcrypt.compare(password, row.secretHash) : false;
+        return row && !row.revokedAt ? checkSecret(password, row.secretHash) : false;
       });
     } catch {
       return null; // too many waiting from this address
