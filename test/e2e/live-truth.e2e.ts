@@ -25,7 +25,9 @@ describe('live truth (server stopped and back)', () => {
     [stack, browser] = await Promise.all([startStack({ simulatorArgs: ['--rate', '1', '--speed', '30', '--seed', '9'] }), launchBrowser()]);
     const token = await stack.login(ACCOUNTS.operator);
     engineName = (await stack.api<{ name: string }>('GET', `/api/engines/${ENGINE_ID}`, token)).body.name;
-    const context = await browser.newContext({ viewport: { width: 1366, height: 900 } });
+    // Without the app's service worker (a first visit, or a browser that refuses workers): a list that cannot load
+    // must say so. With the worker, the last list comes from its cache, marked stale (offline.e2e.ts covers the worker).
+    const context = await browser.newContext({ viewport: { width: 1366, height: 900 }, serviceWorkers: 'block' });
     enginePage = await context.newPage();
     await signIn(enginePage, stack, ACCOUNTS.operator);
     fleetPage = await context.newPage(); // same context: same session
