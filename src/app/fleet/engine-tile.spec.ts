@@ -169,7 +169,7 @@ describe('EngineTile', () => {
     render(engine({ freezeProtection: short }));
     expect(text('[data-testid="freeze-short"]')).toBe('Freeze protection short:freezes at -20.6 °C, needs -25.0 °C or colder (test 2026-11-01 10:00 MST)');
     expect(el.querySelector('[data-testid="freeze-short"] mat-icon')?.getAttribute('fonticon')).toBe('ac_unit');
-    expect(el.querySelector('a')!.getAttribute('aria-label')).toContain('freeze protection short: freezes at -20.6 °C');
+    expect(el.querySelector('a .spoken')!.textContent).toContain('freeze protection short: freezes at -20.6 °C');
     TestBed.inject(PreferencesService).useSystem('us');
     fixture.detectChanges();
     expect(text('[data-testid="freeze-short"]')).toContain('needs -13.0 °F or colder');
