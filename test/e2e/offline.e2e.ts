@@ -93,7 +93,8 @@ describe('the technician app without a network (service worker, IndexedDB outbox
   });
 
   after(async () => {
-    await ctx?.close();
+    // the browser's close ends its contexts too (closing the context first once hung after the update test,
+    // with the service worker still busy)
     await browser?.close();
     await stack?.stop();
   });
