@@ -22,6 +22,12 @@ const PARTS: Part[] = [
   { name: 'end-to-end (Chromium)', script: 'test:e2e' },
 ];
 
+/**
+ * A part that runs longer than this is stopped (its whole process group) and counted as failed, so a hang
+ * (say, a handle that keeps jest open after its last test) shows as a named failure, not as a run that never ends.
+ */
+const PART_LIMIT_S = Number(process.env.TEST_PART_LIMIT_S ?? 1800);
+
 /** Set by SIGINT/SIGTERM: the running part is stopped and no further part starts. */
 let interrupted = false;
 
@@ -40,9 +46,28 @@ function run(script: string): Promise<number> {
     };
     process.once('SIGINT', stop);
     process.once('SIGTERM', stop);
+    let overTime = false;
+    const signalGroup = (sig: NodeJS.Signals) => {
+      try {
+        if (child.pid) process.kill(-child.pid, sig);
+      } catch {
+        /* already gone */
+      }
+    };
+    let hardStop: NodeJS.Timeout | undefined;
+    const limit = setTimeout(() => {
+      overTime = true;
+      console.error(`\n${script}: still running after ${PART_LIMIT_S} s; stopped and counted as failed`);
+      // SIGTERM first so a part's own helpers (a throwaway database, brokers) stop their groups; then SIGKILL
+      signalGroup('SIGTERM');
+      hardStop = setTimeout(() => signalGroup('SIGKILL'), 20_000);
+    }, PART_LIMIT_S * 1000);
     child.on('exit', (code, signal) => {
+      clearTimeout(limit);
+      if (!overTime) clearTimeout(hardStop); // after an overrun, whatever ignored SIGTERM still gets SIGKILL
       process.off('SIGINT', stop);
       process.off('SIGTERM', stop);
+      if (overTime) return resolve(1);
       resolve(code ?? (signal ? 1 : 0));
     });
   });

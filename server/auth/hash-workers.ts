@@ -35,7 +35,9 @@ class HashWorker {
       const id = this.nextId++;
       this.pending.set(id, { resolve, plain, hash });
       try {
-        this.ensure().postMessage({ id, plain, hash });
+        const w = this.ensure();
+        w.ref(); // a check under way keeps the process alive until its answer comes
+        w.postMessage({ id, plain, hash });
       } catch {
         this.failAll();
       }
@@ -45,15 +47,18 @@ class HashWorker {
   private ensure(): Worker {
     if (this.worker) return this.worker;
     const w = new Worker(WORKER_SOURCE, { eval: true });
-    w.unref(); // never keeps the process alive
     w.on('message', (m: { id: number; ok: boolean }) => {
       const p = this.pending.get(m.id);
       this.pending.delete(m.id);
       p?.resolve(m.ok === true);
+      if (this.pending.size === 0) w.unref();
     });
     // a worker that died: its checks are done here instead, and the next check starts a new worker
     w.on('error', () => this.failAll());
     w.on('exit', () => this.failAll());
+    // an idle worker never keeps the process alive; unref after the listeners, since adding a 'message'
+    // listener refs the worker again (a leaked ref held a jest run open after its last test)
+    w.unref();
     this.worker = w;
     return w;
   }
