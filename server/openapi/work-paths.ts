@@ -74,7 +74,7 @@ export const workPaths: OpenApiGroup = {
     '/api/work-orders/{id}/steps/{stepId}/complete': {
       parameters: [idParam, stepParam],
       post: {
-        summary: 'Do a step (assigned technician). Gated steps need lockout confirmation and a clear opening check, re-computed here; a manual check is accepted only when live data is stale or missing',
+        summary: 'Do a step (assigned technician). Gated steps need lockout confirmation and a clear opening check, re-computed here; a manual check is accepted only when live data is stale or missing. A step that adds coolant waits for the step that takes the cap off (409 "do step N first")',
         requestBody: body({ type: 'object', properties: { value: { type: 'number' }, unit: { type: 'string' }, note: { type: 'string' }, lockoutConfirmed: { type: 'boolean' }, topUp: { type: 'object', description: 'the top-up step of a top-up order only: what was added (value = volume, L or gal); recorded as a coolant top-up', required: ['liquid'], properties: { liquid: { enum: ['water', 'premix', 'glycol'] }, premixPercent: { type: ['number', 'null'] } } }, manualCheck: { type: 'object', required: ['gaugeKpa', 'tempC', 'minutesSinceStop', 'checkedBy', 'reason'], properties: { gaugeKpa: { type: 'number' }, tempC: { type: 'number' }, minutesSinceStop: { type: 'number' }, checkedBy: { type: 'string' }, reason: { type: 'string' } } } } }),
         responses: { '200': json(ref('WorkOrderDetail')), ...errors({ input: true, admin: true, notFound: true }), '409': gateShut },
       },
@@ -109,7 +109,7 @@ export const workPaths: OpenApiGroup = {
     },
   },
   schemas: {
-    WorkTemplate: { type: 'object', properties: { kind, title: { type: 'string' }, steps: { type: 'array', items: { type: 'object', properties: { key: { type: 'string' }, title: { type: 'string' }, input: { enum: ['value', 'photo', 'confirmation'] }, unit: { type: 'string' }, gated: { type: 'boolean' }, optional: { type: 'boolean' }, caution: { type: 'string' } } } }, cautions: { type: 'array', items: { type: 'object' } } } },
+    WorkTemplate: { type: 'object', properties: { kind, title: { type: 'string' }, steps: { type: 'array', items: { type: 'object', properties: { key: { type: 'string' }, title: { type: 'string' }, input: { enum: ['value', 'photo', 'confirmation'] }, unit: { type: 'string' }, gated: { type: 'boolean' }, optional: { type: 'boolean' }, caution: { type: 'string' }, after: { type: 'array', items: { type: 'string' }, description: 'keys of earlier steps that must be done first' } } } }, cautions: { type: 'array', items: { type: 'object' } } } },
     WorkOrder: { type: 'object', properties: { id: { type: 'integer' }, engineId: { type: 'integer' }, kind, title: { type: 'string' }, status, priority, dueDate: { type: ['string', 'null'] }, assigneeId: { type: ['integer', 'null'] }, alarmIds: { type: 'array', items: { type: 'integer' } }, stepsDone: { type: 'integer' }, stepsTotal: { type: 'integer' }, manualChecks: { type: 'integer' } } },
     WorkOrderDetail: { allOf: [ref('WorkOrder'), { type: 'object', properties: { steps: { type: 'array', items: { type: 'object' } }, parts: { type: 'array', items: { type: 'object' } }, attachments: { type: 'array', items: { type: 'object' } }, history: { type: 'array', items: { type: 'object' } }, amendments: { type: 'array', items: { type: 'object' } }, cautions: { type: 'array', items: { type: 'object' } } } }] },
   },

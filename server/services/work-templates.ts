@@ -23,6 +23,8 @@ export interface TemplateStep {
   caution?: string;
   /** Plausible range of the value in the step's unit, when the unit's common range does not fit this step. */
   range?: [number, number];
+  /** Keys of earlier steps that must be done first (shared/work/step-order.ts): coolant goes in only with the cap off. */
+  after?: readonly string[];
 }
 
 export interface WorkCaution {
@@ -107,7 +109,7 @@ export const WORK_TEMPLATES: readonly WorkTemplate[] = Object.freeze([
         detail: 'Record the turns done after the gasket touched. Do not over-tighten: hand tight plus the stated amount, no tool unless the filter says so.',
       },
       { key: 'open-valves', title: 'Open the filter shut-off valves again, if fitted', input: 'confirmation', gated: false, optional: true },
-      { key: 'refill', title: 'Refill through the filler with the coolant mix to the full mark', input: 'value', unit: 'L', gated: false, detail: 'Record the volume added; also enter it under Parts & fluids.' },
+      { key: 'refill', title: 'Refill through the filler with the coolant mix to the full mark', input: 'value', unit: 'L', gated: false, after: [capOffStep.key, 'fit-filter'], detail: 'Record the volume added; also enter it under Parts & fluids.' },
       capOnStep,
       leakRunStep,
       { key: 'photo', title: 'Photo of the fitted filter', input: 'photo', gated: false, optional: true },
@@ -169,7 +171,7 @@ export const WORK_TEMPLATES: readonly WorkTemplate[] = Object.freeze([
       },
       { key: 'new-filter', title: 'Fit a new coolant filter (as in the filter change)', input: 'confirmation', gated: false, optional: true },
       {
-        key: 'refill', title: 'Close the drains and fill slowly with a 50/50 mix of glycol and clean water (or the mix this engine\'s plan sets), letting the air out', input: 'value', unit: 'L', gated: false,
+        key: 'refill', title: 'Close the drains and fill slowly with a 50/50 mix of glycol and clean water (or the mix this engine\'s plan sets), letting the air out', input: 'value', unit: 'L', gated: false, after: ['flush-drain'],
         detail: 'Premix before filling; use water of the quality the coolant maker asks for. Record the volume; also enter it under Parts & fluids.',
       },
       {
@@ -214,7 +216,7 @@ export const WORK_TEMPLATES: readonly WorkTemplate[] = Object.freeze([
       lockoutStep,
       capOffStep,
       {
-        key: 'add', title: 'Add coolant and record how much and what it was', input: 'value', unit: 'L', gated: false, range: [0.01, 5000],
+        key: 'add', title: 'Add coolant and record how much and what it was', input: 'value', unit: 'L', gated: false, range: [0.01, 5000], after: [capOffStep.key],
         detail: 'Best is premix of the same kind and mix as in the system. Plain water dilutes the glycol and the additive; neat glycol raises the mix. ' +
           'Record the volume and what you added: the additive left is estimated from it. Also enter it under Parts & fluids.',
       },

@@ -45,7 +45,8 @@ describe('coolant chemistry: design low, findings, fleet flag, top-up step', () 
   let engine: EngineRow;
 
   before(async () => {
-    stack = await startStack();
+    // a short stop and hold for the top-up's cap-off step (the safe defaults are 600 s and 120 s)
+    stack = await startStack({ env: { OPENING_MIN_STOPPED_S: '5', OPENING_HOLD_S: '5' } });
     browser = await launchBrowser();
     const token = await stack.login(ACCOUNTS.admin);
     ridge = (await stack.api<SiteRow[]>('GET', '/api/sites', token)).body.find((s) => s.name === 'Ridgeback Booster Station')!;
@@ -157,6 +158,23 @@ describe('coolant chemistry: design low, findings, fleet flag, top-up step', () 
     await page.goto(`${stack.baseUrl}/work/${created.body.id}`);
     const form = page.locator('[data-test=top-up-form]');
     await form.waitFor({ timeout: 15000 });
+    // coolant goes in only with the cap off: the step waits for the cap-off step, and says which
+    const order = (await stack.api<{ steps: { id: number; key: string; position: number }[] }>('GET', `/api/work-orders/${created.body.id}`, techToken)).body;
+    const capOff = order.steps.find((s) => s.key === 'relieve-pressure')!;
+    await page.locator('[data-test=waits-add]').getByText(`Waits: do step ${capOff.position} first: Relieve the pressure and take off the filler cap.`).waitFor();
+    assert.ok(await form.getByRole('button', { name: 'Record top-up and mark done' }).isDisabled(), 'recording waits for the cap-off step');
+    await page.locator('[data-test=waits-add]').scrollIntoViewIfNeeded();
+    await lookBoth(page, 'chem-5-top-up-waits');
+    // the technician locks out, then takes the cap off once the live opening check clears (the standby engine is
+    // stopped and warm; stop and hold are 5 s here)
+    const stepItem = (key: string) => page.locator('li.step').nth(order.steps.findIndex((x) => x.key === key));
+    const lockItem = stepItem('stop-and-lock-out');
+    await lockItem.getByRole('button', { name: 'Mark done' }).click();
+    await lockItem.locator('.badge.done').waitFor();
+    const capItem = stepItem('relieve-pressure');
+    await capItem.getByRole('button', { name: 'Mark done' }).click({ timeout: 60_000 }); // enabled when the check is clear
+    await capItem.locator('.badge.done').waitFor();
+    await page.locator('[data-test=waits-add]').waitFor({ state: 'detached', timeout: 15000 });
     await fillChecked(form.getByLabel('Volume added'), '8');
     await pickOption(page, form.getByLabel('What was added'), 'Plain water');
     await form.getByText('Plain water dilutes both the glycol').waitFor();

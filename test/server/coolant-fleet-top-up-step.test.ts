@@ -92,12 +92,39 @@ describe('top-up work order: the step records the coolant added through the top-
   async function startedTopUp(): Promise<{ id: number; add: Step }> {
     const res = await request(t.app).post('/api/work-orders').set(as('planner')).send({ engineId: topUpEngine, kind: 'top-up', assigneeId: t.userIds.technician, dueDate: '2026-12-10' }).expect(201);
     await request(t.app).post(`/api/work-orders/${res.body.id}/transition`).set(as('technician')).send({ to: 'in-progress' }).expect(200);
-    return { id: res.body.id, add: res.body.steps.find((s: Step) => s.key === 'add') };
+    const o = { id: res.body.id, add: res.body.steps.find((s: Step) => s.key === 'add') };
+    await openCap(o.id, res.body.steps);
+    return o;
+  }
+  /** Lock out, then take the cap off: no live data here, so on a manual check (the route for stale data). */
+  async function openCap(orderId: number, steps: Step[]): Promise<void> {
+    const step = (key: string) => steps.find((s) => s.key === key)!;
+    await request(t.app).post(`/api/work-orders/${orderId}/steps/${step('stop-and-lock-out').id}/complete`).set(as('technician')).send({}).expect(200);
+    await request(t.app).post(`/api/work-orders/${orderId}/steps/${step('relieve-pressure').id}/complete`).set(as('technician'))
+      .send({ lockoutConfirmed: true, manualCheck: { gaugeKpa: 0, tempC: 25, minutesSinceStop: 240, checkedBy: 'Test technician', reason: 'no gateway on this engine' } }).expect(200);
   }
   const complete = (o: { id: number; add: Step }, body: object) => request(t.app).post(`/api/work-orders/${o.id}/steps/${o.add.id}/complete`).set(as('technician')).send(body);
 
   beforeAll(async () => {
     await test(topUpEngine, { scaUnitsPerGal: 2.0, glycolPercent: 50 }, new Date(Date.now() - 3600_000).toISOString());
+  });
+
+  it('coolant goes in only with the cap off: the add step is refused (409, naming the step) until the cap-off step is done', async () => {
+    const res = await request(t.app).post('/api/work-orders').set(as('planner')).send({ engineId: topUpEngine, kind: 'top-up', assigneeId: t.userIds.technician, dueDate: '2026-12-10' }).expect(201);
+    await request(t.app).post(`/api/work-orders/${res.body.id}/transition`).set(as('technician')).send({ to: 'in-progress' }).expect(200);
+    const steps: (Step & { position: number; after: string[] })[] = res.body.steps;
+    const add = steps.find((s) => s.key === 'add')!;
+    const capOff = steps.find((s) => s.key === 'relieve-pressure')!;
+    const detail = await request(t.app).get(`/api/work-orders/${res.body.id}`).set(as('technician')).expect(200);
+    expect(detail.body.steps.find((s: Step) => s.key === 'add').after).toEqual(['relieve-pressure']);
+    const refused = await complete({ id: res.body.id, add }, { value: 5, unit: 'L', topUp: { liquid: 'water' } }).expect(409);
+    expect(refused.body.error).toBe(`do step ${capOff.position} first: Relieve the pressure and take off the filler cap`);
+    expect((await request(t.app).get(`/api/engines/${topUpEngine}/coolant-top-ups`).set(as('operator')).expect(200)).body.topUps).toHaveLength(0);
+    // the lock-out step alone does not open it either
+    await request(t.app).post(`/api/work-orders/${res.body.id}/steps/${steps.find((s) => s.key === 'stop-and-lock-out')!.id}/complete`).set(as('technician')).send({}).expect(200);
+    await complete({ id: res.body.id, add }, { value: 5, unit: 'L', topUp: { liquid: 'water' } }).expect(409);
+    // once the cap is off it goes through: the tests below (startedTopUp opens the cap first)
+    await request(t.app).post(`/api/work-orders/${res.body.id}/transition`).set(as('planner')).send({ to: 'cancelled', note: 'test order' });
   });
 
   it('bad input is 400 naming the field, and the step stays open', async () => {

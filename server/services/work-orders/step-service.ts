@@ -6,6 +6,7 @@ import type { AuthUser } from '../../telemetry/types';
 import { workTemplate } from '../work-templates';
 import { LOCK_STEP_KEYS, lockoutFor, UNLOCK_STEP_KEYS } from '../../../shared/work/lockout';
 import { isTopUpStep } from '../../../shared/work/top-up-step';
+import { waitingFor, waitingText } from '../../../shared/work/step-order';
 import type { TopUpLiquid } from '../../models/coolant-models';
 import { checkTopUp, recordTopUp } from '../coolant/top-ups';
 import { computeGate, liveObjections, type GateResult } from './gate';
@@ -114,6 +115,14 @@ const ENTRY_UNITS: Record<string, string[]> = { degC: ['degF', 'K'], kPa: ['psi'
 export async function completeStep(svc: WorkOrderService, user: AuthUser, orderId: number, stepId: number, input: CompleteInput) {
   const { models } = svc;
   const { order, step } = await workableStep(svc, user, orderId, stepId);
+
+  // coolant goes in only once the step that takes the cap off is done (it waits for the opening check)
+  const after = workTemplate(order.kind)?.steps.find((t) => t.key === step.key)?.after;
+  if (after?.length) {
+    const earlier = await models.WorkOrderStep.findAll({ where: { workOrderId: orderId, key: [...after] }, attributes: ['key', 'position', 'title', 'doneAt'] });
+    const first = waitingFor(earlier.map((s) => ({ key: s.key, position: s.position, title: s.title, doneAt: s.doneAt ?? null })), after);
+    if (first) throw conflict(waitingText(first));
+  }
 
   // what is not sent again is taken from the draft, so completing keeps what was typed
   const note = input.note !== undefined ? input.note : (step.resultText ?? undefined);

@@ -302,6 +302,7 @@ export class WorkOrderService {
       steps: steps.map((s) => ({
         id: s.id, position: s.position, key: s.key, title: s.title, detail: s.detail, input: s.input, unit: s.unit,
         optional: s.optional, gated: s.gated, caution: s.caution,
+        after: template?.steps.find((t) => t.key === s.key)?.after ?? [],
         resultValue: s.resultValue, resultUnit: s.resultUnit, resultText: s.resultText, lockoutConfirmed: s.lockoutConfirmed,
         gateSnapshot: s.gateSnapshot ?? null, manualCheck: s.manualCheck ?? null,
         doneAt: s.doneAt ? new Date(s.doneAt).toISOString() : null, doneBy: s.doneBy, doneByName: name(s.doneBy ?? null),

@@ -9,7 +9,7 @@ import { WorkStep } from './work-types';
 // The volume is sent in the unit typed; the server converts (1 US gallon = 3.785411784 L, NIST SP 811, appendix B).
 // Estimate shown after the step: the server's mass balance (C1V1 + C2V2 = C3V3).
 const STEP: WorkStep = {
-  id: 31, position: 4, key: 'add', title: 'Add coolant', detail: null, input: 'value', unit: 'L', optional: false, gated: false, caution: null,
+  id: 31, position: 4, key: 'add', title: 'Add coolant', detail: null, input: 'value', unit: 'L', optional: false, gated: false, caution: null, after: ['relieve-pressure'],
   resultValue: null, resultUnit: null, resultText: null, lockoutConfirmed: null, gateSnapshot: null, manualCheck: null, doneAt: null, doneByName: null,
 };
 

@@ -56,7 +56,7 @@ import { WorkOrderDetail, WorkStep } from './work-types';
           <p class="hint"><mat-icon fontIcon="info" aria-hidden="true" />Plain water dilutes both the glycol (freeze protection) and the additive.</p>
         }
         @if (error(); as e) { <p class="err" role="alert">Refused by the server: {{ e }}</p> }
-        <button mat-flat-button type="submit" class="big" [disabled]="busy()" data-test="top-up-record"><mat-icon fontIcon="done" />Record top-up and mark done</button>
+        <button mat-flat-button type="submit" class="big" [disabled]="busy() || waiting()" data-test="top-up-record"><mat-icon fontIcon="done" />Record top-up and mark done</button>
       </form>
     }
     @if (step().doneAt && estimate(); as e) {
@@ -92,6 +92,8 @@ export class StepTopUp {
   readonly step = input.required<WorkStep>();
   /** The assigned technician is working on the order. */
   readonly canWork = input(false);
+  /** The step waits for an earlier one (the cap comes off first): recording is held, the page says why. */
+  readonly waiting = input(false);
   readonly orderChanged = output<WorkOrderDetail>();
 
   protected readonly busy = signal(false);

@@ -23,6 +23,7 @@ import { Assignee, GateRefusal, OpeningCheck, OpeningCondition, WorkOrderDetail,
 import { StepCoolantCheck } from './step-coolant-check';
 import { StepTopUp } from './step-top-up';
 import { isTopUpStep } from '../../../shared/work/top-up-step';
+import { waitingFor, waitingText } from '../../../shared/work/step-order';
 import { TransitionNoteData, TransitionNoteDialog } from './transition-note-dialog';
 import { MatDialog } from '@angular/material/dialog';
 import { MatDatepickerModule } from '@angular/material/datepicker';
@@ -139,6 +140,11 @@ export class WorkOrderPage {
   /** The lock step a gated step needs done first, if the template has one. */
   protected lockStep(s: WorkStep): WorkStep | null {
     return lockStepBefore(this.order()?.steps ?? [], s);
+  }
+  /** What a step waits for (the cap-off step before coolant goes in), in words, or null when it may be done now. */
+  protected waitsFor(s: WorkStep): string | null {
+    const first = waitingFor(this.order()?.steps ?? [], s.after);
+    return first ? waitingText(first) : null;
   }
   /** Some gated step not yet done has its lockout carried (for the opening-check panel). */
   protected readonly lockoutCarried = computed(() => (this.order()?.steps ?? []).some((s) => s.gated && !s.doneAt && lockoutFor(this.order()!.steps, s) !== null));

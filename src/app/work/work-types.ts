@@ -56,6 +56,8 @@ export interface WorkStep {
   optional: boolean;
   gated: boolean;
   caution: string | null;
+  /** Keys of earlier steps that must be done first (shared/work/step-order.ts). */
+  after: string[];
   resultValue: number | null;
   resultUnit: string | null;
   resultText: string | null;
