@@ -44,7 +44,11 @@ export interface BrokerOptions {
   port: number;
   host?: string;
   /** `address`: the client's IP address, for throttling failed logins. */
-  authenticate(username: string, password: string, address: string): Promise<{ deviceId: number; engineId: number; sparkplug?: SparkplugIdentity | null } | null>;
+  authenticate(
+    username: string,
+    password: string,
+    address: string,
+  ): Promise<{ deviceId: number; engineId: number; sparkplug?: SparkplugIdentity | null } | null>;
   /** A telemetry payload on the device's own engine topic; call `done` when there is room for more. */
   onTelemetry(device: DeviceIdentity, engineId: number, payload: Buffer, done: (err?: Error) => void): void;
   onReject(device: DeviceIdentity | null, reason: string, detail: string): void;
@@ -73,7 +77,12 @@ export interface Broker {
 // eslint-disable-next-line @typescript-eslint/no-require-imports
 const { Aedes } = require('aedes') as { Aedes: { createBroker(opts: object): Promise<AedesLike> } };
 
-interface AedesClient { id: string; jw?: DeviceIdentity; conn?: { remoteAddress?: string }; close(): void }
+interface AedesClient {
+  id: string;
+  jw?: DeviceIdentity;
+  conn?: { remoteAddress?: string };
+  close(): void;
+}
 interface AedesLike {
   clients: Record<string, AedesClient>;
   handle(socket: net.Socket): void;
@@ -139,18 +148,21 @@ export async function createBroker(opts: BrokerOptions): Promise<Broker> {
           return cb(null, true);
         }
         const asked = drops.generation;
-        opts.authenticate(username, secret, client.conn?.remoteAddress ?? '').then((found) => {
-          if (!found) return refuse(cb);
-          // revoked or rotated while its secret was being checked: the answer is stale
-          if (drops.droppedSince(found.deviceId, asked)) return refuse(cb);
-          const device = { ...found, username };
-          goodLogins.set(username, { digest, until: Date.now() + cacheMs, device });
-          client.jw = device;
-          cb(null, true);
-        }, (err) => {
-          log.error('broker: authentication failed with an error', err);
-          refuse(cb);
-        });
+        opts.authenticate(username, secret, client.conn?.remoteAddress ?? '').then(
+          (found) => {
+            if (!found) return refuse(cb);
+            // revoked or rotated while its secret was being checked: the answer is stale
+            if (drops.droppedSince(found.deviceId, asked)) return refuse(cb);
+            const device = { ...found, username };
+            goodLogins.set(username, { digest, until: Date.now() + cacheMs, device });
+            client.jw = device;
+            cb(null, true);
+          },
+          (err) => {
+            log.error('broker: authentication failed with an error', err);
+            refuse(cb);
+          },
+        );
       } catch (err) {
         log.error('broker: authenticate threw', err);
         refuse(cb);
@@ -161,7 +173,12 @@ export async function createBroker(opts: BrokerOptions): Promise<Broker> {
         const device = client?.jw;
         if (!device) return cb(new Error('not authenticated'));
         if (opts.sparkplug && isSparkplugTopic(packet.topic)) {
-          return opts.sparkplug.authorizePublish(device, packet.topic, Buffer.isBuffer(packet.payload) ? packet.payload : Buffer.from(packet.payload ?? ''), cb);
+          return opts.sparkplug.authorizePublish(
+            device,
+            packet.topic,
+            Buffer.isBuffer(packet.payload) ? packet.payload : Buffer.from(packet.payload ?? ''),
+            cb,
+          );
         }
         const parsed = parseEngineTopic(packet.topic);
         if (!parsed || parsed.engineId !== device.engineId) {
@@ -219,7 +236,10 @@ export async function createBroker(opts: BrokerOptions): Promise<Broker> {
   const host = opts.host ?? '127.0.0.1';
   await new Promise<void>((resolve, reject) => {
     server.once('error', reject);
-    server.listen(opts.port, host, () => { server.off('error', reject); resolve(); });
+    server.listen(opts.port, host, () => {
+      server.off('error', reject);
+      resolve();
+    });
   });
   const address = server.address();
   const port = typeof address === 'object' && address ? address.port : opts.port;
@@ -231,11 +251,12 @@ export async function createBroker(opts: BrokerOptions): Promise<Broker> {
     connectedClients: () => aedes.connectedClients,
     dropDevice: (deviceId) => drops.drop(deviceId, goodLogins, aedes.clients),
     tlsPort: tlsServer ? (tlsServer.address() as net.AddressInfo).port : null,
-    close: () => new Promise<void>((resolve) => {
-      server.close(() => undefined);
-      tlsServer?.close(() => undefined);
-      aedes.close(() => resolve());
-    }),
+    close: () =>
+      new Promise<void>((resolve) => {
+        server.close(() => undefined);
+        tlsServer?.close(() => undefined);
+        aedes.close(() => resolve());
+      }),
   };
 }
 
@@ -249,7 +270,10 @@ async function listenTls(aedes: AedesLike, host: string, opts: { cert: Buffer; k
   server.on('tlsClientError', (err) => log.debug(`broker: TLS handshake failed: ${err.message}`));
   await new Promise<void>((resolve, reject) => {
     server.once('error', reject);
-    server.listen(opts.port, host, () => { server.off('error', reject); resolve(); });
+    server.listen(opts.port, host, () => {
+      server.off('error', reject);
+      resolve();
+    });
   });
   log.info(`broker: MQTT over TLS on ${host}:${(server.address() as net.AddressInfo).port}`);
   return server;

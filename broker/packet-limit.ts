@@ -39,7 +39,9 @@ export class PacketSizeGuard {
       }
       if (!this.inHeader) {
         this.inHeader = true; // the type-and-flags byte
-        this.length = 0; this.multiplier = 1; this.lengthBytes = 0;
+        this.length = 0;
+        this.multiplier = 1;
+        this.lengthBytes = 0;
         i++;
         continue;
       }
@@ -49,7 +51,7 @@ export class PacketSizeGuard {
       this.lengthBytes++;
       const limit = this.packets === 0 ? this.limits.connectBytes : this.limits.packetBytes;
       // too long already (even before the last length byte), or a malformed 5th length byte
-      if (this.length > limit || (this.lengthBytes === 4 && (b & 0x80))) return Math.max(this.length, limit + 1);
+      if (this.length > limit || (this.lengthBytes === 4 && b & 0x80)) return Math.max(this.length, limit + 1);
       if ((b & 0x80) === 0) {
         this.inHeader = false;
         this.skip = this.length;

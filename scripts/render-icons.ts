@@ -20,7 +20,9 @@ async function main(): Promise<void> {
     for (const o of OUT) {
       const page = await browser.newPage({ viewport: { width: o.size, height: o.size } });
       const svg = fs.readFileSync(path.join(DIR, o.svg), 'utf8');
-      await page.setContent(`<html><body style="margin:0;background:${o.background ?? 'transparent'}"><img style="display:block;width:${o.size}px;height:${o.size}px" src="data:image/svg+xml;base64,${Buffer.from(svg).toString('base64')}"></body></html>`);
+      await page.setContent(
+        `<html><body style="margin:0;background:${o.background ?? 'transparent'}"><img style="display:block;width:${o.size}px;height:${o.size}px" src="data:image/svg+xml;base64,${Buffer.from(svg).toString('base64')}"></body></html>`,
+      );
       await page.locator('img').evaluate((img) => (img as unknown as { decode(): Promise<void> }).decode());
       await page.screenshot({ path: path.join(DIR, o.png), omitBackground: !o.background });
       await page.close();

@@ -37,9 +37,24 @@ const PARTITIONS = 64;
 const JWT_SECRET = 'scale-test-secret-0123456789-abcdefghijklmnopqrstuvwxyz';
 const started = Date.now();
 
-interface Instance { name: string; child: ChildProcess; url: string; port: number; smtpPort: number; dataDir: string; output(): string }
-interface AlarmEvent { id: number; state: string; lastNotifiedAt: string | null }
-interface Seen { readings: Map<number, number>; alarms: AlarmEvent[] }
+interface Instance {
+  name: string;
+  child: ChildProcess;
+  url: string;
+  port: number;
+  smtpPort: number;
+  dataDir: string;
+  output(): string;
+}
+interface AlarmEvent {
+  id: number;
+  state: string;
+  lastNotifiedAt: string | null;
+}
+interface Seen {
+  readings: Map<number, number>;
+  alarms: AlarmEvent[];
+}
 interface Health {
   status: string;
   broker?: { connected: boolean };
@@ -83,25 +98,45 @@ async function startInstance(name: string, env: Record<string, string>, reuse?: 
   const child = spawnInGroup(process.execPath, [path.join(ROOT, 'node_modules/tsx/dist/cli.mjs'), path.join(ROOT, 'server/main.ts')], {
     cwd: ROOT,
     env: {
-      ...process.env, ...env, PORT: String(port), SMTP_PORT: String(smtpPort), MQTT_PORT: '0', DATA_DIR: dataDir,
-      MQTT_CLIENT_ID: `jw-scale-${name}`, LOG_LEVEL: process.env.SCALE_LOG_LEVEL ?? 'warn', PUBLIC_URL: `http://127.0.0.1:${port}`,
+      ...process.env,
+      ...env,
+      PORT: String(port),
+      SMTP_PORT: String(smtpPort),
+      MQTT_PORT: '0',
+      DATA_DIR: dataDir,
+      MQTT_CLIENT_ID: `jw-scale-${name}`,
+      LOG_LEVEL: process.env.SCALE_LOG_LEVEL ?? 'warn',
+      PUBLIC_URL: `http://127.0.0.1:${port}`,
     },
     stdio: ['ignore', 'pipe', 'pipe'],
   });
   let out = '';
-  child.stdout!.on('data', (d) => { out += d; });
-  child.stderr!.on('data', (d) => { out += d; });
+  child.stdout!.on('data', (d) => {
+    out += d;
+  });
+  child.stderr!.on('data', (d) => {
+    out += d;
+  });
   const s: Instance = { name, child, url: `http://127.0.0.1:${port}`, port, smtpPort, dataDir, output: () => out };
-  await waitFor(`server ${name} up, connected to the broker and the lease connection`, async () => {
-    if (child.exitCode !== null) throw new Error(`server ${name} exited:\n${out}`);
-    return health(s);
-  }, (h) => h.status === 'ok' && h.broker?.connected === true && h.cluster?.connected === true, 90_000);
+  await waitFor(
+    `server ${name} up, connected to the broker and the lease connection`,
+    async () => {
+      if (child.exitCode !== null) throw new Error(`server ${name} exited:\n${out}`);
+      return health(s);
+    },
+    (h) => h.status === 'ok' && h.broker?.connected === true && h.cluster?.connected === true,
+    90_000,
+  );
   return s;
 }
 
 function killGroup(s: Instance): Promise<void> {
   const exited = new Promise<void>((r) => (s.child.exitCode !== null || s.child.signalCode !== null ? r() : s.child.once('exit', () => r())));
-  try { process.kill(-s.child.pid!, 'SIGKILL'); } catch { /* gone */ }
+  try {
+    process.kill(-s.child.pid!, 'SIGKILL');
+  } catch {
+    /* gone */
+  }
   return exited;
 }
 
@@ -115,7 +150,9 @@ function watch(s: Instance, token: string): Promise<Seen> {
   sock.on('alarm', (a: AlarmEvent) => seen.alarms.push(a));
   return new Promise((resolve, reject) => {
     sock.once('connect_error', reject);
-    sock.once('connect', () => sock.emit('watch', { fleet: true, alarms: true }, (r: { rooms?: string[]; error?: string }) => (r.rooms ? resolve(seen) : reject(new Error(r.error)))));
+    sock.once('connect', () =>
+      sock.emit('watch', { fleet: true, alarms: true }, (r: { rooms?: string[]; error?: string }) => (r.rooms ? resolve(seen) : reject(new Error(r.error)))),
+    );
   });
 }
 
@@ -128,7 +165,16 @@ function payload(ts0: number, samples: number, temp?: number): string {
   for (let k = 0; k < samples; k++) {
     const ts = ts0 + k * 1000;
     const wobble = Math.floor(ts / 1000) % 5;
-    out.push({ ts, values: { coolant_temp: temp ?? 84 + wobble * 0.4, coolant_pressure: 95 + wobble * 0.3, coolant_conductivity: 2400 + wobble, engine_speed: 0, ambient_temp: 20 + wobble * 0.1 } });
+    out.push({
+      ts,
+      values: {
+        coolant_temp: temp ?? 84 + wobble * 0.4,
+        coolant_pressure: 95 + wobble * 0.3,
+        coolant_conductivity: 2400 + wobble,
+        engine_speed: 0,
+        ambient_temp: 20 + wobble * 0.1,
+      },
+    });
   }
   return JSON.stringify({ samples: out });
 }
@@ -138,11 +184,15 @@ async function main(): Promise<void> {
   pg = await startPgCluster();
   const cluster = pg;
   // the port answers before the cluster accepts sessions ("the database system is starting up")
-  const admin = await waitFor('PostgreSQL accepting sessions', async () => {
-    const c = new Client({ connectionString: cluster.url });
-    await c.connect();
-    return c;
-  }, Boolean);
+  const admin = await waitFor(
+    'PostgreSQL accepting sessions',
+    async () => {
+      const c = new Client({ connectionString: cluster.url });
+      await c.connect();
+      return c;
+    },
+    Boolean,
+  );
   await admin.query('CREATE DATABASE jacketwatch');
   const pgVersion = (await admin.query<{ v: string }>("SELECT current_setting('server_version') AS v")).rows[0].v;
   await admin.end();
@@ -150,7 +200,14 @@ async function main(): Promise<void> {
   mq = await startMosquitto();
   const mqVersion = execFileSync('dpkg-query', ['-W', '-f', '${Version}', 'mosquitto'], { encoding: 'utf8' }).trim() || '?';
   say(`PostgreSQL ${pgVersion} at ${databaseUrl}; mosquitto ${mqVersion} (dynamic security) on port ${mq.port}`);
-  const env = { DATABASE_URL: databaseUrl, MQTT_URL: mq.adminUrl, MQTT_DEVICE_ACCOUNTS: 'dynsec', MQTT_SHARED_GROUP: 'jw', JWT_SECRET, ESCALATE_AFTER_S: '3600' };
+  const env = {
+    DATABASE_URL: databaseUrl,
+    MQTT_URL: mq.adminUrl,
+    MQTT_DEVICE_ACCOUNTS: 'dynsec',
+    MQTT_SHARED_GROUP: 'jw',
+    JWT_SECRET,
+    ESCALATE_AFTER_S: '3600',
+  };
 
   // A first (it applies the migrations), the fleet, then B: the leases split between them
   const a = await startInstance('a', env);
@@ -160,62 +217,104 @@ async function main(): Promise<void> {
   const siteId = await db.run(`INSERT INTO sites (name, time_zone) VALUES ('Scale test pumping station', 'UTC')`);
   const engineIds: number[] = [];
   for (let i = 0; i < ENGINES; i++) {
-    engineIds.push(await db.run(
-      `INSERT INTO engines (site_id, name, duty, capacity_l, coolant_family, glycol_type, glycol_percent, cap_pressure_kpa, oil_drain_interval_h, run_hours, safe_open_temp_c, out_of_service, created_at, updated_at)
-       VALUES (?, ?, 'prime', 60, 'conventional', 'ethylene', 50, 100, 250, 0, 50, FALSE, ?, ?)`, [siteId, `Scale engine ${i + 1}`, now, now]));
+    engineIds.push(
+      await db.run(
+        `INSERT INTO engines (site_id, name, duty, capacity_l, coolant_family, glycol_type, glycol_percent, cap_pressure_kpa, oil_drain_interval_h, run_hours, safe_open_temp_c, out_of_service, created_at, updated_at)
+       VALUES (?, ?, 'prime', 60, 'conventional', 'ethylene', 50, 100, 250, 0, 50, FALSE, ?, ?)`,
+        [siteId, `Scale engine ${i + 1}`, now, now],
+      ),
+    );
   }
-  const adminId = await db.run(`INSERT INTO users (email, name, password_hash, role, disabled, created_at, updated_at) VALUES ('scale-admin@example.test', 'Scale admin', ?, 'admin', FALSE, ?, ?)`, [bcrypt.hashSync('unused-1', 4), now, now]);
-  await db.run(`INSERT INTO users (email, name, password_hash, role, disabled, created_at, updated_at) VALUES ('scale-planner@example.test', 'Scale planner', ?, 'planner', FALSE, ?, ?)`, [bcrypt.hashSync('unused-2', 4), now, now]);
+  const adminId = await db.run(
+    `INSERT INTO users (email, name, password_hash, role, disabled, created_at, updated_at) VALUES ('scale-admin@example.test', 'Scale admin', ?, 'admin', FALSE, ?, ?)`,
+    [bcrypt.hashSync('unused-1', 4), now, now],
+  );
+  await db.run(
+    `INSERT INTO users (email, name, password_hash, role, disabled, created_at, updated_at) VALUES ('scale-planner@example.test', 'Scale planner', ?, 'planner', FALSE, ?, ?)`,
+    [bcrypt.hashSync('unused-2', 4), now, now],
+  );
   const token = createTokenService(JWT_SECRET).sign({ id: adminId, email: 'scale-admin@example.test', role: 'admin' });
   const b = await startInstance('b', env);
   instances.push(b);
   say(`two servers: a on ${a.url}, b on ${b.url} (pids ${a.child.pid}, ${b.child.pid}), one database, shared subscription group "jw"`);
-  const split = await waitFor('leases split between the two servers', async () => [await health(a), await health(b)], ([ha, hb]) =>
-    ha.cluster.owned + hb.cluster.owned === PARTITIONS && ha.cluster.owned > 0 && hb.cluster.owned > 0 && ha.cluster.members === 2);
+  const split = await waitFor(
+    'leases split between the two servers',
+    async () => [await health(a), await health(b)],
+    ([ha, hb]) => ha.cluster.owned + hb.cluster.owned === PARTITIONS && ha.cluster.owned > 0 && hb.cluster.owned > 0 && ha.cluster.members === 2,
+  );
   say(`leases: a owns ${split[0].cluster.owned}, b owns ${split[1].cluster.owned} of ${PARTITIONS} partitions`);
 
   // devices: accounts in the broker (made through b's API: the same database and broker)
   const devices: { engineId: number; username: string; secret: string }[] = [];
   for (const engineId of engineIds) {
-    const res = await fetch(`${b.url}/api/devices`, { method: 'POST', headers: { 'content-type': 'application/json', authorization: `Bearer ${token}` }, body: JSON.stringify({ engineId, username: `scale-dev-${engineId}` }) });
+    const res = await fetch(`${b.url}/api/devices`, {
+      method: 'POST',
+      headers: { 'content-type': 'application/json', authorization: `Bearer ${token}` },
+      body: JSON.stringify({ engineId, username: `scale-dev-${engineId}` }),
+    });
     assert.equal(res.status, 201, `device for engine ${engineId}`);
     const body = (await res.json()) as { username: string; secret: string };
     devices.push({ engineId, username: body.username, secret: body.secret });
   }
   const [seenA, seenB] = [await watch(a, token), await watch(b, token)];
   const deviceClient = async (d: { username: string; secret: string }) => {
-    const c = await mqtt.connectAsync(`mqtt://127.0.0.1:${mq!.port}`, { username: d.username, password: d.secret, clientId: `dev-${d.username}`, clean: true, reconnectPeriod: 200 });
+    const c = await mqtt.connectAsync(`mqtt://127.0.0.1:${mq!.port}`, {
+      username: d.username,
+      password: d.secret,
+      clientId: `dev-${d.username}`,
+      clean: true,
+      reconnectPeriod: 200,
+    });
     clients.push(c);
     return c;
   };
   const conns = await Promise.all(devices.map(deviceClient));
-  const stored = async (ids = engineIds) => Number((await db!.get<{ n: number }>(`SELECT COUNT(*) AS n FROM readings WHERE engine_id IN (${ids.join(',')})`)).n);
-  const alarmRows = () => db!.all<{ id: number; engine_id: number; rule: string; state: string; closed_at: unknown }>('SELECT id, engine_id, rule, state, closed_at FROM alarms ORDER BY id');
+  const stored = async (ids = engineIds) =>
+    Number((await db!.get<{ n: number }>(`SELECT COUNT(*) AS n FROM readings WHERE engine_id IN (${ids.join(',')})`)).n);
+  const alarmRows = () =>
+    db!.all<{ id: number; engine_id: number; rule: string; state: string; closed_at: unknown }>(
+      'SELECT id, engine_id, rule, state, closed_at FROM alarms ORDER BY id',
+    );
   const mails = () => db!.all<{ id: number; subject: string }>('SELECT id, subject FROM caught_mail ORDER BY id');
   let published = 0;
 
   // 1. N readings, each message to one server, every reading stored once; every engine on both servers' sockets
   const t0 = Date.now() - (MESSAGES_PER_ENGINE * SAMPLES_PER_MESSAGE + 2) * 1000;
   const ingestStart = Date.now();
-  await Promise.all(conns.map(async (c, i) => {
-    for (let m = 0; m < MESSAGES_PER_ENGINE; m++) {
-      await c.publishAsync(telemetryTopic(devices[i].engineId), payload(t0 + m * SAMPLES_PER_MESSAGE * 1000, SAMPLES_PER_MESSAGE), { qos: 1 });
-      published += SAMPLES_PER_MESSAGE * CHANNELS_PER_SAMPLE;
-    }
-  }));
+  await Promise.all(
+    conns.map(async (c, i) => {
+      for (let m = 0; m < MESSAGES_PER_ENGINE; m++) {
+        await c.publishAsync(telemetryTopic(devices[i].engineId), payload(t0 + m * SAMPLES_PER_MESSAGE * 1000, SAMPLES_PER_MESSAGE), { qos: 1 });
+        published += SAMPLES_PER_MESSAGE * CHANNELS_PER_SAMPLE;
+      }
+    }),
+  );
   const n1 = ENGINES * MESSAGES_PER_ENGINE * SAMPLES_PER_MESSAGE * CHANNELS_PER_SAMPLE;
   assert.equal(published, n1);
-  await waitFor(`${n1} rows`, () => stored(), (n) => n === n1);
+  await waitFor(
+    `${n1} rows`,
+    () => stored(),
+    (n) => n === n1,
+  );
   figures['1. readings published / rows stored'] = `${n1} / ${await stored()} (${((Date.now() - ingestStart) / 1000).toFixed(1)} s)`;
   const [ha1, hb1] = [await health(a), await health(b)];
   assert.equal(ha1.ingest.received + hb1.ingest.received, n1, 'each message taken by one server');
   assert.equal(ha1.ingest.duplicate + hb1.ingest.duplicate, 0);
   assert.ok(ha1.ingest.received > 0 && hb1.ingest.received > 0, 'both servers took a share');
   figures['1. readings taken by a / b'] = `${ha1.ingest.received} / ${hb1.ingest.received}`;
-  for (const [name, seen] of [['a', seenA], ['b', seenB]] as const) {
-    await waitFor(`every engine on ${name}'s socket`, () => engineIds.filter((id) => seen.readings.has(id)).length, (k) => k === ENGINES);
+  for (const [name, seen] of [
+    ['a', seenA],
+    ['b', seenB],
+  ] as const) {
+    await waitFor(
+      `every engine on ${name}'s socket`,
+      () => engineIds.filter((id) => seen.readings.has(id)).length,
+      (k) => k === ENGINES,
+    );
   }
-  say(`1. ok: ${n1} readings published, ${n1} rows, taken ${ha1.ingest.received} by a and ${hb1.ingest.received} by b; both sockets saw all ${ENGINES} engines`);
+  say(
+    `1. ok: ${n1} readings published, ${n1} rows, taken ${ha1.ingest.received} by a and ${hb1.ingest.received} by b; both sockets saw all ${ENGINES} engines`,
+  );
 
   // from here on every device publishes every FLOW_MS (ts = wall clock, rising), so no engine falls silent;
   // an engine in `hot` sends 101 °C (coolant_temp_high: 98 °C for 10 s)
@@ -225,13 +324,15 @@ async function main(): Promise<void> {
   const FLOW_MS = 200;
   const flow = (async () => {
     while (flowing) {
-      await Promise.all(conns.map(async (c, i) => {
-        const id = devices[i].engineId;
-        const ts = Math.max(Date.now(), (lastTs.get(id) ?? 0) + FLOW_MS);
-        lastTs.set(id, ts);
-        await c.publishAsync(telemetryTopic(id), payload(ts, 1, hot.has(id) ? 101 : undefined), { qos: 1 });
-        published += CHANNELS_PER_SAMPLE;
-      }));
+      await Promise.all(
+        conns.map(async (c, i) => {
+          const id = devices[i].engineId;
+          const ts = Math.max(Date.now(), (lastTs.get(id) ?? 0) + FLOW_MS);
+          lastTs.set(id, ts);
+          await c.publishAsync(telemetryTopic(id), payload(ts, 1, hot.has(id) ? 101 : undefined), { qos: 1 });
+          published += CHANNELS_PER_SAMPLE;
+        }),
+      );
       await new Promise((r) => setTimeout(r, FLOW_MS));
     }
   })();
@@ -248,32 +349,47 @@ async function main(): Promise<void> {
   assert.equal(alarm.rule, 'coolant_temp_high');
   await waitFor('one e-mail in the catcher', mails, (m) => m.length >= 1);
   const notified = (seen: Seen) => seen.alarms.some((v) => v.id === alarm.id && v.lastNotifiedAt);
-  await waitFor('the alarm (notified) on both servers\' sockets', () => notified(seenA) && notified(seenB), Boolean);
+  await waitFor("the alarm (notified) on both servers' sockets", () => notified(seenA) && notified(seenB), Boolean);
   const noTwice = (list: AlarmEvent[]) => list.every((v, i) => i === 0 || JSON.stringify(v) !== JSON.stringify(list[i - 1]));
   const ofAlarm = (seen: Seen) => seen.alarms.filter((v) => v.id === alarm.id);
   assert.ok(noTwice(ofAlarm(seenA)) && noTwice(ofAlarm(seenB)), 'no alarm event delivered twice');
-  assert.deepEqual(ofAlarm(seenA).map((v) => [v.state, v.lastNotifiedAt]), ofAlarm(seenB).map((v) => [v.state, v.lastNotifiedAt]), 'both servers\' sockets got the same events');
+  assert.deepEqual(
+    ofAlarm(seenA).map((v) => [v.state, v.lastNotifiedAt]),
+    ofAlarm(seenB).map((v) => [v.state, v.lastNotifiedAt]),
+    "both servers' sockets got the same events",
+  );
   assert.equal((await alarmRows()).length, 1, 'one alarm');
   assert.equal((await mails()).length, 1, 'one e-mail');
   figures['2. events of the alarm on a / b sockets'] = `${ofAlarm(seenA).length} / ${ofAlarm(seenB).length}`;
-  say(`2. ok: alarm ${alarm.id} (${alarm.rule}) on engine ${engineOnA} (lease on a): 1 alarm, 1 e-mail ("${(await mails())[0].subject}"), ${ofAlarm(seenA).length} events on each server's sockets, none twice`);
+  say(
+    `2. ok: alarm ${alarm.id} (${alarm.rule}) on engine ${engineOnA} (lease on a): 1 alarm, 1 e-mail ("${(await mails())[0].subject}"), ${ofAlarm(seenA).length} events on each server's sockets, none twice`,
+  );
 
   // 3. acknowledged on b: a's sockets see it
-  const ack = await fetch(`${b.url}/api/alarms/${alarm.id}/acknowledge`, { method: 'POST', headers: { 'content-type': 'application/json', authorization: `Bearer ${token}` }, body: JSON.stringify({ note: 'scale test' }) });
+  const ack = await fetch(`${b.url}/api/alarms/${alarm.id}/acknowledge`, {
+    method: 'POST',
+    headers: { 'content-type': 'application/json', authorization: `Bearer ${token}` },
+    body: JSON.stringify({ note: 'scale test' }),
+  });
   assert.equal(ack.status, 200);
-  await waitFor('the acknowledgement on a\'s socket', () => seenA.alarms.some((v) => v.id === alarm.id && v.state === 'acknowledged'), Boolean);
-  await waitFor('the acknowledgement on b\'s socket', () => seenB.alarms.some((v) => v.id === alarm.id && v.state === 'acknowledged'), Boolean);
+  await waitFor("the acknowledgement on a's socket", () => seenA.alarms.some((v) => v.id === alarm.id && v.state === 'acknowledged'), Boolean);
+  await waitFor("the acknowledgement on b's socket", () => seenB.alarms.some((v) => v.id === alarm.id && v.state === 'acknowledged'), Boolean);
   say('3. ok: acknowledged through b, seen on the sockets of a and b');
 
   // 4. a device on another engine's topic is refused by the broker
   const [d0, d1] = [devices[0], devices[1]];
   const oddTs = t0 - 7_777; // a time no other message uses
-  const at = async (engineId: number, ts: number) => Number((await db!.get<{ n: number }>('SELECT COUNT(*) AS n FROM readings WHERE engine_id = ? AND ts = ?', [engineId, ts])).n);
+  const at = async (engineId: number, ts: number) =>
+    Number((await db!.get<{ n: number }>('SELECT COUNT(*) AS n FROM readings WHERE engine_id = ? AND ts = ?', [engineId, ts])).n);
   await conns[0].publishAsync(telemetryTopic(d1.engineId), payload(oddTs, 1), { qos: 1 }).catch(() => undefined);
   await conns[0].publishAsync(telemetryTopic(d0.engineId), payload(oddTs, 1), { qos: 1 }); // a fence behind it
   published += CHANNELS_PER_SAMPLE;
-  await waitFor('the fence stored', () => at(d0.engineId, oddTs), (n) => n === CHANNELS_PER_SAMPLE);
-  assert.equal(await at(d1.engineId, oddTs), 0, 'nothing stored from the other engine\'s topic');
+  await waitFor(
+    'the fence stored',
+    () => at(d0.engineId, oddTs),
+    (n) => n === CHANNELS_PER_SAMPLE,
+  );
+  assert.equal(await at(d1.engineId, oddTs), 0, "nothing stored from the other engine's topic");
   assert.match(mq.log(), new RegExp(`Denied PUBLISH from dev-${d0.username}`));
   say(`4. ok: ${d0.username} publishing on engine ${d1.engineId}'s topic denied by the broker, nothing stored`);
 
@@ -283,7 +399,12 @@ async function main(): Promise<void> {
   const killedAt = Date.now();
   await killGroup(a);
   say(`5. a killed (SIGKILL to its process group) while ${ENGINES} devices publish every ${FLOW_MS} ms`);
-  const hb2 = await waitFor('b owns every partition', () => health(b), (h) => h.cluster.owned === PARTITIONS, 30_000);
+  const hb2 = await waitFor(
+    'b owns every partition',
+    () => health(b),
+    (h) => h.cluster.owned === PARTITIONS,
+    30_000,
+  );
   const takeoverS = (Date.now() - killedAt) / 1000;
   figures['5. engines moved to b after SIGKILL of a (s)'] = takeoverS.toFixed(1);
   assert.ok(takeoverS < 30, `take-over in ${takeoverS} s`);
@@ -295,21 +416,41 @@ async function main(): Promise<void> {
   instances[0] = restarted;
   const backS = (Date.now() - killedAt) / 1000;
   figures['5. a back (restarted, connected) after the kill (s)'] = backS.toFixed(1);
-  await waitFor('leases split again', async () => [await health(restarted), await health(b)], ([x, y]) => x.cluster.owned > 0 && y.cluster.owned > 0 && x.cluster.owned + y.cluster.owned === PARTITIONS);
-  await waitFor('the acknowledged alarm cleared and closed', alarmRows, (r) => r.find((x) => x.id === alarm.id)?.state === 'normal' && r.find((x) => x.id === alarm.id)?.closed_at !== null, 90_000);
-  await waitFor('the close on b\'s socket', () => seenB.alarms.some((v) => v.id === alarm.id && v.state === 'normal'), Boolean);
+  await waitFor(
+    'leases split again',
+    async () => [await health(restarted), await health(b)],
+    ([x, y]) => x.cluster.owned > 0 && y.cluster.owned > 0 && x.cluster.owned + y.cluster.owned === PARTITIONS,
+  );
+  await waitFor(
+    'the acknowledged alarm cleared and closed',
+    alarmRows,
+    (r) => r.find((x) => x.id === alarm.id)?.state === 'normal' && r.find((x) => x.id === alarm.id)?.closed_at !== null,
+    90_000,
+  );
+  await waitFor("the close on b's socket", () => seenB.alarms.some((v) => v.id === alarm.id && v.state === 'normal'), Boolean);
   // a new alarm on another engine that moved: raised and e-mailed once
   hot.add(engineOnA2!);
-  const hot2 = await waitFor('a second coolant_temp_high alarm, on the other moved engine', alarmRows, (r) => r.some((x) => x.engine_id === engineOnA2 && x.rule === 'coolant_temp_high'));
+  const hot2 = await waitFor('a second coolant_temp_high alarm, on the other moved engine', alarmRows, (r) =>
+    r.some((x) => x.engine_id === engineOnA2 && x.rule === 'coolant_temp_high'),
+  );
   const alarm2 = hot2.find((x) => x.engine_id === engineOnA2 && x.rule === 'coolant_temp_high')!;
   const mailsOf = (id: number) => db!.all<{ id: number; sent_at: unknown }>('SELECT id, sent_at FROM outbox WHERE alarm_id = ?', [id]);
-  await waitFor('its e-mail sent', () => mailsOf(alarm2.id), (m) => m.length === 1 && m[0].sent_at !== null);
+  await waitFor(
+    'its e-mail sent',
+    () => mailsOf(alarm2.id),
+    (m) => m.length === 1 && m[0].sent_at !== null,
+  );
   say(`   alarm ${alarm.id} cleared and closed after the moves (rule state came along); alarm ${alarm2.id} on engine ${engineOnA2} raised, e-mailed once`);
 
   // every reading stored once; nothing doubled
   flowing = false;
   await flow;
-  const total = await waitFor(`all ${published} readings stored`, () => stored(), (n) => n === published, 60_000);
+  const total = await waitFor(
+    `all ${published} readings stored`,
+    () => stored(),
+    (n) => n === published,
+    60_000,
+  );
   const [ha3, hb3] = [await health(restarted), await health(b)];
   figures['5. readings published / rows stored (whole run)'] = `${published} / ${total}`;
   figures['5. redelivered after the kill, already stored (a restarted / b)'] = `${ha3.ingest.duplicate} / ${hb3.ingest.duplicate}`;
@@ -319,7 +460,10 @@ async function main(): Promise<void> {
   const byRule = new Map<string, number>();
   for (const r of all) byRule.set(`${r.engine_id}/${r.rule}`, (byRule.get(`${r.engine_id}/${r.rule}`) ?? 0) + 1);
   assert.equal(all.filter((r) => r.rule === 'coolant_temp_high').length, 2, 'two coolant_temp_high alarms, none doubled');
-  assert.ok(outbox.every((o) => Number(o.n) === 1), `one e-mail per alarm: ${JSON.stringify(outbox)}`);
+  assert.ok(
+    outbox.every((o) => Number(o.n) === 1),
+    `one e-mail per alarm: ${JSON.stringify(outbox)}`,
+  );
   assert.equal((await mails()).length, outbox.length, 'every e-mail caught once');
   figures['alarms (of them no_data) / e-mails'] = `${all.length} (${all.filter((r) => r.rule === 'no_data').length}) / ${(await mails()).length}`;
   say(`   leases ${ha3.cluster.owned} / ${hb3.cluster.owned}; ${total} of ${published} readings stored once; ${all.length} alarms, one e-mail each`);
@@ -347,7 +491,9 @@ for (const sig of ['SIGINT', 'SIGTERM'] as const) {
 main().then(
   async () => {
     await cleanup();
-    say('ran: PostgreSQL (throwaway cluster), mosquitto 2 (dynamic security, shared subscription), two server processes, QoS 1 devices, socket.io clients on both servers');
+    say(
+      'ran: PostgreSQL (throwaway cluster), mosquitto 2 (dynamic security, shared subscription), two server processes, QoS 1 devices, socket.io clients on both servers',
+    );
     for (const [k, v] of Object.entries(figures)) process.stdout.write(`  ${k}: ${v}\n`);
     say(`test:scale passed in ${((Date.now() - started) / 1000).toFixed(1)} s`);
   },

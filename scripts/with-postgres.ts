@@ -17,7 +17,12 @@ import path from 'node:path';
 function pgBinDir(): string {
   if (process.env.PG_BIN) return process.env.PG_BIN;
   const root = '/usr/lib/postgresql';
-  const versions = fs.existsSync(root) ? fs.readdirSync(root).filter((v) => /^\d+$/.test(v)).sort((a, b) => Number(b) - Number(a)) : [];
+  const versions = fs.existsSync(root)
+    ? fs
+        .readdirSync(root)
+        .filter((v) => /^\d+$/.test(v))
+        .sort((a, b) => Number(b) - Number(a))
+    : [];
   if (!versions.length) throw new Error('PostgreSQL is not installed (apt-get install -y postgresql, or set PG_BIN)');
   return path.join(root, versions[0], 'bin');
 }
@@ -78,9 +83,23 @@ export async function startPgCluster(): Promise<PgCluster> {
   execFileSync(initCmd, initArgs, { stdio: 'ignore' });
   const port = await freePort();
   const [cmd, args] = asOwner(path.join(bin, 'postgres'), [
-    '-D', data, '-p', String(port), '-k', dir, '-c', 'listen_addresses=127.0.0.1',
+    '-D',
+    data,
+    '-p',
+    String(port),
+    '-k',
+    dir,
+    '-c',
+    'listen_addresses=127.0.0.1',
     // a test cluster: durability off for speed (the product's own durability is tested on SQLite and by the crash tests)
-    '-c', 'fsync=off', '-c', 'synchronous_commit=off', '-c', 'full_page_writes=off', '-c', 'max_connections=300',
+    '-c',
+    'fsync=off',
+    '-c',
+    'synchronous_commit=off',
+    '-c',
+    'full_page_writes=off',
+    '-c',
+    'max_connections=300',
   ]);
   const log = fs.openSync(path.join(dir, 'postgres.log'), 'a');
   const server = spawn(cmd, args, { detached: true, stdio: ['ignore', log, log] });

@@ -5,7 +5,10 @@ import type { Models } from '../server/models';
 const WEEK = 7 * 86400_000;
 export const DEMO_ONCALL_WEEKS = 26;
 
-export async function seedOncall(models: Models, opts: { transaction?: Transaction; now?: number; technician?: string; backup?: string } = {}): Promise<number> {
+export async function seedOncall(
+  models: Models,
+  opts: { transaction?: Transaction; now?: number; technician?: string; backup?: string } = {},
+): Promise<number> {
   const { transaction } = opts;
   const tech = await models.User.findOne({ where: { email: opts.technician ?? 'tech@jacketwatch.test' }, transaction });
   const backup = await models.User.findOne({ where: { email: opts.backup ?? 'planner@jacketwatch.test' }, transaction });

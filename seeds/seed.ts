@@ -37,8 +37,16 @@ export const demoDeviceSecret = (username: string): string =>
 
 function deviceRecord(engine: Engine, username: string): DeviceRecord {
   return {
-    engineId: engine.id, username, secret: demoDeviceSecret(username), engineName: engine.name, siteId: engine.siteId, duty: engine.duty,
-    capacityL: engine.capacityL, capPressureKpa: engine.capPressureKpa, heaterSetpointC: engine.heaterSetpointC, coolantFamily: engine.coolantFamily,
+    engineId: engine.id,
+    username,
+    secret: demoDeviceSecret(username),
+    engineName: engine.name,
+    siteId: engine.siteId,
+    duty: engine.duty,
+    capacityL: engine.capacityL,
+    capPressureKpa: engine.capPressureKpa,
+    heaterSetpointC: engine.heaterSetpointC,
+    coolantFamily: engine.coolantFamily,
   };
 }
 
@@ -77,12 +85,19 @@ export async function seedDemo(sequelize: Sequelize, models: Models, config: Con
   }
   const devices = await sequelize.transaction(async (transaction) => {
     const passwordHash = await hashSecret(DEMO_PASSWORD, cost);
-    await models.User.bulkCreate(DEMO_USERS.map((u) => ({ ...u, passwordHash })), { transaction });
+    await models.User.bulkCreate(
+      DEMO_USERS.map((u) => ({ ...u, passwordHash })),
+      { transaction },
+    );
     const siteIds = new Map<string, number>();
-    for (const s of DEMO_SITES) siteIds.set(s.key, (await models.Site.create({ name: s.name, timeZone: s.timeZone, designLowTempC: s.designLowTempC }, { transaction })).id);
+    for (const s of DEMO_SITES)
+      siteIds.set(s.key, (await models.Site.create({ name: s.name, timeZone: s.timeZone, designLowTempC: s.designLowTempC }, { transaction })).id);
     for (const { sites, ...u } of DEMO_SITE_USERS) {
       const user = await models.User.create({ ...u, passwordHash }, { transaction });
-      await models.UserSite.bulkCreate(sites.map((key) => ({ userId: user.id, siteId: siteIds.get(key)! })), { transaction });
+      await models.UserSite.bulkCreate(
+        sites.map((key) => ({ userId: user.id, siteId: siteIds.get(key)! })),
+        { transaction },
+      );
     }
     const engines: Engine[] = [];
     for (const { site, ...e } of DEMO_ENGINES) engines.push(await models.Engine.create({ ...e, siteId: siteIds.get(site)! }, { transaction }));
@@ -114,8 +129,16 @@ export async function seedFleet(sequelize: Sequelize, models: Models, config: Co
       const site = await models.Site.create({ name: `Bench site ${s + 1}`, timeZone: zones[s % zones.length] }, { transaction });
       const count = Math.min(perSite, n - s * perSite);
       const rows = Array.from({ length: count }, (_, i) => ({
-        siteId: site.id, name: `Bench engine ${s * perSite + i + 1}`, duty: 'standby' as const, capacityL: 60 + ((i * 37) % 300),
-        coolantFamily: 'conventional' as const, glycolType: 'ethylene' as const, glycolPercent: 50, capPressureKpa: 100, oilDrainIntervalH: 250, heaterSetpointC: 40,
+        siteId: site.id,
+        name: `Bench engine ${s * perSite + i + 1}`,
+        duty: 'standby' as const,
+        capacityL: 60 + ((i * 37) % 300),
+        coolantFamily: 'conventional' as const,
+        glycolType: 'ethylene' as const,
+        glycolPercent: 50,
+        capPressureKpa: 100,
+        oilDrainIntervalH: 250,
+        heaterSetpointC: 40,
       }));
       engines.push(...(await models.Engine.bulkCreate(rows, { transaction, returning: true })));
     }

@@ -63,14 +63,16 @@ export function createApp(ctx: AppContext, opts: AppOptions = {}): Express {
   if (fs.existsSync(path.join(dir, 'index.html'))) {
     // index.html is never cached (it names the current chunks), nor are the service worker and its
     // manifest of files (a cached one would hold users on an old app); hashed files never change
-    app.use(express.static(dir, {
-      index: 'index.html',
-      setHeaders: (res, file) => {
-        if (NEVER_CACHED.has(path.basename(file))) res.setHeader('Cache-Control', 'no-cache');
-        else if (HASHED_ASSET.test(file)) res.setHeader('Cache-Control', 'public, max-age=31536000, immutable');
-        else res.setHeader('Cache-Control', 'public, max-age=3600');
-      },
-    }));
+    app.use(
+      express.static(dir, {
+        index: 'index.html',
+        setHeaders: (res, file) => {
+          if (NEVER_CACHED.has(path.basename(file))) res.setHeader('Cache-Control', 'no-cache');
+          else if (HASHED_ASSET.test(file)) res.setHeader('Cache-Control', 'public, max-age=31536000, immutable');
+          else res.setHeader('Cache-Control', 'public, max-age=3600');
+        },
+      }),
+    );
     // deep links of the single-page app; /api/* never reaches here (404 JSON above). A path naming a
     // file (an extension) that is not there is a 404: a stale chunk must not be answered with HTML.
     app.get('/{*splat}', (req, res) => {

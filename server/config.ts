@@ -102,7 +102,10 @@ export const envSchema = z.object({
   // alarms and mail (server/services/alarms/alarm-settings.ts)
   ESCALATE_AFTER_S: withDefault(positiveSeconds(), 15 * 60),
   NOTIFY_MIN_PRIORITY: withDefault(z.enum(PRIORITIES, { error: `must be ${PRIORITIES.join(', ')}` }), 'medium'),
-  ALARM_TICK_MS: withDefault(num('must be a positive number of milliseconds', (n) => Number.isFinite(n) && n > 0), 1000),
+  ALARM_TICK_MS: withDefault(
+    num('must be a positive number of milliseconds', (n) => Number.isFinite(n) && n > 0),
+    1000,
+  ),
   MAIL_RETRY_BASE_S: withDefault(positiveSeconds(), 5),
   MAIL_RETRY_MAX_S: withDefault(positiveSeconds(), 600),
   MAIL_TIMEOUT_S: withDefault(positiveSeconds(), 5),
@@ -177,9 +180,8 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
     trustProxy: trustProxyFrom(e.TRUST_PROXY),
     host: e.HOST,
     mqttHost: e.MQTT_HOST,
-    mqttTls: e.MQTT_TLS_CERT && e.MQTT_TLS_KEY
-      ? { certFile: path.resolve(e.MQTT_TLS_CERT), keyFile: path.resolve(e.MQTT_TLS_KEY), port: e.MQTT_TLS_PORT }
-      : null,
+    mqttTls:
+      e.MQTT_TLS_CERT && e.MQTT_TLS_KEY ? { certFile: path.resolve(e.MQTT_TLS_CERT), keyFile: path.resolve(e.MQTT_TLS_KEY), port: e.MQTT_TLS_PORT } : null,
     jwtSecret: e.JWT_SECRET ?? null,
     heapGrowingPercent: e.HEAP_GROWING_PERCENT,
     cluster: e.CLUSTER === 'on',

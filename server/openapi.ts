@@ -28,7 +28,12 @@ export function buildOpenApi(): Json {
   }
   return {
     openapi: '3.1.0',
-    info: { title: 'Jacketwatch API', version: VERSION, description: 'Cooling-system watch for stationary engines. SI units throughout; errors are `{ error, field? }`. A user limited to some sites (PUT /api/users/{id}/sites) sees only those sites; an object of another site answers 404.' },
+    info: {
+      title: 'Jacketwatch API',
+      version: VERSION,
+      description:
+        'Cooling-system watch for stationary engines. SI units throughout; errors are `{ error, field? }`. A user limited to some sites (PUT /api/users/{id}/sites) sees only those sites; an object of another site answers 404.',
+    },
     servers: [{ url: '/' }],
     security: [{ bearer: [] }],
     tags: OPENAPI_GROUPS.map((g) => ({ name: g.tag })),

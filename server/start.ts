@@ -70,7 +70,9 @@ export async function startServer(config: Config, opts: StartOptions = {}): Prom
   const ctx: AppContext = { config, log, sequelize, models, tokens, telemetry: null, startedAt: Date.now(), access, cluster };
   if (config.mqttUrl && config.mqttDeviceAccounts === 'dynsec') {
     ctx.deviceAccounts = createDynsecAccounts({
-      url: config.mqttUrl, clientId: `${config.mqttClientId}-accounts`, log,
+      url: config.mqttUrl,
+      clientId: `${config.mqttClientId}-accounts`,
+      log,
       revokedUsernames: async () => (await models.Device.findAll({ where: { revokedAt: { [Op.ne]: null } }, attributes: ['username'] })).map((d) => d.username),
     });
   }

@@ -17,8 +17,24 @@ export interface ChannelInfo {
 
 export const CHANNELS: Record<ChannelKey, ChannelInfo> = {
   coolant_temp: { key: 'coolant_temp', code: 1, label: 'Coolant temperature', quantity: 'temperature', unit: 'degC', physicalMin: -40, physicalMax: 150 },
-  coolant_pressure: { key: 'coolant_pressure', code: 2, label: 'Coolant pressure', quantity: 'pressure', unit: 'kPa', physicalMin: -101.325, physicalMax: 1000 },
-  coolant_conductivity: { key: 'coolant_conductivity', code: 3, label: 'Coolant conductivity', quantity: 'conductivity', unit: 'uS/cm', physicalMin: 0, physicalMax: 20000 },
+  coolant_pressure: {
+    key: 'coolant_pressure',
+    code: 2,
+    label: 'Coolant pressure',
+    quantity: 'pressure',
+    unit: 'kPa',
+    physicalMin: -101.325,
+    physicalMax: 1000,
+  },
+  coolant_conductivity: {
+    key: 'coolant_conductivity',
+    code: 3,
+    label: 'Coolant conductivity',
+    quantity: 'conductivity',
+    unit: 'uS/cm',
+    physicalMin: 0,
+    physicalMax: 20000,
+  },
   engine_speed: { key: 'engine_speed', code: 4, label: 'Engine speed', quantity: 'speed', unit: 'rpm', physicalMin: 0, physicalMax: 4000 },
   ambient_temp: { key: 'ambient_temp', code: 5, label: 'Ambient temperature', quantity: 'temperature', unit: 'degC', physicalMin: -60, physicalMax: 70 },
 };

@@ -14,14 +14,60 @@ export const PASSWORD_MAX_BYTES = 72;
 export const PRODUCT_NAME = 'jacketwatch';
 
 const COMMON = new Set([
-  '123456789012', '1234567890123', '12345678901234', '123456123456', '123123123123', '111111111111',
-  '000000000000', '123412341234', '987654321000', '098765432109', 'qwertyuiopas', 'qwertyuiop12', 'qwertyuiop123',
-  'qwerty123456', '1qaz2wsx3edc', '1q2w3e4r5t6y', 'q1w2e3r4t5y6', 'zaq12wsxcde3', 'asdfghjkl123', 'password1234',
-  'password12345', 'passwordpassword', 'password123!', 'password@123', 'p@ssw0rd1234', 'p@ssword1234', 'iloveyou1234',
-  'letmein12345', 'welcome12345', 'welcome123456', 'administrator', 'admin1234567', 'adminadmin123', 'changeme1234',
-  'football1234', 'baseball1234', 'sunshine1234', 'princess1234', 'monkey123456', 'dragon123456', 'superman1234',
-  'trustno1trustno1', 'abcdefghijkl', 'abc123abc123', 'abcd1234abcd', 'qwertyqwerty', 'asdfasdfasdf', 'correcthorsebatterystaple',
-  'correct horse battery staple', 'thequickbrownfox', 'generator1234', 'engine123456', 'maintenance1', 'maintenance123',
+  '123456789012',
+  '1234567890123',
+  '12345678901234',
+  '123456123456',
+  '123123123123',
+  '111111111111',
+  '000000000000',
+  '123412341234',
+  '987654321000',
+  '098765432109',
+  'qwertyuiopas',
+  'qwertyuiop12',
+  'qwertyuiop123',
+  'qwerty123456',
+  '1qaz2wsx3edc',
+  '1q2w3e4r5t6y',
+  'q1w2e3r4t5y6',
+  'zaq12wsxcde3',
+  'asdfghjkl123',
+  'password1234',
+  'password12345',
+  'passwordpassword',
+  'password123!',
+  'password@123',
+  'p@ssw0rd1234',
+  'p@ssword1234',
+  'iloveyou1234',
+  'letmein12345',
+  'welcome12345',
+  'welcome123456',
+  'administrator',
+  'admin1234567',
+  'adminadmin123',
+  'changeme1234',
+  'football1234',
+  'baseball1234',
+  'sunshine1234',
+  'princess1234',
+  'monkey123456',
+  'dragon123456',
+  'superman1234',
+  'trustno1trustno1',
+  'abcdefghijkl',
+  'abc123abc123',
+  'abcd1234abcd',
+  'qwertyqwerty',
+  'asdfasdfasdf',
+  'correcthorsebatterystaple',
+  'correct horse battery staple',
+  'thequickbrownfox',
+  'generator1234',
+  'engine123456',
+  'maintenance1',
+  'maintenance123',
 ]);
 
 /** Runs of one character or a straight sequence (aaaaaaaaaaaa, 123456789012, abcdefghijkl). */
@@ -41,7 +87,8 @@ function trivialPattern(p: string): boolean {
 /** Why a password is refused, or null when it is acceptable. */
 export function passwordProblem(password: string, email?: string | null): string | null {
   if ([...password].length < PASSWORD_MIN_CHARS) return `at least ${PASSWORD_MIN_CHARS} characters`;
-  if (new TextEncoder().encode(password).length > PASSWORD_MAX_BYTES) return `at most ${PASSWORD_MAX_BYTES} bytes (only the first ${PASSWORD_MAX_BYTES} would count)`;
+  if (new TextEncoder().encode(password).length > PASSWORD_MAX_BYTES)
+    return `at most ${PASSWORD_MAX_BYTES} bytes (only the first ${PASSWORD_MAX_BYTES} would count)`;
   const lower = password.toLowerCase();
   if (COMMON.has(lower) || trivialPattern(lower)) return 'too common or too easy to guess';
   if (lower.includes(PRODUCT_NAME)) return 'must not contain the product name';

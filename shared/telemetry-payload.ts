@@ -19,18 +19,18 @@ export const MAX_FUTURE_MS = 5 * 60 * 1000;
 export const MAX_AGE_MS = 31 * 24 * 60 * 60 * 1000;
 
 export type RejectReason =
-  | 'not_json'
-  | 'too_large'
-  | 'schema'
-  | 'not_finite'
-  | 'future_timestamp'
-  | 'old_timestamp'
-  | 'unknown_channel'
-  | 'bad_unit'
-  | 'wrong_topic';
+  'not_json' | 'too_large' | 'schema' | 'not_finite' | 'future_timestamp' | 'old_timestamp' | 'unknown_channel' | 'bad_unit' | 'wrong_topic';
 
 export const REJECT_REASONS: readonly RejectReason[] = [
-  'not_json', 'too_large', 'schema', 'not_finite', 'future_timestamp', 'old_timestamp', 'unknown_channel', 'bad_unit', 'wrong_topic',
+  'not_json',
+  'too_large',
+  'schema',
+  'not_finite',
+  'future_timestamp',
+  'old_timestamp',
+  'unknown_channel',
+  'bad_unit',
+  'wrong_topic',
 ];
 
 export interface ParsedReading {
@@ -64,10 +64,7 @@ export const UNITS_BY_QUANTITY: Record<Quantity, readonly string[]> = {
 const timestampSchema = z.union([z.number(), z.string().max(40)]);
 const valuesSchema = z.record(z.string(), z.unknown());
 const sampleSchema = z.object({ ts: timestampSchema, values: valuesSchema });
-const envelopeSchema = z.union([
-  z.object({ samples: z.array(z.unknown()).min(1).max(MAX_SAMPLES) }),
-  sampleSchema,
-]);
+const envelopeSchema = z.union([z.object({ samples: z.array(z.unknown()).min(1).max(MAX_SAMPLES) }), sampleSchema]);
 const unitValueSchema = z.object({ value: z.unknown(), unit: z.string().max(16) });
 
 export const telemetryPayloadSchema = envelopeSchema;
@@ -87,10 +84,14 @@ function toMillis(ts: number | string): number | null {
 
 function convert(quantity: Quantity, value: number, unit: string): number {
   switch (quantity) {
-    case 'temperature': return toCelsius(value, unit as TemperatureUnit);
-    case 'pressure': return toKpa(value, unit as PressureUnit);
-    case 'conductivity': return toMicroSiemens(value, unit as ConductivityUnit);
-    default: return value;
+    case 'temperature':
+      return toCelsius(value, unit as TemperatureUnit);
+    case 'pressure':
+      return toKpa(value, unit as PressureUnit);
+    case 'conductivity':
+      return toMicroSiemens(value, unit as ConductivityUnit);
+    default:
+      return value;
   }
 }
 

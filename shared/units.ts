@@ -53,5 +53,15 @@ export const gaugeToAbsoluteKpa = (gaugeKpa: number, atmosphereKpa = KPA_PER_ATM
 
 /** Display symbols. */
 export const UNIT_SYMBOL: Record<string, string> = {
-  degC: '°C', degF: '°F', K: 'K', kPa: 'kPa', psi: 'psi', bar: 'bar', 'uS/cm': 'µS/cm', 'mS/cm': 'mS/cm', rpm: 'rpm', L: 'L', gal: 'US gal',
+  degC: '°C',
+  degF: '°F',
+  K: 'K',
+  kPa: 'kPa',
+  psi: 'psi',
+  bar: 'bar',
+  'uS/cm': 'µS/cm',
+  'mS/cm': 'mS/cm',
+  rpm: 'rpm',
+  L: 'L',
+  gal: 'US gal',
 };

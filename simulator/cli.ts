@@ -110,18 +110,22 @@ export function parseCli(argv: string[], env: NodeJS.ProcessEnv = process.env): 
     durationS: v.duration === undefined ? null : num(v.duration, 'duration', 0, (n) => n >= 0, 'a number of seconds >= 0'),
     seed: num(v.seed, 'seed', 1, (n) => int(n) && n >= 0 && n <= 0xffffffff, 'an integer from 0 to 4294967295'),
     scenario,
-    scenarioEngine:
-      v['scenario-engine'] === undefined ? null : num(v['scenario-engine'], 'scenario-engine', 0, (n) => int(n) && n >= 1, 'an engine id'),
+    scenarioEngine: v['scenario-engine'] === undefined ? null : num(v['scenario-engine'], 'scenario-engine', 0, (n) => int(n) && n >= 1, 'an engine id'),
     scenarioAtS: num(v['scenario-at'], 'scenario-at', 10, (n) => n >= 0, 'a number of seconds >= 0'),
     speed: num(v.speed, 'speed', 1, (n) => n > 0 && n <= 10000, 'a number > 0 and <= 10000'),
     devicesFile: path.resolve(v.devices ?? path.join(dataDir, 'demo-devices.json')),
     mqttUrl: v['mqtt-url'] ?? (env.MQTT_PORT ? `mqtt://127.0.0.1:${env.MQTT_PORT}` : null),
     qos,
-    backfillDays: num(v['backfill-days'], 'backfill-days', 0, (n) => n >= 0 && n <= 30, 'a number of days from 0 to 30 (the server refuses readings older than 31 days)'),
+    backfillDays: num(
+      v['backfill-days'],
+      'backfill-days',
+      0,
+      (n) => n >= 0 && n <= 30,
+      'a number of days from 0 to 30 (the server refuses readings older than 31 days)',
+    ),
     backfillStepS: num(v['backfill-step'], 'backfill-step', 60, (n) => n >= 1 && n <= 3600, 'a number of seconds from 1 to 3600'),
     bufferMinutes: num(v['buffer-minutes'], 'buffer-minutes', 60, (n) => n >= 0 && n <= 24 * 60, 'a number of minutes from 0 to 1440'),
-    controlPort:
-      v['control-port'] === undefined ? null : num(v['control-port'], 'control-port', 0, (n) => int(n) && n >= 0 && n <= 65535, 'a port number'),
+    controlPort: v['control-port'] === undefined ? null : num(v['control-port'], 'control-port', 0, (n) => int(n) && n >= 0 && n <= 65535, 'a port number'),
     status: !!v.status,
     verbose: !!v.verbose,
     protocol,
@@ -171,10 +175,7 @@ export function loadDevices(file: string): { mqttPort?: number; devices: DeviceR
 }
 
 /** Run until the duration ends or `signal` aborts; resolves with the final counters. */
-export async function runSimulator(
-  o: SimOptions,
-  opts: { log?: (s: string) => void; signal?: AbortSignal } = {},
-): Promise<ReturnType<Gateway['totals']>> {
+export async function runSimulator(o: SimOptions, opts: { log?: (s: string) => void; signal?: AbortSignal } = {}): Promise<ReturnType<Gateway['totals']>> {
   const log = opts.log ?? ((s: string) => console.log(s));
   const file = loadDevices(o.devicesFile);
   const devices = o.engines === null ? file.devices : file.devices.slice(0, o.engines);
@@ -182,7 +183,10 @@ export async function runSimulator(
     log(`simulator: asked for ${o.engines} engines, the devices file has ${file.devices.length}; using all of them`);
   }
   const noIdentity = o.protocol === 'sparkplug' ? devices.find((d) => !d.sparkplug) : undefined;
-  if (noIdentity) throw new UsageError(`--protocol sparkplug: engine ${noIdentity.engineId} in ${o.devicesFile} has no "sparkplug" identity (register one with POST /api/devices)`);
+  if (noIdentity)
+    throw new UsageError(
+      `--protocol sparkplug: engine ${noIdentity.engineId} in ${o.devicesFile} has no "sparkplug" identity (register one with POST /api/devices)`,
+    );
   const scenarioEngine = o.scenarioEngine ?? devices[0].engineId;
   if (o.scenario !== 'normal' && !devices.some((d) => d.engineId === scenarioEngine)) {
     throw new UsageError(`--scenario-engine ${scenarioEngine} is not among the simulated engines (${devices.map((d) => d.engineId).join(', ')})`);
@@ -192,9 +196,7 @@ export async function runSimulator(
   const t0 = Date.now();
   const backfillMs = o.backfillDays * 24 * 3600 * 1000;
   const startMs = t0 - backfillMs;
-  const models = devices.map(
-    (d) => new EngineModel(d, { seed: o.seed, startMs, speed: backfillMs > 0 ? 1 : o.speed }),
-  );
+  const models = devices.map((d) => new EngineModel(d, { seed: o.seed, startMs, speed: backfillMs > 0 ? 1 : o.speed }));
   const gw = new Gateway(devices, models, {
     mqttUrl,
     qos: o.qos,

@@ -178,9 +178,7 @@ export class EngineModel {
 
     this.running = this.scheduledRun();
     const ambient = this.trueAmbient();
-    this.tempC =
-      opts.initialTempC ??
-      (this.running ? this.regulatedC() : spec.heaterSetpointC !== null ? Math.max(spec.heaterSetpointC, ambient) : ambient);
+    this.tempC = opts.initialTempC ?? (this.running ? this.regulatedC() : spec.heaterSetpointC !== null ? Math.max(spec.heaterSetpointC, ambient) : ambient);
     this.pressureKpa = this.pressureEquilibrium(this.tempC, 1);
   }
 

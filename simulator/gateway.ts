@@ -114,7 +114,8 @@ export class EngineLink {
     readonly model: EngineModel,
     private readonly gw: Gateway,
   ) {
-    if (gw.opts.protocol === 'sparkplug' && !device.sparkplug) throw new Error(`engine ${device.engineId}: --protocol sparkplug needs a "sparkplug" identity in the devices file`);
+    if (gw.opts.protocol === 'sparkplug' && !device.sparkplug)
+      throw new Error(`engine ${device.engineId}: --protocol sparkplug needs a "sparkplug" identity in the devices file`);
     this.sp = gw.opts.protocol === 'sparkplug' ? new SparkplugEdge(device.sparkplug!) : null;
   }
 
@@ -144,7 +145,11 @@ export class EngineLink {
       reconnectPeriod: 1000,
       connectTimeout: 60_000,
       protocolVersion: 4, // aedes speaks MQTT 3.1.1
-      will: this.sp ? { ...this.sp.will(), qos: 0, retain: false } : o.status ? { topic: statusTopic(id), payload: Buffer.from('offline'), qos: 1, retain: true } : undefined,
+      will: this.sp
+        ? { ...this.sp.will(), qos: 0, retain: false }
+        : o.status
+          ? { topic: statusTopic(id), payload: Buffer.from('offline'), qos: 1, retain: true }
+          : undefined,
     });
     this.client = client;
     const sp = this.sp;

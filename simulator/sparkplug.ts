@@ -39,7 +39,10 @@ export class SparkplugEdge {
 
   /** The MQTT will: the broker publishes it when the connection drops. */
   will(): { topic: string; payload: Buffer } {
-    return { topic: sparkplugTopic(this.id.groupId, 'NDEATH', this.id.edgeNodeId), payload: Buffer.from(encodeSparkplugPayload({ timestamp: Date.now(), metrics: [this.bdSeqMetric()] })) };
+    return {
+      topic: sparkplugTopic(this.id.groupId, 'NDEATH', this.id.edgeNodeId),
+      payload: Buffer.from(encodeSparkplugPayload({ timestamp: Date.now(), metrics: [this.bdSeqMetric()] })),
+    };
   }
 
   commandTopic(): string {
@@ -55,21 +58,37 @@ export class SparkplugEdge {
   /** NBIRTH (seq 0) and, for a device, DBIRTH; `last` gives the current values. */
   births(last: Sample | null): Array<{ topic: string; payload: Buffer }> {
     this.seq = 0;
-    const channels: OutMetric[] = CHANNEL_KEYS.map((key, i) => ({ name: key, alias: aliasOf(i), datatype: DataType.Double, value: last?.values[key], unit: CHANNELS[key].unit }));
+    const channels: OutMetric[] = CHANNEL_KEYS.map((key, i) => ({
+      name: key,
+      alias: aliasOf(i),
+      datatype: DataType.Double,
+      value: last?.values[key],
+      unit: CHANNELS[key].unit,
+    }));
     const control: OutMetric[] = [this.bdSeqMetric(), { name: 'Node Control/Rebirth', datatype: DataType.Boolean, value: false }];
     const ts = last?.ts ?? Date.now();
     const { groupId, edgeNodeId } = this.id;
     if (!this.device) {
-      return [{ topic: sparkplugTopic(groupId, 'NBIRTH', edgeNodeId), payload: Buffer.from(encodeSparkplugPayload({ timestamp: ts, seq: 0, metrics: [...control, ...channels] })) }];
+      return [
+        {
+          topic: sparkplugTopic(groupId, 'NBIRTH', edgeNodeId),
+          payload: Buffer.from(encodeSparkplugPayload({ timestamp: ts, seq: 0, metrics: [...control, ...channels] })),
+        },
+      ];
     }
     return [
       { topic: sparkplugTopic(groupId, 'NBIRTH', edgeNodeId), payload: Buffer.from(encodeSparkplugPayload({ timestamp: ts, seq: 0, metrics: control })) },
-      { topic: sparkplugTopic(groupId, 'DBIRTH', edgeNodeId, this.device), payload: Buffer.from(encodeSparkplugPayload({ timestamp: ts, seq: this.nextSeq(), metrics: channels })) },
+      {
+        topic: sparkplugTopic(groupId, 'DBIRTH', edgeNodeId, this.device),
+        payload: Buffer.from(encodeSparkplugPayload({ timestamp: ts, seq: this.nextSeq(), metrics: channels })),
+      },
     ];
   }
 
   dataTopic(): string {
-    return this.device ? sparkplugTopic(this.id.groupId, 'DDATA', this.id.edgeNodeId, this.device) : sparkplugTopic(this.id.groupId, 'NDATA', this.id.edgeNodeId);
+    return this.device
+      ? sparkplugTopic(this.id.groupId, 'DDATA', this.id.edgeNodeId, this.device)
+      : sparkplugTopic(this.id.groupId, 'NDATA', this.id.edgeNodeId);
   }
 
   /** One data message: every sample's values by alias only, each metric with its own timestamp. */

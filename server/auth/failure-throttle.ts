@@ -6,7 +6,10 @@ export class FailureThrottle {
   private readonly hits = new Map<string, number[]>();
   private lastSweep = Date.now();
 
-  constructor(private readonly limit: number, private readonly windowMs: number) {}
+  constructor(
+    private readonly limit: number,
+    private readonly windowMs: number,
+  ) {}
 
   blocked(key: string, now = Date.now()): boolean {
     return this.recent(key, now).length >= this.limit;

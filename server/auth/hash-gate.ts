@@ -13,20 +13,26 @@ export class HashGate {
   /** Address -> until when it counts as suspect (a check from it failed). */
   private readonly suspect = new Map<string, number>();
 
-  constructor(private readonly concurrency = 2, private readonly maxWaitingPerKey = 200, private readonly suspectMs = 15 * 60_000) {}
+  constructor(
+    private readonly concurrency = 2,
+    private readonly maxWaitingPerKey = 200,
+    private readonly suspectMs = 15 * 60_000,
+  ) {}
 
   /** Runs `job` (a password check: true when it matched) when a slot is free; rejects at once when this address already has too many waiting. */
   run(key: string, job: () => Promise<boolean>): Promise<boolean> {
     return new Promise<boolean>((resolve, reject) => {
       const start = () => {
         this.running++;
-        job().then((ok) => {
-          if (!ok) this.markSuspect(key);
-          resolve(ok);
-        }, reject).finally(() => {
-          this.running--;
-          this.next();
-        });
+        job()
+          .then((ok) => {
+            if (!ok) this.markSuspect(key);
+            resolve(ok);
+          }, reject)
+          .finally(() => {
+            this.running--;
+            this.next();
+          });
       };
       if (this.running < this.concurrency && this.turn.length === 0) return start();
       let q = this.queues.get(key);
@@ -64,7 +70,8 @@ export class HashGate {
       const key = this.turn.splice(at, 1)[0];
       const q = this.queues.get(key)!;
       const job = q.shift()!;
-      if (q.length) this.turn.push(key); // back of the line: others go first
+      if (q.length)
+        this.turn.push(key); // back of the line: others go first
       else this.queues.delete(key);
       job();
     }

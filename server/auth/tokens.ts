@@ -15,7 +15,13 @@ const ISSUER = 'jacketwatch';
 export function createTokenService(secret: string, expiresInSeconds = 12 * 3600): TokenService {
   return {
     lifetimeS: expiresInSeconds,
-    sign: (user) => jwt.sign({ email: user.email, role: user.role, sv: user.sv ?? 0 }, secret, { subject: String(user.id), issuer: ISSUER, expiresIn: expiresInSeconds, algorithm: 'HS256' }),
+    sign: (user) =>
+      jwt.sign({ email: user.email, role: user.role, sv: user.sv ?? 0 }, secret, {
+        subject: String(user.id),
+        issuer: ISSUER,
+        expiresIn: expiresInSeconds,
+        algorithm: 'HS256',
+      }),
     verify(token) {
       if (!token) return null;
       try {

@@ -69,7 +69,14 @@ export class EngineLeases {
   }
 
   state(): LeaseState {
-    return { connected: this.client !== null, members: this.members, owned: this.owned.size, ownedPartitions: this.ownedPartitions(), partitions: LEASE_PARTITIONS, lastError: this.lastError };
+    return {
+      connected: this.client !== null,
+      members: this.members,
+      owned: this.owned.size,
+      ownedPartitions: this.ownedPartitions(),
+      partitions: LEASE_PARTITIONS,
+      lastError: this.lastError,
+    };
   }
 
   private round(): Promise<void> {
@@ -89,7 +96,12 @@ export class EngineLeases {
   private async connect(): Promise<Client> {
     if (this.client) return this.client;
     // keepalives: a server on another machine that vanishes without closing its connection is noticed
-    const client = new Client({ connectionString: this.opts.databaseUrl, keepAlive: true, keepAliveInitialDelayMillis: 5000, application_name: 'jacketwatch-leases' });
+    const client = new Client({
+      connectionString: this.opts.databaseUrl,
+      keepAlive: true,
+      keepAliveInitialDelayMillis: 5000,
+      application_name: 'jacketwatch-leases',
+    });
     client.on('error', (err) => {
       this.lastError = err.message;
       this.opts.log.warn(`engine leases: connection lost (${err.message})`);

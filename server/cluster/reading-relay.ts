@@ -15,14 +15,23 @@ export const RELAY_EVENT = 'jw:readings';
 const RELAY_WINDOW_MS = 20;
 const RELAY_MAX_READINGS = 180;
 
-export interface RelayCounters { sentReadings: number; sentMessages: number; receivedReadings: number; badMessages: number }
+export interface RelayCounters {
+  sentReadings: number;
+  sentMessages: number;
+  receivedReadings: number;
+  badMessages: number;
+}
 
 export class ReadingRelay {
   private flat: number[] = [];
   private timer: NodeJS.Timeout | null = null;
   readonly counters: RelayCounters = { sentReadings: 0, sentMessages: 0, receivedReadings: 0, badMessages: 0 };
 
-  constructor(private readonly io: Server, private readonly log: Logger, onPeerReadings: (batch: AcceptedReading[]) => void) {
+  constructor(
+    private readonly io: Server,
+    private readonly log: Logger,
+    onPeerReadings: (batch: AcceptedReading[]) => void,
+  ) {
     io.on(RELAY_EVENT, (flat: unknown) => {
       const batch = decode(flat);
       if (!batch) {

@@ -87,8 +87,11 @@ export async function dropReadingPartitionsBefore(sequelize: Sequelize, cutoffMs
 
 export async function isPartitioned(sequelize: Sequelize, transaction?: Transaction): Promise<boolean> {
   if (!isPostgres(sequelize)) return false;
-  const rows = await sequelize.query(`SELECT 1 FROM pg_partitioned_table WHERE partrelid = to_regclass('readings')`,
-    { type: QueryTypes.SELECT, transaction, logging: false });
+  const rows = await sequelize.query(`SELECT 1 FROM pg_partitioned_table WHERE partrelid = to_regclass('readings')`, {
+    type: QueryTypes.SELECT,
+    transaction,
+    logging: false,
+  });
   return rows.length > 0;
 }
 

@@ -27,8 +27,13 @@ export class Device extends Model<InferAttributes<Device>, InferCreationAttribut
     const { sparkplugGroupId, sparkplugEdgeNodeId, sparkplugDeviceId, sparkplugMetricMap, ...plain } = this.get({ plain: true });
     const rest: Partial<typeof plain> = plain;
     delete rest.secretHash;
-    const sparkplug = sparkplugGroupId && sparkplugEdgeNodeId ? { groupId: sparkplugGroupId, edgeNodeId: sparkplugEdgeNodeId, deviceId: sparkplugDeviceId ?? null } : null;
-    return { ...(rest as Omit<typeof plain, 'secretHash'>), sparkplug, metricMap: sparkplugMetricMap ? (JSON.parse(sparkplugMetricMap) as Record<string, unknown>) : null };
+    const sparkplug =
+      sparkplugGroupId && sparkplugEdgeNodeId ? { groupId: sparkplugGroupId, edgeNodeId: sparkplugEdgeNodeId, deviceId: sparkplugDeviceId ?? null } : null;
+    return {
+      ...(rest as Omit<typeof plain, 'secretHash'>),
+      sparkplug,
+      metricMap: sparkplugMetricMap ? (JSON.parse(sparkplugMetricMap) as Record<string, unknown>) : null,
+    };
   }
 }
 

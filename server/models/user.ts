@@ -28,7 +28,14 @@ export function initUser(sequelize: Sequelize): typeof User {
   return User.init(
     {
       id: { type: DataTypes.INTEGER, primaryKey: true, autoIncrement: true },
-      email: { type: DataTypes.STRING(254), allowNull: false, unique: true, set(v: string) { this.setDataValue('email', v.trim().toLowerCase()); } },
+      email: {
+        type: DataTypes.STRING(254),
+        allowNull: false,
+        unique: true,
+        set(v: string) {
+          this.setDataValue('email', v.trim().toLowerCase());
+        },
+      },
       name: { type: DataTypes.STRING(120), allowNull: false },
       passwordHash: { type: DataTypes.STRING(100), allowNull: false },
       role: { type: DataTypes.STRING(16), allowNull: false, validate: { isIn: [ROLES as unknown as string[]] } },

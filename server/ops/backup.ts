@@ -28,7 +28,8 @@ export async function backup(config: Pick<Config, 'dataDir' | 'databaseUrl'>, ou
   const source = sqliteFileOf(config);
   const file = path.resolve(out);
   if (!fs.existsSync(source)) throw new Error(`no database at ${source} (check DATA_DIR or DATABASE_URL)`);
-  if (fs.existsSync(file) || fs.existsSync(uploadsBeside(file))) throw new Error(`${file} or ${uploadsBeside(file)} exists already: choose a new name, nothing was overwritten`);
+  if (fs.existsSync(file) || fs.existsSync(uploadsBeside(file)))
+    throw new Error(`${file} or ${uploadsBeside(file)} exists already: choose a new name, nothing was overwritten`);
   fs.mkdirSync(path.dirname(file), { recursive: true });
   const partial = `${file}.partial`;
   fs.rmSync(partial, { force: true });

@@ -21,7 +21,8 @@ export async function checkBackup(from: string): Promise<BackupSummary> {
   try {
     const summary = await summarise(db);
     if (summary.integrity !== 'ok') throw new Error(`${file} failed its integrity check: ${summary.integrity}`);
-    if (!summary.migrations.length || summary.rows.readings === undefined) throw new Error(`${file} is not a Jacketwatch database (no migrations or readings table)`);
+    if (!summary.migrations.length || summary.rows.readings === undefined)
+      throw new Error(`${file} is not a Jacketwatch database (no migrations or readings table)`);
     return summary;
   } catch (err) {
     if ((err as { code?: string }).code === 'SQLITE_NOTADB') throw new Error(`${file} is not a SQLite database`);

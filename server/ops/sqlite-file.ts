@@ -5,7 +5,9 @@ import type { Config } from '../config';
 export function sqliteFileOf(config: Pick<Config, 'databaseUrl'>): string {
   const m = /^sqlite:(?:\/\/)?(.+)$/.exec(config.databaseUrl);
   if (!m || m[1] === ':memory:') {
-    throw new Error(`backup and restore handle a SQLite file only; DATABASE_URL is "${config.databaseUrl.replace(/\/\/[^@]*@/, '//***@')}" (use the database's own dump tool)`);
+    throw new Error(
+      `backup and restore handle a SQLite file only; DATABASE_URL is "${config.databaseUrl.replace(/\/\/[^@]*@/, '//***@')}" (use the database's own dump tool)`,
+    );
   }
   return m[1];
 }
@@ -54,11 +56,15 @@ export interface BackupSummary {
 /** What a database file holds, and whether SQLite finds it sound: used to check a backup. */
 export async function summarise(db: SqliteFile): Promise<BackupSummary> {
   const check = await db.all<{ integrity_check: string }>('PRAGMA integrity_check');
-  const integrity = check.map((r) => r.integrity_check).slice(0, 10).join('; ');
+  const integrity = check
+    .map((r) => r.integrity_check)
+    .slice(0, 10)
+    .join('; ');
   const tables = await db.all<{ name: string }>("SELECT name FROM sqlite_master WHERE type = 'table' AND name NOT LIKE 'sqlite_%' ORDER BY name");
   const rows: Record<string, number> = {};
   for (const { name } of tables) rows[name] = (await db.all<{ n: number }>(`SELECT COUNT(*) AS n FROM "${name.replace(/"/g, '""')}"`))[0].n;
   const newest = rows.readings !== undefined ? (await db.all<{ ts: number | null }>('SELECT MAX(ts) AS ts FROM readings'))[0].ts : null;
-  const migrations = rows.schema_migrations !== undefined ? (await db.all<{ name: string }>('SELECT name FROM schema_migrations ORDER BY name')).map((r) => r.name) : [];
+  const migrations =
+    rows.schema_migrations !== undefined ? (await db.all<{ name: string }>('SELECT name FROM schema_migrations ORDER BY name')).map((r) => r.name) : [];
   return { integrity, rows, newestReadingTs: newest, migrations };
 }

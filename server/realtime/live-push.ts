@@ -42,7 +42,11 @@ const watchSchema = z.object({
   engineIds: z.array(z.number().int().positive()).max(5000).optional(),
 });
 
-interface Pending { values: Partial<Record<ChannelKey, LatestValue>>; timer: NodeJS.Timeout | null; dirty: boolean }
+interface Pending {
+  values: Partial<Record<ChannelKey, LatestValue>>;
+  timer: NodeJS.Timeout | null;
+  dirty: boolean;
+}
 
 const SITE_CACHE_MS = 60_000;
 
@@ -69,11 +73,14 @@ export class LivePush {
         const user = token ? opts.verifyToken(token) : null;
         if (!user) return next(new Error('unauthorized'));
         const valid = opts.sessionValid ? opts.sessionValid(user) : Promise.resolve(true);
-        valid.then((ok) => {
-          if (!ok) return next(new Error('unauthorized'));
-          socket.data.user = user;
-          next();
-        }, () => next(new Error('unauthorized')));
+        valid.then(
+          (ok) => {
+            if (!ok) return next(new Error('unauthorized'));
+            socket.data.user = user;
+            next();
+          },
+          () => next(new Error('unauthorized')),
+        );
       } catch {
         next(new Error('unauthorized'));
       }
@@ -108,12 +115,15 @@ export class LivePush {
       const reply = typeof ack === 'function' ? (ack as (x: unknown) => void) : () => undefined;
       if (!parsed.success) return reply({ error: 'watch takes { fleet?, alarms?, siteIds?, engineIds? }' });
       socket.data.watch = parsed.data;
-      this.applyWatch(socket, parsed.data).then((rooms) => {
-        if (rooms) reply({ rooms });
-      }, (err) => {
-        this.opts.log.warn('live push: watch failed', err instanceof Error ? err.message : err);
-        reply({ error: 'watch failed' });
-      });
+      this.applyWatch(socket, parsed.data).then(
+        (rooms) => {
+          if (rooms) reply({ rooms });
+        },
+        (err) => {
+          this.opts.log.warn('live push: watch failed', err instanceof Error ? err.message : err);
+          reply({ error: 'watch failed' });
+        },
+      );
     });
   }
 
@@ -192,7 +202,10 @@ export class LivePush {
         this.pending.set(r.engineId, p);
       }
       const prev = p.values[r.channel];
-      if (!prev || r.ts >= prev.ts) { p.values[r.channel] = { value: r.value, ts: r.ts, quality: r.quality }; p.dirty = true; }
+      if (!prev || r.ts >= prev.ts) {
+        p.values[r.channel] = { value: r.value, ts: r.ts, quality: r.quality };
+        p.dirty = true;
+      }
       // a batch is nearly always one engine's: send on its last reading, or when the engine changes
       const next = readings[i + 1];
       if ((!next || next.engineId !== r.engineId) && p.dirty && !p.timer) this.send(r.engineId, p); // leading edge
@@ -207,7 +220,8 @@ export class LivePush {
     p.dirty = false;
     p.timer = setTimeout(() => {
       p.timer = null;
-      if (p.dirty) this.send(engineId, p); // trailing flush, re-arms the window
+      if (p.dirty)
+        this.send(engineId, p); // trailing flush, re-arms the window
       else this.pending.delete(engineId);
     }, this.throttleMs);
     let ts = 0;
@@ -216,13 +230,16 @@ export class LivePush {
     if (cached && cached.until > Date.now()) {
       this.deliver({ engineId, siteId: cached.siteId, ts, values });
     } else {
-      this.opts.siteOfEngine(engineId).then((siteId) => {
-        this.sites.set(engineId, { siteId, until: Date.now() + SITE_CACHE_MS });
-        this.deliver({ engineId, siteId, ts, values });
-      }, (err) => {
-        this.opts.log.warn('live push: site lookup failed', err instanceof Error ? err.message : err);
-        this.deliver({ engineId, siteId: null, ts, values });
-      });
+      this.opts.siteOfEngine(engineId).then(
+        (siteId) => {
+          this.sites.set(engineId, { siteId, until: Date.now() + SITE_CACHE_MS });
+          this.deliver({ engineId, siteId, ts, values });
+        },
+        (err) => {
+          this.opts.log.warn('live push: site lookup failed', err instanceof Error ? err.message : err);
+          this.deliver({ engineId, siteId: null, ts, values });
+        },
+      );
     }
   }
 

@@ -12,7 +12,10 @@ import { parse } from './validate';
 // over 72 bytes bcrypt would ignore the tail: refused rather than silently truncated
 const loginBody = z.object({
   email: z.string().trim().min(1).max(254),
-  password: z.string().min(1).refine((p) => Buffer.byteLength(p, 'utf8') <= PASSWORD_MAX_BYTES, `at most ${PASSWORD_MAX_BYTES} bytes`),
+  password: z
+    .string()
+    .min(1)
+    .refine((p) => Buffer.byteLength(p, 'utf8') <= PASSWORD_MAX_BYTES, `at most ${PASSWORD_MAX_BYTES} bytes`),
   /**
    * `cookie`: the browser app's sign-in. The token is set as an httpOnly cookie and not put in the
    * answer, so page script never sees it. `token` (default): API clients get the bearer token.

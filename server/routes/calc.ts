@@ -2,9 +2,20 @@ import { Router } from 'express';
 import { z } from 'zod';
 import { ELEVATION_MAX_M, ELEVATION_MIN_M, standardAtmosphereKpa } from '../../shared/atmosphere';
 import {
-  assessFreezeProtection, boilingPointC, checkMakeUpWater, CONCENTRATION_BASES, COOLANT_CAUTIONS, COOLANT_FAMILIES,
-  CoolantInputError, correctMix, decideAdditive, GLYCOL_TYPES, initialChargeAfterRefill, percentForFreezePoint,
-  freezeTable, tableMaxPercent,
+  assessFreezeProtection,
+  boilingPointC,
+  checkMakeUpWater,
+  CONCENTRATION_BASES,
+  COOLANT_CAUTIONS,
+  COOLANT_FAMILIES,
+  CoolantInputError,
+  correctMix,
+  decideAdditive,
+  GLYCOL_TYPES,
+  initialChargeAfterRefill,
+  percentForFreezePoint,
+  freezeTable,
+  tableMaxPercent,
 } from '../../shared/coolant';
 import { KPA_PER_ATM } from '../../shared/units';
 import type { AppContext } from '../app-context';
@@ -27,22 +38,36 @@ const additiveBody = z.strictObject({
 const freezeBody = z.strictObject({ glycol, percent: num, basis: basis.default('volume') });
 const glycolNeededBody = z.strictObject({ glycol, freezePointC: num, basis: basis.default('volume') });
 const boilingBody = z.strictObject({
-  gaugePressureKpa: num, glycol, percent: num, basis: basis.default('volume'),
+  gaugePressureKpa: num,
+  glycol,
+  percent: num,
+  basis: basis.default('volume'),
   /** Measured atmospheric pressure (kPa absolute), or the site's elevation for the ICAO standard atmosphere. */
   atmosphereKpa: num.optional(),
   elevationM: num.min(ELEVATION_MIN_M).max(ELEVATION_MAX_M).optional(),
 });
 const mixBody = z.strictObject({
-  capacityL: num, measuredPercent: num, targetPercent: num, premixPercent: num.optional(),
-  scaUnitsPerGal: num.optional(), liquidUnitsPerLitre: num.optional(),
+  capacityL: num,
+  measuredPercent: num,
+  targetPercent: num,
+  premixPercent: num.optional(),
+  scaUnitsPerGal: num.optional(),
+  liquidUnitsPerLitre: num.optional(),
 });
 const waterBody = z.strictObject({
-  chlorideMgL: num.optional(), sulfateMgL: num.optional(), hardnessMgLCaCO3: num.optional(),
-  tdsMgL: num.optional(), pH: num.optional(), conductivityUsCm: num.optional(),
+  chlorideMgL: num.optional(),
+  sulfateMgL: num.optional(),
+  hardnessMgLCaCO3: num.optional(),
+  tdsMgL: num.optional(),
+  pH: num.optional(),
+  conductivityUsCm: num.optional(),
 });
 const chargeBody = z.strictObject({
-  capacityL: num, targetUnitsPerGal: num.optional(), upperUnitsPerGal: num.optional(),
-  filterPrechargeUnits: num.default(0), liquidUnitsPerLitre: num.optional(),
+  capacityL: num,
+  targetUnitsPerGal: num.optional(),
+  upperUnitsPerGal: num.optional(),
+  filterPrechargeUnits: num.default(0),
+  liquidUnitsPerLitre: num.optional(),
 });
 
 /** Run a shared computation; its CoolantInputError becomes a 400 naming the request field (renamed where the API's name differs). */
@@ -70,7 +95,9 @@ export function calcRouter(ctx: AppContext): Router {
     const b = parse(additiveBody, req.body);
     const profile = await getAdditiveProfile(ctx.models);
     const limits = { ...profile.limits, ...(b.limits ?? {}) };
-    const decision = computeOr400(() => decideAdditive({ coolantFamily: b.coolantFamily, scaUnitsPerGal: b.scaUnitsPerGal ?? null, capacityL: b.capacityL, limits }));
+    const decision = computeOr400(() =>
+      decideAdditive({ coolantFamily: b.coolantFamily, scaUnitsPerGal: b.scaUnitsPerGal ?? null, capacityL: b.capacityL, limits }),
+    );
     res.json({ ...decision, coolantCautions: cautionsOf('hot-pressure', 'protective-gear', 'defer') });
   });
 
@@ -86,8 +113,13 @@ export function calcRouter(ctx: AppContext): Router {
     const warnings: string[] = [];
     if (percent > 60) warnings.push('Above about 60 % glycol, more glycol protects less: choose a milder design temperature or another glycol.');
     res.json({
-      glycol: b.glycol, basis: b.basis, freezePointC: b.freezePointC, percent,
-      tableMaxPercent: tableMaxPercent(b.glycol, b.basis), warnings, source: freezeTable(b.glycol).source,
+      glycol: b.glycol,
+      basis: b.basis,
+      freezePointC: b.freezePointC,
+      percent,
+      tableMaxPercent: tableMaxPercent(b.glycol, b.basis),
+      warnings,
+      source: freezeTable(b.glycol).source,
       coolantCautions: cautionsOf('glycol-toxic', 'defer'),
     });
   });
@@ -97,12 +129,23 @@ export function calcRouter(ctx: AppContext): Router {
     if (b.atmosphereKpa !== undefined && b.elevationM !== undefined) throw badRequest('give either atmosphereKpa or elevationM, not both', 'elevationM');
     const atm = b.atmosphereKpa ?? (b.elevationM !== undefined ? standardAtmosphereKpa(b.elevationM) : KPA_PER_ATM);
     const atmosphereSource =
-      b.atmosphereKpa !== undefined ? 'given' : b.elevationM !== undefined ? `ICAO standard atmosphere at ${b.elevationM} m (ICAO Doc 7488)` : 'sea level (101.325 kPa)';
+      b.atmosphereKpa !== undefined
+        ? 'given'
+        : b.elevationM !== undefined
+          ? `ICAO standard atmosphere at ${b.elevationM} m (ICAO Doc 7488)`
+          : 'sea level (101.325 kPa)';
     const t = computeOr400(() => boilingPointC(b.gaugePressureKpa, b.glycol, b.percent, b.basis, atm), { gaugeKpa: 'gaugePressureKpa' });
     res.json({
-      boilingPointC: t, gaugePressureKpa: b.gaugePressureKpa, absolutePressureKpa: b.gaugePressureKpa + atm, atmosphereKpa: atm, atmosphereSource,
-      ...(b.elevationM !== undefined ? { elevationM: b.elevationM } : {}), glycol: b.glycol, percent: b.percent, basis: b.basis,
-      method: 'IAPWS-IF97 water saturation line with Raoult\'s law on the water mole fraction (ideal solution; about a degree or two at 30-60 % mixes)',
+      boilingPointC: t,
+      gaugePressureKpa: b.gaugePressureKpa,
+      absolutePressureKpa: b.gaugePressureKpa + atm,
+      atmosphereKpa: atm,
+      atmosphereSource,
+      ...(b.elevationM !== undefined ? { elevationM: b.elevationM } : {}),
+      glycol: b.glycol,
+      percent: b.percent,
+      basis: b.basis,
+      method: "IAPWS-IF97 water saturation line with Raoult's law on the water mole fraction (ideal solution; about a degree or two at 30-60 % mixes)",
       warnings: b.gaugePressureKpa > 0 ? ['The cap holds this pressure only while it seals: a worn cap or a leak lowers the boiling point.'] : [],
       coolantCautions: cautionsOf('hot-pressure', 'defer'),
     });
@@ -112,7 +155,10 @@ export function calcRouter(ctx: AppContext): Router {
     const b = parse(mixBody, req.body);
     // The dose to restore the additive needs the liquid's strength: from the request, else the additive profile.
     const strength = b.liquidUnitsPerLitre ?? (await getAdditiveProfile(ctx.models)).liquidUnitsPerLitre ?? undefined;
-    res.json({ ...computeOr400(() => correctMix({ ...b, liquidUnitsPerLitre: strength })), coolantCautions: cautionsOf('hot-pressure', 'glycol-toxic', 'disposal', 'defer') });
+    res.json({
+      ...computeOr400(() => correctMix({ ...b, liquidUnitsPerLitre: strength })),
+      coolantCautions: cautionsOf('hot-pressure', 'glycol-toxic', 'disposal', 'defer'),
+    });
   });
 
   r.post('/calc/make-up-water', (req, res) => {
@@ -124,11 +170,18 @@ export function calcRouter(ctx: AppContext): Router {
     const b = parse(chargeBody, req.body);
     const profile = await getAdditiveProfile(ctx.models);
     const strength = b.liquidUnitsPerLitre ?? profile.liquidUnitsPerLitre;
-    if (strength === null) throw badRequest('liquidUnitsPerLitre: give the strength from the additive label, or have an administrator set the additive profile', 'liquidUnitsPerLitre');
+    if (strength === null)
+      throw badRequest(
+        'liquidUnitsPerLitre: give the strength from the additive label, or have an administrator set the additive profile',
+        'liquidUnitsPerLitre',
+      );
     const out = computeOr400(() =>
       initialChargeAfterRefill({
-        capacityL: b.capacityL, filterPrechargeUnits: b.filterPrechargeUnits, liquidUnitsPerLitre: strength,
-        targetUnitsPerGal: b.targetUnitsPerGal ?? profile.limits.low, upperUnitsPerGal: b.upperUnitsPerGal ?? profile.limits.high,
+        capacityL: b.capacityL,
+        filterPrechargeUnits: b.filterPrechargeUnits,
+        liquidUnitsPerLitre: strength,
+        targetUnitsPerGal: b.targetUnitsPerGal ?? profile.limits.low,
+        upperUnitsPerGal: b.upperUnitsPerGal ?? profile.limits.high,
       }),
     );
     res.json({ ...out, liquidUnitsPerLitre: strength, coolantCautions: cautionsOf('hot-pressure', 'protective-gear', 'defer') });

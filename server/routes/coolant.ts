@@ -39,13 +39,21 @@ const testBody = z.strictObject({
   appearance: z.string().trim().max(200).nullable().default(null),
   notes: z.string().trim().max(2000).nullable().default(null),
 });
-const limitsBody = z.strictObject({
-  nitriteLowPpm: range(0, 100000, 'ppm'), nitriteHighPpm: range(0, 100000, 'ppm'),
-  molybdateLowPpm: range(0, 100000, 'ppm'), molybdateHighPpm: range(0, 100000, 'ppm'),
-  phLow: range(0, 14, ''), phHigh: range(0, 14, ''),
-  reserveAlkalinityLowMl: range(0, 100, 'mL'), freezeMarginK: range(0, 30, 'K'),
-  extender: z.strictObject({ everyHours: range(1, 100000, 'h').nullable().default(null), everyDays: range(1, 3650, 'days').nullable().default(null) }).nullable(),
-}).partial();
+const limitsBody = z
+  .strictObject({
+    nitriteLowPpm: range(0, 100000, 'ppm'),
+    nitriteHighPpm: range(0, 100000, 'ppm'),
+    molybdateLowPpm: range(0, 100000, 'ppm'),
+    molybdateHighPpm: range(0, 100000, 'ppm'),
+    phLow: range(0, 14, ''),
+    phHigh: range(0, 14, ''),
+    reserveAlkalinityLowMl: range(0, 100, 'mL'),
+    freezeMarginK: range(0, 30, 'K'),
+    extender: z
+      .strictObject({ everyHours: range(1, 100000, 'h').nullable().default(null), everyDays: range(1, 3650, 'days').nullable().default(null) })
+      .nullable(),
+  })
+  .partial();
 const topUpBody = z.strictObject({
   addedAt: instant.optional(),
   volumeL: z.number().gt(0, 'above 0 L').max(10000, 'at most 10000 L'),
@@ -54,13 +62,15 @@ const topUpBody = z.strictObject({
   notes: z.string().trim().max(500).nullable().default(null),
 });
 const runHoursBody = z.strictObject({ runHours: range(0, 1_000_000, 'h'), reason: z.string().trim().min(3, 'say why (at least 3 characters)').max(500) });
-const profileBody = z.strictObject({
-  name: z.string().trim().min(1).max(80),
-  liquidUnitsPerLitre: z.number().gt(0, 'above 0 units/L').max(100000, 'at most 100000 units/L'),
-  filterSizes: z.array(z.strictObject({ label: z.string().trim().min(1).max(60), prechargeUnits: range(0, 100000, 'units') })).max(20),
-  scaLow: range(0, 100, 'units/US gal').default(1.2),
-  scaHigh: range(0, 100, 'units/US gal').default(3.0),
-}).refine((p) => p.scaHigh > p.scaLow, { message: 'must be above scaLow', path: ['scaHigh'] });
+const profileBody = z
+  .strictObject({
+    name: z.string().trim().min(1).max(80),
+    liquidUnitsPerLitre: z.number().gt(0, 'above 0 units/L').max(100000, 'at most 100000 units/L'),
+    filterSizes: z.array(z.strictObject({ label: z.string().trim().min(1).max(60), prechargeUnits: range(0, 100000, 'units') })).max(20),
+    scaLow: range(0, 100, 'units/US gal').default(1.2),
+    scaHigh: range(0, 100, 'units/US gal').default(3.0),
+  })
+  .refine((p) => p.scaHigh > p.scaLow, { message: 'must be above scaLow', path: ['scaHigh'] });
 const overrideBody = z.strictObject({
   title: z.string().trim().min(1).max(200).nullable().optional(),
   everyHours: range(1, 100000, 'h').nullable().optional(),
@@ -99,7 +109,17 @@ export function coolantRouter(ctx: AppContext): Router {
   addOpenApiGroup(coolantOpenApi);
   const r = Router();
   const m = ctx.models;
-  for (const p of ['/engines/:id/coolant-tests', '/engines/:id/coolant-top-ups', '/engines/:id/run-hours', '/engines/:id/service-plan', '/coolant-tests', '/additive-profile', '/coolant-limits', '/due-list']) r.use(p, requireAuth);
+  for (const p of [
+    '/engines/:id/coolant-tests',
+    '/engines/:id/coolant-top-ups',
+    '/engines/:id/run-hours',
+    '/engines/:id/service-plan',
+    '/coolant-tests',
+    '/additive-profile',
+    '/coolant-limits',
+    '/due-list',
+  ])
+    r.use(p, requireAuth);
   // an engine of a site the caller may not see reads as not found
   for (const p of ['/engines/:id/coolant-tests', '/engines/:id/coolant-top-ups', '/engines/:id/run-hours', '/engines/:id/service-plan']) {
     r.use(p, async (req, _res, next) => {
@@ -175,7 +195,17 @@ export function coolantRouter(ctx: AppContext): Router {
   r.get('/due-list', async (req, res) => {
     const q = parse(dueQuery, req.query);
     const siteIds = siteFilter(await siteScopeOf(req), q.siteId) ?? undefined;
-    res.json(await computeDueList(m, { siteId: q.siteId, siteIds, engineId: q.engineId, windowDays: q.windowDays, windowHours: q.windowHours, includeOk: q.include === 'all', now: Date.now() }));
+    res.json(
+      await computeDueList(m, {
+        siteId: q.siteId,
+        siteIds,
+        engineId: q.engineId,
+        windowDays: q.windowDays,
+        windowHours: q.windowHours,
+        includeOk: q.include === 'all',
+        now: Date.now(),
+      }),
+    );
   });
   return r;
 }

@@ -11,19 +11,23 @@ const sparkplugId = z.string().regex(SPARKPLUG_ID_PATTERN, '1-64 letters, digits
 
 const createBody = z.strictObject({
   engineId: z.number().int().positive(),
-  username: z.string().regex(/^[A-Za-z0-9._-]{3,64}$/, '3-64 letters, digits, dot, dash or underscore').optional(),
-  sparkplug: z.strictObject({
-    groupId: sparkplugId,
-    edgeNodeId: sparkplugId,
-    deviceId: sparkplugId.optional(),
-  }).optional(),
+  username: z
+    .string()
+    .regex(/^[A-Za-z0-9._-]{3,64}$/, '3-64 letters, digits, dot, dash or underscore')
+    .optional(),
+  sparkplug: z
+    .strictObject({
+      groupId: sparkplugId,
+      edgeNodeId: sparkplugId,
+      deviceId: sparkplugId.optional(),
+    })
+    .optional(),
 });
 
 const channelKey = z.enum(CHANNEL_KEYS as [ChannelKey, ...ChannelKey[]]);
-const metricMapBody = z.record(
-  z.string().min(1).max(200),
-  z.union([channelKey, z.strictObject({ channel: channelKey, unit: z.string().min(1).max(16).optional() })]),
-).refine((m) => Object.keys(m).length <= 500, 'at most 500 entries');
+const metricMapBody = z
+  .record(z.string().min(1).max(200), z.union([channelKey, z.strictObject({ channel: channelKey, unit: z.string().min(1).max(16).optional() })]))
+  .refine((m) => Object.keys(m).length <= 500, 'at most 500 entries');
 
 export function devicesRouter(ctx: AppContext): Router {
   const r = Router();
@@ -45,7 +49,8 @@ export function devicesRouter(ctx: AppContext): Router {
   r.put('/devices/:id/metric-map', async (req, res) => {
     const device = await setMetricMap(ctx.models, parseId(req.params), parse(metricMapBody, req.body));
     // the new names apply from the next birth: ask the edge node for one now
-    if (!device.revokedAt && device.sparkplugGroupId && device.sparkplugEdgeNodeId) ctx.telemetry?.requestRebirth?.(device.sparkplugGroupId, device.sparkplugEdgeNodeId);
+    if (!device.revokedAt && device.sparkplugGroupId && device.sparkplugEdgeNodeId)
+      ctx.telemetry?.requestRebirth?.(device.sparkplugGroupId, device.sparkplugEdgeNodeId);
     res.json(device);
   });
   r.post('/devices/:id/revoke', async (req, res) => {

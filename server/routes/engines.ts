@@ -63,12 +63,20 @@ export function enginesRouter(ctx: AppContext): Router {
     const q = parse(listQuery, req.query);
     const siteIds = siteFilter(await siteScopeOf(req), q.siteId);
     const engines = await listEngines(ctx.models, { siteIds: siteIds ?? undefined, includeRetired: q.includeRetired === 'true' });
-    const [alarmCounts, readiness, freeze] = await Promise.all([activeAlarmCounts(ctx.models), standbyReadinessOf(ctx.models, engines, live()), freezeStatusOf(ctx.models, engines)]);
+    const [alarmCounts, readiness, freeze] = await Promise.all([
+      activeAlarmCounts(ctx.models),
+      standbyReadinessOf(ctx.models, engines, live()),
+      freezeStatusOf(ctx.models, engines),
+    ]);
     // standby engines carry readiness: { ready, reasons } (reasons in words); engines with a glycol or freeze-point test carry freezeProtection
-    res.json(engines.map((e) => ({
-      ...engineView(e, live()), activeAlarms: alarmCounts.get(e.id) ?? 0,
-      ...(readiness.has(e.id) ? { readiness: readiness.get(e.id) } : {}), ...(freeze.has(e.id) ? { freezeProtection: freeze.get(e.id) } : {}),
-    })));
+    res.json(
+      engines.map((e) => ({
+        ...engineView(e, live()),
+        activeAlarms: alarmCounts.get(e.id) ?? 0,
+        ...(readiness.has(e.id) ? { readiness: readiness.get(e.id) } : {}),
+        ...(freeze.has(e.id) ? { freezeProtection: freeze.get(e.id) } : {}),
+      })),
+    );
   });
   r.get('/engines/:id', async (req, res) => {
     const id = parseId(req.params);
@@ -76,7 +84,12 @@ export function enginesRouter(ctx: AppContext): Router {
     const engine = await getEngine(ctx.models, id);
     const readiness = (await standbyReadinessOf(ctx.models, [engine], live())).get(engine.id);
     const freeze = (await freezeStatusOf(ctx.models, [engine])).get(engine.id);
-    res.json({ ...engineView(engine, live()), activeAlarms: (await activeAlarmCounts(ctx.models)).get(engine.id) ?? 0, ...(readiness ? { readiness } : {}), ...(freeze ? { freezeProtection: freeze } : {}) });
+    res.json({
+      ...engineView(engine, live()),
+      activeAlarms: (await activeAlarmCounts(ctx.models)).get(engine.id) ?? 0,
+      ...(readiness ? { readiness } : {}),
+      ...(freeze ? { freezeProtection: freeze } : {}),
+    });
   });
   r.get('/engines/:id/readings', async (req, res) => {
     const id = parseId(req.params);

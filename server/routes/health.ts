@@ -21,7 +21,13 @@ export function healthRouter(ctx: AppContext): Router {
       uptimeS: Math.round((Date.now() - ctx.startedAt) / 1000),
       version: VERSION,
       ingest: c
-        ? { received: c.received, stored: c.stored, duplicate: c.duplicate, rejected: Object.values(c.rejected).reduce((a, b) => a + b, 0), buffered: c.buffered }
+        ? {
+            received: c.received,
+            stored: c.stored,
+            duplicate: c.duplicate,
+            rejected: Object.values(c.rejected).reduce((a, b) => a + b, 0),
+            buffered: c.buffered,
+          }
         : null,
     });
   });

@@ -24,7 +24,19 @@ export function coreRouters(ctx: AppContext): Router[] {
   docs.get('/openapi.json', (_req, res) => {
     res.json(buildOpenApi());
   });
-  return [docs, healthRouter(ctx), authRouter(ctx), sitesRouter(ctx), enginesRouter(ctx), devicesRouter(ctx), usersRouter(ctx), workOrdersRouter(ctx), calcRouter(ctx), coolantRouter(ctx), engineHistoryRouter(ctx)];
+  return [
+    docs,
+    healthRouter(ctx),
+    authRouter(ctx),
+    sitesRouter(ctx),
+    enginesRouter(ctx),
+    devicesRouter(ctx),
+    usersRouter(ctx),
+    workOrdersRouter(ctx),
+    calcRouter(ctx),
+    coolantRouter(ctx),
+    engineHistoryRouter(ctx),
+  ];
 }
 
 /** The alarm feature's routers (alarms, on-call, rules, mail), mounted by startServer after the core ones. */

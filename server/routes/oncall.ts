@@ -21,7 +21,12 @@ const peopleQuery = z.object({
   // one role or several, comma-separated: ?role=technician,planner
   role: z
     .string()
-    .transform((v) => v.split(',').map((x) => x.trim()).filter(Boolean))
+    .transform((v) =>
+      v
+        .split(',')
+        .map((x) => x.trim())
+        .filter(Boolean),
+    )
     .pipe(z.array(z.enum(ROLES)).min(1, 'name at least one role'))
     .optional(),
 });

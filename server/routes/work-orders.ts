@@ -8,7 +8,15 @@ import { HttpError } from '../http-error';
 import { PART_KINDS } from '../models/work-order-part';
 import { WORK_PRIORITIES, WORK_STATUSES } from '../models/work-order';
 import { WORK_KINDS, WORK_TEMPLATES } from '../services/work-templates';
-import { assertAttachmentVisible, assertEngineVisible, assertWorkOrderVisible, engineVisible, siteScopeOf, visibleEngineIds, visibleUserIds } from '../services/site-access';
+import {
+  assertAttachmentVisible,
+  assertEngineVisible,
+  assertWorkOrderVisible,
+  engineVisible,
+  siteScopeOf,
+  visibleEngineIds,
+  visibleUserIds,
+} from '../services/site-access';
 import { addAttachment, attachmentFile, MAX_ATTACHMENT_BYTES } from '../services/work-orders/attachment-service';
 import { openingCheckOf } from '../services/work-orders/gate';
 import { openingHistoryOf, type ReadingHistory } from '../services/work-orders/reading-history';
@@ -21,10 +29,14 @@ import { WorkOrderService } from '../services/work-orders/work-order-service';
 import { parse, parseId } from './validate';
 
 /** A whole calendar date, YYYY-MM-DD, that exists (no 2026-02-30), in 2000..2100: a half-typed year (0002, 0202) is refused. */
-const dateOnly = z.string().regex(/^\d{4}-\d{2}-\d{2}$/, 'a date YYYY-MM-DD').refine((s) => {
-  const d = new Date(`${s}T00:00:00Z`);
-  return !Number.isNaN(d.getTime()) && d.toISOString().slice(0, 10) === s;
-}, 'not a date').refine((s) => Number(s.slice(0, 4)) >= 2000 && Number(s.slice(0, 4)) <= 2100, 'a year from 2000 to 2100');
+const dateOnly = z
+  .string()
+  .regex(/^\d{4}-\d{2}-\d{2}$/, 'a date YYYY-MM-DD')
+  .refine((s) => {
+    const d = new Date(`${s}T00:00:00Z`);
+    return !Number.isNaN(d.getTime()) && d.toISOString().slice(0, 10) === s;
+  }, 'not a date')
+  .refine((s) => Number(s.slice(0, 4)) >= 2000 && Number(s.slice(0, 4)) <= 2100, 'a year from 2000 to 2100');
 const note = z.string().trim().max(2000);
 const createBody = z.strictObject({
   engineId: z.number().int().positive(),
@@ -44,12 +56,22 @@ const planBody = z.strictObject({
   assigneeId: z.number().int().positive().nullable().optional(),
 });
 const listQuery = z.object({
-  status: z.string().optional().transform((s, c) => {
-    if (!s) return undefined;
-    const list = s.split(',').map((x) => x.trim()).filter(Boolean);
-    for (const x of list) if (!(WORK_STATUSES as readonly string[]).includes(x)) { c.addIssue({ code: 'custom', message: `unknown status ${x}` }); return z.NEVER; }
-    return list as (typeof WORK_STATUSES)[number][];
-  }),
+  status: z
+    .string()
+    .optional()
+    .transform((s, c) => {
+      if (!s) return undefined;
+      const list = s
+        .split(',')
+        .map((x) => x.trim())
+        .filter(Boolean);
+      for (const x of list)
+        if (!(WORK_STATUSES as readonly string[]).includes(x)) {
+          c.addIssue({ code: 'custom', message: `unknown status ${x}` });
+          return z.NEVER;
+        }
+      return list as (typeof WORK_STATUSES)[number][];
+    }),
   engineId: z.coerce.number().int().positive().optional(),
   assigneeId: z.coerce.number().int().positive().optional(),
   siteId: z.coerce.number().int().positive().optional(),
@@ -71,10 +93,12 @@ const completeBody = z.strictObject({
   lockoutConfirmed: z.boolean().optional(),
   manualCheck: manualCheck.optional(),
   /** The top-up step of a top-up order: what was added; the volume is the step's value (L or gal). */
-  topUp: z.strictObject({
-    liquid: z.enum(TOP_UP_LIQUIDS),
-    premixPercent: finite(0, 100, '%').nullable().default(null),
-  }).optional(),
+  topUp: z
+    .strictObject({
+      liquid: z.enum(TOP_UP_LIQUIDS),
+      premixPercent: finite(0, 100, '%').nullable().default(null),
+    })
+    .optional(),
 });
 const draftBody = z.strictObject({
   value: z.number().finite().nullable().optional(),
@@ -155,7 +179,16 @@ export function workOrdersRouterWithService(ctx: AppContext): WorkRouterHandle {
   r.get('/work-orders', async (req, res) => {
     const q = parse(listQuery, req.query);
     const engineIds = (await visibleEngineIds(ctx.models, await siteScopeOf(req))) ?? undefined;
-    res.json(await svc.list(req.user!, { status: q.status, engineId: q.engineId, engineIds, assigneeId: q.assigneeId, siteId: q.siteId, mine: q.mine === '1' || q.mine === 'true' }));
+    res.json(
+      await svc.list(req.user!, {
+        status: q.status,
+        engineId: q.engineId,
+        engineIds,
+        assigneeId: q.assigneeId,
+        siteId: q.siteId,
+        mine: q.mine === '1' || q.mine === 'true',
+      }),
+    );
   });
 
   r.post('/work-orders', async (req, res) => {
@@ -183,25 +216,34 @@ export function workOrdersRouterWithService(ctx: AppContext): WorkRouterHandle {
     res.json(await svc.detail(id));
   });
 
-  r.post('/work-orders/:id/steps/:stepId/complete', gated(async (req, res) => {
-    const p = parse(stepParams, req.params);
-    await completeStep(svc, req.user!, p.id, p.stepId, parse(completeBody, req.body));
-    res.json(await svc.detail(p.id));
-  }));
+  r.post(
+    '/work-orders/:id/steps/:stepId/complete',
+    gated(async (req, res) => {
+      const p = parse(stepParams, req.params);
+      await completeStep(svc, req.user!, p.id, p.stepId, parse(completeBody, req.body));
+      res.json(await svc.detail(p.id));
+    }),
+  );
 
   // a draft: what is typed into a step, saved without completing it
-  r.patch('/work-orders/:id/steps/:stepId', gated(async (req, res) => {
-    const p = parse(stepParams, req.params);
-    await saveDraft(svc, req.user!, p.id, p.stepId, parse(draftBody, req.body ?? {}));
-    res.json(await svc.detail(p.id));
-  }));
+  r.patch(
+    '/work-orders/:id/steps/:stepId',
+    gated(async (req, res) => {
+      const p = parse(stepParams, req.params);
+      await saveDraft(svc, req.user!, p.id, p.stepId, parse(draftBody, req.body ?? {}));
+      res.json(await svc.detail(p.id));
+    }),
+  );
 
-  r.post('/work-orders/:id/coolant-test', gated(async (req, res) => {
-    const id = parseId(req.params);
-    const body = parse(orderTestBody, req.body ?? {});
-    const test = await recordOrderCoolantTest(svc, req.user!, id, body.method);
-    res.status(201).json({ coolantTest: test, order: await svc.detail(id) });
-  }));
+  r.post(
+    '/work-orders/:id/coolant-test',
+    gated(async (req, res) => {
+      const id = parseId(req.params);
+      const body = parse(orderTestBody, req.body ?? {});
+      const test = await recordOrderCoolantTest(svc, req.user!, id, body.method);
+      res.status(201).json({ coolantTest: test, order: await svc.detail(id) });
+    }),
+  );
 
   r.post('/work-orders/:id/parts', async (req, res) => {
     const id = parseId(req.params);
@@ -219,7 +261,9 @@ export function workOrdersRouterWithService(ctx: AppContext): WorkRouterHandle {
     const id = parseId(req.params);
     const fields = parse(uploadFields, req.body ?? {});
     const a = await addAttachment(svc, req.user!, id, req.file, fields.stepId ?? null);
-    res.status(201).json({ id: a.id, stepId: a.stepId, originalName: a.originalName, contentType: a.contentType, size: a.size, url: `/api/attachments/${a.id}` });
+    res
+      .status(201)
+      .json({ id: a.id, stepId: a.stepId, originalName: a.originalName, contentType: a.contentType, size: a.size, url: `/api/attachments/${a.id}` });
   });
 
   r.get('/attachments/:id', async (req, res) => {
@@ -229,7 +273,10 @@ export function workOrdersRouterWithService(ctx: AppContext): WorkRouterHandle {
     res.setHeader('Content-Type', attachment.contentType);
     res.setHeader('X-Content-Type-Options', 'nosniff');
     res.setHeader('Cache-Control', 'private, max-age=300');
-    res.setHeader('Content-Disposition', `${attachment.contentType === 'application/pdf' ? 'attachment' : 'inline'}; filename*=UTF-8''${encodeURIComponent(attachment.originalName)}`);
+    res.setHeader(
+      'Content-Disposition',
+      `${attachment.contentType === 'application/pdf' ? 'attachment' : 'inline'}; filename*=UTF-8''${encodeURIComponent(attachment.originalName)}`,
+    );
     res.sendFile(file);
   });
 

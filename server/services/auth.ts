@@ -12,7 +12,13 @@ export interface SessionUser {
 }
 
 /** `clientKey` (the client's address) shares the hashing fairly among addresses under a flood. */
-export async function login(models: Models, tokens: TokenService, email: string, password: string, clientKey = ''): Promise<{ token: string; user: SessionUser }> {
+export async function login(
+  models: Models,
+  tokens: TokenService,
+  email: string,
+  password: string,
+  clientKey = '',
+): Promise<{ token: string; user: SessionUser }> {
   const user = await models.User.findOne({ where: { email: email.trim().toLowerCase() } });
   let ok: boolean;
   try {

@@ -46,7 +46,9 @@ export async function createDevice(
   }
   const secret = input.secret ?? newDeviceSecret();
   const device = await models.Device.create({
-    engineId: engine.id, username, secretHash: await hashSecret(secret, cost),
+    engineId: engine.id,
+    username,
+    secretHash: await hashSecret(secret, cost),
     ...(sp ? { sparkplugGroupId: sp.groupId, sparkplugEdgeNodeId: sp.edgeNodeId, sparkplugDeviceId: sp.deviceId ?? null } : {}),
   });
   return { device, secret };

@@ -55,10 +55,19 @@ export async function engineHistory(models: Models, engineId: number, now = new 
     orderIds.length ? models.WorkOrderStep.findAll({ where: { workOrderId: orderIds }, order: [['position', 'ASC']] }) : [],
     orderIds.length ? models.WorkOrderPart.findAll({ where: { workOrderId: orderIds }, order: [['id', 'ASC']] }) : [],
     orderIds.length ? models.WorkOrderAlarm.findAll({ where: { workOrderId: orderIds } }) : [],
-    orderIds.length ? models.WorkOrderEvent.findAll({ where: { workOrderId: orderIds, event: ['baseline-reset', 'baseline-pending'] }, order: [['at', 'ASC']] }) : [],
+    orderIds.length
+      ? models.WorkOrderEvent.findAll({ where: { workOrderId: orderIds, event: ['baseline-reset', 'baseline-pending'] }, order: [['at', 'ASC']] })
+      : [],
     listCoolantTests(models, engineId),
     runHoursHistory(models, engineId),
-    models.ServiceEvent.findAll({ where: { engineId }, order: [['doneAt', 'DESC'], ['id', 'DESC']], limit: 2000 }),
+    models.ServiceEvent.findAll({
+      where: { engineId },
+      order: [
+        ['doneAt', 'DESC'],
+        ['id', 'DESC'],
+      ],
+      limit: 2000,
+    }),
     servicePlan(models, engine),
   ]);
 
@@ -66,7 +75,21 @@ export async function engineHistory(models: Models, engineId: number, now = new 
   if (stepUsers.length) for (const u of await models.User.findAll({ where: { id: stepUsers }, attributes: ['id', 'name'] })) names.users.set(u.id, u.name);
   const userName = (id: number | null | undefined) => (id ? (names.users.get(id) ?? null) : null);
 
-  const byOrder = new Map(orderIds.map((id) => [id, { alarmIds: [] as number[], stepsDone: 0, stepsTotal: 0, manualChecks: 0, doneBy: [] as string[], parts: [] as HistoryPart[], manual: [] as HistoryManualCheck[], resets: [] as HistoryWorkOrder['resets'] }]));
+  const byOrder = new Map(
+    orderIds.map((id) => [
+      id,
+      {
+        alarmIds: [] as number[],
+        stepsDone: 0,
+        stepsTotal: 0,
+        manualChecks: 0,
+        doneBy: [] as string[],
+        parts: [] as HistoryPart[],
+        manual: [] as HistoryManualCheck[],
+        resets: [] as HistoryWorkOrder['resets'],
+      },
+    ]),
+  );
   for (const s of steps) {
     const a = byOrder.get(s.workOrderId)!;
     a.stepsTotal++;
@@ -92,14 +115,28 @@ export async function engineHistory(models: Models, engineId: number, now = new 
   const titles = new Map(plan.map((t) => [t.key, t.title]));
   const orderTitle = new Map(orders.map((o) => [o.id, o.title]));
   const serviceEvents = events.map((e) => ({
-    id: e.id, taskKey: e.taskKey, taskTitle: titles.get(e.taskKey) ?? e.taskKey, doneAt: iso(e.doneAt)!, runHours: e.runHours,
-    workOrderId: e.workOrderId, workOrderTitle: e.workOrderId ? (orderTitle.get(e.workOrderId) ?? null) : null,
+    id: e.id,
+    taskKey: e.taskKey,
+    taskTitle: titles.get(e.taskKey) ?? e.taskKey,
+    doneAt: iso(e.doneAt)!,
+    runHours: e.runHours,
+    workOrderId: e.workOrderId,
+    workOrderTitle: e.workOrderId ? (orderTitle.get(e.workOrderId) ?? null) : null,
   }));
 
   return {
     engine: {
-      id: engine.id, name: engine.name, siteId: engine.siteId, siteName: site?.name ?? null, duty: engine.duty, capacityL: engine.capacityL,
-      coolantFamily: engine.coolantFamily, glycolType: engine.glycolType, glycolPercent: engine.glycolPercent, runHours: engine.runHours, retiredAt: iso(engine.retiredAt),
+      id: engine.id,
+      name: engine.name,
+      siteId: engine.siteId,
+      siteName: site?.name ?? null,
+      duty: engine.duty,
+      capacityL: engine.capacityL,
+      coolantFamily: engine.coolantFamily,
+      glycolType: engine.glycolType,
+      glycolPercent: engine.glycolPercent,
+      runHours: engine.runHours,
+      retiredAt: iso(engine.retiredAt),
     },
     generatedAt: now.toISOString(),
     workOrders,

@@ -29,7 +29,13 @@ export function listEngines(models: Models, opts: { siteId?: number; siteIds?: n
   if (!opts.includeRetired) where.retiredAt = null;
   if (opts.siteIds !== undefined) where.siteId = opts.siteId === undefined ? opts.siteIds : opts.siteIds.filter((id) => id === opts.siteId);
   else if (opts.siteId !== undefined) where.siteId = opts.siteId;
-  return models.Engine.findAll({ where, order: [['siteId', 'ASC'], ['name', 'ASC']] });
+  return models.Engine.findAll({
+    where,
+    order: [
+      ['siteId', 'ASC'],
+      ['name', 'ASC'],
+    ],
+  });
 }
 
 export async function getEngine(models: Models, id: number): Promise<Engine> {

@@ -4,11 +4,7 @@ import type { Models } from '../models';
 /** How long a key is remembered: longer than a technician stays out of network (common practice: a week). */
 export const IDEMPOTENCY_KEEP_MS = 7 * 24 * 3600 * 1000;
 
-export type IdempotencyStart =
-  | { kind: 'new' }
-  | { kind: 'replay'; statusCode: number; body: unknown }
-  | { kind: 'busy' }
-  | { kind: 'mismatch' };
+export type IdempotencyStart = { kind: 'new' } | { kind: 'replay'; statusCode: number; body: unknown } | { kind: 'busy' } | { kind: 'mismatch' };
 
 /**
  * Idempotency keys of write requests: the first request with a key is handled and its answer kept;

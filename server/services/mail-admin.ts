@@ -2,7 +2,13 @@ import type { Models } from '../models';
 
 /** What the local mail catcher received, newest first (admin's mail page). */
 export async function listCaughtMail(models: Models, limit: number) {
-  const rows = await models.CaughtMail.findAll({ order: [['receivedAt', 'DESC'], ['id', 'DESC']], limit });
+  const rows = await models.CaughtMail.findAll({
+    order: [
+      ['receivedAt', 'DESC'],
+      ['id', 'DESC'],
+    ],
+    limit,
+  });
   return rows.map((m) => ({ id: m.id, to: m.to, from: m.from, subject: m.subject, receivedAt: new Date(m.receivedAt).toISOString(), text: m.text }));
 }
 

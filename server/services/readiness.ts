@@ -19,7 +19,9 @@ async function coldLimits(models: Models, ids: number[]): Promise<Map<number, nu
   const overrides = await models.EngineRule.findAll({ where: { engineId: ids, rule: RULE } });
   const out = new Map<number, number>();
   for (const id of ids) {
-    const o = overrides.filter((r) => r.engineId === id).map((r) => ({ rule: r.rule, enabled: r.enabled, params: typeof r.params === 'string' ? JSON.parse(r.params) : r.params }));
+    const o = overrides
+      .filter((r) => r.engineId === id)
+      .map((r) => ({ rule: r.rule, enabled: r.enabled, params: typeof r.params === 'string' ? JSON.parse(r.params) : r.params }));
     const def = effectiveRules(rules, o).find((r) => r.key === RULE) ?? DEFAULT_RULES.find((r) => r.key === RULE);
     const limit = def?.params.limit;
     out.set(id, typeof limit === 'number' ? limit : STANDBY_MIN_TEMP_C);
@@ -35,11 +37,18 @@ export async function standbyReadinessOf(models: Models, engines: Engine[], live
   const ids = standby.map((e) => e.id);
   const [limits, alarms, orders] = await Promise.all([
     coldLimits(models, ids),
-    models.Alarm.findAll({ where: { engineId: ids, closedAt: null, active: true, priority: ['high', 'urgent'] }, attributes: ['engineId', 'rule', 'priority'] }),
+    models.Alarm.findAll({
+      where: { engineId: ids, closedAt: null, active: true, priority: ['high', 'urgent'] },
+      attributes: ['engineId', 'rule', 'priority'],
+    }),
     models.WorkOrder.findAll({ where: { engineId: ids, status: { [Op.in]: ['in-progress', 'waiting-sign-off'] } }, attributes: ['id', 'engineId', 'title'] }),
   ]);
   const locked = orders.length
-    ? new Set((await models.WorkOrderStep.findAll({ where: { workOrderId: orders.map((o) => o.id), lockoutConfirmed: true }, attributes: ['workOrderId'] })).map((s) => s.workOrderId))
+    ? new Set(
+        (await models.WorkOrderStep.findAll({ where: { workOrderId: orders.map((o) => o.id), lockoutConfirmed: true }, attributes: ['workOrderId'] })).map(
+          (s) => s.workOrderId,
+        ),
+      )
     : new Set<number>();
   const title = (rule: string) => DEFAULT_RULES.find((r) => r.key === rule)?.title ?? rule.replace(/_/g, ' ');
   for (const e of standby) {

@@ -58,7 +58,11 @@ interface Row {
  * Bucketed min/max/mean/count of good readings over [from, to): one grouped SQL query. A range reaching back
  * past the raw retention is answered from the rollups whatever its length, and says so.
  */
-export async function queryBuckets(sequelize: Sequelize, q: ReadingsQuery, retention: RawRetention = { rawRetentionDays: 0, now: Date.now() }): Promise<BucketResult> {
+export async function queryBuckets(
+  sequelize: Sequelize,
+  q: ReadingsQuery,
+  retention: RawRetention = { rawRetentionDays: 0, now: Date.now() },
+): Promise<BucketResult> {
   const code = CHANNELS[q.channel].code;
   const span = q.to - q.from;
   const keptFrom = rawKeptFrom(retention.rawRetentionDays, retention.now);

@@ -104,7 +104,9 @@ export function startRetention(opts: RetentionOptions): Retention {
     if (budget < config.retentionBatch) result.batches++;
     result.complete = true;
     if (result.deleted) {
-      log.info(`retention: ${result.deleted} raw readings before ${new Date(cutoff).toISOString()} removed in ${result.batches} batches, ${((Date.now() - started) / 1000).toFixed(1)} s`);
+      log.info(
+        `retention: ${result.deleted} raw readings before ${new Date(cutoff).toISOString()} removed in ${result.batches} batches, ${((Date.now() - started) / 1000).toFixed(1)} s`,
+      );
     }
     return result;
   }

@@ -95,7 +95,11 @@ export async function setUserSites(models: Models, userId: number, siteIds: numb
   const ids = [...new Set(siteIds)].sort((a, b) => a - b);
   await models.User.sequelize!.transaction(async (transaction) => {
     await models.UserSite.destroy({ where: { userId }, transaction });
-    if (ids.length) await models.UserSite.bulkCreate(ids.map((siteId) => ({ userId, siteId })), { transaction });
+    if (ids.length)
+      await models.UserSite.bulkCreate(
+        ids.map((siteId) => ({ userId, siteId })),
+        { transaction },
+      );
   });
   return ids;
 }
@@ -122,7 +126,5 @@ export async function visibleUserIds(models: Models, scope: SiteScope): Promise<
   const limited = await sitesByUser(models);
   const users = await models.User.findAll({ attributes: ['id', 'role'] });
   const mine = new Set(scope.siteIds);
-  return users
-    .filter((u) => u.role === 'admin' || !limited.has(u.id) || limited.get(u.id)!.some((id) => mine.has(id)))
-    .map((u) => u.id);
+  return users.filter((u) => u.role === 'admin' || !limited.has(u.id) || limited.get(u.id)!.some((id) => mine.has(id))).map((u) => u.id);
 }

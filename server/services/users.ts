@@ -29,7 +29,13 @@ export async function createUser(models: Models, input: UserInput, cost?: number
  * Disabling a user, or changing their role or password, ends every session signed before: the
  * session version in their tokens no longer matches, and their open sockets are closed.
  */
-export async function updateUser(models: Models, actorId: number, id: number, patch: Partial<UserInput> & { disabled?: boolean }, access?: AccessEvents): Promise<User> {
+export async function updateUser(
+  models: Models,
+  actorId: number,
+  id: number,
+  patch: Partial<UserInput> & { disabled?: boolean },
+  access?: AccessEvents,
+): Promise<User> {
   const user = await models.User.findByPk(id);
   if (!user) throw notFound('user');
   if (id === actorId && (patch.disabled === true || (patch.role && patch.role !== 'admin'))) {
@@ -57,7 +63,10 @@ export const disableUser = (models: Models, actorId: number, id: number, access?
 export type UserView = ReturnType<User['toJSON']> & { siteIds: number[] };
 
 export async function userViews(models: Models, users: User[]): Promise<UserView[]> {
-  const sites = await sitesByUser(models, users.map((u) => u.id));
+  const sites = await sitesByUser(
+    models,
+    users.map((u) => u.id),
+  );
   return users.map((u) => ({ ...u.toJSON(), siteIds: sites.get(u.id) ?? [] }));
 }
 

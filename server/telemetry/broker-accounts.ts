@@ -21,7 +21,10 @@ export interface DeviceAccounts {
   close(): Promise<void>;
 }
 
-interface DynsecResponse { command: string; error?: string }
+interface DynsecResponse {
+  command: string;
+  error?: string;
+}
 type Command = Record<string, unknown> & { command: string };
 
 export const engineRole = (engineId: number) => `jw-engine-${engineId}`;
@@ -53,7 +56,8 @@ export function createDynsecAccounts(opts: {
       client.subscribe(`${CONTROL}/response`, { qos: 1 }, (err) => {
         if (err) return opts.log.error('device accounts: subscribe failed', err);
         resolve();
-        void opts.revokedUsernames()
+        void opts
+          .revokedUsernames()
           .then((names) => Promise.all(names.map((n) => send([{ command: 'deleteClient', username: n }]))))
           .catch((e) => opts.log.error('device accounts: re-applying revokes failed', e));
       });
@@ -68,7 +72,10 @@ export function createDynsecAccounts(opts: {
           waiting = null;
           reject(new Error('the broker did not answer the dynamic-security command within 10 s'));
         }, 10_000);
-        waiting = (r) => { clearTimeout(timer); resolve(r); };
+        waiting = (r) => {
+          clearTimeout(timer);
+          resolve(r);
+        };
         client.publish(CONTROL, JSON.stringify({ commands }), { qos: 1 });
       });
     });
@@ -82,19 +89,26 @@ export function createDynsecAccounts(opts: {
       const rolename = engineRole(engineId);
       const prefix = `${TOPIC_ROOT}/${engineId}/#`;
       const created = await send([
-        { command: 'createRole', rolename, acls: [
-          { acltype: 'publishClientSend', topic: prefix, priority: 0, allow: true },
-          { acltype: 'subscribePattern', topic: prefix, priority: 0, allow: true },
-        ] },
+        {
+          command: 'createRole',
+          rolename,
+          acls: [
+            { acltype: 'publishClientSend', topic: prefix, priority: 0, allow: true },
+            { acltype: 'subscribePattern', topic: prefix, priority: 0, allow: true },
+          ],
+        },
         { command: 'createClient', username, password: secret, roles: [{ rolename }] },
       ]);
       let bad = failed(created, /already exists/i);
       if (!bad && created.some((r) => r.command === 'createClient' && r.error)) {
         // an existing client (rotation): new password, same role
-        bad = failed(await send([
-          { command: 'setClientPassword', username, password: secret },
-          { command: 'addClientRole', username, rolename },
-        ]), /already/i);
+        bad = failed(
+          await send([
+            { command: 'setClientPassword', username, password: secret },
+            { command: 'addClientRole', username, rolename },
+          ]),
+          /already/i,
+        );
       }
       if (bad) throw new Error(`broker refused ${bad.command}: ${bad.error}`);
     },

@@ -2,7 +2,13 @@ import type { Sequelize } from 'sequelize';
 import type { Logger } from '../logger';
 import { sqlDate, touchDevicesSql, upsertRejectionsSql } from './sql';
 
-interface PendingRejection { deviceId: number; reason: string; count: number; lastAt: number; detail: string }
+interface PendingRejection {
+  deviceId: number;
+  reason: string;
+  count: number;
+  lastAt: number;
+  detail: string;
+}
 
 /**
  * Per-device rejections and last-seen times, gathered in memory and written every few seconds:
@@ -15,7 +21,11 @@ export class DeviceActivity {
   private timer: NodeJS.Timeout | null = null;
   private writing: Promise<void> | null = null;
 
-  constructor(private readonly sequelize: Sequelize, private readonly log: Logger, private readonly everyMs = 2000) {}
+  constructor(
+    private readonly sequelize: Sequelize,
+    private readonly log: Logger,
+    private readonly everyMs = 2000,
+  ) {}
 
   start(): void {
     this.timer = setInterval(() => void this.persist(), this.everyMs);
@@ -30,7 +40,11 @@ export class DeviceActivity {
     if (deviceId === null) return;
     const key = deviceId + '\u0000' + reason;
     const p = this.rejections.get(key);
-    if (p) { p.count++; p.lastAt = at; p.detail = detail; } else this.rejections.set(key, { deviceId, reason, count: 1, lastAt: at, detail });
+    if (p) {
+      p.count++;
+      p.lastAt = at;
+      p.detail = detail;
+    } else this.rejections.set(key, { deviceId, reason, count: 1, lastAt: at, detail });
     const t = this.totals.get(deviceId) ?? {};
     t[reason] = (t[reason] ?? 0) + 1;
     this.totals.set(deviceId, t);
@@ -43,7 +57,9 @@ export class DeviceActivity {
 
   async persist(): Promise<void> {
     if (this.writing) return this.writing;
-    this.writing = this.write().finally(() => { this.writing = null; });
+    this.writing = this.write().finally(() => {
+      this.writing = null;
+    });
     return this.writing;
   }
 

@@ -67,9 +67,18 @@ export async function startExternalSubscriber(opts: ExternalSubscriberOptions): 
         return;
       }
       let next = false;
-      opts.ingest(null, parsed.engineId, payload,
+      opts.ingest(
+        null,
+        parsed.engineId,
+        payload,
         () => sender._sendPacket!({ cmd: 'puback', messageId }),
-        () => { if (!next) { next = true; callback(ACK_LATER); } });
+        () => {
+          if (!next) {
+            next = true;
+            callback(ACK_LATER);
+          }
+        },
+      );
     } catch (err) {
       opts.log.error('external broker: message handling failed', err);
       callback();

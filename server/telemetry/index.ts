@@ -27,13 +27,20 @@ export interface TelemetryOptions {
   writer?: WriterOptions;
 }
 
-interface Closable { close(): Promise<void> }
+interface Closable {
+  close(): Promise<void>;
+}
 
-export async function startTelemetry(deps: TelemetryDeps, options: TelemetryOptions = {}): Promise<Telemetry & {
-  /** Per-device reject counts since start (also persisted in device_rejections). */
-  rejectsByDevice(): Record<number, Record<string, number>>;
-  mqttPort: number | null;
-}> {
+export async function startTelemetry(
+  deps: TelemetryDeps,
+  options: TelemetryOptions = {},
+): Promise<
+  Telemetry & {
+    /** Per-device reject counts since start (also persisted in device_rejections). */
+    rejectsByDevice(): Record<number, Record<string, number>>;
+    mqttPort: number | null;
+  }
+> {
   const { config, sequelize, log } = deps;
   const counters = new Counters();
   const buffer = new IngestBuffer(options.highWater ?? 20_000);
@@ -45,16 +52,29 @@ export async function startTelemetry(deps: TelemetryDeps, options: TelemetryOpti
   let stopping = false;
 
   await liveState.load(sequelize);
-  const livePush = new LivePush({ httpServer: deps.httpServer, verifyToken: deps.verifyToken, siteOfEngine: deps.siteOfEngine, siteScope: deps.siteScope, sessionValid: deps.sessionValid, log, trustForwardedHost: !!deps.config.trustProxy, adapter: deps.adapter });
+  const livePush = new LivePush({
+    httpServer: deps.httpServer,
+    verifyToken: deps.verifyToken,
+    siteOfEngine: deps.siteOfEngine,
+    siteScope: deps.siteScope,
+    sessionValid: deps.sessionValid,
+    log,
+    trustForwardedHost: !!deps.config.trustProxy,
+    adapter: deps.adapter,
+  });
   // several servers: readings another server accepted come here too (live state, live push, rules), not to the writer
   const relay = deps.adapter
     ? new ReadingRelay(livePush.io, log, (batch) => {
-      if (stopping) return;
-      liveState.applyAll(batch, Date.now());
-      for (const l of listeners) {
-        try { l(batch); } catch (err) { log.error('telemetry: readings listener failed', err); }
-      }
-    })
+        if (stopping) return;
+        liveState.applyAll(batch, Date.now());
+        for (const l of listeners) {
+          try {
+            l(batch);
+          } catch (err) {
+            log.error('telemetry: readings listener failed', err);
+          }
+        }
+      })
     : null;
   deps.access?.onUserChanged((userId) => livePush.endSessions(userId));
   deps.access?.onSitesChanged((userId) => void livePush.rescope(userId));
@@ -87,7 +107,11 @@ export async function startTelemetry(deps: TelemetryDeps, options: TelemetryOpti
           const a = result.accepted[i];
           if (a.outOfRange) {
             counters.outOfRange++;
-            activity.reject(deviceId, 'out_of_range', `${a.channel} = ${a.value} outside ${CHANNELS[a.channel].physicalMin}..${CHANNELS[a.channel].physicalMax}`);
+            activity.reject(
+              deviceId,
+              'out_of_range',
+              `${a.channel} = ${a.value} outside ${CHANNELS[a.channel].physicalMin}..${CHANNELS[a.channel].physicalMax}`,
+            );
           }
           buffer.push(engineId, CHANNELS[a.channel].code, a.ts, a.value, a.quality);
           batch[i] = { engineId, channel: a.channel, ts: a.ts, value: a.value, quality: a.quality };
@@ -96,7 +120,11 @@ export async function startTelemetry(deps: TelemetryDeps, options: TelemetryOpti
         buffered = true;
         liveState.applyAll(batch, now);
         for (const l of listeners) {
-          try { l(batch); } catch (err) { log.error('telemetry: readings listener failed', err); }
+          try {
+            l(batch);
+          } catch (err) {
+            log.error('telemetry: readings listener failed', err);
+          }
         }
         relay?.send(batch);
       }
@@ -137,7 +165,10 @@ export async function startTelemetry(deps: TelemetryDeps, options: TelemetryOpti
         ingestNow(job[0], job[1], job[2], job[3], job[4]);
       }
       spent = 0; // the next poll phase is a new turn
-      if (head >= queue.length) { queue = []; head = 0; } else nextTurn();
+      if (head >= queue.length) {
+        queue = [];
+        head = 0;
+      } else nextTurn();
     });
   };
   const ingest = (deviceId: number | null, engineId: number, payload: Buffer | ParsedReading[], done: () => void, readMore?: () => void) => {
@@ -154,7 +185,11 @@ export async function startTelemetry(deps: TelemetryDeps, options: TelemetryOpti
   /** A Sparkplug death certificate: the engine's data is lost now, not after the no-data delay. */
   const markLost = (engineId: number, at: number) => {
     for (const l of lostListeners) {
-      try { l(engineId, at); } catch (err) { log.error('telemetry: lost listener failed', err); }
+      try {
+        l(engineId, at);
+      } catch (err) {
+        log.error('telemetry: lost listener failed', err);
+      }
     }
     const values = liveState.markLost(engineId, at);
     if (!values) return;
@@ -199,7 +234,9 @@ export async function startTelemetry(deps: TelemetryDeps, options: TelemetryOpti
       authenticate: (username, password, address) => deviceLogin.check(username, password, address),
       onTelemetry: (device, engineId, payload, done) => ingest(device.deviceId, engineId, payload, done),
       onReject: (device, reason, detail) => reject(device?.deviceId ?? null, reason, detail),
-      onOversizePacket: () => { counters.oversizePacketsClosed++; },
+      onOversizePacket: () => {
+        counters.oversizePacketsClosed++;
+      },
       sparkplug,
     });
     mqttPort = broker.port;
@@ -217,8 +254,12 @@ export async function startTelemetry(deps: TelemetryDeps, options: TelemetryOpti
     rejectsByDevice: () => activity.rejectsByDevice(),
     brokerState: () => brokerState(),
     relayCounters: () => (relay ? { ...relay.counters } : null),
-    onReadings: (listener) => { listeners.push(listener); },
-    onLost: (listener) => { lostListeners.push(listener); },
+    onReadings: (listener) => {
+      listeners.push(listener);
+    },
+    onLost: (listener) => {
+      lostListeners.push(listener);
+    },
     requestRebirth: (groupId, edgeNodeId) => sparkplug.requestRebirth({ groupId, edgeNodeId }),
     emit: (room, event, payload) => livePush.emit(room, event, payload),
     async stop() {
@@ -246,16 +287,30 @@ class DeviceLogin {
   private readonly byAddress = new FailureThrottle(30, 5 * 60_000);
   private readonly byUsername = new FailureThrottle(10, 5 * 60_000);
 
-  constructor(private readonly sequelize: import('sequelize').Sequelize, private readonly onFailure: (deviceId: number, detail: string) => void) {}
+  constructor(
+    private readonly sequelize: import('sequelize').Sequelize,
+    private readonly onFailure: (deviceId: number, detail: string) => void,
+  ) {}
 
   private blocked(username: string, address: string): boolean {
     return this.byAddress.blocked(address) || this.byUsername.blocked(username);
   }
 
-  async check(username: string, password: string, address: string): Promise<{ deviceId: number; engineId: number; sparkplug: SparkplugIdentity | null } | null> {
+  async check(
+    username: string,
+    password: string,
+    address: string,
+  ): Promise<{ deviceId: number; engineId: number; sparkplug: SparkplugIdentity | null } | null> {
     if (this.blocked(username, address)) return null;
-    const rows = await this.sequelize.query<{ id: number; engineId: number; secretHash: string; revokedAt: unknown; spGroup: string | null; spNode: string | null; spDevice: string | null }>(
-      DEVICE_BY_USERNAME_SQL, { bind: [username], type: QueryTypes.SELECT, logging: false });
+    const rows = await this.sequelize.query<{
+      id: number;
+      engineId: number;
+      secretHash: string;
+      revokedAt: unknown;
+      spGroup: string | null;
+      spNode: string | null;
+      spDevice: string | null;
+    }>(DEVICE_BY_USERNAME_SQL, { bind: [username], type: QueryTypes.SELECT, logging: false });
     const row = rows[0];
     let ok = false;
     try {

@@ -44,7 +44,11 @@ export class ReadingBlock {
   push(engineId: number, channel: number, ts: number, value: number, quality: number): void {
     if (this.length === this.ts.length) this.resize(Math.max(1024, this.length * 2));
     const i = this.length++;
-    this.engine[i] = engineId; this.channel[i] = channel; this.ts[i] = ts; this.value[i] = value; this.quality[i] = quality;
+    this.engine[i] = engineId;
+    this.channel[i] = channel;
+    this.ts[i] = ts;
+    this.value[i] = value;
+    this.quality[i] = quality;
   }
 
   /** Appends rows [from, to) of `other`. */
@@ -52,20 +56,30 @@ export class ReadingBlock {
     const n = to - from;
     if (this.length + n > this.ts.length) this.resize(Math.max(1024, (this.length + n) * 2));
     const at = this.length;
-    this.engine.set(other.engine.subarray(from, to), at); this.channel.set(other.channel.subarray(from, to), at);
-    this.ts.set(other.ts.subarray(from, to), at); this.value.set(other.value.subarray(from, to), at); this.quality.set(other.quality.subarray(from, to), at);
+    this.engine.set(other.engine.subarray(from, to), at);
+    this.channel.set(other.channel.subarray(from, to), at);
+    this.ts.set(other.ts.subarray(from, to), at);
+    this.value.set(other.value.subarray(from, to), at);
+    this.quality.set(other.quality.subarray(from, to), at);
     this.length += n;
   }
 
   /** Drops the first n rows (moves the rest to the front). */
   dropFront(n: number): void {
-    this.engine.copyWithin(0, n, this.length); this.channel.copyWithin(0, n, this.length);
-    this.ts.copyWithin(0, n, this.length); this.value.copyWithin(0, n, this.length); this.quality.copyWithin(0, n, this.length);
+    this.engine.copyWithin(0, n, this.length);
+    this.channel.copyWithin(0, n, this.length);
+    this.ts.copyWithin(0, n, this.length);
+    this.value.copyWithin(0, n, this.length);
+    this.quality.copyWithin(0, n, this.length);
     this.length -= n;
   }
 
   private resize(capacity: number): void {
-    const grow = <T extends Int32Array | Uint8Array | Float64Array>(a: T, make: (n: number) => T): T => { const b = make(capacity); b.set(a.subarray(0, this.length) as never); return b; };
+    const grow = <T extends Int32Array | Uint8Array | Float64Array>(a: T, make: (n: number) => T): T => {
+      const b = make(capacity);
+      b.set(a.subarray(0, this.length) as never);
+      return b;
+    };
     this.engine = grow(this.engine, (n) => new Int32Array(n));
     this.channel = grow(this.channel, (n) => new Uint8Array(n));
     this.ts = grow(this.ts, (n) => new Float64Array(n));
@@ -116,7 +130,11 @@ export class IngestBuffer {
     while (this.ackHead < this.acks.length && this.acks[this.ackHead].at <= this.committed) {
       const { ack } = this.acks[this.ackHead];
       this.acks[this.ackHead++] = undefined as unknown as { at: number; ack: () => void };
-      try { ack(); } catch { /* a caller's failure must not stop the others */ }
+      try {
+        ack();
+      } catch {
+        /* a caller's failure must not stop the others */
+      }
     }
     if (this.ackHead > 10_000 || this.ackHead === this.acks.length) {
       this.acks = this.acks.slice(this.ackHead);
@@ -143,10 +161,13 @@ export class IngestBuffer {
     // move the rest to the front now and then rather than per take
     if (this.head === this.store.length) {
       // empty: start over, and give back what a backlog grew
-      if (this.store.capacity > 65_536) this.store = new ReadingBlock(16_384); else this.store.length = 0;
+      if (this.store.capacity > 65_536) this.store = new ReadingBlock(16_384);
+      else this.store.length = 0;
+      this.head = 0;
+    } else if (this.head > this.store.capacity / 2) {
+      this.store.dropFront(this.head);
       this.head = 0;
     }
-    else if (this.head > this.store.capacity / 2) { this.store.dropFront(this.head); this.head = 0; }
     return out;
   }
 
@@ -163,7 +184,11 @@ export class IngestBuffer {
   release(): void {
     while (this.waiters.length && this.size < this.highWater) {
       const next = this.waiters.shift()!;
-      try { next(); } catch { /* a caller's failure must not stop the others */ }
+      try {
+        next();
+      } catch {
+        /* a caller's failure must not stop the others */
+      }
     }
   }
 
@@ -171,6 +196,12 @@ export class IngestBuffer {
   releaseAll(): void {
     const all = this.waiters;
     this.waiters = [];
-    for (const next of all) { try { next(); } catch { /* ignore */ } }
+    for (const next of all) {
+      try {
+        next();
+      } catch {
+        /* ignore */
+      }
+    }
   }
 }

@@ -19,8 +19,10 @@ export class MemoryLiveState implements LiveState {
 
   /** One query at start: the newest stored reading of every engine/channel. */
   async load(sequelize: Sequelize): Promise<void> {
-    const rows = await sequelize.query<{ engineId: number; channel: number; ts: number; value: number; quality: number }>(
-      LATEST_READINGS_SQL, { type: QueryTypes.SELECT, logging: false });
+    const rows = await sequelize.query<{ engineId: number; channel: number; ts: number; value: number; quality: number }>(LATEST_READINGS_SQL, {
+      type: QueryTypes.SELECT,
+      logging: false,
+    });
     for (const r of rows) {
       const info = channelByCode(Number(r.channel));
       if (!info) continue;

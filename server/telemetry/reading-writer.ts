@@ -17,8 +17,14 @@ export interface WriterOptions {
 }
 
 interface RollupRow {
-  engineId: number; channel: number; minute: number;
-  min: number | null; max: number | null; sum: number; count: number; bad: number;
+  engineId: number;
+  channel: number;
+  minute: number;
+  min: number | null;
+  max: number | null;
+  sum: number;
+  count: number;
+  bad: number;
 }
 
 /** Pre-aggregates a batch per (engine, channel, minute) so the upsert has one row per key. */
@@ -27,11 +33,11 @@ export function aggregateRollups(rows: ReadingBlock): RollupRow[] {
   const byKey = new Map<number | string, RollupRow>();
   const { engine, channel, ts, value, quality } = rows;
   for (let i = 0; i < rows.length; i++) {
-    const engineId = engine[i]; const ch = channel[i]; const t = ts[i];
+    const engineId = engine[i];
+    const ch = channel[i];
+    const t = ts[i];
     const minute = t - (t % 60_000);
-    const key = engineId < 1_048_576 && engineId >= 0 && ch < 16
-      ? ((minute / 60_000) * 1_048_576 + engineId) * 16 + ch
-      : `${engineId}:${ch}:${minute}`;
+    const key = engineId < 1_048_576 && engineId >= 0 && ch < 16 ? ((minute / 60_000) * 1_048_576 + engineId) * 16 + ch : `${engineId}:${ch}:${minute}`;
     let agg = byKey.get(key);
     if (!agg) {
       agg = { engineId, channel: ch, minute, min: null, max: null, sum: 0, count: 0, bad: 0 };
@@ -57,7 +63,10 @@ export function aggregateHours(minutes: RollupRow[]): RollupRow[] {
     const hour = m.minute - (m.minute % 3_600_000);
     const key = `${m.engineId}:${m.channel}:${hour}`;
     const agg = byKey.get(key);
-    if (!agg) { byKey.set(key, { ...m, minute: hour }); continue; }
+    if (!agg) {
+      byKey.set(key, { ...m, minute: hour });
+      continue;
+    }
     if (m.min !== null && (agg.min === null || m.min < agg.min)) agg.min = m.min;
     if (m.max !== null && (agg.max === null || m.max > agg.max)) agg.max = m.max;
     agg.sum += m.sum;
@@ -127,7 +136,7 @@ export class ReadingWriter {
     this.intervalMs = opts.intervalMs ?? 100;
     this.maxRows = opts.maxRowsPerFlush ?? 10_000;
     this.perStatement = opts.rowsPerStatement ?? 500;
-    this.perRollup = Math.floor(this.perStatement * 5 / 8);
+    this.perRollup = Math.floor((this.perStatement * 5) / 8);
     this.ackDelayMs = opts.ackDelayMs ?? 2;
     this.dialect = dialectOf(sequelize.getDialect());
   }
@@ -163,7 +172,9 @@ export class ReadingWriter {
   /** One flush (waits for a running one first, so flushes never overlap). */
   flushOnce(): Promise<void> {
     if (this.running) return this.running.then(() => this.flushOnce());
-    this.running = this.writeBatch().finally(() => { this.running = null; });
+    this.running = this.writeBatch().finally(() => {
+      this.running = null;
+    });
     return this.running;
   }
 
@@ -194,7 +205,10 @@ export class ReadingWriter {
       // a larger page cache keeps the hot part of the (engine, channel, ts) index in memory (bounded: 32 MB)
       await exec(db, 'PRAGMA cache_size=-32768');
       return db;
-    })().catch((err) => { this.handle = null; throw err; });
+    })().catch((err) => {
+      this.handle = null;
+      throw err;
+    });
     return this.handle;
   }
 
@@ -206,9 +220,10 @@ export class ReadingWriter {
       const stored = new NewRows(rows);
       for (let i = 0; i < rows.length; i += this.perStatement) {
         const n = Math.min(this.perStatement, rows.length - i);
-        const back = n === this.perStatement
-          ? await allPrepared(await this.fullInsertStatement(db), readingBinds(rows, i, n))
-          : await all(db, insertReadingsSql(n), readingBinds(rows, i, n));
+        const back =
+          n === this.perStatement
+            ? await allPrepared(await this.fullInsertStatement(db), readingBinds(rows, i, n))
+            : await all(db, insertReadingsSql(n), readingBinds(rows, i, n));
         stored.add(i, n, back);
       }
       const fullRollupSql = upsertRollupsSql(this.dialect, this.perRollup);
@@ -228,14 +243,20 @@ export class ReadingWriter {
   private fullRollupStatement(db: SqliteHandle): Promise<SqliteStatement> {
     this.fullRollup ??= new Promise<SqliteStatement>((resolve, reject) => {
       const stmt = db.prepare(upsertRollupsSql(this.dialect, this.perRollup), (err) => (err ? reject(err) : resolve(stmt)));
-    }).catch((err) => { this.fullRollup = null; throw err; });
+    }).catch((err) => {
+      this.fullRollup = null;
+      throw err;
+    });
     return this.fullRollup;
   }
 
   private fullInsertStatement(db: SqliteHandle): Promise<SqliteStatement> {
     this.fullInsert ??= new Promise<SqliteStatement>((resolve, reject) => {
       const stmt = db.prepare(insertReadingsSql(this.perStatement), (err) => (err ? reject(err) : resolve(stmt)));
-    }).catch((err) => { this.fullInsert = null; throw err; });
+    }).catch((err) => {
+      this.fullInsert = null;
+      throw err;
+    });
     return this.fullInsert;
   }
 
@@ -246,10 +267,16 @@ export class ReadingWriter {
       const stored = new NewRows(rows);
       for (let i = 0; i < rows.length; i += this.perStatement) {
         const n = Math.min(this.perStatement, rows.length - i);
-        const back = await sequelize.query<InsertedReadingRow>(insertReadingsSql(n), { bind: readingBinds(rows, i, n), transaction: t, type: QueryTypes.SELECT, logging: false });
+        const back = await sequelize.query<InsertedReadingRow>(insertReadingsSql(n), {
+          bind: readingBinds(rows, i, n),
+          transaction: t,
+          type: QueryTypes.SELECT,
+          logging: false,
+        });
         stored.add(i, n, back);
       }
-      for (const [sql, bind] of this.rollupStatements(stored.rows())) await sequelize.query(sql, { bind, transaction: t, type: QueryTypes.INSERT, logging: false });
+      for (const [sql, bind] of this.rollupStatements(stored.rows()))
+        await sequelize.query(sql, { bind, transaction: t, type: QueryTypes.INSERT, logging: false });
       await faultPoint('rollup');
       await t.commit();
       return stored.count;
@@ -275,8 +302,14 @@ export class ReadingWriter {
       const bind: Array<number | null> = new Array(chunk.length * 8);
       let k = 0;
       for (const r of chunk) {
-        bind[k++] = r.engineId; bind[k++] = r.channel; bind[k++] = r.minute; bind[k++] = r.min;
-        bind[k++] = r.max; bind[k++] = r.sum; bind[k++] = r.count; bind[k++] = r.bad;
+        bind[k++] = r.engineId;
+        bind[k++] = r.channel;
+        bind[k++] = r.minute;
+        bind[k++] = r.min;
+        bind[k++] = r.max;
+        bind[k++] = r.sum;
+        bind[k++] = r.count;
+        bind[k++] = r.bad;
       }
       out.push([upsertRollupsSql(this.dialect, chunk.length, period), bind]);
     }
@@ -338,18 +371,32 @@ function readingBinds(rows: ReadingBlock, from: number, n: number): number[] {
   const { engine, channel, ts, value, quality } = rows;
   let k = 0;
   for (let i = from; i < from + n; i++) {
-    bind[k++] = engine[i]; bind[k++] = channel[i]; bind[k++] = ts[i]; bind[k++] = value[i]; bind[k++] = quality[i];
+    bind[k++] = engine[i];
+    bind[k++] = channel[i];
+    bind[k++] = ts[i];
+    bind[k++] = value[i];
+    bind[k++] = quality[i];
   }
   return bind;
 }
 
 const run = (db: SqliteHandle, sql: string, params: unknown[]) =>
-  new Promise<void>((resolve, reject) => { db.run(sql, params, (err) => (err ? reject(err) : resolve())); });
+  new Promise<void>((resolve, reject) => {
+    db.run(sql, params, (err) => (err ? reject(err) : resolve()));
+  });
 const all = (db: SqliteHandle, sql: string, params: unknown[]) =>
-  new Promise<InsertedReadingRow[]>((resolve, reject) => { db.all(sql, params, (err, rows) => (err ? reject(err) : resolve(rows))); });
+  new Promise<InsertedReadingRow[]>((resolve, reject) => {
+    db.all(sql, params, (err, rows) => (err ? reject(err) : resolve(rows)));
+  });
 const runPrepared = (stmt: SqliteStatement, params: unknown[]) =>
-  new Promise<void>((resolve, reject) => { stmt.run(params, (err) => (err ? reject(err) : resolve())); });
+  new Promise<void>((resolve, reject) => {
+    stmt.run(params, (err) => (err ? reject(err) : resolve()));
+  });
 const allPrepared = (stmt: SqliteStatement, params: unknown[]) =>
-  new Promise<InsertedReadingRow[]>((resolve, reject) => { stmt.all(params, (err, rows) => (err ? reject(err) : resolve(rows))); });
+  new Promise<InsertedReadingRow[]>((resolve, reject) => {
+    stmt.all(params, (err, rows) => (err ? reject(err) : resolve(rows)));
+  });
 const exec = (db: SqliteHandle, sql: string) =>
-  new Promise<void>((resolve, reject) => { db.exec(sql, (err) => (err ? reject(err) : resolve())); });
+  new Promise<void>((resolve, reject) => {
+    db.exec(sql, (err) => (err ? reject(err) : resolve()));
+  });

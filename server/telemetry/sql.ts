@@ -43,7 +43,13 @@ ON CONFLICT (engine_id, channel, ts) DO NOTHING RETURNING engine_id, channel, ts
 }
 
 /** A row as the insert's RETURNING gives it back (BIGINT ts may come back as a string from PostgreSQL). */
-export interface InsertedReadingRow { engine_id: number | string; channel: number | string; ts: number | string; value: number | string; quality: number | string }
+export interface InsertedReadingRow {
+  engine_id: number | string;
+  channel: number | string;
+  ts: number | string;
+  value: number | string;
+  quality: number | string;
+}
 
 /** Per-minute rollups (`rollups`, key `minute`) or per-hour ones (`rollups_hourly`, key `hour`, migration 0020). */
 export type RollupPeriod = 'minute' | 'hour';
@@ -55,12 +61,12 @@ export function upsertRollupsSql(dialect: Dialect, rows: number, period: RollupP
   let sql = rollupCache.get(key);
   if (!sql) {
     const t = period === 'minute' ? 'rollups' : 'rollups_hourly';
-    const least = dialect === 'postgres'
-      ? `LEAST(${t}."min", excluded."min")` // LEAST/GREATEST skip NULLs
-      : `min(coalesce(${t}."min", excluded."min"), coalesce(excluded."min", ${t}."min"))`;
-    const greatest = dialect === 'postgres'
-      ? `GREATEST(${t}."max", excluded."max")`
-      : `max(coalesce(${t}."max", excluded."max"), coalesce(excluded."max", ${t}."max"))`;
+    const least =
+      dialect === 'postgres'
+        ? `LEAST(${t}."min", excluded."min")` // LEAST/GREATEST skip NULLs
+        : `min(coalesce(${t}."min", excluded."min"), coalesce(excluded."min", ${t}."min"))`;
+    const greatest =
+      dialect === 'postgres' ? `GREATEST(${t}."max", excluded."max")` : `max(coalesce(${t}."max", excluded."max"), coalesce(excluded."max", ${t}."max"))`;
     sql = `INSERT INTO ${t} (engine_id, channel, ${period}, "min", "max", "sum", "count", bad_count) VALUES ${placeholders(rows, 8)}
 ON CONFLICT (engine_id, channel, ${period}) DO UPDATE SET
   "min" = ${least}, "max" = ${greatest},

@@ -49,7 +49,11 @@ export interface IngestCounters {
   sparkplug?: { births: number; deaths: number; seqGaps: number; rebirthRequests: number; nodesOnline: number };
 }
 
-export interface LoopDelay { p50: number; p99: number; max: number }
+export interface LoopDelay {
+  p50: number;
+  p99: number;
+  max: number;
+}
 
 export interface AuthUser {
   id: number;

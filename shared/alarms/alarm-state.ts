@@ -9,16 +9,17 @@
  * Not latched: a returned alarm goes back to normal once acknowledged.
  */
 
-export type AlarmState =
-  | 'normal'
-  | 'unacknowledged'
-  | 'acknowledged'
-  | 'returned-unacknowledged'
-  | 'shelved'
-  | 'suppressed-by-design'
-  | 'out-of-service';
+export type AlarmState = 'normal' | 'unacknowledged' | 'acknowledged' | 'returned-unacknowledged' | 'shelved' | 'suppressed-by-design' | 'out-of-service';
 
-export const ALARM_STATES: readonly AlarmState[] = ['normal', 'unacknowledged', 'acknowledged', 'returned-unacknowledged', 'shelved', 'suppressed-by-design', 'out-of-service'];
+export const ALARM_STATES: readonly AlarmState[] = [
+  'normal',
+  'unacknowledged',
+  'acknowledged',
+  'returned-unacknowledged',
+  'shelved',
+  'suppressed-by-design',
+  'out-of-service',
+];
 
 export const SHELVE_MIN_MINUTES = 1;
 export const SHELVE_MAX_MINUTES = 1440;
@@ -73,9 +74,21 @@ export type TransitionResult = { ok: true; alarm: AlarmRecord } | { ok: false; r
 
 export function newAlarm(direction: 'high' | 'low' = 'high'): AlarmRecord {
   return {
-    state: 'normal', active: false, direction, raisedValue: null, worstValue: null, lastValue: null, message: null,
-    activatedAt: null, clearedAt: null, acknowledgedAt: null, acknowledgedBy: null,
-    shelvedUntil: null, shelveReason: null, outOfServiceReason: null, history: [],
+    state: 'normal',
+    active: false,
+    direction,
+    raisedValue: null,
+    worstValue: null,
+    lastValue: null,
+    message: null,
+    activatedAt: null,
+    clearedAt: null,
+    acknowledgedAt: null,
+    acknowledgedBy: null,
+    shelvedUntil: null,
+    shelveReason: null,
+    outOfServiceReason: null,
+    history: [],
   };
 }
 
@@ -116,8 +129,16 @@ export function transition(alarm: AlarmRecord, event: AlarmEvent, at: number): T
       if (alarm.active) return refuse(alarm, 'already active');
       value = event.value;
       next = {
-        ...next, active: true, raisedValue: event.value, worstValue: event.value, lastValue: event.value,
-        message: event.message ?? null, activatedAt: at, clearedAt: null, acknowledgedAt: null, acknowledgedBy: null,
+        ...next,
+        active: true,
+        raisedValue: event.value,
+        worstValue: event.value,
+        lastValue: event.value,
+        message: event.message ?? null,
+        activatedAt: at,
+        clearedAt: null,
+        acknowledgedAt: null,
+        acknowledgedBy: null,
       };
       if (!hidden) next.state = 'unacknowledged';
       break;

@@ -46,7 +46,11 @@ export function initialFloodState(): FloodState {
  * Advance to `input.ts`; `input.alarm` true when one alarm was annunciated at that time (call
  * once per alarm), false or absent for a tick. Inputs in time order.
  */
-export function stepFlood(state: FloodState, input: { ts: number; alarm?: boolean }, params: FloodParams = ISA_18_2_FLOOD): { state: FloodState; events: FloodEvent[] } {
+export function stepFlood(
+  state: FloodState,
+  input: { ts: number; alarm?: boolean },
+  params: FloodParams = ISA_18_2_FLOOD,
+): { state: FloodState; events: FloodEvent[] } {
   const events: FloodEvent[] = [];
   const recent = [...state.recent];
   let { flooding, since } = state;
@@ -80,7 +84,11 @@ export function floodPeriods(times: readonly number[], params: FloodParams = ISA
   const apply = (events: FloodEvent[]) => {
     for (const e of events) {
       if (e.kind === 'flood-begin') open = { start: e.ts, end: null, alarms: 0, peakCount: e.count };
-      else if (open) { open.end = e.ts; periods.push(open); open = null; }
+      else if (open) {
+        open.end = e.ts;
+        periods.push(open);
+        open = null;
+      }
     }
   };
   for (const t of sorted) {
@@ -88,7 +96,10 @@ export function floodPeriods(times: readonly number[], params: FloodParams = ISA
     state = r.state;
     apply(r.events);
     const o = open as FloodPeriod | null;
-    if (o) { o.alarms += o.start === t && r.events.some((e) => e.kind === 'flood-begin') ? o.peakCount : 1; o.peakCount = Math.max(o.peakCount, state.recent.length); }
+    if (o) {
+      o.alarms += o.start === t && r.events.some((e) => e.kind === 'flood-begin') ? o.peakCount : 1;
+      o.peakCount = Math.max(o.peakCount, state.recent.length);
+    }
   }
   const end = until ?? (sorted.length ? sorted[sorted.length - 1] + params.windowMs : 0);
   const r = stepFlood(state, { ts: end }, params);

@@ -75,12 +75,18 @@ export function alarmPerformance(activations: readonly AlarmActivation[], opt: P
 
   const chattering: PerformanceReport['chattering'] = [];
   for (const [key, list] of byKey) {
-    let bursts = 0, maxIn = 0, lo = 0, inBurst = false;
+    let bursts = 0,
+      maxIn = 0,
+      lo = 0,
+      inBurst = false;
     for (let hi = 0; hi < list.length; hi++) {
       while (list[hi] - list[lo] >= chatterWindow) lo++;
       const n = hi - lo + 1;
       maxIn = Math.max(maxIn, n);
-      if (n >= chatterCount && !inBurst) { bursts++; inBurst = true; }
+      if (n >= chatterCount && !inBurst) {
+        bursts++;
+        inBurst = true;
+      }
       if (n < chatterCount) inBurst = false;
     }
     if (bursts > 0) chattering.push({ key, bursts, maxInWindow: maxIn });

@@ -20,6 +20,15 @@ export interface HistoryServiceEvent {
 
 /** The engine the history is of. */
 export interface HistoryEngine {
-  id: number; name: string; siteId: number; siteName: string | null; duty: string; capacityL: number;
-  coolantFamily: string; glycolType: string; glycolPercent: number; runHours: number; retiredAt: string | null;
+  id: number;
+  name: string;
+  siteId: number;
+  siteName: string | null;
+  duty: string;
+  capacityL: number;
+  coolantFamily: string;
+  glycolType: string;
+  glycolPercent: number;
+  runHours: number;
+  retiredAt: string | null;
 }

@@ -58,7 +58,11 @@ export function practicalDose(exactL: number): PracticalDose {
   }
   if (exact < DOSE_STEP_L) {
     const litres = Math.max(MIN_PRACTICAL_DOSE_L, Math.round(Math.round(exact / MIN_PRACTICAL_DOSE_L) * MIN_PRACTICAL_DOSE_L * 1000) / 1000);
-    return { litres, exactL: exact, note: `Small dose: ${ml(exact)} exactly, rounded to ${ml(litres)} (5 mL steps under ${DOSE_STEP_L.toFixed(2)} L); measure it with a graduated syringe.` };
+    return {
+      litres,
+      exactL: exact,
+      note: `Small dose: ${ml(exact)} exactly, rounded to ${ml(litres)} (5 mL steps under ${DOSE_STEP_L.toFixed(2)} L); measure it with a graduated syringe.`,
+    };
   }
   const litres = Math.max(DOSE_STEP_L, roundToStep(exact, 'nearest'));
   return { litres, exactL: exact, note: `Rounded from ${exact.toFixed(3)} L to the nearest ${DOSE_STEP_L.toFixed(2)} L.` };
@@ -163,7 +167,8 @@ export function decideAdditive(input: AdditiveInput): AdditiveDecision {
       status: 'low',
       filter: 'charged',
       liquidAdditiveL: litres,
-      liquidAdditiveUsPints: litres < DOSE_STEP_L ? Math.round((litres / LITRES_PER_US_PINT) * 1000) / 1000 : Math.round((litres / LITRES_PER_US_PINT) * 10) / 10,
+      liquidAdditiveUsPints:
+        litres < DOSE_STEP_L ? Math.round((litres / LITRES_PER_US_PINT) * 1000) / 1000 : Math.round((litres / LITRES_PER_US_PINT) * 10) / 10,
       doseNote: dose.note,
       scaUnitsPerGal: units,
       scaUnitsPerLitre: perL,
@@ -187,10 +192,7 @@ export function decideAdditive(input: AdditiveInput): AdditiveDecision {
       scaUnitsPerGal: units,
       scaUnitsPerLitre: perL,
       limits,
-      reasons: [
-        `Additive in range: ${reading} is within ${range}.`,
-        'Keep changing the charged coolant filter at each oil-drain interval.',
-      ],
+      reasons: [`Additive in range: ${reading} is within ${range}.`, 'Keep changing the charged coolant filter at each oil-drain interval.'],
       cautions,
     };
   }
@@ -240,8 +242,10 @@ export interface InitialCharge {
  */
 export function initialChargeAfterRefill(input: InitialChargeInput): InitialCharge {
   const capacityL = requireCapacity(input?.capacityL);
-  const target = input.targetUnitsPerGal === undefined ? DEFAULT_SCA_LIMITS.low : requireInRange('targetUnitsPerGal', input.targetUnitsPerGal, 0, 100, 'units/gal');
-  const upper = input.upperUnitsPerGal === undefined ? DEFAULT_SCA_LIMITS.high : requireInRange('upperUnitsPerGal', input.upperUnitsPerGal, 0, 100, 'units/gal');
+  const target =
+    input.targetUnitsPerGal === undefined ? DEFAULT_SCA_LIMITS.low : requireInRange('targetUnitsPerGal', input.targetUnitsPerGal, 0, 100, 'units/gal');
+  const upper =
+    input.upperUnitsPerGal === undefined ? DEFAULT_SCA_LIMITS.high : requireInRange('upperUnitsPerGal', input.upperUnitsPerGal, 0, 100, 'units/gal');
   if (!(upper >= target)) throw new CoolantInputError('targetUnitsPerGal', `must not be above upperUnitsPerGal (${upper}; got ${target})`);
   const filterUnits = requireInRange('filterPrechargeUnits', input.filterPrechargeUnits, 0, 1e6, 'units');
   const strength = requireFinite('liquidUnitsPerLitre', input.liquidUnitsPerLitre);

@@ -19,13 +19,7 @@ export const BOILING_MAX_GLYCOL_PERCENT = 80;
  * Absolute pressure = gauge + atmosphereKpa (standard atmosphere 101.325 kPa unless a barometric value is given).
  * percent = 0 gives pure water.
  */
-export function boilingPointC(
-  gaugeKpa: number,
-  glycol: GlycolType,
-  percent: number,
-  basis: ConcentrationBasis,
-  atmosphereKpa: number = KPA_PER_ATM,
-): number {
+export function boilingPointC(gaugeKpa: number, glycol: GlycolType, percent: number, basis: ConcentrationBasis, atmosphereKpa: number = KPA_PER_ATM): number {
   const gauge = requireFinite('gaugeKpa', gaugeKpa);
   const atm = requireInRange('atmosphereKpa', atmosphereKpa, 30, 110, 'kPa');
   requireOneOf('glycol', glycol, GLYCOL_TYPES);

@@ -121,14 +121,16 @@ function nitrite(v: number, l: ChemistryLimits): ChemistryFinding {
   const range = `${l.nitriteLowPpm} to ${l.nitriteHighPpm} ppm`;
   if (v < l.nitriteLowPpm) {
     return {
-      ...base, status: 'low',
+      ...base,
+      status: 'low',
       message: `Nitrite low: ${v} ppm is below ${l.nitriteLowPpm} ppm. Too little inhibitor lets vapour bubbles collapse on the wet cylinder liners and pit them (cavitation).`,
       action: 'Add supplemental coolant additive (see the dose) or fit a charged coolant filter, run the engine to mix, and test again.',
     };
   }
   if (v > l.nitriteHighPpm) {
     return {
-      ...base, status: 'high',
+      ...base,
+      status: 'high',
       message: `Nitrite high: ${v} ppm is above ${l.nitriteHighPpm} ppm. Too much additive drops out as deposits and gel that block passages and wear water-pump seals.`,
       action: 'Add no additive and fit a blank coolant filter; if far above, drain part of the coolant and refill with premix; test again.',
     };
@@ -140,14 +142,16 @@ function molybdate(v: number, l: ChemistryLimits): ChemistryFinding {
   const base = { field: 'molybdatePpm' as const, value: v, source: CHEMISTRY_LIMIT_SOURCES.molybdate };
   if (v < l.molybdateLowPpm) {
     return {
-      ...base, status: 'low',
+      ...base,
+      status: 'low',
       message: `Molybdate low: ${v} ppm is below ${l.molybdateLowPpm} ppm (where the coolant uses molybdate, it backs up nitrite against liner pitting).`,
       action: 'Dose supplemental coolant additive as for low nitrite and test again; ignore if your coolant carries no molybdate.',
     };
   }
   if (v > l.molybdateHighPpm) {
     return {
-      ...base, status: 'high',
+      ...base,
+      status: 'high',
       message: `Molybdate high: ${v} ppm is above ${l.molybdateHighPpm} ppm: the additive is overdosed.`,
       action: 'Add no additive and fit a blank coolant filter until the level is back in range.',
     };
@@ -159,14 +163,16 @@ function ph(v: number, l: ChemistryLimits): ChemistryFinding {
   const base = { field: 'ph' as const, value: v, source: CHEMISTRY_LIMIT_SOURCES.ph };
   if (v < l.phLow) {
     return {
-      ...base, status: 'low',
+      ...base,
+      status: 'low',
       message: `pH low: ${v} is below ${l.phLow}. Acid coolant attacks iron, copper and solder; the usual causes are glycol breakdown from overheating or air, or exhaust gas leaking into the coolant.`,
       action: 'Drain, flush and refill with new coolant, and find the cause (overheating, air leak, head gasket or cooler leak).',
     };
   }
   if (v > l.phHigh) {
     return {
-      ...base, status: 'high',
+      ...base,
+      status: 'high',
       message: `pH high: ${v} is above ${l.phHigh}. Strongly alkaline coolant attacks aluminium and seals; an overdose of additive or the wrong product are the usual causes.`,
       action: 'Check what was added; drain part of the coolant and refill with premix, then test again.',
     };
@@ -178,7 +184,8 @@ function reserveAlkalinity(v: number, l: ChemistryLimits): ChemistryFinding {
   const base = { field: 'reserveAlkalinityMl' as const, value: v, source: CHEMISTRY_LIMIT_SOURCES.reserveAlkalinity };
   if (v < l.reserveAlkalinityLowMl) {
     return {
-      ...base, status: 'low',
+      ...base,
+      status: 'low',
       message: `Reserve alkalinity low: ${v} mL is below ${l.reserveAlkalinityLowMl} mL: the buffer that neutralises acids is used up.`,
       action: 'Plan a drain, flush and refill with new coolant; additive alone does not restore the buffer of old coolant.',
     };
@@ -200,23 +207,29 @@ function freezeProtection(r: ChemistryReading, ctx: ChemistryContext, l: Chemist
   const overNote = over ? ` Above about ${OVER_CONCENTRATION_PERCENT} % glycol, more glycol protects less: dilute towards 50 %.` : '';
   if (ctx.designLowC === null) {
     return {
-      ...base, status: 'unknown', value: fp,
+      ...base,
+      status: 'unknown',
+      value: fp,
       message: `No design low temperature is set for this site, so the ${how}${fp === null ? '' : ` (${both(fp)})`} cannot be judged.${overNote}`,
-      action: 'Ask an administrator to set the site\'s lowest expected temperature.',
+      action: "Ask an administrator to set the site's lowest expected temperature.",
     };
   }
   const need = ctx.designLowC - l.freezeMarginK;
   const needText = `design low ${both(ctx.designLowC)} less the ${l.freezeMarginK} K (${+(l.freezeMarginK * 1.8).toFixed(1)} °F) margin = ${both(need)}`;
   if (fp === null) {
     return {
-      ...base, status: over ? 'high' : 'unknown', value: null,
+      ...base,
+      status: over ? 'high' : 'unknown',
+      value: null,
       message: `${r.glycolPercent} % glycol is beyond the published table: its freeze point is not known (${needText}).${overNote}`,
       action: 'Measure the freeze point with a refractometer and correct the mix towards 50 %.',
     };
   }
   if (fp <= need) {
     return {
-      ...base, status: over ? 'high' : 'ok', value: fp,
+      ...base,
+      status: over ? 'high' : 'ok',
+      value: fp,
       message: `Freeze protection ${both(fp)} (${how}) meets the ${needText}.${overNote}`,
       action: over ? 'Dilute towards 50 % glycol with water (see the mix correction).' : 'No action.',
     };
@@ -224,14 +237,17 @@ function freezeProtection(r: ChemistryReading, ctx: ChemistryContext, l: Chemist
   let target: string;
   try {
     const p = percentForFreezePoint(ctx.glycolType, need, 'volume');
-    target = p > OVER_CONCENTRATION_PERCENT
-      ? `${ctx.glycolType} glycol cannot reach ${both(need)} at ${OVER_CONCENTRATION_PERCENT} % or less: take advice on the coolant or the design temperature.`
-      : `Raise the glycol to at least ${p.toFixed(1)} % by volume (see the mix correction) and test again.`;
+    target =
+      p > OVER_CONCENTRATION_PERCENT
+        ? `${ctx.glycolType} glycol cannot reach ${both(need)} at ${OVER_CONCENTRATION_PERCENT} % or less: take advice on the coolant or the design temperature.`
+        : `Raise the glycol to at least ${p.toFixed(1)} % by volume (see the mix correction) and test again.`;
   } catch {
     target = `${ctx.glycolType} glycol cannot reach ${both(need)} within the published table: take advice on the coolant or the design temperature.`;
   }
   return {
-    ...base, status: 'short', value: fp,
+    ...base,
+    status: 'short',
+    value: fp,
     message: `Freeze protection short: ${both(fp)} (${how}) is warmer than the ${needText}. The coolant could freeze, crack the block or radiator and stop the engine starting.`,
     action: `${target}${over ? overNote : ''}`,
   };
@@ -242,7 +258,8 @@ function breakdown(signs: readonly BreakdownSign[], phValue: number | null, l: C
   const phLow = phValue !== null && phValue < l.phLow;
   if (!signs.length) {
     return {
-      ...base, status: phLow ? 'unknown' : 'ok',
+      ...base,
+      status: phLow ? 'unknown' : 'ok',
       message: phLow
         ? `No sign of glycol breakdown seen, but the pH is low (${phValue}): breakdown acids can be present before they show.`
         : 'No sign of glycol breakdown seen (smell, colour, sludge).',
@@ -251,16 +268,21 @@ function breakdown(signs: readonly BreakdownSign[], phValue: number | null, l: C
   }
   const seen = signs.map((s) => BREAKDOWN_SIGN_TEXT[s]).join(', ');
   return {
-    ...base, status: 'signs',
+    ...base,
+    status: 'signs',
     message: `Signs of glycol breakdown: ${seen}${phLow ? `, with a low pH (${phValue})` : ''}. Overheated or aerated glycol turns into organic acids (glycolic, formic, acetic) that use up the additive and the alkaline buffer and then attack iron, copper, solder and aluminium.`,
-    action: 'Have a laboratory confirm (pH, reserve alkalinity, breakdown acids); plan a drain, flush and refill with new coolant; find the cause (overheating, air drawn in at a pump seal or a low level, exhaust gas in the coolant).',
+    action:
+      'Have a laboratory confirm (pH, reserve alkalinity, breakdown acids); plan a drain, flush and refill with new coolant; find the cause (overheating, air drawn in at a pump seal or a low level, exhaust gas in the coolant).',
   };
 }
 
 /** Extended-life coolants differ (some carry no nitrite at all): the conventional limits would mislead. */
 function notForElc(field: 'nitritePpm' | 'molybdatePpm', name: string, v: number): ChemistryFinding {
   return {
-    field, status: 'unknown', value: v, source: 'extended-life coolant: the coolant maker\'s figures',
+    field,
+    status: 'unknown',
+    value: v,
+    source: "extended-life coolant: the coolant maker's figures",
     message: `${name} ${v} ppm in extended-life coolant: the limits here are for conventional coolant, and some extended-life coolants carry none.`,
     action: "Compare with the coolant maker's figures or the laboratory's judgement; add extender only as the coolant maker says.",
   };

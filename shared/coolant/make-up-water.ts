@@ -79,7 +79,14 @@ export function checkMakeUpWater(sample: MakeUpWaterSample): MakeUpWaterResult {
   const items: WaterItemResult[] = [
     upperLimitItem('chlorideMgL', 'Chloride', s.chlorideMgL, L.chlorideMgL, 'mg/L', 'chloride attacks metals and speeds corrosion.'),
     upperLimitItem('sulfateMgL', 'Sulfate', s.sulfateMgL, L.sulfateMgL, 'mg/L', 'sulfate speeds corrosion and can form scale.'),
-    upperLimitItem('hardnessMgLCaCO3', 'Total hardness', s.hardnessMgLCaCO3, L.hardnessMgLCaCO3, 'mg/L as CaCO3', 'calcium and magnesium form scale on hot surfaces and use up additive.'),
+    upperLimitItem(
+      'hardnessMgLCaCO3',
+      'Total hardness',
+      s.hardnessMgLCaCO3,
+      L.hardnessMgLCaCO3,
+      'mg/L as CaCO3',
+      'calcium and magnesium form scale on hot surfaces and use up additive.',
+    ),
   ];
 
   if (s.tdsMgL !== undefined && s.tdsMgL !== null) {
@@ -89,12 +96,31 @@ export function checkMakeUpWater(sample: MakeUpWaterSample): MakeUpWaterResult {
     const low = TDS_PER_CONDUCTIVITY.low * ec;
     const high = TDS_PER_CONDUCTIVITY.high * ec;
     const est = `estimated from ${ec} µS/cm as ${low.toFixed(0)} to ${high.toFixed(0)} mg/L (k = ${TDS_PER_CONDUCTIVITY.low} to ${TDS_PER_CONDUCTIVITY.high}, Standard Methods 1030E)`;
-    const base = { field: 'tdsMgL' as const, label: 'Total dissolved solids', unit: 'mg/L', limit: `<= ${L.tdsMgL} mg/L`, estimated: true, range: { low, high }, value: (low + high) / 2 };
-    if (low > L.tdsMgL) items.push({ ...base, status: 'fail', reason: `TDS ${est} is above the limit of ${L.tdsMgL} mg/L: dissolved salts cause deposits and corrosion.` });
+    const base = {
+      field: 'tdsMgL' as const,
+      label: 'Total dissolved solids',
+      unit: 'mg/L',
+      limit: `<= ${L.tdsMgL} mg/L`,
+      estimated: true,
+      range: { low, high },
+      value: (low + high) / 2,
+    };
+    if (low > L.tdsMgL)
+      items.push({ ...base, status: 'fail', reason: `TDS ${est} is above the limit of ${L.tdsMgL} mg/L: dissolved salts cause deposits and corrosion.` });
     else if (high <= L.tdsMgL) items.push({ ...base, status: 'pass', reason: `TDS ${est} is within the limit of ${L.tdsMgL} mg/L.` });
     else items.push({ ...base, status: 'uncertain', reason: `TDS ${est} straddles the limit of ${L.tdsMgL} mg/L: measure TDS to decide.` });
   } else {
-    items.push({ field: 'tdsMgL', label: 'Total dissolved solids', status: 'not-measured', value: null, unit: 'mg/L', limit: `<= ${L.tdsMgL} mg/L`, estimated: false, range: null, reason: 'TDS not measured (nor conductivity to estimate it).' });
+    items.push({
+      field: 'tdsMgL',
+      label: 'Total dissolved solids',
+      status: 'not-measured',
+      value: null,
+      unit: 'mg/L',
+      limit: `<= ${L.tdsMgL} mg/L`,
+      estimated: false,
+      range: null,
+      reason: 'TDS not measured (nor conductivity to estimate it).',
+    });
   }
 
   const pHBase = { field: 'pH' as const, label: 'pH', unit: '', limit: `${L.pHMin} to ${L.pHMax}`, estimated: false, range: null };
@@ -103,7 +129,8 @@ export function checkMakeUpWater(sample: MakeUpWaterSample): MakeUpWaterResult {
   } else {
     const pH = requireInRange('pH', s.pH, 0, 14);
     if (pH < L.pHMin) items.push({ ...pHBase, status: 'fail', value: pH, reason: `pH ${pH} is below ${L.pHMin}: acid water corrodes the cooling system.` });
-    else if (pH > L.pHMax) items.push({ ...pHBase, status: 'fail', value: pH, reason: `pH ${pH} is above ${L.pHMax}: alkaline water can form scale and attack aluminium.` });
+    else if (pH > L.pHMax)
+      items.push({ ...pHBase, status: 'fail', value: pH, reason: `pH ${pH} is above ${L.pHMax}: alkaline water can form scale and attack aluminium.` });
     else items.push({ ...pHBase, status: 'pass', value: pH, reason: `pH ${pH} is within ${L.pHMin} to ${L.pHMax}.` });
   }
 

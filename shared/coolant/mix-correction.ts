@@ -62,13 +62,25 @@ export function correctMix(input: MixCorrectionInput): MixCorrection {
   const c0 = requireInRange('measuredPercent', input.measuredPercent, 0, 100, '%') / 100;
   const c1 = requireInRange('targetPercent', input.targetPercent, 0, 100, '%') / 100;
   if (c1 * 100 > OVER_CONCENTRATION_PERCENT) {
-    throw new CoolantInputError('targetPercent', `above ${OVER_CONCENTRATION_PERCENT} % glycol more glycol protects less against freezing (and cools worse): choose a target of ${OVER_CONCENTRATION_PERCENT} % or less (got ${input.targetPercent} %)`);
+    throw new CoolantInputError(
+      'targetPercent',
+      `above ${OVER_CONCENTRATION_PERCENT} % glycol more glycol protects less against freezing (and cools worse): choose a target of ${OVER_CONCENTRATION_PERCENT} % or less (got ${input.targetPercent} %)`,
+    );
   }
   const sca = input.scaUnitsPerGal === undefined ? null : requireInRange('scaUnitsPerGal', input.scaUnitsPerGal, 0, 100, 'units/gal');
   const strength = input.liquidUnitsPerLitre === undefined ? null : requireInRange('liquidUnitsPerLitre', input.liquidUnitsPerLitre, 1e-6, 1e5, 'units/L');
 
   if (Math.abs(c1 - c0) < 1e-12) {
-    return { drainL: 0, addL: 0, refill: null, refillPercent: null, resultingPercent: c0 * 100, fullDrain: false, additive: null, reasons: ['The mix is already at the target: nothing to drain.'] };
+    return {
+      drainL: 0,
+      addL: 0,
+      refill: null,
+      refillPercent: null,
+      resultingPercent: c0 * 100,
+      fullDrain: false,
+      additive: null,
+      reasons: ['The mix is already at the target: nothing to drain.'],
+    };
   }
 
   let refill: RefillLiquid;
@@ -82,7 +94,10 @@ export function correctMix(input: MixCorrectionInput): MixCorrection {
     if (Math.abs(cr - c1) < 1e-12) fullDrain = true;
     else if (!ok) {
       const need = c1 > c0 ? 'stronger' : 'weaker';
-      throw new CoolantInputError('premixPercent', `a ${need} premix than the target ${input.targetPercent} % is needed to move from ${input.measuredPercent} % (got ${input.premixPercent} %)`);
+      throw new CoolantInputError(
+        'premixPercent',
+        `a ${need} premix than the target ${input.targetPercent} % is needed to move from ${input.measuredPercent} % (got ${input.premixPercent} %)`,
+      );
     }
   } else {
     refill = c1 > c0 ? 'glycol' : 'water';
@@ -121,20 +136,31 @@ export function additiveDilution(capacityL: number, replacedL: number, scaUnitsP
   const units = (scaUnitsPerGal - after) * (capacityL / LITRES_PER_US_GALLON);
   const dose = liquidUnitsPerLitre === null ? null : practicalDose(units / liquidUnitsPerLitre);
   return {
-    fractionReplaced: f, levelBeforeUnitsPerGal: scaUnitsPerGal, levelAfterUnitsPerGal: after, restoreUnits: units,
-    restoreLiquidL: dose ? dose.litres : null, doseNote: dose ? dose.note : null,
+    fractionReplaced: f,
+    levelBeforeUnitsPerGal: scaUnitsPerGal,
+    levelAfterUnitsPerGal: after,
+    restoreUnits: units,
+    restoreLiquidL: dose ? dose.litres : null,
+    doseNote: dose ? dose.note : null,
   };
 }
 
 function additiveReasons(a: AdditiveDilution): string[] {
   const pct = (a.fractionReplaced * 100).toFixed(0);
-  const out = [`Replacing ${pct} % of the coolant removes ${pct} % of its additive (inhibitors): the refill carries none unless its label says it is pre-charged.`];
+  const out = [
+    `Replacing ${pct} % of the coolant removes ${pct} % of its additive (inhibitors): the refill carries none unless its label says it is pre-charged.`,
+  ];
   if (a.levelBeforeUnitsPerGal === null) {
     out.push('Test the additive after the correction and dose it back to its range.');
     return out;
   }
-  out.push(`The additive falls from ${a.levelBeforeUnitsPerGal.toFixed(2)} to about ${a.levelAfterUnitsPerGal!.toFixed(2)} units/US gal; restoring it takes ${a.restoreUnits!.toFixed(1)} units.`);
-  if (a.restoreLiquidL !== null) out.push(`Add ${a.restoreLiquidL < 0.05 ? a.restoreLiquidL.toFixed(3) : a.restoreLiquidL.toFixed(2)} L of liquid additive to restore the level.${a.doseNote ? ' ' + a.doseNote : ''}`);
+  out.push(
+    `The additive falls from ${a.levelBeforeUnitsPerGal.toFixed(2)} to about ${a.levelAfterUnitsPerGal!.toFixed(2)} units/US gal; restoring it takes ${a.restoreUnits!.toFixed(1)} units.`,
+  );
+  if (a.restoreLiquidL !== null)
+    out.push(
+      `Add ${a.restoreLiquidL < 0.05 ? a.restoreLiquidL.toFixed(3) : a.restoreLiquidL.toFixed(2)} L of liquid additive to restore the level.${a.doseNote ? ' ' + a.doseNote : ''}`,
+    );
   else out.push('Give the liquid additive strength (units per litre, from its label) for the dose in litres.');
   return out;
 }

@@ -47,12 +47,7 @@ export function monotoneCurve(xs: readonly number[], ys: readonly number[]): Mon
       const t = (x - xs[i]) / h[i];
       const t2 = t * t;
       const t3 = t2 * t;
-      return (
-        (2 * t3 - 3 * t2 + 1) * ys[i] +
-        (t3 - 2 * t2 + t) * h[i] * d[i] +
-        (-2 * t3 + 3 * t2) * ys[i + 1] +
-        (t3 - t2) * h[i] * d[i + 1]
-      );
+      return (2 * t3 - 3 * t2 + 1) * ys[i] + (t3 - 2 * t2 + t) * h[i] * d[i] + (-2 * t3 + 3 * t2) * ys[i + 1] + (t3 - t2) * h[i] * d[i + 1];
     },
   };
 }

@@ -75,9 +75,14 @@ export function estimateAfterTopUps(input: TopUpEstimateInput): TopUpEstimate {
   const belowLow = scaLow || nitriteBelow;
   const reasons: string[] = [];
   if (!input.topUps.length) reasons.push('No top-ups since the last test.');
-  else reasons.push(`${input.topUps.length} top-up(s), ${added.toFixed(1)} L in all, replaced about ${(replaced * 100).toFixed(0)} % of the ${V.toFixed(1)} L system.`);
+  else
+    reasons.push(
+      `${input.topUps.length} top-up(s), ${added.toFixed(1)} L in all, replaced about ${(replaced * 100).toFixed(0)} % of the ${V.toFixed(1)} L system.`,
+    );
   if (sca !== null) {
-    reasons.push(`Additive estimated at ${sca.toFixed(2)} units/US gal (the added liquid carries none; assumes the lost coolant leaked out with its additive).`);
+    reasons.push(
+      `Additive estimated at ${sca.toFixed(2)} units/US gal (the added liquid carries none; assumes the lost coolant leaked out with its additive).`,
+    );
     if (scaLow) reasons.push(`That is below ${input.lowUnitsPerGal.toFixed(2)} units/US gal: test the coolant now.`);
   }
   if (nitrite !== null) {

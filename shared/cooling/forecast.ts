@@ -48,8 +48,12 @@ function slope(pts: readonly TimedSample[]): { b: number; t: number } {
   const n = pts.length;
   const mt = pts.reduce((s, p) => s + p.ts, 0) / n;
   const my = pts.reduce((s, p) => s + p.value, 0) / n;
-  let sxx = 0, sxy = 0;
-  for (const p of pts) { sxx += (p.ts - mt) ** 2; sxy += (p.ts - mt) * (p.value - my); }
+  let sxx = 0,
+    sxy = 0;
+  for (const p of pts) {
+    sxx += (p.ts - mt) ** 2;
+    sxy += (p.ts - mt) * (p.value - my);
+  }
   if (sxx === 0) return { b: 0, t: 0 };
   const b = sxy / sxx;
   let sse = 0;
@@ -113,17 +117,24 @@ export function forecastCooling(samples: readonly TimedSample[], limit: number, 
   const bound = sseBest * (1 + fCrit(n) / Math.max(1, n - 3)) + 1e-9 * n;
   const lo = Math.min(...falling.map((p) => p.value));
   const range = Math.max(1e-6, pts[peak].value - lo);
-  let earliest = at, latest: number | null = at;
+  let earliest = at,
+    latest: number | null = at;
   const dBest = secondsDownTo(fittedNow(best), best.ambientC, best.tauS, limit);
-  if (Number.isFinite(dBest)) { earliest = Math.min(earliest, last.ts + dBest * 1000); latest = Math.max(latest, last.ts + dBest * 1000); }
+  if (Number.isFinite(dBest)) {
+    earliest = Math.min(earliest, last.ts + dBest * 1000);
+    latest = Math.max(latest, last.ts + dBest * 1000);
+  }
   const N = 400;
   for (let i = 0; i <= N; i++) {
     // ambients from far below up to just under the lowest reading, denser near the data
-    const ta = lo - 1e-3 * range - 50 * range * (Math.pow(1.015, N - i) - 1) / (Math.pow(1.015, N) - 1);
+    const ta = lo - 1e-3 * range - (50 * range * (Math.pow(1.015, N - i) - 1)) / (Math.pow(1.015, N) - 1);
     const f = fitCooling(asS, ta);
     if (!f || sseOf(falling, f) > bound) continue;
     const d = secondsDownTo(fittedNow(f), ta, f.tauS, limit);
-    if (!Number.isFinite(d)) { latest = null; continue; }
+    if (!Number.isFinite(d)) {
+      latest = null;
+      continue;
+    }
     const t = last.ts + d * 1000;
     earliest = Math.min(earliest, t);
     if (latest !== null) latest = Math.max(latest, t);

@@ -65,13 +65,19 @@ function fitFixedAmbient(samples: readonly CoolingSample[], ambientC: number): C
   const sign = above * 2 >= samples.length ? 1 : -1;
   const pts = samples.filter((s) => sign * (s.temp - ambientC) > 0);
   if (pts.length < 3) return null;
-  let sw = 0, st = 0, sy = 0;
+  let sw = 0,
+    st = 0,
+    sy = 0;
   for (const p of pts) {
     const w = (p.temp - ambientC) ** 2;
-    sw += w; st += w * (p.t - t0); sy += w * Math.log(sign * (p.temp - ambientC));
+    sw += w;
+    st += w * (p.t - t0);
+    sy += w * Math.log(sign * (p.temp - ambientC));
   }
-  const mt = st / sw, my = sy / sw;
-  let num = 0, den = 0;
+  const mt = st / sw,
+    my = sy / sw;
+  let num = 0,
+    den = 0;
   for (const p of pts) {
     const w = (p.temp - ambientC) ** 2;
     const dt = p.t - t0 - mt;
@@ -84,7 +90,8 @@ function fitFixedAmbient(samples: readonly CoolingSample[], ambientC: number): C
   const tauS = -1 / slope;
   const startC = ambientC + sign * Math.exp(my - slope * mt);
   const mean = samples.reduce((s, p) => s + p.temp, 0) / samples.length;
-  let ssRes = 0, ssTot = 0;
+  let ssRes = 0,
+    ssTot = 0;
   for (const p of samples) {
     ssRes += (p.temp - coolingTemperature(startC, ambientC, tauS, p.t - t0)) ** 2;
     ssTot += (p.temp - mean) ** 2;
@@ -104,7 +111,8 @@ export function fitCooling(samples: readonly CoolingSample[], ambientC?: number 
   if (s.length < 3) return null;
   if (ambientC !== undefined && ambientC !== null) return fitFixedAmbient(s, ambientC);
   const temps = s.map((p) => p.temp);
-  const lo = Math.min(...temps), hi = Math.max(...temps);
+  const lo = Math.min(...temps),
+    hi = Math.max(...temps);
   const range = hi - lo;
   if (range === 0) return null;
   const cooling = s[s.length - 1].temp < s[0].temp;
@@ -118,19 +126,37 @@ export function fitCooling(samples: readonly CoolingSample[], ambientC?: number 
   };
   // Coarse scan (geometric from the data edge outwards) then golden-section refinement.
   const N = 80;
-  let best = 0, bestV = Infinity;
+  let best = 0,
+    bestV = Infinity;
   const at = (i: number) => near + (far - near) * ((Math.pow(1.08, i) - 1) / (Math.pow(1.08, N) - 1));
   for (let i = 0; i <= N; i++) {
     const v = sse(at(i));
-    if (v < bestV) { bestV = v; best = i; }
+    if (v < bestV) {
+      bestV = v;
+      best = i;
+    }
   }
-  let a = at(Math.max(0, best - 1)), b = at(Math.min(N, best + 1));
+  let a = at(Math.max(0, best - 1)),
+    b = at(Math.min(N, best + 1));
   const g = (Math.sqrt(5) - 1) / 2;
-  let c = b - g * (b - a), d = a + g * (b - a);
-  let fc = sse(c), fd = sse(d);
+  let c = b - g * (b - a),
+    d = a + g * (b - a);
+  let fc = sse(c),
+    fd = sse(d);
   for (let k = 0; k < 60; k++) {
-    if (fc < fd) { b = d; d = c; fd = fc; c = b - g * (b - a); fc = sse(c); }
-    else { a = c; c = d; fc = fd; d = a + g * (b - a); fd = sse(d); }
+    if (fc < fd) {
+      b = d;
+      d = c;
+      fd = fc;
+      c = b - g * (b - a);
+      fc = sse(c);
+    } else {
+      a = c;
+      c = d;
+      fc = fd;
+      d = a + g * (b - a);
+      fd = sse(d);
+    }
   }
   const ta = (a + b) / 2;
   const fit = fitFixedAmbient(s, ta);

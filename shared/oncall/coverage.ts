@@ -42,7 +42,12 @@ export function overlapsOf(candidate: CoverShift, shifts: readonly CoverShift[])
   return shifts
     .filter((s) => !(candidate.id != null && s.id === candidate.id))
     .filter((s) => s.startsAt < candidate.endsAt && candidate.startsAt < s.endsAt)
-    .map((s) => ({ from: Math.max(s.startsAt, candidate.startsAt), to: Math.min(s.endsAt, candidate.endsAt), other: s, samePerson: s.userId === candidate.userId }))
+    .map((s) => ({
+      from: Math.max(s.startsAt, candidate.startsAt),
+      to: Math.min(s.endsAt, candidate.endsAt),
+      other: s,
+      samePerson: s.userId === candidate.userId,
+    }))
     .sort((a, b) => a.from - b.from);
 }
 
@@ -58,6 +63,9 @@ export interface CoverageCheck {
  */
 export function checkCoverage(candidate: CoverShift, siteShifts: readonly CoverShift[], window?: TimeSpan): CoverageCheck {
   const others = siteShifts.filter((s) => !(candidate.id != null && s.id === candidate.id));
-  const w = window ?? { from: candidate.startsAt - (candidate.startsAt % 86_400_000), to: candidate.startsAt - (candidate.startsAt % 86_400_000) + 7 * 86_400_000 };
+  const w = window ?? {
+    from: candidate.startsAt - (candidate.startsAt % 86_400_000),
+    to: candidate.startsAt - (candidate.startsAt % 86_400_000) + 7 * 86_400_000,
+  };
   return { overlaps: overlapsOf(candidate, others), uncovered: uncoveredSpans([...others, candidate], w.from, w.to) };
 }

@@ -36,7 +36,12 @@ export interface Readiness {
 export const STANDBY_MIN_TEMP_C = 32;
 
 const one = (n: number) => n.toFixed(1);
-const ago = (ms: number) => (ms < 90 * 60_000 ? `${Math.max(1, Math.round(ms / 60_000))} min ago` : ms < 48 * 3600_000 ? `${Math.round(ms / 3600_000)} h ago` : `${Math.round(ms / 86_400_000)} days ago`);
+const ago = (ms: number) =>
+  ms < 90 * 60_000
+    ? `${Math.max(1, Math.round(ms / 60_000))} min ago`
+    : ms < 48 * 3600_000
+      ? `${Math.round(ms / 3600_000)} h ago`
+      : `${Math.round(ms / 86_400_000)} days ago`;
 
 export function standbyReadiness(f: ReadinessFacts): Readiness {
   const reasons: string[] = [];

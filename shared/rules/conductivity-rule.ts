@@ -41,7 +41,9 @@ export function conductivityLimit(baseline: number | null, p: ConductivityRulePa
 }
 
 /** Messages per params object (stable per engine and rule), built once; `baseline` is set before each use. */
-interface ConductivityMessages extends DelayMessages { baseline: number | null }
+interface ConductivityMessages extends DelayMessages {
+  baseline: number | null;
+}
 const messageCache = new WeakMap<ConductivityRuleParams, ConductivityMessages>();
 
 function messages(params: ConductivityRuleParams, baseline: number | null): DelayMessages {
@@ -71,9 +73,8 @@ function merge(s: ConductivityRuleState, d: DelayedState): ConductivityRuleState
 }
 
 export function stepConductivity(state: ConductivityRuleState, input: RuleInput, params: ConductivityRuleParams): StepResult<ConductivityRuleState> {
-  let s: ConductivityRuleState = state.baselineFrom === params.baselineFrom
-    ? state
-    : { ...state, baselineFrom: params.baselineFrom, baselineSamples: [], baseline: null };
+  let s: ConductivityRuleState =
+    state.baselineFrom === params.baselineFrom ? state : { ...state, baselineFrom: params.baselineFrom, baselineSamples: [], baseline: null };
   if (!isReading(input) || !isGood(input) || input.ts < params.baselineFrom) {
     const r = advanceDelays(s, input.ts, params, messages(params, s.baseline));
     return { state: merge(s, r.state), events: r.events };

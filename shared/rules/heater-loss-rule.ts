@@ -21,7 +21,10 @@ export interface HeaterLossParams {
   riseToleranceC?: number;
 }
 
-interface Point { ts: number; value: number }
+interface Point {
+  ts: number;
+  value: number;
+}
 
 export interface HeaterLossState {
   points: Point[];
@@ -40,7 +43,8 @@ export function stepHeaterLoss(state: HeaterLossState, input: RuleInput, p: Heat
   const sp = p.heaterSetpointC;
   const below = p.belowByC ?? 3;
   if (input.running !== false) {
-    if (state.active) events.push({ kind: 'clear', ts: input.ts, value: input.value, message: 'Jacket water no longer watched for a heater fault (engine running)' });
+    if (state.active)
+      events.push({ kind: 'clear', ts: input.ts, value: input.value, message: 'Jacket water no longer watched for a heater fault (engine running)' });
     return { state: initialHeaterLossState(), events };
   }
   const last = state.points[state.points.length - 1];
@@ -63,7 +67,9 @@ export function stepHeaterLoss(state: HeaterLossState, input: RuleInput, p: Heat
       active = true;
       const mins = (input.ts - points[0].ts) / MINUTE;
       events.push({
-        kind: 'raise', ts: input.ts, value: input.value,
+        kind: 'raise',
+        ts: input.ts,
+        value: input.value,
         message: `Jacket water of the stopped engine falling steadily: ${fmt(input.value)} °C, down ${fmt(drop)} °C in ${fmt(mins, 0)} min, below the heater setpoint of ${fmt(sp, 0)} °C (heater off, breaker tripped or heater failed?)`,
       });
     }

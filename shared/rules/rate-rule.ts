@@ -39,10 +39,16 @@ export function leastSquaresSlope(points: readonly { ts: number; value: number }
   const n = points.length;
   if (n < 2) return null;
   const t0 = points[0].ts; // centre-free offsets keep the sums well conditioned
-  let st = 0, sv = 0;
-  for (const p of points) { st += p.ts - t0; sv += p.value; }
-  const mt = st / n, mv = sv / n;
-  let num = 0, den = 0;
+  let st = 0,
+    sv = 0;
+  for (const p of points) {
+    st += p.ts - t0;
+    sv += p.value;
+  }
+  const mt = st / n,
+    mv = sv / n;
+  let num = 0,
+    den = 0;
   for (const p of points) {
     const dt = p.ts - t0 - mt;
     num += dt * (p.value - mv);

@@ -36,7 +36,10 @@ export interface StuckRuleParams {
 
 export type StuckInput = RuleInput | (RuleReading & { aux?: 'speed' | 'pressure' });
 
-interface Point { ts: number; value: number }
+interface Point {
+  ts: number;
+  value: number;
+}
 
 export interface StuckRuleState {
   /** Start of the flat run (ms), null when no run. */
@@ -65,8 +68,19 @@ const MIN_VALUES_FOR_RESOLUTION = 10;
 
 export function initialStuckState(): StuckRuleState {
   return {
-    runStart: null, maxQ: [], minQ: [], active: false, offGridAt: {}, seen: 0, lastRunning: null,
-    refSpeed: null, refPressure: null, changeTs: null, changeWhat: null, firstChangeTs: null, firstChangeWhat: null,
+    runStart: null,
+    maxQ: [],
+    minQ: [],
+    active: false,
+    offGridAt: {},
+    seen: 0,
+    lastRunning: null,
+    refSpeed: null,
+    refPressure: null,
+    changeTs: null,
+    changeWhat: null,
+    firstChangeTs: null,
+    firstChangeWhat: null,
   };
 }
 
@@ -164,7 +178,9 @@ export function stepStuck(state: StuckRuleState, input: StuckInput, params: Stuc
   if (!s.active && s.firstChangeTs !== null && p.ts - s.firstChangeTs >= params.durationS * 1000) {
     s.active = true;
     events.push({
-      kind: 'raise', ts: p.ts, value: p.value,
+      kind: 'raise',
+      ts: p.ts,
+      value: p.value,
       message: `${label} stuck at ${fmt(p.value, 2)}${unit} for ${fmt((p.ts - runStart) / 1000, 0)} s although ${s.firstChangeWhat} ${fmt((p.ts - s.firstChangeTs) / 1000, 0)} s ago (band ${fmt(band, 2)}${unit}; sensor or wiring?)`,
     });
   }

@@ -116,9 +116,28 @@ export function defaultServicePlan(engine: PlanEngine): ServiceTask[] {
   const h = engine.oilDrainIntervalH;
   const tasks: ServiceTask[] = [
     { key: 'oil-drain', title: 'Oil drain and oil filter', everyHours: h, everyDays: 365, basis: 'engine oil-drain interval, or yearly (common practice)' },
-    { key: 'filter-change', title: 'Coolant filter change (charged or blank per the additive test)', everyHours: h, everyDays: 365, basis: 'at each oil drain (common practice)' },
-    { key: 'coolant-test', title: 'Coolant test: additive, glycol, freeze point, pH, conductivity', everyHours: h, everyDays: 182, basis: 'at least twice a year and at every service (common practice)' },
-    { key: 'drain-flush-refill', title: 'Drain, flush and refill cooling system', everyHours: 3000, everyDays: 730, placeholder: true, basis: 'placeholder default; use the engine and coolant maker\'s interval' },
+    {
+      key: 'filter-change',
+      title: 'Coolant filter change (charged or blank per the additive test)',
+      everyHours: h,
+      everyDays: 365,
+      basis: 'at each oil drain (common practice)',
+    },
+    {
+      key: 'coolant-test',
+      title: 'Coolant test: additive, glycol, freeze point, pH, conductivity',
+      everyHours: h,
+      everyDays: 182,
+      basis: 'at least twice a year and at every service (common practice)',
+    },
+    {
+      key: 'drain-flush-refill',
+      title: 'Drain, flush and refill cooling system',
+      everyHours: 3000,
+      everyDays: 730,
+      placeholder: true,
+      basis: "placeholder default; use the engine and coolant maker's interval",
+    },
   ];
   if (engine.coolantFamily === 'extended-life') {
     const test = tasks.find((t) => t.key === 'coolant-test')!;
@@ -126,14 +145,36 @@ export function defaultServicePlan(engine: PlanEngine): ServiceTask[] {
     const set = engine.extender ?? null;
     tasks.push(
       set
-        ? { key: 'coolant-extender', title: 'Add extended-life coolant extender', everyHours: set.everyHours, everyDays: set.everyDays, basis: 'set by the administrator (from the coolant maker\'s literature)' }
-        : { key: 'coolant-extender', title: 'Add extended-life coolant extender', ...DEFAULT_EXTENDER_INTERVAL, placeholder: true, basis: 'common practice (from memory): about midway through the coolant\'s life; use the coolant maker\'s interval' },
+        ? {
+            key: 'coolant-extender',
+            title: 'Add extended-life coolant extender',
+            everyHours: set.everyHours,
+            everyDays: set.everyDays,
+            basis: "set by the administrator (from the coolant maker's literature)",
+          }
+        : {
+            key: 'coolant-extender',
+            title: 'Add extended-life coolant extender',
+            ...DEFAULT_EXTENDER_INTERVAL,
+            placeholder: true,
+            basis: "common practice (from memory): about midway through the coolant's life; use the coolant maker's interval",
+          },
     );
   }
   if (engine.duty === 'standby') {
     tasks.push(
-      { key: 'weekly-inspection', title: 'Weekly inspection (coolant level, heater, leaks, hoses)', everyDays: 7, basis: 'in the spirit of NFPA 110 chapter 8 (weekly inspection)' },
-      { key: 'monthly-exercise', title: 'Monthly exercise under load (30 min)', everyDays: 30, basis: 'in the spirit of NFPA 110 chapter 8 (monthly exercise, 30 min at >= 30 % load or the maker\'s minimum exhaust temperature)' },
+      {
+        key: 'weekly-inspection',
+        title: 'Weekly inspection (coolant level, heater, leaks, hoses)',
+        everyDays: 7,
+        basis: 'in the spirit of NFPA 110 chapter 8 (weekly inspection)',
+      },
+      {
+        key: 'monthly-exercise',
+        title: 'Monthly exercise under load (30 min)',
+        everyDays: 30,
+        basis: "in the spirit of NFPA 110 chapter 8 (monthly exercise, 30 min at >= 30 % load or the maker's minimum exhaust temperature)",
+      },
     );
   }
   return tasks;

@@ -17,7 +17,13 @@ export interface MappedMetric {
 
 /** Names every edge node publishes for its own bookkeeping: never readings, never "unknown". */
 export function isSparkplugControlMetric(name: string): boolean {
-  return name === 'bdSeq' || name.startsWith('Node Control/') || name.startsWith('Device Control/') || name.startsWith('Properties/') || name.startsWith('Node Info/');
+  return (
+    name === 'bdSeq' ||
+    name.startsWith('Node Control/') ||
+    name.startsWith('Device Control/') ||
+    name.startsWith('Properties/') ||
+    name.startsWith('Node Info/')
+  );
 }
 
 export function mapMetric(name: string, map: MetricMap | null): MappedMetric | null {
@@ -27,10 +33,21 @@ export function mapMetric(name: string, map: MetricMap | null): MappedMetric | n
 }
 
 /** Units as gateways often spell them, to our unit names. */
-const UNIT_SPELLINGS: Record<string, string> = { '°C': 'degC', C: 'degC', '°F': 'degF', F: 'degF', kpa: 'kPa', PSI: 'psi', 'µS/cm': 'uS/cm', RPM: 'rpm', 'r/min': 'rpm' };
+const UNIT_SPELLINGS: Record<string, string> = {
+  '°C': 'degC',
+  C: 'degC',
+  '°F': 'degF',
+  F: 'degF',
+  kpa: 'kPa',
+  PSI: 'psi',
+  'µS/cm': 'uS/cm',
+  RPM: 'rpm',
+  'r/min': 'rpm',
+};
 export const normalizeUnit = (unit: string): string => UNIT_SPELLINGS[unit] ?? unit;
 
-export type ValueCheck = { ok: true; reading: ParsedReading } | { ok: false; reason: 'not_finite' | 'bad_unit' | 'future_timestamp' | 'old_timestamp'; detail: string };
+export type ValueCheck =
+  { ok: true; reading: ParsedReading } | { ok: false; reason: 'not_finite' | 'bad_unit' | 'future_timestamp' | 'old_timestamp'; detail: string };
 
 /** One metric value as a reading of `channel` in its stored unit (same limits as the JSON contract). */
 export function checkMetricValue(channel: ChannelKey, value: number, unit: string | null, ts: number, now: number): ValueCheck {
@@ -40,7 +57,8 @@ export function checkMetricValue(channel: ChannelKey, value: number, unit: strin
   if (!UNITS_BY_QUANTITY[info.quantity].includes(u)) {
     return { ok: false, reason: 'bad_unit', detail: `${channel}: unit "${u.slice(0, 16)}" not accepted (use ${UNITS_BY_QUANTITY[info.quantity].join(', ')})` };
   }
-  if (ts > now + MAX_FUTURE_MS) return { ok: false, reason: 'future_timestamp', detail: `${channel}: ${new Date(ts).toISOString()} is more than 5 minutes ahead` };
+  if (ts > now + MAX_FUTURE_MS)
+    return { ok: false, reason: 'future_timestamp', detail: `${channel}: ${new Date(ts).toISOString()} is more than 5 minutes ahead` };
   if (ts < now - MAX_AGE_MS) return { ok: false, reason: 'old_timestamp', detail: `${channel}: ${new Date(ts).toISOString()} is older than 31 days` };
   let stored = value;
   if (info.quantity === 'temperature') stored = toCelsius(value, u as TemperatureUnit);

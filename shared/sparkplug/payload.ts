@@ -86,11 +86,7 @@ export function decodeSparkplugPayload(bytes: Uint8Array): DecodeResult {
   return { ok: true, payload: { ts: num(obj.timestamp), seq: num(obj.seq), metrics } };
 }
 
-export type MetricValue =
-  | { kind: 'number'; value: number }
-  | { kind: 'boolean'; value: boolean }
-  | { kind: 'other'; what: string }
-  | { kind: 'null' };
+export type MetricValue = { kind: 'number'; value: number } | { kind: 'boolean'; value: boolean } | { kind: 'other'; what: string } | { kind: 'null' };
 
 /**
  * The value of a metric read as `datatype` (Sparkplug 3.0: signed 8/16/32-bit integers travel as the
@@ -98,7 +94,8 @@ export type MetricValue =
  */
 export function metricValue(raw: RawValue, datatype: number | null): MetricValue {
   switch (raw.field) {
-    case null: return { kind: 'null' };
+    case null:
+      return { kind: 'null' };
     case 'int_value': {
       const v = raw.value >>> 0;
       if (datatype === DataType.Int8) return { kind: 'number', value: (v << 24) >> 24 };
@@ -111,9 +108,13 @@ export function metricValue(raw: RawValue, datatype: number | null): MetricValue
       return { kind: 'number', value: Number(datatype === DataType.Int64 ? BigInt.asIntN(64, big) : BigInt.asUintN(64, big)) };
     }
     case 'float_value':
-    case 'double_value': return { kind: 'number', value: raw.value };
-    case 'boolean_value': return { kind: 'boolean', value: raw.value };
-    case 'string_value': return { kind: 'other', what: 'a string' };
-    case 'bytes_value': return { kind: 'other', what: 'bytes' };
+    case 'double_value':
+      return { kind: 'number', value: raw.value };
+    case 'boolean_value':
+      return { kind: 'boolean', value: raw.value };
+    case 'string_value':
+      return { kind: 'other', what: 'a string' };
+    case 'bytes_value':
+      return { kind: 'other', what: 'bytes' };
   }
 }

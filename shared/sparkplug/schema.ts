@@ -67,8 +67,24 @@ message Payload {
 
 /** Sparkplug 3.0 metric data types (the numbers of the specification's DataType enumeration). */
 export const DataType = {
-  Unknown: 0, Int8: 1, Int16: 2, Int32: 3, Int64: 4, UInt8: 5, UInt16: 6, UInt32: 7, UInt64: 8,
-  Float: 9, Double: 10, Boolean: 11, String: 12, DateTime: 13, Text: 14, UUID: 15, DataSet: 16, Bytes: 17,
+  Unknown: 0,
+  Int8: 1,
+  Int16: 2,
+  Int32: 3,
+  Int64: 4,
+  UInt8: 5,
+  UInt16: 6,
+  UInt32: 7,
+  UInt64: 8,
+  Float: 9,
+  Double: 10,
+  Boolean: 11,
+  String: 12,
+  DateTime: 13,
+  Text: 14,
+  UUID: 15,
+  DataSet: 16,
+  Bytes: 17,
 } as const;
 
 let payloadType: protobuf.Type | null = null;

@@ -35,7 +35,14 @@ function parts(ms: number, zone: string): Record<string, string> {
   let f = partsFormatters.get(zone);
   if (!f) {
     f = new Intl.DateTimeFormat('en-US', {
-      timeZone: zone, year: 'numeric', month: '2-digit', day: '2-digit', hour: '2-digit', minute: '2-digit', second: '2-digit', hourCycle: 'h23',
+      timeZone: zone,
+      year: 'numeric',
+      month: '2-digit',
+      day: '2-digit',
+      hour: '2-digit',
+      minute: '2-digit',
+      second: '2-digit',
+      hourCycle: 'h23',
     });
     partsFormatters.set(zone, f);
   }
@@ -67,11 +74,15 @@ export function formatInZone(at: TimeInput, zone: string | null | undefined, sty
   const date = `${p['year']}-${p['month']}-${p['day']}`;
   const hm = `${p['hour'] === '24' ? '00' : p['hour']}:${p['minute']}`;
   const text =
-    style === 'date' ? date
-    : style === 'time' ? hm
-    : style === 'time-s' ? `${hm}:${p['second']}`
-    : style === 'datetime-s' ? `${date} ${hm}:${p['second']}`
-    : `${date} ${hm}`;
+    style === 'date'
+      ? date
+      : style === 'time'
+        ? hm
+        : style === 'time-s'
+          ? `${hm}:${p['second']}`
+          : style === 'datetime-s'
+            ? `${date} ${hm}:${p['second']}`
+            : `${date} ${hm}`;
   return withZone && style !== 'date' ? `${text} ${zoneAbbreviation(ms, z)}` : text;
 }
 

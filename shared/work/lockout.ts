@@ -23,7 +23,9 @@ const time = (d: string | Date | null) => (d === null ? NaN : new Date(d).getTim
  * must be a done lock step, and no unlock step may have been done since that lock.
  */
 export function lockoutFor<T extends LockoutStepView>(steps: readonly T[], gated: Pick<LockoutStepView, 'position'>): T | null {
-  const before = steps.filter((s) => s.position < gated.position && (LOCK_STEP_KEYS.includes(s.key) || UNLOCK_STEP_KEYS.includes(s.key))).sort((a, b) => b.position - a.position);
+  const before = steps
+    .filter((s) => s.position < gated.position && (LOCK_STEP_KEYS.includes(s.key) || UNLOCK_STEP_KEYS.includes(s.key)))
+    .sort((a, b) => b.position - a.position);
   const lock = before[0];
   if (!lock || !LOCK_STEP_KEYS.includes(lock.key) || !lock.doneAt) return null;
   const lockedAt = time(lock.doneAt);

@@ -39,8 +39,14 @@ export interface OpeningSettings {
 }
 
 export const DEFAULT_OPENING_SETTINGS: Readonly<OpeningSettings> = Object.freeze({
-  safeOpenTempC: 50, maxPressureKpa: 7, minStoppedS: 600, holdS: 120, staleAfterS: 60,
-  heaterSetpointC: null, ambientC: null, runningRpm: RUNNING_RPM,
+  safeOpenTempC: 50,
+  maxPressureKpa: 7,
+  minStoppedS: 600,
+  holdS: 120,
+  staleAfterS: 60,
+  heaterSetpointC: null,
+  ambientC: null,
+  runningRpm: RUNNING_RPM,
 });
 
 export interface OpeningCheckInput {
@@ -130,7 +136,9 @@ export function openingCheck(input: OpeningCheckInput, now: number): OpeningChec
   const reasons: string[] = [];
   const maxGap = s.staleAfterS * 1000;
   const last = (l: TimedValue[]) => (l.length ? l[l.length - 1] : null);
-  const lt = last(temp), lp = last(pres), ls = last(speed);
+  const lt = last(temp),
+    lp = last(pres),
+    ls = last(speed);
 
   // Freshness
   const ages = [lt, lp, ls].map((r) => (r ? (now - r.ts) / 1000 : Infinity));
@@ -139,7 +147,8 @@ export function openingCheck(input: OpeningCheckInput, now: number): OpeningChec
   const stale = missing.length > 0 || staleNames.length > 0;
   const oldest = Math.max(...ages);
   if (missing.length) reasons.push(`No live data for ${missing.join(', ')}: the check cannot be clear without it.`);
-  if (staleNames.length) reasons.push(`Telemetry stale (${staleNames.join(', ')} older than ${s.staleAfterS} s): the check cannot be clear until fresh data arrives.`);
+  if (staleNames.length)
+    reasons.push(`Telemetry stale (${staleNames.join(', ')} older than ${s.staleAfterS} s): the check cannot be clear until fresh data arrives.`);
 
   // Engine stopped
   const isStopped = (v: number) => v <= s.runningRpm;
@@ -174,7 +183,14 @@ export function openingCheck(input: OpeningCheckInput, now: number): OpeningChec
   if (!input.lockoutConfirmed) reasons.push(LOCKOUT_REASON);
 
   const conditions: OpeningCondition[] = [
-    { name: 'engine-stopped', met: stoppedMet, value: stoppedForS, limit: s.minStoppedS, unit: 's', detail: ls ? (isStopped(ls.value) ? `${fmt(ls.value, 0)} rpm` : `running at ${fmt(ls.value, 0)} rpm`) : 'no data' },
+    {
+      name: 'engine-stopped',
+      met: stoppedMet,
+      value: stoppedForS,
+      limit: s.minStoppedS,
+      unit: 's',
+      detail: ls ? (isStopped(ls.value) ? `${fmt(ls.value, 0)} rpm` : `running at ${fmt(ls.value, 0)} rpm`) : 'no data',
+    },
     { name: 'coolant-temperature', met: tempMet, value: lt?.value ?? null, limit: s.safeOpenTempC, unit: '°C' },
     { name: 'coolant-pressure', met: presMet, value: lp?.value ?? null, limit: s.maxPressureKpa, unit: 'kPa' },
     { name: 'telemetry-fresh', met: !stale, value: Number.isFinite(oldest) ? oldest : null, limit: s.staleAfterS, unit: 's' },
@@ -184,12 +200,26 @@ export function openingCheck(input: OpeningCheckInput, now: number): OpeningChec
   const clear = conditions.every((c) => c.met);
   let band: { earliest: number; latest: number | null; ambientFitted: boolean } = { earliest: 0, latest: 0, ambientFitted: false };
   const clearAt = clear ? now : predictClearAt();
-  const forecast = clear || clearAt === null ? null : { at: clearAt, earliest: Math.min(clearAt, band.earliest), latest: band.latest === null ? null : Math.max(clearAt, band.latest), ambientFitted: band.ambientFitted };
+  const forecast =
+    clear || clearAt === null
+      ? null
+      : {
+          at: clearAt,
+          earliest: Math.min(clearAt, band.earliest),
+          latest: band.latest === null ? null : Math.max(clearAt, band.latest),
+          ambientFitted: band.ambientFitted,
+        };
   return { clear, conditions, clearAt, forecast, reasons, stale };
 
   function predictClearAt(): number | null {
-    if (stale) { reasons.push('No forecast while data is missing or stale.'); return null; }
-    if (stoppedSince === null) { reasons.push('No forecast until the engine has stopped.'); return null; }
+    if (stale) {
+      reasons.push('No forecast while data is missing or stale.');
+      return null;
+    }
+    if (stoppedSince === null) {
+      reasons.push('No forecast until the engine has stopped.');
+      return null;
+    }
     const times: number[] = [stoppedSince + s.minStoppedS * 1000];
     let tempBand: { at: number; earliest: number; latest: number | null; ambientFitted: boolean } | null = null;
     // Temperature
@@ -198,7 +228,9 @@ export function openingCheck(input: OpeningCheckInput, now: number): OpeningChec
       const candidates = [s.heaterSetpointC, s.ambientC].filter((v): v is number => v !== null && Number.isFinite(v));
       const towards = candidates.length ? Math.max(...candidates) : null;
       if (s.heaterSetpointC !== null && s.heaterSetpointC >= s.safeOpenTempC) {
-        reasons.push(`The jacket-water heater is set to ${s.heaterSetpointC} °C, at or above the safe opening temperature ${s.safeOpenTempC} °C: the coolant will not cool below it until the heater is switched off (and locked out).`);
+        reasons.push(
+          `The jacket-water heater is set to ${s.heaterSetpointC} °C, at or above the safe opening temperature ${s.safeOpenTempC} °C: the coolant will not cool below it until the heater is switched off (and locked out).`,
+        );
         return null;
       }
       if (towards !== null && towards >= s.safeOpenTempC) {
@@ -208,7 +240,10 @@ export function openingCheck(input: OpeningCheckInput, now: number): OpeningChec
       const since = temp.filter((r) => r.ts >= stoppedSince);
       // no forecast while rising or flat; a band when the ambient is fitted (shared/cooling/forecast.ts)
       const fc = forecastCooling(since, s.safeOpenTempC, towards);
-      if (fc.kind === 'none') { reasons.push(fc.text); return null; }
+      if (fc.kind === 'none') {
+        reasons.push(fc.text);
+        return null;
+      }
       if (fc.kind === 'forecast') {
         times.push(fc.at);
         tempBand = { at: fc.at, earliest: fc.earliest, latest: fc.latest, ambientFitted: fc.ambientFitted };
@@ -220,13 +255,21 @@ export function openingCheck(input: OpeningCheckInput, now: number): OpeningChec
     else {
       const since = pres.filter((r) => r.ts >= stoppedSince);
       const falling = pressureFalling(since);
-      const fit = s.maxPressureKpa > 0 ? fitCooling(falling.map((r) => ({ t: r.ts / 1000, temp: r.value })), 0) : null;
+      const fit =
+        s.maxPressureKpa > 0
+          ? fitCooling(
+              falling.map((r) => ({ t: r.ts / 1000, temp: r.value })),
+              0,
+            )
+          : null;
       const dt = fit ? timeToReachS(lp!.value, 0, fit.tauS, s.maxPressureKpa) : Infinity;
       if (!Number.isFinite(dt)) {
         const held = since.length > 0 && falling.length < 3;
-        reasons.push(held
-          ? `Coolant pressure is not falling yet (still near ${fmt(Math.max(...since.map((r) => r.value)))} kPa since the stop): no forecast until it starts to fall.`
-          : 'Coolant pressure is not falling toward zero: no forecast.');
+        reasons.push(
+          held
+            ? `Coolant pressure is not falling yet (still near ${fmt(Math.max(...since.map((r) => r.value)))} kPa since the stop): no forecast until it starts to fall.`
+            : 'Coolant pressure is not falling toward zero: no forecast.',
+        );
         return null;
       }
       times.push(lp!.ts + dt * 1000);

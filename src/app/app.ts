@@ -46,10 +46,19 @@ const ROLE_TEXT: Record<Role, string> = { admin: 'Administrator', planner: 'Plan
   selector: 'jw-root',
   changeDetection: ChangeDetectionStrategy.OnPush,
   imports: [
-    RouterOutlet, RouterLink, RouterLinkActive, ConnectionBanner, UpdatePrompt, OutboxIndicator,
+    RouterOutlet,
+    RouterLink,
+    RouterLinkActive,
+    ConnectionBanner,
+    UpdatePrompt,
+    OutboxIndicator,
     // The navigation is plain links and the user menu a plain disclosure: Material's list and menu would bring
     // forms and the overlay into the first download.
-    MatToolbarModule, MatSidenavModule, MatIconModule, MatButtonModule, UserMenu,
+    MatToolbarModule,
+    MatSidenavModule,
+    MatIconModule,
+    MatButtonModule,
+    UserMenu,
   ],
   templateUrl: './app.html',
   styleUrl: './app.scss',
@@ -64,7 +73,9 @@ export class App {
 
   /** Below tablet width the navigation slides over the screen instead of sitting beside it. */
   protected readonly narrow = toSignal(
-    inject(BreakpointObserver).observe('(max-width: 959.98px)').pipe(map((r) => r.matches)),
+    inject(BreakpointObserver)
+      .observe('(max-width: 959.98px)')
+      .pipe(map((r) => r.matches)),
     { initialValue: false },
   );
 

@@ -32,15 +32,19 @@ function samplesPayload(state: { next: number }, n: number): string {
     state.next += 1000;
     const k = ts / 1000;
     const n = (a: number) => (Math.sin(k * a) + Math.sin(k * a * 2.7)) / 2;
-    parts[i] = `{"ts":${ts},"values":{"coolant_temp":${(82 + 0.3 * n(0.13)).toFixed(2)},"coolant_pressure":${(96.5 + 0.8 * n(0.21)).toFixed(2)},` +
+    parts[i] =
+      `{"ts":${ts},"values":{"coolant_temp":${(82 + 0.3 * n(0.13)).toFixed(2)},"coolant_pressure":${(96.5 + 0.8 * n(0.21)).toFixed(2)},` +
       `"coolant_conductivity":${(2400 + 15 * n(0.07)).toFixed(1)},"engine_speed":${(1800 + 4 * n(0.5)).toFixed(1)},"ambient_temp":${(21.5 + 0.2 * n(0.03)).toFixed(2)}}}`;
   }
   return `{"samples":[${parts.join(',')}]}`;
 }
 
 async function main(): Promise<void> {
-  const clients: MqttClient[] = await Promise.all(job.devices.map((d) =>
-    mqtt.connectAsync(`mqtt://127.0.0.1:${job.mqttPort}`, { username: d.username, password: d.secret, reconnectPeriod: 0, connectTimeout: 30_000 })));
+  const clients: MqttClient[] = await Promise.all(
+    job.devices.map((d) =>
+      mqtt.connectAsync(`mqtt://127.0.0.1:${job.mqttPort}`, { username: d.username, password: d.secret, reconnectPeriod: 0, connectTimeout: 30_000 }),
+    ),
+  );
   process.stdout.write(JSON.stringify({ ready: true }) + '\n');
   await new Promise<void>((resolve) => process.stdin.once('data', () => resolve())); // go signal
   let readings = 0;
@@ -48,21 +52,26 @@ async function main(): Promise<void> {
   let failed = 0;
   const end = Date.now() + job.durationMs;
   if (job.mode === 'flood') {
-    const lanes = Promise.all(clients.map(async (c, idx) => {
-      const topic = telemetryTopic(job.devices[idx].engineId);
-      const state = { next: job.baseTs };
-      const lane = async () => {
-        while (Date.now() < end) {
-          const payload = samplesPayload(state, job.samplesPerMsg);
-          try {
-            await c.publishAsync(topic, payload, { qos: job.qos });
-            readings += job.samplesPerMsg * 5;
-            messages++;
-          } catch { failed++; return; }
-        }
-      };
-      await Promise.all(Array.from({ length: job.window }, lane));
-    }));
+    const lanes = Promise.all(
+      clients.map(async (c, idx) => {
+        const topic = telemetryTopic(job.devices[idx].engineId);
+        const state = { next: job.baseTs };
+        const lane = async () => {
+          while (Date.now() < end) {
+            const payload = samplesPayload(state, job.samplesPerMsg);
+            try {
+              await c.publishAsync(topic, payload, { qos: job.qos });
+              readings += job.samplesPerMsg * 5;
+              messages++;
+            } catch {
+              failed++;
+              return;
+            }
+          }
+        };
+        await Promise.all(Array.from({ length: job.window }, lane));
+      }),
+    );
     // QoS 1: every publish in flight is waited for (it counts once acknowledged), within a bound;
     // QoS 0: a write stalled by TCP backpressure is not waited for
     const grace = job.qos === 1 ? 60_000 : 0;
@@ -70,16 +79,27 @@ async function main(): Promise<void> {
   } else {
     const channels = (t: number) => {
       const k = t / 1000;
-      return `"coolant_temp":${(82 + 0.3 * Math.sin(k * 0.13)).toFixed(2)},"coolant_pressure":${(96.5 + 0.8 * Math.sin(k * 0.21)).toFixed(2)},` +
-        `"coolant_conductivity":${(2400 + 15 * Math.sin(k * 0.07)).toFixed(1)},"engine_speed":${(1800 + 4 * Math.sin(k * 0.5)).toFixed(1)},"ambient_temp":${(21.5 + 0.2 * Math.sin(k * 0.03)).toFixed(2)}`;
+      return (
+        `"coolant_temp":${(82 + 0.3 * Math.sin(k * 0.13)).toFixed(2)},"coolant_pressure":${(96.5 + 0.8 * Math.sin(k * 0.21)).toFixed(2)},` +
+        `"coolant_conductivity":${(2400 + 15 * Math.sin(k * 0.07)).toFixed(1)},"engine_speed":${(1800 + 4 * Math.sin(k * 0.5)).toFixed(1)},"ambient_temp":${(21.5 + 0.2 * Math.sin(k * 0.03)).toFixed(2)}`
+      );
     };
     const pending: Promise<unknown>[] = [];
     while (Date.now() < end) {
       const tickStart = Date.now();
       for (let i = 0; i < clients.length; i++) {
         const ts = Date.now();
-        pending.push(clients[i].publishAsync(telemetryTopic(job.devices[i].engineId), `{"ts":${ts},"values":{${channels(ts)}}}`, { qos: job.qos })
-          .then(() => { readings += 5; messages++; }, () => { failed++; }));
+        pending.push(
+          clients[i].publishAsync(telemetryTopic(job.devices[i].engineId), `{"ts":${ts},"values":{${channels(ts)}}}`, { qos: job.qos }).then(
+            () => {
+              readings += 5;
+              messages++;
+            },
+            () => {
+              failed++;
+            },
+          ),
+        );
         // spread the devices over the second, like independent gateways
         if (i % 25 === 24) await new Promise((r) => setTimeout(r, Math.max(0, (1000 / clients.length) * 25 - 2)));
       }

@@ -24,7 +24,8 @@ async function main(): Promise<void> {
   const sql = `INSERT INTO readings (engine_id, channel, ts, value, quality) VALUES ${Array(per).fill('(?,?,?,?,?)').join(',')} ON CONFLICT (engine_id, channel, ts) DO NOTHING`;
   const base = Date.now() - 20 * 86_400_000;
   const params: number[] = [];
-  let engine = 1; let ts = base;
+  let engine = 1;
+  let ts = base;
   const started = performance.now();
   let done = 0;
   while (done < ROWS && performance.now() - started < MAX_MS) {
@@ -33,7 +34,8 @@ async function main(): Promise<void> {
       params.length = 0;
       for (let i = 0; i < per / 5; i++) {
         for (let ch = 1; ch <= 5; ch++) params.push(engine, ch, ts, 80 + Math.sin(ts / 1000), 0);
-        engine = (engine % ENGINES) + 1; if (engine === 1) ts += 1000;
+        engine = (engine % ENGINES) + 1;
+        if (engine === 1) ts += 1000;
       }
       await db.runPrepared(sql, params);
       done += per;

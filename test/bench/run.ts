@@ -53,7 +53,9 @@ const readStatus = (pid: number, key: string): number => {
   try {
     const m = new RegExp(`^${key}:\\s+(\\d+) kB`, 'm').exec(fs.readFileSync(`/proc/${pid}/status`, 'utf8'));
     return m ? Number(m[1]) / 1024 : NaN;
-  } catch { return NaN; }
+  } catch {
+    return NaN;
+  }
 };
 const quantile = (xs: number[], p: number) => {
   if (!xs.length) return NaN;
@@ -65,34 +67,59 @@ const quantile = (xs: number[], p: number) => {
 function rawCeilingOnce(): Promise<{ rate: number; rows: number }> {
   return new Promise((resolve, reject) => {
     const child = spawn(process.execPath, ['--import', 'tsx', path.join(__dirname, 'raw-ceiling.ts')], {
-      cwd: ROOT, stdio: ['ignore', 'pipe', 'inherit'],
+      cwd: ROOT,
+      stdio: ['ignore', 'pipe', 'inherit'],
       env: { ...process.env, RAW_ROWS: String(RAW_ROWS), RAW_MAX_MS: String(RAW_MAX_MS), RAW_ENGINES: String(FLOOD_ENGINES) },
     });
     let out = '';
-    child.stdout!.on('data', (d) => { out += d; });
+    child.stdout!.on('data', (d) => {
+      out += d;
+    });
     child.once('exit', (code) => (code === 0 ? resolve(JSON.parse(out)) : reject(new Error(`raw ceiling run exited with ${code}`))));
   });
 }
 
 // ---------- server and publishers ----------
-interface Server { child: ChildProcess; pid: number; url: string; mqttPort: number; dataDir: string; db: Db; health(): Promise<ServerHealth>; stop(): Promise<void> }
+interface Server {
+  child: ChildProcess;
+  pid: number;
+  url: string;
+  mqttPort: number;
+  dataDir: string;
+  db: Db;
+  health(): Promise<ServerHealth>;
+  stop(): Promise<void>;
+}
 
 async function startServer(): Promise<Server> {
   const dataDir = fs.mkdtempSync(path.join(os.tmpdir(), 'jw-bench-'));
   const [port, mqttPort, smtpPort] = [await freePort(), await freePort(), await freePort()];
   // node --import tsx (no tsx wrapper process), so the pid measured is the server's own
   const child = spawn(process.execPath, ['--import', 'tsx', path.join(ROOT, 'server/main.ts')], {
-    cwd: ROOT, stdio: ['ignore', 'ignore', 'inherit'],
+    cwd: ROOT,
+    stdio: ['ignore', 'ignore', 'inherit'],
     env: { ...process.env, PORT: String(port), MQTT_PORT: String(mqttPort), SMTP_PORT: String(smtpPort), DATA_DIR: dataDir, LOG_LEVEL: 'warn' },
   });
   const url = `http://127.0.0.1:${port}`;
   const health = async () => (await fetch(`${url}/api/health`, { signal: AbortSignal.timeout(10_000) })).json() as Promise<ServerHealth>;
   for (let i = 0; ; i++) {
-    try { await health(); break; } catch { if (i > 300 || child.exitCode !== null) throw new Error('server did not start'); await sleep(200); }
+    try {
+      await health();
+      break;
+    } catch {
+      if (i > 300 || child.exitCode !== null) throw new Error('server did not start');
+      await sleep(200);
+    }
   }
   const db = new Db(path.join(dataDir, 'jacketwatch.sqlite'));
   return {
-    child, pid: child.pid!, url, mqttPort, dataDir, db, health,
+    child,
+    pid: child.pid!,
+    url,
+    mqttPort,
+    dataDir,
+    db,
+    health,
     stop: async () => {
       const exited = new Promise((r) => child.once('exit', r));
       child.kill('SIGTERM');
@@ -106,26 +133,48 @@ async function startServer(): Promise<Server> {
   };
 }
 
-interface PubResult { readings: number; messages: number; failed: number }
-interface Publisher { child: ChildProcess; ready: Promise<void>; result: Promise<PubResult>; go(): void }
+interface PubResult {
+  readings: number;
+  messages: number;
+  failed: number;
+}
+interface Publisher {
+  child: ChildProcess;
+  ready: Promise<void>;
+  result: Promise<PubResult>;
+  go(): void;
+}
 
 function startPublisher(job: object): Publisher {
   const child = spawn(process.execPath, ['--import', 'tsx', path.join(__dirname, 'publisher.ts')], {
-    cwd: ROOT, stdio: ['pipe', 'pipe', 'inherit'], env: { ...process.env, BENCH_JOB: JSON.stringify(job) },
+    cwd: ROOT,
+    stdio: ['pipe', 'pipe', 'inherit'],
+    env: { ...process.env, BENCH_JOB: JSON.stringify(job) },
   });
   let buf = '';
-  let onReady!: () => void; let onResult!: (x: PubResult) => void; let onFail!: (e: Error) => void;
-  const ready = new Promise<void>((r) => { onReady = r; });
-  const result = new Promise<PubResult>((r, j) => { onResult = r; onFail = j; });
+  let onReady!: () => void;
+  let onResult!: (x: PubResult) => void;
+  let onFail!: (e: Error) => void;
+  const ready = new Promise<void>((r) => {
+    onReady = r;
+  });
+  const result = new Promise<PubResult>((r, j) => {
+    onResult = r;
+    onFail = j;
+  });
   child.stdout!.on('data', (d) => {
     buf += d;
     let nl;
     while ((nl = buf.indexOf('\n')) >= 0) {
-      const line = JSON.parse(buf.slice(0, nl)); buf = buf.slice(nl + 1);
-      if (line.ready) onReady(); else onResult(line);
+      const line = JSON.parse(buf.slice(0, nl));
+      buf = buf.slice(nl + 1);
+      if (line.ready) onReady();
+      else onResult(line);
     }
   });
-  child.once('exit', (code) => { if (code) onFail(new Error(`publisher exited with ${code}`)); });
+  child.once('exit', (code) => {
+    if (code) onFail(new Error(`publisher exited with ${code}`));
+  });
   return { child, ready, result, go: () => child.stdin!.end('go\n') };
 }
 
@@ -133,7 +182,10 @@ const split = <T>(xs: T[], n: number): T[][] => Array.from({ length: n }, (_, i)
 
 /** Once a second while a phase runs: server RSS, event-loop delay (admin counters), /api/health answer time. */
 function watch(server: Server, adminToken: string) {
-  const rss: number[] = []; const healthMs: number[] = []; const loopP99: number[] = []; const loopMax: number[] = [];
+  const rss: number[] = [];
+  const healthMs: number[] = [];
+  const loopP99: number[] = [];
+  const loopMax: number[] = [];
   let buffered = 0;
   let busy = false;
   let failures = 0;
@@ -146,17 +198,34 @@ function watch(server: Server, adminToken: string) {
       const h = await server.health();
       healthMs.push(performance.now() - t);
       buffered = Math.max(buffered, h.ingest.buffered);
-      const a = (await (await fetch(`${server.url}/api/admin/ingest`, { headers: { authorization: `Bearer ${adminToken}` }, signal: AbortSignal.timeout(10_000) })).json()) as { counters?: { eventLoopDelayMs?: { p99: number; max: number } } };
+      const a = (await (
+        await fetch(`${server.url}/api/admin/ingest`, { headers: { authorization: `Bearer ${adminToken}` }, signal: AbortSignal.timeout(10_000) })
+      ).json()) as { counters?: { eventLoopDelayMs?: { p99: number; max: number } } };
       const l = a.counters?.eventLoopDelayMs;
-      if (l) { loopP99.push(l.p99); loopMax.push(l.max); }
-    } catch { failures++; } finally { busy = false; }
+      if (l) {
+        loopP99.push(l.p99);
+        loopMax.push(l.max);
+      }
+    } catch {
+      failures++;
+    } finally {
+      busy = false;
+    }
   }, 1000);
   return {
-    stop() { clearInterval(timer); },
+    stop() {
+      clearInterval(timer);
+    },
     summary() {
       return {
-        rss, healthP50: quantile(healthMs, 0.5), healthMax: Math.max(...healthMs, 0), loopP99: Math.max(...loopP99, 0),
-        loopMax: Math.max(...loopMax, 0), maxBuffered: buffered, samples: healthMs.length, failures,
+        rss,
+        healthP50: quantile(healthMs, 0.5),
+        healthMax: Math.max(...healthMs, 0),
+        loopP99: Math.max(...loopP99, 0),
+        loopMax: Math.max(...loopMax, 0),
+        maxBuffered: buffered,
+        samples: healthMs.length,
+        failures,
       };
     },
   };
@@ -174,10 +243,14 @@ async function waitStored(server: Server, target: number, ms: number): Promise<n
 /** Until `received` stops growing and the buffer is empty, or the deadline. */
 async function waitDrained(server: Server, ms: number): Promise<{ received: number; stored: number; buffered: number; drained: boolean }> {
   const end = Date.now() + ms;
-  let last = -1; let stableSince = Date.now();
+  let last = -1;
+  let stableSince = Date.now();
   for (;;) {
     const h = (await server.health()).ingest;
-    if (h.received !== last) { last = h.received; stableSince = Date.now(); }
+    if (h.received !== last) {
+      last = h.received;
+      stableSince = Date.now();
+    }
     const quiet = Date.now() - stableSince > 1000 && h.buffered === 0 && h.stored === h.received;
     if (quiet || Date.now() > end) return { received: h.received, stored: h.stored, buffered: h.buffered, drained: quiet };
     await sleep(100);
@@ -199,33 +272,57 @@ async function retentionPhase(progress: (m: string) => void) {
   const spawnServer = async () => {
     const [port, mqttPort, smtpPort] = [await freePort(), await freePort(), await freePort()];
     const child = spawn(process.execPath, ['--import', 'tsx', path.join(ROOT, 'server/main.ts')], {
-      cwd: ROOT, stdio: ['ignore', 'ignore', 'inherit'],
-      env: { ...process.env, PORT: String(port), MQTT_PORT: String(mqttPort), SMTP_PORT: String(smtpPort), DATA_DIR: dataDir, LOG_LEVEL: 'warn', RAW_RETENTION_DAYS: '400' },
+      cwd: ROOT,
+      stdio: ['ignore', 'ignore', 'inherit'],
+      env: {
+        ...process.env,
+        PORT: String(port),
+        MQTT_PORT: String(mqttPort),
+        SMTP_PORT: String(smtpPort),
+        DATA_DIR: dataDir,
+        LOG_LEVEL: 'warn',
+        RAW_RETENTION_DAYS: '400',
+      },
     });
     const url = `http://127.0.0.1:${port}`;
     const health = async () => (await fetch(`${url}/api/health`, { signal: AbortSignal.timeout(10_000) })).json();
     for (let i = 0; ; i++) {
-      try { await health(); break; } catch { if (i > 300 || child.exitCode !== null) throw new Error('server did not start'); await sleep(200); }
+      try {
+        await health();
+        break;
+      } catch {
+        if (i > 300 || child.exitCode !== null) throw new Error('server did not start');
+        await sleep(200);
+      }
     }
     const db = new Db(dbFile);
-    const stop = async () => { const exited = new Promise((r) => child.once('exit', r)); child.kill('SIGTERM'); await exited; await db.close(); };
+    const stop = async () => {
+      const exited = new Promise((r) => child.once('exit', r));
+      child.kill('SIGTERM');
+      await exited;
+      await db.close();
+    };
     return { child, pid: child.pid!, url, mqttPort, dataDir, db, health, stop };
   };
   // 1. schema and fleet, then the backlog written with the server stopped
   let server = await spawnServer();
   const fleet = await seedFleet(server.db, 200, 'ret');
-  const adminId = await server.db.run(`INSERT INTO users (email, name, password_hash, role, disabled, created_at, updated_at) VALUES (?, ?, ?, 'admin', 0, ?, ?)`,
-    ['bench-ret@example.test', 'Bench admin', bcrypt.hashSync(`bench-${Date.now()}`, 4), new Date().toISOString(), new Date().toISOString()]);
+  const adminId = await server.db.run(
+    `INSERT INTO users (email, name, password_hash, role, disabled, created_at, updated_at) VALUES (?, ?, ?, 'admin', 0, ?, ?)`,
+    ['bench-ret@example.test', 'Bench admin', bcrypt.hashSync(`bench-${Date.now()}`, 4), new Date().toISOString(), new Date().toISOString()],
+  );
   await server.stop();
   const cutoff = Date.now() - 400 * 86_400_000;
   const oldStart = cutoff - 30 * 86_400_000;
   const perPair = Math.ceil(RETENTION_ROWS / (fleet.length * 5));
   const db = new Db(dbFile);
   const rows: string[] = [];
-  for (const d of fleet) for (let ch = 1; ch <= 5; ch++) for (let k = 0; k < perPair; k++) rows.push(`(${d.engineId},${ch},${oldStart + k * 1000},${50 + (k % 40)},0)`);
+  for (const d of fleet)
+    for (let ch = 1; ch <= 5; ch++) for (let k = 0; k < perPair; k++) rows.push(`(${d.engineId},${ch},${oldStart + k * 1000},${50 + (k % 40)},0)`);
   for (let i = 0; i < rows.length; i += 10_000) {
     await db.exec('BEGIN');
-    for (let j = i; j < Math.min(rows.length, i + 10_000); j += 500) await db.exec(`INSERT INTO readings (engine_id, channel, ts, value, quality) VALUES ${rows.slice(j, j + 500).join(',')}`);
+    for (let j = i; j < Math.min(rows.length, i + 10_000); j += 500)
+      await db.exec(`INSERT INTO readings (engine_id, channel, ts, value, quality) VALUES ${rows.slice(j, j + 500).join(',')}`);
     await db.exec('COMMIT');
   }
   await db.close();
@@ -235,7 +332,18 @@ async function retentionPhase(progress: (m: string) => void) {
   server = await spawnServer();
   const sweepStart = performance.now();
   const adminToken = createTokenService(loadJwtSecret(dataDir)).sign({ id: adminId, email: 'bench-ret@example.test', role: 'admin' });
-  const pubs = split(fleet, PUBLISHERS).map((ds) => startPublisher({ mqttPort: server.mqttPort, devices: ds.map((d) => ({ username: d.username, secret: d.secret, engineId: d.engineId })), mode: 'paced', qos: 1, durationMs: RETENTION_MS, window: 1, samplesPerMsg: 1, baseTs: 0 }));
+  const pubs = split(fleet, PUBLISHERS).map((ds) =>
+    startPublisher({
+      mqttPort: server.mqttPort,
+      devices: ds.map((d) => ({ username: d.username, secret: d.secret, engineId: d.engineId })),
+      mode: 'paced',
+      qos: 1,
+      durationMs: RETENTION_MS,
+      window: 1,
+      samplesPerMsg: 1,
+      baseTs: 0,
+    }),
+  );
   await Promise.all(pubs.map((p) => p.ready));
   pubs.forEach((p) => p.go());
   const w = watch(server as unknown as Server, adminToken);
@@ -244,14 +352,19 @@ async function retentionPhase(progress: (m: string) => void) {
   const end = performance.now() + RETENTION_MS;
   while (performance.now() < end) {
     left = (await server.db.get<{ n: number }>('SELECT COUNT(*) AS n FROM readings WHERE ts < ?', [cutoff])).n;
-    if (left === 0) { sweepS = (performance.now() - sweepStart) / 1000; break; }
+    if (left === 0) {
+      sweepS = (performance.now() - sweepStart) / 1000;
+      break;
+    }
     await sleep(250);
   }
   const published = (await Promise.all(pubs.map((p) => p.result))).reduce((a, r) => a + r.readings, 0);
   w.stop();
   const watched = w.summary();
   const drained = await waitDrained(server as unknown as Server, 10_000);
-  const admin = (await (await fetch(`${server.url}/api/admin/ingest`, { headers: { authorization: `Bearer ${adminToken}` } })).json()) as { counters?: { batchLatencyMs?: { p95: number; max: number } } };
+  const admin = (await (await fetch(`${server.url}/api/admin/ingest`, { headers: { authorization: `Bearer ${adminToken}` } })).json()) as {
+    counters?: { batchLatencyMs?: { p95: number; max: number } };
+  };
   await server.stop();
   fs.rmSync(dataDir, { recursive: true, force: true });
   return { backlog: rows.length, left, sweepS, published, stored: drained.stored, batchLatency: admin.counters?.batchLatencyMs ?? null, ...watched };
@@ -260,26 +373,47 @@ async function retentionPhase(progress: (m: string) => void) {
 function printRetention(r: Awaited<ReturnType<typeof retentionPhase>>): void {
   const line = (k: string, v: string) => console.log(`  ${k.padEnd(46)} ${v}`);
   console.log(`\n5. Retention sweep (${fmt(r.backlog)} raw readings past RAW_RETENTION_DAYS, while 200 engines x 5 channels x 1 Hz publish at QoS 1)`);
-  line('sweep time / rate', Number.isFinite(r.sweepS) ? `${r.sweepS.toFixed(1)} s / ${fmt(r.backlog / r.sweepS)} rows/s` : `not done in ${RETENTION_MS / 1000} s (${fmt(r.left)} left)`);
+  line(
+    'sweep time / rate',
+    Number.isFinite(r.sweepS) ? `${r.sweepS.toFixed(1)} s / ${fmt(r.backlog / r.sweepS)} rows/s` : `not done in ${RETENTION_MS / 1000} s (${fmt(r.left)} left)`,
+  );
   line('published (acknowledged) / stored during the sweep', `${fmt(r.published)} / ${fmt(r.stored)}`);
   line('event-loop delay p99 / max (worst 2 s window)', `${r.loopP99} / ${r.loopMax} ms`);
-  line('GET /api/health answer p50 / max (samples)', `${r.healthP50.toFixed(0)} / ${r.healthMax.toFixed(0)} ms (${r.samples} answered, ${r.failures} failed or > 10 s)`);
+  line(
+    'GET /api/health answer p50 / max (samples)',
+    `${r.healthP50.toFixed(0)} / ${r.healthMax.toFixed(0)} ms (${r.samples} answered, ${r.failures} failed or > 10 s)`,
+  );
   if (r.batchLatency) line('ingest batch latency p95 / max (whole run)', `${r.batchLatency.p95} / ${r.batchLatency.max} ms`);
 }
 
 // ---------- main ----------
 async function main(): Promise<void> {
   const t0 = Date.now();
-  console.log(`Jacketwatch ingest benchmark (${os.cpus().length} cores, Node ${process.version}, load average ${os.loadavg().map((x) => x.toFixed(1)).join(' ')})`);
+  console.log(
+    `Jacketwatch ingest benchmark (${os.cpus().length} cores, Node ${process.version}, load average ${os
+      .loadavg()
+      .map((x) => x.toFixed(1))
+      .join(' ')})`,
+  );
 
   const progress = (m: string) => process.stderr.write(`[${((Date.now() - t0) / 1000).toFixed(1)} s] ${m}\n`);
-  if (process.env.BENCH_PHASE === 'retention') { printRetention(await retentionPhase(progress)); process.exit(0); }
-  if (process.env.BENCH_PHASE === 'trend') { printTrend(await trendPhase(progress)); process.exit(0); }
+  if (process.env.BENCH_PHASE === 'retention') {
+    printRetention(await retentionPhase(progress));
+    process.exit(0);
+  }
+  if (process.env.BENCH_PHASE === 'trend') {
+    printTrend(await trendPhase(progress));
+    process.exit(0);
+  }
   if (process.env.BENCH_SCALE === '1') {
     // several servers: needs Debian's PostgreSQL and mosquitto, so only when asked for
     const scale = await runScaleBench(progress);
     printScale(scale);
-    if (process.env.BENCH_JSON) fs.writeFileSync(process.env.BENCH_JSON, JSON.stringify({ at: new Date().toISOString(), cores: os.cpus().length, node: process.version, scale }, null, 2) + '\n');
+    if (process.env.BENCH_JSON)
+      fs.writeFileSync(
+        process.env.BENCH_JSON,
+        JSON.stringify({ at: new Date().toISOString(), cores: os.cpus().length, node: process.version, scale }, null, 2) + '\n',
+      );
     process.exit(0);
   }
   progress('raw ceiling (3 runs)');
@@ -291,8 +425,10 @@ async function main(): Promise<void> {
   const server = await startServer();
   progress('server up');
   const all = await seedFleet(server.db, LATENCY_ENGINES, 'bench');
-  const adminId = await server.db.run(`INSERT INTO users (email, name, password_hash, role, disabled, created_at, updated_at) VALUES (?, ?, ?, 'admin', 0, ?, ?)`,
-    ['bench-admin@example.test', 'Bench admin', bcrypt.hashSync(`bench-${Date.now()}`, 4), new Date().toISOString(), new Date().toISOString()]);
+  const adminId = await server.db.run(
+    `INSERT INTO users (email, name, password_hash, role, disabled, created_at, updated_at) VALUES (?, ?, ?, 'admin', 0, ?, ?)`,
+    ['bench-admin@example.test', 'Bench admin', bcrypt.hashSync(`bench-${Date.now()}`, 4), new Date().toISOString(), new Date().toISOString()],
+  );
   const tokens = createTokenService(loadJwtSecret(server.dataDir));
   const adminToken = tokens.sign({ id: adminId, email: 'bench-admin@example.test', role: 'admin' });
   const flood = all.slice(0, FLOOD_ENGINES);
@@ -302,7 +438,18 @@ async function main(): Promise<void> {
   const rssBefore = readStatus(server.pid, 'VmRSS');
 
   // 1. QoS 1 flood
-  const pubs = split(flood, PUBLISHERS).map((ds) => startPublisher({ mqttPort: server.mqttPort, devices: devices(ds), mode: 'flood', qos: 1, durationMs: FLOOD_MS, window: 4, samplesPerMsg: SAMPLES_PER_MSG, baseTs: base }));
+  const pubs = split(flood, PUBLISHERS).map((ds) =>
+    startPublisher({
+      mqttPort: server.mqttPort,
+      devices: devices(ds),
+      mode: 'flood',
+      qos: 1,
+      durationMs: FLOOD_MS,
+      window: 4,
+      samplesPerMsg: SAMPLES_PER_MSG,
+      baseTs: base,
+    }),
+  );
   await Promise.all(pubs.map((p) => p.ready));
   progress('QoS 1 flood');
   const startStored = (await server.health()).ingest.stored;
@@ -318,15 +465,20 @@ async function main(): Promise<void> {
   const rows = (await server.db.get<{ n: number }>('SELECT COUNT(*) AS n FROM readings')).n;
   // every published reading was acknowledged after its commit and has a unique timestamp
   const lostAcknowledged = Math.max(0, published - rows);
-  const duplicatesStored = (await server.db.get<{ n: number }>(
-    'SELECT COALESCE(SUM(n - 1), 0) AS n FROM (SELECT COUNT(*) AS n FROM readings GROUP BY engine_id, channel, ts HAVING COUNT(*) > 1)')).n;
+  const duplicatesStored = (
+    await server.db.get<{ n: number }>(
+      'SELECT COALESCE(SUM(n - 1), 0) AS n FROM (SELECT COUNT(*) AS n FROM readings GROUP BY engine_id, channel, ts HAVING COUNT(*) > 1)',
+    )
+  ).n;
   const hwmQos1 = readStatus(server.pid, 'VmHWM');
   // RSS growth after the first 5 s of the flood: from the sample at 5 s to the largest one after it
   const rssAt5 = q1.rss[Math.min(4, q1.rss.length - 1)];
   const rssGrowthPct = q1.rss.length > 5 ? (100 * (Math.max(...q1.rss.slice(5)) - rssAt5)) / rssAt5 : NaN;
   if (qos1Only) {
-    console.log(`QoS 1 flood: ${fmt(published)} acknowledged, ${fmt(rows)} in the file, ${fmt(stored / ((performance.now() - started) / 1000))} readings/s, `
-      + `lost ${lostAcknowledged}, duplicates ${duplicatesStored}; RSS ${q1.rss.map((x) => x.toFixed(0)).join(' ')} MB; growth after 5 s ${rssGrowthPct.toFixed(1)} %`);
+    console.log(
+      `QoS 1 flood: ${fmt(published)} acknowledged, ${fmt(rows)} in the file, ${fmt(stored / ((performance.now() - started) / 1000))} readings/s, ` +
+        `lost ${lostAcknowledged}, duplicates ${duplicatesStored}; RSS ${q1.rss.map((x) => x.toFixed(0)).join(' ')} MB; growth after 5 s ${rssGrowthPct.toFixed(1)} %`,
+    );
     await server.stop();
     process.exit(0);
   }
@@ -334,17 +486,27 @@ async function main(): Promise<void> {
   // 2. latency at 500 x 5 x 1 Hz
   const token = tokens.sign({ id: adminId, email: 'bench-admin@example.test', role: 'admin' });
   const sock = ioClient(server.url, { auth: { token }, transports: ['websocket'], reconnection: false });
-  await new Promise<void>((resolve, reject) => { sock.once('connect', () => resolve()); sock.once('connect_error', reject); });
+  await new Promise<void>((resolve, reject) => {
+    sock.once('connect', () => resolve());
+    sock.once('connect_error', reject);
+  });
   await sock.emitWithAck('watch', { fleet: true });
   const latencies: number[] = [];
   let measuring = false;
-  sock.on('readings', (msg: { ts: number }) => { if (measuring) latencies.push(Date.now() - msg.ts); });
-  const pubsL = split(all, PUBLISHERS).map((ds) => startPublisher({ mqttPort: server.mqttPort, devices: devices(ds), mode: 'paced', qos: 1, durationMs: LATENCY_MS, window: 1, samplesPerMsg: 1, baseTs: 0 }));
+  sock.on('readings', (msg: { ts: number }) => {
+    if (measuring) latencies.push(Date.now() - msg.ts);
+  });
+  const pubsL = split(all, PUBLISHERS).map((ds) =>
+    startPublisher({ mqttPort: server.mqttPort, devices: devices(ds), mode: 'paced', qos: 1, durationMs: LATENCY_MS, window: 1, samplesPerMsg: 1, baseTs: 0 }),
+  );
   await Promise.all(pubsL.map((p) => p.ready));
   progress('latency run');
   pubsL.forEach((p) => p.go());
   let wl: ReturnType<typeof watch> | null = null;
-  setTimeout(() => { measuring = true; wl = watch(server, adminToken); }, 3000); // after the first round of connections settles
+  setTimeout(() => {
+    measuring = true;
+    wl = watch(server, adminToken);
+  }, 3000); // after the first round of connections settles
   const resultsL = await Promise.all(pubsL.map((p) => p.result));
   measuring = false;
   (wl as ReturnType<typeof watch> | null)?.stop();
@@ -356,7 +518,18 @@ async function main(): Promise<void> {
   const afterLatency = await waitDrained(server, 5_000);
 
   // 3. QoS 0 flood, bounded: QOS0_MS of publishing, then at most DRAIN_MS for the server to catch up
-  const pubs0 = split(flood, PUBLISHERS).map((ds) => startPublisher({ mqttPort: server.mqttPort, devices: devices(ds), mode: 'flood', qos: 0, durationMs: QOS0_MS, window: 16, samplesPerMsg: SAMPLES_PER_MSG, baseTs: base + 5 * 86_400_000 }));
+  const pubs0 = split(flood, PUBLISHERS).map((ds) =>
+    startPublisher({
+      mqttPort: server.mqttPort,
+      devices: devices(ds),
+      mode: 'flood',
+      qos: 0,
+      durationMs: QOS0_MS,
+      window: 16,
+      samplesPerMsg: SAMPLES_PER_MSG,
+      baseTs: base + 5 * 86_400_000,
+    }),
+  );
   await Promise.all(pubs0.map((p) => p.ready));
   progress('QoS 0 flood');
   const h0 = (await server.health()).ingest;
@@ -379,7 +552,9 @@ async function main(): Promise<void> {
 
   const line = (k: string, v: string) => console.log(`  ${k.padEnd(46)} ${v}`);
   const mb = (xs: number[]) => xs.map((x) => x.toFixed(0)).join(' ') + ' MB';
-  console.log(`\n1. End to end, QoS 1 flood (${FLOOD_ENGINES} engines, ${PUBLISHERS} publisher processes, ${SAMPLES_PER_MSG}-sample payloads, ${FLOOD_MS / 1000} s)`);
+  console.log(
+    `\n1. End to end, QoS 1 flood (${FLOOD_ENGINES} engines, ${PUBLISHERS} publisher processes, ${SAMPLES_PER_MSG}-sample payloads, ${FLOOD_MS / 1000} s)`,
+  );
   line('published (acknowledged) readings', fmt(published));
   line('stored readings (counter / rows in file)', `${fmt(stored)} / ${fmt(rows)}`);
   line('acknowledged lost', fmt(lostAcknowledged) + (lostAcknowledged === 0 && published === stored && rows === published ? '  (none)' : '  (MISMATCH)'));
@@ -389,29 +564,44 @@ async function main(): Promise<void> {
   line('ratio end to end / raw ceiling', `${Math.round((100 * rate) / raw.rate)} %   (target >= 60 %)`);
   line('most readings buffered in the server', fmt(q1.maxBuffered));
   line('event-loop delay p99 / max (worst 2 s window)', `${q1.loopP99} / ${q1.loopMax} ms`);
-  line('GET /api/health answer p50 / max (samples)', `${q1.healthP50.toFixed(0)} / ${q1.healthMax.toFixed(0)} ms (${q1.samples} answered, ${q1.failures} failed or > 10 s)`);
+  line(
+    'GET /api/health answer p50 / max (samples)',
+    `${q1.healthP50.toFixed(0)} / ${q1.healthMax.toFixed(0)} ms (${q1.samples} answered, ${q1.failures} failed or > 10 s)`,
+  );
   line('RSS before / each second', `${rssBefore.toFixed(0)} MB / ${mb(q1.rss)}`);
   line('RSS growth after the first 5 s', `${Number.isFinite(rssGrowthPct) ? rssGrowthPct.toFixed(1) : 'n/a'} %   (goal < 20 %)`);
   line('peak RSS (VmHWM) after the QoS 1 flood', `${hwmQos1.toFixed(0)} MB`);
 
   console.log(`\n2. Live push latency (${LATENCY_ENGINES} engines x 5 channels x 1 Hz, QoS 1, ${LATENCY_MS / 1000} s, first 3 s not measured)`);
-  line('published readings / stored after the run', `${fmt(publishedL)} / ${afterLatency.stored === afterLatency.received ? 'all received stored' : `${fmt(afterLatency.received - afterLatency.stored)} not yet stored`}`);
+  line(
+    'published readings / stored after the run',
+    `${fmt(publishedL)} / ${afterLatency.stored === afterLatency.received ? 'all received stored' : `${fmt(afterLatency.received - afterLatency.stored)} not yet stored`}`,
+  );
   line('socket.io messages measured', fmt(latencies.length));
   line('publish -> browser p50 / p95 / max', `${q(0.5)} / ${q(0.95)} / ${latencies[latencies.length - 1]} ms   (target p95 < 100 ms)`);
   if (lat) {
     line('event-loop delay p99 / max (worst 2 s window)', `${lat.loopP99} / ${lat.loopMax} ms`);
-    line('GET /api/health answer p50 / max (samples)', `${lat.healthP50.toFixed(0)} / ${lat.healthMax.toFixed(0)} ms (${lat.samples} answered, ${lat.failures} failed or > 10 s)`);
+    line(
+      'GET /api/health answer p50 / max (samples)',
+      `${lat.healthP50.toFixed(0)} / ${lat.healthMax.toFixed(0)} ms (${lat.samples} answered, ${lat.failures} failed or > 10 s)`,
+    );
   }
 
   console.log(`\n3. QoS 0 flood (${FLOOD_ENGINES} engines, ${QOS0_MS / 1000} s of publishing, then at most ${DRAIN_MS / 1000} s to drain)`);
   line('handed to TCP by the publishers (no ack)', fmt(published0));
   line('received by the server when publishers stopped', fmt(atStop.received - h0.received));
-  line('received by the server at the end', fmt(received0) + (drained.drained ? '  (drained)' : `  (drain time over; ${fmt(drained.buffered)} still buffered)`));
+  line(
+    'received by the server at the end',
+    fmt(received0) + (drained.drained ? '  (drained)' : `  (drain time over; ${fmt(drained.buffered)} still buffered)`),
+  );
   line('stored at the end', fmt(stored0) + (stored0 === received0 ? '  (every received reading stored)' : ''));
   line('sent but not received (QoS 0: no redelivery)', fmt(published0 - received0) + '  (left in socket buffers when the connections were dropped)');
   line('most readings buffered in the server', fmt(q0.maxBuffered));
   line('event-loop delay p99 / max (worst 2 s window)', `${q0.loopP99} / ${q0.loopMax} ms`);
-  line('GET /api/health answer p50 / max (samples)', `${q0.healthP50.toFixed(0)} / ${q0.healthMax.toFixed(0)} ms (${q0.samples} answered, ${q0.failures} failed or > 10 s)`);
+  line(
+    'GET /api/health answer p50 / max (samples)',
+    `${q0.healthP50.toFixed(0)} / ${q0.healthMax.toFixed(0)} ms (${q0.samples} answered, ${q0.failures} failed or > 10 s)`,
+  );
   line('RSS each second', mb(q0.rss));
   line('peak RSS (VmHWM) after the QoS 0 flood', `${hwmQos0.toFixed(0)} MB`);
   const retention = await retentionPhase(progress);
@@ -428,7 +618,10 @@ async function main(): Promise<void> {
   });
   console.log('\n6. Sign-in under a burst of wrong passwords (200 wrong HTTP sign-ins from 5 addresses + 300 wrong MQTT logins)');
   if (burst) {
-    line('good sign-in quiet / under the burst (loginUnderBurstMs)', `${burst.quietMs.toFixed(0)} / ${burst.underBurstMs.toFixed(0)} ms (HTTP ${burst.status})   (goal: at most 1 s more than quiet)`);
+    line(
+      'good sign-in quiet / under the burst (loginUnderBurstMs)',
+      `${burst.quietMs.toFixed(0)} / ${burst.underBurstMs.toFixed(0)} ms (HTTP ${burst.status})   (goal: at most 1 s more than quiet)`,
+    );
     line('good device connect quiet / under the burst', `${burst.deviceQuietMs.toFixed(0)} / ${burst.deviceUnderBurstMs.toFixed(0)} ms`);
     line('answers to the burst', JSON.stringify(burst.burstAnswers));
   } else {
@@ -437,21 +630,47 @@ async function main(): Promise<void> {
   console.log(`\nbench took ${((Date.now() - t0) / 1000).toFixed(0)} s`);
   if (process.env.BENCH_JSON) {
     const r1 = (x: number) => (Number.isFinite(x) ? Math.round(x * 10) / 10 : null);
-    fs.writeFileSync(process.env.BENCH_JSON, JSON.stringify({
-      at: new Date().toISOString(), cores: os.cpus().length, node: process.version,
-      ingestPerS: Math.round(rate), rawCeilingPerS: Math.round(raw.rate), rawCeilingRunsPerS: rawRuns.map((r) => Math.round(r.rate)),
-      ratioPct: r1((100 * rate) / raw.rate), publishedAcknowledged: published, lostAcknowledged, duplicatesStored,
-      rssGrowthPct: r1(rssGrowthPct), rssMb: q1.rss.map((x) => Math.round(x)), peakRssMb: r1(hwmQos1),
-      qos1LoopP99Ms: q1.loopP99, livePushP95Ms: q(0.95), livePushP50Ms: q(0.5),
-      qos0Received: received0, qos0Stored: stored0,
-      initialTransferKb: initialBundle?.transferKb ?? null,
-      retentionRowsPerS: Number.isFinite(retention.sweepS) ? Math.round(retention.backlog / retention.sweepS) : null,
-      retentionLoopMaxMs: retention.loopMax, retentionHealthMaxMs: r1(retention.healthMax),
-      retentionBatchLatencyMaxMs: retention.batchLatency?.max ?? null,
-      trend30dMs: r1(trend.trend30dMs), trend1hMs: r1(trend.trend1hMs), trend30dMinuteRollupsMs: r1(trend.trend30dMinutesMs), trendEngines: trend.engines, trendDays: trend.days,
-      loginQuietMs: burst ? r1(burst.quietMs) : null, loginUnderBurstMs: burst ? r1(burst.underBurstMs) : null,
-      deviceConnectQuietMs: burst ? r1(burst.deviceQuietMs) : null, deviceConnectUnderBurstMs: burst ? r1(burst.deviceUnderBurstMs) : null,
-    }, null, 2) + '\n');
+    fs.writeFileSync(
+      process.env.BENCH_JSON,
+      JSON.stringify(
+        {
+          at: new Date().toISOString(),
+          cores: os.cpus().length,
+          node: process.version,
+          ingestPerS: Math.round(rate),
+          rawCeilingPerS: Math.round(raw.rate),
+          rawCeilingRunsPerS: rawRuns.map((r) => Math.round(r.rate)),
+          ratioPct: r1((100 * rate) / raw.rate),
+          publishedAcknowledged: published,
+          lostAcknowledged,
+          duplicatesStored,
+          rssGrowthPct: r1(rssGrowthPct),
+          rssMb: q1.rss.map((x) => Math.round(x)),
+          peakRssMb: r1(hwmQos1),
+          qos1LoopP99Ms: q1.loopP99,
+          livePushP95Ms: q(0.95),
+          livePushP50Ms: q(0.5),
+          qos0Received: received0,
+          qos0Stored: stored0,
+          initialTransferKb: initialBundle?.transferKb ?? null,
+          retentionRowsPerS: Number.isFinite(retention.sweepS) ? Math.round(retention.backlog / retention.sweepS) : null,
+          retentionLoopMaxMs: retention.loopMax,
+          retentionHealthMaxMs: r1(retention.healthMax),
+          retentionBatchLatencyMaxMs: retention.batchLatency?.max ?? null,
+          trend30dMs: r1(trend.trend30dMs),
+          trend1hMs: r1(trend.trend1hMs),
+          trend30dMinuteRollupsMs: r1(trend.trend30dMinutesMs),
+          trendEngines: trend.engines,
+          trendDays: trend.days,
+          loginQuietMs: burst ? r1(burst.quietMs) : null,
+          loginUnderBurstMs: burst ? r1(burst.underBurstMs) : null,
+          deviceConnectQuietMs: burst ? r1(burst.deviceQuietMs) : null,
+          deviceConnectUnderBurstMs: burst ? r1(burst.deviceUnderBurstMs) : null,
+        },
+        null,
+        2,
+      ) + '\n',
+    );
     console.log(`figures written to ${process.env.BENCH_JSON}`);
   }
   process.exit(0);

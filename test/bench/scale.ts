@@ -26,8 +26,18 @@ const SECRET = 'bench-scale-secret-0123456789-abcdefghijklmnopqrstuvwxyz';
 const BENCH_USER = { username: 'jw-bench', password: 'bench-device-secret-1' };
 
 export interface ScaleFigures {
-  servers: number; engines: number; seconds: number; published: number; stored: number; failed: number;
-  p50Ms: number; p95Ms: number; pushed: number; rowsPerDay: number; bytesPerRow: number; bytesPerDay: number;
+  servers: number;
+  engines: number;
+  seconds: number;
+  published: number;
+  stored: number;
+  failed: number;
+  p50Ms: number;
+  p95Ms: number;
+  pushed: number;
+  rowsPerDay: number;
+  bytesPerRow: number;
+  bytesPerDay: number;
 }
 
 const quantile = (xs: number[], p: number) => xs[Math.min(xs.length - 1, Math.floor(p * xs.length))] ?? NaN;
@@ -48,20 +58,27 @@ async function until<T>(what: string, fn: () => Promise<T>, ok: (v: T) => boolea
 
 function publisher(job: object): { child: ChildProcess; ready: Promise<void>; result: Promise<{ readings: number; failed: number }>; go(): void } {
   const child = spawn(process.execPath, ['--import', 'tsx', path.join(__dirname, 'publisher.ts')], {
-    cwd: ROOT, stdio: ['pipe', 'pipe', 'inherit'], env: { ...process.env, BENCH_JOB: JSON.stringify(job) },
+    cwd: ROOT,
+    stdio: ['pipe', 'pipe', 'inherit'],
+    env: { ...process.env, BENCH_JOB: JSON.stringify(job) },
   });
   let buf = '';
   let onReady!: () => void;
   let onResult!: (x: { readings: number; failed: number }) => void;
-  const ready = new Promise<void>((r) => { onReady = r; });
-  const result = new Promise<{ readings: number; failed: number }>((r) => { onResult = r; });
+  const ready = new Promise<void>((r) => {
+    onReady = r;
+  });
+  const result = new Promise<{ readings: number; failed: number }>((r) => {
+    onResult = r;
+  });
   child.stdout!.on('data', (d) => {
     buf += d;
     let nl;
     while ((nl = buf.indexOf('\n')) >= 0) {
       const line = JSON.parse(buf.slice(0, nl));
       buf = buf.slice(nl + 1);
-      if (line.ready) onReady(); else onResult(line);
+      if (line.ready) onReady();
+      else onResult(line);
     }
   });
   return { child, ready, result, go: () => child.stdin!.end('go\n') };
@@ -85,15 +102,30 @@ async function oneRun(servers: number, adminUrl: string, mq: { port: number; adm
       const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'jw-bench-scale-'));
       dirs.push(dir);
       const child = spawnInGroup(process.execPath, [path.join(ROOT, 'node_modules/tsx/dist/cli.mjs'), path.join(ROOT, 'server/main.ts')], {
-        cwd: ROOT, stdio: 'ignore',
+        cwd: ROOT,
+        stdio: 'ignore',
         env: {
-          ...process.env, PORT: String(port), SMTP_PORT: String(await freePort()), MQTT_PORT: '0', DATA_DIR: dir, DATABASE_URL: databaseUrl,
-          MQTT_URL: mq.adminUrl, MQTT_SHARED_GROUP: 'jw', MQTT_CLIENT_ID: `jw-bench-${servers}-${i}`, JWT_SECRET: SECRET, LOG_LEVEL: 'error',
+          ...process.env,
+          PORT: String(port),
+          SMTP_PORT: String(await freePort()),
+          MQTT_PORT: '0',
+          DATA_DIR: dir,
+          DATABASE_URL: databaseUrl,
+          MQTT_URL: mq.adminUrl,
+          MQTT_SHARED_GROUP: 'jw',
+          MQTT_CLIENT_ID: `jw-bench-${servers}-${i}`,
+          JWT_SECRET: SECRET,
+          LOG_LEVEL: 'error',
         },
       });
       children.push(child);
       const url = `http://127.0.0.1:${port}`;
-      await until(`server ${i} up`, async () => (await fetch(`${url}/api/health`)).json() as Promise<{ status: string; cluster?: { owned: number } }>, (h) => h.status === 'ok' && (h.cluster?.owned ?? 0) > 0, 90_000);
+      await until(
+        `server ${i} up`,
+        async () => (await fetch(`${url}/api/health`)).json() as Promise<{ status: string; cluster?: { owned: number } }>,
+        (h) => h.status === 'ok' && (h.cluster?.owned ?? 0) > 0,
+        90_000,
+      );
       urls.push(url);
     };
     await start(0); // migrations, then the fleet
@@ -104,8 +136,14 @@ async function oneRun(servers: number, adminUrl: string, mq: { port: number; adm
     await db.query(
       `INSERT INTO engines (site_id, name, duty, capacity_l, coolant_family, glycol_type, glycol_percent, cap_pressure_kpa, oil_drain_interval_h, run_hours, safe_open_temp_c, out_of_service, created_at, updated_at)
        SELECT (SELECT MIN(id) FROM sites), 'Bench engine ' || g, 'prime', 60, 'conventional', 'ethylene', 50, 100, 250, 0, 50, FALSE, $1, $1 FROM generate_series(1, $2::int) g`,
-      [now, ENGINES]);
-    const adminId = (await db.query<{ id: number }>(`INSERT INTO users (email, name, password_hash, role, disabled, created_at, updated_at) VALUES ('bench-scale@example.test', 'Bench', 'x', 'admin', FALSE, $1, $1) RETURNING id`, [now])).rows[0].id;
+      [now, ENGINES],
+    );
+    const adminId = (
+      await db.query<{ id: number }>(
+        `INSERT INTO users (email, name, password_hash, role, disabled, created_at, updated_at) VALUES ('bench-scale@example.test', 'Bench', 'x', 'admin', FALSE, $1, $1) RETURNING id`,
+        [now],
+      )
+    ).rows[0].id;
     const engineIds = (await db.query<{ id: number }>('SELECT id FROM engines ORDER BY id')).rows.map((r) => r.id);
     for (let i = 1; i < servers; i++) await start(i);
     const token = createTokenService(SECRET).sign({ id: adminId, email: 'bench-scale@example.test', role: 'admin' });
@@ -114,20 +152,36 @@ async function oneRun(servers: number, adminUrl: string, mq: { port: number; adm
     for (const url of urls) {
       const s = ioClient(url, { auth: { token }, transports: ['websocket'], reconnection: false });
       sockets.push(s);
-      await new Promise<void>((resolve, reject) => { s.once('connect', () => resolve()); s.once('connect_error', reject); });
+      await new Promise<void>((resolve, reject) => {
+        s.once('connect', () => resolve());
+        s.once('connect_error', reject);
+      });
       await s.emitWithAck('watch', { fleet: true });
-      s.on('readings', (m: { ts: number }) => { if (measuring) latencies.push(Date.now() - m.ts); });
+      s.on('readings', (m: { ts: number }) => {
+        if (measuring) latencies.push(Date.now() - m.ts);
+      });
     }
     const devices = engineIds.map((engineId) => ({ ...BENCH_USER, secret: BENCH_USER.password, engineId }));
-    const pubs = Array.from({ length: PUBLISHERS }, (_, k) => publisher({
-      mqttPort: mq.port, devices: devices.filter((_, i) => i % PUBLISHERS === k), mode: 'paced', qos: 1, durationMs: RUN_MS, window: 1, samplesPerMsg: 1, baseTs: 0,
-    }));
+    const pubs = Array.from({ length: PUBLISHERS }, (_, k) =>
+      publisher({
+        mqttPort: mq.port,
+        devices: devices.filter((_, i) => i % PUBLISHERS === k),
+        mode: 'paced',
+        qos: 1,
+        durationMs: RUN_MS,
+        window: 1,
+        samplesPerMsg: 1,
+        baseTs: 0,
+      }),
+    );
     await Promise.all(pubs.map((p) => p.ready));
     progress(`${servers} server(s): ${ENGINES} engines x 5 channels x 1 Hz for ${RUN_MS / 1000} s`);
     const sizeBefore = await sizes(db);
     pubs.forEach((p) => p.go());
     const startedAt = Date.now();
-    const measureTimer = setTimeout(() => { measuring = true; }, 5000); // connections and leases settle first
+    const measureTimer = setTimeout(() => {
+      measuring = true;
+    }, 5000); // connections and leases settle first
     const results = await Promise.all(pubs.map((p) => p.result));
     clearTimeout(measureTimer);
     measuring = false;
@@ -141,8 +195,18 @@ async function oneRun(servers: number, adminUrl: string, mq: { port: number; adm
     const rowsPerDay = ENGINES * 5 * 86_400;
     const bytesPerRow = stored > 0 ? (sizeAfter - sizeBefore) / stored : NaN;
     return {
-      servers, engines: ENGINES, seconds, published, stored, failed, p50Ms: quantile(latencies, 0.5), p95Ms: quantile(latencies, 0.95), pushed: latencies.length,
-      rowsPerDay, bytesPerRow, bytesPerDay: bytesPerRow * rowsPerDay,
+      servers,
+      engines: ENGINES,
+      seconds,
+      published,
+      stored,
+      failed,
+      p50Ms: quantile(latencies, 0.5),
+      p95Ms: quantile(latencies, 0.95),
+      pushed: latencies.length,
+      rowsPerDay,
+      bytesPerRow,
+      bytesPerDay: bytesPerRow * rowsPerDay,
     };
   } finally {
     for (const s of sockets) s.close();
@@ -155,7 +219,8 @@ async function oneRun(servers: number, adminUrl: string, mq: { port: number; adm
 /** Bytes of the stored readings (every partition, with indexes) and the per-minute rollups. */
 async function sizes(db: PgClient): Promise<number> {
   const r = await db.query<{ b: number }>(
-    `SELECT COALESCE(SUM(pg_total_relation_size(inhrelid)), 0) + pg_total_relation_size('rollups') AS b FROM pg_inherits WHERE inhparent = 'readings'::regclass`);
+    `SELECT COALESCE(SUM(pg_total_relation_size(inhrelid)), 0) + pg_total_relation_size('rollups') AS b FROM pg_inherits WHERE inhparent = 'readings'::regclass`,
+  );
   return Number(r.rows[0].b);
 }
 
@@ -165,14 +230,22 @@ export async function runScaleBench(progress: (m: string) => void): Promise<Scal
   // unacknowledged messages per client would cap ingest at 20 messages per commit (see the README)
   const mq = await startMosquitto([`max_inflight_messages ${process.env.BENCH_SCALE_INFLIGHT ?? 1000}`]);
   try {
-    await until('PostgreSQL accepting sessions', async () => {
-      const c = new Client({ connectionString: pg.url });
-      await c.connect();
-      await c.end();
-      return true;
-    }, Boolean, 30_000);
+    await until(
+      'PostgreSQL accepting sessions',
+      async () => {
+        const c = new Client({ connectionString: pg.url });
+        await c.connect();
+        await c.end();
+        return true;
+      },
+      Boolean,
+      30_000,
+    );
     // one device account for every publisher connection, allowed on every engine's topic (the bench measures the servers)
-    const ctl = (...args: string[]) => execFileSync('mosquitto_ctrl', ['-h', '127.0.0.1', '-p', String(mq.port), '-u', mq.admin.username, '-P', mq.admin.password, 'dynsec', ...args], { stdio: 'ignore' });
+    const ctl = (...args: string[]) =>
+      execFileSync('mosquitto_ctrl', ['-h', '127.0.0.1', '-p', String(mq.port), '-u', mq.admin.username, '-P', mq.admin.password, 'dynsec', ...args], {
+        stdio: 'ignore',
+      });
     ctl('createClient', BENCH_USER.username, '-p', BENCH_USER.password);
     ctl('createRole', 'jw-bench');
     ctl('addRoleACL', 'jw-bench', 'publishClientSend', 'jw/v1/engines/+/telemetry', 'allow');

@@ -20,8 +20,20 @@ export async function axeViolations(page: Page): Promise<AxeFinding[]> {
   // evaluated through the DevTools protocol: the app's Content-Security-Policy (script-src 'self') stays as it is
   if (!has) await page.evaluate(AXE_SOURCE);
   return page.evaluate(async () => {
-    const axe = (window as unknown as { axe: { run(ctx: unknown, opts: unknown): Promise<{ violations: { id: string; impact: AxeFinding['impact']; help: string; nodes: { target: unknown[] }[] }[] }> } }).axe;
-    const r = await axe.run(document, { runOnly: { type: 'tag', values: ['wcag2a', 'wcag2aa', 'wcag21a', 'wcag21aa', 'wcag22aa', 'best-practice'] }, resultTypes: ['violations'] });
+    const axe = (
+      window as unknown as {
+        axe: {
+          run(
+            ctx: unknown,
+            opts: unknown,
+          ): Promise<{ violations: { id: string; impact: AxeFinding['impact']; help: string; nodes: { target: unknown[] }[] }[] }>;
+        };
+      }
+    ).axe;
+    const r = await axe.run(document, {
+      runOnly: { type: 'tag', values: ['wcag2a', 'wcag2aa', 'wcag21a', 'wcag21aa', 'wcag22aa', 'best-practice'] },
+      resultTypes: ['violations'],
+    });
     return r.violations.map((v) => ({ id: v.id, impact: v.impact, help: v.help, nodes: v.nodes.map((n) => n.target.join(' ')) }));
   });
 }

@@ -65,7 +65,13 @@ describe('accessibility (axe on every main screen, keyboard flows)', () => {
     it('fleet board', () => check('fleet', '/fleet', (p) => p.locator('jw-engine-tile').first().waitFor({ timeout: 20000 })));
     it('engine page', () => check('engine', `/engines/${engineId}`, (p) => p.locator('jw-live-values').first().waitFor({ timeout: 20000 })));
     it('alarm list', () => check('alarms', '/alarms', (p) => p.getByRole('heading', { name: 'Alarms' }).waitFor()));
-    it('work-order list', () => check('work-list', '/work', (p) => p.getByText(/Leak check/i).first().waitFor({ timeout: 20000 })));
+    it('work-order list', () =>
+      check('work-list', '/work', (p) =>
+        p
+          .getByText(/Leak check/i)
+          .first()
+          .waitFor({ timeout: 20000 }),
+      ));
     it('one work order', () => check('work-order', `/work/${orderId}`, (p) => p.locator('.step, jw-work-step').first().waitFor({ timeout: 20000 })));
     it('service due list', () => check('due', '/due', (p) => p.locator('table').first().waitFor({ timeout: 20000 })));
     it('engine coolant page', () => check('coolant', `/engines/${engineId}/coolant`, (p) => p.getByRole('heading').first().waitFor({ timeout: 20000 })));
@@ -121,14 +127,18 @@ describe('accessibility (axe on every main screen, keyboard flows)', () => {
       await tabTo(dialog.locator('button.confirm'), 'confirm button', 10);
       await kb.keyboard.press('Enter');
       await dialog.waitFor({ state: 'detached' });
-      await waitUntil(async () => /Acknowledged/.test((await row.locator('.state').textContent()) ?? ''), { timeoutMs: 15000, what: 'state text "Acknowledged"' });
+      await waitUntil(async () => /Acknowledged/.test((await row.locator('.state').textContent()) ?? ''), {
+        timeoutMs: 15000,
+        what: 'state text "Acknowledged"',
+      });
     });
 
     it('completes a step of a work order', async () => {
       const techToken = await stack.login(ACCOUNTS.technician);
       const started = await stack.api('POST', `/api/work-orders/${orderId}/transition`, techToken, { to: 'in-progress' });
       assert.equal(started.status, 200, JSON.stringify(started.body));
-      const order = (await stack.api<{ steps: { id: number; key: string; gated: boolean; input: string }[] }>('GET', `/api/work-orders/${orderId}`, techToken)).body;
+      const order = (await stack.api<{ steps: { id: number; key: string; gated: boolean; input: string }[] }>('GET', `/api/work-orders/${orderId}`, techToken))
+        .body;
       const index = order.steps.findIndex((s) => !s.gated && s.input === 'confirmation');
       assert.ok(index >= 0, 'an ungated confirmation step');
       await kb.goto(`${stack.baseUrl}/work/${orderId}`);

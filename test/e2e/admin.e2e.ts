@@ -119,7 +119,11 @@ describe('administration (admin)', () => {
     await capacity.fill('0');
     await dlg.getByRole('button', { name: 'Add engine' }).click();
     await capError.filter({ hasText: /At least/ }).waitFor();
-    assert.equal((await stack.api<ApiEngine[]>('GET', '/api/engines', adminToken)).body.some((e) => e.name === NEW_ENGINE.name), false, 'nothing stored');
+    assert.equal(
+      (await stack.api<ApiEngine[]>('GET', '/api/engines', adminToken)).body.some((e) => e.name === NEW_ENGINE.name),
+      false,
+      'nothing stored',
+    );
     await shot(page, 'admin-engine-form-bad-capacity');
 
     await capacity.fill(NEW_ENGINE.capacityGal);
@@ -192,7 +196,11 @@ describe('administration (admin)', () => {
       mqtt.connectAsync(url, { username: device.username, password: device.secret + 'x', protocolVersion: 4, reconnectPeriod: 0, connectTimeout: 5000 }),
     );
     client = await mqtt.connectAsync(url, {
-      username: device.username, password: device.secret, protocolVersion: 4, clientId: `e2e-${device.username}`, reconnectPeriod: 0,
+      username: device.username,
+      password: device.secret,
+      protocolVersion: 4,
+      clientId: `e2e-${device.username}`,
+      reconnectPeriod: 0,
     });
     const topic = `jw/v1/engines/${engine.id}/telemetry`;
     const publish = () =>
@@ -207,10 +215,10 @@ describe('administration (admin)', () => {
     await publish();
     publisher = setInterval(() => void publish().catch(() => undefined), 1000);
 
-    await waitUntil(
-      async () => (await stack.api<ApiEngine>('GET', `/api/engines/${engine.id}`, adminToken)).body.runState === 'running',
-      { timeoutMs: 20000, what: 'the new engine running by its readings' },
-    );
+    await waitUntil(async () => (await stack.api<ApiEngine>('GET', `/api/engines/${engine.id}`, adminToken)).body.runState === 'running', {
+      timeoutMs: 20000,
+      what: 'the new engine running by its readings',
+    });
 
     await page.goto(`${stack.baseUrl}/fleet`);
     const tile = page.locator('jw-engine-tile', { hasText: NEW_ENGINE.name });

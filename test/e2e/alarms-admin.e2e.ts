@@ -15,10 +15,25 @@ const TITLE = 'Coolant temperature high';
 /** Below the profile's 98 °C and well under what the overheat scenario reaches. */
 const LOWER_LIMIT_C = 85;
 
-interface Preview { alarms: { raisedAt: string; value: number | null; message: string }[] }
-interface RuleView { key: string; overridden: boolean; params: Record<string, unknown> }
-interface Shift { id: number; userId: number; startsAt: string; endsAt: string }
-interface Performance { total: number; max10Min: number; mostFrequent: { key: string; count: number }[] }
+interface Preview {
+  alarms: { raisedAt: string; value: number | null; message: string }[];
+}
+interface RuleView {
+  key: string;
+  overridden: boolean;
+  params: Record<string, unknown>;
+}
+interface Shift {
+  id: number;
+  userId: number;
+  startsAt: string;
+  endsAt: string;
+}
+interface Performance {
+  total: number;
+  max10Min: number;
+  mostFrequent: { key: string; count: number }[];
+}
 
 describe('alarm screens of admins and planners', () => {
   let stack: Stack;
@@ -65,7 +80,10 @@ describe('alarm screens of admins and planners', () => {
     await page.goto(`${stack.baseUrl}/alarms/rules`);
     await page.getByRole('heading', { name: 'Alarm rules' }).waitFor();
     // the default profile is named in the chooser, not left blank
-    await waitUntil(async () => /Default profile/.test((await page.getByLabel('Rules of').textContent()) ?? ''), { timeoutMs: 10000, what: 'the chooser to name the default profile' });
+    await waitUntil(async () => /Default profile/.test((await page.getByLabel('Rules of').textContent()) ?? ''), {
+      timeoutMs: 10000,
+      what: 'the chooser to name the default profile',
+    });
 
     await page.getByLabel('Rules of').click();
     await page.getByRole('option', { name: `${engineName}: its own overrides` }).click();
@@ -87,7 +105,8 @@ describe('alarm screens of admins and planners', () => {
     for (const text of items) assert.match(text, new RegExp(`above high limit ${LOWER_LIMIT_C} °C`), `listed alarm is one of the lower limit: ${text}`);
 
     // the same question to the API, and the profile's limit for comparison: the lower limit raises no later
-    const ask = (params?: Record<string, number>) => stack.api<Preview>('POST', '/api/rules/preview', adminToken, { engineId, rule: RULE, ...(params ? { params } : {}) });
+    const ask = (params?: Record<string, number>) =>
+      stack.api<Preview>('POST', '/api/rules/preview', adminToken, { engineId, rule: RULE, ...(params ? { params } : {}) });
     const lower = (await ask({ limit: LOWER_LIMIT_C })).body;
     const profile = (await ask()).body;
     assert.ok(Math.abs(lower.alarms.length - shownCount) <= 1, `page shows ${shownCount} alarms, the API ${lower.alarms.length}`);
@@ -126,7 +145,19 @@ describe('alarm screens of admins and planners', () => {
     const wall = (iso: string) => {
       // the instant of a wall-clock time in the site's zone
       const guess = Date.parse(`${iso}:00Z`);
-      const p = Object.fromEntries(new Intl.DateTimeFormat('en-US', { timeZone: site.timeZone, hourCycle: 'h23', year: 'numeric', month: '2-digit', day: '2-digit', hour: '2-digit', minute: '2-digit' }).formatToParts(guess).map((x) => [x.type, x.value]));
+      const p = Object.fromEntries(
+        new Intl.DateTimeFormat('en-US', {
+          timeZone: site.timeZone,
+          hourCycle: 'h23',
+          year: 'numeric',
+          month: '2-digit',
+          day: '2-digit',
+          hour: '2-digit',
+          minute: '2-digit',
+        })
+          .formatToParts(guess)
+          .map((x) => [x.type, x.value]),
+      );
       const shown = Date.parse(`${p.year}-${p.month}-${p.day}T${p.hour}:${p.minute}:00Z`);
       return new Date(guess - (shown - guess)).toISOString();
     };
@@ -137,7 +168,10 @@ describe('alarm screens of admins and planners', () => {
     await fillChecked(dialog.getByLabel('From'), '2030-03-04 07:00');
     await fillChecked(dialog.getByLabel('Until'), '2030-03-04 19:00');
     // nobody else is on call that day: the uncovered hours are named before saving
-    await dialog.getByRole('status', { name: 'Warnings before saving' }).getByText(/Nobody on call at this site from 2030-03-04 00:00 to 2030-03-04 07:00/).waitFor();
+    await dialog
+      .getByRole('status', { name: 'Warnings before saving' })
+      .getByText(/Nobody on call at this site from 2030-03-04 00:00 to 2030-03-04 07:00/)
+      .waitFor();
     await shot(page, 'alarms-admin-03-shift-dialog');
     await dialog.getByRole('button', { name: 'Save anyway' }).click();
     const row = page.locator('tr', { hasText: 'Just saved' });
@@ -146,7 +180,9 @@ describe('alarm screens of admins and planners', () => {
     await shot(page, 'alarms-admin-04-shift-saved');
 
     const mine = async () =>
-      (await stack.api<Shift[]>('GET', `/api/oncall?from=${Date.parse('2030-03-01T00:00:00Z')}`, plannerToken)).body.filter((s) => s.startsAt === wall('2030-03-04T07:00'));
+      (await stack.api<Shift[]>('GET', `/api/oncall?from=${Date.parse('2030-03-01T00:00:00Z')}`, plannerToken)).body.filter(
+        (s) => s.startsAt === wall('2030-03-04T07:00'),
+      );
     const created = await mine();
     assert.equal(created.length, 1, 'the shift is in the rota');
     assert.equal(Date.parse(created[0].endsAt) - Date.parse(created[0].startsAt), 12 * 3600_000);
@@ -158,7 +194,10 @@ describe('alarm screens of admins and planners', () => {
     await change.waitFor({ state: 'detached' });
     await waitUntil(async () => (await mine())[0]?.endsAt === wall('2030-03-04T21:00'), { timeoutMs: 10000, what: 'the changed end of the shift' });
 
-    await page.locator('tr', { hasText: 'Just saved' }).getByRole('button', { name: /Delete shift/ }).click();
+    await page
+      .locator('tr', { hasText: 'Just saved' })
+      .getByRole('button', { name: /Delete shift/ })
+      .click();
     await page.getByRole('button', { name: 'Delete', exact: true }).click();
     await page.getByText('Shift deleted').waitFor({ timeout: 10000 });
     assert.equal((await mine()).length, 0, 'the shift is gone from the rota');

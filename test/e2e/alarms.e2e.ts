@@ -13,7 +13,13 @@ import { ACCOUNTS, fillChecked, launchBrowser, openDialog, shot, signIn, startSt
 
 const HIGH = 'Coolant temperature high';
 
-interface AlarmRow { id: number; engineId: number; engineName: string; rule: string; state: string }
+interface AlarmRow {
+  id: number;
+  engineId: number;
+  engineName: string;
+  rule: string;
+  state: string;
+}
 
 describe('alarms (operator, planner, admin)', () => {
   let stack: Stack;
@@ -67,7 +73,9 @@ describe('alarms (operator, planner, admin)', () => {
     await row.waitFor({ timeout: 120000 });
     assert.equal(await list.evaluate(() => (window as unknown as { jwNoReload?: boolean }).jwNoReload), true, 'the list page was not reloaded');
     assert.equal(await row.locator('.priority-text').textContent(), 'Medium');
-    const shape = await row.locator('.priority mat-icon').evaluate((el) => `${el.getAttribute('fonticon') ?? ''} ${el.getAttribute('data-mat-icon-name') ?? ''} ${el.textContent ?? ''} ${el.className}`);
+    const shape = await row
+      .locator('.priority mat-icon')
+      .evaluate((el) => `${el.getAttribute('fonticon') ?? ''} ${el.getAttribute('data-mat-icon-name') ?? ''} ${el.textContent ?? ''} ${el.className}`);
     assert.match(shape, /diamond/, `medium priority is drawn as a diamond (${shape})`);
     assert.match((await row.locator('.state').textContent()) ?? '', /Unacknowledged/);
     assert.match((await row.locator('.value').textContent()) ?? '', /°C|°F/, 'value shown with a unit');
@@ -77,7 +85,10 @@ describe('alarms (operator, planner, admin)', () => {
     // a background tab's rendering is throttled by Chromium: look at the board as the operator would
     await board.bringToFront();
     const tileCount = board.locator('jw-engine-tile', { hasText: engineName }).first().locator('.alarms .jw-num');
-    await waitUntil(async () => Number(((await tileCount.textContent({ timeout: 2000 })) ?? '').match(/\d+/)?.[0] ?? 0) >= 1, { timeoutMs: 15000, what: 'tile alarm count to rise' });
+    await waitUntil(async () => Number(((await tileCount.textContent({ timeout: 2000 })) ?? '').match(/\d+/)?.[0] ?? 0) >= 1, {
+      timeoutMs: 15000,
+      what: 'tile alarm count to rise',
+    });
     assert.equal(await board.evaluate(() => (window as unknown as { jwNoReload?: boolean }).jwNoReload), true, 'the board was not reloaded');
     assert.ok((await appBarCount(board)) >= 1, 'app bar on the board counts the alarm');
     await shot(board, 'alarms-04-board-raised');
@@ -99,7 +110,10 @@ describe('alarms (operator, planner, admin)', () => {
     await shot(list, 'alarms-05-acknowledge-dialog');
     await dialog.locator('button.confirm').click();
     await dialog.waitFor({ state: 'detached' });
-    await waitUntil(async () => /Acknowledged/.test((await row.locator('.state').textContent()) ?? ''), { timeoutMs: 15000, what: 'state text "Acknowledged"' });
+    await waitUntil(async () => /Acknowledged/.test((await row.locator('.state').textContent()) ?? ''), {
+      timeoutMs: 15000,
+      what: 'state text "Acknowledged"',
+    });
     assert.equal(await row.locator('button.ack').count(), 0, 'no acknowledge button once acknowledged');
     await shot(list, 'alarms-06-list-acknowledged');
 
@@ -130,7 +144,11 @@ describe('alarms (operator, planner, admin)', () => {
     await dialog.locator('button.confirm').click();
     await dialog.waitFor({ state: 'detached' });
     await waitUntil(async () => (await rowOf(page).count()) === 0, { timeoutMs: 15000, what: 'the shelved alarm to leave "Now"' });
-    await page.getByRole('radio', { name: 'On the shelf' }).or(page.getByRole('button', { name: 'On the shelf' })).first().click();
+    await page
+      .getByRole('radio', { name: 'On the shelf' })
+      .or(page.getByRole('button', { name: 'On the shelf' }))
+      .first()
+      .click();
     const shelved = rowOf(page);
     await shelved.waitFor({ timeout: 15000 });
     assert.match((await shelved.locator('.state').textContent()) ?? '', /Shelved/);
@@ -150,7 +168,11 @@ describe('alarms (operator, planner, admin)', () => {
     await signIn(page, stack, ACCOUNTS.admin);
     await page.goto(`${stack.baseUrl}/alarms/mail`);
     const mailRow = page.locator('tr', { hasText: HIGH }).filter({ hasText: 'tech@jacketwatch.test' }).first();
-    await waitUntil(async () => (await mailRow.count()) > 0 || (await page.reload().then(() => false)), { timeoutMs: 30000, intervalMs: 2000, what: 'the alarm e-mail on the mail page' });
+    await waitUntil(async () => (await mailRow.count()) > 0 || (await page.reload().then(() => false)), {
+      timeoutMs: 30000,
+      intervalMs: 2000,
+      what: 'the alarm e-mail on the mail page',
+    });
     assert.match((await mailRow.textContent()) ?? '', new RegExp(engineName));
     await shot(page, 'alarms-10-admin-mail');
     await admin.close();

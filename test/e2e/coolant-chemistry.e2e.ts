@@ -16,9 +16,23 @@ import { after, before, describe, it } from 'node:test';
 import type { Browser, Page } from 'playwright-core';
 import { ACCOUNTS, fillChecked, launchBrowser, openDialog, pickOption, shot, signIn, startStack, type Stack } from './harness';
 
-interface SiteRow { id: number; name: string; designLowTempC: number | null }
-interface EngineRow { id: number; name: string; siteId: number; capacityL: number; freezeProtection?: { status: string; freezePointC: number; requiredC: number } }
-interface UserRow { id: number; role: string; email: string }
+interface SiteRow {
+  id: number;
+  name: string;
+  designLowTempC: number | null;
+}
+interface EngineRow {
+  id: number;
+  name: string;
+  siteId: number;
+  capacityL: number;
+  freezeProtection?: { status: string; freezePointC: number; requiredC: number };
+}
+interface UserRow {
+  id: number;
+  role: string;
+  email: string;
+}
 
 /** Screenshots also kept under /tmp/wt-chem for looking at them. */
 const LOOK = '/tmp/wt-chem';
@@ -63,7 +77,9 @@ describe('coolant chemistry: design low, findings, fleet flag, top-up step', () 
     const ctx = await browser.newContext({ viewport: { width: 1366, height: 900 } });
     const page = await ctx.newPage();
     await signIn(page, stack, ACCOUNTS.admin);
-    await page.evaluate(() => localStorage.setItem('jw.preferences', JSON.stringify({ temperature: 'degF', pressure: 'psi', volume: 'gal', theme: 'light', timeZone: 'site' })));
+    await page.evaluate(() =>
+      localStorage.setItem('jw.preferences', JSON.stringify({ temperature: 'degF', pressure: 'psi', volume: 'gal', theme: 'light', timeZone: 'site' })),
+    );
     await page.goto(`${stack.baseUrl}/admin/sites`);
     const row = page.locator('tr', { hasText: ridge.name });
     // demo: -30 °C = -22.0 °F (NIST SP 811: -30 x 1.8 + 32)
@@ -147,7 +163,12 @@ describe('coolant chemistry: design low, findings, fleet flag, top-up step', () 
     const plannerToken = await stack.login(ACCOUNTS.planner);
     const people = (await stack.api<UserRow[]>('GET', '/api/people?role=technician', plannerToken)).body;
     const tech = people.find((p) => p.email === ACCOUNTS.technician)!;
-    const created = await stack.api<{ id: number }>('POST', '/api/work-orders', plannerToken, { engineId: engine.id, kind: 'top-up', assigneeId: tech.id, dueDate: '2026-12-20' });
+    const created = await stack.api<{ id: number }>('POST', '/api/work-orders', plannerToken, {
+      engineId: engine.id,
+      kind: 'top-up',
+      assigneeId: tech.id,
+      dueDate: '2026-12-20',
+    });
     assert.equal(created.status, 201);
     const techToken = await stack.login(ACCOUNTS.technician);
     assert.equal((await stack.api('POST', `/api/work-orders/${created.body.id}/transition`, techToken, { to: 'in-progress' })).status, 200);
@@ -161,7 +182,10 @@ describe('coolant chemistry: design low, findings, fleet flag, top-up step', () 
     // coolant goes in only with the cap off: the step waits for the cap-off step, and says which
     const order = (await stack.api<{ steps: { id: number; key: string; position: number }[] }>('GET', `/api/work-orders/${created.body.id}`, techToken)).body;
     const capOff = order.steps.find((s) => s.key === 'relieve-pressure')!;
-    await page.locator('[data-test=waits-add]').getByText(`Waits: do step ${capOff.position} first: Relieve the pressure and take off the filler cap.`).waitFor();
+    await page
+      .locator('[data-test=waits-add]')
+      .getByText(`Waits: do step ${capOff.position} first: Relieve the pressure and take off the filler cap.`)
+      .waitFor();
     assert.ok(await form.getByRole('button', { name: 'Record top-up and mark done' }).isDisabled(), 'recording waits for the cap-off step');
     await page.locator('[data-test=waits-add]').scrollIntoViewIfNeeded();
     await lookBoth(page, 'chem-5-top-up-waits');
@@ -189,7 +213,9 @@ describe('coolant chemistry: design low, findings, fleet flag, top-up step', () 
     const expected = 500 * (1 - 8 / engine.capacityL);
     assert.match((await estimate.textContent()) ?? '', new RegExp(`Nitrite estimated at ${expected.toFixed(0)} ppm`));
     assert.match((await estimate.textContent()) ?? '', /test the coolant now/);
-    const answer = (await stack.api<{ topUps: { volumeL: number; liquid: string; workOrderId: number }[] }>('GET', `/api/engines/${engine.id}/coolant-top-ups`, techToken)).body;
+    const answer = (
+      await stack.api<{ topUps: { volumeL: number; liquid: string; workOrderId: number }[] }>('GET', `/api/engines/${engine.id}/coolant-top-ups`, techToken)
+    ).body;
     assert.equal(answer.topUps[0].volumeL, 8);
     assert.equal(answer.topUps[0].liquid, 'water');
     assert.equal(answer.topUps[0].workOrderId, created.body.id);

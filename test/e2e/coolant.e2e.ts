@@ -13,13 +13,30 @@ import { ACCOUNTS, fillChecked, launchBrowser, openDialog, shot, signIn, startSt
 const L_PER_US_GAL = 3.785411784;
 const L_PER_US_PINT = 0.473176473;
 
-interface EngineRow { id: number; name: string; capacityL: number; coolantFamily: string }
-interface SavedTest { id: number; decision: { additive: { status: string; filter: string | null; liquidAdditiveL: number; reasons: string[] } | null } }
-interface DueEntry { engineId: number; taskKey: string; state: string; workKind: string | null; openWorkOrderId: number | null }
+interface EngineRow {
+  id: number;
+  name: string;
+  capacityL: number;
+  coolantFamily: string;
+}
+interface SavedTest {
+  id: number;
+  decision: { additive: { status: string; filter: string | null; liquidAdditiveL: number; reasons: string[] } | null };
+}
+interface DueEntry {
+  engineId: number;
+  taskKey: string;
+  state: string;
+  workKind: string | null;
+  openWorkOrderId: number | null;
+}
 
 /** The first number in a text, reading a typographic minus as a minus. */
 const numberIn = (text: string, after = ''): number => {
-  const m = text.replace(/\u2212/g, '-').slice(text.indexOf(after) + after.length).match(/-?\d+(\.\d+)?/);
+  const m = text
+    .replace(/\u2212/g, '-')
+    .slice(text.indexOf(after) + after.length)
+    .match(/-?\d+(\.\d+)?/);
   assert.ok(m, `a number in "${text}"`);
   return Number(m[0]);
 };
@@ -83,7 +100,9 @@ describe('coolant: tests, calculators, due list to work order', () => {
     // and the record kept on the server says the same
     const token = await stack.login(ACCOUNTS.technician);
     const tests = (await stack.api<SavedTest[]>('GET', `/api/engines/${conventional.id}/coolant-tests`, token)).body;
-    const stored = tests.find((t) => t.decision?.additive && Math.abs((t.decision.additive.liquidAdditiveL ?? 0) - shownL) < 0.01 && t.decision.additive.status === 'low');
+    const stored = tests.find(
+      (t) => t.decision?.additive && Math.abs((t.decision.additive.liquidAdditiveL ?? 0) - shownL) < 0.01 && t.decision.additive.status === 'low',
+    );
     assert.ok(stored, 'the saved test carries the low decision and the same dose');
     assert.equal(stored.decision.additive!.filter, 'charged');
   });
@@ -152,7 +171,10 @@ describe('coolant: tests, calculators, due list to work order', () => {
 
     await link.click();
     await planner.waitForURL((u) => u.pathname === `/work/${id}`);
-    await planner.getByRole('heading', { name: /Coolant filter change/ }).first().waitFor({ timeout: 15000 });
+    await planner
+      .getByRole('heading', { name: /Coolant filter change/ })
+      .first()
+      .waitFor({ timeout: 15000 });
     await planner.getByText(conventional.name).first().waitFor();
     await shot(planner, 'coolant-6-work-order-open');
 
@@ -167,7 +189,10 @@ describe('coolant: tests, calculators, due list to work order', () => {
     const planner = await ctx.newPage();
     await signIn(planner, stack, ACCOUNTS.planner);
     await planner.goto(`${stack.baseUrl}/due`);
-    await planner.getByRole('button', { name: `Correct hours of ${conventional.name}` }).first().click();
+    await planner
+      .getByRole('button', { name: `Correct hours of ${conventional.name}` })
+      .first()
+      .click();
     const dialog = await openDialog(planner);
     await fillChecked(dialog.getByLabel('Hour meter reads'), '1330');
     await fillChecked(dialog.getByLabel('Reason'), 'read from the hour meter at the monthly run');
@@ -177,7 +202,8 @@ describe('coolant: tests, calculators, due list to work order', () => {
     await shot(planner, 'coolant-7-run-hours-corrected');
 
     const token = await stack.login(ACCOUNTS.planner);
-    const history = (await stack.api<{ newRunHours: number; reason: string; userName: string }[]>('GET', `/api/engines/${conventional.id}/run-hours`, token)).body;
+    const history = (await stack.api<{ newRunHours: number; reason: string; userName: string }[]>('GET', `/api/engines/${conventional.id}/run-hours`, token))
+      .body;
     assert.equal(history[0].newRunHours, 1330);
     assert.match(history[0].reason, /hour meter/);
     assert.match((await audit.textContent()) ?? '', new RegExp(history[0].userName));

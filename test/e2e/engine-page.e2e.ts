@@ -61,7 +61,9 @@ describe('engine page (history and live)', () => {
         const to = Date.now();
         const from = to - 30 * DAY_MS;
         const res = await stack.api<{ buckets: { t: number; count: number }[] }>(
-          'GET', `/api/engines/${ENGINE_ID}/readings?channel=coolant_temp&from=${from}&to=${to}&points=720`, token,
+          'GET',
+          `/api/engines/${ENGINE_ID}/readings?channel=coolant_temp&from=${from}&to=${to}&points=720`,
+          token,
         );
         const b = res.body.buckets ?? [];
         if (b.length < 2) return false;
@@ -74,10 +76,10 @@ describe('engine page (history and live)', () => {
     );
     // A run while we watch, so the trend has a start to mark.
     await stack.control(`/engines/${ENGINE_ID}/start`);
-    await waitUntil(
-      async () => (await stack.api<{ runState: string }>('GET', `/api/engines/${ENGINE_ID}`, token)).body.runState === 'running',
-      { timeoutMs: 30000, what: `engine ${ENGINE_ID} running` },
-    );
+    await waitUntil(async () => (await stack.api<{ runState: string }>('GET', `/api/engines/${ENGINE_ID}`, token)).body.runState === 'running', {
+      timeoutMs: 30000,
+      what: `engine ${ENGINE_ID} running`,
+    });
     page = await browser.newPage({ viewport: { width: 1366, height: 900 } });
     page.on('request', (req) => {
       const c = readingsCall(req);
@@ -115,10 +117,13 @@ describe('engine page (history and live)', () => {
       () => {
         // no named inner functions: the bundler's name helper does not exist in the page
         const sections = [...document.querySelectorAll('jw-trend-chart section.channel')];
-        return sections.length === 3 && sections.every((s) =>
-          [...s.querySelectorAll('g.apexcharts-series path')].some((p) => (p.getAttribute('d') ?? '').split(/[LC]/).length - 1 >= 20));
+        return (
+          sections.length === 3 &&
+          sections.every((s) => [...s.querySelectorAll('g.apexcharts-series path')].some((p) => (p.getAttribute('d') ?? '').split(/[LC]/).length - 1 >= 20))
+        );
       },
-      null, { timeout: 30000 },
+      null,
+      { timeout: 30000 },
     );
     const day = calls.filter((c) => Math.abs(c.to - c.from - DAY_MS) < 60_000);
     assert.ok(day.length >= 3, `24 h readings requested for each channel (got ${JSON.stringify(calls)})`);
@@ -131,14 +136,23 @@ describe('engine page (history and live)', () => {
     const charts = await drawnCharts(page);
     assert.equal(charts.length, 3, 'one chart per chosen channel');
     for (const ch of charts) {
-      assert.ok(ch.paths.some((n) => n >= 20), `${ch.label}: a drawn series of at least 20 points (${ch.paths})`);
+      assert.ok(
+        ch.paths.some((n) => n >= 20),
+        `${ch.label}: a drawn series of at least 20 points (${ch.paths})`,
+      );
       assert.match(ch.label, /°C|kPa|µS\/cm/, 'chart says its unit');
     }
-    assert.ok(charts.every((c) => c.bands >= 1), `normal band drawn on every chart (${charts.map((c) => c.bands)})`);
+    assert.ok(
+      charts.every((c) => c.bands >= 1),
+      `normal band drawn on every chart (${charts.map((c) => c.bands)})`,
+    );
     // The engine was started a few seconds ago: its start is marked, and named in words on the top chart.
     await page.waitForFunction(() => document.querySelectorAll('jw-trend-chart .apexcharts-xaxis-annotations line').length > 0, null, { timeout: 20000 });
     const marked = await drawnCharts(page);
-    assert.ok(marked[0].markLabels.some((t) => /started/.test(t)), `start mark named (${marked[0].markLabels})`);
+    assert.ok(
+      marked[0].markLabels.some((t) => /started/.test(t)),
+      `start mark named (${marked[0].markLabels})`,
+    );
     // New data, a new window and the start mark were all drawn in place: no chart went blank after its first draw.
     const blanks = await page.evaluate(() => (window as unknown as { jwBlanks: string[] }).jwBlanks);
     assert.deepEqual(blanks, [], 'charts never blank after their first draw');
@@ -173,7 +187,10 @@ describe('engine page (history and live)', () => {
     const monthAgo = new Intl.DateTimeFormat('en-CA', { timeZone: zone }).format(Date.now() - 30 * DAY_MS);
     await page.locator('p.window').filter({ hasText: monthAgo }).waitFor();
     const charts = await drawnCharts(page);
-    assert.ok(charts.every((c) => c.bands >= 1), 'normal band drawn on the 30-day charts');
+    assert.ok(
+      charts.every((c) => c.bands >= 1),
+      'normal band drawn on the 30-day charts',
+    );
     await shot(page, 'engine-page-30d');
   });
 

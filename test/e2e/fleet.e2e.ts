@@ -42,7 +42,10 @@ describe('fleet board (operator)', () => {
     const tiles = page.locator('jw-engine-tile');
     await page.waitForFunction(() => /°C|°F/.test(document.querySelector('jw-engine-tile')?.textContent ?? ''), null, { timeout: 20000 });
     const before = await tiles.allTextContents();
-    assert.ok(before.some((t) => /kPa|psi|bar/.test(t)), 'pressure shown with a unit');
+    assert.ok(
+      before.some((t) => /kPa|psi|bar/.test(t)),
+      'pressure shown with a unit',
+    );
     // Wait for any tile to show other values (the "last 11:15 MST · 12 min ago" text alone does not count).
     // No named functions inside page functions: tsx's keepNames would wrap them in a __name() the page lacks.
     await page.waitForFunction(

@@ -371,7 +371,10 @@ export async function pickOption(page: Page, field: Locator, name: string | RegE
   const panel = page.getByRole('listbox');
   for (let attempt = 0; attempt < 4; attempt++) {
     if (!(await panel.isVisible())) await field.click();
-    const shown = await option.waitFor({ timeout: 5000 }).then(() => true, () => false);
+    const shown = await option.waitFor({ timeout: 5000 }).then(
+      () => true,
+      () => false,
+    );
     if (shown) {
       const text = ((await option.textContent()) ?? '').trim();
       await option.click();

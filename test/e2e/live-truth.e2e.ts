@@ -45,14 +45,19 @@ describe('live truth (server stopped and back)', () => {
     await enginePage.goto(`${stack.baseUrl}/engines/${ENGINE_ID}`);
     await enginePage.waitForFunction(
       () => /\d\s?°C/.test(document.querySelector('jw-live-values')?.textContent ?? '') && !document.querySelector('jw-live-values [data-stale]'),
-      null, { timeout: 30000 },
+      null,
+      { timeout: 30000 },
     );
     await fleetPage.goto(`${stack.baseUrl}/fleet`);
     await tile(fleetPage).waitFor({ timeout: 20000 });
-    await fleetPage.waitForFunction((name) => {
-      const t = [...document.querySelectorAll('jw-engine-tile')].find((el) => (el.textContent ?? '').includes(name));
-      return !!t && /°C/.test(t.textContent ?? '') && !t.querySelector('[data-stale]');
-    }, engineName, { timeout: 30000 });
+    await fleetPage.waitForFunction(
+      (name) => {
+        const t = [...document.querySelectorAll('jw-engine-tile')].find((el) => (el.textContent ?? '').includes(name));
+        return !!t && /°C/.test(t.textContent ?? '') && !t.querySelector('[data-stale]');
+      },
+      engineName,
+      { timeout: 30000 },
+    );
     assert.equal(await enginePage.locator('[data-test=connection-banner]').count(), 0, 'no banner while live');
     // The engine's home below the trend loads when scrolled to: its alarms, due work and last coolant test, with links.
     // (scroll past it to the recent readings below; with a short trend it may already be in view and loaded)
@@ -82,10 +87,14 @@ describe('live truth (server stopped and back)', () => {
     assert.doesNotMatch(liveText, /Within normal/, 'no stale value is judged as current');
     await shot(enginePage, 'live-truth-engine-stale');
 
-    await fleetPage.waitForFunction((name) => {
-      const t = [...document.querySelectorAll('jw-engine-tile')].find((el) => (el.textContent ?? '').includes(name));
-      return t?.querySelector('mat-card')?.getAttribute('data-stale') === 'true';
-    }, engineName, { timeout: STALE_WAIT_MS });
+    await fleetPage.waitForFunction(
+      (name) => {
+        const t = [...document.querySelectorAll('jw-engine-tile')].find((el) => (el.textContent ?? '').includes(name));
+        return t?.querySelector('mat-card')?.getAttribute('data-stale') === 'true';
+      },
+      engineName,
+      { timeout: STALE_WAIT_MS },
+    );
     assert.match((await tile(fleetPage).textContent()) ?? '', /last \d{2}:\d{2} \S+ · \d+ (s|min) ago/);
     await shot(fleetPage, 'live-truth-fleet-stale');
 
@@ -100,11 +109,17 @@ describe('live truth (server stopped and back)', () => {
     await stack.restartServer();
     for (const page of [enginePage, fleetPage]) await page.locator('[data-test=connection-banner]').waitFor({ state: 'detached', timeout: 60000 });
     // The simulator reconnects to the broker and publishes again: fresh values lose their stale mark.
-    await enginePage.waitForFunction(() => !document.querySelector('jw-live-values [data-stale]') && !document.querySelector('[data-test=now-stale]'), null, { timeout: 60000 });
-    await fleetPage.waitForFunction((name) => {
-      const t = [...document.querySelectorAll('jw-engine-tile')].find((el) => (el.textContent ?? '').includes(name));
-      return !!t && !t.querySelector('[data-stale]');
-    }, engineName, { timeout: 60000 });
+    await enginePage.waitForFunction(() => !document.querySelector('jw-live-values [data-stale]') && !document.querySelector('[data-test=now-stale]'), null, {
+      timeout: 60000,
+    });
+    await fleetPage.waitForFunction(
+      (name) => {
+        const t = [...document.querySelectorAll('jw-engine-tile')].find((el) => (el.textContent ?? '').includes(name));
+        return !!t && !t.querySelector('[data-stale]');
+      },
+      engineName,
+      { timeout: 60000 },
+    );
     assert.equal(await fleetPage.locator('[data-test=load-error]').count(), 0, 'no old error left on the board');
     // The error that no longer applies goes away by itself, and the board fills.
     await errorPage.locator('[data-test=load-error]').waitFor({ state: 'detached', timeout: 60000 });
@@ -115,7 +130,11 @@ describe('live truth (server stopped and back)', () => {
 
   it('keeps the trend range in the address: back and reload return to it', async () => {
     const page = enginePage;
-    const checked = () => page.locator('jw-range-picker .mat-button-toggle-checked').textContent().then((t) => (t ?? '').trim());
+    const checked = () =>
+      page
+        .locator('jw-range-picker .mat-button-toggle-checked')
+        .textContent()
+        .then((t) => (t ?? '').trim());
     await page.locator('jw-range-picker mat-button-toggle', { hasText: 'Last 7 days' }).locator('button').click();
     await page.waitForURL((url) => url.searchParams.get('range') === '7d');
     await page.locator('jw-range-picker mat-button-toggle', { hasText: 'Last hour' }).locator('button').click();
@@ -131,7 +150,9 @@ describe('live truth (server stopped and back)', () => {
     assert.equal(await checked(), 'Last 7 days');
 
     await page.reload();
-    await page.waitForFunction(() => document.querySelector('jw-range-picker .mat-button-toggle-checked')?.textContent?.trim() === 'Last 7 days', null, { timeout: 20000 });
+    await page.waitForFunction(() => document.querySelector('jw-range-picker .mat-button-toggle-checked')?.textContent?.trim() === 'Last 7 days', null, {
+      timeout: 20000,
+    });
     await shot(page, 'live-truth-range-after-reload');
   });
 });

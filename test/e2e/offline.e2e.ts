@@ -20,8 +20,24 @@ import { ACCOUNTS, launchBrowser, shot, signIn, startStack, type Stack } from '.
 
 const DIST = path.resolve(__dirname, '../../dist/jacketwatch/browser');
 
-interface Step { id: number; key: string; title: string; gated: boolean; doneAt: string | null; resultValue: number | null; resultText: string | null; manualCheck: unknown }
-interface Order { id: number; status: string; title: string; steps: Step[]; attachments: { id: number; stepId: number | null; originalName: string }[]; history: { event: string; details: { stepId?: number } | null }[] }
+interface Step {
+  id: number;
+  key: string;
+  title: string;
+  gated: boolean;
+  doneAt: string | null;
+  resultValue: number | null;
+  resultText: string | null;
+  manualCheck: unknown;
+}
+interface Order {
+  id: number;
+  status: string;
+  title: string;
+  steps: Step[];
+  attachments: { id: number; stepId: number | null; originalName: string }[];
+  history: { event: string; details: { stepId?: number } | null }[];
+}
 
 /** A small real PNG (solid grey, 8 x 8), deflated with zlib. */
 function png(): Buffer {
@@ -50,7 +66,12 @@ function png(): Buffer {
   ihdr.writeUInt8(2, 9);
   const raw = Buffer.alloc((8 * 3 + 1) * 8, 120);
   for (let y = 0; y < 8; y++) raw[y * 25] = 0;
-  return Buffer.concat([Buffer.from([0x89, 0x50, 0x4e, 0x47, 0x0d, 0x0a, 0x1a, 0x0a]), chunk('IHDR', ihdr), chunk('IDAT', zlib.deflateSync(raw)), chunk('IEND', Buffer.alloc(0))]);
+  return Buffer.concat([
+    Buffer.from([0x89, 0x50, 0x4e, 0x47, 0x0d, 0x0a, 0x1a, 0x0a]),
+    chunk('IHDR', ihdr),
+    chunk('IDAT', zlib.deflateSync(raw)),
+    chunk('IEND', Buffer.alloc(0)),
+  ]);
 }
 
 describe('the technician app without a network (service worker, IndexedDB outbox)', () => {
@@ -62,7 +83,8 @@ describe('the technician app without a network (service worker, IndexedDB outbox
   let order: Order;
 
   const tid = (id: string): Locator => page.locator(`[data-test="${id}"]`);
-  const stepItem = (key: string): Locator => page.locator('li.step').filter({ has: page.getByText(order.steps.find((s) => s.key === key)!.title, { exact: false }) });
+  const stepItem = (key: string): Locator =>
+    page.locator('li.step').filter({ has: page.getByText(order.steps.find((s) => s.key === key)!.title, { exact: false }) });
   const serverOrder = async (): Promise<Order> => {
     const r = await stack.api<Order>('GET', `/api/work-orders/${order.id}`, techToken);
     assert.equal(r.status, 200);
@@ -77,11 +99,20 @@ describe('the technician app without a network (service worker, IndexedDB outbox
     const planner = await stack.login(ACCOUNTS.planner);
     techToken = await stack.login(ACCOUNTS.technician);
     const engines = await stack.api<{ id: number; siteId: number }[]>('GET', '/api/engines', techToken);
-    const engine = await stack.api<{ id: number }>('POST', '/api/engines', admin, { siteId: engines.body[0].siteId, name: 'Fire-pump engine basement', capacityL: 40 });
+    const engine = await stack.api<{ id: number }>('POST', '/api/engines', admin, {
+      siteId: engines.body[0].siteId,
+      name: 'Fire-pump engine basement',
+      capacityL: 40,
+    });
     assert.equal(engine.status, 201, JSON.stringify(engine.body));
     const techs = await stack.api<{ id: number; email: string }[]>('GET', '/api/work-orders/assignees', planner);
     const techId = techs.body.find((u) => u.email === ACCOUNTS.technician)!.id;
-    const created = await stack.api<Order>('POST', '/api/work-orders', planner, { engineId: engine.body.id, kind: 'filter-change', assigneeId: techId, title: 'Filter change in the basement' });
+    const created = await stack.api<Order>('POST', '/api/work-orders', planner, {
+      engineId: engine.body.id,
+      kind: 'filter-change',
+      assigneeId: techId,
+      title: 'Filter change in the basement',
+    });
     assert.equal(created.status, 201, JSON.stringify(created.body));
     order = created.body;
     assert.equal((await stack.api('POST', `/api/work-orders/${order.id}/transition`, techToken, { to: 'in-progress' })).status, 200);
@@ -100,7 +131,13 @@ describe('the technician app without a network (service worker, IndexedDB outbox
   });
 
   it('is installable: a web app manifest with the name and icons, and a service worker that controls the page', async () => {
-    const manifest = await stack.api<{ name: string; short_name: string; start_url: string; display: string; icons: { src: string; sizes: string; type: string; purpose: string }[] }>('GET', '/manifest.webmanifest');
+    const manifest = await stack.api<{
+      name: string;
+      short_name: string;
+      start_url: string;
+      display: string;
+      icons: { src: string; sizes: string; type: string; purpose: string }[];
+    }>('GET', '/manifest.webmanifest');
     assert.equal(manifest.status, 200);
     assert.equal(manifest.body.name, 'Jacketwatch');
     assert.equal(manifest.body.display, 'standalone');
@@ -111,7 +148,10 @@ describe('the technician app without a network (service worker, IndexedDB outbox
       assert.equal(res.status, 200);
       assert.equal(res.headers.get('content-type'), 'image/png');
     }
-    assert.ok(manifest.body.icons.some((i) => i.purpose === 'maskable'), 'a maskable icon');
+    assert.ok(
+      manifest.body.icons.some((i) => i.purpose === 'maskable'),
+      'a maskable icon',
+    );
     const index = await fetch(`${stack.baseUrl}/`);
     assert.equal(index.headers.get('cache-control'), 'no-cache', 'index.html is never HTTP-cached');
     assert.match(await index.text(), /<link rel="manifest" href="manifest.webmanifest">/);
@@ -139,7 +179,11 @@ describe('the technician app without a network (service worker, IndexedDB outbox
     assert.deepEqual(manifestSeen.errors, []);
     const installability = (await cdp.send('Page.getInstallabilityErrors')) as { installabilityErrors: { errorId: string }[] };
     // a test browser context is always off the record ("in-incognito"); any other reason would be ours
-    assert.deepEqual(installability.installabilityErrors.map((e) => e.errorId).filter((id) => id !== 'in-incognito'), [], 'Chromium finds the app installable');
+    assert.deepEqual(
+      installability.installabilityErrors.map((e) => e.errorId).filter((id) => id !== 'in-incognito'),
+      [],
+      'Chromium finds the app installable',
+    );
     await cdp.detach();
   });
 
@@ -222,10 +266,16 @@ describe('the technician app without a network (service worker, IndexedDB outbox
     assert.equal(step('fit-filter').resultValue, 0.75);
     assert.equal(step('fit-filter').resultText, 'three quarters of a turn, offline');
     assert.ok(step('relieve-pressure').manualCheck, 'the manual check is recorded');
-    assert.deepEqual(o.attachments.map((a) => [a.stepId, a.originalName]), [[step('photo').id, 'fitted-filter.png']]);
+    assert.deepEqual(
+      o.attachments.map((a) => [a.stepId, a.originalName]),
+      [[step('photo').id, 'fitted-filter.png']],
+    );
     const done = o.history.filter((h) => h.event === 'step-done' || h.event === 'step-done-manual-check').map((h) => h.details?.stepId);
     // each step once: lock-out (online), then the four sent from the device, in the order recorded
-    assert.deepEqual(done, ['stop-and-lock-out', 'choose-filter', 'fit-filter', 'relieve-pressure', 'photo'].map((k) => step(k).id));
+    assert.deepEqual(
+      done,
+      ['stop-and-lock-out', 'choose-filter', 'fit-filter', 'relieve-pressure', 'photo'].map((k) => step(k).id),
+    );
 
     // a reload online sends nothing again
     await page.reload();
@@ -248,7 +298,10 @@ describe('the technician app without a network (service worker, IndexedDB outbox
     const refused = tid('outbox-conflict');
     await refused.getByText('NOT ACCEPTED').waitFor({ timeout: 30000 });
     await refused.getByText('“base was pitted, cleaned twice”').waitFor();
-    await refused.getByRole('alert').getByText(/The server refused it: .*assigned/).waitFor();
+    await refused
+      .getByRole('alert')
+      .getByText(/The server refused it: .*assigned/)
+      .waitFor();
     await tid('outbox-indicator').getByText('not accepted').waitFor();
     // the page shows the order as the server has it now
     await page.getByText('Assignee: not assigned').waitFor();

@@ -17,8 +17,12 @@ describe('the app under the Content-Security-Policy', () => {
     stack = await startStack({ simulatorArgs: ['--rate', '1', '--speed', '30', '--seed', '5'] });
     browser = await launchBrowser();
     page = await browser.newPage({ viewport: { width: 1366, height: 900 } });
-    page.on('console', (m) => { if (/Content.Security.Policy|Refused to/i.test(m.text())) violations.push(m.text()); });
-    page.on('pageerror', (e) => { if (/Content.Security.Policy|Refused to/i.test(e.message)) violations.push(e.message); });
+    page.on('console', (m) => {
+      if (/Content.Security.Policy|Refused to/i.test(m.text())) violations.push(m.text());
+    });
+    page.on('pageerror', (e) => {
+      if (/Content.Security.Policy|Refused to/i.test(e.message)) violations.push(e.message);
+    });
   });
 
   after(async () => {

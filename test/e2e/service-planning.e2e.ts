@@ -9,11 +9,42 @@ import { after, before, describe, it } from 'node:test';
 import type { Browser, BrowserContext, Page } from 'playwright-core';
 import { ACCOUNTS, fillChecked, launchBrowser, openDialog, pickOption, shot, signIn, startStack, waitUntil, type Stack } from './harness';
 
-interface Step { id: number; key: string; input: string; doneAt: string | null; resultValue: number | null; resultText: string | null }
-interface Order { id: number; status: string; kind: string; engineId: number; assigneeId: number | null; dueDate: string | null; steps: Step[] }
-interface Summary { id: number; status: string; title: string }
-interface DueEntry { engineId: number; engineName: string; taskKey: string; title: string; state: string; workKind: string | null; openWorkOrderId: number | null }
-interface Person { id: number; name: string; role: string }
+interface Step {
+  id: number;
+  key: string;
+  input: string;
+  doneAt: string | null;
+  resultValue: number | null;
+  resultText: string | null;
+}
+interface Order {
+  id: number;
+  status: string;
+  kind: string;
+  engineId: number;
+  assigneeId: number | null;
+  dueDate: string | null;
+  steps: Step[];
+}
+interface Summary {
+  id: number;
+  status: string;
+  title: string;
+}
+interface DueEntry {
+  engineId: number;
+  engineName: string;
+  taskKey: string;
+  title: string;
+  state: string;
+  workKind: string | null;
+  openWorkOrderId: number | null;
+}
+interface Person {
+  id: number;
+  name: string;
+  role: string;
+}
 
 const WIDTHS = [1366, 820] as const;
 
@@ -76,10 +107,13 @@ describe('service planning at 1366 and 820 px (technician and planner)', () => {
       await fillChecked(item.getByLabel('Value'), value);
       await fillChecked(item.getByLabel('Remark'), note);
       await item.getByText('Draft saved').waitFor({ timeout: 15000 });
-      await waitUntil(async () => {
-        const st = (await stack.api<Order>('GET', `/api/work-orders/${going.id}`, token)).body.steps.find((s) => s.id === step.id)!;
-        return st.resultValue === Number(value) && st.resultText === note && st.doneAt === null;
-      }, { timeoutMs: 10000, what: 'the draft on the server' });
+      await waitUntil(
+        async () => {
+          const st = (await stack.api<Order>('GET', `/api/work-orders/${going.id}`, token)).body.steps.find((s) => s.id === step.id)!;
+          return st.resultValue === Number(value) && st.resultText === note && st.doneAt === null;
+        },
+        { timeoutMs: 10000, what: 'the draft on the server' },
+      );
       await page.reload();
       const again = page.locator('li.step').nth(order.steps.findIndex((s) => s.id === step.id));
       await again.getByLabel('Remark').waitFor();
@@ -110,7 +144,10 @@ describe('service planning at 1366 and 820 px (technician and planner)', () => {
       const dialog = await openDialog(page);
       const templates = (await stack.api<{ kind: string; title: string }[]>('GET', '/api/work-order-templates', token)).body;
       const kindTitle = templates.find((t) => t.kind === entry.workKind)?.title ?? '';
-      await waitUntil(async () => ((await dialog.getByRole('combobox', { name: 'Kind of work' }).textContent()) ?? '').includes(kindTitle), { timeoutMs: 10000, what: `the suggested kind ${kindTitle}` });
+      await waitUntil(async () => ((await dialog.getByRole('combobox', { name: 'Kind of work' }).textContent()) ?? '').includes(kindTitle), {
+        timeoutMs: 10000,
+        what: `the suggested kind ${kindTitle}`,
+      });
       await pickOption(page, dialog.getByRole('combobox', { name: 'Assign to' }), assignee.name);
       await fillChecked(dialog.getByLabel('Due date'), '12/24/2030');
       await shot(page, `plan-${width}-4-create-dialog`);
@@ -166,7 +203,10 @@ describe('service planning at 1366 and 820 px (technician and planner)', () => {
       await shot(page, `plan-${width}-7-rota-week`);
 
       // a shift on top of the seeded one, tomorrow 08:00-12:00 in the site's zone: the dialog names the overlap
-      const tomorrow = (await page.locator('jw-rota-week-view li.day').nth(width === 1366 ? 2 : 3).getAttribute('data-date'))!;
+      const tomorrow = (await page
+        .locator('jw-rota-week-view li.day')
+        .nth(width === 1366 ? 2 : 3)
+        .getAttribute('data-date'))!;
       await page.getByRole('button', { name: /New shift/ }).click();
       const dialog = await openDialog(page);
       await pickOption(page, dialog.getByRole('combobox', { name: 'On call' }), /Dagny Ferreira-Holt/);

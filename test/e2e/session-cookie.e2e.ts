@@ -51,7 +51,12 @@ describe('the session cookie in the browser', () => {
     assert.equal(session.httpOnly, true);
     assert.equal(session.sameSite, 'Strict');
     assert.equal(session.secure, false, 'plain HTTP here: not Secure');
-    const seen = await page.evaluate(() => ({ cookie: document.cookie, stored: Object.keys(localStorage).map((k) => localStorage.getItem(k) ?? '').join('\n') }));
+    const seen = await page.evaluate(() => ({
+      cookie: document.cookie,
+      stored: Object.keys(localStorage)
+        .map((k) => localStorage.getItem(k) ?? '')
+        .join('\n'),
+    }));
     assert.doesNotMatch(seen.cookie, /jw_session/);
     assert.ok(!seen.stored.includes(session.value), 'the token is not in localStorage');
     assert.doesNotMatch(seen.stored, /eyJ[\w-]+\.[\w-]+\./, 'no token-like value in localStorage');
@@ -64,7 +69,10 @@ describe('the session cookie in the browser', () => {
     await page.getByRole('button', { name: 'User menu' }).click();
     await page.getByRole('button', { name: 'Sign out' }).click();
     await page.waitForURL((u) => u.pathname.startsWith('/sign-in'), { timeout: 20000 });
-    await waitUntil(async () => !(await context.cookies(stack.baseUrl)).some((c) => c.name === 'jw_session'), { timeoutMs: 10000, what: 'the cookie cleared by sign-out' });
+    await waitUntil(async () => !(await context.cookies(stack.baseUrl)).some((c) => c.name === 'jw_session'), {
+      timeoutMs: 10000,
+      what: 'the cookie cleared by sign-out',
+    });
     await page.goto(`${stack.baseUrl}/fleet`);
     await page.waitForURL((u) => u.pathname.startsWith('/sign-in'), { timeout: 20000 });
     await context.close();
@@ -101,9 +109,16 @@ describe('the session cookie in the browser', () => {
     await context.clearCookies();
     // a screen that asks the server when it opens (the alarm list may already be held by the app bar's feed)
     await page.getByRole('link', { name: 'My work' }).click();
-    await waitUntil(() => new URL(page.url()).pathname.startsWith('/sign-in'), { timeoutMs: 20000, what: `the sign-in page (at ${page.url()})` })
-      .catch(async (err) => { await shot(page, 'session-cookie-401-failed'); throw err; });
-    await page.getByRole('status').filter({ hasText: /session has ended/i }).waitFor({ timeout: 10000 });
+    await waitUntil(() => new URL(page.url()).pathname.startsWith('/sign-in'), { timeoutMs: 20000, what: `the sign-in page (at ${page.url()})` }).catch(
+      async (err) => {
+        await shot(page, 'session-cookie-401-failed');
+        throw err;
+      },
+    );
+    await page
+      .getByRole('status')
+      .filter({ hasText: /session has ended/i })
+      .waitFor({ timeout: 10000 });
     assert.match(page.url(), /returnUrl=%2Fwork%2Fmine/);
     await context.close();
   });
@@ -112,19 +127,24 @@ describe('the session cookie in the browser', () => {
     const devices = JSON.parse(fs.readFileSync(stack.devicesFile, 'utf8')) as { devices: Array<{ username: string }> };
     const target = devices.devices[0].username;
     for (let i = 0; i < 2; i++) {
-      await assert.rejects(mqtt.connectAsync(`mqtt://127.0.0.1:${stack.mqttPort}`, { username: target, password: 'not-the-secret', reconnectPeriod: 0, connectTimeout: 10000 }));
+      await assert.rejects(
+        mqtt.connectAsync(`mqtt://127.0.0.1:${stack.mqttPort}`, { username: target, password: 'not-the-secret', reconnectPeriod: 0, connectTimeout: 10000 }),
+      );
     }
     const { context, page } = await fresh();
     await signIn(page, stack, ACCOUNTS.admin);
     await page.goto(`${stack.baseUrl}/admin/devices`);
     await page.getByRole('columnheader', { name: /failed logins/i }).waitFor({ timeout: 20000 });
     const row = page.getByRole('row').filter({ hasText: target });
-    await waitUntil(async () => {
-      const cells = await row.getByRole('cell').allTextContents();
-      if (cells.some((c) => /^\s*2\s+latest/.test(c))) return true;
-      await page.getByRole('button', { name: /refresh counts/i }).click();
-      return false;
-    }, { timeoutMs: 30000, intervalMs: 1000, what: `2 failed logins on the row of ${target}` });
+    await waitUntil(
+      async () => {
+        const cells = await row.getByRole('cell').allTextContents();
+        if (cells.some((c) => /^\s*2\s+latest/.test(c))) return true;
+        await page.getByRole('button', { name: /refresh counts/i }).click();
+        return false;
+      },
+      { timeoutMs: 30000, intervalMs: 1000, what: `2 failed logins on the row of ${target}` },
+    );
     await shot(page, 'session-cookie-devices-failed-logins');
     await context.close();
   });

@@ -17,7 +17,13 @@ const GROUP = 'plant-basement';
 const NODE = 'edge-7';
 const METRIC = 'Engine/Coolant/Temp';
 
-interface ApiDevice { id: number; username: string; engineId: number; sparkplug: { groupId: string; edgeNodeId: string; deviceId: string | null } | null; metricMap: Record<string, unknown> | null }
+interface ApiDevice {
+  id: number;
+  username: string;
+  engineId: number;
+  sparkplug: { groupId: string; edgeNodeId: string; deviceId: string | null } | null;
+  metricMap: Record<string, unknown> | null;
+}
 
 describe('Sparkplug B identity and metric names of a gateway (administrator)', () => {
   let stack: Stack;
@@ -33,7 +39,11 @@ describe('Sparkplug B identity and metric names of a gateway (administrator)', (
     browser = await launchBrowser();
     adminToken = await stack.login(ACCOUNTS.admin);
     const engines = await stack.api<{ id: number; siteId: number }[]>('GET', '/api/engines', adminToken);
-    const created = await stack.api<{ id: number; name: string }>('POST', '/api/engines', adminToken, { siteId: engines.body[0].siteId, name: 'Compressor engine north', capacityL: 30 });
+    const created = await stack.api<{ id: number; name: string }>('POST', '/api/engines', adminToken, {
+      siteId: engines.body[0].siteId,
+      name: 'Compressor engine north',
+      capacityL: 30,
+    });
     assert.equal(created.status, 201);
     engine = created.body;
     page = await (await browser.newContext({ viewport: { width: 1366, height: 900 } })).newPage();
@@ -92,18 +102,31 @@ describe('Sparkplug B identity and metric names of a gateway (administrator)', (
   });
 
   it('the gateway then reports under that name; the value in °F is stored in °C', async () => {
-    client = await mqtt.connectAsync(`mqtt://127.0.0.1:${stack.mqttPort}`, { username: device.username, password: device.secret, protocolVersion: 4, clientId: `e2e-${device.username}`, reconnectPeriod: 0 });
+    client = await mqtt.connectAsync(`mqtt://127.0.0.1:${stack.mqttPort}`, {
+      username: device.username,
+      password: device.secret,
+      protocolVersion: 4,
+      clientId: `e2e-${device.username}`,
+      reconnectPeriod: 0,
+    });
     const birth = encodeSparkplugPayload({
-      timestamp: Date.now(), seq: 0,
-      metrics: [{ name: 'bdSeq', datatype: DataType.Int64, value: 0 }, { name: METRIC, alias: 1, timestamp: Date.now(), value: 180 }],
+      timestamp: Date.now(),
+      seq: 0,
+      metrics: [
+        { name: 'bdSeq', datatype: DataType.Int64, value: 0 },
+        { name: METRIC, alias: 1, timestamp: Date.now(), value: 180 },
+      ],
     });
     await client.publishAsync(`spBv1.0/${GROUP}/NBIRTH/${NODE}`, Buffer.from(birth), { qos: 0 });
     let latest: number | null = null;
-    await waitUntil(async () => {
-      const e = await stack.api<{ latest: { coolant_temp?: { value: number } } }>('GET', `/api/engines/${engine.id}`, adminToken);
-      latest = e.body.latest.coolant_temp?.value ?? null;
-      return latest !== null;
-    }, { timeoutMs: 20000, what: 'the mapped metric stored as coolant_temp' });
+    await waitUntil(
+      async () => {
+        const e = await stack.api<{ latest: { coolant_temp?: { value: number } } }>('GET', `/api/engines/${engine.id}`, adminToken);
+        latest = e.body.latest.coolant_temp?.value ?? null;
+        return latest !== null;
+      },
+      { timeoutMs: 20000, what: 'the mapped metric stored as coolant_temp' },
+    );
     assert.ok(Math.abs(latest! - (180 - 32) / 1.8) < 1e-6, `180 °F stored as ${latest} °C`);
   });
 });

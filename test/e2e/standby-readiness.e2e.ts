@@ -35,7 +35,10 @@ describe('standby readiness (heater switched off in the simulator)', () => {
   };
 
   before(async () => {
-    [stack, browser] = await Promise.all([startStack({ simulatorArgs: ['--rate', '1', '--speed', '120', '--seed', '7', '--backfill-days', '0.1', '--backfill-step', '10'] }), launchBrowser()]);
+    [stack, browser] = await Promise.all([
+      startStack({ simulatorArgs: ['--rate', '1', '--speed', '120', '--seed', '7', '--backfill-days', '0.1', '--backfill-step', '10'] }),
+      launchBrowser(),
+    ]);
     const token = await stack.login(ACCOUNTS.operator);
     const engines = (await stack.api<{ id: number; name: string; duty: string }[]>('GET', '/api/engines', token)).body;
     engineId = engines.find((e) => e.name === ENGINE_NAME)!.id;
@@ -64,20 +67,32 @@ describe('standby readiness (heater switched off in the simulator)', () => {
   it('turns "Not ready" with the cold jacket water in words on the fleet board and the engine page when the heater goes off', async () => {
     await stack.control(`/engines/${engineId}/scenario`, { name: 'heater-failure' });
     // the very state asserted: not ready, with the reason in words (text and shape, not colour only)
-    await fleet.waitForFunction((name) => {
-      const tile = [...document.querySelectorAll('jw-engine-tile')].find((el) => (el.textContent ?? '').includes(name));
-      const r = tile?.querySelector('[data-testid=readiness]');
-      return r?.getAttribute('data-ready') === 'false' && /Not ready/.test(r.textContent ?? '') && /Jacket water cold/.test(r.textContent ?? '');
-    }, ENGINE_NAME, { timeout: NOT_READY_WAIT_MS });
+    await fleet.waitForFunction(
+      (name) => {
+        const tile = [...document.querySelectorAll('jw-engine-tile')].find((el) => (el.textContent ?? '').includes(name));
+        const r = tile?.querySelector('[data-testid=readiness]');
+        return r?.getAttribute('data-ready') === 'false' && /Not ready/.test(r.textContent ?? '') && /Jacket water cold/.test(r.textContent ?? '');
+      },
+      ENGINE_NAME,
+      { timeout: NOT_READY_WAIT_MS },
+    );
     const tileText = (await tileReadiness(ENGINE_NAME).textContent()) ?? '';
     assert.match(tileText, /Jacket water cold: \d+\.\d °C \(\d+\.\d °F\), below the 32\.0 °C \(89\.6 °F\)/);
     assert.equal(await tileReadiness(ENGINE_NAME).locator('mat-icon').getAttribute('fonticon'), 'report', 'a different shape, not only a colour');
     await keep(fleet, 'standby-fleet-not-ready');
 
-    await enginePage.waitForFunction(() => {
-      const r = document.querySelector('jw-readiness-status');
-      return r?.querySelector('[data-ready=false]') !== null && /Not ready/.test(r?.textContent ?? '') && /Jacket water cold/.test(r?.querySelector('[data-testid=readiness-reasons]')?.textContent ?? '');
-    }, null, { timeout: NOT_READY_WAIT_MS });
+    await enginePage.waitForFunction(
+      () => {
+        const r = document.querySelector('jw-readiness-status');
+        return (
+          r?.querySelector('[data-ready=false]') !== null &&
+          /Not ready/.test(r?.textContent ?? '') &&
+          /Jacket water cold/.test(r?.querySelector('[data-testid=readiness-reasons]')?.textContent ?? '')
+        );
+      },
+      null,
+      { timeout: NOT_READY_WAIT_MS },
+    );
     await keep(enginePage, 'standby-engine-not-ready');
   });
 

@@ -31,14 +31,46 @@ const HOLD_S = 15;
  */
 const ENGINE_NAME = 'Intake gen-set south';
 
-interface Step { id: number; key: string; title: string; input: 'confirmation' | 'value' | 'photo'; unit: string | null; gated: boolean; optional: boolean; doneAt: string | null; resultValue: number | null; resultText: string | null }
-interface Order { id: number; status: string; engineId: number; assigneeId: number | null; alarmIds: number[]; steps: Step[]; parts: { kind: string; quantity: number; unit: string }[]; attachments: { id: number; stepId: number | null }[] }
-interface Condition { name: string; met: boolean; value: unknown; limit: unknown; unit: string }
-interface Gate { clear: boolean; conditions: Condition[]; clearAt: number | null; settings: { minStoppedS: number; holdS: number; safeOpenTempC: number } }
+interface Step {
+  id: number;
+  key: string;
+  title: string;
+  input: 'confirmation' | 'value' | 'photo';
+  unit: string | null;
+  gated: boolean;
+  optional: boolean;
+  doneAt: string | null;
+  resultValue: number | null;
+  resultText: string | null;
+}
+interface Order {
+  id: number;
+  status: string;
+  engineId: number;
+  assigneeId: number | null;
+  alarmIds: number[];
+  steps: Step[];
+  parts: { kind: string; quantity: number; unit: string }[];
+  attachments: { id: number; stepId: number | null }[];
+}
+interface Condition {
+  name: string;
+  met: boolean;
+  value: unknown;
+  limit: unknown;
+  unit: string;
+}
+interface Gate {
+  clear: boolean;
+  conditions: Condition[];
+  clearAt: number | null;
+  settings: { minStoppedS: number; holdS: number; safeOpenTempC: number };
+}
 
 /** A real PNG: 24 x 16 pixels, RGB, a grey filter body on a light base, deflated with zlib. */
 function makePng(): Buffer {
-  const w = 24, h = 16;
+  const w = 24,
+    h = 16;
   const crcTable = Array.from({ length: 256 }, (_, n) => {
     let c = n;
     for (let k = 0; k < 8; k++) c = c & 1 ? 0xedb88320 ^ (c >>> 1) : c >>> 1;
@@ -71,7 +103,12 @@ function makePng(): Buffer {
       raw.set([v, v, body ? 100 : 230], y * (w * 3 + 1) + 1 + x * 3);
     }
   }
-  return Buffer.concat([Buffer.from([0x89, 0x50, 0x4e, 0x47, 0x0d, 0x0a, 0x1a, 0x0a]), chunk('IHDR', ihdr), chunk('IDAT', zlib.deflateSync(raw)), chunk('IEND', Buffer.alloc(0))]);
+  return Buffer.concat([
+    Buffer.from([0x89, 0x50, 0x4e, 0x47, 0x0d, 0x0a, 0x1a, 0x0a]),
+    chunk('IHDR', ihdr),
+    chunk('IDAT', zlib.deflateSync(raw)),
+    chunk('IEND', Buffer.alloc(0)),
+  ]);
 }
 
 /** Full-page screenshot from the top (a scrolled page would draw the app bar mid-page). */
@@ -150,18 +187,26 @@ describe('work order with the live opening check (planner and technician)', () =
   it('raises an alarm when the simulator overheats the running engine', async () => {
     await stack.control(`/engines/${engineId}/scenario`, { name: 'overheat' });
     type Alarm = { id: number; engineId: number; ruleKey?: string; title: string };
-    const alarm = await until(async () => {
-      const res = await stack.api<Alarm[] | { alarms: Alarm[] }>('GET', `/api/alarms?engineId=${engineId}`, plannerToken);
-      const list = Array.isArray(res.body) ? res.body : res.body.alarms;
-      return list.find((a) => /coolant temperature/i.test(a.title));
-    }, 60000, 'a coolant temperature alarm on the overheating engine');
+    const alarm = await until(
+      async () => {
+        const res = await stack.api<Alarm[] | { alarms: Alarm[] }>('GET', `/api/alarms?engineId=${engineId}`, plannerToken);
+        const list = Array.isArray(res.body) ? res.body : res.body.alarms;
+        return list.find((a) => /coolant temperature/i.test(a.title));
+      },
+      60000,
+      'a coolant temperature alarm on the overheating engine',
+    );
     alarmId = alarm.id;
   });
 
   it('the planner turns the alarm into a filter change from the alarm page and assigns the technician', async () => {
     await signIn(planner, stack, ACCOUNTS.planner);
     await planner.goto(`${stack.baseUrl}/alarms`);
-    await planner.locator('jw-alarm-row', { hasText: ENGINE_NAME }).first().getByRole('link', { name: /coolant temperature/i }).click();
+    await planner
+      .locator('jw-alarm-row', { hasText: ENGINE_NAME })
+      .first()
+      .getByRole('link', { name: /coolant temperature/i })
+      .click();
     await planner.waitForURL(/\/alarms\/\d+$/);
     alarmId = Number(new URL(planner.url()).pathname.split('/').pop()); // the alarm the planner opened
     await planner.getByRole('heading', { name: /coolant temperature/i }).waitFor();
@@ -216,7 +261,10 @@ describe('work order with the live opening check (planner and technician)', () =
     await tech.evaluate(() => ((window as unknown as { jwNoReload: boolean }).jwNoReload = true));
 
     // lockout/tagout is confirmed on the step that says to lock out, and carried to the gated steps
-    const lock = stepItem(tech, order.steps.find((s) => s.key === 'stop-and-lock-out')!);
+    const lock = stepItem(
+      tech,
+      order.steps.find((s) => s.key === 'stop-and-lock-out')!,
+    );
     await lock.getByRole('button', { name: /Mark done/ }).click();
     await lock.locator('.badge.done').waitFor();
     const first = stepItem(tech, gatedSteps()[0]);
@@ -241,7 +289,10 @@ describe('work order with the live opening check (planner and technician)', () =
     assert.equal(g.settings.holdS, HOLD_S, 'the route uses OPENING_HOLD_S');
     const step = gatedSteps()[0];
     const res = await stack.api<{ error: string; conditions: Condition[]; objections: { name: string }[] }>(
-      'POST', `/api/work-orders/${orderId}/steps/${step.id}/complete`, techToken, { lockoutConfirmed: true },
+      'POST',
+      `/api/work-orders/${orderId}/steps/${step.id}/complete`,
+      techToken,
+      { lockoutConfirmed: true },
     );
     assert.equal(res.status, 409);
     const names = res.body.conditions.map((c) => c.name);
@@ -316,7 +367,10 @@ describe('work order with the live opening check (planner and technician)', () =
   it('the technician records the steps, the parts the additive rule asks for and a photo, and completes the order', async () => {
     // the latest additive test decides the filter: in range -> charged (shared/coolant/additive.ts)
     const test = await stack.api<{ decision: { additive: { filter: 'charged' | 'blank' | null } | null } }>(
-      'POST', `/api/engines/${engineId}/coolant-tests`, techToken, { method: 'strip', scaUnitsPerGal: 2.0, glycolPercent: 45, notes: 'strip test before the filter change' },
+      'POST',
+      `/api/engines/${engineId}/coolant-tests`,
+      techToken,
+      { method: 'strip', scaUnitsPerGal: 2.0, glycolPercent: 45, notes: 'strip test before the filter change' },
     );
     assert.equal(test.status, 201, JSON.stringify(test.body));
     const filter = test.body.decision.additive?.filter;
@@ -324,19 +378,49 @@ describe('work order with the live opening check (planner and technician)', () =
 
     const values: Record<string, number> = { 'fit-filter': 0.75, refill: 1.5 };
     // a draft survives a reload: typed, saved on the server as typed, and there again after the reload
-    const fit = stepItem(tech, order.steps.find((s) => s.key === 'fit-filter')!);
+    const fit = stepItem(
+      tech,
+      order.steps.find((s) => s.key === 'fit-filter')!,
+    );
     await fit.getByLabel('Value').fill('0.75');
     await fit.getByLabel('Remark').fill('three quarters of a turn');
     await fit.getByText('Draft saved').waitFor();
-    await until(async () => {
-      const o = (await stack.api<Order>('GET', `/api/work-orders/${orderId}`, techToken)).body;
-      const st = o.steps.find((s) => s.key === 'fit-filter')!;
-      return st.resultValue === 0.75 && st.resultText === 'three quarters of a turn' && st.doneAt === null;
-    }, 10000, 'the draft on the server');
+    await until(
+      async () => {
+        const o = (await stack.api<Order>('GET', `/api/work-orders/${orderId}`, techToken)).body;
+        const st = o.steps.find((s) => s.key === 'fit-filter')!;
+        return st.resultValue === 0.75 && st.resultText === 'three quarters of a turn' && st.doneAt === null;
+      },
+      10000,
+      'the draft on the server',
+    );
     await tech.reload();
-    await stepItem(tech, order.steps.find((s) => s.key === 'fit-filter')!).getByLabel('Remark').waitFor();
-    assert.equal(await stepItem(tech, order.steps.find((s) => s.key === 'fit-filter')!).getByLabel('Value').inputValue(), '0.75', 'the drafted value after a reload');
-    assert.equal(await stepItem(tech, order.steps.find((s) => s.key === 'fit-filter')!).getByLabel('Remark').inputValue(), 'three quarters of a turn', 'the drafted remark after a reload');
+    await stepItem(
+      tech,
+      order.steps.find((s) => s.key === 'fit-filter')!,
+    )
+      .getByLabel('Remark')
+      .waitFor();
+    assert.equal(
+      await stepItem(
+        tech,
+        order.steps.find((s) => s.key === 'fit-filter')!,
+      )
+        .getByLabel('Value')
+        .inputValue(),
+      '0.75',
+      'the drafted value after a reload',
+    );
+    assert.equal(
+      await stepItem(
+        tech,
+        order.steps.find((s) => s.key === 'fit-filter')!,
+      )
+        .getByLabel('Remark')
+        .inputValue(),
+      'three quarters of a turn',
+      'the drafted remark after a reload',
+    );
     await shot(tech, 'wo-07c-draft-after-reload');
     for (const s of order.steps) {
       if (s.optional && s.input !== 'photo') continue;
@@ -360,7 +444,10 @@ describe('work order with the live opening check (planner and technician)', () =
     await tech.getByLabel('Quantity').fill('1');
     await tech.getByLabel('Description').fill('spin-on coolant filter');
     await tech.getByRole('button', { name: 'Record' }).click();
-    await tech.locator('table.parts').getByText(filter === 'charged' ? 'Charged filter' : 'Blank filter').waitFor();
+    await tech
+      .locator('table.parts')
+      .getByText(filter === 'charged' ? 'Charged filter' : 'Blank filter')
+      .waitFor();
     await tech.getByRole('combobox', { name: 'What' }).click();
     await tech.getByRole('option', { name: 'Coolant' }).click();
     await tech.getByLabel('Quantity').fill('1.5');

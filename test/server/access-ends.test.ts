@@ -25,7 +25,6 @@ const connect = async (username: string, password: string): Promise<MqttClient> 
   return c;
 };
 
-
 async function api(method: string, path: string, token: string | null, body?: unknown): Promise<{ status: number; body: ApiAnswer }> {
   const res = await fetch(server.url + path, {
     method,
@@ -38,8 +37,14 @@ async function api(method: string, path: string, token: string | null, body?: un
 
 async function addUser(email: string, role: string, password: string): Promise<number> {
   const now = new Date().toISOString();
-  return db.run(`INSERT INTO users (email, name, password_hash, role, disabled, created_at, updated_at) VALUES (?, ?, ?, ?, FALSE, ?, ?)`,
-    [email, `Test ${role}`, bcrypt.hashSync(password, 4), role, now, now]);
+  return db.run(`INSERT INTO users (email, name, password_hash, role, disabled, created_at, updated_at) VALUES (?, ?, ?, ?, FALSE, ?, ?)`, [
+    email,
+    `Test ${role}`,
+    bcrypt.hashSync(password, 4),
+    role,
+    now,
+    now,
+  ]);
 }
 
 async function signIn(email: string, password: string): Promise<string> {
@@ -51,16 +56,20 @@ async function signIn(email: string, password: string): Promise<string> {
 async function openSocket(token: string): Promise<Socket> {
   const sock = ioClient(server.url, { auth: { token }, transports: ['websocket'], reconnection: false });
   sockets.push(sock);
-  await new Promise<void>((resolve, reject) => { sock.once('connect', () => resolve()); sock.once('connect_error', reject); });
+  await new Promise<void>((resolve, reject) => {
+    sock.once('connect', () => resolve());
+    sock.once('connect_error', reject);
+  });
   return sock;
 }
 
-const refusedSocket = (token: string) => new Promise<Error>((resolve, reject) => {
-  const sock = ioClient(server.url, { auth: { token }, transports: ['websocket'], reconnection: false });
-  sockets.push(sock);
-  sock.once('connect', () => reject(new Error('socket connected with an ended session')));
-  sock.once('connect_error', resolve);
-});
+const refusedSocket = (token: string) =>
+  new Promise<Error>((resolve, reject) => {
+    const sock = ioClient(server.url, { auth: { token }, transports: ['websocket'], reconnection: false });
+    sockets.push(sock);
+    sock.once('connect', () => reject(new Error('socket connected with an ended session')));
+    sock.once('connect_error', resolve);
+  });
 
 const serverClosed = (sock: Socket) => new Promise<string>((resolve) => sock.once('disconnect', (reason) => resolve(reason)));
 const mqttClosed = (c: MqttClient) => new Promise<void>((resolve) => c.once('close', () => resolve()));
@@ -89,7 +98,11 @@ describe('devices', () => {
     // a second login with the same secret comes from the broker's login cache
     const cachedLogin = await connect(d.username, d.secret);
     await first.publishAsync(telemetryTopic(d.engineId), JSON.stringify({ ts: Date.now() - 1000, values: { coolant_temp: 70 } }), { qos: 1 });
-    await until('reading stored', () => countReadings(d.engineId), (n) => n === 1);
+    await until(
+      'reading stored',
+      () => countReadings(d.engineId),
+      (n) => n === 1,
+    );
 
     const closed = Promise.all([mqttClosed(first), mqttClosed(cachedLogin)]);
     expect((await api('POST', `/api/devices/${d.deviceId}/revoke`, adminToken)).status).toBe(200);
@@ -109,14 +122,21 @@ describe('devices', () => {
     await expect(connect(d.username, d.secret)).rejects.toThrow(/bad username or password|not authorized/i);
     const fresh = await connect(d.username, res.body.secret);
     await fresh.publishAsync(telemetryTopic(d.engineId), JSON.stringify({ ts: Date.now() - 1000, values: { coolant_temp: 71 } }), { qos: 1 });
-    await until('reading with the new secret stored', () => countReadings(d.engineId), (n) => n === 1);
+    await until(
+      'reading with the new secret stored',
+      () => countReadings(d.engineId),
+      (n) => n === 1,
+    );
   });
 
   test('failed device logins are counted per device and shown to the admin', async () => {
     const d = fleet[2];
     for (let i = 0; i < 3; i++) await expect(connect(d.username, 'wrong-secret')).rejects.toThrow();
-    const report = await until('login_failed persisted', () => api('GET', '/api/admin/ingest', adminToken),
-      (r) => r.body.rejections!.some((x) => x.deviceId === d.deviceId && x.reason === 'login_failed' && x.count === 3));
+    const report = await until(
+      'login_failed persisted',
+      () => api('GET', '/api/admin/ingest', adminToken),
+      (r) => r.body.rejections!.some((x) => x.deviceId === d.deviceId && x.reason === 'login_failed' && x.count === 3),
+    );
     const row = report.body.rejections!.find((x) => x.deviceId === d.deviceId && x.reason === 'login_failed');
     expect(row).toMatchObject({ username: d.username, engineId: d.engineId });
     expect(row!.lastDetail).toMatch(/wrong secret/);
@@ -168,10 +188,18 @@ describe('people', () => {
     const own = fleet[3];
     const otherClient = await connect(other.username, other.secret);
     await otherClient.publishAsync(telemetryTopic(other.engineId), JSON.stringify({ ts: Date.now() - 1000, values: { coolant_temp: 60 } }), { qos: 1 });
-    await until('other reading stored', () => countReadings(other.engineId), (n) => n === 1);
+    await until(
+      'other reading stored',
+      () => countReadings(other.engineId),
+      (n) => n === 1,
+    );
     const ownClient = await connect(own.username, own.secret);
     await ownClient.publishAsync(telemetryTopic(own.engineId), JSON.stringify({ ts: Date.now() - 1000, values: { coolant_temp: 61 } }), { qos: 1 });
-    await until('own site reading pushed', async () => seen, (s) => s.includes(own.engineId));
+    await until(
+      'own site reading pushed',
+      async () => seen,
+      (s) => s.includes(own.engineId),
+    );
     expect(seen).not.toContain(other.engineId);
 
     token = await signIn('tech1@example.test', 'valve-gasket-sprocket');

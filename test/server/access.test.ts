@@ -13,7 +13,17 @@ let spare: { site: number; engine: number; device: number; user: number };
 beforeAll(async () => {
   t = await makeTestApp();
   const { Site, Engine, User } = t.ctx.models;
-  const engineRow = (sid: number, name: string) => ({ siteId: sid, name, duty: 'standby' as const, capacityL: 60, coolantFamily: 'conventional' as const, glycolType: 'ethylene' as const, glycolPercent: 50, capPressureKpa: 100, oilDrainIntervalH: 250 });
+  const engineRow = (sid: number, name: string) => ({
+    siteId: sid,
+    name,
+    duty: 'standby' as const,
+    capacityL: 60,
+    coolantFamily: 'conventional' as const,
+    glycolType: 'ethylene' as const,
+    glycolPercent: 50,
+    capPressureKpa: 100,
+    oilDrainIntervalH: 250,
+  });
   siteId = (await Site.create({ name: 'Test site', timeZone: 'Europe/Lisbon' })).id;
   engineId = (await Engine.create(engineRow(siteId, 'Test engine'))).id;
   deviceId = (await createDevice(t.ctx.models, { engineId }, 4)).device.id;
@@ -57,7 +67,14 @@ const cases: Case[] = [
   { method: 'post', path: () => `/api/devices/${deviceId}/rotate`, doc: '/api/devices/{id}/rotate', who: 'admin', ok: 200 },
   { method: 'post', path: () => `/api/devices/${spare.device}/revoke`, doc: '/api/devices/{id}/revoke', who: 'admin', ok: 200 },
   { method: 'get', path: () => '/api/users', doc: '/api/users', who: 'admin', ok: 200 },
-  { method: 'post', path: () => '/api/users', doc: '/api/users', who: 'admin', ok: 201, body: () => ({ email: 'new@example.test', name: 'New Person', password: 'long-enough-pw', role: 'technician' }) },
+  {
+    method: 'post',
+    path: () => '/api/users',
+    doc: '/api/users',
+    who: 'admin',
+    ok: 201,
+    body: () => ({ email: 'new@example.test', name: 'New Person', password: 'long-enough-pw', role: 'technician' }),
+  },
   { method: 'patch', path: () => `/api/users/${spare.user}`, doc: '/api/users/{id}', who: 'admin', ok: 200, body: () => ({ name: 'Renamed' }) },
   { method: 'delete', path: () => `/api/users/${spare.user}`, doc: '/api/users/{id}', who: 'admin', ok: 200 },
   { method: 'get', path: () => '/api/admin/ingest', doc: '/api/admin/ingest', who: 'admin', ok: 200 },
@@ -71,7 +88,9 @@ function expected(c: Case, role: string): number {
 }
 
 // non-admins first, so the admin's writes (retire, revoke, disable) come last
-const table = ['anonymous', 'operator', 'technician', 'planner', 'admin'].flatMap((role) => cases.map((c) => [role, c.method.toUpperCase(), c.doc, c] as const));
+const table = ['anonymous', 'operator', 'technician', 'planner', 'admin'].flatMap((role) =>
+  cases.map((c) => [role, c.method.toUpperCase(), c.doc, c] as const),
+);
 
 describe('role x route', () => {
   it.each(table)('%s %s %s', async (role, _m, _doc, c) => {
@@ -83,7 +102,10 @@ describe('role x route', () => {
   });
 
   it('a forged or expired token is 401', async () => {
-    await request(t.app).get('/api/sites').set(auth(t.tokens.admin + 'x')).expect(401);
+    await request(t.app)
+      .get('/api/sites')
+      .set(auth(t.tokens.admin + 'x'))
+      .expect(401);
     const jwt = await import('jsonwebtoken');
     const old = jwt.sign({ email: 'admin@example.test', role: 'admin' }, 'some-other-secret', { subject: '1', issuer: 'jacketwatch' });
     await request(t.app).get('/api/sites').set(auth(old)).expect(401);

@@ -44,11 +44,27 @@ beforeAll(async () => {
   dataDir = fs.mkdtempSync(path.join(os.tmpdir(), 'jw-backfill-'));
   const [port, mqttPort, smtpPort] = [await freePort(), await freePort(), await freePort()];
   base = `http://127.0.0.1:${port}`;
-  env = { ...process.env, PORT: String(port), MQTT_PORT: String(mqttPort), SMTP_PORT: String(smtpPort), DATA_DIR: dataDir, LOG_LEVEL: 'info', PUBLIC_URL: base, NOTIFY_MIN_PRIORITY: 'low' };
+  env = {
+    ...process.env,
+    PORT: String(port),
+    MQTT_PORT: String(mqttPort),
+    SMTP_PORT: String(smtpPort),
+    DATA_DIR: dataDir,
+    LOG_LEVEL: 'info',
+    PUBLIC_URL: base,
+    NOTIFY_MIN_PRIORITY: 'low',
+  };
   const seeded = spawnSync(TSX, ['seeds/cli.ts'], { cwd: ROOT, env, encoding: 'utf8' });
   if (seeded.status !== 0) throw new Error(`seed failed: ${seeded.stderr}`);
   server = run(['server/main.ts'], 'server');
-  await waitFor(async () => (await fetch(`${base}/api/health`).then((r) => r.ok).catch(() => false)) || null, 90_000, 500);
+  await waitFor(
+    async () =>
+      (await fetch(`${base}/api/health`)
+        .then((r) => r.ok)
+        .catch(() => false)) || null,
+    90_000,
+    500,
+  );
 }, 120_000);
 
 afterAll(async () => {
@@ -58,19 +74,45 @@ afterAll(async () => {
   else fs.rmSync(dataDir, { recursive: true, force: true });
 });
 
-interface AlarmRow { id: number; engineId: number; rule: string; state: string; active: boolean; closedAt: string | null; raisedAt: string }
+interface AlarmRow {
+  id: number;
+  engineId: number;
+  rule: string;
+  state: string;
+  active: boolean;
+  closedAt: string | null;
+  raisedAt: string;
+}
 
 it(`${DAYS} days of history then live data: nothing annunciated, no e-mail, history alarms recorded as closed`, async () => {
-  const admin = ((await (await fetch(`${base}/api/auth/login`, { method: 'POST', headers: { 'content-type': 'application/json' }, body: JSON.stringify({ email: 'admin@jacketwatch.test', password: PASSWORD }) })).json()) as { token: string }).token;
+  const admin = (
+    (await (
+      await fetch(`${base}/api/auth/login`, {
+        method: 'POST',
+        headers: { 'content-type': 'application/json' },
+        body: JSON.stringify({ email: 'admin@jacketwatch.test', password: PASSWORD }),
+      })
+    ).json()) as { token: string }
+  ).token;
   const started = Date.now();
-  sim = run(['simulator/cli.ts', '--rate', '1', '--seed', '1', '--backfill-days', String(DAYS), '--backfill-step', '300', '--duration', String(LIVE_S)], 'simulator');
+  sim = run(
+    ['simulator/cli.ts', '--rate', '1', '--seed', '1', '--backfill-days', String(DAYS), '--backfill-step', '300', '--duration', String(LIVE_S)],
+    'simulator',
+  );
   const code = await new Promise<number | null>((resolve) => sim!.once('exit', (c) => resolve(c)));
   expect(code).toBe(0);
   // every engine's live data stored (the simulator exits after LIVE_S s of live running)
-  const engines = await waitFor(async () => {
-    const list = await get<{ id: number; lastSeenAt: string | null; duty: string; readiness?: { ready: boolean; reasons: string[] } }[]>('/api/engines', admin);
-    return list.length === 8 && list.every((e) => e.lastSeenAt && new Date(e.lastSeenAt).getTime() > started) && list;
-  }, 30_000, 500);
+  const engines = await waitFor(
+    async () => {
+      const list = await get<{ id: number; lastSeenAt: string | null; duty: string; readiness?: { ready: boolean; reasons: string[] } }[]>(
+        '/api/engines',
+        admin,
+      );
+      return list.length === 8 && list.every((e) => e.lastSeenAt && new Date(e.lastSeenAt).getTime() > started) && list;
+    },
+    30_000,
+    500,
+  );
   expect(engines).toHaveLength(8);
   // the seven standby sets sit warm on their heaters with fresh data and no alarm: Ready; the continuous engine has no readiness
   for (const e of engines) {

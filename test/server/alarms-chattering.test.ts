@@ -15,24 +15,40 @@ beforeAll(async () => {
 });
 afterAll(async () => t.close());
 
-interface Row { id: number; rule: string; chatteringAt: string | null }
-interface Entry { at: string; event: string; note: string | null }
+interface Row {
+  id: number;
+  rule: string;
+  chatteringAt: string | null;
+}
+interface Entry {
+  at: string;
+  event: string;
+  note: string | null;
+}
 
 let alarmId: number;
 
 it('an alarm that comes into alarm 3 times within 60 s is marked chattering, once, with advice in words', async () => {
   // no delays on this engine's high-temperature rule: every swing over the limit is an activation
-  await request(t.app).put(`/api/rules/engines/${t.engineId}`).set(auth(t.tokens.admin))
-    .send({ rules: [{ rule: 'coolant_temp_high', enabled: true, params: { onDelayS: 0, offDelayS: 0 } }] }).expect(200);
+  await request(t.app)
+    .put(`/api/rules/engines/${t.engineId}`)
+    .set(auth(t.tokens.admin))
+    .send({ rules: [{ rule: 'coolant_temp_high', enabled: true, params: { onDelayS: 0, offDelayS: 0 } }] })
+    .expect(200);
   // 100 °C and 90 °C in turns of 5 s for 60 s: into alarm every 10 s
   t.feed(samples(t.engineId, T0, 60, (s) => (Math.floor(s / 5) % 2 === 0 ? 100 : 90)));
   await t.feature.alarms.idle();
-  const list = ((await request(t.app).get(`/api/alarms?state=all&engineId=${t.engineId}`).set(auth(t.tokens.operator)).expect(200)).body as Row[]).filter((a) => a.rule === 'coolant_temp_high');
+  const list = ((await request(t.app).get(`/api/alarms?state=all&engineId=${t.engineId}`).set(auth(t.tokens.operator)).expect(200)).body as Row[]).filter(
+    (a) => a.rule === 'coolant_temp_high',
+  );
   expect(list).toHaveLength(1);
   alarmId = list[0].id;
   // third activation at T0 + 20 s
   expect(list[0].chatteringAt).toBe(new Date(T0 + 20_000).toISOString());
-  const detail = (await request(t.app).get(`/api/alarms/${alarmId}`).set(auth(t.tokens.operator)).expect(200)).body as { history: Entry[]; historyTotal: number };
+  const detail = (await request(t.app).get(`/api/alarms/${alarmId}`).set(auth(t.tokens.operator)).expect(200)).body as {
+    history: Entry[];
+    historyTotal: number;
+  };
   const notes = detail.history.filter((h) => h.event === 'note' && /Chattering/.test(h.note ?? ''));
   expect(notes).toHaveLength(1);
   expect(notes[0].note).toMatch(/came into alarm 3 times within 60 s\. A candidate for a longer deadband or on-\/off-delay/);
@@ -45,7 +61,9 @@ it('the performance report lists it under the test applied; the test is configur
   const r = (await request(t.app).get(`/api/alarms/performance?from=${from}&to=${to}`).set(auth(t.tokens.operator)).expect(200)).body;
   expect(r.chatter).toEqual({ count: 3, windowMs: 60_000 });
   expect(r.chattering).toEqual([{ key: 'Fire pump 1/coolant_temp_high', bursts: 1, maxInWindow: 6 }]);
-  const strict = (await request(t.app).get(`/api/alarms/performance?from=${from}&to=${to}&chatterCount=7&chatterWindowS=60`).set(auth(t.tokens.operator)).expect(200)).body;
+  const strict = (
+    await request(t.app).get(`/api/alarms/performance?from=${from}&to=${to}&chatterCount=7&chatterWindowS=60`).set(auth(t.tokens.operator)).expect(200)
+  ).body;
   expect(strict.chatter).toEqual({ count: 7, windowMs: 60_000 });
   expect(strict.chattering).toEqual([]);
   const bad = await request(t.app).get(`/api/alarms/performance?chatterCount=1`).set(auth(t.tokens.operator)).expect(400);
@@ -53,7 +71,10 @@ it('the performance report lists it under the test applied; the test is configur
 });
 
 it('the history comes in pages, in time order', async () => {
-  const first = (await request(t.app).get(`/api/alarms/${alarmId}?limit=5`).set(auth(t.tokens.operator)).expect(200)).body as { history: Entry[]; historyTotal: number };
+  const first = (await request(t.app).get(`/api/alarms/${alarmId}?limit=5`).set(auth(t.tokens.operator)).expect(200)).body as {
+    history: Entry[];
+    historyTotal: number;
+  };
   expect(first.history).toHaveLength(5);
   expect(first.historyTotal).toBeGreaterThan(10);
   const all: Entry[] = [...first.history];

@@ -16,7 +16,11 @@ let second: AlarmFeature;
 beforeAll(async () => {
   t = await makeAlarmApp(settings);
   second = createAlarmFeature(t.ctx, { ...loadAlarmSettings({}), ...settings });
-  await second.start({ onReadings: () => undefined, emit: () => undefined, liveState: { latest: () => ({}), lastSeen: () => null, runState: () => 'no-data' } });
+  await second.start({
+    onReadings: () => undefined,
+    emit: () => undefined,
+    liveState: { latest: () => ({}), lastSeen: () => null, runState: () => 'no-data' },
+  });
 });
 afterAll(async () => {
   await second?.stop();

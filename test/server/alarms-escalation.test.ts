@@ -22,7 +22,9 @@ it('escalates to the backup, then the planners, and stops once acknowledged', as
   const t0 = Date.now() - 40_000;
   t.feed(samples(t.engineId, t0, 40, () => 106, { kpa: 90 }));
   await t.feature.alarms.idle();
-  const alarm = (await request(t.app).get(`/api/alarms?engineId=${t.engineId}`).set(auth(t.tokens.operator))).body.find((a: { rule: string }) => a.rule === 'coolant_temp_very_high');
+  const alarm = (await request(t.app).get(`/api/alarms?engineId=${t.engineId}`).set(auth(t.tokens.operator))).body.find(
+    (a: { rule: string }) => a.rule === 'coolant_temp_very_high',
+  );
   expect(alarm).toMatchObject({ priority: 'high', state: 'unacknowledged' });
 
   await waitFor(async () => (await mailTo(t.users.technician.email)) > 0, 10000);

@@ -22,7 +22,10 @@ const noise = (s: number) => 0.3 * Math.sin(s / 3);
 describe('engine evaluator with the default profile', () => {
   it('raises high temperature once after the on-delay, not again while it stays high, clears after the off-delay', () => {
     // the step from 85 to 100 °C also trips "rising fast": watch the limit rule alone here
-    const ev = new EngineEvaluator(engine, DEFAULT_RULES.filter((r) => r.key === 'coolant_temp_high'));
+    const ev = new EngineEvaluator(
+      engine,
+      DEFAULT_RULES.filter((r) => r.key === 'coolant_temp_high'),
+    );
     expect(keys(ev.feed(samples(0, 60, (s) => 85 + noise(s))))).toEqual([]);
     // 100 °C: above 98 (warning) but below 103; margin to boiling at 90 kPa gauge is well over 10 °C
     const up = ev.feed(samples(60, 75, (s) => 100 + noise(s)));
@@ -76,7 +79,10 @@ describe('engine evaluator with the default profile', () => {
   it('boiling margin uses the engine glycol and measured pressure', () => {
     // 50 % ethylene glycol at 0 kPa gauge boils near 107 °C (shared/coolant/boiling-point.ts, IAPWS-IF97 + Raoult):
     // 100 °C leaves under 10 °C of margin; at 90 kPa gauge the boiling point is far higher
-    const ev = new EngineEvaluator(engine, DEFAULT_RULES.filter((r) => r.kind === 'boiling_margin'));
+    const ev = new EngineEvaluator(
+      engine,
+      DEFAULT_RULES.filter((r) => r.kind === 'boiling_margin'),
+    );
     expect(keys(ev.feed(samples(0, 30, () => 100, { kpa: 90 })))).toEqual([]);
     expect(keys(ev.feed(samples(30, 60, () => 100, { kpa: 0 })))).toEqual(['raise:boiling_margin_low']);
   });

@@ -18,14 +18,27 @@ beforeAll(async () => {
 });
 afterAll(async () => t.close());
 
-interface Row { id: number; rule: string; state: string; active: boolean; closedAt: string | null; raisedAt: string; clearedAt: string | null }
-const alarmsOf = async (state = 'all'): Promise<Row[]> => (await request(t.app).get(`/api/alarms?state=${state}&engineId=${t.engineId}`).set(auth(t.tokens.operator)).expect(200)).body;
+interface Row {
+  id: number;
+  rule: string;
+  state: string;
+  active: boolean;
+  closedAt: string | null;
+  raisedAt: string;
+  clearedAt: string | null;
+}
+const alarmsOf = async (state = 'all'): Promise<Row[]> =>
+  (await request(t.app).get(`/api/alarms?state=${state}&engineId=${t.engineId}`).set(auth(t.tokens.operator)).expect(200)).body;
 const highs = async () => (await alarmsOf()).filter((a) => a.rule === 'coolant_temp_high');
-const historyOf = async (id: number) => (await request(t.app).get(`/api/alarms/${id}`).set(auth(t.tokens.operator)).expect(200)).body.history as { event: string; at: string; note: string | null }[];
+const historyOf = async (id: number) =>
+  (await request(t.app).get(`/api/alarms/${id}`).set(auth(t.tokens.operator)).expect(200)).body.history as { event: string; at: string; note: string | null }[];
 
 /** Denver's wall clock in the app's one format, worked out by hand from its offset (MST = UTC-7, MDT = UTC-6; IANA tz database). */
 const denver = (ms: number, abbr: string, seconds = false) =>
-  new Date(ms - (abbr === 'MDT' ? 6 : 7) * 3600_000).toISOString().slice(0, seconds ? 19 : 16).replace('T', ' ') + ` ${abbr}`;
+  new Date(ms - (abbr === 'MDT' ? 6 : 7) * 3600_000)
+    .toISOString()
+    .slice(0, seconds ? 19 : 16)
+    .replace('T', ' ') + ` ${abbr}`;
 
 const now0 = Date.now();
 const T = now0 - 3600_000;
@@ -81,8 +94,15 @@ it('an overheat still present at the end of older late readings, gone in the new
 it('late data newer than anything evaluated and still active when it catches up: one e-mail, saying so, times in the site zone', async () => {
   // a second engine of the same site whose gateway sends its store after an outage, oldest first
   const other = await t.ctx.models.Engine.create({
-    siteId: t.siteId, name: 'Fire pump 2', duty: 'standby', capacityL: 60, coolantFamily: 'conventional', glycolType: 'ethylene',
-    glycolPercent: 50, capPressureKpa: 100, oilDrainIntervalH: 250,
+    siteId: t.siteId,
+    name: 'Fire pump 2',
+    duty: 'standby',
+    capacityL: 60,
+    coolantFamily: 'conventional',
+    glycolType: 'ethylene',
+    glycolPercent: 50,
+    capPressureKpa: 100,
+    oilDrainIntervalH: 250,
   });
   await t.feature.rules.refreshEngines(true);
   const T3 = Date.now() - 600_000; // ten minutes old: late (over ALARM_LATE_AFTER_S)

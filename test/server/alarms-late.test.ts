@@ -16,8 +16,16 @@ beforeAll(async () => {
 });
 afterAll(async () => t.close());
 
-interface Row { id: number; rule: string; state: string; active: boolean; closedAt: string | null; raisedAt: string }
-const alarmsOf = async (state = 'all'): Promise<Row[]> => (await request(t.app).get(`/api/alarms?state=${state}&engineId=${t.engineId}`).set(auth(t.tokens.operator)).expect(200)).body;
+interface Row {
+  id: number;
+  rule: string;
+  state: string;
+  active: boolean;
+  closedAt: string | null;
+  raisedAt: string;
+}
+const alarmsOf = async (state = 'all'): Promise<Row[]> =>
+  (await request(t.app).get(`/api/alarms?state=${state}&engineId=${t.engineId}`).set(auth(t.tokens.operator)).expect(200)).body;
 const outboxFor = (alarmId: number) => t.ctx.models.OutboxMessage.count({ where: { alarmId } });
 
 it('an overheat raised and cleared within three-day-old data is recorded and closed, and nobody is e-mailed', async () => {
@@ -32,7 +40,9 @@ it('an overheat raised and cleared within three-day-old data is recorded and clo
   expect(high[0]).toMatchObject({ state: 'normal', active: false });
   expect(high[0].closedAt).not.toBeNull();
   expect(new Date(high[0].raisedAt).getTime()).toBe(T + 70_000);
-  const detail = (await request(t.app).get(`/api/alarms/${high[0].id}`).set(auth(t.tokens.operator)).expect(200)).body as { history: { event: string; note: string | null }[] };
+  const detail = (await request(t.app).get(`/api/alarms/${high[0].id}`).set(auth(t.tokens.operator)).expect(200)).body as {
+    history: { event: string; note: string | null }[];
+  };
   // in time order: raised and cleared three days back, the note and the closing written when the data arrived
   expect(detail.history.map((h) => h.event)).toEqual(['activate', 'clear', 'note', 'acknowledge']);
   expect(detail.history[2].note).toMatch(/arrived late/);
@@ -61,13 +71,18 @@ it('an overheat from hour-old data still active when the data catches up is e-ma
   const mail = await waitFor(() => t.ctx.models.CaughtMail.findOne({ where: { to: t.users.technician.email } }), 10_000);
   expect(mail.subject).toContain('Coolant temperature high');
   expect(mail.subject).toContain('(from late data)');
-  expect(mail.text).toMatch(/The data came late: the readings behind this alarm were measured at .* and arrived at .*\. The condition was still active when the data caught up\./);
+  expect(mail.text).toMatch(
+    /The data came late: the readings behind this alarm were measured at .* and arrived at .*\. The condition was still active when the data caught up\./,
+  );
 
   // more live data: no second e-mail
   t.feed(samples(t.engineId, Date.now(), 3, () => 100.5));
   await t.feature.alarms.idle();
   expect(await outboxFor(id)).toBe(1);
-  const events = (await request(t.app).get(`/api/alarms/${id}`).set(auth(t.tokens.operator)).expect(200)).body.history as { event: string; note: string | null }[];
+  const events = (await request(t.app).get(`/api/alarms/${id}`).set(auth(t.tokens.operator)).expect(200)).body.history as {
+    event: string;
+    note: string | null;
+  }[];
   expect(events.filter((e) => e.event === 'notified')).toHaveLength(1);
   expect(events.find((e) => e.event === 'notified')!.note).toMatch(/from late data, still active/);
 });

@@ -19,11 +19,19 @@ const T0 = Date.UTC(2026, 2, 2, 6, 0, 0); // a Monday morning, outside every sta
 const MIN = 60_000;
 
 const specs: EngineSpec[] = DEMO_ENGINES.map((e, i) => ({
-  engineId: i + 1, duty: e.duty, capacityL: e.capacityL, capPressureKpa: e.capPressureKpa,
-  heaterSetpointC: e.heaterSetpointC, coolantFamily: e.coolantFamily,
+  engineId: i + 1,
+  duty: e.duty,
+  capacityL: e.capacityL,
+  capPressureKpa: e.capPressureKpa,
+  heaterSetpointC: e.heaterSetpointC,
+  coolantFamily: e.coolantFamily,
 }));
 
-interface Plan { at: number; command?: 'run' | 'stop' | 'auto'; scenario?: ScenarioName }
+interface Plan {
+  at: number;
+  command?: 'run' | 'stop' | 'auto';
+  scenario?: ScenarioName;
+}
 
 /** Step the model once a second from T0 for `minutes`, feed the evaluator, return the raised rule keys with times. */
 function drive(spec: EngineSpec, minutes: number, plan: Plan[], rules = DEFAULT_RULES): { rule: string; atMin: number; message: string }[] {
@@ -31,8 +39,15 @@ function drive(spec: EngineSpec, minutes: number, plan: Plan[], rules = DEFAULT_
   const glycol = DEMO_ENGINES[spec.engineId - 1];
   const ev = new EngineEvaluator(
     {
-      id: spec.engineId, glycolType: glycol.glycolType, glycolPercent: glycol.glycolPercent, baselineFrom: T0, baselineValue: null,
-      duty: spec.duty, heaterSetpointC: spec.heaterSetpointC, capPressureKpa: spec.capPressureKpa, elevationM: 0,
+      id: spec.engineId,
+      glycolType: glycol.glycolType,
+      glycolPercent: glycol.glycolPercent,
+      baselineFrom: T0,
+      baselineValue: null,
+      duty: spec.duty,
+      heaterSetpointC: spec.heaterSetpointC,
+      capPressureKpa: spec.capPressureKpa,
+      elevationM: 0,
     },
     effectiveRules(rules, []),
     { startTs: T0 },
@@ -59,7 +74,11 @@ describe('normal running at physical speed raises nothing', () => {
   it.each(specs.map((s) => [DEMO_ENGINES[s.engineId - 1].name, s] as const))(
     '%s: 30 min stopped, cold start and 90 min running, 60 min cooling down',
     (_name, spec) => {
-      const raised = drive(spec, 180, [{ at: 0, command: 'stop' }, { at: 30, command: 'run' }, { at: 120, command: 'stop' }]);
+      const raised = drive(spec, 180, [
+        { at: 0, command: 'stop' },
+        { at: 30, command: 'run' },
+        { at: 120, command: 'stop' },
+      ]);
       expect(raised).toEqual([]);
     },
   );
@@ -75,7 +94,10 @@ describe('each fault at physical speed raises its matching rule', () => {
   ];
   it.each(faults)('%s raises %s within %d minutes of the fault', (scenario, rule, withinMin) => {
     const spec = specs[0]; // Works gen-set A, 180 L
-    const raised = drive(spec, 30 + withinMin, [{ at: 0, command: 'run' }, { at: 30, scenario }]);
+    const raised = drive(spec, 30 + withinMin, [
+      { at: 0, command: 'run' },
+      { at: 30, scenario },
+    ]);
     const hit = raised.find((r) => r.rule === rule);
     expect(hit).toBeDefined();
     expect(hit!.atMin).toBeGreaterThanOrEqual(30);
@@ -86,7 +108,10 @@ describe('each fault at physical speed raises its matching rule', () => {
 describe('heater failure at physical speed', () => {
   it('a stopped standby set with its heater off: heater_not_holding first, then coolant_temp_low_standby (high)', () => {
     const spec = specs[0]; // Works gen-set A, 180 L, heater at 40 °C
-    const raised = drive(spec, 150, [{ at: 0, command: 'stop' }, { at: 10, scenario: 'heater-failure' }]);
+    const raised = drive(spec, 150, [
+      { at: 0, command: 'stop' },
+      { at: 10, scenario: 'heater-failure' },
+    ]);
     const heater = raised.find((r) => r.rule === 'heater_not_holding');
     const cold = raised.find((r) => r.rule === 'coolant_temp_low_standby');
     expect(heater).toBeDefined();

@@ -63,8 +63,23 @@ async function control(p: string, body: unknown = {}): Promise<void> {
 
 const stopChild = (c: ChildProcess | null) => stopGroup(c);
 
-interface AlarmRow { id: number; engineId: number; rule: string; state: string; priority: string; value: number | null; unit: string | null; escalationLevel: number; raisedAt: string }
-interface Mail { id: number; to: string; subject: string; text: string }
+interface AlarmRow {
+  id: number;
+  engineId: number;
+  rule: string;
+  state: string;
+  priority: string;
+  value: number | null;
+  unit: string | null;
+  escalationLevel: number;
+  raisedAt: string;
+}
+interface Mail {
+  id: number;
+  to: string;
+  subject: string;
+  text: string;
+}
 
 /** Scenario -> the rule that must answer it. Engines are the seed's order (ids from the devices file). */
 const FAULTS = [
@@ -89,13 +104,28 @@ beforeAll(async () => {
   controlBase = `http://127.0.0.1:${controlPort}`;
   database = await createTestDatabase(dataDir);
   env = {
-    ...process.env, PORT: String(port), MQTT_PORT: String(mqttPort), SMTP_PORT: String(smtpPort), DATA_DIR: dataDir, DATABASE_URL: database.url,
-    LOG_LEVEL: 'info', PUBLIC_URL: base, ESCALATE_AFTER_S: String(ESCALATE_AFTER_S), NOTIFY_MIN_PRIORITY: 'low',
+    ...process.env,
+    PORT: String(port),
+    MQTT_PORT: String(mqttPort),
+    SMTP_PORT: String(smtpPort),
+    DATA_DIR: dataDir,
+    DATABASE_URL: database.url,
+    LOG_LEVEL: 'info',
+    PUBLIC_URL: base,
+    ESCALATE_AFTER_S: String(ESCALATE_AFTER_S),
+    NOTIFY_MIN_PRIORITY: 'low',
   };
   const seeded = spawnSync(TSX, ['seeds/cli.ts'], { cwd: ROOT, env, encoding: 'utf8' });
   if (seeded.status !== 0) throw new Error(`seed failed: ${seeded.stderr}`);
   server = run(['server/main.ts'], 'server');
-  await waitFor(async () => (await fetch(`${base}/api/health`).then((r) => r.ok).catch(() => false)) || null, 90_000, 500);
+  await waitFor(
+    async () =>
+      (await fetch(`${base}/api/health`)
+        .then((r) => r.ok)
+        .catch(() => false)) || null,
+    90_000,
+    500,
+  );
   admin = (await api<{ token: string }>('POST', '/api/auth/login', undefined, { email: 'admin@jacketwatch.test', password: PASSWORD })).body.token;
   const devices = JSON.parse(fs.readFileSync(path.join(dataDir, 'demo-devices.json'), 'utf8')) as { devices: { engineId: number }[] };
   engineIds = devices.devices.map((d) => d.engineId);
@@ -119,12 +149,23 @@ it('five faults on five engines: each raises its own alarm once, e-mails it, esc
   expect(override.status).toBe(200);
 
   sim = run(['simulator/cli.ts', '--speed', '30', '--rate', '1', '--seed', '7', '--control-port', String(new URL(controlBase).port)], 'simulator');
-  await waitFor(async () => (await fetch(`${controlBase}/engines`).then((r) => r.ok).catch(() => false)) || null, 60_000, 250);
+  await waitFor(
+    async () =>
+      (await fetch(`${controlBase}/engines`)
+        .then((r) => r.ok)
+        .catch(() => false)) || null,
+    60_000,
+    250,
+  );
   // every engine's data stored before the faults begin: a gateway that never spoke is not a lost one
-  await waitFor(async () => {
-    const engines = (await api<{ id: number; lastSeenAt: string | null }[]>('GET', '/api/engines', admin)).body;
-    return engineIds.every((id) => engines.find((e) => e.id === id)?.lastSeenAt) || null;
-  }, 60_000, 250);
+  await waitFor(
+    async () => {
+      const engines = (await api<{ id: number; lastSeenAt: string | null }[]>('GET', '/api/engines', admin)).body;
+      return engineIds.every((id) => engines.find((e) => e.id === id)?.lastSeenAt) || null;
+    },
+    60_000,
+    250,
+  );
 
   // a browser's socket in the alarms room only: alarm events, no readings
   const pushed: { alarms: AlarmRow[]; readings: number } = { alarms: [], readings: 0 };
@@ -141,14 +182,18 @@ it('five faults on five engines: each raises its own alarm once, e-mails it, esc
 
   // each fault: its alarm within 2 minutes of the fault starting, and its e-mail to the technician on call
   const raised = new Map<string, AlarmRow>();
-  await waitFor(async () => {
-    for (const f of FAULTS) {
-      if (raised.has(f.scenario)) continue;
-      const hit = (await alarmsOf(engineIds[f.index])).find((a) => a.rule === f.rule);
-      if (hit) raised.set(f.scenario, hit);
-    }
-    return raised.size === FAULTS.length || null;
-  }, 120_000, 1000).catch(() => {
+  await waitFor(
+    async () => {
+      for (const f of FAULTS) {
+        if (raised.has(f.scenario)) continue;
+        const hit = (await alarmsOf(engineIds[f.index])).find((a) => a.rule === f.rule);
+        if (hit) raised.set(f.scenario, hit);
+      }
+      return raised.size === FAULTS.length || null;
+    },
+    120_000,
+    1000,
+  ).catch(() => {
     throw new Error(`within 2 minutes only ${[...raised.keys()].join(', ') || 'none'} raised their alarm`);
   });
   expect(Date.now() - started).toBeLessThan(120_000);
@@ -159,22 +204,30 @@ it('five faults on five engines: each raises its own alarm once, e-mails it, esc
   const leak = raised.get('leak')!;
   expect(leak.value).toBeLessThan(30);
 
-  const all = await waitFor(async () => {
-    const m = await mails();
-    return [...raised.values()].every((a) => m.some((x) => x.to === 'tech@jacketwatch.test' && x.text.includes(`/alarms/${a.id}`))) && m;
-  }, 30_000, 1000);
+  const all = await waitFor(
+    async () => {
+      const m = await mails();
+      return [...raised.values()].every((a) => m.some((x) => x.to === 'tech@jacketwatch.test' && x.text.includes(`/alarms/${a.id}`))) && m;
+    },
+    30_000,
+    1000,
+  );
   const overheatMail = all.find((m) => m.to === 'tech@jacketwatch.test' && m.text.includes(`/alarms/${overheat.id}`))!;
   expect(overheatMail.subject).toContain('Coolant temperature high');
   expect(overheatMail.text).toMatch(/°C \(\d+\.\d °F\)/);
 
   // nobody acknowledges: after ESCALATE_AFTER_S the backup on call is told, then the planners
   // (in the demo rota the planner is the backup, so the planner gets both)
-  const escalated = await waitFor(async () => {
-    const m = (await mails()).filter((x) => x.to === 'planner@jacketwatch.test' && x.text.includes(`/alarms/${overheat.id}`));
-    const backup = m.find((x) => x.text.includes('backup on call'));
-    const planners = m.find((x) => x.text.includes('as the planner'));
-    return backup && planners ? [backup, planners] : null;
-  }, (2 * ESCALATE_AFTER_S + 30) * 1000, 1000);
+  const escalated = await waitFor(
+    async () => {
+      const m = (await mails()).filter((x) => x.to === 'planner@jacketwatch.test' && x.text.includes(`/alarms/${overheat.id}`));
+      const backup = m.find((x) => x.text.includes('backup on call'));
+      const planners = m.find((x) => x.text.includes('as the planner'));
+      return backup && planners ? [backup, planners] : null;
+    },
+    (2 * ESCALATE_AFTER_S + 30) * 1000,
+    1000,
+  );
   for (const m of escalated) expect(m.subject).toMatch(/^Not yet acknowledged:/);
   const detail = (await api<{ escalationLevel: number; history: { event: string }[] }>('GET', `/api/alarms/${overheat.id}`, admin)).body;
   expect(detail.escalationLevel).toBe(2);

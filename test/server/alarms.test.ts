@@ -73,7 +73,12 @@ describe('rule engine on reading batches', () => {
     expect(a.closedAt).not.toBeNull();
     // in time order: the readings lie in the past, the e-mail went out when they arrived (now)
     expect(a.history.map((h: { event: string }) => h.event)).toEqual(['activate', 'clear', 'notified', 'acknowledge']);
-    expect(a.history[3]).toMatchObject({ fromState: 'returned-unacknowledged', toState: 'normal', userId: t.users.operator.id, note: 'seen on the local gauge' });
+    expect(a.history[3]).toMatchObject({
+      fromState: 'returned-unacknowledged',
+      toState: 'normal',
+      userId: t.users.operator.id,
+      note: 'seen on the local gauge',
+    });
     // closed: no longer in the active list
     expect((await alarmsOf('active')).find((x: { id: number }) => x.id === alarmId)).toBeUndefined();
   });
@@ -139,7 +144,11 @@ describe('shelving and roles', () => {
   });
 
   it('a planner shelves it; it leaves the active list and comes back by itself when the shelf time ends', async () => {
-    const r = await api().post(`/api/alarms/${id}/shelve`).set(auth(t.tokens.planner)).send({ minutes: 2, reason: 'pressure sensor being replaced' }).expect(200);
+    const r = await api()
+      .post(`/api/alarms/${id}/shelve`)
+      .set(auth(t.tokens.planner))
+      .send({ minutes: 2, reason: 'pressure sensor being replaced' })
+      .expect(200);
     expect(r.body.state).toBe('shelved');
     const until = new Date(r.body.shelvedUntil).getTime();
     expect(until - Date.now()).toBeGreaterThan(110_000);
@@ -167,7 +176,12 @@ describe('shelving and roles', () => {
     const s = (await api().get('/api/alarms/summary').set(auth(t.tokens.operator)).expect(200)).body;
     expect(s.byState.unacknowledged).toBeGreaterThanOrEqual(1);
     expect(s.flood.flooding).toBe(false);
-    const p = (await api().get(`/api/alarms/performance?from=${T0 - 1000}&to=${Date.now() + 1000}`).set(auth(t.tokens.operator)).expect(200)).body;
+    const p = (
+      await api()
+        .get(`/api/alarms/performance?from=${T0 - 1000}&to=${Date.now() + 1000}`)
+        .set(auth(t.tokens.operator))
+        .expect(200)
+    ).body;
     expect(p.total).toBeGreaterThanOrEqual(5);
     expect(p.mostFrequent[0].key).toContain('Fire pump 1/');
   });
@@ -175,27 +189,55 @@ describe('shelving and roles', () => {
   it('admin-only views: mail, outbox, rules', async () => {
     await api().get('/api/admin/mail').set(auth(t.tokens.planner)).expect(403);
     const mail = (await api().get('/api/admin/mail').set(auth(t.tokens.admin)).expect(200)).body;
-    expect(mail[0]).toEqual(expect.objectContaining({ id: expect.any(Number), to: expect.any(String), subject: expect.any(String), receivedAt: expect.any(String), text: expect.any(String) }));
+    expect(mail[0]).toEqual(
+      expect.objectContaining({
+        id: expect.any(Number),
+        to: expect.any(String),
+        subject: expect.any(String),
+        receivedAt: expect.any(String),
+        text: expect.any(String),
+      }),
+    );
     // the outbox sends on its own clock: wait until every message is delivered rather than expect it at once
-    const out = await waitFor(async () => {
-      const rows = (await api().get('/api/admin/outbox').set(auth(t.tokens.admin)).expect(200)).body as { sentAt: string | null }[];
-      return rows.length > 0 && rows.every((m) => m.sentAt !== null) && rows;
-    }, 15000, 200);
+    const out = await waitFor(
+      async () => {
+        const rows = (await api().get('/api/admin/outbox').set(auth(t.tokens.admin)).expect(200)).body as { sentAt: string | null }[];
+        return rows.length > 0 && rows.every((m) => m.sentAt !== null) && rows;
+      },
+      15000,
+      200,
+    );
     expect(out.length).toBeGreaterThan(0);
     await api().get('/api/rules').set(auth(t.tokens.operator)).expect(403);
     const rules = (await api().get('/api/rules').set(auth(t.tokens.admin)).expect(200)).body.rules;
-    expect(rules.map((r: { key: string }) => r.key)).toEqual(expect.arrayContaining(['coolant_temp_high', 'no_data', 'boiling_margin_low', 'conductivity_high']));
+    expect(rules.map((r: { key: string }) => r.key)).toEqual(
+      expect.arrayContaining(['coolant_temp_high', 'no_data', 'boiling_margin_low', 'conductivity_high']),
+    );
   });
 });
 
 describe('on-call rota routes', () => {
   it('planners change the rota, technicians only read it', async () => {
-    const body = { siteId: t.siteId, userId: t.users.backup.id, backupUserId: t.users.technician.id, startsAt: new Date(Date.now() + 86400_000).toISOString(), endsAt: new Date(Date.now() + 2 * 86400_000).toISOString() };
+    const body = {
+      siteId: t.siteId,
+      userId: t.users.backup.id,
+      backupUserId: t.users.technician.id,
+      startsAt: new Date(Date.now() + 86400_000).toISOString(),
+      endsAt: new Date(Date.now() + 2 * 86400_000).toISOString(),
+    };
     await api().post('/api/oncall').set(auth(t.tokens.technician)).send(body).expect(403);
     const created = (await api().post('/api/oncall').set(auth(t.tokens.planner)).send(body).expect(201)).body;
     expect(created).toMatchObject({ siteId: t.siteId, userId: t.users.backup.id, userName: 'Test backup' });
-    await api().post('/api/oncall').set(auth(t.tokens.planner)).send({ ...body, endsAt: body.startsAt }).expect(400);
-    await api().post('/api/oncall').set(auth(t.tokens.planner)).send({ ...body, userId: t.users.operator.id }).expect(400);
+    await api()
+      .post('/api/oncall')
+      .set(auth(t.tokens.planner))
+      .send({ ...body, endsAt: body.startsAt })
+      .expect(400);
+    await api()
+      .post('/api/oncall')
+      .set(auth(t.tokens.planner))
+      .send({ ...body, userId: t.users.operator.id })
+      .expect(400);
     await api().patch(`/api/oncall/${created.id}`).set(auth(t.tokens.planner)).send({ backupUserId: null }).expect(200);
     const list = (await api().get(`/api/oncall?siteId=${t.siteId}`).set(auth(t.tokens.technician)).expect(200)).body;
     expect(list).toHaveLength(2);
@@ -249,9 +291,22 @@ describe('engine overrides, out of service and the preview', () => {
   it('an admin override changes the limit; the preview replays stored readings', async () => {
     const engineId = t.engineId;
     await api().put(`/api/rules/engines/${engineId}`).set(auth(t.tokens.planner)).send({ rules: [] }).expect(403);
-    await api().put(`/api/rules/engines/${engineId}`).set(auth(t.tokens.admin)).send({ rules: [{ rule: 'nonsense', enabled: true }] }).expect(400);
-    const r = (await api().put(`/api/rules/engines/${engineId}`).set(auth(t.tokens.admin)).send({ rules: [{ rule: 'coolant_temp_high', params: { limit: 92 } }] }).expect(200)).body;
-    expect(r.rules.find((x: { key: string }) => x.key === 'coolant_temp_high')).toMatchObject({ overridden: true, params: expect.objectContaining({ limit: 92, deadband: 2 }) });
+    await api()
+      .put(`/api/rules/engines/${engineId}`)
+      .set(auth(t.tokens.admin))
+      .send({ rules: [{ rule: 'nonsense', enabled: true }] })
+      .expect(400);
+    const r = (
+      await api()
+        .put(`/api/rules/engines/${engineId}`)
+        .set(auth(t.tokens.admin))
+        .send({ rules: [{ rule: 'coolant_temp_high', params: { limit: 92 } }] })
+        .expect(200)
+    ).body;
+    expect(r.rules.find((x: { key: string }) => x.key === 'coolant_temp_high')).toMatchObject({
+      overridden: true,
+      params: expect.objectContaining({ limit: 92, deadband: 2 }),
+    });
 
     // two hours of stored readings: one excursion to 95 °C for 5 minutes
     const start = Date.now() - 3 * 3600_000;
@@ -261,7 +316,8 @@ describe('engine overrides, out of service and the preview', () => {
       const temp = s >= 3000 && s < 3300 ? 95 : 84;
       rows.push(`(${engineId}, ${CHANNELS.coolant_temp.code}, ${ts}, ${temp}, 0)`, `(${engineId}, ${CHANNELS.engine_speed.code}, ${ts}, 1800, 0)`);
     }
-    for (let i = 0; i < rows.length; i += 400) await t.ctx.sequelize.query(`INSERT INTO readings (engine_id, channel, ts, value, quality) VALUES ${rows.slice(i, i + 400).join(',')}`);
+    for (let i = 0; i < rows.length; i += 400)
+      await t.ctx.sequelize.query(`INSERT INTO readings (engine_id, channel, ts, value, quality) VALUES ${rows.slice(i, i + 400).join(',')}`);
 
     const from = start - 1000;
     const to = start + 7200_000;
@@ -270,8 +326,18 @@ describe('engine overrides, out of service and the preview', () => {
     expect(p.alarms).toHaveLength(1);
     expect(new Date(p.alarms[0].raisedAt).getTime()).toBe(start + 3010_000);
     // with the profile's 98 °C the same data raises nothing
-    const p98 = (await api().post('/api/rules/preview').set(auth(t.tokens.admin)).send({ engineId, rule: 'coolant_temp_high', params: { limit: 98 }, from, to }).expect(200)).body;
+    const p98 = (
+      await api()
+        .post('/api/rules/preview')
+        .set(auth(t.tokens.admin))
+        .send({ engineId, rule: 'coolant_temp_high', params: { limit: 98 }, from, to })
+        .expect(200)
+    ).body;
     expect(p98.alarms).toHaveLength(0);
-    await api().post('/api/rules/preview').set(auth(t.tokens.admin)).send({ engineId, rule: 'coolant_temp_high', from: to - 8 * 86400_000, to }).expect(400);
+    await api()
+      .post('/api/rules/preview')
+      .set(auth(t.tokens.admin))
+      .send({ engineId, rule: 'coolant_temp_high', from: to - 8 * 86400_000, to })
+      .expect(400);
   });
 });

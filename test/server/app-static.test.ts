@@ -52,7 +52,12 @@ describe('static app with SPA fallback', () => {
     fs.mkdirSync(dir);
     fs.writeFileSync(path.join(dir, 'index.html'), '<!doctype html><title>jw</title>');
     const app = createApp(t.ctx, { staticDir: dir });
-    for (const res of [await request(app).get('/'), await request(app).get('/api/health'), await request(app).get('/api/engines'), await request(app).get('/nope.js')]) {
+    for (const res of [
+      await request(app).get('/'),
+      await request(app).get('/api/health'),
+      await request(app).get('/api/engines'),
+      await request(app).get('/nope.js'),
+    ]) {
       const csp = res.headers['content-security-policy'];
       expect(csp).toMatch(/script-src 'self'(;|$)/);
       expect(csp).not.toMatch(/script-src[^;]*unsafe-inline/);

@@ -25,10 +25,14 @@ const connect = async (d: SeededDevice, password = d.secret): Promise<MqttClient
   return c;
 };
 
-
 const countReadings = (engineId: number) => db.get<{ n: number }>('SELECT COUNT(*) AS n FROM readings WHERE engine_id = ?', [engineId]).then((r) => r.n);
 const rejections = async (deviceId: number) =>
-  Object.fromEntries((await db.all<{ reason: string; count: number }>('SELECT reason, count FROM device_rejections WHERE device_id = ?', [deviceId])).map((r) => [r.reason, r.count]));
+  Object.fromEntries(
+    (await db.all<{ reason: string; count: number }>('SELECT reason, count FROM device_rejections WHERE device_id = ?', [deviceId])).map((r) => [
+      r.reason,
+      r.count,
+    ]),
+  );
 
 beforeAll(async () => {
   server = await startServerProcess();
@@ -46,15 +50,33 @@ test('a good device is accepted; its readings land in readings and rollups', asy
   const d = fleet[0];
   const c = await connect(d);
   const ts = Date.now() - 10_000;
-  await c.publishAsync(telemetryTopic(d.engineId), JSON.stringify({ ts, values: { coolant_temp: 80, coolant_pressure: { value: 15, unit: 'psi' } } }), { qos: 1 });
-  await c.publishAsync(telemetryTopic(d.engineId), JSON.stringify({ samples: [{ ts: ts + 1000, values: { coolant_temp: 84 } }, { ts: new Date(ts + 2000).toISOString(), values: { coolant_temp: 82 } }] }), { qos: 1 });
-  await until('4 readings', () => countReadings(d.engineId), (n) => n === 4);
+  await c.publishAsync(telemetryTopic(d.engineId), JSON.stringify({ ts, values: { coolant_temp: 80, coolant_pressure: { value: 15, unit: 'psi' } } }), {
+    qos: 1,
+  });
+  await c.publishAsync(
+    telemetryTopic(d.engineId),
+    JSON.stringify({
+      samples: [
+        { ts: ts + 1000, values: { coolant_temp: 84 } },
+        { ts: new Date(ts + 2000).toISOString(), values: { coolant_temp: 82 } },
+      ],
+    }),
+    { qos: 1 },
+  );
+  await until(
+    '4 readings',
+    () => countReadings(d.engineId),
+    (n) => n === 4,
+  );
   const rows = await db.all('SELECT channel, ts, value, quality FROM readings WHERE engine_id = ? ORDER BY ts, channel', [d.engineId]);
   expect(rows[0]).toEqual({ channel: 1, ts, value: 80, quality: 0 });
   expect(rows[1].channel).toBe(2);
   expect(rows[1].value).toBeCloseTo(15 * 6.894757, 4); // NIST SP 811 B.8: 1 psi = 6.894 757 kPa
   // the three temperatures may straddle a minute boundary: sum the per-minute rows
-  const roll = await db.get('SELECT MIN("min") AS mn, MAX("max") AS mx, SUM("sum") AS s, SUM("count") AS n, SUM(bad_count) AS bad FROM rollups WHERE engine_id = ? AND channel = 1', [d.engineId]);
+  const roll = await db.get(
+    'SELECT MIN("min") AS mn, MAX("max") AS mx, SUM("sum") AS s, SUM("count") AS n, SUM(bad_count) AS bad FROM rollups WHERE engine_id = ? AND channel = 1',
+    [d.engineId],
+  );
   expect(roll).toEqual({ mn: 80, mx: 84, s: 246, n: 3, bad: 0 });
   const minutes = await db.all('SELECT minute FROM rollups WHERE engine_id = ? AND channel = 1', [d.engineId]);
   for (const m of minutes) expect(m.minute % 60_000).toBe(0);
@@ -71,7 +93,11 @@ test("publishing to another engine's topic is refused and counted as wrong_topic
   const closed = new Promise<void>((resolve) => c.once('close', () => resolve()));
   c.publish(telemetryTopic(fleet[3].engineId), JSON.stringify({ ts: Date.now(), values: { coolant_temp: 99 } }), { qos: 1 });
   await closed;
-  await until('wrong_topic persisted', () => rejections(d.deviceId), (r) => r.wrong_topic === 1);
+  await until(
+    'wrong_topic persisted',
+    () => rejections(d.deviceId),
+    (r) => r.wrong_topic === 1,
+  );
   expect(await countReadings(fleet[3].engineId)).toBe(0);
 });
 
@@ -100,8 +126,16 @@ test('every bad payload kind is rejected and counted; the good readings around t
   }
   // one payload mixing a good value with a bad one: the good one is kept
   await c.publishAsync(topic, JSON.stringify({ ts: now - 1000, values: { coolant_temp: 90, coolant_pressure: { value: 2, unit: 'degF' } } }), { qos: 1 });
-  await until('9 good readings', () => countReadings(d.engineId), (n) => n === 9);
-  const r = await until('rejections persisted', () => rejections(d.deviceId), (x) => Object.keys(x).length >= 8);
+  await until(
+    '9 good readings',
+    () => countReadings(d.engineId),
+    (n) => n === 9,
+  );
+  const r = await until(
+    'rejections persisted',
+    () => rejections(d.deviceId),
+    (x) => Object.keys(x).length >= 8,
+  );
   expect(r).toEqual({ not_json: 1, too_large: 1, schema: 1, not_finite: 1, future_timestamp: 1, old_timestamp: 1, unknown_channel: 1, bad_unit: 2 });
   const detail = await db.get('SELECT last_detail FROM device_rejections WHERE device_id = ? AND reason = ?', [d.deviceId, 'unknown_channel']);
   expect(detail.last_detail).toContain('oil_temp');
@@ -116,11 +150,23 @@ test('an out-of-range value is stored with quality 1 and counted as bad in the r
   const c = await connect(d);
   const ts = Date.now() - 5000;
   await c.publishAsync(telemetryTopic(d.engineId), JSON.stringify({ ts, values: { coolant_temp: 400, engine_speed: 1500 } }), { qos: 1 });
-  await until('2 readings', () => countReadings(d.engineId), (n) => n === 2);
+  await until(
+    '2 readings',
+    () => countReadings(d.engineId),
+    (n) => n === 2,
+  );
   expect(await db.get('SELECT value, quality FROM readings WHERE engine_id = ? AND channel = 1', [d.engineId])).toEqual({ value: 400, quality: 1 });
-  expect(await db.get('SELECT "min", "max", "count", bad_count FROM rollups WHERE engine_id = ? AND channel = 1', [d.engineId]))
-    .toEqual({ min: null, max: null, count: 0, bad_count: 1 });
-  await until('out_of_range persisted', () => rejections(d.deviceId), (x) => x.out_of_range === 1);
+  expect(await db.get('SELECT "min", "max", "count", bad_count FROM rollups WHERE engine_id = ? AND channel = 1', [d.engineId])).toEqual({
+    min: null,
+    max: null,
+    count: 0,
+    bad_count: 1,
+  });
+  await until(
+    'out_of_range persisted',
+    () => rejections(d.deviceId),
+    (x) => x.out_of_range === 1,
+  );
 });
 
 test('socket.io: a bad token is refused at the handshake; a good token receives readings', async () => {
@@ -132,11 +178,17 @@ test('socket.io: a bad token is refused at the handshake; a good token receives 
 
   // the handshake checks the session against the users table: the user must exist and be enabled
   const now = new Date().toISOString();
-  const userId = await db.run(`INSERT INTO users (email, name, password_hash, role, disabled, created_at, updated_at) VALUES ('operator@example.test', 'Test operator', 'x', 'operator', FALSE, ?, ?)`, [now, now]);
+  const userId = await db.run(
+    `INSERT INTO users (email, name, password_hash, role, disabled, created_at, updated_at) VALUES ('operator@example.test', 'Test operator', 'x', 'operator', FALSE, ?, ?)`,
+    [now, now],
+  );
   const tokens = createTokenService(loadJwtSecret(server.dataDir));
   const token = tokens.sign({ id: userId, email: 'operator@example.test', role: 'operator' });
   const sock: Socket = ioClient(url, { auth: { token }, transports: ['websocket'], reconnection: false });
-  await new Promise<void>((resolve, reject) => { sock.once('connect', () => resolve()); sock.once('connect_error', reject); });
+  await new Promise<void>((resolve, reject) => {
+    sock.once('connect', () => resolve());
+    sock.once('connect_error', reject);
+  });
   const d = fleet[0];
   const joined = await sock.emitWithAck('watch', { engineIds: [d.engineId] });
   expect(joined.rooms).toEqual([`engine:${d.engineId}`]);
@@ -154,13 +206,27 @@ test('a redelivered or repeated reading is stored once, counted once in the roll
   const c = await connect(d);
   const ts = Date.now() - 30_000;
   const before = (await server.health()).ingest.duplicate;
-  const payload = JSON.stringify({ samples: [{ ts, values: { coolant_temp: 70, engine_speed: 1500 } }, { ts: ts + 1, values: { coolant_temp: 72 } }] });
+  const payload = JSON.stringify({
+    samples: [
+      { ts, values: { coolant_temp: 70, engine_speed: 1500 } },
+      { ts: ts + 1, values: { coolant_temp: 72 } },
+    ],
+  });
   await c.publishAsync(telemetryTopic(d.engineId), payload, { qos: 1 });
   // the PUBACK means stored: the rows are in the file once publishAsync resolves
   expect(await countReadings(d.engineId)).toBe(3);
   await c.publishAsync(telemetryTopic(d.engineId), payload, { qos: 1 }); // as a QoS 1 redelivery would
   // one message repeating a reading of its own, next to a new one
-  await c.publishAsync(telemetryTopic(d.engineId), JSON.stringify({ samples: [{ ts: ts + 2, values: { coolant_temp: 74 } }, { ts: ts + 2, values: { coolant_temp: 74 } }] }), { qos: 1 });
+  await c.publishAsync(
+    telemetryTopic(d.engineId),
+    JSON.stringify({
+      samples: [
+        { ts: ts + 2, values: { coolant_temp: 74 } },
+        { ts: ts + 2, values: { coolant_temp: 74 } },
+      ],
+    }),
+    { qos: 1 },
+  );
   expect(await countReadings(d.engineId)).toBe(4);
   expect((await server.health()).ingest.duplicate - before).toBe(4);
   const roll = await db.get('SELECT SUM("count") AS n, SUM("sum") AS s FROM rollups WHERE engine_id = ? AND channel = 1', [d.engineId]);
@@ -184,7 +250,13 @@ test('payload limits agree: the largest batch the contract allows is accepted; o
   const v = (x: number, unit: string) => ({ value: x + 0.1234567890123, unit });
   const samples = Array.from({ length: MAX_SAMPLES }, (_, i) => ({
     ts: new Date(base + i * 1000).toISOString().replace('Z', '000000+00:00'),
-    values: { coolant_temp: v(80, 'degC'), coolant_pressure: v(95, 'kPa'), coolant_conductivity: v(2400, 'uS/cm'), engine_speed: v(1800, 'rpm'), ambient_temp: v(20, 'degC') },
+    values: {
+      coolant_temp: v(80, 'degC'),
+      coolant_pressure: v(95, 'kPa'),
+      coolant_conductivity: v(2400, 'uS/cm'),
+      engine_speed: v(1800, 'rpm'),
+      ambient_temp: v(20, 'degC'),
+    },
   }));
   const largest = JSON.stringify({ samples });
   expect(Buffer.byteLength(largest)).toBeLessThanOrEqual(MAX_PAYLOAD_BYTES);
@@ -198,26 +270,44 @@ test('payload limits agree: the largest batch the contract allows is accepted; o
   await c.publishAsync(telemetryTopic(d.engineId), atLimit, { qos: 1 });
   expect(await countReadings(d.engineId)).toBe(MAX_SAMPLES * 5 + 1);
   await c.publishAsync(telemetryTopic(d.engineId), atLimit.replace('"pad":"', '"pad":"x'), { qos: 1 });
-  await until('too_large persisted', () => rejections(d.deviceId), (r) => r.too_large === before + 1);
+  await until(
+    'too_large persisted',
+    () => rejections(d.deviceId),
+    (r) => r.too_large === before + 1,
+  );
   expect(c.connected).toBe(true);
 });
 
 test('a CONNECT declaring a 200 MB packet is closed at once, before authentication, and counted', async () => {
   const now = new Date().toISOString();
-  const adminId = await db.run(`INSERT INTO users (email, name, password_hash, role, disabled, created_at, updated_at) VALUES (?, ?, ?, 'admin', FALSE, ?, ?)`,
-    ['broker-admin@example.test', 'Broker admin', bcrypt.hashSync('unused-secret-1', 4), now, now]);
+  const adminId = await db.run(
+    `INSERT INTO users (email, name, password_hash, role, disabled, created_at, updated_at) VALUES (?, ?, ?, 'admin', FALSE, ?, ?)`,
+    ['broker-admin@example.test', 'Broker admin', bcrypt.hashSync('unused-secret-1', 4), now, now],
+  );
   const token = createTokenService(loadJwtSecret(server.dataDir)).sign({ id: adminId, email: 'broker-admin@example.test', role: 'admin' });
-  const counters = async () => ((await (await fetch(`${server.url}/api/admin/ingest`, { headers: { authorization: `Bearer ${token}` } })).json()) as IngestReport).counters!;
+  const counters = async () =>
+    ((await (await fetch(`${server.url}/api/admin/ingest`, { headers: { authorization: `Bearer ${token}` } })).json()) as IngestReport).counters!;
   const before = (await counters()).oversizePacketsClosed;
   // fixed header of a CONNECT (type 1) with remaining length 200 MiB (4-byte variable length), then the
   // start of a body; a broker that buffers would wait here for the rest
   const declared = 200 * 1024 * 1024;
   const len: number[] = [];
-  for (let x = declared; ; ) { let b = x % 128; x = Math.floor(x / 128); if (x > 0) b |= 0x80; len.push(b); if (x === 0) break; }
-  const sockets = await Promise.all([0, 1, 2, 3].map(() => new Promise<net.Socket>((resolve, reject) => {
-    const s = net.connect(server.mqttPort, '127.0.0.1', () => resolve(s));
-    s.once('error', reject);
-  })));
+  for (let x = declared; ;) {
+    let b = x % 128;
+    x = Math.floor(x / 128);
+    if (x > 0) b |= 0x80;
+    len.push(b);
+    if (x === 0) break;
+  }
+  const sockets = await Promise.all(
+    [0, 1, 2, 3].map(
+      () =>
+        new Promise<net.Socket>((resolve, reject) => {
+          const s = net.connect(server.mqttPort, '127.0.0.1', () => resolve(s));
+          s.once('error', reject);
+        }),
+    ),
+  );
   const closed = sockets.map((s) => new Promise<void>((resolve) => s.once('close', () => resolve())));
   for (const s of sockets) {
     s.on('error', () => undefined); // a reset while writing is the expected end
@@ -233,7 +323,11 @@ test('a CONNECT declaring a 200 MB packet is closed at once, before authenticati
 // last: it stops the server
 test('SIGTERM flushes: every reading acknowledged at QoS 1 is in the file after exit', async () => {
   const d = fleet[0];
-  await until('earlier readings written', () => server.health(), (h) => h.ingest.buffered === 0 && h.ingest.stored + h.ingest.duplicate === h.ingest.received);
+  await until(
+    'earlier readings written',
+    () => server.health(),
+    (h) => h.ingest.buffered === 0 && h.ingest.stored + h.ingest.duplicate === h.ingest.received,
+  );
   const before = await countReadings(d.engineId);
   const c = await connect(d);
   const base = Date.now() - 120_000;

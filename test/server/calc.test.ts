@@ -17,12 +17,18 @@ beforeAll(async () => {
 });
 afterAll(() => t.close());
 
-const post = (path: string, body: unknown, role: keyof TestApp['tokens'] = 'operator') => request(t.app).post(`/api/calc/${path}`).set(auth(t.tokens[role])).send(body as object);
+const post = (path: string, body: unknown, role: keyof TestApp['tokens'] = 'operator') =>
+  request(t.app)
+    .post(`/api/calc/${path}`)
+    .set(auth(t.tokens[role]))
+    .send(body as object);
 const GAL = 3.785411784; // NIST SP 811
 
 describe('freeze point and glycol needed', () => {
   it.each([
-    [10, -2.2], [30, -12.8], [50, -33.3],
+    [10, -2.2],
+    [30, -12.8],
+    [50, -33.3],
   ])("PG %d vol %% -> %f °C (Lange's 15th ed., table 5.13)", async (percent, fp) => {
     const res = await post('freeze-point', { glycol: 'propylene', percent, basis: 'volume' }).expect(200);
     expect(res.body.freezePointC).toBeCloseTo(fp, 6);
@@ -48,7 +54,10 @@ describe('freeze point and glycol needed', () => {
   // Contract: 0-60 % for both glycols on both bases. Table ends: ASHRAE 60 mass % EG -48.5 °C; CoolProp 8.0 AEG
   // (ASHRAE fit) 60 vol % EG -52.0 °C; CoolProp 8.0 APG (ASHRAE fit) 60 vol % PG -51.1 °C (computed outside the project).
   it.each([
-    ['ethylene', 'mass', 60, -48.5], ['ethylene', 'volume', 60, -52.0], ['propylene', 'volume', 60, -51.1], ['propylene', 'volume', 55, -41.6],
+    ['ethylene', 'mass', 60, -48.5],
+    ['ethylene', 'volume', 60, -52.0],
+    ['propylene', 'volume', 60, -51.1],
+    ['propylene', 'volume', 55, -41.6],
   ])('%s %s %d %% -> %f °C, no warning at 60 %%, and the inverse gives the share back', async (glycol, basis, percent, fp) => {
     const res = await post('freeze-point', { glycol, percent, basis }).expect(200);
     expect(res.body.freezePointC).toBeCloseTo(fp as number, 6);
@@ -160,7 +169,14 @@ describe('mix correction, make-up water, initial charge', () => {
     expect(res.body.resultingPercent).toBeCloseTo(50, 9);
   });
   it('a premix equal to the target: drain completely and refill with premix; the additive dilution and its dose (mass balance, NIST SP 811 gallon)', async () => {
-    const res = await post('mix-correction', { capacityL: 100, measuredPercent: 40, targetPercent: 50, premixPercent: 50, scaUnitsPerGal: 2, liquidUnitsPerLitre: 10 }).expect(200);
+    const res = await post('mix-correction', {
+      capacityL: 100,
+      measuredPercent: 40,
+      targetPercent: 50,
+      premixPercent: 50,
+      scaUnitsPerGal: 2,
+      liquidUnitsPerLitre: 10,
+    }).expect(200);
     expect(res.body.fullDrain).toBe(true);
     expect(res.body.drainL).toBe(100);
     expect(res.body.reasons[0]).toMatch(/drain the system completely/);
@@ -186,7 +202,11 @@ describe('mix correction, make-up water, initial charge', () => {
   });
   it('the additive profile set by an admin supplies the strength', async () => {
     await request(t.app).put('/api/additive-profile').set(auth(t.tokens.technician)).send({ name: 'x', liquidUnitsPerLitre: 10, filterSizes: [] }).expect(403);
-    await request(t.app).put('/api/additive-profile').set(auth(t.tokens.admin)).send({ name: 'Shop liquid', liquidUnitsPerLitre: 10, filterSizes: [{ label: 'Small', prechargeUnits: 4 }] }).expect(200);
+    await request(t.app)
+      .put('/api/additive-profile')
+      .set(auth(t.tokens.admin))
+      .send({ name: 'Shop liquid', liquidUnitsPerLitre: 10, filterSizes: [{ label: 'Small', prechargeUnits: 4 }] })
+      .expect(200);
     const res = await post('initial-charge', { capacityL: 10 * GAL, filterPrechargeUnits: 4 }).expect(200);
     expect(res.body.liquidL).toBeCloseTo(0.8, 9);
     await t.ctx.models.AdditiveProfile.destroy({ where: {} });
@@ -225,6 +245,8 @@ describe('bad input is 400 naming the field', () => {
   });
   it('is in the OpenAPI document', async () => {
     const res = await request(t.app).get('/api/openapi.json').expect(200);
-    expect(Object.keys(res.body.paths)).toEqual(expect.arrayContaining(['/api/calc/additive', '/api/calc/boiling-point', '/api/coolant-tests/import', '/api/due-list']));
+    expect(Object.keys(res.body.paths)).toEqual(
+      expect.arrayContaining(['/api/calc/additive', '/api/calc/boiling-point', '/api/coolant-tests/import', '/api/due-list']),
+    );
   });
 });

@@ -35,7 +35,17 @@ describe('one configuration schema', () => {
 
   it('gives the documented defaults for an empty environment', () => {
     const c = loadConfig({});
-    expect(c).toMatchObject({ port: 3000, mqttPort: 1883, smtpPort: 2525, logLevel: 'info', mailFrom: 'jacketwatch@localhost', host: '127.0.0.1', trustProxy: false, jwtSecret: null, mqttTls: null });
+    expect(c).toMatchObject({
+      port: 3000,
+      mqttPort: 1883,
+      smtpPort: 2525,
+      logLevel: 'info',
+      mailFrom: 'jacketwatch@localhost',
+      host: '127.0.0.1',
+      trustProxy: false,
+      jwtSecret: null,
+      mqttTls: null,
+    });
     expect(c.publicUrl).toBe('http://localhost:3000');
     expect(c.retentionEveryMs).toBe(3_600_000);
     expect(loadAlarmSettings({})).toMatchObject({ escalateAfterMs: 900_000, notifyMinPriority: 'medium', mailParallel: 4, chatterCount: 3 });

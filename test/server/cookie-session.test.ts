@@ -82,14 +82,28 @@ describe('cookie session over HTTP', () => {
     await request(t.app).post('/api/sites').set('cookie', cookie).set(CSRF_HEADER, '1').set('sec-fetch-site', 'same-origin').send(site).expect(201);
     // a bearer client needs neither (a browser never adds Authorization by itself)
     const token = t.tokens.admin;
-    await request(t.app).post('/api/sites').set(auth(token)).send({ ...site, name: 'Bearer site' }).expect(201);
+    await request(t.app)
+      .post('/api/sites')
+      .set(auth(token))
+      .send({ ...site, name: 'Bearer site' })
+      .expect(201);
     // a cookie sign-in from another site is refused too (the attacker's account in the victim's browser)
     await request(t.app).post('/api/auth/login').send({ email: 'admin@example.test', password: PASSWORD, session: 'cookie' }).expect(403);
-    await request(t.app).post('/api/auth/login').set(CSRF_HEADER, '1').set('sec-fetch-site', 'cross-site').send({ email: 'admin@example.test', password: PASSWORD, session: 'cookie' }).expect(403);
+    await request(t.app)
+      .post('/api/auth/login')
+      .set(CSRF_HEADER, '1')
+      .set('sec-fetch-site', 'cross-site')
+      .send({ email: 'admin@example.test', password: PASSWORD, session: 'cookie' })
+      .expect(403);
   });
 
   test('roles hold with the cookie as with a bearer token', async () => {
-    for (const [role, status] of [['operator', 403], ['technician', 403], ['planner', 403], ['admin', 200]] as const) {
+    for (const [role, status] of [
+      ['operator', 403],
+      ['technician', 403],
+      ['planner', 403],
+      ['admin', 200],
+    ] as const) {
       const cookie = sessionPair((await cookieLogin(t.app, `${role}@example.test`).expect(200)).headers['set-cookie']);
       await request(t.app).get('/api/users').set('cookie', cookie).expect(status);
     }
@@ -127,7 +141,13 @@ describe('cookie session on socket.io, and work-order events by site (real serve
   const sockets: Socket[] = [];
   const ADMIN_PW = 'lantern-orchard-kettle-58';
 
-  async function api(method: string, path: string, token: string | null, body?: unknown, headers: Record<string, string> = {}): Promise<{ status: number; body: { token?: string; id?: number; [k: string]: unknown }; setCookie: string[] }> {
+  async function api(
+    method: string,
+    path: string,
+    token: string | null,
+    body?: unknown,
+    headers: Record<string, string> = {},
+  ): Promise<{ status: number; body: { token?: string; id?: number; [k: string]: unknown }; setCookie: string[] }> {
     const res = await fetch(server.url + path, {
       method,
       headers: { 'content-type': 'application/json', ...(token ? { authorization: `Bearer ${token}` } : {}), ...headers },
@@ -139,8 +159,14 @@ describe('cookie session on socket.io, and work-order events by site (real serve
 
   async function addUser(email: string, role: string, password: string, siteIds: number[] = []): Promise<number> {
     const now = new Date().toISOString();
-    const id = await db.run(`INSERT INTO users (email, name, password_hash, role, disabled, created_at, updated_at) VALUES (?, ?, ?, ?, FALSE, ?, ?)`,
-      [email, `Test ${role}`, bcrypt.hashSync(password, 4), role, now, now]);
+    const id = await db.run(`INSERT INTO users (email, name, password_hash, role, disabled, created_at, updated_at) VALUES (?, ?, ?, ?, FALSE, ?, ?)`, [
+      email,
+      `Test ${role}`,
+      bcrypt.hashSync(password, 4),
+      role,
+      now,
+      now,
+    ]);
     for (const siteId of siteIds) await db.run(`INSERT INTO user_sites (user_id, site_id) VALUES (?, ?)`, [id, siteId]);
     return id;
   }
@@ -161,8 +187,16 @@ describe('cookie session on socket.io, and work-order events by site (real serve
     sockets.push(sock);
     return sock;
   }
-  const connected = (sock: Socket) => new Promise<void>((resolve, reject) => { sock.once('connect', () => resolve()); sock.once('connect_error', reject); });
-  const refused = (sock: Socket) => new Promise<Error>((resolve, reject) => { sock.once('connect', () => reject(new Error('connected'))); sock.once('connect_error', resolve); });
+  const connected = (sock: Socket) =>
+    new Promise<void>((resolve, reject) => {
+      sock.once('connect', () => resolve());
+      sock.once('connect_error', reject);
+    });
+  const refused = (sock: Socket) =>
+    new Promise<Error>((resolve, reject) => {
+      sock.once('connect', () => reject(new Error('connected')));
+      sock.once('connect_error', resolve);
+    });
 
   beforeAll(async () => {
     server = await startServerProcess();
@@ -231,12 +265,24 @@ describe('cookie session on socket.io, and work-order events by site (real serve
     // an order at the other site first: the all-sites user sees it
     const other = await api('POST', '/api/work-orders', adminToken, { engineId: siteB.engineId, kind: 'filter-change' });
     expect(other.status).toBe(201);
-    await until('the other site\'s order pushed to the all-sites user', async () => toAll, (xs) => xs.some((m) => m.id === other.body.id));
+    await until(
+      "the other site's order pushed to the all-sites user",
+      async () => toAll,
+      (xs) => xs.some((m) => m.id === other.body.id),
+    );
     // then one at the limited user's site: it is the first event they get (events of one server arrive in order)
     const own = await api('POST', '/api/work-orders', adminToken, { engineId: siteA.engineId, kind: 'filter-change' });
     expect(own.status).toBe(201);
-    await until('the own site\'s order pushed to the limited user', async () => toLimited, (xs) => xs.length > 0);
-    await until('the own site\'s order pushed to the all-sites user', async () => toAll, (xs) => xs.some((m) => m.id === own.body.id));
+    await until(
+      "the own site's order pushed to the limited user",
+      async () => toLimited,
+      (xs) => xs.length > 0,
+    );
+    await until(
+      "the own site's order pushed to the all-sites user",
+      async () => toAll,
+      (xs) => xs.some((m) => m.id === own.body.id),
+    );
     expect(toLimited[0]).toMatchObject({ id: own.body.id, engineId: siteA.engineId });
     expect(toLimited.map((m) => m.engineId)).not.toContain(siteB.engineId);
     // one event per change, even for a socket that is in several of the rooms

@@ -13,19 +13,35 @@ let engineId: number;
 beforeAll(async () => {
   t = await makeTestApp();
   siteId = (await t.ctx.models.Site.create({ name: 'Hill reservoir', timeZone: 'America/Denver' })).id;
-  engineId = (await t.ctx.models.Engine.create({
-    siteId, name: 'Fire pump 1', duty: 'standby', glycolType: 'propylene', glycolPercent: 40, capPressureKpa: 100, oilDrainIntervalH: 250, capacityL: 40, coolantFamily: 'conventional',
-  })).id;
+  engineId = (
+    await t.ctx.models.Engine.create({
+      siteId,
+      name: 'Fire pump 1',
+      duty: 'standby',
+      glycolType: 'propylene',
+      glycolPercent: 40,
+      capPressureKpa: 100,
+      oilDrainIntervalH: 250,
+      capacityL: 40,
+      coolantFamily: 'conventional',
+    })
+  ).id;
 });
 afterAll(() => t.close());
 
 const as = (role: keyof TestApp['tokens']) => auth(t.tokens[role]);
-const record = (body: object, role: keyof TestApp['tokens'] = 'technician') => request(t.app).post(`/api/engines/${engineId}/coolant-tests`).set(as(role)).send({ method: 'lab', ...body });
+const record = (body: object, role: keyof TestApp['tokens'] = 'technician') =>
+  request(t.app)
+    .post(`/api/engines/${engineId}/coolant-tests`)
+    .set(as(role))
+    .send({ method: 'lab', ...body });
 
 describe('site design low temperature', () => {
   it('admin sets designLowTempC by PATCH; others may not; bad values are 400 naming the field', async () => {
     await request(t.app).patch(`/api/sites/${siteId}`).set(as('technician')).send({ designLowTempC: -30 }).expect(403);
-    expect((await request(t.app).patch(`/api/sites/${siteId}`).set(as('admin')).send({ designLowTempC: 'cold' }).expect(400)).body.field).toBe('designLowTempC');
+    expect((await request(t.app).patch(`/api/sites/${siteId}`).set(as('admin')).send({ designLowTempC: 'cold' }).expect(400)).body.field).toBe(
+      'designLowTempC',
+    );
     expect((await request(t.app).patch(`/api/sites/${siteId}`).set(as('admin')).send({ designLowTempC: -100 }).expect(400)).body.field).toBe('designLowTempC');
     const res = await request(t.app).patch(`/api/sites/${siteId}`).set(as('admin')).send({ designLowTempC: -30 }).expect(200);
     expect(res.body.designLowTempC).toBe(-30);
@@ -79,7 +95,11 @@ describe('a coolant test with inhibitor readings', () => {
   it('the new fields are optional; bad values are 400 naming the field', async () => {
     const res = await record({ glycolPercent: 55 }).expect(201);
     expect(res.body.nitritePpm).toBeNull();
-    for (const [field, value] of [['nitritePpm', -1], ['molybdatePpm', 'lots'], ['reserveAlkalinityMl', 1000]] as const) {
+    for (const [field, value] of [
+      ['nitritePpm', -1],
+      ['molybdatePpm', 'lots'],
+      ['reserveAlkalinityMl', 1000],
+    ] as const) {
       expect((await record({ [field]: value }).expect(400)).body.field).toBe(field);
     }
   });
@@ -103,36 +123,70 @@ describe('chemistry limits (admin setting)', () => {
 describe('lab CSV with nitrite and molybdate columns', () => {
   it('stores them and judges them', async () => {
     const csv = ['engine_id,tested_at,nitrite_ppm,molybdate_ppm,ph', `${engineId},2026-04-01,4000,200,8.8`].join('\n');
-    const res = await request(t.app).post('/api/coolant-tests/import').set(as('technician')).attach('file', Buffer.from(csv), { filename: 'lab.csv', contentType: 'text/csv' }).expect(201);
+    const res = await request(t.app)
+      .post('/api/coolant-tests/import')
+      .set(as('technician'))
+      .attach('file', Buffer.from(csv), { filename: 'lab.csv', contentType: 'text/csv' })
+      .expect(201);
     expect(res.body.stored).toBe(1);
     const row = await t.ctx.models.CoolantTest.findOne({ where: { engineId, source: 'lab-import' } });
     expect(row!.toJSON()).toMatchObject({ nitritePpm: 4000, molybdatePpm: 200 });
     const findings = (row!.decision as { findings: { field: string; status: string }[] }).findings;
-    expect(findings.map((f) => [f.field, f.status])).toEqual([['nitritePpm', 'high'], ['molybdatePpm', 'low'], ['ph', 'ok']]);
+    expect(findings.map((f) => [f.field, f.status])).toEqual([
+      ['nitritePpm', 'high'],
+      ['molybdatePpm', 'low'],
+      ['ph', 'ok'],
+    ]);
   });
 });
 
 describe('coolant top-ups and the additive estimate (mass balance; low limit 1.2 units/US gal, common practice)', () => {
   let eid: number;
   beforeAll(async () => {
-    eid = (await t.ctx.models.Engine.create({
-      siteId, name: 'Fire pump 2', duty: 'standby', glycolType: 'ethylene', glycolPercent: 40, capPressureKpa: 100, oilDrainIntervalH: 250, capacityL: 40, coolantFamily: 'conventional',
-    })).id;
+    eid = (
+      await t.ctx.models.Engine.create({
+        siteId,
+        name: 'Fire pump 2',
+        duty: 'standby',
+        glycolType: 'ethylene',
+        glycolPercent: 40,
+        capPressureKpa: 100,
+        oilDrainIntervalH: 250,
+        capacityL: 40,
+        coolantFamily: 'conventional',
+      })
+    ).id;
   });
   const url = () => `/api/engines/${eid}/coolant-tests`;
   const topUps = () => `/api/engines/${eid}/coolant-top-ups`;
 
   it('no test yet: the top-ups are listed without an estimate', async () => {
-    await request(t.app).post(topUps()).set(as('technician')).send({ volumeL: 1, liquid: 'water', addedAt: Date.now() - 3 * 3600_000 }).expect(201);
+    await request(t.app)
+      .post(topUps())
+      .set(as('technician'))
+      .send({ volumeL: 1, liquid: 'water', addedAt: Date.now() - 3 * 3600_000 })
+      .expect(201);
     const res = await request(t.app).get(topUps()).set(as('operator')).expect(200);
     expect(res.body.topUps).toHaveLength(1);
     expect(res.body.estimate).toBeNull();
   });
 
   it('after a test at 2.0 units/gal and 40 %: 4 L water then 4 L 50 % premix -> 1.62 units/gal, 37.4 % (hand arithmetic)', async () => {
-    await request(t.app).post(url()).set(as('technician')).send({ method: 'strip', scaUnitsPerGal: 2.0, glycolPercent: 40, testedAt: Date.now() - 2 * 3600_000 }).expect(201);
-    await request(t.app).post(topUps()).set(as('technician')).send({ volumeL: 4, liquid: 'water', addedAt: Date.now() - 3600_000 }).expect(201);
-    const p = await request(t.app).post(topUps()).set(as('planner')).send({ volumeL: 4, liquid: 'premix', premixPercent: 50, notes: 'after hose repair' }).expect(201);
+    await request(t.app)
+      .post(url())
+      .set(as('technician'))
+      .send({ method: 'strip', scaUnitsPerGal: 2.0, glycolPercent: 40, testedAt: Date.now() - 2 * 3600_000 })
+      .expect(201);
+    await request(t.app)
+      .post(topUps())
+      .set(as('technician'))
+      .send({ volumeL: 4, liquid: 'water', addedAt: Date.now() - 3600_000 })
+      .expect(201);
+    const p = await request(t.app)
+      .post(topUps())
+      .set(as('planner'))
+      .send({ volumeL: 4, liquid: 'premix', premixPercent: 50, notes: 'after hose repair' })
+      .expect(201);
     expect(p.body).toMatchObject({ liquid: 'premix', premixPercent: 50, notes: 'after hose repair' });
     const res = await request(t.app).get(topUps()).set(as('operator')).expect(200);
     expect(res.body.topUps).toHaveLength(3);
@@ -167,14 +221,42 @@ describe('coolant top-ups and the additive estimate (mass balance; low limit 1.2
 
 describe('extended-life coolant extender interval (admin setting; default common practice, from memory)', () => {
   it('the plan of an extended-life engine has the extender; the admin sets its interval; bad intervals 400', async () => {
-    const eid = (await t.ctx.models.Engine.create({
-      siteId, name: 'Gen-set ELC', duty: 'prime', glycolType: 'ethylene', glycolPercent: 50, capPressureKpa: 100, oilDrainIntervalH: 500, capacityL: 80, coolantFamily: 'extended-life',
-    })).id;
-    const plan = async () => (await request(t.app).get(`/api/engines/${eid}/service-plan`).set(as('operator')).expect(200)).body as { key: string; everyHours: number | null; everyDays: number | null; placeholder?: boolean }[];
+    const eid = (
+      await t.ctx.models.Engine.create({
+        siteId,
+        name: 'Gen-set ELC',
+        duty: 'prime',
+        glycolType: 'ethylene',
+        glycolPercent: 50,
+        capPressureKpa: 100,
+        oilDrainIntervalH: 500,
+        capacityL: 80,
+        coolantFamily: 'extended-life',
+      })
+    ).id;
+    const plan = async () =>
+      (await request(t.app).get(`/api/engines/${eid}/service-plan`).set(as('operator')).expect(200)).body as {
+        key: string;
+        everyHours: number | null;
+        everyDays: number | null;
+        placeholder?: boolean;
+      }[];
     expect((await plan()).find((x) => x.key === 'coolant-extender')).toMatchObject({ everyHours: 6000, everyDays: 1095, placeholder: true });
-    expect((await request(t.app).put('/api/coolant-limits').set(as('admin')).send({ extender: { everyHours: 0 } }).expect(400)).body.field).toBe('extender.everyHours');
+    expect(
+      (
+        await request(t.app)
+          .put('/api/coolant-limits')
+          .set(as('admin'))
+          .send({ extender: { everyHours: 0 } })
+          .expect(400)
+      ).body.field,
+    ).toBe('extender.everyHours');
     expect((await request(t.app).put('/api/coolant-limits').set(as('admin')).send({ extender: {} }).expect(400)).body.field).toBe('extender');
-    const put = await request(t.app).put('/api/coolant-limits').set(as('admin')).send({ extender: { everyHours: 4000, everyDays: 730 } }).expect(200);
+    const put = await request(t.app)
+      .put('/api/coolant-limits')
+      .set(as('admin'))
+      .send({ extender: { everyHours: 4000, everyDays: 730 } })
+      .expect(200);
     expect(put.body.extender).toEqual({ everyHours: 4000, everyDays: 730 });
     expect((await plan()).find((x) => x.key === 'coolant-extender')).toMatchObject({ everyHours: 4000, everyDays: 730 });
     expect((await plan()).find((x) => x.key === 'coolant-extender')!.placeholder).toBeFalsy();

@@ -19,8 +19,17 @@ beforeAll(async () => {
   const { Site, Engine } = t.ctx.models;
   siteId = (await Site.create({ name: 'Upland pumping', timeZone: 'America/Denver' })).id;
   const row = (name: string, extra: object = {}) => ({
-    siteId, name, duty: 'standby' as const, capacityL: 40, coolantFamily: 'conventional' as const, glycolType: 'propylene' as const, glycolPercent: 40,
-    capPressureKpa: 100, oilDrainIntervalH: 250, runHours: 100, ...extra,
+    siteId,
+    name,
+    duty: 'standby' as const,
+    capacityL: 40,
+    coolantFamily: 'conventional' as const,
+    glycolType: 'propylene' as const,
+    glycolPercent: 40,
+    capPressureKpa: 100,
+    oilDrainIntervalH: 250,
+    runHours: 100,
+    ...extra,
   });
   pgEngine = (await Engine.create(row('Fire pump PG'))).id;
   quietEngine = (await Engine.create(row('No tests yet'))).id;
@@ -29,13 +38,25 @@ beforeAll(async () => {
 afterAll(() => t.close());
 
 const as = (role: keyof TestApp['tokens']) => auth(t.tokens[role]);
-type Freeze = { status: string; freezePointC: number | null; requiredC: number | null; designLowC: number | null; marginK: number; message: string; action: string };
+type Freeze = {
+  status: string;
+  freezePointC: number | null;
+  requiredC: number | null;
+  designLowC: number | null;
+  marginK: number;
+  message: string;
+  action: string;
+};
 async function freezeOf(id: number): Promise<Freeze | undefined> {
   const list = await request(t.app).get('/api/engines').set(as('operator')).expect(200);
   return list.body.find((e: { id: number }) => e.id === id).freezeProtection;
 }
 const test = (engineId: number, body: object, testedAt: string) =>
-  request(t.app).post(`/api/engines/${engineId}/coolant-tests`).set(as('technician')).send({ method: 'refractometer', testedAt, ...body }).expect(201);
+  request(t.app)
+    .post(`/api/engines/${engineId}/coolant-tests`)
+    .set(as('technician'))
+    .send({ method: 'refractometer', testedAt, ...body })
+    .expect(201);
 
 describe('fleet list: freeze protection from the latest coolant test against the site design low', () => {
   it('an engine without a glycol or freeze-point test carries no verdict; with no design low it is unknown', async () => {
@@ -90,7 +111,11 @@ describe('fleet list: freeze protection from the latest coolant test against the
 describe('top-up work order: the step records the coolant added through the top-up service', () => {
   type Step = { id: number; key: string; doneAt: string | null; resultValue: number | null };
   async function startedTopUp(): Promise<{ id: number; add: Step }> {
-    const res = await request(t.app).post('/api/work-orders').set(as('planner')).send({ engineId: topUpEngine, kind: 'top-up', assigneeId: t.userIds.technician, dueDate: '2026-12-10' }).expect(201);
+    const res = await request(t.app)
+      .post('/api/work-orders')
+      .set(as('planner'))
+      .send({ engineId: topUpEngine, kind: 'top-up', assigneeId: t.userIds.technician, dueDate: '2026-12-10' })
+      .expect(201);
     await request(t.app).post(`/api/work-orders/${res.body.id}/transition`).set(as('technician')).send({ to: 'in-progress' }).expect(200);
     const o = { id: res.body.id, add: res.body.steps.find((s: Step) => s.key === 'add') };
     await openCap(o.id, res.body.steps);
@@ -99,18 +124,33 @@ describe('top-up work order: the step records the coolant added through the top-
   /** Lock out, then take the cap off: no live data here, so on a manual check (the route for stale data). */
   async function openCap(orderId: number, steps: Step[]): Promise<void> {
     const step = (key: string) => steps.find((s) => s.key === key)!;
-    await request(t.app).post(`/api/work-orders/${orderId}/steps/${step('stop-and-lock-out').id}/complete`).set(as('technician')).send({}).expect(200);
-    await request(t.app).post(`/api/work-orders/${orderId}/steps/${step('relieve-pressure').id}/complete`).set(as('technician'))
-      .send({ lockoutConfirmed: true, manualCheck: { gaugeKpa: 0, tempC: 25, minutesSinceStop: 240, checkedBy: 'Test technician', reason: 'no gateway on this engine' } }).expect(200);
+    await request(t.app)
+      .post(`/api/work-orders/${orderId}/steps/${step('stop-and-lock-out').id}/complete`)
+      .set(as('technician'))
+      .send({})
+      .expect(200);
+    await request(t.app)
+      .post(`/api/work-orders/${orderId}/steps/${step('relieve-pressure').id}/complete`)
+      .set(as('technician'))
+      .send({
+        lockoutConfirmed: true,
+        manualCheck: { gaugeKpa: 0, tempC: 25, minutesSinceStop: 240, checkedBy: 'Test technician', reason: 'no gateway on this engine' },
+      })
+      .expect(200);
   }
-  const complete = (o: { id: number; add: Step }, body: object) => request(t.app).post(`/api/work-orders/${o.id}/steps/${o.add.id}/complete`).set(as('technician')).send(body);
+  const complete = (o: { id: number; add: Step }, body: object) =>
+    request(t.app).post(`/api/work-orders/${o.id}/steps/${o.add.id}/complete`).set(as('technician')).send(body);
 
   beforeAll(async () => {
     await test(topUpEngine, { scaUnitsPerGal: 2.0, glycolPercent: 50 }, new Date(Date.now() - 3600_000).toISOString());
   });
 
   it('coolant goes in only with the cap off: the add step is refused (409, naming the step) until the cap-off step is done', async () => {
-    const res = await request(t.app).post('/api/work-orders').set(as('planner')).send({ engineId: topUpEngine, kind: 'top-up', assigneeId: t.userIds.technician, dueDate: '2026-12-10' }).expect(201);
+    const res = await request(t.app)
+      .post('/api/work-orders')
+      .set(as('planner'))
+      .send({ engineId: topUpEngine, kind: 'top-up', assigneeId: t.userIds.technician, dueDate: '2026-12-10' })
+      .expect(201);
     await request(t.app).post(`/api/work-orders/${res.body.id}/transition`).set(as('technician')).send({ to: 'in-progress' }).expect(200);
     const steps: (Step & { position: number; after: string[] })[] = res.body.steps;
     const add = steps.find((s) => s.key === 'add')!;
@@ -121,7 +161,11 @@ describe('top-up work order: the step records the coolant added through the top-
     expect(refused.body.error).toBe(`do step ${capOff.position} first: Relieve the pressure and take off the filler cap`);
     expect((await request(t.app).get(`/api/engines/${topUpEngine}/coolant-top-ups`).set(as('operator')).expect(200)).body.topUps).toHaveLength(0);
     // the lock-out step alone does not open it either
-    await request(t.app).post(`/api/work-orders/${res.body.id}/steps/${steps.find((s) => s.key === 'stop-and-lock-out')!.id}/complete`).set(as('technician')).send({}).expect(200);
+    await request(t.app)
+      .post(`/api/work-orders/${res.body.id}/steps/${steps.find((s) => s.key === 'stop-and-lock-out')!.id}/complete`)
+      .set(as('technician'))
+      .send({})
+      .expect(200);
     await complete({ id: res.body.id, add }, { value: 5, unit: 'L', topUp: { liquid: 'water' } }).expect(409);
     // once the cap is off it goes through: the tests below (startedTopUp opens the cap first)
     await request(t.app).post(`/api/work-orders/${res.body.id}/transition`).set(as('planner')).send({ to: 'cancelled', note: 'test order' });
@@ -139,7 +183,15 @@ describe('top-up work order: the step records the coolant added through the top-
     expect((await request(t.app).get(`/api/engines/${topUpEngine}/coolant-top-ups`).set(as('operator')).expect(200)).body.topUps).toHaveLength(0);
     // a top-up on another step is refused
     const other = (await request(t.app).get(`/api/work-orders/${o.id}`).set(as('technician'))).body.steps.find((s: Step) => s.key === 'check-level');
-    expect((await request(t.app).post(`/api/work-orders/${o.id}/steps/${other.id}/complete`).set(as('technician')).send({ topUp: { liquid: 'water' } }).expect(400)).body.field).toBe('topUp');
+    expect(
+      (
+        await request(t.app)
+          .post(`/api/work-orders/${o.id}/steps/${other.id}/complete`)
+          .set(as('technician'))
+          .send({ topUp: { liquid: 'water' } })
+          .expect(400)
+      ).body.field,
+    ).toBe('topUp');
   });
 
   it('10 L of plain water into 40 L: step done, top-up stored with the order, additive 2.0 x 0.75 = 1.50, glycol 50 x 0.75 = 37.5 %', async () => {

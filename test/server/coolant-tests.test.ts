@@ -23,8 +23,11 @@ const as = (role: keyof TestApp['tokens']) => auth(t.tokens[role]);
 
 describe('recording a coolant test', () => {
   it('stores the decision with its reasons for conventional coolant (low -> charged filter and the dose for this capacity)', async () => {
-    const res = await request(t.app).post(`/api/engines/${conv}/coolant-tests`).set(as('technician'))
-      .send({ method: 'strip', scaUnitsPerGal: 0.8, glycolPercent: 50, freezePointC: -33, ph: 9.8, conductivityUsCm: 3100, appearance: 'clear' }).expect(201);
+    const res = await request(t.app)
+      .post(`/api/engines/${conv}/coolant-tests`)
+      .set(as('technician'))
+      .send({ method: 'strip', scaUnitsPerGal: 0.8, glycolPercent: 50, freezePointC: -33, ph: 9.8, conductivityUsCm: 3100, appearance: 'clear' })
+      .expect(201);
     expect(res.body.decision.additive).toMatchObject({ status: 'low', filter: 'charged', liquidAdditiveL: 2.35 });
     expect(res.body.decision.additive.reasons[0]).toMatch(/Additive low/);
     expect(res.body.decision.freeze.freezePointC).toBeCloseTo(-33.3, 6); // Lange's table 5.13
@@ -34,7 +37,11 @@ describe('recording a coolant test', () => {
     expect(list.body[0].source).toBe('manual');
   });
 
-  it.each([[1.2, 'in-range', 'charged'], [3.0, 'in-range', 'charged'], [3.01, 'high', 'blank']])('strip %f -> %s / %s filter', async (sca, status, filter) => {
+  it.each([
+    [1.2, 'in-range', 'charged'],
+    [3.0, 'in-range', 'charged'],
+    [3.01, 'high', 'blank'],
+  ])('strip %f -> %s / %s filter', async (sca, status, filter) => {
     const res = await request(t.app).post(`/api/engines/${conv}/coolant-tests`).set(as('planner')).send({ method: 'strip', scaUnitsPerGal: sca }).expect(201);
     expect(res.body.decision.additive).toMatchObject({ status, filter, liquidAdditiveL: 0 });
   });
@@ -46,19 +53,41 @@ describe('recording a coolant test', () => {
   });
 
   it('without an additive reading: no filter decision, noted', async () => {
-    const res = await request(t.app).post(`/api/engines/${conv}/coolant-tests`).set(as('technician')).send({ method: 'refractometer', glycolPercent: 40 }).expect(201);
+    const res = await request(t.app)
+      .post(`/api/engines/${conv}/coolant-tests`)
+      .set(as('technician'))
+      .send({ method: 'refractometer', glycolPercent: 40 })
+      .expect(201);
     expect(res.body.decision.additive).toBeNull();
     expect(res.body.decision.notes[0]).toMatch(/No additive reading/);
   });
 
   it('operators read but do not record; bad values are 400 naming the field; unknown engine 404', async () => {
     await request(t.app).post(`/api/engines/${conv}/coolant-tests`).set(as('operator')).send({ method: 'strip', scaUnitsPerGal: 2 }).expect(403);
-    for (const [field, value] of [['scaUnitsPerGal', -1], ['ph', 15], ['glycolPercent', 'half'], ['method', 'guess'], ['conductivityUsCm', 1e9]] as const) {
-      const res = await request(t.app).post(`/api/engines/${conv}/coolant-tests`).set(as('technician')).send({ method: 'strip', [field]: value }).expect(400);
+    for (const [field, value] of [
+      ['scaUnitsPerGal', -1],
+      ['ph', 15],
+      ['glycolPercent', 'half'],
+      ['method', 'guess'],
+      ['conductivityUsCm', 1e9],
+    ] as const) {
+      const res = await request(t.app)
+        .post(`/api/engines/${conv}/coolant-tests`)
+        .set(as('technician'))
+        .send({ method: 'strip', [field]: value })
+        .expect(400);
       expect(res.body.field).toBe(field);
     }
     const future = new Date(Date.now() + 86400000).toISOString();
-    expect((await request(t.app).post(`/api/engines/${conv}/coolant-tests`).set(as('technician')).send({ method: 'strip', scaUnitsPerGal: 2, testedAt: future }).expect(400)).body.field).toBe('testedAt');
+    expect(
+      (
+        await request(t.app)
+          .post(`/api/engines/${conv}/coolant-tests`)
+          .set(as('technician'))
+          .send({ method: 'strip', scaUnitsPerGal: 2, testedAt: future })
+          .expect(400)
+      ).body.field,
+    ).toBe('testedAt');
     await request(t.app).post('/api/engines/9999/coolant-tests').set(as('technician')).send({ method: 'strip', scaUnitsPerGal: 2 }).expect(404);
   });
 });
@@ -66,11 +95,16 @@ describe('recording a coolant test', () => {
 describe('lab CSV import', () => {
   const header = 'engine_id,tested_at,method,sca_units_per_gal,glycol_percent,freeze_point_c,ph,conductivity_us_cm,appearance';
   const upload = (csv: string | Buffer, query = '', role: keyof TestApp['tokens'] = 'technician') =>
-    request(t.app).post(`/api/coolant-tests/import${query}`).set(as(role)).attach('file', Buffer.isBuffer(csv) ? csv : Buffer.from(csv, 'utf8'), { filename: 'lab.csv', contentType: 'text/csv' });
+    request(t.app)
+      .post(`/api/coolant-tests/import${query}`)
+      .set(as(role))
+      .attach('file', Buffer.isBuffer(csv) ? csv : Buffer.from(csv, 'utf8'), { filename: 'lab.csv', contentType: 'text/csv' });
   const count = () => t.ctx.models.CoolantTest.count({ where: { source: 'lab-import' } });
 
   it('a good file: every row stored with its decision', async () => {
-    const csv = [header, `${conv},2026-01-10T09:00:00Z,lab,1.8,49.5,-32.5,9.6,2900,"clear, light yellow"`, `${elc},2026-01-10,lab,,51,-34,8.4,2500,clear`].join('\r\n') + '\r\n';
+    const csv =
+      [header, `${conv},2026-01-10T09:00:00Z,lab,1.8,49.5,-32.5,9.6,2900,"clear, light yellow"`, `${elc},2026-01-10,lab,,51,-34,8.4,2500,clear`].join('\r\n') +
+      '\r\n';
     const res = await upload(csv).expect(201);
     expect(res.body).toMatchObject({ preview: false, stored: 2, rejected: [] });
     expect(res.body.accepted.map((a: { status: string }) => a.status)).toEqual(['in-range', 'not-applicable']);
@@ -94,7 +128,12 @@ describe('lab CSV import', () => {
     const preview = await upload(csv, '?preview=1').expect(200);
     expect(preview.body.preview).toBe(true);
     expect(preview.body.accepted.map((a: { line: number }) => a.line)).toEqual([2, 7]);
-    expect(preview.body.rejected.map((e: { line: number; field: string | null }) => [e.line, e.field])).toEqual([[3, 'tested_at'], [4, 'sca_units_per_gal'], [5, 'engine_id'], [6, null]]);
+    expect(preview.body.rejected.map((e: { line: number; field: string | null }) => [e.line, e.field])).toEqual([
+      [3, 'tested_at'],
+      [4, 'sca_units_per_gal'],
+      [5, 'engine_id'],
+      [6, null],
+    ]);
     expect(await count()).toBe(before);
     const res = await upload(csv).expect(201);
     expect(res.body.stored).toBe(2);
@@ -137,11 +176,22 @@ describe('run hours correction', () => {
     await t.ctx.models.Engine.update({ runHours: 100 }, { where: { id: conv } });
     await request(t.app).post(`/api/engines/${conv}/run-hours`).set(as('technician')).send({ runHours: 120, reason: 'hour meter' }).expect(403);
     expect((await request(t.app).post(`/api/engines/${conv}/run-hours`).set(as('planner')).send({ runHours: 120 }).expect(400)).body.field).toBe('reason');
-    expect((await request(t.app).post(`/api/engines/${conv}/run-hours`).set(as('planner')).send({ runHours: -5, reason: 'x y z' }).expect(400)).body.field).toBe('runHours');
-    const res = await request(t.app).post(`/api/engines/${conv}/run-hours`).set(as('planner')).send({ runHours: 123.4, reason: 'read from the hour meter at the monthly run' }).expect(200);
+    expect(
+      (await request(t.app).post(`/api/engines/${conv}/run-hours`).set(as('planner')).send({ runHours: -5, reason: 'x y z' }).expect(400)).body.field,
+    ).toBe('runHours');
+    const res = await request(t.app)
+      .post(`/api/engines/${conv}/run-hours`)
+      .set(as('planner'))
+      .send({ runHours: 123.4, reason: 'read from the hour meter at the monthly run' })
+      .expect(200);
     expect(res.body).toMatchObject({ oldRunHours: 100, runHours: 123.4 });
     expect((await t.ctx.models.Engine.findByPk(conv))!.runHours).toBe(123.4);
     const audit = await request(t.app).get(`/api/engines/${conv}/run-hours`).set(as('operator')).expect(200);
-    expect(audit.body[0]).toMatchObject({ oldRunHours: 100, newRunHours: 123.4, userId: t.userIds.planner, reason: 'read from the hour meter at the monthly run' });
+    expect(audit.body[0]).toMatchObject({
+      oldRunHours: 100,
+      newRunHours: 123.4,
+      userId: t.userIds.planner,
+      reason: 'read from the hour meter at the monthly run',
+    });
   });
 });

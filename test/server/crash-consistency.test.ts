@@ -29,16 +29,31 @@ let server: ServerProcess | null = null;
 let publisher: ChildProcess | null = null;
 
 afterEach(async () => {
-  if (publisher?.pid && publisher.exitCode === null) { try { process.kill(-publisher.pid, 'SIGKILL'); } catch { /* gone */ } }
+  if (publisher?.pid && publisher.exitCode === null) {
+    try {
+      process.kill(-publisher.pid, 'SIGKILL');
+    } catch {
+      /* gone */
+    }
+  }
   publisher = null;
   await server?.stop('SIGKILL');
   server = null;
 });
-afterAll(() => { for (const d of dirs) fs.rmSync(d, { recursive: true, force: true }); });
+afterAll(() => {
+  for (const d of dirs) fs.rmSync(d, { recursive: true, force: true });
+});
 
-const tempDir = () => { const d = fs.mkdtempSync(path.join(os.tmpdir(), 'jw-crash2-')); dirs.push(d); return d; };
+const tempDir = () => {
+  const d = fs.mkdtempSync(path.join(os.tmpdir(), 'jw-crash2-'));
+  dirs.push(d);
+  return d;
+};
 const lines = (file: string): number[] =>
-  (fs.existsSync(file) ? fs.readFileSync(file, 'utf8') : '').split('\n').filter((l) => l !== '').map(Number);
+  (fs.existsSync(file) ? fs.readFileSync(file, 'utf8') : '')
+    .split('\n')
+    .filter((l) => l !== '')
+    .map(Number);
 
 test('SIGKILL while a rollup is being written: consistent after restart, acknowledged readings kept, each stored once', async () => {
   const dataDir = tempDir();
@@ -54,18 +69,46 @@ test('SIGKILL while a rollup is being written: consistent after restart, acknowl
   const messages = 400;
   const baseTs = Date.now() - 2 * 3_600_000;
   publisher = spawn(process.execPath, ['--import', 'tsx', path.join(__dirname, 'support/qos1-publisher.ts')], {
-    cwd: ROOT, stdio: ['ignore', 'ignore', 'pipe'], detached: true,
-    env: { ...process.env, JW_PUBLISHER_JOB: JSON.stringify({ mqttPort: ports.mqttPort, username: device.username, secret: device.secret,
-      engineId: device.engineId, messages, samplesPerMsg: SAMPLES, baseTs, window: 16, ackFile }) },
+    cwd: ROOT,
+    stdio: ['ignore', 'ignore', 'pipe'],
+    detached: true,
+    env: {
+      ...process.env,
+      JW_PUBLISHER_JOB: JSON.stringify({
+        mqttPort: ports.mqttPort,
+        username: device.username,
+        secret: device.secret,
+        engineId: device.engineId,
+        messages,
+        samplesPerMsg: SAMPLES,
+        baseTs,
+        window: 16,
+        ackFile,
+      }),
+    },
   });
   let publisherErr = '';
-  publisher.stderr!.on('data', (d) => { publisherErr += d; });
+  publisher.stderr!.on('data', (d) => {
+    publisherErr += d;
+  });
   const publisherExit = new Promise<number | null>((resolve) => publisher!.once('exit', (code) => resolve(code)));
 
   // some flushes commit first; then the next one stops after its rollup upsert, before COMMIT
-  await until('a quarter acknowledged', async () => lines(ackFile).length, (n) => n >= messages / 4, 60_000, 10);
+  await until(
+    'a quarter acknowledged',
+    async () => lines(ackFile).length,
+    (n) => n >= messages / 4,
+    60_000,
+    10,
+  );
   fs.writeFileSync(armFile, 'hold\n');
-  await until('the writer held inside its transaction', async () => fs.existsSync(`${armFile}.held`), (held) => held, 30_000, 10);
+  await until(
+    'the writer held inside its transaction',
+    async () => fs.existsSync(`${armFile}.held`),
+    (held) => held,
+    30_000,
+    10,
+  );
   await server.stop('SIGKILL');
   const ackedAtKill = lines(ackFile);
   expect(publisher.exitCode).toBeNull();
@@ -78,9 +121,14 @@ test('SIGKILL while a rollup is being written: consistent after restart, acknowl
     const counts = await rawAndRollupCounts(db, device.engineId);
     expect(counts.rollups).toEqual(counts.raw);
     expect(counts.hourly).toEqual(counts.rawHours);
-    const perMessage = new Map((await db.all<{ m: number; n: number }>(
-      `SELECT (ts - CAST(? AS BIGINT)) / CAST(? AS BIGINT) AS m, COUNT(*) AS n FROM readings WHERE engine_id = ? GROUP BY m`,
-      [baseTs, SAMPLES, device.engineId])).map((r) => [Number(r.m), Number(r.n)]));
+    const perMessage = new Map(
+      (
+        await db.all<{ m: number; n: number }>(
+          `SELECT (ts - CAST(? AS BIGINT)) / CAST(? AS BIGINT) AS m, COUNT(*) AS n FROM readings WHERE engine_id = ? GROUP BY m`,
+          [baseTs, SAMPLES, device.engineId],
+        )
+      ).map((r) => [Number(r.m), Number(r.n)]),
+    );
     expect(ackedAtKill.filter((m) => perMessage.get(m) !== SAMPLES * CHANNELS)).toEqual([]);
   } finally {
     await db.close();
@@ -103,8 +151,10 @@ test('SIGKILL while a rollup is being written: consistent after restart, acknowl
     const counts = await rawAndRollupCounts(db, device.engineId);
     expect(counts.rollups).toEqual(counts.raw);
     expect(counts.hourly).toEqual(counts.rawHours);
-    console.log(`rollup crash test: killed inside a flush after its rollup upsert with ${ackedAtKill.length * SAMPLES * CHANNELS} readings acknowledged, all stored; `
-      + `end: ${total.n} readings stored once, integrity ok, rollups = raw`);
+    console.log(
+      `rollup crash test: killed inside a flush after its rollup upsert with ${ackedAtKill.length * SAMPLES * CHANNELS} readings acknowledged, all stored; ` +
+        `end: ${total.n} readings stored once, integrity ok, rollups = raw`,
+    );
   } finally {
     await db.close();
   }
@@ -115,15 +165,22 @@ test('SIGKILL while the outbox is sending: after restart every mail arrives, eac
   const received: Array<{ subject: string; messageId: string }> = [];
   let heldSeen = false;
   const relay = new SMTPServer({
-    authOptional: true, disabledCommands: ['STARTTLS'], logger: false,
+    authOptional: true,
+    disabledCommands: ['STARTTLS'],
+    logger: false,
     onData(stream, _session, callback) {
       let text = '';
-      stream.on('data', (d: Buffer) => { text += d.toString('utf8'); });
+      stream.on('data', (d: Buffer) => {
+        text += d.toString('utf8');
+      });
       stream.on('end', () => {
         const subject = /^Subject: (.*)$/im.exec(text)?.[1].trim() ?? '';
         const messageId = /^Message-ID: (.*)$/im.exec(text)?.[1].trim() ?? '';
         received.push({ subject, messageId });
-        if (subject === 'held' && !heldSeen) { heldSeen = true; return; } // no answer: the sender waits
+        if (subject === 'held' && !heldSeen) {
+          heldSeen = true;
+          return;
+        } // no answer: the sender waits
         callback();
       });
     },
@@ -144,15 +201,23 @@ test('SIGKILL while the outbox is sending: after restart every mail arrives, eac
       for (const [i, subject] of subjects.entries()) {
         const messageId = `<crash-${i}-${Date.now()}@jacketwatch.test>`;
         ids.push(messageId);
-        await db.run(`INSERT INTO outbox ("to", subject, "text", message_id, attempts, next_attempt_at, created_at, updated_at) VALUES (?, ?, ?, ?, 0, ?, ?, ?)`,
-          ['tech@jacketwatch.test', subject, `body of ${subject}`, messageId, now, now, now]);
+        await db.run(
+          `INSERT INTO outbox ("to", subject, "text", message_id, attempts, next_attempt_at, created_at, updated_at) VALUES (?, ?, ?, ?, 0, ?, ?, ?)`,
+          ['tech@jacketwatch.test', subject, `body of ${subject}`, messageId, now, now, now],
+        );
       }
     } finally {
       await db.close();
     }
 
     // the sender picks the held one (lowest id) and another; kill while the held one waits for its answer
-    await until('the relay holding the first message', async () => heldSeen, (v) => v, 30_000, 10);
+    await until(
+      'the relay holding the first message',
+      async () => heldSeen,
+      (v) => v,
+      30_000,
+      10,
+    );
     await server.stop('SIGKILL');
     db = new Db(server.databaseUrl);
     let sentBeforeKill: string[];
@@ -168,8 +233,13 @@ test('SIGKILL while the outbox is sending: after restart every mail arrives, eac
     db = new Db(server.databaseUrl);
     try {
       // the held message's lease (16 s) runs out, then it goes again
-      await until('every mail recorded as sent', async () => Number((await db.get<{ n: number }>('SELECT COUNT(*) AS n FROM outbox WHERE sent_at IS NULL')).n),
-        (n) => n === 0, 60_000, 200);
+      await until(
+        'every mail recorded as sent',
+        async () => Number((await db.get<{ n: number }>('SELECT COUNT(*) AS n FROM outbox WHERE sent_at IS NULL')).n),
+        (n) => n === 0,
+        60_000,
+        200,
+      );
       await expectIntact(db);
     } finally {
       await db.close();
@@ -185,8 +255,10 @@ test('SIGKILL while the outbox is sending: after restart every mail arrives, eac
       if (sentBeforeKill.includes(subject)) expect({ subject, copies: copies.length }).toEqual({ subject, copies: 1 });
     }
     expect(bySubject.get('held')).toHaveLength(2); // the copy the relay never answered, and the one after the restart
-    console.log(`outbox crash test: killed while the relay held a message (${sentBeforeKill.length} of ${subjects.length} recorded sent before the kill); `
-      + `after restart all ${subjects.length} arrived, ${received.length} copies, ${new Set(received.map((r) => r.messageId)).size} Message-IDs`);
+    console.log(
+      `outbox crash test: killed while the relay held a message (${sentBeforeKill.length} of ${subjects.length} recorded sent before the kill); ` +
+        `after restart all ${subjects.length} arrived, ${received.length} copies, ${new Set(received.map((r) => r.messageId)).size} Message-IDs`,
+    );
   } finally {
     await new Promise<void>((resolve) => relay.close(() => resolve()));
   }

@@ -39,7 +39,10 @@ describe('SQLite connection pragmas', () => {
 describe('database errors in the log', () => {
   it('carry the database message and the SQL (Sequelize puts the call site, not the message, in the stack)', async () => {
     const { describeError } = await import('../../server/logger');
-    const err = await t.ctx.sequelize.query('SELECT no_such_column FROM readings').then(() => null, (e: Error) => e);
+    const err = await t.ctx.sequelize.query('SELECT no_such_column FROM readings').then(
+      () => null,
+      (e: Error) => e,
+    );
     expect(err).not.toBeNull();
     const text = describeError(err!);
     // SQLite: "no such column: no_such_column"; PostgreSQL: 'column "no_such_column" does not exist'
@@ -50,7 +53,9 @@ describe('database errors in the log', () => {
 
 describe('migration 0001-core', () => {
   sqliteOnly('creates exactly the core tables and records itself', async () => {
-    const rows = await t.ctx.sequelize.query<{ name: string }>(`SELECT name FROM sqlite_master WHERE type = 'table' AND name NOT LIKE 'sqlite_%'`, { type: QueryTypes.SELECT });
+    const rows = await t.ctx.sequelize.query<{ name: string }>(`SELECT name FROM sqlite_master WHERE type = 'table' AND name NOT LIKE 'sqlite_%'`, {
+      type: QueryTypes.SELECT,
+    });
     const names = rows.map((r) => r.name);
     for (const n of ['users', 'sites', 'engines', 'devices', 'device_rejections', 'readings', 'rollups', 'schema_migrations']) expect(names).toContain(n);
     const applied = await t.ctx.sequelize.query<{ name: string }>('SELECT name FROM schema_migrations', { type: QueryTypes.SELECT });
@@ -58,9 +63,13 @@ describe('migration 0001-core', () => {
   });
 
   sqliteOnly('indexes readings by (engine_id, channel, ts) and keys rollups by (engine_id, channel, minute)', async () => {
-    const idx = await t.ctx.sequelize.query<{ name: string }>(`SELECT name FROM pragma_index_info('readings_engine_channel_ts') ORDER BY seqno`, { type: QueryTypes.SELECT });
+    const idx = await t.ctx.sequelize.query<{ name: string }>(`SELECT name FROM pragma_index_info('readings_engine_channel_ts') ORDER BY seqno`, {
+      type: QueryTypes.SELECT,
+    });
     expect(idx.map((c) => c.name)).toEqual(['engine_id', 'channel', 'ts']);
-    const cols = await t.ctx.sequelize.query<{ name: string; pk: number }>(`SELECT name, pk FROM pragma_table_info('rollups') WHERE pk > 0 ORDER BY pk`, { type: QueryTypes.SELECT });
+    const cols = await t.ctx.sequelize.query<{ name: string; pk: number }>(`SELECT name, pk FROM pragma_table_info('rollups') WHERE pk > 0 ORDER BY pk`, {
+      type: QueryTypes.SELECT,
+    });
     expect(cols.map((c) => c.name)).toEqual(['engine_id', 'channel', 'minute']);
   });
 
@@ -75,7 +84,9 @@ describe('migration 0001-core', () => {
   });
 
   pgOnly('PostgreSQL: creates the core tables and records itself', async () => {
-    const rows = await t.ctx.sequelize.query<{ name: string }>(`SELECT table_name AS name FROM information_schema.tables WHERE table_schema = 'public'`, { type: QueryTypes.SELECT });
+    const rows = await t.ctx.sequelize.query<{ name: string }>(`SELECT table_name AS name FROM information_schema.tables WHERE table_schema = 'public'`, {
+      type: QueryTypes.SELECT,
+    });
     const names = rows.map((r) => r.name);
     for (const n of ['users', 'sites', 'engines', 'devices', 'device_rejections', 'readings', 'rollups', 'schema_migrations']) expect(names).toContain(n);
     const applied = await t.ctx.sequelize.query<{ name: string }>('SELECT name FROM schema_migrations', { type: QueryTypes.SELECT });
@@ -83,11 +94,14 @@ describe('migration 0001-core', () => {
   });
 
   pgOnly('PostgreSQL: indexes readings by (engine_id, channel, ts) and keys rollups by (engine_id, channel, minute)', async () => {
-    const cols = (table: string, index: string) => t.ctx.sequelize.query<{ name: string }>(
-      `SELECT a.attname AS name FROM pg_index i JOIN pg_class c ON c.oid = i.indexrelid
+    const cols = (table: string, index: string) =>
+      t.ctx.sequelize.query<{ name: string }>(
+        `SELECT a.attname AS name FROM pg_index i JOIN pg_class c ON c.oid = i.indexrelid
          JOIN LATERAL unnest(i.indkey) WITH ORDINALITY AS k(attnum, n) ON TRUE
          JOIN pg_attribute a ON a.attrelid = i.indrelid AND a.attnum = k.attnum
-       WHERE i.indrelid = '${table}'::regclass AND ${index} ORDER BY k.n`, { type: QueryTypes.SELECT });
+       WHERE i.indrelid = '${table}'::regclass AND ${index} ORDER BY k.n`,
+        { type: QueryTypes.SELECT },
+      );
     expect((await cols('readings', `c.relname = 'readings_engine_channel_ts'`)).map((c) => c.name)).toEqual(['engine_id', 'channel', 'ts']);
     expect((await cols('rollups', 'i.indisprimary')).map((c) => c.name)).toEqual(['engine_id', 'channel', 'minute']);
   });
@@ -95,8 +109,13 @@ describe('migration 0001-core', () => {
   pgOnly('PostgreSQL: timestamps in milliseconds are 64-bit (BIGINT)', async () => {
     const types = await t.ctx.sequelize.query<{ c: string; t: string }>(
       `SELECT table_name || '.' || column_name AS c, data_type AS t FROM information_schema.columns
-        WHERE (table_name, column_name) IN (('readings', 'ts'), ('rollups', 'minute'))`, { type: QueryTypes.SELECT });
-    expect(types.sort((a, b) => a.c.localeCompare(b.c))).toEqual([{ c: 'readings.ts', t: 'bigint' }, { c: 'rollups.minute', t: 'bigint' }]);
+        WHERE (table_name, column_name) IN (('readings', 'ts'), ('rollups', 'minute'))`,
+      { type: QueryTypes.SELECT },
+    );
+    expect(types.sort((a, b) => a.c.localeCompare(b.c))).toEqual([
+      { c: 'readings.ts', t: 'bigint' },
+      { c: 'rollups.minute', t: 'bigint' },
+    ]);
   });
 
   it('is idempotent: a second run applies nothing', async () => {
@@ -141,14 +160,22 @@ describe('migration 0006-readings-unique', () => {
         { e: 1, minute: m + 60_000, min: 30, max: 30, sum: 30, count: 1, bad: 0 },
         { e: 2, minute: m, min: 40, max: 40, sum: 40, count: 1, bad: 0 },
       ]);
-      const idx = await q(isPg
-        ? `SELECT CASE WHEN i.indisunique THEN 1 ELSE 0 END AS u FROM pg_index i JOIN pg_class c ON c.oid = i.indexrelid WHERE c.relname = 'readings_engine_channel_ts'`
-        : `SELECT "unique" AS u FROM pragma_index_list('readings') WHERE name = 'readings_engine_channel_ts'`);
+      const idx = await q(
+        isPg
+          ? `SELECT CASE WHEN i.indisunique THEN 1 ELSE 0 END AS u FROM pg_index i JOIN pg_class c ON c.oid = i.indexrelid WHERE c.relname = 'readings_engine_channel_ts'`
+          : `SELECT "unique" AS u FROM pragma_index_list('readings') WHERE name = 'readings_engine_channel_ts'`,
+      );
       expect(idx).toEqual([{ u: 1 }]);
-      await expect(sequelize.query(`INSERT INTO readings (engine_id, channel, ts, value, quality) VALUES (2,1,${m},41,0)`)).rejects.toThrow(/Validation error|UNIQUE/);
-      expect(await q(isPg
-        ? `SELECT table_name AS name FROM information_schema.tables WHERE table_name = 'readings_dup_minutes'`
-        : `SELECT name FROM sqlite_master WHERE name = 'readings_dup_minutes'`)).toEqual([]);
+      await expect(sequelize.query(`INSERT INTO readings (engine_id, channel, ts, value, quality) VALUES (2,1,${m},41,0)`)).rejects.toThrow(
+        /Validation error|UNIQUE/,
+      );
+      expect(
+        await q(
+          isPg
+            ? `SELECT table_name AS name FROM information_schema.tables WHERE table_name = 'readings_dup_minutes'`
+            : `SELECT name FROM sqlite_master WHERE name = 'readings_dup_minutes'`,
+        ),
+      ).toEqual([]);
     } finally {
       await sequelize.close();
       await db.drop();

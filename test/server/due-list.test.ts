@@ -22,7 +22,15 @@ let prime: number;
 beforeAll(async () => {
   t = await makeTestApp();
   siteId = (await t.ctx.models.Site.create({ name: 'Hill reservoir', timeZone: 'UTC' })).id;
-  const base = { siteId, capacityL: 80, coolantFamily: 'conventional' as const, glycolType: 'ethylene' as const, glycolPercent: 50, capPressureKpa: 100, oilDrainIntervalH: 250 };
+  const base = {
+    siteId,
+    capacityL: 80,
+    coolantFamily: 'conventional' as const,
+    glycolType: 'ethylene' as const,
+    glycolPercent: 50,
+    capPressureKpa: 100,
+    oilDrainIntervalH: 250,
+  };
   hoursFirst = (await t.ctx.models.Engine.create({ ...base, name: 'A busy set', duty: 'prime', runHours: 1260 })).id;
   daysFirst = (await t.ctx.models.Engine.create({ ...base, name: 'B quiet set', duty: 'standby', runHours: 40 })).id;
   prime = (await t.ctx.models.Engine.create({ ...base, name: 'C fresh set', duty: 'prime', runHours: 500 })).id;
@@ -53,7 +61,9 @@ describe('due list on a fixed clock', () => {
     const withTemplate = plan.filter((p) => workKindFor(p.key)).map((p) => p.key);
     // every task of the plan (standby duty has them all) has its own template
     expect(withTemplate).toEqual(plan.map((p) => p.key));
-    expect(withTemplate).toEqual(expect.arrayContaining(['oil-drain', 'filter-change', 'coolant-test', 'drain-flush-refill', 'weekly-inspection', 'monthly-exercise']));
+    expect(withTemplate).toEqual(
+      expect.arrayContaining(['oil-drain', 'filter-change', 'coolant-test', 'drain-flush-refill', 'weekly-inspection', 'monthly-exercise']),
+    );
     for (const k of withTemplate) expect(WORK_TEMPLATES.find((w) => w.kind === k)?.serviceTask).toBe(k);
     for (const w of WORK_TEMPLATES) if (w.serviceTask) expect(plan.some((p) => p.key === w.serviceTask)).toBe(true);
     expect(workKindFor('paint-the-skid')).toBeNull();
@@ -61,22 +71,33 @@ describe('due list on a fixed clock', () => {
 
   it('every entry of GET /api/due-list has a workKind, and every due task creates its work order', async () => {
     const res = await request(t.app).get('/api/due-list?include=all&windowDays=365').set(auth(t.tokens.planner)).expect(200);
-    const entries: Array<{ engineId: number; taskKey: string; workKind: string | null }> = (res.body.sites ?? res.body).flatMap((s: { entries: unknown[] }) => s.entries);
+    const entries: Array<{ engineId: number; taskKey: string; workKind: string | null }> = (res.body.sites ?? res.body).flatMap(
+      (s: { entries: unknown[] }) => s.entries,
+    );
     expect(entries.length).toBe(14); // two prime sets with 4 tasks, one standby set with 6
     const tasks = new Set(entries.map((e) => e.taskKey));
-    for (const k of ['oil-drain', 'filter-change', 'coolant-test', 'drain-flush-refill', 'weekly-inspection', 'monthly-exercise']) expect(tasks.has(k)).toBe(true);
+    for (const k of ['oil-drain', 'filter-change', 'coolant-test', 'drain-flush-refill', 'weekly-inspection', 'monthly-exercise'])
+      expect(tasks.has(k)).toBe(true);
     for (const e of entries) expect({ task: e.taskKey, workKind: typeof e.workKind }).toEqual({ task: e.taskKey, workKind: 'string' });
     const kinds = new Map<string, { engineId: number; workKind: string }>();
     for (const e of entries) kinds.set(e.workKind!, { engineId: e.engineId, workKind: e.workKind! });
     for (const e of kinds.values()) {
-      const wo = await request(t.app).post('/api/work-orders').set(auth(t.tokens.planner)).send({ engineId: e.engineId, kind: e.workKind, assigneeId: t.userIds.technician, dueDate: '2026-06-08' }).expect(201);
+      const wo = await request(t.app)
+        .post('/api/work-orders')
+        .set(auth(t.tokens.planner))
+        .send({ engineId: e.engineId, kind: e.workKind, assigneeId: t.userIds.technician, dueDate: '2026-06-08' })
+        .expect(201);
       expect(wo.body.kind).toBe(e.workKind);
       expect(wo.body.steps.length).toBeGreaterThanOrEqual(4);
     }
     // a task this engine's plan added (no template of its own) is a general repair
-    await request(t.app).put(`/api/engines/${prime}/service-plan/belt-guard-check`).set(auth(t.tokens.planner)).send({ title: 'Belt guard check', everyDays: 30 });
+    await request(t.app)
+      .put(`/api/engines/${prime}/service-plan/belt-guard-check`)
+      .set(auth(t.tokens.planner))
+      .send({ title: 'Belt guard check', everyDays: 30 });
     const again = await request(t.app).get('/api/due-list?include=all&windowDays=365').set(auth(t.tokens.planner)).expect(200);
-    for (const e of (again.body.sites ?? again.body).flatMap((s: { entries: Array<{ workKind: unknown }> }) => s.entries)) expect(typeof e.workKind).toBe('string');
+    for (const e of (again.body.sites ?? again.body).flatMap((s: { entries: Array<{ workKind: unknown }> }) => s.entries))
+      expect(typeof e.workKind).toBe('string');
   });
 
   it('the drain-flush-refill refills to a 50/50 mix and adds the initial additive charge as steps; the weekly inspection and monthly exercise carry their cooling items', () => {
@@ -119,7 +140,21 @@ describe('due list on a fixed clock', () => {
   });
 
   it('a recorded coolant test counts for the coolant-test task (calendar)', async () => {
-    await t.ctx.models.CoolantTest.create({ engineId: daysFirst, testedAt: new Date(NOW - 10 * DAY), method: 'strip', scaUnitsPerGal: 2, glycolPercent: null, freezePointC: null, ph: null, conductivityUsCm: null, appearance: null, notes: null, testedBy: null, decision: null, source: 'manual' });
+    await t.ctx.models.CoolantTest.create({
+      engineId: daysFirst,
+      testedAt: new Date(NOW - 10 * DAY),
+      method: 'strip',
+      scaUnitsPerGal: 2,
+      glycolPercent: null,
+      freezePointC: null,
+      ph: null,
+      conductivityUsCm: null,
+      appearance: null,
+      notes: null,
+      testedBy: null,
+      decision: null,
+      source: 'manual',
+    });
     const e = await entry(daysFirst, 'coolant-test');
     expect(e.state).toBe('ok');
     expect(e.dueAt).toBe(new Date(NOW + 172 * DAY).toISOString()); // 182-day interval

@@ -26,7 +26,18 @@ const manualCheck = { gaugeKpa: 0, tempC: 31, minutesSinceStop: 240, checkedBy: 
 beforeAll(async () => {
   t = await makeTestApp();
   const { Site, Engine, UserSite } = t.ctx.models;
-  const row = (siteId: number, name: string) => ({ siteId, name, duty: 'standby' as const, capacityL: 60, coolantFamily: 'conventional' as const, glycolType: 'ethylene' as const, glycolPercent: 50, capPressureKpa: 100, oilDrainIntervalH: 250, runHours: 1500 });
+  const row = (siteId: number, name: string) => ({
+    siteId,
+    name,
+    duty: 'standby' as const,
+    capacityL: 60,
+    coolantFamily: 'conventional' as const,
+    glycolType: 'ethylene' as const,
+    glycolPercent: 50,
+    capPressureKpa: 100,
+    oilDrainIntervalH: 250,
+    runHours: 1500,
+  });
   const siteA = (await Site.create({ name: 'Pump house', timeZone: 'UTC' })).id;
   const siteB = (await Site.create({ name: 'Far site', timeZone: 'UTC' })).id;
   engineId = (await Engine.create(row(siteA, 'Fire pump engine'))).id;
@@ -39,7 +50,11 @@ beforeAll(async () => {
   limitedToken = (await request(t.app).post('/api/auth/login').send({ email: 'far@example.test', password: PASSWORD }).expect(200)).body.token;
 
   // 1: a coolant-test work order, done on a manual check, with parts, completed and signed off
-  const created = await request(t.app).post('/api/work-orders').set(as('planner')).send({ engineId, kind: 'coolant-test', assigneeId: t.userIds.technician }).expect(201);
+  const created = await request(t.app)
+    .post('/api/work-orders')
+    .set(as('planner'))
+    .send({ engineId, kind: 'coolant-test', assigneeId: t.userIds.technician })
+    .expect(201);
   closedOrderId = created.body.id;
   const base = `/api/work-orders/${closedOrderId}`;
   await request(t.app).post(`${base}/transition`).set(as('technician')).send({ to: 'in-progress' }).expect(200);
@@ -55,7 +70,11 @@ beforeAll(async () => {
   await request(t.app).post(`${base}/transition`).set(as('planner')).send({ to: 'closed', note: 'record checked' }).expect(200);
 
   // 2: a coolant test, a run-hours correction, then a second order left open (the newest)
-  await request(t.app).post(`/api/engines/${engineId}/coolant-tests`).set(as('technician')).send({ method: 'strip', scaUnitsPerGal: 0.8, glycolPercent: 50 }).expect(201);
+  await request(t.app)
+    .post(`/api/engines/${engineId}/coolant-tests`)
+    .set(as('technician'))
+    .send({ method: 'strip', scaUnitsPerGal: 0.8, glycolPercent: 50 })
+    .expect(201);
   await request(t.app).post(`/api/engines/${engineId}/run-hours`).set(as('planner')).send({ runHours: 1512.5, reason: 'read from the hour meter' }).expect(200);
   openOrderId = (await request(t.app).post('/api/work-orders').set(as('planner')).send({ engineId, kind: 'leak-check' }).expect(201)).body.id;
   await request(t.app).post('/api/work-orders').set(as('planner')).send({ engineId: otherSiteEngineId, kind: 'top-up' }).expect(201);
@@ -71,7 +90,14 @@ describe('GET /api/engines/:id/history', () => {
     expect(h.workOrders.map((o: { id: number }) => o.id)).toEqual([openOrderId, closedOrderId]); // the other site's order is not here
     const [open, closed] = h.workOrders;
     expect(open).toMatchObject({ status: 'planned', kind: 'leak-check', closedAt: null, signedOffByName: null, parts: [], manualCheckSteps: [] });
-    expect(closed).toMatchObject({ status: 'closed', kind: 'coolant-test', assigneeName: 'Test technician', signedOffByName: 'Test planner', doneByNames: ['Test technician'], manualChecks: 1 });
+    expect(closed).toMatchObject({
+      status: 'closed',
+      kind: 'coolant-test',
+      assigneeName: 'Test technician',
+      signedOffByName: 'Test planner',
+      doneByNames: ['Test technician'],
+      manualChecks: 1,
+    });
     expect(closed.at).toBe(closed.closedAt);
     expect(closed.parts).toEqual([{ kind: 'additive', description: 'liquid SCA', quantity: 0.5, unit: 'L' }]);
     expect(closed.manualCheckSteps).toHaveLength(1);
@@ -84,13 +110,15 @@ describe('GET /api/engines/:id/history', () => {
     const direct = (await request(t.app).get(`/api/engines/${engineId}/coolant-tests`).set(as('technician')).expect(200)).body;
     expect(h.coolantTests).toEqual(direct);
     expect(h.coolantTests[0]).toMatchObject({ method: 'strip', scaUnitsPerGal: 0.8, decision: { additive: { status: 'low', filter: 'charged' } } });
-    expect(h.runHoursAdjustments).toEqual([expect.objectContaining({ oldRunHours: 1500, newRunHours: 1512.5, reason: 'read from the hour meter', userName: 'Test planner' })]);
+    expect(h.runHoursAdjustments).toEqual([
+      expect.objectContaining({ oldRunHours: 1500, newRunHours: 1512.5, reason: 'read from the hour meter', userName: 'Test planner' }),
+    ]);
     // completing the coolant-test order reset the plan's coolant-test task, at the run hours of that moment
     expect(h.serviceEvents).toEqual([expect.objectContaining({ taskKey: 'coolant-test', runHours: 1500, workOrderId: closedOrderId })]);
     expect(h.serviceEvents[0].taskTitle).toMatch(/^Coolant test/);
   });
 
-  it('another site\'s engine is not found (404), unknown ids too; no token is 401; a bad id is 400', async () => {
+  it("another site's engine is not found (404), unknown ids too; no token is 401; a bad id is 400", async () => {
     const hidden = await request(t.app).get(`/api/engines/${engineId}/history`).set(auth(limitedToken)).expect(404);
     expect(hidden.body.error).toMatch(/not found/);
     await request(t.app).get(`/api/engines/${otherSiteEngineId}/history`).set(auth(limitedToken)).expect(200);

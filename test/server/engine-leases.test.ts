@@ -22,7 +22,11 @@ let db: TestDatabase | null = null;
 let dir = '';
 const holders: EngineLeases[] = [];
 
-interface Holder { leases: EngineLeases; gained: number[]; lost: number[] }
+interface Holder {
+  leases: EngineLeases;
+  gained: number[];
+  lost: number[];
+}
 
 function holder(url: string): Holder {
   const h: Holder = { leases: null as unknown as EngineLeases, gained: [], lost: [] };
@@ -80,8 +84,11 @@ pgOnly('a holder whose connection the database cuts owns nothing at once, then c
   await admin.query('SELECT pg_terminate_backend($1)', [pids.rows[0].pid]);
   await admin.end();
   await holds('a lost its partitions', () => a.lost.length - lostBefore === LEASE_PARTITIONS / 2);
-    // a reconnects and the partitions split again
-  await holds('a back with its share', () => a.leases.state().connected && a.leases.state().owned === LEASE_PARTITIONS / 2 && b.leases.state().owned === LEASE_PARTITIONS / 2);
+  // a reconnects and the partitions split again
+  await holds(
+    'a back with its share',
+    () => a.leases.state().connected && a.leases.state().owned === LEASE_PARTITIONS / 2 && b.leases.state().owned === LEASE_PARTITIONS / 2,
+  );
   expect(a.lost.length - lostBefore).toBe(LEASE_PARTITIONS / 2);
 });
 

@@ -31,16 +31,30 @@ const waitFor = async (what: string, ok: () => boolean | Promise<boolean>, ms = 
 function spawnGroup(script: string, env: Record<string, string>): { child: ChildProcess; out: () => string } {
   let out = '';
   const child = spawn(process.execPath, ['--import', 'tsx', path.join(__dirname, script)], {
-    cwd: ROOT, stdio: ['ignore', 'pipe', 'pipe'], detached: true, env: { ...process.env, ...env },
+    cwd: ROOT,
+    stdio: ['ignore', 'pipe', 'pipe'],
+    detached: true,
+    env: { ...process.env, ...env },
   });
-  child.stdout!.on('data', (d) => { out += d; });
-  child.stderr!.on('data', (d) => { out += d; });
+  child.stdout!.on('data', (d) => {
+    out += d;
+  });
+  child.stderr!.on('data', (d) => {
+    out += d;
+  });
   children.push(child);
   return { child, out: () => out };
 }
 
 afterAll(async () => {
-  for (const c of children) if (c.pid && c.exitCode === null) { try { process.kill(-c.pid, 'SIGKILL'); } catch { /* gone */ } }
+  for (const c of children)
+    if (c.pid && c.exitCode === null) {
+      try {
+        process.kill(-c.pid, 'SIGKILL');
+      } catch {
+        /* gone */
+      }
+    }
   await server?.stop('SIGKILL');
   if (dataDir) fs.rmSync(dataDir, { recursive: true, force: true });
 });
@@ -50,7 +64,11 @@ test('external broker: SIGKILL of the server mid-flood loses nothing the broker 
   const brokerPort = await freePort();
   const broker = spawnGroup('support/plain-broker.ts', { PLAIN_BROKER_PORT: String(brokerPort) });
   await waitFor('plain broker ready', () => broker.out().includes('ready\n'), 30_000, broker.out);
-  const subscriptions = () => broker.out().split('\n').filter((l) => l === 'subscribed jacketwatch-server').length;
+  const subscriptions = () =>
+    broker
+      .out()
+      .split('\n')
+      .filter((l) => l === 'subscribed jacketwatch-server').length;
 
   const env = { MQTT_URL: `mqtt://127.0.0.1:${brokerPort}` };
   server = await startServerProcess({ dataDir, group: true, env });
@@ -62,9 +80,19 @@ test('external broker: SIGKILL of the server mid-flood loses nothing the broker 
 
   const baseTs = Date.now() - 3_600_000;
   const ackFile = path.join(dataDir, 'acked.txt');
-  const pub = spawnGroup('support/qos1-publisher.ts', { JW_PUBLISHER_JOB: JSON.stringify({
-    mqttPort: brokerPort, username: 'any', secret: 'any', engineId: device.engineId,
-    messages: MESSAGES, samplesPerMsg: SAMPLES, baseTs, window: 16, ackFile }) });
+  const pub = spawnGroup('support/qos1-publisher.ts', {
+    JW_PUBLISHER_JOB: JSON.stringify({
+      mqttPort: brokerPort,
+      username: 'any',
+      secret: 'any',
+      engineId: device.engineId,
+      messages: MESSAGES,
+      samplesPerMsg: SAMPLES,
+      baseTs,
+      window: 16,
+      ackFile,
+    }),
+  });
   const pubExit = new Promise<number | null>((resolve) => pub.child.once('exit', (code) => resolve(code)));
 
   const db = new Db(server.databaseUrl);

@@ -4,8 +4,16 @@ import { HashGate } from '../../server/auth/hash-gate';
 /** A job we finish by hand, recording when it started. */
 function manual(started: string[], name: string, result: boolean) {
   let finish!: () => void;
-  const done = new Promise<void>((r) => { finish = r; });
-  return { job: () => { started.push(name); return done.then(() => result); }, finish: () => finish() };
+  const done = new Promise<void>((r) => {
+    finish = r;
+  });
+  return {
+    job: () => {
+      started.push(name);
+      return done.then(() => result);
+    },
+    finish: () => finish(),
+  };
 }
 
 const tick = () => new Promise((r) => setImmediate(r));

@@ -32,8 +32,16 @@ export function fixedLiveState(engineId: number, ts: number): LiveState {
 }
 
 const counters: IngestCounters = {
-  received: 12, stored: 10, duplicate: 0, oversizePacketsClosed: 0, rejected: { schema: 2 }, outOfRange: 1, buffered: 0, batches: 3,
-  batchLatencyMs: { last: 1, p50: 1, p95: 2, max: 3 }, startedAt: new Date(0).toISOString(),
+  received: 12,
+  stored: 10,
+  duplicate: 0,
+  oversizePacketsClosed: 0,
+  rejected: { schema: 2 },
+  outOfRange: 1,
+  buffered: 0,
+  batches: 3,
+  batchLatencyMs: { last: 1, p50: 1, p95: 2, max: 3 },
+  startedAt: new Date(0).toISOString(),
 };
 
 export interface TestApp {
@@ -63,12 +71,18 @@ export async function makeTestApp(opts: { signIn?: boolean } = {}): Promise<Test
     const u = await createUser(models, { email: `${role}@example.test`, name: `Test ${role}`, password: PASSWORD, role }, 4);
     out.userIds[role] = u.id;
     if (opts.signIn !== false) {
-      const res = await request(app).post('/api/auth/login').send({ email: `${role}@example.test`, password: PASSWORD }).expect(200);
+      const res = await request(app)
+        .post('/api/auth/login')
+        .send({ email: `${role}@example.test`, password: PASSWORD })
+        .expect(200);
       out.tokens[role] = res.body.token;
     }
   }
   return {
-    app, ctx, dataDir, ...out,
+    app,
+    ctx,
+    dataDir,
+    ...out,
     async close() {
       await sequelize.close();
       await db.drop();

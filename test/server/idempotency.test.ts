@@ -14,14 +14,31 @@ const JPEG = Buffer.concat([Buffer.from([0xff, 0xd8, 0xff, 0xe0, 0x00, 0x10]), B
 beforeAll(async () => {
   t = await makeTestApp();
   const siteId = (await t.ctx.models.Site.create({ name: 'Test site', timeZone: 'UTC' })).id;
-  engineId = (await t.ctx.models.Engine.create({ siteId, name: 'Pump engine', duty: 'standby', capacityL: 60, coolantFamily: 'conventional', glycolType: 'ethylene', glycolPercent: 50, capPressureKpa: 100, oilDrainIntervalH: 250, runHours: 10 })).id;
+  engineId = (
+    await t.ctx.models.Engine.create({
+      siteId,
+      name: 'Pump engine',
+      duty: 'standby',
+      capacityL: 60,
+      coolantFamily: 'conventional',
+      glycolType: 'ethylene',
+      glycolPercent: 50,
+      capPressureKpa: 100,
+      oilDrainIntervalH: 250,
+      runHours: 10,
+    })
+  ).id;
 });
 afterAll(() => t.close());
 
 const as = (role: 'planner' | 'technician' | 'operator') => auth(t.tokens[role]);
 
 async function startedOrder(): Promise<{ id: number; steps: Array<{ id: number; key: string }> }> {
-  const res = await request(t.app).post('/api/work-orders').set(as('planner')).send({ engineId, kind: 'filter-change', assigneeId: t.userIds.technician }).expect(201);
+  const res = await request(t.app)
+    .post('/api/work-orders')
+    .set(as('planner'))
+    .send({ engineId, kind: 'filter-change', assigneeId: t.userIds.technician })
+    .expect(201);
   await request(t.app).post(`/api/work-orders/${res.body.id}/transition`).set(as('technician')).send({ to: 'in-progress' }).expect(200);
   return res.body;
 }
@@ -30,7 +47,12 @@ describe('Idempotency-Key on work-order writes', () => {
   it('a completed step sent twice with one key is done once; the retry gets the same answer', async () => {
     const o = await startedOrder();
     const step = o.steps.find((s) => s.key === 'fit-filter')!;
-    const send = () => request(t.app).post(`/api/work-orders/${o.id}/steps/${step.id}/complete`).set(as('technician')).set('Idempotency-Key', `complete-${o.id}-a1b2c3`).send({ value: 0.75, unit: 'turns', note: 'by hand' });
+    const send = () =>
+      request(t.app)
+        .post(`/api/work-orders/${o.id}/steps/${step.id}/complete`)
+        .set(as('technician'))
+        .set('Idempotency-Key', `complete-${o.id}-a1b2c3`)
+        .send({ value: 0.75, unit: 'turns', note: 'by hand' });
     const first = await send().expect(200);
     const again = await send().expect(200);
     expect(first.headers['idempotent-replayed']).toBeUndefined();
@@ -44,7 +66,12 @@ describe('Idempotency-Key on work-order writes', () => {
 
   it('a photo sent twice with one key is stored once', async () => {
     const o = await startedOrder();
-    const send = () => request(t.app).post(`/api/work-orders/${o.id}/attachments`).set(as('technician')).set('Idempotency-Key', `photo-${o.id}-9f8e7d`).attach('file', JPEG, { filename: 'filter.jpg', contentType: 'image/jpeg' });
+    const send = () =>
+      request(t.app)
+        .post(`/api/work-orders/${o.id}/attachments`)
+        .set(as('technician'))
+        .set('Idempotency-Key', `photo-${o.id}-9f8e7d`)
+        .attach('file', JPEG, { filename: 'filter.jpg', contentType: 'image/jpeg' });
     const a = await send().expect(201);
     const b = await send().expect(201);
     expect(b.body.id).toBe(a.body.id);
@@ -56,7 +83,8 @@ describe('Idempotency-Key on work-order writes', () => {
     const step = o.steps.find((s) => s.key === 'fit-filter')!;
     await request(t.app).post(`/api/work-orders/${o.id}/transition`).set(as('planner')).send({ to: 'cancelled', note: 'engine replaced' }).expect(200);
     const key = `draft-${o.id}-77aa66`;
-    const send = () => request(t.app).patch(`/api/work-orders/${o.id}/steps/${step.id}`).set(as('technician')).set('Idempotency-Key', key).send({ note: 'typed offline' });
+    const send = () =>
+      request(t.app).patch(`/api/work-orders/${o.id}/steps/${step.id}`).set(as('technician')).set('Idempotency-Key', key).send({ note: 'typed offline' });
     const r1 = await send().expect(409);
     const r2 = await send().expect(409);
     expect(r2.body).toEqual(r1.body);
@@ -64,13 +92,22 @@ describe('Idempotency-Key on work-order writes', () => {
     // the same key on another request of the same user: refused, nothing done
     await request(t.app).post(`/api/work-orders/${o.id}/amendments`).set(as('technician')).set('Idempotency-Key', key).send({ text: 'x' }).expect(422);
     // the same key from another user is that user's own
-    const other = await request(t.app).patch(`/api/work-orders/${o.id}/steps/${step.id}`).set(as('operator')).set('Idempotency-Key', key).send({ note: 'typed offline' });
+    const other = await request(t.app)
+      .patch(`/api/work-orders/${o.id}/steps/${step.id}`)
+      .set(as('operator'))
+      .set('Idempotency-Key', key)
+      .send({ note: 'typed offline' });
     expect(other.headers['idempotent-replayed']).toBeUndefined();
   });
 
   it('a malformed key is refused with a clear error', async () => {
     const o = await startedOrder();
-    const res = await request(t.app).post(`/api/work-orders/${o.id}/amendments`).set(as('technician')).set('Idempotency-Key', 'bad key!').send({ text: 'x' }).expect(400);
+    const res = await request(t.app)
+      .post(`/api/work-orders/${o.id}/amendments`)
+      .set(as('technician'))
+      .set('Idempotency-Key', 'bad key!')
+      .send({ text: 'x' })
+      .expect(400);
     expect(res.body.field).toBe('Idempotency-Key');
   });
 });

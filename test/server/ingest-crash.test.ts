@@ -34,7 +34,10 @@ const waitFor = async (what: string, ok: () => boolean | Promise<boolean>, ms = 
 };
 const ackedMessages = (): number[] => {
   const text = fs.existsSync(ackFile) ? fs.readFileSync(ackFile, 'utf8') : '';
-  return text.split('\n').filter((l) => l !== '').map(Number);
+  return text
+    .split('\n')
+    .filter((l) => l !== '')
+    .map(Number);
 };
 
 /** Stored readings per message of the engine, read from the file itself. */
@@ -42,7 +45,9 @@ async function storedPerMessage(dbFile: string, engineId: number, baseTs: number
   const db = new Db(dbFile);
   try {
     const rows = await db.all<{ m: number; n: number }>(
-      `SELECT (ts - CAST(? AS BIGINT)) / CAST(? AS BIGINT) AS m, COUNT(*) AS n FROM readings WHERE engine_id = ? GROUP BY m`, [baseTs, SAMPLES, engineId]);
+      `SELECT (ts - CAST(? AS BIGINT)) / CAST(? AS BIGINT) AS m, COUNT(*) AS n FROM readings WHERE engine_id = ? GROUP BY m`,
+      [baseTs, SAMPLES, engineId],
+    );
     return new Map(rows.map((r) => [r.m, r.n]));
   } finally {
     await db.close();
@@ -50,7 +55,13 @@ async function storedPerMessage(dbFile: string, engineId: number, baseTs: number
 }
 
 afterAll(async () => {
-  if (publisher?.pid && publisher.exitCode === null) { try { process.kill(-publisher.pid, 'SIGKILL'); } catch { /* gone */ } }
+  if (publisher?.pid && publisher.exitCode === null) {
+    try {
+      process.kill(-publisher.pid, 'SIGKILL');
+    } catch {
+      /* gone */
+    }
+  }
   await server?.stop('SIGKILL');
   if (dataDir) fs.rmSync(dataDir, { recursive: true, force: true });
 });
@@ -65,13 +76,27 @@ test('SIGKILL mid-flood, three times: every acknowledged reading is stored, none
   await seedDb.close();
 
   const baseTs = Date.now() - 2 * 3_600_000;
-  const job = { mqttPort: ports.mqttPort, username: device.username, secret: device.secret, engineId: device.engineId,
-    messages: MESSAGES, samplesPerMsg: SAMPLES, baseTs, window: 32, ackFile };
+  const job = {
+    mqttPort: ports.mqttPort,
+    username: device.username,
+    secret: device.secret,
+    engineId: device.engineId,
+    messages: MESSAGES,
+    samplesPerMsg: SAMPLES,
+    baseTs,
+    window: 32,
+    ackFile,
+  };
   let publisherErr = '';
   publisher = spawn(process.execPath, ['--import', 'tsx', path.join(__dirname, 'support/qos1-publisher.ts')], {
-    cwd: ROOT, stdio: ['ignore', 'ignore', 'pipe'], detached: true, env: { ...process.env, JW_PUBLISHER_JOB: JSON.stringify(job) },
+    cwd: ROOT,
+    stdio: ['ignore', 'ignore', 'pipe'],
+    detached: true,
+    env: { ...process.env, JW_PUBLISHER_JOB: JSON.stringify(job) },
   });
-  publisher.stderr!.on('data', (d) => { publisherErr += d; });
+  publisher.stderr!.on('data', (d) => {
+    publisherErr += d;
+  });
   const publisherExit = new Promise<number | null>((resolve) => publisher!.once('exit', (code) => resolve(code)));
 
   const figures: string[] = [];
@@ -84,7 +109,9 @@ test('SIGKILL mid-flood, three times: every acknowledged reading is stored, none
     const stored = await storedPerMessage(server.databaseUrl, device.engineId, baseTs);
     const missing = acked.filter((m) => stored.get(m) !== SAMPLES * CHANNELS);
     expect({ killedAfter: share, acked: acked.length, missing }).toEqual({ killedAfter: share, acked: acked.length, missing: [] });
-    figures.push(`kill ${figures.length + 1}: ${acked.length * SAMPLES * CHANNELS} readings acknowledged, all stored (${[...stored.values()].reduce((a, b) => a + b, 0)} in the file)`);
+    figures.push(
+      `kill ${figures.length + 1}: ${acked.length * SAMPLES * CHANNELS} readings acknowledged, all stored (${[...stored.values()].reduce((a, b) => a + b, 0)} in the file)`,
+    );
     server = await startServerProcess({ dataDir, ports, group: true });
   }
 
@@ -107,7 +134,9 @@ test('SIGKILL mid-flood, three times: every acknowledged reading is stored, none
     const counts = await rawAndRollupCounts(db, device.engineId);
     expect(counts.rollups).toEqual(counts.raw);
     expect(counts.hourly).toEqual(counts.rawHours);
-    console.log(`ingest crash test: ${figures.join('; ')}; end: ${total.n} readings stored once, 0 acknowledged lost, 0 duplicates, integrity ok, rollups = raw`);
+    console.log(
+      `ingest crash test: ${figures.join('; ')}; end: ${total.n} readings stored once, 0 acknowledged lost, 0 duplicates, integrity ok, rollups = raw`,
+    );
   } finally {
     await db.close();
   }

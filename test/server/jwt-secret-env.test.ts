@@ -29,8 +29,13 @@ it('a server with JWT_SECRET accepts a token signed elsewhere with it, and write
   server = await startServerProcess({ group: true, env: { JWT_SECRET: SECRET } });
   const db = new Db(server.databaseUrl);
   const now = new Date().toISOString();
-  const id = await db.run(`INSERT INTO users (email, name, password_hash, role, disabled, created_at, updated_at) VALUES (?, ?, ?, 'admin', FALSE, ?, ?)`,
-    ['jwt-admin@example.test', 'JWT admin', bcrypt.hashSync('unused-secret-1', 4), now, now]);
+  const id = await db.run(`INSERT INTO users (email, name, password_hash, role, disabled, created_at, updated_at) VALUES (?, ?, ?, 'admin', FALSE, ?, ?)`, [
+    'jwt-admin@example.test',
+    'JWT admin',
+    bcrypt.hashSync('unused-secret-1', 4),
+    now,
+    now,
+  ]);
   await db.close();
   const get = (token: string) => fetch(`${server.url}/api/devices`, { headers: { authorization: `Bearer ${token}` } }).then((r) => r.status);
   expect(await get(createTokenService(SECRET).sign({ id, email: 'jwt-admin@example.test', role: 'admin' }))).toBe(200);

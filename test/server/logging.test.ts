@@ -6,8 +6,12 @@ import { describeError, wrapPino } from '../../server/logger';
 import { auth, makeTestApp, type TestApp } from './helpers';
 
 let t: TestApp;
-beforeAll(async () => { t = await makeTestApp(); });
-afterAll(async () => { await t.close(); });
+beforeAll(async () => {
+  t = await makeTestApp();
+});
+afterAll(async () => {
+  await t.close();
+});
 
 /** A real pino logger writing JSON lines into an array. */
 function capture(level = 'info') {

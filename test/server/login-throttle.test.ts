@@ -21,7 +21,10 @@ describe('sign-in throttling', () => {
   it('refuses with 429 after many wrong passwords over different e-mails from one address (spraying)', async () => {
     const app = appWith(false);
     for (let i = 0; i < LOGIN_LIMITS.address; i++) {
-      await request(app).post('/api/auth/login').send({ email: `person${i}@example.test`, password: 'Winter-2026!!' }).expect(401);
+      await request(app)
+        .post('/api/auth/login')
+        .send({ email: `person${i}@example.test`, password: 'Winter-2026!!' })
+        .expect(401);
     }
     const res = await request(app).post('/api/auth/login').send({ email: 'person-next@example.test', password: 'Winter-2026!!' }).expect(429);
     expect(res.body.error).toMatch(/too many/);
@@ -32,27 +35,50 @@ describe('sign-in throttling', () => {
   it('ignores X-Forwarded-For without TRUST_PROXY: a client cannot pick a fresh bucket', async () => {
     const app = appWith(false);
     for (let i = 0; i < LOGIN_LIMITS.address; i++) {
-      await request(app).post('/api/auth/login').set('X-Forwarded-For', `203.0.113.${i + 1}`)
-        .send({ email: `xff${i}@example.test`, password: 'Winter-2026!!' }).expect(401);
+      await request(app)
+        .post('/api/auth/login')
+        .set('X-Forwarded-For', `203.0.113.${i + 1}`)
+        .send({ email: `xff${i}@example.test`, password: 'Winter-2026!!' })
+        .expect(401);
     }
-    await request(app).post('/api/auth/login').set('X-Forwarded-For', '198.51.100.77').send({ email: 'xff-last@example.test', password: 'Winter-2026!!' }).expect(429);
+    await request(app)
+      .post('/api/auth/login')
+      .set('X-Forwarded-For', '198.51.100.77')
+      .send({ email: 'xff-last@example.test', password: 'Winter-2026!!' })
+      .expect(429);
   });
 
   it('with TRUST_PROXY the forwarded address counts: one address is throttled, another signs in', async () => {
     const app = appWith('loopback');
     for (let i = 0; i < LOGIN_LIMITS.address; i++) {
-      await request(app).post('/api/auth/login').set('X-Forwarded-For', '203.0.113.9').send({ email: `tp${i}@example.test`, password: 'Winter-2026!!' }).expect(401);
+      await request(app)
+        .post('/api/auth/login')
+        .set('X-Forwarded-For', '203.0.113.9')
+        .send({ email: `tp${i}@example.test`, password: 'Winter-2026!!' })
+        .expect(401);
     }
-    await request(app).post('/api/auth/login').set('X-Forwarded-For', '203.0.113.9').send({ email: 'tp-last@example.test', password: 'Winter-2026!!' }).expect(429);
+    await request(app)
+      .post('/api/auth/login')
+      .set('X-Forwarded-For', '203.0.113.9')
+      .send({ email: 'tp-last@example.test', password: 'Winter-2026!!' })
+      .expect(429);
     await request(app).post('/api/auth/login').set('X-Forwarded-For', '198.51.100.10').send({ email: 'admin@example.test', password: PASSWORD }).expect(200);
   });
 
   it('limits one account guessed from many addresses', async () => {
     const app = appWith('loopback');
     for (let i = 0; i < LOGIN_LIMITS.account; i++) {
-      await request(app).post('/api/auth/login').set('X-Forwarded-For', `192.0.2.${i + 1}`).send({ email: 'technician@example.test', password: `guess-number-${i}` }).expect(401);
+      await request(app)
+        .post('/api/auth/login')
+        .set('X-Forwarded-For', `192.0.2.${i + 1}`)
+        .send({ email: 'technician@example.test', password: `guess-number-${i}` })
+        .expect(401);
     }
-    await request(app).post('/api/auth/login').set('X-Forwarded-For', '192.0.2.200').send({ email: 'technician@example.test', password: 'guess-number-x' }).expect(429);
+    await request(app)
+      .post('/api/auth/login')
+      .set('X-Forwarded-For', '192.0.2.200')
+      .send({ email: 'technician@example.test', password: 'guess-number-x' })
+      .expect(429);
   });
 });
 
@@ -85,7 +111,11 @@ describe('password rules for people', () => {
   it('refuses the e-mail as password, on create and on reset', async () => {
     const res = await create('new.person@example.test').expect(400);
     expect(res.body.error).toMatch(/e-mail/);
-    const reset = await request(t.app).patch(`/api/users/${t.userIds.operator}`).set(auth(t.tokens.admin)).send({ password: 'operator@example.test' }).expect(400);
+    const reset = await request(t.app)
+      .patch(`/api/users/${t.userIds.operator}`)
+      .set(auth(t.tokens.admin))
+      .send({ password: 'operator@example.test' })
+      .expect(400);
     expect(reset.body.field).toBe('password');
   });
 

@@ -140,8 +140,14 @@ describe('outbox', () => {
     await new Promise<void>((resolve) => relay.listen(0, '127.0.0.1', resolve));
     const relayPort = (relay.address() as net.AddressInfo).port;
     const outbox = startOutbox({
-      config: config(relayPort), model: m.OutboxMessage, log: quietLog,
-      retryBaseMs: 200, retryMaxMs: 800, pollMs: 100, timeoutMs: 3000, parallel: 4,
+      config: config(relayPort),
+      model: m.OutboxMessage,
+      log: quietLog,
+      retryBaseMs: 200,
+      retryMaxMs: 800,
+      pollMs: 100,
+      timeoutMs: 3000,
+      parallel: 4,
     });
     try {
       const stalled = await outbox.enqueue({ to: 'tech@jacketwatch.test', subject: 'stalled one', text: 'held by the relay' });

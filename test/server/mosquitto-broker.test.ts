@@ -43,7 +43,9 @@ const waitFor = async <T>(what: string, fn: () => Promise<T>, ok: (v: T) => bool
 };
 const api = async (method: string, p: string, body?: unknown) => {
   const res = await fetch(server.url + p, {
-    method, headers: { 'content-type': 'application/json', authorization: `Bearer ${token}` }, body: body === undefined ? undefined : JSON.stringify(body),
+    method,
+    headers: { 'content-type': 'application/json', authorization: `Bearer ${token}` },
+    body: body === undefined ? undefined : JSON.stringify(body),
   });
   return { status: res.status, body: (await res.json()) as ApiAnswer };
 };
@@ -53,7 +55,13 @@ const sample = (ts: number) => JSON.stringify({ ts, values: { coolant_temp: 70 }
 
 /** Connects as a device; rejects with the broker's refusal. */
 const connect = async (username?: string, password?: string): Promise<MqttClient> => {
-  const c = await mqtt.connectAsync(`mqtt://127.0.0.1:${mq.port}`, { username, password, reconnectPeriod: 0, connectTimeout: 5000, clientId: `t-${Math.random().toString(16).slice(2)}` });
+  const c = await mqtt.connectAsync(`mqtt://127.0.0.1:${mq.port}`, {
+    username,
+    password,
+    reconnectPeriod: 0,
+    connectTimeout: 5000,
+    clientId: `t-${Math.random().toString(16).slice(2)}`,
+  });
   clients.push(c);
   return c;
 };
@@ -68,8 +76,10 @@ beforeAll(async () => {
   const fleet = await seedFleet(db, 2, 'mq'); // engines (their seeded devices exist only in the database)
   engines.push(...fleet.map((f) => f.engineId));
   const now = new Date().toISOString();
-  const adminId = await db.run(`INSERT INTO users (email, name, password_hash, role, disabled, created_at, updated_at) VALUES (?, ?, ?, 'admin', FALSE, ?, ?)`,
-    ['mq-admin@example.test', 'Broker admin', bcrypt.hashSync('unused-secret-1', 4), now, now]);
+  const adminId = await db.run(
+    `INSERT INTO users (email, name, password_hash, role, disabled, created_at, updated_at) VALUES (?, ?, ?, 'admin', FALSE, ?, ?)`,
+    ['mq-admin@example.test', 'Broker admin', bcrypt.hashSync('unused-secret-1', 4), now, now],
+  );
   token = createTokenService(loadJwtSecret(dataDir)).sign({ id: adminId, email: 'mq-admin@example.test', role: 'admin' });
   await waitFor('server connected to mosquitto', health, (h) => h.status === 'ok' && h.broker?.connected === true);
   for (const engineId of engines) {
@@ -98,11 +108,19 @@ itBroker('a device stores on its own engine topic; its publish on another engine
   const c = await connect(a.username, a.secret);
   const t0 = Date.now() - 60_000;
   await c.publishAsync(telemetryTopic(a.engineId), sample(t0), { qos: 1 });
-  await waitFor('own reading stored', () => stored(a.engineId), (n) => n === 1);
+  await waitFor(
+    'own reading stored',
+    () => stored(a.engineId),
+    (n) => n === 1,
+  );
   await c.publishAsync(telemetryTopic(b.engineId), sample(t0 + 1), { qos: 1 }).catch(() => undefined);
   // the next message on its own topic is delivered after the refused one would have been
   await c.publishAsync(telemetryTopic(a.engineId), sample(t0 + 2), { qos: 1 });
-  await waitFor('fence stored', () => stored(a.engineId), (n) => n === 2);
+  await waitFor(
+    'fence stored',
+    () => stored(a.engineId),
+    (n) => n === 2,
+  );
   expect(await stored(b.engineId)).toBe(0);
   expect(mq.log()).toContain(`Denied PUBLISH from ${c.options.clientId}`);
   expect(mq.log()).toContain(`'${telemetryTopic(b.engineId)}'`);
@@ -119,7 +137,11 @@ itBroker('server killed: what devices publish meanwhile waits in its persistent 
   for (let i = 0; i < N; i++) await c.publishAsync(telemetryTopic(a.engineId), sample(t0 + i * 10), { qos: 1 }); // each acknowledged by the broker
   c.end(true);
   server = await startServerProcess({ dataDir, ports: server.ports, group: true, env });
-  await waitFor('every reading published while the server was down', () => stored(a.engineId), (n) => n === before + N);
+  await waitFor(
+    'every reading published while the server was down',
+    () => stored(a.engineId),
+    (n) => n === before + N,
+  );
   expect(await db.all('SELECT ts FROM readings WHERE engine_id = ? GROUP BY channel, ts HAVING COUNT(*) > 1', [a.engineId])).toEqual([]);
 });
 
@@ -145,12 +167,19 @@ itBroker('a lost broker shows as degraded in /api/health; the server reconnects 
   const before = await stored(a.engineId);
   const c = await connect(a.username, a.secret);
   await c.publishAsync(telemetryTopic(a.engineId), sample(Date.now() - 1000), { qos: 1 });
-  await waitFor('stored after the reconnect', () => stored(a.engineId), (n) => n === before + 1);
+  await waitFor(
+    'stored after the reconnect',
+    () => stored(a.engineId),
+    (n) => n === before + 1,
+  );
   c.end(true);
 });
 
 itBroker("the server's own credentials refused: degraded with the broker's reason, retried with back-off", async () => {
-  const other = await startServerProcess({ group: true, env: { ...env, MQTT_URL: mq.adminUrl.replace(mq.admin.password, 'wrong-password'), MQTT_CLIENT_ID: 'jw-server-refused' } });
+  const other = await startServerProcess({
+    group: true,
+    env: { ...env, MQTT_URL: mq.adminUrl.replace(mq.admin.password, 'wrong-password'), MQTT_CLIENT_ID: 'jw-server-refused' },
+  });
   try {
     const h1 = await waitFor('refused', other.health, (h) => h.status === 'degraded' && /authori[sz]ed|password/i.test(h.broker?.lastError ?? ''));
     const h2 = await waitFor('a longer wait after more refusals', other.health, (h) => h.broker!.retryInMs > h1.broker!.retryInMs);
@@ -176,7 +205,11 @@ itBroker('two servers in one shared-subscription group on one database: each mes
     const t0 = Date.now() - 20_000;
     for (let i = 0; i < N; i++) await c.publishAsync(telemetryTopic(d.engineId), sample(t0 + i * 10), { qos: 1 });
     c.end(true);
-    await waitFor('every reading stored', () => stored(d.engineId), (n) => n === before + N);
+    await waitFor(
+      'every reading stored',
+      () => stored(d.engineId),
+      (n) => n === before + N,
+    );
     const [ha, hb] = [await a.health(), await b.health()];
     // the broker handed each message to one server only: nothing arrived twice, both took a share
     expect(ha.ingest.received + hb.ingest.received).toBe(N);

@@ -30,13 +30,33 @@ function makeCertificates(): void {
   openssl('req', '-x509', '-newkey', 'rsa:2048', '-nodes', '-keyout', 'ca.key', '-out', 'ca.pem', '-days', '2', '-subj', '/CN=Test plant CA');
   openssl('req', '-newkey', 'rsa:2048', '-nodes', '-keyout', 'server.key', '-out', 'server.csr', '-subj', '/CN=127.0.0.1');
   fs.writeFileSync(path.join(certs, 'san.ext'), 'subjectAltName=IP:127.0.0.1\n');
-  openssl('x509', '-req', '-in', 'server.csr', '-CA', 'ca.pem', '-CAkey', 'ca.key', '-CAcreateserial', '-out', 'server.pem', '-days', '2', '-extfile', 'san.ext');
+  openssl(
+    'x509',
+    '-req',
+    '-in',
+    'server.csr',
+    '-CA',
+    'ca.pem',
+    '-CAkey',
+    'ca.key',
+    '-CAcreateserial',
+    '-out',
+    'server.pem',
+    '-days',
+    '2',
+    '-extfile',
+    'san.ext',
+  );
   openssl('req', '-x509', '-newkey', 'rsa:2048', '-nodes', '-keyout', 'other.key', '-out', 'other.pem', '-days', '2', '-subj', '/CN=Someone else CA');
 }
 
 const connectTls = async (d: SeededDevice, caFile: string): Promise<MqttClient> => {
   const c = await mqtt.connectAsync(`mqtts://127.0.0.1:${tlsPort}`, {
-    username: d.username, password: d.secret, ca: fs.readFileSync(path.join(certs, caFile)), reconnectPeriod: 0, connectTimeout: 5000,
+    username: d.username,
+    password: d.secret,
+    ca: fs.readFileSync(path.join(certs, caFile)),
+    reconnectPeriod: 0,
+    connectTimeout: 5000,
   });
   clients.push(c);
   return c;
@@ -67,7 +87,8 @@ describe('MQTT over TLS', () => {
     await c.publishAsync(telemetryTopic(d.engineId), JSON.stringify({ ts: Date.now() - 1000, values: { coolant_temp: 66 } }), { qos: 1 });
     const end = Date.now() + 10_000;
     let n = 0;
-    while ((n = (await db.get<{ n: number }>('SELECT COUNT(*) AS n FROM readings WHERE engine_id = ?', [d.engineId])).n) < 1 && Date.now() < end) await new Promise((r) => setTimeout(r, 50));
+    while ((n = (await db.get<{ n: number }>('SELECT COUNT(*) AS n FROM readings WHERE engine_id = ?', [d.engineId])).n) < 1 && Date.now() < end)
+      await new Promise((r) => setTimeout(r, 50));
     expect(n).toBe(1);
   });
 

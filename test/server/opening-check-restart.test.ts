@@ -27,17 +27,32 @@ async function store(db: Db, rows: Array<{ ts: number; channel: ChannelKey; valu
     const minute = Math.floor(r.ts / MIN) * MIN;
     const k = `${code}:${minute}`;
     const m = minutes.get(k) ?? { engine: engineId, channel: code, minute, min: Infinity, max: -Infinity, sum: 0, count: 0 };
-    m.min = Math.min(m.min, r.value); m.max = Math.max(m.max, r.value); m.sum += r.value; m.count++;
+    m.min = Math.min(m.min, r.value);
+    m.max = Math.max(m.max, r.value);
+    m.sum += r.value;
+    m.count++;
     minutes.set(k, m);
   }
   for (const m of minutes.values()) {
-    await db.run('INSERT INTO rollups (engine_id, channel, minute, "min", "max", "sum", "count", bad_count) VALUES (?, ?, ?, ?, ?, ?, ?, 0)', [m.engine, m.channel, m.minute, m.min, m.max, m.sum, m.count]);
+    await db.run('INSERT INTO rollups (engine_id, channel, minute, "min", "max", "sum", "count", bad_count) VALUES (?, ?, ?, ?, ?, ?, ?, 0)', [
+      m.engine,
+      m.channel,
+      m.minute,
+      m.min,
+      m.max,
+      m.sum,
+      m.count,
+    ]);
   }
   await db.exec('COMMIT');
 }
 
 async function login(url: string): Promise<string> {
-  const res = await fetch(`${url}/api/auth/login`, { method: 'POST', headers: { 'content-type': 'application/json' }, body: JSON.stringify({ email: 'tech@example.test', password: 'correct-horse-battery' }) });
+  const res = await fetch(`${url}/api/auth/login`, {
+    method: 'POST',
+    headers: { 'content-type': 'application/json' },
+    body: JSON.stringify({ email: 'tech@example.test', password: 'correct-horse-battery' }),
+  });
   expect(res.status).toBe(200);
   return ((await res.json()) as { token: string }).token;
 }
@@ -58,15 +73,29 @@ beforeAll(async () => {
   try {
     [{ engineId }] = await seedFleet(db, 1, 'oc');
     const now = new Date().toISOString();
-    await db.run('INSERT INTO users (email, name, password_hash, role, disabled, created_at, updated_at) VALUES (?, ?, ?, ?, FALSE, ?, ?)', ['tech@example.test', 'Test technician', bcrypt.hashSync('correct-horse-battery', 4), 'technician', now, now]);
+    await db.run('INSERT INTO users (email, name, password_hash, role, disabled, created_at, updated_at) VALUES (?, ?, ?, ?, FALSE, ?, ?)', [
+      'tech@example.test',
+      'Test technician',
+      bcrypt.hashSync('correct-horse-battery', 4),
+      'technician',
+      now,
+      now,
+    ]);
     const t = Date.now();
     stoppedAt = t - 3 * DAY;
     const rows: Array<{ ts: number; channel: ChannelKey; value: number }> = [];
     // an exercise run three days ago, then the stop
-    for (let ts = stoppedAt - 30 * MIN; ts < stoppedAt; ts += 10_000) rows.push({ ts, channel: 'engine_speed', value: 1800 }, { ts, channel: 'coolant_temp', value: 85 });
+    for (let ts = stoppedAt - 30 * MIN; ts < stoppedAt; ts += 10_000)
+      rows.push({ ts, channel: 'engine_speed', value: 1800 }, { ts, channel: 'coolant_temp', value: 85 });
     rows.push({ ts: stoppedAt, channel: 'engine_speed', value: 0 });
     // the last 4 minutes only (a gap before them): stopped, cold, no pressure
-    for (let ts = t - 4 * MIN; ts <= t; ts += 10_000) rows.push({ ts, channel: 'engine_speed', value: 0 }, { ts, channel: 'coolant_temp', value: 22 }, { ts, channel: 'coolant_pressure', value: 0 }, { ts, channel: 'ambient_temp', value: 20 });
+    for (let ts = t - 4 * MIN; ts <= t; ts += 10_000)
+      rows.push(
+        { ts, channel: 'engine_speed', value: 0 },
+        { ts, channel: 'coolant_temp', value: 22 },
+        { ts, channel: 'coolant_pressure', value: 0 },
+        { ts, channel: 'ambient_temp', value: 20 },
+      );
     await store(db, rows);
   } finally {
     await db.close();
@@ -85,7 +114,7 @@ describe('the stop comes from the stored readings', () => {
     expect(c.met).toBe(true);
     expect(c.value).toBeGreaterThan(c.limit);
     // three days, within the minute the test has taken so far
-    expect(Math.abs(c.value - 3 * DAY / 1000)).toBeLessThan(120);
+    expect(Math.abs(c.value - (3 * DAY) / 1000)).toBeLessThan(120);
   });
 
   it('after kill -9 and a restart on the same data, the same', async () => {
@@ -104,7 +133,7 @@ describe('the stop comes from the stored readings', () => {
     const res = await check(server.url);
     const c = stopCondition(res);
     expect(c.met).toBe(true);
-    expect(c.value).toBeGreaterThan(2.9 * DAY / 1000);
+    expect(c.value).toBeGreaterThan((2.9 * DAY) / 1000);
     expect(res.reasons.join(' ')).not.toMatch(/Engine stopped for/);
   });
 });

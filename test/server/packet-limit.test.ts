@@ -8,7 +8,12 @@ import { PacketSizeGuard } from '../../broker/packet-limit';
 const LIMITS = { connectBytes: 100, packetBytes: 1000 };
 const varint = (n: number): number[] => {
   const out: number[] = [];
-  do { let b = n % 128; n = Math.floor(n / 128); if (n > 0) b |= 0x80; out.push(b); } while (n > 0);
+  do {
+    let b = n % 128;
+    n = Math.floor(n / 128);
+    if (n > 0) b |= 0x80;
+    out.push(b);
+  } while (n > 0);
   return out;
 };
 const packet = (type: number, length: number) => Buffer.from([type, ...varint(length), ...Array(length).fill(0x41)]);

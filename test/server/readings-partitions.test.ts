@@ -11,7 +11,14 @@ import { QueryTypes, type Sequelize } from 'sequelize';
 import { loadConfig } from '../../server/config';
 import { createMigrator } from '../../server/db/migrate';
 import {
-  dropReadingPartitionsBefore, ensureReadingPartitions, isPartitioned, listReadingPartitions, monthStart, MONTHS_AHEAD, nextMonth, partitionName,
+  dropReadingPartitionsBefore,
+  ensureReadingPartitions,
+  isPartitioned,
+  listReadingPartitions,
+  monthStart,
+  MONTHS_AHEAD,
+  nextMonth,
+  partitionName,
 } from '../../server/db/reading-partitions';
 import { createSequelize } from '../../server/db/sequelize';
 import { createLogger } from '../../server/logger';
@@ -31,10 +38,10 @@ afterAll(() => t.close());
 const rows = <T extends object>(s: Sequelize, sql: string) => s.query<T>(sql, { type: QueryTypes.SELECT });
 /** Which partition holds each reading of engine 7, by ts. */
 const placed = (s: Sequelize) =>
-  rows<{ ts: string; p: string }>(s, `SELECT ts, tableoid::regclass::text AS p FROM readings WHERE engine_id = 7 ORDER BY ts`)
-    .then((r) => r.map((x) => [Number(x.ts), x.p]));
-const insert = (s: Sequelize, ts: number[]) =>
-  s.query(insertReadingsSql(ts.length), { bind: ts.flatMap((x) => [7, 1, x, 80, 0]) });
+  rows<{ ts: string; p: string }>(s, `SELECT ts, tableoid::regclass::text AS p FROM readings WHERE engine_id = 7 ORDER BY ts`).then((r) =>
+    r.map((x) => [Number(x.ts), x.p]),
+  );
+const insert = (s: Sequelize, ts: number[]) => s.query(insertReadingsSql(ts.length), { bind: ts.flatMap((x) => [7, 1, x, 80, 0]) });
 
 sqliteOnly('SQLite: readings stays one plain table and the partition upkeep does nothing', async () => {
   expect(await isPartitioned(t.ctx.sequelize)).toBe(false);
@@ -62,9 +69,15 @@ pgOnly('PostgreSQL: a reading beyond the months made is kept by DEFAULT and move
   const s = t.ctx.sequelize;
   const far = Date.UTC(2031, 4, 17, 12); // May 2031, beyond the months made ahead
   await insert(s, [far, far + 1]);
-  expect(await placed(s)).toEqual([[far, 'readings_default'], [far + 1, 'readings_default']]);
+  expect(await placed(s)).toEqual([
+    [far, 'readings_default'],
+    [far + 1, 'readings_default'],
+  ]);
   expect(await ensureReadingPartitions(s, far, far)).toEqual(['readings_2031_05']);
-  expect(await placed(s)).toEqual([[far, 'readings_2031_05'], [far + 1, 'readings_2031_05']]);
+  expect(await placed(s)).toEqual([
+    [far, 'readings_2031_05'],
+    [far + 1, 'readings_2031_05'],
+  ]);
   expect(await ensureReadingPartitions(s, far, far)).toEqual([]); // made once
   await s.query('DELETE FROM readings WHERE engine_id = 7');
 });
@@ -75,7 +88,9 @@ pgOnly('PostgreSQL: retention drops whole months that ended before the cutoff, n
   const feb = Date.UTC(2020, 1, 10);
   await ensureReadingPartitions(s, jan, feb);
   await insert(s, [jan, feb]);
-  await s.query(`INSERT INTO rollups (engine_id, channel, minute, "min", "max", "sum", "count", bad_count) VALUES (7, 1, ${monthStart(jan)}, 80, 80, 80, 1, 0)`);
+  await s.query(
+    `INSERT INTO rollups (engine_id, channel, minute, "min", "max", "sum", "count", bad_count) VALUES (7, 1, ${monthStart(jan)}, 80, 80, 80, 1, 0)`,
+  );
   // the cutoff falls inside February: January ended before it and goes, February stays whole
   expect(await dropReadingPartitionsBefore(s, Date.UTC(2020, 1, 20))).toEqual(['readings_2020_01']);
   expect(await placed(s)).toEqual([[feb, 'readings_2020_02']]);
@@ -95,7 +110,9 @@ pgOnly('PostgreSQL: migration 0013 carries every stored reading into its month, 
     await createMigrator(s).up();
     expect(await isPartitioned(s)).toBe(true);
     expect(await placed(s)).toEqual([
-      [stored[0], 'readings_2024_03'], [stored[1], 'readings_2024_04'], [stored[2], partitionName(stored[2])],
+      [stored[0], 'readings_2024_03'],
+      [stored[1], 'readings_2024_04'],
+      [stored[2], partitionName(stored[2])],
     ]);
     const [again] = await insert(s, [stored[1]]);
     expect(again).toEqual([]);

@@ -10,7 +10,10 @@ const HOUR = 60 * MIN;
 
 async function insertRows(table: string, cols: string[], rows: number[][]): Promise<void> {
   for (let i = 0; i < rows.length; i += 500) {
-    const values = rows.slice(i, i + 500).map((r) => `(${r.join(',')})`).join(',');
+    const values = rows
+      .slice(i, i + 500)
+      .map((r) => `(${r.join(',')})`)
+      .join(',');
     await t.ctx.sequelize.query(`INSERT INTO ${table} (${cols.join(',')}) VALUES ${values}`);
   }
 }
@@ -18,11 +21,29 @@ async function insertRows(table: string, cols: string[], rows: number[][]): Prom
 beforeAll(async () => {
   t = await makeTestApp();
   const site = await t.ctx.models.Site.create({ name: 'Reading site', timeZone: 'Australia/Perth' });
-  engineId = (await t.ctx.models.Engine.create({ siteId: site.id, name: 'E', duty: 'standby', capacityL: 50, coolantFamily: 'conventional', glycolType: 'ethylene', glycolPercent: 50, capPressureKpa: 100, oilDrainIntervalH: 250 })).id;
+  engineId = (
+    await t.ctx.models.Engine.create({
+      siteId: site.id,
+      name: 'E',
+      duty: 'standby',
+      capacityL: 50,
+      coolantFamily: 'conventional',
+      glycolType: 'ethylene',
+      glycolPercent: 50,
+      capPressureKpa: 100,
+      oilDrainIntervalH: 250,
+    })
+  ).id;
 });
 afterAll(() => t.close());
 
-interface Expect { t: number; min: number; max: number; mean: number; count: number }
+interface Expect {
+  t: number;
+  min: number;
+  max: number;
+  mean: number;
+  count: number;
+}
 
 function bucketise(samples: { ts: number; min: number; max: number; sum: number; count: number }[], from: number, width: number): Expect[] {
   const by = new Map<number, { min: number; max: number; sum: number; count: number }>();
@@ -35,7 +56,9 @@ function bucketise(samples: { ts: number; min: number; max: number; sum: number;
     b.count += s.count;
     by.set(k, b);
   }
-  return [...by.entries()].sort((a, b) => a[0] - b[0]).map(([k, b]) => ({ t: from + k * width, min: b.min, max: b.max, mean: b.sum / b.count, count: b.count }));
+  return [...by.entries()]
+    .sort((a, b) => a[0] - b[0])
+    .map(([k, b]) => ({ t: from + k * width, min: b.min, max: b.max, mean: b.sum / b.count, count: b.count }));
 }
 
 describe('GET /api/engines/:id/readings', () => {
@@ -61,7 +84,11 @@ describe('GET /api/engines/:id/readings', () => {
       .set(auth(t.tokens.operator))
       .expect(200);
     expect(res.body.source).toBe('raw');
-    const expected = bucketise(good.filter((g) => g.ts >= from && g.ts < to), from, 10 * MIN);
+    const expected = bucketise(
+      good.filter((g) => g.ts >= from && g.ts < to),
+      from,
+      10 * MIN,
+    );
     expect(res.body.buckets).toHaveLength(12);
     expect(expected).toHaveLength(12);
     res.body.buckets.forEach((b: Expect, i: number) => {
@@ -99,10 +126,15 @@ describe('GET /api/engines/:id/readings', () => {
       const hour = minute - (minute % HOUR);
       const h = hours.get(hour);
       const isNull = (x: unknown) => (x as unknown as string) === 'NULL';
-      if (!h) { hours.set(hour, [engineId, 1, hour, min, max, sum, count, bad]); continue; }
+      if (!h) {
+        hours.set(hour, [engineId, 1, hour, min, max, sum, count, bad]);
+        continue;
+      }
       if (!isNull(min) && (isNull(h[3]) || min < h[3])) h[3] = min;
       if (!isNull(max) && (isNull(h[4]) || max > h[4])) h[4] = max;
-      h[5] += sum; h[6] += count; h[7] += bad;
+      h[5] += sum;
+      h[6] += count;
+      h[7] += bad;
     }
     await insertRows('rollups_hourly', ['engine_id', 'channel', 'hour', 'min', 'max', 'sum', 'count', 'bad_count'], [...hours.values()]);
 
@@ -117,7 +149,11 @@ describe('GET /api/engines/:id/readings', () => {
       expect({ source: res.body.source, period: res.body.rollupPeriod }).toEqual({ source: 'rollup', period });
       const alignedFrom = Math.floor(from / unit) * unit;
       const width = Math.ceil((to - alignedFrom) / unit / points) * unit;
-      const expected = bucketise(kept.filter((k) => k.ts >= alignedFrom && k.ts < to), alignedFrom, width);
+      const expected = bucketise(
+        kept.filter((k) => k.ts >= alignedFrom && k.ts < to),
+        alignedFrom,
+        width,
+      );
       expect(res.body.buckets.length).toBe(expected.length);
       expect(expected.length).toBeGreaterThanOrEqual(Math.floor(Math.min(points, 30) * 0.9)); // whole hours: a few fewer than asked
       res.body.buckets.forEach((b: Expect, i: number) => {
@@ -136,7 +172,11 @@ describe('GET /api/engines/:id/readings', () => {
   });
 
   it('returns no buckets for a span without data and 404 for an unknown engine', async () => {
-    const res = await request(t.app).get(`/api/engines/${engineId}/readings`).query({ channel: 'engine_speed', from: T0, to: T0 + 3600_000 }).set(auth(t.tokens.planner)).expect(200);
+    const res = await request(t.app)
+      .get(`/api/engines/${engineId}/readings`)
+      .query({ channel: 'engine_speed', from: T0, to: T0 + 3600_000 })
+      .set(auth(t.tokens.planner))
+      .expect(200);
     expect(res.body).toMatchObject({ source: 'raw', beyondRawRetention: false, buckets: [] });
     await request(t.app).get('/api/engines/9999/readings').query({ channel: 'coolant_temp' }).set(auth(t.tokens.planner)).expect(404);
   });

@@ -16,7 +16,10 @@ const CUTOFF = NOW - DAYS * DAY_MS;
 
 async function insertRows(table: string, cols: string[], rows: number[][]): Promise<void> {
   for (let i = 0; i < rows.length; i += 500) {
-    const values = rows.slice(i, i + 500).map((r) => `(${r.join(',')})`).join(',');
+    const values = rows
+      .slice(i, i + 500)
+      .map((r) => `(${r.join(',')})`)
+      .join(',');
     await t.ctx.sequelize.query(`INSERT INTO ${table} (${cols.join(',')}) VALUES ${values}`);
   }
 }
@@ -26,7 +29,15 @@ const one = async <T extends object = { n: number }>(sql: string): Promise<T> =>
   return Object.fromEntries(Object.entries(row).map(([k, v]) => [k, typeof v === 'string' && /^-?\d+(\.\d+)?$/.test(v) ? Number(v) : v])) as T;
 };
 
-const engineFields = { duty: 'standby' as const, capacityL: 50, coolantFamily: 'conventional' as const, glycolType: 'ethylene' as const, glycolPercent: 50, capPressureKpa: 100, oilDrainIntervalH: 250 };
+const engineFields = {
+  duty: 'standby' as const,
+  capacityL: 50,
+  coolantFamily: 'conventional' as const,
+  glycolType: 'ethylene' as const,
+  glycolPercent: 50,
+  capPressureKpa: 100,
+  oilDrainIntervalH: 250,
+};
 
 // old raw rows: engine 1 coolant_temp 10,500 (11 batches of at most 1,000), engine 1 pressure 999 (1 batch), engine 2 coolant_temp 1,000 (1 batch)
 const OLD = [
@@ -47,7 +58,13 @@ beforeAll(async () => {
   rows.push([e2, 2, CUTOFF - 1, 70, 0]);
   rows.push([e2, 2, CUTOFF, 71, 0]);
   // recent rows of every pair stay
-  for (const [e, ch] of [[e1, 1], [e1, 2], [e2, 1], [e2, 2]]) for (let i = 0; i < 300; i++) rows.push([e, ch, NOW - 2 * 3600_000 + i * 10_000, 80, 0]);
+  for (const [e, ch] of [
+    [e1, 1],
+    [e1, 2],
+    [e2, 1],
+    [e2, 2],
+  ])
+    for (let i = 0; i < 300; i++) rows.push([e, ch, NOW - 2 * 3600_000 + i * 10_000, 80, 0]);
   await insertRows('readings', ['engine_id', 'channel', 'ts', 'value', 'quality'], rows);
   // rollups: the old first hour of engine 1 coolant_temp, and one recent minute
   const rollups: number[][] = [];
@@ -63,7 +80,10 @@ describe('retention of raw readings', () => {
     const rollupsBefore = await one<{ n: number; s: number }>('SELECT COUNT(*) AS n, SUM("sum") + SUM("count") + SUM(minute % 1000003) AS s FROM rollups');
     const keptBefore = await one<{ n: number }>(`SELECT COUNT(*) AS n FROM readings WHERE ts >= ${CUTOFF}`);
     const retention = startRetention({
-      sequelize: t.ctx.sequelize, log: t.ctx.log, timer: false, now: () => NOW,
+      sequelize: t.ctx.sequelize,
+      log: t.ctx.log,
+      timer: false,
+      now: () => NOW,
       config: { rawRetentionDays: DAYS, retentionBatch: 1000, retentionPauseMs: 0, retentionEveryMs: 3600_000 },
     });
     const result = await retention.sweep();
@@ -82,14 +102,25 @@ describe('retention of raw readings', () => {
     expect(await one('SELECT COUNT(*) AS n, SUM("sum") + SUM("count") + SUM(minute % 1000003) AS s FROM rollups')).toEqual(rollupsBefore);
 
     // a second sweep finds nothing
-    const again = startRetention({ sequelize: t.ctx.sequelize, log: t.ctx.log, timer: false, now: () => NOW, config: { rawRetentionDays: DAYS, retentionBatch: 1000, retentionPauseMs: 0, retentionEveryMs: 3600_000 } });
+    const again = startRetention({
+      sequelize: t.ctx.sequelize,
+      log: t.ctx.log,
+      timer: false,
+      now: () => NOW,
+      config: { rawRetentionDays: DAYS, retentionBatch: 1000, retentionPauseMs: 0, retentionEveryMs: 3600_000 },
+    });
     expect((await again.sweep()).deleted).toBe(0);
     await again.stop();
   });
 
   it('RAW_RETENTION_DAYS=0 keeps raw readings for good', async () => {
     const before = await one<{ n: number }>('SELECT COUNT(*) AS n FROM readings');
-    const r = startRetention({ sequelize: t.ctx.sequelize, log: t.ctx.log, timer: false, config: { rawRetentionDays: 0, retentionBatch: 10, retentionPauseMs: 0, retentionEveryMs: 3600_000 } });
+    const r = startRetention({
+      sequelize: t.ctx.sequelize,
+      log: t.ctx.log,
+      timer: false,
+      config: { rawRetentionDays: 0, retentionBatch: 10, retentionPauseMs: 0, retentionEveryMs: 3600_000 },
+    });
     expect(await r.sweep()).toEqual({ deleted: 0, batches: 0, cutoff: null, complete: true });
     await r.stop();
     expect(await one('SELECT COUNT(*) AS n FROM readings')).toEqual(before);
@@ -138,7 +169,9 @@ describe('retention in the running server', () => {
       const values = [];
       for (let i = 0; i < 1000; i++) values.push(`(${d.engineId}, 1, ${old + i * 1000}, 80, 0)`, `(${d.engineId}, 1, ${recent + i * 1000}, 81, 0)`);
       await db.exec(`INSERT INTO readings (engine_id, channel, ts, value, quality) VALUES ${values.join(',')}`);
-      await db.exec(`INSERT INTO rollups (engine_id, channel, minute, "min", "max", "sum", "count", bad_count) VALUES (${d.engineId}, 1, ${Math.floor(old / MIN) * MIN}, 80, 80, 4800, 60, 0)`);
+      await db.exec(
+        `INSERT INTO rollups (engine_id, channel, minute, "min", "max", "sum", "count", bad_count) VALUES (${d.engineId}, 1, ${Math.floor(old / MIN) * MIN}, 80, 80, 4800, 60, 0)`,
+      );
       const deadline = Date.now() + 30_000;
       while ((await db.get<{ n: number }>('SELECT COUNT(*) AS n FROM readings WHERE ts < ?', [old + 1000 * 1000])).n > 0) {
         if (Date.now() > deadline) throw new Error('old raw readings were not removed:\n' + server.log());

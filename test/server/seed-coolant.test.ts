@@ -59,7 +59,7 @@ describe('demo coolant seed', () => {
     const list = await computeDueList(t.ctx.models, { windowDays: 14, now: Date.now() });
     const total = list.sites.reduce((n, s) => n + s.overdue, 0);
     const engines = await t.ctx.models.Engine.count();
-    expect(total).toBeLessThan(engines * 6 / 2); // not everything overdue
+    expect(total).toBeLessThan((engines * 6) / 2); // not everything overdue
   });
 
   it('every demo engine has past tests; extended-life ones carry no strip decision', async () => {

@@ -18,7 +18,14 @@ beforeAll(async () => {
 });
 afterAll(() => t.close());
 
-interface Summary { id: number; status: string; assigneeId: number | null; dueDate: string | null; stepsDone: number; stepsTotal: number }
+interface Summary {
+  id: number;
+  status: string;
+  assigneeId: number | null;
+  dueDate: string | null;
+  stepsDone: number;
+  stepsTotal: number;
+}
 
 describe('demo work seed', () => {
   it('gives each of two technicians assigned work, some of it in progress', async () => {

@@ -36,16 +36,37 @@ describe('seeds', () => {
     const file = JSON.parse(fs.readFileSync(r.devicesFile, 'utf8'));
     expect(file.devices).toHaveLength(8);
     const d = file.devices[0];
-    expect(Object.keys(d).sort()).toEqual(['capPressureKpa', 'capacityL', 'coolantFamily', 'duty', 'engineId', 'engineName', 'heaterSetpointC', 'secret', 'siteId', 'username']);
+    expect(Object.keys(d).sort()).toEqual([
+      'capPressureKpa',
+      'capacityL',
+      'coolantFamily',
+      'duty',
+      'engineId',
+      'engineName',
+      'heaterSetpointC',
+      'secret',
+      'siteId',
+      'username',
+    ]);
     expect(await authenticateDevice(models, d.username, d.secret)).toEqual({ deviceId: expect.any(Number), engineId: d.engineId });
 
     for (const email of ['admin', 'planner', 'tech', 'operator']) {
-      await request(t.app).post('/api/auth/login').send({ email: `${email}@jacketwatch.test`, password: DEMO_PASSWORD }).expect(200);
+      await request(t.app)
+        .post('/api/auth/login')
+        .send({ email: `${email}@jacketwatch.test`, password: DEMO_PASSWORD })
+        .expect(200);
     }
     // the four accounts see every site; the extra operator only its own
     const sitesOf = async (email: string) => {
       const token = (await request(t.app).post('/api/auth/login').send({ email, password: DEMO_PASSWORD }).expect(200)).body.token;
-      return (await request(t.app).get('/api/sites').set({ Authorization: `Bearer ${token}` }).expect(200)).body.map((s: { name: string }) => s.name).sort();
+      return (
+        await request(t.app)
+          .get('/api/sites')
+          .set({ Authorization: `Bearer ${token}` })
+          .expect(200)
+      ).body
+        .map((s: { name: string }) => s.name)
+        .sort();
     };
     for (const email of ['admin', 'planner', 'tech', 'operator']) expect(await sitesOf(`${email}@jacketwatch.test`)).toHaveLength(3);
     expect(await sitesOf('ridge-operator@jacketwatch.test')).toEqual(['Ridgeback Booster Station']);

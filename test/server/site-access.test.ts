@@ -42,30 +42,68 @@ beforeAll(async () => {
   // the core routers plus the alarm routers, over the same context and database
   app = createApp(t.ctx, { staticDir: path.join(t.dataDir, 'no-app'), extraRouters: alarmRouters(t.ctx, createAlarmFeature(t.ctx)) });
   const { Site, Engine, Alarm } = t.ctx.models;
-  const row = (siteId: number, name: string) => ({ siteId, name, duty: 'standby' as const, capacityL: 60, coolantFamily: 'conventional' as const, glycolType: 'ethylene' as const, glycolPercent: 50, capPressureKpa: 100, oilDrainIntervalH: 250, runHours: 100 });
+  const row = (siteId: number, name: string) => ({
+    siteId,
+    name,
+    duty: 'standby' as const,
+    capacityL: 60,
+    coolantFamily: 'conventional' as const,
+    glycolType: 'ethylene' as const,
+    glycolPercent: 50,
+    capPressureKpa: 100,
+    oilDrainIntervalH: 250,
+    runHours: 100,
+  });
   ids.siteA = (await Site.create({ name: 'Alpha works', timeZone: 'UTC' })).id;
   ids.siteB = (await Site.create({ name: 'Bravo works', timeZone: 'UTC' })).id;
   ids.engineA = (await Engine.create(row(ids.siteA, 'Alpha set 1'))).id;
   ids.engineB = (await Engine.create(row(ids.siteB, 'Bravo set 1'))).id;
-  const alarm = (engineId: number) => Alarm.create({ engineId, rule: 'coolant_temp_high', priority: 'high', state: 'unacknowledged', raisedAt: new Date(), value: 104, worstValue: 104, unit: 'degC', message: 'Coolant temperature high' });
+  const alarm = (engineId: number) =>
+    Alarm.create({
+      engineId,
+      rule: 'coolant_temp_high',
+      priority: 'high',
+      state: 'unacknowledged',
+      raisedAt: new Date(),
+      value: 104,
+      worstValue: 104,
+      unit: 'degC',
+      message: 'Coolant temperature high',
+    });
   ids.alarmA = (await alarm(ids.engineA)).id;
   ids.alarmB = (await alarm(ids.engineB)).id;
 
   const planner = auth(t.tokens.planner);
-  const order = async (engineId: number) => (await request(app).post('/api/work-orders').set(planner).send({ engineId, kind: 'leak-check', assigneeId: t.userIds.technician }).expect(201)).body.id as number;
+  const order = async (engineId: number) =>
+    (await request(app).post('/api/work-orders').set(planner).send({ engineId, kind: 'leak-check', assigneeId: t.userIds.technician }).expect(201)).body
+      .id as number;
   ids.orderA = await order(ids.engineA);
   ids.orderB = await order(ids.engineB);
   await request(app).post(`/api/work-orders/${ids.orderB}/transition`).set(auth(t.tokens.technician)).send({ to: 'in-progress' }).expect(200);
-  ids.attachmentB = (await request(app).post(`/api/work-orders/${ids.orderB}/attachments`).set(auth(t.tokens.technician)).attach('file', JPEG, { filename: 'b.jpg', contentType: 'image/jpeg' }).expect(201)).body.id;
+  ids.attachmentB = (
+    await request(app)
+      .post(`/api/work-orders/${ids.orderB}/attachments`)
+      .set(auth(t.tokens.technician))
+      .attach('file', JPEG, { filename: 'b.jpg', contentType: 'image/jpeg' })
+      .expect(201)
+  ).body.id;
   await request(app).post(`/api/engines/${ids.engineB}/coolant-tests`).set(auth(t.tokens.technician)).send({ method: 'strip', scaUnitsPerGal: 2 }).expect(201);
 
   // users limited to site A, set through the admin API
   const admin = auth(t.tokens.admin);
-  for (const [key, role] of [['operatorA', 'operator'], ['techA', 'technician'], ['plannerA', 'planner']] as const) {
+  for (const [key, role] of [
+    ['operatorA', 'operator'],
+    ['techA', 'technician'],
+    ['plannerA', 'planner'],
+  ] as const) {
     const email = `${key.toLowerCase()}@example.test`;
     const u = (await request(app).post('/api/users').set(admin).send({ email, name: key, password: PASSWORD, role }).expect(201)).body;
     expect(u.siteIds).toEqual([]);
-    const res = await request(app).put(`/api/users/${u.id}/sites`).set(admin).send({ siteIds: [ids.siteA] }).expect(200);
+    const res = await request(app)
+      .put(`/api/users/${u.id}/sites`)
+      .set(admin)
+      .send({ siteIds: [ids.siteA] })
+      .expect(200);
     expect(res.body).toMatchObject({ id: u.id, siteIds: [ids.siteA] });
     expect(res.body.passwordHash).toBeUndefined();
     tokens[key] = await signIn(email);
@@ -113,7 +151,12 @@ describe('a user limited to one site', () => {
       expect(res.body.error).toMatch(/not found/);
     }
     // the same user reaches its own site's objects
-    for (const url of [`/api/engines/${ids.engineA}`, `/api/engines/${ids.engineA}/opening-check`, `/api/work-orders/${ids.orderA}`, `/api/alarms/${ids.alarmA}`]) {
+    for (const url of [
+      `/api/engines/${ids.engineA}`,
+      `/api/engines/${ids.engineA}/opening-check`,
+      `/api/work-orders/${ids.orderA}`,
+      `/api/alarms/${ids.alarmA}`,
+    ]) {
       expect([url, (await get(op, url)).status]).toEqual([url, 200]);
     }
     // a hidden id answers exactly as one that does not exist
@@ -128,7 +171,11 @@ describe('a user limited to one site', () => {
     await request(app).post(`/api/work-orders/${ids.orderB}/transition`).set(auth(tokens.techA)).send({ to: 'waiting-sign-off' }).expect(404);
     await request(app).post(`/api/work-orders/${ids.orderB}/amendments`).set(auth(tokens.techA)).send({ text: 'x' }).expect(404);
     await request(app).patch(`/api/work-orders/${ids.orderB}`).set(auth(tokens.plannerA)).send({ title: 'renamed' }).expect(404);
-    await request(app).post(`/api/work-orders/${ids.orderB}/attachments`).set(auth(tokens.techA)).attach('file', JPEG, { filename: 'x.jpg', contentType: 'image/jpeg' }).expect(404);
+    await request(app)
+      .post(`/api/work-orders/${ids.orderB}/attachments`)
+      .set(auth(tokens.techA))
+      .attach('file', JPEG, { filename: 'x.jpg', contentType: 'image/jpeg' })
+      .expect(404);
     expect(await t.ctx.models.Attachment.count({ where: { workOrderId: ids.orderB } })).toBe(1);
     const alarmB = await t.ctx.models.Alarm.findByPk(ids.alarmB);
     expect(alarmB!.state).toBe('unacknowledged');
@@ -148,7 +195,10 @@ describe('a user limited to one site', () => {
 
   it("lab CSV rows of another site's engine are refused as unknown engines; its own are stored", async () => {
     const csv = `engine_id,tested_at,method,sca_units_per_gal\n${ids.engineA},2026-01-05T10:00:00Z,lab,2.1\n${ids.engineB},2026-01-05T10:00:00Z,lab,2.2\n`;
-    const res = await request(app).post('/api/coolant-tests/import').set(auth(tokens.techA)).attach('file', Buffer.from(csv), { filename: 'lab.csv', contentType: 'text/csv' });
+    const res = await request(app)
+      .post('/api/coolant-tests/import')
+      .set(auth(tokens.techA))
+      .attach('file', Buffer.from(csv), { filename: 'lab.csv', contentType: 'text/csv' });
     expect(res.body.accepted.map((a: { engineId: number }) => a.engineId)).toEqual([ids.engineA]);
     expect(res.body.rejected).toEqual([expect.objectContaining({ line: 3, field: 'engine_id', error: `engine_id: no active engine ${ids.engineB}` })]);
   });
@@ -156,7 +206,11 @@ describe('a user limited to one site', () => {
 
 describe('who sees every site', () => {
   it('an admin sees every site even with user_sites rows', async () => {
-    await request(app).put(`/api/users/${t.userIds.admin}/sites`).set(auth(t.tokens.admin)).send({ siteIds: [ids.siteA] }).expect(200);
+    await request(app)
+      .put(`/api/users/${t.userIds.admin}/sites`)
+      .set(auth(t.tokens.admin))
+      .send({ siteIds: [ids.siteA] })
+      .expect(200);
     const admin = t.tokens.admin;
     expect((await get(admin, '/api/engines').expect(200)).body.map((e: { id: number }) => e.id)).toEqual(expect.arrayContaining([ids.engineA, ids.engineB]));
     await get(admin, `/api/engines/${ids.engineB}`).expect(200);
@@ -171,17 +225,33 @@ describe('who sees every site', () => {
     await get(t.tokens.operator, `/api/work-orders/${ids.orderB}`).expect(200);
     await request(app).put(`/api/users/${operatorAId}/sites`).set(auth(t.tokens.admin)).send({ siteIds: [] }).expect(200);
     await get(tokens.operatorA, `/api/engines/${ids.engineB}`).expect(200);
-    await request(app).put(`/api/users/${operatorAId}/sites`).set(auth(t.tokens.admin)).send({ siteIds: [ids.siteA] }).expect(200);
+    await request(app)
+      .put(`/api/users/${operatorAId}/sites`)
+      .set(auth(t.tokens.admin))
+      .send({ siteIds: [ids.siteA] })
+      .expect(200);
     await get(tokens.operatorA, `/api/engines/${ids.engineB}`).expect(404);
   });
 });
 
 describe('PUT /api/users/:id/sites', () => {
   it('is for admins only, checks the sites exist, and shows siteIds in the user list', async () => {
-    await request(app).put(`/api/users/${techAId}/sites`).set(auth(t.tokens.planner)).send({ siteIds: [ids.siteB] }).expect(403);
-    const bad = await request(app).put(`/api/users/${techAId}/sites`).set(auth(t.tokens.admin)).send({ siteIds: [999999] }).expect(400);
+    await request(app)
+      .put(`/api/users/${techAId}/sites`)
+      .set(auth(t.tokens.planner))
+      .send({ siteIds: [ids.siteB] })
+      .expect(403);
+    const bad = await request(app)
+      .put(`/api/users/${techAId}/sites`)
+      .set(auth(t.tokens.admin))
+      .send({ siteIds: [999999] })
+      .expect(400);
     expect(bad.body.field).toBe('siteIds');
-    await request(app).put(`/api/users/${techAId}/sites`).set(auth(t.tokens.admin)).send({ siteIds: ['x'] }).expect(400);
+    await request(app)
+      .put(`/api/users/${techAId}/sites`)
+      .set(auth(t.tokens.admin))
+      .send({ siteIds: ['x'] })
+      .expect(400);
     await request(app).put('/api/users/999999/sites').set(auth(t.tokens.admin)).send({ siteIds: [] }).expect(404);
     const users = (await get(t.tokens.admin, '/api/users').expect(200)).body as Array<{ id: number; siteIds: number[] }>;
     expect(users.find((u) => u.id === techAId)!.siteIds).toEqual([ids.siteA]);
@@ -205,7 +275,10 @@ describe('live push watch', () => {
     server = http.createServer();
     users.set('limited', { id: operatorAId, email: 'operatora@example.test', role: 'operator' });
     users.set('everyone', { id: t.userIds.operator, email: 'operator@example.test', role: 'operator' });
-    const siteOf = new Map([[ids.engineA, ids.siteA], [ids.engineB, ids.siteB]]);
+    const siteOf = new Map([
+      [ids.engineA, ids.siteA],
+      [ids.engineB, ids.siteB],
+    ]);
     push = new LivePush({
       httpServer: server,
       verifyToken: (token) => users.get(token) ?? null,
@@ -224,7 +297,10 @@ describe('live push watch', () => {
   const connect = async (token: string) => {
     const s = ioClient(`http://127.0.0.1:${(server.address() as AddressInfo).port}`, { auth: { token }, transports: ['websocket'], reconnection: false });
     sockets.push(s);
-    await new Promise<void>((resolve, reject) => { s.once('connect', () => resolve()); s.once('connect_error', reject); });
+    await new Promise<void>((resolve, reject) => {
+      s.once('connect', () => resolve());
+      s.once('connect_error', reject);
+    });
     return s;
   };
   const watchAll = () => ({ fleet: true, alarms: true, siteIds: [ids.siteA, ids.siteB], engineIds: [ids.engineA, ids.engineB] });

@@ -14,7 +14,8 @@ beforeAll(async () => {
 afterAll(async () => t.close());
 
 it('PATCH /api/sites/:id accepts elevationM (or null), refuses bad values naming the field', async () => {
-  const site = (await request(t.app).post('/api/sites').set(auth(t.tokens.admin)).send({ name: 'Mesa pump house', timeZone: 'America/Denver' }).expect(201)).body;
+  const site = (await request(t.app).post('/api/sites').set(auth(t.tokens.admin)).send({ name: 'Mesa pump house', timeZone: 'America/Denver' }).expect(201))
+    .body;
   const patched = (await request(t.app).patch(`/api/sites/${site.id}`).set(auth(t.tokens.admin)).send({ elevationM: 1500 }).expect(200)).body;
   expect(patched).toMatchObject({ id: site.id, elevationM: 1500, timeZone: 'America/Denver' });
   const listed = (await request(t.app).get('/api/sites').set(auth(t.tokens.operator)).expect(200)).body.find((s: { id: number }) => s.id === site.id);
@@ -29,7 +30,17 @@ it('PATCH /api/sites/:id accepts elevationM (or null), refuses bad values naming
 
 it('the boiling-margin rule at 1,500 m alarms where it stays quiet at sea level (50 % glycol, 100 kPa, 118 °C)', () => {
   const T0 = Date.UTC(2026, 5, 1);
-  const facts = (elevationM: number): EngineFacts => ({ id: 1, glycolType: 'ethylene', glycolPercent: 50, baselineFrom: T0, baselineValue: null, duty: 'prime', heaterSetpointC: null, capPressureKpa: 100, elevationM });
+  const facts = (elevationM: number): EngineFacts => ({
+    id: 1,
+    glycolType: 'ethylene',
+    glycolPercent: 50,
+    baselineFrom: T0,
+    baselineValue: null,
+    duty: 'prime',
+    heaterSetpointC: null,
+    capPressureKpa: 100,
+    elevationM,
+  });
   const run = (elevationM: number) => {
     const ev = new EngineEvaluator(facts(elevationM), DEFAULT_RULES);
     const hits = [];

@@ -22,8 +22,18 @@ beforeAll(async () => {
   ids.siteB = (await t.ctx.models.Site.create({ name: 'Bravo works', timeZone: 'UTC' })).id;
   const admin = auth(t.tokens.admin);
   const limitedUser = async (email: string, role: string, siteId: number) => {
-    const u = (await request(app).post('/api/users').set(admin).send({ email, name: email.split('@')[0], password: PASSWORD, role }).expect(201)).body;
-    await request(app).put(`/api/users/${u.id}/sites`).set(admin).send({ siteIds: [siteId] }).expect(200);
+    const u = (
+      await request(app)
+        .post('/api/users')
+        .set(admin)
+        .send({ email, name: email.split('@')[0], password: PASSWORD, role })
+        .expect(201)
+    ).body;
+    await request(app)
+      .put(`/api/users/${u.id}/sites`)
+      .set(admin)
+      .send({ siteIds: [siteId] })
+      .expect(200);
     return u.id as number;
   };
   ids.plannerA = await limitedUser('planner.a@example.test', 'planner', ids.siteA);
@@ -31,7 +41,13 @@ beforeAll(async () => {
   plannerA = (await request(app).post('/api/auth/login').send({ email: 'planner.a@example.test', password: PASSWORD }).expect(200)).body.token;
   const now = Date.now();
   const shift = async (siteId: number, userId: number) =>
-    (await request(app).post('/api/oncall').set(admin).send({ siteId, userId, startsAt: now - 3600_000, endsAt: now + 3600_000 }).expect(201)).body.id as number;
+    (
+      await request(app)
+        .post('/api/oncall')
+        .set(admin)
+        .send({ siteId, userId, startsAt: now - 3600_000, endsAt: now + 3600_000 })
+        .expect(201)
+    ).body.id as number;
   ids.shiftA = await shift(ids.siteA, t.userIds.technician);
   ids.shiftB = await shift(ids.siteB, ids.techB);
 });
@@ -60,7 +76,11 @@ describe('a planner limited to site A', () => {
 
   it("cannot plan or change site B's rota: B's shift reads as unknown", async () => {
     const now = Date.now();
-    const res = await request(app).post('/api/oncall').set(auth(plannerA)).send({ siteId: ids.siteB, userId: t.userIds.technician, startsAt: now, endsAt: now + 3600_000 }).expect(400);
+    const res = await request(app)
+      .post('/api/oncall')
+      .set(auth(plannerA))
+      .send({ siteId: ids.siteB, userId: t.userIds.technician, startsAt: now, endsAt: now + 3600_000 })
+      .expect(400);
     expect(res.body.field).toBe('siteId');
     await request(app).patch(`/api/oncall/${ids.shiftB}`).set(auth(plannerA)).send({ backupUserId: null }).expect(404);
     await request(app).delete(`/api/oncall/${ids.shiftB}`).set(auth(plannerA)).expect(404);

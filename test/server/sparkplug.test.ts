@@ -29,18 +29,33 @@ const spec = protobuf.Root.fromJSON({
     Metric: {
       edition: 'proto2',
       fields: {
-        name: { type: 'string', id: 1 }, alias: { type: 'uint64', id: 2 }, timestamp: { type: 'uint64', id: 3 }, datatype: { type: 'uint32', id: 4 },
-        isNull: { type: 'bool', id: 7 }, properties: { type: 'PropertySet', id: 9 },
-        intValue: { type: 'uint32', id: 10 }, longValue: { type: 'uint64', id: 11 }, floatValue: { type: 'float', id: 12 },
-        doubleValue: { type: 'double', id: 13 }, booleanValue: { type: 'bool', id: 14 }, stringValue: { type: 'string', id: 15 },
+        name: { type: 'string', id: 1 },
+        alias: { type: 'uint64', id: 2 },
+        timestamp: { type: 'uint64', id: 3 },
+        datatype: { type: 'uint32', id: 4 },
+        isNull: { type: 'bool', id: 7 },
+        properties: { type: 'PropertySet', id: 9 },
+        intValue: { type: 'uint32', id: 10 },
+        longValue: { type: 'uint64', id: 11 },
+        floatValue: { type: 'float', id: 12 },
+        doubleValue: { type: 'double', id: 13 },
+        booleanValue: { type: 'bool', id: 14 },
+        stringValue: { type: 'string', id: 15 },
       },
     },
-    PropertySet: { edition: 'proto2', fields: { keys: { rule: 'repeated', type: 'string', id: 1 }, values: { rule: 'repeated', type: 'PropertyValue', id: 2 } } },
+    PropertySet: {
+      edition: 'proto2',
+      fields: { keys: { rule: 'repeated', type: 'string', id: 1 }, values: { rule: 'repeated', type: 'PropertyValue', id: 2 } },
+    },
     PropertyValue: { edition: 'proto2', fields: { type: { type: 'uint32', id: 1 }, stringValue: { type: 'string', id: 8 } } },
   },
 });
 const PayloadT = spec.lookupType('Payload');
-const Int32 = 3, Float = 9, Double = 10, Boolean_ = 11, UInt64 = 8;
+const Int32 = 3,
+  Float = 9,
+  Double = 10,
+  Boolean_ = 11,
+  UInt64 = 8;
 
 type M = Record<string, unknown>;
 const encode = (p: { timestamp?: number; seq?: number; metrics: M[] }) =>
@@ -54,15 +69,20 @@ let fleet: SeededDevice[];
 let adminToken: string;
 const clients: MqttClient[] = [];
 
-
 const api = async (method: string, path: string, body?: unknown) => {
   const res = await fetch(server.url + path, {
-    method, headers: { Authorization: `Bearer ${adminToken}`, 'Content-Type': 'application/json' }, body: body === undefined ? undefined : JSON.stringify(body),
+    method,
+    headers: { Authorization: `Bearer ${adminToken}`, 'Content-Type': 'application/json' },
+    body: body === undefined ? undefined : JSON.stringify(body),
   });
-  return { status: res.status, body: await res.json() as ApiAnswer };
+  return { status: res.status, body: (await res.json()) as ApiAnswer };
 };
 
-interface Gateway { id: number; username: string; secret: string }
+interface Gateway {
+  id: number;
+  username: string;
+  secret: string;
+}
 const register = async (engineId: number, sparkplug: { groupId: string; edgeNodeId: string; deviceId?: string }): Promise<Gateway> => {
   const res = await api('POST', '/api/devices', { engineId, sparkplug });
   expect(res.status).toBe(201);
@@ -73,15 +93,29 @@ const register = async (engineId: number, sparkplug: { groupId: string; edgeNode
 };
 
 const connect = async (g: Gateway, extra: mqtt.IClientOptions = {}): Promise<MqttClient> => {
-  const c = await mqtt.connectAsync(`mqtt://127.0.0.1:${server.mqttPort}`, { username: g.username, password: g.secret, reconnectPeriod: 0, connectTimeout: 5000, ...extra });
+  const c = await mqtt.connectAsync(`mqtt://127.0.0.1:${server.mqttPort}`, {
+    username: g.username,
+    password: g.secret,
+    reconnectPeriod: 0,
+    connectTimeout: 5000,
+    ...extra,
+  });
   clients.push(c);
   return c;
 };
 
 const readings = (engineId: number) =>
-  db.all<{ channel: number; ts: number; value: number; quality: number }>('SELECT channel, ts, value, quality FROM readings WHERE engine_id = ? ORDER BY ts, channel', [engineId]);
+  db.all<{ channel: number; ts: number; value: number; quality: number }>(
+    'SELECT channel, ts, value, quality FROM readings WHERE engine_id = ? ORDER BY ts, channel',
+    [engineId],
+  );
 const rejections = async (deviceId: number) =>
-  Object.fromEntries((await db.all<{ reason: string; count: number }>('SELECT reason, count FROM device_rejections WHERE device_id = ?', [deviceId])).map((r) => [r.reason, r.count]));
+  Object.fromEntries(
+    (await db.all<{ reason: string; count: number }>('SELECT reason, count FROM device_rejections WHERE device_id = ?', [deviceId])).map((r) => [
+      r.reason,
+      r.count,
+    ]),
+  );
 const engine = async (id: number) => (await api('GET', `/api/engines/${id}`)).body;
 
 beforeAll(async () => {
@@ -89,8 +123,10 @@ beforeAll(async () => {
   db = new Db(server.databaseUrl);
   fleet = await seedFleet(db, 7, 'sp');
   const now = new Date().toISOString();
-  const adminId = await db.run(`INSERT INTO users (email, name, password_hash, role, disabled, created_at, updated_at) VALUES (?, ?, ?, 'admin', FALSE, ?, ?)`,
-    ['sp-admin@example.test', 'Test admin', bcrypt.hashSync('not-used-here', 4), now, now]);
+  const adminId = await db.run(
+    `INSERT INTO users (email, name, password_hash, role, disabled, created_at, updated_at) VALUES (?, ?, ?, 'admin', FALSE, ?, ?)`,
+    ['sp-admin@example.test', 'Test admin', bcrypt.hashSync('not-used-here', 4), now, now],
+  );
   adminToken = createTokenService(loadJwtSecret(server.dataDir)).sign({ id: adminId, email: 'sp-admin@example.test', role: 'admin' });
 });
 
@@ -117,16 +153,48 @@ test('contract: DBIRTH and DDATA by our channel keys are stored as readings of t
   const gw = await register(d.engineId, { groupId: 'PlantA', edgeNodeId: 'gw1', deviceId: 'genset1' });
   const c = await connect(gw);
   const base = Date.now() - 30_000;
-  await c.publishAsync('spBv1.0/PlantA/NBIRTH/gw1', encode({ timestamp: base, seq: 0, metrics: [{ name: 'bdSeq', datatype: UInt64, longValue: 0 }, { name: 'Node Control/Rebirth', datatype: Boolean_, booleanValue: false }] }), { qos: 1 });
-  await c.publishAsync('spBv1.0/PlantA/DBIRTH/gw1/genset1', encode({
-    timestamp: base, seq: 1, metrics: [
-      { name: 'coolant_temp', alias: 1, datatype: Double, doubleValue: 80.0 },
-      { name: 'coolant_pressure', alias: 2, datatype: Float, floatValue: 15, ...withUnit('psi') },
-      { name: 'engine_speed', alias: 3, datatype: Int32, intValue: 1800 },
-    ],
-  }), { qos: 1 });
-  await c.publishAsync('spBv1.0/PlantA/DDATA/gw1/genset1', encode({ timestamp: base + 1000, seq: 2, metrics: [{ alias: 1, doubleValue: 85.5 }, { alias: 2, floatValue: 14 }] }), { qos: 1 });
-  const rows = await until('5 readings', () => readings(d.engineId), (r) => r.length === 5);
+  await c.publishAsync(
+    'spBv1.0/PlantA/NBIRTH/gw1',
+    encode({
+      timestamp: base,
+      seq: 0,
+      metrics: [
+        { name: 'bdSeq', datatype: UInt64, longValue: 0 },
+        { name: 'Node Control/Rebirth', datatype: Boolean_, booleanValue: false },
+      ],
+    }),
+    { qos: 1 },
+  );
+  await c.publishAsync(
+    'spBv1.0/PlantA/DBIRTH/gw1/genset1',
+    encode({
+      timestamp: base,
+      seq: 1,
+      metrics: [
+        { name: 'coolant_temp', alias: 1, datatype: Double, doubleValue: 80.0 },
+        { name: 'coolant_pressure', alias: 2, datatype: Float, floatValue: 15, ...withUnit('psi') },
+        { name: 'engine_speed', alias: 3, datatype: Int32, intValue: 1800 },
+      ],
+    }),
+    { qos: 1 },
+  );
+  await c.publishAsync(
+    'spBv1.0/PlantA/DDATA/gw1/genset1',
+    encode({
+      timestamp: base + 1000,
+      seq: 2,
+      metrics: [
+        { alias: 1, doubleValue: 85.5 },
+        { alias: 2, floatValue: 14 },
+      ],
+    }),
+    { qos: 1 },
+  );
+  const rows = await until(
+    '5 readings',
+    () => readings(d.engineId),
+    (r) => r.length === 5,
+  );
   expect(rows[0]).toEqual({ channel: 1, ts: base, value: 80, quality: 0 });
   expect(rows[1].channel).toBe(2);
   expect(rows[1].value).toBeCloseTo(15 * 6.894757, 3); // NIST SP 811 B.8: 1 psi = 6.894 757 kPa
@@ -137,18 +205,34 @@ test('contract: DBIRTH and DDATA by our channel keys are stored as readings of t
 
   // seq 9 where 3 is due: counted, the good reading kept
   await c.publishAsync('spBv1.0/PlantA/DDATA/gw1/genset1', encode({ timestamp: Date.now(), seq: 9, metrics: [{ alias: 3, intValue: 1500 }] }), { qos: 1 });
-  await until('gap counted', () => rejections(gw.id), (r) => r.sparkplug_seq_gap === 1);
-  await until('6 readings', () => readings(d.engineId), (r) => r.length === 6);
+  await until(
+    'gap counted',
+    () => rejections(gw.id),
+    (r) => r.sparkplug_seq_gap === 1,
+  );
+  await until(
+    '6 readings',
+    () => readings(d.engineId),
+    (r) => r.length === 6,
+  );
   expect((await engine(d.engineId)).runState).toBe('running');
 
   await c.publishAsync('spBv1.0/PlantA/DDEATH/gw1/genset1', encode({ timestamp: Date.now(), seq: 10, metrics: [] }), { qos: 1 });
-  const lost = await until('engine data lost', () => engine(d.engineId), (e) => e.runState === 'no-data');
+  const lost = await until(
+    'engine data lost',
+    () => engine(d.engineId),
+    (e) => e.runState === 'no-data',
+  );
   expect(lost.latest.engine_speed).toMatchObject({ value: 1500, quality: 1 });
   expect(lost.latest.coolant_temp.quality).toBe(1);
   // a standby engine whose data is declared lost is not ready to start (its state is not known)
   if (lost.duty === 'standby') expect(lost.readiness).toMatchObject({ ready: false });
   // and the no-data alarm is raised now, not after its silence limit
-  const alarm = await until('no-data alarm', () => db.get('SELECT rule, active, message FROM alarms WHERE engine_id = ? AND rule = ?', [d.engineId, 'no_data']), (a) => !!a);
+  const alarm = await until(
+    'no-data alarm',
+    () => db.get('SELECT rule, active, message FROM alarms WHERE engine_id = ? AND rule = ?', [d.engineId, 'no_data']),
+    (a) => !!a,
+  );
   expect(Boolean(alarm.active)).toBe(true); // 1 on SQLite, true on PostgreSQL
   expect(alarm.message).toMatch(/reported its data lost/);
 });
@@ -165,16 +249,48 @@ test('data for an unknown alias is counted and asks the edge node for a rebirth 
   const cmd = await ncmd;
   expect(cmd.topic).toBe('spBv1.0/PlantB/NCMD/gw2');
   expect(decode(cmd.payload).metrics).toEqual([expect.objectContaining({ name: 'Node Control/Rebirth', datatype: Boolean_, booleanValue: true })]);
-  await until('unknown alias counted', () => rejections(gw.id), (r) => r.sparkplug_unknown_alias === 1);
+  await until(
+    'unknown alias counted',
+    () => rejections(gw.id),
+    (r) => r.sparkplug_unknown_alias === 1,
+  );
   const report = await api('GET', '/api/admin/ingest');
   expect(report.body.counters!.sparkplug!.rebirthRequests).toBeGreaterThanOrEqual(1);
   expect(await readings(d.engineId)).toEqual([]);
 
   // the rebirth arrives; then an alias the birth did not announce is still unknown, the announced one stored
-  await c.publishAsync('spBv1.0/PlantB/NBIRTH/gw2', encode({ seq: 0, metrics: [{ name: 'bdSeq', datatype: UInt64, longValue: 1 }, { name: 'coolant_temp', alias: 4, datatype: Double, doubleValue: 70 }] }), { qos: 1 });
-  await c.publishAsync('spBv1.0/PlantB/NDATA/gw2', encode({ seq: 1, metrics: [{ alias: 4, doubleValue: 71 }, { alias: 5, doubleValue: 1 }] }), { qos: 1 });
-  await until('2 readings', () => readings(d.engineId), (r) => r.length === 2);
-  await until('second unknown alias counted', () => rejections(gw.id), (r) => r.sparkplug_unknown_alias === 2);
+  await c.publishAsync(
+    'spBv1.0/PlantB/NBIRTH/gw2',
+    encode({
+      seq: 0,
+      metrics: [
+        { name: 'bdSeq', datatype: UInt64, longValue: 1 },
+        { name: 'coolant_temp', alias: 4, datatype: Double, doubleValue: 70 },
+      ],
+    }),
+    { qos: 1 },
+  );
+  await c.publishAsync(
+    'spBv1.0/PlantB/NDATA/gw2',
+    encode({
+      seq: 1,
+      metrics: [
+        { alias: 4, doubleValue: 71 },
+        { alias: 5, doubleValue: 1 },
+      ],
+    }),
+    { qos: 1 },
+  );
+  await until(
+    '2 readings',
+    () => readings(d.engineId),
+    (r) => r.length === 2,
+  );
+  await until(
+    'second unknown alias counted',
+    () => rejections(gw.id),
+    (r) => r.sparkplug_unknown_alias === 2,
+  );
 });
 
 test('hand-assembled DDATA bytes (field numbers of the specification) are stored by alias', async () => {
@@ -183,10 +299,17 @@ test('hand-assembled DDATA bytes (field numbers of the specification) are stored
   const c = await connect(gw);
   const t0 = Date.now() - 5000;
   await c.publishAsync('spBv1.0/PlantC/NBIRTH/gw3', encode({ timestamp: t0, seq: 0, metrics: [] }), { qos: 1 });
-  await c.publishAsync('spBv1.0/PlantC/DBIRTH/gw3/pump', encode({ timestamp: t0, seq: 1, metrics: [{ name: 'ambient_temp', alias: 7, datatype: Double, doubleValue: 21 }] }), { qos: 1 });
+  await c.publishAsync(
+    'spBv1.0/PlantC/DBIRTH/gw3/pump',
+    encode({ timestamp: t0, seq: 1, metrics: [{ name: 'ambient_temp', alias: 7, datatype: Double, doubleValue: 21 }] }),
+    { qos: 1 },
+  );
   const varint = (n: number): number[] => {
     const out: number[] = [];
-    while (n >= 128) { out.push((n % 128) + 128); n = Math.floor(n / 128); }
+    while (n >= 128) {
+      out.push((n % 128) + 128);
+      n = Math.floor(n / 128);
+    }
     out.push(n);
     return out;
   };
@@ -195,7 +318,11 @@ test('hand-assembled DDATA bytes (field numbers of the specification) are stored
   const metric = [0x10, ...varint(7), 0x69, ...dbl]; // alias (2, varint) = 7; double_value (13, 64-bit)
   const bytes = Buffer.from([0x08, ...varint(t0 + 1000), 0x12, metric.length, ...metric, 0x18, 2]); // timestamp (1); metrics (2); seq (3) = 2
   await c.publishAsync('spBv1.0/PlantC/DDATA/gw3/pump', bytes, { qos: 1 });
-  const rows = await until('2 readings', () => readings(d.engineId), (r) => r.length === 2);
+  const rows = await until(
+    '2 readings',
+    () => readings(d.engineId),
+    (r) => r.length === 2,
+  );
   expect(rows[1]).toEqual({ channel: 5, ts: t0 + 1000, value: -12.25, quality: 0 });
   expect(await rejections(gw.id)).toEqual({});
 });
@@ -203,32 +330,53 @@ test('hand-assembled DDATA bytes (field numbers of the specification) are stored
 test('metric names mapped per device with units; a bad payload is counted; an NDEATH (the will) marks the node engine lost', async () => {
   const d = fleet[4];
   const gw = await register(d.engineId, { groupId: 'PlantD', edgeNodeId: 'gw4' });
-  const map = await api('PUT', `/api/devices/${gw.id}/metric-map`, { 'Engine/Coolant/Temp': 'coolant_temp', 'Engine/Jacket/Press': { channel: 'coolant_pressure', unit: 'bar' } });
+  const map = await api('PUT', `/api/devices/${gw.id}/metric-map`, {
+    'Engine/Coolant/Temp': 'coolant_temp',
+    'Engine/Jacket/Press': { channel: 'coolant_pressure', unit: 'bar' },
+  });
   expect(map.status).toBe(200);
   expect(map.body.metricMap['Engine/Coolant/Temp']).toBe('coolant_temp');
-  expect((await api('PUT', `/api/devices/${gw.id}/metric-map`, { 'X': 'oil_temp' })).body.field).toBe('X');
+  expect((await api('PUT', `/api/devices/${gw.id}/metric-map`, { X: 'oil_temp' })).body.field).toBe('X');
   const will = encode({ metrics: [{ name: 'bdSeq', datatype: UInt64, longValue: 3 }] });
   const c = await connect(gw, { will: { topic: 'spBv1.0/PlantD/NDEATH/gw4', payload: will, qos: 0, retain: false } });
   const t0 = Date.now() - 2000;
-  await c.publishAsync('spBv1.0/PlantD/NBIRTH/gw4', encode({
-    timestamp: t0, seq: 0, metrics: [
-      { name: 'bdSeq', datatype: UInt64, longValue: 3 },
-      { name: 'Engine/Coolant/Temp', alias: 1, datatype: Double, doubleValue: 180.5, ...withUnit('degF') },
-      { name: 'Engine/Jacket/Press', alias: 2, datatype: Double, doubleValue: 1.2 },
-      { name: 'Engine/Oil/Level', alias: 3, datatype: Double, doubleValue: 0.8 },
-      { name: 'engine_speed', alias: 4, datatype: Int32, intValue: 0 },
-    ],
-  }), { qos: 1 });
+  await c.publishAsync(
+    'spBv1.0/PlantD/NBIRTH/gw4',
+    encode({
+      timestamp: t0,
+      seq: 0,
+      metrics: [
+        { name: 'bdSeq', datatype: UInt64, longValue: 3 },
+        { name: 'Engine/Coolant/Temp', alias: 1, datatype: Double, doubleValue: 180.5, ...withUnit('degF') },
+        { name: 'Engine/Jacket/Press', alias: 2, datatype: Double, doubleValue: 1.2 },
+        { name: 'Engine/Oil/Level', alias: 3, datatype: Double, doubleValue: 0.8 },
+        { name: 'engine_speed', alias: 4, datatype: Int32, intValue: 0 },
+      ],
+    }),
+    { qos: 1 },
+  );
   await c.publishAsync('spBv1.0/PlantD/NDATA/gw4', Buffer.from('{"ts":1,"values":{}}'), { qos: 1 }); // not protobuf
-  const rows = await until('3 readings', () => readings(d.engineId), (r) => r.length === 3);
+  const rows = await until(
+    '3 readings',
+    () => readings(d.engineId),
+    (r) => r.length === 3,
+  );
   expect(rows.map((r) => r.channel)).toEqual([1, 2, 4]);
   expect(rows[0].value).toBeCloseTo(82.5, 9); // NIST SP 811 B.9: t/°C = (t/°F - 32) / 1.8
   expect(rows[1].value).toBeCloseTo(120, 9); // NIST SP 811 B.8: 1 bar = 100 kPa
-  const r = await until('rejections', () => rejections(gw.id), (x) => x.sparkplug_decode === 1 && x.unknown_channel === 1);
+  const r = await until(
+    'rejections',
+    () => rejections(gw.id),
+    (x) => x.sparkplug_decode === 1 && x.unknown_channel === 1,
+  );
   expect(r).toEqual({ sparkplug_decode: 1, unknown_channel: 1 }); // Engine/Oil/Level has no channel
   expect((await engine(d.engineId)).runState).toBe('stopped');
   (c as unknown as { stream: { destroy(): void } }).stream.destroy(); // the gateway drops off the network: the broker sends its will
-  const lost = await until('engine data lost', () => engine(d.engineId), (e) => e.runState === 'no-data');
+  const lost = await until(
+    'engine data lost',
+    () => engine(d.engineId),
+    (e) => e.runState === 'no-data',
+  );
   expect(lost.latest.coolant_temp).toMatchObject({ quality: 1 });
 });
 
@@ -242,7 +390,11 @@ test('a wrong group, edge node or device for the credentials is refused and coun
     c.publish(topic, encode({ seq: 0, metrics: [{ name: 'coolant_temp', alias: 1, datatype: Double, doubleValue: 90 }] }), { qos: 1 });
     await closed;
   }
-  await until('wrong_topic counted', () => rejections(gw.id), (r) => r.wrong_topic === attempts.length);
+  await until(
+    'wrong_topic counted',
+    () => rejections(gw.id),
+    (r) => r.wrong_topic === attempts.length,
+  );
   expect(await readings(d.engineId)).toEqual([]);
   // another engine's gateway subscribing to this node's commands gets nothing granted
   const other = await connect({ username: fleet[0].username, secret: fleet[0].secret, id: fleet[0].deviceId });
@@ -251,30 +403,76 @@ test('a wrong group, edge node or device for the credentials is refused and coun
   const closed = new Promise<void>((resolve) => other.once('close', () => resolve()));
   other.publish('spBv1.0/PlantE/NDATA/gw5', encode({ seq: 1, metrics: [] }), { qos: 1 });
   await closed;
-  await until('wrong_topic of the JSON device', () => rejections(fleet[0].deviceId), (r) => r.wrong_topic === 1);
+  await until(
+    'wrong_topic of the JSON device',
+    () => rejections(fleet[0].deviceId),
+    (r) => r.wrong_topic === 1,
+  );
 });
 
 test('the simulator speaks Sparkplug B with its device credentials; killed with -9, its will (NDEATH) marks the engine lost', async () => {
   const [d] = await seedFleet(db, 1, 'spsim');
   const gw = await register(d.engineId, { groupId: 'SimPlant', edgeNodeId: 'sim-gw', deviceId: 'genset' });
   const file = path.join(server.dataDir, 'sparkplug-devices.json');
-  fs.writeFileSync(file, JSON.stringify({ devices: [{
-    engineId: d.engineId, username: gw.username, secret: gw.secret, duty: 'standby', capacityL: 60, capPressureKpa: 100, heaterSetpointC: 40,
-    sparkplug: { groupId: 'SimPlant', edgeNodeId: 'sim-gw', deviceId: 'genset' },
-  }] }));
+  fs.writeFileSync(
+    file,
+    JSON.stringify({
+      devices: [
+        {
+          engineId: d.engineId,
+          username: gw.username,
+          secret: gw.secret,
+          duty: 'standby',
+          capacityL: 60,
+          capPressureKpa: 100,
+          heaterSetpointC: 40,
+          sparkplug: { groupId: 'SimPlant', edgeNodeId: 'sim-gw', deviceId: 'genset' },
+        },
+      ],
+    }),
+  );
   const root = path.resolve(__dirname, '../..');
-  const sim = spawn(process.execPath, [path.join(root, 'node_modules/tsx/dist/cli.mjs'), path.join(root, 'simulator/cli.ts'),
-    '--protocol', 'sparkplug', '--devices', file, '--mqtt-url', `mqtt://127.0.0.1:${server.mqttPort}`, '--rate', '5'], { cwd: root, detached: true, stdio: 'ignore' });
+  const sim = spawn(
+    process.execPath,
+    [
+      path.join(root, 'node_modules/tsx/dist/cli.mjs'),
+      path.join(root, 'simulator/cli.ts'),
+      '--protocol',
+      'sparkplug',
+      '--devices',
+      file,
+      '--mqtt-url',
+      `mqtt://127.0.0.1:${server.mqttPort}`,
+      '--rate',
+      '5',
+    ],
+    { cwd: root, detached: true, stdio: 'ignore' },
+  );
   try {
     // every channel arrives as a reading of the engine, by alias after the birth
-    await until('readings of every channel', () => db.all<{ channel: number }>('SELECT DISTINCT channel FROM readings WHERE engine_id = ?', [d.engineId]), (r) => r.length === 5, 30_000);
-    await until('more than one data message', () => readings(d.engineId), (r) => r.length >= 15, 30_000);
+    await until(
+      'readings of every channel',
+      () => db.all<{ channel: number }>('SELECT DISTINCT channel FROM readings WHERE engine_id = ?', [d.engineId]),
+      (r) => r.length === 5,
+      30_000,
+    );
+    await until(
+      'more than one data message',
+      () => readings(d.engineId),
+      (r) => r.length >= 15,
+      30_000,
+    );
     expect(await rejections(gw.id)).toEqual({});
     expect((await engine(d.engineId)).runState).not.toBe('no-data');
   } finally {
     process.kill(-sim.pid!, 'SIGKILL'); // the simulator's own process group
   }
-  await until('engine data lost', () => engine(d.engineId), (e) => e.runState === 'no-data', 30_000);
+  await until(
+    'engine data lost',
+    () => engine(d.engineId),
+    (e) => e.runState === 'no-data',
+    30_000,
+  );
 });
 
 test('a changed metric map asks the edge node for a rebirth, so the new names apply at once', async () => {

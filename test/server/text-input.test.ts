@@ -27,13 +27,20 @@ describe('bad characters in text', () => {
   });
 
   it('a user name with an override is refused; nested fields are named by their path', async () => {
-    const res = await request(t.app).post('/api/users').set(auth(t.tokens.admin))
-      .send({ email: 'rtl@example.test', name: 'Eve \u202Eredlohdna', role: 'operator', password: 'copper-pipe-and-gauge' }).expect(400);
+    const res = await request(t.app)
+      .post('/api/users')
+      .set(auth(t.tokens.admin))
+      .send({ email: 'rtl@example.test', name: 'Eve \u202Eredlohdna', role: 'operator', password: 'copper-pipe-and-gauge' })
+      .expect(400);
     expect(res.body.field).toBe('name');
   });
 
   it('ordinary text with accents, tabs and new lines is accepted', async () => {
-    const res = await request(t.app).post('/api/sites').set(auth(t.tokens.admin)).send({ name: 'Usine Saint-Étienne – Nord', timeZone: 'Europe/Paris' }).expect(201);
+    const res = await request(t.app)
+      .post('/api/sites')
+      .set(auth(t.tokens.admin))
+      .send({ name: 'Usine Saint-Étienne – Nord', timeZone: 'Europe/Paris' })
+      .expect(201);
     expect(res.body.name).toBe('Usine Saint-Étienne – Nord');
   });
 });

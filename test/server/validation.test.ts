@@ -28,25 +28,51 @@ describe('validation names the field', () => {
     ['name', ''],
     ['capacityL', '80'],
   ])('engine %s = %p is 400', async (field, value) => {
-    const res = await request(t.app).post('/api/engines').set(admin()).send({ ...goodEngine(), [field]: value }).expect(400);
+    const res = await request(t.app)
+      .post('/api/engines')
+      .set(admin())
+      .send({ ...goodEngine(), [field]: value })
+      .expect(400);
     expect(res.body.field).toBe(field);
     expect(typeof res.body.error).toBe('string');
   });
 
   it('accepts the edges of the ranges and stores SI values, answering in camelCase', async () => {
-    const res = await request(t.app).post('/api/engines').set(admin()).send({ ...goodEngine(), capacityL: 5000, capPressureKpa: 0, glycolPercent: 70, safeOpenTempC: 20 }).expect(201);
-    expect(res.body).toMatchObject({ siteId, capacityL: 5000, capPressureKpa: 0, glycolPercent: 70, safeOpenTempC: 20, duty: 'standby', runState: 'no-data', latest: {}, lastSeenAt: null });
+    const res = await request(t.app)
+      .post('/api/engines')
+      .set(admin())
+      .send({ ...goodEngine(), capacityL: 5000, capPressureKpa: 0, glycolPercent: 70, safeOpenTempC: 20 })
+      .expect(201);
+    expect(res.body).toMatchObject({
+      siteId,
+      capacityL: 5000,
+      capPressureKpa: 0,
+      glycolPercent: 70,
+      safeOpenTempC: 20,
+      duty: 'standby',
+      runState: 'no-data',
+      latest: {},
+      lastSeenAt: null,
+    });
     expect(res.body.activeAlarms).toBeUndefined();
     expect(res.body.capacity_l).toBeUndefined();
   });
 
   it('rejects an unknown field by name', async () => {
-    const res = await request(t.app).post('/api/engines').set(admin()).send({ ...goodEngine(), capacityGal: 20 }).expect(400);
+    const res = await request(t.app)
+      .post('/api/engines')
+      .set(admin())
+      .send({ ...goodEngine(), capacityGal: 20 })
+      .expect(400);
     expect(res.body.field).toBe('capacityGal');
   });
 
   it('rejects an engine on a site that does not exist', async () => {
-    const res = await request(t.app).post('/api/engines').set(admin()).send({ ...goodEngine(), siteId: 9999 }).expect(400);
+    const res = await request(t.app)
+      .post('/api/engines')
+      .set(admin())
+      .send({ ...goodEngine(), siteId: 9999 })
+      .expect(400);
     expect(res.body.field).toBe('siteId');
   });
 
@@ -57,11 +83,43 @@ describe('validation names the field', () => {
 
   it('rejects a short password, a bad role and a duplicate e-mail', async () => {
     const base = { email: 'someone@example.test', name: 'Some One', password: 'long-enough-pw', role: 'operator' };
-    expect((await request(t.app).post('/api/users').set(admin()).send({ ...base, password: 'short' }).expect(400)).body.field).toBe('password');
-    expect((await request(t.app).post('/api/users').set(admin()).send({ ...base, role: 'boss' }).expect(400)).body.field).toBe('role');
-    expect((await request(t.app).post('/api/users').set(admin()).send({ ...base, email: 'not-an-email' }).expect(400)).body.field).toBe('email');
+    expect(
+      (
+        await request(t.app)
+          .post('/api/users')
+          .set(admin())
+          .send({ ...base, password: 'short' })
+          .expect(400)
+      ).body.field,
+    ).toBe('password');
+    expect(
+      (
+        await request(t.app)
+          .post('/api/users')
+          .set(admin())
+          .send({ ...base, role: 'boss' })
+          .expect(400)
+      ).body.field,
+    ).toBe('role');
+    expect(
+      (
+        await request(t.app)
+          .post('/api/users')
+          .set(admin())
+          .send({ ...base, email: 'not-an-email' })
+          .expect(400)
+      ).body.field,
+    ).toBe('email');
     await request(t.app).post('/api/users').set(admin()).send(base).expect(201);
-    expect((await request(t.app).post('/api/users').set(admin()).send({ ...base, email: 'SomeOne@example.test' }).expect(409)).body.field).toBe('email');
+    expect(
+      (
+        await request(t.app)
+          .post('/api/users')
+          .set(admin())
+          .send({ ...base, email: 'SomeOne@example.test' })
+          .expect(409)
+      ).body.field,
+    ).toBe('email');
   });
 
   it('an admin cannot disable themselves', async () => {
@@ -99,7 +157,12 @@ describe('not found is JSON', () => {
   });
 
   it('unknown engine, site, device, user', async () => {
-    for (const [m, p] of [['get', '/api/engines/9999'], ['patch', '/api/sites/9999'], ['post', '/api/devices/9999/rotate'], ['patch', '/api/users/9999']] as const) {
+    for (const [m, p] of [
+      ['get', '/api/engines/9999'],
+      ['patch', '/api/sites/9999'],
+      ['post', '/api/devices/9999/rotate'],
+      ['patch', '/api/users/9999'],
+    ] as const) {
       const res = await request(t.app)[m](p).set(admin()).send({});
       expect([res.status, typeof res.body.error]).toEqual([404, 'string']);
     }
@@ -135,7 +198,11 @@ describe('live fields and health', () => {
     const list = (await request(t.app).get('/api/engines').set(auth(t.tokens.operator)).expect(200)).body as Array<Record<string, unknown>>;
     t.ctx.telemetry = before;
     const mine = list.find((e) => e.id === engine.id)!;
-    expect(mine).toMatchObject({ latest: { coolant_temp: { value: 41.5, ts: 1_767_000_000_000, quality: 0 } }, lastSeenAt: 1_767_000_000_000, runState: 'stopped' });
+    expect(mine).toMatchObject({
+      latest: { coolant_temp: { value: 41.5, ts: 1_767_000_000_000, quality: 0 } },
+      lastSeenAt: 1_767_000_000_000,
+      runState: 'stopped',
+    });
     expect(list.filter((e) => e.id !== engine.id).every((e) => e.runState === 'no-data')).toBe(true);
   });
 
@@ -147,6 +214,8 @@ describe('live fields and health', () => {
     await t.ctx.models.DeviceRejection.create({ deviceId: dev.id, reason: 'not_json', count: 3, lastAt: new Date(), lastDetail: 'Unexpected token' });
     const r = (await request(t.app).get('/api/admin/ingest').set(admin()).expect(200)).body;
     expect(r.counters.rejected).toEqual({ schema: 2 });
-    expect(r.rejections).toContainEqual(expect.objectContaining({ deviceId: dev.id, username: dev.username, engineId: engine.id, reason: 'not_json', count: 3 }));
+    expect(r.rejections).toContainEqual(
+      expect.objectContaining({ deviceId: dev.id, username: dev.username, engineId: engine.id, reason: 'not_json', count: 3 }),
+    );
   });
 });

@@ -43,10 +43,16 @@ async function feed(readings: AcceptedReading[]): Promise<void> {
 
 const MIN = 60_000;
 /** A run, then a stop and a Newton cool-down: 1 sample / 10 s from `fromMin` to `toMin` minutes relative to now. */
-function history(id: number, o: { stopAtMin: number; fromMin: number; toMin?: number; T0?: number; Ta?: number; tauS?: number; pressureTauS?: number; cond?: number }): AcceptedReading[] {
+function history(
+  id: number,
+  o: { stopAtMin: number; fromMin: number; toMin?: number; T0?: number; Ta?: number; tauS?: number; pressureTauS?: number; cond?: number },
+): AcceptedReading[] {
   const now = Date.now();
   const out: AcceptedReading[] = [];
-  const T0 = o.T0 ?? 85, Ta = o.Ta ?? 25, tau = o.tauS ?? 900, ptau = o.pressureTauS ?? 300;
+  const T0 = o.T0 ?? 85,
+    Ta = o.Ta ?? 25,
+    tau = o.tauS ?? 900,
+    ptau = o.pressureTauS ?? 300;
   for (let ts = now + o.fromMin * MIN; ts <= now + (o.toMin ?? 0) * MIN; ts += 10_000) {
     const sinceStop = (ts - (now + o.stopAtMin * MIN)) / 1000;
     const running = sinceStop < 0;
@@ -62,7 +68,18 @@ function history(id: number, o: { stopAtMin: number; fromMin: number; toMin?: nu
 beforeAll(async () => {
   t = await makeTestApp();
   const { Site, Engine } = t.ctx.models;
-  const row = (siteId: number, name: string) => ({ siteId, name, duty: 'standby' as const, capacityL: 60, coolantFamily: 'conventional' as const, glycolType: 'ethylene' as const, glycolPercent: 50, capPressureKpa: 100, oilDrainIntervalH: 250, runHours: 1234 });
+  const row = (siteId: number, name: string) => ({
+    siteId,
+    name,
+    duty: 'standby' as const,
+    capacityL: 60,
+    coolantFamily: 'conventional' as const,
+    glycolType: 'ethylene' as const,
+    glycolPercent: 50,
+    capPressureKpa: 100,
+    oilDrainIntervalH: 250,
+    runHours: 1234,
+  });
   siteId = (await Site.create({ name: 'Test site', timeZone: 'UTC' })).id;
   engineId = (await Engine.create(row(siteId, 'Hot engine'))).id;
   coldEngineId = (await Engine.create(row(siteId, 'Cold engine'))).id;
@@ -70,21 +87,33 @@ beforeAll(async () => {
   t.ctx.telemetry = {
     liveState: live,
     counters: t.ctx.telemetry!.counters,
-    onReadings: (l: (r: AcceptedReading[]) => void) => { listeners.push(l); },
-    emit: (room: string | string[], event: string, payload: unknown) => { emitted.push({ room, event, payload }); },
+    onReadings: (l: (r: AcceptedReading[]) => void) => {
+      listeners.push(l);
+    },
+    emit: (room: string | string[], event: string, payload: unknown) => {
+      emitted.push({ room, event, payload });
+    },
   } as unknown as typeof t.ctx.telemetry;
   // as startServer does: the opening-check history is fed by telemetry
   listeners.push(openingHistoryOf(t.ctx).onReadings);
   const { createUser } = await import('../../server/services/users');
   await createUser(t.ctx.models, { email: 'tech2@example.test', name: 'Second tech', password: 'correct-horse-battery', role: 'technician' }, 4);
-  otherTechToken = (await request(t.app).post('/api/auth/login').send({ email: 'tech2@example.test', password: 'correct-horse-battery' }).expect(200)).body.token;
+  otherTechToken = (await request(t.app).post('/api/auth/login').send({ email: 'tech2@example.test', password: 'correct-horse-battery' }).expect(200)).body
+    .token;
 });
 afterAll(() => t.close());
 
 const as = (role: 'admin' | 'planner' | 'technician' | 'operator') => auth(t.tokens[role]);
 
-async function plannedOrder(engine: number, kind = 'filter-change'): Promise<{ id: number; steps: Array<{ id: number; key: string; gated: boolean; input: string; optional: boolean; unit: string | null }> }> {
-  const res = await request(t.app).post('/api/work-orders').set(as('planner')).send({ engineId: engine, kind, assigneeId: t.userIds.technician, dueDate: '2026-12-10' }).expect(201);
+async function plannedOrder(
+  engine: number,
+  kind = 'filter-change',
+): Promise<{ id: number; steps: Array<{ id: number; key: string; gated: boolean; input: string; optional: boolean; unit: string | null }> }> {
+  const res = await request(t.app)
+    .post('/api/work-orders')
+    .set(as('planner'))
+    .send({ engineId: engine, kind, assigneeId: t.userIds.technician, dueDate: '2026-12-10' })
+    .expect(201);
   await request(t.app).post(`/api/work-orders/${res.body.id}/transition`).set(as('technician')).send({ to: 'in-progress' }).expect(200);
   return res.body;
 }
@@ -92,7 +121,17 @@ async function plannedOrder(engine: number, kind = 'filter-change'): Promise<{ i
 describe('templates', () => {
   it('serves every kind; steps that open the system are gated and carry the hot-coolant caution', async () => {
     const res = await request(t.app).get('/api/work-order-templates').set(as('operator')).expect(200);
-    expect(res.body.map((x: { kind: string }) => x.kind).sort()).toEqual(['coolant-test', 'drain-flush-refill', 'filter-change', 'general-repair', 'leak-check', 'monthly-exercise', 'oil-drain', 'top-up', 'weekly-inspection']);
+    expect(res.body.map((x: { kind: string }) => x.kind).sort()).toEqual([
+      'coolant-test',
+      'drain-flush-refill',
+      'filter-change',
+      'general-repair',
+      'leak-check',
+      'monthly-exercise',
+      'oil-drain',
+      'top-up',
+      'weekly-inspection',
+    ]);
     const filter = res.body.find((x: { kind: string }) => x.kind === 'filter-change');
     const gated = filter.steps.filter((s: { gated: boolean }) => s.gated).map((s: { key: string }) => s.key);
     expect(gated).toEqual(['relieve-pressure', 'remove-filter']);
@@ -110,17 +149,27 @@ describe('creation and transitions by role', () => {
   let id: number;
   it('an operator raises only a request; planning fields are refused', async () => {
     await request(t.app).post('/api/work-orders').set(as('operator')).send({ engineId, kind: 'leak-check', assigneeId: t.userIds.technician }).expect(403);
-    const res = await request(t.app).post('/api/work-orders').set(as('operator')).send({ engineId, kind: 'leak-check', description: 'Puddle under the pump' }).expect(201);
+    const res = await request(t.app)
+      .post('/api/work-orders')
+      .set(as('operator'))
+      .send({ engineId, kind: 'leak-check', description: 'Puddle under the pump' })
+      .expect(201);
     expect(res.body).toMatchObject({ status: 'requested', requestedBy: t.userIds.operator, kind: 'leak-check' });
     expect(res.body.steps.length).toBeGreaterThan(2);
-    for (const s of res.body.steps) expect(s).toEqual(expect.objectContaining({ id: expect.any(Number), title: expect.any(String), gated: expect.any(Boolean) }));
+    for (const s of res.body.steps)
+      expect(s).toEqual(expect.objectContaining({ id: expect.any(Number), title: expect.any(String), gated: expect.any(Boolean) }));
     id = res.body.id;
   });
   it('validation: unknown kind, unknown engine, bad date', async () => {
     expect((await request(t.app).post('/api/work-orders').set(as('planner')).send({ engineId, kind: 'paint-it' }).expect(400)).body.field).toBe('kind');
     expect((await request(t.app).post('/api/work-orders').set(as('planner')).send({ engineId: 9999, kind: 'top-up' }).expect(400)).body.field).toBe('engineId');
-    expect((await request(t.app).post('/api/work-orders').set(as('planner')).send({ engineId, kind: 'top-up', dueDate: '10/12/2026' }).expect(400)).body.field).toBe('dueDate');
-    expect((await request(t.app).post('/api/work-orders').set(as('planner')).send({ engineId, kind: 'top-up', assigneeId: t.userIds.operator }).expect(400)).body.field).toBe('assigneeId');
+    expect(
+      (await request(t.app).post('/api/work-orders').set(as('planner')).send({ engineId, kind: 'top-up', dueDate: '10/12/2026' }).expect(400)).body.field,
+    ).toBe('dueDate');
+    expect(
+      (await request(t.app).post('/api/work-orders').set(as('planner')).send({ engineId, kind: 'top-up', assigneeId: t.userIds.operator }).expect(400)).body
+        .field,
+    ).toBe('assigneeId');
   });
   it('due dates: only whole, valid dates from the year 2000 are saved; half-typed years are refused naming the field', async () => {
     for (const dueDate of ['0002-12-05', '0020-12-05', '0202-12-05', '1999-12-31', '2026-02-30', '2026-13-01', '2026-12-5', '20261205', '2026-12-05T10:00']) {
@@ -129,7 +178,9 @@ describe('creation and transitions by role', () => {
     }
     const ok = await request(t.app).post('/api/work-orders').set(as('planner')).send({ engineId, kind: 'top-up', dueDate: '2026-12-05' }).expect(201);
     expect(ok.body.dueDate).toBe('2026-12-05');
-    expect((await request(t.app).patch(`/api/work-orders/${ok.body.id}`).set(as('planner')).send({ dueDate: '0202-12-05' }).expect(400)).body.field).toBe('dueDate');
+    expect((await request(t.app).patch(`/api/work-orders/${ok.body.id}`).set(as('planner')).send({ dueDate: '0202-12-05' }).expect(400)).body.field).toBe(
+      'dueDate',
+    );
     const after = await request(t.app).get(`/api/work-orders/${ok.body.id}`).set(as('planner')).expect(200);
     expect(after.body.dueDate).toBe('2026-12-05');
     expect(after.body.history.filter((h: { event: string }) => h.event !== 'created').length).toBe(0);
@@ -141,9 +192,13 @@ describe('creation and transitions by role', () => {
     const res = await request(t.app).post(`/api/work-orders/${id}/transition`).set(as('planner')).send({ to: 'planned' }).expect(200);
     expect(res.body).toMatchObject({ status: 'planned', startedAt: null, completedAt: null, signedOffAt: null, closedAt: null });
   });
-  it('assigning and scheduling are the planner\'s', async () => {
+  it("assigning and scheduling are the planner's", async () => {
     await request(t.app).patch(`/api/work-orders/${id}`).set(as('technician')).send({ assigneeId: t.userIds.technician }).expect(403);
-    const res = await request(t.app).patch(`/api/work-orders/${id}`).set(as('planner')).send({ assigneeId: t.userIds.technician, dueDate: '2026-12-05', priority: 'high' }).expect(200);
+    const res = await request(t.app)
+      .patch(`/api/work-orders/${id}`)
+      .set(as('planner'))
+      .send({ assigneeId: t.userIds.technician, dueDate: '2026-12-05', priority: 'high' })
+      .expect(200);
     expect(res.body).toMatchObject({ assigneeId: t.userIds.technician, dueDate: '2026-12-05', priority: 'high', assigneeName: 'Test technician' });
   });
   it('the assigned technician starts; a planner or another technician cannot', async () => {
@@ -158,10 +213,19 @@ describe('creation and transitions by role', () => {
   it('declining needs a note; every transition is in the history', async () => {
     const req = await request(t.app).post('/api/work-orders').set(as('operator')).send({ engineId, kind: 'top-up' }).expect(201);
     await request(t.app).post(`/api/work-orders/${req.body.id}/transition`).set(as('planner')).send({ to: 'cancelled' }).expect(400);
-    const res = await request(t.app).post(`/api/work-orders/${req.body.id}/transition`).set(as('planner')).send({ to: 'cancelled', note: 'Duplicate of an open order' }).expect(200);
+    const res = await request(t.app)
+      .post(`/api/work-orders/${req.body.id}/transition`)
+      .set(as('planner'))
+      .send({ to: 'cancelled', note: 'Duplicate of an open order' })
+      .expect(200);
     expect(res.body.history.map((h: { event: string }) => h.event)).toEqual(['requested', 'declined']);
     const d = await request(t.app).get(`/api/work-orders/${id}`).set(as('operator')).expect(200);
-    expect(d.body.history.map((h: { event: string; toStatus: string | null }) => [h.event, h.toStatus])).toEqual([['requested', 'requested'], ['accepted', 'planned'], ['assigned', null], ['started', 'in-progress']]);
+    expect(d.body.history.map((h: { event: string; toStatus: string | null }) => [h.event, h.toStatus])).toEqual([
+      ['requested', 'requested'],
+      ['accepted', 'planned'],
+      ['assigned', null],
+      ['started', 'in-progress'],
+    ]);
   });
   it('lists filter by status, engine, site and mine', async () => {
     const all = await request(t.app).get('/api/work-orders?status=in-progress').set(as('planner')).expect(200);
@@ -181,13 +245,21 @@ describe('the opening check on gated steps (server re-computes it; the client is
   });
 
   it('refuses without lockout/tagout confirmation, naming the unmet condition', async () => {
-    const res = await request(t.app).post(`/api/work-orders/${order.id}/steps/${step('relieve-pressure').id}/complete`).set(as('technician')).send({}).expect(409);
+    const res = await request(t.app)
+      .post(`/api/work-orders/${order.id}/steps/${step('relieve-pressure').id}/complete`)
+      .set(as('technician'))
+      .send({})
+      .expect(409);
     expect(res.body.conditions.map((c: { name: string }) => c.name)).toContain('lockout-confirmed');
   });
 
   it('refuses (409 with conditions) while the engine runs hot and pressurised, even with lockout ticked', async () => {
     await feed(history(engineId, { stopAtMin: 5, fromMin: -10 })); // running the whole time, 85 °C, 90 kPa
-    const res = await request(t.app).post(`/api/work-orders/${order.id}/steps/${step('relieve-pressure').id}/complete`).set(as('technician')).send({ lockoutConfirmed: true }).expect(409);
+    const res = await request(t.app)
+      .post(`/api/work-orders/${order.id}/steps/${step('relieve-pressure').id}/complete`)
+      .set(as('technician'))
+      .send({ lockoutConfirmed: true })
+      .expect(409);
     const names = res.body.conditions.map((c: { name: string }) => c.name);
     expect(names).toEqual(expect.arrayContaining(['engine-stopped', 'coolant-temperature', 'coolant-pressure', 'held']));
     expect(res.body.conditions.find((c: { name: string }) => c.name === 'coolant-temperature')).toMatchObject({ met: false, value: 85, limit: 50, unit: '°C' });
@@ -195,8 +267,11 @@ describe('the opening check on gated steps (server re-computes it; the client is
   });
 
   it('a manual check cannot overrule fresh live data that says hot', async () => {
-    const res = await request(t.app).post(`/api/work-orders/${order.id}/steps/${step('relieve-pressure').id}/complete`).set(as('technician'))
-      .send({ lockoutConfirmed: true, manualCheck: { gaugeKpa: 0, tempC: 30, minutesSinceStop: 60, checkedBy: 'Test technician', reason: 'gauge reads zero' } }).expect(409);
+    const res = await request(t.app)
+      .post(`/api/work-orders/${order.id}/steps/${step('relieve-pressure').id}/complete`)
+      .set(as('technician'))
+      .send({ lockoutConfirmed: true, manualCheck: { gaugeKpa: 0, tempC: 30, minutesSinceStop: 60, checkedBy: 'Test technician', reason: 'gauge reads zero' } })
+      .expect(409);
     expect(res.body.error).toMatch(/fresh|not safe/);
     expect(await t.ctx.models.AuditEntry.count({ where: { action: 'opening-check-manual-override' } })).toBe(0);
   });
@@ -222,7 +297,17 @@ describe('the opening check on gated steps (server re-computes it; the client is
   });
 
   it('accepts once readings show stopped, cool, depressurised and held', async () => {
-    const e = await t.ctx.models.Engine.create({ siteId: (await t.ctx.models.Site.findOne())!.id, name: 'Cooled engine', duty: 'standby', capacityL: 60, coolantFamily: 'conventional', glycolType: 'ethylene', glycolPercent: 50, capPressureKpa: 100, oilDrainIntervalH: 250 });
+    const e = await t.ctx.models.Engine.create({
+      siteId: (await t.ctx.models.Site.findOne())!.id,
+      name: 'Cooled engine',
+      duty: 'standby',
+      capacityL: 60,
+      coolantFamily: 'conventional',
+      glycolType: 'ethylene',
+      glycolPercent: 50,
+      capPressureKpa: 100,
+      oilDrainIntervalH: 250,
+    });
     const cold = await plannedOrder(e.id);
     const s = cold.steps.find((x) => x.key === 'relieve-pressure')!;
     // before any reading arrives: shut (no data)
@@ -232,7 +317,11 @@ describe('the opening check on gated steps (server re-computes it; the client is
     const check = await request(t.app).get(`/api/engines/${e.id}/opening-check?lockoutConfirmed=true`).set(as('technician')).expect(200);
     expect(check.body.clear).toBe(true);
     expect(check.body.conditions.find((c: { name: string }) => c.name === 'coolant-temperature').value).toBeCloseTo(25 + 60 * Math.exp(-2400 / 900), 1);
-    const res = await request(t.app).post(`/api/work-orders/${cold.id}/steps/${s.id}/complete`).set(as('technician')).send({ lockoutConfirmed: true }).expect(200);
+    const res = await request(t.app)
+      .post(`/api/work-orders/${cold.id}/steps/${s.id}/complete`)
+      .set(as('technician'))
+      .send({ lockoutConfirmed: true })
+      .expect(200);
     const done = res.body.steps.find((x: { id: number }) => x.id === s.id);
     expect(done).toMatchObject({ lockoutConfirmed: true, manualCheck: null, doneByName: 'Test technician' });
     expect(done.gateSnapshot).toMatchObject({ clear: true, manual: false });
@@ -241,12 +330,31 @@ describe('the opening check on gated steps (server re-computes it; the client is
 
 describe('the stop comes from the stored record', () => {
   it('stopped two days ago with only the last 4 minutes of readings since: met; a new run resets it', async () => {
-    const e = await t.ctx.models.Engine.create({ siteId: (await t.ctx.models.Site.findOne())!.id, name: 'Long-stopped engine', duty: 'standby', capacityL: 60, coolantFamily: 'conventional', glycolType: 'ethylene', glycolPercent: 50, capPressureKpa: 100, oilDrainIntervalH: 250 });
+    const e = await t.ctx.models.Engine.create({
+      siteId: (await t.ctx.models.Site.findOne())!.id,
+      name: 'Long-stopped engine',
+      duty: 'standby',
+      capacityL: 60,
+      coolantFamily: 'conventional',
+      glycolType: 'ethylene',
+      glycolPercent: 50,
+      capPressureKpa: 100,
+      oilDrainIntervalH: 250,
+    });
     const now = Date.now();
     const stop = now - 2 * 24 * 60 * MIN;
-    const rows: AcceptedReading[] = [{ engineId: e.id, channel: 'engine_speed', ts: stop - 10_000, value: 1800, quality: 0 }, { engineId: e.id, channel: 'engine_speed', ts: stop, value: 0, quality: 0 }];
+    const rows: AcceptedReading[] = [
+      { engineId: e.id, channel: 'engine_speed', ts: stop - 10_000, value: 1800, quality: 0 },
+      { engineId: e.id, channel: 'engine_speed', ts: stop, value: 0, quality: 0 },
+    ];
     for (let ts = now - 4 * MIN; ts <= now; ts += 10_000) {
-      for (const [channel, value] of [['engine_speed', 0], ['coolant_temp', 21], ['coolant_pressure', 0], ['ambient_temp', 20]] as const) rows.push({ engineId: e.id, channel, ts, value, quality: 0 });
+      for (const [channel, value] of [
+        ['engine_speed', 0],
+        ['coolant_temp', 21],
+        ['coolant_pressure', 0],
+        ['ambient_temp', 20],
+      ] as const)
+        rows.push({ engineId: e.id, channel, ts, value, quality: 0 });
     }
     await feed(rows);
     const res = await request(t.app).get(`/api/engines/${e.id}/opening-check`).set(as('technician')).expect(200);
@@ -271,20 +379,36 @@ describe('manual check when live data is stale or missing', () => {
   const gatedStep = () => order.steps.find((s) => s.gated)!;
 
   it('without a manual check: 409, stale', async () => {
-    const res = await request(t.app).post(`/api/work-orders/${order.id}/steps/${gatedStep().id}/complete`).set(as('technician')).send({ lockoutConfirmed: true }).expect(409);
+    const res = await request(t.app)
+      .post(`/api/work-orders/${order.id}/steps/${gatedStep().id}/complete`)
+      .set(as('technician'))
+      .send({ lockoutConfirmed: true })
+      .expect(409);
     expect(res.body.stale).toBe(true);
     expect(res.body.conditions.map((c: { name: string }) => c.name)).toContain('telemetry-fresh');
   });
 
   it('hand readings that are themselves unsafe are refused', async () => {
-    const res = await request(t.app).post(`/api/work-orders/${order.id}/steps/${gatedStep().id}/complete`).set(as('technician'))
-      .send({ lockoutConfirmed: true, manualCheck: { gaugeKpa: 40, tempC: 70, minutesSinceStop: 5, checkedBy: 'Test technician', reason: 'gateway offline since the storm' } }).expect(409);
+    const res = await request(t.app)
+      .post(`/api/work-orders/${order.id}/steps/${gatedStep().id}/complete`)
+      .set(as('technician'))
+      .send({
+        lockoutConfirmed: true,
+        manualCheck: { gaugeKpa: 40, tempC: 70, minutesSinceStop: 5, checkedBy: 'Test technician', reason: 'gateway offline since the storm' },
+      })
+      .expect(409);
     expect(res.body.conditions.map((c: { name: string }) => c.name).sort()).toEqual(['manual-pressure', 'manual-stopped', 'manual-temperature']);
   });
 
   it('accepted, recorded on the step, audited, and the planner is told by e-mail', async () => {
-    const res = await request(t.app).post(`/api/work-orders/${order.id}/steps/${gatedStep().id}/complete`).set(as('technician'))
-      .send({ lockoutConfirmed: true, manualCheck: { gaugeKpa: 0, tempC: 31, minutesSinceStop: 240, checkedBy: 'Test technician', reason: 'gateway offline since the storm' } }).expect(200);
+    const res = await request(t.app)
+      .post(`/api/work-orders/${order.id}/steps/${gatedStep().id}/complete`)
+      .set(as('technician'))
+      .send({
+        lockoutConfirmed: true,
+        manualCheck: { gaugeKpa: 0, tempC: 31, minutesSinceStop: 240, checkedBy: 'Test technician', reason: 'gateway offline since the storm' },
+      })
+      .expect(200);
     const s = res.body.steps.find((x: { id: number }) => x.id === gatedStep().id);
     expect(s.manualCheck).toMatchObject({ gaugeKpa: 0, tempC: 31, minutesSinceStop: 240 });
     expect(s.gateSnapshot).toMatchObject({ manual: true, clear: false, stale: true });
@@ -295,7 +419,11 @@ describe('manual check when live data is stale or missing', () => {
     const mail = await t.ctx.models.OutboxMessage.findAll();
     expect(mail.some((m) => m.to.includes('planner@example.test') && /Manual opening check/.test(m.subject) && /31 °C/.test(m.text))).toBe(true);
     // pushed after the engine's site is looked up (to the rooms of that site only)
-    const pushed = await until('work-order-notice pushed', async () => emitted.find((e) => e.event === 'work-order-notice'), (e) => e !== undefined);
+    const pushed = await until(
+      'work-order-notice pushed',
+      async () => emitted.find((e) => e.event === 'work-order-notice'),
+      (e) => e !== undefined,
+    );
     expect(pushed!.room).toEqual(expect.arrayContaining(['fleet', `site:${siteId}`]));
   });
 });
@@ -343,7 +471,16 @@ describe('attachments', () => {
   it('served only to signed-in users, with the type found by content', async () => {
     const up = await upload(t.tokens.technician, JPEG, 'pump.jpg').expect(201);
     await request(t.app).get(`/api/attachments/${up.body.id}`).expect(401);
-    const res = await request(t.app).get(`/api/attachments/${up.body.id}`).set(as('operator')).buffer(true).parse((r, cb) => { const c: Buffer[] = []; r.on('data', (d: Buffer) => c.push(d)); r.on('end', () => cb(null, Buffer.concat(c))); }).expect(200);
+    const res = await request(t.app)
+      .get(`/api/attachments/${up.body.id}`)
+      .set(as('operator'))
+      .buffer(true)
+      .parse((r, cb) => {
+        const c: Buffer[] = [];
+        r.on('data', (d: Buffer) => c.push(d));
+        r.on('end', () => cb(null, Buffer.concat(c)));
+      })
+      .expect(200);
     expect(res.headers['content-type']).toBe('image/jpeg');
     expect(res.headers['x-content-type-options']).toBe('nosniff');
     expect(Buffer.compare(res.body as Buffer, JPEG)).toBe(0);
@@ -362,7 +499,18 @@ describe('a filter change from start to sign-off', () => {
   let order: Awaited<ReturnType<typeof plannedOrder>>;
   let engine: number;
   beforeAll(async () => {
-    const e = await t.ctx.models.Engine.create({ siteId: (await t.ctx.models.Site.findOne())!.id, name: 'Service engine', duty: 'standby', capacityL: 60, coolantFamily: 'conventional', glycolType: 'ethylene', glycolPercent: 50, capPressureKpa: 100, oilDrainIntervalH: 250, runHours: 2000 });
+    const e = await t.ctx.models.Engine.create({
+      siteId: (await t.ctx.models.Site.findOne())!.id,
+      name: 'Service engine',
+      duty: 'standby',
+      capacityL: 60,
+      coolantFamily: 'conventional',
+      glycolType: 'ethylene',
+      glycolPercent: 50,
+      capPressureKpa: 100,
+      oilDrainIntervalH: 250,
+      runHours: 2000,
+    });
     engine = e.id;
     await feed(history(engine, { stopAtMin: -45, fromMin: -70, cond: 2400 }));
     order = await plannedOrder(engine);
@@ -385,7 +533,11 @@ describe('a filter change from start to sign-off', () => {
     }
     await request(t.app).post(`${base}/parts`).set(as('technician')).send({ kind: 'filter-blank', quantity: 1, unit: 'pcs' }).expect(201);
     await request(t.app).post(`${base}/parts`).set(as('technician')).send({ kind: 'coolant', quantity: 11.4, unit: 'pcs' }).expect(400);
-    await request(t.app).post(`${base}/parts`).set(as('technician')).send({ kind: 'coolant', quantity: 11.4, unit: 'L', description: '50/50 premix' }).expect(201);
+    await request(t.app)
+      .post(`${base}/parts`)
+      .set(as('technician'))
+      .send({ kind: 'coolant', quantity: 11.4, unit: 'L', description: '50/50 premix' })
+      .expect(201);
     await request(t.app).post(`${base}/transition`).set(auth(otherTechToken)).send({ to: 'waiting-sign-off' }).expect(403);
     const done = await request(t.app).post(`${base}/transition`).set(as('technician')).send({ to: 'waiting-sign-off' }).expect(200);
     expect(done.body.status).toBe('waiting-sign-off');
@@ -402,7 +554,7 @@ describe('a filter change from start to sign-off', () => {
     for (const k of ['startedAt', 'completedAt', 'signedOffAt', 'closedAt']) expect(typeof closed.body[k]).toBe('string');
     expect(Date.parse(closed.body.signedOffAt)).toBeGreaterThanOrEqual(Date.parse(closed.body.completedAt));
     expect(Date.parse(closed.body.completedAt)).toBeGreaterThan(Date.parse(closed.body.startedAt));
-    expect((await t.ctx.models.AuditEntry.count({ where: { action: 'work-order-signed-off', entityId: order.id } }))).toBe(1);
+    expect(await t.ctx.models.AuditEntry.count({ where: { action: 'work-order-signed-off', entityId: order.id } })).toBe(1);
 
     // frozen: no edits, no parts, no steps, no files, no further transitions; amendments are appended
     await request(t.app).patch(base).set(as('planner')).send({ title: 'Rewritten' }).expect(409);
@@ -411,35 +563,81 @@ describe('a filter change from start to sign-off', () => {
     const opt = order.steps.find((x) => x.optional)!;
     await request(t.app).post(`${base}/steps/${opt.id}/complete`).set(as('technician')).send({}).expect(409);
     await request(t.app).post(`${base}/amendments`).set(as('operator')).send({ text: 'x' }).expect(403);
-    const am = await request(t.app).post(`${base}/amendments`).set(as('planner')).send({ text: 'Filter part number was wrong on the record: it was the blank one.' }).expect(201);
+    const am = await request(t.app)
+      .post(`${base}/amendments`)
+      .set(as('planner'))
+      .send({ text: 'Filter part number was wrong on the record: it was the blank one.' })
+      .expect(201);
     expect(am.body.amendments).toHaveLength(1);
     expect(am.body.title).not.toBe('Rewritten');
     const events = am.body.history.map((h: { event: string }) => h.event);
-    expect(events.filter((e: string) => ['created', 'started', 'completed', 'signed-off', 'amended'].includes(e))).toEqual(['created', 'started', 'completed', 'signed-off', 'amended']);
+    expect(events.filter((e: string) => ['created', 'started', 'completed', 'signed-off', 'amended'].includes(e))).toEqual([
+      'created',
+      'started',
+      'completed',
+      'signed-off',
+      'amended',
+    ]);
     expect(events).toContain('baseline-reset');
   });
 });
 
 describe('from an alarm in one click', () => {
   it('links the alarm and carries its data into the description and priority', async () => {
-    const alarm = await t.ctx.models.Alarm.create({ engineId, rule: 'coolant_temp_high', priority: 'high', state: 'unacknowledged', raisedAt: new Date('2026-12-01T10:00:00Z'), value: 104.2, worstValue: 106, unit: 'degC', message: 'Coolant temperature high' });
+    const alarm = await t.ctx.models.Alarm.create({
+      engineId,
+      rule: 'coolant_temp_high',
+      priority: 'high',
+      state: 'unacknowledged',
+      raisedAt: new Date('2026-12-01T10:00:00Z'),
+      value: 104.2,
+      worstValue: 106,
+      unit: 'degC',
+      message: 'Coolant temperature high',
+    });
     const res = await request(t.app).post('/api/work-orders').set(as('planner')).send({ engineId, kind: 'leak-check', alarmId: alarm.id }).expect(201);
     expect(res.body).toMatchObject({ status: 'planned', priority: 'high', alarmIds: [alarm.id] });
     // in words: the rule's title, the priority, the time in the site's zone (UTC here), values with units (°F = 1.8 °C + 32)
-    expect(res.body.description).toBe(`From alarm #${alarm.id}: Coolant temperature high, high priority, raised 1 Dec 2026, 10:00 (UTC). Coolant temperature high. Value when raised: 104.2 °C (219.6 °F). Worst since: 106.0 °C (222.8 °F).`);
+    expect(res.body.description).toBe(
+      `From alarm #${alarm.id}: Coolant temperature high, high priority, raised 1 Dec 2026, 10:00 (UTC). Coolant temperature high. Value when raised: 104.2 °C (219.6 °F). Worst since: 106.0 °C (222.8 °F).`,
+    );
     expect(res.body.description).not.toMatch(/coolant_temp_high|T10:00/);
     await request(t.app).post('/api/work-orders').set(as('planner')).send({ engineId: coldEngineId, kind: 'leak-check', alarmId: alarm.id }).expect(400);
   });
 });
 
 describe('drafts that stay, locked steps and the single coolant test', () => {
-  type Step = { id: number; key: string; resultValue: number | null; resultUnit: string | null; resultText: string | null; doneAt: string | null; lockoutConfirmed: boolean | null };
+  type Step = {
+    id: number;
+    key: string;
+    resultValue: number | null;
+    resultUnit: string | null;
+    resultText: string | null;
+    doneAt: string | null;
+    lockoutConfirmed: boolean | null;
+  };
   let order: { id: number; steps: Step[] };
   let cooledId: number;
   const step = (key: string) => order.steps.find((s) => s.key === key)!;
-  const patch = (key: string, body: object) => request(t.app).patch(`/api/work-orders/${order.id}/steps/${step(key).id}`).set(as('technician')).send(body);
+  const patch = (key: string, body: object) =>
+    request(t.app)
+      .patch(`/api/work-orders/${order.id}/steps/${step(key).id}`)
+      .set(as('technician'))
+      .send(body);
   beforeAll(async () => {
-    cooledId = (await t.ctx.models.Engine.create({ siteId: (await t.ctx.models.Site.findOne())!.id, name: 'Sampled engine', duty: 'standby', capacityL: 60, coolantFamily: 'conventional', glycolType: 'ethylene', glycolPercent: 50, capPressureKpa: 100, oilDrainIntervalH: 250 })).id;
+    cooledId = (
+      await t.ctx.models.Engine.create({
+        siteId: (await t.ctx.models.Site.findOne())!.id,
+        name: 'Sampled engine',
+        duty: 'standby',
+        capacityL: 60,
+        coolantFamily: 'conventional',
+        glycolType: 'ethylene',
+        glycolPercent: 50,
+        capPressureKpa: 100,
+        oilDrainIntervalH: 250,
+      })
+    ).id;
     order = (await plannedOrder(cooledId, 'coolant-test')) as unknown as typeof order;
   });
 
@@ -459,8 +657,16 @@ describe('drafts that stay, locked steps and the single coolant test', () => {
     expect((await patch('freeze-point', { value: 3, unit: 'psi' }).expect(400)).body.field).toBe('unit');
     expect((await patch('method', { value: 3 }).expect(400)).body.field).toBe('value');
     expect((await patch('freeze-point', { value: 'cold' }).expect(400)).body.field).toBe('value');
-    await request(t.app).patch(`/api/work-orders/${order.id}/steps/${step('ph').id}`).set(auth(otherTechToken)).send({ value: 9 }).expect(403);
-    await request(t.app).patch(`/api/work-orders/${order.id}/steps/${step('ph').id}`).set(as('planner')).send({ value: 9 }).expect(403);
+    await request(t.app)
+      .patch(`/api/work-orders/${order.id}/steps/${step('ph').id}`)
+      .set(auth(otherTechToken))
+      .send({ value: 9 })
+      .expect(403);
+    await request(t.app)
+      .patch(`/api/work-orders/${order.id}/steps/${step('ph').id}`)
+      .set(as('planner'))
+      .send({ value: 9 })
+      .expect(403);
   });
 
   it('a locked gated step accepts no results (409 with the unmet conditions)', async () => {
@@ -476,7 +682,11 @@ describe('drafts that stay, locked steps and the single coolant test', () => {
   });
 
   it('lockout/tagout confirmed on the lock-out step is carried to the gated sampling step', async () => {
-    const lock = await request(t.app).post(`/api/work-orders/${order.id}/steps/${step('stop-and-lock-out').id}/complete`).set(as('technician')).send({}).expect(200);
+    const lock = await request(t.app)
+      .post(`/api/work-orders/${order.id}/steps/${step('stop-and-lock-out').id}/complete`)
+      .set(as('technician'))
+      .send({})
+      .expect(200);
     expect(lock.body.steps.find((s: Step) => s.key === 'stop-and-lock-out').lockoutConfirmed).toBe(true);
     // still shut while no readings say the system is safe, even with lockout carried
     const shut = await patch('take-sample', { note: 'x' }).expect(409);
@@ -484,14 +694,22 @@ describe('drafts that stay, locked steps and the single coolant test', () => {
     // ran until 40 min ago, then cooled (Newton, tau 900 s): 29.2 °C, no pressure
     await feed(history(cooledId, { stopAtMin: -40, fromMin: -60 }));
     await patch('take-sample', { note: 'from the block drain' }).expect(200);
-    const done = await request(t.app).post(`/api/work-orders/${order.id}/steps/${step('take-sample').id}/complete`).set(as('technician')).send({}).expect(200);
+    const done = await request(t.app)
+      .post(`/api/work-orders/${order.id}/steps/${step('take-sample').id}/complete`)
+      .set(as('technician'))
+      .send({})
+      .expect(200);
     const s = done.body.steps.find((x: Step) => x.key === 'take-sample');
     expect(s).toMatchObject({ lockoutConfirmed: true, resultText: 'from the block drain' });
     expect(s.doneAt).not.toBeNull();
   });
 
   it('completing keeps the drafted values (converted to the step unit) and the remark', async () => {
-    const res = await request(t.app).post(`/api/work-orders/${order.id}/steps/${step('freeze-point').id}/complete`).set(as('technician')).send({}).expect(200);
+    const res = await request(t.app)
+      .post(`/api/work-orders/${order.id}/steps/${step('freeze-point').id}/complete`)
+      .set(as('technician'))
+      .send({})
+      .expect(200);
     const fp = res.body.steps.find((s: Step) => s.key === 'freeze-point');
     // (-29.2 °F - 32) x 5/9 = -34.0 °C (definition of the Fahrenheit scale, NIST SP 811 B.8)
     expect(fp.resultValue).toBeCloseTo(-34, 6);
@@ -523,10 +741,21 @@ describe('OpenAPI', () => {
     const { buildOpenApi } = await import('../../server/openapi');
     const doc = buildOpenApi() as { paths: Record<string, Record<string, unknown>> };
     const routes: Array<[string, string]> = [
-      ['/api/work-order-templates', 'get'], ['/api/engines/{id}/opening-check', 'get'], ['/api/work-orders', 'get'], ['/api/work-orders', 'post'],
-      ['/api/work-orders/{id}', 'get'], ['/api/work-orders/{id}', 'patch'], ['/api/work-orders/{id}/transition', 'post'],
-      ['/api/work-orders/{id}/steps/{stepId}/complete', 'post'], ['/api/work-orders/{id}/parts', 'post'], ['/api/work-orders/{id}/amendments', 'post'],
-      ['/api/work-orders/{id}/attachments', 'post'], ['/api/work-orders/{id}/steps/{stepId}', 'patch'], ['/api/work-orders/{id}/coolant-test', 'post'], ['/api/attachments/{id}', 'get'], ['/api/work-orders/assignees', 'get'],
+      ['/api/work-order-templates', 'get'],
+      ['/api/engines/{id}/opening-check', 'get'],
+      ['/api/work-orders', 'get'],
+      ['/api/work-orders', 'post'],
+      ['/api/work-orders/{id}', 'get'],
+      ['/api/work-orders/{id}', 'patch'],
+      ['/api/work-orders/{id}/transition', 'post'],
+      ['/api/work-orders/{id}/steps/{stepId}/complete', 'post'],
+      ['/api/work-orders/{id}/parts', 'post'],
+      ['/api/work-orders/{id}/amendments', 'post'],
+      ['/api/work-orders/{id}/attachments', 'post'],
+      ['/api/work-orders/{id}/steps/{stepId}', 'patch'],
+      ['/api/work-orders/{id}/coolant-test', 'post'],
+      ['/api/attachments/{id}', 'get'],
+      ['/api/work-orders/assignees', 'get'],
     ];
     for (const [p, m] of routes) expect({ p, m, documented: !!doc.paths[p]?.[m] }).toEqual({ p, m, documented: true });
   });

@@ -3,7 +3,14 @@
  * filter and "strips do not apply to extended-life coolant" are common practice of the trade (defaults, overridable).
  * Volume factors: NIST SP 811 Appendix B (1 US gal = 3.785411784 L, 1 US pint = 0.473176473 L).
  */
-import { decideAdditive, initialChargeAfterRefill, MIN_PRACTICAL_DOSE_L, practicalDose, unitsPerGalToPerLitre, unitsPerLitreToPerGal } from '../../shared/coolant/additive';
+import {
+  decideAdditive,
+  initialChargeAfterRefill,
+  MIN_PRACTICAL_DOSE_L,
+  practicalDose,
+  unitsPerGalToPerLitre,
+  unitsPerLitreToPerGal,
+} from '../../shared/coolant/additive';
 
 const conv = (scaUnitsPerGal: number, capacityL = 60.6) => decideAdditive({ coolantFamily: 'conventional', scaUnitsPerGal, capacityL });
 
@@ -173,7 +180,15 @@ describe('minimum practical dose: never "low" with 0.00 L (5 mL minimum and 5 mL
     expect(d.doseNote).toMatch(/below the smallest practical dose of 5 mL/);
   });
   it.each([
-    [0, 0], [0.0012, 0.005], [0.0074, 0.005], [0.0076, 0.01], [0.0249, 0.025], [0.049, 0.05], [0.074, 0.05], [0.076, 0.1], [1.894, 1.9],
+    [0, 0],
+    [0.0012, 0.005],
+    [0.0074, 0.005],
+    [0.0076, 0.01],
+    [0.0249, 0.025],
+    [0.049, 0.05],
+    [0.074, 0.05],
+    [0.076, 0.1],
+    [1.894, 1.9],
   ])('practicalDose(%f L) -> %f L (5 mL steps below 0.05 L, 0.05 L steps above, hand arithmetic)', (exact, litres) => {
     expect(practicalDose(exact).litres).toBeCloseTo(litres, 10);
   });

@@ -19,7 +19,12 @@ const one = (reading: Parameters<typeof judgeChemistry>[0], c: ChemistryContext 
 };
 
 describe('nitrite 800 to 3200 ppm (common practice, from memory)', () => {
-  it.each([[799, 'low'], [800, 'ok'], [3200, 'ok'], [3201, 'high']])('%d ppm -> %s', (v, status) => {
+  it.each([
+    [799, 'low'],
+    [800, 'ok'],
+    [3200, 'ok'],
+    [3201, 'high'],
+  ])('%d ppm -> %s', (v, status) => {
     expect(one({ nitritePpm: v }).status).toBe(status);
   });
   it('low says why (cavitation pitting of wet liners) and what to do', () => {
@@ -34,13 +39,23 @@ describe('nitrite 800 to 3200 ppm (common practice, from memory)', () => {
 });
 
 describe('molybdate 300 to 1500 ppm (common practice, from memory)', () => {
-  it.each([[299, 'low'], [300, 'ok'], [1500, 'ok'], [1501, 'high']])('%d ppm -> %s', (v, status) => {
+  it.each([
+    [299, 'low'],
+    [300, 'ok'],
+    [1500, 'ok'],
+    [1501, 'high'],
+  ])('%d ppm -> %s', (v, status) => {
     expect(one({ molybdatePpm: v }).status).toBe(status);
   });
 });
 
 describe('pH 7.5 to 11.0 (ASTM D3306 / D6210, from memory)', () => {
-  it.each([[7.49, 'low'], [7.5, 'ok'], [11.0, 'ok'], [11.01, 'high']])('pH %f -> %s', (v, status) => {
+  it.each([
+    [7.49, 'low'],
+    [7.5, 'ok'],
+    [11.0, 'ok'],
+    [11.01, 'high'],
+  ])('pH %f -> %s', (v, status) => {
     expect(one({ ph: v }).status).toBe(status);
   });
   it('low pH names glycol breakdown and a drain and refill', () => {
@@ -51,7 +66,11 @@ describe('pH 7.5 to 11.0 (ASTM D3306 / D6210, from memory)', () => {
 });
 
 describe('reserve alkalinity at least 5.0 mL (common practice, from memory)', () => {
-  it.each([[4.99, 'low'], [5.0, 'ok'], [12, 'ok']])('%f mL -> %s', (v, status) => {
+  it.each([
+    [4.99, 'low'],
+    [5.0, 'ok'],
+    [12, 'ok'],
+  ])('%f mL -> %s', (v, status) => {
     expect(one({ reserveAlkalinityMl: v }).status).toBe(status);
   });
 });
@@ -76,7 +95,7 @@ describe('freeze protection against the site design low with a 5 K margin', () =
     expect(f.value).toBeCloseTo(-20.6, 6);
     expect(f.message).toMatch(/Lange|published table/);
   });
-  it('EG 50 mass % = -33.8 °C (ASHRAE) meets a -28 °C design low; EG by volume from the engine\'s glycol type', () => {
+  it("EG 50 mass % = -33.8 °C (ASHRAE) meets a -28 °C design low; EG by volume from the engine's glycol type", () => {
     const fp = freezePointC('ethylene', 47.28, 'volume');
     const f = one({ glycolPercent: 47.28 }, { glycolType: 'ethylene', designLowC: -28 });
     expect(f.value).toBeCloseTo(fp, 9);
@@ -116,7 +135,16 @@ describe('all fields together, and limits', () => {
     expect(judgeChemistry({}, ctx)).toEqual([]);
   });
   it('defaults are as documented', () => {
-    expect(DEFAULT_CHEMISTRY_LIMITS).toEqual({ nitriteLowPpm: 800, nitriteHighPpm: 3200, molybdateLowPpm: 300, molybdateHighPpm: 1500, phLow: 7.5, phHigh: 11, reserveAlkalinityLowMl: 5, freezeMarginK: 5 });
+    expect(DEFAULT_CHEMISTRY_LIMITS).toEqual({
+      nitriteLowPpm: 800,
+      nitriteHighPpm: 3200,
+      molybdateLowPpm: 300,
+      molybdateHighPpm: 1500,
+      phLow: 7.5,
+      phHigh: 11,
+      reserveAlkalinityLowMl: 5,
+      freezeMarginK: 5,
+    });
   });
   it.each([
     [{ nitriteLowPpm: 3000, nitriteHighPpm: 2000 }, /nitriteHighPpm/],
@@ -134,7 +162,11 @@ describe('all fields together, and limits', () => {
 describe('extended-life coolant', () => {
   it('nitrite and molybdate are not judged by the conventional limits (some extended-life coolants carry none); pH still is', () => {
     const f = judgeChemistry({ nitritePpm: 0, molybdatePpm: 0, ph: 7 }, { glycolType: 'ethylene', coolantFamily: 'extended-life', designLowC: null });
-    expect(f.map((x) => [x.field, x.status])).toEqual([['nitritePpm', 'unknown'], ['molybdatePpm', 'unknown'], ['ph', 'low']]);
+    expect(f.map((x) => [x.field, x.status])).toEqual([
+      ['nitritePpm', 'unknown'],
+      ['molybdatePpm', 'unknown'],
+      ['ph', 'low'],
+    ]);
     expect(f[0].action).toMatch(/coolant maker/);
   });
 });

@@ -23,14 +23,19 @@ describe('extended-life coolant extender in the service plan', () => {
     expect(plan.find((t) => t.key === 'coolant-test')!.title).toMatch(/lab analysis/);
   });
   it("the administrator's interval replaces the placeholder", () => {
-    const ext = defaultServicePlan({ oilDrainIntervalH: 500, duty: 'prime', coolantFamily: 'extended-life', extender: { everyHours: 4000, everyDays: null } })
-      .find((t) => t.key === 'coolant-extender')!;
+    const ext = defaultServicePlan({
+      oilDrainIntervalH: 500,
+      duty: 'prime',
+      coolantFamily: 'extended-life',
+      extender: { everyHours: 4000, everyDays: null },
+    }).find((t) => t.key === 'coolant-extender')!;
     expect(ext).toMatchObject({ everyHours: 4000, everyDays: null });
     expect(ext.placeholder).toBeUndefined();
   });
   it('due by whichever comes first: 1000 days after the refill is ok, 1100 days is overdue (1095-day interval)', () => {
     const plan = defaultServicePlan({ oilDrainIntervalH: 500, duty: 'prime', coolantFamily: 'extended-life' }).filter((t) => t.key === 'coolant-extender');
-    const at = (days: number) => dueList(plan, { 'coolant-extender': { lastDoneAt: NOW - days * DAY, lastDoneRunHours: 100 } }, { runHoursNow: 200, now: NOW }, 14)[0].state;
+    const at = (days: number) =>
+      dueList(plan, { 'coolant-extender': { lastDoneAt: NOW - days * DAY, lastDoneRunHours: 100 } }, { runHoursNow: 200, now: NOW }, 14)[0].state;
     expect(at(1000)).toBe('ok');
     expect(at(1100)).toBe('overdue');
   });

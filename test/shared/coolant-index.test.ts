@@ -3,7 +3,19 @@ import * as coolant from '../../shared/coolant';
 
 describe('shared/coolant index', () => {
   it('re-exports the computations', () => {
-    for (const name of ['saturationTemperatureK', 'saturationPressureMPa', 'freezePointC', 'percentForFreezePoint', 'boilingPointC', 'boilingMarginC', 'decideAdditive', 'initialChargeAfterRefill', 'correctMix', 'checkMakeUpWater', 'coolantCaution']) {
+    for (const name of [
+      'saturationTemperatureK',
+      'saturationPressureMPa',
+      'freezePointC',
+      'percentForFreezePoint',
+      'boilingPointC',
+      'boilingMarginC',
+      'decideAdditive',
+      'initialChargeAfterRefill',
+      'correctMix',
+      'checkMakeUpWater',
+      'coolantCaution',
+    ]) {
       expect(typeof (coolant as Record<string, unknown>)[name]).toBe('function');
     }
   });

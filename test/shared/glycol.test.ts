@@ -7,19 +7,35 @@
  * INCOMP::MPG / INCOMP::MEG, its fits of Melinder's data by mass).
  */
 import {
-  assessFreezeProtection, convertPercent, freezePointC, freezeTable, massToVolumePercent, percentForFreezePoint,
-  tableMaxPercent, volumeToMassPercent, waterMoleFraction,
+  assessFreezeProtection,
+  convertPercent,
+  freezePointC,
+  freezeTable,
+  massToVolumePercent,
+  percentForFreezePoint,
+  tableMaxPercent,
+  volumeToMassPercent,
+  waterMoleFraction,
 } from '../../shared/coolant/glycol';
 import { monotoneCurve } from '../../shared/coolant/monotone-interpolation';
 
 describe('table points are returned exactly', () => {
   it.each([
-    [10, -3.3], [20, -7.8], [30, -14.0], [40, -22.5], [50, -33.8], [60, -48.5],
+    [10, -3.3],
+    [20, -7.8],
+    [30, -14.0],
+    [40, -22.5],
+    [50, -33.8],
+    [60, -48.5],
   ])('ethylene glycol %d mass %% -> %f °C (ASHRAE Fundamentals 2009, ch. 31, table 4)', (p, fp) => {
     expect(freezePointC('ethylene', p, 'mass')).toBeCloseTo(fp, 10);
   });
   it.each([
-    [10, -2.2], [20, -6.7], [30, -12.8], [40, -20.6], [50, -33.3],
+    [10, -2.2],
+    [20, -6.7],
+    [30, -12.8],
+    [40, -20.6],
+    [50, -33.3],
   ])("propylene glycol %d vol %% -> %f °C (Lange's 15th ed., table 5.13)", (p, fp) => {
     expect(freezePointC('propylene', p, 'volume')).toBeCloseTo(fp, 10);
   });
@@ -33,18 +49,34 @@ describe('between table points', () => {
   // Reference values from SciPy 1.17.1 scipy.interpolate.PchipInterpolator on the same tables, including the
   // CoolProp points beyond 60 mass % EG and 50 vol % PG (computed outside the project).
   it.each([
-    [5, -1.511538], [15, -5.374092], [25, -10.655611], [35, -17.933506], [45, -27.765541], [55, -40.999819], [61, -49.875789],
+    [5, -1.511538],
+    [15, -5.374092],
+    [25, -10.655611],
+    [35, -17.933506],
+    [45, -27.765541],
+    [55, -40.999819],
+    [61, -49.875789],
   ])('ethylene %d mass %% matches SciPy PchipInterpolator (%f °C)', (p, fp) => {
     expect(freezePointC('ethylene', p, 'mass')).toBeCloseTo(fp, 5);
   });
   it.each([
-    [5, -0.861847], [15, -4.171997], [25, -9.54165], [35, -16.347707], [45, -26.33224], [52.5, -37.25546], [57.5, -46.194944],
+    [5, -0.861847],
+    [15, -4.171997],
+    [25, -9.54165],
+    [35, -16.347707],
+    [45, -26.33224],
+    [52.5, -37.25546],
+    [57.5, -46.194944],
   ])('propylene %d vol %% matches SciPy PchipInterpolator (%f °C)', (p, fp) => {
     expect(freezePointC('propylene', p, 'volume')).toBeCloseTo(fp, 5);
   });
   // ASHRAE's table also lists the 5 % steps; these are recalled from memory (not in the reference file): within 0.5 °C.
   it.each([
-    [15, -5.4], [25, -10.7], [35, -17.9], [45, -27.5], [55, -41.1],
+    [15, -5.4],
+    [25, -10.7],
+    [35, -17.9],
+    [45, -27.5],
+    [55, -41.1],
   ])('ethylene %d mass %% within 0.5 °C of ASHRAE table 4 intermediate row %f °C (from memory)', (p, fp) => {
     expect(Math.abs(freezePointC('ethylene', p, 'mass') - fp)).toBeLessThan(0.5);
   });
@@ -72,7 +104,11 @@ describe('volume <-> mass conversion (CRC densities at 20 °C, no mixing contrac
     expect(volumeToMassPercent('propylene', 50)).toBeCloseTo(50.9315, 3);
   });
   // ASHRAE table 4 lists the volume % beside each mass % (recalled from memory: 30 -> 27.7, 50 -> 47.6, 60 -> 57.8).
-  it.each([[30, 27.7], [50, 47.6], [60, 57.8]])('EG %d mass %% is within 0.6 points of ASHRAE vol %% column %f (from memory)', (m, v) => {
+  it.each([
+    [30, 27.7],
+    [50, 47.6],
+    [60, 57.8],
+  ])('EG %d mass %% is within 0.6 points of ASHRAE vol %% column %f (from memory)', (m, v) => {
     expect(Math.abs(massToVolumePercent('ethylene', m) - v)).toBeLessThan(0.6);
   });
   it('round trips', () => {
@@ -121,23 +157,38 @@ describe('0-60 % on both bases for both glycols', () => {
   });
   // CoolProp 8.0.0 PropsSI('T_freeze', 'P', 101325, 'T', 300, 'INCOMP::AEG[x]') - 273.15, computed outside the project.
   it.each([
-    [50, -37.115], [52, -39.947], [55, -44.369], [58, -48.937], [59, -50.477], [60, -52.02],
+    [50, -37.115],
+    [52, -39.947],
+    [55, -44.369],
+    [58, -48.937],
+    [59, -50.477],
+    [60, -52.02],
   ])('EG %d vol %% within 1.5 K of CoolProp 8.0 AEG (ASHRAE fit) %f °C', (v, fp) => {
     expect(Math.abs(freezePointC('ethylene', v, 'volume') - fp)).toBeLessThan(1.5);
   });
   it('EG 60 vol % is the CoolProp AEG point -52.0 °C (also the common dilution-chart figure -62 °F = -52.2 °C, from memory, M)', () => {
     expect(freezePointC('ethylene', 60, 'volume')).toBeCloseTo(-52.0, 6);
-    expect(Math.abs(freezePointC('ethylene', 60, 'volume') - (-62 - 32) * 5 / 9)).toBeLessThan(0.5);
+    expect(Math.abs(freezePointC('ethylene', 60, 'volume') - ((-62 - 32) * 5) / 9)).toBeLessThan(0.5);
   });
   // CoolProp 8.0.0 INCOMP::APG (ASHRAE fit, vol %), computed outside the project.
   it.each([
-    [50, -33.661], [52, -36.665], [52.5, -37.45], [55, -41.593], [57.5, -46.119], [58, -47.072], [60, -51.057],
+    [50, -33.661],
+    [52, -36.665],
+    [52.5, -37.45],
+    [55, -41.593],
+    [57.5, -46.119],
+    [58, -47.072],
+    [60, -51.057],
   ])('PG %d vol %% within 0.6 K of CoolProp 8.0 APG (ASHRAE fit) %f °C', (v, fp) => {
     expect(Math.abs(freezePointC('propylene', v, 'volume') - fp)).toBeLessThan(0.6);
   });
   // CoolProp 8.0.0 INCOMP::MPG (Melinder, mass %): an independent fit.
   it.each([
-    [30, -12.789], [40, -20.568], [50, -33.551], [55, -40.158], [60, -50.003],
+    [30, -12.789],
+    [40, -20.568],
+    [50, -33.551],
+    [55, -40.158],
+    [60, -50.003],
   ])('PG %d mass %% within 2 K of CoolProp 8.0 MPG (Melinder; Lange and Melinder differ by up to 1.6 K near 50 %%) %f °C', (m, fp) => {
     expect(Math.abs(freezePointC('propylene', m, 'mass') - fp)).toBeLessThan(2.0);
   });

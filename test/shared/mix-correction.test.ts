@@ -68,7 +68,12 @@ describe('edge cases', () => {
     expect(correctMix({ capacityL: 50, measuredPercent: 0, targetPercent: 50 }).drainL).toBeCloseTo(25, 10);
   });
   it('the drain never exceeds the capacity', () => {
-    for (const [c0, c1] of [[10, 60], [90, 1], [0, 60], [100, 0]]) {
+    for (const [c0, c1] of [
+      [10, 60],
+      [90, 1],
+      [0, 60],
+      [100, 0],
+    ]) {
       const r = correctMix({ capacityL: 70, measuredPercent: c0, targetPercent: c1 });
       expect(r.drainL).toBeLessThanOrEqual(70 + 1e-9);
       expect(r.resultingPercent).toBeCloseTo(c1, 9);

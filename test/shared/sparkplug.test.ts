@@ -15,7 +15,7 @@ test('topics: node and device messages parse; other levels and STATE do not', ()
   expect(sparkplugTopic('G', 'NCMD', 'N')).toBe('spBv1.0/G/NCMD/N');
 });
 
-test('values are read by the data type of the birth (Sparkplug 3.0: signed integers as two\'s complement in the unsigned field)', () => {
+test("values are read by the data type of the birth (Sparkplug 3.0: signed integers as two's complement in the unsigned field)", () => {
   // from memory of the specification's encoding rules; checked against JavaScript's own two's complement
   expect(metricValue({ field: 'int_value', value: 0xff }, DataType.Int8)).toEqual({ kind: 'number', value: -1 });
   expect(metricValue({ field: 'int_value', value: 0xfff6 }, DataType.Int16)).toEqual({ kind: 'number', value: -10 });
@@ -38,7 +38,10 @@ test('bad bytes are a counted decode failure, not an exception', () => {
 test('names map to channels by key or by the device table; units convert as for JSON payloads', () => {
   expect(mapMetric('coolant_temp', null)).toEqual({ channel: 'coolant_temp', unit: null });
   expect(mapMetric('Engine/Coolant/Temp', null)).toBeNull();
-  expect(mapMetric('Engine/Coolant/Temp', { 'Engine/Coolant/Temp': { channel: 'coolant_temp', unit: 'degF' } })).toEqual({ channel: 'coolant_temp', unit: 'degF' });
+  expect(mapMetric('Engine/Coolant/Temp', { 'Engine/Coolant/Temp': { channel: 'coolant_temp', unit: 'degF' } })).toEqual({
+    channel: 'coolant_temp',
+    unit: 'degF',
+  });
   expect(isSparkplugControlMetric('Node Control/Rebirth')).toBe(true);
   expect(isSparkplugControlMetric('bdSeq')).toBe(true);
   const now = Date.UTC(2026, 11, 2);

@@ -16,12 +16,16 @@ describe('parseTelemetry: accepted forms', () => {
   });
 
   test('samples form with ISO 8601 ts (Z and offset)', () => {
-    const r = parseTelemetry(7, buf({
-      samples: [
-        { ts: '2026-12-02T00:59:00.000Z', values: { coolant_temp: 81.9 } },
-        { ts: '2026-12-02T02:59:30+02:00', values: { ambient_temp: 12 } },
-      ],
-    }), NOW);
+    const r = parseTelemetry(
+      7,
+      buf({
+        samples: [
+          { ts: '2026-12-02T00:59:00.000Z', values: { coolant_temp: 81.9 } },
+          { ts: '2026-12-02T02:59:30+02:00', values: { ambient_temp: 12 } },
+        ],
+      }),
+      NOW,
+    );
     expect(r.rejects).toEqual([]);
     expect(r.accepted.map((a) => [a.channel, a.ts, a.value])).toEqual([
       ['coolant_temp', NOW - 60_000, 81.9],
@@ -95,7 +99,13 @@ describe('parseTelemetry: every reject reason', () => {
     const v = (x: number, unit: string) => ({ value: x + 0.1234567890123, unit });
     const samples = Array.from({ length: MAX_SAMPLES }, (_, i) => ({
       ts: new Date(NOW - 600_000 + i * 1000).toISOString().replace('Z', '000000+00:00'),
-      values: { coolant_temp: v(80, 'degC'), coolant_pressure: v(95, 'kPa'), coolant_conductivity: v(2400, 'uS/cm'), engine_speed: v(1800, 'rpm'), ambient_temp: v(20, 'degC') },
+      values: {
+        coolant_temp: v(80, 'degC'),
+        coolant_pressure: v(95, 'kPa'),
+        coolant_conductivity: v(2400, 'uS/cm'),
+        engine_speed: v(1800, 'rpm'),
+        ambient_temp: v(20, 'degC'),
+      },
     }));
     const payload = buf({ samples });
     expect(payload.byteLength).toBeLessThanOrEqual(MAX_PAYLOAD_BYTES);
@@ -159,16 +169,20 @@ describe('parseTelemetry: out of range and mixed payloads', () => {
     expect(r.accepted[0].value).toBeCloseTo(160, 10);
   });
   test('one bad value or sample rejects only itself', () => {
-    const r = parseTelemetry(3, buf({
-      samples: [
-        { ts: NOW - 2000, values: { coolant_temp: 80, oil_temp: 1, coolant_pressure: { value: 14, unit: 'degF' } } },
-        { ts: NOW + 3_600_000, values: { coolant_temp: 81 } },
-        { ts: 'garbage', values: { coolant_temp: 82 } },
-        'not a sample',
-        { ts: NOW - 1000, values: { coolant_temp: { value: 180.5, unit: 'degF' }, engine_speed: 5000 } },
-        { ts: NOW - 3_000_000_000, values: { coolant_temp: 83 } },
-      ],
-    }), NOW);
+    const r = parseTelemetry(
+      3,
+      buf({
+        samples: [
+          { ts: NOW - 2000, values: { coolant_temp: 80, oil_temp: 1, coolant_pressure: { value: 14, unit: 'degF' } } },
+          { ts: NOW + 3_600_000, values: { coolant_temp: 81 } },
+          { ts: 'garbage', values: { coolant_temp: 82 } },
+          'not a sample',
+          { ts: NOW - 1000, values: { coolant_temp: { value: 180.5, unit: 'degF' }, engine_speed: 5000 } },
+          { ts: NOW - 3_000_000_000, values: { coolant_temp: 83 } },
+        ],
+      }),
+      NOW,
+    );
     expect(reasons(r)).toEqual(['unknown_channel', 'bad_unit', 'future_timestamp', 'schema', 'schema', 'old_timestamp']);
     expect(r.accepted.map((a) => [a.channel, a.ts, Math.round(a.value * 10) / 10, a.quality])).toEqual([
       ['coolant_temp', NOW - 2000, 80, 0],

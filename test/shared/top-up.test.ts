@@ -15,7 +15,13 @@ describe('estimate after top-ups', () => {
     expect(e.belowLow).toBe(false);
   });
   it('then 4 L of 50 % premix: additive 1.8 x 0.9 = 1.62; glycol 36 x 0.9 + 50 x 0.1 = 37.4 %', () => {
-    const e = estimateAfterTopUps({ ...base, topUps: [{ volumeL: 4, liquid: 'water' }, { volumeL: 4, liquid: 'premix', premixPercent: 50 }] });
+    const e = estimateAfterTopUps({
+      ...base,
+      topUps: [
+        { volumeL: 4, liquid: 'water' },
+        { volumeL: 4, liquid: 'premix', premixPercent: 50 },
+      ],
+    });
     expect(e.scaUnitsPerGal).toBeCloseTo(1.62, 12);
     expect(e.glycolPercent).toBeCloseTo(37.4, 12);
     expect(e.replacedFraction).toBeCloseTo(0.19, 12);

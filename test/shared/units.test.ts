@@ -3,8 +3,23 @@
  * System of Units", Appendix B (B.8 and B.9 conversion factors) and section 4 (SI prefixes).
  */
 import {
-  cToF, deltaCToF, deltaFToC, fromCelsius, fromKpa, fToC, gallonsToLitres, gaugeToAbsoluteKpa, KPA_PER_ATM, KPA_PER_BAR,
-  KPA_PER_PSI, LITRES_PER_US_GALLON, LITRES_PER_US_PINT, litresToGallons, toCelsius, toKpa, toMicroSiemens,
+  cToF,
+  deltaCToF,
+  deltaFToC,
+  fromCelsius,
+  fromKpa,
+  fToC,
+  gallonsToLitres,
+  gaugeToAbsoluteKpa,
+  KPA_PER_ATM,
+  KPA_PER_BAR,
+  KPA_PER_PSI,
+  LITRES_PER_US_GALLON,
+  LITRES_PER_US_PINT,
+  litresToGallons,
+  toCelsius,
+  toKpa,
+  toMicroSiemens,
 } from '../../shared/units';
 
 describe('volume factors (NIST SP 811 Appendix B.8)', () => {

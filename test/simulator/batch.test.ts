@@ -18,7 +18,12 @@ function samples(n: number, channels = 5): Sample[] {
 function drain(all: Sample[]): { payload: string; count: number }[] {
   const out = [];
   let head = 0;
-  const view = { get length() { return all.length - head; }, at: (i: number) => all[head + i] };
+  const view = {
+    get length() {
+      return all.length - head;
+    },
+    at: (i: number) => all[head + i],
+  };
   while (view.length > 0) {
     const b = buildBatch(view);
     out.push(b);

@@ -3,14 +3,7 @@
  * solution, --speed scaling, pressure against the cap rating, the standby exercise schedule.
  * Simulated time only: nothing here sleeps.
  */
-import {
-  EngineModel,
-  EngineSpec,
-  EXERCISE_MINUTES,
-  THERMOSTAT_OPEN_C,
-  coolTauSeconds,
-  mulberry32,
-} from '../../simulator/engine-model';
+import { EngineModel, EngineSpec, EXERCISE_MINUTES, THERMOSTAT_OPEN_C, coolTauSeconds, mulberry32 } from '../../simulator/engine-model';
 
 const T0 = Date.UTC(2026, 0, 5, 0, 0, 0); // a Monday, 00:00 UTC
 

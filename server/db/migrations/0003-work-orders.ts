@@ -139,7 +139,17 @@ export async function up({ queryInterface: q }: MigrationContext): Promise<void>
 }
 
 export async function down({ queryInterface: q }: MigrationContext): Promise<void> {
-  for (const t of ['service_events', 'audit_log', 'amendments', 'attachments', 'work_order_parts', 'work_order_events', 'work_order_steps', 'work_order_alarms', 'work_orders']) {
+  for (const t of [
+    'service_events',
+    'audit_log',
+    'amendments',
+    'attachments',
+    'work_order_parts',
+    'work_order_events',
+    'work_order_steps',
+    'work_order_alarms',
+    'work_orders',
+  ]) {
     await q.dropTable(t);
   }
 }

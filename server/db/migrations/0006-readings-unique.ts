@@ -15,11 +15,13 @@ export async function up({ sequelize }: MigrationContext): Promise<void> {
       SELECT DISTINCT engine_id, channel, ts - (ts % 60000) AS minute
       FROM readings GROUP BY engine_id, channel, ts HAVING COUNT(*) > 1`);
     // keep the first stored copy (lowest rowid / ctid); the index serves the lookup
-    await q(postgres
-      ? `DELETE FROM readings a USING readings b
+    await q(
+      postgres
+        ? `DELETE FROM readings a USING readings b
          WHERE a.engine_id = b.engine_id AND a.channel = b.channel AND a.ts = b.ts AND a.ctid > b.ctid`
-      : `DELETE FROM readings WHERE EXISTS (SELECT 1 FROM readings b
-         WHERE b.engine_id = readings.engine_id AND b.channel = readings.channel AND b.ts = readings.ts AND b.rowid < readings.rowid)`);
+        : `DELETE FROM readings WHERE EXISTS (SELECT 1 FROM readings b
+         WHERE b.engine_id = readings.engine_id AND b.channel = readings.channel AND b.ts = readings.ts AND b.rowid < readings.rowid)`,
+    );
     const touched = `EXISTS (SELECT 1 FROM readings_dup_minutes d
       WHERE d.engine_id = %T.engine_id AND d.channel = %T.channel AND d.minute = %M)`;
     await q(`DELETE FROM rollups WHERE ${touched.replace(/%T/g, 'rollups').replace('%M', 'rollups.minute')}`);

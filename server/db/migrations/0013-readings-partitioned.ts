@@ -22,7 +22,9 @@ export async function up({ sequelize }: MigrationContext): Promise<void> {
     // a partition for each month that holds readings, and for this month and the coming ones
     const months = await sequelize.query<{ m: string }>(
       `SELECT DISTINCT (EXTRACT(EPOCH FROM date_trunc('month', to_timestamp(ts / 1000.0) AT TIME ZONE 'UTC')) * 1000)::bigint AS m
-         FROM readings_unpartitioned`, { type: QueryTypes.SELECT, transaction, logging: false });
+         FROM readings_unpartitioned`,
+      { type: QueryTypes.SELECT, transaction, logging: false },
+    );
     for (const { m } of months) await ensureReadingPartitions(sequelize, Number(m), Number(m), transaction);
     let ahead = Date.now();
     for (let i = 0; i < MONTHS_AHEAD; i++) ahead = nextMonth(ahead);

@@ -9,19 +9,26 @@ import type { MigrationContext } from '../migrate';
  */
 export async function up({ sequelize, queryInterface: q }: MigrationContext): Promise<void> {
   await sequelize.transaction(async (transaction) => {
-    await q.createTable('rollups_hourly', {
-      engine_id: { type: DataTypes.INTEGER, allowNull: false, primaryKey: true },
-      channel: { type: DataTypes.INTEGER, allowNull: false, primaryKey: true },
-      hour: { type: DataTypes.BIGINT, allowNull: false, primaryKey: true },
-      min: { type: DataTypes.DOUBLE, allowNull: true },
-      max: { type: DataTypes.DOUBLE, allowNull: true },
-      sum: { type: DataTypes.DOUBLE, allowNull: false, defaultValue: 0 },
-      count: { type: DataTypes.INTEGER, allowNull: false, defaultValue: 0 },
-      bad_count: { type: DataTypes.INTEGER, allowNull: false, defaultValue: 0 },
-    }, { transaction });
-    await sequelize.query(`INSERT INTO rollups_hourly (engine_id, channel, hour, "min", "max", "sum", "count", bad_count)
+    await q.createTable(
+      'rollups_hourly',
+      {
+        engine_id: { type: DataTypes.INTEGER, allowNull: false, primaryKey: true },
+        channel: { type: DataTypes.INTEGER, allowNull: false, primaryKey: true },
+        hour: { type: DataTypes.BIGINT, allowNull: false, primaryKey: true },
+        min: { type: DataTypes.DOUBLE, allowNull: true },
+        max: { type: DataTypes.DOUBLE, allowNull: true },
+        sum: { type: DataTypes.DOUBLE, allowNull: false, defaultValue: 0 },
+        count: { type: DataTypes.INTEGER, allowNull: false, defaultValue: 0 },
+        bad_count: { type: DataTypes.INTEGER, allowNull: false, defaultValue: 0 },
+      },
+      { transaction },
+    );
+    await sequelize.query(
+      `INSERT INTO rollups_hourly (engine_id, channel, hour, "min", "max", "sum", "count", bad_count)
       SELECT engine_id, channel, minute - (minute % 3600000), MIN("min"), MAX("max"), SUM("sum"), SUM("count"), SUM(bad_count)
-      FROM rollups GROUP BY engine_id, channel, minute - (minute % 3600000)`, { transaction, logging: false });
+      FROM rollups GROUP BY engine_id, channel, minute - (minute % 3600000)`,
+      { transaction, logging: false },
+    );
   });
 }
 

@@ -16,7 +16,10 @@ export async function performanceReport(
 ): Promise<PerformanceReport> {
   const { AlarmEvent, Alarm } = deps.models;
   const scoped = engineIds ? { alarmId: await alarmIdsOf(deps.models, engineIds) } : {};
-  const acts = await AlarmEvent.findAll({ where: { event: 'activate', at: { [Op.gte]: new Date(from), [Op.lt]: new Date(to) }, ...scoped }, order: [['at', 'ASC']] });
+  const acts = await AlarmEvent.findAll({
+    where: { event: 'activate', at: { [Op.gte]: new Date(from), [Op.lt]: new Date(to) }, ...scoped },
+    order: [['at', 'ASC']],
+  });
   const ids = [...new Set(acts.map((e) => e.alarmId))];
   const [alarms, later] = ids.length
     ? await Promise.all([
@@ -30,10 +33,16 @@ export async function performanceReport(
     const after = (kind: string) => later.find((l) => l.alarmId === e.alarmId && l.event === kind && new Date(l.at).getTime() >= at);
     const ack = after('acknowledge');
     const clr = after('clear');
-    return { key: keyOf.get(e.alarmId) ?? String(e.alarmId), activatedAt: at, acknowledgedAt: ack ? new Date(ack.at).getTime() : null, clearedAt: clr ? new Date(clr.at).getTime() : null };
+    return {
+      key: keyOf.get(e.alarmId) ?? String(e.alarmId),
+      activatedAt: at,
+      acknowledgedAt: ack ? new Date(ack.at).getTime() : null,
+      clearedAt: clr ? new Date(clr.at).getTime() : null,
+    };
   });
   return alarmPerformance(activations, {
-    from, to,
+    from,
+    to,
     chatterCount: chatter.count ?? deps.settings.chatterCount,
     chatterWindowMs: chatter.windowMs ?? deps.settings.chatterWindowMs,
   });

@@ -19,14 +19,25 @@ export async function findAlarm(models: Models, id: number): Promise<Alarm> {
 }
 
 /** `engineIds` (the caller's visible engines) narrows the list. */
-export async function listAlarms(models: Models, view: (a: Alarm) => AlarmView, q: { state: ListState; engineId?: number; engineIds?: number[]; limit?: number }): Promise<AlarmView[]> {
+export async function listAlarms(
+  models: Models,
+  view: (a: Alarm) => AlarmView,
+  q: { state: ListState; engineId?: number; engineIds?: number[]; limit?: number },
+): Promise<AlarmView[]> {
   const where: Record<string, unknown> = {};
   if (q.engineIds !== undefined) where.engineId = q.engineId === undefined ? q.engineIds : q.engineIds.filter((id) => id === q.engineId);
   else if (q.engineId !== undefined) where.engineId = q.engineId;
   if (q.state === 'active') Object.assign(where, { closedAt: null, state: ANNUNCIATED });
   else if (q.state === 'shelved') Object.assign(where, { closedAt: null, state: 'shelved' });
   else if (q.state === 'open') where.closedAt = null;
-  const rows = await models.Alarm.findAll({ where, order: [['raisedAt', 'DESC'], ['id', 'DESC']], limit: q.limit ?? 500 });
+  const rows = await models.Alarm.findAll({
+    where,
+    order: [
+      ['raisedAt', 'DESC'],
+      ['id', 'DESC'],
+    ],
+    limit: q.limit ?? 500,
+  });
   return rows.map(view);
 }
 
@@ -34,10 +45,28 @@ export async function listAlarms(models: Models, view: (a: Alarm) => AlarmView, 
 export async function alarmHistory(models: Models, id: number, page: { limit?: number; offset?: number } = {}): Promise<AlarmHistoryPage> {
   const limit = page.limit ?? 200;
   const offset = page.offset ?? 0;
-  const { rows, count } = await models.AlarmEvent.findAndCountAll({ where: { alarmId: id }, order: [['at', 'ASC'], ['id', 'ASC']], limit, offset });
+  const { rows, count } = await models.AlarmEvent.findAndCountAll({
+    where: { alarmId: id },
+    order: [
+      ['at', 'ASC'],
+      ['id', 'ASC'],
+    ],
+    limit,
+    offset,
+  });
   return {
-    total: count, limit, offset,
-    entries: rows.map((e): AlarmHistoryView => ({ at: iso(e.at)!, event: e.event, fromState: e.fromState as AlarmState | null, toState: e.toState as AlarmState | null, userId: e.userId, value: e.value, note: e.note })),
+    total: count,
+    limit,
+    offset,
+    entries: rows.map((e): AlarmHistoryView => ({
+      at: iso(e.at)!,
+      event: e.event,
+      fromState: e.fromState as AlarmState | null,
+      toState: e.toState as AlarmState | null,
+      userId: e.userId,
+      value: e.value,
+      note: e.note,
+    })),
   };
 }
 
@@ -58,7 +87,10 @@ export async function alarmSummary(models: Models, now = Date.now(), engineIds?:
   }
   // a flood that began up to an hour ago can still be going on
   const since = now - 60 * 60_000;
-  const acts = await models.AlarmEvent.findAll({ where: { event: 'activate', at: { [Op.gte]: new Date(since) }, ...(engineIds ? { alarmId: await alarmIdsOf(models, engineIds) } : {}) }, attributes: ['at'] });
+  const acts = await models.AlarmEvent.findAll({
+    where: { event: 'activate', at: { [Op.gte]: new Date(since) }, ...(engineIds ? { alarmId: await alarmIdsOf(models, engineIds) } : {}) },
+    attributes: ['at'],
+  });
   const times = acts.map((e) => new Date(e.at).getTime());
   const periods = floodPeriods(times, ISA_18_2_FLOOD, now);
   const last = periods[periods.length - 1];
@@ -68,7 +100,11 @@ export async function alarmSummary(models: Models, now = Date.now(), engineIds?:
     active: ANNUNCIATED.reduce((n, s) => n + (byState[s] ?? 0), 0),
     byState,
     byPriority,
-    flood: { flooding, since: flooding ? new Date(last.start).toISOString() : null, inLast10Min: times.filter((t) => t > now - ISA_18_2_FLOOD.windowMs).length },
+    flood: {
+      flooding,
+      since: flooding ? new Date(last.start).toISOString() : null,
+      inLast10Min: times.filter((t) => t > now - ISA_18_2_FLOOD.windowMs).length,
+    },
   };
 }
 

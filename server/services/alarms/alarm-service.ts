@@ -91,7 +91,8 @@ export class AlarmService {
       const def = this.deps.ruleDef(a.engineId, a.rule);
       this.open.set(`${a.engineId}/${a.rule}`, { id: a.id, worst: a.worstValue, direction: def ? directionOf(def) : 'high' });
       // an e-mail held for late data before a restart is held again (and sent once the data has caught up)
-      if (a.mailHeldSince) this.pendingLate.set(a.id, { engineId: a.engineId, measuredAt: new Date(a.raisedAt).getTime(), arrivedAt: new Date(a.mailHeldSince).getTime() });
+      if (a.mailHeldSince)
+        this.pendingLate.set(a.id, { engineId: a.engineId, measuredAt: new Date(a.raisedAt).getTime(), arrivedAt: new Date(a.mailHeldSince).getTime() });
     }
     return rows;
   }
@@ -130,7 +131,16 @@ export class AlarmService {
     await this.deps.sequelize.transaction(async (transaction) => {
       await a.update(fields, { transaction });
       await this.deps.models.AlarmEvent.create(
-        { alarmId: a.id, at: new Date(at), event: entry.event, fromState: entry.from, toState: entry.to, userId: who.userId ?? null, value: entry.value ?? null, note: who.note ?? entry.note ?? null },
+        {
+          alarmId: a.id,
+          at: new Date(at),
+          event: entry.event,
+          fromState: entry.from,
+          toState: entry.to,
+          userId: who.userId ?? null,
+          value: entry.value ?? null,
+          note: who.note ?? entry.note ?? null,
+        },
         { transaction },
       );
     });
@@ -175,7 +185,10 @@ export class AlarmService {
     const note = `Chattering: came into alarm ${list.length} times within ${Math.round(chatterWindowMs / 1000)} s. A candidate for a longer deadband or on-/off-delay on this rule (or a sensor to check).`;
     await this.deps.sequelize.transaction(async (transaction) => {
       await a.update({ chatteringAt: new Date(ts) }, { transaction });
-      await this.deps.models.AlarmEvent.create({ alarmId: a.id, at: new Date(ts), event: 'note', fromState: a.state, toState: a.state, userId: null, value: null, note }, { transaction });
+      await this.deps.models.AlarmEvent.create(
+        { alarmId: a.id, at: new Date(ts), event: 'note', fromState: a.state, toState: a.state, userId: null, value: null, note },
+        { transaction },
+      );
     });
     this.deps.publish(this.view(a));
   }
@@ -253,7 +266,13 @@ export class AlarmService {
     this.deps.publish(this.view(a));
     if (late) {
       await this.deps.models.AlarmEvent.create({
-        alarmId: a.id, at: new Date(arrivedAt), event: 'note', fromState: a.state, toState: a.state, userId: null, value: null,
+        alarmId: a.id,
+        at: new Date(arrivedAt),
+        event: 'note',
+        fromState: a.state,
+        toState: a.state,
+        userId: null,
+        value: null,
         note: `Raised from readings that arrived late (measured ${stamp(ev.ts, engine.timeZone)}, arrived ${stamp(arrivedAt, engine.timeZone)}): e-mailed only if still active once the data has caught up.`,
       });
     }
@@ -266,11 +285,21 @@ export class AlarmService {
     const def = this.deps.ruleDef(a.engineId, a.rule);
     if (!def) return;
     const sent = await this.deps.notifier.notify(a, def, engine, fromLevel, late);
-    const note = (sent.to.length ? `e-mail to ${sent.to.map((u) => u.email).join(', ')}` : 'nobody to e-mail') + (late ? ' (from late data, still active)' : '');
+    const note =
+      (sent.to.length ? `e-mail to ${sent.to.map((u) => u.email).join(', ')}` : 'nobody to e-mail') + (late ? ' (from late data, still active)' : '');
     await this.deps.sequelize.transaction(async (transaction) => {
       await a.update({ escalationLevel: sent.level, lastNotifiedAt: new Date(), ...(a.mailHeldSince ? { mailHeldSince: null } : {}) }, { transaction });
       await this.deps.models.AlarmEvent.create(
-        { alarmId: a.id, at: new Date(), event: fromLevel === 0 ? 'notified' : 'escalated', fromState: a.state, toState: a.state, userId: null, value: null, note },
+        {
+          alarmId: a.id,
+          at: new Date(),
+          event: fromLevel === 0 ? 'notified' : 'escalated',
+          fromState: a.state,
+          toState: a.state,
+          userId: null,
+          value: null,
+          note,
+        },
         { transaction },
       );
     });
@@ -292,7 +321,16 @@ export class AlarmService {
       const known = this.open.get(`${engine.id}/${def.key}`);
       if (known) {
         const note = `Late readings (${span}) show this condition then as well: ${raise.message.slice(0, 300)}`;
-        await this.deps.models.AlarmEvent.create({ alarmId: known.id, at: new Date(f.arrivedAt), event: 'note', fromState: null, toState: null, userId: null, value: raise.value, note });
+        await this.deps.models.AlarmEvent.create({
+          alarmId: known.id,
+          at: new Date(f.arrivedAt),
+          event: 'note',
+          fromState: null,
+          toState: null,
+          userId: null,
+          value: raise.value,
+          note,
+        });
         return;
       }
       const direction = directionOf(def);
@@ -312,16 +350,34 @@ export class AlarmService {
       const a = await this.deps.sequelize.transaction(async (transaction) => {
         const row = await this.deps.models.Alarm.create(
           {
-            engineId: engine.id, rule: def.key, priority: def.priority, state: rec.state, active: false,
-            raisedAt: new Date(raise.ts), value: raise.value, worstValue: rec.worstValue ?? raise.value,
-            unit: alarmUnit(def.kind, CHANNELS[def.channel].unit), message: raise.message.slice(0, 500),
-            clearedAt: new Date(clearedAt), acknowledgedAt: new Date(Math.max(clearedAt, f.arrivedAt)), closedAt: new Date(),
+            engineId: engine.id,
+            rule: def.key,
+            priority: def.priority,
+            state: rec.state,
+            active: false,
+            raisedAt: new Date(raise.ts),
+            value: raise.value,
+            worstValue: rec.worstValue ?? raise.value,
+            unit: alarmUnit(def.kind, CHANNELS[def.channel].unit),
+            message: raise.message.slice(0, 500),
+            clearedAt: new Date(clearedAt),
+            acknowledgedAt: new Date(Math.max(clearedAt, f.arrivedAt)),
+            closedAt: new Date(),
           },
           { transaction },
         );
         for (const h of rec.history) {
           await this.deps.models.AlarmEvent.create(
-            { alarmId: row.id, at: new Date(h.at), event: h.event, fromState: h.from, toState: h.to, userId: null, value: h.value ?? null, note: h.event === 'acknowledge' ? note : (h.note ?? null) },
+            {
+              alarmId: row.id,
+              at: new Date(h.at),
+              event: h.event,
+              fromState: h.from,
+              toState: h.to,
+              userId: null,
+              value: h.value ?? null,
+              note: h.event === 'acknowledge' ? note : (h.note ?? null),
+            },
             { transaction },
           );
         }
@@ -348,7 +404,13 @@ export class AlarmService {
       } else if (held) {
         // raised and cleared within late data: recorded, closed, never e-mailed (nobody is paged for history)
         const note = `Raised and cleared within readings that arrived late (backfill or store-and-forward): the condition had already cleared when its data arrived, so nobody was e-mailed.`;
-        await this.apply(a, { type: 'acknowledge', by: 'Jacketwatch', comment: note }, Math.max(Date.now(), ms(a.clearedAt) ?? 0), { note }, { mailHeldSince: null });
+        await this.apply(
+          a,
+          { type: 'acknowledge', by: 'Jacketwatch', comment: note },
+          Math.max(Date.now(), ms(a.clearedAt) ?? 0),
+          { note },
+          { mailHeldSince: null },
+        );
       }
     });
   }
@@ -381,7 +443,13 @@ export class AlarmService {
     return this.serial(async () => {
       const a = await this.find(id);
       if (a.closedAt) throw new HttpError(409, 'alarm is closed: nothing to acknowledge');
-      const r = await this.apply(a, { type: 'acknowledge', by: user.email, comment: note ?? undefined }, Date.now(), { userId: user.id, note }, { acknowledgedBy: user.id, ...(note ? { note } : {}) });
+      const r = await this.apply(
+        a,
+        { type: 'acknowledge', by: user.email, comment: note ?? undefined },
+        Date.now(),
+        { userId: user.id, note },
+        { acknowledgedBy: user.id, ...(note ? { note } : {}) },
+      );
       if (!r.ok) throw new HttpError(409, r.reason);
       return this.view(a);
     });
@@ -435,10 +503,14 @@ export class AlarmService {
   /** Each tick: shelves that have run out come back; unacknowledged alarms escalate (alarm-housekeeping.ts). */
   housekeeping(now = Date.now()): Promise<void> {
     return this.serial(() =>
-      housekeepingRound({ models: this.deps.models, directory: this.deps.directory, escalateAfterMs: this.deps.settings.escalateAfterMs, owns: this.owns }, {
-        shelfExpired: (a, at) => this.apply(a, { type: 'shelf-expired' }, at),
-        escalate: (a, engine) => this.notify(a, engine, a.escalationLevel + 1),
-      }, now),
+      housekeepingRound(
+        { models: this.deps.models, directory: this.deps.directory, escalateAfterMs: this.deps.settings.escalateAfterMs, owns: this.owns },
+        {
+          shelfExpired: (a, at) => this.apply(a, { type: 'shelf-expired' }, at),
+          escalate: (a, engine) => this.notify(a, engine, a.escalationLevel + 1),
+        },
+        now,
+      ),
     );
   }
 
@@ -447,7 +519,10 @@ export class AlarmService {
     return listAlarms(this.deps.models, (a) => this.view(a), q);
   }
 
-  async get(id: number, page: { limit?: number; offset?: number } = {}): Promise<AlarmView & { history: AlarmHistoryView[]; historyTotal: number; meaning: string | null; firstStep: string | null }> {
+  async get(
+    id: number,
+    page: { limit?: number; offset?: number } = {},
+  ): Promise<AlarmView & { history: AlarmHistoryView[]; historyTotal: number; meaning: string | null; firstStep: string | null }> {
     const a = await this.find(id);
     const h = await this.history(id, page);
     const def = this.deps.ruleDef(a.engineId, a.rule);

@@ -28,7 +28,21 @@ export class EngineDirectory {
 
   async refresh(): Promise<Map<number, EngineEntry>> {
     const [engines, sites] = await Promise.all([
-      this.models.Engine.findAll({ attributes: ['id', 'name', 'siteId', 'glycolType', 'glycolPercent', 'duty', 'heaterSetpointC', 'capPressureKpa', 'outOfService', 'retiredAt', 'createdAt'] }),
+      this.models.Engine.findAll({
+        attributes: [
+          'id',
+          'name',
+          'siteId',
+          'glycolType',
+          'glycolPercent',
+          'duty',
+          'heaterSetpointC',
+          'capPressureKpa',
+          'outOfService',
+          'retiredAt',
+          'createdAt',
+        ],
+      }),
       this.models.Site.findAll({ attributes: ['id', 'name', 'elevationM', 'timeZone'] }),
     ]);
     const siteName = new Map(sites.map((s) => [s.id, s.name]));

@@ -87,11 +87,16 @@ function paramsFor(def: RuleDefinition, engine: EngineFacts): Record<string, unk
   // words for the evaluators' messages
   const info = CHANNELS[def.channel];
   const words = { label: info.label, unit: SYMBOL[info.unit] ?? info.unit };
-  if (def.kind === 'limit' || def.kind === 'rate' || def.kind === 'stuck' || def.kind === 'no_data') return { ...words, ...def.params, ...(def.kind === 'no_data' ? { label: 'Engine data' } : {}) };
+  if (def.kind === 'limit' || def.kind === 'rate' || def.kind === 'stuck' || def.kind === 'no_data')
+    return { ...words, ...def.params, ...(def.kind === 'no_data' ? { label: 'Engine data' } : {}) };
   if (def.kind === 'boiling_margin') {
     return {
-      glycol: engine.glycolType, glycolPercent: engine.glycolPercent, basis: 'volume',
-      atmosphereKpa: siteAtmosphereKpa(engine.elevationM), capPressureKpa: engine.capPressureKpa ?? null, ...def.params,
+      glycol: engine.glycolType,
+      glycolPercent: engine.glycolPercent,
+      basis: 'volume',
+      atmosphereKpa: siteAtmosphereKpa(engine.elevationM),
+      capPressureKpa: engine.capPressureKpa ?? null,
+      ...def.params,
     };
   }
   if (def.kind === 'conductivity') return { baselineFrom: engine.baselineFrom, ...def.params };

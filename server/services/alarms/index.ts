@@ -63,7 +63,12 @@ export function createAlarmFeature(ctx: AppContext, settings: AlarmSettings = lo
   });
   const cluster = ctx.cluster ?? null;
   const rules: RuleEngine = new RuleEngine({
-    models, log, directory, alarms, lastSeen: (id) => lastSeen(id), lateAfterMs: settings.lateAfterMs,
+    models,
+    log,
+    directory,
+    alarms,
+    lastSeen: (id) => lastSeen(id),
+    lateAfterMs: settings.lateAfterMs,
     ...(cluster ? { owns: (id: number) => cluster.owns(id), storedReadings: (ids: number[], since: number) => storedReadings(sequelize, ids, since) } : {}),
   });
   if (cluster) {
@@ -82,7 +87,15 @@ export function createAlarmFeature(ctx: AppContext, settings: AlarmSettings = lo
       if (!config.smtpHost) catcher = await startMailCatcher({ port: config.smtpPort, model: models.CaughtMail, log });
       // when the catcher took a random port (SMTP_PORT=0), send to the one it got
       const smtpPort = catcher ? catcher.port() : config.smtpPort;
-      outbox = startOutbox({ config: { ...config, smtpPort }, model: models.OutboxMessage, log, retryBaseMs: settings.mailRetryBaseMs, retryMaxMs: settings.mailRetryMaxMs, timeoutMs: settings.mailTimeoutMs, parallel: settings.mailParallel });
+      outbox = startOutbox({
+        config: { ...config, smtpPort },
+        model: models.OutboxMessage,
+        log,
+        retryBaseMs: settings.mailRetryBaseMs,
+        retryMaxMs: settings.mailRetryMaxMs,
+        timeoutMs: settings.mailTimeoutMs,
+        parallel: settings.mailParallel,
+      });
       emit = (room, event, payload) => telemetry.emit(room, event, payload);
       lastSeen = (id) => telemetry.liveState.lastSeen(id);
       await rules.load();
@@ -104,7 +117,9 @@ export function createAlarmFeature(ctx: AppContext, settings: AlarmSettings = lo
           });
       }, settings.tickMs);
       timer.unref();
-      log.info(`alarms: ${rules.profileRules().length} rules, escalation after ${settings.escalateAfterMs / 1000} s, e-mail from ${settings.notifyMinPriority} priority`);
+      log.info(
+        `alarms: ${rules.profileRules().length} rules, escalation after ${settings.escalateAfterMs / 1000} s, e-mail from ${settings.notifyMinPriority} priority`,
+      );
     },
     async stop() {
       if (timer) clearInterval(timer);

@@ -52,7 +52,11 @@ export class LateEvaluation {
     }
     if (!seg) {
       // no no-data rule here: silence within history is the live no-data rule's business
-      const ev = new EngineEvaluator(facts, rules.filter((d) => d.kind !== 'no_data'), { startTs: null });
+      const ev = new EngineEvaluator(
+        facts,
+        rules.filter((d) => d.kind !== 'no_data'),
+        { startTs: null },
+      );
       seg = { ev, lastTs: -Infinity, lastAt: now, open: new Map() };
       this.segments.set(engineId, seg);
     }

@@ -70,7 +70,14 @@ export async function listShifts(models: Models, q: { siteId?: number; siteIds?:
   if (q.siteIds) where.siteId = q.siteIds.filter((id) => q.siteId === undefined || id === q.siteId);
   if (q.to !== undefined) where.startsAt = { [Op.lt]: new Date(q.to) };
   if (q.from !== undefined) where.endsAt = { [Op.gt]: new Date(q.from) };
-  const shifts = await models.OncallShift.findAll({ where, order: [['startsAt', 'ASC'], ['id', 'ASC']], limit: 1000 });
+  const shifts = await models.OncallShift.findAll({
+    where,
+    order: [
+      ['startsAt', 'ASC'],
+      ['id', 'ASC'],
+    ],
+    limit: 1000,
+  });
   return views(models, shifts);
 }
 
@@ -126,7 +133,10 @@ export async function deleteShift(models: Models, id: number): Promise<void> {
 export async function onCallFor(models: Models, siteId: number, at: number): Promise<{ primary: User | null; backup: User | null }> {
   const shift = await models.OncallShift.findOne({
     where: { siteId, startsAt: { [Op.lte]: new Date(at) }, endsAt: { [Op.gt]: new Date(at) } },
-    order: [['startsAt', 'DESC'], ['id', 'DESC']],
+    order: [
+      ['startsAt', 'DESC'],
+      ['id', 'DESC'],
+    ],
   });
   if (!shift) return { primary: null, backup: null };
   const active = (u: User | null) => (u && !u.disabled ? u : null);
@@ -135,13 +145,24 @@ export async function onCallFor(models: Models, siteId: number, at: number): Pro
   return { primary, backup };
 }
 
-export interface PersonView { id: number; name: string; email: string; role: string }
+export interface PersonView {
+  id: number;
+  name: string;
+  email: string;
+  role: string;
+}
 
 /** People (enabled accounts) to choose from for the rota, optionally of some roles: no admin rights needed. */
 export async function listPeople(models: Models, roles?: string[], userIds?: number[] | null): Promise<PersonView[]> {
   const where: Record<string, unknown> = { disabled: false };
   if (userIds) where.id = userIds;
   if (roles?.length) where.role = { [Op.in]: roles };
-  const users = await models.User.findAll({ where, order: [['name', 'ASC'], ['id', 'ASC']] });
+  const users = await models.User.findAll({
+    where,
+    order: [
+      ['name', 'ASC'],
+      ['id', 'ASC'],
+    ],
+  });
   return users.map((u) => ({ id: u.id, name: u.name, email: u.email, role: u.role }));
 }

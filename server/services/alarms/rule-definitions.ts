@@ -39,8 +39,7 @@ export interface RuleOverride {
 export const DEFAULT_PROFILE_NAME = 'default';
 
 const DEFER = "Follow the engine maker's instructions and your site's procedures.";
-const HOT_CAP =
-  'Do not open the radiator or expansion-tank cap while the system is hot: it is under pressure and can spray scalding coolant.';
+const HOT_CAP = 'Do not open the radiator or expansion-tank cap while the system is hot: it is under pressure and can spray scalding coolant.';
 
 const HEATER_STEP =
   "Check the jacket-water heater: its supply and breaker (reset it once only; a breaker that trips again means a fault for an electrician), its thermostat setting, and its hoses and valves (open, not kinked or leaking). Isolate the heater's supply before opening its terminal box. Until the engine is warm again, tell whoever relies on it that it may start slowly or not take load at once.";
@@ -87,7 +86,7 @@ export const DEFAULT_RULES: RuleDefinition[] = [
     enabled: true,
     title: 'Standby engine too cold',
     meaning:
-      "The jacket water of a stopped standby engine has stayed below the minimum that lets it start and take load at once. NFPA 110 asks for the jacket water of an emergency engine to be kept at not less than 32 °C (90 °F) (clause 5.3.1 in recent editions; quoted from memory, check the edition that applies to you). The jacket-water heater is most likely off or failed.",
+      'The jacket water of a stopped standby engine has stayed below the minimum that lets it start and take load at once. NFPA 110 asks for the jacket water of an emergency engine to be kept at not less than 32 °C (90 °F) (clause 5.3.1 in recent editions; quoted from memory, check the edition that applies to you). The jacket-water heater is most likely off or failed.',
     firstStep: `${HEATER_STEP} ${DEFER}`,
     // onlyDuty: standby engines only; the delay lets a heater bring a block back after an exercise run or a cold night
     params: { direction: 'low', limit: 32, deadband: 3, onDelayS: 900, offDelayS: 120, onlyWhenStopped: true, onlyDuty: 'standby' },
@@ -156,7 +155,7 @@ export const DEFAULT_RULES: RuleDefinition[] = [
     enabled: true,
     title: 'Coolant temperature not changing',
     meaning:
-      "The coolant temperature reading has not moved for ten minutes although the engine started, stopped or changed load: likely a sensor or wiring fault. A flat reading at steady load alone is not taken as a fault (a sensor reporting whole degrees may repeat one value for a long time).",
+      'The coolant temperature reading has not moved for ten minutes although the engine started, stopped or changed load: likely a sensor or wiring fault. A flat reading at steady load alone is not taken as a fault (a sensor reporting whole degrees may repeat one value for a long time).',
     firstStep: `Compare with a local gauge; treat the engine as unwatched for temperature until the sensor is checked. ${DEFER}`,
     // resolution 0 = learned from recent values (coarsest step they all lie on); set per engine to the sensor's step
     params: { epsilon: 0.05, durationS: 600, resolution: 0, speedChangeRpm: 150, pressureChangeKpa: 15 },
@@ -180,7 +179,8 @@ export const DEFAULT_RULES: RuleDefinition[] = [
     priority: 'medium',
     enabled: true,
     title: 'Coolant conductivity high',
-    meaning: 'Coolant conductivity is more than 25 % above its baseline after the last coolant change, or above 5000 µS/cm: contamination (hard make-up water, combustion gas, or additive breakdown).',
+    meaning:
+      'Coolant conductivity is more than 25 % above its baseline after the last coolant change, or above 5000 µS/cm: contamination (hard make-up water, combustion gas, or additive breakdown).',
     firstStep: `Take a coolant sample for a test when the engine is stopped and cool; wear gloves and eye protection, glycol is toxic. ${DEFER}`,
     params: { risePercent: 25, absoluteLimit: 5000, deadband: 100, baselineCount: 5, onDelayS: 60, offDelayS: 60 },
   },

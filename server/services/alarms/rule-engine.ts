@@ -95,7 +95,13 @@ export class RuleEngine {
       list.push({ rule: r.rule, enabled: r.enabled, params: typeof r.params === 'string' ? JSON.parse(r.params) : r.params });
       this.overrides.set(r.engineId, list);
     }
-    const bl = await models.EngineBaseline.findAll({ where: { channel: 'coolant_conductivity' }, order: [['baselineFrom', 'ASC'], ['id', 'ASC']] });
+    const bl = await models.EngineBaseline.findAll({
+      where: { channel: 'coolant_conductivity' },
+      order: [
+        ['baselineFrom', 'ASC'],
+        ['id', 'ASC'],
+      ],
+    });
     this.baselines = new Map();
     for (const b of bl) this.baselines.set(b.engineId, { from: new Date(b.baselineFrom).getTime(), value: b.value });
     this.evaluators.clear();
@@ -106,8 +112,15 @@ export class RuleEngine {
   private factsOf(e: EngineEntry): EngineFacts {
     const b = this.baselines.get(e.id);
     return {
-      id: e.id, glycolType: e.glycolType, glycolPercent: e.glycolPercent, baselineFrom: b?.from ?? e.createdAt, baselineValue: b?.value ?? null,
-      duty: e.duty, heaterSetpointC: e.heaterSetpointC, capPressureKpa: e.capPressureKpa, elevationM: e.elevationM,
+      id: e.id,
+      glycolType: e.glycolType,
+      glycolPercent: e.glycolPercent,
+      baselineFrom: b?.from ?? e.createdAt,
+      baselineValue: b?.value ?? null,
+      duty: e.duty,
+      heaterSetpointC: e.heaterSetpointC,
+      capPressureKpa: e.capPressureKpa,
+      elevationM: e.elevationM,
     };
   }
 
@@ -191,7 +204,8 @@ export class RuleEngine {
     const ev = this.evaluators.get(engineId);
     if (!ev) {
       // an engine added since the last refresh: pick it up soon (readings until then are not evaluated)
-      if (!this.outOfService.has(engineId) && Date.now() - this.lastRefresh > 1000) void this.refreshEngines().catch((err) => this.deps.log.error('alarms: engine refresh failed', err));
+      if (!this.outOfService.has(engineId) && Date.now() - this.lastRefresh > 1000)
+        void this.refreshEngines().catch((err) => this.deps.log.error('alarms: engine refresh failed', err));
       return;
     }
     // readings older than the newest already evaluated, not seen before: the live rules have moved on, so they
@@ -253,13 +267,20 @@ export class RuleEngine {
     let fresh: EngineEntry[] = [];
     try {
       const engines = await this.deps.directory.refresh();
-      fresh = [...engines.values()].filter((e) => this.owns(e.id) && !this.evaluators.has(e.id) && (early.includes(e.id) || !this.adopting.has(e.id)) && !e.outOfService && !e.retired);
+      fresh = [...engines.values()].filter(
+        (e) => this.owns(e.id) && !this.evaluators.has(e.id) && (early.includes(e.id) || !this.adopting.has(e.id)) && !e.outOfService && !e.retired,
+      );
       for (const id of early) if (!fresh.some((e) => e.id === id)) this.adopting.delete(id); // out of service or gone
       if (!fresh.length) return this.refreshEngines();
       for (const e of fresh) if (!this.adopting.has(e.id)) this.adopting.set(e.id, []);
       const openRows = await this.deps.alarms.loadOpen();
       const since = Date.now() - REPLAY_MS;
-      const stored = this.deps.storedReadings ? await this.deps.storedReadings(fresh.map((e) => e.id), since) : [];
+      const stored = this.deps.storedReadings
+        ? await this.deps.storedReadings(
+            fresh.map((e) => e.id),
+            since,
+          )
+        : [];
       const byEngine = new Map<number, AcceptedReading[]>();
       for (const r of stored) {
         const list = byEngine.get(r.engineId);
@@ -333,7 +354,9 @@ export class RuleEngine {
     for (const f of findings) {
       const engine = this.deps.directory.get(f.engineId);
       if (!engine) continue;
-      this.deps.alarms.recordPast(engine, f).catch((err) => this.deps.log.error(`alarms: recording ${f.def.key} from late data on engine ${f.engineId} failed`, err));
+      this.deps.alarms
+        .recordPast(engine, f)
+        .catch((err) => this.deps.log.error(`alarms: recording ${f.def.key} from late data on engine ${f.engineId} failed`, err));
     }
   }
 
@@ -353,14 +376,18 @@ export class RuleEngine {
   }
 
   private afterStep(engineId: number, ev: EngineEvaluator): void {
-    for (const w of ev.activeWorst()) void this.deps.alarms.updateWorst(engineId, w.key, w.worst).catch((err) => this.deps.log.error('alarms: worst value', err));
+    for (const w of ev.activeWorst())
+      void this.deps.alarms.updateWorst(engineId, w.key, w.worst).catch((err) => this.deps.log.error('alarms: worst value', err));
     const learned = ev.conductivityBaseline();
     if (learned !== null && ev.engine.baselineValue === null) {
       ev.engine.baselineValue = learned;
       this.baselines.set(engineId, { from: ev.engine.baselineFrom, value: learned });
-      void this.deps.models.EngineBaseline.create({ engineId, channel: 'coolant_conductivity', baselineFrom: new Date(ev.engine.baselineFrom), value: learned }).catch((err) =>
-        this.deps.log.error('alarms: storing the conductivity baseline failed', err),
-      );
+      void this.deps.models.EngineBaseline.create({
+        engineId,
+        channel: 'coolant_conductivity',
+        baselineFrom: new Date(ev.engine.baselineFrom),
+        value: learned,
+      }).catch((err) => this.deps.log.error('alarms: storing the conductivity baseline failed', err));
     }
   }
 

@@ -32,13 +32,24 @@ export async function saveProfile(models: Models, engine: RuleEngine, rules: Rul
 export async function engineRules(models: Models, engine: RuleEngine, engineId: number): Promise<EngineRulesView> {
   if (!(await models.Engine.findByPk(engineId))) throw notFound('engine');
   const rows = await models.EngineRule.findAll({ where: { engineId } });
-  const overrides = new Map(rows.map((r) => [r.rule, { rule: r.rule, enabled: r.enabled, params: (typeof r.params === 'string' ? JSON.parse(r.params) : r.params) as Record<string, unknown> | null }]));
+  const overrides = new Map(
+    rows.map((r) => [
+      r.rule,
+      { rule: r.rule, enabled: r.enabled, params: (typeof r.params === 'string' ? JSON.parse(r.params) : r.params) as Record<string, unknown> | null },
+    ]),
+  );
   const eff = effectiveRules(engine.profileRules(), [...overrides.values()]);
   return { engineId, rules: eff.map((d) => ({ ...d, overridden: overrides.has(d.key), override: overrides.get(d.key) ?? null })) };
 }
 
 /** Replace an engine's overrides with this list (an empty list goes back to the profile). */
-export async function saveEngineRules(models: Models, sequelize: Sequelize, engine: RuleEngine, engineId: number, overrides: RuleOverride[]): Promise<EngineRulesView> {
+export async function saveEngineRules(
+  models: Models,
+  sequelize: Sequelize,
+  engine: RuleEngine,
+  engineId: number,
+  overrides: RuleOverride[],
+): Promise<EngineRulesView> {
   if (!(await models.Engine.findByPk(engineId))) throw notFound('engine');
   const known = new Set(engine.profileRules().map((r) => r.key));
   for (const [i, o] of overrides.entries()) if (!known.has(o.rule)) throw badRequest(`no rule ${o.rule} in the profile`, `rules.${i}.rule`);
@@ -130,12 +141,15 @@ export async function previewRule(
   };
   const ev = new EngineEvaluator(facts, [def], { startTs: null });
   const channels: ChannelKey[] =
-    def.kind === 'no_data' ? (Object.keys(CHANNELS) as ChannelKey[]) : [...new Set<ChannelKey>([def.channel, 'engine_speed', ...(def.kind === 'boiling_margin' ? (['coolant_pressure'] as ChannelKey[]) : [])])];
+    def.kind === 'no_data'
+      ? (Object.keys(CHANNELS) as ChannelKey[])
+      : [...new Set<ChannelKey>([def.channel, 'engine_speed', ...(def.kind === 'boiling_margin' ? (['coolant_pressure'] as ChannelKey[]) : [])])];
   const found: PreviewResult['alarms'] = [];
   let count = 0;
   const take = (hits: ReturnType<EngineEvaluator['feed']>) => {
     for (const h of hits) {
-      if (h.event.kind === 'raise') found.push({ raisedAt: new Date(h.event.ts).toISOString(), clearedAt: null, value: h.event.value, message: h.event.message });
+      if (h.event.kind === 'raise')
+        found.push({ raisedAt: new Date(h.event.ts).toISOString(), clearedAt: null, value: h.event.value, message: h.event.message });
       else if (found.length && found[found.length - 1].clearedAt === null) found[found.length - 1].clearedAt = new Date(h.event.ts).toISOString();
     }
   };
@@ -146,4 +160,3 @@ export async function previewRule(
   take(ev.tick(Math.min(q.to, Date.now())));
   return { engineId: q.engineId, rule: q.rule, from: new Date(q.from).toISOString(), to: new Date(q.to).toISOString(), readings: count, alarms: found };
 }
-

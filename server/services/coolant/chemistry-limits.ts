@@ -33,9 +33,14 @@ export async function getChemistryLimits(models: Models): Promise<ChemistryLimit
 }
 
 /** Limits (missing keys take the defaults) and, when given, the extender interval (null = back to the default). */
-export async function saveChemistryLimits(models: Models, input: Partial<ChemistryLimits> & { extender?: ExtenderInterval | null }, userId: number): Promise<ChemistryLimitsView> {
+export async function saveChemistryLimits(
+  models: Models,
+  input: Partial<ChemistryLimits> & { extender?: ExtenderInterval | null },
+  userId: number,
+): Promise<ChemistryLimitsView> {
   const { extender, ...limitInput } = input;
-  if (extender && extender.everyHours === null && extender.everyDays === null) throw badRequest('extender: give everyHours, everyDays or both (or null for the default)', 'extender');
+  if (extender && extender.everyHours === null && extender.everyDays === null)
+    throw badRequest('extender: give everyHours, everyDays or both (or null for the default)', 'extender');
   let limits: ChemistryLimits;
   try {
     limits = resolveChemistryLimits(limitInput);

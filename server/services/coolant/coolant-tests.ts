@@ -1,6 +1,13 @@
 import {
-  assessFreezeProtection, CoolantInputError, decideAdditive, judgeChemistry, type AdditiveDecision, type ChemistryLimits,
-  type BreakdownSign, type FreezeAssessment, type ScaLimits,
+  assessFreezeProtection,
+  CoolantInputError,
+  decideAdditive,
+  judgeChemistry,
+  type AdditiveDecision,
+  type ChemistryLimits,
+  type BreakdownSign,
+  type FreezeAssessment,
+  type ScaLimits,
 } from '../../../shared/coolant';
 import { badRequest } from '../../http-error';
 import type { Engine, Models } from '../../models';
@@ -39,7 +46,8 @@ export interface ChemistryJudgeContext {
 /** The decision for one test of this engine (pure apart from its inputs). */
 export function decideForTest(
   engine: Pick<Engine, 'capacityL' | 'coolantFamily' | 'glycolType'>,
-  t: Pick<TestInput, 'scaUnitsPerGal' | 'glycolPercent' | 'freezePointC'> & Partial<Pick<TestInput, 'ph' | 'nitritePpm' | 'molybdatePpm' | 'reserveAlkalinityMl' | 'breakdownSigns'>>,
+  t: Pick<TestInput, 'scaUnitsPerGal' | 'glycolPercent' | 'freezePointC'> &
+    Partial<Pick<TestInput, 'ph' | 'nitritePpm' | 'molybdatePpm' | 'reserveAlkalinityMl' | 'breakdownSigns'>>,
   limits: ScaLimits,
   chem?: ChemistryJudgeContext,
 ): CoolantDecision {
@@ -57,21 +65,31 @@ export function decideForTest(
   if (t.glycolPercent !== null) {
     freeze = assessFreezeProtection(engine.glycolType, t.glycolPercent, 'volume');
     if (t.freezePointC !== null && freeze.freezePointC !== null && Math.abs(t.freezePointC - freeze.freezePointC) > 3) {
-      notes.push(`Measured freeze point ${t.freezePointC.toFixed(1)} °C differs by more than 3 °C from the table value for ${t.glycolPercent} % ${engine.glycolType} glycol (${freeze.freezePointC.toFixed(1)} °C): check the glycol type and the instrument.`);
+      notes.push(
+        `Measured freeze point ${t.freezePointC.toFixed(1)} °C differs by more than 3 °C from the table value for ${t.glycolPercent} % ${engine.glycolType} glycol (${freeze.freezePointC.toFixed(1)} °C): check the glycol type and the instrument.`,
+      );
     }
   }
   const findings = chem
     ? judgeChemistry(
-      {
-        nitritePpm: t.nitritePpm, molybdatePpm: t.molybdatePpm, ph: t.ph, reserveAlkalinityMl: t.reserveAlkalinityMl, glycolPercent: t.glycolPercent, freezePointC: t.freezePointC,
-        breakdownSigns: t.breakdownSigns,
-      },
-      { glycolType: engine.glycolType, coolantFamily: engine.coolantFamily, designLowC: chem.designLowC },
-      chem.limits,
-    )
+        {
+          nitritePpm: t.nitritePpm,
+          molybdatePpm: t.molybdatePpm,
+          ph: t.ph,
+          reserveAlkalinityMl: t.reserveAlkalinityMl,
+          glycolPercent: t.glycolPercent,
+          freezePointC: t.freezePointC,
+          breakdownSigns: t.breakdownSigns,
+        },
+        { glycolType: engine.glycolType, coolantFamily: engine.coolantFamily, designLowC: chem.designLowC },
+        chem.limits,
+      )
     : [];
   return {
-    additive, freeze, findings, notes,
+    additive,
+    freeze,
+    findings,
+    notes,
     engine: { capacityL: engine.capacityL, coolantFamily: engine.coolantFamily, glycolType: engine.glycolType, designLowC: chem?.designLowC ?? null },
   };
 }
@@ -91,19 +109,43 @@ async function userNames(models: Models, ids: (number | null)[]): Promise<Map<nu
 
 function view(t: CoolantTest, names: Map<number, string>): CoolantTestView {
   return {
-    id: t.id, engineId: t.engineId, testedAt: new Date(t.testedAt).toISOString(), method: t.method,
-    scaUnitsPerGal: t.scaUnitsPerGal, glycolPercent: t.glycolPercent, freezePointC: t.freezePointC, ph: t.ph, conductivityUsCm: t.conductivityUsCm,
-    nitritePpm: t.nitritePpm ?? null, molybdatePpm: t.molybdatePpm ?? null, reserveAlkalinityMl: t.reserveAlkalinityMl ?? null,
+    id: t.id,
+    engineId: t.engineId,
+    testedAt: new Date(t.testedAt).toISOString(),
+    method: t.method,
+    scaUnitsPerGal: t.scaUnitsPerGal,
+    glycolPercent: t.glycolPercent,
+    freezePointC: t.freezePointC,
+    ph: t.ph,
+    conductivityUsCm: t.conductivityUsCm,
+    nitritePpm: t.nitritePpm ?? null,
+    molybdatePpm: t.molybdatePpm ?? null,
+    reserveAlkalinityMl: t.reserveAlkalinityMl ?? null,
     breakdownSigns: (t.breakdownSigns as BreakdownSign[] | null) ?? null,
-    appearance: t.appearance, notes: t.notes, testedBy: t.testedBy, testedByName: t.testedBy === null ? null : (names.get(t.testedBy) ?? null),
-    decision: (t.decision as unknown as CoolantDecision) ?? null, source: t.source, createdAt: new Date(t.createdAt).toISOString(),
+    appearance: t.appearance,
+    notes: t.notes,
+    testedBy: t.testedBy,
+    testedByName: t.testedBy === null ? null : (names.get(t.testedBy) ?? null),
+    decision: (t.decision as unknown as CoolantDecision) ?? null,
+    source: t.source,
+    createdAt: new Date(t.createdAt).toISOString(),
   };
 }
 
 export async function listCoolantTests(models: Models, engineId: number, limit = 500): Promise<CoolantTestView[]> {
   await getEngine(models, engineId);
-  const rows = await models.CoolantTest.findAll({ where: { engineId }, order: [['testedAt', 'DESC'], ['id', 'DESC']], limit });
-  const names = await userNames(models, rows.map((r) => r.testedBy));
+  const rows = await models.CoolantTest.findAll({
+    where: { engineId },
+    order: [
+      ['testedAt', 'DESC'],
+      ['id', 'DESC'],
+    ],
+    limit,
+  });
+  const names = await userNames(
+    models,
+    rows.map((r) => r.testedBy),
+  );
   return rows.map((r) => view(r, names));
 }
 
@@ -122,9 +164,16 @@ export async function recordCoolantTest(models: Models, engineId: number, input:
   const profile = await getAdditiveProfile(models);
   const decision = decideOr400(engine, input, profile.limits, await chemistryContext(models, engine));
   const row = await models.CoolantTest.create({
-    engineId, ...input, nitritePpm: input.nitritePpm ?? null, molybdatePpm: input.molybdatePpm ?? null, reserveAlkalinityMl: input.reserveAlkalinityMl ?? null,
+    engineId,
+    ...input,
+    nitritePpm: input.nitritePpm ?? null,
+    molybdatePpm: input.molybdatePpm ?? null,
+    reserveAlkalinityMl: input.reserveAlkalinityMl ?? null,
     breakdownSigns: input.breakdownSigns ?? null,
-    notes: input.notes ?? null, testedBy: userId, decision: decision as unknown as Record<string, unknown>, source: 'manual',
+    notes: input.notes ?? null,
+    testedBy: userId,
+    decision: decision as unknown as Record<string, unknown>,
+    source: 'manual',
   });
   return view(row, await userNames(models, [userId]));
 }
@@ -153,7 +202,8 @@ export interface ImportResult {
 /** What the user should know about how the file was read. */
 function formatNotices(format: ParsedLabCsv['format']): string[] {
   const notices: string[] = [];
-  if (format.encoding === 'windows-1252') notices.push('the file is not UTF-8; it was read as Windows-1252 (the usual "CSV" of spreadsheets on Windows) and converted');
+  if (format.encoding === 'windows-1252')
+    notices.push('the file is not UTF-8; it was read as Windows-1252 (the usual "CSV" of spreadsheets on Windows) and converted');
   if (format.separator === ';') notices.push('fields separated by ";"');
   if (format.decimalComma) notices.push('numbers with a decimal comma were read as decimals (e.g. 9,6 = 9.6)');
   return notices;
@@ -161,7 +211,11 @@ function formatNotices(format: ParsedLabCsv['format']): string[] {
 
 /** Lab CSV import: every good row is stored (unless preview), every bad row reported; never all-or-nothing. */
 /** `scope`: the importer's visible sites; rows of other sites' engines are refused as unknown engines. */
-export async function importLabCsv(models: Models, buf: Buffer, opts: { preview: boolean; userId: number; engineId?: number; now?: number; scope?: SiteScope }): Promise<ImportResult> {
+export async function importLabCsv(
+  models: Models,
+  buf: Buffer,
+  opts: { preview: boolean; userId: number; engineId?: number; now?: number; scope?: SiteScope },
+): Promise<ImportResult> {
   let parsed;
   try {
     parsed = parseLabCsv(buf, { now: opts.now, engineIdOptional: opts.engineId !== undefined });
@@ -195,15 +249,24 @@ export async function importLabCsv(models: Models, buf: Buffer, opts: { preview:
   }
   rejected.sort((a, b) => a.line - b.line);
   const accepted = good.map(({ line, row, engine, decision }) => ({
-    line, engineId: engine.id, testedAt: row.testedAt.toISOString(), status: decision.additive?.status ?? null,
-    summary: decision.additive?.reasons[0] ?? decision.notes[0] ?? (decision.freeze ? `freeze point ${decision.freeze.freezePointC?.toFixed(1) ?? 'beyond table'} °C` : 'stored'),
+    line,
+    engineId: engine.id,
+    testedAt: row.testedAt.toISOString(),
+    status: decision.additive?.status ?? null,
+    summary:
+      decision.additive?.reasons[0] ??
+      decision.notes[0] ??
+      (decision.freeze ? `freeze point ${decision.freeze.freezePointC?.toFixed(1) ?? 'beyond table'} °C` : 'stored'),
   }));
   if (!opts.preview && good.length) {
     await models.CoolantTest.bulkCreate(
       good.map(({ row, engine, decision }) => ({
         ...row, // the row's fields are named as the stored test's
-        engineId: engine.id, notes: null,
-        testedBy: opts.userId, decision: decision as unknown as Record<string, unknown>, source: 'lab-import' as const,
+        engineId: engine.id,
+        notes: null,
+        testedBy: opts.userId,
+        decision: decision as unknown as Record<string, unknown>,
+        source: 'lab-import' as const,
       })),
     );
   }

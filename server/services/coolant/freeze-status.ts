@@ -26,7 +26,12 @@ export async function freezeStatusOf(models: Models, engines: Engine[], limits?:
   if (!latest.length) return out;
   const tests = await models.CoolantTest.findAll({ where: { id: latest.map((r) => Number(r.id)) } });
   const l = limits ?? (await getChemistryLimits(models)).limits;
-  const sites = new Map((await models.Site.findAll({ where: { id: [...new Set(engines.map((e) => e.siteId))] }, attributes: ['id', 'designLowTempC'] })).map((s) => [s.id, s.designLowTempC ?? null]));
+  const sites = new Map(
+    (await models.Site.findAll({ where: { id: [...new Set(engines.map((e) => e.siteId))] }, attributes: ['id', 'designLowTempC'] })).map((s) => [
+      s.id,
+      s.designLowTempC ?? null,
+    ]),
+  );
   const byId = new Map(engines.map((e) => [e.id, e]));
   for (const t of tests) {
     const engine = byId.get(t.engineId);
@@ -41,8 +46,14 @@ export async function freezeStatusOf(models: Models, engines: Engine[], limits?:
       if (!f) continue;
       out.set(engine.id, {
         status: f.status === 'low' ? 'short' : (f.status as EngineFreezeStatus['status']),
-        freezePointC: f.value, requiredC: designLowC === null ? null : designLowC - l.freezeMarginK, designLowC, marginK: l.freezeMarginK,
-        testId: t.id, testedAt: new Date(t.testedAt).toISOString(), message: f.message, action: f.action,
+        freezePointC: f.value,
+        requiredC: designLowC === null ? null : designLowC - l.freezeMarginK,
+        designLowC,
+        marginK: l.freezeMarginK,
+        testId: t.id,
+        testedAt: new Date(t.testedAt).toISOString(),
+        message: f.message,
+        action: f.action,
       });
     } catch {
       // a stored reading the table cannot judge (older record): no verdict rather than a broken fleet list

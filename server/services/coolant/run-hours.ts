@@ -20,7 +20,11 @@ export class RunHoursCounter {
   private timer: NodeJS.Timeout | null = null;
   private flushing: Promise<void> | null = null;
 
-  constructor(private readonly models: Models, private readonly log: Logger, private readonly flushEveryMs = FLUSH_EVERY_MS) {}
+  constructor(
+    private readonly models: Models,
+    private readonly log: Logger,
+    private readonly flushEveryMs = FLUSH_EVERY_MS,
+  ) {}
 
   /** telemetry.onReadings listener: synchronous, memory only. */
   readonly onReadings = (readings: AcceptedReading[]): void => {
@@ -80,7 +84,13 @@ export class RunHoursCounter {
 }
 
 /** Set run hours from the engine's hour meter, with an audit entry (old, new, who, why). */
-export async function correctRunHours(models: Models, engineId: number, input: { runHours: number; reason: string }, userId: number, counter?: RunHoursCounter | null) {
+export async function correctRunHours(
+  models: Models,
+  engineId: number,
+  input: { runHours: number; reason: string },
+  userId: number,
+  counter?: RunHoursCounter | null,
+) {
   const engine = await getEngine(models, engineId);
   if (engine.retiredAt) throw badRequest('engine is retired', 'engineId');
   const old = engine.runHours;
@@ -95,11 +105,23 @@ export async function correctRunHours(models: Models, engineId: number, input: {
 
 export async function runHoursHistory(models: Models, engineId: number) {
   await getEngine(models, engineId);
-  const rows = await models.RunHoursAdjustment.findAll({ where: { engineId }, order: [['at', 'DESC'], ['id', 'DESC']], limit: 200 });
+  const rows = await models.RunHoursAdjustment.findAll({
+    where: { engineId },
+    order: [
+      ['at', 'DESC'],
+      ['id', 'DESC'],
+    ],
+    limit: 200,
+  });
   const ids = [...new Set(rows.map((r) => r.userId).filter((x): x is number => x !== null))];
   const names = new Map((ids.length ? await models.User.findAll({ where: { id: ids }, attributes: ['id', 'name'] }) : []).map((u) => [u.id, u.name]));
   return rows.map((r) => ({
-    id: r.id, oldRunHours: r.oldRunHours, newRunHours: r.newRunHours, userId: r.userId, userName: r.userId === null ? null : (names.get(r.userId) ?? null),
-    reason: r.reason, at: new Date(r.at).toISOString(),
+    id: r.id,
+    oldRunHours: r.oldRunHours,
+    newRunHours: r.newRunHours,
+    userId: r.userId,
+    userName: r.userId === null ? null : (names.get(r.userId) ?? null),
+    reason: r.reason,
+    at: new Date(r.at).toISOString(),
   }));
 }

@@ -55,7 +55,15 @@ export async function servicePlan(models: Models, engine: Engine): Promise<PlanT
   }
   for (const o of byKey.values()) {
     if (o.disabled || (!o.everyHours && !o.everyDays)) continue;
-    tasks.push({ key: o.taskKey, title: o.title ?? o.taskKey, everyHours: o.everyHours, everyDays: o.everyDays, basis: 'set for this engine', overridden: true, workKind: workKindForTask(o.taskKey) });
+    tasks.push({
+      key: o.taskKey,
+      title: o.title ?? o.taskKey,
+      everyHours: o.everyHours,
+      everyDays: o.everyDays,
+      basis: 'set for this engine',
+      overridden: true,
+      workKind: workKindForTask(o.taskKey),
+    });
   }
   return tasks;
 }
@@ -82,7 +90,8 @@ export async function setOverride(models: Models, engineId: number, taskKey: str
     disabled: input.disabled ?? existing?.disabled ?? false,
     updatedBy: userId,
   };
-  if (!known && !values.disabled && !values.everyHours && !values.everyDays) throw badRequest('a task of its own needs an interval in hours or days', 'everyHours');
+  if (!known && !values.disabled && !values.everyHours && !values.everyDays)
+    throw badRequest('a task of its own needs an interval in hours or days', 'everyHours');
   if (existing) await existing.update(values);
   else await models.ServiceTaskOverride.create({ engineId, taskKey, ...values });
   return servicePlan(models, engine);
@@ -157,7 +166,11 @@ async function lastDone(models: Models, engineIds: number[], now: number): Promi
     // fresh extended-life coolant needs no extender until its interval has run from the refill
     if (e.taskKey === 'drain-flush-refill') put(e.engineId, 'coolant-extender', new Date(e.doneAt).getTime(), e.runHours);
   }
-  const tests = await models.CoolantTest.findAll({ where: { engineId: engineIds, testedAt: { [Op.lte]: cutoff } }, attributes: ['engineId', 'testedAt'], order: [['testedAt', 'ASC']] });
+  const tests = await models.CoolantTest.findAll({
+    where: { engineId: engineIds, testedAt: { [Op.lte]: cutoff } },
+    attributes: ['engineId', 'testedAt'],
+    order: [['testedAt', 'ASC']],
+  });
   // a recorded test has no hour-meter reading with it: calendar only, unless a service event says more
   for (const t of tests) {
     const m = out.get(t.engineId)?.get('coolant-test');
@@ -174,12 +187,23 @@ export async function computeDueList(models: Models, q: DueListQuery): Promise<{
   if (q.siteIds !== undefined) where.siteId = q.siteIds;
   else if (q.siteId !== undefined) where.siteId = q.siteId;
   if (q.engineId !== undefined) where.id = q.engineId;
-  const engines = await models.Engine.findAll({ where, order: [['siteId', 'ASC'], ['name', 'ASC']] });
+  const engines = await models.Engine.findAll({
+    where,
+    order: [
+      ['siteId', 'ASC'],
+      ['name', 'ASC'],
+    ],
+  });
   const sites = new Map((await models.Site.findAll({ where: { id: [...new Set(engines.map((e) => e.siteId))] } })).map((s) => [s.id, s]));
-  const records = await lastDone(models, engines.map((e) => e.id), q.now);
+  const records = await lastDone(
+    models,
+    engines.map((e) => e.id),
+    q.now,
+  );
   const open = await models.WorkOrder.findAll({
     where: { engineId: engines.map((e) => e.id), status: { [Op.notIn]: OPEN_STATUSES_EXCLUDED } },
-    attributes: ['id', 'engineId', 'kind'], order: [['id', 'ASC']],
+    attributes: ['id', 'engineId', 'kind'],
+    order: [['id', 'ASC']],
   });
   const openBy = new Map(open.map((w) => [`${w.engineId}:${w.kind}`, w.id]));
 
@@ -201,11 +225,23 @@ export async function computeDueList(models: Models, q: DueListQuery): Promise<{
       const t = e.task as PlanTask;
       const r = taskRecords[t.key];
       view.entries.push({
-        engineId: engine.id, engineName: engine.name, runHours: engine.runHours, taskKey: t.key, title: t.title, state: e.state, reason: e.reason,
-        dueAt: e.dueAt === null ? null : new Date(e.dueAt).toISOString(), dueAtRunHours: e.dueAtRunHours,
-        lastDoneAt: r?.lastDoneAt ? new Date(r.lastDoneAt).toISOString() : null, lastDoneRunHours: r?.lastDoneRunHours ?? null,
-        everyHours: t.everyHours ?? null, everyDays: t.everyDays ?? null, placeholder: !!t.placeholder, basis: t.basis,
-        workKind: t.workKind, openWorkOrderId: t.workKind ? (openBy.get(`${engine.id}:${t.workKind}`) ?? null) : null,
+        engineId: engine.id,
+        engineName: engine.name,
+        runHours: engine.runHours,
+        taskKey: t.key,
+        title: t.title,
+        state: e.state,
+        reason: e.reason,
+        dueAt: e.dueAt === null ? null : new Date(e.dueAt).toISOString(),
+        dueAtRunHours: e.dueAtRunHours,
+        lastDoneAt: r?.lastDoneAt ? new Date(r.lastDoneAt).toISOString() : null,
+        lastDoneRunHours: r?.lastDoneRunHours ?? null,
+        everyHours: t.everyHours ?? null,
+        everyDays: t.everyDays ?? null,
+        placeholder: !!t.placeholder,
+        basis: t.basis,
+        workKind: t.workKind,
+        openWorkOrderId: t.workKind ? (openBy.get(`${engine.id}:${t.workKind}`) ?? null) : null,
       });
     }
   }
@@ -213,5 +249,10 @@ export async function computeDueList(models: Models, q: DueListQuery): Promise<{
   for (const v of out.values()) {
     v.entries.sort((a, b) => rank[a.state] - rank[b.state] || (a.dueAt ?? '9').localeCompare(b.dueAt ?? '9') || a.engineName.localeCompare(b.engineName));
   }
-  return { now: new Date(q.now).toISOString(), windowDays: q.windowDays, windowHours, sites: [...out.values()].sort((a, b) => a.siteName.localeCompare(b.siteName)) };
+  return {
+    now: new Date(q.now).toISOString(),
+    windowDays: q.windowDays,
+    windowHours,
+    sites: [...out.values()].sort((a, b) => a.siteName.localeCompare(b.siteName)),
+  };
 }

@@ -19,7 +19,12 @@ export interface TopUpInput {
 export type { TopUpView, TopUpsAnswer };
 
 /** The checks of a top-up before it is stored (also used by the work-order step before it completes). */
-export async function checkTopUp(models: Models, engineId: number, input: Pick<TopUpInput, 'volumeL' | 'liquid' | 'premixPercent'>, volumeField = 'volumeL'): Promise<void> {
+export async function checkTopUp(
+  models: Models,
+  engineId: number,
+  input: Pick<TopUpInput, 'volumeL' | 'liquid' | 'premixPercent'>,
+  volumeField = 'volumeL',
+): Promise<void> {
   const engine = await getEngine(models, engineId);
   if (engine.retiredAt) throw badRequest('engine is retired', 'engineId');
   if (!(input.volumeL > 0)) throw badRequest(`${volumeField}: above 0 L`, volumeField);
@@ -29,7 +34,11 @@ export async function checkTopUp(models: Models, engineId: number, input: Pick<T
 
 /** Stores a top-up; `opts.workOrderId` links it to the work order whose step recorded it (in that step's transaction). */
 export async function recordTopUp(
-  models: Models, engineId: number, input: TopUpInput, userId: number, opts: { transaction?: Transaction; workOrderId?: number } = {},
+  models: Models,
+  engineId: number,
+  input: TopUpInput,
+  userId: number,
+  opts: { transaction?: Transaction; workOrderId?: number } = {},
 ): Promise<TopUpView> {
   await checkTopUp(models, engineId, input);
   const row = await models.CoolantTopUp.create(
@@ -40,17 +49,34 @@ export async function recordTopUp(
 }
 
 const view = (r: InstanceType<Models['CoolantTopUp']>): TopUpView => ({
-  id: r.id, engineId: r.engineId, addedAt: new Date(r.addedAt).toISOString(), volumeL: r.volumeL, liquid: r.liquid,
-  premixPercent: r.premixPercent, notes: r.notes, addedBy: r.addedBy, workOrderId: r.workOrderId ?? null,
+  id: r.id,
+  engineId: r.engineId,
+  addedAt: new Date(r.addedAt).toISOString(),
+  volumeL: r.volumeL,
+  liquid: r.liquid,
+  premixPercent: r.premixPercent,
+  notes: r.notes,
+  addedBy: r.addedBy,
+  workOrderId: r.workOrderId ?? null,
 });
 
 /** The engine's top-ups (newest first) and the additive and glycol estimated since its last test. */
 export async function listTopUps(models: Models, engineId: number): Promise<TopUpsAnswer> {
   const engine = await getEngine(models, engineId);
-  const rows = await models.CoolantTopUp.findAll({ where: { engineId }, order: [['addedAt', 'DESC'], ['id', 'DESC']], limit: 500 });
+  const rows = await models.CoolantTopUp.findAll({
+    where: { engineId },
+    order: [
+      ['addedAt', 'DESC'],
+      ['id', 'DESC'],
+    ],
+    limit: 500,
+  });
   const test = await models.CoolantTest.findOne({
     where: { engineId, [Op.or]: [{ scaUnitsPerGal: { [Op.ne]: null } }, { glycolPercent: { [Op.ne]: null } }, { nitritePpm: { [Op.ne]: null } }] },
-    order: [['testedAt', 'DESC'], ['id', 'DESC']],
+    order: [
+      ['testedAt', 'DESC'],
+      ['id', 'DESC'],
+    ],
   });
   if (!test) return { topUps: rows.map(view), estimate: null };
   const since = rows.filter((r) => new Date(r.addedAt).getTime() > new Date(test.testedAt).getTime()).reverse();

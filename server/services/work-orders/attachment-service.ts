@@ -16,8 +16,10 @@ interface Sniffed {
 /** What the file IS, from its first bytes; the name and the client's type are not trusted. */
 export function sniffContent(buf: Buffer): Sniffed | null {
   if (buf.length >= 3 && buf[0] === 0xff && buf[1] === 0xd8 && buf[2] === 0xff) return { contentType: 'image/jpeg', ext: 'jpg' };
-  if (buf.length >= 8 && buf.subarray(0, 8).equals(Buffer.from([0x89, 0x50, 0x4e, 0x47, 0x0d, 0x0a, 0x1a, 0x0a]))) return { contentType: 'image/png', ext: 'png' };
-  if (buf.length >= 12 && buf.toString('latin1', 0, 4) === 'RIFF' && buf.toString('latin1', 8, 12) === 'WEBP') return { contentType: 'image/webp', ext: 'webp' };
+  if (buf.length >= 8 && buf.subarray(0, 8).equals(Buffer.from([0x89, 0x50, 0x4e, 0x47, 0x0d, 0x0a, 0x1a, 0x0a])))
+    return { contentType: 'image/png', ext: 'png' };
+  if (buf.length >= 12 && buf.toString('latin1', 0, 4) === 'RIFF' && buf.toString('latin1', 8, 12) === 'WEBP')
+    return { contentType: 'image/webp', ext: 'webp' };
   if (buf.length >= 5 && buf.toString('latin1', 0, 5) === '%PDF-') return { contentType: 'application/pdf', ext: 'pdf' };
   return null;
 }
@@ -29,13 +31,24 @@ const UNSAFE_IN_NAME = (c: number) => c <= 0x1f || (c >= 0x7f && c <= 0x9f) || (
 export function cleanOriginalName(name: string | undefined): string {
   const base = (name ?? '').split(/[\\/]/).pop() ?? '';
   // control characters out; bidirectional overrides would let `x\u202Egnp.exe` display as `xexe.png`
-  const cleaned = [...base].map((ch) => (UNSAFE_IN_NAME(ch.codePointAt(0)!) || '"<>|:*?'.includes(ch) ? '_' : ch)).join('').replace(/^\.+/, '').trim().slice(0, 200);
+  const cleaned = [...base]
+    .map((ch) => (UNSAFE_IN_NAME(ch.codePointAt(0)!) || '"<>|:*?'.includes(ch) ? '_' : ch))
+    .join('')
+    .replace(/^\.+/, '')
+    .trim()
+    .slice(0, 200);
   return cleaned || 'file';
 }
 
 export const uploadsDir = (dataDir: string) => path.join(dataDir, 'uploads');
 
-export async function addAttachment(svc: WorkOrderService, user: AuthUser, orderId: number, file: { buffer: Buffer; originalname?: string; size: number } | undefined, stepId: number | null) {
+export async function addAttachment(
+  svc: WorkOrderService,
+  user: AuthUser,
+  orderId: number,
+  file: { buffer: Buffer; originalname?: string; size: number } | undefined,
+  stepId: number | null,
+) {
   if (!file) throw badRequest('send one file in the form field "file"', 'file');
   const order = await svc.getOrder(orderId);
   svc.assertEditable(order);
@@ -52,8 +65,25 @@ export async function addAttachment(svc: WorkOrderService, user: AuthUser, order
   await fs.promises.writeFile(path.join(dir, storedName), file.buffer, { flag: 'wx', mode: 0o600 });
   try {
     const row = await svc.ctx.sequelize.transaction(async (transaction) => {
-      const a = await svc.models.Attachment.create({ workOrderId: orderId, stepId, storedName, originalName: cleanOriginalName(file.originalname), contentType: kind.contentType, size: file.buffer.length, uploadedBy: user.id }, { transaction });
-      await svc.event(orderId, user.id, 'attachment-added', { details: { attachmentId: a.id, stepId, contentType: a.contentType, size: a.size, name: a.originalName } }, transaction);
+      const a = await svc.models.Attachment.create(
+        {
+          workOrderId: orderId,
+          stepId,
+          storedName,
+          originalName: cleanOriginalName(file.originalname),
+          contentType: kind.contentType,
+          size: file.buffer.length,
+          uploadedBy: user.id,
+        },
+        { transaction },
+      );
+      await svc.event(
+        orderId,
+        user.id,
+        'attachment-added',
+        { details: { attachmentId: a.id, stepId, contentType: a.contentType, size: a.size, name: a.originalName } },
+        transaction,
+      );
       return a;
     });
     pushWorkOrder(svc.ctx, order, 'attachment');

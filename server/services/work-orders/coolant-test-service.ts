@@ -42,15 +42,29 @@ export async function recordOrderCoolantTest(svc: WorkOrderService, user: AuthUs
   const sample = steps.find((s) => s.key === SAMPLE_STEP_KEY);
   if (sample && !sample.doneAt) throw conflict('take the sample first: its step is not done');
   const values = {
-    scaUnitsPerGal: reading(steps, 'sca-level'), glycolPercent: reading(steps, 'glycol-percent'), freezePointC: reading(steps, 'freeze-point'), ph: reading(steps, 'ph'),
-    nitritePpm: reading(steps, 'nitrite'), molybdatePpm: reading(steps, 'molybdate'),
+    scaUnitsPerGal: reading(steps, 'sca-level'),
+    glycolPercent: reading(steps, 'glycol-percent'),
+    freezePointC: reading(steps, 'freeze-point'),
+    ph: reading(steps, 'ph'),
+    nitritePpm: reading(steps, 'nitrite'),
+    molybdatePpm: reading(steps, 'molybdate'),
   };
   if (values.scaUnitsPerGal === null && values.glycolPercent === null && values.freezePointC === null && values.nitritePpm === null) {
     throw new HttpError(400, 'enter at least the freeze point, glycol, additive level or nitrite in its step', 'steps');
   }
-  const test = await recordCoolantTest(svc.models, order.engineId, {
-    testedAt: sample?.doneAt ? new Date(sample.doneAt) : new Date(), method, ...values, conductivityUsCm: null, appearance: null, notes: `From work order #${order.id}`,
-  }, user.id);
+  const test = await recordCoolantTest(
+    svc.models,
+    order.engineId,
+    {
+      testedAt: sample?.doneAt ? new Date(sample.doneAt) : new Date(),
+      method,
+      ...values,
+      conductivityUsCm: null,
+      appearance: null,
+      notes: `From work order #${order.id}`,
+    },
+    user.id,
+  );
   // once per order, also under a race: only the first writer links its test; a loser removes its own
   await svc.ctx.sequelize.query('UPDATE work_orders SET coolant_test_id = ? WHERE id = ? AND coolant_test_id IS NULL', { replacements: [test.id, order.id] });
   const winner = (await svc.getOrder(orderId)).coolantTestId;

@@ -35,14 +35,23 @@ export async function computeGate(history: ReadingHistory, engine: Engine, locko
   const ambientC = amb && now - amb.ts < 3600_000 ? amb.value : null;
   const settings = gateSettings(engine, ambientC);
   const result = openingCheck(
-    { readings: { coolant_temp: s.coolant_temp, coolant_pressure: s.coolant_pressure, engine_speed: s.engine_speed }, settings, lockoutConfirmed, stoppedSinceTs: stop?.stoppedSinceTs ?? null },
+    {
+      readings: { coolant_temp: s.coolant_temp, coolant_pressure: s.coolant_pressure, engine_speed: s.engine_speed },
+      settings,
+      lockoutConfirmed,
+      stoppedSinceTs: stop?.stoppedSinceTs ?? null,
+    },
     now,
   );
   const newest = (l: readonly { ts: number; quality?: number }[]) => {
     for (let i = l.length - 1; i >= 0; i--) if ((l[i].quality ?? 0) === 0 && l[i].ts <= now) return l[i].ts;
     return null;
   };
-  return { ...result, settings, latestTs: { coolant_temp: newest(s.coolant_temp), coolant_pressure: newest(s.coolant_pressure), engine_speed: newest(s.engine_speed) } };
+  return {
+    ...result,
+    settings,
+    latestTs: { coolant_temp: newest(s.coolant_temp), coolant_pressure: newest(s.coolant_pressure), engine_speed: newest(s.engine_speed) },
+  };
 }
 
 export interface Objection {
@@ -77,5 +86,15 @@ export async function openingCheckOf(models: Models, history: ReadingHistory, en
   const engine = await models.Engine.findByPk(engineId);
   if (!engine) throw new HttpError(404, 'engine not found');
   const g = await computeGate(history, engine, lockoutConfirmed);
-  return { engineId: engine.id, at: new Date().toISOString(), clear: g.clear, conditions: g.conditions, clearAt: g.clearAt, forecast: g.forecast, reasons: g.reasons, stale: g.stale, settings: g.settings };
+  return {
+    engineId: engine.id,
+    at: new Date().toISOString(),
+    clear: g.clear,
+    conditions: g.conditions,
+    clearAt: g.clearAt,
+    forecast: g.forecast,
+    reasons: g.reasons,
+    stale: g.stale,
+    settings: g.settings,
+  };
 }

@@ -15,9 +15,11 @@ async function workOrderRooms(ctx: AppContext, engineId: number): Promise<string
 function emitForEngine(ctx: AppContext, engineId: number, event: string, payload: unknown): void {
   const emit = (ctx.telemetry as Partial<Telemetry> | null)?.emit;
   if (!emit) return;
-  workOrderRooms(ctx, engineId).then((rooms) => emit(rooms, event, payload)).catch((err) => {
-    ctx.log.warn('work orders: live push failed', err instanceof Error ? err.message : err);
-  });
+  workOrderRooms(ctx, engineId)
+    .then((rooms) => emit(rooms, event, payload))
+    .catch((err) => {
+      ctx.log.warn('work orders: live push failed', err instanceof Error ? err.message : err);
+    });
 }
 
 /** Live push of a changed work order to those watching the fleet, the engine's site or the engine, within their sites. */

@@ -4,7 +4,13 @@ import type { TimedValue } from '../../../shared/work/opening-check';
 import type { AcceptedReading } from '../../telemetry/types';
 
 /** The channels the opening check reads. */
-export const GATE_CHANNELS = ['coolant_temp', 'coolant_pressure', 'engine_speed', 'ambient_temp', 'coolant_conductivity'] as const satisfies readonly ChannelKey[];
+export const GATE_CHANNELS = [
+  'coolant_temp',
+  'coolant_pressure',
+  'engine_speed',
+  'ambient_temp',
+  'coolant_conductivity',
+] as const satisfies readonly ChannelKey[];
 export type GateChannel = (typeof GATE_CHANNELS)[number];
 
 export interface HistoryOptions {
@@ -44,7 +50,10 @@ export class ReadingHistory {
   private readonly keepMs: number;
   private readonly spacingMs: number;
 
-  constructor(private readonly sequelize: Sequelize | null, opts: HistoryOptions = {}) {
+  constructor(
+    private readonly sequelize: Sequelize | null,
+    opts: HistoryOptions = {},
+  ) {
     this.keepMs = opts.keepMs ?? 3 * 3600 * 1000;
     this.spacingMs = opts.spacingMs ?? 2000;
   }
@@ -54,7 +63,8 @@ export class ReadingHistory {
     for (const r of readings) {
       // without a database (tests) every engine is followed; with one, only engines asked about lately
       if (this.sequelize && !this.loaded.has(r.engineId)) continue;
-      if ((GATE_CHANNELS as readonly string[]).includes(r.channel)) this.add(r.engineId, r.channel as GateChannel, { ts: r.ts, value: r.value, quality: r.quality });
+      if ((GATE_CHANNELS as readonly string[]).includes(r.channel))
+        this.add(r.engineId, r.channel as GateChannel, { ts: r.ts, value: r.value, quality: r.quality });
       if (r.channel === 'engine_speed' && r.quality === 0) this.noteSpeed(r.engineId, r.ts, r.value);
     }
   };
@@ -176,7 +186,11 @@ export class ReadingHistory {
         lastRunTs = row?.ts === null || row?.ts === undefined ? null : Number(row.ts);
       }
     } else {
-      const row = await q<{ ts: number | null }>('SELECT MAX(ts) AS ts FROM readings WHERE engine_id = ? AND channel = ? AND quality = 0 AND value > ?', [engineId, code, RUNNING_RPM]);
+      const row = await q<{ ts: number | null }>('SELECT MAX(ts) AS ts FROM readings WHERE engine_id = ? AND channel = ? AND quality = 0 AND value > ?', [
+        engineId,
+        code,
+        RUNNING_RPM,
+      ]);
       lastRunTs = row?.ts === null || row?.ts === undefined ? null : Number(row.ts);
     }
     const first = await q<{ ts: number | null }>(

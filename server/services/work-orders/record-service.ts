@@ -25,8 +25,17 @@ export async function addPart(svc: WorkOrderService, user: AuthUser, orderId: nu
   if (!fluid && input.unit !== 'pcs') throw new HttpError(400, 'a filter or part is recorded in pcs', 'unit');
   const quantity = input.unit === 'gal' ? input.quantity * LITRES_PER_US_GALLON : input.quantity;
   const part = await svc.ctx.sequelize.transaction(async (transaction) => {
-    const p = await svc.models.WorkOrderPart.create({ workOrderId: orderId, kind: input.kind, description: input.description?.trim() || null, quantity, unit: fluid ? 'L' : 'pcs', addedBy: user.id }, { transaction });
-    await svc.event(orderId, user.id, 'part-added', { details: { partId: p.id, kind: p.kind, quantity, unit: p.unit, description: p.description } }, transaction);
+    const p = await svc.models.WorkOrderPart.create(
+      { workOrderId: orderId, kind: input.kind, description: input.description?.trim() || null, quantity, unit: fluid ? 'L' : 'pcs', addedBy: user.id },
+      { transaction },
+    );
+    await svc.event(
+      orderId,
+      user.id,
+      'part-added',
+      { details: { partId: p.id, kind: p.kind, quantity, unit: p.unit, description: p.description } },
+      transaction,
+    );
     return p;
   });
   pushWorkOrder(svc.ctx, order, 'part');

@@ -25,14 +25,23 @@ export interface CompleteInput {
 
 /** The answer to a gated step while the opening check is not clear: 409 with the unmet conditions. */
 export class GateShutError extends HttpError {
-  constructor(message: string, readonly body: Record<string, unknown>) {
+  constructor(
+    message: string,
+    readonly body: Record<string, unknown>,
+  ) {
     super(409, message);
   }
 }
 
 /** Plausible ranges of a recorded value, in the step's unit (common practice; wide on purpose). */
 const RANGES: Record<string, [number, number]> = {
-  degC: [-80, 20], kPa: [-10, 400], L: [0, 5000], turns: [0, 3], '%': [0, 100], 'units/gal': [0, 10], pH: [0, 14],
+  degC: [-80, 20],
+  kPa: [-10, 400],
+  L: [0, 5000],
+  turns: [0, 3],
+  '%': [0, 100],
+  'units/gal': [0, 10],
+  pH: [0, 14],
 };
 
 /** Converts a value entered in another unit of the same quantity to the step's unit. */
@@ -53,8 +62,16 @@ function snapshot(g: GateResult, at: Date, manual: boolean): Record<string, unkn
  * gated steps after it until a step that takes the lock off is done (shared/work/lockout.ts).
  */
 export async function lockoutCarried(svc: WorkOrderService, orderId: number, gated: { position: number }): Promise<boolean> {
-  const steps = await svc.models.WorkOrderStep.findAll({ where: { workOrderId: orderId, key: [...LOCK_STEP_KEYS, ...UNLOCK_STEP_KEYS] }, attributes: ['key', 'position', 'doneAt'] });
-  return lockoutFor(steps.map((s) => ({ key: s.key, position: s.position, doneAt: s.doneAt ?? null })), gated) !== null;
+  const steps = await svc.models.WorkOrderStep.findAll({
+    where: { workOrderId: orderId, key: [...LOCK_STEP_KEYS, ...UNLOCK_STEP_KEYS] },
+    attributes: ['key', 'position', 'doneAt'],
+  });
+  return (
+    lockoutFor(
+      steps.map((s) => ({ key: s.key, position: s.position, doneAt: s.doneAt ?? null })),
+      gated,
+    ) !== null
+  );
 }
 
 /** The step of an order the assigned technician may work on now (in progress, not done). */
@@ -88,7 +105,13 @@ export async function saveDraft(svc: WorkOrderService, user: AuthUser, orderId: 
     const gate = await computeGate(svc.history, engine, lockout);
     if (!gate.clear) {
       const why = lockout ? 'this step is locked: the opening check is not clear' : 'this step is locked: confirm lockout/tagout on its step first';
-      throw new GateShutError(why, { error: why, conditions: gate.conditions.filter((c) => !c.met), clearAt: gate.clearAt, reasons: gate.reasons, stale: gate.stale });
+      throw new GateShutError(why, {
+        error: why,
+        conditions: gate.conditions.filter((c) => !c.met),
+        clearAt: gate.clearAt,
+        reasons: gate.reasons,
+        stale: gate.stale,
+      });
     }
   }
   const patch: Record<string, unknown> = {};
@@ -119,14 +142,25 @@ export async function completeStep(svc: WorkOrderService, user: AuthUser, orderI
   // coolant goes in only once the step that takes the cap off is done (it waits for the opening check)
   const after = workTemplate(order.kind)?.steps.find((t) => t.key === step.key)?.after;
   if (after?.length) {
-    const earlier = await models.WorkOrderStep.findAll({ where: { workOrderId: orderId, key: [...after] }, attributes: ['key', 'position', 'title', 'doneAt'] });
-    const first = waitingFor(earlier.map((s) => ({ key: s.key, position: s.position, title: s.title, doneAt: s.doneAt ?? null })), after);
+    const earlier = await models.WorkOrderStep.findAll({
+      where: { workOrderId: orderId, key: [...after] },
+      attributes: ['key', 'position', 'title', 'doneAt'],
+    });
+    const first = waitingFor(
+      earlier.map((s) => ({ key: s.key, position: s.position, title: s.title, doneAt: s.doneAt ?? null })),
+      after,
+    );
     if (first) throw conflict(waitingText(first));
   }
 
   // what is not sent again is taken from the draft, so completing keeps what was typed
   const note = input.note !== undefined ? input.note : (step.resultText ?? undefined);
-  const entered = input.value !== undefined ? { value: input.value, unit: input.unit } : step.resultValue !== null && step.resultValue !== undefined ? { value: step.resultValue, unit: step.resultUnit ?? undefined } : null;
+  const entered =
+    input.value !== undefined
+      ? { value: input.value, unit: input.unit }
+      : step.resultValue !== null && step.resultValue !== undefined
+        ? { value: step.resultValue, unit: step.resultUnit ?? undefined }
+        : null;
   const patch: Record<string, unknown> = { resultText: note?.trim() || null };
   if (step.input === 'value') {
     if (!entered) throw badRequest('this step records a value', 'value');
@@ -151,9 +185,15 @@ export async function completeStep(svc: WorkOrderService, user: AuthUser, orderI
   if (input.topUp && !topUpStep) throw badRequest('only the top-up step of a top-up order records a top-up', 'topUp');
   if (topUpStep) {
     if (!input.topUp) throw badRequest('say what was added: water, premix or glycol', 'liquid');
-    await checkTopUp(models, order.engineId, { volumeL: patch.resultValue as number, liquid: input.topUp.liquid, premixPercent: input.topUp.premixPercent }, 'value');
+    await checkTopUp(
+      models,
+      order.engineId,
+      { volumeL: patch.resultValue as number, liquid: input.topUp.liquid, premixPercent: input.topUp.premixPercent },
+      'value',
+    );
     // the step's record says what was added, before the technician's remark
-    const what = input.topUp.liquid === 'premix' ? `Premix, ${input.topUp.premixPercent} % glycol` : input.topUp.liquid === 'water' ? 'Plain water' : 'Glycol concentrate';
+    const what =
+      input.topUp.liquid === 'premix' ? `Premix, ${input.topUp.premixPercent} % glycol` : input.topUp.liquid === 'water' ? 'Plain water' : 'Glycol concentrate';
     patch.resultText = `${what}${note?.trim() ? `: ${note.trim()}` : ''}`.slice(0, 2000);
   }
 
@@ -165,15 +205,30 @@ export async function completeStep(svc: WorkOrderService, user: AuthUser, orderI
     const lockout = input.lockoutConfirmed === true || (await lockoutCarried(svc, orderId, step));
     const gate = await computeGate(svc.history, engine, lockout, now.getTime());
     if (!lockout) {
-      throw new GateShutError('confirm lockout/tagout before this step', { error: 'confirm lockout/tagout before this step', conditions: gate.conditions.filter((c) => !c.met), clearAt: gate.clearAt, reasons: gate.reasons, stale: gate.stale });
+      throw new GateShutError('confirm lockout/tagout before this step', {
+        error: 'confirm lockout/tagout before this step',
+        conditions: gate.conditions.filter((c) => !c.met),
+        clearAt: gate.clearAt,
+        reasons: gate.reasons,
+        stale: gate.stale,
+      });
     }
     if (!gate.clear) {
       const objections = liveObjections(gate, now.getTime());
       if (!input.manualCheck || !gate.stale || objections.length) {
-        const why = !input.manualCheck ? 'the opening check is not clear'
-          : !gate.stale ? 'a manual check is only for stale or missing live data; live data is fresh'
-          : 'live data says the system is not safe to open: a manual check cannot overrule it';
-        throw new GateShutError(why, { error: why, conditions: gate.conditions.filter((c) => !c.met), clearAt: gate.clearAt, reasons: gate.reasons, stale: gate.stale, objections });
+        const why = !input.manualCheck
+          ? 'the opening check is not clear'
+          : !gate.stale
+            ? 'a manual check is only for stale or missing live data; live data is fresh'
+            : 'live data says the system is not safe to open: a manual check cannot overrule it';
+        throw new GateShutError(why, {
+          error: why,
+          conditions: gate.conditions.filter((c) => !c.met),
+          clearAt: gate.clearAt,
+          reasons: gate.reasons,
+          stale: gate.stale,
+          objections,
+        });
       }
       // the hand readings must themselves pass the same limits
       const m = input.manualCheck;
@@ -183,7 +238,14 @@ export async function completeStep(svc: WorkOrderService, user: AuthUser, orderI
         { name: 'manual-temperature', met: m.tempC <= s.safeOpenTempC, value: m.tempC, limit: s.safeOpenTempC, unit: '°C' },
         { name: 'manual-stopped', met: m.minutesSinceStop * 60 >= s.minStoppedS, value: m.minutesSinceStop, limit: s.minStoppedS / 60, unit: 'min' },
       ].filter((c) => !c.met);
-      if (failed.length) throw new GateShutError('the manual check readings are not safe to open', { error: 'the manual check readings are not safe to open', conditions: failed, clearAt: null, reasons: [], stale: true });
+      if (failed.length)
+        throw new GateShutError('the manual check readings are not safe to open', {
+          error: 'the manual check readings are not safe to open',
+          conditions: failed,
+          clearAt: null,
+          reasons: [],
+          stale: true,
+        });
       manual = true;
       patch.manualCheck = m;
     }
@@ -197,21 +259,49 @@ export async function completeStep(svc: WorkOrderService, user: AuthUser, orderI
 
   await svc.ctx.sequelize.transaction(async (transaction) => {
     await step.update(patch, { transaction });
-    const topUp = topUpStep && input.topUp
-      ? await recordTopUp(models, order.engineId, {
-        addedAt: now, volumeL: patch.resultValue as number, liquid: input.topUp.liquid, premixPercent: input.topUp.premixPercent,
-        notes: `Work order #${order.id}${note?.trim() ? `: ${note.trim().slice(0, 400)}` : ''}`,
-      }, user.id, { transaction, workOrderId: order.id })
-      : null;
-    await svc.event(orderId, user.id, manual ? 'step-done-manual-check' : 'step-done', {
-      note: (patch.resultText as string | null) ?? null,
-      details: {
-        stepId: step.id, key: step.key, value: patch.resultValue ?? null, unit: patch.resultUnit ?? null, entered: entered ? { value: entered.value, unit: entered.unit ?? step.unit } : null, manualCheck: manual ? input.manualCheck! : null,
-        ...(topUp ? { topUp: { id: topUp.id, volumeL: topUp.volumeL, liquid: topUp.liquid, premixPercent: topUp.premixPercent } } : {}),
+    const topUp =
+      topUpStep && input.topUp
+        ? await recordTopUp(
+            models,
+            order.engineId,
+            {
+              addedAt: now,
+              volumeL: patch.resultValue as number,
+              liquid: input.topUp.liquid,
+              premixPercent: input.topUp.premixPercent,
+              notes: `Work order #${order.id}${note?.trim() ? `: ${note.trim().slice(0, 400)}` : ''}`,
+            },
+            user.id,
+            { transaction, workOrderId: order.id },
+          )
+        : null;
+    await svc.event(
+      orderId,
+      user.id,
+      manual ? 'step-done-manual-check' : 'step-done',
+      {
+        note: (patch.resultText as string | null) ?? null,
+        details: {
+          stepId: step.id,
+          key: step.key,
+          value: patch.resultValue ?? null,
+          unit: patch.resultUnit ?? null,
+          entered: entered ? { value: entered.value, unit: entered.unit ?? step.unit } : null,
+          manualCheck: manual ? input.manualCheck! : null,
+          ...(topUp ? { topUp: { id: topUp.id, volumeL: topUp.volumeL, liquid: topUp.liquid, premixPercent: topUp.premixPercent } } : {}),
+        },
       },
-    }, transaction);
+      transaction,
+    );
     if (manual) {
-      await svc.audit(user.id, 'opening-check-manual-override', 'work_order_step', step.id, { workOrderId: orderId, engineId: order.engineId, manualCheck: input.manualCheck!, gate: patch.gateSnapshot as Record<string, unknown> }, transaction);
+      await svc.audit(
+        user.id,
+        'opening-check-manual-override',
+        'work_order_step',
+        step.id,
+        { workOrderId: orderId, engineId: order.engineId, manualCheck: input.manualCheck!, gate: patch.gateSnapshot as Record<string, unknown> },
+        transaction,
+      );
     }
   });
   if (manual) {

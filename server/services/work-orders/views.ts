@@ -34,7 +34,11 @@ export type { WorkOrderSummary } from '../../../shared/api/work-view';
 
 const iso = (d: Date | null | undefined) => (d ? new Date(d).toISOString() : null);
 
-export function summaryView(o: WorkOrder, names: Names, extra: { alarmIds: number[]; stepsDone: number; stepsTotal: number; manualChecks: number }): WorkOrderSummary {
+export function summaryView(
+  o: WorkOrder,
+  names: Names,
+  extra: { alarmIds: number[]; stepsDone: number; stepsTotal: number; manualChecks: number },
+): WorkOrderSummary {
   const engine = names.engines.get(o.engineId);
   const user = (id: number | null) => (id ? (names.users.get(id) ?? null) : null);
   return {

@@ -48,7 +48,15 @@ function ruleTitle(rule: string): string {
 
 /** A time as the site reads it, with its zone: "25 Nov 2026, 15:28 (Europe/Berlin)". */
 function siteTime(d: Date, timeZone: string): string {
-  const f = new Intl.DateTimeFormat('en-GB', { timeZone, day: 'numeric', month: 'short', year: 'numeric', hour: '2-digit', minute: '2-digit', hourCycle: 'h23' });
+  const f = new Intl.DateTimeFormat('en-GB', {
+    timeZone,
+    day: 'numeric',
+    month: 'short',
+    year: 'numeric',
+    hour: '2-digit',
+    minute: '2-digit',
+    hourCycle: 'h23',
+  });
   return `${f.format(d)} (${timeZone})`;
 }
 
@@ -66,14 +74,36 @@ export class WorkOrderService {
     return this.ctx.models;
   }
 
-  async event(orderId: number, userId: number | null, event: string, more: { fromStatus?: string | null; toStatus?: string | null; note?: string | null; details?: Record<string, unknown> | null } = {}, transaction?: import('sequelize').Transaction) {
+  async event(
+    orderId: number,
+    userId: number | null,
+    event: string,
+    more: { fromStatus?: string | null; toStatus?: string | null; note?: string | null; details?: Record<string, unknown> | null } = {},
+    transaction?: import('sequelize').Transaction,
+  ) {
     return this.models.WorkOrderEvent.create(
-      { workOrderId: orderId, at: new Date(), userId, event, fromStatus: more.fromStatus ?? null, toStatus: more.toStatus ?? null, note: more.note ?? null, details: more.details ?? null },
+      {
+        workOrderId: orderId,
+        at: new Date(),
+        userId,
+        event,
+        fromStatus: more.fromStatus ?? null,
+        toStatus: more.toStatus ?? null,
+        note: more.note ?? null,
+        details: more.details ?? null,
+      },
       { transaction },
     );
   }
 
-  async audit(userId: number | null, action: string, entity: string, entityId: number | null, details: Record<string, unknown> | null, transaction?: import('sequelize').Transaction) {
+  async audit(
+    userId: number | null,
+    action: string,
+    entity: string,
+    entityId: number | null,
+    details: Record<string, unknown> | null,
+    transaction?: import('sequelize').Transaction,
+  ) {
     return this.models.AuditEntry.create({ at: new Date(), userId, action, entity, entityId, details }, { transaction });
   }
 
@@ -119,21 +149,42 @@ export class WorkOrderService {
     const order = await this.ctx.sequelize.transaction(async (transaction) => {
       const o = await this.models.WorkOrder.create(
         {
-          engineId: engine.id, kind: input.kind, title: title.slice(0, 200), description, priority,
-          dueDate: input.dueDate ?? null, assigneeId: input.assigneeId ?? null, status,
-          createdBy: user.id, requestedBy: planner ? null : user.id,
+          engineId: engine.id,
+          kind: input.kind,
+          title: title.slice(0, 200),
+          description,
+          priority,
+          dueDate: input.dueDate ?? null,
+          assigneeId: input.assigneeId ?? null,
+          status,
+          createdBy: user.id,
+          requestedBy: planner ? null : user.id,
         },
         { transaction },
       );
       await this.models.WorkOrderStep.bulkCreate(
         template.steps.map((s, i) => ({
-          workOrderId: o.id, position: i + 1, key: s.key, title: s.title, detail: s.detail ?? null, input: s.input,
-          unit: s.unit ?? null, optional: !!s.optional, gated: s.gated, caution: s.caution ?? null,
+          workOrderId: o.id,
+          position: i + 1,
+          key: s.key,
+          title: s.title,
+          detail: s.detail ?? null,
+          input: s.input,
+          unit: s.unit ?? null,
+          optional: !!s.optional,
+          gated: s.gated,
+          caution: s.caution ?? null,
         })),
         { transaction },
       );
       if (input.alarmId !== undefined) await this.models.WorkOrderAlarm.create({ workOrderId: o.id, alarmId: input.alarmId }, { transaction });
-      await this.event(o.id, user.id, planner ? 'created' : 'requested', { toStatus: status, details: { kind: input.kind, alarmId: input.alarmId ?? null } }, transaction);
+      await this.event(
+        o.id,
+        user.id,
+        planner ? 'created' : 'requested',
+        { toStatus: status, details: { kind: input.kind, alarmId: input.alarmId ?? null } },
+        transaction,
+      );
       return o;
     });
     pushWorkOrder(this.ctx, order, 'created');
@@ -146,7 +197,8 @@ export class WorkOrderService {
     await this.checkAssignee(input.assigneeId);
     const changes: Record<string, { from: unknown; to: unknown }> = {};
     for (const [k, v] of Object.entries(input) as [keyof PlanInput, unknown][]) {
-      if (v !== undefined && (order as unknown as Record<string, unknown>)[k] !== v) changes[k] = { from: (order as unknown as Record<string, unknown>)[k], to: v };
+      if (v !== undefined && (order as unknown as Record<string, unknown>)[k] !== v)
+        changes[k] = { from: (order as unknown as Record<string, unknown>)[k], to: v };
     }
     if (!Object.keys(changes).length) return order;
     await this.ctx.sequelize.transaction(async (transaction) => {
@@ -162,7 +214,8 @@ export class WorkOrderService {
     const order = await this.getOrder(id);
     const t = findTransition(order.status, to);
     if (!t) throw conflict(`a work order that is ${STATUS_TEXT[order.status]} cannot become ${STATUS_TEXT[to]}`, 'to');
-    if (!t.roles.includes(user.role)) throw new HttpError(403, `only ${t.roles.join(' or ')} may move a work order from ${STATUS_TEXT[t.from]} to ${STATUS_TEXT[t.to]}`);
+    if (!t.roles.includes(user.role))
+      throw new HttpError(403, `only ${t.roles.join(' or ')} may move a work order from ${STATUS_TEXT[t.from]} to ${STATUS_TEXT[t.to]}`);
     if (t.needsNote && !note?.trim()) throw badRequest('say why in a note', 'note');
     const now = new Date();
     const patch: Partial<Record<string, unknown>> = { status: to };
@@ -189,7 +242,14 @@ export class WorkOrderService {
       await order.update(patch, { transaction });
       await this.event(order.id, user.id, t.event, { fromStatus: t.from, toStatus: t.to, note: note?.trim() || null }, transaction);
       if (t.event === 'signed-off' || to === 'cancelled') {
-        await this.audit(user.id, t.event === 'signed-off' ? 'work-order-signed-off' : 'work-order-cancelled', 'work_order', order.id, { from: t.from, note: note ?? null }, transaction);
+        await this.audit(
+          user.id,
+          t.event === 'signed-off' ? 'work-order-signed-off' : 'work-order-cancelled',
+          'work_order',
+          order.id,
+          { from: t.from, note: note ?? null },
+          transaction,
+        );
       }
       if (t.event === 'completed') await this.afterCompletion(order, user, transaction);
     });
@@ -207,26 +267,48 @@ export class WorkOrderService {
     const engine = await this.models.Engine.findByPk(order.engineId, { transaction });
     const now = new Date();
     if (template.serviceTask) {
-      await this.models.ServiceEvent.create({ engineId: order.engineId, taskKey: template.serviceTask, doneAt: now, runHours: engine?.runHours ?? null, workOrderId: order.id }, { transaction });
+      await this.models.ServiceEvent.create(
+        { engineId: order.engineId, taskKey: template.serviceTask, doneAt: now, runHours: engine?.runHours ?? null, workOrderId: order.id },
+        { transaction },
+      );
     }
     if (!template.resetsConductivityBaseline) return;
     const refill = await this.models.WorkOrderStep.findOne({ where: { workOrderId: order.id, key: 'refill' }, transaction });
-    const from = refill?.doneAt ? new Date(refill.doneAt).getTime() : (order.startedAt ? new Date(order.startedAt).getTime() : now.getTime());
+    const from = refill?.doneAt ? new Date(refill.doneAt).getTime() : order.startedAt ? new Date(order.startedAt).getTime() : now.getTime();
     const series = await this.history.series(order.engineId);
     const after = series.coolant_conductivity.filter((r) => r.ts >= from && (r.quality ?? 0) === 0).map((r) => r.value);
     if (!after.length) {
-      await this.event(order.id, user.id, 'baseline-pending', { note: 'No good conductivity reading since the refill: the conductivity baseline was not reset. Run the engine and complete a coolant test.' }, transaction);
+      await this.event(
+        order.id,
+        user.id,
+        'baseline-pending',
+        { note: 'No good conductivity reading since the refill: the conductivity baseline was not reset. Run the engine and complete a coolant test.' },
+        transaction,
+      );
       return;
     }
     const recent = after.slice(-5).sort((a, b) => a - b);
     const median = recent.length % 2 ? recent[(recent.length - 1) / 2] : (recent[recent.length / 2 - 1] + recent[recent.length / 2]) / 2;
-    await this.models.EngineBaseline.create({ engineId: order.engineId, channel: 'coolant_conductivity', baselineFrom: new Date(from), value: median }, { transaction });
-    await this.event(order.id, user.id, 'baseline-reset', { details: { channel: 'coolant_conductivity', baselineFrom: new Date(from).toISOString(), value: median, unit: 'uS/cm', samples: recent.length } }, transaction);
+    await this.models.EngineBaseline.create(
+      { engineId: order.engineId, channel: 'coolant_conductivity', baselineFrom: new Date(from), value: median },
+      { transaction },
+    );
+    await this.event(
+      order.id,
+      user.id,
+      'baseline-reset',
+      { details: { channel: 'coolant_conductivity', baselineFrom: new Date(from).toISOString(), value: median, unit: 'uS/cm', samples: recent.length } },
+      transaction,
+    );
   }
 
   /** Technicians who may be assigned, by name; `ids` limits them to the asker's sites (null: all). */
   async assignees(ids: number[] | null) {
-    const users = await this.models.User.findAll({ where: { role: 'technician', disabled: false, ...(ids ? { id: ids } : {}) }, attributes: ['id', 'name', 'email'], order: [['name', 'ASC']] });
+    const users = await this.models.User.findAll({
+      where: { role: 'technician', disabled: false, ...(ids ? { id: ids } : {}) },
+      attributes: ['id', 'name', 'email'],
+      order: [['name', 'ASC']],
+    });
     return users.map((u) => ({ id: u.id, name: u.name, email: u.email }));
   }
 
@@ -249,7 +331,14 @@ export class WorkOrderService {
       const cur = w.engineId as number | number[] | undefined;
       w.engineId = cur === undefined ? q.engineIds : (Array.isArray(cur) ? cur : [cur]).filter((id) => allowed.has(id));
     }
-    const orders = await this.models.WorkOrder.findAll({ where, order: [['dueDate', 'ASC'], ['id', 'ASC']], limit: 2000 });
+    const orders = await this.models.WorkOrder.findAll({
+      where,
+      order: [
+        ['dueDate', 'ASC'],
+        ['id', 'ASC'],
+      ],
+      limit: 2000,
+    });
     return this.summaries(orders);
   }
 
@@ -281,7 +370,13 @@ export class WorkOrderService {
       this.models.WorkOrderStep.findAll({ where: { workOrderId: id }, order: [['position', 'ASC']] }),
       this.models.WorkOrderPart.findAll({ where: { workOrderId: id }, order: [['id', 'ASC']] }),
       this.models.Attachment.findAll({ where: { workOrderId: id }, order: [['id', 'ASC']] }),
-      this.models.WorkOrderEvent.findAll({ where: { workOrderId: id }, order: [['at', 'ASC'], ['id', 'ASC']] }),
+      this.models.WorkOrderEvent.findAll({
+        where: { workOrderId: id },
+        order: [
+          ['at', 'ASC'],
+          ['id', 'ASC'],
+        ],
+      }),
       this.models.Amendment.findAll({ where: { workOrderId: id }, order: [['id', 'ASC']] }),
     ]);
     const userIds = new Set<number>();
@@ -300,23 +395,76 @@ export class WorkOrderService {
       coolantTest,
       cautions: template?.cautions ?? [],
       steps: steps.map((s) => ({
-        id: s.id, position: s.position, key: s.key, title: s.title, detail: s.detail, input: s.input, unit: s.unit,
-        optional: s.optional, gated: s.gated, caution: s.caution,
+        id: s.id,
+        position: s.position,
+        key: s.key,
+        title: s.title,
+        detail: s.detail,
+        input: s.input,
+        unit: s.unit,
+        optional: s.optional,
+        gated: s.gated,
+        caution: s.caution,
         after: template?.steps.find((t) => t.key === s.key)?.after ?? [],
-        resultValue: s.resultValue, resultUnit: s.resultUnit, resultText: s.resultText, lockoutConfirmed: s.lockoutConfirmed,
-        gateSnapshot: s.gateSnapshot ?? null, manualCheck: s.manualCheck ?? null,
-        doneAt: s.doneAt ? new Date(s.doneAt).toISOString() : null, doneBy: s.doneBy, doneByName: name(s.doneBy ?? null),
+        resultValue: s.resultValue,
+        resultUnit: s.resultUnit,
+        resultText: s.resultText,
+        lockoutConfirmed: s.lockoutConfirmed,
+        gateSnapshot: s.gateSnapshot ?? null,
+        manualCheck: s.manualCheck ?? null,
+        doneAt: s.doneAt ? new Date(s.doneAt).toISOString() : null,
+        doneBy: s.doneBy,
+        doneByName: name(s.doneBy ?? null),
       })),
-      parts: parts.map((p) => ({ id: p.id, kind: p.kind, description: p.description, quantity: p.quantity, unit: p.unit, addedBy: p.addedBy, addedByName: name(p.addedBy), createdAt: new Date(p.createdAt).toISOString() })),
-      attachments: attachments.map((a) => ({ id: a.id, stepId: a.stepId, originalName: a.originalName, contentType: a.contentType, size: a.size, uploadedBy: a.uploadedBy, uploadedByName: name(a.uploadedBy), createdAt: new Date(a.createdAt).toISOString(), url: `/api/attachments/${a.id}` })),
-      history: events.map((e) => ({ id: e.id, at: new Date(e.at).toISOString(), userId: e.userId, userName: name(e.userId), event: e.event, fromStatus: e.fromStatus, toStatus: e.toStatus, note: e.note, details: e.details ?? null })),
-      amendments: amendments.map((a) => ({ id: a.id, text: a.text, authorId: a.authorId, authorName: name(a.authorId), createdAt: new Date(a.createdAt).toISOString() })),
+      parts: parts.map((p) => ({
+        id: p.id,
+        kind: p.kind,
+        description: p.description,
+        quantity: p.quantity,
+        unit: p.unit,
+        addedBy: p.addedBy,
+        addedByName: name(p.addedBy),
+        createdAt: new Date(p.createdAt).toISOString(),
+      })),
+      attachments: attachments.map((a) => ({
+        id: a.id,
+        stepId: a.stepId,
+        originalName: a.originalName,
+        contentType: a.contentType,
+        size: a.size,
+        uploadedBy: a.uploadedBy,
+        uploadedByName: name(a.uploadedBy),
+        createdAt: new Date(a.createdAt).toISOString(),
+        url: `/api/attachments/${a.id}`,
+      })),
+      history: events.map((e) => ({
+        id: e.id,
+        at: new Date(e.at).toISOString(),
+        userId: e.userId,
+        userName: name(e.userId),
+        event: e.event,
+        fromStatus: e.fromStatus,
+        toStatus: e.toStatus,
+        note: e.note,
+        details: e.details ?? null,
+      })),
+      amendments: amendments.map((a) => ({
+        id: a.id,
+        text: a.text,
+        authorId: a.authorId,
+        authorName: name(a.authorId),
+        createdAt: new Date(a.createdAt).toISOString(),
+      })),
     };
   }
 
   assertEditable(order: WorkOrder): void {
     if (!EDITABLE.includes(order.status)) {
-      throw conflict(FINISHED.includes(order.status) ? `a ${STATUS_TEXT[order.status]} work order is never edited; append an amendment` : `a work order that is ${STATUS_TEXT[order.status]} is not changed`);
+      throw conflict(
+        FINISHED.includes(order.status)
+          ? `a ${STATUS_TEXT[order.status]} work order is never edited; append an amendment`
+          : `a work order that is ${STATUS_TEXT[order.status]} is not changed`,
+      );
     }
   }
 }

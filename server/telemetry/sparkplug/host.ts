@@ -50,7 +50,12 @@ export interface SparkplugHostDeps {
   now?(): number;
 }
 
-interface AliasEntry { name: string; mapped: MappedMetric | null; datatype: number | null; unit: string | null }
+interface AliasEntry {
+  name: string;
+  mapped: MappedMetric | null;
+  datatype: number | null;
+  unit: string | null;
+}
 
 interface DeviceSession {
   record: NodeRecord | null;
@@ -128,7 +133,8 @@ export class SparkplugHost {
     if (t.groupId !== id.groupId || t.edgeNodeId !== id.edgeNodeId) return refuse(`not under spBv1.0/${id.groupId}/.../${id.edgeNodeId}`);
     if (t.type === 'NCMD' || t.type === 'DCMD') return refuse('commands come from the host, not from a gateway');
     // a record for one device under an edge node speaks for that device only
-    if (t.deviceId !== null && id.deviceId !== null && t.deviceId !== id.deviceId) return refuse(`device "${t.deviceId}" is not this record's device "${id.deviceId}"`);
+    if (t.deviceId !== null && id.deviceId !== null && t.deviceId !== id.deviceId)
+      return refuse(`device "${t.deviceId}" is not this record's device "${id.deviceId}"`);
 
     const decoded = decodeSparkplugPayload(payload);
     if (!decoded.ok) {
@@ -151,10 +157,16 @@ export class SparkplugHost {
    */
   private serial(key: string, job: () => Promise<void> | void): void {
     const queue = this.waiting.get(key);
-    if (queue) { queue.push(job); return; }
+    if (queue) {
+      queue.push(job);
+      return;
+    }
     const run = (j: () => Promise<void> | void): void => {
       const pending = j();
-      if (pending) { this.waiting.set(key, this.waiting.get(key) ?? []); pending.then(next, next); } else next();
+      if (pending) {
+        this.waiting.set(key, this.waiting.get(key) ?? []);
+        pending.then(next, next);
+      } else next();
     };
     const next = (): void => {
       const q = this.waiting.get(key);
@@ -172,9 +184,12 @@ export class SparkplugHost {
   private handle(client: SparkplugClient, t: SparkplugTopic, p: SparkplugPayload, cb: Callback): Promise<void> | void {
     const key = this.nodeKey(t);
     switch (t.type) {
-      case 'NBIRTH': return this.nodeBirth(client, t, key, p, cb);
-      case 'NDEATH': return this.nodeDeath(client, t, key, p, cb);
-      case 'DBIRTH': return this.deviceBirth(client, t, key, p, cb);
+      case 'NBIRTH':
+        return this.nodeBirth(client, t, key, p, cb);
+      case 'NDEATH':
+        return this.nodeDeath(client, t, key, p, cb);
+      case 'DBIRTH':
+        return this.deviceBirth(client, t, key, p, cb);
       case 'DDEATH': {
         const s = this.sessions.get(key);
         if (s) this.checkSeq(client, s, t, p);
@@ -187,32 +202,37 @@ export class SparkplugHost {
         return cb(null);
       }
       case 'NDATA':
-      case 'DDATA': return this.data(client, t, key, p, cb);
-      default: return cb(null);
+      case 'DDATA':
+        return this.data(client, t, key, p, cb);
+      default:
+        return cb(null);
     }
   }
 
   private nodeBirth(client: SparkplugClient, t: SparkplugTopic, key: string, p: SparkplugPayload, cb: Callback): Promise<void> {
     // births are rare: read the records now, so new devices and mapping edits take effect here
-    return this.deps.nodeRecords(t.groupId, t.edgeNodeId).then((records) => {
-      const nodeRecord = records.find((r) => r.sparkplugDeviceId === null) ?? null;
-      const session: NodeSession = {
-        seq: p.seq ?? 0,
-        bdSeq: p.metrics.find((m) => m.name === 'bdSeq')?.raw.value?.toString() ?? null,
-        node: emptyDevice(nodeRecord),
-        devices: new Map(),
-      };
-      // a new node session ends the devices' sessions: their engines are lost until their DBIRTH
-      const old = this.sessions.get(key);
-      if (old) for (const d of old.devices.values()) if (d.record) this.deps.markLost(d.record.engineId, this.now());
-      this.sessions.set(key, session);
-      this.stats.births++;
-      this.learn(session.node, p, t);
-      this.store(client, session.node, p, t, cb);
-    }, (err) => {
-      this.deps.log.warn('sparkplug: reading the node records failed', err);
-      cb(null);
-    });
+    return this.deps.nodeRecords(t.groupId, t.edgeNodeId).then(
+      (records) => {
+        const nodeRecord = records.find((r) => r.sparkplugDeviceId === null) ?? null;
+        const session: NodeSession = {
+          seq: p.seq ?? 0,
+          bdSeq: p.metrics.find((m) => m.name === 'bdSeq')?.raw.value?.toString() ?? null,
+          node: emptyDevice(nodeRecord),
+          devices: new Map(),
+        };
+        // a new node session ends the devices' sessions: their engines are lost until their DBIRTH
+        const old = this.sessions.get(key);
+        if (old) for (const d of old.devices.values()) if (d.record) this.deps.markLost(d.record.engineId, this.now());
+        this.sessions.set(key, session);
+        this.stats.births++;
+        this.learn(session.node, p, t);
+        this.store(client, session.node, p, t, cb);
+      },
+      (err) => {
+        this.deps.log.warn('sparkplug: reading the node records failed', err);
+        cb(null);
+      },
+    );
   }
 
   private deviceBirth(client: SparkplugClient, t: SparkplugTopic, key: string, p: SparkplugPayload, cb: Callback): Promise<void> | void {
@@ -223,22 +243,25 @@ export class SparkplugHost {
       return cb(null);
     }
     this.checkSeq(client, s, t, p);
-    return this.deps.nodeRecords(t.groupId, t.edgeNodeId).then((records) => {
-      const record = records.find((r) => r.sparkplugDeviceId === t.deviceId) ?? null;
-      if (!record) {
-        // an edge node may speak for the devices registered under it, no others
-        this.deps.reject(client.deviceId, 'wrong_topic', `DBIRTH for "${t.deviceId}": no device record under ${t.groupId}/${t.edgeNodeId}`);
-        return cb(null);
-      }
-      const dev = emptyDevice(record);
-      s.devices.set(t.deviceId!, dev);
-      this.stats.births++;
-      this.learn(dev, p, t);
-      this.store(client, dev, p, t, cb);
-    }, (err) => {
-      this.deps.log.warn('sparkplug: reading the node records failed', err);
-      cb(null);
-    });
+    return this.deps.nodeRecords(t.groupId, t.edgeNodeId).then(
+      (records) => {
+        const record = records.find((r) => r.sparkplugDeviceId === t.deviceId) ?? null;
+        if (!record) {
+          // an edge node may speak for the devices registered under it, no others
+          this.deps.reject(client.deviceId, 'wrong_topic', `DBIRTH for "${t.deviceId}": no device record under ${t.groupId}/${t.edgeNodeId}`);
+          return cb(null);
+        }
+        const dev = emptyDevice(record);
+        s.devices.set(t.deviceId!, dev);
+        this.stats.births++;
+        this.learn(dev, p, t);
+        this.store(client, dev, p, t, cb);
+      },
+      (err) => {
+        this.deps.log.warn('sparkplug: reading the node records failed', err);
+        cb(null);
+      },
+    );
   }
 
   private nodeDeath(client: SparkplugClient, t: SparkplugTopic, key: string, p: SparkplugPayload, cb: Callback): void {
@@ -263,7 +286,11 @@ export class SparkplugHost {
     const dev = t.deviceId === null ? s?.node : s?.devices.get(t.deviceId);
     if (!s || !dev) {
       // typically our own restart: the gateway's births happened before we were listening
-      this.deps.reject(client.deviceId, 'sparkplug_unknown_alias', `${t.type} before its ${t.deviceId === null ? 'NBIRTH' : 'DBIRTH'}: ${p.metrics.length} metrics not understood`);
+      this.deps.reject(
+        client.deviceId,
+        'sparkplug_unknown_alias',
+        `${t.type} before its ${t.deviceId === null ? 'NBIRTH' : 'DBIRTH'}: ${p.metrics.length} metrics not understood`,
+      );
       this.requestRebirth(t);
       return cb(null);
     }
@@ -295,7 +322,14 @@ export class SparkplugHost {
     }
     // once per birth (rare), so the admin sees which names want a mapping entry
     if (unmapped.length && dev.record) {
-      this.deps.reject(dev.record.recordId, 'unknown_channel', `${t.type}: no channel for ${unmapped.slice(0, 5).map((n) => `"${n.slice(0, 60)}"`).join(', ')}${unmapped.length > 5 ? ` and ${unmapped.length - 5} more` : ''}`);
+      this.deps.reject(
+        dev.record.recordId,
+        'unknown_channel',
+        `${t.type}: no channel for ${unmapped
+          .slice(0, 5)
+          .map((n) => `"${n.slice(0, 60)}"`)
+          .join(', ')}${unmapped.length > 5 ? ` and ${unmapped.length - 5} more` : ''}`,
+      );
     }
   }
 
@@ -309,14 +343,22 @@ export class SparkplugHost {
       const entry = this.resolve(dev, m);
       if (!entry) {
         unknownAlias = true;
-        this.deps.reject(client.deviceId, 'sparkplug_unknown_alias', `${t.type}: alias ${m.alias ?? '(none)'}${m.name ? ` name "${m.name.slice(0, 60)}"` : ''} not in the birth certificate`);
+        this.deps.reject(
+          client.deviceId,
+          'sparkplug_unknown_alias',
+          `${t.type}: alias ${m.alias ?? '(none)'}${m.name ? ` name "${m.name.slice(0, 60)}"` : ''} not in the birth certificate`,
+        );
         continue;
       }
       if (!entry.mapped || !record || m.isNull) continue;
       const v = metricValue(m.raw, m.datatype ?? entry.datatype);
       if (v.kind === 'null') continue;
       if (v.kind !== 'number') {
-        this.deps.reject(record.recordId, 'sparkplug_type', `${t.type}: "${entry.name.slice(0, 60)}" is ${v.kind === 'boolean' ? 'a boolean' : v.what}, ${entry.mapped.channel} needs a number`);
+        this.deps.reject(
+          record.recordId,
+          'sparkplug_type',
+          `${t.type}: "${entry.name.slice(0, 60)}" is ${v.kind === 'boolean' ? 'a boolean' : v.what}, ${entry.mapped.channel} needs a number`,
+        );
         continue;
       }
       const unit = m.unit ?? entry.unit ?? entry.mapped.unit;
@@ -334,7 +376,7 @@ export class SparkplugHost {
       const byAlias = dev.aliases.get(m.alias);
       if (byAlias) return byAlias;
     }
-    return m.name !== null ? dev.names.get(m.name) ?? null : null;
+    return m.name !== null ? (dev.names.get(m.name) ?? null) : null;
   }
 
   /** Asks an edge node to send its births again (NCMD Node Control/Rebirth), at most once per REBIRTH_MIN_INTERVAL_MS per node. */

@@ -7,8 +7,11 @@ FROM devices WHERE sparkplug_group_id = $1 AND sparkplug_edge_node_id = $2 AND r
 
 /** The live device records of one edge node, with their metric maps (read at each birth). */
 export async function readNodeRecords(sequelize: Sequelize, groupId: string, edgeNodeId: string): Promise<NodeRecord[]> {
-  const rows = await sequelize.query<{ id: number; engineId: number; deviceId: string | null; metricMap: string | null }>(
-    NODE_RECORDS_SQL, { bind: [groupId, edgeNodeId], type: QueryTypes.SELECT, logging: false });
+  const rows = await sequelize.query<{ id: number; engineId: number; deviceId: string | null; metricMap: string | null }>(NODE_RECORDS_SQL, {
+    bind: [groupId, edgeNodeId],
+    type: QueryTypes.SELECT,
+    logging: false,
+  });
   return rows.map((r) => ({
     recordId: Number(r.id),
     engineId: Number(r.engineId),

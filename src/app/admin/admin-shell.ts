@@ -27,8 +27,15 @@ const SECTIONS = [
     </div>
   `,
   styles: `
-    .page { padding: 12px 20px 32px; max-width: 1400px; }
-    h1 { margin: 4px 0 8px; font-size: 24px; font-weight: 500; }
+    .page {
+      padding: 12px 20px 32px;
+      max-width: 1400px;
+    }
+    h1 {
+      margin: 4px 0 8px;
+      font-size: 24px;
+      font-weight: 500;
+    }
   `,
 })
 export class AdminShell {

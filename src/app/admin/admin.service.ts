@@ -52,7 +52,11 @@ export class AdminService {
   devices(): Observable<Device[]> {
     return this.http.get<Device[]>('/api/devices');
   }
-  createDevice(body: { engineId: number; username?: string; sparkplug?: { groupId: string; edgeNodeId: string; deviceId?: string } }): Observable<DeviceWithSecret> {
+  createDevice(body: {
+    engineId: number;
+    username?: string;
+    sparkplug?: { groupId: string; edgeNodeId: string; deviceId?: string };
+  }): Observable<DeviceWithSecret> {
     return this.http.post<DeviceWithSecret>('/api/devices', body);
   }
   /** A Sparkplug gateway's metric names to our channels; applies from its next birth certificate. */

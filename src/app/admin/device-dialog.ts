@@ -22,7 +22,9 @@ import { SPARKPLUG_ID_PATTERN } from '../../../shared/sparkplug/topic';
         <mat-form-field>
           <mat-label>Engine</mat-label>
           <mat-select formControlName="engineId" required>
-            @for (e of engines; track e.id) { <mat-option [value]="e.id">{{ e.name }}</mat-option> }
+            @for (e of engines; track e.id) {
+              <mat-option [value]="e.id">{{ e.name }}</mat-option>
+            }
           </mat-select>
           <mat-error>{{ err('engineId') }}</mat-error>
         </mat-form-field>
@@ -33,7 +35,10 @@ import { SPARKPLUG_ID_PATTERN } from '../../../shared/sparkplug/topic';
           <mat-error>{{ err('username') }}</mat-error>
         </mat-form-field>
         <h3 class="sub">Sparkplug B gateway (optional)</h3>
-        <p class="hint">For a gateway that publishes Sparkplug B: the group and edge node it uses, and the device id when this engine is a device under that edge node. Leave empty for our JSON topics.</p>
+        <p class="hint">
+          For a gateway that publishes Sparkplug B: the group and edge node it uses, and the device id when this engine is a device under that edge node. Leave
+          empty for our JSON topics.
+        </p>
         <mat-form-field>
           <mat-label>Group id</mat-label>
           <input matInput formControlName="groupId" autocomplete="off" />
@@ -50,7 +55,9 @@ import { SPARKPLUG_ID_PATTERN } from '../../../shared/sparkplug/topic';
           <mat-hint>Empty: the edge node itself reports this engine.</mat-hint>
           <mat-error>{{ spErr('deviceId') }}</mat-error>
         </mat-form-field>
-        @if (formError(); as e) { <p class="form-error" role="alert">{{ e }}</p> }
+        @if (formError(); as e) {
+          <p class="form-error" role="alert">{{ e }}</p>
+        }
       </mat-dialog-content>
       <mat-dialog-actions align="end">
         <button mat-button type="button" mat-dialog-close>Cancel</button>
@@ -59,10 +66,22 @@ import { SPARKPLUG_ID_PATTERN } from '../../../shared/sparkplug/topic';
     </form>
   `,
   styles: `
-    .fields { display: flex; flex-direction: column; min-width: min(420px, 80vw); }
-    .form-error { color: var(--jw-alarm-high); }
-    .sub { font: var(--mat-sys-title-small); margin: 8px 0 0; }
-    .hint { color: var(--jw-muted-text); margin: 0 0 8px; }
+    .fields {
+      display: flex;
+      flex-direction: column;
+      min-width: min(420px, 80vw);
+    }
+    .form-error {
+      color: var(--jw-alarm-high);
+    }
+    .sub {
+      font: var(--mat-sys-title-small);
+      margin: 8px 0 0;
+    }
+    .hint {
+      color: var(--jw-muted-text);
+      margin: 0 0 8px;
+    }
   `,
 })
 export class DeviceDialog {
@@ -104,15 +123,18 @@ export class DeviceDialog {
     if (this.form.invalid) return;
     const username = c.username.value?.trim();
     this.saving.set(true);
-    this.api.createDevice({
-      engineId: Number(c.engineId.value), ...(username ? { username } : {}),
-      ...(sparkplug ? { sparkplug: { groupId, edgeNodeId, ...(deviceId ? { deviceId } : {}) } } : {}),
-    }).subscribe({
-      next: (d) => this.ref.close(d),
-      error: (err) => {
-        this.saving.set(false);
-        this.formError.set(applyServerError(this.form, err));
-      },
-    });
+    this.api
+      .createDevice({
+        engineId: Number(c.engineId.value),
+        ...(username ? { username } : {}),
+        ...(sparkplug ? { sparkplug: { groupId, edgeNodeId, ...(deviceId ? { deviceId } : {}) } } : {}),
+      })
+      .subscribe({
+        next: (d) => this.ref.close(d),
+        error: (err) => {
+          this.saving.set(false);
+          this.formError.set(applyServerError(this.form, err));
+        },
+      });
   }
 }

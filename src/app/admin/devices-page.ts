@@ -61,7 +61,17 @@ const LOGIN_FAILED = 'login_failed';
 @Component({
   selector: 'jw-devices-page',
   changeDetection: ChangeDetectionStrategy.OnPush,
-  imports: [MatTableModule, MatSortModule, MatPaginatorModule, MatFormFieldModule, MatInputModule, MatButtonModule, MatIconModule, MatTooltipModule, JwTimePipe],
+  imports: [
+    MatTableModule,
+    MatSortModule,
+    MatPaginatorModule,
+    MatFormFieldModule,
+    MatInputModule,
+    MatButtonModule,
+    MatIconModule,
+    MatTooltipModule,
+    JwTimePipe,
+  ],
   template: `
     <div class="bar">
       <mat-form-field class="filter" subscriptSizing="dynamic">
@@ -73,12 +83,18 @@ const LOGIN_FAILED = 'login_failed';
       <button mat-stroked-button type="button" (click)="load()"><mat-icon fontIcon="refresh" />Refresh counts</button>
       <button mat-flat-button type="button" (click)="add()" [disabled]="!engines().length"><mat-icon fontIcon="add" />Add device</button>
     </div>
-    @if (error(); as e) { <p class="load-error" role="alert">{{ e }} <button mat-stroked-button type="button" (click)="load()"><mat-icon fontIcon="refresh" />Retry</button></p> }
+    @if (error(); as e) {
+      <p class="load-error" role="alert">
+        {{ e }} <button mat-stroked-button type="button" (click)="load()"><mat-icon fontIcon="refresh" />Retry</button>
+      </p>
+    }
     <div class="table-wrap">
       <table mat-table [dataSource]="source" matSort matSortActive="username" matSortDirection="asc" aria-label="Devices">
         <ng-container matColumnDef="username">
           <th mat-header-cell *matHeaderCellDef mat-sort-header>User name</th>
-          <td mat-cell *matCellDef="let d"><code>{{ d.username }}</code></td>
+          <td mat-cell *matCellDef="let d">
+            <code>{{ d.username }}</code>
+          </td>
         </ng-container>
         <ng-container matColumnDef="engineName">
           <th mat-header-cell *matHeaderCellDef mat-sort-header>Engine</th>
@@ -90,7 +106,9 @@ const LOGIN_FAILED = 'login_failed';
             @if (d.sparkplug; as sp) {
               <code>{{ sp.groupId }} / {{ sp.edgeNodeId }}{{ sp.deviceId ? ' / ' + sp.deviceId : '' }}</code>
               <div class="muted">{{ d.mappedNames ? d.mappedNames + ' mapped name' + (d.mappedNames === 1 ? '' : 's') : 'channel keys as names' }}</div>
-            } @else { <span class="muted">JSON topics</span> }
+            } @else {
+              <span class="muted">JSON topics</span>
+            }
           </td>
         </ng-container>
         <ng-container matColumnDef="status">
@@ -106,7 +124,11 @@ const LOGIN_FAILED = 'login_failed';
         <ng-container matColumnDef="lastSeen">
           <th mat-header-cell *matHeaderCellDef mat-sort-header>Last seen</th>
           <td mat-cell *matCellDef="let d" class="jw-num">
-            @if (d.lastSeen) { {{ d.lastSeen | jwTime: null : 'datetime-s' }} } @else { <span class="muted">never</span> }
+            @if (d.lastSeen) {
+              {{ d.lastSeen | jwTime: null : 'datetime-s' }}
+            } @else {
+              <span class="muted">never</span>
+            }
           </td>
         </ng-container>
         <ng-container matColumnDef="rejected">
@@ -117,26 +139,36 @@ const LOGIN_FAILED = 'login_failed';
           <th mat-header-cell *matHeaderCellDef mat-sort-header arrowPosition="before" class="num">Failed logins</th>
           <td mat-cell *matCellDef="let d" class="num jw-num" [class.attention]="d.failedLogins > 0">
             {{ d.failedLogins }}
-            @if (d.lastFailedLogin) { <span class="sub">latest {{ d.lastFailedLogin | jwTime: null : 'datetime-s' }}</span> }
+            @if (d.lastFailedLogin) {
+              <span class="sub">latest {{ d.lastFailedLogin | jwTime: null : 'datetime-s' }}</span>
+            }
           </td>
         </ng-container>
         <ng-container matColumnDef="reasons">
           <th mat-header-cell *matHeaderCellDef>Why refused</th>
           <td mat-cell *matCellDef="let d" [matTooltip]="d.lastRejection" [matTooltipDisabled]="!d.lastRejection">
-            @if (d.reasons) { {{ d.reasons }} } @else { <span class="muted">none</span> }
+            @if (d.reasons) {
+              {{ d.reasons }}
+            } @else {
+              <span class="muted">none</span>
+            }
           </td>
         </ng-container>
         <ng-container matColumnDef="actions">
           <th mat-header-cell *matHeaderCellDef><span class="jw-visually-hidden">Actions</span></th>
           <td mat-cell *matCellDef="let d" class="actions">
-            @if (d.sparkplug) { <button mat-button type="button" (click)="editNames(d)" [disabled]="d.status === 'revoked'">Metric names</button> }
+            @if (d.sparkplug) {
+              <button mat-button type="button" (click)="editNames(d)" [disabled]="d.status === 'revoked'">Metric names</button>
+            }
             <button mat-button type="button" (click)="rotate(d)" [disabled]="d.status === 'revoked'">New secret</button>
             <button mat-button type="button" (click)="revoke(d)" [disabled]="d.status === 'revoked'">Revoke</button>
           </td>
         </ng-container>
         <tr mat-header-row *matHeaderRowDef="columns"></tr>
         <tr mat-row *matRowDef="let row; columns: columns"></tr>
-        <tr class="mat-mdc-row" *matNoDataRow><td class="mat-mdc-cell empty" [attr.colspan]="columns.length">No devices match.</td></tr>
+        <tr class="mat-mdc-row" *matNoDataRow>
+          <td class="mat-mdc-cell empty" [attr.colspan]="columns.length">No devices match.</td>
+        </tr>
       </table>
     </div>
     <mat-paginator [pageSize]="25" [pageSizeOptions]="[10, 25, 100]" aria-label="Pages of devices" />
@@ -223,7 +255,12 @@ export class DevicesPage {
 
   private showSecret(d: DeviceWithSecret, title: string): void {
     const engine = this.engines().find((e) => e.id === d.engineId);
-    const data: SecretData = { title, what: `MQTT password for the gateway of ${engine?.name ?? 'engine ' + d.engineId}.`, username: d.username, secret: d.secret };
+    const data: SecretData = {
+      title,
+      what: `MQTT password for the gateway of ${engine?.name ?? 'engine ' + d.engineId}.`,
+      username: d.username,
+      secret: d.secret,
+    };
     this.dialog.open(SecretDialog, { data, disableClose: true });
   }
 

@@ -13,9 +13,23 @@ const SITES = [{ id: 3, name: 'North yard', timeZone: 'America/Chicago' }];
 
 function engine(): Engine {
   return {
-    id: 9, name: 'Standby set 2', siteId: 3, duty: 'standby', capacityL: 120, coolantFamily: 'conventional', glycolType: 'ethylene',
-    glycolPercent: 50, capPressureKpa: 103, oilDrainIntervalH: 250, runHours: 1234, safeOpenTempC: 50, heaterSetpointC: 40,
-    outOfService: false, latest: {}, lastSeenAt: null, runState: 'no-data',
+    id: 9,
+    name: 'Standby set 2',
+    siteId: 3,
+    duty: 'standby',
+    capacityL: 120,
+    coolantFamily: 'conventional',
+    glycolType: 'ethylene',
+    glycolPercent: 50,
+    capPressureKpa: 103,
+    oilDrainIntervalH: 250,
+    runHours: 1234,
+    safeOpenTempC: 50,
+    heaterSetpointC: 40,
+    outOfService: false,
+    latest: {},
+    lastSeenAt: null,
+    runState: 'no-data',
   };
 }
 
@@ -30,7 +44,12 @@ describe('EngineForm', () => {
     close = vi.fn();
     TestBed.configureTestingModule({
       imports: [EngineForm],
-      providers: [provideHttpClient(), provideHttpClientTesting(), { provide: MAT_DIALOG_DATA, useValue: data }, { provide: MatDialogRef, useValue: { close } }],
+      providers: [
+        provideHttpClient(),
+        provideHttpClientTesting(),
+        { provide: MAT_DIALOG_DATA, useValue: data },
+        { provide: MatDialogRef, useValue: { close } },
+      ],
     });
     TestBed.inject(PreferencesService).useSystem(system);
     http = TestBed.inject(HttpTestingController);

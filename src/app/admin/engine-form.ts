@@ -40,7 +40,9 @@ const lim = ENGINE_LIMITS_SI;
         <mat-form-field>
           <mat-label>Site</mat-label>
           <mat-select formControlName="siteId" required>
-            @for (s of data.sites; track s.id) { <mat-option [value]="s.id">{{ s.name }}</mat-option> }
+            @for (s of data.sites; track s.id) {
+              <mat-option [value]="s.id">{{ s.name }}</mat-option>
+            }
           </mat-select>
           <mat-error>{{ err('siteId') }}</mat-error>
         </mat-form-field>
@@ -114,7 +116,9 @@ const lim = ENGINE_LIMITS_SI;
           }
         </div>
         <mat-checkbox formControlName="outOfService">Out of service (alarms from it are held back)</mat-checkbox>
-        @if (formError(); as e) { <p class="form-error" role="alert">{{ e }}</p> }
+        @if (formError(); as e) {
+          <p class="form-error" role="alert">{{ e }}</p>
+        }
       </mat-dialog-content>
       <mat-dialog-actions align="end">
         <button mat-button type="button" mat-dialog-close>Cancel</button>
@@ -123,12 +127,27 @@ const lim = ENGINE_LIMITS_SI;
     </form>
   `,
   styles: `
-    .grid { display: grid; grid-template-columns: repeat(auto-fill, minmax(220px, 1fr)); gap: 0 16px; }
-    .wide { grid-column: 1 / -1; }
+    .grid {
+      display: grid;
+      grid-template-columns: repeat(auto-fill, minmax(220px, 1fr));
+      gap: 0 16px;
+    }
+    .wide {
+      grid-column: 1 / -1;
+    }
     // The suffix span is ours (so the emulated styles reach it): keep "US gal" on one line.
-    [matTextSuffix] { white-space: nowrap; }
-    .heater { display: flex; flex-direction: column; gap: 4px; }
-    .form-error { grid-column: 1 / -1; color: var(--jw-alarm-high); }
+    [matTextSuffix] {
+      white-space: nowrap;
+    }
+    .heater {
+      display: flex;
+      flex-direction: column;
+      gap: 4px;
+    }
+    .form-error {
+      grid-column: 1 / -1;
+      color: var(--jw-alarm-high);
+    }
   `,
 })
 export class EngineForm {

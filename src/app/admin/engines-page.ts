@@ -29,7 +29,18 @@ const FAMILY: Partial<Record<string, string>> = { conventional: 'Conventional', 
 @Component({
   selector: 'jw-engines-page',
   changeDetection: ChangeDetectionStrategy.OnPush,
-  imports: [MatTableModule, MatSortModule, MatPaginatorModule, MatFormFieldModule, MatInputModule, MatButtonModule, MatIconModule, RouterLink, UnitValuePipe, DecimalPipe],
+  imports: [
+    MatTableModule,
+    MatSortModule,
+    MatPaginatorModule,
+    MatFormFieldModule,
+    MatInputModule,
+    MatButtonModule,
+    MatIconModule,
+    RouterLink,
+    UnitValuePipe,
+    DecimalPipe,
+  ],
   template: `
     <div class="bar">
       <mat-form-field class="filter" subscriptSizing="dynamic">
@@ -40,12 +51,18 @@ const FAMILY: Partial<Record<string, string>> = { conventional: 'Conventional', 
       <span class="spacer"></span>
       <button mat-flat-button type="button" (click)="open(null)" [disabled]="!sites().length"><mat-icon fontIcon="add" />Add engine</button>
     </div>
-    @if (error(); as e) { <p class="load-error" role="alert">{{ e }} <button mat-stroked-button type="button" (click)="load()"><mat-icon fontIcon="refresh" />Retry</button></p> }
+    @if (error(); as e) {
+      <p class="load-error" role="alert">
+        {{ e }} <button mat-stroked-button type="button" (click)="load()"><mat-icon fontIcon="refresh" />Retry</button>
+      </p>
+    }
     <div class="table-wrap">
       <table mat-table [dataSource]="source" matSort matSortActive="name" matSortDirection="asc" aria-label="Engines">
         <ng-container matColumnDef="name">
           <th mat-header-cell *matHeaderCellDef mat-sort-header>Name</th>
-          <td mat-cell *matCellDef="let e"><a [routerLink]="['/engines', e.id]">{{ e.name }}</a></td>
+          <td mat-cell *matCellDef="let e">
+            <a [routerLink]="['/engines', e.id]">{{ e.name }}</a>
+          </td>
         </ng-container>
         <ng-container matColumnDef="siteName">
           <th mat-header-cell *matHeaderCellDef mat-sort-header>Site</th>
@@ -74,8 +91,11 @@ const FAMILY: Partial<Record<string, string>> = { conventional: 'Conventional', 
         <ng-container matColumnDef="outOfService">
           <th mat-header-cell *matHeaderCellDef mat-sort-header>Service</th>
           <td mat-cell *matCellDef="let e">
-            @if (e.outOfService) { <span class="status off"><mat-icon aria-hidden="true" fontIcon="build" />Out of service</span> }
-            @else { <span class="status">In service</span> }
+            @if (e.outOfService) {
+              <span class="status off"><mat-icon aria-hidden="true" fontIcon="build" />Out of service</span>
+            } @else {
+              <span class="status">In service</span>
+            }
           </td>
         </ng-container>
         <ng-container matColumnDef="actions">
@@ -87,7 +107,9 @@ const FAMILY: Partial<Record<string, string>> = { conventional: 'Conventional', 
         </ng-container>
         <tr mat-header-row *matHeaderRowDef="columns"></tr>
         <tr mat-row *matRowDef="let row; columns: columns"></tr>
-        <tr class="mat-mdc-row" *matNoDataRow><td class="mat-mdc-cell empty" [attr.colspan]="columns.length">No engines match.</td></tr>
+        <tr class="mat-mdc-row" *matNoDataRow>
+          <td class="mat-mdc-cell empty" [attr.colspan]="columns.length">No engines match.</td>
+        </tr>
       </table>
     </div>
     <mat-paginator [pageSize]="25" [pageSizeOptions]="[10, 25, 100]" aria-label="Pages of engines" />
@@ -108,7 +130,12 @@ export class EnginesPage {
   private readonly paginator = viewChild(MatPaginator);
 
   constructor() {
-    linkAdminTable(this.source, this.sort, this.paginator, (e) => `${e.name} ${e.siteName} ${e.duty} ${e.coolantFamily} ${e.glycolType} ${e.outOfService ? 'out of service' : ''}`);
+    linkAdminTable(
+      this.source,
+      this.sort,
+      this.paginator,
+      (e) => `${e.name} ${e.siteName} ${e.duty} ${e.coolantFamily} ${e.glycolType} ${e.outOfService ? 'out of service' : ''}`,
+    );
     this.load();
   }
 

@@ -12,8 +12,23 @@ import { Device, MetricMapEntry } from './admin-types';
 import { applyServerError } from './form-errors';
 
 /** Units a mapping entry may state, per channel (as the JSON contract accepts them; shared/telemetry-payload.ts). */
-const UNITS: Record<string, string[]> = { temperature: ['degC', 'degF', 'K'], pressure: ['kPa', 'psi', 'bar'], conductivity: ['uS/cm', 'mS/cm'], speed: ['rpm'] };
-const UNIT_TEXT: Record<string, string> = { degC: '°C', degF: '°F', K: 'K', kPa: 'kPa', psi: 'psi', bar: 'bar', 'uS/cm': 'µS/cm', 'mS/cm': 'mS/cm', rpm: 'rpm' };
+const UNITS: Record<string, string[]> = {
+  temperature: ['degC', 'degF', 'K'],
+  pressure: ['kPa', 'psi', 'bar'],
+  conductivity: ['uS/cm', 'mS/cm'],
+  speed: ['rpm'],
+};
+const UNIT_TEXT: Record<string, string> = {
+  degC: '°C',
+  degF: '°F',
+  K: 'K',
+  kPa: 'kPa',
+  psi: 'psi',
+  bar: 'bar',
+  'uS/cm': 'µS/cm',
+  'mS/cm': 'mS/cm',
+  rpm: 'rpm',
+};
 
 type Row = FormGroup<{ name: FormControl<string>; channel: FormControl<ChannelKey | ''>; unit: FormControl<string> }>;
 
@@ -31,9 +46,11 @@ type Row = FormGroup<{ name: FormControl<string>; channel: FormControl<ChannelKe
     <form [formGroup]="form" (ngSubmit)="save()" novalidate>
       <mat-dialog-content>
         <p class="hint">
-          Sparkplug {{ device.sparkplug?.groupId }} / {{ device.sparkplug?.edgeNodeId }}{{ device.sparkplug?.deviceId ? ' / ' + device.sparkplug?.deviceId : '' }}.
-          Names not listed here are read as our channel keys ({{ keys.join(', ') }}). The unit is used only when the gateway's birth certificate states none.
-          On saving, the edge node is asked for new birth certificates (NCMD Node Control/Rebirth), so a change applies at once.
+          Sparkplug {{ device.sparkplug?.groupId }} / {{ device.sparkplug?.edgeNodeId
+          }}{{ device.sparkplug?.deviceId ? ' / ' + device.sparkplug?.deviceId : '' }}. Names not listed here are read as our channel keys ({{
+            keys.join(', ')
+          }}). The unit is used only when the gateway's birth certificate states none. On saving, the edge node is asked for new birth certificates (NCMD Node
+          Control/Rebirth), so a change applies at once.
         </p>
         <div formArrayName="rows" class="rows">
           @for (row of rows.controls; track row; let i = $index) {
@@ -45,22 +62,30 @@ type Row = FormGroup<{ name: FormControl<string>; channel: FormControl<ChannelKe
               <mat-form-field subscriptSizing="dynamic" class="channel">
                 <mat-label>Channel</mat-label>
                 <mat-select formControlName="channel">
-                  @for (k of keys; track k) { <mat-option [value]="k">{{ channelText(k) }}</mat-option> }
+                  @for (k of keys; track k) {
+                    <mat-option [value]="k">{{ channelText(k) }}</mat-option>
+                  }
                 </mat-select>
               </mat-form-field>
               <mat-form-field subscriptSizing="dynamic" class="unit">
                 <mat-label>Unit if not sent</mat-label>
                 <mat-select formControlName="unit">
                   <mat-option value="">stored unit</mat-option>
-                  @for (u of unitsOf(row.controls.channel.value); track u) { <mat-option [value]="u">{{ unitText[u] }}</mat-option> }
+                  @for (u of unitsOf(row.controls.channel.value); track u) {
+                    <mat-option [value]="u">{{ unitText[u] }}</mat-option>
+                  }
                 </mat-select>
               </mat-form-field>
-              <button mat-icon-button type="button" (click)="rows.removeAt(i)" [attr.aria-label]="'Remove ' + (row.controls.name.value || 'row')"><mat-icon fontIcon="delete" /></button>
+              <button mat-icon-button type="button" (click)="rows.removeAt(i)" [attr.aria-label]="'Remove ' + (row.controls.name.value || 'row')">
+                <mat-icon fontIcon="delete" />
+              </button>
             </div>
           }
         </div>
         <button mat-stroked-button type="button" (click)="addRow()"><mat-icon fontIcon="add" />Add a name</button>
-        @if (formError(); as e) { <p class="form-error" role="alert">{{ e }}</p> }
+        @if (formError(); as e) {
+          <p class="form-error" role="alert">{{ e }}</p>
+        }
       </mat-dialog-content>
       <mat-dialog-actions align="end">
         <button mat-button type="button" mat-dialog-close>Cancel</button>
@@ -69,13 +94,33 @@ type Row = FormGroup<{ name: FormControl<string>; channel: FormControl<ChannelKe
     </form>
   `,
   styles: `
-    .hint { color: var(--jw-muted-text); max-width: 720px; }
-    .rows { display: grid; gap: 8px; margin-bottom: 12px; }
-    .row { display: flex; flex-wrap: wrap; gap: 8px; align-items: center; }
-    .name { flex: 1 1 220px; }
-    .channel { width: 280px; }
-    .unit { width: 150px; }
-    .form-error { color: var(--jw-alarm-high); }
+    .hint {
+      color: var(--jw-muted-text);
+      max-width: 720px;
+    }
+    .rows {
+      display: grid;
+      gap: 8px;
+      margin-bottom: 12px;
+    }
+    .row {
+      display: flex;
+      flex-wrap: wrap;
+      gap: 8px;
+      align-items: center;
+    }
+    .name {
+      flex: 1 1 220px;
+    }
+    .channel {
+      width: 280px;
+    }
+    .unit {
+      width: 150px;
+    }
+    .form-error {
+      color: var(--jw-alarm-high);
+    }
   `,
 })
 export class MetricMapDialog {
@@ -99,7 +144,13 @@ export class MetricMapDialog {
   }
 
   protected addRow(name = '', channel: ChannelKey | '' = '', unit = ''): void {
-    this.rows.push(this.fb.group({ name: [name, [Validators.required, Validators.maxLength(200)]], channel: [channel as ChannelKey | '', Validators.required], unit: [unit] }));
+    this.rows.push(
+      this.fb.group({
+        name: [name, [Validators.required, Validators.maxLength(200)]],
+        channel: [channel as ChannelKey | '', Validators.required],
+        unit: [unit],
+      }),
+    );
   }
 
   protected channelText(k: ChannelKey): string {

@@ -21,11 +21,20 @@ export interface SecretData {
   template: `
     <h2 mat-dialog-title>{{ data.title }}</h2>
     <mat-dialog-content>
-      <p class="once"><mat-icon aria-hidden="true" fontIcon="visibility" />Shown only now. Copy it into the gateway's settings before you close this window; it cannot be shown again.</p>
+      <p class="once">
+        <mat-icon aria-hidden="true" fontIcon="visibility" />Shown only now. Copy it into the gateway's settings before you close this window; it cannot be
+        shown again.
+      </p>
       <p>{{ data.what }}</p>
       <dl>
-        <dt>User name</dt><dd><code>{{ data.username }}</code></dd>
-        <dt>Secret</dt><dd><code class="secret" data-testid="secret">{{ data.secret }}</code></dd>
+        <dt>User name</dt>
+        <dd>
+          <code>{{ data.username }}</code>
+        </dd>
+        <dt>Secret</dt>
+        <dd>
+          <code class="secret" data-testid="secret">{{ data.secret }}</code>
+        </dd>
       </dl>
     </mat-dialog-content>
     <mat-dialog-actions align="end">
@@ -36,11 +45,30 @@ export interface SecretData {
     </mat-dialog-actions>
   `,
   styles: `
-    .once { display: flex; gap: 6px; align-items: flex-start; font-weight: 500; }
-    dl { display: grid; grid-template-columns: auto 1fr; gap: 6px 12px; }
-    dd { margin: 0; }
-    code { font-size: 14px; word-break: break-all; }
-    .secret { padding: 4px 6px; border: 1px solid var(--jw-band-normal); border-radius: 4px; user-select: all; }
+    .once {
+      display: flex;
+      gap: 6px;
+      align-items: flex-start;
+      font-weight: 500;
+    }
+    dl {
+      display: grid;
+      grid-template-columns: auto 1fr;
+      gap: 6px 12px;
+    }
+    dd {
+      margin: 0;
+    }
+    code {
+      font-size: 14px;
+      word-break: break-all;
+    }
+    .secret {
+      padding: 4px 6px;
+      border: 1px solid var(--jw-band-normal);
+      border-radius: 4px;
+      user-select: all;
+    }
   `,
 })
 export class SecretDialog {

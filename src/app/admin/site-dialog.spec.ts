@@ -20,14 +20,28 @@ describe('SiteDialog: lowest expected temperature in the user unit', () => {
     close = vi.fn();
     TestBed.configureTestingModule({
       imports: [SiteDialog],
-      providers: [provideHttpClient(), provideHttpClientTesting(), { provide: MAT_DIALOG_DATA, useValue: site }, { provide: MatDialogRef, useValue: { close } }],
+      providers: [
+        provideHttpClient(),
+        provideHttpClientTesting(),
+        { provide: MAT_DIALOG_DATA, useValue: site },
+        { provide: MatDialogRef, useValue: { close } },
+      ],
     });
     TestBed.inject(PreferencesService).useSystem(system);
     http = TestBed.inject(HttpTestingController);
     fixture = TestBed.createComponent(SiteDialog);
     el = fixture.nativeElement as HTMLElement;
     fixture.detectChanges();
-    http.expectOne('/api/coolant-limits').flush({ limits: { ...DEFAULT_CHEMISTRY_LIMITS }, defaults: { ...DEFAULT_CHEMISTRY_LIMITS }, extender: null, extenderDefault: { everyHours: 6000, everyDays: 1095 }, configured: false, updatedAt: null });
+    http
+      .expectOne('/api/coolant-limits')
+      .flush({
+        limits: { ...DEFAULT_CHEMISTRY_LIMITS },
+        defaults: { ...DEFAULT_CHEMISTRY_LIMITS },
+        extender: null,
+        extenderDefault: { everyHours: 6000, everyDays: 1095 },
+        configured: false,
+        updatedAt: null,
+      });
     fixture.detectChanges();
   }
   const input = () => el.querySelector<HTMLInputElement>('input[formcontrolname="designLow"]')!;

@@ -9,7 +9,12 @@ import { MatInputModule } from '@angular/material/input';
 import { CoolantService } from '../coolant/coolant.service';
 import { PreferencesService } from '../core/preferences.service';
 import {
-  differenceForEntry, differenceSymbol, temperatureForEntry, temperatureFromEntry, temperatureLimitsForEntry, temperatureSymbol,
+  differenceForEntry,
+  differenceSymbol,
+  temperatureForEntry,
+  temperatureFromEntry,
+  temperatureLimitsForEntry,
+  temperatureSymbol,
 } from '../ui/temperature-entry';
 import { AdminService } from './admin.service';
 import { Site } from './admin-types';
@@ -56,7 +61,9 @@ export function timeZoneValidator(control: AbstractControl): ValidationErrors | 
           <mat-label>Time zone</mat-label>
           <input matInput formControlName="timeZone" [matAutocomplete]="zones" required />
           <mat-autocomplete #zones="matAutocomplete">
-            @for (z of matches(); track z) { <mat-option [value]="z">{{ z }}</mat-option> }
+            @for (z of matches(); track z) {
+              <mat-option [value]="z">{{ z }}</mat-option>
+            }
           </mat-autocomplete>
           <mat-hint>IANA name, e.g. America/Chicago. Schedules and day boundaries of the site use it.</mat-hint>
           <mat-error>{{ err('timeZone') }}</mat-error>
@@ -65,11 +72,17 @@ export function timeZoneValidator(control: AbstractControl): ValidationErrors | 
           <mat-label>Lowest expected temperature</mat-label>
           <input matInput type="number" inputmode="decimal" formControlName="designLow" data-test="design-low" />
           <span matTextSuffix>{{ tempSymbol }}</span>
-          <mat-hint>The coldest the engines here must stand (local climate data or the site's design figure). Blank: freeze protection is not judged.
-            @if (marginText(); as m) { Coolant must freeze at least {{ m }} below it (the margin is set under Administration, Additive). }</mat-hint>
+          <mat-hint
+            >The coldest the engines here must stand (local climate data or the site's design figure). Blank: freeze protection is not judged.
+            @if (marginText(); as m) {
+              Coolant must freeze at least {{ m }} below it (the margin is set under Administration, Additive).
+            }
+          </mat-hint>
           <mat-error>{{ err('designLow', tempSymbol) }}</mat-error>
         </mat-form-field>
-        @if (formError(); as e) { <p class="form-error" role="alert">{{ e }}</p> }
+        @if (formError(); as e) {
+          <p class="form-error" role="alert">{{ e }}</p>
+        }
       </mat-dialog-content>
       <mat-dialog-actions align="end">
         <button mat-button type="button" mat-dialog-close>Cancel</button>
@@ -78,8 +91,16 @@ export function timeZoneValidator(control: AbstractControl): ValidationErrors | 
     </form>
   `,
   styles: `
-    .fields { display: flex; flex-direction: column; gap: 12px; min-width: min(420px, 80vw); max-width: 520px; }
-    .form-error { color: var(--jw-alarm-high); }
+    .fields {
+      display: flex;
+      flex-direction: column;
+      gap: 12px;
+      min-width: min(420px, 80vw);
+      max-width: 520px;
+    }
+    .form-error {
+      color: var(--jw-alarm-high);
+    }
   `,
 })
 export class SiteDialog {
@@ -110,10 +131,12 @@ export class SiteDialog {
   });
 
   constructor() {
-    inject(CoolantService).chemistryLimits().subscribe({
-      next: (v) => this.marginText.set(`${differenceForEntry(v.limits.freezeMarginK, this.unit)} ${differenceSymbol(this.unit)}`),
-      error: () => this.marginText.set(null),
-    });
+    inject(CoolantService)
+      .chemistryLimits()
+      .subscribe({
+        next: (v) => this.marginText.set(`${differenceForEntry(v.limits.freezeMarginK, this.unit)} ${differenceSymbol(this.unit)}`),
+        error: () => this.marginText.set(null),
+      });
   }
 
   protected err(name: 'name' | 'timeZone' | 'designLow', unit = ''): string {

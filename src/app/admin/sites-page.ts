@@ -35,7 +35,11 @@ interface SiteRow extends Site {
       <span class="spacer"></span>
       <button mat-flat-button type="button" (click)="open(null)"><mat-icon fontIcon="add_location_alt" />Add site</button>
     </div>
-    @if (error(); as e) { <p class="load-error" role="alert">{{ e }} <button mat-stroked-button type="button" (click)="load()"><mat-icon fontIcon="refresh" />Retry</button></p> }
+    @if (error(); as e) {
+      <p class="load-error" role="alert">
+        {{ e }} <button mat-stroked-button type="button" (click)="load()"><mat-icon fontIcon="refresh" />Retry</button>
+      </p>
+    }
     <div class="table-wrap">
       <table mat-table [dataSource]="source" matSort matSortActive="name" matSortDirection="asc" aria-label="Sites">
         <ng-container matColumnDef="name">
@@ -49,7 +53,11 @@ interface SiteRow extends Site {
         <ng-container matColumnDef="designLowTempC">
           <th mat-header-cell *matHeaderCellDef mat-sort-header arrowPosition="before" class="num">Lowest expected</th>
           <td mat-cell *matCellDef="let s" class="num jw-num" data-test="design-low-cell">
-            @if (s.designLowTempC === null || s.designLowTempC === undefined) { <span class="muted">not set</span> } @else { {{ s.designLowTempC | unitValue: 'temperature' }} }
+            @if (s.designLowTempC === null || s.designLowTempC === undefined) {
+              <span class="muted">not set</span>
+            } @else {
+              {{ s.designLowTempC | unitValue: 'temperature' }}
+            }
           </td>
         </ng-container>
         <ng-container matColumnDef="engines">
@@ -65,7 +73,9 @@ interface SiteRow extends Site {
         </ng-container>
         <tr mat-header-row *matHeaderRowDef="columns"></tr>
         <tr mat-row *matRowDef="let row; columns: columns"></tr>
-        <tr class="mat-mdc-row" *matNoDataRow><td class="mat-mdc-cell empty" [attr.colspan]="columns.length">No sites match.</td></tr>
+        <tr class="mat-mdc-row" *matNoDataRow>
+          <td class="mat-mdc-cell empty" [attr.colspan]="columns.length">No sites match.</td>
+        </tr>
       </table>
     </div>
     <mat-paginator [pageSize]="25" [pageSizeOptions]="[10, 25, 100]" aria-label="Pages of sites" />

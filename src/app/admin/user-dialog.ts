@@ -50,16 +50,24 @@ export function generatePassword(length = 16): string {
           <mat-form-field>
             <mat-label>Role</mat-label>
             <mat-select formControlName="role">
-              @for (r of roles; track r.value) { <mat-option [value]="r.value">{{ r.label }}</mat-option> }
+              @for (r of roles; track r.value) {
+                <mat-option [value]="r.value">{{ r.label }}</mat-option>
+              }
             </mat-select>
             <mat-error>{{ err('role') }}</mat-error>
           </mat-form-field>
           <mat-form-field>
             <mat-label>Sites this user sees</mat-label>
             <mat-select formControlName="siteIds" multiple placeholder="Every site">
-              @for (s of sites(); track s.id) { <mat-option [value]="s.id">{{ s.name }}</mat-option> }
+              @for (s of sites(); track s.id) {
+                <mat-option [value]="s.id">{{ s.name }}</mat-option>
+              }
             </mat-select>
-            <mat-hint>{{ form.controls.role.value === 'admin' ? 'Administrators see every site whatever is chosen.' : 'None chosen: every site. Otherwise only these sites.' }}</mat-hint>
+            <mat-hint>{{
+              form.controls.role.value === 'admin'
+                ? 'Administrators see every site whatever is chosen.'
+                : 'None chosen: every site. Otherwise only these sites.'
+            }}</mat-hint>
           </mat-form-field>
         }
         @if (data.mode !== 'edit') {
@@ -71,7 +79,9 @@ export function generatePassword(length = 16): string {
             <mat-error>{{ err('password') }}</mat-error>
           </mat-form-field>
         }
-        @if (formError(); as e) { <p class="form-error" role="alert">{{ e }}</p> }
+        @if (formError(); as e) {
+          <p class="form-error" role="alert">{{ e }}</p>
+        }
       </mat-dialog-content>
       <mat-dialog-actions align="end">
         <button mat-button type="button" mat-dialog-close>Cancel</button>
@@ -80,8 +90,14 @@ export function generatePassword(length = 16): string {
     </form>
   `,
   styles: `
-    .fields { display: flex; flex-direction: column; min-width: min(420px, 80vw); }
-    .form-error { color: var(--jw-alarm-high); }
+    .fields {
+      display: flex;
+      flex-direction: column;
+      min-width: min(420px, 80vw);
+    }
+    .form-error {
+      color: var(--jw-alarm-high);
+    }
   `,
 })
 export class UserDialog {
@@ -102,7 +118,10 @@ export class UserDialog {
     email: [this.data.user?.email ?? '', [Validators.required, Validators.email, Validators.maxLength(254)]],
     role: [this.data.user?.role ?? ('operator' as Role), Validators.required],
     siteIds: [this.data.user?.siteIds ?? ([] as number[])],
-    password: [this.data.mode === 'edit' ? '' : generatePassword(), this.data.mode === 'edit' ? [] : [Validators.required, Validators.minLength(12), Validators.maxLength(72)]],
+    password: [
+      this.data.mode === 'edit' ? '' : generatePassword(),
+      this.data.mode === 'edit' ? [] : [Validators.required, Validators.minLength(12), Validators.maxLength(72)],
+    ],
   });
 
   protected err(name: keyof typeof this.form.controls): string {

@@ -35,12 +35,21 @@ import { filterAdminTable, linkAdminTable } from './admin-table';
       <span class="spacer"></span>
       <button mat-flat-button type="button" (click)="add()"><mat-icon fontIcon="person_add" />Add user</button>
     </div>
-    @if (error(); as e) { <p class="load-error" role="alert">{{ e }} <button mat-stroked-button type="button" (click)="load()"><mat-icon fontIcon="refresh" />Retry</button></p> }
+    @if (error(); as e) {
+      <p class="load-error" role="alert">
+        {{ e }} <button mat-stroked-button type="button" (click)="load()"><mat-icon fontIcon="refresh" />Retry</button>
+      </p>
+    }
     <div class="table-wrap">
       <table mat-table [dataSource]="source" matSort matSortActive="name" matSortDirection="asc" aria-label="Users">
         <ng-container matColumnDef="name">
           <th mat-header-cell *matHeaderCellDef mat-sort-header>Name</th>
-          <td mat-cell *matCellDef="let u">{{ u.name }} @if (u.id === me()) { <span class="muted">(you)</span> }</td>
+          <td mat-cell *matCellDef="let u">
+            {{ u.name }}
+            @if (u.id === me()) {
+              <span class="muted">(you)</span>
+            }
+          </td>
         </ng-container>
         <ng-container matColumnDef="email">
           <th mat-header-cell *matHeaderCellDef mat-sort-header>E-mail</th>
@@ -71,7 +80,9 @@ import { filterAdminTable, linkAdminTable } from './admin-table';
         <ng-container matColumnDef="actions">
           <th mat-header-cell *matHeaderCellDef><span class="jw-visually-hidden">Actions</span></th>
           <td mat-cell *matCellDef="let u" class="actions">
-            <button mat-button type="button" [matMenuTriggerFor]="roleMenu" [disabled]="u.id === me()" [attr.aria-label]="'Change role of ' + u.name">Role</button>
+            <button mat-button type="button" [matMenuTriggerFor]="roleMenu" [disabled]="u.id === me()" [attr.aria-label]="'Change role of ' + u.name">
+              Role
+            </button>
             <mat-menu #roleMenu="matMenu">
               @for (r of roles; track r.value) {
                 <button mat-menu-item type="button" [disabled]="r.value === u.role" (click)="setRole(u, r.value)">{{ r.label }}</button>
@@ -88,7 +99,9 @@ import { filterAdminTable, linkAdminTable } from './admin-table';
         </ng-container>
         <tr mat-header-row *matHeaderRowDef="columns"></tr>
         <tr mat-row *matRowDef="let row; columns: columns" [class.muted]="row.disabled"></tr>
-        <tr class="mat-mdc-row" *matNoDataRow><td class="mat-mdc-cell empty" [attr.colspan]="columns.length">No users match.</td></tr>
+        <tr class="mat-mdc-row" *matNoDataRow>
+          <td class="mat-mdc-cell empty" [attr.colspan]="columns.length">No users match.</td>
+        </tr>
       </table>
     </div>
     <mat-paginator [pageSize]="25" [pageSizeOptions]="[10, 25, 100]" aria-label="Pages of users" />
@@ -142,7 +155,9 @@ export class UsersPage {
   protected setDisabled(user: AdminUser, disabled: boolean): void {
     if (!disabled) return this.patch(user, { disabled }, `${user.name} may sign in again.`);
     this.dialog
-      .open(ConfirmDialog, { data: { title: `Disable ${user.name}?`, message: 'They can no longer sign in. Their name stays on the records they made.', confirm: 'Disable' } })
+      .open(ConfirmDialog, {
+        data: { title: `Disable ${user.name}?`, message: 'They can no longer sign in. Their name stays on the records they made.', confirm: 'Disable' },
+      })
       .afterClosed()
       .subscribe((ok) => ok && this.patch(user, { disabled }, `${user.name} is disabled.`));
   }
@@ -170,7 +185,13 @@ export class UsersPage {
 
   protected load(): void {
     // site names for the Sites column; the users are shown whether or not they arrive
-    this.api.sites().subscribe({ next: (sites) => { for (const s of sites) this.siteNames.set(s.id, s.name); this.source.data = [...this.source.data]; }, error: () => undefined });
+    this.api.sites().subscribe({
+      next: (sites) => {
+        for (const s of sites) this.siteNames.set(s.id, s.name);
+        this.source.data = [...this.source.data];
+      },
+      error: () => undefined,
+    });
     this.api.users().subscribe({
       next: (users) => {
         this.error.set(null);

@@ -52,9 +52,7 @@ export class AlarmDetailPage {
     return a ? formatDuration(this.clock.now() - Date.parse(a.raisedAt)) : '';
   });
   /** The alarm's history in time order, oldest first (as it happened). */
-  protected readonly history = computed(() =>
-    [...(this.alarm()?.history ?? [])].sort((a, b) => Date.parse(a.at) - Date.parse(b.at)),
-  );
+  protected readonly history = computed(() => [...(this.alarm()?.history ?? [])].sort((a, b) => Date.parse(a.at) - Date.parse(b.at)));
   protected readonly notes = computed(() => this.history().filter((h) => h.note && h.userId !== null));
   private readonly fleet = inject(FleetService);
   private readonly zones = inject(DisplayZone);
@@ -65,10 +63,19 @@ export class AlarmDetailPage {
   });
   /** A short dialog first (kind suggested by the alarm's rule, assignee, due date); then to the new work order. */
   protected createWorkOrder(a: Alarm): void {
-    const data: CreateWorkData = { engineId: a.engineId, engineName: a.engineName ?? `Engine ${a.engineId}`, kind: suggestedWorkKind(a.rule), alarmId: a.id, from: `Alarm #${a.id}: ${a.title}` };
-    this.dialog.open<CreateWorkDialog, CreateWorkData, WorkOrderDetail>(CreateWorkDialog, { data, width: '520px', maxWidth: '95vw' }).afterClosed().subscribe((wo) => {
-      if (wo) void this.router.navigate(['/work', wo.id]);
-    });
+    const data: CreateWorkData = {
+      engineId: a.engineId,
+      engineName: a.engineName ?? `Engine ${a.engineId}`,
+      kind: suggestedWorkKind(a.rule),
+      alarmId: a.id,
+      from: `Alarm #${a.id}: ${a.title}`,
+    };
+    this.dialog
+      .open<CreateWorkDialog, CreateWorkData, WorkOrderDetail>(CreateWorkDialog, { data, width: '520px', maxWidth: '95vw' })
+      .afterClosed()
+      .subscribe((wo) => {
+        if (wo) void this.router.navigate(['/work', wo.id]);
+      });
   }
   protected readonly canShelve = computed(() => {
     const s = this.alarm()?.state;

@@ -59,7 +59,10 @@ export class AlarmListPage {
   protected readonly sites = this.fleet.sites;
   protected readonly engines = computed(() => {
     const site = this.siteId();
-    return this.fleet.engines().filter((e) => site === null || e.siteId === site).sort((a, b) => a.name.localeCompare(b.name, undefined, { numeric: true }));
+    return this.fleet
+      .engines()
+      .filter((e) => site === null || e.siteId === site)
+      .sort((a, b) => a.name.localeCompare(b.name, undefined, { numeric: true }));
   });
 
   private readonly source = computed<Alarm[]>(() => {
@@ -75,7 +78,11 @@ export class AlarmListPage {
     const priority = this.priority();
     const state = this.state();
     const list = this.source().filter(
-      (a) => (site === null || a.siteId === site) && (engine === null || a.engineId === engine) && (priority === null || a.priority === priority) && (state === null || a.state === state),
+      (a) =>
+        (site === null || a.siteId === site) &&
+        (engine === null || a.engineId === engine) &&
+        (priority === null || a.priority === priority) &&
+        (state === null || a.state === state),
     );
     // History in time order: the newest raised first.
     if (this.view() === 'all') return [...list].sort((a, b) => Date.parse(b.raisedAt) - Date.parse(a.raisedAt) || b.id - a.id);

@@ -8,11 +8,31 @@ const RAISED = Date.parse('2026-12-02T01:00:00Z');
 
 function alarm(over: Partial<Alarm> = {}): Alarm {
   return {
-    id: 41, engineId: 7, engineName: 'Pump house 1', siteId: 2, siteName: 'Riverside water works', rule: 'coolant_temp_very_high',
-    title: 'Coolant temperature very high', priority: 'high', state: 'unacknowledged', active: true,
-    raisedAt: new Date(RAISED).toISOString(), value: 104.3, worstValue: 105.1, unit: 'degC', message: 'above 103 °C',
-    acknowledgedAt: null, acknowledgedBy: null, note: null, shelvedUntil: null, shelveReason: null, clearedAt: null, closedAt: null,
-    escalationLevel: 0, lastNotifiedAt: null, ...over,
+    id: 41,
+    engineId: 7,
+    engineName: 'Pump house 1',
+    siteId: 2,
+    siteName: 'Riverside water works',
+    rule: 'coolant_temp_very_high',
+    title: 'Coolant temperature very high',
+    priority: 'high',
+    state: 'unacknowledged',
+    active: true,
+    raisedAt: new Date(RAISED).toISOString(),
+    value: 104.3,
+    worstValue: 105.1,
+    unit: 'degC',
+    message: 'above 103 °C',
+    acknowledgedAt: null,
+    acknowledgedBy: null,
+    note: null,
+    shelvedUntil: null,
+    shelveReason: null,
+    clearedAt: null,
+    closedAt: null,
+    escalationLevel: 0,
+    lastNotifiedAt: null,
+    ...over,
   };
 }
 
@@ -42,7 +62,12 @@ describe('AlarmRow', () => {
       render(alarm({ priority: p }));
       seen.push([text('.priority-text'), el.querySelector('.priority mat-icon')!.getAttribute('fonticon')]);
     }
-    expect(seen).toEqual([['Urgent', 'report'], ['High', 'warning'], ['Medium', 'diamond'], ['Low', 'info']]);
+    expect(seen).toEqual([
+      ['Urgent', 'report'],
+      ['High', 'warning'],
+      ['Medium', 'diamond'],
+      ['Low', 'info'],
+    ]);
   });
 
   it('marks an unacknowledged alarm in words and with the heavy bar', () => {

@@ -17,8 +17,7 @@ import { Alarm } from './alarm-types';
   changeDetection: ChangeDetectionStrategy.OnPush,
   imports: [MatButtonModule, MatIconModule, MatTooltipModule, RouterLink],
   template: `
-    <article class="row" [class.unack]="unack()" [class.closed]="!!alarm().closedAt" [attr.data-priority]="alarm().priority"
-             [attr.aria-label]="summary()">
+    <article class="row" [class.unack]="unack()" [class.closed]="!!alarm().closedAt" [attr.data-priority]="alarm().priority" [attr.aria-label]="summary()">
       <div class="priority" [class]="'priority p-' + alarm().priority">
         <mat-icon aria-hidden="true" [fontIcon]="look().icon" />
         <span class="priority-text">{{ look().text }}</span>
@@ -27,13 +26,17 @@ import { Alarm } from './alarm-types';
         <a class="title" [routerLink]="['/alarms', alarm().id]">{{ alarm().title }}</a>
         <div class="where">
           <a [routerLink]="['/engines', alarm().engineId]">{{ alarm().engineName ?? 'Engine ' + alarm().engineId }}</a>
-          @if (alarm().siteName) { <span class="site">{{ ' · ' + alarm().siteName }}</span> }
+          @if (alarm().siteName) {
+            <span class="site">{{ ' · ' + alarm().siteName }}</span>
+          }
         </div>
       </div>
       <div class="state">
         @if (unack()) {
           <span class="unack-mark"><mat-icon aria-hidden="true" fontIcon="radio_button_checked" />Unacknowledged</span>
-          @if (alarm().state === 'returned-unacknowledged') { <span class="state-text">{{ ' ' }}Returned to normal</span> }
+          @if (alarm().state === 'returned-unacknowledged') {
+            <span class="state-text">{{ ' ' }}Returned to normal</span>
+          }
         } @else {
           <span class="state-text">{{ stateWords() }}</span>
         }
@@ -53,7 +56,9 @@ import { Alarm } from './alarm-types';
         @if (canAcknowledge() && unack()) {
           <button mat-flat-button type="button" class="ack" (click)="acknowledge.emit(alarm())">Acknowledge</button>
         }
-        @if (canShelve() && !alarm().closedAt && alarm().state !== 'shelved' && alarm().state !== 'out-of-service' && alarm().state !== 'suppressed-by-design') {
+        @if (
+          canShelve() && !alarm().closedAt && alarm().state !== 'shelved' && alarm().state !== 'out-of-service' && alarm().state !== 'suppressed-by-design'
+        ) {
           <button mat-stroked-button type="button" class="shelve" (click)="shelve.emit(alarm())">Shelve</button>
         }
         @if (canShelve() && alarm().state === 'shelved') {
@@ -105,6 +110,8 @@ export class AlarmRow {
       stateText(a.state),
       `value ${this.value()}`,
       `raised ${this.age()} ago`,
-    ].filter(Boolean).join(', ');
+    ]
+      .filter(Boolean)
+      .join(', ');
   });
 }

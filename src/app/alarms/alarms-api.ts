@@ -20,7 +20,11 @@ export class AlarmsApi {
 
   /** A further page of an alarm's history (time order). */
   history(id: number, offset: number, limit = 200): Promise<{ total: number; entries: AlarmDetail['history'] }> {
-    return firstValueFrom(this.http.get<{ total: number; entries: AlarmDetail['history'] }>(`/api/alarms/${id}/history`, { params: { offset: String(offset), limit: String(limit) } }));
+    return firstValueFrom(
+      this.http.get<{ total: number; entries: AlarmDetail['history'] }>(`/api/alarms/${id}/history`, {
+        params: { offset: String(offset), limit: String(limit) },
+      }),
+    );
   }
 
   summary(): Promise<AlarmSummary> {

@@ -8,8 +8,17 @@ import { PreferencesService } from '../core/preferences.service';
   changeDetection: ChangeDetectionStrategy.OnPush,
   imports: [ChartComponent],
   template: `
-    <apx-chart [chart]="chart()" [series]="series()" [xaxis]="xaxis()" [plotOptions]="plot" [colors]="colors()"
-               [yaxis]="yaxis" [dataLabels]="{ enabled: true }" [legend]="{ show: false }" [theme]="{ mode: dark() ? 'dark' : 'light' }" />
+    <apx-chart
+      [chart]="chart()"
+      [series]="series()"
+      [xaxis]="xaxis()"
+      [plotOptions]="plot"
+      [colors]="colors()"
+      [yaxis]="yaxis"
+      [dataLabels]="{ enabled: true }"
+      [legend]="{ show: false }"
+      [theme]="{ mode: dark() ? 'dark' : 'light' }"
+    />
   `,
 })
 export class FrequentChart {

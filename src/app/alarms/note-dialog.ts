@@ -21,11 +21,15 @@ export interface NoteDialogData {
     <h2 mat-dialog-title>{{ data.mode === 'acknowledge' ? 'Acknowledge alarm' : 'Add a note' }}</h2>
     <form [formGroup]="form" (ngSubmit)="submit()">
       <mat-dialog-content>
-        <p><strong>{{ data.alarm.title }}</strong> on {{ data.alarm.engineName ?? 'engine ' + data.alarm.engineId }}</p>
+        <p>
+          <strong>{{ data.alarm.title }}</strong> on {{ data.alarm.engineName ?? 'engine ' + data.alarm.engineId }}
+        </p>
         <mat-form-field appearance="outline" class="note">
           <mat-label>{{ data.mode === 'acknowledge' ? 'Note (optional)' : 'Note' }}</mat-label>
           <textarea matInput [formControl]="note" rows="3" maxlength="1000"></textarea>
-          @if (note.invalid) { <mat-error>Write the note first.</mat-error> }
+          @if (note.invalid) {
+            <mat-error>Write the note first.</mat-error>
+          }
         </mat-form-field>
       </mat-dialog-content>
       <mat-dialog-actions align="end">
@@ -34,7 +38,12 @@ export interface NoteDialogData {
       </mat-dialog-actions>
     </form>
   `,
-  styles: `.note { width: 100%; min-width: min(28em, 80vw); }`,
+  styles: `
+    .note {
+      width: 100%;
+      min-width: min(28em, 80vw);
+    }
+  `,
 })
 export class NoteDialog {
   protected readonly data = inject<NoteDialogData>(MAT_DIALOG_DATA);

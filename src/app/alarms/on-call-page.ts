@@ -32,69 +32,179 @@ const ONCALL_ROLES = ['technician', 'planner', 'admin'];
         <button mat-flat-button type="button" (click)="edit(null)" [disabled]="!readyToEdit()"><mat-icon fontIcon="add" />New shift</button>
       </header>
       <p class="muted">Alarm e-mail goes to whoever is on call for the engine's site; unacknowledged alarms go on to the backup.</p>
-      @if (error(); as e) { <p class="error" role="alert">{{ e }}</p> }
+      @if (error(); as e) {
+        <p class="error" role="alert">{{ e }}</p>
+      }
       <section class="week" aria-labelledby="week-title">
         <div class="week-head">
-          <mat-form-field appearance="outline" subscriptSizing="dynamic" class="site-pick"><mat-label>Site</mat-label>
+          <mat-form-field appearance="outline" subscriptSizing="dynamic" class="site-pick"
+            ><mat-label>Site</mat-label>
             <mat-select [value]="siteId()" (valueChange)="siteId.set($event)" aria-label="Site of the week shown">
-              @for (s of fleet.sites(); track s.id) { <mat-option [value]="s.id">{{ s.name }}</mat-option> }
+              @for (s of fleet.sites(); track s.id) {
+                <mat-option [value]="s.id">{{ s.name }}</mat-option>
+              }
             </mat-select>
           </mat-form-field>
           <div class="nav">
-            <button mat-stroked-button type="button" (click)="week.set(week() - 1)" aria-label="Previous week"><mat-icon fontIcon="chevron_left" />Previous</button>
+            <button mat-stroked-button type="button" (click)="week.set(week() - 1)" aria-label="Previous week">
+              <mat-icon fontIcon="chevron_left" />Previous
+            </button>
             <button mat-stroked-button type="button" (click)="week.set(0)" [disabled]="week() === 0">This week</button>
-            <button mat-stroked-button type="button" (click)="week.set(week() + 1)" aria-label="Next week">Next<mat-icon iconPositionEnd fontIcon="chevron_right" /></button>
+            <button mat-stroked-button type="button" (click)="week.set(week() + 1)" aria-label="Next week">
+              Next<mat-icon iconPositionEnd fontIcon="chevron_right" />
+            </button>
           </div>
         </div>
         <h2 id="week-title">Week of {{ weekTitle() }}</h2>
         <p class="muted">Times in {{ zone() }} ({{ zoneAbbr() }}), 24-hour clock. Hatched and marked: hours with nobody on call. Pick a shift to change it.</p>
-        @if (weekSummary(); as w) { <p class="summary" [class.warn]="w.gaps || w.overlaps">{{ w.text }}</p> }
+        @if (weekSummary(); as w) {
+          <p class="summary" [class.warn]="w.gaps || w.overlaps">{{ w.text }}</p>
+        }
         <jw-rota-week-view [days]="weekView()" (pick)="editById($event.id)" />
       </section>
       <h2>All shifts</h2>
       <p class="muted">From the past 7 days on, earliest first, in each site's time zone.</p>
       <table mat-table [dataSource]="pageRows()">
-        <ng-container matColumnDef="now"><th mat-header-cell *matHeaderCellDef><span class="jw-visually-hidden">Now</span></th>
-          <td mat-cell *matCellDef="let s">@if (s.current) { <span class="current"><mat-icon aria-hidden="true" fontIcon="play_arrow" />On now</span> } @else if (s.past) { <span class="muted">Past</span> }
-            @if (s.id === savedId()) { <span class="saved"><mat-icon aria-hidden="true" fontIcon="check" />Just saved</span> }</td></ng-container>
-        <ng-container matColumnDef="site"><th mat-header-cell *matHeaderCellDef>Site</th><td mat-cell *matCellDef="let s">{{ s.siteName }}</td></ng-container>
-        <ng-container matColumnDef="who"><th mat-header-cell *matHeaderCellDef>On call</th><td mat-cell *matCellDef="let s">{{ s.userName ?? 'user ' + s.userId }}</td></ng-container>
-        <ng-container matColumnDef="backup"><th mat-header-cell *matHeaderCellDef>Backup</th><td mat-cell *matCellDef="let s">{{ s.backupUserName ?? (s.backupUserId ? 'user ' + s.backupUserId : 'none') }}</td></ng-container>
-        <ng-container matColumnDef="from"><th mat-header-cell *matHeaderCellDef>From</th><td mat-cell *matCellDef="let s" class="jw-num">{{ time(s.startsAt, s.siteId) }}</td></ng-container>
-        <ng-container matColumnDef="until"><th mat-header-cell *matHeaderCellDef>Until</th><td mat-cell *matCellDef="let s" class="jw-num">{{ time(s.endsAt, s.siteId) }}</td></ng-container>
-        <ng-container matColumnDef="actions"><th mat-header-cell *matHeaderCellDef><span class="jw-visually-hidden">Actions</span></th>
+        <ng-container matColumnDef="now"
+          ><th mat-header-cell *matHeaderCellDef><span class="jw-visually-hidden">Now</span></th>
+          <td mat-cell *matCellDef="let s">
+            @if (s.current) {
+              <span class="current"><mat-icon aria-hidden="true" fontIcon="play_arrow" />On now</span>
+            } @else if (s.past) {
+              <span class="muted">Past</span>
+            }
+            @if (s.id === savedId()) {
+              <span class="saved"><mat-icon aria-hidden="true" fontIcon="check" />Just saved</span>
+            }
+          </td></ng-container
+        >
+        <ng-container matColumnDef="site"
+          ><th mat-header-cell *matHeaderCellDef>Site</th>
+          <td mat-cell *matCellDef="let s">{{ s.siteName }}</td></ng-container
+        >
+        <ng-container matColumnDef="who"
+          ><th mat-header-cell *matHeaderCellDef>On call</th>
+          <td mat-cell *matCellDef="let s">{{ s.userName ?? 'user ' + s.userId }}</td></ng-container
+        >
+        <ng-container matColumnDef="backup"
+          ><th mat-header-cell *matHeaderCellDef>Backup</th>
+          <td mat-cell *matCellDef="let s">{{ s.backupUserName ?? (s.backupUserId ? 'user ' + s.backupUserId : 'none') }}</td></ng-container
+        >
+        <ng-container matColumnDef="from"
+          ><th mat-header-cell *matHeaderCellDef>From</th>
+          <td mat-cell *matCellDef="let s" class="jw-num">{{ time(s.startsAt, s.siteId) }}</td></ng-container
+        >
+        <ng-container matColumnDef="until"
+          ><th mat-header-cell *matHeaderCellDef>Until</th>
+          <td mat-cell *matCellDef="let s" class="jw-num">{{ time(s.endsAt, s.siteId) }}</td></ng-container
+        >
+        <ng-container matColumnDef="actions"
+          ><th mat-header-cell *matHeaderCellDef><span class="jw-visually-hidden">Actions</span></th>
           <td mat-cell *matCellDef="let s" class="actions">
-            <button mat-icon-button type="button" (click)="edit(s)" [attr.aria-label]="'Change shift of ' + s.userName + ', ' + s.siteName + ', from ' + time(s.startsAt, s.siteId)"><mat-icon fontIcon="edit" /></button>
-            <button mat-icon-button type="button" (click)="remove(s)" [attr.aria-label]="'Delete shift of ' + s.userName + ', ' + s.siteName + ', from ' + time(s.startsAt, s.siteId)"><mat-icon fontIcon="delete" /></button>
-          </td></ng-container>
+            <button
+              mat-icon-button
+              type="button"
+              (click)="edit(s)"
+              [attr.aria-label]="'Change shift of ' + s.userName + ', ' + s.siteName + ', from ' + time(s.startsAt, s.siteId)"
+            >
+              <mat-icon fontIcon="edit" />
+            </button>
+            <button
+              mat-icon-button
+              type="button"
+              (click)="remove(s)"
+              [attr.aria-label]="'Delete shift of ' + s.userName + ', ' + s.siteName + ', from ' + time(s.startsAt, s.siteId)"
+            >
+              <mat-icon fontIcon="delete" />
+            </button></td
+        ></ng-container>
         <tr mat-header-row *matHeaderRowDef="columns"></tr>
         <tr mat-row *matRowDef="let row; columns: columns" [class.past]="row.past" [attr.data-shift-id]="row.id"></tr>
       </table>
-      @if (!rows().length) { <p class="muted">No shifts yet: alarm e-mail has nobody to go to.</p> }
-      @else if (rows().length > pageSize) {
-        <mat-paginator [length]="rows().length" [pageSize]="pageSize" [pageIndex]="pageIndex()" [hidePageSize]="true" (page)="turn($event)" aria-label="Pages of shifts" />
+      @if (!rows().length) {
+        <p class="muted">No shifts yet: alarm e-mail has nobody to go to.</p>
+      } @else if (rows().length > pageSize) {
+        <mat-paginator
+          [length]="rows().length"
+          [pageSize]="pageSize"
+          [pageIndex]="pageIndex()"
+          [hidePageSize]="true"
+          (page)="turn($event)"
+          aria-label="Pages of shifts"
+        />
       }
     </section>
   `,
   styles: `
-    .page { padding: 16px 24px 32px; max-width: 1200px; }
-    h2 { font: var(--mat-sys-title-large); margin: 16px 0 4px; }
-    .week { margin: 8px 0 24px; }
-    .week-head { display: flex; flex-wrap: wrap; align-items: center; gap: 8px 16px; }
-    .site-pick { min-width: 18em; }
-    .nav { display: flex; flex-wrap: wrap; gap: 8px; }
-    .summary { font-weight: 600; }
-    .summary.warn { color: var(--jw-warning); }
-    .head { display: flex; align-items: center; gap: 16px; }
-    h1 { font: var(--mat-sys-headline-small); margin: 0; flex: 1; }
-    .muted { color: var(--jw-muted-text); }
-    table { width: 100%; }
-    tr.past { color: var(--jw-muted-text); }
-    .current, .saved { display: inline-flex; align-items: center; font-weight: 700; }
-    .saved { font-weight: 400; }
-    .actions { text-align: right; white-space: nowrap; }
-    td.jw-num { white-space: nowrap; }
-    .error { color: var(--jw-alarm-high); }
+    .page {
+      padding: 16px 24px 32px;
+      max-width: 1200px;
+    }
+    h2 {
+      font: var(--mat-sys-title-large);
+      margin: 16px 0 4px;
+    }
+    .week {
+      margin: 8px 0 24px;
+    }
+    .week-head {
+      display: flex;
+      flex-wrap: wrap;
+      align-items: center;
+      gap: 8px 16px;
+    }
+    .site-pick {
+      min-width: 18em;
+    }
+    .nav {
+      display: flex;
+      flex-wrap: wrap;
+      gap: 8px;
+    }
+    .summary {
+      font-weight: 600;
+    }
+    .summary.warn {
+      color: var(--jw-warning);
+    }
+    .head {
+      display: flex;
+      align-items: center;
+      gap: 16px;
+    }
+    h1 {
+      font: var(--mat-sys-headline-small);
+      margin: 0;
+      flex: 1;
+    }
+    .muted {
+      color: var(--jw-muted-text);
+    }
+    table {
+      width: 100%;
+    }
+    tr.past {
+      color: var(--jw-muted-text);
+    }
+    .current,
+    .saved {
+      display: inline-flex;
+      align-items: center;
+      font-weight: 700;
+    }
+    .saved {
+      font-weight: 400;
+    }
+    .actions {
+      text-align: right;
+      white-space: nowrap;
+    }
+    td.jw-num {
+      white-space: nowrap;
+    }
+    .error {
+      color: var(--jw-alarm-high);
+    }
   `,
 })
 export class OnCallPage {
@@ -114,10 +224,18 @@ export class OnCallPage {
   protected readonly zoneAbbr = computed(() => zoneAbbreviation(this.weekDays()[0]?.from ?? Date.now(), this.zone()));
   private readonly monday = computed(() => mondayOf(Date.now(), this.zone(), this.week()));
   private readonly weekDays = computed(() => weekDays(this.monday(), this.zone()));
-  protected readonly weekTitle = computed(() => { const d = this.weekDays(); return `${d[0].date} to ${d[6].date}`; });
+  protected readonly weekTitle = computed(() => {
+    const d = this.weekDays();
+    return `${d[0].date} to ${d[6].date}`;
+  });
   protected readonly weekView = computed(() => {
     const list: WeekShift[] = this.weekShifts().map((s) => ({
-      id: s.id, userId: s.userId, userName: s.userName ?? `user ${s.userId}`, backupName: s.backupUserName, startsAt: Date.parse(s.startsAt), endsAt: Date.parse(s.endsAt),
+      id: s.id,
+      userId: s.userId,
+      userName: s.userName ?? `user ${s.userId}`,
+      backupName: s.backupUserName,
+      startsAt: Date.parse(s.startsAt),
+      endsAt: Date.parse(s.endsAt),
     }));
     return buildWeek(list, this.monday(), this.zone());
   });
@@ -125,7 +243,10 @@ export class OnCallPage {
     const days = this.weekView();
     const gaps = days.reduce((n, d) => n + d.uncovered.reduce((h, g) => h + (g.to - g.from), 0), 0) / 3_600_000;
     const overlaps = days.reduce((n, d) => n + d.overlaps.length, 0);
-    const parts = [gaps ? `${Math.round(gaps * 10) / 10} h with nobody on call` : 'every hour covered', overlaps ? `${overlaps} overlap${overlaps > 1 ? 's' : ''}` : 'no overlaps'];
+    const parts = [
+      gaps ? `${Math.round(gaps * 10) / 10} h with nobody on call` : 'every hour covered',
+      overlaps ? `${overlaps} overlap${overlaps > 1 ? 's' : ''}` : 'no overlaps',
+    ];
     return { gaps, overlaps, text: `This week: ${parts.join(', ')}.` };
   });
   private readonly users = signal<Person[] | null>(null);
@@ -221,8 +342,12 @@ export class OnCallPage {
 
   protected async edit(shift: Shift | null): Promise<void> {
     const data: ShiftDialogData = {
-      shift, sites: this.fleet.sites(), people: this.people(), shifts: [...new Map([...this.shifts(), ...this.weekShifts()].map((s) => [s.id, s])).values()],
-      zoneOf: (id) => this.zoneOf(id), siteId: this.siteId(),
+      shift,
+      sites: this.fleet.sites(),
+      people: this.people(),
+      shifts: [...new Map([...this.shifts(), ...this.weekShifts()].map((s) => [s.id, s])).values()],
+      zoneOf: (id) => this.zoneOf(id),
+      siteId: this.siteId(),
     };
     const input = await firstValueFrom(this.dialog.open<ShiftDialog, ShiftDialogData, ShiftInput>(ShiftDialog, { data, width: '40em' }).afterClosed());
     if (!input) return;
@@ -232,8 +357,15 @@ export class OnCallPage {
         : await firstValueFrom(this.http.post<Shift>('/api/oncall', input));
       // the server's own check of what the saved shift leaves (the same shared function as the dialog's)
       const c = saved.coverage;
-      const left = c ? [c.overlaps.length ? `${c.overlaps.length} overlap${c.overlaps.length > 1 ? 's' : ''}` : '', c.uncovered.length ? 'uncovered hours nearby' : ''].filter(Boolean) : [];
-      this.snack.open(left.length ? `Shift saved, with ${left.join(' and ')}: see the week` : 'Shift saved', undefined, { duration: left.length ? 5000 : 2500 });
+      const left = c
+        ? [
+            c.overlaps.length ? `${c.overlaps.length} overlap${c.overlaps.length > 1 ? 's' : ''}` : '',
+            c.uncovered.length ? 'uncovered hours nearby' : '',
+          ].filter(Boolean)
+        : [];
+      this.snack.open(left.length ? `Shift saved, with ${left.join(' and ')}: see the week` : 'Shift saved', undefined, {
+        duration: left.length ? 5000 : 2500,
+      });
       await this.load();
       this.showShift(saved.id);
       this.refreshWeek();

@@ -3,7 +3,14 @@ import { wallTimeToUtc } from '../ui/time-format';
 
 const ZONE = 'America/Chicago';
 const at = (d: number, h: number) => wallTimeToUtc(2030, 3, d, h, 0, 0, ZONE);
-const shift = (id: number, name: string, from: number, to: number): WeekShift => ({ id, userId: id, userName: name, backupName: null, startsAt: from, endsAt: to });
+const shift = (id: number, name: string, from: number, to: number): WeekShift => ({
+  id,
+  userId: id,
+  userName: name,
+  backupName: null,
+  startsAt: from,
+  endsAt: to,
+});
 
 describe('rota week', () => {
   it('finds the Monday of the week in the site zone, not UTC', () => {

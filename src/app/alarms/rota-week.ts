@@ -81,7 +81,10 @@ export function buildWeek(shifts: readonly WeekShift[], monday: [number, number,
       return { shift, lane, left: pct(from), width: pct(to) - pct(from), text: `${clock(from, day, zone)}–${clock(to, day, zone)} ${shift.userName}` };
     });
     const uncovered = uncoveredSpans(inDay, day.from, day.to).map((g) => ({
-      ...g, left: pct(g.from), width: pct(g.to) - pct(g.from), text: `${clock(g.from, day, zone)}–${clock(g.to, day, zone)}`,
+      ...g,
+      left: pct(g.from),
+      width: pct(g.to) - pct(g.from),
+      text: `${clock(g.from, day, zone)}–${clock(g.to, day, zone)}`,
     }));
     const overlaps: string[] = [];
     inDay.forEach((s, i) => {
@@ -89,7 +92,9 @@ export function buildWeek(shifts: readonly WeekShift[], monday: [number, number,
         const from = Math.max(o.from, day.from);
         const to = Math.min(o.to, day.to);
         if (to <= from) continue;
-        const who = o.samePerson ? `${s.userName} twice` : `${s.userName} and ${o.other.userId === s.userId ? s.userName : (inDay.find((x) => x.id === o.other.id)?.userName ?? 'another')}`;
+        const who = o.samePerson
+          ? `${s.userName} twice`
+          : `${s.userName} and ${o.other.userId === s.userId ? s.userName : (inDay.find((x) => x.id === o.other.id)?.userName ?? 'another')}`;
         overlaps.push(`${clock(from, day, zone)}–${clock(to, day, zone)}: ${who}`);
       }
     });

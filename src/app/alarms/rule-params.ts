@@ -20,7 +20,12 @@ const DELAYS: ParamField[] = [
 /** The editable parameters of each rule kind (server/services/alarms/rule-definitions.ts), SI in the API. */
 export const PARAM_FIELDS: Record<string, ParamField[]> = {
   limit: [{ name: 'limit', label: 'Limit', kind: 'absolute' }, { name: 'deadband', label: 'Deadband', kind: 'difference' }, ...DELAYS],
-  rate: [{ name: 'ratePerMin', label: 'Rate', kind: 'rate' }, { name: 'deadbandPerMin', label: 'Deadband', kind: 'rate' }, { name: 'windowS', label: 'Window', kind: 'plain', unit: 's' }, ...DELAYS],
+  rate: [
+    { name: 'ratePerMin', label: 'Rate', kind: 'rate' },
+    { name: 'deadbandPerMin', label: 'Deadband', kind: 'rate' },
+    { name: 'windowS', label: 'Window', kind: 'plain', unit: 's' },
+    ...DELAYS,
+  ],
   boiling_margin: [{ name: 'marginC', label: 'Margin', kind: 'difference' }, { name: 'deadbandC', label: 'Deadband', kind: 'difference' }, ...DELAYS],
   conductivity: [
     { name: 'absoluteLimit', label: 'Limit', kind: 'absolute' },
@@ -28,13 +33,20 @@ export const PARAM_FIELDS: Record<string, ParamField[]> = {
     { name: 'deadband', label: 'Deadband', kind: 'difference' },
     ...DELAYS,
   ],
-  stuck: [{ name: 'durationS', label: 'Unchanged for', kind: 'plain', unit: 's' }, { name: 'epsilon', label: 'Counts as a change above', kind: 'difference' }, { name: 'resolution', label: 'Sensor resolution (0 = learned)', kind: 'difference' }],
+  stuck: [
+    { name: 'durationS', label: 'Unchanged for', kind: 'plain', unit: 's' },
+    { name: 'epsilon', label: 'Counts as a change above', kind: 'difference' },
+    { name: 'resolution', label: 'Sensor resolution (0 = learned)', kind: 'difference' },
+  ],
   heater_loss: [
     { name: 'belowByC', label: 'Below the heater setpoint by', kind: 'difference' },
     { name: 'minDropC', label: 'Fallen at least', kind: 'difference' },
     { name: 'windowS', label: 'Over', kind: 'plain', unit: 's' },
   ],
-  no_data: [{ name: 'factor', label: 'Silence, times the usual interval', kind: 'plain', unit: '×' }, { name: 'minSilenceS', label: 'At least', kind: 'plain', unit: 's' }],
+  no_data: [
+    { name: 'factor', label: 'Silence, times the usual interval', kind: 'plain', unit: '×' },
+    { name: 'minSilenceS', label: 'At least', kind: 'plain', unit: 's' },
+  ],
 };
 
 export function paramFields(kind: string): ParamField[] {

@@ -18,13 +18,30 @@ import { errorText } from './alarms-api';
 import { ParamField, paramFields, paramUnit, ruleQuantity, toDisplay, toSi } from './rule-params';
 
 interface RuleDef {
-  key: string; kind: string; channel: ChannelKey; priority: string; enabled: boolean; title: string; meaning: string; firstStep: string;
+  key: string;
+  kind: string;
+  channel: ChannelKey;
+  priority: string;
+  enabled: boolean;
+  title: string;
+  meaning: string;
+  firstStep: string;
   params: Record<string, unknown>;
   overridden?: boolean;
   override?: { rule: string; enabled: boolean; params: Record<string, unknown> | null } | null;
 }
-interface Draft { enabled: boolean; values: Record<string, number | null>; dirty: boolean }
-interface Preview { engineName?: string; readings: number; from: string; to: string; alarms: { raisedAt: string; clearedAt: string | null; value: number | null; message: string }[] }
+interface Draft {
+  enabled: boolean;
+  values: Record<string, number | null>;
+  dirty: boolean;
+}
+interface Preview {
+  engineName?: string;
+  readings: number;
+  from: string;
+  to: string;
+  alarms: { raisedAt: string; clearedAt: string | null; value: number | null; message: string }[];
+}
 
 const UNIT_OF_KIND: Record<string, string | null> = { rate: '/min', boiling_margin: 'K', no_data: null };
 
@@ -85,7 +102,8 @@ export class RulesPage {
     return typeof p === 'string' ? null : p;
   }
   protected previewValue(r: RuleDef, v: number | null): string {
-    const unit = r.kind in UNIT_OF_KIND ? (UNIT_OF_KIND[r.kind] === '/min' ? `${CHANNELS[r.channel].unit}/min` : UNIT_OF_KIND[r.kind]) : CHANNELS[r.channel].unit;
+    const unit =
+      r.kind in UNIT_OF_KIND ? (UNIT_OF_KIND[r.kind] === '/min' ? `${CHANNELS[r.channel].unit}/min` : UNIT_OF_KIND[r.kind]) : CHANNELS[r.channel].unit;
     return formatAlarmValue(v, unit, this.prefs.preferences());
   }
 
@@ -182,7 +200,11 @@ export class RulesPage {
         // Keep earlier overrides; add one for every rule changed here.
         const overrides = rules
           .filter((r) => r.overridden || this.drafts()[r.key].dirty)
-          .map((r) => ({ rule: r.key, enabled: this.drafts()[r.key].enabled, params: this.drafts()[r.key].dirty ? this.siParams(r) : (r.override?.params ?? null) }));
+          .map((r) => ({
+            rule: r.key,
+            enabled: this.drafts()[r.key].enabled,
+            params: this.drafts()[r.key].dirty ? this.siParams(r) : (r.override?.params ?? null),
+          }));
         await firstValueFrom(this.http.put(`/api/rules/engines/${engineId}`, { rules: overrides }));
       }
       this.snack.open('Rules saved', undefined, { duration: 2500 });
@@ -209,9 +231,10 @@ export class RulesPage {
   protected async load(): Promise<void> {
     const id = this.engineId();
     try {
-      const rules = id === null
-        ? (await firstValueFrom(this.http.get<{ rules: RuleDef[] }>('/api/rules'))).rules
-        : (await firstValueFrom(this.http.get<{ rules: RuleDef[] }>(`/api/rules/engines/${id}`))).rules;
+      const rules =
+        id === null
+          ? (await firstValueFrom(this.http.get<{ rules: RuleDef[] }>('/api/rules'))).rules
+          : (await firstValueFrom(this.http.get<{ rules: RuleDef[] }>(`/api/rules/engines/${id}`))).rules;
       const prefs = this.prefs.preferences();
       const drafts: Record<string, Draft> = {};
       for (const r of rules) {

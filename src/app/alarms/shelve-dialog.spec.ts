@@ -40,7 +40,10 @@ describe('ShelveDialog', () => {
     expect(closed).toEqual([]);
     submitWith(1, 'sensor swap');
     submitWith(1440, 'sensor swap');
-    expect(closed).toEqual([{ minutes: 1, reason: 'sensor swap' }, { minutes: 1440, reason: 'sensor swap' }]);
+    expect(closed).toEqual([
+      { minutes: 1, reason: 'sensor swap' },
+      { minutes: 1440, reason: 'sensor swap' },
+    ]);
   });
 
   it('trims the reason and shows the alarm it shelves', () => {

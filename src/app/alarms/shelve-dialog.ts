@@ -25,7 +25,9 @@ const notBlank = Validators.pattern(/\S/);
     <h2 mat-dialog-title>Shelve alarm</h2>
     <form [formGroup]="form" (ngSubmit)="submit()">
       <mat-dialog-content>
-        <p class="what"><strong>{{ data.alarm.title }}</strong> on {{ data.alarm.engineName ?? 'engine ' + data.alarm.engineId }}</p>
+        <p class="what">
+          <strong>{{ data.alarm.title }}</strong> on {{ data.alarm.engineName ?? 'engine ' + data.alarm.engineId }}
+        </p>
         <p class="hint">A shelved alarm is not shown as active until its time runs out; it then comes back if the condition is still there.</p>
         <mat-form-field appearance="outline" class="minutes">
           <mat-label>For how long (minutes)</mat-label>
@@ -52,8 +54,14 @@ const notBlank = Validators.pattern(/\S/);
     </form>
   `,
   styles: `
-    .minutes, .reason { width: 100%; }
-    .hint { color: var(--jw-muted-text); margin-top: 0; }
+    .minutes,
+    .reason {
+      width: 100%;
+    }
+    .hint {
+      color: var(--jw-muted-text);
+      margin-top: 0;
+    }
   `,
 })
 export class ShelveDialog {

@@ -67,18 +67,64 @@ import type { Role } from '../core/user';
     </main>
   `,
   styles: `
-    .page { min-height: 100vh; display: grid; place-items: center; padding: 16px; box-sizing: border-box; }
-    .card { width: min(400px, 100%); padding: 24px; box-sizing: border-box; }
-    form { display: flex; flex-direction: column; }
-    h1 { font: var(--mat-sys-headline-small); font-weight: 700; margin: 0; display: flex; align-items: center; gap: 8px; }
-    .mark { color: var(--mat-sys-primary); }
-    .lead { color: var(--jw-muted-text); margin: 4px 0 20px; }
-    .notice, .failure { display: flex; gap: 8px; align-items: flex-start; margin: 0 0 16px; padding: 8px 10px; border-radius: 6px; }
-    .notice mat-icon, .failure mat-icon { flex: none; }
-    .notice { background: var(--mat-sys-surface-container-high); }
-    .failure { color: var(--jw-alarm-high); background: var(--jw-alarm-high-bg); }
-    .submit { margin-top: 8px; height: 44px; }
-    mat-progress-bar { margin-top: 8px; }
+    .page {
+      min-height: 100vh;
+      display: grid;
+      place-items: center;
+      padding: 16px;
+      box-sizing: border-box;
+    }
+    .card {
+      width: min(400px, 100%);
+      padding: 24px;
+      box-sizing: border-box;
+    }
+    form {
+      display: flex;
+      flex-direction: column;
+    }
+    h1 {
+      font: var(--mat-sys-headline-small);
+      font-weight: 700;
+      margin: 0;
+      display: flex;
+      align-items: center;
+      gap: 8px;
+    }
+    .mark {
+      color: var(--mat-sys-primary);
+    }
+    .lead {
+      color: var(--jw-muted-text);
+      margin: 4px 0 20px;
+    }
+    .notice,
+    .failure {
+      display: flex;
+      gap: 8px;
+      align-items: flex-start;
+      margin: 0 0 16px;
+      padding: 8px 10px;
+      border-radius: 6px;
+    }
+    .notice mat-icon,
+    .failure mat-icon {
+      flex: none;
+    }
+    .notice {
+      background: var(--mat-sys-surface-container-high);
+    }
+    .failure {
+      color: var(--jw-alarm-high);
+      background: var(--jw-alarm-high-bg);
+    }
+    .submit {
+      margin-top: 8px;
+      height: 44px;
+    }
+    mat-progress-bar {
+      margin-top: 8px;
+    }
   `,
 })
 export class SignIn {

@@ -30,7 +30,16 @@ export const parseNumber = (text: string | null | undefined): number | null => {
       </div>
     }
     @if (capacityLocked() || scaDriven()) {
-      <p class="fixed">For {{ familyLocked() ? (family() === 'extended-life' ? 'extended-life' : 'conventional') + ' coolant' : 'this coolant' }}@if (capacityLocked()) { in this engine's {{ capacityText() }} {{ volumeUnit() === 'gal' ? 'US gal' : 'L' }}}@if (scaDriven()) {, with the SCA reading typed above}.</p>
+      <p class="fixed">
+        For {{ familyLocked() ? (family() === 'extended-life' ? 'extended-life' : 'conventional') + ' coolant' : 'this coolant' }}
+        @if (capacityLocked()) {
+          in this engine's {{ capacityText() }} {{ volumeUnit() === 'gal' ? 'US gal' : 'L' }}
+        }
+        @if (scaDriven()) {
+          , with the SCA reading typed above
+        }
+        .
+      </p>
     }
     @if (!scaDriven() || !capacityLocked()) {
       <div class="row">
@@ -39,7 +48,9 @@ export const parseNumber = (text: string | null | undefined): number | null => {
             <mat-label>SCA reading</mat-label>
             <input matInput inputmode="decimal" name="sca" [ngModel]="scaText()" (ngModelChange)="scaText.set($event)" data-test="sca" />
             <span matTextSuffix>units/US gal</span>
-            @if (error()?.field === 'scaUnitsPerGal') { <mat-hint class="err" role="alert">{{ error()!.message }}</mat-hint> }
+            @if (error()?.field === 'scaUnitsPerGal') {
+              <mat-hint class="err" role="alert">{{ error()!.message }}</mat-hint>
+            }
           </mat-form-field>
         }
         @if (!capacityLocked()) {
@@ -47,20 +58,34 @@ export const parseNumber = (text: string | null | undefined): number | null => {
             <mat-label>Cooling-system capacity</mat-label>
             <input matInput inputmode="decimal" name="capacity" [ngModel]="capacityText()" (ngModelChange)="capacityText.set($event)" data-test="capacity" />
             <span matTextSuffix>{{ volumeUnit() === 'gal' ? 'US gal' : 'L' }}</span>
-            @if (error()?.field === 'capacityL') { <mat-hint class="err" role="alert">{{ error()!.message }}</mat-hint> }
+            @if (error()?.field === 'capacityL') {
+              <mat-hint class="err" role="alert">{{ error()!.message }}</mat-hint>
+            }
           </mat-form-field>
         }
       </div>
     }
     @if (error(); as e) {
-      @if ((scaDriven() && e.field === 'scaUnitsPerGal') || (capacityLocked() && e.field === 'capacityL')) { <p class="err" role="alert">{{ e.message }}</p> }
+      @if ((scaDriven() && e.field === 'scaUnitsPerGal') || (capacityLocked() && e.field === 'capacityL')) {
+        <p class="err" role="alert">{{ e.message }}</p>
+      }
     }
     <jw-additive-decision [decision]="decision()" />
   `,
   styles: `
-    .row { display: flex; flex-wrap: wrap; gap: 12px; margin-bottom: 8px; }
-    .err { color: var(--jw-alarm-high); }
-    .fixed { color: var(--jw-muted-text); margin: 0 0 8px; }
+    .row {
+      display: flex;
+      flex-wrap: wrap;
+      gap: 12px;
+      margin-bottom: 8px;
+    }
+    .err {
+      color: var(--jw-alarm-high);
+    }
+    .fixed {
+      color: var(--jw-muted-text);
+      margin: 0 0 8px;
+    }
   `,
 })
 export class AdditiveForm {

@@ -17,12 +17,16 @@ import { AdditiveProfile } from './coolant-types';
   imports: [JwTimePipe, ReactiveFormsModule, MatButtonModule, MatFormFieldModule, MatIconModule, MatInputModule, ChemistryLimitsForm],
   template: `
     <p class="lead">
-      The liquid additive's strength and the pre-charge of each charged filter size, as printed on their labels. The dose and
-      initial-charge calculators use them. Write a plain description, not a brand name.
+      The liquid additive's strength and the pre-charge of each charged filter size, as printed on their labels. The dose and initial-charge calculators use
+      them. Write a plain description, not a brand name.
     </p>
     @if (profile(); as p) {
       <p class="state" data-test="profile-state">
-        @if (p.configured) { Last changed {{ p.updatedAt | jwTime: null : 'datetime' }}. } @else { <mat-icon aria-hidden="true" fontIcon="info" /> Not set yet: the initial-charge calculator asks for the strength each time. }
+        @if (p.configured) {
+          Last changed {{ p.updatedAt | jwTime: null : 'datetime' }}.
+        } @else {
+          <mat-icon aria-hidden="true" fontIcon="info" /> Not set yet: the initial-charge calculator asks for the strength each time.
+        }
       </p>
     }
     <form [formGroup]="form" (ngSubmit)="save()" novalidate class="form">
@@ -34,36 +38,80 @@ import { AdditiveProfile } from './coolant-types';
         <mat-hint>{{ perGallon() }}</mat-hint>
       </mat-form-field>
       <div class="row">
-        <mat-form-field><mat-label>Lowest level</mat-label><input matInput type="number" formControlName="scaLow" /><span matTextSuffix>units/US gal</span></mat-form-field>
-        <mat-form-field><mat-label>Highest level</mat-label><input matInput type="number" formControlName="scaHigh" /><span matTextSuffix>units/US gal</span></mat-form-field>
+        <mat-form-field
+          ><mat-label>Lowest level</mat-label><input matInput type="number" formControlName="scaLow" /><span matTextSuffix>units/US gal</span></mat-form-field
+        >
+        <mat-form-field
+          ><mat-label>Highest level</mat-label><input matInput type="number" formControlName="scaHigh" /><span matTextSuffix>units/US gal</span></mat-form-field
+        >
       </div>
       <h2>Charged filter sizes</h2>
       <div formArrayName="filterSizes">
         @for (f of sizes.controls; track f; let i = $index) {
           <div class="row" [formGroupName]="i">
-            <mat-form-field class="wide"><mat-label>Filter {{ i + 1 }}</mat-label><input matInput formControlName="label" maxlength="60" /></mat-form-field>
-            <mat-form-field><mat-label>Pre-charge</mat-label><input matInput type="number" formControlName="prechargeUnits" /><span matTextSuffix>units</span></mat-form-field>
-            <button mat-icon-button type="button" (click)="sizes.removeAt(i)" [attr.aria-label]="'Remove filter ' + (i + 1)"><mat-icon fontIcon="delete" /></button>
+            <mat-form-field class="wide"
+              ><mat-label>Filter {{ i + 1 }}</mat-label
+              ><input matInput formControlName="label" maxlength="60"
+            /></mat-form-field>
+            <mat-form-field
+              ><mat-label>Pre-charge</mat-label><input matInput type="number" formControlName="prechargeUnits" /><span matTextSuffix
+                >units</span
+              ></mat-form-field
+            >
+            <button mat-icon-button type="button" (click)="sizes.removeAt(i)" [attr.aria-label]="'Remove filter ' + (i + 1)">
+              <mat-icon fontIcon="delete" />
+            </button>
           </div>
         }
       </div>
       <button mat-stroked-button type="button" class="add" (click)="addSize()"><mat-icon fontIcon="add" />Add a filter size</button>
-      @if (error(); as e) { <p class="error" role="alert">{{ e }}</p> }
-      @if (savedAt()) { <p class="ok" role="status">Saved.</p> }
+      @if (error(); as e) {
+        <p class="error" role="alert">{{ e }}</p>
+      }
+      @if (savedAt()) {
+        <p class="ok" role="status">Saved.</p>
+      }
       <div><button mat-flat-button type="submit" [disabled]="saving()">Save additive profile</button></div>
     </form>
     <jw-chemistry-limits-form />
   `,
   styles: `
-    :host { display: block; padding-top: 12px; max-width: 820px; }
-    .lead, .state { color: var(--jw-muted-text); }
-    .form { display: flex; flex-direction: column; gap: 4px; }
-    .row { display: flex; gap: 12px; flex-wrap: wrap; align-items: flex-start; }
-    .wide { min-width: 360px; }
-    mat-form-field { min-width: 220px; }
-    h2 { font-size: 1.1rem; margin: 12px 0 4px; }
-    .add { align-self: flex-start; }
-    .error { color: var(--jw-alarm-high); }
+    :host {
+      display: block;
+      padding-top: 12px;
+      max-width: 820px;
+    }
+    .lead,
+    .state {
+      color: var(--jw-muted-text);
+    }
+    .form {
+      display: flex;
+      flex-direction: column;
+      gap: 4px;
+    }
+    .row {
+      display: flex;
+      gap: 12px;
+      flex-wrap: wrap;
+      align-items: flex-start;
+    }
+    .wide {
+      min-width: 360px;
+    }
+    mat-form-field {
+      min-width: 220px;
+    }
+    h2 {
+      font-size: 1.1rem;
+      margin: 12px 0 4px;
+    }
+    .add {
+      align-self: flex-start;
+    }
+    .error {
+      color: var(--jw-alarm-high);
+    }
   `,
 })
 export class AdditiveProfilePage {
@@ -81,7 +129,9 @@ export class AdditiveProfilePage {
     scaHigh: [3.0, [Validators.required, Validators.min(0)]],
     filterSizes: this.fb.array<ReturnType<AdditiveProfilePage['sizeGroup']>>([]),
   });
-  protected get sizes(): FormArray { return this.form.controls.filterSizes; }
+  protected get sizes(): FormArray {
+    return this.form.controls.filterSizes;
+  }
 
   constructor() {
     this.api.profile().subscribe({ next: (p) => this.fill(p), error: (e) => this.error.set(this.message(e)) });
@@ -119,7 +169,10 @@ export class AdditiveProfilePage {
     this.saving.set(true);
     this.error.set(null);
     const body = {
-      name: v.name.trim(), liquidUnitsPerLitre: Number(v.liquidUnitsPerLitre), scaLow: Number(v.scaLow), scaHigh: Number(v.scaHigh),
+      name: v.name.trim(),
+      liquidUnitsPerLitre: Number(v.liquidUnitsPerLitre),
+      scaLow: Number(v.scaLow),
+      scaHigh: Number(v.scaHigh),
       filterSizes: v.filterSizes.map((f) => ({ label: String(f.label).trim(), prechargeUnits: Number(f.prechargeUnits) })),
     };
     this.api.saveProfile(body).subscribe({

@@ -13,7 +13,7 @@ describe('CalculatorsPage', () => {
     set(fixture.componentInstance);
     fixture.detectChanges();
     await fixture.whenStable();
-    return (fixture.nativeElement as HTMLElement);
+    return fixture.nativeElement as HTMLElement;
   }
 
   it('a premix equal to the target: drain completely and refill with premix; the additive loss and its dose', async () => {

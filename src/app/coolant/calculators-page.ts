@@ -7,8 +7,15 @@ import { MatIconModule } from '@angular/material/icon';
 import { MatInputModule } from '@angular/material/input';
 import { MatSelectModule } from '@angular/material/select';
 import {
-  ConcentrationBasis, CoolantInputError, GlycolType, assessFreezeProtection, boilingPointC, checkMakeUpWater, correctMix,
-  freezeTable, percentForFreezePoint,
+  ConcentrationBasis,
+  CoolantInputError,
+  GlycolType,
+  assessFreezeProtection,
+  boilingPointC,
+  checkMakeUpWater,
+  correctMix,
+  freezeTable,
+  percentForFreezePoint,
 } from '../../../shared/coolant';
 import { fromCelsius, fromKpa, gallonsToLitres, litresToGallons, toCelsius, toKpa, UNIT_SYMBOL } from '../../../shared/units';
 import { PreferencesService } from '../core/preferences.service';
@@ -35,7 +42,19 @@ function run<T>(inputs: (number | null)[], fn: () => T): Outcome<T> {
 @Component({
   selector: 'jw-calculators-page',
   changeDetection: ChangeDetectionStrategy.OnPush,
-  imports: [FormsModule, MatCardModule, MatFormFieldModule, MatInputModule, MatSelectModule, MatButtonToggleModule, MatIconModule, AdditiveForm, CoolantCautions, CoolantExplainer, JwQuantitiesPipe],
+  imports: [
+    FormsModule,
+    MatCardModule,
+    MatFormFieldModule,
+    MatInputModule,
+    MatSelectModule,
+    MatButtonToggleModule,
+    MatIconModule,
+    AdditiveForm,
+    CoolantCautions,
+    CoolantExplainer,
+    JwQuantitiesPipe,
+  ],
   templateUrl: './calculators-page.html',
   styleUrl: './calculators-page.scss',
 })
@@ -101,18 +120,29 @@ export class CalculatorsPage {
     const pre = parseNumber(this.premixText());
     const sca = parseNumber(this.mixScaText());
     const strength = parseNumber(this.mixStrengthText());
-    if ([pre, sca, strength].some((v) => v !== null && Number.isNaN(v))) return { value: null, error: 'Type a number (use a point for decimals).' } as Outcome<never>;
+    if ([pre, sca, strength].some((v) => v !== null && Number.isNaN(v)))
+      return { value: null, error: 'Type a number (use a point for decimals).' } as Outcome<never>;
     return run([cap, m, t], () =>
       correctMix({
         capacityL: this.prefs.volumeUnit() === 'gal' ? gallonsToLitres(cap!) : cap!,
-        measuredPercent: m!, targetPercent: t!, premixPercent: pre ?? undefined,
-        scaUnitsPerGal: sca ?? undefined, liquidUnitsPerLitre: strength ?? undefined,
+        measuredPercent: m!,
+        targetPercent: t!,
+        premixPercent: pre ?? undefined,
+        scaUnitsPerGal: sca ?? undefined,
+        liquidUnitsPerLitre: strength ?? undefined,
       }),
     );
   });
 
   // make-up water
-  readonly water = { chlorideMgL: signal(''), sulfateMgL: signal(''), hardnessMgLCaCO3: signal(''), tdsMgL: signal(''), pH: signal(''), conductivityUsCm: signal('') };
+  readonly water = {
+    chlorideMgL: signal(''),
+    sulfateMgL: signal(''),
+    hardnessMgLCaCO3: signal(''),
+    tdsMgL: signal(''),
+    pH: signal(''),
+    conductivityUsCm: signal(''),
+  };
   protected readonly waterCheck = computed(() => {
     const values = Object.fromEntries(Object.entries(this.water).map(([k, s]) => [k, parseNumber(s())]));
     if (Object.values(values).every((v) => v === null)) return { value: null, error: null } as Outcome<never>;

@@ -34,7 +34,7 @@ describe('ChemistryFindings', () => {
     expect(freeze.textContent).toContain('Raise the glycol');
   });
 
-  it('the freeze point is shown in the user\'s unit: -40 °C = -40.0 °F', async () => {
+  it("the freeze point is shown in the user's unit: -40 °C = -40.0 °F", async () => {
     localStorage.setItem('jw.preferences', JSON.stringify({ temperature: 'degF', pressure: 'psi', volume: 'gal', theme: 'light' }));
     const el = await render(judgeChemistry({ freezePointC: -40 }, { glycolType: 'ethylene', designLowC: -30 }));
     expect(el.querySelector('[data-test="finding-freezeProtection"]')!.textContent).toContain('-40.0 °F');

@@ -20,7 +20,14 @@ const STATUS: Record<ChemistryFinding['status'], { text: string; icon: string; a
   unknown: { text: 'Not judged', icon: 'help_outline', abnormal: false },
   signs: { text: 'Signs seen', icon: 'report', abnormal: true },
 };
-const UNIT: Record<ChemistryFinding['field'], string> = { nitritePpm: 'ppm', molybdatePpm: 'ppm', ph: '', reserveAlkalinityMl: 'mL', freezeProtection: '', breakdownSigns: '' };
+const UNIT: Record<ChemistryFinding['field'], string> = {
+  nitritePpm: 'ppm',
+  molybdatePpm: 'ppm',
+  ph: '',
+  reserveAlkalinityMl: 'mL',
+  freezeProtection: '',
+  breakdownSigns: '',
+};
 
 /** The judgement of each measured chemistry field: state in words and shape (colour only when abnormal), finding, action, source. */
 @Component({
@@ -35,7 +42,9 @@ const UNIT: Record<ChemistryFinding['field'], string> = { nitritePpm: 'ppm', mol
             <p class="head">
               <mat-icon aria-hidden="true" [fontIcon]="r.s.icon" />
               <strong>{{ r.label }}: {{ r.s.text }}</strong>
-              @if (r.value) { <span class="value">{{ r.value }}</span> }
+              @if (r.value) {
+                <span class="value">{{ r.value }}</span>
+              }
             </p>
             <p class="message">{{ r.f.message }}</p>
             <p class="action"><span class="tag">Action</span> {{ r.f.action }}</p>
@@ -46,15 +55,48 @@ const UNIT: Record<ChemistryFinding['field'], string> = { nitritePpm: 'ppm', mol
     }
   `,
   styles: `
-    .findings { list-style: none; padding: 0; margin: 8px 0; }
-    li { border: 1px solid var(--jw-band); border-radius: 4px; padding: 6px 12px; margin: 6px 0; }
-    li.abnormal { border-color: var(--jw-warning); background: var(--jw-warning-bg); }
-    .head { display: flex; align-items: center; gap: 8px; margin: 2px 0; }
-    .abnormal .head { color: var(--jw-warning); }
-    .value { color: var(--jw-muted-text); font-variant-numeric: tabular-nums; }
-    .message, .action { margin: 2px 0; }
-    .tag { font-weight: 600; font-size: 0.8rem; margin-right: 4px; }
-    .source { color: var(--jw-muted-text); font-size: 0.8rem; margin: 2px 0; }
+    .findings {
+      list-style: none;
+      padding: 0;
+      margin: 8px 0;
+    }
+    li {
+      border: 1px solid var(--jw-band);
+      border-radius: 4px;
+      padding: 6px 12px;
+      margin: 6px 0;
+    }
+    li.abnormal {
+      border-color: var(--jw-warning);
+      background: var(--jw-warning-bg);
+    }
+    .head {
+      display: flex;
+      align-items: center;
+      gap: 8px;
+      margin: 2px 0;
+    }
+    .abnormal .head {
+      color: var(--jw-warning);
+    }
+    .value {
+      color: var(--jw-muted-text);
+      font-variant-numeric: tabular-nums;
+    }
+    .message,
+    .action {
+      margin: 2px 0;
+    }
+    .tag {
+      font-weight: 600;
+      font-size: 0.8rem;
+      margin-right: 4px;
+    }
+    .source {
+      color: var(--jw-muted-text);
+      font-size: 0.8rem;
+      margin: 2px 0;
+    }
   `,
 })
 export class ChemistryFindings {

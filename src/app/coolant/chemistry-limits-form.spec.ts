@@ -12,7 +12,14 @@ describe('ChemistryLimitsForm', () => {
     const http = TestBed.inject(HttpTestingController);
     const fixture = TestBed.createComponent(ChemistryLimitsForm);
     fixture.detectChanges();
-    const view = { limits: { ...DEFAULT_CHEMISTRY_LIMITS }, defaults: { ...DEFAULT_CHEMISTRY_LIMITS }, extender: null, extenderDefault: { everyHours: 6000, everyDays: 1095 }, configured: false, updatedAt: null };
+    const view = {
+      limits: { ...DEFAULT_CHEMISTRY_LIMITS },
+      defaults: { ...DEFAULT_CHEMISTRY_LIMITS },
+      extender: null,
+      extenderDefault: { everyHours: 6000, everyDays: 1095 },
+      configured: false,
+      updatedAt: null,
+    };
     http.expectOne('/api/coolant-limits').flush(view);
     await fixture.whenStable();
     fixture.detectChanges();
@@ -38,7 +45,14 @@ describe('ChemistryLimitsForm', () => {
     const http = TestBed.inject(HttpTestingController);
     const fixture = TestBed.createComponent(ChemistryLimitsForm);
     fixture.detectChanges();
-    const view = { limits: { ...DEFAULT_CHEMISTRY_LIMITS, freezeMarginK: 3.3 }, defaults: { ...DEFAULT_CHEMISTRY_LIMITS }, extender: null, extenderDefault: { everyHours: 6000, everyDays: 1095 }, configured: true, updatedAt: null };
+    const view = {
+      limits: { ...DEFAULT_CHEMISTRY_LIMITS, freezeMarginK: 3.3 },
+      defaults: { ...DEFAULT_CHEMISTRY_LIMITS },
+      extender: null,
+      extenderDefault: { everyHours: 6000, everyDays: 1095 },
+      configured: true,
+      updatedAt: null,
+    };
     http.expectOne('/api/coolant-limits').flush(view);
     await fixture.whenStable();
     fixture.detectChanges();

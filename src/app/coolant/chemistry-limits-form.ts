@@ -17,45 +17,96 @@ import { ChemistryLimitsView } from './coolant-types';
   imports: [ReactiveFormsModule, MatButtonModule, MatFormFieldModule, MatInputModule],
   template: `
     <h2>Coolant chemistry limits</h2>
-    <p class="lead">Each measured field of a coolant test is judged against these. Defaults: pH from {{ src.ph }}; nitrite, molybdate and reserve
-      alkalinity are {{ src.nitrite }}; the freeze margin is common practice. Enter the coolant maker's figures where they differ.</p>
+    <p class="lead">
+      Each measured field of a coolant test is judged against these. Defaults: pH from {{ src.ph }}; nitrite, molybdate and reserve alkalinity are
+      {{ src.nitrite }}; the freeze margin is common practice. Enter the coolant maker's figures where they differ.
+    </p>
     <form [formGroup]="form" (ngSubmit)="save()" novalidate class="form">
       <div class="row">
-        <mat-form-field><mat-label>Nitrite, lowest</mat-label><input matInput type="number" formControlName="nitriteLowPpm" /><span matTextSuffix>ppm</span></mat-form-field>
-        <mat-form-field><mat-label>Nitrite, highest</mat-label><input matInput type="number" formControlName="nitriteHighPpm" /><span matTextSuffix>ppm</span></mat-form-field>
+        <mat-form-field
+          ><mat-label>Nitrite, lowest</mat-label><input matInput type="number" formControlName="nitriteLowPpm" /><span matTextSuffix>ppm</span></mat-form-field
+        >
+        <mat-form-field
+          ><mat-label>Nitrite, highest</mat-label><input matInput type="number" formControlName="nitriteHighPpm" /><span matTextSuffix
+            >ppm</span
+          ></mat-form-field
+        >
       </div>
       <div class="row">
-        <mat-form-field><mat-label>Molybdate, lowest</mat-label><input matInput type="number" formControlName="molybdateLowPpm" /><span matTextSuffix>ppm</span></mat-form-field>
-        <mat-form-field><mat-label>Molybdate, highest</mat-label><input matInput type="number" formControlName="molybdateHighPpm" /><span matTextSuffix>ppm</span></mat-form-field>
+        <mat-form-field
+          ><mat-label>Molybdate, lowest</mat-label><input matInput type="number" formControlName="molybdateLowPpm" /><span matTextSuffix
+            >ppm</span
+          ></mat-form-field
+        >
+        <mat-form-field
+          ><mat-label>Molybdate, highest</mat-label><input matInput type="number" formControlName="molybdateHighPpm" /><span matTextSuffix
+            >ppm</span
+          ></mat-form-field
+        >
       </div>
       <div class="row">
         <mat-form-field><mat-label>pH, lowest</mat-label><input matInput type="number" formControlName="phLow" /></mat-form-field>
         <mat-form-field><mat-label>pH, highest</mat-label><input matInput type="number" formControlName="phHigh" /></mat-form-field>
       </div>
       <div class="row">
-        <mat-form-field><mat-label>Reserve alkalinity, lowest</mat-label><input matInput type="number" formControlName="reserveAlkalinityLowMl" /><span matTextSuffix>mL</span></mat-form-field>
-        <mat-form-field><mat-label>Freeze margin below the design low</mat-label><input matInput type="number" formControlName="freezeMargin" data-test="freeze-margin" /><span matTextSuffix>{{ marginSymbol }}</span>
-          <mat-hint>Each site's lowest expected temperature is set under Administration, Sites.</mat-hint></mat-form-field>
+        <mat-form-field
+          ><mat-label>Reserve alkalinity, lowest</mat-label><input matInput type="number" formControlName="reserveAlkalinityLowMl" /><span matTextSuffix
+            >mL</span
+          ></mat-form-field
+        >
+        <mat-form-field
+          ><mat-label>Freeze margin below the design low</mat-label
+          ><input matInput type="number" formControlName="freezeMargin" data-test="freeze-margin" /><span matTextSuffix>{{ marginSymbol }}</span>
+          <mat-hint>Each site's lowest expected temperature is set under Administration, Sites.</mat-hint></mat-form-field
+        >
       </div>
       <h3>Extended-life coolant extender</h3>
       <p class="lead">Blank for the common-practice placeholder ({{ extenderDefault() }}); the coolant maker's interval belongs here.</p>
       <div class="row">
-        <mat-form-field><mat-label>Every</mat-label><input matInput type="number" formControlName="extenderHours" /><span matTextSuffix>run hours</span></mat-form-field>
-        <mat-form-field><mat-label>or every</mat-label><input matInput type="number" formControlName="extenderDays" /><span matTextSuffix>days</span></mat-form-field>
+        <mat-form-field
+          ><mat-label>Every</mat-label><input matInput type="number" formControlName="extenderHours" /><span matTextSuffix>run hours</span></mat-form-field
+        >
+        <mat-form-field
+          ><mat-label>or every</mat-label><input matInput type="number" formControlName="extenderDays" /><span matTextSuffix>days</span></mat-form-field
+        >
       </div>
-      @if (error(); as e) { <p class="error" role="alert">{{ e }}</p> }
-      @if (saved()) { <p class="ok" role="status">Saved.</p> }
+      @if (error(); as e) {
+        <p class="error" role="alert">{{ e }}</p>
+      }
+      @if (saved()) {
+        <p class="ok" role="status">Saved.</p>
+      }
       <div><button mat-flat-button type="submit" [disabled]="saving()">Save limits</button></div>
     </form>
   `,
   styles: `
-    .lead { color: var(--jw-muted-text); }
-    .form { display: flex; flex-direction: column; gap: 4px; }
-    .row { display: flex; gap: 12px; flex-wrap: wrap; }
-    mat-form-field { min-width: 240px; }
-    h2 { font-size: 1.1rem; margin: 16px 0 4px; }
-    h3 { font-size: 1rem; margin: 8px 0 0; }
-    .error { color: var(--jw-alarm-high); }
+    .lead {
+      color: var(--jw-muted-text);
+    }
+    .form {
+      display: flex;
+      flex-direction: column;
+      gap: 4px;
+    }
+    .row {
+      display: flex;
+      gap: 12px;
+      flex-wrap: wrap;
+    }
+    mat-form-field {
+      min-width: 240px;
+    }
+    h2 {
+      font-size: 1.1rem;
+      margin: 16px 0 4px;
+    }
+    h3 {
+      font-size: 1rem;
+      margin: 8px 0 0;
+    }
+    .error {
+      color: var(--jw-alarm-high);
+    }
   `,
 })
 export class ChemistryLimitsForm {
@@ -73,9 +124,16 @@ export class ChemistryLimitsForm {
 
   private readonly num = (v: number | null = null) => this.fb.control<number | null>(v, [Validators.min(0)]);
   protected readonly form = this.fb.group({
-    nitriteLowPpm: this.num(), nitriteHighPpm: this.num(), molybdateLowPpm: this.num(), molybdateHighPpm: this.num(),
-    phLow: this.num(), phHigh: this.num(), reserveAlkalinityLowMl: this.num(), freezeMargin: this.num(),
-    extenderHours: this.num(), extenderDays: this.num(),
+    nitriteLowPpm: this.num(),
+    nitriteHighPpm: this.num(),
+    molybdateLowPpm: this.num(),
+    molybdateHighPpm: this.num(),
+    phLow: this.num(),
+    phHigh: this.num(),
+    reserveAlkalinityLowMl: this.num(),
+    freezeMargin: this.num(),
+    extenderHours: this.num(),
+    extenderDays: this.num(),
   });
 
   constructor() {
@@ -84,7 +142,12 @@ export class ChemistryLimitsForm {
 
   private fill(v: ChemistryLimitsView): void {
     this.loadedMarginK = v.limits.freezeMarginK;
-    this.form.patchValue({ ...v.limits, freezeMargin: differenceForEntry(v.limits.freezeMarginK, this.unit), extenderHours: v.extender?.everyHours ?? null, extenderDays: v.extender?.everyDays ?? null });
+    this.form.patchValue({
+      ...v.limits,
+      freezeMargin: differenceForEntry(v.limits.freezeMarginK, this.unit),
+      extenderHours: v.extender?.everyHours ?? null,
+      extenderDays: v.extender?.everyDays ?? null,
+    });
     this.form.markAsPristine();
     this.extenderDefault.set(`${v.extenderDefault.everyHours} h or ${v.extenderDefault.everyDays} days`);
   }
@@ -99,9 +162,12 @@ export class ChemistryLimitsForm {
     // unchanged: the stored K (a margin shown rounded in °F is not rewritten); changed: converted from the user's unit
     const margin = this.form.controls.freezeMargin;
     if (!margin.dirty && this.loadedMarginK !== null) limits.freezeMarginK = this.loadedMarginK;
-    else if (v.freezeMargin !== null && String(v.freezeMargin) !== '') limits.freezeMarginK = Math.round(differenceFromEntry(Number(v.freezeMargin), this.unit) * 1000) / 1000;
+    else if (v.freezeMargin !== null && String(v.freezeMargin) !== '')
+      limits.freezeMarginK = Math.round(differenceFromEntry(Number(v.freezeMargin), this.unit) * 1000) / 1000;
     const hasExt = (v.extenderHours !== null && String(v.extenderHours) !== '') || (v.extenderDays !== null && String(v.extenderDays) !== '');
-    const extender = hasExt ? { everyHours: v.extenderHours === null ? null : Number(v.extenderHours), everyDays: v.extenderDays === null ? null : Number(v.extenderDays) } : null;
+    const extender = hasExt
+      ? { everyHours: v.extenderHours === null ? null : Number(v.extenderHours), everyDays: v.extenderDays === null ? null : Number(v.extenderDays) }
+      : null;
     this.saving.set(true);
     this.error.set(null);
     this.api.saveChemistryLimits({ ...limits, extender }).subscribe({

@@ -10,14 +10,31 @@ import { COOLANT_CAUTIONS, CoolantCautionId } from '../../../shared/coolant';
   template: `
     <aside class="cautions" aria-label="Cautions">
       @for (c of shown(); track c.id) {
-        <p class="caution"><mat-icon aria-hidden="true" fontIcon="warning_amber" /><span><strong>{{ c.title }}.</strong> {{ c.text }}</span></p>
+        <p class="caution">
+          <mat-icon aria-hidden="true" fontIcon="warning_amber" /><span
+            ><strong>{{ c.title }}.</strong> {{ c.text }}</span
+          >
+        </p>
       }
     </aside>
   `,
   styles: `
-    .cautions { border-left: 4px solid var(--jw-warning); padding: 4px 12px; margin: 12px 0; }
-    .caution { display: flex; gap: 8px; align-items: flex-start; margin: 6px 0; font-size: 0.9rem; }
-    mat-icon { color: var(--jw-warning); flex: none; }
+    .cautions {
+      border-left: 4px solid var(--jw-warning);
+      padding: 4px 12px;
+      margin: 12px 0;
+    }
+    .caution {
+      display: flex;
+      gap: 8px;
+      align-items: flex-start;
+      margin: 6px 0;
+      font-size: 0.9rem;
+    }
+    mat-icon {
+      color: var(--jw-warning);
+      flex: none;
+    }
   `,
 })
 export class CoolantCautions {

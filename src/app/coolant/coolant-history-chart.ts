@@ -14,10 +14,24 @@ export interface HistoryPoint {
   imports: [ChartComponent],
   template: `
     <section [attr.aria-label]="title() + ' over time' + (unit() ? ', in ' + unit() : '')">
-      <h3>{{ title() }} <span class="unit">{{ unit() }}</span></h3>
+      <h3>
+        {{ title() }} <span class="unit">{{ unit() }}</span>
+      </h3>
       @if (points().length) {
-        <apx-chart [chart]="chart" [series]="series()" [xaxis]="xaxis" [yaxis]="yaxis()" [annotations]="annotations()" [stroke]="stroke"
-          [markers]="markers" [colors]="colors()" [dataLabels]="{ enabled: false }" [legend]="{ show: false }" [theme]="theme()" [grid]="grid()" />
+        <apx-chart
+          [chart]="chart"
+          [series]="series()"
+          [xaxis]="xaxis"
+          [yaxis]="yaxis()"
+          [annotations]="annotations()"
+          [stroke]="stroke"
+          [markers]="markers"
+          [colors]="colors()"
+          [dataLabels]="{ enabled: false }"
+          [legend]="{ show: false }"
+          [theme]="theme()"
+          [grid]="grid()"
+        />
         <p class="band">{{ bandText() }}</p>
       } @else {
         <p class="none">No {{ title().toLowerCase() }} recorded yet.</p>
@@ -25,9 +39,20 @@ export interface HistoryPoint {
     </section>
   `,
   styles: `
-    h3 { font-size: 0.95rem; margin: 8px 0 0; }
-    .unit, .band, .none { color: var(--jw-muted-text); font-size: 0.8rem; font-weight: normal; }
-    .band { margin: 0 0 8px; }
+    h3 {
+      font-size: 0.95rem;
+      margin: 8px 0 0;
+    }
+    .unit,
+    .band,
+    .none {
+      color: var(--jw-muted-text);
+      font-size: 0.8rem;
+      font-weight: normal;
+    }
+    .band {
+      margin: 0 0 8px;
+    }
   `,
 })
 export class CoolantHistoryChart {
@@ -38,7 +63,14 @@ export class CoolantHistoryChart {
   readonly band = input<{ low: number; high: number; source: string } | null>(null);
   readonly decimals = input(1);
 
-  protected readonly chart: ApexChart = { type: 'line', height: 170, animations: { enabled: false }, toolbar: { show: false }, zoom: { enabled: false }, background: 'transparent' };
+  protected readonly chart: ApexChart = {
+    type: 'line',
+    height: 170,
+    animations: { enabled: false },
+    toolbar: { show: false },
+    zoom: { enabled: false },
+    background: 'transparent',
+  };
   protected readonly xaxis: ApexXAxis = { type: 'datetime', labels: { datetimeUTC: false } };
   protected readonly stroke = { width: 2, curve: 'straight' as const };
   protected readonly markers = { size: 4, shape: 'square' as const };
@@ -63,6 +95,8 @@ export class CoolantHistoryChart {
   protected readonly bandText = computed(() => {
     const b = this.band();
     const d = this.decimals();
-    return b ? `Shaded: target ${b.low.toFixed(d)} to ${b.high.toFixed(d)}${this.unit() ? ' ' + this.unit() : ''} (${b.source}).` : 'No target band: watch the trend (a steady rise points to contamination).';
+    return b
+      ? `Shaded: target ${b.low.toFixed(d)} to ${b.high.toFixed(d)}${this.unit() ? ' ' + this.unit() : ''} (${b.source}).`
+      : 'No target band: watch the trend (a steady rise points to contamination).';
   });
 }

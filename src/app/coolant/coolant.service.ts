@@ -1,7 +1,19 @@
 import { HttpClient } from '@angular/common/http';
 import { Injectable, inject } from '@angular/core';
 import { Observable } from 'rxjs';
-import { AdditiveProfile, AdditiveProfileInput, CoolantTest, RunHoursEntry, DueListResponse, ImportResult, NewCoolantTest, NewTopUp, CoolantTopUp, TopUpsAnswer, ChemistryLimitsView } from './coolant-types';
+import {
+  AdditiveProfile,
+  AdditiveProfileInput,
+  CoolantTest,
+  RunHoursEntry,
+  DueListResponse,
+  ImportResult,
+  NewCoolantTest,
+  NewTopUp,
+  CoolantTopUp,
+  TopUpsAnswer,
+  ChemistryLimitsView,
+} from './coolant-types';
 import type { ChemistryLimits } from '../../../shared/coolant';
 
 /** HTTP for the coolant screens; SI units both ways. */
@@ -45,7 +57,9 @@ export class CoolantService {
     return this.http.get<ChemistryLimitsView>('/api/coolant-limits');
   }
 
-  saveChemistryLimits(body: Partial<ChemistryLimits> & { extender: { everyHours: number | null; everyDays: number | null } | null }): Observable<ChemistryLimitsView> {
+  saveChemistryLimits(
+    body: Partial<ChemistryLimits> & { extender: { everyHours: number | null; everyDays: number | null } | null },
+  ): Observable<ChemistryLimitsView> {
     return this.http.put<ChemistryLimitsView>('/api/coolant-limits', body);
   }
 

@@ -46,8 +46,25 @@ const errorText = (e: unknown): string => {
   selector: 'jw-engine-coolant-page',
   changeDetection: ChangeDetectionStrategy.OnPush,
   imports: [
-    JwTimePipe, JwQuantitiesPipe, FormsModule, RouterLink, MatButtonModule, MatCardModule, MatFormFieldModule, MatIconModule, MatInputModule, MatSelectModule, MatTableModule,
-    AdditiveForm, AdditiveDecisionView, ChemistryFindings, CoolantCautions, CoolantExplainer, CoolantHistoryChart, TopUpsCard, MatCheckboxModule,
+    JwTimePipe,
+    JwQuantitiesPipe,
+    FormsModule,
+    RouterLink,
+    MatButtonModule,
+    MatCardModule,
+    MatFormFieldModule,
+    MatIconModule,
+    MatInputModule,
+    MatSelectModule,
+    MatTableModule,
+    AdditiveForm,
+    AdditiveDecisionView,
+    ChemistryFindings,
+    CoolantCautions,
+    CoolantExplainer,
+    CoolantHistoryChart,
+    TopUpsCard,
+    MatCheckboxModule,
   ],
   templateUrl: './engine-coolant-page.html',
   styleUrl: './engine-coolant-page.scss',
@@ -69,7 +86,9 @@ export class EngineCoolantPage {
   protected readonly engine = toSignal(toObservable(this.engineId).pipe(switchMap((id) => this.engines.engine(id).pipe(catchError(() => of(null))))));
   protected readonly profile = toSignal(this.api.profile().pipe(catchError(() => of(null))), { initialValue: null as AdditiveProfile | null });
   protected readonly tests = toSignal(
-    toObservable(computed(() => ({ id: this.engineId(), n: this.reload() }))).pipe(switchMap(({ id }) => this.api.tests(id).pipe(catchError(() => of([] as CoolantTest[]))))),
+    toObservable(computed(() => ({ id: this.engineId(), n: this.reload() }))).pipe(
+      switchMap(({ id }) => this.api.tests(id).pipe(catchError(() => of([] as CoolantTest[])))),
+    ),
     { initialValue: [] as CoolantTest[] },
   );
   /** Times in the engine's site zone (or the browser's by preference), as on the other pages. */
@@ -92,7 +111,9 @@ export class EngineCoolantPage {
   }
   protected readonly scaSeries = computed(() => this.series((t) => t.scaUnitsPerGal));
   protected readonly glycolSeries = computed(() => this.series((t) => t.glycolPercent));
-  protected readonly freezeSeries = computed(() => this.series((t) => (t.freezePointC === null ? null : fromCelsius(t.freezePointC, this.prefs.temperatureUnit()))));
+  protected readonly freezeSeries = computed(() =>
+    this.series((t) => (t.freezePointC === null ? null : fromCelsius(t.freezePointC, this.prefs.temperatureUnit()))),
+  );
   protected readonly phSeries = computed(() => this.series((t) => t.ph));
   protected readonly ecSeries = computed(() => this.series((t) => t.conductivityUsCm));
   protected readonly scaBand = computed(() => {
@@ -141,8 +162,14 @@ export class EngineCoolantPage {
 
   protected save(): void {
     const nums = {
-      scaUnitsPerGal: this.scaText(), glycolPercent: this.glycolText(), freezePointC: this.freezeText(), ph: this.phText(), conductivityUsCm: this.ecText(),
-      nitritePpm: this.nitriteText(), molybdatePpm: this.molybdateText(), reserveAlkalinityMl: this.raText(),
+      scaUnitsPerGal: this.scaText(),
+      glycolPercent: this.glycolText(),
+      freezePointC: this.freezeText(),
+      ph: this.phText(),
+      conductivityUsCm: this.ecText(),
+      nitritePpm: this.nitriteText(),
+      molybdatePpm: this.molybdateText(),
+      reserveAlkalinityMl: this.raText(),
     };
     const parsed: Record<string, number | null> = {};
     for (const [k, text] of Object.entries(nums)) {
@@ -160,12 +187,17 @@ export class EngineCoolantPage {
     }
     const body: NewCoolantTest = {
       method: this.method(),
-      scaUnitsPerGal: parsed['scaUnitsPerGal'], glycolPercent: parsed['glycolPercent'],
+      scaUnitsPerGal: parsed['scaUnitsPerGal'],
+      glycolPercent: parsed['glycolPercent'],
       freezePointC: parsed['freezePointC'] === null ? null : toCelsius(parsed['freezePointC'], this.prefs.temperatureUnit()),
-      ph: parsed['ph'], conductivityUsCm: parsed['conductivityUsCm'],
-      nitritePpm: parsed['nitritePpm'], molybdatePpm: parsed['molybdatePpm'], reserveAlkalinityMl: parsed['reserveAlkalinityMl'],
+      ph: parsed['ph'],
+      conductivityUsCm: parsed['conductivityUsCm'],
+      nitritePpm: parsed['nitritePpm'],
+      molybdatePpm: parsed['molybdatePpm'],
+      reserveAlkalinityMl: parsed['reserveAlkalinityMl'],
       breakdownSigns,
-      appearance: this.appearance().trim() || null, notes: this.notes().trim() || null,
+      appearance: this.appearance().trim() || null,
+      notes: this.notes().trim() || null,
     };
     this.saving.set(true);
     this.saveError.set(null);
@@ -173,7 +205,19 @@ export class EngineCoolantPage {
       next: (t) => {
         this.saving.set(false);
         this.saved.set(t);
-        for (const s of [this.scaText, this.glycolText, this.freezeText, this.phText, this.ecText, this.nitriteText, this.molybdateText, this.raText, this.appearance, this.notes]) s.set('');
+        for (const s of [
+          this.scaText,
+          this.glycolText,
+          this.freezeText,
+          this.phText,
+          this.ecText,
+          this.nitriteText,
+          this.molybdateText,
+          this.raText,
+          this.appearance,
+          this.notes,
+        ])
+          s.set('');
         this.signs.set(new Set());
         this.noSigns.set(false);
         this.reload.update((n) => n + 1);
@@ -219,7 +263,14 @@ export class EngineCoolantPage {
   /** Findings out of range, in words (the history shows them beside the additive decision). */
   protected findingsText(t: CoolantTest): string {
     const bad = (t.decision?.findings ?? []).filter((f) => f.status === 'low' || f.status === 'high' || f.status === 'short' || f.status === 'signs');
-    const name = { nitritePpm: 'nitrite', molybdatePpm: 'molybdate', ph: 'pH', reserveAlkalinityMl: 'reserve alkalinity', freezeProtection: 'freeze protection', breakdownSigns: 'glycol breakdown' } as const;
+    const name = {
+      nitritePpm: 'nitrite',
+      molybdatePpm: 'molybdate',
+      ph: 'pH',
+      reserveAlkalinityMl: 'reserve alkalinity',
+      freezeProtection: 'freeze protection',
+      breakdownSigns: 'glycol breakdown',
+    } as const;
     return bad.map((f) => `${name[f.field]} ${f.status === 'signs' ? 'signs seen' : f.status}`).join(', ');
   }
 

@@ -24,7 +24,9 @@ export interface RunHoursDialogData {
     <h2 mat-dialog-title>Run hours of {{ data.engineName }}</h2>
     <form [formGroup]="form" (ngSubmit)="save()" novalidate>
       <mat-dialog-content>
-        <p class="now">Counted now: <strong>{{ current().toFixed(1) }} h</strong> (from engine speed at or above 100 rpm).</p>
+        <p class="now">
+          Counted now: <strong>{{ current().toFixed(1) }} h</strong> (from engine speed at or above 100 rpm).
+        </p>
         <mat-form-field>
           <mat-label>Hour meter reads</mat-label>
           <input matInput type="number" inputmode="decimal" formControlName="runHours" required min="0" />
@@ -37,12 +39,17 @@ export interface RunHoursDialogData {
           <mat-hint>e.g. read from the hour meter at the monthly run</mat-hint>
           <mat-error>Say why (at least 3 characters).</mat-error>
         </mat-form-field>
-        @if (error(); as e) { <p class="error" role="alert">{{ e }}</p> }
+        @if (error(); as e) {
+          <p class="error" role="alert">{{ e }}</p>
+        }
         <h3>Corrections on record</h3>
         @if (history().length) {
           <ul class="audit" aria-label="Run-hours corrections">
             @for (h of history(); track h.id) {
-              <li>{{ h.at | jwTime: null : 'datetime' }} · {{ h.oldRunHours.toFixed(1) }} h → {{ h.newRunHours.toFixed(1) }} h · {{ h.userName ?? 'unknown user' }} · “{{ h.reason }}”</li>
+              <li>
+                {{ h.at | jwTime: null : 'datetime' }} · {{ h.oldRunHours.toFixed(1) }} h → {{ h.newRunHours.toFixed(1) }} h ·
+                {{ h.userName ?? 'unknown user' }} · “{{ h.reason }}”
+              </li>
             }
           </ul>
         } @else {
@@ -56,12 +63,28 @@ export interface RunHoursDialogData {
     </form>
   `,
   styles: `
-    mat-form-field { display: block; }
-    .wide { min-width: 420px; }
-    .now, .none { color: var(--jw-muted-text); }
-    h3 { font-size: 1rem; margin: 12px 0 4px; }
-    .audit { padding-left: 18px; margin: 0; font-size: 0.9rem; }
-    .error { color: var(--jw-alarm-high); }
+    mat-form-field {
+      display: block;
+    }
+    .wide {
+      min-width: 420px;
+    }
+    .now,
+    .none {
+      color: var(--jw-muted-text);
+    }
+    h3 {
+      font-size: 1rem;
+      margin: 12px 0 4px;
+    }
+    .audit {
+      padding-left: 18px;
+      margin: 0;
+      font-size: 0.9rem;
+    }
+    .error {
+      color: var(--jw-alarm-high);
+    }
   `,
 })
 export class RunHoursDialog {

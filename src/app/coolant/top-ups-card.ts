@@ -31,9 +31,18 @@ const LIQUID: Record<TopUpLiquid, string> = { water: 'Water', premix: 'Premix', 
       <mat-card-content>
         @if (answer().estimate; as e) {
           <section class="estimate" [class.abnormal]="e.belowLow" aria-label="Estimate since the last test" data-test="top-up-estimate">
-            <p class="head"><mat-icon aria-hidden="true" [fontIcon]="e.belowLow ? 'science' : 'calculate'" />
-              <strong>{{ e.belowLow ? 'Additive probably low: test now' : 'Estimate since the test of ' }}{{ e.belowLow ? '' : (e.basedOnTestAt | jwTime: zone() : 'datetime') }}</strong></p>
-            <ul>@for (r of e.reasons; track $index) { <li>{{ r | jwQuantities }}</li> }</ul>
+            <p class="head">
+              <mat-icon aria-hidden="true" [fontIcon]="e.belowLow ? 'science' : 'calculate'" />
+              <strong
+                >{{ e.belowLow ? 'Additive probably low: test now' : 'Estimate since the test of '
+                }}{{ e.belowLow ? '' : (e.basedOnTestAt | jwTime: zone() : 'datetime') }}</strong
+              >
+            </p>
+            <ul>
+              @for (r of e.reasons; track $index) {
+                <li>{{ r | jwQuantities }}</li>
+              }
+            </ul>
             <p class="why">Mass balance: each top-up replaces coolant that was lost with its additive; the added liquid brings none.</p>
           </section>
         } @else {
@@ -41,7 +50,12 @@ const LIQUID: Record<TopUpLiquid, string> = { water: 'Water', premix: 'Premix', 
         }
         @if (canRecord()) {
           <form class="form" (ngSubmit)="save()">
-            <mat-form-field><mat-label>Volume added</mat-label><input matInput inputmode="decimal" name="volume" [ngModel]="volumeText()" (ngModelChange)="volumeText.set($event)" /><span matTextSuffix>{{ volumeUnit() === 'gal' ? 'US gal' : 'L' }}</span></mat-form-field>
+            <mat-form-field
+              ><mat-label>Volume added</mat-label
+              ><input matInput inputmode="decimal" name="volume" [ngModel]="volumeText()" (ngModelChange)="volumeText.set($event)" /><span matTextSuffix>{{
+                volumeUnit() === 'gal' ? 'US gal' : 'L'
+              }}</span></mat-form-field
+            >
             <mat-form-field>
               <mat-label>What was added</mat-label>
               <mat-select name="liquid" [value]="liquid()" (selectionChange)="liquid.set($event.value)">
@@ -51,17 +65,29 @@ const LIQUID: Record<TopUpLiquid, string> = { water: 'Water', premix: 'Premix', 
               </mat-select>
             </mat-form-field>
             @if (liquid() === 'premix') {
-              <mat-form-field><mat-label>Premix glycol</mat-label><input matInput inputmode="decimal" name="premix" [ngModel]="premixText()" (ngModelChange)="premixText.set($event)" /><span matTextSuffix>% by volume</span></mat-form-field>
+              <mat-form-field
+                ><mat-label>Premix glycol</mat-label
+                ><input matInput inputmode="decimal" name="premix" [ngModel]="premixText()" (ngModelChange)="premixText.set($event)" /><span matTextSuffix
+                  >% by volume</span
+                ></mat-form-field
+              >
             }
-            <mat-form-field class="wide"><mat-label>Notes</mat-label><input matInput name="topUpNotes" maxlength="500" [ngModel]="notes()" (ngModelChange)="notes.set($event)" /></mat-form-field>
-            @if (error()) { <p class="error" role="alert">{{ error() }}</p> }
+            <mat-form-field class="wide"
+              ><mat-label>Notes</mat-label><input matInput name="topUpNotes" maxlength="500" [ngModel]="notes()" (ngModelChange)="notes.set($event)"
+            /></mat-form-field>
+            @if (error()) {
+              <p class="error" role="alert">{{ error() }}</p>
+            }
             <button mat-stroked-button type="submit" [disabled]="saving()">Record top-up</button>
           </form>
         }
         @if (answer().topUps.length) {
           <ul class="list" aria-label="Recent top-ups">
             @for (t of answer().topUps.slice(0, 10); track t.id) {
-              <li>{{ t.addedAt | jwTime: zone() : 'datetime' }}: {{ vol(t.volumeL) }} {{ liquidText(t.liquid) }}{{ t.liquid === 'premix' ? ' ' + t.premixPercent + ' %' : '' }}{{ t.notes ? ' · ' + t.notes : '' }}</li>
+              <li>
+                {{ t.addedAt | jwTime: zone() : 'datetime' }}: {{ vol(t.volumeL) }} {{ liquidText(t.liquid)
+                }}{{ t.liquid === 'premix' ? ' ' + t.premixPercent + ' %' : '' }}{{ t.notes ? ' · ' + t.notes : '' }}
+              </li>
             }
           </ul>
         }
@@ -69,17 +95,52 @@ const LIQUID: Record<TopUpLiquid, string> = { water: 'Water', premix: 'Premix', 
     </mat-card>
   `,
   styles: `
-    .estimate { border: 1px solid var(--jw-band); border-radius: 4px; padding: 4px 12px; margin-bottom: 8px; }
-    .estimate.abnormal { border-color: var(--jw-warning); background: var(--jw-warning-bg); }
-    .head { display: flex; gap: 8px; align-items: center; margin: 4px 0; }
-    .abnormal .head { color: var(--jw-warning); }
-    .why { color: var(--jw-muted-text); font-size: 0.85rem; }
-    .form { display: flex; flex-wrap: wrap; gap: 0 8px; align-items: baseline; }
-    .form mat-form-field { width: 220px; }
-    .form [matTextSuffix] { white-space: nowrap; }
-    .form mat-form-field.wide { width: 100%; }
-    .error { color: var(--jw-alarm-high); width: 100%; }
-    .list { font-size: 0.9rem; padding-left: 18px; }
+    .estimate {
+      border: 1px solid var(--jw-band);
+      border-radius: 4px;
+      padding: 4px 12px;
+      margin-bottom: 8px;
+    }
+    .estimate.abnormal {
+      border-color: var(--jw-warning);
+      background: var(--jw-warning-bg);
+    }
+    .head {
+      display: flex;
+      gap: 8px;
+      align-items: center;
+      margin: 4px 0;
+    }
+    .abnormal .head {
+      color: var(--jw-warning);
+    }
+    .why {
+      color: var(--jw-muted-text);
+      font-size: 0.85rem;
+    }
+    .form {
+      display: flex;
+      flex-wrap: wrap;
+      gap: 0 8px;
+      align-items: baseline;
+    }
+    .form mat-form-field {
+      width: 220px;
+    }
+    .form [matTextSuffix] {
+      white-space: nowrap;
+    }
+    .form mat-form-field.wide {
+      width: 100%;
+    }
+    .error {
+      color: var(--jw-alarm-high);
+      width: 100%;
+    }
+    .list {
+      font-size: 0.9rem;
+      padding-left: 18px;
+    }
   `,
 })
 export class TopUpsCard {

@@ -8,7 +8,10 @@ import { CSRF_HEADERS, SignInResponse, Role, User } from './user';
 export type SignInFailure = 'wrong-credentials' | 'too-many-tries' | 'unreachable' | 'server-error';
 
 export class SignInError extends Error {
-  constructor(readonly reason: SignInFailure, message: string) {
+  constructor(
+    readonly reason: SignInFailure,
+    message: string,
+  ) {
     super(message);
   }
 }
@@ -56,9 +59,7 @@ export class AuthService {
 
   async signIn(email: string, password: string): Promise<User> {
     try {
-      const res = await firstValueFrom(
-        this.rawHttp.post<SignInResponse>('/api/auth/login', { email, password, session: 'cookie' }, { headers: CSRF_HEADERS }),
-      );
+      const res = await firstValueFrom(this.rawHttp.post<SignInResponse>('/api/auth/login', { email, password, session: 'cookie' }, { headers: CSRF_HEADERS }));
       this.userSignal.set(res.user);
       this.noticeSignal.set(null);
       return res.user;

@@ -17,15 +17,32 @@ import { ageText } from './staleness';
     @if (since(); as s) {
       <div class="banner" role="alert" data-test="connection-banner">
         <mat-icon aria-hidden="true" fontIcon="cloud_off" />
-        <span><strong>Live data lost since {{ s }}</strong> ({{ ago() }} ago). Values on screen are not current; reconnecting by itself.</span>
+        <span
+          ><strong>Live data lost since {{ s }}</strong> ({{ ago() }} ago). Values on screen are not current; reconnecting by itself.</span
+        >
       </div>
     }
   `,
   styles: `
-    :host { display: block; position: sticky; top: 0; z-index: 5; }
-    .banner { display: flex; align-items: center; gap: 8px; padding: 8px 16px; background: var(--jw-stale-bg); color: var(--jw-stale);
-      border-bottom: 2px dashed var(--jw-stale); font-size: 14px; }
-    mat-icon { flex: none; }
+    :host {
+      display: block;
+      position: sticky;
+      top: 0;
+      z-index: 5;
+    }
+    .banner {
+      display: flex;
+      align-items: center;
+      gap: 8px;
+      padding: 8px 16px;
+      background: var(--jw-stale-bg);
+      color: var(--jw-stale);
+      border-bottom: 2px dashed var(--jw-stale);
+      font-size: 14px;
+    }
+    mat-icon {
+      flex: none;
+    }
   `,
 })
 export class ConnectionBanner {

@@ -25,16 +25,33 @@ const CHECK_EVERY_MS = 30 * 60 * 1000;
           <span><strong>This version can no longer run offline.</strong> Reload to load the current version.</span>
         }
         <button mat-flat-button type="button" (click)="reload()"><mat-icon fontIcon="refresh" />Reload</button>
-        @if (s === 'ready') { <button mat-button type="button" (click)="state.set(null)">Later</button> }
+        @if (s === 'ready') {
+          <button mat-button type="button" (click)="state.set(null)">Later</button>
+        }
       </div>
     }
   `,
   styles: `
-    :host { display: block; }
-    .bar { display: flex; align-items: center; flex-wrap: wrap; gap: 8px 12px; padding: 8px 16px; background: var(--mat-sys-secondary-container);
-      color: var(--mat-sys-on-secondary-container); border-bottom: 1px solid var(--mat-sys-outline-variant); font-size: 14px; }
-    .bar span { flex: 1 1 240px; }
-    mat-icon { flex: none; }
+    :host {
+      display: block;
+    }
+    .bar {
+      display: flex;
+      align-items: center;
+      flex-wrap: wrap;
+      gap: 8px 12px;
+      padding: 8px 16px;
+      background: var(--mat-sys-secondary-container);
+      color: var(--mat-sys-on-secondary-container);
+      border-bottom: 1px solid var(--mat-sys-outline-variant);
+      font-size: 14px;
+    }
+    .bar span {
+      flex: 1 1 240px;
+    }
+    mat-icon {
+      flex: none;
+    }
   `,
 })
 export class UpdatePrompt {
@@ -57,6 +74,9 @@ export class UpdatePrompt {
 
   protected reload(): void {
     // activate the new version first, so the reload cannot come from the old one
-    void this.sw.activateUpdate().catch(() => false).finally(() => document.location.reload());
+    void this.sw
+      .activateUpdate()
+      .catch(() => false)
+      .finally(() => document.location.reload());
   }
 }

@@ -25,9 +25,28 @@ export interface HistoryRow {
   note: string;
 }
 
-const HEADER = ['section', 'date', 'reference', 'kind', 'title', 'status', 'done_by', 'signed_off_by', 'parts_and_fluids', 'readings', 'decision', 'manual_check', 'note'];
+const HEADER = [
+  'section',
+  'date',
+  'reference',
+  'kind',
+  'title',
+  'status',
+  'done_by',
+  'signed_off_by',
+  'parts_and_fluids',
+  'readings',
+  'decision',
+  'manual_check',
+  'note',
+];
 
-const ADDITIVE_STATUS: Record<string, string> = { low: 'additive low', 'in-range': 'additive in range', high: 'additive high', 'not-applicable': 'no strip decision' };
+const ADDITIVE_STATUS: Record<string, string> = {
+  low: 'additive low',
+  'in-range': 'additive in range',
+  high: 'additive high',
+  'not-applicable': 'no strip decision',
+};
 const FILTER_TEXT: Record<string, string> = { charged: 'charged filter', blank: 'blank filter' };
 
 export function partText(p: HistoryPart, prefs: UnitPreferences): string {
@@ -37,8 +56,10 @@ export function partText(p: HistoryPart, prefs: UnitPreferences): string {
 }
 
 export function manualCheckText(m: HistoryManualCheck, prefs: UnitPreferences): string {
-  return `MANUAL CHECK on "${m.stepTitle}": gauge ${formatStored(m.gaugeKpa, 'pressure', prefs)}, coolant ${formatStored(m.tempC, 'temperature', prefs)}, ` +
-    `stopped ${m.minutesSinceStop} min, checked by ${m.checkedBy}: ${m.reason}`;
+  return (
+    `MANUAL CHECK on "${m.stepTitle}": gauge ${formatStored(m.gaugeKpa, 'pressure', prefs)}, coolant ${formatStored(m.tempC, 'temperature', prefs)}, ` +
+    `stopped ${m.minutesSinceStop} min, checked by ${m.checkedBy}: ${m.reason}`
+  );
 }
 
 export function testReadings(t: CoolantTest, prefs: UnitPreferences): string {
@@ -71,10 +92,28 @@ export function testDecision(t: CoolantTest, prefs: UnitPreferences): string {
 /** Every row of the history, section by section, each newest first (as the server sends them). */
 export function historyRows(h: EngineHistory, prefs: UnitPreferences): HistoryRow[] {
   const rows: HistoryRow[] = [];
-  const blank = { reference: '', kind: '', title: '', status: '', doneBy: '', signedOffBy: '', partsAndFluids: '', readings: '', decision: '', manualCheck: '', note: '' };
+  const blank = {
+    reference: '',
+    kind: '',
+    title: '',
+    status: '',
+    doneBy: '',
+    signedOffBy: '',
+    partsAndFluids: '',
+    readings: '',
+    decision: '',
+    manualCheck: '',
+    note: '',
+  };
   for (const o of h.workOrders) {
     rows.push({
-      ...blank, section: 'work-order', date: o.at, reference: `work order #${o.id}`, kind: o.kindTitle, title: o.title, status: STATUS_TEXT[o.status] ?? o.status,
+      ...blank,
+      section: 'work-order',
+      date: o.at,
+      reference: `work order #${o.id}`,
+      kind: o.kindTitle,
+      title: o.title,
+      status: STATUS_TEXT[o.status] ?? o.status,
       doneBy: (o.doneByNames.length ? o.doneByNames : o.assigneeName ? [o.assigneeName] : []).join(', '),
       signedOffBy: o.signedOffByName ? `${o.signedOffByName}${o.signedOffAt ? ` ${o.signedOffAt}` : ''}` : '',
       partsAndFluids: o.parts.map((p) => partText(p, prefs)).join('; '),
@@ -84,18 +123,41 @@ export function historyRows(h: EngineHistory, prefs: UnitPreferences): HistoryRo
   }
   for (const t of h.coolantTests) {
     rows.push({
-      ...blank, section: 'coolant-test', date: t.testedAt, reference: `coolant test #${t.id}`, kind: t.method, title: t.source === 'lab-import' ? 'Coolant test (lab import)' : 'Coolant test',
+      ...blank,
+      section: 'coolant-test',
+      date: t.testedAt,
+      reference: `coolant test #${t.id}`,
+      kind: t.method,
+      title: t.source === 'lab-import' ? 'Coolant test (lab import)' : 'Coolant test',
       status: t.decision?.additive ? (ADDITIVE_STATUS[t.decision.additive.status] ?? t.decision.additive.status) : '',
-      doneBy: t.testedByName ?? '', readings: testReadings(t, prefs), decision: testDecision(t, prefs), note: t.notes ?? '',
+      doneBy: t.testedByName ?? '',
+      readings: testReadings(t, prefs),
+      decision: testDecision(t, prefs),
+      note: t.notes ?? '',
     });
   }
   for (const r of h.runHoursAdjustments) {
-    rows.push({ ...blank, section: 'run-hours', date: r.at, reference: `correction #${r.id}`, kind: 'Run-hours correction', title: `${r.oldRunHours} h -> ${r.newRunHours} h`, doneBy: r.userName ?? '', note: r.reason });
+    rows.push({
+      ...blank,
+      section: 'run-hours',
+      date: r.at,
+      reference: `correction #${r.id}`,
+      kind: 'Run-hours correction',
+      title: `${r.oldRunHours} h -> ${r.newRunHours} h`,
+      doneBy: r.userName ?? '',
+      note: r.reason,
+    });
   }
   for (const e of h.serviceEvents) {
     rows.push({
-      ...blank, section: 'service-event', date: e.doneAt, reference: e.workOrderId ? `work order #${e.workOrderId}` : `service event #${e.id}`, kind: e.taskKey, title: e.taskTitle,
-      readings: e.runHours === null ? '' : `at ${Math.round(e.runHours * 10) / 10} h`, note: 'due count of this task restarted here',
+      ...blank,
+      section: 'service-event',
+      date: e.doneAt,
+      reference: e.workOrderId ? `work order #${e.workOrderId}` : `service event #${e.id}`,
+      kind: e.taskKey,
+      title: e.taskTitle,
+      readings: e.runHours === null ? '' : `at ${Math.round(e.runHours * 10) / 10} h`,
+      note: 'due count of this task restarted here',
     });
   }
   return rows;
@@ -105,7 +167,11 @@ export function historyRows(h: EngineHistory, prefs: UnitPreferences): HistoryRo
 export function historyToCsv(rows: readonly HistoryRow[]): string {
   const out = [HEADER.join(',')];
   for (const r of rows) {
-    out.push([r.section, r.date, r.reference, r.kind, r.title, r.status, r.doneBy, r.signedOffBy, r.partsAndFluids, r.readings, r.decision, r.manualCheck, r.note].map(csvField).join(','));
+    out.push(
+      [r.section, r.date, r.reference, r.kind, r.title, r.status, r.doneBy, r.signedOffBy, r.partsAndFluids, r.readings, r.decision, r.manualCheck, r.note]
+        .map(csvField)
+        .join(','),
+    );
   }
   return out.join('\r\n') + '\r\n';
 }

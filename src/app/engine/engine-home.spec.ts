@@ -61,16 +61,41 @@ describe('EngineHome', () => {
     const due = http.match((r) => r.url === '/api/due-list');
     expect(due[0].request.params.get('engineId')).toBe(String(ENGINE));
     due[0].flush({
-      now: '', windowDays: 30, windowHours: 0,
-      sites: [{ siteId: 1, siteName: 'S', timeZone: 'America/Denver', overdue: 1, dueSoon: 0, entries: [
-        { engineId: ENGINE, engineName: 'E', taskKey: 'coolant-test', title: 'Coolant test', state: 'overdue', reason: 'due 2026-11-01', openWorkOrderId: 12 },
-        { engineId: 99, engineName: 'Other', taskKey: 'x', title: 'Not this engine', state: 'overdue', reason: '', openWorkOrderId: null },
-      ] }],
+      now: '',
+      windowDays: 30,
+      windowHours: 0,
+      sites: [
+        {
+          siteId: 1,
+          siteName: 'S',
+          timeZone: 'America/Denver',
+          overdue: 1,
+          dueSoon: 0,
+          entries: [
+            {
+              engineId: ENGINE,
+              engineName: 'E',
+              taskKey: 'coolant-test',
+              title: 'Coolant test',
+              state: 'overdue',
+              reason: 'due 2026-11-01',
+              openWorkOrderId: 12,
+            },
+            { engineId: 99, engineName: 'Other', taskKey: 'x', title: 'Not this engine', state: 'overdue', reason: '', openWorkOrderId: null },
+          ],
+        },
+      ],
     });
     flush('/api/work-orders', null, 403);
     flush(`/api/engines/${ENGINE}/coolant-tests`, [
       { id: 1, engineId: ENGINE, testedAt: '2026-10-01', testedByName: 'A', decision: null },
-      { id: 2, engineId: ENGINE, testedAt: '2026-11-20', testedByName: 'B', decision: { additive: { status: 'low', filter: 'charged', liquidAdditiveL: 1.5 }, freeze: null, notes: [] } },
+      {
+        id: 2,
+        engineId: ENGINE,
+        testedAt: '2026-11-20',
+        testedByName: 'B',
+        decision: { additive: { status: 'low', filter: 'charged', liquidAdditiveL: 1.5 }, freeze: null, notes: [] },
+      },
     ]);
     flush('/api/alarms', []);
     await settle();

@@ -20,7 +20,12 @@ import { WorkOrderSummary } from '../work/work-types';
 const RECENT_ALARMS = 5;
 const OPEN_WORK = ['requested', 'planned', 'in-progress', 'waiting-sign-off'] as const;
 const DUE_WINDOW_DAYS = 30;
-const ADDITIVE_TEXT: Record<string, string> = { low: 'Additive low', 'in-range': 'Additive in range', high: 'Additive high', 'not-applicable': 'No strip decision' };
+const ADDITIVE_TEXT: Record<string, string> = {
+  low: 'Additive low',
+  'in-range': 'Additive in range',
+  high: 'Additive high',
+  'not-applicable': 'No strip decision',
+};
 const DUE_TEXT: Record<DueEntry['state'], string> = { overdue: 'Overdue', 'due-soon': 'Due soon', ok: 'Not due' };
 
 /** One section's load state: its rows, or why they are not there. */
@@ -48,7 +53,9 @@ const empty = <T>(): Section<T> => ({ rows: null, error: null });
         @if (alarms().error; as e) {
           <p class="error" role="alert">{{ e }} <button mat-button type="button" (click)="reload()">Retry</button></p>
         } @else if (alarms().rows; as rows) {
-          @if (openAlarms().length === 0) { <p class="none"><mat-icon aria-hidden="true" fontIcon="check_circle_outline" />No open alarm.</p> }
+          @if (openAlarms().length === 0) {
+            <p class="none"><mat-icon aria-hidden="true" fontIcon="check_circle_outline" />No open alarm.</p>
+          }
           <ul class="list">
             @for (a of openAlarms(); track a.id) {
               <li class="open" [attr.data-priority]="a.priority">
@@ -67,7 +74,9 @@ const empty = <T>(): Section<T> => ({ rows: null, error: null });
               </li>
             }
           </ul>
-        } @else { <p class="none">Loading…</p> }
+        } @else {
+          <p class="none">Loading…</p>
+        }
       </mat-card>
 
       <mat-card appearance="outlined" class="card" data-test="engine-due">
@@ -75,7 +84,9 @@ const empty = <T>(): Section<T> => ({ rows: null, error: null });
         @if (due().error; as e) {
           <p class="error" role="alert">{{ e }} <button mat-button type="button" (click)="reload()">Retry</button></p>
         } @else if (due().rows; as rows) {
-          @if (rows.length === 0) { <p class="none"><mat-icon aria-hidden="true" fontIcon="event_available" />Nothing due in the next {{ dueDays }} days.</p> }
+          @if (rows.length === 0) {
+            <p class="none"><mat-icon aria-hidden="true" fontIcon="event_available" />Nothing due in the next {{ dueDays }} days.</p>
+          }
           <ul class="list">
             @for (d of rows; track d.taskKey) {
               <li [class.overdue]="d.state === 'overdue'">
@@ -83,11 +94,15 @@ const empty = <T>(): Section<T> => ({ rows: null, error: null });
                 <span>{{ d.title }}</span>
                 <span class="tag">{{ dueText(d) }}</span>
                 <span class="when">{{ d.reason }}</span>
-                @if (d.openWorkOrderId) { <a [routerLink]="['/work', d.openWorkOrderId]">work order #{{ d.openWorkOrderId }}</a> }
+                @if (d.openWorkOrderId) {
+                  <a [routerLink]="['/work', d.openWorkOrderId]">work order #{{ d.openWorkOrderId }}</a>
+                }
               </li>
             }
           </ul>
-        } @else { <p class="none">Loading…</p> }
+        } @else {
+          <p class="none">Loading…</p>
+        }
       </mat-card>
 
       <mat-card appearance="outlined" class="card" data-test="engine-work">
@@ -97,18 +112,24 @@ const empty = <T>(): Section<T> => ({ rows: null, error: null });
         } @else if (work().error; as e) {
           <p class="error" role="alert">{{ e }} <button mat-button type="button" (click)="reload()">Retry</button></p>
         } @else if (work().rows; as rows) {
-          @if (rows.length === 0) { <p class="none"><mat-icon aria-hidden="true" fontIcon="assignment_turned_in" />No open work order.</p> }
+          @if (rows.length === 0) {
+            <p class="none"><mat-icon aria-hidden="true" fontIcon="assignment_turned_in" />No open work order.</p>
+          }
           <ul class="list">
             @for (w of rows; track w.id) {
               <li>
                 <mat-icon aria-hidden="true" fontIcon="assignment" />
                 <a [routerLink]="['/work', w.id]">#{{ w.id }} {{ w.title }}</a>
                 <span class="tag">{{ statusText(w) }}</span>
-                @if (w.dueDate) { <span class="when jw-num">due {{ w.dueDate | jwTime: zone() : 'date' }}</span> }
+                @if (w.dueDate) {
+                  <span class="when jw-num">due {{ w.dueDate | jwTime: zone() : 'date' }}</span>
+                }
               </li>
             }
           </ul>
-        } @else { <p class="none">Loading…</p> }
+        } @else {
+          <p class="none">Loading…</p>
+        }
       </mat-card>
 
       <mat-card appearance="outlined" class="card" data-test="engine-coolant-test">
@@ -117,32 +138,109 @@ const empty = <T>(): Section<T> => ({ rows: null, error: null });
           <p class="error" role="alert">{{ e }} <button mat-button type="button" (click)="reload()">Retry</button></p>
         } @else if (tests().rows) {
           @if (lastTest(); as t) {
-            <p><span class="jw-num">{{ t.testedAt | jwTime: zone() : 'date' }}</span>@if (t.testedByName) { · {{ t.testedByName }} }</p>
-            <p class="decision" [class.abnormal]="abnormalTest()"><mat-icon aria-hidden="true" [fontIcon]="abnormalTest() ? 'warning_amber' : 'science'" />{{ decisionText() }}</p>
+            <p>
+              <span class="jw-num">{{ t.testedAt | jwTime: zone() : 'date' }}</span>
+              @if (t.testedByName) {
+                · {{ t.testedByName }}
+              }
+            </p>
+            <p class="decision" [class.abnormal]="abnormalTest()">
+              <mat-icon aria-hidden="true" [fontIcon]="abnormalTest() ? 'warning_amber' : 'science'" />{{ decisionText() }}
+            </p>
           } @else {
             <p class="none">No coolant test recorded. <a [routerLink]="['/engines', engineId(), 'coolant']">Record one</a></p>
           }
-        } @else { <p class="none">Loading…</p> }
+        } @else {
+          <p class="none">Loading…</p>
+        }
       </mat-card>
     </div>
   `,
   styles: `
-    .home { display: grid; grid-template-columns: repeat(auto-fit, minmax(320px, 1fr)); gap: 16px; margin-bottom: 16px; }
-    .card { padding: 12px 16px; }
-    h2 { margin: 0 0 8px; font-size: 18px; font-weight: 500; display: flex; align-items: baseline; gap: 12px; flex-wrap: wrap; }
-    .more { font-size: 13px; font-weight: 400; color: var(--mat-sys-primary); }
-    .list { list-style: none; margin: 0; padding: 0; display: grid; gap: 6px; }
-    li { display: flex; flex-wrap: wrap; align-items: center; gap: 4px 8px; font-size: 14px; }
-    li mat-icon { font-size: 18px; width: 18px; height: 18px; color: var(--jw-muted-text); }
-    li.open mat-icon { color: var(--jw-alarm-high); }
-    li.closed { color: var(--jw-muted-text); }
-    li.overdue .tag { color: var(--jw-warning); font-weight: 700; }
-    .tag { font-size: 12px; padding: 0 6px; border-radius: 4px; background: var(--mat-sys-surface-container); }
-    .when { font-size: 12px; color: var(--jw-muted-text); }
-    .none { display: flex; align-items: center; gap: 6px; color: var(--jw-muted-text); margin: 0; }
-    .error { color: var(--jw-alarm-high); margin: 0; }
-    .decision { display: flex; align-items: center; gap: 6px; margin: 4px 0 0; }
-    .decision.abnormal { color: var(--jw-warning); font-weight: 700; }
+    .home {
+      display: grid;
+      grid-template-columns: repeat(auto-fit, minmax(320px, 1fr));
+      gap: 16px;
+      margin-bottom: 16px;
+    }
+    .card {
+      padding: 12px 16px;
+    }
+    h2 {
+      margin: 0 0 8px;
+      font-size: 18px;
+      font-weight: 500;
+      display: flex;
+      align-items: baseline;
+      gap: 12px;
+      flex-wrap: wrap;
+    }
+    .more {
+      font-size: 13px;
+      font-weight: 400;
+      color: var(--mat-sys-primary);
+    }
+    .list {
+      list-style: none;
+      margin: 0;
+      padding: 0;
+      display: grid;
+      gap: 6px;
+    }
+    li {
+      display: flex;
+      flex-wrap: wrap;
+      align-items: center;
+      gap: 4px 8px;
+      font-size: 14px;
+    }
+    li mat-icon {
+      font-size: 18px;
+      width: 18px;
+      height: 18px;
+      color: var(--jw-muted-text);
+    }
+    li.open mat-icon {
+      color: var(--jw-alarm-high);
+    }
+    li.closed {
+      color: var(--jw-muted-text);
+    }
+    li.overdue .tag {
+      color: var(--jw-warning);
+      font-weight: 700;
+    }
+    .tag {
+      font-size: 12px;
+      padding: 0 6px;
+      border-radius: 4px;
+      background: var(--mat-sys-surface-container);
+    }
+    .when {
+      font-size: 12px;
+      color: var(--jw-muted-text);
+    }
+    .none {
+      display: flex;
+      align-items: center;
+      gap: 6px;
+      color: var(--jw-muted-text);
+      margin: 0;
+    }
+    .error {
+      color: var(--jw-alarm-high);
+      margin: 0;
+    }
+    .decision {
+      display: flex;
+      align-items: center;
+      gap: 6px;
+      margin: 4px 0 0;
+    }
+    .decision.abnormal {
+      color: var(--jw-warning);
+      font-weight: 700;
+    }
   `,
 })
 export class EngineHome {
@@ -164,7 +262,10 @@ export class EngineHome {
   protected readonly openAlarms = computed(() => (this.alarms().rows ?? []).filter((a) => a.state !== 'normal').sort(byRaisedDesc));
   protected readonly recentAlarms = computed(() => {
     const open = new Set(this.openAlarms().map((a) => a.id));
-    return (this.alarms().rows ?? []).filter((a) => !open.has(a.id)).sort(byRaisedDesc).slice(0, RECENT_ALARMS);
+    return (this.alarms().rows ?? [])
+      .filter((a) => !open.has(a.id))
+      .sort(byRaisedDesc)
+      .slice(0, RECENT_ALARMS);
   });
   protected readonly lastTest = computed(() => [...(this.tests().rows ?? [])].sort((a, b) => Date.parse(b.testedAt) - Date.parse(a.testedAt))[0] ?? null);
   protected readonly abnormalTest = computed(() => {
@@ -176,7 +277,12 @@ export class EngineHome {
     if (!t?.decision) return 'No decision on record';
     const a = t.decision.additive;
     const parts: string[] = [];
-    if (a) parts.push(ADDITIVE_TEXT[a.status] ?? a.status, ...(a.filter ? [`fit the ${a.filter} filter`] : []), ...(a.liquidAdditiveL > 0 ? [`add ${a.liquidAdditiveL.toFixed(2)} L liquid additive`] : []));
+    if (a)
+      parts.push(
+        ADDITIVE_TEXT[a.status] ?? a.status,
+        ...(a.filter ? [`fit the ${a.filter} filter`] : []),
+        ...(a.liquidAdditiveL > 0 ? [`add ${a.liquidAdditiveL.toFixed(2)} L liquid additive`] : []),
+      );
     if (t.decision.freeze) parts.push(`glycol ${t.decision.freeze.percent} %`);
     if (!parts.length && t.decision.notes.length) parts.push(t.decision.notes[0]);
     return parts.join(' · ') || 'No decision on record';
@@ -216,12 +322,20 @@ export class EngineHome {
 
   private loadAll(id: number): void {
     void this.loadAlarms(id);
-    void this.section(this.due, async () => {
-      const res = await firstValueFrom(this.coolant.dueList({ engineId: id, windowDays: DUE_WINDOW_DAYS }));
-      // The server filters by engine; the client filters too, in case an older server ignores the parameter.
-      return res.sites.flatMap((s) => s.entries).filter((e) => e.engineId === id && e.state !== 'ok');
-    }, 'The due tasks could not be loaded.');
-    void this.section(this.work, () => this.workApi.list({ engineId: id, status: [...OPEN_WORK] }).then((l) => l.filter((w) => w.engineId === id)), 'The work orders could not be loaded.');
+    void this.section(
+      this.due,
+      async () => {
+        const res = await firstValueFrom(this.coolant.dueList({ engineId: id, windowDays: DUE_WINDOW_DAYS }));
+        // The server filters by engine; the client filters too, in case an older server ignores the parameter.
+        return res.sites.flatMap((s) => s.entries).filter((e) => e.engineId === id && e.state !== 'ok');
+      },
+      'The due tasks could not be loaded.',
+    );
+    void this.section(
+      this.work,
+      () => this.workApi.list({ engineId: id, status: [...OPEN_WORK] }).then((l) => l.filter((w) => w.engineId === id)),
+      'The work orders could not be loaded.',
+    );
     void this.section(this.tests, () => firstValueFrom(this.coolant.tests(id)), 'The coolant tests could not be loaded.');
   }
 

@@ -58,8 +58,21 @@ interface TrendRequest {
   selector: 'jw-engine-page',
   changeDetection: ChangeDetectionStrategy.OnPush,
   imports: [
-    RouterLink, MatCardModule, MatIconModule, MatButtonModule, MatChipsModule, MatProgressBarModule,
-    DecimalPipe, UnitValuePipe, JwTimePipe, LiveValues, RangePicker, TrendChart, RecentReadings, EngineHome, ReadinessStatus,
+    RouterLink,
+    MatCardModule,
+    MatIconModule,
+    MatButtonModule,
+    MatChipsModule,
+    MatProgressBarModule,
+    DecimalPipe,
+    UnitValuePipe,
+    JwTimePipe,
+    LiveValues,
+    RangePicker,
+    TrendChart,
+    RecentReadings,
+    EngineHome,
+    ReadinessStatus,
   ],
   templateUrl: './engine-page.html',
   styleUrl: './engine-page.scss',
@@ -260,18 +273,20 @@ export class EnginePage {
     this.notFound.set(false);
     // One parent for all three: the HTTP part completes, the live part must not end with it.
     const sub = new Subscription();
-    sub.add(forkJoin([this.api.engine(id), this.api.sites().pipe(catchError(() => of([] as Site[])))]).subscribe({
-      next: ([engine, sites]) => {
-        this.engine.set({ ...engine, latest: liveValues(engine.latest ?? {}) });
-        this.readiness.set(engine.readiness);
-        this.site.set(sites.find((s) => s.id === engine.siteId) ?? null);
-        this.recent.set(recentFrom(engine.latest ?? {}));
-      },
-      error: (err: { status?: number }) => {
-        this.notFound.set(err?.status === 404);
-        this.loadError.set(err?.status === 404 ? 'There is no engine with this address.' : 'The engine could not be loaded.');
-      },
-    }));
+    sub.add(
+      forkJoin([this.api.engine(id), this.api.sites().pipe(catchError(() => of([] as Site[])))]).subscribe({
+        next: ([engine, sites]) => {
+          this.engine.set({ ...engine, latest: liveValues(engine.latest ?? {}) });
+          this.readiness.set(engine.readiness);
+          this.site.set(sites.find((s) => s.id === engine.siteId) ?? null);
+          this.recent.set(recentFrom(engine.latest ?? {}));
+        },
+        error: (err: { status?: number }) => {
+          this.notFound.set(err?.status === 404);
+          this.loadError.set(err?.status === 404 ? 'There is no engine with this address.' : 'The engine could not be loaded.');
+        },
+      }),
+    );
     const unwatch = this.live.watch({ engineIds: [id] });
     sub.add(unwatch);
     // a standby engine's readiness changes without a reload: asked again now and then, kept in its own signal

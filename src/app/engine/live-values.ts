@@ -37,7 +37,11 @@ interface Row {
         <div class="row" [class.stale]="r.stale" [attr.data-stale]="r.stale ? 'true' : null">
           <dt>{{ r.label }}</dt>
           <dd class="value jw-num">
-            @if (r.bad) { <span class="bad">bad reading</span> } @else { {{ r.value | unitValue: r.key }} }
+            @if (r.bad) {
+              <span class="bad">bad reading</span>
+            } @else {
+              {{ r.value | unitValue: r.key }}
+            }
           </dd>
           <dd class="bar"><jw-band-indicator [value]="r.value" [band]="r.band" [scale]="r.scale" [quantity]="r.key" [label]="r.label" /></dd>
           <dd class="judged" [class.abnormal]="r.abnormal">{{ r.judged }}</dd>
@@ -46,18 +50,60 @@ interface Row {
     </dl>
   `,
   styles: `
-    .rows { margin: 0; display: grid; gap: 6px; }
-    .row { display: grid; grid-template-columns: minmax(150px, 1.2fr) minmax(90px, 0.8fr) minmax(100px, 1.5fr) minmax(110px, 1fr); align-items: center; gap: 12px; }
-    dt { color: var(--jw-muted-text); }
-    dd { margin: 0; }
-    .value { font-size: 20px; font-weight: 500; text-align: right; }
-    .bad { font-size: 14px; color: var(--jw-warning); font-weight: 700; }
-    .judged { font-size: 13px; color: var(--jw-muted-text); }
-    .judged.abnormal { color: var(--jw-warning); font-weight: 700; }
-    .stale .value { color: var(--jw-stale); font-style: italic; }
-    .stale { opacity: 0.65; }
-    .stale .judged { color: var(--jw-stale); }
-    @media (max-width: 599.98px) { .row { grid-template-columns: 1fr auto; } .bar, .judged { grid-column: 1 / -1; } }
+    .rows {
+      margin: 0;
+      display: grid;
+      gap: 6px;
+    }
+    .row {
+      display: grid;
+      grid-template-columns: minmax(150px, 1.2fr) minmax(90px, 0.8fr) minmax(100px, 1.5fr) minmax(110px, 1fr);
+      align-items: center;
+      gap: 12px;
+    }
+    dt {
+      color: var(--jw-muted-text);
+    }
+    dd {
+      margin: 0;
+    }
+    .value {
+      font-size: 20px;
+      font-weight: 500;
+      text-align: right;
+    }
+    .bad {
+      font-size: 14px;
+      color: var(--jw-warning);
+      font-weight: 700;
+    }
+    .judged {
+      font-size: 13px;
+      color: var(--jw-muted-text);
+    }
+    .judged.abnormal {
+      color: var(--jw-warning);
+      font-weight: 700;
+    }
+    .stale .value {
+      color: var(--jw-stale);
+      font-style: italic;
+    }
+    .stale {
+      opacity: 0.65;
+    }
+    .stale .judged {
+      color: var(--jw-stale);
+    }
+    @media (max-width: 599.98px) {
+      .row {
+        grid-template-columns: 1fr auto;
+      }
+      .bar,
+      .judged {
+        grid-column: 1 / -1;
+      }
+    }
   `,
 })
 export class LiveValues {

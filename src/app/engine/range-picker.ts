@@ -39,10 +39,25 @@ const PRESETS: RangePreset[] = ['1h', '24h', '7d', '30d', 'custom'];
     }
   `,
   styles: `
-    :host { display: flex; flex-wrap: wrap; align-items: center; gap: 8px 16px; }
-    .custom { display: flex; flex-wrap: wrap; align-items: center; gap: 8px; }
-    .error { color: var(--jw-alarm-high); }
-    .zone { color: var(--jw-muted-text); font-size: 12px; }
+    :host {
+      display: flex;
+      flex-wrap: wrap;
+      align-items: center;
+      gap: 8px 16px;
+    }
+    .custom {
+      display: flex;
+      flex-wrap: wrap;
+      align-items: center;
+      gap: 8px;
+    }
+    .error {
+      color: var(--jw-alarm-high);
+    }
+    .zone {
+      color: var(--jw-muted-text);
+      font-size: 12px;
+    }
   `,
 })
 export class RangePicker {

@@ -8,8 +8,10 @@ describe('CSV source column', () => {
   it('says in words when the window is older than the raw retention', () => {
     const source = { source: 'rollup' as const, rawRetentionDays: 400, rawKeptFrom: Date.UTC(2025, 9, 28), beyondRawRetention: true };
     const csv = bucketsToCsv(new Map([['coolant_temp', [b(Date.UTC(2025, 0, 1))]]]), prefs, source);
-    expect(csv).toBe('time,channel,min,max,mean,count,unit,source\r\n'
-      + '2025-01-01T00:00:00.000Z,coolant_temp,80,90,85,60,degC,"per-minute summaries (raw readings are kept 400 days)"\r\n');
+    expect(csv).toBe(
+      'time,channel,min,max,mean,count,unit,source\r\n' +
+        '2025-01-01T00:00:00.000Z,coolant_temp,80,90,85,60,degC,"per-minute summaries (raw readings are kept 400 days)"\r\n',
+    );
   });
 
   it('names raw readings and summaries of long windows', () => {

@@ -38,15 +38,27 @@ export interface RecentReading {
       </ng-container>
       <tr mat-header-row *matHeaderRowDef="columns"></tr>
       <tr mat-row *matRowDef="let row; columns: columns"></tr>
-      <tr class="mat-mdc-row" *matNoDataRow><td class="mat-mdc-cell empty" [attr.colspan]="columns.length">No readings received yet.</td></tr>
+      <tr class="mat-mdc-row" *matNoDataRow>
+        <td class="mat-mdc-cell empty" [attr.colspan]="columns.length">No readings received yet.</td>
+      </tr>
     </table>
     <mat-paginator [pageSize]="10" [pageSizeOptions]="[10, 25, 50]" aria-label="Pages of recent readings" />
   `,
   styles: `
-    .readings { width: 100%; }
-    .num { text-align: right; }
-    .bad { color: var(--jw-warning); font-weight: 700; }
-    .empty { padding: 12px 16px; color: var(--jw-muted-text); }
+    .readings {
+      width: 100%;
+    }
+    .num {
+      text-align: right;
+    }
+    .bad {
+      color: var(--jw-warning);
+      font-weight: 700;
+    }
+    .empty {
+      padding: 12px 16px;
+      color: var(--jw-muted-text);
+    }
   `,
 })
 export class RecentReadings {

@@ -1,8 +1,29 @@
 import {
-  ChangeDetectionStrategy, Component, DestroyRef, ElementRef, afterNextRender, computed, effect, inject, input, output, untracked, viewChildren,
+  ChangeDetectionStrategy,
+  Component,
+  DestroyRef,
+  ElementRef,
+  afterNextRender,
+  computed,
+  effect,
+  inject,
+  input,
+  output,
+  untracked,
+  viewChildren,
 } from '@angular/core';
 import {
-  ApexAnnotations, ApexAxisChartSeries, ApexChart, ApexFill, ApexStroke, ApexTooltip, ApexXAxis, ApexYAxis, ChartComponent, XAxisAnnotations, YAxisAnnotations,
+  ApexAnnotations,
+  ApexAxisChartSeries,
+  ApexChart,
+  ApexFill,
+  ApexStroke,
+  ApexTooltip,
+  ApexXAxis,
+  ApexYAxis,
+  ChartComponent,
+  XAxisAnnotations,
+  YAxisAnnotations,
 } from 'ng-apexcharts';
 import { CHANNELS, ChannelKey } from '../../../shared/channels';
 import { BandEngine, NormalBand, normalBand } from '../../../shared/normal-bands';
@@ -42,7 +63,10 @@ const DECIMALS: Record<string, number> = { '°C': 1, '°F': 1, kPa: 0, psi: 1, b
 const GROUP = 'jw-engine-trend';
 
 /** Neutral greys: colour stays for abnormal states, which the trend does not judge. */
-const INK = { light: { line: '#3b4247', range: '#8d969c', band: '#7d878e', mark: '#54585c' }, dark: { line: '#dde1e4', range: '#98a1a8', band: '#aab3b9', mark: '#b4b8bc' } };
+const INK = {
+  light: { line: '#3b4247', range: '#8d969c', band: '#7d878e', mark: '#54585c' },
+  dark: { line: '#dde1e4', range: '#98a1a8', band: '#aab3b9', mark: '#b4b8bc' },
+};
 
 /**
  * Trends of the chosen channels, one small chart each on a shared time axis: the bucket mean as a line,
@@ -56,37 +80,95 @@ const INK = { light: { line: '#3b4247', range: '#8d969c', band: '#7d878e', mark:
   template: `
     @for (v of views(); track v.channel) {
       <section class="channel" [attr.aria-label]="v.label + ' trend in ' + v.unit">
-        <h3 class="title">{{ v.label }} <span class="unit">{{ v.unit }}</span></h3>
+        <h3 class="title">
+          {{ v.label }} <span class="unit">{{ v.unit }}</span>
+        </h3>
         <apx-chart
-          [chart]="v.chart" [series]="seriesOf(v.channel)" [xaxis]="v.xaxis" [yaxis]="v.yaxis" [annotations]="v.annotations"
-          [stroke]="stroke" [fill]="fill()" [colors]="colors()" [legend]="legend" [dataLabels]="dataLabels" [tooltip]="tooltip"
-          [grid]="grid()" [markers]="markers" [noData]="noData" [theme]="theme()" />
+          [chart]="v.chart"
+          [series]="seriesOf(v.channel)"
+          [xaxis]="v.xaxis"
+          [yaxis]="v.yaxis"
+          [annotations]="v.annotations"
+          [stroke]="stroke"
+          [fill]="fill()"
+          [colors]="colors()"
+          [legend]="legend"
+          [dataLabels]="dataLabels"
+          [tooltip]="tooltip"
+          [grid]="grid()"
+          [markers]="markers"
+          [noData]="noData"
+          [theme]="theme()"
+        />
       </section>
     } @empty {
       <p class="none">Choose at least one channel to draw.</p>
     }
     <p class="key" aria-hidden="true">
-      <span class="swatch line"></span> mean per step
-      <span class="swatch range"></span> lowest to highest per step
-      <span class="swatch band"></span> normal band
-      <span class="mark start"></span> ▲ started
-      <span class="mark stop"></span> ▼ stopped
+      <span class="swatch line"></span> mean per step <span class="swatch range"></span> lowest to highest per step <span class="swatch band"></span> normal
+      band <span class="mark start"></span> ▲ started <span class="mark stop"></span> ▼ stopped
     </p>
   `,
   styles: `
     // Clip: a chart being rebuilt or a label at the right edge must never widen the page.
-    :host { display: block; min-width: 0; overflow: hidden; }
-    .channel { margin-bottom: 4px; }
-    .title { margin: 8px 0 0; font-size: 14px; font-weight: 500; }
-    .unit { color: var(--jw-muted-text); font-weight: 400; }
-    .none { color: var(--jw-muted-text); }
-    .key { display: flex; flex-wrap: wrap; align-items: center; gap: 4px 6px; font-size: 12px; color: var(--jw-muted-text); margin: 4px 0 0; }
-    .swatch { display: inline-block; width: 18px; height: 10px; margin-left: 10px; }
-    .swatch.line { height: 2px; background: var(--jw-marker); }
-    .swatch.range { background: var(--jw-band-normal); opacity: 0.45; }
-    .swatch.band { background: var(--jw-band); border-top: 1px dashed var(--jw-band-normal); border-bottom: 1px dashed var(--jw-band-normal); }
-    .mark { display: inline-block; width: 0; height: 12px; margin-left: 10px; border-left: 2px solid var(--jw-muted-text); }
-    .mark.stop { border-left-style: dashed; }
+    :host {
+      display: block;
+      min-width: 0;
+      overflow: hidden;
+    }
+    .channel {
+      margin-bottom: 4px;
+    }
+    .title {
+      margin: 8px 0 0;
+      font-size: 14px;
+      font-weight: 500;
+    }
+    .unit {
+      color: var(--jw-muted-text);
+      font-weight: 400;
+    }
+    .none {
+      color: var(--jw-muted-text);
+    }
+    .key {
+      display: flex;
+      flex-wrap: wrap;
+      align-items: center;
+      gap: 4px 6px;
+      font-size: 12px;
+      color: var(--jw-muted-text);
+      margin: 4px 0 0;
+    }
+    .swatch {
+      display: inline-block;
+      width: 18px;
+      height: 10px;
+      margin-left: 10px;
+    }
+    .swatch.line {
+      height: 2px;
+      background: var(--jw-marker);
+    }
+    .swatch.range {
+      background: var(--jw-band-normal);
+      opacity: 0.45;
+    }
+    .swatch.band {
+      background: var(--jw-band);
+      border-top: 1px dashed var(--jw-band-normal);
+      border-bottom: 1px dashed var(--jw-band-normal);
+    }
+    .mark {
+      display: inline-block;
+      width: 0;
+      height: 12px;
+      margin-left: 10px;
+      border-left: 2px solid var(--jw-muted-text);
+    }
+    .mark.stop {
+      border-left-style: dashed;
+    }
   `,
 })
 export class TrendChart {
@@ -186,7 +268,11 @@ export class TrendChart {
         fontFamily: 'Roboto Condensed, sans-serif',
         background: 'transparent',
         zoom: { enabled: true, type: 'x', autoScaleYaxis: false },
-        toolbar: { show: true, autoSelected: 'zoom', tools: { download: false, selection: false, zoom: true, zoomin: true, zoomout: true, pan: false, reset: true } },
+        toolbar: {
+          show: true,
+          autoSelected: 'zoom',
+          tools: { download: false, selection: false, zoom: true, zoomin: true, zoomout: true, pan: false, reset: true },
+        },
         events: {
           zoomed: (_c: unknown, o: { xaxis?: { min?: number; max?: number } }) => {
             const min = o?.xaxis?.min;
@@ -221,7 +307,14 @@ export class TrendChart {
         opacity: 0.14,
         borderColor: ink.band,
         strokeDashArray: 4,
-        label: { text, position: 'left', textAnchor: 'start', offsetX: 4, borderWidth: 0, style: { background: 'transparent', color: ink.mark, fontSize: '11px' } },
+        label: {
+          text,
+          position: 'left',
+          textAnchor: 'start',
+          offsetX: 4,
+          borderWidth: 0,
+          style: { background: 'transparent', color: ink.mark, fontSize: '11px' },
+        },
       })) as YAxisAnnotations[];
       const moved = movingOptions(moving, index, ink);
       return {
@@ -295,16 +388,18 @@ export class TrendChart {
 }
 
 /** The x axis and the start/stop marks of one channel's chart (index 0 names the marks in words). */
-function movingOptions(
-  moving: Moving, index: number, ink: (typeof INK)['light'],
-): { xaxis: ApexXAxis; annotations: { xaxis: XAxisAnnotations[] } } {
+function movingOptions(moving: Moving, index: number, ink: (typeof INK)['light']): { xaxis: ApexXAxis; annotations: { xaxis: XAxisAnnotations[] } } {
   const { win, changes, zone } = moving;
   const span = win.to - win.from;
   return {
     // apexcharts writes datetime ticks in the browser's zone; the formatter writes them in the page's zone
     // (with a formatter the ticks are evenly spaced across the window rather than on round hours)
     xaxis: {
-      type: 'datetime', min: win.from, max: win.to, tickAmount: 6, tooltip: { enabled: false },
+      type: 'datetime',
+      min: win.from,
+      max: win.to,
+      tickAmount: 6,
+      tooltip: { enabled: false },
       labels: { datetimeUTC: false, hideOverlappingLabels: true, formatter: (v: string | number) => trendAxisLabel(Number(v), span, zone) },
     },
     annotations: {

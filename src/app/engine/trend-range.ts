@@ -91,7 +91,11 @@ export function rangeFromQuery(q: TrendQuery, now: number): TrendRange {
 /** Query parameters for a range; null removes a parameter (the default range leaves the address clean). */
 export function rangeToQuery(range: TrendRange): Record<'range' | 'from' | 'to', string | null> {
   if (range.preset === 'custom') {
-    const iso = (ms: number) => new Date(ms).toISOString().replace(/:00\.000Z$/, 'Z').replace(/\.\d{3}Z$/, 'Z');
+    const iso = (ms: number) =>
+      new Date(ms)
+        .toISOString()
+        .replace(/:00\.000Z$/, 'Z')
+        .replace(/\.\d{3}Z$/, 'Z');
     return { range: 'custom', from: iso(range.from), to: iso(range.to) };
   }
   return { range: range.preset === DEFAULT_PRESET ? null : range.preset, from: null, to: null };

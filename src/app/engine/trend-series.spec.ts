@@ -27,13 +27,27 @@ describe('appendLive (bounded live extension of the trend)', () => {
   });
 
   it('folds samples inside the newest bucket into it: min, max, running mean, count', () => {
-    const out = appendLive([b(0, 80, 79, 81, 4)], [{ t: 100, value: 90 }, { t: 200, value: 70 }], { from: 0, maxPoints: 10, bucketMs: 1000 });
+    const out = appendLive(
+      [b(0, 80, 79, 81, 4)],
+      [
+        { t: 100, value: 90 },
+        { t: 200, value: 70 },
+      ],
+      { from: 0, maxPoints: 10, bucketMs: 1000 },
+    );
     expect(out).toHaveLength(1);
     expect(out[0]).toEqual({ t: 0, min: 70, max: 90, count: 6, mean: (80 * 4 + 90 + 70) / 6 });
   });
 
   it('ignores samples older than the loaded history and non-finite values', () => {
-    const out = appendLive([b(5000, 80)], [{ t: 1000, value: 99 }, { t: 7000, value: Number.NaN }], { from: 0, maxPoints: 10, bucketMs: 1000 });
+    const out = appendLive(
+      [b(5000, 80)],
+      [
+        { t: 1000, value: 99 },
+        { t: 7000, value: Number.NaN },
+      ],
+      { from: 0, maxPoints: 10, bucketMs: 1000 },
+    );
     expect(out).toEqual([b(5000, 80)]);
   });
 });

@@ -12,7 +12,9 @@ import { Router, RouterLink } from '@angular/router';
     <section class="page" data-test="not-found">
       <mat-icon class="big" aria-hidden="true" fontIcon="wrong_location" />
       <h1>There is no page at this address</h1>
-      <p>The address <code>{{ address }}</code> does not lead to a page of Jacketwatch. It may be mistyped, or the page has moved.</p>
+      <p>
+        The address <code>{{ address }}</code> does not lead to a page of Jacketwatch. It may be mistyped, or the page has moved.
+      </p>
       <p class="actions">
         <a mat-flat-button routerLink="/fleet"><mat-icon fontIcon="grid_view" />To the fleet board</a>
         <button mat-button type="button" (click)="back()"><mat-icon fontIcon="arrow_back" />Back</button>

@@ -74,7 +74,10 @@ describe('EngineTile', () => {
 
   it('flags values outside the running bands by word', () => {
     const e = engine();
-    render({ ...e, latest: { ...e.latest, coolant_temp: { ...e.latest.coolant_temp!, value: 101 }, coolant_pressure: { ...e.latest.coolant_pressure!, value: 20 } } });
+    render({
+      ...e,
+      latest: { ...e.latest, coolant_temp: { ...e.latest.coolant_temp!, value: 101 }, coolant_pressure: { ...e.latest.coolant_pressure!, value: 20 } },
+    });
     expect(words()).toEqual(['HIGH', 'LOW']);
     expect(el.querySelector('a .spoken')!.textContent).toContain('Temperature 101.0 °C above normal; Pressure 20 kPa below normal');
   });
@@ -134,7 +137,14 @@ describe('EngineTile', () => {
     render(engine({ readiness: { ready: true, reasons: [] } }));
     expect(text('[data-testid="readiness"]')).toBe('Ready');
     expect(el.querySelector('[data-testid="readiness"]')!.classList).not.toContain('not-ready');
-    render(engine({ readiness: { ready: false, reasons: ['Jacket water cold: 20.0 °C (68.0 °F), below the 32.0 °C (89.6 °F) needed to start and take load at once', 'Out of service'] } }));
+    render(
+      engine({
+        readiness: {
+          ready: false,
+          reasons: ['Jacket water cold: 20.0 °C (68.0 °F), below the 32.0 °C (89.6 °F) needed to start and take load at once', 'Out of service'],
+        },
+      }),
+    );
     expect(text('.readiness-text')).toBe('Not ready');
     expect(text('.reasons')).toContain('Jacket water cold: 20.0 °C (68.0 °F)');
     expect(el.querySelector('[data-testid="readiness"]')!.classList).toContain('not-ready');
@@ -161,8 +171,15 @@ describe('EngineTile', () => {
 
   // PG 40 vol % freezes at -20.6 °C (Lange's Handbook of Chemistry 15th ed., table 5.13); -25 °C = -13 °F (NIST SP 811: °F = °C x 1.8 + 32)
   const short = {
-    status: 'short' as const, freezePointC: -20.6, requiredC: -25, designLowC: -20, marginK: 5, testId: 3, testedAt: '2026-11-01T17:00:00Z',
-    message: 'Freeze protection short', action: 'Raise the glycol',
+    status: 'short' as const,
+    freezePointC: -20.6,
+    requiredC: -25,
+    designLowC: -20,
+    marginK: 5,
+    testId: 3,
+    testedAt: '2026-11-01T17:00:00Z',
+    message: 'Freeze protection short',
+    action: 'Raise the glycol',
   };
   it('flags freeze protection short of the design low in words and with a snowflake, in the user units', () => {
     fixture.componentRef.setInput('timeZone', 'America/Denver');

@@ -46,7 +46,15 @@ interface TileRow {
     <!-- the link's name is the spoken summary (it starts with the engine's name); the drawn tile repeats it for the eye -->
     <a class="link" [routerLink]="['/engines', engine().id]">
       <span class="jw-visually-hidden spoken">{{ summary() }}</span>
-      <mat-card appearance="outlined" aria-hidden="true" class="tile" [class.no-data]="state() === 'no-data'" [class.stale]="stale()" [attr.data-stale]="stale() ? 'true' : null" [class.has-alarms]="alarms() > 0">
+      <mat-card
+        appearance="outlined"
+        aria-hidden="true"
+        class="tile"
+        [class.no-data]="state() === 'no-data'"
+        [class.stale]="stale()"
+        [attr.data-stale]="stale() ? 'true' : null"
+        [class.has-alarms]="alarms() > 0"
+      >
         <div class="head">
           <span class="name">{{ engine().name }}</span>
           <span class="duty">{{ dutyText() }}</span>

@@ -63,11 +63,14 @@ export class FleetService {
   /** Take the standby engines' readiness and each engine's freeze protection from a fresh engine list (values stay from the live push). */
   private async refreshReadiness(): Promise<void> {
     try {
-      const fresh = new Map((await firstValueFrom(this.http.get<Engine[]>('/api/engines'))).map((e) => [e.id, { readiness: e.readiness, freezeProtection: e.freezeProtection }]));
+      const fresh = new Map(
+        (await firstValueFrom(this.http.get<Engine[]>('/api/engines'))).map((e) => [e.id, { readiness: e.readiness, freezeProtection: e.freezeProtection }]),
+      );
       this.enginesSignal.update((list) =>
         list.map((e) => {
           const f = fresh.get(e.id);
-          const same = JSON.stringify(e.readiness) === JSON.stringify(f?.readiness) && JSON.stringify(e.freezeProtection) === JSON.stringify(f?.freezeProtection);
+          const same =
+            JSON.stringify(e.readiness) === JSON.stringify(f?.readiness) && JSON.stringify(e.freezeProtection) === JSON.stringify(f?.freezeProtection);
           return same ? e : { ...e, readiness: f?.readiness, freezeProtection: f?.freezeProtection };
         }),
       );

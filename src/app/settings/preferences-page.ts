@@ -78,14 +78,43 @@ import { UnitValuePipe } from '../ui/unit-value.pipe';
     </mat-card>
   `,
   styles: `
-    :host { display: block; padding: 16px 20px 32px; max-width: 820px; }
-    h1 { font: var(--mat-sys-headline-small); margin: 0; }
-    .lead { color: var(--jw-muted-text); margin: 4px 0 16px; }
-    .card { padding: 16px 20px; margin-bottom: 16px; }
-    h2 { font: var(--mat-sys-title-medium); margin: 0 0 12px; }
-    .setting { display: flex; flex-wrap: wrap; align-items: center; gap: 8px 16px; margin: 10px 0; }
-    .name { width: 8em; font-weight: 500; }
-    .example, .hint { color: var(--jw-muted-text); font: var(--mat-sys-body-small); }
+    :host {
+      display: block;
+      padding: 16px 20px 32px;
+      max-width: 820px;
+    }
+    h1 {
+      font: var(--mat-sys-headline-small);
+      margin: 0;
+    }
+    .lead {
+      color: var(--jw-muted-text);
+      margin: 4px 0 16px;
+    }
+    .card {
+      padding: 16px 20px;
+      margin-bottom: 16px;
+    }
+    h2 {
+      font: var(--mat-sys-title-medium);
+      margin: 0 0 12px;
+    }
+    .setting {
+      display: flex;
+      flex-wrap: wrap;
+      align-items: center;
+      gap: 8px 16px;
+      margin: 10px 0;
+    }
+    .name {
+      width: 8em;
+      font-weight: 500;
+    }
+    .example,
+    .hint {
+      color: var(--jw-muted-text);
+      font: var(--mat-sys-body-small);
+    }
   `,
 })
 export class PreferencesPage {

@@ -28,8 +28,12 @@ const POSITION_SHORT: Record<BandPosition, string> = { low: 'LOW', normal: '', h
       @if (markerAt() !== null) {
         <span class="marker" [class.out]="position() === 'low' || position() === 'high'" [style.left.%]="markerAt()">
           @switch (position()) {
-            @case ('low') { <span class="arrow">◀</span> }
-            @case ('high') { <span class="arrow">▶</span> }
+            @case ('low') {
+              <span class="arrow">◀</span>
+            }
+            @case ('high') {
+              <span class="arrow">▶</span>
+            }
           }
         </span>
       }
@@ -39,15 +43,59 @@ const POSITION_SHORT: Record<BandPosition, string> = { low: 'LOW', normal: '', h
     }
   `,
   styles: `
-    :host { display: flex; align-items: center; gap: 6px; min-width: 0; }
-    .track { position: relative; flex: 1; height: 8px; border-radius: 2px; background: var(--jw-band); min-width: 40px; }
-    .band { position: absolute; top: 0; bottom: 0; background: var(--jw-band-normal); }
-    .marker { position: absolute; top: -4px; width: 3px; height: 16px; margin-left: -1.5px; background: var(--jw-marker); border-radius: 1px; }
-    .marker.out { background: var(--jw-warning); width: 4px; margin-left: -2px; }
-    .arrow { position: absolute; top: -1px; font-size: 12px; line-height: 16px; color: var(--jw-warning); }
-    :host(.jw-pos-low) .arrow { right: 5px; }
-    :host(.jw-pos-high) .arrow { left: 5px; }
-    .word { font-size: 11px; font-weight: 700; letter-spacing: 0.04em; color: var(--jw-warning); }
+    :host {
+      display: flex;
+      align-items: center;
+      gap: 6px;
+      min-width: 0;
+    }
+    .track {
+      position: relative;
+      flex: 1;
+      height: 8px;
+      border-radius: 2px;
+      background: var(--jw-band);
+      min-width: 40px;
+    }
+    .band {
+      position: absolute;
+      top: 0;
+      bottom: 0;
+      background: var(--jw-band-normal);
+    }
+    .marker {
+      position: absolute;
+      top: -4px;
+      width: 3px;
+      height: 16px;
+      margin-left: -1.5px;
+      background: var(--jw-marker);
+      border-radius: 1px;
+    }
+    .marker.out {
+      background: var(--jw-warning);
+      width: 4px;
+      margin-left: -2px;
+    }
+    .arrow {
+      position: absolute;
+      top: -1px;
+      font-size: 12px;
+      line-height: 16px;
+      color: var(--jw-warning);
+    }
+    :host(.jw-pos-low) .arrow {
+      right: 5px;
+    }
+    :host(.jw-pos-high) .arrow {
+      left: 5px;
+    }
+    .word {
+      font-size: 11px;
+      font-weight: 700;
+      letter-spacing: 0.04em;
+      color: var(--jw-warning);
+    }
   `,
 })
 export class BandIndicator {

@@ -9,7 +9,9 @@ describe('localizeQuantities', () => {
   });
 
   it('keeps only the gallons where the text already gave them', () => {
-    expect(localizeQuantities('Add about one US pint per 4 US gallons: 5.30 L for 170.3 L (45.0 US gal).', US)).toBe('Add about one US pint per 4 US gallons: 1.40 US gal for 45.0 US gal.');
+    expect(localizeQuantities('Add about one US pint per 4 US gallons: 5.30 L for 170.3 L (45.0 US gal).', US)).toBe(
+      'Add about one US pint per 4 US gallons: 1.40 US gal for 45.0 US gal.',
+    );
   });
 
   it('keeps two significant digits of small volumes (0.05 L is 0.013 US gal, not 0.01)', () => {

@@ -15,7 +15,7 @@ function fixed(v: number, d: number): string {
   return v.toFixed(d).replace(/^-(0(\.0+)?)$/, '$1');
 }
 
-const US_FL_OZ_ML = LITRES_PER_US_GALLON * 1000 / 128;
+const US_FL_OZ_ML = (LITRES_PER_US_GALLON * 1000) / 128;
 
 /**
  * The quantities inside an explanation written by the shared code (which speaks SI: L, mL, kPa, °C), rewritten in
@@ -27,7 +27,10 @@ export function localizeQuantities(text: string, prefs: UnitPreferences): string
   let out = text;
   if (prefs.volume === 'gal') {
     out = out.replace(/(-?\d+(?:\.\d+)?) L \((-?\d+(?:\.\d+)?) US gal\)/g, '$2 US gal');
-    out = out.replace(/(?<![\w/])(-?\d+(?:\.\d+)?) L\b(?!\/)/g, (_m, n: string) => { const g = Number(n) / LITRES_PER_US_GALLON; return `${fixed(g, decimalsOf(n, 1, g))} US gal`; });
+    out = out.replace(/(?<![\w/])(-?\d+(?:\.\d+)?) L\b(?!\/)/g, (_m, n: string) => {
+      const g = Number(n) / LITRES_PER_US_GALLON;
+      return `${fixed(g, decimalsOf(n, 1, g))} US gal`;
+    });
     out = out.replace(/(?<![\w/])(\d+(?:\.\d+)?) mL\b(?!\/)/g, (_m, n: string) => `${fixed(Number(n) / US_FL_OZ_ML, 2)} US fl oz`);
   }
   if (prefs.pressure !== 'kPa') {

@@ -31,13 +31,38 @@ export interface ReadinessView {
     }
   `,
   styles: `
-    :host { display: block; }
-    .readiness { display: inline-flex; align-items: center; gap: 6px; font-size: 15px; color: var(--jw-muted-text); }
-    .readiness mat-icon { font-size: 20px; width: 20px; height: 20px; }
-    .readiness-text { font-weight: 600; }
-    .why { font-size: 13px; }
-    .not-ready { color: var(--jw-alarm-high); border: 2px solid currentColor; border-radius: 4px; padding: 2px 8px; }
-    .reasons { margin: 4px 0 0; padding-left: 24px; font-size: 14px; }
+    :host {
+      display: block;
+    }
+    .readiness {
+      display: inline-flex;
+      align-items: center;
+      gap: 6px;
+      font-size: 15px;
+      color: var(--jw-muted-text);
+    }
+    .readiness mat-icon {
+      font-size: 20px;
+      width: 20px;
+      height: 20px;
+    }
+    .readiness-text {
+      font-weight: 600;
+    }
+    .why {
+      font-size: 13px;
+    }
+    .not-ready {
+      color: var(--jw-alarm-high);
+      border: 2px solid currentColor;
+      border-radius: 4px;
+      padding: 2px 8px;
+    }
+    .reasons {
+      margin: 4px 0 0;
+      padding-left: 24px;
+      font-size: 14px;
+    }
   `,
 })
 export class ReadinessStatus {

@@ -55,12 +55,7 @@ export function unitSymbol(quantity: DisplayQuantity, prefs: UnitPreferences): s
   return UNIT_SYMBOL[convertStored(0, quantity, prefs).unit];
 }
 
-export function displayValue(
-  value: number | null | undefined,
-  what: ChannelKey | DisplayQuantity,
-  prefs: UnitPreferences,
-  decimals?: number,
-): DisplayValue {
+export function displayValue(value: number | null | undefined, what: ChannelKey | DisplayQuantity, prefs: UnitPreferences, decimals?: number): DisplayValue {
   const quantity = quantityOf(what);
   const converted = convertStored(0, quantity, prefs);
   const symbol = UNIT_SYMBOL[converted.unit];
@@ -70,12 +65,7 @@ export function displayValue(
 }
 
 /** "82.4 °C"; a missing value shows as a dash without a unit. */
-export function formatStored(
-  value: number | null | undefined,
-  what: ChannelKey | DisplayQuantity,
-  prefs: UnitPreferences,
-  decimals?: number,
-): string {
+export function formatStored(value: number | null | undefined, what: ChannelKey | DisplayQuantity, prefs: UnitPreferences, decimals?: number): string {
   const d = displayValue(value, what, prefs, decimals);
   return d.text === NO_VALUE ? NO_VALUE : `${d.text} ${d.symbol}`;
 }

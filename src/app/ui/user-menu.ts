@@ -20,8 +20,16 @@ let nextId = 0;
     '(focusout)': 'onFocusOut($event)',
   },
   template: `
-    <button #trigger mat-button type="button" class="user-button" [attr.aria-label]="name() + ', user menu'"
-            [attr.aria-expanded]="open()" [attr.aria-controls]="panelId" (click)="toggle()">
+    <button
+      #trigger
+      mat-button
+      type="button"
+      class="user-button"
+      [attr.aria-label]="name() + ', user menu'"
+      [attr.aria-expanded]="open()"
+      [attr.aria-controls]="panelId"
+      (click)="toggle()"
+    >
       <mat-icon fontIcon="account_circle" />
       <span class="user-name">{{ name() }}</span>
     </button>
@@ -35,27 +43,77 @@ let nextId = 0;
     }
   `,
   styles: `
-    :host { position: relative; display: inline-flex; }
-    .user-name { max-width: 14em; overflow: hidden; text-overflow: ellipsis; white-space: nowrap; }
+    :host {
+      position: relative;
+      display: inline-flex;
+    }
+    .user-name {
+      max-width: 14em;
+      overflow: hidden;
+      text-overflow: ellipsis;
+      white-space: nowrap;
+    }
     .panel {
-      position: absolute; top: 100%; right: 0; z-index: 4; box-sizing: border-box;
-      width: max-content; min-width: 112px; max-width: 280px; padding: 8px 0; border-radius: 4px;
-      background: var(--mat-sys-surface-container); color: var(--mat-sys-on-surface); box-shadow: var(--mat-sys-level2);
+      position: absolute;
+      top: 100%;
+      right: 0;
+      z-index: 4;
+      box-sizing: border-box;
+      width: max-content;
+      min-width: 112px;
+      max-width: 280px;
+      padding: 8px 0;
+      border-radius: 4px;
+      background: var(--mat-sys-surface-container);
+      color: var(--mat-sys-on-surface);
+      box-shadow: var(--mat-sys-level2);
     }
     .user-info {
-      margin: 0; padding: 14px 12px; font: var(--mat-sys-label-large); letter-spacing: var(--mat-sys-label-large-tracking);
-      color: var(--jw-muted-text); overflow: hidden; text-overflow: ellipsis; white-space: nowrap;
+      margin: 0;
+      padding: 14px 12px;
+      font: var(--mat-sys-label-large);
+      letter-spacing: var(--mat-sys-label-large-tracking);
+      color: var(--jw-muted-text);
+      overflow: hidden;
+      text-overflow: ellipsis;
+      white-space: nowrap;
     }
-    .divider { margin: 8px 0; border: 0; border-top: 1px solid var(--mat-sys-outline-variant); }
+    .divider {
+      margin: 8px 0;
+      border: 0;
+      border-top: 1px solid var(--mat-sys-outline-variant);
+    }
     .item {
-      display: flex; align-items: center; gap: 12px; box-sizing: border-box; width: 100%; height: 48px; padding: 0 12px;
-      border: 0; background: transparent; color: inherit; text-decoration: none; text-align: start; cursor: pointer;
-      font: var(--mat-sys-label-large); letter-spacing: var(--mat-sys-label-large-tracking);
+      display: flex;
+      align-items: center;
+      gap: 12px;
+      box-sizing: border-box;
+      width: 100%;
+      height: 48px;
+      padding: 0 12px;
+      border: 0;
+      background: transparent;
+      color: inherit;
+      text-decoration: none;
+      text-align: start;
+      cursor: pointer;
+      font: var(--mat-sys-label-large);
+      letter-spacing: var(--mat-sys-label-large-tracking);
     }
-    .item:hover { background: color-mix(in srgb, var(--mat-sys-on-surface) 8%, transparent); }
-    .item:focus-visible { outline-offset: -2px; }
-    .item mat-icon { color: var(--mat-sys-on-surface-variant); }
-    @media (max-width: 600px) { .user-name { display: none; } }
+    .item:hover {
+      background: color-mix(in srgb, var(--mat-sys-on-surface) 8%, transparent);
+    }
+    .item:focus-visible {
+      outline-offset: -2px;
+    }
+    .item mat-icon {
+      color: var(--mat-sys-on-surface-variant);
+    }
+    @media (max-width: 600px) {
+      .user-name {
+        display: none;
+      }
+    }
   `,
 })
 export class UserMenu {

@@ -11,18 +11,48 @@ import { WorkAttachment } from './work-types';
   template: `
     @if (src(); as s) {
       <a [href]="s" target="_blank" rel="noopener" [attr.download]="isPdf() ? file().originalName : null" class="thumb">
-        @if (isPdf()) { <mat-icon fontIcon="picture_as_pdf" aria-hidden="true" /> } @else { <img [src]="s" [alt]="file().originalName" /> }
+        @if (isPdf()) {
+          <mat-icon fontIcon="picture_as_pdf" aria-hidden="true" />
+        } @else {
+          <img [src]="s" [alt]="file().originalName" />
+        }
         <span class="name">{{ file().originalName }}</span>
       </a>
     } @else {
-      <span class="thumb"><mat-icon fontIcon="image" aria-hidden="true" /><span class="name">{{ file().originalName }}</span></span>
+      <span class="thumb"
+        ><mat-icon fontIcon="image" aria-hidden="true" /><span class="name">{{ file().originalName }}</span></span
+      >
     }
   `,
   styles: `
-    .thumb { display: inline-flex; flex-direction: column; align-items: center; gap: 2px; width: 120px; color: inherit; text-decoration: none; }
-    img { width: 120px; height: 90px; object-fit: cover; border: 1px solid var(--mat-sys-outline-variant); border-radius: 4px; }
-    mat-icon { font-size: 48px; width: 48px; height: 48px; }
-    .name { font: var(--mat-sys-body-small); max-width: 120px; overflow: hidden; text-overflow: ellipsis; white-space: nowrap; }
+    .thumb {
+      display: inline-flex;
+      flex-direction: column;
+      align-items: center;
+      gap: 2px;
+      width: 120px;
+      color: inherit;
+      text-decoration: none;
+    }
+    img {
+      width: 120px;
+      height: 90px;
+      object-fit: cover;
+      border: 1px solid var(--mat-sys-outline-variant);
+      border-radius: 4px;
+    }
+    mat-icon {
+      font-size: 48px;
+      width: 48px;
+      height: 48px;
+    }
+    .name {
+      font: var(--mat-sys-body-small);
+      max-width: 120px;
+      overflow: hidden;
+      text-overflow: ellipsis;
+      white-space: nowrap;
+    }
   `,
 })
 export class AttachmentThumb {
@@ -35,10 +65,13 @@ export class AttachmentThumb {
     effect(() => {
       const f = this.file();
       untracked(() => {
-        this.api.attachmentBlob(f.url).then((b) => {
-          this.revoke();
-          this.src.set(URL.createObjectURL(b));
-        }, () => this.src.set(null));
+        this.api.attachmentBlob(f.url).then(
+          (b) => {
+            this.revoke();
+            this.src.set(URL.createObjectURL(b));
+          },
+          () => this.src.set(null),
+        );
       });
     });
     inject(DestroyRef).onDestroy(() => this.revoke());

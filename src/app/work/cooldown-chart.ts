@@ -1,6 +1,16 @@
 import { browserZone, formatInZone } from '../ui/time-format';
 import { ChangeDetectionStrategy, Component, DestroyRef, ElementRef, afterNextRender, computed, effect, inject, input, signal, untracked } from '@angular/core';
-import { ApexAnnotations, ApexAxisChartSeries, ApexChart, ApexStroke, ApexXAxis, ApexYAxis, ChartComponent, PointAnnotations, XAxisAnnotations } from 'ng-apexcharts';
+import {
+  ApexAnnotations,
+  ApexAxisChartSeries,
+  ApexChart,
+  ApexStroke,
+  ApexXAxis,
+  ApexYAxis,
+  ChartComponent,
+  PointAnnotations,
+  XAxisAnnotations,
+} from 'ng-apexcharts';
 import { PreferencesService } from '../core/preferences.service';
 import { niceExtent } from '../engine/trend-chart';
 import { CooldownTrace, ReadingBucket, buildCooldown } from './cooldown-series';
@@ -8,7 +18,10 @@ import { WorkApi } from './work-api';
 import { OpeningCheck } from './work-types';
 
 /** Neutral greys; the limit line is the only darker mark. Colour is kept for abnormal states (the panel's border). */
-const INK = { light: { line: '#3b4247', fit: '#7d878e', limit: '#1b1d1f', mark: '#54585c' }, dark: { line: '#dde1e4', fit: '#98a1a8', limit: '#f1f1f1', mark: '#b4b8bc' } };
+const INK = {
+  light: { line: '#3b4247', fit: '#7d878e', limit: '#1b1d1f', mark: '#54585c' },
+  dark: { line: '#dde1e4', fit: '#98a1a8', limit: '#f1f1f1', mark: '#b4b8bc' },
+};
 
 interface TraceView {
   key: 'temp' | 'pressure';
@@ -36,25 +49,76 @@ const fmt = (v: number, unit: string) => `${v.toFixed(unit === 'kPa' ? 0 : unit 
   template: `
     @for (v of views(); track v.key) {
       <section class="trace" [attr.aria-label]="v.title + ' since the stop, in ' + v.trace.unit">
-        <h3 class="title">{{ v.title }} since the stop <span class="unit">{{ v.trace.unit }}</span></h3>
+        <h3 class="title">
+          {{ v.title }} since the stop <span class="unit">{{ v.trace.unit }}</span>
+        </h3>
         <apx-chart
-          [chart]="chart()" [series]="v.series" [xaxis]="xaxis()" [yaxis]="v.yaxis" [annotations]="v.annotations" [stroke]="stroke"
-          [colors]="colors()" [legend]="legend" [dataLabels]="dataLabels" [markers]="markers" [tooltip]="tooltip" [grid]="grid()" [theme]="theme()" />
+          [chart]="chart()"
+          [series]="v.series"
+          [xaxis]="xaxis()"
+          [yaxis]="v.yaxis"
+          [annotations]="v.annotations"
+          [stroke]="stroke"
+          [colors]="colors()"
+          [legend]="legend"
+          [dataLabels]="dataLabels"
+          [markers]="markers"
+          [tooltip]="tooltip"
+          [grid]="grid()"
+          [theme]="theme()"
+        />
         <p class="state" [class.blocked]="v.trace.why === 'heater'">{{ v.text }}</p>
       </section>
     }
-    <p class="key" aria-hidden="true"><span class="sw line"></span> measured <span class="sw fit"></span> fitted cool-down curve <span class="sw limit"></span> limit</p>
+    <p class="key" aria-hidden="true">
+      <span class="sw line"></span> measured <span class="sw fit"></span> fitted cool-down curve <span class="sw limit"></span> limit
+    </p>
   `,
   styles: `
-    :host { display: block; min-width: 0; overflow: hidden; }
-    .title { margin: 8px 0 0; font-size: 14px; font-weight: 500; }
-    .unit { color: var(--jw-muted-text); font-weight: 400; }
-    .state { margin: 0 0 4px; font-size: 13px; }
-    .state.blocked { font-weight: 700; }
-    .key { display: flex; flex-wrap: wrap; align-items: center; gap: 4px 6px; font-size: 12px; color: var(--jw-muted-text); margin: 0; }
-    .sw { display: inline-block; width: 18px; height: 0; margin-left: 10px; border-top: 2px solid var(--jw-marker); }
-    .sw.fit { border-top-style: dashed; border-color: var(--jw-band-normal); }
-    .sw.limit { border-top: 2px dotted var(--jw-marker); }
+    :host {
+      display: block;
+      min-width: 0;
+      overflow: hidden;
+    }
+    .title {
+      margin: 8px 0 0;
+      font-size: 14px;
+      font-weight: 500;
+    }
+    .unit {
+      color: var(--jw-muted-text);
+      font-weight: 400;
+    }
+    .state {
+      margin: 0 0 4px;
+      font-size: 13px;
+    }
+    .state.blocked {
+      font-weight: 700;
+    }
+    .key {
+      display: flex;
+      flex-wrap: wrap;
+      align-items: center;
+      gap: 4px 6px;
+      font-size: 12px;
+      color: var(--jw-muted-text);
+      margin: 0;
+    }
+    .sw {
+      display: inline-block;
+      width: 18px;
+      height: 0;
+      margin-left: 10px;
+      border-top: 2px solid var(--jw-marker);
+    }
+    .sw.fit {
+      border-top-style: dashed;
+      border-color: var(--jw-band-normal);
+    }
+    .sw.limit {
+      border-top: 2px dotted var(--jw-marker);
+    }
   `,
 })
 export class CooldownChart {
@@ -84,17 +148,28 @@ export class CooldownChart {
   protected readonly markers = { size: 0, hover: { size: 3 } };
   protected readonly tooltip = { shared: false, x: { format: 'HH:mm:ss' } };
   protected readonly chart = computed<ApexChart>(() => ({
-    type: 'line', height: 150, animations: { enabled: false }, fontFamily: 'Roboto Condensed, sans-serif', background: 'transparent',
-    toolbar: { show: false }, zoom: { enabled: false },
+    type: 'line',
+    height: 150,
+    animations: { enabled: false },
+    fontFamily: 'Roboto Condensed, sans-serif',
+    background: 'transparent',
+    toolbar: { show: false },
+    zoom: { enabled: false },
   }));
 
   protected readonly model = computed(() => {
     const c = this.check();
     const s = c.settings;
     return buildCooldown({
-      stopTs: this.stopTs(), temp: this.temp(), pressure: this.pressure(),
-      safeOpenTempC: s.safeOpenTempC, maxPressureKpa: s.maxPressureKpa, heaterSetpointC: s.heaterSetpointC ?? null, ambientC: s.ambientC ?? null,
-      prefs: this.prefs.preferences(), maxPoints: this.width(),
+      stopTs: this.stopTs(),
+      temp: this.temp(),
+      pressure: this.pressure(),
+      safeOpenTempC: s.safeOpenTempC,
+      maxPressureKpa: s.maxPressureKpa,
+      heaterSetpointC: s.heaterSetpointC ?? null,
+      ambientC: s.ambientC ?? null,
+      prefs: this.prefs.preferences(),
+      maxPoints: this.width(),
     });
   });
 
@@ -112,10 +187,7 @@ export class CooldownChart {
     const m = this.model();
     const ink = this.ink();
     const clearAt = this.check().clearAt;
-    return [
-      this.view('temp', 'Coolant temperature', m.temp, ink, clearAt),
-      this.view('pressure', 'Coolant pressure', m.pressure, ink, clearAt),
-    ];
+    return [this.view('temp', 'Coolant temperature', m.temp, ink, clearAt), this.view('pressure', 'Coolant pressure', m.pressure, ink, clearAt)];
   });
 
   constructor() {
@@ -133,10 +205,7 @@ export class CooldownChart {
     if (this.inFlight || !(to > from)) return;
     this.inFlight = true;
     try {
-      const [t, p] = await Promise.all([
-        this.api.readings(id, 'coolant_temp', from, to, points),
-        this.api.readings(id, 'coolant_pressure', from, to, points),
-      ]);
+      const [t, p] = await Promise.all([this.api.readings(id, 'coolant_temp', from, to, points), this.api.readings(id, 'coolant_pressure', from, to, points)]);
       this.temp.set(t);
       this.pressure.set(p);
     } catch {
@@ -153,21 +222,65 @@ export class CooldownChart {
     const dec = t.unit === 'bar' ? 2 : t.unit === 'kPa' ? 0 : 1;
     const xaxis: XAxisAnnotations[] = [];
     if (clearAt !== null) {
-      xaxis.push({ x: clearAt, borderColor: ink.mark, strokeDashArray: 3, label: { text: `forecast clear ${time(clearAt)}`, orientation: 'horizontal', position: 'top', textAnchor: 'end', borderWidth: 0, style: { background: 'transparent', color: ink.mark, fontSize: '11px' } } });
+      xaxis.push({
+        x: clearAt,
+        borderColor: ink.mark,
+        strokeDashArray: 3,
+        label: {
+          text: `forecast clear ${time(clearAt)}`,
+          orientation: 'horizontal',
+          position: 'top',
+          textAnchor: 'end',
+          borderWidth: 0,
+          style: { background: 'transparent', color: ink.mark, fontSize: '11px' },
+        },
+      });
     }
     const points: PointAnnotations[] = [];
     if (t.reachAt !== null) {
-      points.push({ x: t.reachAt, y: t.limit, marker: { size: 5, shape: 'square', fillColor: ink.limit, strokeColor: ink.limit }, label: { text: `reaches limit ${time(t.reachAt)}`, borderWidth: 0, offsetY: -4, style: { background: 'transparent', color: ink.mark, fontSize: '11px' } } });
+      points.push({
+        x: t.reachAt,
+        y: t.limit,
+        marker: { size: 5, shape: 'square', fillColor: ink.limit, strokeColor: ink.limit },
+        label: {
+          text: `reaches limit ${time(t.reachAt)}`,
+          borderWidth: 0,
+          offsetY: -4,
+          style: { background: 'transparent', color: ink.mark, fontSize: '11px' },
+        },
+      });
     }
     return {
-      key, title, trace: t,
+      key,
+      title,
+      trace: t,
       series: [
         { name: 'Measured', type: 'line', data: t.measured },
         { name: 'Fitted', type: 'line', data: t.fitted },
       ],
-      yaxis: { min: y.lo, max: y.hi, tickAmount: 4, title: { text: t.unit }, labels: { minWidth: 48, maxWidth: 48, formatter: (v: number) => (Number.isFinite(v) ? v.toFixed(dec) : '') } },
+      yaxis: {
+        min: y.lo,
+        max: y.hi,
+        tickAmount: 4,
+        title: { text: t.unit },
+        labels: { minWidth: 48, maxWidth: 48, formatter: (v: number) => (Number.isFinite(v) ? v.toFixed(dec) : '') },
+      },
       annotations: {
-        yaxis: [{ y: t.limit, borderColor: ink.limit, strokeDashArray: 2, label: { text: `limit ${fmt(t.limit, t.unit)}`, position: 'left', textAnchor: 'start', offsetX: 4, borderWidth: 0, style: { background: 'transparent', color: ink.limit, fontSize: '11px' } } }],
+        yaxis: [
+          {
+            y: t.limit,
+            borderColor: ink.limit,
+            strokeDashArray: 2,
+            label: {
+              text: `limit ${fmt(t.limit, t.unit)}`,
+              position: 'left',
+              textAnchor: 'start',
+              offsetX: 4,
+              borderWidth: 0,
+              style: { background: 'transparent', color: ink.limit, fontSize: '11px' },
+            },
+          },
+        ],
         xaxis,
         points,
       },
@@ -201,7 +314,9 @@ export function describe(title: string, t: CooldownTrace): string {
   }
   if (t.reachAt !== null) return `${now}, above the limit ${fmt(t.limit, t.unit)}: forecast to reach it about ${time(t.reachAt)}.`;
   if (t.why === 'rising') return `${now}, above the limit ${fmt(t.limit, t.unit)}: rising (heat soak after the stop), no forecast until it falls.`;
-  if (t.why === 'heater') return `${now}, above the limit ${fmt(t.limit, t.unit)}: it levels off at the heater setpoint and can never reach the limit while the heater is on.`;
-  if (t.why === 'ambient') return `${now}, above the limit ${fmt(t.limit, t.unit)}: the surroundings are as warm as the limit, so it will not cool below it by itself.`;
+  if (t.why === 'heater')
+    return `${now}, above the limit ${fmt(t.limit, t.unit)}: it levels off at the heater setpoint and can never reach the limit while the heater is on.`;
+  if (t.why === 'ambient')
+    return `${now}, above the limit ${fmt(t.limit, t.unit)}: the surroundings are as warm as the limit, so it will not cool below it by itself.`;
   return `${now}, above the limit ${fmt(t.limit, t.unit)}: ${t.why ?? 'no forecast'}, no forecast yet.`;
 }

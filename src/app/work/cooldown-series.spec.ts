@@ -17,7 +17,15 @@ function buckets(n: number, everyS: number, f: (s: number) => number): ReadingBu
 const temp = (n = 60) => buckets(n, 10, (s) => coolingTemperature(88, 25, 1800, s));
 const pressure = (n = 60) => buckets(n, 10, (s) => (s < 100 ? 95 : 95 * Math.exp(-(s - 100) / 300)));
 const input = (over: Partial<Parameters<typeof buildCooldown>[0]> = {}) => ({
-  stopTs: STOP, temp: temp(), pressure: pressure(), safeOpenTempC: 50, maxPressureKpa: 7, heaterSetpointC: null, ambientC: 25, prefs: metric, ...over,
+  stopTs: STOP,
+  temp: temp(),
+  pressure: pressure(),
+  safeOpenTempC: 50,
+  maxPressureKpa: 7,
+  heaterSetpointC: null,
+  ambientC: 25,
+  prefs: metric,
+  ...over,
 });
 
 describe('buildCooldown', () => {

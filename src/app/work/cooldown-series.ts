@@ -79,7 +79,8 @@ function curve(fromTs: number, end: number, last: { ts: number; value: number },
   return out;
 }
 
-const good = (b: readonly ReadingBucket[], stopTs: number) => b.filter((r) => r.count > 0 && Number.isFinite(r.mean) && r.t >= stopTs).sort((a, b2) => a.t - b2.t);
+const good = (b: readonly ReadingBucket[], stopTs: number) =>
+  b.filter((r) => r.count > 0 && Number.isFinite(r.mean) && r.t >= stopTs).sort((a, b2) => a.t - b2.t);
 
 /** Coolant temperature and pressure since the stop, their fitted cool-down curves and limits, ready to draw. */
 export function buildCooldown(input: CooldownInput): { temp: CooldownTrace; pressure: CooldownTrace } {
@@ -92,11 +93,27 @@ export function buildCooldown(input: CooldownInput): { temp: CooldownTrace; pres
   const tLimit = input.safeOpenTempC;
   const towards = [input.heaterSetpointC, input.ambientC].filter((v): v is number => v !== null && Number.isFinite(v));
   const ta = towards.length ? Math.max(...towards) : null;
-  const tTrace: CooldownTrace = { unit: unitSymbol('temperature', input.prefs), measured: bounded(temp, n).map((b) => ({ x: b.t, y: cT(b.mean) })), fitted: [], limit: cT(tLimit), reachAt: null, band: null, met: false, why: null };
+  const tTrace: CooldownTrace = {
+    unit: unitSymbol('temperature', input.prefs),
+    measured: bounded(temp, n).map((b) => ({ x: b.t, y: cT(b.mean) })),
+    fitted: [],
+    limit: cT(tLimit),
+    reachAt: null,
+    band: null,
+    met: false,
+    why: null,
+  };
   const tLast = temp.length ? { ts: temp[temp.length - 1].t, value: temp[temp.length - 1].mean } : null;
   tTrace.met = !!tLast && tLast.value <= tLimit;
   // the shared forecast (the opening check uses the same): none while rising or flat, a band when Ta is fitted
-  const fc = tLast && !tTrace.met ? forecastCooling(temp.map((b) => ({ ts: b.t, value: b.mean })), tLimit, ta) : null;
+  const fc =
+    tLast && !tTrace.met
+      ? forecastCooling(
+          temp.map((b) => ({ ts: b.t, value: b.mean })),
+          tLimit,
+          ta,
+        )
+      : null;
   if (tLast && fc?.kind === 'forecast') {
     tTrace.reachAt = fc.at;
     tTrace.fitted = curve(temp[0].t, fc.at, tLast, fc.ambientC, fc.tauS, cT);
@@ -113,12 +130,27 @@ export function buildCooldown(input: CooldownInput): { temp: CooldownTrace; pres
   // Pressure: decay toward 0 kPa gauge fitted from where it leaves its plateau, as the check does.
   const pres = good(input.pressure, input.stopTs);
   const pLimit = input.maxPressureKpa;
-  const pTrace: CooldownTrace = { unit: unitSymbol('pressure', input.prefs), measured: bounded(pres, n).map((b) => ({ x: b.t, y: cP(b.mean) })), fitted: [], limit: cP(pLimit), reachAt: null, band: null, met: false, why: null };
+  const pTrace: CooldownTrace = {
+    unit: unitSymbol('pressure', input.prefs),
+    measured: bounded(pres, n).map((b) => ({ x: b.t, y: cP(b.mean) })),
+    fitted: [],
+    limit: cP(pLimit),
+    reachAt: null,
+    band: null,
+    met: false,
+    why: null,
+  };
   const pLast = pres.length ? { ts: pres[pres.length - 1].t, value: pres[pres.length - 1].mean } : null;
   pTrace.met = !!pLast && pLast.value <= pLimit;
   if (pLast && !pTrace.met) {
     const falling = pressureFalling(pres.map((b) => ({ ts: b.t, value: b.mean })));
-    const pFit = pLimit > 0 ? fitCooling(falling.map((r) => ({ t: r.ts / 1000, temp: r.value })), 0) : null;
+    const pFit =
+      pLimit > 0
+        ? fitCooling(
+            falling.map((r) => ({ t: r.ts / 1000, temp: r.value })),
+            0,
+          )
+        : null;
     const dt = pFit ? timeToReachS(pLast.value, 0, pFit.tauS, pLimit) : Infinity;
     if (pFit && Number.isFinite(dt)) {
       pTrace.reachAt = pLast.ts + dt * 1000;

@@ -39,14 +39,18 @@ export interface CreateWorkData {
         <mat-form-field appearance="outline">
           <mat-label>Kind of work</mat-label>
           <mat-select formControlName="kind">
-            @for (t of templates(); track t.kind) { <mat-option [value]="t.kind">{{ t.title }}</mat-option> }
+            @for (t of templates(); track t.kind) {
+              <mat-option [value]="t.kind">{{ t.title }}</mat-option>
+            }
           </mat-select>
         </mat-form-field>
         <mat-form-field appearance="outline">
           <mat-label>Assign to</mat-label>
           <mat-select formControlName="assigneeId">
             <mat-option [value]="null">Not yet</mat-option>
-            @for (a of assignees(); track a.id) { <mat-option [value]="a.id">{{ a.name }}</mat-option> }
+            @for (a of assignees(); track a.id) {
+              <mat-option [value]="a.id">{{ a.name }}</mat-option>
+            }
           </mat-select>
         </mat-form-field>
         <mat-form-field appearance="outline">
@@ -56,7 +60,9 @@ export interface CreateWorkData {
           <mat-datepicker #picker />
         </mat-form-field>
       </form>
-      @if (error(); as e) { <p class="error" role="alert">{{ e }}</p> }
+      @if (error(); as e) {
+        <p class="error" role="alert">{{ e }}</p>
+      }
     </mat-dialog-content>
     <mat-dialog-actions align="end">
       <button mat-button type="button" [mat-dialog-close]="undefined">Back</button>
@@ -64,9 +70,19 @@ export interface CreateWorkData {
     </mat-dialog-actions>
   `,
   styles: `
-    .form { display: grid; gap: 4px; min-width: min(420px, 80vw); }
-    .from { color: var(--jw-muted-text); margin-top: 0; }
-    .error { color: var(--jw-alarm-high); font-weight: 600; }
+    .form {
+      display: grid;
+      gap: 4px;
+      min-width: min(420px, 80vw);
+    }
+    .from {
+      color: var(--jw-muted-text);
+      margin-top: 0;
+    }
+    .error {
+      color: var(--jw-alarm-high);
+      font-weight: 600;
+    }
   `,
 })
 export class CreateWorkDialog {
@@ -87,8 +103,14 @@ export class CreateWorkDialog {
   });
 
   constructor() {
-    this.api.templates().then((t) => this.templates.set(t), (e) => this.error.set(errorText(e)));
-    this.api.assignees().then((a) => this.assignees.set(a), () => undefined);
+    this.api.templates().then(
+      (t) => this.templates.set(t),
+      (e) => this.error.set(errorText(e)),
+    );
+    this.api.assignees().then(
+      (a) => this.assignees.set(a),
+      () => undefined,
+    );
   }
 
   protected async create(): Promise<void> {
@@ -100,7 +122,8 @@ export class CreateWorkDialog {
     this.error.set(null);
     try {
       const o = await this.api.create({
-        engineId: this.data.engineId, kind: v.kind,
+        engineId: this.data.engineId,
+        kind: v.kind,
         ...(this.data.alarmId ? { alarmId: this.data.alarmId } : {}),
         ...(this.data.title ? { title: this.data.title } : {}),
         ...(v.assigneeId ? { assigneeId: v.assigneeId } : {}),

@@ -16,8 +16,12 @@ import { WorkOrderSummary } from './work-types';
   template: `
     <div class="page">
       <h1>My work</h1>
-      @if (loading()) { <mat-progress-bar mode="indeterminate" /> }
-      @if (error(); as e) { <p class="error" role="alert">{{ e }}</p> }
+      @if (loading()) {
+        <mat-progress-bar mode="indeterminate" />
+      }
+      @if (error(); as e) {
+        <p class="error" role="alert">{{ e }}</p>
+      }
       @if (!loading() && !sorted().length && !error()) {
         <div class="empty" role="status">
           <p><strong>Nothing assigned to you right now.</strong></p>
@@ -35,7 +39,12 @@ import { WorkOrderSummary } from './work-types';
               <mat-card-content>
                 <div class="top">
                   <span class="status"><mat-icon [fontIcon]="statusIcon[o.status]" aria-hidden="true" />{{ statusText[o.status] }}</span>
-                  <span class="due" [class.late]="late(o)">Due {{ fmtDate(o.dueDate) }}@if (late(o)) { · overdue }</span>
+                  <span class="due" [class.late]="late(o)"
+                    >Due {{ fmtDate(o.dueDate) }}
+                    @if (late(o)) {
+                      · overdue
+                    }
+                  </span>
                 </div>
                 <div class="title">#{{ o.id }} {{ o.title }}</div>
                 <div class="where"><mat-icon fontIcon="place" aria-hidden="true" />{{ o.siteName }} · {{ o.engineName }}</div>
@@ -51,21 +60,72 @@ import { WorkOrderSummary } from './work-types';
     </div>
   `,
   styles: `
-    .page { padding: 16px 24px 32px; max-width: 900px; }
-    h1 { font: var(--mat-sys-headline-small); }
-    .cards { display: grid; gap: 12px; }
-    .card-link { text-decoration: none; color: inherit; display: block; }
-    mat-card { min-height: 120px; }
-    mat-card.active { border-left: 6px solid var(--mat-sys-primary); }
-    .top, .bottom { display: flex; justify-content: space-between; gap: 8px; font: var(--mat-sys-body-large); }
-    .status { display: inline-flex; align-items: center; gap: 6px; font-weight: 600; }
-    .title { font: var(--mat-sys-title-large); margin: 10px 0 6px; }
-    .where { display: flex; align-items: center; gap: 4px; color: var(--jw-muted-text); margin-bottom: 8px; font: var(--mat-sys-body-large); }
-    .late { color: var(--jw-warning); font-weight: 700; }
-    .error { color: var(--jw-alarm-high); }
-    .empty { color: var(--jw-muted-text); font: var(--mat-sys-body-large); }
-    .empty p { margin: 0 0 8px; }
-    .next { display: flex; flex-wrap: wrap; gap: 8px; }
+    .page {
+      padding: 16px 24px 32px;
+      max-width: 900px;
+    }
+    h1 {
+      font: var(--mat-sys-headline-small);
+    }
+    .cards {
+      display: grid;
+      gap: 12px;
+    }
+    .card-link {
+      text-decoration: none;
+      color: inherit;
+      display: block;
+    }
+    mat-card {
+      min-height: 120px;
+    }
+    mat-card.active {
+      border-left: 6px solid var(--mat-sys-primary);
+    }
+    .top,
+    .bottom {
+      display: flex;
+      justify-content: space-between;
+      gap: 8px;
+      font: var(--mat-sys-body-large);
+    }
+    .status {
+      display: inline-flex;
+      align-items: center;
+      gap: 6px;
+      font-weight: 600;
+    }
+    .title {
+      font: var(--mat-sys-title-large);
+      margin: 10px 0 6px;
+    }
+    .where {
+      display: flex;
+      align-items: center;
+      gap: 4px;
+      color: var(--jw-muted-text);
+      margin-bottom: 8px;
+      font: var(--mat-sys-body-large);
+    }
+    .late {
+      color: var(--jw-warning);
+      font-weight: 700;
+    }
+    .error {
+      color: var(--jw-alarm-high);
+    }
+    .empty {
+      color: var(--jw-muted-text);
+      font: var(--mat-sys-body-large);
+    }
+    .empty p {
+      margin: 0 0 8px;
+    }
+    .next {
+      display: flex;
+      flex-wrap: wrap;
+      gap: 8px;
+    }
   `,
 })
 export class MyWorkPage {
@@ -85,8 +145,14 @@ export class MyWorkPage {
 
   constructor() {
     this.api.list({ mine: true, status: ['planned', 'in-progress', 'waiting-sign-off'] }).then(
-      (o) => { this.orders.set(o); this.loading.set(false); },
-      (e) => { this.error.set(errorText(e)); this.loading.set(false); },
+      (o) => {
+        this.orders.set(o);
+        this.loading.set(false);
+      },
+      (e) => {
+        this.error.set(errorText(e));
+        this.loading.set(false);
+      },
     );
   }
 

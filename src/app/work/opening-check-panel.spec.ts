@@ -11,7 +11,11 @@ const AT = '2026-12-02T01:10:00.000Z';
 /** An answer of GET /api/engines/:id/opening-check for an engine stopped 300 s, hot, under pressure, heater at 55 °C. */
 function hotWithHeater(over: Partial<OpeningCheck['settings']> = {}): OpeningCheck {
   return {
-    engineId: 7, at: AT, clear: false, stale: false, clearAt: null,
+    engineId: 7,
+    at: AT,
+    clear: false,
+    stale: false,
+    clearAt: null,
     conditions: [
       { name: 'engine-stopped', met: false, value: 300, limit: 600, unit: 's', detail: '0 rpm' },
       { name: 'coolant-temperature', met: false, value: 71.4, limit: 50, unit: '°C' },

@@ -26,22 +26,31 @@ const POLL_MS = 5000;
           <div>
             <div class="word">{{ c.clear ? 'Clear: the cooling system may be opened' : 'Not clear: keep the cooling system closed' }}</div>
             <div class="sub">
-              @if (c.stale) { Live data is missing or stale. }
-              @else if (!c.clear && c.clearAt) {
+              @if (c.stale) {
+                Live data is missing or stale.
+              } @else if (!c.clear && c.clearAt) {
                 Forecast: clear in about {{ minutesUntil(c.clearAt) }} min ({{ when(c.clearAt) }}).
                 @if (c.forecast?.ambientFitted) {
-                  Could be from {{ when(c.forecast!.earliest) }} to {{ c.forecast!.latest === null ? 'later than can be said' : when(c.forecast!.latest) }}: the surroundings' temperature is estimated, not measured.
+                  Could be from {{ when(c.forecast!.earliest) }} to {{ c.forecast!.latest === null ? 'later than can be said' : when(c.forecast!.latest) }}: the
+                  surroundings' temperature is estimated, not measured.
                 }
                 A forecast only: the lock opens when the check is clear.
+              } @else if (!c.clear) {
+                No forecast yet.
               }
-              @else if (!c.clear) { No forecast yet. }
               Checked {{ when(c.at) }}.
             </div>
           </div>
         </div>
         <div class="live">
-          <div><span class="label">Coolant</span> <span class="jw-num big">{{ tempValue() | unitValue: 'coolant_temp' }}</span> <span class="lim">limit {{ c.settings.safeOpenTempC | unitValue: 'coolant_temp' }}</span></div>
-          <div><span class="label">Pressure</span> <span class="jw-num big">{{ pressureValue() | unitValue: 'coolant_pressure' }}</span> <span class="lim">limit {{ c.settings.maxPressureKpa | unitValue: 'coolant_pressure' }}</span></div>
+          <div>
+            <span class="label">Coolant</span> <span class="jw-num big">{{ tempValue() | unitValue: 'coolant_temp' }}</span>
+            <span class="lim">limit {{ c.settings.safeOpenTempC | unitValue: 'coolant_temp' }}</span>
+          </div>
+          <div>
+            <span class="label">Pressure</span> <span class="jw-num big">{{ pressureValue() | unitValue: 'coolant_pressure' }}</span>
+            <span class="lim">limit {{ c.settings.maxPressureKpa | unitValue: 'coolant_pressure' }}</span>
+          </div>
         </div>
         <ul class="conditions">
           @for (k of shown(); track k.name) {
@@ -56,13 +65,22 @@ const POLL_MS = 5000;
         @if (heaterBlocks(); as h) {
           <p class="heater" role="alert">
             <mat-icon fontIcon="block" aria-hidden="true" />
-            <span>The jacket-water heater is set to {{ h.setpointC | unitValue: 'coolant_temp' }}, at or above the safe opening temperature
-            {{ h.limitC | unitValue: 'coolant_temp' }}: this check can never clear while the heater is on. Switch the heater off and lock it out,
-            then the coolant can cool below the limit.</span>
+            <span
+              >The jacket-water heater is set to {{ h.setpointC | unitValue: 'coolant_temp' }}, at or above the safe opening temperature
+              {{ h.limitC | unitValue: 'coolant_temp' }}: this check can never clear while the heater is on. Switch the heater off and lock it out, then the
+              coolant can cool below the limit.</span
+            >
           </p>
         }
         @if (!c.clear && c.reasons.length) {
-          <div class="why"><span class="label">Why not clear:</span><ul class="reasons">@for (r of c.reasons; track $index) { <li>{{ r }}</li> }</ul></div>
+          <div class="why">
+            <span class="label">Why not clear:</span>
+            <ul class="reasons">
+              @for (r of c.reasons; track $index) {
+                <li>{{ r }}</li>
+              }
+            </ul>
+          </div>
         }
         @if (!c.clear && stopTs(); as stop) {
           @defer (on immediate) {
@@ -74,33 +92,113 @@ const POLL_MS = 5000;
           <p class="chart-wait">The cool-down chart starts when the engine has stopped.</p>
         }
       } @else if (error(); as e) {
-        <div class="verdict"><mat-icon fontIcon="help" aria-hidden="true" /><div class="word">Opening check unavailable: {{ e }}</div></div>
+        <div class="verdict">
+          <mat-icon fontIcon="help" aria-hidden="true" />
+          <div class="word">Opening check unavailable: {{ e }}</div>
+        </div>
       } @else {
-        <div class="verdict"><mat-icon fontIcon="hourglass_empty" aria-hidden="true" /><div class="word">Checking…</div></div>
+        <div class="verdict">
+          <mat-icon fontIcon="hourglass_empty" aria-hidden="true" />
+          <div class="word">Checking…</div>
+        </div>
       }
     </section>
   `,
   styles: `
-    .panel { border: 2px solid var(--jw-warning); background: var(--jw-warning-bg); border-radius: 8px; padding: 12px 16px; }
-    .panel.clear { border-color: var(--mat-sys-outline); background: var(--mat-sys-surface-container); }
-    .panel.stale { border-color: var(--jw-stale); background: var(--jw-stale-bg); }
-    .verdict { display: flex; gap: 12px; align-items: center; }
-    .verdict mat-icon { font-size: 40px; width: 40px; height: 40px; }
-    .word { font: var(--mat-sys-title-medium); font-weight: 700; }
-    .sub { color: var(--jw-muted-text); }
-    .live { display: flex; gap: 32px; flex-wrap: wrap; margin: 10px 0; }
-    .label { color: var(--jw-muted-text); margin-right: 6px; }
-    .lim { margin-left: 6px; }
-    .big { font: var(--mat-sys-headline-small); font-weight: 600; }
-    .lim { color: var(--jw-muted-text); font: var(--mat-sys-body-small); }
-    .conditions { list-style: none; padding: 0; margin: 0; display: grid; gap: 4px; }
-    .conditions li { display: grid; grid-template-columns: 24px 5.5em 1fr auto; gap: 8px; align-items: center; font-weight: 600; }
-    .conditions li.met { font-weight: 400; }
-    .val { color: var(--jw-muted-text); }
-    .why { margin-top: 8px; }
-    .reasons { margin: 2px 0 0; padding-left: 20px; }
-    .heater { display: flex; gap: 8px; align-items: flex-start; margin: 10px 0 0; padding: 8px 10px; border: 2px solid var(--jw-alarm-high); background: var(--jw-alarm-high-bg); border-radius: 6px; font-weight: 700; }
-    .chart-wait { color: var(--jw-muted-text); margin: 8px 0 0; }
+    .panel {
+      border: 2px solid var(--jw-warning);
+      background: var(--jw-warning-bg);
+      border-radius: 8px;
+      padding: 12px 16px;
+    }
+    .panel.clear {
+      border-color: var(--mat-sys-outline);
+      background: var(--mat-sys-surface-container);
+    }
+    .panel.stale {
+      border-color: var(--jw-stale);
+      background: var(--jw-stale-bg);
+    }
+    .verdict {
+      display: flex;
+      gap: 12px;
+      align-items: center;
+    }
+    .verdict mat-icon {
+      font-size: 40px;
+      width: 40px;
+      height: 40px;
+    }
+    .word {
+      font: var(--mat-sys-title-medium);
+      font-weight: 700;
+    }
+    .sub {
+      color: var(--jw-muted-text);
+    }
+    .live {
+      display: flex;
+      gap: 32px;
+      flex-wrap: wrap;
+      margin: 10px 0;
+    }
+    .label {
+      color: var(--jw-muted-text);
+      margin-right: 6px;
+    }
+    .lim {
+      margin-left: 6px;
+    }
+    .big {
+      font: var(--mat-sys-headline-small);
+      font-weight: 600;
+    }
+    .lim {
+      color: var(--jw-muted-text);
+      font: var(--mat-sys-body-small);
+    }
+    .conditions {
+      list-style: none;
+      padding: 0;
+      margin: 0;
+      display: grid;
+      gap: 4px;
+    }
+    .conditions li {
+      display: grid;
+      grid-template-columns: 24px 5.5em 1fr auto;
+      gap: 8px;
+      align-items: center;
+      font-weight: 600;
+    }
+    .conditions li.met {
+      font-weight: 400;
+    }
+    .val {
+      color: var(--jw-muted-text);
+    }
+    .why {
+      margin-top: 8px;
+    }
+    .reasons {
+      margin: 2px 0 0;
+      padding-left: 20px;
+    }
+    .heater {
+      display: flex;
+      gap: 8px;
+      align-items: flex-start;
+      margin: 10px 0 0;
+      padding: 8px 10px;
+      border: 2px solid var(--jw-alarm-high);
+      background: var(--jw-alarm-high-bg);
+      border-radius: 6px;
+      font-weight: 700;
+    }
+    .chart-wait {
+      color: var(--jw-muted-text);
+      margin: 8px 0 0;
+    }
   `,
 })
 export class OpeningCheckPanel {

@@ -1,7 +1,11 @@
 import { filterDefault } from './parts-default';
 import { CoolantTestSummary } from './work-types';
 
-const test = (id: number, testedAt: string, filter: 'charged' | 'blank' | null): CoolantTestSummary => ({ id, testedAt, decision: { additive: filter === null ? null : { filter } } });
+const test = (id: number, testedAt: string, filter: 'charged' | 'blank' | null): CoolantTestSummary => ({
+  id,
+  testedAt,
+  decision: { additive: filter === null ? null : { filter } },
+});
 
 describe('filterDefault', () => {
   it('follows the latest decision (newest first), not an older one', () => {

@@ -17,7 +17,8 @@ export interface FilterDefault {
  */
 export function filterDefault(tests: readonly CoolantTestSummary[]): FilterDefault {
   const latest = tests[0];
-  if (!latest) return { kind: null, testedAt: null, hint: 'No coolant test on record: test the additive level first, it decides between a charged and a blank filter.' };
+  if (!latest)
+    return { kind: null, testedAt: null, hint: 'No coolant test on record: test the additive level first, it decides between a charged and a blank filter.' };
   const filter = latest.decision?.additive?.filter ?? null;
   const date = formatDate(latest.testedAt);
   if (filter === 'charged') return { kind: 'filter-charged', testedAt: latest.testedAt, hint: `Charged filter, as the additive test of ${date} says.` };

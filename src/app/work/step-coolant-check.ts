@@ -32,31 +32,58 @@ interface EngineFacts {
     <section class="check" aria-labelledby="coolant-check-h">
       <h3 id="coolant-check-h"><mat-icon fontIcon="science" aria-hidden="true" />Additive decision for {{ engine()?.name ?? 'this engine' }}</h3>
       @if (scaUnitsPerGal() === null) {
-        <p class="hint">Enter the additive (SCA) level in its step to see the decision and the dose for this engine's {{ engine()?.capacityL ?? '…' }} L cooling system.</p>
+        <p class="hint">
+          Enter the additive (SCA) level in its step to see the decision and the dose for this engine's {{ engine()?.capacityL ?? '…' }} L cooling system.
+        </p>
       } @else if (inputError(); as err) {
         <p class="hint" role="alert">{{ err }}</p>
       } @else {
         <jw-additive-decision [decision]="decision()" />
       }
       @if (shownTest(); as t) {
-        <p class="ok" role="status" data-test="coolant-test-recorded"><mat-icon fontIcon="check_circle" aria-hidden="true" />Recorded as coolant test #{{ t.id }}; it is in the
-          <a [routerLink]="['/engines', t.engineId, 'coolant']">coolant history</a> and the due list. A correction is an amendment to this record.</p>
+        <p class="ok" role="status" data-test="coolant-test-recorded">
+          <mat-icon fontIcon="check_circle" aria-hidden="true" />Recorded as coolant test #{{ t.id }}; it is in the
+          <a [routerLink]="['/engines', t.engineId, 'coolant']">coolant history</a> and the due list. A correction is an amendment to this record.
+        </p>
         <jw-chemistry-findings [findings]="t.decision?.findings" />
       } @else if (canRecord()) {
-        @if (!sampleTaken()) { <p class="hint"><mat-icon fontIcon="lock" aria-hidden="true" />The test can be recorded once the sampling step is done.</p> }
+        @if (!sampleTaken()) {
+          <p class="hint"><mat-icon fontIcon="lock" aria-hidden="true" />The test can be recorded once the sampling step is done.</p>
+        }
         <button mat-stroked-button type="button" (click)="record()" [disabled]="busy() || !hasReading() || !sampleTaken()" data-test="record-coolant-test">
           <mat-icon fontIcon="playlist_add_check" />Record as a coolant test
         </button>
-        @if (error(); as e) { <p class="err" role="alert">{{ e }}</p> }
+        @if (error(); as e) {
+          <p class="err" role="alert">{{ e }}</p>
+        }
       }
     </section>
   `,
   styles: `
-    .check { border-top: 1px solid var(--mat-sys-outline-variant); margin: 16px 0; padding-top: 8px; }
-    h3 { display: flex; align-items: center; gap: 6px; font-size: 1rem; font-weight: 500; margin: 4px 0; }
-    .hint { color: var(--jw-muted-text); }
-    .ok { display: flex; align-items: center; gap: 6px; }
-    .err { color: var(--jw-alarm-high); }
+    .check {
+      border-top: 1px solid var(--mat-sys-outline-variant);
+      margin: 16px 0;
+      padding-top: 8px;
+    }
+    h3 {
+      display: flex;
+      align-items: center;
+      gap: 6px;
+      font-size: 1rem;
+      font-weight: 500;
+      margin: 4px 0;
+    }
+    .hint {
+      color: var(--jw-muted-text);
+    }
+    .ok {
+      display: flex;
+      align-items: center;
+      gap: 6px;
+    }
+    .err {
+      color: var(--jw-alarm-high);
+    }
   `,
 })
 export class StepCoolantCheck {

@@ -9,8 +9,25 @@ import { WorkStep } from './work-types';
 // The volume is sent in the unit typed; the server converts (1 US gallon = 3.785411784 L, NIST SP 811, appendix B).
 // Estimate shown after the step: the server's mass balance (C1V1 + C2V2 = C3V3).
 const STEP: WorkStep = {
-  id: 31, position: 4, key: 'add', title: 'Add coolant', detail: null, input: 'value', unit: 'L', optional: false, gated: false, caution: null, after: ['relieve-pressure'],
-  resultValue: null, resultUnit: null, resultText: null, lockoutConfirmed: null, gateSnapshot: null, manualCheck: null, doneAt: null, doneByName: null,
+  id: 31,
+  position: 4,
+  key: 'add',
+  title: 'Add coolant',
+  detail: null,
+  input: 'value',
+  unit: 'L',
+  optional: false,
+  gated: false,
+  caution: null,
+  after: ['relieve-pressure'],
+  resultValue: null,
+  resultUnit: null,
+  resultText: null,
+  lockoutConfirmed: null,
+  gateSnapshot: null,
+  manualCheck: null,
+  doneAt: null,
+  doneByName: null,
 };
 
 describe('StepTopUp', () => {
@@ -74,7 +91,17 @@ describe('StepTopUp', () => {
 
   it('done: shows the estimate after the top-up, and a test request when it is below the low limit', async () => {
     open('metric', { ...STEP, doneAt: '2026-12-02T17:00:00Z', resultValue: 8, resultUnit: 'L' });
-    const estimate = { replacedFraction: 0.2, addedL: 8, scaUnitsPerGal: 1.12, glycolPercent: 40, nitritePpm: null, belowLow: true, reasons: ['Additive estimated at 1.12 units/US gal.'], basedOnTestAt: '2026-11-01T00:00:00Z', topUpsSince: 1 };
+    const estimate = {
+      replacedFraction: 0.2,
+      addedL: 8,
+      scaUnitsPerGal: 1.12,
+      glycolPercent: 40,
+      nitritePpm: null,
+      belowLow: true,
+      reasons: ['Additive estimated at 1.12 units/US gal.'],
+      basedOnTestAt: '2026-11-01T00:00:00Z',
+      topUpsSince: 1,
+    };
     http.expectOne('/api/engines/3/coolant-top-ups').flush({ topUps: [], estimate });
     await fixture.whenStable();
     fixture.detectChanges();

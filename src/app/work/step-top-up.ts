@@ -55,31 +55,83 @@ import { WorkOrderDetail, WorkStep } from './work-types';
         @if (form.controls.liquid.value === 'water') {
           <p class="hint"><mat-icon fontIcon="info" aria-hidden="true" />Plain water dilutes both the glycol (freeze protection) and the additive.</p>
         }
-        @if (error(); as e) { <p class="err" role="alert">Refused by the server: {{ e }}</p> }
-        <button mat-flat-button type="submit" class="big" [disabled]="busy() || waiting()" data-test="top-up-record"><mat-icon fontIcon="done" />Record top-up and mark done</button>
+        @if (error(); as e) {
+          <p class="err" role="alert">Refused by the server: {{ e }}</p>
+        }
+        <button mat-flat-button type="submit" class="big" [disabled]="busy() || waiting()" data-test="top-up-record">
+          <mat-icon fontIcon="done" />Record top-up and mark done
+        </button>
       </form>
     }
     @if (step().doneAt && estimate(); as e) {
       <section class="estimate" [class.abnormal]="e.belowLow" aria-label="Estimate after this top-up" data-test="top-up-step-estimate">
-        <p class="head"><mat-icon aria-hidden="true" [fontIcon]="e.belowLow ? 'science' : 'calculate'" />
-          <strong>{{ e.belowLow ? 'Additive probably low: test the coolant now' : 'Estimated since the last test' }}</strong></p>
-        <ul>@for (r of e.reasons; track $index) { <li>{{ r }}</li> }</ul>
-        <p class="why">Mass balance: each top-up replaces coolant that was lost with its additive; the added liquid brings none.
-          <a [routerLink]="['/engines', engineId(), 'coolant']">Coolant page of this engine</a></p>
+        <p class="head">
+          <mat-icon aria-hidden="true" [fontIcon]="e.belowLow ? 'science' : 'calculate'" />
+          <strong>{{ e.belowLow ? 'Additive probably low: test the coolant now' : 'Estimated since the last test' }}</strong>
+        </p>
+        <ul>
+          @for (r of e.reasons; track $index) {
+            <li>{{ r }}</li>
+          }
+        </ul>
+        <p class="why">
+          Mass balance: each top-up replaces coolant that was lost with its additive; the added liquid brings none.
+          <a [routerLink]="['/engines', engineId(), 'coolant']">Coolant page of this engine</a>
+        </p>
       </section>
     }
   `,
   styles: `
-    .form { display: flex; flex-wrap: wrap; gap: 8px 12px; align-items: flex-start; margin-top: 8px; }
-    .form mat-form-field { width: 220px; }
-    .form mat-form-field.wide { flex: 1 1 100%; width: auto; }
-    .hint { display: flex; align-items: center; gap: 6px; color: var(--jw-muted-text); margin: 0; flex: 1 1 100%; }
-    .err { color: var(--jw-alarm-high); flex: 1 1 100%; }
-    .big { min-height: 48px; font-size: 16px; }
-    .estimate { border: 1px solid var(--jw-band); border-radius: 4px; padding: 4px 12px; margin-top: 8px; }
-    .estimate.abnormal { border-color: var(--jw-warning); background: var(--jw-warning-bg); }
-    .head { display: flex; gap: 8px; align-items: center; margin: 4px 0; }
-    .why { color: var(--jw-muted-text); font-size: 0.85rem; }
+    .form {
+      display: flex;
+      flex-wrap: wrap;
+      gap: 8px 12px;
+      align-items: flex-start;
+      margin-top: 8px;
+    }
+    .form mat-form-field {
+      width: 220px;
+    }
+    .form mat-form-field.wide {
+      flex: 1 1 100%;
+      width: auto;
+    }
+    .hint {
+      display: flex;
+      align-items: center;
+      gap: 6px;
+      color: var(--jw-muted-text);
+      margin: 0;
+      flex: 1 1 100%;
+    }
+    .err {
+      color: var(--jw-alarm-high);
+      flex: 1 1 100%;
+    }
+    .big {
+      min-height: 48px;
+      font-size: 16px;
+    }
+    .estimate {
+      border: 1px solid var(--jw-band);
+      border-radius: 4px;
+      padding: 4px 12px;
+      margin-top: 8px;
+    }
+    .estimate.abnormal {
+      border-color: var(--jw-warning);
+      background: var(--jw-warning-bg);
+    }
+    .head {
+      display: flex;
+      gap: 8px;
+      align-items: center;
+      margin: 4px 0;
+    }
+    .why {
+      color: var(--jw-muted-text);
+      font-size: 0.85rem;
+    }
   `,
 })
 export class StepTopUp {
@@ -142,7 +194,9 @@ export class StepTopUp {
     this.error.set(null);
     try {
       const order = await this.api.completeStep(this.orderId(), this.step().id, {
-        value: Number(v.volume), unit, ...(note ? { note } : {}),
+        value: Number(v.volume),
+        unit,
+        ...(note ? { note } : {}),
         topUp: { liquid, premixPercent: liquid === 'premix' ? Number(v.premixPercent) : null },
       });
       this.orderChanged.emit(order);

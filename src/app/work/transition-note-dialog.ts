@@ -31,7 +31,9 @@ export interface TransitionNoteData {
       <mat-form-field appearance="outline" class="wide">
         <mat-label>{{ data.noteLabel }}</mat-label>
         <textarea matInput [formControl]="note" rows="3" maxlength="2000" cdkFocusInitial></textarea>
-        @if (note.touched && note.invalid) { <mat-error>Write why (it goes into the history).</mat-error> }
+        @if (note.touched && note.invalid) {
+          <mat-error>Write why (it goes into the history).</mat-error>
+        }
       </mat-form-field>
     </mat-dialog-content>
     <mat-dialog-actions align="end">
@@ -39,7 +41,12 @@ export interface TransitionNoteData {
       <button mat-flat-button type="button" (click)="done()">{{ data.confirm }}</button>
     </mat-dialog-actions>
   `,
-  styles: `.wide { width: 100%; min-width: 280px; }`,
+  styles: `
+    .wide {
+      width: 100%;
+      min-width: 280px;
+    }
+  `,
 })
 export class TransitionNoteDialog {
   protected readonly data = inject<TransitionNoteData>(MAT_DIALOG_DATA);

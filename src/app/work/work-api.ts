@@ -3,7 +3,18 @@ import { Injectable, inject } from '@angular/core';
 import { firstValueFrom } from 'rxjs';
 import { isNoAnswer } from '../core/network-status';
 import { ReadingBucket } from './cooldown-series';
-import { Assignee, CoolantTestSummary, ManualCheck, OpeningCheck, OrderCoolantTest, WorkOrderDetail, WorkOrderSummary, WorkPriority, WorkStatus, WorkTemplate } from './work-types';
+import {
+  Assignee,
+  CoolantTestSummary,
+  ManualCheck,
+  OpeningCheck,
+  OrderCoolantTest,
+  WorkOrderDetail,
+  WorkOrderSummary,
+  WorkPriority,
+  WorkStatus,
+  WorkTemplate,
+} from './work-types';
 
 export interface ListFilter {
   status?: WorkStatus[];
@@ -85,7 +96,9 @@ export class WorkApi {
 
   /** Records the order's coolant test from its steps (once per order; a second call answers 409 with the recorded test). */
   recordCoolantTest(id: number, method?: string): Promise<{ coolantTest: OrderCoolantTest; order: WorkOrderDetail }> {
-    return firstValueFrom(this.http.post<{ coolantTest: OrderCoolantTest; order: WorkOrderDetail }>(`/api/work-orders/${id}/coolant-test`, method ? { method } : {}));
+    return firstValueFrom(
+      this.http.post<{ coolantTest: OrderCoolantTest; order: WorkOrderDetail }>(`/api/work-orders/${id}/coolant-test`, method ? { method } : {}),
+    );
   }
 
   addPart(id: number, body: { kind: string; quantity: number; unit: 'L' | 'gal' | 'pcs'; description?: string }): Promise<WorkOrderDetail> {
@@ -110,7 +123,12 @@ export class WorkApi {
 
   openingCheck(engineId: number, lockoutConfirmed = false): Promise<OpeningCheck> {
     // never from the service worker's cache: the opening check is live data or nothing (ngsw-bypass)
-    return firstValueFrom(this.http.get<OpeningCheck>(`/api/engines/${engineId}/opening-check`, { params: { lockoutConfirmed: String(lockoutConfirmed) }, headers: { 'ngsw-bypass': 'true' } }));
+    return firstValueFrom(
+      this.http.get<OpeningCheck>(`/api/engines/${engineId}/opening-check`, {
+        params: { lockoutConfirmed: String(lockoutConfirmed) },
+        headers: { 'ngsw-bypass': 'true' },
+      }),
+    );
   }
 
   /** Readings of one channel as buckets (at most `points`), stored units. */

@@ -1,7 +1,23 @@
 import { STATUS_TEXT } from './work-labels';
 import { WorkOrderSummary } from './work-types';
 
-const HEADER = ['id', 'status', 'priority', 'due_date', 'site', 'engine', 'kind', 'title', 'assignee', 'steps_done', 'steps_total', 'manual_checks', 'alarm_ids', 'created_at', 'closed_at'];
+const HEADER = [
+  'id',
+  'status',
+  'priority',
+  'due_date',
+  'site',
+  'engine',
+  'kind',
+  'title',
+  'assignee',
+  'steps_done',
+  'steps_total',
+  'manual_checks',
+  'alarm_ids',
+  'created_at',
+  'closed_at',
+];
 
 /** RFC 4180 field: quoted when it holds a comma, quote or line break; quotes doubled. Leading = + - @ neutralised for spreadsheets. */
 export function csvField(v: unknown): string {
@@ -13,10 +29,27 @@ export function csvField(v: unknown): string {
 export function workOrdersToCsv(orders: readonly WorkOrderSummary[]): string {
   const rows = [HEADER.join(',')];
   for (const o of orders) {
-    rows.push([
-      o.id, STATUS_TEXT[o.status], o.priority, o.dueDate ?? '', o.siteName ?? '', o.engineName ?? '', o.kindTitle, o.title, o.assigneeName ?? '',
-      o.stepsDone, o.stepsTotal, o.manualChecks, o.alarmIds.join(' '), o.createdAt, o.closedAt ?? '',
-    ].map(csvField).join(','));
+    rows.push(
+      [
+        o.id,
+        STATUS_TEXT[o.status],
+        o.priority,
+        o.dueDate ?? '',
+        o.siteName ?? '',
+        o.engineName ?? '',
+        o.kindTitle,
+        o.title,
+        o.assigneeName ?? '',
+        o.stepsDone,
+        o.stepsTotal,
+        o.manualChecks,
+        o.alarmIds.join(' '),
+        o.createdAt,
+        o.closedAt ?? '',
+      ]
+        .map(csvField)
+        .join(','),
+    );
   }
   return rows.join('\r\n') + '\r\n';
 }

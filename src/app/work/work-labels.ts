@@ -38,14 +38,33 @@ export const CONDITION_TEXT: Record<string, string> = {
 };
 
 export const EVENT_TEXT: Record<string, string> = {
-  created: 'Created', requested: 'Requested', accepted: 'Accepted', declined: 'Declined', assigned: 'Assigned', scheduled: 'Scheduled',
-  changed: 'Changed', started: 'Started', completed: 'Completed', 'signed-off': 'Signed off', 'sent-back': 'Sent back', cancelled: 'Cancelled',
-  'step-done': 'Step done', 'step-done-manual-check': 'Step done on a MANUAL CHECK', 'part-added': 'Part or fluid recorded',
-  'attachment-added': 'File attached', amended: 'Amendment added', 'baseline-reset': 'Conductivity baseline reset', 'baseline-pending': 'Conductivity baseline not reset',
+  created: 'Created',
+  requested: 'Requested',
+  accepted: 'Accepted',
+  declined: 'Declined',
+  assigned: 'Assigned',
+  scheduled: 'Scheduled',
+  changed: 'Changed',
+  started: 'Started',
+  completed: 'Completed',
+  'signed-off': 'Signed off',
+  'sent-back': 'Sent back',
+  cancelled: 'Cancelled',
+  'step-done': 'Step done',
+  'step-done-manual-check': 'Step done on a MANUAL CHECK',
+  'part-added': 'Part or fluid recorded',
+  'attachment-added': 'File attached',
+  amended: 'Amendment added',
+  'baseline-reset': 'Conductivity baseline reset',
+  'baseline-pending': 'Conductivity baseline not reset',
 };
 
 export const PART_TEXT: Record<string, string> = {
-  'filter-charged': 'Charged filter', 'filter-blank': 'Blank filter', additive: 'Additive (SCA)', coolant: 'Coolant', other: 'Other part',
+  'filter-charged': 'Charged filter',
+  'filter-blank': 'Blank filter',
+  additive: 'Additive (SCA)',
+  coolant: 'Coolant',
+  other: 'Other part',
 };
 
 export const STEP_UNIT_TEXT: Record<string, string> = { degC: '°C', kPa: 'kPa', L: 'L', turns: 'turns', '%': '%', 'units/gal': 'units/gal', pH: 'pH' };
@@ -79,4 +98,9 @@ export function todayIso(): string {
 }
 
 /** Kinds the alarms screens may link with under older names. */
-export const KIND_ALIASES: Record<string, string> = { 'coolant-filter-change': 'filter-change', 'filter': 'filter-change', 'flush': 'drain-flush-refill', 'test': 'coolant-test' };
+export const KIND_ALIASES: Record<string, string> = {
+  'coolant-filter-change': 'filter-change',
+  filter: 'filter-change',
+  flush: 'drain-flush-refill',
+  test: 'coolant-test',
+};

@@ -42,52 +42,95 @@ interface WeekGroup {
         <mat-form-field appearance="outline" subscriptSizing="dynamic">
           <mat-label>Status</mat-label>
           <mat-select multiple [ngModel]="statuses()" (ngModelChange)="statuses.set($event); reload()">
-            @for (s of allStatuses; track s) { <mat-option [value]="s">{{ statusText[s] }}</mat-option> }
+            @for (s of allStatuses; track s) {
+              <mat-option [value]="s">{{ statusText[s] }}</mat-option>
+            }
           </mat-select>
         </mat-form-field>
         <mat-form-field appearance="outline" subscriptSizing="dynamic">
           <mat-label>Site</mat-label>
           <mat-select [ngModel]="siteId()" (ngModelChange)="siteId.set($event); reload()">
             <mat-option [value]="null">All sites</mat-option>
-            @for (s of sites(); track s.id) { <mat-option [value]="s.id">{{ s.name }}</mat-option> }
+            @for (s of sites(); track s.id) {
+              <mat-option [value]="s.id">{{ s.name }}</mat-option>
+            }
           </mat-select>
         </mat-form-field>
         <mat-form-field appearance="outline" subscriptSizing="dynamic">
           <mat-label>Assignee</mat-label>
           <mat-select [ngModel]="assigneeId()" (ngModelChange)="assigneeId.set($event); reload()">
             <mat-option [value]="null">Anyone</mat-option>
-            @for (a of assignees(); track a.id) { <mat-option [value]="a.id">{{ a.name }}</mat-option> }
+            @for (a of assignees(); track a.id) {
+              <mat-option [value]="a.id">{{ a.name }}</mat-option>
+            }
           </mat-select>
         </mat-form-field>
       </div>
 
-      @if (loading()) { <mat-progress-bar mode="indeterminate" /> }
-      @if (error(); as e) { <p class="error" role="alert"><mat-icon fontIcon="error" />{{ e }}</p> }
-      @if (!loading() && !orders().length && !error()) { <p class="empty">No work orders match.</p> }
+      @if (loading()) {
+        <mat-progress-bar mode="indeterminate" />
+      }
+      @if (error(); as e) {
+        <p class="error" role="alert"><mat-icon fontIcon="error" />{{ e }}</p>
+      }
+      @if (!loading() && !orders().length && !error()) {
+        <p class="empty">No work orders match.</p>
+      }
 
       @for (g of groups(); track g.key) {
         <section class="week" [attr.aria-label]="g.label">
           <h2 [class.overdue]="g.overdue">
-            @if (g.overdue) { <mat-icon fontIcon="schedule" aria-hidden="true" /> }
+            @if (g.overdue) {
+              <mat-icon fontIcon="schedule" aria-hidden="true" />
+            }
             {{ g.label }} <span class="count">· {{ g.orders.length }}</span>
           </h2>
           <table mat-table [dataSource]="g.orders" class="orders">
-            <ng-container matColumnDef="due"><th mat-header-cell *matHeaderCellDef>Due</th>
-              <td mat-cell *matCellDef="let o" [class.late]="isLate(o)">{{ fmtDate(o.dueDate) }}@if (isLate(o)) { <span class="tag">overdue</span> }</td></ng-container>
-            <ng-container matColumnDef="status"><th mat-header-cell *matHeaderCellDef>Status</th>
-              <td mat-cell *matCellDef="let o"><span class="status" [attr.data-status]="o.status"><mat-icon [fontIcon]="statusIcon[o.status]" aria-hidden="true" />{{ statusText[o.status] }}</span></td></ng-container>
-            <ng-container matColumnDef="order"><th mat-header-cell *matHeaderCellDef>Work order</th>
-              <td mat-cell *matCellDef="let o"><a [routerLink]="['/work', o.id]">#{{ o.id }} {{ o.title }}</a>
-                @if (o.manualChecks) { <span class="tag manual"><mat-icon fontIcon="back_hand" aria-hidden="true" />manual check</span> }
-                @if (o.alarmIds.length) { <span class="tag">from alarm</span> }</td></ng-container>
-            <ng-container matColumnDef="engine"><th mat-header-cell *matHeaderCellDef>Site · engine</th>
-              <td mat-cell *matCellDef="let o">{{ o.siteName }} · {{ o.engineName }}</td></ng-container>
-            <ng-container matColumnDef="priority"><th mat-header-cell *matHeaderCellDef>Priority</th>
-              <td mat-cell *matCellDef="let o" [class.hi]="o.priority === 'high' || o.priority === 'urgent'">{{ priorityText[o.priority] }}</td></ng-container>
-            <ng-container matColumnDef="assignee"><th mat-header-cell *matHeaderCellDef>Assignee</th>
-              <td mat-cell *matCellDef="let o">{{ o.assigneeName ?? 'not assigned' }}</td></ng-container>
-            <ng-container matColumnDef="progress"><th mat-header-cell *matHeaderCellDef>Steps</th>
-              <td mat-cell *matCellDef="let o" class="jw-num">{{ o.stepsDone }} / {{ o.stepsTotal }}</td></ng-container>
+            <ng-container matColumnDef="due"
+              ><th mat-header-cell *matHeaderCellDef>Due</th>
+              <td mat-cell *matCellDef="let o" [class.late]="isLate(o)">
+                {{ fmtDate(o.dueDate) }}
+                @if (isLate(o)) {
+                  <span class="tag">overdue</span>
+                }
+              </td></ng-container
+            >
+            <ng-container matColumnDef="status"
+              ><th mat-header-cell *matHeaderCellDef>Status</th>
+              <td mat-cell *matCellDef="let o">
+                <span class="status" [attr.data-status]="o.status"
+                  ><mat-icon [fontIcon]="statusIcon[o.status]" aria-hidden="true" />{{ statusText[o.status] }}</span
+                >
+              </td></ng-container
+            >
+            <ng-container matColumnDef="order"
+              ><th mat-header-cell *matHeaderCellDef>Work order</th>
+              <td mat-cell *matCellDef="let o">
+                <a [routerLink]="['/work', o.id]">#{{ o.id }} {{ o.title }}</a>
+                @if (o.manualChecks) {
+                  <span class="tag manual"><mat-icon fontIcon="back_hand" aria-hidden="true" />manual check</span>
+                }
+                @if (o.alarmIds.length) {
+                  <span class="tag">from alarm</span>
+                }
+              </td></ng-container
+            >
+            <ng-container matColumnDef="engine"
+              ><th mat-header-cell *matHeaderCellDef>Site · engine</th>
+              <td mat-cell *matCellDef="let o">{{ o.siteName }} · {{ o.engineName }}</td></ng-container
+            >
+            <ng-container matColumnDef="priority"
+              ><th mat-header-cell *matHeaderCellDef>Priority</th>
+              <td mat-cell *matCellDef="let o" [class.hi]="o.priority === 'high' || o.priority === 'urgent'">{{ priorityText[o.priority] }}</td></ng-container
+            >
+            <ng-container matColumnDef="assignee"
+              ><th mat-header-cell *matHeaderCellDef>Assignee</th>
+              <td mat-cell *matCellDef="let o">{{ o.assigneeName ?? 'not assigned' }}</td></ng-container
+            >
+            <ng-container matColumnDef="progress"
+              ><th mat-header-cell *matHeaderCellDef>Steps</th>
+              <td mat-cell *matCellDef="let o" class="jw-num">{{ o.stepsDone }} / {{ o.stepsTotal }}</td></ng-container
+            >
             <tr mat-header-row *matHeaderRowDef="columns"></tr>
             <tr mat-row *matRowDef="let row; columns: columns"></tr>
           </table>
@@ -96,25 +139,95 @@ interface WeekGroup {
     </div>
   `,
   styles: `
-    .page { padding: 16px 24px; max-width: 1400px; }
-    .head { display: flex; align-items: center; gap: 8px; flex-wrap: wrap; }
-    .head h1 { font: var(--mat-sys-headline-small); margin: 0; }
-    .spacer { flex: 1; }
-    .filters { display: flex; gap: 12px; flex-wrap: wrap; margin: 16px 0; }
-    .filters mat-form-field { width: 220px; }
-    .week h2 { font: var(--mat-sys-title-medium); margin: 20px 0 6px; display: flex; align-items: center; gap: 6px; }
-    .week h2.overdue { color: var(--jw-warning); }
-    .count { color: var(--jw-muted-text); font-weight: 400; }
-    table.orders { width: 100%; }
-    .status { display: inline-flex; align-items: center; gap: 4px; }
-    .status mat-icon { font-size: 18px; width: 18px; height: 18px; }
-    .tag { display: inline-flex; align-items: center; gap: 2px; margin-left: 6px; padding: 0 6px; border: 1px solid var(--mat-sys-outline-variant); border-radius: 4px; font: var(--mat-sys-label-small); }
-    .tag.manual { color: var(--jw-warning); background: var(--jw-warning-bg); border-color: var(--jw-warning); }
-    .tag.manual mat-icon { font-size: 14px; width: 14px; height: 14px; }
-    .late { color: var(--jw-warning); font-weight: 600; }
-    .hi { font-weight: 700; }
-    .error { color: var(--jw-alarm-high); display: flex; gap: 6px; align-items: center; }
-    .empty { color: var(--jw-muted-text); }
+    .page {
+      padding: 16px 24px;
+      max-width: 1400px;
+    }
+    .head {
+      display: flex;
+      align-items: center;
+      gap: 8px;
+      flex-wrap: wrap;
+    }
+    .head h1 {
+      font: var(--mat-sys-headline-small);
+      margin: 0;
+    }
+    .spacer {
+      flex: 1;
+    }
+    .filters {
+      display: flex;
+      gap: 12px;
+      flex-wrap: wrap;
+      margin: 16px 0;
+    }
+    .filters mat-form-field {
+      width: 220px;
+    }
+    .week h2 {
+      font: var(--mat-sys-title-medium);
+      margin: 20px 0 6px;
+      display: flex;
+      align-items: center;
+      gap: 6px;
+    }
+    .week h2.overdue {
+      color: var(--jw-warning);
+    }
+    .count {
+      color: var(--jw-muted-text);
+      font-weight: 400;
+    }
+    table.orders {
+      width: 100%;
+    }
+    .status {
+      display: inline-flex;
+      align-items: center;
+      gap: 4px;
+    }
+    .status mat-icon {
+      font-size: 18px;
+      width: 18px;
+      height: 18px;
+    }
+    .tag {
+      display: inline-flex;
+      align-items: center;
+      gap: 2px;
+      margin-left: 6px;
+      padding: 0 6px;
+      border: 1px solid var(--mat-sys-outline-variant);
+      border-radius: 4px;
+      font: var(--mat-sys-label-small);
+    }
+    .tag.manual {
+      color: var(--jw-warning);
+      background: var(--jw-warning-bg);
+      border-color: var(--jw-warning);
+    }
+    .tag.manual mat-icon {
+      font-size: 14px;
+      width: 14px;
+      height: 14px;
+    }
+    .late {
+      color: var(--jw-warning);
+      font-weight: 600;
+    }
+    .hi {
+      font-weight: 700;
+    }
+    .error {
+      color: var(--jw-alarm-high);
+      display: flex;
+      gap: 6px;
+      align-items: center;
+    }
+    .empty {
+      color: var(--jw-muted-text);
+    }
   `,
 })
 export class WorkListPage {
@@ -149,7 +262,12 @@ export class WorkListPage {
       let g = map.get(key);
       if (!g) {
         const overdue = key !== 'none' && key < thisWeek;
-        const label = key === 'none' ? 'No due date' : key === thisWeek ? `This week (from ${formatDate(key)})` : `${overdue ? 'Overdue · ' : ''}Week of ${formatDate(key)}`;
+        const label =
+          key === 'none'
+            ? 'No due date'
+            : key === thisWeek
+              ? `This week (from ${formatDate(key)})`
+              : `${overdue ? 'Overdue · ' : ''}Week of ${formatDate(key)}`;
         g = { key, label, overdue, orders: [] };
         map.set(key, g);
       }
@@ -160,8 +278,14 @@ export class WorkListPage {
 
   constructor() {
     void this.reload();
-    this.api.sites().then((s) => this.sites.set(s), () => undefined);
-    this.api.assignees().then((a) => this.assignees.set(a), () => undefined);
+    this.api.sites().then(
+      (s) => this.sites.set(s),
+      () => undefined,
+    );
+    this.api.assignees().then(
+      (a) => this.assignees.set(a),
+      () => undefined,
+    );
   }
 
   protected isLate(o: WorkOrderSummary): boolean {

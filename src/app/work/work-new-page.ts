@@ -29,19 +29,30 @@ import { Assignee, WorkPriority, WorkTemplate } from './work-types';
   template: `
     <div class="page">
       <h1>{{ planner() ? 'New work order' : 'Request work' }}</h1>
-      @if (alarmId()) { <p class="from-alarm"><mat-icon fontIcon="link" aria-hidden="true" />From alarm #{{ alarmId() }}: when you create the order, the alarm is linked and described in words at the top of its description (rule, priority, time, values); add your own notes below.</p> }
-      @if (!planner()) { <p class="hint">Your request goes to the planner, who accepts or declines it.</p> }
+      @if (alarmId()) {
+        <p class="from-alarm">
+          <mat-icon fontIcon="link" aria-hidden="true" />From alarm #{{ alarmId() }}: when you create the order, the alarm is linked and described in words at
+          the top of its description (rule, priority, time, values); add your own notes below.
+        </p>
+      }
+      @if (!planner()) {
+        <p class="hint">Your request goes to the planner, who accepts or declines it.</p>
+      }
       <form class="form" (ngSubmit)="submit(dueText())">
         <mat-form-field appearance="outline">
           <mat-label>Engine</mat-label>
           <mat-select name="engine" [(ngModel)]="engine" required>
-            @for (e of engines(); track e.id) { <mat-option [value]="e.id">{{ siteName(e.siteId) }} · {{ e.name }}</mat-option> }
+            @for (e of engines(); track e.id) {
+              <mat-option [value]="e.id">{{ siteName(e.siteId) }} · {{ e.name }}</mat-option>
+            }
           </mat-select>
         </mat-form-field>
         <mat-form-field appearance="outline">
           <mat-label>Kind of work</mat-label>
           <mat-select name="kind" [(ngModel)]="kind" required>
-            @for (t of templates(); track t.kind) { <mat-option [value]="t.kind">{{ t.title }}</mat-option> }
+            @for (t of templates(); track t.kind) {
+              <mat-option [value]="t.kind">{{ t.title }}</mat-option>
+            }
           </mat-select>
         </mat-form-field>
         <mat-form-field appearance="outline">
@@ -56,7 +67,9 @@ import { Assignee, WorkPriority, WorkTemplate } from './work-types';
           <mat-label>Priority</mat-label>
           <mat-select name="priority" [(ngModel)]="priority">
             <mat-option [value]="null">{{ alarmId() ? 'As the alarm' : 'Medium' }}</mat-option>
-            @for (p of priorities; track p) { <mat-option [value]="p">{{ priorityText[p] }}</mat-option> }
+            @for (p of priorities; track p) {
+              <mat-option [value]="p">{{ priorityText[p] }}</mat-option>
+            }
           </mat-select>
         </mat-form-field>
         @if (planner()) {
@@ -70,11 +83,15 @@ import { Assignee, WorkPriority, WorkTemplate } from './work-types';
             <mat-label>Assign to</mat-label>
             <mat-select name="assignee" [(ngModel)]="assigneeId">
               <mat-option [value]="null">Not yet</mat-option>
-              @for (a of assignees(); track a.id) { <mat-option [value]="a.id">{{ a.name }}</mat-option> }
+              @for (a of assignees(); track a.id) {
+                <mat-option [value]="a.id">{{ a.name }}</mat-option>
+              }
             </mat-select>
           </mat-form-field>
         }
-        @if (error(); as e) { <p class="error" role="alert"><mat-icon fontIcon="error" aria-hidden="true" />{{ e }}</p> }
+        @if (error(); as e) {
+          <p class="error" role="alert"><mat-icon fontIcon="error" aria-hidden="true" />{{ e }}</p>
+        }
         <div class="actions">
           <a mat-button routerLink="/work">Cancel</a>
           <button mat-flat-button type="submit" [disabled]="busy() || !engine || !kind">{{ planner() ? 'Create work order' : 'Send request' }}</button>
@@ -83,12 +100,36 @@ import { Assignee, WorkPriority, WorkTemplate } from './work-types';
     </div>
   `,
   styles: `
-    .page { padding: 16px 24px; max-width: 640px; }
-    h1 { font: var(--mat-sys-headline-small); }
-    .form { display: flex; flex-direction: column; gap: 4px; }
-    .actions { display: flex; justify-content: flex-end; gap: 8px; }
-    .from-alarm, .hint { display: flex; gap: 6px; align-items: center; color: var(--jw-muted-text); }
-    .error { color: var(--jw-alarm-high); display: flex; gap: 6px; align-items: center; }
+    .page {
+      padding: 16px 24px;
+      max-width: 640px;
+    }
+    h1 {
+      font: var(--mat-sys-headline-small);
+    }
+    .form {
+      display: flex;
+      flex-direction: column;
+      gap: 4px;
+    }
+    .actions {
+      display: flex;
+      justify-content: flex-end;
+      gap: 8px;
+    }
+    .from-alarm,
+    .hint {
+      display: flex;
+      gap: 6px;
+      align-items: center;
+      color: var(--jw-muted-text);
+    }
+    .error {
+      color: var(--jw-alarm-high);
+      display: flex;
+      gap: 6px;
+      align-items: center;
+    }
   `,
 })
 export class WorkNewPage {
@@ -135,10 +176,23 @@ export class WorkNewPage {
         if (k) this.kind = KIND_ALIASES[k] ?? k;
       });
     });
-    this.api.templates().then((t) => this.templates.set(t), (e) => this.error.set(errorText(e)));
-    this.api.engines().then((e) => this.engines.set(e), () => undefined);
-    this.api.sites().then((s) => this.sites.set(s), () => undefined);
-    if (this.planner()) this.api.assignees().then((a) => this.assignees.set(a), () => undefined);
+    this.api.templates().then(
+      (t) => this.templates.set(t),
+      (e) => this.error.set(errorText(e)),
+    );
+    this.api.engines().then(
+      (e) => this.engines.set(e),
+      () => undefined,
+    );
+    this.api.sites().then(
+      (s) => this.sites.set(s),
+      () => undefined,
+    );
+    if (this.planner())
+      this.api.assignees().then(
+        (a) => this.assignees.set(a),
+        () => undefined,
+      );
   }
 
   protected siteName(id: number): string {
@@ -154,7 +208,8 @@ export class WorkNewPage {
     try {
       const alarm = Number(this.alarmId());
       const o = await this.api.create({
-        engineId: this.engine, kind: this.kind,
+        engineId: this.engine,
+        kind: this.kind,
         ...(alarm > 0 ? { alarmId: alarm } : {}),
         ...(this.title.trim() ? { title: this.title.trim() } : {}),
         ...(this.description.trim() ? { description: this.description.trim() } : {}),

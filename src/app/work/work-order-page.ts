@@ -59,8 +59,24 @@ const ENTRY_UNITS: Record<string, string[]> = { degC: ['degC', 'degF'], kPa: ['k
   selector: 'jw-work-order-page',
   changeDetection: ChangeDetectionStrategy.OnPush,
   imports: [
-    FormsModule, RouterLink, MatButtonModule, MatCardModule, MatCheckboxModule, MatExpansionModule, MatFormFieldModule, MatIconModule,
-    MatInputModule, MatProgressBarModule, MatSelectModule, MatTableModule, MatDatepickerModule, OpeningCheckPanel, AttachmentThumb, StepCoolantCheck, StepTopUp, OutboxPanel,
+    FormsModule,
+    RouterLink,
+    MatButtonModule,
+    MatCardModule,
+    MatCheckboxModule,
+    MatExpansionModule,
+    MatFormFieldModule,
+    MatIconModule,
+    MatInputModule,
+    MatProgressBarModule,
+    MatSelectModule,
+    MatTableModule,
+    MatDatepickerModule,
+    OpeningCheckPanel,
+    AttachmentThumb,
+    StepCoolantCheck,
+    StepTopUp,
+    OutboxPanel,
   ],
   providers: [provideNativeDateAdapter()],
   templateUrl: './work-order-page.html',
@@ -147,7 +163,9 @@ export class WorkOrderPage {
     return first ? waitingText(first) : null;
   }
   /** Some gated step not yet done has its lockout carried (for the opening-check panel). */
-  protected readonly lockoutCarried = computed(() => (this.order()?.steps ?? []).some((s) => s.gated && !s.doneAt && lockoutFor(this.order()!.steps, s) !== null));
+  protected readonly lockoutCarried = computed(() =>
+    (this.order()?.steps ?? []).some((s) => s.gated && !s.doneAt && lockoutFor(this.order()!.steps, s) !== null),
+  );
   protected readonly sampleTaken = computed(() => !!this.order()?.steps.find((s) => s.key === 'take-sample')?.doneAt);
 
   /** Moves this user may offer now; the server decides again. */
@@ -157,12 +175,17 @@ export class WorkOrderPage {
     const out: { to: WorkStatus; label: string; icon: string; needsNote?: boolean; primary?: boolean }[] = [];
     const planner = this.isPlanner();
     const tech = this.auth.hasRole('technician') && (!o.assigneeId || o.assigneeId === this.auth.user()?.id);
-    if (o.status === 'requested' && planner) out.push({ to: 'planned', label: 'Accept', icon: 'check', primary: true }, { to: 'cancelled', label: 'Decline', icon: 'close', needsNote: true });
+    if (o.status === 'requested' && planner)
+      out.push({ to: 'planned', label: 'Accept', icon: 'check', primary: true }, { to: 'cancelled', label: 'Decline', icon: 'close', needsNote: true });
     if (o.status === 'planned' && tech) out.push({ to: 'in-progress', label: 'Start work', icon: 'play_arrow', primary: true });
     if (o.status === 'planned' && planner) out.push({ to: 'cancelled', label: 'Cancel', icon: 'block', needsNote: true });
     if (o.status === 'in-progress' && tech) out.push({ to: 'waiting-sign-off', label: 'Work done: send for sign-off', icon: 'send', primary: true });
     if (o.status === 'in-progress' && planner) out.push({ to: 'cancelled', label: 'Cancel', icon: 'block', needsNote: true });
-    if (o.status === 'waiting-sign-off' && planner) out.push({ to: 'closed', label: 'Sign off and close', icon: 'verified', primary: true }, { to: 'in-progress', label: 'Send back', icon: 'undo', needsNote: true });
+    if (o.status === 'waiting-sign-off' && planner)
+      out.push(
+        { to: 'closed', label: 'Sign off and close', icon: 'verified', primary: true },
+        { to: 'in-progress', label: 'Send back', icon: 'undo', needsNote: true },
+      );
     return out;
   });
 
@@ -172,7 +195,11 @@ export class WorkOrderPage {
       const id = Number(this.id());
       untracked(() => void this.load(id));
     });
-    if (this.auth.hasRole('planner', 'admin')) this.api.assignees().then((a) => this.assignees.set(a), () => undefined);
+    if (this.auth.hasRole('planner', 'admin'))
+      this.api.assignees().then(
+        (a) => this.assignees.set(a),
+        () => undefined,
+      );
     // what the outbox stored on the server shows as the server has it
     let round = this.outbox.sentRound();
     effect(() => {
@@ -191,7 +218,6 @@ export class WorkOrderPage {
       /* still offline: the page keeps what it shows */
     }
   }
-
 
   private async load(id: number): Promise<void> {
     try {
@@ -223,8 +249,16 @@ export class WorkOrderPage {
         // a step not done shows the draft the server keeps (as typed, with its unit)
         const saved = !s.doneAt && s.resultValue !== null;
         this.drafts[s.id] = {
-          value: saved ? s.resultValue : null, unit: saved && s.resultUnit ? s.resultUnit : (s.unit ?? ''), note: !s.doneAt ? (s.resultText ?? '') : '',
-          lockout: false, manual: false, gaugeKpa: null, tempC: null, minutesSinceStop: null, checkedBy: this.auth.user()?.name ?? '', reason: '',
+          value: saved ? s.resultValue : null,
+          unit: saved && s.resultUnit ? s.resultUnit : (s.unit ?? ''),
+          note: !s.doneAt ? (s.resultText ?? '') : '',
+          lockout: false,
+          manual: false,
+          gaugeKpa: null,
+          tempC: null,
+          minutesSinceStop: null,
+          checkedBy: this.auth.user()?.name ?? '',
+          reason: '',
         };
         if (s.unit && !saved) this.drafts[s.id].unit = this.preferredUnit(s.unit);
         this.overlayKept(o.id, s);
@@ -251,7 +285,10 @@ export class WorkOrderPage {
   protected draftChanged(s: WorkStep): void {
     if (!this.working() || s.doneAt || (s.gated && !this.unlocked(s))) return;
     clearTimeout(this.draftTimers.get(s.id));
-    this.draftTimers.set(s.id, setTimeout(() => void this.saveDraft(s), 600));
+    this.draftTimers.set(
+      s.id,
+      setTimeout(() => void this.saveDraft(s), 600),
+    );
   }
 
   private async saveDraft(s: WorkStep): Promise<void> {
@@ -324,11 +361,16 @@ export class WorkOrderPage {
 
   protected lockText(s: WorkStep): string {
     const g = this.gate();
-    if (this.offline()) return this.unlocked(s) ? 'Unlocked on a manual check: the server judges it when the network returns' : 'Locked: no network for the live opening check (a manual check is possible)';
+    if (this.offline())
+      return this.unlocked(s)
+        ? 'Unlocked on a manual check: the server judges it when the network returns'
+        : 'Locked: no network for the live opening check (a manual check is possible)';
     if (!g) return 'Locked until the opening check has been read';
     const lock = this.lockStep(s);
-    if (this.unlocked(s)) return g.clear ? 'Unlocked: the opening check is clear and lockout/tagout is confirmed' : 'Unlocked on a manual check (live data stale)';
-    if (g.clear) return lock ? `Opening check clear: do step ${lock.position} (lock out and tag out) to unlock` : 'Opening check clear: tick lockout/tagout to unlock';
+    if (this.unlocked(s))
+      return g.clear ? 'Unlocked: the opening check is clear and lockout/tagout is confirmed' : 'Unlocked on a manual check (live data stale)';
+    if (g.clear)
+      return lock ? `Opening check clear: do step ${lock.position} (lock out and tag out) to unlock` : 'Opening check clear: tick lockout/tagout to unlock';
     return g.stale ? 'Locked: live data missing or stale (a manual check is possible)' : 'Locked: opening check not clear';
   }
 
@@ -371,13 +413,31 @@ export class WorkOrderPage {
     // decline, cancel, send back: the note belongs to the action, and the action is confirmed first
     const data: TransitionNoteData =
       to === 'in-progress'
-        ? { title: `Send work order #${o.id} back?`, message: 'It goes back to the technician as in progress.', confirm: 'Send back', noteLabel: 'What is still to do' }
+        ? {
+            title: `Send work order #${o.id} back?`,
+            message: 'It goes back to the technician as in progress.',
+            confirm: 'Send back',
+            noteLabel: 'What is still to do',
+          }
         : o.status === 'requested'
-          ? { title: `Decline request #${o.id}?`, message: 'The request is closed as cancelled; the person who raised it sees your note.', confirm: 'Decline the request', noteLabel: 'Why it is declined' }
-          : { title: `Cancel work order #${o.id}?`, message: 'The work order is closed as cancelled and cannot be reopened; what was recorded stays in the history.', confirm: 'Cancel the work order', noteLabel: 'Why it is cancelled' };
-    this.dialog.open<TransitionNoteDialog, TransitionNoteData, string>(TransitionNoteDialog, { data, width: '480px' }).afterClosed().subscribe((note) => {
-      if (note) void this.act(() => this.api.transition(o.id, to, note));
-    });
+          ? {
+              title: `Decline request #${o.id}?`,
+              message: 'The request is closed as cancelled; the person who raised it sees your note.',
+              confirm: 'Decline the request',
+              noteLabel: 'Why it is declined',
+            }
+          : {
+              title: `Cancel work order #${o.id}?`,
+              message: 'The work order is closed as cancelled and cannot be reopened; what was recorded stays in the history.',
+              confirm: 'Cancel the work order',
+              noteLabel: 'Why it is cancelled',
+            };
+    this.dialog
+      .open<TransitionNoteDialog, TransitionNoteData, string>(TransitionNoteDialog, { data, width: '480px' })
+      .afterClosed()
+      .subscribe((note) => {
+        if (note) void this.act(() => this.api.transition(o.id, to, note));
+      });
   }
 
   protected readonly minDue = MIN_DUE;
@@ -411,7 +471,13 @@ export class WorkOrderPage {
     if (s.gated) {
       body.lockoutConfirmed = d.lockout || !!this.carriedLock(s);
       if (d.manual) {
-        body.manualCheck = { gaugeKpa: Number(d.gaugeKpa), tempC: Number(d.tempC), minutesSinceStop: Number(d.minutesSinceStop), checkedBy: d.checkedBy.trim(), reason: d.reason.trim() };
+        body.manualCheck = {
+          gaugeKpa: Number(d.gaugeKpa),
+          tempC: Number(d.tempC),
+          minutesSinceStop: Number(d.minutesSinceStop),
+          checkedBy: d.checkedBy.trim(),
+          reason: d.reason.trim(),
+        };
       }
     }
     if (this.offline()) return this.keepDone(s, body);
@@ -432,11 +498,22 @@ export class WorkOrderPage {
   private async keepDone(s: WorkStep, body: Parameters<WorkApi['completeStep']>[2]): Promise<void> {
     this.busy.set(false);
     if (s.gated && !body.manualCheck) {
-      return this.stepError(s.id, 'This step cannot be done offline: the opening check needs live data from the engine. Record a manual check (gauge, coolant temperature, time since stop) to go ahead; it is sent, judged and recorded by the server, and the planner is told, when the network returns.', []);
+      return this.stepError(
+        s.id,
+        'This step cannot be done offline: the opening check needs live data from the engine. Record a manual check (gauge, coolant temperature, time since stop) to go ahead; it is sent, judged and recorded by the server, and the planner is told, when the network returns.',
+        [],
+      );
     }
     const o = this.order()!;
     try {
-      await this.outbox.record({ orderId: o.id, orderTitle: o.title, stepId: s.id, stepTitle: `${s.position}. ${s.title}`, kind: 'complete', body: body as Record<string, unknown> });
+      await this.outbox.record({
+        orderId: o.id,
+        orderTitle: o.title,
+        stepId: s.id,
+        stepTitle: `${s.position}. ${s.title}`,
+        kind: 'complete',
+        body: body as Record<string, unknown>,
+      });
       this.stepError(s.id, null, []);
     } catch (e) {
       this.stepError(s.id, errorText(e), []);
@@ -479,7 +556,15 @@ export class WorkOrderPage {
     const o = this.order()!;
     const step = o.steps.find((x) => x.id === stepId);
     try {
-      await this.outbox.record({ orderId: o.id, orderTitle: o.title, stepId, stepTitle: step ? `${step.position}. ${step.title}` : '', kind: 'photo', file, fileName: file.name });
+      await this.outbox.record({
+        orderId: o.id,
+        orderTitle: o.title,
+        stepId,
+        stepTitle: step ? `${step.position}. ${step.title}` : '',
+        kind: 'photo',
+        file,
+        fileName: file.name,
+      });
       this.error.set(null);
     } catch (e) {
       this.error.set(`The photo could not be kept on this device: ${errorText(e)}`);
@@ -490,7 +575,14 @@ export class WorkOrderPage {
     const p = this.part;
     if (!p.kind) return void this.error.set('Choose what was used first.');
     if (!p.quantity || p.quantity <= 0) return;
-    void this.act(() => this.api.addPart(this.order()!.id, { kind: p.kind, quantity: Number(p.quantity), unit: p.unit, ...(p.description.trim() ? { description: p.description.trim() } : {}) })).then(() => (this.part.description = ''));
+    void this.act(() =>
+      this.api.addPart(this.order()!.id, {
+        kind: p.kind,
+        quantity: Number(p.quantity),
+        unit: p.unit,
+        ...(p.description.trim() ? { description: p.description.trim() } : {}),
+      }),
+    ).then(() => (this.part.description = ''));
   }
 
   protected partKindChanged(): void {
@@ -513,7 +605,7 @@ export class WorkOrderPage {
   }
 
   protected historyChange(h: { fromStatus: string | null; toStatus: string | null }): string {
-    const t = (s: string | null) => (s ? (STATUS_TEXT as Record<string, string>)[s] ?? s : '');
+    const t = (s: string | null) => (s ? ((STATUS_TEXT as Record<string, string>)[s] ?? s) : '');
     return h.toStatus ? (h.fromStatus ? `${t(h.fromStatus)} → ${t(h.toStatus)}` : t(h.toStatus)) : '';
   }
 

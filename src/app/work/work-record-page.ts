@@ -32,7 +32,12 @@ export class WorkRecordPage {
   constructor() {
     effect(() => {
       const id = Number(this.id());
-      untracked(() => this.api.get(id).then((o) => this.order.set(o), (e) => this.error.set(errorText(e))));
+      untracked(() =>
+        this.api.get(id).then(
+          (o) => this.order.set(o),
+          (e) => this.error.set(errorText(e)),
+        ),
+      );
     });
   }
 
@@ -49,7 +54,8 @@ export class WorkRecordPage {
     const g = s.gateSnapshot;
     if (!g) return '';
     if (g.manual) return 'Opened on a MANUAL CHECK (live data stale)';
-    const parts = g.conditions.filter((c) => typeof c.value === 'number' && (c.name === 'coolant-temperature' || c.name === 'coolant-pressure'))
+    const parts = g.conditions
+      .filter((c) => typeof c.value === 'number' && (c.name === 'coolant-temperature' || c.name === 'coolant-pressure'))
       .map((c) => `${CONDITION_TEXT[c.name]}: ${Number(c.value).toFixed(1)} ${c.unit}`);
     return `Opening check clear at ${formatDateTime(g.at)}${parts.length ? ` (${parts.join('; ')})` : ''}`;
   }

@@ -143,7 +143,15 @@ export interface OpeningCheck {
   forecast?: { at: number; earliest: number; latest: number | null; ambientFitted: boolean } | null;
   reasons: string[];
   stale: boolean;
-  settings: { safeOpenTempC: number; maxPressureKpa: number; minStoppedS: number; holdS: number; staleAfterS: number; heaterSetpointC?: number | null; ambientC?: number | null };
+  settings: {
+    safeOpenTempC: number;
+    maxPressureKpa: number;
+    minStoppedS: number;
+    holdS: number;
+    staleAfterS: number;
+    heaterSetpointC?: number | null;
+    ambientC?: number | null;
+  };
 }
 
 /** The 409 body of a gated step refused by the server. */

@@ -7,7 +7,13 @@ const plannerOnly: CanMatchFn = () => inject(AuthService).hasRole('planner', 'ad
 
 /** Mounted under /work for every signed-in user (app.routes.ts); the planner's overview guards itself. */
 export const WORK_ROUTES: Routes = [
-  { path: '', pathMatch: 'full', title: 'Work · Jacketwatch', canMatch: [plannerOnly], loadComponent: () => import('./work-list-page').then((m) => m.WorkListPage) },
+  {
+    path: '',
+    pathMatch: 'full',
+    title: 'Work · Jacketwatch',
+    canMatch: [plannerOnly],
+    loadComponent: () => import('./work-list-page').then((m) => m.WorkListPage),
+  },
   { path: '', pathMatch: 'full', redirectTo: 'mine' },
   { path: 'mine', title: 'My work · Jacketwatch', loadComponent: () => import('./my-work-page').then((m) => m.MyWorkPage) },
   { path: 'new', title: 'New work order · Jacketwatch', loadComponent: () => import('./work-new-page').then((m) => m.WorkNewPage) },

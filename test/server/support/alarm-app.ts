@@ -47,7 +47,15 @@ export interface AlarmApp {
 export async function makeAlarmApp(settings: Partial<AlarmSettings> = {}): Promise<AlarmApp> {
   const dataDir = fs.mkdtempSync(path.join(os.tmpdir(), 'jw-alarmapp-'));
   const db = await createTestDatabase(dataDir);
-  const config = loadConfig({ DATA_DIR: dataDir, DATABASE_URL: db.url, PORT: '0', MQTT_PORT: '0', SMTP_PORT: '0', LOG_LEVEL: 'error', PUBLIC_URL: 'http://jacketwatch.test' });
+  const config = loadConfig({
+    DATA_DIR: dataDir,
+    DATABASE_URL: db.url,
+    PORT: '0',
+    MQTT_PORT: '0',
+    SMTP_PORT: '0',
+    LOG_LEVEL: 'error',
+    PUBLIC_URL: 'http://jacketwatch.test',
+  });
   const log = createLogger('error');
   const sequelize = createSequelize(config, log);
   await migrate(sequelize);
@@ -68,10 +76,23 @@ export async function makeAlarmApp(settings: Partial<AlarmSettings> = {}): Promi
   }
   const site = await models.Site.create({ name: 'Pump station North', timeZone: 'UTC' });
   const engine = await models.Engine.create({
-    siteId: site.id, name: 'Fire pump 1', duty: 'standby', capacityL: 60, coolantFamily: 'conventional', glycolType: 'ethylene',
-    glycolPercent: 50, capPressureKpa: 100, oilDrainIntervalH: 250,
+    siteId: site.id,
+    name: 'Fire pump 1',
+    duty: 'standby',
+    capacityL: 60,
+    coolantFamily: 'conventional',
+    glycolType: 'ethylene',
+    glycolPercent: 50,
+    capPressureKpa: 100,
+    oilDrainIntervalH: 250,
   });
-  await models.OncallShift.create({ siteId: site.id, userId: users.technician.id, backupUserId: users.backup.id, startsAt: new Date(Date.now() - 3600_000), endsAt: new Date(Date.now() + 86400_000) });
+  await models.OncallShift.create({
+    siteId: site.id,
+    userId: users.technician.id,
+    backupUserId: users.backup.id,
+    startsAt: new Date(Date.now() - 3600_000),
+    endsAt: new Date(Date.now() + 86400_000),
+  });
 
   const pushed: AlarmApp['pushed'] = [];
   let listener: ((b: AcceptedReading[]) => void) | null = null;
@@ -85,7 +106,14 @@ export async function makeAlarmApp(settings: Partial<AlarmSettings> = {}): Promi
     liveState: { latest: () => ({}), lastSeen: () => null, runState: () => 'no-data' },
   });
   return {
-    app, ctx, feature, tokens: toks, users, siteId: site.id, engineId: engine.id, pushed,
+    app,
+    ctx,
+    feature,
+    tokens: toks,
+    users,
+    siteId: site.id,
+    engineId: engine.id,
+    pushed,
     feed: (batch) => listener!(batch),
     async close() {
       await feature.stop();
@@ -97,7 +125,13 @@ export async function makeAlarmApp(settings: Partial<AlarmSettings> = {}): Promi
 }
 
 /** One sample a second from `t0` for `seconds`: speed, coolant temperature and pressure. */
-export function samples(engineId: number, t0: number, seconds: number, temp: (s: number) => number, opts: { rpm?: number; kpa?: number } = {}): AcceptedReading[] {
+export function samples(
+  engineId: number,
+  t0: number,
+  seconds: number,
+  temp: (s: number) => number,
+  opts: { rpm?: number; kpa?: number } = {},
+): AcceptedReading[] {
   const out: AcceptedReading[] = [];
   for (let s = 0; s < seconds; s++) {
     const ts = t0 + s * 1000;

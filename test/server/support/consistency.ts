@@ -30,12 +30,17 @@ export async function expectIntact(db: Db): Promise<void> {
  */
 export async function rawAndRollupCounts(db: Db, engineId: number): Promise<{ raw: unknown[]; rollups: unknown[]; rawHours: unknown[]; hourly: unknown[] }> {
   const raw = await db.all<{ channel: number; minute: number; n: number }>(
-    `SELECT channel, ts - (ts % 60000) AS minute, COUNT(*) AS n FROM readings WHERE engine_id = ? GROUP BY channel, minute ORDER BY channel, minute`, [engineId]);
+    `SELECT channel, ts - (ts % 60000) AS minute, COUNT(*) AS n FROM readings WHERE engine_id = ? GROUP BY channel, minute ORDER BY channel, minute`,
+    [engineId],
+  );
   const rollups = await db.all<{ channel: number; minute: number; n: number }>(
-    `SELECT channel, minute, "count" + bad_count AS n FROM rollups WHERE engine_id = ? ORDER BY channel, minute`, [engineId]);
+    `SELECT channel, minute, "count" + bad_count AS n FROM rollups WHERE engine_id = ? ORDER BY channel, minute`,
+    [engineId],
+  );
   const rawHours = await db.all(
-    `SELECT channel, ts - (ts % 3600000) AS hour, COUNT(*) AS n FROM readings WHERE engine_id = ? GROUP BY channel, hour ORDER BY channel, hour`, [engineId]);
-  const hourly = await db.all(
-    `SELECT channel, hour, "count" + bad_count AS n FROM rollups_hourly WHERE engine_id = ? ORDER BY channel, hour`, [engineId]);
+    `SELECT channel, ts - (ts % 3600000) AS hour, COUNT(*) AS n FROM readings WHERE engine_id = ? GROUP BY channel, hour ORDER BY channel, hour`,
+    [engineId],
+  );
+  const hourly = await db.all(`SELECT channel, hour, "count" + bad_count AS n FROM rollups_hourly WHERE engine_id = ? ORDER BY channel, hour`, [engineId]);
   return { raw, rollups, rawHours, hourly };
 }

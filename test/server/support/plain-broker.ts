@@ -16,7 +16,10 @@ const { Aedes } = require('aedes') as { Aedes: { createBroker(opts?: object): Pr
 async function main(): Promise<void> {
   const broker = await Aedes.createBroker();
   broker.on('subscribe', (_subs: unknown, client: { id: string } | null) => process.stdout.write(`subscribed ${client?.id}\n`));
-  const server = net.createServer((socket) => { socket.on('error', () => undefined); broker.handle(socket); });
+  const server = net.createServer((socket) => {
+    socket.on('error', () => undefined);
+    broker.handle(socket);
+  });
   server.listen(Number(process.env.PLAIN_BROKER_PORT), '127.0.0.1', () => process.stdout.write('ready\n'));
 }
 

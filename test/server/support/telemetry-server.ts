@@ -69,14 +69,20 @@ export interface ServerProcessOptions {
 
 /** No live process left in the group (a zombie waiting for a reaper counts as gone: it runs nothing). */
 const groupGone = (pgid: number): boolean => {
-  try { process.kill(-pgid, 0); } catch { return true; }
+  try {
+    process.kill(-pgid, 0);
+  } catch {
+    return true;
+  }
   if (!fs.existsSync('/proc/self/stat')) return false;
   for (const pid of fs.readdirSync('/proc').filter((d) => /^\d+$/.test(d))) {
     try {
       const stat = fs.readFileSync(`/proc/${pid}/stat`, 'utf8');
       const fields = stat.slice(stat.lastIndexOf(')') + 2).split(' '); // state, ppid, pgrp, ...
       if (Number(fields[2]) === pgid && fields[0] !== 'Z') return false;
-    } catch { /* ended meanwhile */ }
+    } catch {
+      /* ended meanwhile */
+    }
   }
   return true;
 };
@@ -93,28 +99,54 @@ export async function startServerProcess(opts: ServerProcessOptions = {}): Promi
   const { port, mqttPort, smtpPort } = ports;
   const child = spawn(process.execPath, [path.join(ROOT, 'node_modules/tsx/dist/cli.mjs'), path.join(ROOT, 'server/main.ts')], {
     cwd: ROOT,
-    env: { ...process.env, PORT: String(port), MQTT_PORT: String(mqttPort), SMTP_PORT: String(smtpPort), DATA_DIR: dataDir, DATABASE_URL: databaseUrl, LOG_LEVEL: 'warn', ...opts.env },
+    env: {
+      ...process.env,
+      PORT: String(port),
+      MQTT_PORT: String(mqttPort),
+      SMTP_PORT: String(smtpPort),
+      DATA_DIR: dataDir,
+      DATABASE_URL: databaseUrl,
+      LOG_LEVEL: 'warn',
+      ...opts.env,
+    },
     stdio: ['ignore', 'pipe', 'pipe'],
     detached: opts.group !== false,
   });
   let output = '';
-  child.stdout!.on('data', (d) => { output += d; });
-  child.stderr!.on('data', (d) => { output += d; });
+  child.stdout!.on('data', (d) => {
+    output += d;
+  });
+  child.stderr!.on('data', (d) => {
+    output += d;
+  });
   const exited = new Promise<number | null>((resolve) => child.once('exit', (code) => resolve(code)));
   const url = `http://127.0.0.1:${port}`;
   const health = async () => (await fetch(`${url}/api/health`)).json() as Promise<ServerHealth>;
   const deadline = Date.now() + 45_000;
   for (;;) {
     if (child.exitCode !== null) throw new Error('server exited during start:\n' + output);
-    try { await health(); break; } catch { /* not yet */ }
+    try {
+      await health();
+      break;
+    } catch {
+      /* not yet */
+    }
     if (Date.now() > deadline) {
-      if (opts.group !== false) process.kill(-child.pid!, 'SIGKILL'); else child.kill('SIGKILL');
+      if (opts.group !== false) process.kill(-child.pid!, 'SIGKILL');
+      else child.kill('SIGKILL');
       throw new Error('server did not start:\n' + output);
     }
     await new Promise((r) => setTimeout(r, 200));
   }
   return {
-    child, port, mqttPort, dataDir, url, dbFile: path.join(dataDir, 'jacketwatch.sqlite'), databaseUrl, ports,
+    child,
+    port,
+    mqttPort,
+    dataDir,
+    url,
+    dbFile: path.join(dataDir, 'jacketwatch.sqlite'),
+    databaseUrl,
+    ports,
     log: () => output,
     health,
     stop: async (signal = 'SIGTERM') => {
@@ -166,7 +198,12 @@ export class Db {
   }
   async run(sql: string, params: unknown[] = []): Promise<number> {
     if (this.pg) return (await this.pgQuery<Row>(sql, params)).at(-1)?.id ?? 0;
-    return new Promise((resolve, reject) => this.db!.run(sql, params, function (err) { if (err) reject(err); else resolve(this.lastID); }));
+    return new Promise((resolve, reject) =>
+      this.db!.run(sql, params, function (err) {
+        if (err) reject(err);
+        else resolve(this.lastID);
+      }),
+    );
   }
   private readonly prepared = new Map<string, sqlite3.Statement>();
   /** Runs `sql` as a statement prepared once and reused, the way the server's writer does for full batches. */
@@ -181,14 +218,24 @@ export class Db {
     return new Promise((resolve, reject) => this.db!.exec(sql, (err) => (err ? reject(err) : resolve())));
   }
   async close(): Promise<void> {
-    if (this.pg) return void (await this.pgReady.then(() => this.pg!.end(), () => undefined));
+    if (this.pg)
+      return void (await this.pgReady.then(
+        () => this.pg!.end(),
+        () => undefined,
+      ));
     for (const stmt of this.prepared.values()) await new Promise<void>((resolve) => stmt.finalize(() => resolve()));
     this.prepared.clear();
     return new Promise((resolve) => this.db!.close(() => resolve()));
   }
 }
 
-export interface SeededDevice { engineId: number; deviceId: number; siteId: number; username: string; secret: string }
+export interface SeededDevice {
+  engineId: number;
+  deviceId: number;
+  siteId: number;
+  username: string;
+  secret: string;
+}
 
 /**
  * Invented test fleet: `count` engines on one site, one device each. bcrypt cost 4 keeps hundreds of
@@ -202,11 +249,18 @@ export async function seedFleet(db: Db, count: number, prefix = 'gw'): Promise<S
   for (let i = 0; i < count; i++) {
     const engineId = await db.run(
       `INSERT INTO engines (site_id, name, duty, capacity_l, coolant_family, glycol_type, glycol_percent, cap_pressure_kpa, oil_drain_interval_h, run_hours, safe_open_temp_c, out_of_service, created_at, updated_at)
-       VALUES (?, ?, 'standby', 60, 'conventional', 'ethylene', 50, 100, 250, 0, 50, FALSE, ?, ?)`, [siteId, `Test engine ${prefix}-${i}`, now, now]);
+       VALUES (?, ?, 'standby', 60, 'conventional', 'ethylene', 50, 100, 250, 0, 50, FALSE, ?, ?)`,
+      [siteId, `Test engine ${prefix}-${i}`, now, now],
+    );
     const username = `${prefix}-${engineId}`;
     const secret = `secret-${prefix}-${i}-x7`;
-    const deviceId = await db.run(`INSERT INTO devices (engine_id, username, secret_hash, created_at, updated_at) VALUES (?, ?, ?, ?, ?)`,
-      [engineId, username, bcrypt.hashSync(secret, 4), now, now]);
+    const deviceId = await db.run(`INSERT INTO devices (engine_id, username, secret_hash, created_at, updated_at) VALUES (?, ?, ?, ?, ?)`, [
+      engineId,
+      username,
+      bcrypt.hashSync(secret, 4),
+      now,
+      now,
+    ]);
     out.push({ engineId, deviceId, siteId, username, secret });
   }
   await db.exec('COMMIT');

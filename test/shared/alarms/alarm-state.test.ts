@@ -20,13 +20,20 @@ function inState(s: AlarmState): AlarmRecord {
   const a = newAlarm('high');
   const act: [AlarmEvent, number] = [{ type: 'activate', value: 101 }, 1000];
   switch (s) {
-    case 'normal': return a;
-    case 'unacknowledged': return apply(a, [act]);
-    case 'acknowledged': return apply(a, [act, [{ type: 'acknowledge', by: 'op' }, 2000]]);
-    case 'returned-unacknowledged': return apply(a, [act, [{ type: 'clear', value: 95 }, 2000]]);
-    case 'shelved': return apply(a, [[{ type: 'shelve', minutes: 60, reason: 'sensor being replaced' }, 1000]]);
-    case 'suppressed-by-design': return apply(a, [[{ type: 'suppress', reason: 'engine stopped' }, 1000]]);
-    case 'out-of-service': return apply(a, [[{ type: 'remove-from-service', reason: 'transmitter removed' }, 1000]]);
+    case 'normal':
+      return a;
+    case 'unacknowledged':
+      return apply(a, [act]);
+    case 'acknowledged':
+      return apply(a, [act, [{ type: 'acknowledge', by: 'op' }, 2000]]);
+    case 'returned-unacknowledged':
+      return apply(a, [act, [{ type: 'clear', value: 95 }, 2000]]);
+    case 'shelved':
+      return apply(a, [[{ type: 'shelve', minutes: 60, reason: 'sensor being replaced' }, 1000]]);
+    case 'suppressed-by-design':
+      return apply(a, [[{ type: 'suppress', reason: 'engine stopped' }, 1000]]);
+    case 'out-of-service':
+      return apply(a, [[{ type: 'remove-from-service', reason: 'transmitter removed' }, 1000]]);
   }
 }
 
@@ -50,39 +57,95 @@ const R = (why: string): Cell => `refused: ${why}`;
 // Rows: state; columns: event; cell: resulting state or the refusal reason.
 const TABLE: Record<AlarmState, Record<keyof typeof EVENTS, Cell>> = {
   normal: {
-    activate: 'unacknowledged', clear: R('not active'), value: R('not active'), acknowledge: R('nothing to acknowledge'),
-    shelve: 'shelved', unshelve: R('not shelved'), 'shelf-expired': R('not shelved'), suppress: 'suppressed-by-design',
-    unsuppress: R('not suppressed by design'), 'remove-from-service': 'out-of-service', 'return-to-service': R('not out of service'),
+    activate: 'unacknowledged',
+    clear: R('not active'),
+    value: R('not active'),
+    acknowledge: R('nothing to acknowledge'),
+    shelve: 'shelved',
+    unshelve: R('not shelved'),
+    'shelf-expired': R('not shelved'),
+    suppress: 'suppressed-by-design',
+    unsuppress: R('not suppressed by design'),
+    'remove-from-service': 'out-of-service',
+    'return-to-service': R('not out of service'),
   },
   unacknowledged: {
-    activate: R('already active'), clear: 'returned-unacknowledged', value: 'unacknowledged', acknowledge: 'acknowledged',
-    shelve: 'shelved', unshelve: R('not shelved'), 'shelf-expired': R('not shelved'), suppress: 'suppressed-by-design',
-    unsuppress: R('not suppressed by design'), 'remove-from-service': 'out-of-service', 'return-to-service': R('not out of service'),
+    activate: R('already active'),
+    clear: 'returned-unacknowledged',
+    value: 'unacknowledged',
+    acknowledge: 'acknowledged',
+    shelve: 'shelved',
+    unshelve: R('not shelved'),
+    'shelf-expired': R('not shelved'),
+    suppress: 'suppressed-by-design',
+    unsuppress: R('not suppressed by design'),
+    'remove-from-service': 'out-of-service',
+    'return-to-service': R('not out of service'),
   },
   acknowledged: {
-    activate: R('already active'), clear: 'normal', value: 'acknowledged', acknowledge: R('already acknowledged'),
-    shelve: 'shelved', unshelve: R('not shelved'), 'shelf-expired': R('not shelved'), suppress: 'suppressed-by-design',
-    unsuppress: R('not suppressed by design'), 'remove-from-service': 'out-of-service', 'return-to-service': R('not out of service'),
+    activate: R('already active'),
+    clear: 'normal',
+    value: 'acknowledged',
+    acknowledge: R('already acknowledged'),
+    shelve: 'shelved',
+    unshelve: R('not shelved'),
+    'shelf-expired': R('not shelved'),
+    suppress: 'suppressed-by-design',
+    unsuppress: R('not suppressed by design'),
+    'remove-from-service': 'out-of-service',
+    'return-to-service': R('not out of service'),
   },
   'returned-unacknowledged': {
-    activate: 'unacknowledged', clear: R('not active'), value: R('not active'), acknowledge: 'normal',
-    shelve: 'shelved', unshelve: R('not shelved'), 'shelf-expired': R('not shelved'), suppress: 'suppressed-by-design',
-    unsuppress: R('not suppressed by design'), 'remove-from-service': 'out-of-service', 'return-to-service': R('not out of service'),
+    activate: 'unacknowledged',
+    clear: R('not active'),
+    value: R('not active'),
+    acknowledge: 'normal',
+    shelve: 'shelved',
+    unshelve: R('not shelved'),
+    'shelf-expired': R('not shelved'),
+    suppress: 'suppressed-by-design',
+    unsuppress: R('not suppressed by design'),
+    'remove-from-service': 'out-of-service',
+    'return-to-service': R('not out of service'),
   },
   shelved: {
-    activate: 'shelved', clear: R('not active'), value: R('not active'), acknowledge: R('cannot acknowledge while shelved'),
-    shelve: R('already shelved'), unshelve: 'normal', 'shelf-expired': 'normal', suppress: R('cannot suppress while shelved'),
-    unsuppress: R('not suppressed by design'), 'remove-from-service': 'out-of-service', 'return-to-service': R('not out of service'),
+    activate: 'shelved',
+    clear: R('not active'),
+    value: R('not active'),
+    acknowledge: R('cannot acknowledge while shelved'),
+    shelve: R('already shelved'),
+    unshelve: 'normal',
+    'shelf-expired': 'normal',
+    suppress: R('cannot suppress while shelved'),
+    unsuppress: R('not suppressed by design'),
+    'remove-from-service': 'out-of-service',
+    'return-to-service': R('not out of service'),
   },
   'suppressed-by-design': {
-    activate: 'suppressed-by-design', clear: R('not active'), value: R('not active'), acknowledge: R('cannot acknowledge while suppressed-by-design'),
-    shelve: R('cannot shelve while suppressed-by-design'), unshelve: R('not shelved'), 'shelf-expired': R('not shelved'), suppress: R('already suppressed by design'),
-    unsuppress: 'normal', 'remove-from-service': 'out-of-service', 'return-to-service': R('not out of service'),
+    activate: 'suppressed-by-design',
+    clear: R('not active'),
+    value: R('not active'),
+    acknowledge: R('cannot acknowledge while suppressed-by-design'),
+    shelve: R('cannot shelve while suppressed-by-design'),
+    unshelve: R('not shelved'),
+    'shelf-expired': R('not shelved'),
+    suppress: R('already suppressed by design'),
+    unsuppress: 'normal',
+    'remove-from-service': 'out-of-service',
+    'return-to-service': R('not out of service'),
   },
   'out-of-service': {
-    activate: 'out-of-service', clear: R('not active'), value: R('not active'), acknowledge: R('cannot acknowledge while out-of-service'),
-    shelve: R('cannot shelve while out-of-service'), unshelve: R('not shelved'), 'shelf-expired': R('not shelved'), suppress: R('cannot suppress while out-of-service'),
-    unsuppress: R('not suppressed by design'), 'remove-from-service': R('already out of service'), 'return-to-service': 'normal',
+    activate: 'out-of-service',
+    clear: R('not active'),
+    value: R('not active'),
+    acknowledge: R('cannot acknowledge while out-of-service'),
+    shelve: R('cannot shelve while out-of-service'),
+    unshelve: R('not shelved'),
+    'shelf-expired': R('not shelved'),
+    suppress: R('cannot suppress while out-of-service'),
+    unsuppress: R('not suppressed by design'),
+    'remove-from-service': R('already out of service'),
+    'return-to-service': 'normal',
   },
 };
 
@@ -120,14 +183,30 @@ describe('alarm lifecycle details', () => {
       [{ type: 'acknowledge', by: 'tech-1', comment: 'on my way' }, 4000],
       [{ type: 'clear', value: 95 }, 5000],
     ]);
-    expect(a).toMatchObject({ state: 'normal', raisedValue: 101, worstValue: 106, lastValue: 95, activatedAt: 1000, acknowledgedAt: 4000, acknowledgedBy: 'tech-1', clearedAt: 5000 });
+    expect(a).toMatchObject({
+      state: 'normal',
+      raisedValue: 101,
+      worstValue: 106,
+      lastValue: 95,
+      activatedAt: 1000,
+      acknowledgedAt: 4000,
+      acknowledgedBy: 'tech-1',
+      clearedAt: 5000,
+    });
     expect(a.history.map((h) => [h.at, h.event, h.to])).toEqual([
-      [1000, 'activate', 'unacknowledged'], [2000, 'value', 'unacknowledged'], [3000, 'value', 'unacknowledged'],
-      [4000, 'acknowledge', 'acknowledged'], [5000, 'clear', 'normal'],
+      [1000, 'activate', 'unacknowledged'],
+      [2000, 'value', 'unacknowledged'],
+      [3000, 'value', 'unacknowledged'],
+      [4000, 'acknowledge', 'acknowledged'],
+      [5000, 'clear', 'normal'],
     ]);
     expect(a.history[3].note).toBe('on my way');
     // a low alarm's worst value is the smallest
-    a = apply(newAlarm('low'), [[{ type: 'activate', value: 20 }, 0], [{ type: 'value', value: 15 }, 1], [{ type: 'value', value: 18 }, 2]]);
+    a = apply(newAlarm('low'), [
+      [{ type: 'activate', value: 20 }, 0],
+      [{ type: 'value', value: 15 }, 1],
+      [{ type: 'value', value: 18 }, 2],
+    ]);
     expect(a.worstValue).toBe(15);
   });
 
@@ -137,7 +216,10 @@ describe('alarm lifecycle details', () => {
       [{ type: 'suppress' }, { type: 'unsuppress' }],
       [{ type: 'remove-from-service', reason: 'repair' }, { type: 'return-to-service' }],
     ] as [AlarmEvent, AlarmEvent][]) {
-      const a = apply(newAlarm(), [[hide, 0], [{ type: 'activate', value: 110 }, 1000]]);
+      const a = apply(newAlarm(), [
+        [hide, 0],
+        [{ type: 'activate', value: 110 }, 1000],
+      ]);
       expect(isAnnunciated(a.state)).toBe(false);
       expect(a.active).toBe(true);
       const back = transition(a, show, 2000);
@@ -146,7 +228,12 @@ describe('alarm lifecycle details', () => {
   });
 
   it('a condition that came and went while shelved leaves nothing to annunciate', () => {
-    const a = apply(newAlarm(), [[{ type: 'shelve', minutes: 10, reason: 'noisy' }, 0], [{ type: 'activate', value: 110 }, 1], [{ type: 'clear' }, 2], [{ type: 'unshelve' }, 3]]);
+    const a = apply(newAlarm(), [
+      [{ type: 'shelve', minutes: 10, reason: 'noisy' }, 0],
+      [{ type: 'activate', value: 110 }, 1],
+      [{ type: 'clear' }, 2],
+      [{ type: 'unshelve' }, 3],
+    ]);
     expect(a.state).toBe('normal');
   });
 
@@ -169,7 +256,10 @@ describe('alarm lifecycle details', () => {
   });
 
   it('the shelf expires only when its time has run out; expireShelf does it on a tick', () => {
-    const a = apply(newAlarm(), [[{ type: 'shelve', minutes: 5, reason: 'noisy' }, 0], [{ type: 'activate', value: 110 }, 1000]]);
+    const a = apply(newAlarm(), [
+      [{ type: 'shelve', minutes: 5, reason: 'noisy' }, 0],
+      [{ type: 'activate', value: 110 }, 1000],
+    ]);
     expect(transition(a, { type: 'shelf-expired' }, 5 * MIN - 1)).toMatchObject({ ok: false, reason: 'shelf time has not run out' });
     expect(expireShelf(a, 5 * MIN - 1)).toBe(a);
     const e = expireShelf(a, 7 * MIN);
@@ -180,6 +270,9 @@ describe('alarm lifecycle details', () => {
   it('refuses time going backwards and taking out of service without a reason', () => {
     const a = inState('unacknowledged');
     expect(transition(a, { type: 'acknowledge' }, 500)).toMatchObject({ ok: false, reason: 'time is earlier than the last recorded transition' });
-    expect(transition(a, { type: 'remove-from-service', reason: '' }, 5000)).toMatchObject({ ok: false, reason: 'a reason is required to take an alarm out of service' });
+    expect(transition(a, { type: 'remove-from-service', reason: '' }, 5000)).toMatchObject({
+      ok: false,
+      reason: 'a reason is required to take an alarm out of service',
+    });
   });
 });

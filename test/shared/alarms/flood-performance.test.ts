@@ -32,7 +32,11 @@ describe('alarm flood (ISA-18.2 benchmark: begins above 10 alarms in 10 min, end
   it('hysteresis: 5 to 10 alarms in the window keeps a flood going', () => {
     let s = initialFloodState();
     const events: string[] = [];
-    const feed = (ts: number, alarm = true) => { const r = stepFlood(s, { ts, alarm }); s = r.state; events.push(...r.events.map((e) => `${e.kind}@${e.ts / MIN}`)); };
+    const feed = (ts: number, alarm = true) => {
+      const r = stepFlood(s, { ts, alarm });
+      s = r.state;
+      events.push(...r.events.map((e) => `${e.kind}@${e.ts / MIN}`));
+    };
     for (let i = 0; i < 11; i++) feed(i * MIN * 0.5); // 0..5 min: begins at 5 min
     for (let t = 10; t <= 60; t += 1.5) feed(t * MIN); // ~6-7 in any 10 min: stays flooding
     feed(200 * MIN, false);
@@ -71,7 +75,10 @@ describe('alarm performance figures', () => {
   });
 
   it('ranks the most frequent alarms', () => {
-    expect(r.mostFrequent.slice(0, 2)).toEqual([{ key: 'e1/temp-high', count: 6, share: 0.6 }, { key: 'e2/pressure-low', count: 3, share: 0.3 }]);
+    expect(r.mostFrequent.slice(0, 2)).toEqual([
+      { key: 'e1/temp-high', count: 6, share: 0.6 },
+      { key: 'e2/pressure-low', count: 3, share: 0.3 },
+    ]);
   });
 
   it('finds chattering alarms (>= 3 activations in 1 minute, common practice)', () => {

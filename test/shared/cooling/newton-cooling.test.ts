@@ -6,7 +6,10 @@ describe('lumped capacitance against a textbook worked example', () => {
   // rho = 8500 kg/m³. Diameter for a time constant of 1 s; time to go from 25 °C to 199 °C in a
   // 200 °C gas stream. Printed answers: D = 7.06e-4 m, Bi = 2.35e-3, t = 5.2 s (about 5 tau).
   // The example's data and answers are recalled from memory, not re-read from the book.
-  const h = 400, k = 20, c = 400, rho = 8500;
+  const h = 400,
+    k = 20,
+    c = 400,
+    rho = 8500;
   const D = (6 * h * 1) / (rho * c); // from tau = rho c D / (6 h) = 1 s
 
   it('junction diameter for tau = 1 s: 7.06e-4 m (book: 7.06 x 10^-4 m)', () => {
@@ -43,8 +46,13 @@ describe('timeToReachS edge cases', () => {
 
 describe('fitCooling on synthetic data with a known tau', () => {
   let seed = 12345;
-  const noise = () => { seed = (seed * 1103515245 + 12345) % 2147483648; return seed / 2147483648 - 0.5; }; // uniform ±0.5
-  const tau = 2400, Ta = 28, T0 = 88;
+  const noise = () => {
+    seed = (seed * 1103515245 + 12345) % 2147483648;
+    return seed / 2147483648 - 0.5;
+  }; // uniform ±0.5
+  const tau = 2400,
+    Ta = 28,
+    T0 = 88;
   const samples = Array.from({ length: 121 }, (_, i) => {
     const t = i * 60; // 2 h, a sample a minute
     return { t, temp: coolingTemperature(T0, Ta, tau, t) + 0.6 * noise() }; // ±0.3 °C sensor noise
@@ -72,8 +80,18 @@ describe('fitCooling on synthetic data with a known tau', () => {
   });
 
   it('refuses data that does not approach a steady temperature', () => {
-    expect(fitCooling([{ t: 0, temp: 80 }, { t: 60, temp: 80 }])).toBeNull();
-    expect(fitCooling([0, 1, 2, 3].map((i) => ({ t: i * 60, temp: 60 + i })), 25)).toBeNull(); // warming away from 25
+    expect(
+      fitCooling([
+        { t: 0, temp: 80 },
+        { t: 60, temp: 80 },
+      ]),
+    ).toBeNull();
+    expect(
+      fitCooling(
+        [0, 1, 2, 3].map((i) => ({ t: i * 60, temp: 60 + i })),
+        25,
+      ),
+    ).toBeNull(); // warming away from 25
     expect(fitCooling([0, 1, 2].map((i) => ({ t: i, temp: 50 })))).toBeNull();
   });
 });

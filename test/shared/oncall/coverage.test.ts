@@ -11,7 +11,11 @@ describe('on-call coverage', () => {
 
   it('finds the hours before, between and after the shifts', () => {
     const gaps = uncoveredSpans([shift(1, 1, 2, 8), shift(2, 2, 10, 20)], T0, T0 + 24 * H);
-    expect(gaps.map((g) => [(g.from - T0) / H, (g.to - T0) / H])).toEqual([[0, 2], [8, 10], [20, 24]]);
+    expect(gaps.map((g) => [(g.from - T0) / H, (g.to - T0) / H])).toEqual([
+      [0, 2],
+      [8, 10],
+      [20, 24],
+    ]);
   });
 
   it('merges overlapping and nested shifts before looking for gaps', () => {
@@ -27,7 +31,10 @@ describe('on-call coverage', () => {
   it('reports the overlapping part, and whether it is the same person twice', () => {
     const list = [shift(1, 1, 0, 12), shift(2, 2, 11, 23)];
     const o = overlapsOf(shift(3, 1, 10, 14), list);
-    expect(o.map((x) => [x.other.id, (x.from - T0) / H, (x.to - T0) / H, x.samePerson])).toEqual([[1, 10, 12, true], [2, 11, 14, false]]);
+    expect(o.map((x) => [x.other.id, (x.from - T0) / H, (x.to - T0) / H, x.samePerson])).toEqual([
+      [1, 10, 12, true],
+      [2, 11, 14, false],
+    ]);
   });
 
   it('touching shifts (one ends when the next starts) do not overlap', () => {

@@ -66,7 +66,7 @@ describe('boiling-margin rule', () => {
     expect(hot.events[0].message).toMatch(/no pressure reading: the cap's rating of 100 kPa assumed/);
   });
 
-  it("at 1,500 m (84.56 kPa, ICAO Doc 7488 standard atmosphere) a 50 % glycol mix under 100 kPa alarms about 3 °C earlier than at sea level", () => {
+  it('at 1,500 m (84.56 kPa, ICAO Doc 7488 standard atmosphere) a 50 % glycol mix under 100 kPa alarms about 3 °C earlier than at sea level', () => {
     const mix = { ...params, glycolPercent: 50 };
     const sea = runRule(stepBoilingMargin, initialBoilingMarginState(), [pres(0, 100), temp(1 * S, 118)], mix);
     const high = runRule(stepBoilingMargin, initialBoilingMarginState(), [pres(0, 100), temp(1 * S, 118)], { ...mix, atmosphereKpa: 84.56 });
@@ -78,8 +78,16 @@ describe('boiling-margin rule', () => {
 
   it('deadband: clears only at margin >= set + deadband', () => {
     const p = { ...params, boilingPointC: () => 120 }; // boiling point fixed at 120 °C through an injected function
-    const { events } = runRule(stepBoilingMargin, initialBoilingMarginState(), [pres(0, 50), temp(0, 111), temp(1 * S, 109), temp(2 * S, 108.5), temp(3 * S, 108)], p);
-    expect(events.map((e) => [e.kind, e.ts])).toEqual([['raise', 0], ['clear', 3 * S]]);
+    const { events } = runRule(
+      stepBoilingMargin,
+      initialBoilingMarginState(),
+      [pres(0, 50), temp(0, 111), temp(1 * S, 109), temp(2 * S, 108.5), temp(3 * S, 108)],
+      p,
+    );
+    expect(events.map((e) => [e.kind, e.ts])).toEqual([
+      ['raise', 0],
+      ['clear', 3 * S],
+    ]);
   });
 
   it('a pressure outside the property equations gives no verdict and does not crash', () => {
@@ -94,7 +102,16 @@ describe('conductivity rule', () => {
   const params: ConductivityRuleParams = { baselineFrom: change, baselineCount: 5, risePercent: 25, absoluteLimit: 5000, deadband: 100 };
 
   it('baseline = median of the first readings after the coolant change; old coolant readings ignored', () => {
-    const inputs = [r(change - 10 * S, 4800), r(change, 2000), r(change + 1, 2100), r(change + 2, 1900), r(change + 3, 2050), r(change + 4, 1950), r(change + 5, 2400), r(change + 6, 2600)];
+    const inputs = [
+      r(change - 10 * S, 4800),
+      r(change, 2000),
+      r(change + 1, 2100),
+      r(change + 2, 1900),
+      r(change + 3, 2050),
+      r(change + 4, 1950),
+      r(change + 5, 2400),
+      r(change + 6, 2600),
+    ];
     const { state, events } = runRule(stepConductivity, initialConductivityState(), inputs, params);
     expect(state.baseline).toBe(2000);
     expect(events.map((e) => [e.kind, e.value])).toEqual([['raise', 2600]]); // limit 2500 µS/cm
@@ -109,10 +126,20 @@ describe('conductivity rule', () => {
   });
 
   it('a new coolant change starts a new baseline', () => {
-    const first = runRule(stepConductivity, initialConductivityState(), [1000, 1000, 1000, 1000, 1000].map((v, i) => r(change + i, v)), params).state;
+    const first = runRule(
+      stepConductivity,
+      initialConductivityState(),
+      [1000, 1000, 1000, 1000, 1000].map((v, i) => r(change + i, v)),
+      params,
+    ).state;
     expect(first.baseline).toBe(1000);
     const later = change + 100 * S;
-    const second = runRule(stepConductivity, first, [3000, 3000, 3000, 3000, 3000].map((v, i) => r(later + i, v)), { ...params, baselineFrom: later });
+    const second = runRule(
+      stepConductivity,
+      first,
+      [3000, 3000, 3000, 3000, 3000].map((v, i) => r(later + i, v)),
+      { ...params, baselineFrom: later },
+    );
     expect(second.state.baseline).toBe(3000);
     expect(second.events).toEqual([]);
   });

@@ -33,13 +33,20 @@ describe('limit rule: deadband', () => {
 
   it('clears once the value is back at limit - deadband', () => {
     const { events } = runRule(stepLimit, initialLimitState(), series([101, 99, 98.5, 98, 97], 1), high);
-    expect(events.map((e) => [e.kind, e.ts])).toEqual([['raise', 0], ['clear', 3 * S]]);
+    expect(events.map((e) => [e.kind, e.ts])).toEqual([
+      ['raise', 0],
+      ['clear', 3 * S],
+    ]);
   });
 
   it('low limit mirrors the high one', () => {
     const low: LimitRuleParams = { direction: 'low', limit: 30, deadband: 3 };
     const { events } = runRule(stepLimit, initialLimitState(), series([35, 29, 31, 32.9, 33, 28], 10), low);
-    expect(events.map((e) => [e.kind, e.ts, e.value])).toEqual([['raise', 10 * S, 29], ['clear', 40 * S, 33], ['raise', 50 * S, 28]]);
+    expect(events.map((e) => [e.kind, e.ts, e.value])).toEqual([
+      ['raise', 10 * S, 29],
+      ['clear', 40 * S, 33],
+      ['raise', 50 * S, 28],
+    ]);
   });
 });
 
@@ -47,20 +54,17 @@ describe('limit rule: on-delay and off-delay timings', () => {
   const p: LimitRuleParams = { ...high, onDelayS: 30, offDelayS: 20 };
 
   it('raises exactly on-delay after the condition began, by tick', () => {
-    const inputs = [
-      { ts: 0, value: 95, quality: 0 },
-      { ts: 10 * S, value: 101, quality: 0 },
-      { ts: 39 * S },
-      { ts: 40 * S },
-      { ts: 41 * S },
-    ];
+    const inputs = [{ ts: 0, value: 95, quality: 0 }, { ts: 10 * S, value: 101, quality: 0 }, { ts: 39 * S }, { ts: 40 * S }, { ts: 41 * S }];
     const { events } = runRule(stepLimit, initialLimitState(), inputs, p);
     expect(events).toHaveLength(1);
     expect(events[0]).toMatchObject({ kind: 'raise', ts: 40 * S, value: 101 });
   });
 
   it('the exact raise time does not depend on when the next input comes', () => {
-    const inputs = [{ ts: 10 * S, value: 101, quality: 0 }, { ts: 55 * S, value: 102, quality: 0 }];
+    const inputs = [
+      { ts: 10 * S, value: 101, quality: 0 },
+      { ts: 55 * S, value: 102, quality: 0 },
+    ];
     const { events } = runRule(stepLimit, initialLimitState(), inputs, p);
     expect(events.map((e) => [e.kind, e.ts])).toEqual([['raise', 40 * S]]);
   });
@@ -74,7 +78,10 @@ describe('limit rule: on-delay and off-delay timings', () => {
     // raise at 30 s (condition from 0 s); normal at 40 s; back into the band at 50 s; normal again 60 s; clear at 80 s.
     const inputs = [...series([101, 101, 101, 101, 97, 99, 97], 10), { ts: 79 * S }, { ts: 80 * S }];
     const { events } = runRule(stepLimit, initialLimitState(), inputs, p);
-    expect(events.map((e) => [e.kind, e.ts])).toEqual([['raise', 30 * S], ['clear', 80 * S]]);
+    expect(events.map((e) => [e.kind, e.ts])).toEqual([
+      ['raise', 30 * S],
+      ['clear', 80 * S],
+    ]);
   });
 
   it('bad-quality readings are ignored (neither start nor break a delay)', () => {
@@ -98,7 +105,10 @@ describe('limit rule: engine state gates', () => {
     expect(stopped.events).toEqual([]);
     const inputs = [...series([105], 10, 0, true), ...series([104], 10, 10 * S, false)];
     const { events } = runRule(stepLimit, initialLimitState(), inputs, p);
-    expect(events.map((e) => [e.kind, e.ts])).toEqual([['raise', 0], ['clear', 10 * S]]);
+    expect(events.map((e) => [e.kind, e.ts])).toEqual([
+      ['raise', 0],
+      ['clear', 10 * S],
+    ]);
     expect(events[1].message).toMatch(/engine not running/);
   });
 

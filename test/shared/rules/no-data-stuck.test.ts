@@ -6,7 +6,10 @@ describe('no-data rule', () => {
   const p: NoDataRuleParams = { factor: 5, minSilenceS: 30, label: 'Coolant temperature' };
 
   it('learns the usual interval as a median and raises after factor x interval of silence, exactly', () => {
-    const readings = series(Array.from({ length: 11 }, () => 80), 10); // 0..100 s every 10 s
+    const readings = series(
+      Array.from({ length: 11 }, () => 80),
+      10,
+    ); // 0..100 s every 10 s
     const { state, events } = runRule(stepNoData, initialNoDataState(), [...readings, { ts: 150 * S }, { ts: 151 * S }], p);
     expect(silenceLimitMs(state, p)).toBe(50 * S);
     expect(events).toHaveLength(1);
@@ -14,9 +17,15 @@ describe('no-data rule', () => {
   });
 
   it('clears on the next reading, and the outage is not learned as an interval', () => {
-    const readings = series(Array.from({ length: 11 }, () => 80), 10);
+    const readings = series(
+      Array.from({ length: 11 }, () => 80),
+      10,
+    );
     const { state, events } = runRule(stepNoData, initialNoDataState(), [...readings, { ts: 400 * S }, { ts: 700 * S, value: 80, quality: 0 }], p);
-    expect(events.map((e) => [e.kind, e.ts])).toEqual([['raise', 150 * S], ['clear', 700 * S]]);
+    expect(events.map((e) => [e.kind, e.ts])).toEqual([
+      ['raise', 150 * S],
+      ['clear', 700 * S],
+    ]);
     expect(state.intervalsMs.every((i) => i === 10 * S)).toBe(true);
     expect(state.active).toBe(false);
   });
@@ -82,7 +91,10 @@ describe('stuck rule', () => {
     // stopped at 40 °C (heater) for 5 min, then the engine starts and the reading stays at exactly 40
     const seq = [...rows(30, () => 40, false), ...rows(40, () => 40, true), ...rows(3, (i) => 45 + i, true)];
     const { events } = runRule(stepStuck, initialStuckState(), samples(seq), p);
-    expect(events.map((e) => [e.kind, e.ts])).toEqual([['raise', (300 + 300) * S], ['clear', 700 * S]]);
+    expect(events.map((e) => [e.kind, e.ts])).toEqual([
+      ['raise', (300 + 300) * S],
+      ['clear', 700 * S],
+    ]);
     expect(events[0].message).toMatch(/the engine started/);
   });
 
@@ -113,9 +125,25 @@ describe('stuck rule', () => {
   });
 
   it('learns the coarsest step every recent value lies on', () => {
-    const tenths = runRule(stepStuck, initialStuckState(), series(Array.from({ length: 20 }, (_, i) => 80 + i / 10), 10), p).state;
+    const tenths = runRule(
+      stepStuck,
+      initialStuckState(),
+      series(
+        Array.from({ length: 20 }, (_, i) => 80 + i / 10),
+        10,
+      ),
+      p,
+    ).state;
     expect(stuckResolution(tenths, p, 200 * S)).toBe(0.1);
-    const fine = runRule(stepStuck, initialStuckState(), series(Array.from({ length: 20 }, (_, i) => 80 + i * 0.013), 10), p).state;
+    const fine = runRule(
+      stepStuck,
+      initialStuckState(),
+      series(
+        Array.from({ length: 20 }, (_, i) => 80 + i * 0.013),
+        10,
+      ),
+      p,
+    ).state;
     expect(stuckResolution(fine, p, 200 * S)).toBe(0);
     expect(stuckResolution(fine, { ...p, resolution: 0.5 }, 200 * S)).toBe(0.5);
   });

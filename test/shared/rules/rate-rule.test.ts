@@ -11,12 +11,25 @@ describe('least-squares slope', () => {
   });
   it('needs two distinct times', () => {
     expect(leastSquaresSlope([{ ts: 1, value: 2 }])).toBeNull();
-    expect(leastSquaresSlope([{ ts: 1, value: 2 }, { ts: 1, value: 3 }])).toBeNull();
+    expect(
+      leastSquaresSlope([
+        { ts: 1, value: 2 },
+        { ts: 1, value: 3 },
+      ]),
+    ).toBeNull();
   });
 });
 
 describe('rate rule', () => {
-  const rising: RateRuleParams = { direction: 'rising', ratePerMin: 1.5, windowS: 60, onDelayS: 30, onlyWhenRunning: true, label: 'Coolant temperature', unit: '°C' };
+  const rising: RateRuleParams = {
+    direction: 'rising',
+    ratePerMin: 1.5,
+    windowS: 60,
+    onDelayS: 30,
+    onlyWhenRunning: true,
+    label: 'Coolant temperature',
+    unit: '°C',
+  };
 
   it('temperature rising at 2 °C/min while running raises after the on-delay', () => {
     // flat 80 °C for 2 min, then +2 °C/min (1/3 °C each 10 s)
@@ -39,7 +52,16 @@ describe('rate rule', () => {
   });
 
   it('pressure falling while stopped (a leak) raises, and clears when it steadies', () => {
-    const leak: RateRuleParams = { direction: 'falling', ratePerMin: 2, windowS: 120, onDelayS: 60, offDelayS: 60, onlyWhenStopped: true, label: 'Coolant pressure', unit: 'kPa' };
+    const leak: RateRuleParams = {
+      direction: 'falling',
+      ratePerMin: 2,
+      windowS: 120,
+      onDelayS: 60,
+      offDelayS: 60,
+      onlyWhenStopped: true,
+      label: 'Coolant pressure',
+      unit: 'kPa',
+    };
     const falling = Array.from({ length: 40 }, (_, i) => 90 - (i * 3) / 6); // -3 kPa/min, every 10 s
     const steady = Array.from({ length: 30 }, () => 70.5);
     const { events } = runRule(stepRate, initialRateState(), series([...falling, ...steady], 10, 0, false), leak);
@@ -52,7 +74,7 @@ describe('rate rule', () => {
 
   it('noise on a flat signal does not raise (window smooths it)', () => {
     let seed = 7;
-    const rnd = () => ((seed = (seed * 1103515245 + 12345) % 2147483648) / 2147483648 - 0.5);
+    const rnd = () => (seed = (seed * 1103515245 + 12345) % 2147483648) / 2147483648 - 0.5;
     const noisy = Array.from({ length: 60 }, () => 80 + rnd() * 0.6);
     expect(runRule(stepRate, initialRateState(), series(noisy, 10), rising).events).toEqual([]);
   });

@@ -11,7 +11,17 @@ import { DEFAULT_RULES } from '../../../server/services/alarms/rule-definitions'
 import { runRule, S, MIN } from './run-rule';
 
 const T0 = Date.UTC(2026, 0, 5, 2, 0, 0);
-const facts = (duty: EngineFacts['duty']): EngineFacts => ({ id: 1, glycolType: 'ethylene', glycolPercent: 50, baselineFrom: T0, baselineValue: null, duty, heaterSetpointC: 40, capPressureKpa: 100, elevationM: 0 });
+const facts = (duty: EngineFacts['duty']): EngineFacts => ({
+  id: 1,
+  glycolType: 'ethylene',
+  glycolPercent: 50,
+  baselineFrom: T0,
+  baselineValue: null,
+  duty,
+  heaterSetpointC: 40,
+  capPressureKpa: 100,
+  elevationM: 0,
+});
 
 /** Every 10 s for `minutes`: speed, coolant temperature from `temp(min)`. */
 function feed(ev: EngineEvaluator, minutes: number, temp: (min: number) => number, rpm = 0) {
@@ -22,7 +32,12 @@ function feed(ev: EngineEvaluator, minutes: number, temp: (min: number) => numbe
       { channel: 'engine_speed', ts, value: rpm, quality: 0 },
       { channel: 'coolant_temp', ts, value: temp(t / 60), quality: 0 },
     ];
-    hits.push(...ev.feed(batch).filter((h) => h.event.kind === 'raise').map((h) => ({ rule: h.def.key, at: (h.event.ts - T0) / MIN, message: h.event.message, priority: h.def.priority, firstStep: h.def.firstStep })));
+    hits.push(
+      ...ev
+        .feed(batch)
+        .filter((h) => h.event.kind === 'raise')
+        .map((h) => ({ rule: h.def.key, at: (h.event.ts - T0) / MIN, message: h.event.message, priority: h.def.priority, firstStep: h.def.firstStep })),
+    );
   }
   return hits;
 }
@@ -58,27 +73,58 @@ describe('heater not holding', () => {
     Array.from({ length: minutes * 6 + 1 }, (_, i) => ({ ts: t0 + i * 10 * S, value: temp(i / 6), quality: 0, running: false }));
 
   it('a steady fall below the setpoint (heater off: Newton cooling toward 15 °C, tau 85 min) raises once the window is full', () => {
-    const { events } = runRule(stepHeaterLoss, initialHeaterLossState(), stopped(60, (m) => 15 + 25 * Math.exp(-m / 85)), p);
+    const { events } = runRule(
+      stepHeaterLoss,
+      initialHeaterLossState(),
+      stopped(60, (m) => 15 + 25 * Math.exp(-m / 85)),
+      p,
+    );
     expect(events.map((e) => e.kind)).toEqual(['raise']);
     expect(events[0].ts).toBe(30 * MIN);
     expect(events[0].message).toMatch(/falling steadily.*below the heater setpoint of 40 °C/);
   });
 
   it('a heater holding at its setpoint, and a hot engine cooling down to it, raise nothing', () => {
-    expect(runRule(stepHeaterLoss, initialHeaterLossState(), stopped(120, (m) => 40 + 0.3 * Math.sin(m)), p).events).toEqual([]);
-    expect(runRule(stepHeaterLoss, initialHeaterLossState(), stopped(120, (m) => Math.max(40, 85 - m)), p).events).toEqual([]);
+    expect(
+      runRule(
+        stepHeaterLoss,
+        initialHeaterLossState(),
+        stopped(120, (m) => 40 + 0.3 * Math.sin(m)),
+        p,
+      ).events,
+    ).toEqual([]);
+    expect(
+      runRule(
+        stepHeaterLoss,
+        initialHeaterLossState(),
+        stopped(120, (m) => Math.max(40, 85 - m)),
+        p,
+      ).events,
+    ).toEqual([]);
   });
 
   it('clears when the heater brings the water back; no heater, no rule; running resets it', () => {
     const seq = [...stopped(40, (m) => 15 + 25 * Math.exp(-m / 85)), ...stopped(30, (m) => 31 + m / 2, 41 * MIN)];
     expect(runRule(stepHeaterLoss, initialHeaterLossState(), seq, p).events.map((e) => e.kind)).toEqual(['raise', 'clear']);
-    expect(runRule(stepHeaterLoss, initialHeaterLossState(), stopped(60, (m) => 40 - m / 5), { ...p, heaterSetpointC: null }).events).toEqual([]);
+    expect(
+      runRule(
+        stepHeaterLoss,
+        initialHeaterLossState(),
+        stopped(60, (m) => 40 - m / 5),
+        { ...p, heaterSetpointC: null },
+      ).events,
+    ).toEqual([]);
     const running = stopped(60, (m) => 40 - m / 5).map((r) => ({ ...r, running: true }));
     expect(runRule(stepHeaterLoss, initialHeaterLossState(), running, p).events).toEqual([]);
   });
 
   it('keeps about one point a minute', () => {
-    const { state } = runRule(stepHeaterLoss, initialHeaterLossState(), stopped(240, () => 40), p);
+    const { state } = runRule(
+      stepHeaterLoss,
+      initialHeaterLossState(),
+      stopped(240, () => 40),
+      p,
+    );
     expect(state.points.length).toBeLessThanOrEqual(32);
   });
 });

@@ -78,14 +78,18 @@ describe('default service plan and due list', () => {
 
   it('sorts overdue first, then due soon, then ok by date', () => {
     const plan = defaultServicePlan({ oilDrainIntervalH: 250, duty: 'standby' });
-    const list = dueList(plan, {
-      'oil-drain': { lastDoneAt: NOW - 200 * DAY, lastDoneRunHours: 900 },
-      'filter-change': { lastDoneAt: NOW - 200 * DAY, lastDoneRunHours: 900 },
-      'coolant-test': { lastDoneAt: NOW - 190 * DAY, lastDoneRunHours: 900 },
-      'drain-flush-refill': { lastDoneAt: NOW - 300 * DAY, lastDoneRunHours: 800 },
-      'weekly-inspection': { lastDoneAt: NOW - 6 * DAY, lastDoneRunHours: 940 },
-      // monthly-exercise: never recorded
-    }, { runHoursNow: 960, now: NOW });
+    const list = dueList(
+      plan,
+      {
+        'oil-drain': { lastDoneAt: NOW - 200 * DAY, lastDoneRunHours: 900 },
+        'filter-change': { lastDoneAt: NOW - 200 * DAY, lastDoneRunHours: 900 },
+        'coolant-test': { lastDoneAt: NOW - 190 * DAY, lastDoneRunHours: 900 },
+        'drain-flush-refill': { lastDoneAt: NOW - 300 * DAY, lastDoneRunHours: 800 },
+        'weekly-inspection': { lastDoneAt: NOW - 6 * DAY, lastDoneRunHours: 940 },
+        // monthly-exercise: never recorded
+      },
+      { runHoursNow: 960, now: NOW },
+    );
     expect(list.map((e) => [e.task.key, e.state])).toEqual([
       ['coolant-test', 'overdue'], // 190 days > 182
       ['monthly-exercise', 'overdue'],

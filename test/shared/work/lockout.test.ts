@@ -6,7 +6,11 @@
 import { lockoutFor, lockStepBefore } from '../../../shared/work/lockout';
 
 const steps = (done: Record<string, string | null>) =>
-  ['stop-and-lock-out', 'relieve-pressure', 'drain', 'flush-run', 'lock-out-again', 'flush-drain', 'refill', 'leak-run'].map((key, i) => ({ key, position: i + 1, doneAt: done[key] ?? null }));
+  ['stop-and-lock-out', 'relieve-pressure', 'drain', 'flush-run', 'lock-out-again', 'flush-drain', 'refill', 'leak-run'].map((key, i) => ({
+    key,
+    position: i + 1,
+    doneAt: done[key] ?? null,
+  }));
 const at = (min: number) => new Date(Date.UTC(2026, 11, 2, 10, min)).toISOString();
 
 describe('lockout carried to gated steps', () => {

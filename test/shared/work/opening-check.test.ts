@@ -9,12 +9,12 @@ const S = 1000;
 const NOW = Date.UTC(2026, 2, 10, 14, 0, 0);
 
 interface Scenario {
-  stoppedAgoS: number;            // engine stopped this long before NOW
+  stoppedAgoS: number; // engine stopped this long before NOW
   tempAt: (sinceStopS: number) => number;
   pressureAt: (sinceStopS: number) => number;
   everyS?: number;
-  lastAgoS?: number;              // age of the last reading (staleness)
-  historyS?: number;              // how far back readings go
+  lastAgoS?: number; // age of the last reading (staleness)
+  historyS?: number; // how far back readings go
 }
 
 function scenario(sc: Scenario): OpeningCheckInput['readings'] {
@@ -22,7 +22,9 @@ function scenario(sc: Scenario): OpeningCheckInput['readings'] {
   const lastAgo = sc.lastAgoS ?? 0;
   const start = NOW - (sc.historyS ?? sc.stoppedAgoS + 1800) * S;
   const stopTs = NOW - sc.stoppedAgoS * S;
-  const t: TimedValue[] = [], p: TimedValue[] = [], e: TimedValue[] = [];
+  const t: TimedValue[] = [],
+    p: TimedValue[] = [],
+    e: TimedValue[] = [];
   for (let ts = start; ts <= NOW - lastAgo * S; ts += every * S) {
     const since = (ts - stopTs) / 1000;
     const running = ts < stopTs;
@@ -34,7 +36,12 @@ function scenario(sc: Scenario): OpeningCheckInput['readings'] {
 }
 
 const cooled: Scenario = { stoppedAgoS: 3600, tempAt: (s) => coolingTemperature(88, 25, 1800, s), pressureAt: (s) => (s < 600 ? 95 * (1 - s / 600) : 0) };
-const base = (over: Partial<OpeningCheckInput> = {}): OpeningCheckInput => ({ readings: scenario(cooled), settings: { ambientC: 25 }, lockoutConfirmed: true, ...over });
+const base = (over: Partial<OpeningCheckInput> = {}): OpeningCheckInput => ({
+  readings: scenario(cooled),
+  settings: { ambientC: 25 },
+  lockoutConfirmed: true,
+  ...over,
+});
 const cond = (r: ReturnType<typeof openingCheck>, name: string) => r.conditions.find((c) => c.name === name)!;
 
 describe('opening check', () => {
@@ -44,7 +51,14 @@ describe('opening check', () => {
     expect(r.stale).toBe(false);
     expect(r.clearAt).toBe(NOW);
     expect(r.reasons).toEqual([]);
-    expect(r.conditions.map((c) => c.name)).toEqual(['engine-stopped', 'coolant-temperature', 'coolant-pressure', 'telemetry-fresh', 'lockout-confirmed', 'held']);
+    expect(r.conditions.map((c) => c.name)).toEqual([
+      'engine-stopped',
+      'coolant-temperature',
+      'coolant-pressure',
+      'telemetry-fresh',
+      'lockout-confirmed',
+      'held',
+    ]);
     expect(cond(r, 'coolant-temperature')).toMatchObject({ met: true, limit: 50, unit: '°C' });
     expect(cond(r, 'coolant-pressure')).toMatchObject({ met: true, value: 0, limit: 7, unit: 'kPa' });
   });
@@ -115,7 +129,7 @@ describe('opening check', () => {
     expect(r.stale).toBe(true);
     expect(r.clearAt).toBeNull();
     expect(cond(r, 'telemetry-fresh')).toMatchObject({ met: false, limit: 60, unit: 's' });
-    expect((cond(r, 'telemetry-fresh').value as number)).toBeGreaterThanOrEqual(90);
+    expect(cond(r, 'telemetry-fresh').value as number).toBeGreaterThanOrEqual(90);
   });
 
   it('a missing channel (no pressure at all) is stale, and bad-quality or future readings do not count', () => {
@@ -140,7 +154,16 @@ describe('opening check', () => {
     // 60 s later, with the readings continuing, it is clear.
     const later = NOW + 60 * S;
     const more = (l: TimedValue[], v: number) => [...l, ...[10, 20, 30, 40, 50, 60].map((d) => ({ ts: NOW + d * S, value: v }))];
-    const r2 = openingCheck(base({ readings: { coolant_temp: more(readings.coolant_temp, 49), coolant_pressure: more(readings.coolant_pressure, 0), engine_speed: more(readings.engine_speed, 0) } }), later);
+    const r2 = openingCheck(
+      base({
+        readings: {
+          coolant_temp: more(readings.coolant_temp, 49),
+          coolant_pressure: more(readings.coolant_pressure, 0),
+          engine_speed: more(readings.engine_speed, 0),
+        },
+      }),
+      later,
+    );
     expect(r2.clear).toBe(true);
   });
 
@@ -155,7 +178,10 @@ describe('opening check', () => {
 
 describe('opening check prediction from synthetic cooling data', () => {
   let seed = 99;
-  const noise = () => { seed = (seed * 1103515245 + 12345) % 2147483648; return (seed / 2147483648 - 0.5) * 0.4; }; // ±0.2 °C
+  const noise = () => {
+    seed = (seed * 1103515245 + 12345) % 2147483648;
+    return (seed / 2147483648 - 0.5) * 0.4;
+  }; // ±0.2 °C
 
   it('cooling toward ambient 25 °C with tau 1800 s: clear at stop + 1800 ln(60/25) s + hold', () => {
     const sc: Scenario = { stoppedAgoS: 1200, tempAt: (s) => coolingTemperature(85, 25, 1800, s) + noise(), pressureAt: () => 0 };
@@ -232,7 +258,7 @@ describe('opening check prediction from synthetic cooling data', () => {
     const sc: Scenario = { stoppedAgoS: 900, tempAt: () => 45, pressureAt: p };
     const r = openingCheck(base({ readings: scenario(sc), settings: { ambientC: 25, minStoppedS: 60 } }), NOW);
     // true crossing of 7 kPa: T = 40 + 7 / 1.778 °C, at 1800 ln(75 / (T - 25)) s after the stop
-    const trueCross = NOW - 900 * S + 1800 * Math.log(75 / (40 + 7 * 45 / 80 - 25)) * S + 120 * S;
+    const trueCross = NOW - 900 * S + 1800 * Math.log(75 / (40 + (7 * 45) / 80 - 25)) * S + 120 * S;
     expect(r.clearAt!).toBeGreaterThanOrEqual(trueCross);
     // late (the exponential toward 0 kPa falls slower near zero than this pressure does), but less than twice the wait
     expect(r.clearAt! - trueCross).toBeLessThan(trueCross - NOW);

@@ -10,14 +10,35 @@ import { Outbox } from './outbox.service';
   imports: [MatIconModule, RouterLink],
   template: `
     @if (first(); as f) {
-      <a class="chip" [class.conflict]="conflicts()" [routerLink]="['/work', f.orderId]" data-test="outbox-indicator"
-         [attr.aria-label]="label()"><mat-icon aria-hidden="true" [fontIcon]="conflicts() ? 'report' : 'schedule_send'" /><span class="jw-num">{{ waiting() + conflicts() }}</span><span class="word">&nbsp;{{ conflicts() ? 'not accepted' : 'to send' }}</span></a>
+      <a class="chip" [class.conflict]="conflicts()" [routerLink]="['/work', f.orderId]" data-test="outbox-indicator" [attr.aria-label]="label()"
+        ><mat-icon aria-hidden="true" [fontIcon]="conflicts() ? 'report' : 'schedule_send'" /><span class="jw-num">{{ waiting() + conflicts() }}</span
+        ><span class="word">&nbsp;{{ conflicts() ? 'not accepted' : 'to send' }}</span></a
+      >
     }
   `,
   styles: `
-    .chip { display: inline-flex; align-items: center; gap: 4px; padding: 2px 10px; margin-right: 8px; border: 1px dashed currentColor; border-radius: 16px; color: inherit; text-decoration: none; font-size: 14px; }
-    .chip.conflict { border-style: solid; color: var(--jw-warning); background: var(--jw-warning-bg); }
-    @media (max-width: 599.98px) { .word { display: none; } }
+    .chip {
+      display: inline-flex;
+      align-items: center;
+      gap: 4px;
+      padding: 2px 10px;
+      margin-right: 8px;
+      border: 1px dashed currentColor;
+      border-radius: 16px;
+      color: inherit;
+      text-decoration: none;
+      font-size: 14px;
+    }
+    .chip.conflict {
+      border-style: solid;
+      color: var(--jw-warning);
+      background: var(--jw-warning-bg);
+    }
+    @media (max-width: 599.98px) {
+      .word {
+        display: none;
+      }
+    }
   `,
 })
 export class OutboxIndicator {

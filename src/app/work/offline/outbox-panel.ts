@@ -22,28 +22,49 @@ const UNIT_EXTRA: Record<string, string> = { degF: '°F', psi: 'psi', bar: 'bar'
       <section class="outbox" aria-label="Kept on this device" data-test="outbox">
         <h2>Kept on this device</h2>
         <p class="summary" role="status" data-test="outbox-summary">
-          @if (!net.online()) { <mat-icon fontIcon="cloud_off" aria-hidden="true" />No network. }
+          @if (!net.online()) {
+            <mat-icon fontIcon="cloud_off" aria-hidden="true" />No network.
+          }
           {{ waiting().length }} waiting to be sent · {{ sent().length }} sent · {{ conflicts().length }} not accepted
-          @if (outbox.sending()) { · sending… }
-          @else if (waiting().length && net.online() && outbox.retryReason(); as why) { · will try again ({{ why }}) }
+          @if (outbox.sending()) {
+            · sending…
+          } @else if (waiting().length && net.online() && outbox.retryReason(); as why) {
+            · will try again ({{ why }})
+          }
         </p>
         <ol class="list">
           @for (e of entries(); track e.seq) {
             <li [attr.data-state]="e.state" [attr.data-test]="'outbox-' + e.state">
               <span class="state">
                 @switch (e.state) {
-                  @case ('waiting') { <mat-icon fontIcon="schedule_send" aria-hidden="true" />Waiting to be sent }
-                  @case ('sent') { <mat-icon fontIcon="cloud_done" aria-hidden="true" />Sent {{ time(e.sentAt) }} }
-                  @case ('conflict') { <mat-icon fontIcon="report" aria-hidden="true" />NOT ACCEPTED }
+                  @case ('waiting') {
+                    <mat-icon fontIcon="schedule_send" aria-hidden="true" />Waiting to be sent
+                  }
+                  @case ('sent') {
+                    <mat-icon fontIcon="cloud_done" aria-hidden="true" />Sent {{ time(e.sentAt) }}
+                  }
+                  @case ('conflict') {
+                    <mat-icon fontIcon="report" aria-hidden="true" />NOT ACCEPTED
+                  }
                 }
               </span>
               <div class="body">
-                <span class="what"><strong>{{ kindText[e.kind] }}</strong>{{ e.stepTitle ? ': ' + e.stepTitle : '' }}</span>
-                @if (detail(e); as d) { <span class="detail">{{ d }}</span> }
-                @if (e.file && thumbs().get(e.seq!); as url) { <img class="thumb" [src]="url" [alt]="'Photo ' + (e.fileName ?? '')" /> }
+                <span class="what"
+                  ><strong>{{ kindText[e.kind] }}</strong
+                  >{{ e.stepTitle ? ': ' + e.stepTitle : '' }}</span
+                >
+                @if (detail(e); as d) {
+                  <span class="detail">{{ d }}</span>
+                }
+                @if (e.file && thumbs().get(e.seq!); as url) {
+                  <img class="thumb" [src]="url" [alt]="'Photo ' + (e.fileName ?? '')" />
+                }
                 <span class="when">recorded {{ time(e.recordedAt) }}</span>
                 @if (e.state === 'conflict') {
-                  <p class="conflict" role="alert">The server refused it: {{ e.message }}. Nothing is lost: what you recorded is shown here. Tell the planner, or send it again once the order is yours and in progress.</p>
+                  <p class="conflict" role="alert">
+                    The server refused it: {{ e.message }}. Nothing is lost: what you recorded is shown here. Tell the planner, or send it again once the order
+                    is yours and in progress.
+                  </p>
                   <span class="actions">
                     <button mat-stroked-button type="button" (click)="outbox.retry(e.seq!)"><mat-icon fontIcon="send" />Send again</button>
                     <button mat-button type="button" (click)="dismiss(e)"><mat-icon fontIcon="delete" />Remove from this device</button>
@@ -57,22 +78,86 @@ const UNIT_EXTRA: Record<string, string> = { degF: '°F', psi: 'psi', bar: 'bar'
     }
   `,
   styles: `
-    .outbox { margin: 16px 0; padding: 12px 16px; border: 1px solid var(--mat-sys-outline-variant); border-radius: 8px; }
-    h2 { margin: 0 0 4px; font-size: 18px; }
-    .summary { display: flex; align-items: center; gap: 6px; margin: 0 0 8px; }
-    .list { list-style: none; margin: 0; padding: 0; display: grid; gap: 6px; }
-    li { display: grid; grid-template-columns: 200px 1fr; align-items: start; gap: 4px 12px; padding: 6px 8px; border-left: 4px solid var(--jw-band-normal); }
-    .body { display: flex; flex-direction: column; align-items: flex-start; gap: 2px; min-width: 0; }
-    @media (max-width: 599.98px) { li { grid-template-columns: 1fr; } }
-    li[data-state='waiting'] { border-left-style: dashed; }
-    li[data-state='conflict'] { border-left-color: var(--jw-warning); background: var(--jw-warning-bg); }
-    .state { display: inline-flex; align-items: center; gap: 4px; font-weight: 500; }
-    li[data-state='conflict'] .state { color: var(--jw-warning); }
-    .detail, .when { color: var(--jw-muted-text); }
-    .thumb { width: 48px; height: 48px; object-fit: cover; border-radius: 4px; }
-    .conflict { margin: 4px 0; }
-    .actions { display: flex; gap: 8px; flex-wrap: wrap; }
-    mat-icon { flex: none; }
+    .outbox {
+      margin: 16px 0;
+      padding: 12px 16px;
+      border: 1px solid var(--mat-sys-outline-variant);
+      border-radius: 8px;
+    }
+    h2 {
+      margin: 0 0 4px;
+      font-size: 18px;
+    }
+    .summary {
+      display: flex;
+      align-items: center;
+      gap: 6px;
+      margin: 0 0 8px;
+    }
+    .list {
+      list-style: none;
+      margin: 0;
+      padding: 0;
+      display: grid;
+      gap: 6px;
+    }
+    li {
+      display: grid;
+      grid-template-columns: 200px 1fr;
+      align-items: start;
+      gap: 4px 12px;
+      padding: 6px 8px;
+      border-left: 4px solid var(--jw-band-normal);
+    }
+    .body {
+      display: flex;
+      flex-direction: column;
+      align-items: flex-start;
+      gap: 2px;
+      min-width: 0;
+    }
+    @media (max-width: 599.98px) {
+      li {
+        grid-template-columns: 1fr;
+      }
+    }
+    li[data-state='waiting'] {
+      border-left-style: dashed;
+    }
+    li[data-state='conflict'] {
+      border-left-color: var(--jw-warning);
+      background: var(--jw-warning-bg);
+    }
+    .state {
+      display: inline-flex;
+      align-items: center;
+      gap: 4px;
+      font-weight: 500;
+    }
+    li[data-state='conflict'] .state {
+      color: var(--jw-warning);
+    }
+    .detail,
+    .when {
+      color: var(--jw-muted-text);
+    }
+    .thumb {
+      width: 48px;
+      height: 48px;
+      object-fit: cover;
+      border-radius: 4px;
+    }
+    .conflict {
+      margin: 4px 0;
+    }
+    .actions {
+      display: flex;
+      gap: 8px;
+      flex-wrap: wrap;
+    }
+    mat-icon {
+      flex: none;
+    }
   `,
 })
 export class OutboxPanel {
@@ -116,7 +201,12 @@ export class OutboxPanel {
   }
 
   protected detail(e: OutboxEntry): string {
-    const b = (e.body ?? {}) as { value?: number | null; unit?: string; note?: string; manualCheck?: { gaugeKpa: number; tempC: number; minutesSinceStop: number; checkedBy: string; reason: string } };
+    const b = (e.body ?? {}) as {
+      value?: number | null;
+      unit?: string;
+      note?: string;
+      manualCheck?: { gaugeKpa: number; tempC: number; minutesSinceStop: number; checkedBy: string; reason: string };
+    };
     const parts: string[] = [];
     if (b.value !== undefined && b.value !== null) parts.push(`${b.value} ${UNIT_EXTRA[b.unit ?? ''] ?? STEP_UNIT_TEXT[b.unit ?? ''] ?? b.unit ?? ''}`.trim());
     if (b.note) parts.push(`“${b.note}”`);
@@ -129,6 +219,7 @@ export class OutboxPanel {
   }
 
   protected dismiss(e: OutboxEntry): void {
-    if (confirm(`Remove this ${KIND_TEXT[e.kind].toLowerCase()} from the device? It was not accepted by the server and is kept nowhere else.`)) void this.outbox.dismiss(e.seq!);
+    if (confirm(`Remove this ${KIND_TEXT[e.kind].toLowerCase()} from the device? It was not accepted by the server and is kept nowhere else.`))
+      void this.outbox.dismiss(e.seq!);
   }
 }

@@ -78,13 +78,26 @@ export class Outbox {
   async record(input: RecordInput): Promise<void> {
     const userId = this.auth.user()?.id;
     if (!userId) throw new Error('Sign in first.');
-    const pendingDraft = input.kind === 'draft' ? this.waiting().find((e) => e.kind === 'draft' && e.orderId === input.orderId && e.stepId === input.stepId) : undefined;
+    const pendingDraft =
+      input.kind === 'draft' ? this.waiting().find((e) => e.kind === 'draft' && e.orderId === input.orderId && e.stepId === input.stepId) : undefined;
     if (pendingDraft) {
       await this.store.put({ ...pendingDraft, body: { ...(pendingDraft.body ?? {}), ...(input.body ?? {}) }, recordedAt: Date.now() });
     } else {
       await this.store.add({
-        key: newKey(input.kind), userId, orderId: input.orderId, orderTitle: input.orderTitle, stepId: input.stepId, stepTitle: input.stepTitle, kind: input.kind,
-        body: input.body ?? null, file: input.file ?? null, fileName: input.fileName ?? null, recordedAt: Date.now(), state: 'waiting', sentAt: null, message: null,
+        key: newKey(input.kind),
+        userId,
+        orderId: input.orderId,
+        orderTitle: input.orderTitle,
+        stepId: input.stepId,
+        stepTitle: input.stepTitle,
+        kind: input.kind,
+        body: input.body ?? null,
+        file: input.file ?? null,
+        fileName: input.fileName ?? null,
+        recordedAt: Date.now(),
+        state: 'waiting',
+        sentAt: null,
+        message: null,
       });
     }
     await this.load(userId);
