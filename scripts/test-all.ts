@@ -15,6 +15,7 @@ const PARTS: Part[] = [
   // first and fast: a lint error or an import cycle fails the run before the long parts
   { name: 'lint (ESLint, no warnings)', script: 'lint' },
   { name: 'import cycles (madge)', script: 'lint:cycles' },
+  { name: 'formatting (Prettier check)', script: 'format:check' },
   { name: 'unit and server (jest)', script: 'test:unit' },
   { name: 'server on PostgreSQL (jest, throwaway cluster)', script: 'test:unit:pg' },
   { name: 'several servers (two processes, PostgreSQL, mosquitto)', script: 'test:scale' },

@@ -32,16 +32,14 @@ describe('SiteDialog: lowest expected temperature in the user unit', () => {
     fixture = TestBed.createComponent(SiteDialog);
     el = fixture.nativeElement as HTMLElement;
     fixture.detectChanges();
-    http
-      .expectOne('/api/coolant-limits')
-      .flush({
-        limits: { ...DEFAULT_CHEMISTRY_LIMITS },
-        defaults: { ...DEFAULT_CHEMISTRY_LIMITS },
-        extender: null,
-        extenderDefault: { everyHours: 6000, everyDays: 1095 },
-        configured: false,
-        updatedAt: null,
-      });
+    http.expectOne('/api/coolant-limits').flush({
+      limits: { ...DEFAULT_CHEMISTRY_LIMITS },
+      defaults: { ...DEFAULT_CHEMISTRY_LIMITS },
+      extender: null,
+      extenderDefault: { everyHours: 6000, everyDays: 1095 },
+      configured: false,
+      updatedAt: null,
+    });
     fixture.detectChanges();
   }
   const input = () => el.querySelector<HTMLInputElement>('input[formcontrolname="designLow"]')!;

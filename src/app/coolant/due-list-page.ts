@@ -78,8 +78,7 @@ import { RunHoursDialog, type RunHoursDialogData } from './run-hours-dialog';
                         }}
                       </td>
                       <td class="engine">
-                        <a [routerLink]="['/engines', e.engineId]">{{ e.engineName }}</a
-                        ><br /><span class="sub">{{ e.runHours.toFixed(1) }} h</span>
+                        <a [routerLink]="['/engines', e.engineId]">{{ e.engineName }}</a><br /><span class="sub">{{ e.runHours.toFixed(1) }} h</span>
                         @if (canCorrect()) {
                           <button mat-button type="button" class="hours" (click)="correctHours(e)" [attr.aria-label]="'Correct hours of ' + e.engineName">
                             Correct hours
