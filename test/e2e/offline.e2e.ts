@@ -84,7 +84,8 @@ describe('the technician app without a network (service worker, IndexedDB outbox
 
   const tid = (id: string): Locator => page.locator(`[data-test="${id}"]`);
   const stepItem = (key: string): Locator =>
-    page.locator('li.step').filter({ has: page.getByText(order.steps.find((s) => s.key === key)!.title, { exact: false }) });
+    // by position: a step's title also appears in a later step that waits for it
+    page.locator('li.step').nth(order.steps.findIndex((s) => s.key === key));
   const serverOrder = async (): Promise<Order> => {
     const r = await stack.api<Order>('GET', `/api/work-orders/${order.id}`, techToken);
     assert.equal(r.status, 200);
@@ -325,6 +326,35 @@ describe('the technician app without a network (service worker, IndexedDB outbox
       assert.equal(await tid('update-prompt').count(), 0);
     } finally {
       fs.writeFileSync(file, original);
+    }
+  });
+  it('signing out empties the cached API data: offline after sign-out, a reload shows the sign-in page, not the work', async () => {
+    // entries the service worker keeps of the API (its data groups)
+    const cachedApiEntries = () =>
+      page.evaluate(async () => {
+        let n = 0;
+        for (const name of await caches.keys()) if (/:data:[^:]+:cache$/.test(name)) n += (await (await caches.open(name)).keys()).length;
+        return n;
+      });
+    await page.getByRole('heading', { name: `#${order.id} Filter change in the basement` }).waitFor();
+    assert.ok((await cachedApiEntries()) > 0, 'the worker keeps the technician’s data while signed in');
+    await page.getByRole('button', { name: /, user menu$/ }).click();
+    await page.getByRole('button', { name: 'Sign out' }).click();
+    await page.waitForURL((url) => url.pathname.startsWith('/sign-in'));
+    await page.waitForFunction(async () => {
+      let n = 0;
+      for (const name of await caches.keys()) if (/:data:[^:]+:cache$/.test(name)) n += (await (await caches.open(name)).keys()).length;
+      return n === 0;
+    });
+    await ctx.setOffline(true);
+    try {
+      await page.goto(`${stack.baseUrl}/work/${order.id}`);
+      await page.waitForURL((url) => url.pathname.startsWith('/sign-in'));
+      await page.getByRole('button', { name: 'Sign in' }).waitFor();
+      assert.equal(await page.getByText('Filter change in the basement').count(), 0, 'no trace of the work after sign-out');
+      await shot(page, 'offline-06-signed-out-offline');
+    } finally {
+      await ctx.setOffline(false);
     }
   });
 });

@@ -2,6 +2,7 @@ import { HttpBackend, HttpClient, HttpErrorResponse } from '@angular/common/http
 import { Injectable, computed, inject, signal, untracked } from '@angular/core';
 import { Router } from '@angular/router';
 import { firstValueFrom } from 'rxjs';
+import { clearCachedApiData } from './cached-api-data';
 import { CSRF_HEADERS, SignInResponse, Role, User } from './user';
 
 /** Why a sign-in attempt failed, in words the sign-in page shows as they are. */
@@ -83,6 +84,8 @@ export class AuthService {
   signOut(notice: string | null = null, returnUrl: string | null = null): void {
     // the server clears the cookie; the page cannot (httpOnly)
     this.rawHttp.post('/api/auth/logout', {}, { headers: CSRF_HEADERS }).subscribe({ error: () => undefined });
+    // nothing of this user's data stays in the browser's cache (never fails the sign-out)
+    clearCachedApiData().catch(() => undefined);
     this.userSignal.set(null);
     this.noticeSignal.set(notice);
     void this.router.navigate(['/sign-in'], returnUrl ? { queryParams: { returnUrl } } : {});
