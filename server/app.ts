@@ -34,7 +34,9 @@ function requestLog(ctx: AppContext) {
       res.setHeader('X-Request-Id', id);
       return id;
     },
-    customProps: (req) => ({ userId: req.user?.id ?? null }),
+    // on the finished line only: pino-http asks customProps at the start too (no user yet), which wrote "userId" twice
+    customSuccessObject: (req, _res, line: object) => ({ ...line, userId: req.user?.id ?? null }),
+    customErrorObject: (req, _res, _err, line: object) => ({ ...line, userId: req.user?.id ?? null }),
     customLogLevel: (_req, res, err) => (err || res.statusCode >= 500 ? 'error' : res.statusCode >= 400 ? 'warn' : 'info'),
     serializers: {
       req: (req: { id: unknown; method: string; url: string }) => ({ id: req.id, method: req.method, path: req.url.split('?')[0] }),

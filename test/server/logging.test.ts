@@ -16,18 +16,23 @@ afterAll(async () => {
 /** A real pino logger writing JSON lines into an array. */
 function capture(level = 'info') {
   const lines: Record<string, unknown>[] = [];
+  /** The lines as written (JSON.parse keeps only the last of a repeated key). */
+  const raw: string[] = [];
   const stream = new Writable({
     write(chunk, _enc, done) {
-      for (const l of String(chunk).split('\n').filter(Boolean)) lines.push(JSON.parse(l));
+      for (const l of String(chunk).split('\n').filter(Boolean)) {
+        raw.push(l);
+        lines.push(JSON.parse(l));
+      }
       done();
     },
   });
-  return { log: wrapPino(pino({ level }, stream)), lines };
+  return { log: wrapPino(pino({ level }, stream)), lines, raw };
 }
 
 describe('request log (pino-http)', () => {
   it('writes one JSON line per request with its id, the user id, status and duration', async () => {
-    const { log, lines } = capture();
+    const { log, lines, raw } = capture();
     const app = createApp({ ...t.ctx, log }, { staticDir: '/nonexistent' });
     const res = await request(app).get('/api/auth/me?token=secret').set(auth(t.tokens.planner)).expect(200);
     const id = res.headers['x-request-id'];
@@ -36,6 +41,8 @@ describe('request log (pino-http)', () => {
     expect(line).toBeDefined();
     expect(line).toMatchObject({ userId: t.userIds.planner, level: 30, req: { method: 'GET', path: '/api/auth/me' }, res: { statusCode: 200 } });
     expect(typeof line!.responseTime).toBe('number');
+    const written = raw.find((l) => l.includes(id))!;
+    expect(written.match(/"userId"/g)).toHaveLength(1); // once, with the user's id
     expect(JSON.stringify(line)).not.toContain('secret');
     expect(JSON.stringify(line)).not.toContain('authorization');
   });
