@@ -32,6 +32,9 @@ export class LiveService {
   readonly lostSince = this.lostSinceSignal.asReadonly();
   /** Every `alarm` message (an alarm changed); they come to a watch with `alarms: true`. */
   readonly alarms$: Observable<LiveAlarmMessage> = this.alarmSubject.asObservable().pipe(share());
+  private readonly scopeSubject = new Subject<void>();
+  /** The server re-scoped this user's live rooms (an administrator changed their sites): lists should be asked again. */
+  readonly scopeChanged$: Observable<void> = this.scopeSubject.asObservable().pipe(share());
 
   constructor() {
     effect(() => {
@@ -125,6 +128,7 @@ export class LiveService {
     socket.on('readings', (msg: LiveReadings) => {
       if (msg && typeof msg.engineId === 'number' && msg.values) this.readingsSubject.next(msg);
     });
+    socket.on('rooms', () => this.scopeSubject.next());
     socket.on('alarm', (msg: LiveAlarmMessage) => {
       if (msg && typeof msg.id === 'number' && typeof msg.engineId === 'number') this.alarmSubject.next(msg);
     });

@@ -52,10 +52,13 @@ export class FleetService {
   followFleet(destroyRef: DestroyRef): void {
     const unwatch = this.live.watch({ fleet: true });
     const sub = this.live.readings$.subscribe((r) => this.queue(r));
+    // the user's sites changed: the engine list is theirs to see anew (the live rooms already are)
+    const scope = this.live.scopeChanged$.subscribe(() => void this.load());
     const readiness = setInterval(() => void this.refreshReadiness(), READINESS_EVERY_MS);
     destroyRef.onDestroy(() => {
       unwatch();
       sub.unsubscribe();
+      scope.unsubscribe();
       clearInterval(readiness);
     });
   }
