@@ -26,6 +26,8 @@ export class WorkOrder extends Model<InferAttributes<WorkOrder>, InferCreationAt
   declare closedAt: CreationOptional<Date | null>;
   /** The coolant test recorded from this order (once per order). */
   declare coolantTestId: CreationOptional<number | null>;
+  /** The service-plan task this order was created for (due list), if any: completing it records that task done. */
+  declare serviceTaskKey: CreationOptional<string | null>;
   declare createdAt: CreationOptional<Date>;
   declare updatedAt: CreationOptional<Date>;
 }
@@ -52,6 +54,7 @@ export function initWorkOrder(sequelize: Sequelize): typeof WorkOrder {
       signedOffAt: date(),
       closedAt: date(),
       coolantTestId: { type: DataTypes.INTEGER, allowNull: true },
+      serviceTaskKey: { type: DataTypes.STRING(64), allowNull: true },
       createdAt: DataTypes.DATE,
       updatedAt: DataTypes.DATE,
     },

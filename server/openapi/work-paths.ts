@@ -83,6 +83,11 @@ export const workPaths: OpenApiGroup = {
             priority,
             dueDate: { type: 'string', format: 'date' },
             assigneeId: { type: 'integer' },
+            serviceTaskKey: {
+              type: 'string',
+              maxLength: 64,
+              description: "the engine's service-plan task this order is for (the due list sends it); completing the order records that task done",
+            },
           },
         }),
         responses: { '201': json(ref('WorkOrderDetail')), ...errors({ input: true, admin: true }) },

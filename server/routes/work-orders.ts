@@ -47,6 +47,8 @@ const createBody = z.strictObject({
   priority: z.enum(WORK_PRIORITIES).optional(),
   dueDate: dateOnly.nullable().optional(),
   assigneeId: z.number().int().positive().nullable().optional(),
+  /** The service-plan task the order is for (the due list sends it); completing the order records it done. */
+  serviceTaskKey: z.string().trim().min(1).max(64).optional(),
 });
 const planBody = z.strictObject({
   title: z.string().trim().min(1).max(200).optional(),

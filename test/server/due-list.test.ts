@@ -208,3 +208,51 @@ describe('run-hours counter', () => {
     expect(c.pendingHours(prime)).toBe(0);
   });
 });
+
+describe('a task the engine plan added, done as a general repair from the due list', () => {
+  type Step = { id: number; key: string; optional: boolean; input: string };
+  it('the order carries the task; completing it records the task done, so the due list shows it done and not due', async () => {
+    await request(t.app)
+      .put(`/api/engines/${daysFirst}/service-plan/louvre-check`)
+      .set(auth(t.tokens.planner))
+      .send({ title: 'Radiator louvre check', everyDays: 90 })
+      .expect(200);
+    const dueRow = async () => {
+      const res = await request(t.app).get('/api/due-list?include=all&windowDays=14').set(auth(t.tokens.planner)).expect(200);
+      return (res.body.sites as Array<{ entries: Array<Record<string, unknown>> }>)
+        .flatMap((s) => s.entries)
+        .find((e) => e.engineId === daysFirst && e.taskKey === 'louvre-check')!;
+    };
+    const before = await dueRow();
+    expect(before).toMatchObject({ state: 'overdue', workKind: 'general-repair', lastDoneAt: null, openWorkOrderId: null });
+
+    // bad links are refused, naming the field
+    const bad = (body: object) =>
+      request(t.app)
+        .post('/api/work-orders')
+        .set(auth(t.tokens.planner))
+        .send({ engineId: daysFirst, assigneeId: t.userIds.technician, ...body });
+    expect((await bad({ kind: 'general-repair', serviceTaskKey: 'no-such-task' }).expect(400)).body.field).toBe('serviceTaskKey');
+    expect((await bad({ kind: 'leak-check', serviceTaskKey: 'louvre-check' }).expect(400)).body.field).toBe('kind');
+    // an unrelated general repair on the same engine is not taken for the task's open order
+    await bad({ kind: 'general-repair', title: 'Loose cable tie' }).expect(201);
+    expect((await dueRow()).openWorkOrderId).toBeNull();
+
+    const created = await bad({ kind: 'general-repair', serviceTaskKey: 'louvre-check', title: 'Radiator louvre check: B quiet set' }).expect(201);
+    expect(created.body.serviceTaskKey).toBe('louvre-check');
+    expect((await dueRow()).openWorkOrderId).toBe(created.body.id);
+
+    const base = `/api/work-orders/${created.body.id}`;
+    await request(t.app).post(`${base}/transition`).set(auth(t.tokens.technician)).send({ to: 'in-progress' }).expect(200);
+    for (const s of created.body.steps as Step[]) {
+      if (s.optional) continue;
+      await request(t.app).post(`${base}/steps/${s.id}/complete`).set(auth(t.tokens.technician)).send({ note: 'louvres free, linkage greased' }).expect(200);
+    }
+    await request(t.app).post(`${base}/transition`).set(auth(t.tokens.technician)).send({ to: 'waiting-sign-off' }).expect(200);
+    const event = await t.ctx.models.ServiceEvent.findOne({ where: { engineId: daysFirst, taskKey: 'louvre-check' } });
+    expect(event?.workOrderId).toBe(created.body.id);
+    const after = await dueRow();
+    expect(after).toMatchObject({ state: 'ok', openWorkOrderId: created.body.id });
+    expect(after.lastDoneAt).not.toBeNull();
+  });
+});

@@ -202,10 +202,13 @@ export async function computeDueList(models: Models, q: DueListQuery): Promise<{
   );
   const open = await models.WorkOrder.findAll({
     where: { engineId: engines.map((e) => e.id), status: { [Op.notIn]: OPEN_STATUSES_EXCLUDED } },
-    attributes: ['id', 'engineId', 'kind'],
+    attributes: ['id', 'engineId', 'kind', 'serviceTaskKey'],
     order: [['id', 'ASC']],
   });
-  const openBy = new Map(open.map((w) => [`${w.engineId}:${w.kind}`, w.id]));
+  // an open order for a task: the one created for it, or (for a task with its own template) one of its kind;
+  // a general repair counts only for the task it was created for
+  const openByTask = new Map(open.filter((w) => w.serviceTaskKey).map((w) => [`${w.engineId}:${w.serviceTaskKey}`, w.id]));
+  const openBy = new Map(open.filter((w) => w.kind !== 'general-repair').map((w) => [`${w.engineId}:${w.kind}`, w.id]));
 
   const out = new Map<number, DueSiteView>();
   for (const engine of engines) {
@@ -241,7 +244,7 @@ export async function computeDueList(models: Models, q: DueListQuery): Promise<{
         placeholder: !!t.placeholder,
         basis: t.basis,
         workKind: t.workKind,
-        openWorkOrderId: t.workKind ? (openBy.get(`${engine.id}:${t.workKind}`) ?? null) : null,
+        openWorkOrderId: openByTask.get(`${engine.id}:${t.key}`) ?? openBy.get(`${engine.id}:${t.workKind}`) ?? null,
       });
     }
   }

@@ -6,6 +6,7 @@ import type { AuthUser } from '../../telemetry/types';
 import { formatValue } from '../alarms/value-format';
 import { DEFAULT_RULES } from '../alarms/rule-definitions';
 import { coolantTestView } from '../coolant/coolant-tests';
+import { servicePlan } from '../coolant/service-plan';
 import { workTemplate, type WorkKind } from '../work-templates';
 import { pushWorkOrder } from './notify';
 import type { ReadingHistory } from './reading-history';
@@ -21,6 +22,8 @@ export interface CreateInput {
   priority?: WorkPriority;
   dueDate?: string | null;
   assigneeId?: number | null;
+  /** The service-plan task this order is for (from the due list); completing the order records the task done. */
+  serviceTaskKey?: string;
 }
 
 export interface PlanInput {
@@ -128,6 +131,11 @@ export class WorkOrderService {
     // operators (and technicians who find something) raise a request; planning fields are the planner's
     if (!planner && (input.assigneeId || input.dueDate)) throw new HttpError(403, 'only a planner assigns and schedules; raise the request without them');
     await this.checkAssignee(input.assigneeId);
+    if (input.serviceTaskKey !== undefined) {
+      const task = (await servicePlan(this.models, engine)).find((t) => t.key === input.serviceTaskKey);
+      if (!task) throw badRequest("serviceTaskKey: not a task of this engine's service plan", 'serviceTaskKey');
+      if (task.workKind !== input.kind) throw badRequest(`kind: the task "${task.title}" is done as a ${task.workKind} work order`, 'kind');
+    }
 
     let description = input.description?.trim() || null;
     let priority: WorkPriority = input.priority ?? 'medium';
@@ -159,6 +167,7 @@ export class WorkOrderService {
           status,
           createdBy: user.id,
           requestedBy: planner ? null : user.id,
+          serviceTaskKey: input.serviceTaskKey ?? null,
         },
         { transaction },
       );
@@ -266,9 +275,11 @@ export class WorkOrderService {
     if (!template) return;
     const engine = await this.models.Engine.findByPk(order.engineId, { transaction });
     const now = new Date();
-    if (template.serviceTask) {
+    // the task the order was created for (a plan task with no template of its own is done as a general repair), else the kind's own
+    const taskKey = order.serviceTaskKey ?? template.serviceTask;
+    if (taskKey) {
       await this.models.ServiceEvent.create(
-        { engineId: order.engineId, taskKey: template.serviceTask, doneAt: now, runHours: engine?.runHours ?? null, workOrderId: order.id },
+        { engineId: order.engineId, taskKey, doneAt: now, runHours: engine?.runHours ?? null, workOrderId: order.id },
         { transaction },
       );
     }
@@ -392,6 +403,7 @@ export class WorkOrderService {
     return {
       ...summary,
       coolantTestId: order.coolantTestId ?? null,
+      serviceTaskKey: order.serviceTaskKey ?? null,
       coolantTest,
       cautions: template?.cautions ?? [],
       steps: steps.map((s) => ({

@@ -295,6 +295,7 @@ export class DueListPage {
       engineId: e.engineId,
       engineName: e.engineName,
       kind: e.workKind ?? 'general-repair',
+      serviceTaskKey: e.taskKey,
       title: `${e.title}: ${e.engineName}`,
       from: `Due task: ${e.title} (${e.reason})`,
     };

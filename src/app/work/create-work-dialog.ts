@@ -18,6 +18,8 @@ export interface CreateWorkData {
   kind: string;
   alarmId?: number;
   title?: string;
+  /** The due task's key: sent when the order keeps the task's kind, so completing it records the task done. */
+  serviceTaskKey?: string;
   /** What the suggestion comes from, in words ("Due task: Weekly inspection", "Alarm #12"). */
   from: string;
 }
@@ -128,6 +130,7 @@ export class CreateWorkDialog {
         ...(this.data.title ? { title: this.data.title } : {}),
         ...(v.assigneeId ? { assigneeId: v.assigneeId } : {}),
         ...(due.value ? { dueDate: due.value } : {}),
+        ...(this.data.serviceTaskKey && v.kind === this.data.kind ? { serviceTaskKey: this.data.serviceTaskKey } : {}),
       });
       this.ref.close(o);
     } catch (e) {

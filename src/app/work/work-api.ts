@@ -33,6 +33,8 @@ export interface CreateRequest {
   priority?: WorkPriority;
   dueDate?: string | null;
   assigneeId?: number | null;
+  /** The service-plan task the order is for (from the due list): completing the order records it done. */
+  serviceTaskKey?: string;
 }
 
 export interface CompleteRequest {
