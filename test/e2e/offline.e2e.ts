@@ -16,7 +16,7 @@ import path from 'node:path';
 import zlib from 'node:zlib';
 import { after, before, describe, it } from 'node:test';
 import type { Browser, BrowserContext, Locator, Page } from 'playwright-core';
-import { ACCOUNTS, launchBrowser, shot, signIn, startStack, type Stack } from './harness';
+import { ACCOUNTS, launchBrowser, pickOption, shot, signIn, startStack, type Stack } from './harness';
 
 const DIST = path.resolve(__dirname, '../../dist/jacketwatch/browser');
 
@@ -36,6 +36,7 @@ interface Order {
   title: string;
   steps: Step[];
   attachments: { id: number; stepId: number | null; originalName: string }[];
+  parts: { kind: string; quantity: number; unit: string; description: string | null }[];
   history: { event: string; details: { stepId?: number } | null }[];
 }
 
@@ -188,7 +189,7 @@ describe('the technician app without a network (service worker, IndexedDB outbox
     await cdp.detach();
   });
 
-  it('offline: steps, a value with its remark, a manual check and a photo are kept on the device; a gated step waits for the manual check', async () => {
+  it('offline: steps, a value with its remark, a manual check, a photo and a fluid used are kept on the device; a gated step waits for the manual check', async () => {
     await ctx.setOffline(true);
     await tid('offline-banner').waitFor();
 
@@ -224,20 +225,29 @@ describe('the technician app without a network (service worker, IndexedDB outbox
     await photo.getByRole('button', { name: 'Mark done (sent later)' }).click();
     await tid('kept-photo').waitFor();
 
-    await tid('outbox-summary').getByText('6 waiting to be sent · 0 sent · 0 not accepted').waitFor();
-    await tid('outbox-indicator').getByText('6').waitFor();
+    // a fluid used, recorded under Parts & fluids
+    await pickOption(page, page.getByRole('combobox', { name: 'What' }), 'Coolant');
+    await page.getByLabel('Quantity').fill('2');
+    await page.getByLabel('Description').fill('premix topped up after the filter');
+    await page.getByRole('button', { name: 'Record', exact: true }).click();
+    await tid('outbox').getByText('2 L Coolant: premix topped up after the filter').waitFor();
+    await tid('outbox').screenshot({ path: path.join('test-output', 'screenshots', 'offline-01b-outbox.png') });
+
+    await tid('outbox-summary').getByText('7 waiting to be sent · 0 sent · 0 not accepted').waitFor();
+    await tid('outbox-indicator').getByText('7').waitFor();
     await shot(page, 'offline-01-recorded');
     // nothing reached the server
     const o = await serverOrder();
     assert.equal(o.steps.find((s) => s.key === 'choose-filter')!.doneAt, null);
     assert.equal(o.attachments.length, 0);
+    assert.equal(o.parts.length, 0);
   });
 
   it('a reload while offline comes back from the cache, with everything still waiting', async () => {
     await page.reload();
     await page.getByRole('heading', { name: `#${order.id} Filter change in the basement` }).waitFor();
     await tid('offline-banner').waitFor();
-    await tid('outbox-summary').getByText('6 waiting to be sent').waitFor();
+    await tid('outbox-summary').getByText('7 waiting to be sent').waitFor();
     for (const key of ['choose-filter', 'fit-filter', 'relieve-pressure', 'photo']) await tid(`kept-${key}`).waitFor();
     await shot(page, 'offline-02-after-reload');
     // the technician's other screens come from the cache too: My work (as last seen online) and the calculators (computed in the browser)
@@ -248,7 +258,7 @@ describe('the technician app without a network (service worker, IndexedDB outbox
     await shot(page, 'offline-02a-calculators-offline');
     await page.getByRole('link', { name: 'My work' }).click();
     await page.getByRole('link', { name: new RegExp(`^Work order ${order.id}:`) }).click();
-    await tid('outbox-summary').getByText('6 waiting to be sent').waitFor();
+    await tid('outbox-summary').getByText('7 waiting to be sent').waitFor();
     await page.setViewportSize({ width: 820, height: 1100 });
     await shot(page, 'offline-02b-after-reload-820');
     await page.setViewportSize({ width: 1366, height: 900 });
@@ -256,7 +266,7 @@ describe('the technician app without a network (service worker, IndexedDB outbox
 
   it('back online: everything is sent in order and stored once on the server', async () => {
     await ctx.setOffline(false);
-    await tid('outbox-summary').getByText('0 waiting to be sent · 6 sent · 0 not accepted').waitFor({ timeout: 30000 });
+    await tid('outbox-summary').getByText('0 waiting to be sent · 7 sent · 0 not accepted').waitFor({ timeout: 30000 });
     // the page shows the steps as the server has them
     await stepItem('photo').getByText('Done', { exact: true }).waitFor();
     await shot(page, 'offline-03-sent');
@@ -271,6 +281,10 @@ describe('the technician app without a network (service worker, IndexedDB outbox
       o.attachments.map((a) => [a.stepId, a.originalName]),
       [[step('photo').id, 'fitted-filter.png']],
     );
+    assert.deepEqual(
+      o.parts.map((p) => [p.kind, p.quantity, p.unit, p.description]),
+      [['coolant', 2, 'L', 'premix topped up after the filter']],
+    );
     const done = o.history.filter((h) => h.event === 'step-done' || h.event === 'step-done-manual-check').map((h) => h.details?.stepId);
     // each step once: lock-out (online), then the four sent from the device, in the order recorded
     assert.deepEqual(
@@ -280,9 +294,10 @@ describe('the technician app without a network (service worker, IndexedDB outbox
 
     // a reload online sends nothing again
     await page.reload();
-    await tid('outbox-summary').getByText('0 waiting to be sent · 6 sent · 0 not accepted').waitFor();
+    await tid('outbox-summary').getByText('0 waiting to be sent · 7 sent · 0 not accepted').waitFor();
     const again = await serverOrder();
     assert.equal(again.attachments.length, 1);
+    assert.equal(again.parts.length, 1);
     assert.equal(again.history.length, o.history.length);
   });
 

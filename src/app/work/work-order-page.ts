@@ -571,18 +571,47 @@ export class WorkOrderPage {
     }
   }
 
-  protected addPart(): void {
+  /** A part or fluid used; without a network it is kept on the device and sent when the network returns. */
+  protected async addPart(): Promise<void> {
     const p = this.part;
     if (!p.kind) return void this.error.set('Choose what was used first.');
     if (!p.quantity || p.quantity <= 0) return;
-    void this.act(() =>
-      this.api.addPart(this.order()!.id, {
-        kind: p.kind,
-        quantity: Number(p.quantity),
-        unit: p.unit,
-        ...(p.description.trim() ? { description: p.description.trim() } : {}),
-      }),
-    ).then(() => (this.part.description = ''));
+    const body = {
+      kind: p.kind,
+      quantity: Number(p.quantity),
+      unit: p.unit,
+      ...(p.description.trim() ? { description: p.description.trim() } : {}),
+    };
+    if (this.offline()) return this.keepPart(body);
+    this.busy.set(true);
+    this.error.set(null);
+    try {
+      this.set(await this.api.addPart(this.order()!.id, body));
+      this.part.description = '';
+    } catch (e) {
+      if (isNoAnswer(e)) await this.keepPart(body);
+      else this.error.set(errorText(e));
+    } finally {
+      this.busy.set(false);
+    }
+  }
+
+  private async keepPart(body: { kind: string; quantity: number; unit: string; description?: string }): Promise<void> {
+    const o = this.order()!;
+    try {
+      await this.outbox.record({
+        orderId: o.id,
+        orderTitle: o.title,
+        stepId: null,
+        stepTitle: `${body.quantity} ${body.unit} ${this.partText[body.kind] ?? body.kind}${body.description ? `: ${body.description}` : ''}`,
+        kind: 'part',
+        body,
+      });
+      this.part.description = '';
+      this.error.set(null);
+    } catch (e) {
+      this.error.set(`The part could not be kept on this device: ${errorText(e)}`);
+    }
   }
 
   protected partKindChanged(): void {
