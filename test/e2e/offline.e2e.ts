@@ -32,12 +32,13 @@ interface Step {
 }
 interface Order {
   id: number;
+  engineId: number;
   status: string;
   title: string;
   steps: Step[];
   attachments: { id: number; stepId: number | null; originalName: string }[];
   parts: { kind: string; quantity: number; unit: string; description: string | null }[];
-  history: { event: string; details: { stepId?: number } | null }[];
+  history: { event: string; toStatus?: string | null; details: { stepId?: number } | null }[];
 }
 
 /** A small real PNG (solid grey, 8 x 8), deflated with zlib. */
@@ -322,6 +323,44 @@ describe('the technician app without a network (service worker, IndexedDB outbox
     // the page shows the order as the server has it now
     await page.getByText('Assignee: not assigned').waitFor();
     await shot(page, 'offline-04-conflict');
+  });
+
+  it('offline: a planned order is started and a step done on the device; back online the start is sent first, then the step', async () => {
+    const planner = await stack.login(ACCOUNTS.planner);
+    const techs = await stack.api<{ id: number; email: string }[]>('GET', '/api/work-orders/assignees', planner);
+    const techId = techs.body.find((u) => u.email === ACCOUNTS.technician)!.id;
+    const created = await stack.api<Order>('POST', '/api/work-orders', planner, {
+      engineId: order.engineId,
+      kind: 'weekly-inspection',
+      assigneeId: techId,
+      title: 'Weekly look in the basement',
+    });
+    assert.equal(created.status, 201, JSON.stringify(created.body));
+    const id = created.body.id;
+    // opened once online (so the worker has it), then the network goes
+    await page.goto(`${stack.baseUrl}/work/${id}`);
+    await page.getByRole('heading', { name: `#${id} Weekly look in the basement` }).waitFor();
+    await page.getByRole('button', { name: 'Start work' }).waitFor();
+    await ctx.setOffline(true);
+    await tid('offline-banner').waitFor();
+    await page.getByRole('button', { name: 'Start work' }).click();
+    await tid('kept-status').getByText('Started on this device: waiting to be sent.').waitFor();
+    await page.locator('li.step').nth(0).getByRole('button', { name: 'Mark done (sent later)' }).click();
+    await tid('kept-coolant-level').waitFor();
+    await shot(page, 'offline-04b-started-offline');
+    assert.equal((await stack.api<Order>('GET', `/api/work-orders/${id}`, techToken)).body.status, 'planned', 'nothing reached the server');
+
+    await ctx.setOffline(false);
+    await tid('kept-status').waitFor({ state: 'detached', timeout: 30000 });
+    await page.locator('li.step').nth(0).getByText('Done', { exact: true }).waitFor({ timeout: 30000 });
+    const o = (await stack.api<Order>('GET', `/api/work-orders/${id}`, techToken)).body;
+    assert.equal(o.status, 'in-progress');
+    const started = o.history.findIndex((h) => h.toStatus === 'in-progress');
+    const stepDone = o.history.findIndex((h) => h.event === 'step-done');
+    assert.ok(started >= 0 && stepDone > started, `started, then the step (${JSON.stringify(o.history.map((h) => h.event))})`);
+    // back to the first order for the tests after this one
+    await page.goto(`${stack.baseUrl}/work/${order.id}`);
+    await page.getByRole('heading', { name: `#${order.id} Filter change in the basement` }).waitFor();
   });
 
   it('a new version on the server is offered with "Update available", not swapped in silently', async () => {

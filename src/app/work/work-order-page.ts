@@ -119,7 +119,7 @@ export class WorkOrderPage {
   private readonly fleet = inject(FleetService);
   private readonly zones = inject(DisplayZone);
   /** Times in the engine's site zone (or the browser's by preference), as on the other pages. */
-  private readonly zone = computed(() => {
+  protected readonly zone = computed(() => {
     const engineId = this.order()?.engineId;
     const siteId = this.fleet.engines().find((e) => e.id === engineId)?.siteId;
     return this.zones.zoneFor(siteId === undefined ? null : this.fleet.siteById().get(siteId)?.timeZone);
@@ -131,11 +131,21 @@ export class WorkOrderPage {
     const o = this.order();
     return !!o && this.auth.hasRole('technician') && o.assigneeId === this.auth.user()?.id;
   });
-  protected readonly working = computed(() => this.order()?.status === 'in-progress' && this.isAssignee());
+  /** A status move (start, send for sign-off) kept on this device, waiting to be sent. */
+  protected readonly pendingMove = computed(() => {
+    const id = this.order()?.id;
+    const e = this.outbox.entries().find((x) => x.orderId === id && x.kind === 'status' && x.state === 'waiting');
+    return e ? ((e.body?.['to'] as WorkStatus | undefined) ?? null) : null;
+  });
+  /** The assigned technician works on the order: in progress, or started on this device without a network. */
+  protected readonly working = computed(
+    () => this.isAssignee() && (this.order()?.status === 'in-progress' || (this.order()?.status === 'planned' && this.pendingMove() === 'in-progress')),
+  );
   protected readonly editable = computed(() => ['requested', 'planned', 'in-progress'].includes(this.order()?.status ?? ''));
   protected readonly finished = computed(() => ['closed', 'cancelled'].includes(this.order()?.status ?? ''));
   protected readonly hasGated = computed(() => (this.order()?.steps ?? []).some((s) => s.gated && !s.doneAt));
-  protected readonly openRequired = computed(() => (this.order()?.steps ?? []).filter((s) => !s.optional && !s.doneAt).length);
+  /** Required steps not done (one done on this device and waiting to be sent counts as done). */
+  protected readonly openRequired = computed(() => (this.order()?.steps ?? []).filter((s) => !s.optional && !s.doneAt && !this.pendingDone()[s.id]).length);
   protected readonly anyLockout = signal(false);
   /** No network: changes are kept on the device (offline/outbox.service.ts) and sent when it returns. */
   protected readonly offline = computed(() => !this.net.online());
@@ -177,6 +187,7 @@ export class WorkOrderPage {
     const tech = this.auth.hasRole('technician') && (!o.assigneeId || o.assigneeId === this.auth.user()?.id);
     if (o.status === 'requested' && planner)
       out.push({ to: 'planned', label: 'Accept', icon: 'check', primary: true }, { to: 'cancelled', label: 'Decline', icon: 'close', needsNote: true });
+    if (this.pendingMove()) return out; // a move waits on this device: nothing else until it is sent
     if (o.status === 'planned' && tech) out.push({ to: 'in-progress', label: 'Start work', icon: 'play_arrow', primary: true });
     if (o.status === 'planned' && planner) out.push({ to: 'cancelled', label: 'Cancel', icon: 'block', needsNote: true });
     if (o.status === 'in-progress' && tech) out.push({ to: 'waiting-sign-off', label: 'Work done: send for sign-off', icon: 'send', primary: true });
@@ -392,12 +403,17 @@ export class WorkOrderPage {
     this.anyLockout.set(this.lockoutCarried() || Object.values(this.drafts).some((d) => d.lockout));
   }
 
+  /** The last action got no answer (network gone): the caller may keep it on the device. */
+  private lastNoAnswer = false;
+
   protected async act(fn: () => Promise<WorkOrderDetail>): Promise<void> {
     this.busy.set(true);
     this.error.set(null);
+    this.lastNoAnswer = false;
     try {
       this.set(await fn());
     } catch (e) {
+      this.lastNoAnswer = isNoAnswer(e);
       this.error.set(errorText(e));
     } finally {
       this.busy.set(false);
@@ -407,7 +423,12 @@ export class WorkOrderPage {
   protected move(to: WorkStatus, needsNote?: boolean): void {
     const o = this.order()!;
     if (!needsNote) {
-      void this.act(() => this.api.transition(o.id, to));
+      // the technician's own moves are kept on the device without a network (sent before anything recorded after them)
+      const queueable = to === 'in-progress' || to === 'waiting-sign-off';
+      if (queueable && this.offline()) return void this.keepMove(to);
+      void this.act(() => this.api.transition(o.id, to)).then(() => {
+        if (queueable && this.lastNoAnswer) void this.keepMove(to);
+      });
       return;
     }
     // decline, cancel, send back: the note belongs to the action, and the action is confirmed first
@@ -568,6 +589,23 @@ export class WorkOrderPage {
       this.error.set(null);
     } catch (e) {
       this.error.set(`The photo could not be kept on this device: ${errorText(e)}`);
+    }
+  }
+
+  private async keepMove(to: WorkStatus): Promise<void> {
+    const o = this.order()!;
+    try {
+      await this.outbox.record({
+        orderId: o.id,
+        orderTitle: o.title,
+        stepId: null,
+        stepTitle: to === 'in-progress' ? 'Start work' : 'Work done: send for sign-off',
+        kind: 'status',
+        body: { to },
+      });
+      this.error.set(null);
+    } catch (e) {
+      this.error.set(`The status change could not be kept on this device: ${errorText(e)}`);
     }
   }
 

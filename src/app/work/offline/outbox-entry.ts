@@ -1,5 +1,5 @@
 /** What a technician did while the server could not be reached, kept on the device until it is sent. */
-export type OutboxKind = 'draft' | 'complete' | 'photo' | 'part';
+export type OutboxKind = 'draft' | 'complete' | 'photo' | 'part' | 'status';
 
 /**
  * waiting: not sent yet; sent: stored on the server (kept a while to show what went);
@@ -19,7 +19,7 @@ export interface OutboxEntry {
   stepId: number | null;
   stepTitle: string;
   kind: OutboxKind;
-  /** JSON body of a draft, completion or part, as the online call would send it. */
+  /** JSON body of a draft, completion, part or status move, as the online call would send it. */
   body: Record<string, unknown> | null;
   /** The photo itself (a Blob survives in IndexedDB) and its file name. */
   file: Blob | null;

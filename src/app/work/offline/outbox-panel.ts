@@ -6,7 +6,7 @@ import { STEP_UNIT_TEXT, formatDateTime } from '../work-labels';
 import type { OutboxEntry } from './outbox-entry';
 import { Outbox } from './outbox.service';
 
-const KIND_TEXT: Record<OutboxEntry['kind'], string> = { draft: 'Draft', complete: 'Step done', photo: 'Photo', part: 'Part or fluid' };
+const KIND_TEXT: Record<OutboxEntry['kind'], string> = { draft: 'Draft', complete: 'Step done', photo: 'Photo', part: 'Part or fluid', status: 'Status' };
 const UNIT_EXTRA: Record<string, string> = { degF: '°F', psi: 'psi', bar: 'bar', gal: 'US gal' };
 
 /**

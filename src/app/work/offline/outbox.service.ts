@@ -172,6 +172,7 @@ export class Outbox {
     if (e.kind === 'draft') return firstValueFrom(this.http.patch(`${base}/steps/${e.stepId}`, e.body ?? {}, { headers }));
     if (e.kind === 'complete') return firstValueFrom(this.http.post(`${base}/steps/${e.stepId}/complete`, e.body ?? {}, { headers }));
     if (e.kind === 'part') return firstValueFrom(this.http.post(`${base}/parts`, e.body ?? {}, { headers }));
+    if (e.kind === 'status') return firstValueFrom(this.http.post(`${base}/transition`, e.body ?? {}, { headers }));
     const form = new FormData();
     if (e.stepId) form.append('stepId', String(e.stepId));
     form.append('file', e.file ?? new Blob(), e.fileName ?? 'photo.jpg');
