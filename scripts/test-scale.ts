@@ -229,7 +229,7 @@ async function main(): Promise<void> {
     `INSERT INTO users (email, name, password_hash, role, disabled, created_at, updated_at) VALUES ('scale-admin@example.test', 'Scale admin', ?, 'admin', FALSE, ?, ?)`,
     [bcrypt.hashSync('unused-1', 4), now, now],
   );
-  await db.run(
+  const plannerId = await db.run(
     `INSERT INTO users (email, name, password_hash, role, disabled, created_at, updated_at) VALUES ('scale-planner@example.test', 'Scale planner', ?, 'planner', FALSE, ?, ?)`,
     [bcrypt.hashSync('unused-2', 4), now, now],
   );
@@ -315,6 +315,37 @@ async function main(): Promise<void> {
   say(
     `1. ok: ${n1} readings published, ${n1} rows, taken ${ha1.ingest.received} by a and ${hb1.ingest.received} by b; both sockets saw all ${ENGINES} engines`,
   );
+
+  // 1b. an administrator limits the planner to another site through a: the planner's socket on b is re-scoped too
+  const otherSite = await db.run(`INSERT INTO sites (name, time_zone) VALUES ('Scale test reservoir', 'UTC')`);
+  const plannerToken = createTokenService(JWT_SECRET).sign({ id: plannerId, email: 'scale-planner@example.test', role: 'planner' });
+  const plannerSock = connectSocket(b.url, { auth: { token: plannerToken }, transports: ['websocket'], reconnection: false });
+  sockets.push(plannerSock);
+  const rescopes: string[][] = [];
+  plannerSock.on('rooms', (m: { rooms: string[] }) => rescopes.push(m.rooms));
+  const firstRooms = await new Promise<string[]>((resolve, reject) => {
+    plannerSock.once('connect_error', reject);
+    plannerSock.once('connect', () =>
+      plannerSock.emit('watch', { fleet: true, alarms: true }, (r: { rooms?: string[]; error?: string }) =>
+        r.rooms ? resolve(r.rooms) : reject(new Error(r.error)),
+      ),
+    );
+  });
+  assert.ok(firstRooms.includes('fleet'), `the planner watches the whole fleet first: ${firstRooms.join(', ')}`);
+  const limited = await fetch(`${a.url}/api/users/${plannerId}/sites`, {
+    method: 'PUT',
+    headers: { 'content-type': 'application/json', authorization: `Bearer ${token}` },
+    body: JSON.stringify({ siteIds: [otherSite] }),
+  });
+  assert.equal(limited.status, 200, 'sites set through a');
+  const rescoped = await waitFor(
+    "the planner's socket on b re-scoped",
+    () => rescopes.at(-1) ?? [],
+    (r) => r.includes(`site:${otherSite}`),
+  );
+  assert.ok(!rescoped.includes('fleet') && !rescoped.includes(`site:${siteId}`), `only the other site: ${rescoped.join(', ')}`);
+  figures["1b. planner's rooms on b after a site change made on a"] = `${firstRooms.join(', ')} -> ${rescoped.join(', ')}`;
+  say(`1b. ok: a site change made on a re-scoped the planner's socket on b (${rescoped.join(', ')})`);
 
   // from here on every device publishes every FLOW_MS (ts = wall clock, rising), so no engine falls silent;
   // an engine in `hot` sends 101 °C (coolant_temp_high: 98 °C for 10 s)

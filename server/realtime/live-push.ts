@@ -58,6 +58,9 @@ export const alarmsSiteRoom = (siteId: number) => `alarms:site:${siteId}`;
 /** Every socket of one user, so their sessions can be ended together. */
 const userRoom = (userId: number) => `user:${userId}`;
 
+/** Between servers (socket.io serverSideEmit): a user's sites changed. */
+const RESCOPE_EVENT = 'jw:rescope';
+
 export class LivePush {
   readonly io: Server;
   private readonly throttleMs: number;
@@ -67,6 +70,8 @@ export class LivePush {
   constructor(private readonly opts: LivePushOptions) {
     this.throttleMs = opts.throttleMs ?? 250;
     this.io = new Server(opts.httpServer, { serveClient: false, cors: { origin: false }, ...(opts.adapter ? { adapter: opts.adapter } : {}) });
+    // several servers: a user's sites changed on another server re-scope this server's sockets of theirs too
+    if (opts.adapter) this.io.on(RESCOPE_EVENT, (userId: unknown) => typeof userId === 'number' && void this.rescopeHere(userId));
     this.io.use((socket, next) => {
       try {
         const token = this.handshakeToken(socket);
@@ -138,9 +143,14 @@ export class LivePush {
     return rooms;
   }
 
-  /** The user's sites changed: every open socket of theirs keeps its watch, under the new sites. */
+  /** The user's sites changed: every open socket of theirs, on every server, keeps its watch under the new sites. */
   async rescope(userId: number): Promise<void> {
-    for (const socket of await this.io.in(userRoom(userId)).fetchSockets()) {
+    if (this.opts.adapter) this.io.serverSideEmit(RESCOPE_EVENT, userId);
+    await this.rescopeHere(userId);
+  }
+
+  private async rescopeHere(userId: number): Promise<void> {
+    for (const socket of await this.io.local.in(userRoom(userId)).fetchSockets()) {
       const local = this.io.sockets.sockets.get(socket.id);
       if (!local) continue;
       const w = local.data.watch as z.infer<typeof watchSchema> | undefined;
