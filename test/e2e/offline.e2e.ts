@@ -168,7 +168,9 @@ describe('the technician app without a network (service worker, IndexedDB outbox
     await page.reload();
     await page.getByRole('heading', { name: `#${order.id} Filter change in the basement` }).waitFor();
     await stepItem('fit-filter').getByLabel('Remark').waitFor();
-    // "My work" opened online once, so it is there offline too
+    // the fleet board and "My work" opened online once, so they are there offline too
+    await page.goto(`${stack.baseUrl}/fleet`);
+    await page.locator('jw-engine-tile', { hasText: 'Fire-pump engine basement' }).waitFor();
     await page.goto(`${stack.baseUrl}/work/mine`);
     await page.getByRole('link', { name: new RegExp(`^Work order ${order.id}:`) }).waitFor();
     await page.goto(`${stack.baseUrl}/work/${order.id}`);
@@ -257,6 +259,12 @@ describe('the technician app without a network (service worker, IndexedDB outbox
     await page.getByRole('link', { name: 'Coolant calculators' }).click();
     await page.getByRole('heading', { name: 'Coolant calculators' }).waitFor();
     await shot(page, 'offline-02a-calculators-offline');
+    // the fleet board: the list as last seen, under the "Live data lost" banner, not a load error
+    await page.getByRole('link', { name: 'Fleet board' }).click();
+    await page.locator('jw-engine-tile', { hasText: 'Fire-pump engine basement' }).waitFor();
+    await page.getByText(/Live data lost since/).waitFor();
+    assert.equal(await page.getByText('The engine list could not be loaded').count(), 0, 'the cached list, not a load error');
+    await shot(page, 'offline-02c-fleet-offline');
     await page.getByRole('link', { name: 'My work' }).click();
     await page.getByRole('link', { name: new RegExp(`^Work order ${order.id}:`) }).click();
     await tid('outbox-summary').getByText('7 waiting to be sent').waitFor();
