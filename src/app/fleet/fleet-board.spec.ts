@@ -4,6 +4,7 @@ import { TestBed } from '@angular/core/testing';
 import { Router, provideRouter } from '@angular/router';
 import { RouterTestingHarness } from '@angular/router/testing';
 import { PreferencesService } from '../core/preferences.service';
+import { CollapsedSites } from './collapsed-sites.service';
 import { FleetBoard } from './fleet-board';
 import { Engine, Site } from './fleet-types';
 
@@ -167,5 +168,23 @@ describe('FleetBoard: search and collapse per site', () => {
     button('Expand all').click();
     await settle();
     expect(tileNames()).toEqual(['Genset North 1']);
+  });
+
+  it('draws no tile of a folded site, so a large fleet folded away stays light', async () => {
+    const sites: Site[] = Array.from({ length: 20 }, (_, i) => ({ id: 100 + i, name: `Site ${i + 1}`, timeZone: 'UTC' }));
+    const engines = Array.from({ length: 2000 }, (_, i) => engine(1000 + i, `Engine ${i + 1}`, 100 + (i % 20)));
+    // folded before the board opens, as after a reload
+    TestBed.inject(CollapsedSites).collapseAll(sites.map((s) => s.id));
+    harness = await RouterTestingHarness.create();
+    await harness.navigateByUrl('/fleet', FleetBoard);
+    http = TestBed.inject(HttpTestingController);
+    http.expectOne('/api/sites').flush(sites);
+    http.expectOne('/api/engines').flush(engines);
+    await settle();
+    el = harness.routeNativeElement!;
+    expect(el.querySelectorAll('jw-engine-tile').length).toBe(0);
+    expect(toggles().length).toBe(20);
+    expect(text(toggle('Site 1').querySelector('[data-testid=site-abnormal]'))).toBe('All 100 engines normal');
+    expect(text(el.querySelector('[data-testid=shown-count]'))).toBe('2000 of 2000 engines shown');
   });
 });
