@@ -81,20 +81,29 @@ describe('fleet board (operator)', () => {
     assert.deepEqual((await tileNames()).sort(), ['Intake gen-set north', 'Intake gen-set south']);
     await page.waitForURL((url) => url.searchParams.get('q') === 'intake gen-set');
 
+    // a site filter stands in the address beside the search
+    await page.getByRole('option', { name: 'Saltmarsh Reservoir Intake' }).click();
+    await page.waitForURL((url) => url.searchParams.has('site') && url.searchParams.get('q') === 'intake gen-set');
+
     await page.reload();
     await page.getByRole('heading', { name: 'Fleet board' }).waitFor();
     await waitForTiles(2);
     assert.equal(await page.getByLabel('Search engines or sites').inputValue(), 'intake gen-set');
+    assert.equal(await page.getByRole('option', { name: 'Saltmarsh Reservoir Intake' }).getAttribute('aria-selected'), 'true');
     assert.deepEqual((await tileNames()).sort(), ['Intake gen-set north', 'Intake gen-set south']);
 
     // nothing found: the board says what to do, and one click brings every engine back
     await page.getByLabel('Search engines or sites').fill('no such engine');
     const empty = page.getByTestId('fleet-empty');
     await empty.waitFor();
-    assert.match((await empty.textContent()) ?? '', /No engine or site name contains “no such engine”\. Check the spelling/);
+    await shot(page, 'fleet-search-empty');
+    assert.match(
+      (await empty.textContent()) ?? '',
+      /No engine or site name contains “no such engine” among the engines these filters show\. Check the spelling/,
+    );
     await empty.getByRole('button', { name: 'show all engines' }).click();
     await waitForTiles(all);
-    await page.waitForURL((url) => !url.searchParams.has('q'));
+    await page.waitForURL((url) => !url.searchParams.has('q') && !url.searchParams.has('site'));
     assert.equal(await page.getByLabel('Search engines or sites').inputValue(), '');
   });
 

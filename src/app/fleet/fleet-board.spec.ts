@@ -119,6 +119,20 @@ describe('FleetBoard: search and collapse per site', () => {
     expect(tileNames()).toEqual(['Genset South 10']);
   });
 
+  it('keeps the filters in the address as well, and follows the address when it changes', async () => {
+    await open('/fleet?site=2&state=stopped');
+    expect(tileNames()).toEqual(['Pompe à incendie 1']);
+    el.querySelector<HTMLButtonElement>('mat-button-toggle[value=all] button')!.click();
+    await settle();
+    expect(tileNames()).toEqual(['Compressor 3', 'Pompe à incendie 1']);
+    expect(TestBed.inject(Router).url).toBe('/fleet?site=2');
+
+    await harness.navigateByUrl('/fleet?q=north');
+    await settle();
+    expect(el.querySelector<HTMLInputElement>('[data-testid=fleet-search]')!.value).toBe('north');
+    expect(tileNames()).toEqual(['Genset North 1', 'Genset North 2']);
+  });
+
   it('says what to do when nothing matches, and shows all again on request', async () => {
     await open();
     await type('turbine');

@@ -8,7 +8,7 @@ import { MatFormFieldModule } from '@angular/material/form-field';
 import { MatIconModule } from '@angular/material/icon';
 import { MatInputModule } from '@angular/material/input';
 import { MatProgressBarModule } from '@angular/material/progress-bar';
-import { ActivatedRoute, Router } from '@angular/router';
+import { ActivatedRoute, ParamMap, Router } from '@angular/router';
 import { AlarmStore } from '../alarms/alarm-store';
 import { ClockService } from '../core/clock.service';
 import { LiveService } from '../core/live.service';
@@ -69,7 +69,7 @@ export class FleetBoard {
   protected readonly stateFilter = signal<StateFilter>('all');
   /** Only engines whose latest coolant test is short of their site's design low temperature. */
   protected readonly freezeOnly = signal(false);
-  /** Engine or site name; lives in the address (?q=) so back, reload and a shared link keep it. */
+  /** Engine or site name. It and the filters live in the address, so back, reload and a shared link keep them. */
   protected readonly search = new FormControl(this.route.snapshot.queryParamMap.get('q') ?? '', { nonNullable: true });
   protected readonly query = toSignal(this.search.valueChanges, { initialValue: this.search.value });
   private readonly terms = computed(() => searchTerms(this.query()));
@@ -138,15 +138,13 @@ export class FleetBoard {
   protected readonly allCollapsed = computed(() => this.groups().every((g) => this.collapsed.ids().has(g.site.id)));
 
   constructor() {
-    // The search in the address: written as it changes (no history entry per key), read when the address changes.
+    // The search and the filters in the address: written as they change (no history entry per key), read when the address changes.
+    this.route.queryParamMap.pipe(takeUntilDestroyed()).subscribe((params) => this.fromAddress(params));
     effect(() => {
-      const q = this.query().trim() || null;
-      if (q === this.route.snapshot.queryParamMap.get('q')) return;
-      untracked(() => void this.router.navigate([], { relativeTo: this.route, queryParams: { q }, queryParamsHandling: 'merge', replaceUrl: true }));
-    });
-    this.route.queryParamMap.pipe(takeUntilDestroyed()).subscribe((params) => {
-      const q = params.get('q') ?? '';
-      if (q !== this.search.value.trim()) this.search.setValue(q);
+      const queryParams = this.addressParams();
+      const now = this.route.snapshot.queryParamMap;
+      if (Object.entries(queryParams).every(([k, v]) => v === now.get(k))) return;
+      untracked(() => void this.router.navigate([], { relativeTo: this.route, queryParams, queryParamsHandling: 'merge', replaceUrl: true }));
     });
     void this.fleet.load();
     this.fleet.followFleet(inject(DestroyRef));
@@ -160,6 +158,27 @@ export class FleetBoard {
         untracked(() => void this.fleet.load());
       }
     });
+  }
+
+  /** ?q=north&state=running&site=2,5&freeze=short; absent means no such filter. */
+  private readonly addressParams = computed(() => ({
+    q: this.query().trim() || null,
+    state: this.stateFilter() === 'all' ? null : this.stateFilter(),
+    site: this.siteFilter().length ? sortedIds(this.siteFilter()) : null,
+    freeze: this.freezeOnly() ? 'short' : null,
+  }));
+
+  private fromAddress(params: ParamMap): void {
+    const q = params.get('q') ?? '';
+    if (q !== this.search.value.trim()) this.search.setValue(q);
+    const state = params.get('state');
+    this.stateFilter.set(state === 'running' || state === 'stopped' || state === 'no-data' ? state : 'all');
+    const sites = (params.get('site') ?? '')
+      .split(',')
+      .map(Number)
+      .filter((id) => Number.isInteger(id) && id > 0);
+    if (sortedIds(sites) !== sortedIds(this.siteFilter())) this.siteFilter.set(sites);
+    this.freezeOnly.set(params.get('freeze') === 'short');
   }
 
   protected retry(): void {
@@ -185,6 +204,8 @@ export class FleetBoard {
     this.collapsed.collapseAll([...this.sites().map((s) => s.id), ...this.groups().map((g) => g.site.id)]);
   }
 }
+
+const sortedIds = (ids: readonly number[]) => [...ids].sort((a, b) => a - b).join(',');
 
 /** "Unit 2" before "Unit 10". */
 const byName = (a: string, b: string) => a.localeCompare(b, undefined, { numeric: true });
