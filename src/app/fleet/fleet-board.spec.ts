@@ -113,6 +113,20 @@ describe('FleetBoard: search and collapse per site', () => {
     expect(TestBed.inject(Router).url).toBe('/fleet');
   });
 
+  it('keeps every key typed while the address catches up', async () => {
+    await open();
+    const input = el.querySelector<HTMLInputElement>('[data-testid=fleet-search]')!;
+    for (const value of ['g', 'ge', 'gen', 'gens']) {
+      input.value = value;
+      input.dispatchEvent(new Event('input'));
+      harness.detectChanges(); // each key starts a navigation before the one before it has ended
+    }
+    await settle();
+    await settle();
+    expect(input.value).toBe('gens');
+    expect(TestBed.inject(Router).url).toBe('/fleet?q=gens');
+  });
+
   it('starts from the search in the address', async () => {
     await open('/fleet?q=genset%20south');
     expect(el.querySelector<HTMLInputElement>('[data-testid=fleet-search]')!.value).toBe('genset south');

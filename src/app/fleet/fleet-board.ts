@@ -137,6 +137,16 @@ export class FleetBoard {
   });
   protected readonly allCollapsed = computed(() => this.groups().every((g) => this.collapsed.ids().has(g.site.id)));
 
+  /** ?q=north&state=running&site=2,5&freeze=short; absent means no such filter. */
+  private readonly addressParams = computed(() => ({
+    q: this.query().trim() || null,
+    state: this.stateFilter() === 'all' ? null : this.stateFilter(),
+    site: this.siteFilter().length ? sortedIds(this.siteFilter()) : null,
+    freeze: this.freezeOnly() ? 'short' : null,
+  }));
+  /** Addresses this board wrote that the router has not reported back yet (typing runs ahead of navigation). */
+  private readonly written: string[] = [];
+
   constructor() {
     // The search and the filters in the address: written as they change (no history entry per key), read when the address changes.
     this.route.queryParamMap.pipe(takeUntilDestroyed()).subscribe((params) => this.fromAddress(params));
@@ -144,6 +154,8 @@ export class FleetBoard {
       const queryParams = this.addressParams();
       const now = this.route.snapshot.queryParamMap;
       if (Object.entries(queryParams).every(([k, v]) => v === now.get(k))) return;
+      this.written.push(JSON.stringify(queryParams));
+      if (this.written.length > 20) this.written.shift();
       untracked(() => void this.router.navigate([], { relativeTo: this.route, queryParams, queryParamsHandling: 'merge', replaceUrl: true }));
     });
     void this.fleet.load();
@@ -160,15 +172,15 @@ export class FleetBoard {
     });
   }
 
-  /** ?q=north&state=running&site=2,5&freeze=short; absent means no such filter. */
-  private readonly addressParams = computed(() => ({
-    q: this.query().trim() || null,
-    state: this.stateFilter() === 'all' ? null : this.stateFilter(),
-    site: this.siteFilter().length ? sortedIds(this.siteFilter()) : null,
-    freeze: this.freezeOnly() ? 'short' : null,
-  }));
-
   private fromAddress(params: ParamMap): void {
+    // our own earlier write coming back: the board is already past it
+    const echo = this.written.indexOf(
+      JSON.stringify({ q: params.get('q'), state: params.get('state'), site: params.get('site'), freeze: params.get('freeze') }),
+    );
+    if (echo >= 0) {
+      this.written.splice(0, echo + 1);
+      return;
+    }
     const q = params.get('q') ?? '';
     if (q !== this.search.value.trim()) this.search.setValue(q);
     const state = params.get('state');
