@@ -63,6 +63,12 @@ describe('accessibility (axe on every main screen, keyboard flows)', () => {
       await signIn(page, stack, ACCOUNTS.planner);
     });
     it('fleet board', () => check('fleet', '/fleet', (p) => p.locator('jw-engine-tile').first().waitFor({ timeout: 20000 })));
+    it('fleet board searched, with a site folded', () =>
+      check('fleet-folded', '/fleet?q=gen-set', async (p) => {
+        await p.locator('jw-engine-tile').first().waitFor({ timeout: 20000 });
+        await p.getByTestId('site-toggle').first().click();
+        await p.getByTestId('site-abnormal').first().waitFor();
+      }));
     it('engine page', () => check('engine', `/engines/${engineId}`, (p) => p.locator('jw-live-values').first().waitFor({ timeout: 20000 })));
     it('alarm list', () => check('alarms', '/alarms', (p) => p.getByRole('heading', { name: 'Alarms' }).waitFor()));
     it('work-order list', () =>

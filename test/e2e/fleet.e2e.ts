@@ -1,10 +1,11 @@
 /**
  * The operator's first look: sign in, see the demo fleet on the board, see a value change live while
- * the simulator publishes; an operator is refused the administration pages.
+ * the simulator publishes; search the board by name and fold sites away; an operator is refused the
+ * administration pages.
  */
 import assert from 'node:assert/strict';
 import { after, before, describe, it } from 'node:test';
-import type { Browser, Page } from 'playwright-core';
+import type { Browser, Locator, Page } from 'playwright-core';
 import { ACCOUNTS, launchBrowser, shot, signIn, startStack, type Stack } from './harness';
 
 describe('fleet board (operator)', () => {
@@ -57,6 +58,100 @@ describe('fleet board (operator)', () => {
       { timeout: 30000, polling: 500 },
     );
     await shot(page, 'fleet-board');
+  });
+
+  const tileNames = async () => (await page.locator('jw-engine-tile .name').allTextContents()).map((t) => t.trim());
+  const shown = () => page.getByTestId('shown-count');
+  const siteGroup = (name: string): Locator => page.getByTestId('site-group').filter({ has: page.locator('.site-name', { hasText: name }) });
+  const waitForTiles = (count: number) => page.waitForFunction((n) => document.querySelectorAll('jw-engine-tile').length === n, count, { timeout: 15000 });
+
+  it('narrows the board by engine or site name, and the address keeps the search over a reload', async () => {
+    const all = await page.locator('jw-engine-tile').count();
+    const search = page.getByLabel('Search engines or sites');
+    // a site's name finds its engines; case does not matter
+    await search.fill('RIDGEBACK');
+    await waitForTiles(3);
+    assert.deepEqual((await tileNames()).sort(), ['Booster pump engine', 'Ridgeback gen-set 1', 'Ridgeback gen-set 2']);
+    assert.equal((await shown().textContent())?.trim(), `3 of ${all} engines shown`);
+    await page.waitForURL((url) => url.searchParams.get('q') === 'RIDGEBACK');
+
+    // every word must be found, in the engine's name or its site's
+    await search.fill('intake gen-set');
+    await waitForTiles(2);
+    assert.deepEqual((await tileNames()).sort(), ['Intake gen-set north', 'Intake gen-set south']);
+    await page.waitForURL((url) => url.searchParams.get('q') === 'intake gen-set');
+
+    // a site filter stands in the address beside the search
+    await page.getByRole('option', { name: 'Saltmarsh Reservoir Intake' }).click();
+    await page.waitForURL((url) => url.searchParams.has('site') && url.searchParams.get('q') === 'intake gen-set');
+
+    await page.reload();
+    await page.getByRole('heading', { name: 'Fleet board' }).waitFor();
+    await waitForTiles(2);
+    assert.equal(await page.getByLabel('Search engines or sites').inputValue(), 'intake gen-set');
+    assert.equal(await page.getByRole('option', { name: 'Saltmarsh Reservoir Intake' }).getAttribute('aria-selected'), 'true');
+    assert.deepEqual((await tileNames()).sort(), ['Intake gen-set north', 'Intake gen-set south']);
+
+    // nothing found: the board says what to do, and one click brings every engine back
+    await page.getByLabel('Search engines or sites').fill('no such engine');
+    const empty = page.getByTestId('fleet-empty');
+    await empty.waitFor();
+    await shot(page, 'fleet-search-empty');
+    assert.match(
+      (await empty.textContent()) ?? '',
+      /No engine or site name contains “no such engine” among the engines these filters show\. Check the spelling/,
+    );
+    await empty.getByRole('button', { name: 'show all engines' }).click();
+    await waitForTiles(all);
+    await page.waitForURL((url) => !url.searchParams.has('q') && !url.searchParams.has('site'));
+    assert.equal(await page.getByLabel('Search engines or sites').inputValue(), '');
+  });
+
+  it('folds a site away: its tiles go, its header counts its abnormal engines, and it stays folded after a reload', async () => {
+    const all = await page.locator('jw-engine-tile').count();
+    const works = siteGroup('Hollowmere Treatment Works');
+    const toggle = works.getByTestId('site-toggle');
+    assert.equal(await toggle.getAttribute('aria-expanded'), 'true');
+    const inSite = await works.locator('jw-engine-tile').count();
+    // what the tiles themselves show as abnormal, just before folding
+    const abnormalOnTiles = await works.evaluate(
+      (group) =>
+        [...group.querySelectorAll('jw-engine-tile')].filter((t) =>
+          t.querySelector('.tile.has-alarms, .tile.stale, [data-ready=false], [data-testid=freeze-short]'),
+        ).length,
+    );
+    await toggle.click();
+    await waitForTiles(all - inSite);
+    assert.equal(await toggle.getAttribute('aria-expanded'), 'false');
+    assert.equal(await works.locator('jw-engine-tile').count(), 0);
+    const state = works.getByTestId('site-abnormal');
+    const said = ((await state.textContent()) ?? '').replace(/\s+/g, ' ').trim();
+    if (abnormalOnTiles === 0) assert.equal(said, `All ${inSite} engines normal`);
+    else assert.match(said, new RegExp(`^${abnormalOnTiles} of ${inSite} engines abnormal: .+`));
+    assert.equal(await state.getAttribute('data-abnormal'), String(abnormalOnTiles));
+
+    // the keyboard folds another site
+    const ridge = siteGroup('Ridgeback Booster Station').getByTestId('site-toggle');
+    await ridge.focus();
+    await page.keyboard.press('Enter');
+    await waitForTiles(all - inSite - 3);
+    assert.equal(await ridge.getAttribute('aria-expanded'), 'false');
+    await shot(page, 'fleet-folded-1366');
+    await page.setViewportSize({ width: 820, height: 1180 });
+    await shot(page, 'fleet-folded-820');
+    await page.setViewportSize({ width: 1366, height: 900 });
+
+    await page.reload();
+    await page.getByRole('heading', { name: 'Fleet board' }).waitFor();
+    await waitForTiles(all - inSite - 3);
+    assert.equal(await siteGroup('Hollowmere Treatment Works').getByTestId('site-toggle').getAttribute('aria-expanded'), 'false');
+    assert.equal(await siteGroup('Ridgeback Booster Station').getByTestId('site-toggle').getAttribute('aria-expanded'), 'false');
+
+    await page.getByRole('button', { name: 'Expand all' }).click();
+    await waitForTiles(all);
+    await page.reload();
+    await page.getByRole('heading', { name: 'Fleet board' }).waitFor();
+    await waitForTiles(all);
   });
 
   it('refuses the administration pages to an operator', async () => {

@@ -6,7 +6,7 @@ import { CHANNELS, ChannelKey } from '../../../shared/channels';
 import { DISPLAY_SCALES, NormalBand, bandPosition, normalBand } from '../../../shared/normal-bands';
 import { AlarmStore } from '../alarms/alarm-store';
 import { ClockService } from '../core/clock.service';
-import { ReadingCadence, isStale, staleText } from '../core/staleness';
+import { ReadingCadence, staleText } from '../core/staleness';
 import { DisplayZone } from '../core/display-zone';
 import { PreferencesService } from '../core/preferences.service';
 import { BandIndicator } from '../ui/band-indicator';
@@ -14,13 +14,8 @@ import { formatInZone } from '../ui/time-format';
 import { formatStored } from '../ui/unit-format';
 import { UnitValuePipe } from '../ui/unit-value.pipe';
 import { Engine, RunState } from './fleet-types';
-import { lastReadingAt, runStateAt, toMillis } from './run-state';
-
-const TILE_CHANNELS: { key: ChannelKey; short: string }[] = [
-  { key: 'coolant_temp', short: 'Temperature' },
-  { key: 'coolant_pressure', short: 'Pressure' },
-  { key: 'coolant_conductivity', short: 'Conductivity' },
-];
+import { TILE_CHANNELS, isEngineStale, isValueStale } from './engine-condition';
+import { lastReadingAt, runStateAt } from './run-state';
 
 const STATE_TEXT: Record<RunState, string> = { running: 'Running', stopped: 'Stopped', 'no-data': 'No data' };
 const STATE_ICON: Record<RunState, string> = { running: 'sync', stopped: 'stop_circle', 'no-data': 'cloud_off' };
@@ -138,7 +133,7 @@ export class EngineTile {
     return this.cadence.intervalFor(this.engine().id);
   });
   /** Any value on the tile is older than the engine's expected interval. */
-  protected readonly stale = computed(() => this.rows().some((r) => r.stale) || (this.state() === 'no-data' && lastReadingAt(this.engine()) !== null));
+  protected readonly stale = computed(() => isEngineStale(this.engine(), this.clock.now(), this.interval()));
   /** "last 11:15 · 12 min ago" while stale. */
   protected readonly age = computed(() => {
     if (!this.stale()) return null;
@@ -160,7 +155,7 @@ export class EngineTile {
         label: CHANNELS[key].label,
         value: latest && !bad ? latest.value : null,
         bad,
-        stale: !!latest && isStale(toMillis(latest.ts), now, interval),
+        stale: isValueStale(e, key, now, interval),
         band: normalBand(key, state, e),
         scale: DISPLAY_SCALES[key] ?? { low: 0, high: 100 },
       };

@@ -1,12 +1,22 @@
 import { ChangeDetectionStrategy, Component, DestroyRef, computed, effect, inject, signal, untracked } from '@angular/core';
+import { takeUntilDestroyed, toSignal } from '@angular/core/rxjs-interop';
+import { FormControl, ReactiveFormsModule } from '@angular/forms';
 import { MatButtonModule } from '@angular/material/button';
 import { MatButtonToggleModule } from '@angular/material/button-toggle';
 import { MatChipsModule } from '@angular/material/chips';
+import { MatFormFieldModule } from '@angular/material/form-field';
 import { MatIconModule } from '@angular/material/icon';
+import { MatInputModule } from '@angular/material/input';
 import { MatProgressBarModule } from '@angular/material/progress-bar';
+import { ActivatedRoute, ParamMap, Router } from '@angular/router';
+import { AlarmStore } from '../alarms/alarm-store';
 import { ClockService } from '../core/clock.service';
 import { LiveService } from '../core/live.service';
+import { ReadingCadence } from '../core/staleness';
+import { CollapsedSites } from './collapsed-sites.service';
+import { AbnormalCount, abnormalText, countAbnormal, engineCondition } from './engine-condition';
 import { EngineTile } from './engine-tile';
+import { matchesSearch, searchTerms } from './fleet-search';
 import { Engine, RunState, Site } from './fleet-types';
 import { FleetService } from './fleet.service';
 import { runStateAt } from './run-state';
@@ -24,7 +34,17 @@ const CONNECTION_TEXT = { connected: 'Live', connecting: 'Connecting…', offlin
 @Component({
   selector: 'jw-fleet-board',
   changeDetection: ChangeDetectionStrategy.OnPush,
-  imports: [MatButtonModule, MatButtonToggleModule, MatChipsModule, MatIconModule, MatProgressBarModule, EngineTile],
+  imports: [
+    ReactiveFormsModule,
+    MatButtonModule,
+    MatButtonToggleModule,
+    MatChipsModule,
+    MatFormFieldModule,
+    MatIconModule,
+    MatInputModule,
+    MatProgressBarModule,
+    EngineTile,
+  ],
   templateUrl: './fleet-board.html',
   styleUrl: './fleet-board.scss',
 })
@@ -32,6 +52,11 @@ export class FleetBoard {
   private readonly fleet = inject(FleetService);
   private readonly clock = inject(ClockService);
   private readonly live = inject(LiveService);
+  private readonly alarmStore = inject(AlarmStore);
+  private readonly cadence = inject(ReadingCadence);
+  private readonly route = inject(ActivatedRoute);
+  private readonly router = inject(Router);
+  protected readonly collapsed = inject(CollapsedSites);
 
   protected readonly loading = this.fleet.loading;
   protected readonly error = this.fleet.error;
@@ -44,6 +69,13 @@ export class FleetBoard {
   protected readonly stateFilter = signal<StateFilter>('all');
   /** Only engines whose latest coolant test is short of their site's design low temperature. */
   protected readonly freezeOnly = signal(false);
+  /** Engine or site name. It and the filters live in the address, so back, reload and a shared link keep them. */
+  protected readonly search = new FormControl(this.route.snapshot.queryParamMap.get('q') ?? '', { nonNullable: true });
+  protected readonly query = toSignal(this.search.valueChanges, { initialValue: this.search.value });
+  private readonly terms = computed(() => searchTerms(this.query()));
+  protected readonly searching = computed(() => this.terms().length > 0);
+  /** A filter other than the search is on. */
+  protected readonly filtered = computed(() => this.siteFilter().length > 0 || this.stateFilter() !== 'all' || this.freezeOnly());
   protected readonly freezeShortCount = computed(() => this.fleet.engines().filter((e) => e.freezeProtection?.status === 'short').length);
 
   private readonly states = computed(() => {
@@ -65,11 +97,14 @@ export class FleetBoard {
     const siteIds = new Set(this.siteFilter());
     const state = this.stateFilter();
     const states = this.states();
+    const terms = this.terms();
+    const siteNames = new Map(sites.map((s) => [s.id, s.name]));
     const bySite = new Map<number, Engine[]>();
     for (const e of this.fleet.engines()) {
       if (siteIds.size && !siteIds.has(e.siteId)) continue;
       if (state !== 'all' && states.get(e.id) !== state) continue;
       if (this.freezeOnly() && e.freezeProtection?.status !== 'short') continue;
+      if (!matchesSearch(terms, e.name, siteNames.get(e.siteId) ?? `Site ${e.siteId}`)) continue;
       const list = bySite.get(e.siteId);
       if (list) list.push(e);
       else bySite.set(e.siteId, [e]);
@@ -84,8 +119,45 @@ export class FleetBoard {
   });
 
   protected readonly shownCount = computed(() => this.groups().reduce((n, g) => n + g.engines.length, 0));
+  protected readonly shownText = computed(() => `${this.shownCount()} of ${this.counts().all} ${this.counts().all === 1 ? 'engine' : 'engines'} shown`);
+
+  /** What a collapsed site's header says about its hidden tiles (expanded sites show the tiles themselves). */
+  protected readonly abnormal = computed(() => {
+    const collapsed = this.collapsed.ids();
+    const now = this.clock.now();
+    const out = new Map<number, { count: AbnormalCount; text: string }>();
+    for (const g of this.groups()) {
+      if (!collapsed.has(g.site.id)) continue;
+      const count = countAbnormal(
+        g.engines.map((e) => engineCondition(e, now, this.cadence.intervalFor(e.id), this.alarmStore.activeFor(e.id) ?? e.activeAlarms ?? 0)),
+      );
+      out.set(g.site.id, { count, text: abnormalText(count) });
+    }
+    return out;
+  });
+  protected readonly allCollapsed = computed(() => this.groups().every((g) => this.collapsed.ids().has(g.site.id)));
+
+  /** ?q=north&state=running&site=2,5&freeze=short; absent means no such filter. */
+  private readonly addressParams = computed(() => ({
+    q: this.query().trim() || null,
+    state: this.stateFilter() === 'all' ? null : this.stateFilter(),
+    site: this.siteFilter().length ? sortedIds(this.siteFilter()) : null,
+    freeze: this.freezeOnly() ? 'short' : null,
+  }));
+  /** Addresses this board wrote that the router has not reported back yet (typing runs ahead of navigation). */
+  private readonly written: string[] = [];
 
   constructor() {
+    // The search and the filters in the address: written as they change (no history entry per key), read when the address changes.
+    this.route.queryParamMap.pipe(takeUntilDestroyed()).subscribe((params) => this.fromAddress(params));
+    effect(() => {
+      const queryParams = this.addressParams();
+      const now = this.route.snapshot.queryParamMap;
+      if (Object.entries(queryParams).every(([k, v]) => v === now.get(k))) return;
+      this.written.push(JSON.stringify(queryParams));
+      if (this.written.length > 20) this.written.shift();
+      untracked(() => void this.router.navigate([], { relativeTo: this.route, queryParams, queryParamsHandling: 'merge', replaceUrl: true }));
+    });
     void this.fleet.load();
     this.fleet.followFleet(inject(DestroyRef));
     // Back from a lost connection: load the list again, so values are current and an old error goes away.
@@ -100,6 +172,27 @@ export class FleetBoard {
     });
   }
 
+  private fromAddress(params: ParamMap): void {
+    // our own earlier write coming back: the board is already past it
+    const echo = this.written.indexOf(
+      JSON.stringify({ q: params.get('q'), state: params.get('state'), site: params.get('site'), freeze: params.get('freeze') }),
+    );
+    if (echo >= 0) {
+      this.written.splice(0, echo + 1);
+      return;
+    }
+    const q = params.get('q') ?? '';
+    if (q !== this.search.value.trim()) this.search.setValue(q);
+    const state = params.get('state');
+    this.stateFilter.set(state === 'running' || state === 'stopped' || state === 'no-data' ? state : 'all');
+    const sites = (params.get('site') ?? '')
+      .split(',')
+      .map(Number)
+      .filter((id) => Number.isInteger(id) && id > 0);
+    if (sortedIds(sites) !== sortedIds(this.siteFilter())) this.siteFilter.set(sites);
+    this.freezeOnly.set(params.get('freeze') === 'short');
+  }
+
   protected retry(): void {
     void this.fleet.load();
   }
@@ -108,12 +201,23 @@ export class FleetBoard {
     this.siteFilter.set(Array.isArray(ids) ? ids : ids == null ? [] : [ids]);
   }
 
+  protected clearSearch(): void {
+    this.search.setValue('');
+  }
+
   protected clearFilters(): void {
     this.siteFilter.set([]);
     this.stateFilter.set('all');
     this.freezeOnly.set(false);
+    this.clearSearch();
+  }
+
+  protected collapseAll(): void {
+    this.collapsed.collapseAll([...this.sites().map((s) => s.id), ...this.groups().map((g) => g.site.id)]);
   }
 }
+
+const sortedIds = (ids: readonly number[]) => [...ids].sort((a, b) => a - b).join(',');
 
 /** "Unit 2" before "Unit 10". */
 const byName = (a: string, b: string) => a.localeCompare(b, undefined, { numeric: true });
