@@ -1,5 +1,5 @@
 import { ChangeDetectionStrategy, Component, computed, inject, signal } from '@angular/core';
-import { FormsModule } from '@angular/forms';
+import { FormControl, ReactiveFormsModule, Validators } from '@angular/forms';
 import { MatButtonModule } from '@angular/material/button';
 import { MatExpansionModule } from '@angular/material/expansion';
 import { MatFormFieldModule } from '@angular/material/form-field';
@@ -35,7 +35,7 @@ const UNIT_OF_KIND: Record<string, string | null> = { rate: '/min', boiling_marg
 @Component({
   selector: 'jw-rules-page',
   changeDetection: ChangeDetectionStrategy.OnPush,
-  imports: [FormsModule, MatExpansionModule, MatFormFieldModule, MatInputModule, MatSelectModule, MatSlideToggleModule, MatButtonModule, MatIconModule],
+  imports: [ReactiveFormsModule, MatExpansionModule, MatFormFieldModule, MatInputModule, MatSelectModule, MatSlideToggleModule, MatButtonModule, MatIconModule],
   templateUrl: './rules-page.html',
   styleUrl: './rules-page.scss',
 })
@@ -57,6 +57,8 @@ export class RulesPage {
   protected readonly error = signal<string | null>(null);
   protected readonly saving = signal(false);
   protected readonly dirty = computed(() => Object.values(this.drafts()).some((d) => d.dirty));
+  /** One number control per rule parameter (rule key, then parameter name), made with each load; a change goes to the drafts. */
+  private readonly paramControls = signal<Record<string, Record<string, FormControl<number | null>>>>({});
 
   constructor() {
     if (!this.fleet.engines().length) void this.fleet.load();
@@ -112,6 +114,10 @@ export class RulesPage {
       delete rest[key];
       return rest;
     });
+  }
+
+  protected control(key: string, name: string): FormControl<number | null> {
+    return this.paramControls()[key][name];
   }
 
   protected setEnabled(key: string, enabled: boolean): void {
@@ -223,6 +229,16 @@ export class RulesPage {
         for (const f of paramFields(r.kind)) if (typeof r.params[f.name] === 'number') values[f.name] = toDisplay(r.params[f.name] as number, f, q, prefs);
         drafts[r.key] = { enabled: r.enabled, values, dirty: false };
       }
+      const controls: Record<string, Record<string, FormControl<number | null>>> = {};
+      for (const [key, d] of Object.entries(drafts)) {
+        controls[key] = {};
+        for (const [name, v] of Object.entries(d.values)) {
+          const c = new FormControl<number | null>(v, Validators.required);
+          c.valueChanges.subscribe((typed) => this.setValue(key, name, typed));
+          controls[key][name] = c;
+        }
+      }
+      this.paramControls.set(controls);
       this.rules.set(rules);
       this.drafts.set(drafts);
       this.error.set(null);
