@@ -1,4 +1,3 @@
-import { HttpClient } from '@angular/common/http';
 import { ChangeDetectionStrategy, Component, inject, signal } from '@angular/core';
 import { MatButtonModule } from '@angular/material/button';
 import { MatExpansionModule } from '@angular/material/expansion';
@@ -7,27 +6,8 @@ import { MatTableModule } from '@angular/material/table';
 import { RouterLink } from '@angular/router';
 import { firstValueFrom } from 'rxjs';
 import { formatTime } from './alarm-labels';
+import { AlarmsAdminService, CaughtMail, OutboxItem } from './alarms-admin.service';
 import { errorText } from './alarms-api';
-
-interface CaughtMail {
-  id: number;
-  to: string;
-  from: string;
-  subject: string;
-  receivedAt: string;
-  text: string;
-}
-interface OutboxItem {
-  id: number;
-  to: string;
-  subject: string;
-  alarmId: number | null;
-  attempts: number;
-  nextAttemptAt: string;
-  sentAt: string | null;
-  lastError: string | null;
-  createdAt: string;
-}
 
 /** What the mail catcher received (newest first, with the text) and the outbox: sent, waiting or failing. */
 @Component({
@@ -176,7 +156,7 @@ interface OutboxItem {
   `,
 })
 export class MailPage {
-  private readonly http = inject(HttpClient);
+  private readonly api = inject(AlarmsAdminService);
   protected readonly mail = signal<CaughtMail[]>([]);
   protected readonly outbox = signal<OutboxItem[]>([]);
   protected readonly error = signal<string | null>(null);
@@ -192,10 +172,7 @@ export class MailPage {
 
   protected async load(): Promise<void> {
     try {
-      const [mail, outbox] = await Promise.all([
-        firstValueFrom(this.http.get<CaughtMail[]>('/api/admin/mail')),
-        firstValueFrom(this.http.get<OutboxItem[]>('/api/admin/outbox')),
-      ]);
+      const [mail, outbox] = await Promise.all([firstValueFrom(this.api.caughtMail()), firstValueFrom(this.api.outbox())]);
       this.mail.set(mail);
       this.outbox.set(outbox);
       this.error.set(null);

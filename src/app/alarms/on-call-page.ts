@@ -1,4 +1,3 @@
-import { HttpClient } from '@angular/common/http';
 import { ChangeDetectionStrategy, Component, computed, effect, inject, signal } from '@angular/core';
 import { MatButtonModule } from '@angular/material/button';
 import { MatDialog } from '@angular/material/dialog';
@@ -12,6 +11,7 @@ import { AuthService } from '../core/auth.service';
 import { DisplayZone } from '../core/display-zone';
 import { FleetService } from '../fleet/fleet.service';
 import { formatInZone, zoneAbbreviation } from '../ui/time-format';
+import { AlarmsAdminService } from './alarms-admin.service';
 import { errorText } from './alarms-api';
 import { buildWeek, mondayOf, weekDays, type WeekShift } from './rota-week';
 import { RotaWeekView } from './rota-week-view';
@@ -208,7 +208,7 @@ const ONCALL_ROLES = ['technician', 'planner', 'admin'];
   `,
 })
 export class OnCallPage {
-  private readonly http = inject(HttpClient);
+  private readonly api = inject(AlarmsAdminService);
   private readonly dialog = inject(MatDialog);
   private readonly snack = inject(MatSnackBar);
   private readonly auth = inject(AuthService);
@@ -319,7 +319,7 @@ export class OnCallPage {
 
   private async loadWeek(siteId: number, from: number, to: number): Promise<void> {
     try {
-      const list = await firstValueFrom(this.http.get<Shift[]>('/api/oncall', { params: { siteId: String(siteId), from: String(from), to: String(to) } }));
+      const list = await firstValueFrom(this.api.shifts({ siteId, from, to }));
       if (this.siteId() === siteId && this.weekDays()[0].from === from) this.weekShifts.set(list);
     } catch (err) {
       this.error.set(errorText(err, 'The week could not be loaded'));
@@ -352,9 +352,7 @@ export class OnCallPage {
     const input = await firstValueFrom(this.dialog.open<ShiftDialog, ShiftDialogData, ShiftInput>(ShiftDialog, { data, width: '40em' }).afterClosed());
     if (!input) return;
     try {
-      const saved = shift
-        ? await firstValueFrom(this.http.patch<Shift>(`/api/oncall/${shift.id}`, input))
-        : await firstValueFrom(this.http.post<Shift>('/api/oncall', input));
+      const saved = shift ? await firstValueFrom(this.api.updateShift(shift.id, input)) : await firstValueFrom(this.api.createShift(input));
       // the server's own check of what the saved shift leaves (the same shared function as the dialog's)
       const c = saved.coverage;
       const left = c
@@ -379,7 +377,7 @@ export class OnCallPage {
     const { dismissedByAction } = await firstValueFrom(ref.afterDismissed());
     if (!dismissedByAction) return;
     try {
-      await firstValueFrom(this.http.delete(`/api/oncall/${shift.id}`));
+      await firstValueFrom(this.api.deleteShift(shift.id));
       this.snack.open('Shift deleted', undefined, { duration: 2500 });
       await this.load();
       this.refreshWeek();
@@ -396,7 +394,7 @@ export class OnCallPage {
 
   private async load(): Promise<void> {
     try {
-      this.shifts.set(await firstValueFrom(this.http.get<Shift[]>('/api/oncall', { params: { from: String(Date.now() - 7 * 86_400_000) } })));
+      this.shifts.set(await firstValueFrom(this.api.shifts({ from: Date.now() - 7 * 86_400_000 })));
       this.error.set(null);
     } catch (err) {
       this.error.set(errorText(err, 'The rota could not be loaded'));
@@ -406,7 +404,7 @@ export class OnCallPage {
   private async loadPeople(): Promise<void> {
     try {
       if (!this.auth.hasRole('planner', 'admin')) return;
-      const people = await firstValueFrom(this.http.get<Person[]>('/api/people', { params: { role: ONCALL_ROLES.join(',') } }));
+      const people = await firstValueFrom(this.api.people(ONCALL_ROLES));
       this.users.set(people.map((p) => ({ id: p.id, name: p.name, role: p.role })));
     } catch {
       /* falls back to the names in the rota */

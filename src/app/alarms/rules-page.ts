@@ -1,6 +1,5 @@
-import { HttpClient } from '@angular/common/http';
 import { ChangeDetectionStrategy, Component, computed, inject, signal } from '@angular/core';
-import { FormsModule } from '@angular/forms';
+import { FormControl, ReactiveFormsModule, Validators } from '@angular/forms';
 import { MatButtonModule } from '@angular/material/button';
 import { MatExpansionModule } from '@angular/material/expansion';
 import { MatFormFieldModule } from '@angular/material/form-field';
@@ -10,37 +9,21 @@ import { MatSelectModule } from '@angular/material/select';
 import { MatSlideToggleModule } from '@angular/material/slide-toggle';
 import { MatSnackBar } from '@angular/material/snack-bar';
 import { firstValueFrom } from 'rxjs';
-import { CHANNELS, ChannelKey } from '../../../shared/channels';
+import { CHANNELS } from '../../../shared/channels';
 import { PreferencesService } from '../core/preferences.service';
 import { FleetService } from '../fleet/fleet.service';
 import { formatAlarmValue, formatTime, priorityLook } from './alarm-labels';
+import { AlarmsAdminService, RuleDef, RulePreview } from './alarms-admin.service';
 import { errorText } from './alarms-api';
 import { ParamField, paramFields, paramUnit, ruleQuantity, toDisplay, toSi } from './rule-params';
 
-interface RuleDef {
-  key: string;
-  kind: string;
-  channel: ChannelKey;
-  priority: string;
-  enabled: boolean;
-  title: string;
-  meaning: string;
-  firstStep: string;
-  params: Record<string, unknown>;
-  overridden?: boolean;
-  override?: { rule: string; enabled: boolean; params: Record<string, unknown> | null } | null;
-}
 interface Draft {
   enabled: boolean;
   values: Record<string, number | null>;
   dirty: boolean;
 }
-interface Preview {
+interface Preview extends RulePreview {
   engineName?: string;
-  readings: number;
-  from: string;
-  to: string;
-  alarms: { raisedAt: string; clearedAt: string | null; value: number | null; message: string }[];
 }
 
 const UNIT_OF_KIND: Record<string, string | null> = { rate: '/min', boiling_margin: 'K', no_data: null };
@@ -52,12 +35,12 @@ const UNIT_OF_KIND: Record<string, string | null> = { rate: '/min', boiling_marg
 @Component({
   selector: 'jw-rules-page',
   changeDetection: ChangeDetectionStrategy.OnPush,
-  imports: [FormsModule, MatExpansionModule, MatFormFieldModule, MatInputModule, MatSelectModule, MatSlideToggleModule, MatButtonModule, MatIconModule],
+  imports: [ReactiveFormsModule, MatExpansionModule, MatFormFieldModule, MatInputModule, MatSelectModule, MatSlideToggleModule, MatButtonModule, MatIconModule],
   templateUrl: './rules-page.html',
   styleUrl: './rules-page.scss',
 })
 export class RulesPage {
-  private readonly http = inject(HttpClient);
+  private readonly api = inject(AlarmsAdminService);
   private readonly fleet = inject(FleetService);
   private readonly prefs = inject(PreferencesService);
   private readonly snack = inject(MatSnackBar);
@@ -74,6 +57,8 @@ export class RulesPage {
   protected readonly error = signal<string | null>(null);
   protected readonly saving = signal(false);
   protected readonly dirty = computed(() => Object.values(this.drafts()).some((d) => d.dirty));
+  /** One number control per rule parameter (rule key, then parameter name), made with each load; a change goes to the drafts. */
+  private readonly paramControls = signal<Record<string, Record<string, FormControl<number | null>>>>({});
 
   constructor() {
     if (!this.fleet.engines().length) void this.fleet.load();
@@ -131,6 +116,10 @@ export class RulesPage {
     });
   }
 
+  protected control(key: string, name: string): FormControl<number | null> {
+    return this.paramControls()[key][name];
+  }
+
   protected setEnabled(key: string, enabled: boolean): void {
     this.forgetPreview(key);
     this.drafts.update((d) => ({ ...d, [key]: { ...d[key], enabled, dirty: true } }));
@@ -168,7 +157,7 @@ export class RulesPage {
     }
     this.previews.update((p) => ({ ...p, [r.key]: 'Running over the last 7 days…' }));
     try {
-      const res = await firstValueFrom(this.http.post<Preview>('/api/rules/preview', { engineId, rule: r.key, params }));
+      const res = await firstValueFrom(this.api.previewRule(engineId, r.key, params));
       const engineName = this.engines().find((e) => e.id === engineId)?.name;
       this.previews.update((p) => ({ ...p, [r.key]: { ...res, engineName } }));
     } catch (err) {
@@ -190,12 +179,12 @@ export class RulesPage {
       if (engineId === null) {
         // the profile as sent: the definitions without the per-engine override fields
         const body = rules.map((rule) => {
-          const def: Partial<typeof rule> = { ...rule };
+          const def: Omit<RuleDef, 'overridden' | 'override'> & Partial<RuleDef> = { ...rule };
           delete def.overridden;
           delete def.override;
           return { ...def, enabled: this.drafts()[rule.key].enabled, params: { ...rule.params, ...this.siParams(rule) } };
         });
-        await firstValueFrom(this.http.put('/api/rules', { rules: body }));
+        await firstValueFrom(this.api.saveProfile(body));
       } else {
         // Keep earlier overrides; add one for every rule changed here.
         const overrides = rules
@@ -205,7 +194,7 @@ export class RulesPage {
             enabled: this.drafts()[r.key].enabled,
             params: this.drafts()[r.key].dirty ? this.siParams(r) : (r.override?.params ?? null),
           }));
-        await firstValueFrom(this.http.put(`/api/rules/engines/${engineId}`, { rules: overrides }));
+        await firstValueFrom(this.api.saveOverrides(engineId, overrides));
       }
       this.snack.open('Rules saved', undefined, { duration: 2500 });
       await this.load();
@@ -220,7 +209,7 @@ export class RulesPage {
     const id = this.engineId();
     if (id === null) return;
     try {
-      await firstValueFrom(this.http.put(`/api/rules/engines/${id}`, { rules: [] }));
+      await firstValueFrom(this.api.saveOverrides(id, []));
       this.snack.open('This engine follows the default profile again', undefined, { duration: 3000 });
       await this.load();
     } catch (err) {
@@ -231,10 +220,7 @@ export class RulesPage {
   protected async load(): Promise<void> {
     const id = this.engineId();
     try {
-      const rules =
-        id === null
-          ? (await firstValueFrom(this.http.get<{ rules: RuleDef[] }>('/api/rules'))).rules
-          : (await firstValueFrom(this.http.get<{ rules: RuleDef[] }>(`/api/rules/engines/${id}`))).rules;
+      const { rules } = await firstValueFrom(this.api.rules(id));
       const prefs = this.prefs.preferences();
       const drafts: Record<string, Draft> = {};
       for (const r of rules) {
@@ -243,6 +229,16 @@ export class RulesPage {
         for (const f of paramFields(r.kind)) if (typeof r.params[f.name] === 'number') values[f.name] = toDisplay(r.params[f.name] as number, f, q, prefs);
         drafts[r.key] = { enabled: r.enabled, values, dirty: false };
       }
+      const controls: Record<string, Record<string, FormControl<number | null>>> = {};
+      for (const [key, d] of Object.entries(drafts)) {
+        controls[key] = {};
+        for (const [name, v] of Object.entries(d.values)) {
+          const c = new FormControl<number | null>(v, Validators.required);
+          c.valueChanges.subscribe((typed) => this.setValue(key, name, typed));
+          controls[key][name] = c;
+        }
+      }
+      this.paramControls.set(controls);
       this.rules.set(rules);
       this.drafts.set(drafts);
       this.error.set(null);

@@ -11,8 +11,8 @@ describe('AdditiveForm', () => {
   async function render(sca: string, capacity: string, inputs: Record<string, unknown> = {}) {
     const fixture = TestBed.createComponent(AdditiveForm);
     for (const [k, v] of Object.entries(inputs)) fixture.componentRef.setInput(k, v);
-    fixture.componentInstance.scaText.set(sca);
-    fixture.componentInstance.capacityText.set(capacity);
+    fixture.componentInstance.form.controls.sca.setValue(sca);
+    fixture.componentInstance.form.controls.capacity.setValue(capacity);
     fixture.detectChanges();
     await fixture.whenStable();
     const el = fixture.nativeElement as HTMLElement;

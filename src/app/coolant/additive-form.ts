@@ -1,11 +1,12 @@
-import { ChangeDetectionStrategy, Component, computed, inject, input, linkedSignal } from '@angular/core';
-import { FormsModule } from '@angular/forms';
+import { ChangeDetectionStrategy, Component, computed, inject, input } from '@angular/core';
+import { NonNullableFormBuilder, ReactiveFormsModule } from '@angular/forms';
 import { MatButtonToggleModule } from '@angular/material/button-toggle';
 import { MatFormFieldModule } from '@angular/material/form-field';
 import { MatInputModule } from '@angular/material/input';
 import { AdditiveDecision, CoolantFamily, CoolantInputError, ScaLimits, decideAdditive } from '../../../shared/coolant';
 import { gallonsToLitres, litresToGallons } from '../../../shared/units';
 import { PreferencesService } from '../core/preferences.service';
+import { decimalText, formValue } from '../ui/form-value';
 import { AdditiveDecisionView } from './additive-decision';
 
 /** Parse a typed number; null for blank, NaN for junk (so the check can name the field). */
@@ -19,11 +20,11 @@ export const parseNumber = (text: string | null | undefined): number | null => {
 @Component({
   selector: 'jw-additive-form',
   changeDetection: ChangeDetectionStrategy.OnPush,
-  imports: [FormsModule, MatFormFieldModule, MatInputModule, MatButtonToggleModule, AdditiveDecisionView],
+  imports: [ReactiveFormsModule, MatFormFieldModule, MatInputModule, MatButtonToggleModule, AdditiveDecisionView],
   template: `
     @if (!familyLocked()) {
       <div class="row">
-        <mat-button-toggle-group [value]="family()" (change)="family.set($event.value)" aria-label="Coolant family">
+        <mat-button-toggle-group [formControl]="form.controls.family" aria-label="Coolant family">
           <mat-button-toggle value="conventional">Conventional</mat-button-toggle>
           <mat-button-toggle value="extended-life">Extended-life</mat-button-toggle>
         </mat-button-toggle-group>
@@ -46,7 +47,7 @@ export const parseNumber = (text: string | null | undefined): number | null => {
         @if (!scaDriven()) {
           <mat-form-field>
             <mat-label>SCA reading</mat-label>
-            <input matInput inputmode="decimal" name="sca" [ngModel]="scaText()" (ngModelChange)="scaText.set($event)" data-test="sca" />
+            <input matInput inputmode="decimal" name="sca" [formControl]="form.controls.sca" data-test="sca" />
             <span matTextSuffix>units/US gal</span>
             @if (error()?.field === 'scaUnitsPerGal') {
               <mat-hint class="err" role="alert">{{ error()!.message }}</mat-hint>
@@ -56,7 +57,7 @@ export const parseNumber = (text: string | null | undefined): number | null => {
         @if (!capacityLocked()) {
           <mat-form-field>
             <mat-label>Cooling-system capacity</mat-label>
-            <input matInput inputmode="decimal" name="capacity" [ngModel]="capacityText()" (ngModelChange)="capacityText.set($event)" data-test="capacity" />
+            <input matInput inputmode="decimal" name="capacity" [formControl]="form.controls.capacity" data-test="capacity" />
             <span matTextSuffix>{{ volumeUnit() === 'gal' ? 'US gal' : 'L' }}</span>
             @if (error()?.field === 'capacityL') {
               <mat-hint class="err" role="alert">{{ error()!.message }}</mat-hint>
@@ -102,14 +103,24 @@ export class AdditiveForm {
   protected readonly capacityLocked = computed(() => this.capacityL() !== null);
   /** The SCA reading comes from the form around this one: no second field for it. */
   protected readonly scaDriven = computed(() => this.scaUnitsPerGal() !== undefined);
-  readonly family = linkedSignal<CoolantFamily>(() => this.coolantFamily() ?? 'conventional');
-  readonly scaText = linkedSignal<string>(() => {
+  /** The fields shown when the engine page does not fix them: family, SCA reading, capacity in the user's unit. */
+  readonly form = inject(NonNullableFormBuilder).group({
+    family: ['conventional' as CoolantFamily],
+    sca: ['', decimalText],
+    capacity: ['', decimalText],
+  });
+  private readonly value = formValue(this.form);
+  /** What the decision uses: the engine's facts when given, else what was typed here. */
+  readonly family = computed<CoolantFamily>(() => this.coolantFamily() ?? this.value().family);
+  private readonly scaText = computed(() => {
+    if (!this.scaDriven()) return this.value().sca;
     const v = this.scaUnitsPerGal();
     return v === null || v === undefined ? '' : String(v);
   });
-  readonly capacityText = linkedSignal<string>(() => {
+  /** The capacity in the user's unit: the engine's (rounded to 0.1) or as typed. */
+  protected readonly capacityText = computed(() => {
     const c = this.capacityL();
-    if (c === null) return '';
+    if (c === null) return this.value().capacity;
     const v = this.volumeUnit() === 'gal' ? litresToGallons(c) : c;
     return String(Math.round(v * 10) / 10);
   });

@@ -1,5 +1,5 @@
-import { ChangeDetectionStrategy, Component, computed, inject, signal } from '@angular/core';
-import { FormsModule } from '@angular/forms';
+import { ChangeDetectionStrategy, Component, computed, inject } from '@angular/core';
+import { NonNullableFormBuilder, ReactiveFormsModule } from '@angular/forms';
 import { MatButtonToggleModule } from '@angular/material/button-toggle';
 import { MatCardModule } from '@angular/material/card';
 import { MatFormFieldModule } from '@angular/material/form-field';
@@ -22,6 +22,7 @@ import { PreferencesService } from '../core/preferences.service';
 import { AdditiveForm, parseNumber } from './additive-form';
 import { CoolantCautions } from './coolant-cautions';
 import { CoolantExplainer } from './coolant-explainer';
+import { decimalText, formValue } from '../ui/form-value';
 import { JwQuantitiesPipe } from '../ui/quantity-text';
 
 type Outcome<T> = { value: T; error: null } | { value: null; error: string } | { value: null; error: null };
@@ -43,7 +44,7 @@ function run<T>(inputs: (number | null)[], fn: () => T): Outcome<T> {
   selector: 'jw-calculators-page',
   changeDetection: ChangeDetectionStrategy.OnPush,
   imports: [
-    FormsModule,
+    ReactiveFormsModule,
     MatCardModule,
     MatFormFieldModule,
     MatInputModule,
@@ -60,43 +61,72 @@ function run<T>(inputs: (number | null)[], fn: () => T): Outcome<T> {
 })
 export class CalculatorsPage {
   private readonly prefs = inject(PreferencesService);
+  private readonly fb = inject(NonNullableFormBuilder);
   protected readonly tUnit = computed(() => UNIT_SYMBOL[this.prefs.temperatureUnit()]);
   protected readonly pUnit = computed(() => UNIT_SYMBOL[this.prefs.pressureUnit()]);
   protected readonly vUnit = computed(() => UNIT_SYMBOL[this.prefs.volumeUnit()]);
   protected readonly temp = (c: number) => `${fromCelsius(c, this.prefs.temperatureUnit()).toFixed(1)} ${this.tUnit()}`;
   protected readonly vol = (l: number) => `${(this.prefs.volumeUnit() === 'gal' ? litresToGallons(l) : l).toFixed(1)} ${this.vUnit()}`;
 
-  // shared mix inputs
-  readonly glycol = signal<GlycolType>('ethylene');
-  readonly basis = signal<ConcentrationBasis>('volume');
+  /** Every input of the page: text as typed (parsed in the answers below, so a field can name the junk). */
+  readonly form = this.fb.group({
+    // shared mix inputs
+    glycol: ['ethylene' as GlycolType],
+    basis: ['volume' as ConcentrationBasis],
+    // freeze point
+    percent: ['50', decimalText],
+    // glycol needed
+    design: ['', decimalText],
+    // boiling point
+    cap: ['', decimalText],
+    boilPercent: ['50', decimalText],
+    // mix correction; the additive level before and the liquid's strength (optional) give the dose that restores what the drain removes
+    mixCapacity: ['', decimalText],
+    measured: ['', decimalText],
+    target: ['50', decimalText],
+    premix: ['', decimalText],
+    mixSca: ['', decimalText],
+    mixStrength: ['', decimalText],
+    // make-up water
+    water: this.fb.group({
+      chlorideMgL: ['', decimalText],
+      sulfateMgL: ['', decimalText],
+      hardnessMgLCaCO3: ['', decimalText],
+      tdsMgL: ['', decimalText],
+      pH: ['', decimalText],
+      conductivityUsCm: ['', decimalText],
+    }),
+  });
+  protected readonly f = this.form.controls;
+  protected readonly water = this.form.controls.water.controls;
+  private readonly value = formValue(this.form);
+  protected readonly glycol = computed(() => this.value().glycol);
+  protected readonly basis = computed(() => this.value().basis);
 
   // freeze point
-  readonly percentText = signal('50');
   protected readonly freeze = computed(() => {
-    const p = parseNumber(this.percentText());
+    const p = parseNumber(this.value().percent);
     return run([p], () => assessFreezeProtection(this.glycol(), p!, this.basis()));
   });
   protected readonly tableSource = computed(() => freezeTable(this.glycol()).source);
 
   // glycol needed
-  readonly designText = signal('');
   protected readonly needed = computed(() => {
-    const t = parseNumber(this.designText());
+    const t = parseNumber(this.value().design);
     return run([t], () => percentForFreezePoint(this.glycol(), toCelsius(t!, this.prefs.temperatureUnit()), this.basis()));
   });
 
   // boiling point
-  readonly capText = signal('');
-  readonly boilPercentText = signal('50');
   protected readonly boiling = computed(() => {
-    const cap = parseNumber(this.capText());
-    const p = parseNumber(this.boilPercentText());
+    const v = this.value();
+    const cap = parseNumber(v.cap);
+    const p = parseNumber(v.boilPercent);
     return run([cap, p], () => ({
       capped: boilingPointC(toKpa(cap!, this.prefs.pressureUnit()), this.glycol(), p!, this.basis()),
       open: boilingPointC(0, this.glycol(), p!, this.basis()),
       capKpa: toKpa(cap!, this.prefs.pressureUnit()),
       /** The cap as it was entered, in the unit it was entered in. */
-      capText: `${this.capText().trim()} ${this.pUnit()}`,
+      capText: `${v.cap.trim()} ${this.pUnit()}`,
     }));
   });
   /** A pressure in the user's unit (kPa whole, psi one decimal, bar two). */
@@ -106,20 +136,14 @@ export class CalculatorsPage {
   };
 
   // mix correction
-  readonly mixCapacityText = signal('');
-  readonly measuredText = signal('');
-  readonly targetText = signal('50');
-  readonly premixText = signal('');
-  /** Optional: the additive level before and the liquid's strength, for the dose that restores what the drain removes. */
-  readonly mixScaText = signal('');
-  readonly mixStrengthText = signal('');
   protected readonly mix = computed(() => {
-    const cap = parseNumber(this.mixCapacityText());
-    const m = parseNumber(this.measuredText());
-    const t = parseNumber(this.targetText());
-    const pre = parseNumber(this.premixText());
-    const sca = parseNumber(this.mixScaText());
-    const strength = parseNumber(this.mixStrengthText());
+    const v = this.value();
+    const cap = parseNumber(v.mixCapacity);
+    const m = parseNumber(v.measured);
+    const t = parseNumber(v.target);
+    const pre = parseNumber(v.premix);
+    const sca = parseNumber(v.mixSca);
+    const strength = parseNumber(v.mixStrength);
     if ([pre, sca, strength].some((v) => v !== null && Number.isNaN(v)))
       return { value: null, error: 'Type a number (use a point for decimals).' } as Outcome<never>;
     return run([cap, m, t], () =>
@@ -135,16 +159,8 @@ export class CalculatorsPage {
   });
 
   // make-up water
-  readonly water = {
-    chlorideMgL: signal(''),
-    sulfateMgL: signal(''),
-    hardnessMgLCaCO3: signal(''),
-    tdsMgL: signal(''),
-    pH: signal(''),
-    conductivityUsCm: signal(''),
-  };
   protected readonly waterCheck = computed(() => {
-    const values = Object.fromEntries(Object.entries(this.water).map(([k, s]) => [k, parseNumber(s())]));
+    const values = Object.fromEntries(Object.entries(this.value().water).map(([k, s]) => [k, parseNumber(s)]));
     if (Object.values(values).every((v) => v === null)) return { value: null, error: null } as Outcome<never>;
     if (Object.values(values).some((v) => Number.isNaN(v))) return { value: null, error: 'Type numbers only (use a point for decimals).' } as Outcome<never>;
     const sample = Object.fromEntries(Object.entries(values).filter(([, v]) => v !== null)) as Record<string, number>;

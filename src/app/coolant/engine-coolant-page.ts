@@ -2,7 +2,7 @@ import { JwTimePipe } from '../ui/time-format';
 import { HttpErrorResponse } from '@angular/common/http';
 import { ChangeDetectionStrategy, Component, computed, inject, input, signal } from '@angular/core';
 import { toObservable, toSignal } from '@angular/core/rxjs-interop';
-import { FormsModule } from '@angular/forms';
+import { NonNullableFormBuilder, ReactiveFormsModule, Validators } from '@angular/forms';
 import { MatButtonModule } from '@angular/material/button';
 import { MatCardModule } from '@angular/material/card';
 import { MatCheckboxModule } from '@angular/material/checkbox';
@@ -20,6 +20,7 @@ import { PreferencesService } from '../core/preferences.service';
 import { EngineService } from '../engine/engine.service';
 import { FleetService } from '../fleet/fleet.service';
 import { DisplayZone } from '../core/display-zone';
+import { decimalText } from '../ui/form-value';
 import { AdditiveDecisionView } from './additive-decision';
 import { ChemistryFindings } from './chemistry-findings';
 import { CoolantExplainer } from './coolant-explainer';
@@ -48,7 +49,7 @@ const errorText = (e: unknown): string => {
   imports: [
     JwTimePipe,
     JwQuantitiesPipe,
-    FormsModule,
+    ReactiveFormsModule,
     RouterLink,
     MatButtonModule,
     MatCardModule,
@@ -125,17 +126,24 @@ export class EngineCoolantPage {
   protected readonly temp = (c: number | null) => (c === null ? '—' : `${fromCelsius(c, this.prefs.temperatureUnit()).toFixed(1)} ${this.tUnit()}`);
 
   // record form
-  readonly method = signal<TestMethod>('strip');
-  readonly scaText = signal('');
-  readonly glycolText = signal('');
-  readonly freezeText = signal('');
-  readonly phText = signal('');
-  readonly ecText = signal('');
-  readonly nitriteText = signal('');
-  readonly molybdateText = signal('');
-  readonly raText = signal('');
-  readonly appearance = signal('');
-  readonly notes = signal('');
+  private readonly fb = inject(NonNullableFormBuilder);
+  /** A test as typed: readings as text in the user's units (the freeze point too), named as the API names them. */
+  readonly form = this.fb.group({
+    method: ['strip' as TestMethod],
+    readings: this.fb.group({
+      scaUnitsPerGal: ['', decimalText],
+      glycolPercent: ['', decimalText],
+      freezePointC: ['', decimalText],
+      ph: ['', decimalText],
+      conductivityUsCm: ['', decimalText],
+      nitritePpm: ['', decimalText],
+      molybdatePpm: ['', decimalText],
+      reserveAlkalinityMl: ['', decimalText],
+    }),
+    appearance: ['', Validators.maxLength(200)],
+    notes: [''],
+  });
+  private readonly scaText = toSignal(this.form.controls.readings.controls.scaUnitsPerGal.valueChanges, { initialValue: '' });
   /** Glycol-breakdown signs ticked, and "looked, none seen" (neither: not looked at). */
   protected readonly signText = BREAKDOWN_SIGN_TEXT;
   protected readonly signKeys = BREAKDOWN_SIGNS;
@@ -161,20 +169,11 @@ export class EngineCoolantPage {
   protected readonly saved = signal<CoolantTest | null>(null);
 
   protected save(): void {
-    const nums = {
-      scaUnitsPerGal: this.scaText(),
-      glycolPercent: this.glycolText(),
-      freezePointC: this.freezeText(),
-      ph: this.phText(),
-      conductivityUsCm: this.ecText(),
-      nitritePpm: this.nitriteText(),
-      molybdatePpm: this.molybdateText(),
-      reserveAlkalinityMl: this.raText(),
-    };
+    const value = this.form.getRawValue();
     const parsed: Record<string, number | null> = {};
-    for (const [k, text] of Object.entries(nums)) {
+    for (const [k, text] of Object.entries(value.readings)) {
       const v = parseNumber(text);
-      if (v !== null && Number.isNaN(v)) {
+      if (this.form.controls.readings.get(k)?.invalid || (v !== null && Number.isNaN(v))) {
         this.saveError.set(`${k}: type a number (use a point for decimals)`);
         return;
       }
@@ -186,7 +185,7 @@ export class EngineCoolantPage {
       return;
     }
     const body: NewCoolantTest = {
-      method: this.method(),
+      method: value.method,
       scaUnitsPerGal: parsed['scaUnitsPerGal'],
       glycolPercent: parsed['glycolPercent'],
       freezePointC: parsed['freezePointC'] === null ? null : toCelsius(parsed['freezePointC'], this.prefs.temperatureUnit()),
@@ -196,8 +195,8 @@ export class EngineCoolantPage {
       molybdatePpm: parsed['molybdatePpm'],
       reserveAlkalinityMl: parsed['reserveAlkalinityMl'],
       breakdownSigns,
-      appearance: this.appearance().trim() || null,
-      notes: this.notes().trim() || null,
+      appearance: value.appearance.trim() || null,
+      notes: value.notes.trim() || null,
     };
     this.saving.set(true);
     this.saveError.set(null);
@@ -205,19 +204,7 @@ export class EngineCoolantPage {
       next: (t) => {
         this.saving.set(false);
         this.saved.set(t);
-        for (const s of [
-          this.scaText,
-          this.glycolText,
-          this.freezeText,
-          this.phText,
-          this.ecText,
-          this.nitriteText,
-          this.molybdateText,
-          this.raText,
-          this.appearance,
-          this.notes,
-        ])
-          s.set('');
+        this.form.reset({ method: value.method });
         this.signs.set(new Set());
         this.noSigns.set(false);
         this.reload.update((n) => n + 1);

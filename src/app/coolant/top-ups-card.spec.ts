@@ -46,8 +46,8 @@ describe('TopUpsCard', () => {
   it('records a top-up in US gallons as litres: 1 US gal -> 3.785411784 L', async () => {
     localStorage.setItem('jw.preferences', JSON.stringify({ temperature: 'degF', pressure: 'psi', volume: 'gal', theme: 'light' }));
     const fixture = await render({ topUps: [], estimate: null });
-    fixture.componentInstance.volumeText.set('1');
-    fixture.componentInstance.liquid.set('water');
+    fixture.componentInstance.form.controls.volume.setValue('1');
+    fixture.componentInstance.form.controls.liquid.setValue('water');
     (fixture.componentInstance as unknown as { save(): void }).save();
     const req = http.expectOne((r) => r.method === 'POST' && r.url === '/api/engines/7/coolant-top-ups');
     expect(req.request.body.volumeL).toBeCloseTo(3.785411784, 9);

@@ -1,7 +1,7 @@
 import { HttpErrorResponse } from '@angular/common/http';
 import { ChangeDetectionStrategy, Component, computed, inject, input, signal } from '@angular/core';
 import { toObservable, toSignal } from '@angular/core/rxjs-interop';
-import { FormsModule } from '@angular/forms';
+import { NonNullableFormBuilder, ReactiveFormsModule, Validators } from '@angular/forms';
 import { MatButtonModule } from '@angular/material/button';
 import { MatCardModule } from '@angular/material/card';
 import { MatFormFieldModule } from '@angular/material/form-field';
@@ -11,6 +11,7 @@ import { MatSelectModule } from '@angular/material/select';
 import { catchError, of, switchMap } from 'rxjs';
 import { gallonsToLitres } from '../../../shared/units';
 import { PreferencesService } from '../core/preferences.service';
+import { aboveZeroText, decimalText } from '../ui/form-value';
 import { JwQuantitiesPipe } from '../ui/quantity-text';
 import { JwTimePipe } from '../ui/time-format';
 import { formatStored } from '../ui/unit-format';
@@ -24,7 +25,17 @@ const LIQUID: Record<TopUpLiquid, string> = { water: 'Water', premix: 'Premix', 
 @Component({
   selector: 'jw-top-ups-card',
   changeDetection: ChangeDetectionStrategy.OnPush,
-  imports: [JwTimePipe, JwQuantitiesPipe, FormsModule, MatButtonModule, MatCardModule, MatFormFieldModule, MatIconModule, MatInputModule, MatSelectModule],
+  imports: [
+    JwTimePipe,
+    JwQuantitiesPipe,
+    ReactiveFormsModule,
+    MatButtonModule,
+    MatCardModule,
+    MatFormFieldModule,
+    MatIconModule,
+    MatInputModule,
+    MatSelectModule,
+  ],
   template: `
     <mat-card appearance="outlined">
       <mat-card-header><mat-card-title>Coolant added (top-ups)</mat-card-title></mat-card-header>
@@ -49,31 +60,29 @@ const LIQUID: Record<TopUpLiquid, string> = { water: 'Water', premix: 'Premix', 
           <p class="why">No test with an additive or glycol reading yet: no estimate.</p>
         }
         @if (canRecord()) {
-          <form class="form" (ngSubmit)="save()">
-            <mat-form-field
-              ><mat-label>Volume added</mat-label
-              ><input matInput inputmode="decimal" name="volume" [ngModel]="volumeText()" (ngModelChange)="volumeText.set($event)" /><span matTextSuffix>{{
+          <form class="form" [formGroup]="form" (ngSubmit)="save()">
+            <mat-form-field hideRequiredMarker
+              ><mat-label>Volume added</mat-label><input matInput inputmode="decimal" formControlName="volume" /><span matTextSuffix>{{
                 volumeUnit() === 'gal' ? 'US gal' : 'L'
               }}</span></mat-form-field
             >
             <mat-form-field>
               <mat-label>What was added</mat-label>
-              <mat-select name="liquid" [value]="liquid()" (selectionChange)="liquid.set($event.value)">
+              <mat-select formControlName="liquid">
                 <mat-option value="water">Water</mat-option>
                 <mat-option value="premix">Premix</mat-option>
                 <mat-option value="glycol">Glycol (concentrate)</mat-option>
               </mat-select>
             </mat-form-field>
             @if (liquid() === 'premix') {
-              <mat-form-field
-                ><mat-label>Premix glycol</mat-label
-                ><input matInput inputmode="decimal" name="premix" [ngModel]="premixText()" (ngModelChange)="premixText.set($event)" /><span matTextSuffix
+              <mat-form-field hideRequiredMarker
+                ><mat-label>Premix glycol</mat-label><input matInput inputmode="decimal" formControlName="premix" /><span matTextSuffix
                   >% by volume</span
                 ></mat-form-field
               >
             }
             <mat-form-field class="wide"
-              ><mat-label>Notes</mat-label><input matInput name="topUpNotes" maxlength="500" [ngModel]="notes()" (ngModelChange)="notes.set($event)"
+              ><mat-label>Notes</mat-label><input matInput name="topUpNotes" maxlength="500" formControlName="notes"
             /></mat-form-field>
             @if (error()) {
               <p class="error" role="alert">{{ error() }}</p>
@@ -162,10 +171,14 @@ export class TopUpsCard {
     { initialValue: { topUps: [], estimate: null } as TopUpsAnswer },
   );
 
-  readonly volumeText = signal('');
-  readonly liquid = signal<TopUpLiquid>('premix');
-  readonly premixText = signal('50');
-  readonly notes = signal('');
+  /** A top-up as typed: the volume in the user's unit, the premix share only for premix. */
+  readonly form = inject(NonNullableFormBuilder).group({
+    volume: ['', [Validators.required, aboveZeroText]],
+    liquid: ['premix' as TopUpLiquid],
+    premix: ['50', [Validators.required, decimalText]],
+    notes: ['', Validators.maxLength(500)],
+  });
+  protected readonly liquid = toSignal(this.form.controls.liquid.valueChanges, { initialValue: this.form.controls.liquid.value });
   protected readonly saving = signal(false);
   protected readonly error = signal<string | null>(null);
 
@@ -175,24 +188,26 @@ export class TopUpsCard {
   }
 
   protected save(): void {
-    const v = parseNumber(this.volumeText());
-    if (v === null || Number.isNaN(v) || v <= 0) {
+    const c = this.form.controls;
+    if (c.volume.invalid) {
       this.error.set('volumeL: type the volume added (a number above 0).');
       return;
     }
-    const premix = this.liquid() === 'premix' ? parseNumber(this.premixText()) : null;
-    if (this.liquid() === 'premix' && (premix === null || Number.isNaN(premix))) {
+    const liquid = c.liquid.value;
+    if (liquid === 'premix' && c.premix.invalid) {
       this.error.set('premixPercent: type the glycol share of the premix.');
       return;
     }
+    const v = parseNumber(c.volume.value)!;
+    const premix = liquid === 'premix' ? parseNumber(c.premix.value) : null;
     const volumeL = this.volumeUnit() === 'gal' ? gallonsToLitres(v) : v;
     this.saving.set(true);
     this.error.set(null);
-    this.api.recordTopUp(this.engineId(), { volumeL, liquid: this.liquid(), premixPercent: premix, notes: this.notes().trim() || null }).subscribe({
+    this.api.recordTopUp(this.engineId(), { volumeL, liquid, premixPercent: premix, notes: c.notes.value.trim() || null }).subscribe({
       next: () => {
         this.saving.set(false);
-        this.volumeText.set('');
-        this.notes.set('');
+        this.form.patchValue({ volume: '', notes: '' });
+        this.form.markAsUntouched();
         this.reload.update((n) => n + 1);
       },
       error: (e: unknown) => {

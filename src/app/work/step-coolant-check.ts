@@ -1,22 +1,15 @@
-import { HttpClient, HttpErrorResponse } from '@angular/common/http';
+import { HttpErrorResponse } from '@angular/common/http';
 import { ChangeDetectionStrategy, Component, computed, effect, inject, input, output, signal, untracked } from '@angular/core';
 import { MatButtonModule } from '@angular/material/button';
 import { MatIconModule } from '@angular/material/icon';
 import { RouterLink } from '@angular/router';
-import { CoolantInputError, decideAdditive, type AdditiveDecision, type CoolantFamily } from '../../../shared/coolant';
+import { CoolantInputError, decideAdditive, type AdditiveDecision } from '../../../shared/coolant';
 import { AdditiveDecisionView } from '../coolant/additive-decision';
 import { ChemistryFindings } from '../coolant/chemistry-findings';
 import { AdditiveProfile } from '../coolant/coolant-types';
 import { CoolantService } from '../coolant/coolant.service';
-import { errorText, WorkApi } from './work-api';
+import { EngineFacts, errorText, WorkApi } from './work-api';
 import { OrderCoolantTest, WorkOrderDetail } from './work-types';
-
-interface EngineFacts {
-  id: number;
-  name: string;
-  capacityL: number;
-  coolantFamily: CoolantFamily;
-}
 
 /**
  * Inside a coolant-test work order: the additive decision and dose for THIS engine from the readings
@@ -87,7 +80,6 @@ interface EngineFacts {
   `,
 })
 export class StepCoolantCheck {
-  private readonly http = inject(HttpClient);
   private readonly coolant = inject(CoolantService);
 
   readonly engineId = input.required<number>();
@@ -135,7 +127,10 @@ export class StepCoolantCheck {
     effect(() => {
       const id = this.engineId();
       untracked(() => {
-        this.http.get<EngineFacts>(`/api/engines/${id}`).subscribe({ next: (e) => this.engine.set(e), error: (e) => this.error.set(errorText(e)) });
+        this.work.engineFacts(id).then(
+          (e) => this.engine.set(e),
+          (e) => this.error.set(errorText(e)),
+        );
         this.coolant.profile().subscribe({ next: (p) => this.profile.set(p), error: () => this.profile.set(null) });
       });
     });

@@ -1,6 +1,7 @@
 import { HttpClient, HttpErrorResponse } from '@angular/common/http';
 import { Injectable, inject } from '@angular/core';
 import { firstValueFrom } from 'rxjs';
+import type { CoolantFamily } from '../../../shared/coolant';
 import { isNoAnswer } from '../core/network-status';
 import { ReadingBucket } from './cooldown-series';
 import {
@@ -15,6 +16,14 @@ import {
   WorkStatus,
   WorkTemplate,
 } from './work-types';
+
+/** What the coolant check of a work order needs to know of its engine. */
+export interface EngineFacts {
+  id: number;
+  name: string;
+  capacityL: number;
+  coolantFamily: CoolantFamily;
+}
 
 export interface ListFilter {
   status?: WorkStatus[];
@@ -146,6 +155,11 @@ export class WorkApi {
 
   sites(): Promise<{ id: number; name: string }[]> {
     return firstValueFrom(this.http.get<{ id: number; name: string }[]>('/api/sites'));
+  }
+
+  /** The engine facts a coolant decision needs (GET /api/engines/:id answers more). */
+  engineFacts(id: number): Promise<EngineFacts> {
+    return firstValueFrom(this.http.get<EngineFacts>(`/api/engines/${id}`));
   }
 
   engines(): Promise<{ id: number; name: string; siteId: number }[]> {

@@ -1,6 +1,6 @@
 import { DOCUMENT } from '@angular/common';
 import { ChangeDetectionStrategy, Component, computed, inject, signal } from '@angular/core';
-import { FormsModule } from '@angular/forms';
+import { NonNullableFormBuilder, ReactiveFormsModule } from '@angular/forms';
 import { MatButtonModule } from '@angular/material/button';
 import { MatFormFieldModule } from '@angular/material/form-field';
 import { MatIconModule } from '@angular/material/icon';
@@ -26,7 +26,7 @@ interface WeekGroup {
 @Component({
   selector: 'jw-work-list-page',
   changeDetection: ChangeDetectionStrategy.OnPush,
-  imports: [FormsModule, MatButtonModule, MatFormFieldModule, MatIconModule, MatProgressBarModule, MatSelectModule, MatTableModule, RouterLink],
+  imports: [ReactiveFormsModule, MatButtonModule, MatFormFieldModule, MatIconModule, MatProgressBarModule, MatSelectModule, MatTableModule, RouterLink],
   template: `
     <div class="page">
       <header class="head">
@@ -38,10 +38,10 @@ interface WeekGroup {
         }
       </header>
 
-      <div class="filters">
+      <div class="filters" [formGroup]="filters">
         <mat-form-field appearance="outline" subscriptSizing="dynamic">
           <mat-label>Status</mat-label>
-          <mat-select multiple [ngModel]="statuses()" (ngModelChange)="statuses.set($event); reload()">
+          <mat-select multiple formControlName="statuses" (selectionChange)="reload()">
             @for (s of allStatuses; track s) {
               <mat-option [value]="s">{{ statusText[s] }}</mat-option>
             }
@@ -49,7 +49,7 @@ interface WeekGroup {
         </mat-form-field>
         <mat-form-field appearance="outline" subscriptSizing="dynamic">
           <mat-label>Site</mat-label>
-          <mat-select [ngModel]="siteId()" (ngModelChange)="siteId.set($event); reload()">
+          <mat-select formControlName="siteId" (selectionChange)="reload()">
             <mat-option [value]="null">All sites</mat-option>
             @for (s of sites(); track s.id) {
               <mat-option [value]="s.id">{{ s.name }}</mat-option>
@@ -58,7 +58,7 @@ interface WeekGroup {
         </mat-form-field>
         <mat-form-field appearance="outline" subscriptSizing="dynamic">
           <mat-label>Assignee</mat-label>
-          <mat-select [ngModel]="assigneeId()" (ngModelChange)="assigneeId.set($event); reload()">
+          <mat-select formControlName="assigneeId" (selectionChange)="reload()">
             <mat-option [value]="null">Anyone</mat-option>
             @for (a of assignees(); track a.id) {
               <mat-option [value]="a.id">{{ a.name }}</mat-option>
@@ -242,9 +242,13 @@ export class WorkListPage {
   protected readonly columns = ['due', 'status', 'order', 'engine', 'priority', 'assignee', 'progress'];
   protected readonly fmtDate = formatDate;
 
-  protected readonly statuses = signal<WorkStatus[]>([...OPEN_STATUSES]);
-  protected readonly siteId = signal<number | null>(null);
-  protected readonly assigneeId = signal<number | null>(null);
+  private readonly fb = inject(NonNullableFormBuilder);
+  /** The list's filters; a change asks the server again (selectionChange, after the control has the value). */
+  protected readonly filters = this.fb.group({
+    statuses: this.fb.control<WorkStatus[]>([...OPEN_STATUSES]),
+    siteId: this.fb.control<number | null>(null),
+    assigneeId: this.fb.control<number | null>(null),
+  });
   protected readonly orders = signal<WorkOrderSummary[]>([]);
   protected readonly sites = signal<{ id: number; name: string }[]>([]);
   protected readonly assignees = signal<Assignee[]>([]);
@@ -296,7 +300,8 @@ export class WorkListPage {
     this.loading.set(true);
     this.error.set(null);
     try {
-      this.orders.set(await this.api.list({ status: this.statuses(), siteId: this.siteId() ?? undefined, assigneeId: this.assigneeId() ?? undefined }));
+      const f = this.filters.getRawValue();
+      this.orders.set(await this.api.list({ status: f.statuses, siteId: f.siteId ?? undefined, assigneeId: f.assigneeId ?? undefined }));
     } catch (e) {
       this.error.set(errorText(e));
     } finally {

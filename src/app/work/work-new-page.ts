@@ -1,6 +1,6 @@
 import { ChangeDetectionStrategy, Component, ElementRef, computed, effect, inject, input, signal, untracked, viewChild } from '@angular/core';
 import { toSignal } from '@angular/core/rxjs-interop';
-import { FormsModule } from '@angular/forms';
+import { NonNullableFormBuilder, ReactiveFormsModule, Validators } from '@angular/forms';
 import { MatButtonModule } from '@angular/material/button';
 import { MatCardModule } from '@angular/material/card';
 import { MatFormFieldModule } from '@angular/material/form-field';
@@ -13,6 +13,7 @@ import { checkDueDate, MAX_DUE, MIN_DUE } from './due-date';
 import { ActivatedRoute, Router, RouterLink } from '@angular/router';
 import { map } from 'rxjs';
 import { AuthService } from '../core/auth.service';
+import { formValue } from '../ui/form-value';
 import { WorkApi, errorText } from './work-api';
 import { KIND_ALIASES, PRIORITY_TEXT } from './work-labels';
 import { Assignee, WorkPriority, WorkTemplate } from './work-types';
@@ -24,7 +25,17 @@ import { Assignee, WorkPriority, WorkTemplate } from './work-types';
 @Component({
   selector: 'jw-work-new-page',
   changeDetection: ChangeDetectionStrategy.OnPush,
-  imports: [FormsModule, MatButtonModule, MatCardModule, MatFormFieldModule, MatIconModule, MatInputModule, MatSelectModule, MatDatepickerModule, RouterLink],
+  imports: [
+    ReactiveFormsModule,
+    MatButtonModule,
+    MatCardModule,
+    MatFormFieldModule,
+    MatIconModule,
+    MatInputModule,
+    MatSelectModule,
+    MatDatepickerModule,
+    RouterLink,
+  ],
   providers: [provideNativeDateAdapter()],
   template: `
     <div class="page">
@@ -38,10 +49,10 @@ import { Assignee, WorkPriority, WorkTemplate } from './work-types';
       @if (!planner()) {
         <p class="hint">Your request goes to the planner, who accepts or declines it.</p>
       }
-      <form class="form" (ngSubmit)="submit(dueText())">
+      <form class="form" [formGroup]="form" (ngSubmit)="submit(dueText())">
         <mat-form-field appearance="outline">
           <mat-label>Engine</mat-label>
-          <mat-select name="engine" [(ngModel)]="engine" required>
+          <mat-select formControlName="engine" required>
             @for (e of engines(); track e.id) {
               <mat-option [value]="e.id">{{ siteName(e.siteId) }} · {{ e.name }}</mat-option>
             }
@@ -49,7 +60,7 @@ import { Assignee, WorkPriority, WorkTemplate } from './work-types';
         </mat-form-field>
         <mat-form-field appearance="outline">
           <mat-label>Kind of work</mat-label>
-          <mat-select name="kind" [(ngModel)]="kind" required>
+          <mat-select formControlName="kind" required>
             @for (t of templates(); track t.kind) {
               <mat-option [value]="t.kind">{{ t.title }}</mat-option>
             }
@@ -57,15 +68,15 @@ import { Assignee, WorkPriority, WorkTemplate } from './work-types';
         </mat-form-field>
         <mat-form-field appearance="outline">
           <mat-label>Title (optional)</mat-label>
-          <input matInput name="title" [(ngModel)]="title" maxlength="200" />
+          <input matInput formControlName="title" maxlength="200" />
         </mat-form-field>
         <mat-form-field appearance="outline">
           <mat-label>Description</mat-label>
-          <textarea matInput name="description" [(ngModel)]="description" rows="3" maxlength="4000"></textarea>
+          <textarea matInput formControlName="description" rows="3" maxlength="4000"></textarea>
         </mat-form-field>
         <mat-form-field appearance="outline">
           <mat-label>Priority</mat-label>
-          <mat-select name="priority" [(ngModel)]="priority">
+          <mat-select formControlName="priority">
             <mat-option [value]="null">{{ alarmId() ? 'As the alarm' : 'Medium' }}</mat-option>
             @for (p of priorities; track p) {
               <mat-option [value]="p">{{ priorityText[p] }}</mat-option>
@@ -75,13 +86,13 @@ import { Assignee, WorkPriority, WorkTemplate } from './work-types';
         @if (planner()) {
           <mat-form-field appearance="outline">
             <mat-label>Due date</mat-label>
-            <input matInput name="due" [matDatepicker]="duePicker" [min]="minDue" [max]="maxDue" [(ngModel)]="dueDate" #dueInput />
+            <input matInput formControlName="dueDate" [matDatepicker]="duePicker" [min]="minDue" [max]="maxDue" #dueInput />
             <mat-datepicker-toggle matIconSuffix [for]="duePicker" />
             <mat-datepicker #duePicker />
           </mat-form-field>
           <mat-form-field appearance="outline">
             <mat-label>Assign to</mat-label>
-            <mat-select name="assignee" [(ngModel)]="assigneeId">
+            <mat-select formControlName="assigneeId">
               <mat-option [value]="null">Not yet</mat-option>
               @for (a of assignees(); track a.id) {
                 <mat-option [value]="a.id">{{ a.name }}</mat-option>
@@ -94,7 +105,7 @@ import { Assignee, WorkPriority, WorkTemplate } from './work-types';
         }
         <div class="actions">
           <a mat-button routerLink="/work">Cancel</a>
-          <button mat-flat-button type="submit" [disabled]="busy() || !engine || !kind">{{ planner() ? 'Create work order' : 'Send request' }}</button>
+          <button mat-flat-button type="submit" [disabled]="busy() || !ready()">{{ planner() ? 'Create work order' : 'Send request' }}</button>
         </div>
       </form>
     </div>
@@ -153,27 +164,37 @@ export class WorkNewPage {
   protected readonly priorities: WorkPriority[] = ['low', 'medium', 'high', 'urgent'];
   protected readonly priorityText = PRIORITY_TEXT;
 
-  protected engine: number | null = null;
-  protected kind: string | null = null;
-  protected title = '';
-  protected description = '';
-  protected priority: WorkPriority | null = null;
-  protected dueDate: Date | null = null;
+  private readonly fb = inject(NonNullableFormBuilder);
+  /** The order asked for; the engine and the kind are required, the rest optional (the server checks it all again). */
+  readonly form = this.fb.group({
+    engine: this.fb.control<number | null>(null, Validators.required),
+    kind: this.fb.control<string | null>(null, Validators.required),
+    title: ['', Validators.maxLength(200)],
+    description: ['', Validators.maxLength(4000)],
+    priority: this.fb.control<WorkPriority | null>(null),
+    dueDate: this.fb.control<Date | null>(null),
+    assigneeId: this.fb.control<number | null>(null),
+  });
+  private readonly value = formValue(this.form);
+  /** Engine and kind chosen (a typed due date is checked on submit, with its own message). */
+  protected readonly ready = computed(() => {
+    const v = this.value();
+    return !!v.engine && !!v.kind;
+  });
   protected readonly minDue = MIN_DUE;
   protected readonly maxDue = MAX_DUE;
   private readonly dueInput = viewChild<ElementRef<HTMLInputElement>>('dueInput');
   protected dueText(): string {
     return this.dueInput()?.nativeElement.value ?? '';
   }
-  protected assigneeId: number | null = null;
 
   constructor() {
     effect(() => {
       const e = Number(this.engineId());
       const k = this.kindParam();
       untracked(() => {
-        if (e > 0) this.engine = e;
-        if (k) this.kind = KIND_ALIASES[k] ?? k;
+        if (e > 0) this.form.controls.engine.setValue(e);
+        if (k) this.form.controls.kind.setValue(KIND_ALIASES[k] ?? k);
       });
     });
     this.api.templates().then(
@@ -200,22 +221,23 @@ export class WorkNewPage {
   }
 
   protected async submit(typedDue = ''): Promise<void> {
-    if (!this.engine || !this.kind) return;
-    const due = checkDueDate(this.dueDate, typedDue);
+    const v = this.form.getRawValue();
+    if (!v.engine || !v.kind) return;
+    const due = checkDueDate(v.dueDate, typedDue);
     if (!due.ok) return void this.error.set(`Due date: ${due.message}`);
     this.busy.set(true);
     this.error.set(null);
     try {
       const alarm = Number(this.alarmId());
       const o = await this.api.create({
-        engineId: this.engine,
-        kind: this.kind,
+        engineId: v.engine,
+        kind: v.kind,
         ...(alarm > 0 ? { alarmId: alarm } : {}),
-        ...(this.title.trim() ? { title: this.title.trim() } : {}),
-        ...(this.description.trim() ? { description: this.description.trim() } : {}),
-        ...(this.priority ? { priority: this.priority } : {}),
+        ...(v.title.trim() ? { title: v.title.trim() } : {}),
+        ...(v.description.trim() ? { description: v.description.trim() } : {}),
+        ...(v.priority ? { priority: v.priority } : {}),
         ...(this.planner() && due.value ? { dueDate: due.value } : {}),
-        ...(this.planner() && this.assigneeId ? { assigneeId: this.assigneeId } : {}),
+        ...(this.planner() && v.assigneeId ? { assigneeId: v.assigneeId } : {}),
       });
       void this.router.navigate(['/work', o.id]);
     } catch (e) {
