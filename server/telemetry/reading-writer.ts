@@ -2,7 +2,7 @@ import { QueryTypes, type Sequelize } from 'sequelize';
 import type { Logger } from '../logger';
 import type { Counters } from './counters';
 import { ReadingBlock, type IngestBuffer } from './ingest-buffer';
-import { dialectOf, insertReadingsSql, upsertRollupsSql, type InsertedReadingRow, type RollupPeriod } from './sql';
+import { dialectOf, INSERT_READINGS_JSON_SQL, insertReadingsSql, readingsJson, upsertRollupsSql, type InsertedReadingRow, type RollupPeriod } from './sql';
 import { faultPoint } from './fault-point';
 
 export interface WriterOptions {
@@ -78,7 +78,7 @@ export function aggregateHours(minutes: RollupRow[]): RollupRow[] {
 
 /** The slice of node-sqlite3's Database the writer uses. */
 interface SqliteHandle {
-  run(sql: string, params: unknown[], cb: (err: Error | null) => void): unknown;
+  run(sql: string, params: unknown[], cb: (this: { changes: number }, err: Error | null) => void): unknown;
   all(sql: string, params: unknown[], cb: (err: Error | null, rows: InsertedReadingRow[]) => void): unknown;
   exec(sql: string, cb: (err: Error | null) => void): unknown;
   prepare(sql: string, cb: (err: Error | null) => void): SqliteStatement;
@@ -86,7 +86,8 @@ interface SqliteHandle {
 
 interface SqliteStatement {
   all(params: unknown[], cb: (err: Error | null, rows: InsertedReadingRow[]) => void): unknown;
-  run(params: unknown[], cb: (err: Error | null) => void): unknown;
+  /** node-sqlite3 calls back with `this.changes`: rows the statement changed. */
+  run(params: unknown[], cb: (this: { changes: number }, err: Error | null) => void): unknown;
   finalize(cb: () => void): unknown;
 }
 
@@ -123,6 +124,8 @@ export class ReadingWriter {
   private handle: Promise<SqliteHandle> | null = null;
   /** The full-size INSERT, prepared once: compiling a 500-row statement each time costs as much as running it. */
   private fullInsert: Promise<SqliteStatement> | null = null;
+  /** The JSON insert (any row count), prepared once. */
+  private jsonInsert: Promise<SqliteStatement> | null = null;
   /** The full-size rollup upsert, prepared once for the same reason (a flood fills several per flush). */
   private fullRollup: Promise<SqliteStatement> | null = null;
 
@@ -212,19 +215,43 @@ export class ReadingWriter {
     return this.handle;
   }
 
-  /** One transaction; returns how many rows were inserted (the rest were already stored). */
+  /**
+   * Returns how many rows were inserted (the rest were already stored). First one transaction of JSON inserts
+   * without RETURNING (see INSERT_READINGS_JSON_SQL): when every statement inserted all of its rows, as in
+   * the usual case, the rollups take the batch as it is. When a statement skipped a row (a redelivery or a
+   * repeated reading), that transaction is rolled back and the batch is written again asking for the rows
+   * inserted, so that only those reach the rollups.
+   */
   private async writeSqlite(rows: ReadingBlock): Promise<number> {
     const db = await this.sqliteHandle();
+    return (await this.writeSqliteOnce(db, rows, false)) ?? (await this.writeSqliteOnce(db, rows, true))!;
+  }
+
+  /** One transaction; null (rolled back) when `returning` is false and some row was already stored. */
+  private async writeSqliteOnce(db: SqliteHandle, rows: ReadingBlock, returning: boolean): Promise<number | null> {
     await exec(db, 'BEGIN IMMEDIATE');
     try {
       const stored = new NewRows(rows);
       for (let i = 0; i < rows.length; i += this.perStatement) {
         const n = Math.min(this.perStatement, rows.length - i);
-        const back =
-          n === this.perStatement
-            ? await allPrepared(await this.fullInsertStatement(db), readingBinds(rows, i, n))
-            : await all(db, insertReadingsSql(n), readingBinds(rows, i, n));
-        stored.add(i, n, back);
+        if (returning) {
+          const back =
+            n === this.perStatement
+              ? await allPrepared(await this.fullInsertStatement(db), readingBinds(rows, i, n))
+              : await all(db, insertReadingsSql(n), readingBinds(rows, i, n));
+          stored.add(i, n, back);
+          continue;
+        }
+        const json = readingsJson(rows.engine, rows.channel, rows.ts, rows.value, rows.quality, i, n);
+        const changes =
+          json !== null
+            ? await runPreparedChanges(await this.jsonInsertStatement(db), [json])
+            : await runChanges(db, insertReadingsSql(n, false), readingBinds(rows, i, n));
+        if (changes !== n) {
+          await exec(db, 'ROLLBACK');
+          return null;
+        }
+        stored.addAll(i, n);
       }
       const fullRollupSql = upsertRollupsSql(this.dialect, this.perRollup);
       for (const [sql, bind] of this.rollupStatements(stored.rows())) {
@@ -238,6 +265,16 @@ export class ReadingWriter {
       await exec(db, 'ROLLBACK').catch(() => undefined);
       throw err;
     }
+  }
+
+  private jsonInsertStatement(db: SqliteHandle): Promise<SqliteStatement> {
+    this.jsonInsert ??= new Promise<SqliteStatement>((resolve, reject) => {
+      const stmt = db.prepare(INSERT_READINGS_JSON_SQL, (err) => (err ? reject(err) : resolve(stmt)));
+    }).catch((err) => {
+      this.jsonInsert = null;
+      throw err;
+    });
+    return this.jsonInsert;
   }
 
   private fullRollupStatement(db: SqliteHandle): Promise<SqliteStatement> {
@@ -328,12 +365,13 @@ export class ReadingWriter {
       if (this.buffer.size >= before) attempts++;
     }
     // an unfinalized statement would keep the connection from closing with the others in sequelize.close()
-    for (const prepared of [this.fullInsert, this.fullRollup]) {
+    for (const prepared of [this.fullInsert, this.fullRollup, this.jsonInsert]) {
       const stmt = await prepared?.catch(() => null);
       if (stmt) await new Promise<void>((resolve) => stmt.finalize(() => resolve()));
     }
     this.fullInsert = null;
     this.fullRollup = null;
+    this.jsonInsert = null;
   }
 }
 
@@ -346,6 +384,12 @@ class NewRows {
   private all = true;
   private kept: ReadingBlock | null = null;
   constructor(private readonly batch: ReadingBlock) {}
+
+  /** Every row of [from, from + n) was inserted. */
+  addAll(from: number, n: number): void {
+    this.count += n;
+    if (!this.all) this.kept!.append(this.batch, from, from + n);
+  }
 
   add(from: number, n: number, back: InsertedReadingRow[]): void {
     this.count += back.length;
@@ -387,6 +431,21 @@ const run = (db: SqliteHandle, sql: string, params: unknown[]) =>
 const all = (db: SqliteHandle, sql: string, params: unknown[]) =>
   new Promise<InsertedReadingRow[]>((resolve, reject) => {
     db.all(sql, params, (err, rows) => (err ? reject(err) : resolve(rows)));
+  });
+/** Runs and gives the number of rows changed. */
+const runChanges = (db: SqliteHandle, sql: string, params: unknown[]) =>
+  new Promise<number>((resolve, reject) => {
+    db.run(sql, params, function (err) {
+      if (err) reject(err);
+      else resolve(this.changes);
+    });
+  });
+const runPreparedChanges = (stmt: SqliteStatement, params: unknown[]) =>
+  new Promise<number>((resolve, reject) => {
+    stmt.run(params, function (err) {
+      if (err) reject(err);
+      else resolve(this.changes);
+    });
   });
 const runPrepared = (stmt: SqliteStatement, params: unknown[]) =>
   new Promise<void>((resolve, reject) => {

@@ -46,6 +46,12 @@ function isDue(t: number, deadline: number, before: boolean): boolean {
   return before ? t > deadline : t >= deadline;
 }
 
+/** True when advanceDelays(st, t, ...) would complete a delay (so it has events to report). */
+function anyDue(st: DelayedState, t: number, on: number, off: number, before: boolean): boolean {
+  if (st.active) return st.clearSince !== null && isDue(t, st.clearSince + off, before);
+  return st.since !== null && isDue(t, st.since + on, before);
+}
+
 /**
  * Let time pass to `t` with the held value: complete any on- or off-delay that has run out.
  * `before` (used when a new value arrives at t): the held value only counts strictly before t,
@@ -78,23 +84,38 @@ export function applyStatus(
   d: DelayTimes,
   m: DelayMessages,
 ): { state: DelayedState; events: RuleEvent[] } {
+  // The usual reading completes no delay: one new state and one (empty) event list, nothing more. This runs
+  // for every reading of most rules, and the general path below allocated five objects and arrays each time.
+  const on = (d.onDelayS ?? 0) * 1000;
+  const off = (d.offDelayS ?? 0) * 1000;
+  if (!anyDue(st, t, on, off, true)) {
+    const s = withValue(st, t, status, value, m);
+    return anyDue(s, t, on, off, false) ? advanceDelays(s, t, d, m) : { state: s, events: [] };
+  }
   const first = advanceDelays(st, t, d, m, true);
-  const s = { ...first.state, heldValue: value };
+  const s = withValue(first.state, t, status, value, m);
+  const second = advanceDelays(s, t, d, m);
+  return { state: second.state, events: [...first.events, ...second.events] };
+}
+
+/** A copy of the state holding `value`, with the condition's start or the return's start updated. */
+function withValue(st: DelayedState, t: number, status: ConditionStatus, value: number, m: DelayMessages): DelayedState {
+  const s = { ...st, heldValue: value };
   if (s.active) {
     if (s.worstValue === null || m.worse(value, s.worstValue)) s.worstValue = value;
     s.clearSince = status === 'normal' ? (s.clearSince ?? t) : null;
   } else {
     s.since = status === 'alarm' ? (s.since ?? t) : null;
   }
-  const second = advanceDelays(s, t, d, m);
-  return { state: second.state, events: [...first.events, ...second.events] };
+  return s;
 }
 
 /** The rule no longer applies (gated off by engine state): forget pending delays, clear an active alarm now. */
 export function forceNormal(st: DelayedState, t: number, d: DelayTimes, m: DelayMessages, why: string): { state: DelayedState; events: RuleEvent[] } {
-  const first = advanceDelays(st, t, d, m, true);
-  const events = [...first.events];
-  let s = first.state;
+  const due = anyDue(st, t, (d.onDelayS ?? 0) * 1000, (d.offDelayS ?? 0) * 1000, true);
+  const first = due ? advanceDelays(st, t, d, m, true) : null;
+  const events = first ? [...first.events] : [];
+  let s = first ? first.state : st;
   if (s.active) events.push({ kind: 'clear', ts: t, value: s.heldValue, message: `${m.clear(s.heldValue)} (${why})` });
   s = { ...s, active: false, since: null, clearSince: null };
   return { state: s, events };

@@ -10,10 +10,15 @@
  * "Not moved since" is measured from the last reading that lay outside the band (sliding min/max
  * queues keep the state small however long the value is flat). Clears as soon as the value moves.
  *
+ * The state is updated in place and returned (the queues are ring buffers, nothing is copied per
+ * reading): keep only the state returned last, as the server's evaluator does. It is plain data, so a
+ * JSON copy of it is a snapshot that can be stepped on.
+ *
  * Inputs: readings of the watched channel, plus context readings marked `aux: 'speed' | 'pressure'`
  * (engine speed in rpm, coolant pressure in kPa). `running` on the watched readings tells starts and stops.
  */
 import { RuleEvent, RuleInput, StepResult, isReading, isGood, fmt, type RuleReading } from './rule-types';
+import { createPointDeque, popBack, popFront, pushBack, tsAt, valueAt, type PointDeque } from './point-deque';
 
 export interface StuckRuleParams {
   /** Smallest range (max - min) counted as "moving"; widened to the sensor's resolution. */
@@ -36,16 +41,12 @@ export interface StuckRuleParams {
 
 export type StuckInput = RuleInput | (RuleReading & { aux?: 'speed' | 'pressure' });
 
-interface Point {
-  ts: number;
-  value: number;
-}
-
 export interface StuckRuleState {
   /** Start of the flat run (ms), null when no run. */
   runStart: number | null;
-  maxQ: Point[];
-  minQ: Point[];
+  /** Sliding maximum and minimum of the run: values strictly falling (rising) from front to back, times rising. */
+  maxQ: PointDeque;
+  minQ: PointDeque;
   active: boolean;
   /** Per candidate step (as a string key): last time a value was not a multiple of it. */
   offGridAt: Record<string, number>;
@@ -64,13 +65,15 @@ export interface StuckRuleState {
 
 /** Candidate resolutions, coarsest first (channel units). */
 export const RESOLUTION_STEPS = [1, 0.5, 0.2, 0.1, 0.05, 0.02, 0.01] as const;
+/** The steps as `offGridAt` keys, made once. */
+const RESOLUTION_KEYS = RESOLUTION_STEPS.map(String);
 const MIN_VALUES_FOR_RESOLUTION = 10;
 
 export function initialStuckState(): StuckRuleState {
   return {
     runStart: null,
-    maxQ: [],
-    minQ: [],
+    maxQ: createPointDeque(),
+    minQ: createPointDeque(),
     active: false,
     offGridAt: {},
     seen: 0,
@@ -91,9 +94,9 @@ export function stuckResolution(state: StuckRuleState, params: StuckRuleParams, 
   if (typeof params.resolution === 'number' && params.resolution > 0) return params.resolution;
   if (state.seen < MIN_VALUES_FOR_RESOLUTION) return 0;
   const windowMs = (params.resolutionWindowS ?? 86_400) * 1000;
-  for (const step of RESOLUTION_STEPS) {
-    const off = state.offGridAt[String(step)];
-    if (off === undefined || now - off > windowMs) return step;
+  for (let i = 0; i < RESOLUTION_STEPS.length; i++) {
+    const off = state.offGridAt[RESOLUTION_KEYS[i]];
+    if (off === undefined || now - off > windowMs) return RESOLUTION_STEPS[i];
   }
   return 0;
 }
@@ -116,13 +119,11 @@ function noteChange(s: StuckRuleState, ts: number, what: string): void {
 }
 
 export function stepStuck(state: StuckRuleState, input: StuckInput, params: StuckRuleParams): StepResult<StuckRuleState> {
-  const label = params.label ?? 'Value';
-  const unit = params.unit ? ` ${params.unit}` : '';
   const events: RuleEvent[] = [];
   if (!isReading(input) || !isGood(input)) return { state, events };
+  const s = state;
   const aux = (input as { aux?: 'speed' | 'pressure' }).aux;
   if (aux) {
-    const s = { ...state };
     const limit = aux === 'speed' ? (params.speedChangeRpm ?? 150) : (params.pressureChangeKpa ?? 15);
     const ref = aux === 'speed' ? s.refSpeed : s.refPressure;
     if (ref !== null && Math.abs(input.value - ref) >= limit) {
@@ -135,54 +136,54 @@ export function stepStuck(state: StuckRuleState, input: StuckInput, params: Stuc
     return { state: s, events };
   }
 
-  const lastTs = state.maxQ.length ? state.maxQ[state.maxQ.length - 1].ts : null;
-  if (lastTs !== null && input.ts <= lastTs) return { state, events }; // out of order or duplicate time
-  const s: StuckRuleState = { ...state, offGridAt: { ...state.offGridAt }, seen: state.seen + 1 };
-  for (const step of RESOLUTION_STEPS) if (!onGrid(input.value, step)) s.offGridAt[String(step)] = input.ts;
+  const { maxQ, minQ } = s;
+  const ts = input.ts;
+  const value = input.value;
+  if (maxQ.length && ts <= tsAt(maxQ, maxQ.length - 1)) return { state, events }; // out of order or duplicate time
+  s.seen++;
+  for (let i = 0; i < RESOLUTION_STEPS.length; i++) if (!onGrid(value, RESOLUTION_STEPS[i])) s.offGridAt[RESOLUTION_KEYS[i]] = ts;
   if (input.running !== undefined) {
-    if (s.lastRunning !== null && input.running !== s.lastRunning) noteChange(s, input.ts, input.running ? 'the engine started' : 'the engine stopped');
+    if (s.lastRunning !== null && input.running !== s.lastRunning) noteChange(s, ts, input.running ? 'the engine started' : 'the engine stopped');
     s.lastRunning = input.running;
   }
-  const band = Math.max(params.epsilon, stuckResolution(s, params, input.ts));
+  const band = Math.max(params.epsilon, stuckResolution(s, params, ts));
 
-  const p = { ts: input.ts, value: input.value };
-  const maxQ = [...state.maxQ];
-  const minQ = [...state.minQ];
-  while (maxQ.length && maxQ[maxQ.length - 1].value <= p.value) maxQ.pop();
-  maxQ.push(p);
-  while (minQ.length && minQ[minQ.length - 1].value >= p.value) minQ.pop();
-  minQ.push(p);
-  let runStart = s.runStart ?? p.ts;
+  while (maxQ.length && valueAt(maxQ, maxQ.length - 1) <= value) popBack(maxQ);
+  pushBack(maxQ, ts, value);
+  while (minQ.length && valueAt(minQ, minQ.length - 1) >= value) popBack(minQ);
+  pushBack(minQ, ts, value);
+  const wasRun = s.runStart;
+  let runStart = wasRun ?? ts;
   let moved = false;
-  while (maxQ[0].value - minQ[0].value > band) {
+  while (valueAt(maxQ, 0) - valueAt(minQ, 0) > band) {
     // Drop the older extreme: the run now starts at it (the last reading outside the new band).
-    const older = maxQ[0].ts <= minQ[0].ts ? maxQ : minQ;
-    runStart = older.shift()!.ts;
+    runStart = popFront(tsAt(maxQ, 0) <= tsAt(minQ, 0) ? maxQ : minQ)!;
     moved = true;
-    while (maxQ.length && maxQ[0].ts <= runStart) maxQ.shift();
-    while (minQ.length && minQ[0].ts <= runStart) minQ.shift();
+    while (maxQ.length && tsAt(maxQ, 0) <= runStart) popFront(maxQ);
+    while (minQ.length && tsAt(minQ, 0) <= runStart) popFront(minQ);
   }
-  if (s.runStart === null || moved) {
+  if (wasRun === null || moved) {
     // a new flat run: only a change of condition inside it counts
     const inside = s.changeTs !== null && s.changeTs > runStart;
     s.firstChangeTs = inside ? s.changeTs : null;
     s.firstChangeWhat = inside ? s.changeWhat : null;
   }
   s.runStart = runStart;
-  s.maxQ = maxQ;
-  s.minQ = minQ;
   if (s.active && moved) {
-    events.push({ kind: 'clear', ts: p.ts, value: p.value, message: `${label} moving again (${fmt(p.value, 2)}${unit})` });
+    events.push({ kind: 'clear', ts, value, message: `${params.label ?? 'Value'} moving again (${fmt(value, 2)}${unitText(params)})` });
     s.active = false;
   }
-  if (!s.active && s.firstChangeTs !== null && p.ts - s.firstChangeTs >= params.durationS * 1000) {
+  if (!s.active && s.firstChangeTs !== null && ts - s.firstChangeTs >= params.durationS * 1000) {
     s.active = true;
+    const unit = unitText(params);
     events.push({
       kind: 'raise',
-      ts: p.ts,
-      value: p.value,
-      message: `${label} stuck at ${fmt(p.value, 2)}${unit} for ${fmt((p.ts - runStart) / 1000, 0)} s although ${s.firstChangeWhat} ${fmt((p.ts - s.firstChangeTs) / 1000, 0)} s ago (band ${fmt(band, 2)}${unit}; sensor or wiring?)`,
+      ts,
+      value,
+      message: `${params.label ?? 'Value'} stuck at ${fmt(value, 2)}${unit} for ${fmt((ts - runStart) / 1000, 0)} s although ${s.firstChangeWhat} ${fmt((ts - s.firstChangeTs) / 1000, 0)} s ago (band ${fmt(band, 2)}${unit}; sensor or wiring?)`,
     });
   }
   return { state: s, events };
 }
+
+const unitText = (params: StuckRuleParams) => (params.unit ? ` ${params.unit}` : '');

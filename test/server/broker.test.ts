@@ -233,6 +233,30 @@ test('a redelivered or repeated reading is stored once, counted once in the roll
   expect(roll).toEqual({ n: 3, s: 216 });
 });
 
+test('values and times are stored bit for bit, also values the fast insert cannot carry (the writer binds those)', async () => {
+  const d = fleet[1];
+  const c = await connect(d);
+  const ts = Date.now() - 50_000;
+  // many digits (SQLite's own text-to-double conversion is 1 ulp off for some), whole numbers, a half, a tiny and a huge one
+  const exact = [124.412543754923, -7.044591068315047, 82.13, 85, 82.5, -25.72243193261159, 0.0001, 93.00000000000001];
+  // no exact integer / power-of-two form (subnormal, huge): the statement of that message binds its numbers instead
+  const fallback = [5e-324, 1e300, 77.25];
+  const send = (values: number[], t0: number) =>
+    c.publishAsync(
+      telemetryTopic(d.engineId),
+      JSON.stringify({ samples: values.map((v, i) => ({ ts: t0 + i, values: { coolant_temp: v } })) }), // a number's JSON text is exact
+      { qos: 1 },
+    );
+  await send(exact, ts);
+  await send(fallback, ts + 100);
+  const rows = await db.all<{ ts: number | string; value: number | string }>(
+    'SELECT ts, value FROM readings WHERE engine_id = ? AND channel = 1 AND ts >= ? AND ts < ? ORDER BY ts',
+    [d.engineId, ts, ts + 200],
+  );
+  expect(rows.map((r) => [Number(r.ts), Number(r.value)])).toEqual([...exact.map((v, i) => [ts + i, v]), ...fallback.map((v, i) => [ts + 100 + i, v])]);
+  for (const [i, r] of rows.entries()) expect(Object.is(Number(r.value), [...exact, ...fallback][i])).toBe(true);
+});
+
 test('QoS 2: the PUBREC waits for the commit too (the handshake completes with the readings in the file)', async () => {
   const d = fleet[2];
   const c = await connect(d);
