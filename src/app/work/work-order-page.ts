@@ -35,7 +35,7 @@ import { DisplayZone } from '../core/display-zone';
 import { FleetService } from '../fleet/fleet.service';
 import { NetworkStatus, isNoAnswer } from '../core/network-status';
 import { OutboxPanel } from './offline/outbox-panel';
-import { Outbox } from './offline/outbox.service';
+import { Outbox, type RecordInput } from './offline/outbox.service';
 import type { OutboxEntry } from './offline/outbox-entry';
 
 interface StepDraft {
@@ -557,7 +557,7 @@ export class WorkOrderPage {
       this.error.set('The file is larger than 8 MB.');
       return;
     }
-    if (this.offline()) return this.keepPhoto(file, stepId);
+    if (this.offline()) return void (await this.keepPhoto(file, stepId));
     const id = this.order()!.id;
     this.busy.set(true);
     this.error.set(null);
@@ -573,40 +573,28 @@ export class WorkOrderPage {
     await this.reloadQuietly(id);
   }
 
-  private async keepPhoto(file: File, stepId: number | null): Promise<void> {
+  private keepPhoto(file: File, stepId: number | null): Promise<boolean> {
+    const step = this.order()!.steps.find((x) => x.id === stepId);
+    const title = step ? `${step.position}. ${step.title}` : '';
+    return this.keepOnDevice({ stepId, stepTitle: title, kind: 'photo', file, fileName: file.name }, 'The photo');
+  }
+
+  /** Keeps one change of this order on the device (offline/outbox.service.ts); says so in words when it cannot. */
+  private async keepOnDevice(input: Omit<RecordInput, 'orderId' | 'orderTitle'>, what: string): Promise<boolean> {
     const o = this.order()!;
-    const step = o.steps.find((x) => x.id === stepId);
     try {
-      await this.outbox.record({
-        orderId: o.id,
-        orderTitle: o.title,
-        stepId,
-        stepTitle: step ? `${step.position}. ${step.title}` : '',
-        kind: 'photo',
-        file,
-        fileName: file.name,
-      });
+      await this.outbox.record({ orderId: o.id, orderTitle: o.title, ...input });
       this.error.set(null);
+      return true;
     } catch (e) {
-      this.error.set(`The photo could not be kept on this device: ${errorText(e)}`);
+      this.error.set(`${what} could not be kept on this device: ${errorText(e)}`);
+      return false;
     }
   }
 
-  private async keepMove(to: WorkStatus): Promise<void> {
-    const o = this.order()!;
-    try {
-      await this.outbox.record({
-        orderId: o.id,
-        orderTitle: o.title,
-        stepId: null,
-        stepTitle: to === 'in-progress' ? 'Start work' : 'Work done: send for sign-off',
-        kind: 'status',
-        body: { to },
-      });
-      this.error.set(null);
-    } catch (e) {
-      this.error.set(`The status change could not be kept on this device: ${errorText(e)}`);
-    }
+  private keepMove(to: WorkStatus): Promise<boolean> {
+    const title = to === 'in-progress' ? 'Start work' : 'Work done: send for sign-off';
+    return this.keepOnDevice({ stepId: null, stepTitle: title, kind: 'status', body: { to } }, 'The status change');
   }
 
   /** A part or fluid used; without a network it is kept on the device and sent when the network returns. */
@@ -635,21 +623,8 @@ export class WorkOrderPage {
   }
 
   private async keepPart(body: { kind: string; quantity: number; unit: string; description?: string }): Promise<void> {
-    const o = this.order()!;
-    try {
-      await this.outbox.record({
-        orderId: o.id,
-        orderTitle: o.title,
-        stepId: null,
-        stepTitle: `${body.quantity} ${body.unit} ${this.partText[body.kind] ?? body.kind}${body.description ? `: ${body.description}` : ''}`,
-        kind: 'part',
-        body,
-      });
-      this.part.description = '';
-      this.error.set(null);
-    } catch (e) {
-      this.error.set(`The part could not be kept on this device: ${errorText(e)}`);
-    }
+    const title = `${body.quantity} ${body.unit} ${this.partText[body.kind] ?? body.kind}${body.description ? `: ${body.description}` : ''}`;
+    if (await this.keepOnDevice({ stepId: null, stepTitle: title, kind: 'part', body }, 'The part')) this.part.description = '';
   }
 
   protected partKindChanged(): void {
