@@ -383,9 +383,12 @@ describe('the technician app without a network (service worker, IndexedDB outbox
       const prompt = tid('update-prompt');
       await prompt.getByText('Update available.').waitFor({ timeout: 60000 });
       await shot(page, 'offline-05-update-available');
+      // the heading is on the old page too: wait for the reload itself, then for the page it brings
+      const reloaded = page.waitForEvent('load');
       await prompt.getByRole('button', { name: 'Reload' }).click();
+      await reloaded;
       await page.getByRole('heading', { name: `#${order.id} Filter change in the basement` }).waitFor();
-      assert.equal(await tid('update-prompt').count(), 0);
+      assert.equal(await tid('update-prompt').count(), 0, 'the reloaded page runs the new version: nothing more to offer');
     } finally {
       fs.writeFileSync(file, original);
     }
