@@ -347,6 +347,31 @@ async function main(): Promise<void> {
   figures["1b. planner's rooms on b after a site change made on a"] = `${firstRooms.join(', ')} -> ${rescoped.join(', ')}`;
   say(`1b. ok: a site change made on a re-scoped the planner's socket on b (${rescoped.join(', ')})`);
 
+  // 1c. the administrator disables the planner through a: the planner's socket on b is told why, then closed
+  const told = new Promise<string>((resolve) => plannerSock.once('session-ended', (m: { reason: string }) => resolve(m.reason)));
+  const closed = new Promise<string>((resolve) => plannerSock.once('disconnect', resolve));
+  const events: string[] = [];
+  void told.then(() => events.push('told'));
+  void closed.then(() => events.push('closed'));
+  const disabled = await fetch(`${a.url}/api/users/${plannerId}`, {
+    method: 'PATCH',
+    headers: { 'content-type': 'application/json', authorization: `Bearer ${token}` },
+    body: JSON.stringify({ disabled: true }),
+  });
+  assert.equal(disabled.status, 200, 'planner disabled through a');
+  const closeReason = await waitFor("the planner's socket on b closed", () => (events.includes('closed') ? closed : null), Boolean);
+  assert.equal(closeReason, 'io server disconnect');
+  assert.deepEqual(events, ['told', 'closed'], 'the reason arrives before the socket closes');
+  figures["1c. planner's socket on b after a disable made on a"] = `${events.join(', then ')} (${await told})`;
+  say(`1c. ok: a disable made on a told and closed the planner's socket on b`);
+  // the planner is on the alarm e-mails below: enabled again
+  const enabled = await fetch(`${a.url}/api/users/${plannerId}`, {
+    method: 'PATCH',
+    headers: { 'content-type': 'application/json', authorization: `Bearer ${token}` },
+    body: JSON.stringify({ disabled: false }),
+  });
+  assert.equal(enabled.status, 200, 'planner enabled again');
+
   // from here on every device publishes every FLOW_MS (ts = wall clock, rising), so no engine falls silent;
   // an engine in `hot` sends 101 °C (coolant_temp_high: 98 °C for 10 s)
   const hot = new Set<number>();

@@ -60,6 +60,8 @@ const userRoom = (userId: number) => `user:${userId}`;
 
 /** Between servers (socket.io serverSideEmit): a user's sites changed. */
 const RESCOPE_EVENT = 'jw:rescope';
+/** Between servers: a user's sessions ended; each server tells and closes its own sockets of theirs. */
+const END_SESSIONS_EVENT = 'jw:end-sessions';
 
 export class LivePush {
   readonly io: Server;
@@ -71,7 +73,10 @@ export class LivePush {
     this.throttleMs = opts.throttleMs ?? 250;
     this.io = new Server(opts.httpServer, { serveClient: false, cors: { origin: false }, ...(opts.adapter ? { adapter: opts.adapter } : {}) });
     // several servers: a user's sites changed on another server re-scope this server's sockets of theirs too
-    if (opts.adapter) this.io.on(RESCOPE_EVENT, (userId: unknown) => typeof userId === 'number' && void this.rescopeHere(userId));
+    if (opts.adapter) {
+      this.io.on(RESCOPE_EVENT, (userId: unknown) => typeof userId === 'number' && void this.rescopeHere(userId));
+      this.io.on(END_SESSIONS_EVENT, (userId: unknown) => typeof userId === 'number' && this.endSessionsHere(userId));
+    }
     this.io.use((socket, next) => {
       try {
         const token = this.handshakeToken(socket);
@@ -187,9 +192,16 @@ export class LivePush {
 
   /** The user's sessions ended (disabled, role, sites or password changed): close their sockets now. */
   endSessions(userId: number): void {
-    // said first, so the page can tell the user why before the socket closes
-    this.io.in(userRoom(userId)).emit('session-ended', { reason: 'Your account or its access was changed by an administrator.' });
-    this.io.in(userRoom(userId)).disconnectSockets(true);
+    // each server ends its own sockets: through the adapter, an emit and a disconnect are two messages that
+    // may arrive in either order, and the reason must reach the page before the socket closes
+    if (this.opts.adapter) this.io.serverSideEmit(END_SESSIONS_EVENT, userId);
+    this.endSessionsHere(userId);
+  }
+
+  private endSessionsHere(userId: number): void {
+    const here = this.io.local.in(userRoom(userId));
+    here.emit('session-ended', { reason: 'Your account or its access was changed by an administrator.' });
+    here.disconnectSockets(true);
   }
 
   /**
