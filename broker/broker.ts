@@ -43,12 +43,15 @@ export interface DeviceIdentity {
 export interface BrokerOptions {
   port: number;
   host?: string;
-  /** `address`: the client's IP address, for throttling failed logins. */
+  /**
+   * `address`: the client's IP address, for throttling failed logins. `'busy'`: not checked now (too many
+   * logins of this device waiting), answered "server unavailable" so the device tries again.
+   */
   authenticate(
     username: string,
     password: string,
     address: string,
-  ): Promise<{ deviceId: number; engineId: number; sparkplug?: SparkplugIdentity | null } | null>;
+  ): Promise<{ deviceId: number; engineId: number; sparkplug?: SparkplugIdentity | null } | null | 'busy'>;
   /** A telemetry payload on the device's own engine topic; call `done` when there is room for more. */
   onTelemetry(device: DeviceIdentity, engineId: number, payload: Buffer, done: (err?: Error) => void): void;
   onReject(device: DeviceIdentity | null, reason: string, detail: string): void;
@@ -135,6 +138,12 @@ export async function createBroker(opts: BrokerOptions): Promise<Broker> {
     cb(err, false);
   };
 
+  const busy = (cb: (err: AuthError | null, ok: boolean) => void) => {
+    const err: AuthError = new Error('server busy: try again');
+    err.returnCode = 3; // server unavailable: the credentials were not judged
+    cb(err, false);
+  };
+
   const aedes = await Aedes.createBroker({
     concurrency: 1000,
     authenticate(client: AedesClient, username: string | undefined, password: Buffer | undefined, cb: (err: AuthError | null, ok: boolean) => void) {
@@ -151,6 +160,7 @@ export async function createBroker(opts: BrokerOptions): Promise<Broker> {
         opts.authenticate(username, secret, client.conn?.remoteAddress ?? '').then(
           (found) => {
             if (!found) return refuse(cb);
+            if (found === 'busy') return busy(cb);
             // revoked or rotated while its secret was being checked: the answer is stale
             if (drops.droppedSince(found.deviceId, asked)) return refuse(cb);
             const device = { ...found, username };

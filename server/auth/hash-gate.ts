@@ -3,10 +3,15 @@
  * Waiting jobs are served round-robin by client address, so a flood of wrong passwords from one
  * address (or a few) delays a sign-in from another address by at most a few hash times, not by
  * the length of the flood's queue. Addresses whose recent checks failed wait behind the others.
+ * What one address may have waiting is bounded per account (`who`), not per address: many devices
+ * behind one gateway's NAT address reconnecting at once all wait their turn; one account cannot
+ * pile up checks.
  */
 export class HashGate {
   private running = 0;
   private readonly queues = new Map<string, Array<() => void>>();
+  /** `key\0who` -> checks of that account waiting from that address. */
+  private readonly waitingOf = new Map<string, number>();
   /** Addresses with waiting jobs, in serving order. */
   private readonly turn: string[] = [];
 
@@ -15,14 +20,23 @@ export class HashGate {
 
   constructor(
     private readonly concurrency = 2,
-    private readonly maxWaitingPerKey = 200,
+    private readonly maxWaitingPerAccount = 4,
     private readonly suspectMs = 15 * 60_000,
+    /** A bound on memory only: far above any real gateway's number of devices. */
+    private readonly maxWaitingPerKey = 20_000,
   ) {}
 
-  /** Runs `job` (a password check: true when it matched) when a slot is free; rejects at once when this address already has too many waiting. */
-  run(key: string, job: () => Promise<boolean>): Promise<boolean> {
+  /**
+   * Runs `job` (a password check of account `who`: true when it matched) when a slot is free; rejects
+   * at once when this address already has too many checks of that account waiting.
+   */
+  run(key: string, job: () => Promise<boolean>, who = ''): Promise<boolean> {
     return new Promise<boolean>((resolve, reject) => {
+      const slot = `${key}\0${who}`;
       const start = () => {
+        const left = (this.waitingOf.get(slot) ?? 1) - 1;
+        if (left > 0) this.waitingOf.set(slot, left);
+        else this.waitingOf.delete(slot);
         this.running++;
         job()
           .then((ok) => {
@@ -34,14 +48,21 @@ export class HashGate {
             this.next();
           });
       };
-      if (this.running < this.concurrency && this.turn.length === 0) return start();
-      let q = this.queues.get(key);
-      if (!q) {
-        this.queues.set(key, (q = []));
+      if (this.running < this.concurrency && this.turn.length === 0) {
+        this.waitingOf.set(slot, (this.waitingOf.get(slot) ?? 0) + 1);
+        return start();
+      }
+      const q = this.queues.get(key);
+      const mine = this.waitingOf.get(slot) ?? 0;
+      if (mine >= this.maxWaitingPerAccount || (q?.length ?? 0) >= this.maxWaitingPerKey) {
+        return reject(new Error('too many sign-ins waiting from this address'));
+      }
+      this.waitingOf.set(slot, mine + 1);
+      if (q) q.push(start);
+      else {
+        this.queues.set(key, [start]);
         this.turn.push(key);
       }
-      if (q.length >= this.maxWaitingPerKey) return reject(new Error('too many sign-ins waiting from this address'));
-      q.push(start);
     });
   }
 

@@ -22,7 +22,7 @@ export async function login(
   const user = await models.User.findOne({ where: { email: email.trim().toLowerCase() } });
   let ok: boolean;
   try {
-    ok = await hashGate.run(clientKey, () => (user ? checkSecret(password, user.passwordHash) : checkAgainstDummy(password)));
+    ok = await hashGate.run(clientKey, () => (user ? checkSecret(password, user.passwordHash) : checkAgainstDummy(password)), email.trim().toLowerCase());
   } catch {
     throw new HttpError(429, 'too many sign-in attempts waiting; try again later');
   }

@@ -300,7 +300,7 @@ class DeviceLogin {
     username: string,
     password: string,
     address: string,
-  ): Promise<{ deviceId: number; engineId: number; sparkplug: SparkplugIdentity | null } | null> {
+  ): Promise<{ deviceId: number; engineId: number; sparkplug: SparkplugIdentity | null } | null | 'busy'> {
     if (this.blocked(username, address)) return null;
     const rows = await this.sequelize.query<{
       id: number;
@@ -313,14 +313,23 @@ class DeviceLogin {
     }>(DEVICE_BY_USERNAME_SQL, { bind: [username], type: QueryTypes.SELECT, logging: false });
     const row = rows[0];
     let ok = false;
-    try {
-      ok = await hashGate.run(address, async () => {
-        // checked again once it is our turn: a flood queued before the limit hit is refused without hashing
-        if (this.blocked(username, address)) return false;
-        return row && !row.revokedAt ? checkSecret(password, row.secretHash) : false;
-      });
-    } catch {
-      return null; // too many waiting from this address
+    // an unknown or revoked device needs no hashing to be refused (device usernames are not secrets)
+    if (row && !row.revokedAt) {
+      try {
+        ok = await hashGate.run(
+          address,
+          async () => {
+            // checked again once it is our turn: a flood queued before the limit hit is refused without hashing
+            if (this.blocked(username, address)) return false;
+            return checkSecret(password, row.secretHash);
+          },
+          username,
+        );
+      } catch {
+        // this device already has several logins waiting from this address: not a wrong secret
+        this.onFailure(Number(row.id), `too many logins of this device waiting from ${address}; answered "server unavailable"`);
+        return 'busy';
+      }
     }
     if (ok) {
       const sparkplug = row.spGroup && row.spNode ? { groupId: row.spGroup, edgeNodeId: row.spNode, deviceId: row.spDevice ?? null } : null;
