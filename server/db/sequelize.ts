@@ -23,6 +23,13 @@ class PragmaDatabase extends sqlite3.Database {
 
 const sqliteWithPragmas = { ...sqlite3, Database: PragmaDatabase };
 
+/** A connection of our own to the SQLite file, with the same pragmas as Sequelize's (the reading writer's). */
+export function openSqliteConnection(file: string): Promise<sqlite3.Database> {
+  return new Promise((resolve, reject) => {
+    const db: sqlite3.Database = new PragmaDatabase(file, sqlite3.OPEN_READWRITE, (err) => (err ? reject(err) : resolve(db)));
+  });
+}
+
 /** `sqlite:/abs/file.sqlite`, `sqlite://./rel.sqlite` or `sqlite::memory:` to a storage path. */
 function sqliteStorage(url: string): string {
   const rest = url.replace(/^sqlite:(\/\/)?/, '');

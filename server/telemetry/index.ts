@@ -17,6 +17,7 @@ import { IngestBuffer } from './ingest-buffer';
 import { MemoryLiveState } from './live-state';
 import { ReadingWriter, type WriterOptions } from './reading-writer';
 import { DEVICE_BY_USERNAME_SQL } from './sql';
+import { sqliteFileOf } from '../data-files';
 import { startExternalSubscriber } from './external-broker';
 import { SparkplugHost, type SparkplugIdentity } from './sparkplug/host';
 import { readNodeRecords } from './sparkplug/records';
@@ -46,7 +47,7 @@ export async function startTelemetry(
   const buffer = new IngestBuffer(options.highWater ?? 20_000);
   const liveState = new MemoryLiveState();
   const activity = new DeviceActivity(sequelize, log);
-  const writer = new ReadingWriter(sequelize, buffer, counters, log, options.writer);
+  const writer = new ReadingWriter(sequelize, buffer, counters, log, { sqliteFile: sqliteFileOf(config.databaseUrl), ...options.writer });
   const listeners: Array<(readings: AcceptedReading[]) => void> = [];
   const lostListeners: Array<(engineId: number, at: number) => void> = [];
   let stopping = false;

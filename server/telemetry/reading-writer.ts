@@ -3,6 +3,7 @@ import type { Logger } from '../logger';
 import type { Counters } from './counters';
 import { ReadingBlock, type IngestBuffer } from './ingest-buffer';
 import { dialectOf, INSERT_READINGS_JSON_SQL, insertReadingsSql, readingsJson, upsertRollupsSql, type InsertedReadingRow, type RollupPeriod } from './sql';
+import { openSqliteConnection } from '../db/sequelize';
 import { faultPoint } from './fault-point';
 
 export interface WriterOptions {
@@ -14,6 +15,8 @@ export interface WriterOptions {
   rowsPerStatement?: number;
   /** How long a flush waits for more messages once an ack is held (ms): small, acks wait for the commit. */
   ackDelayMs?: number;
+  /** SQLite: the database file, which the writer opens a connection of its own to. */
+  sqliteFile?: string | null;
 }
 
 interface RollupRow {
@@ -82,6 +85,7 @@ interface SqliteHandle {
   all(sql: string, params: unknown[], cb: (err: Error | null, rows: InsertedReadingRow[]) => void): unknown;
   exec(sql: string, cb: (err: Error | null) => void): unknown;
   prepare(sql: string, cb: (err: Error | null) => void): SqliteStatement;
+  close(cb: (err: Error | null) => void): unknown;
 }
 
 interface SqliteStatement {
@@ -91,9 +95,6 @@ interface SqliteStatement {
   finalize(cb: () => void): unknown;
 }
 
-/** Name of the writer's own long-lived connection in Sequelize's SQLite connection manager. */
-export const WRITER_CONNECTION = 'jw-telemetry-writer';
-
 /**
  * Writes the buffer to `readings` and `rollups`: every flush is ONE transaction of multi-row INSERTs
  * (one call into the driver per few hundred rows, never one per row) plus the rollup upsert.
@@ -101,8 +102,8 @@ export const WRITER_CONNECTION = 'jw-telemetry-writer';
  * the rollups add only the rows actually inserted. After COMMIT the buffer releases the MQTT acks of
  * every message whose rows are now all stored.
  *
- * SQLite: the writer keeps its own connection from Sequelize's connection manager (same file, same
- * pragmas) and talks to the node-sqlite3 handle directly. A Sequelize transaction would open and close
+ * SQLite: the writer opens and owns a connection of its own (same file, same pragmas as Sequelize's)
+ * and talks to the node-sqlite3 handle directly. A Sequelize transaction would open and close
  * a fresh connection per flush, whose empty page cache has to re-read the index every time; measured
  * here that was 2-3x slower than one warm connection, and Sequelize's per-query work came on top.
  * PostgreSQL keeps the Sequelize transaction (pooled connections stay warm there).
@@ -128,6 +129,7 @@ export class ReadingWriter {
   private jsonInsert: Promise<SqliteStatement> | null = null;
   /** The full-size rollup upsert, prepared once for the same reason (a flood fills several per flush). */
   private fullRollup: Promise<SqliteStatement> | null = null;
+  private readonly sqliteFile: string | null;
 
   constructor(
     private readonly sequelize: Sequelize,
@@ -142,6 +144,7 @@ export class ReadingWriter {
     this.perRollup = Math.floor((this.perStatement * 5) / 8);
     this.ackDelayMs = opts.ackDelayMs ?? 2;
     this.dialect = dialectOf(sequelize.getDialect());
+    this.sqliteFile = opts.sqliteFile ?? null;
   }
 
   start(): void {
@@ -203,8 +206,8 @@ export class ReadingWriter {
 
   private sqliteHandle(): Promise<SqliteHandle> {
     this.handle ??= (async () => {
-      const manager = (this.sequelize as unknown as { connectionManager: { getConnection(o: { uuid: string }): Promise<SqliteHandle> } }).connectionManager;
-      const db = await manager.getConnection({ uuid: WRITER_CONNECTION });
+      if (!this.sqliteFile) throw new Error('telemetry needs a SQLite database file (DATABASE_URL=sqlite:/path/file.sqlite), not :memory:');
+      const db: SqliteHandle = await openSqliteConnection(this.sqliteFile);
       // a larger page cache keeps the hot part of the (engine, channel, ts) index in memory (bounded: 32 MB)
       await exec(db, 'PRAGMA cache_size=-32768');
       return db;
@@ -364,7 +367,7 @@ export class ReadingWriter {
       await this.flushOnce();
       if (this.buffer.size >= before) attempts++;
     }
-    // an unfinalized statement would keep the connection from closing with the others in sequelize.close()
+    // an unfinalized statement would keep the connection from closing
     for (const prepared of [this.fullInsert, this.fullRollup, this.jsonInsert]) {
       const stmt = await prepared?.catch(() => null);
       if (stmt) await new Promise<void>((resolve) => stmt.finalize(() => resolve()));
@@ -372,6 +375,9 @@ export class ReadingWriter {
     this.fullInsert = null;
     this.fullRollup = null;
     this.jsonInsert = null;
+    const db = await this.handle?.catch(() => null);
+    this.handle = null;
+    if (db) await new Promise<void>((resolve) => db.close(() => resolve()));
   }
 }
 
