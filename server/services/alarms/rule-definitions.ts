@@ -195,3 +195,22 @@ export function effectiveRules(profile: RuleDefinition[], overrides: RuleOverrid
     return { ...def, enabled: def.enabled && o.enabled, params: { ...def.params, ...(o.params ?? {}) } };
   });
 }
+
+/** Least history a new rule owner replays (several servers), and the most (memory: engines are replayed a few at a time). */
+export const REPLAY_MIN_MS = 10 * 60_000;
+export const REPLAY_MAX_MS = 2 * 60 * 60_000;
+
+/**
+ * How much stored history rebuilds these rules' state on a new owner: the longest span any enabled rule
+ * looks back over (its window or duration, plus its on and off delays), and a minute to spare, between
+ * REPLAY_MIN_MS and REPLAY_MAX_MS. A 30-minute heater-loss window needs 31 minutes, not a fixed 10.
+ */
+export function replayMsFor(rules: RuleDefinition[]): number {
+  let longestS = 0;
+  for (const r of rules) {
+    if (!r.enabled) continue;
+    const s = (k: string) => (typeof r.params[k] === 'number' && Number.isFinite(r.params[k]) ? (r.params[k] as number) : 0);
+    longestS = Math.max(longestS, Math.max(s('windowS'), s('durationS'), s('resolutionWindowS')) + s('onDelayS') + s('offDelayS'));
+  }
+  return Math.min(REPLAY_MAX_MS, Math.max(REPLAY_MIN_MS, (longestS + 60) * 1000));
+}

@@ -10,7 +10,7 @@ import type { AlarmService } from './alarm-service';
 import type { EngineDirectory, EngineEntry } from './engine-directory';
 import { EngineEvaluator, type EngineFacts, type RuleHit } from './engine-evaluator';
 import { LateEvaluation, type LateFinding } from './late-evaluation';
-import { DEFAULT_PROFILE_NAME, DEFAULT_RULES, effectiveRules, type RuleDefinition, type RuleOverride } from './rule-definitions';
+import { DEFAULT_PROFILE_NAME, DEFAULT_RULES, effectiveRules, replayMsFor, type RuleDefinition, type RuleOverride } from './rule-definitions';
 
 /** How often engines (out of service, glycol mix) are re-read from the database. */
 export const DIRECTORY_REFRESH_MS = 10_000;
@@ -30,8 +30,10 @@ export interface RuleEngineDeps {
   storedReadings?(engineIds: number[], sinceTs: number): Promise<AcceptedReading[]>;
 }
 
-/** Taking an engine over from another server: its rules are replayed over this much stored history. */
-export const REPLAY_MS = 10 * 60_000;
+/** Stored readings held in memory at once while engines are taken over (a few engines per query). */
+const REPLAY_READINGS_BUDGET = 250_000;
+/** Channels per engine, for that budget (1 Hz assumed: the usual fastest rate). */
+const CHANNELS_PER_ENGINE = 5;
 
 /** The default profile row, written with the built-in rules when there is none. */
 export async function ensureDefaultProfile(models: Models): Promise<RuleDefinition[]> {
@@ -250,8 +252,9 @@ export class RuleEngine {
 
   /**
    * Several servers: this server took over the leases of some engines (at start, or from a server that died or
-   * gave them up). Each such engine's rules are rebuilt from its stored readings of the last REPLAY_MS (rule
-   * events of the replay are not acted on), then squared with its open alarms: an alarm still active keeps its
+   * gave them up). Each such engine's rules are rebuilt from its stored readings over the longest span its
+   * rules look back (replayMsFor; rule events of the replay are not acted on), read a few engines at a time so
+   * memory stays bounded, then squared with its open alarms: an alarm still active keeps its
    * rule active so it can clear; a condition the replay found raised (or cleared) that the alarms do not show
    * yet is raised (or cleared) now, as the previous owner would have done. Live readings wait meanwhile.
    */
@@ -274,49 +277,55 @@ export class RuleEngine {
       if (!fresh.length) return this.refreshEngines();
       for (const e of fresh) if (!this.adopting.has(e.id)) this.adopting.set(e.id, []);
       const openRows = await this.deps.alarms.loadOpen();
-      const since = Date.now() - REPLAY_MS;
-      const stored = this.deps.storedReadings
-        ? await this.deps.storedReadings(
-            fresh.map((e) => e.id),
-            since,
-          )
-        : [];
-      const byEngine = new Map<number, AcceptedReading[]>();
-      for (const r of stored) {
-        const list = byEngine.get(r.engineId);
-        if (list) list.push(r);
-        else byEngine.set(r.engineId, [r]);
-      }
-      for (const e of fresh) {
-        const held = this.adopting.get(e.id) ?? [];
-        this.adopting.delete(e.id);
-        if (!this.owns(e.id)) continue; // lost again meanwhile
-        const past = byEngine.get(e.id) ?? [];
-        const newestStored = past.length ? past[past.length - 1].ts : -Infinity;
-        const ev = new EngineEvaluator(this.factsOf(e), this.rulesFor(e.id), { startTs: past.length ? past[0].ts : this.deps.lastSeen(e.id) });
-        this.evaluators.set(e.id, ev);
-        this.facts.set(e.id, factsKey(e));
-        const last = new Map<string, RuleHit>();
-        for (const h of ev.feed(past)) last.set(h.def.key, h);
-        const toDispatch: RuleHit[] = [];
-        for (const def of this.rulesFor(e.id)) {
-          const row = openRows.find((a) => a.engineId === e.id && a.rule === def.key && !a.closedAt);
-          const hit = last.get(def.key);
-          if (row?.active) {
-            if (hit?.event.kind === 'clear') toDispatch.push(hit);
-            else if (hit?.event.kind !== 'raise') ev.markActive(def.key, row.worstValue ?? null);
-          } else if (hit?.event.kind === 'raise') {
-            toDispatch.push(hit);
-          }
-        }
-        this.dispatch(e.id, toDispatch);
-        // live readings that came while the history was read, past what was stored
-        const live = held.filter((r) => r.ts > newestStored);
-        if (live.length) this.handleEngine(e.id, live);
-      }
+      const replayMs = Math.max(...fresh.map((e) => replayMsFor(this.rulesFor(e.id))));
+      const perQuery = Math.max(1, Math.floor(REPLAY_READINGS_BUDGET / ((replayMs / 1000) * CHANNELS_PER_ENGINE)));
+      for (let i = 0; i < fresh.length; i += perQuery) await this.adoptSome(fresh.slice(i, i + perQuery), replayMs, openRows);
     } finally {
       for (const e of fresh) this.adopting.delete(e.id);
       for (const id of early) this.adopting.delete(id);
+    }
+  }
+
+  /** Rebuilds some engines taken over from their stored history, then lets their held live readings through. */
+  private async adoptSome(engines: EngineEntry[], replayMs: number, openRows: Awaited<ReturnType<AlarmService['loadOpen']>>): Promise<void> {
+    const stored = this.deps.storedReadings
+      ? await this.deps.storedReadings(
+          engines.map((e) => e.id),
+          Date.now() - replayMs,
+        )
+      : [];
+    const byEngine = new Map<number, AcceptedReading[]>();
+    for (const r of stored) {
+      const list = byEngine.get(r.engineId);
+      if (list) list.push(r);
+      else byEngine.set(r.engineId, [r]);
+    }
+    for (const e of engines) {
+      const held = this.adopting.get(e.id) ?? [];
+      this.adopting.delete(e.id);
+      if (!this.owns(e.id)) continue; // lost again meanwhile
+      const past = byEngine.get(e.id) ?? [];
+      const newestStored = past.length ? past[past.length - 1].ts : -Infinity;
+      const ev = new EngineEvaluator(this.factsOf(e), this.rulesFor(e.id), { startTs: past.length ? past[0].ts : this.deps.lastSeen(e.id) });
+      this.evaluators.set(e.id, ev);
+      this.facts.set(e.id, factsKey(e));
+      const last = new Map<string, RuleHit>();
+      for (const h of ev.feed(past)) last.set(h.def.key, h);
+      const toDispatch: RuleHit[] = [];
+      for (const def of this.rulesFor(e.id)) {
+        const row = openRows.find((a) => a.engineId === e.id && a.rule === def.key && !a.closedAt);
+        const hit = last.get(def.key);
+        if (row?.active) {
+          if (hit?.event.kind === 'clear') toDispatch.push(hit);
+          else if (hit?.event.kind !== 'raise') ev.markActive(def.key, row.worstValue ?? null);
+        } else if (hit?.event.kind === 'raise') {
+          toDispatch.push(hit);
+        }
+      }
+      this.dispatch(e.id, toDispatch);
+      // live readings that came while the history was read, past what was stored
+      const live = held.filter((r) => r.ts > newestStored);
+      if (live.length) this.handleEngine(e.id, live);
     }
   }
 
