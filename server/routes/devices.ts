@@ -29,6 +29,10 @@ const metricMapBody = z
   .record(z.string().min(1).max(200), z.union([channelKey, z.strictObject({ channel: channelKey, unit: z.string().min(1).max(16).optional() })]))
   .refine((m) => Object.keys(m).length <= 500, 'at most 500 entries');
 
+/** A gateway record's Sparkplug identity, for its broker account. */
+const sparkplugOf = (d: { sparkplugGroupId: string | null; sparkplugEdgeNodeId: string | null; sparkplugDeviceId: string | null }) =>
+  d.sparkplugGroupId && d.sparkplugEdgeNodeId ? { groupId: d.sparkplugGroupId, edgeNodeId: d.sparkplugEdgeNodeId, deviceId: d.sparkplugDeviceId } : null;
+
 export function devicesRouter(ctx: AppContext): Router {
   const r = Router();
   r.use('/devices', requireAuth, requireRole('admin'));
@@ -37,13 +41,13 @@ export function devicesRouter(ctx: AppContext): Router {
   });
   r.post('/devices', async (req, res) => {
     const { device, secret } = await createDevice(ctx.models, parse(createBody, req.body));
-    await ctx.deviceAccounts?.setDevice(device.username, secret, device.engineId);
+    await ctx.deviceAccounts?.setDevice(device.username, secret, device.engineId, sparkplugOf(device));
     res.status(201).json({ ...device.toJSON(), secret });
   });
   r.post('/devices/:id/rotate', async (req, res) => {
     const { device, secret } = await rotateDevice(ctx.models, parseId(req.params));
     ctx.access?.deviceChanged(device.id); // the old secret and its connections end now
-    await ctx.deviceAccounts?.setDevice(device.username, secret, device.engineId);
+    await ctx.deviceAccounts?.setDevice(device.username, secret, device.engineId, sparkplugOf(device));
     res.json({ ...device.toJSON(), secret });
   });
   r.put('/devices/:id/metric-map', async (req, res) => {

@@ -14,8 +14,11 @@ import type { Logger } from '../logger';
 const CONTROL = '$CONTROL/dynamic-security/v1';
 
 export interface DeviceAccounts {
-  /** The device may connect with this secret and publish under its engine's topics. */
-  setDevice(username: string, secret: string, engineId: number): Promise<void>;
+  /**
+   * The device may connect with this secret and publish under its engine's topics; a Sparkplug B gateway
+   * record instead under its own edge node (and device), and receive the commands addressed to it.
+   */
+  setDevice(username: string, secret: string, engineId: number, sparkplug?: SparkplugAccount | null): Promise<void>;
   /** The device is gone from the broker (disconnected if connected). */
   removeDevice(username: string): Promise<void>;
   close(): Promise<void>;
@@ -28,6 +31,29 @@ interface DynsecResponse {
 type Command = Record<string, unknown> & { command: string };
 
 export const engineRole = (engineId: number) => `jw-engine-${engineId}`;
+export const sparkplugRole = (username: string) => `jw-sparkplug-${username}`;
+
+export interface SparkplugAccount {
+  groupId: string;
+  edgeNodeId: string;
+  deviceId: string | null;
+}
+
+/**
+ * A gateway's topics: births, data and deaths under its own edge node (its device, or any device under
+ * the node for the node's own record); commands only to receive, never to send (denied first).
+ */
+export function sparkplugAcls(sp: SparkplugAccount): Array<{ acltype: string; topic: string; priority: number; allow: boolean }> {
+  const node = `spBv1.0/${sp.groupId}`;
+  return [
+    { acltype: 'publishClientSend', topic: `${node}/NCMD/${sp.edgeNodeId}`, priority: 10, allow: false },
+    { acltype: 'publishClientSend', topic: `${node}/DCMD/${sp.edgeNodeId}/#`, priority: 10, allow: false },
+    { acltype: 'publishClientSend', topic: `${node}/+/${sp.edgeNodeId}`, priority: 0, allow: true },
+    { acltype: 'publishClientSend', topic: `${node}/+/${sp.edgeNodeId}/${sp.deviceId ?? '+'}`, priority: 0, allow: true },
+    { acltype: 'subscribePattern', topic: `${node}/NCMD/${sp.edgeNodeId}`, priority: 0, allow: true },
+    { acltype: 'subscribePattern', topic: `${node}/DCMD/${sp.edgeNodeId}/#`, priority: 0, allow: true },
+  ];
+}
 
 export function createDynsecAccounts(opts: {
   url: string;
@@ -85,17 +111,19 @@ export function createDynsecAccounts(opts: {
   const failed = (responses: DynsecResponse[], ignore: RegExp) => responses.find((r) => r.error && !ignore.test(r.error));
 
   return {
-    async setDevice(username, secret, engineId) {
-      const rolename = engineRole(engineId);
+    async setDevice(username, secret, engineId, sparkplug) {
+      const rolename = sparkplug ? sparkplugRole(username) : engineRole(engineId);
       const prefix = `${TOPIC_ROOT}/${engineId}/#`;
       const created = await send([
         {
           command: 'createRole',
           rolename,
-          acls: [
-            { acltype: 'publishClientSend', topic: prefix, priority: 0, allow: true },
-            { acltype: 'subscribePattern', topic: prefix, priority: 0, allow: true },
-          ],
+          acls: sparkplug
+            ? sparkplugAcls(sparkplug)
+            : [
+                { acltype: 'publishClientSend', topic: prefix, priority: 0, allow: true },
+                { acltype: 'subscribePattern', topic: prefix, priority: 0, allow: true },
+              ],
         },
         { command: 'createClient', username, password: secret, roles: [{ rolename }] },
       ]);

@@ -218,7 +218,18 @@ export async function startTelemetry(
   let mqttPort: number | null = null;
   let brokerState: () => BrokerState | null = () => null;
   if (config.mqttUrl) {
-    const ext = await startExternalSubscriber({ url: config.mqttUrl, clientId: config.mqttClientId, sharedGroup: config.mqttSharedGroup, log, ingest });
+    // Sparkplug B needs one host per edge node (births and data in order): with several servers sharing
+    // the subscription (MQTT_SHARED_GROUP) it is not taken through the external broker
+    const ext = await startExternalSubscriber({
+      url: config.mqttUrl,
+      clientId: config.mqttClientId,
+      sharedGroup: config.mqttSharedGroup,
+      log,
+      ingest,
+      ...(config.mqttSharedGroup ? {} : { sparkplug: (topic: string, payload: Buffer, done: () => void) => sparkplug.fromExternal(topic, payload, done) }),
+    });
+    sparkplug.attach(ext.publish);
+    deps.access?.onDeviceChanged((deviceId) => sparkplug.forgetExternalRecord(deviceId));
     brokerState = ext.state;
     mqtt = ext;
   } else {

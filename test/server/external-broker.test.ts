@@ -72,7 +72,8 @@ test('external broker: SIGKILL of the server mid-flood loses nothing the broker 
 
   const env = { MQTT_URL: `mqtt://127.0.0.1:${brokerPort}` };
   server = await startServerProcess({ dataDir, group: true, env });
-  await waitFor('server subscribed', () => subscriptions() === 1, 30_000, broker.out);
+  // two subscriptions per start: telemetry and Sparkplug B
+  await waitFor('server subscribed', () => subscriptions() === 2, 30_000, broker.out);
   const ports = server.ports;
   const seed = new Db(server.databaseUrl);
   const [device] = await seedFleet(seed, 1, 'ext');
@@ -101,7 +102,7 @@ test('external broker: SIGKILL of the server mid-flood loses nothing the broker 
     await waitFor('a third stored', async () => (await count()) >= (MESSAGES * SAMPLES * 5) / 3, 60_000, count);
     await server.stop('SIGKILL');
     server = await startServerProcess({ dataDir, ports, group: true, env });
-    await waitFor('server subscribed again', () => subscriptions() === 2, 30_000, broker.out);
+    await waitFor('server subscribed again', () => subscriptions() === 4, 30_000, broker.out);
     expect(await pubExit).toBe(0); // the broker acknowledged every message to the publisher
     await waitFor('every reading stored', async () => (await count()) === MESSAGES * SAMPLES * 5, 60_000, count);
     expect(await db.all('SELECT channel, ts FROM readings WHERE engine_id = ? GROUP BY channel, ts HAVING COUNT(*) > 1', [device.engineId])).toEqual([]);

@@ -17,6 +17,7 @@ import { telemetryTopic } from '../../shared/topics';
 import { mosquittoInstalled, startMosquitto, type Mosquitto } from './support/mosquitto';
 import { Db, seedFleet, startServerProcess, type ServerProcess } from './support/telemetry-server';
 import type { ApiAnswer } from './support/api-answer';
+import { Boolean_, Double, encode, UInt64 } from './support/sparkplug-payload';
 
 jest.setTimeout(120_000);
 
@@ -126,6 +127,46 @@ itBroker('a device stores on its own engine topic; its publish on another engine
   expect(mq.log()).toContain(`'${telemetryTopic(b.engineId)}'`);
   c.end(true);
 });
+
+itBroker(
+  'a Sparkplug B gateway account: births and data under its own edge node are stored; another node and the commands are refused by the broker',
+  async () => {
+    const engineId = engines[1];
+    const res = await api('POST', '/api/devices', { engineId, sparkplug: { groupId: 'Waterworks', edgeNodeId: 'gw7', deviceId: 'pump2' } });
+    expect(res.status).toBe(201);
+    const c = await connect(res.body.username, res.body.secret);
+    const before = await stored(engineId);
+    const t0 = Date.now() - 20_000;
+    const commands: string[] = [];
+    c.on('message', (topic) => commands.push(topic));
+    await c.subscribeAsync('spBv1.0/Waterworks/NCMD/gw7'); // its own commands: allowed
+    await c.publishAsync('spBv1.0/Waterworks/NBIRTH/gw7', encode({ timestamp: t0, seq: 0, metrics: [{ name: 'bdSeq', datatype: UInt64, longValue: 0 }] }));
+    await c.publishAsync(
+      'spBv1.0/Waterworks/DBIRTH/gw7/pump2',
+      encode({ timestamp: t0, seq: 1, metrics: [{ name: 'coolant_temp', alias: 1, datatype: Double, doubleValue: 78 }] }),
+    );
+    // refused by the broker: another edge node's topic, and a command (only the host sends those)
+    await c.publishAsync('spBv1.0/Waterworks/NBIRTH/gw8', encode({ timestamp: t0, seq: 0, metrics: [] }));
+    await c.publishAsync(
+      'spBv1.0/Waterworks/NCMD/gw7',
+      encode({ timestamp: t0, metrics: [{ name: 'Node Control/Rebirth', datatype: Boolean_, booleanValue: true }] }),
+    );
+    await c.publishAsync('spBv1.0/Waterworks/DDATA/gw7/pump2', encode({ timestamp: t0 + 1000, seq: 2, metrics: [{ alias: 1, doubleValue: 79.5 }] }));
+    await waitFor(
+      'birth and data stored',
+      () => stored(engineId),
+      (n) => n === before + 2,
+    );
+    const denied = mq
+      .log()
+      .split('\n')
+      .filter((l) => l.includes(`Denied PUBLISH from ${c.options.clientId}`));
+    expect(denied.some((l) => l.includes("'spBv1.0/Waterworks/NBIRTH/gw8'"))).toBe(true);
+    expect(denied.some((l) => l.includes("'spBv1.0/Waterworks/NCMD/gw7'"))).toBe(true);
+    expect(commands).toEqual([]); // its own forged command never reached it
+    c.end(true);
+  },
+);
 
 itBroker('server killed: what devices publish meanwhile waits in its persistent session and is stored once after the restart', async () => {
   const a = devices[0];

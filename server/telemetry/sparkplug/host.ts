@@ -86,6 +86,8 @@ export class SparkplugHost {
   /** Nodes with a birth in progress: their later messages wait here, in order. */
   private readonly waiting = new Map<string, Array<() => Promise<void> | void>>();
   private publish: ((topic: string, payload: Buffer) => void) | null = null;
+  /** External broker: the edge nodes known here, as the client they stand for (its node record). */
+  private readonly externalClients = new Map<string, SparkplugClient>();
   private readonly stats = { births: 0, deaths: 0, seqGaps: 0, rebirthRequests: 0 };
   private readonly now: () => number;
 
@@ -149,6 +151,69 @@ export class SparkplugHost {
         cb(null);
       }
     });
+  }
+
+  /**
+   * A message from an external broker (MQTT_URL), which authenticated the gateway itself and enforces its
+   * topics: it speaks for the edge node whose device records are here (read at each NBIRTH, and once for
+   * a node not seen yet). An edge node with no record here is refused and counted; commands (ours, or
+   * another host's) are passed over. `done` once the readings are committed (the PUBACK of a QoS 1 message).
+   */
+  fromExternal(topic: string, payload: Buffer, done: () => void): void {
+    const t = parseSparkplugTopic(topic);
+    if (!t || t.type === 'NCMD' || t.type === 'DCMD') return done();
+    const key = this.nodeKey(t);
+    this.serial(key, async () => {
+      let client = this.externalClients.get(key);
+      if (!client || t.type === 'NBIRTH') {
+        const records = await this.deps.nodeRecords(t.groupId, t.edgeNodeId).catch((err) => {
+          this.deps.log.warn('sparkplug: reading the node records failed', err);
+          return null;
+        });
+        if (records === null) return done();
+        const own = records.find((r) => r.sparkplugDeviceId === null) ?? records[0];
+        client = own
+          ? { deviceId: own.recordId, engineId: own.engineId, sparkplug: { groupId: t.groupId, edgeNodeId: t.edgeNodeId, deviceId: null } }
+          : undefined;
+        if (client) this.externalClients.set(key, client);
+        else this.externalClients.delete(key);
+      }
+      if (!client) {
+        this.deps.reject(null, 'wrong_topic', `topic "${topic.slice(0, 160)}": no device record for edge node ${t.groupId}/${t.edgeNodeId}`);
+        return done();
+      }
+      const decoded = decodeSparkplugPayload(payload);
+      if (!decoded.ok) {
+        this.deps.reject(client.deviceId, decoded.reason, `${t.type}: ${decoded.detail}`);
+        return done();
+      }
+      await new Promise<void>((resolve) => {
+        try {
+          const pending = this.handle(client, t, decoded.payload, () => resolve());
+          if (pending) pending.catch(() => resolve());
+        } catch (err) {
+          this.deps.log.warn('sparkplug: message handling failed', err);
+          resolve();
+        }
+      });
+      done();
+    });
+  }
+
+  /**
+   * External broker: a device record changed (revoked, say). The broker still lets its gateway in, so the
+   * edge node's session here ends: its next data asks for a rebirth, and the birth reads the records again
+   * (a revoked record is no longer among them, and nothing more is stored for it).
+   */
+  forgetExternalRecord(recordId: number): void {
+    for (const [key, client] of this.externalClients) {
+      const s = this.sessions.get(key);
+      const involved =
+        client.deviceId === recordId || s?.node.record?.recordId === recordId || [...(s?.devices.values() ?? [])].some((d) => d.record?.recordId === recordId);
+      if (!involved) continue;
+      this.externalClients.delete(key);
+      this.sessions.delete(key);
+    }
   }
 
   /**
