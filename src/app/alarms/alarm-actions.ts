@@ -1,7 +1,7 @@
 import { Injectable, inject } from '@angular/core';
 import { MatDialog } from '@angular/material/dialog';
 import { MatSnackBar } from '@angular/material/snack-bar';
-import { firstValueFrom } from 'rxjs';
+import { Observable, firstValueFrom } from 'rxjs';
 import { AuthService } from '../core/auth.service';
 import { AlarmStore } from './alarm-store';
 import { Alarm } from './alarm-types';
@@ -58,9 +58,10 @@ export class AlarmActions {
     return this.run(() => this.api.addNote(alarm.id, note), 'Note added', 'Could not add the note');
   }
 
-  private async run(call: () => Promise<Alarm>, done: string, failed: string): Promise<Alarm | null> {
+  private async run(call: () => Observable<Alarm>, done: string, failed: string): Promise<Alarm | null> {
     try {
-      const a = await call();
+      // an async sequence (dialog, call, message) that the callers await: the one place for firstValueFrom
+      const a = await firstValueFrom(call());
       this.store.apply(a);
       this.snack.open(done, undefined, { duration: 2500 });
       return a;

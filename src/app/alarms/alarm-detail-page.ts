@@ -86,12 +86,12 @@ export class AlarmDetailPage {
     if (!this.fleet.sites().length) void this.fleet.load();
     effect(() => {
       const id = Number(this.id());
-      untracked(() => void this.load(id));
+      untracked(() => this.load(id));
     });
     // Live: this alarm changed somewhere (another user, the rules): fetch it again with its history.
     effect(() => {
       const changed = this.store.lastChange();
-      if (changed && changed.id === Number(untracked(this.id))) untracked(() => void this.load(changed.id));
+      if (changed && changed.id === Number(untracked(this.id))) untracked(() => this.load(changed.id));
     });
   }
 
@@ -110,36 +110,35 @@ export class AlarmDetailPage {
   }
 
   protected async acknowledge(a: Alarm): Promise<void> {
-    if (await this.actions.acknowledge(a)) await this.load(a.id);
+    if (await this.actions.acknowledge(a)) this.load(a.id);
   }
   protected async shelve(a: Alarm): Promise<void> {
-    if (await this.actions.shelve(a)) await this.load(a.id);
+    if (await this.actions.shelve(a)) this.load(a.id);
   }
   protected async unshelve(a: Alarm): Promise<void> {
-    if (await this.actions.unshelve(a)) await this.load(a.id);
+    if (await this.actions.unshelve(a)) this.load(a.id);
   }
-  protected async more(a: AlarmDetail): Promise<void> {
-    try {
-      const page = await this.api.history(a.id, a.history.length);
-      this.alarm.set({ ...a, history: [...a.history, ...page.entries], historyTotal: page.total });
-    } catch (err) {
-      this.error.set(errorText(err, 'More of the history could not be loaded'));
-    }
+  protected more(a: AlarmDetail): void {
+    this.api.history(a.id, a.history.length).subscribe({
+      next: (page) => this.alarm.set({ ...a, history: [...a.history, ...page.entries], historyTotal: page.total }),
+      error: (err: unknown) => this.error.set(errorText(err, 'More of the history could not be loaded')),
+    });
   }
   protected async note(a: Alarm): Promise<void> {
-    if (await this.actions.note(a)) await this.load(a.id);
+    if (await this.actions.note(a)) this.load(a.id);
   }
 
-  private async load(id: number): Promise<void> {
+  private load(id: number): void {
     if (!Number.isInteger(id) || id <= 0) {
       this.error.set('There is no such alarm.');
       return;
     }
-    try {
-      this.alarm.set(await this.api.get(id));
-      this.error.set(null);
-    } catch (err) {
-      this.error.set(errorText(err, 'The alarm could not be loaded'));
-    }
+    this.api.get(id).subscribe({
+      next: (a) => {
+        this.alarm.set(a);
+        this.error.set(null);
+      },
+      error: (err: unknown) => this.error.set(errorText(err, 'The alarm could not be loaded')),
+    });
   }
 }

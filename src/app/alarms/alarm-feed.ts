@@ -1,5 +1,5 @@
 import { Injectable, effect, inject, untracked } from '@angular/core';
-import { Subscription } from 'rxjs';
+import { Subscription, forkJoin } from 'rxjs';
 import { AppBarStatus } from '../core/app-bar-status';
 import { AuthService } from '../core/auth.service';
 import { LiveService } from '../core/live.service';
@@ -36,7 +36,7 @@ export class AlarmFeed {
     });
     // After a reconnect, events may have been missed.
     effect(() => {
-      if (this.live.connection() === 'connected') untracked(() => this.unwatch && void this.reload());
+      if (this.live.connection() === 'connected') untracked(() => this.unwatch && this.reload());
     });
     effect(() => {
       const count = this.store.loaded() ? this.store.activeCount() : null;
@@ -45,15 +45,16 @@ export class AlarmFeed {
   }
 
   /** Load everything again now. */
-  async reload(): Promise<void> {
-    try {
-      const [open, summary] = await Promise.all([this.api.list('open'), this.api.summary()]);
-      if (!this.unwatch) return;
-      this.store.setOpen(open);
-      this.store.setSummary(summary);
-    } catch {
+  reload(): void {
+    forkJoin([this.api.list('open'), this.api.summary()]).subscribe({
+      next: ([open, summary]) => {
+        if (!this.unwatch) return;
+        this.store.setOpen(open);
+        this.store.setSummary(summary);
+      },
       // the next reload or event tries again; the count stays as it was
-    }
+      error: () => undefined,
+    });
   }
 
   private start(): void {
@@ -64,19 +65,19 @@ export class AlarmFeed {
       this.store.apply(msg as unknown as Alarm);
       this.summarySoon();
     });
-    this.reloadTimer = setInterval(() => void this.reload(), RELOAD_EVERY_MS);
-    void this.reload();
+    this.reloadTimer = setInterval(() => this.reload(), RELOAD_EVERY_MS);
+    this.reload();
   }
 
   private summarySoon(): void {
-    this.summaryTimer ??= setTimeout(async () => {
+    this.summaryTimer ??= setTimeout(() => {
       this.summaryTimer = null;
-      try {
-        const s = await this.api.summary();
-        if (this.unwatch) this.store.setSummary(s);
-      } catch {
-        /* kept the last one */
-      }
+      this.api.summary().subscribe({
+        next: (s) => {
+          if (this.unwatch) this.store.setSummary(s);
+        },
+        error: () => undefined, // kept the last one
+      });
     }, SUMMARY_EVERY_MS);
   }
 

@@ -1,3 +1,4 @@
+import { finalize } from 'rxjs';
 import { ChangeDetectionStrategy, Component, computed, effect, inject, signal, untracked } from '@angular/core';
 import { MatButtonModule } from '@angular/material/button';
 import { MatButtonToggleModule } from '@angular/material/button-toggle';
@@ -124,7 +125,7 @@ export class AlarmListPage {
     if (!this.fleet.engines().length) void this.fleet.load();
 
     effect(() => {
-      if (this.view() === 'all') untracked(() => void this.loadHistory());
+      if (this.view() === 'all') untracked(() => this.loadHistory());
     });
     // Live: a changed alarm replaces its old line in the history too.
     effect(() => {
@@ -178,18 +179,18 @@ export class AlarmListPage {
   }
 
   protected retryHistory(): void {
-    void this.loadHistory();
+    this.loadHistory();
   }
 
-  private async loadHistory(): Promise<void> {
+  private loadHistory(): void {
     this.historyLoading.set(true);
     this.error.set(null);
-    try {
-      this.history.set(await this.api.list('all'));
-    } catch (err) {
-      this.error.set(errorText(err, 'The alarm history could not be loaded'));
-    } finally {
-      this.historyLoading.set(false);
-    }
+    this.api
+      .list('all')
+      .pipe(finalize(() => this.historyLoading.set(false)))
+      .subscribe({
+        next: (h) => this.history.set(h),
+        error: (err: unknown) => this.error.set(errorText(err, 'The alarm history could not be loaded')),
+      });
   }
 }

@@ -1,6 +1,6 @@
 import { HttpClient, HttpErrorResponse } from '@angular/common/http';
 import { Injectable, inject } from '@angular/core';
-import { firstValueFrom } from 'rxjs';
+import { Observable } from 'rxjs';
 import { Alarm, AlarmDetail, AlarmListView, AlarmPerformance, AlarmSummary } from './alarm-types';
 
 /** The alarm calls of the API (server/routes/alarms.ts). */
@@ -8,47 +8,45 @@ import { Alarm, AlarmDetail, AlarmListView, AlarmPerformance, AlarmSummary } fro
 export class AlarmsApi {
   private readonly http = inject(HttpClient);
 
-  list(state: AlarmListView | 'open', engineId?: number): Promise<Alarm[]> {
+  list(state: AlarmListView | 'open', engineId?: number): Observable<Alarm[]> {
     const params: Record<string, string> = { state };
     if (engineId) params['engineId'] = String(engineId);
-    return firstValueFrom(this.http.get<Alarm[]>('/api/alarms', { params }));
+    return this.http.get<Alarm[]>('/api/alarms', { params });
   }
 
-  get(id: number): Promise<AlarmDetail> {
-    return firstValueFrom(this.http.get<AlarmDetail>(`/api/alarms/${id}`));
+  get(id: number): Observable<AlarmDetail> {
+    return this.http.get<AlarmDetail>(`/api/alarms/${id}`);
   }
 
   /** A further page of an alarm's history (time order). */
-  history(id: number, offset: number, limit = 200): Promise<{ total: number; entries: AlarmDetail['history'] }> {
-    return firstValueFrom(
-      this.http.get<{ total: number; entries: AlarmDetail['history'] }>(`/api/alarms/${id}/history`, {
-        params: { offset: String(offset), limit: String(limit) },
-      }),
-    );
+  history(id: number, offset: number, limit = 200): Observable<{ total: number; entries: AlarmDetail['history'] }> {
+    return this.http.get<{ total: number; entries: AlarmDetail['history'] }>(`/api/alarms/${id}/history`, {
+      params: { offset: String(offset), limit: String(limit) },
+    });
   }
 
-  summary(): Promise<AlarmSummary> {
-    return firstValueFrom(this.http.get<AlarmSummary>('/api/alarms/summary'));
+  summary(): Observable<AlarmSummary> {
+    return this.http.get<AlarmSummary>('/api/alarms/summary');
   }
 
-  performance(from: number, to: number): Promise<AlarmPerformance> {
-    return firstValueFrom(this.http.get<AlarmPerformance>('/api/alarms/performance', { params: { from: String(from), to: String(to) } }));
+  performance(from: number, to: number): Observable<AlarmPerformance> {
+    return this.http.get<AlarmPerformance>('/api/alarms/performance', { params: { from: String(from), to: String(to) } });
   }
 
-  acknowledge(id: number, note?: string): Promise<Alarm> {
-    return firstValueFrom(this.http.post<Alarm>(`/api/alarms/${id}/acknowledge`, note ? { note } : {}));
+  acknowledge(id: number, note?: string): Observable<Alarm> {
+    return this.http.post<Alarm>(`/api/alarms/${id}/acknowledge`, note ? { note } : {});
   }
 
-  shelve(id: number, minutes: number, reason: string): Promise<Alarm> {
-    return firstValueFrom(this.http.post<Alarm>(`/api/alarms/${id}/shelve`, { minutes, reason }));
+  shelve(id: number, minutes: number, reason: string): Observable<Alarm> {
+    return this.http.post<Alarm>(`/api/alarms/${id}/shelve`, { minutes, reason });
   }
 
-  unshelve(id: number): Promise<Alarm> {
-    return firstValueFrom(this.http.post<Alarm>(`/api/alarms/${id}/unshelve`, {}));
+  unshelve(id: number): Observable<Alarm> {
+    return this.http.post<Alarm>(`/api/alarms/${id}/unshelve`, {});
   }
 
-  addNote(id: number, note: string): Promise<Alarm> {
-    return firstValueFrom(this.http.post<Alarm>(`/api/alarms/${id}/notes`, { note }));
+  addNote(id: number, note: string): Observable<Alarm> {
+    return this.http.post<Alarm>(`/api/alarms/${id}/notes`, { note });
   }
 }
 

@@ -1,3 +1,4 @@
+import { finalize } from 'rxjs';
 import { DecimalPipe, PercentPipe } from '@angular/common';
 import { ChangeDetectionStrategy, Component, computed, effect, inject, signal, untracked } from '@angular/core';
 import { MatButtonToggleModule } from '@angular/material/button-toggle';
@@ -216,7 +217,7 @@ export class PerformancePage {
   constructor() {
     effect(() => {
       const days = this.days();
-      untracked(() => void this.load(days));
+      untracked(() => this.load(days));
     });
   }
 
@@ -234,16 +235,16 @@ export class PerformancePage {
     return s % 60 === 0 ? `${s / 60} min` : `${s} s`;
   }
 
-  private async load(days: number): Promise<void> {
+  private load(days: number): void {
     this.loading.set(true);
     this.error.set(null);
     const to = Date.now();
-    try {
-      this.report.set(await this.api.performance(to - days * DAY, to));
-    } catch (err) {
-      this.error.set(errorText(err, 'The figures could not be loaded'));
-    } finally {
-      this.loading.set(false);
-    }
+    this.api
+      .performance(to - days * DAY, to)
+      .pipe(finalize(() => this.loading.set(false)))
+      .subscribe({
+        next: (r) => this.report.set(r),
+        error: (err: unknown) => this.error.set(errorText(err, 'The figures could not be loaded')),
+      });
   }
 }

@@ -4,7 +4,7 @@ import { MatButtonModule } from '@angular/material/button';
 import { MatCardModule } from '@angular/material/card';
 import { MatIconModule } from '@angular/material/icon';
 import { RouterLink } from '@angular/router';
-import { firstValueFrom } from 'rxjs';
+import { Observable, map } from 'rxjs';
 import { priorityLook, stateText } from '../alarms/alarm-labels';
 import { AlarmStore } from '../alarms/alarm-store';
 import { Alarm } from '../alarms/alarm-types';
@@ -299,7 +299,7 @@ export class EngineHome {
     // An alarm of this engine changed: its list follows.
     effect(() => {
       const changed = this.alarmStore.lastChange();
-      if (changed && changed.engineId === untracked(this.engineId)) untracked(() => void this.loadAlarms(changed.engineId));
+      if (changed && changed.engineId === untracked(this.engineId)) untracked(() => this.loadAlarms(changed.engineId));
     });
   }
 
@@ -321,37 +321,36 @@ export class EngineHome {
   }
 
   private loadAll(id: number): void {
-    void this.loadAlarms(id);
-    void this.section(
+    this.loadAlarms(id);
+    this.section(
       this.due,
-      async () => {
-        const res = await firstValueFrom(this.coolant.dueList({ engineId: id, windowDays: DUE_WINDOW_DAYS }));
+      this.coolant
+        .dueList({ engineId: id, windowDays: DUE_WINDOW_DAYS })
         // The server filters by engine; the client filters too, in case an older server ignores the parameter.
-        return res.sites.flatMap((s) => s.entries).filter((e) => e.engineId === id && e.state !== 'ok');
-      },
+        .pipe(map((res) => res.sites.flatMap((s) => s.entries).filter((e) => e.engineId === id && e.state !== 'ok'))),
       'The due tasks could not be loaded.',
     );
-    void this.section(
+    this.section(
       this.work,
-      () => this.workApi.list({ engineId: id, status: [...OPEN_WORK] }).then((l) => l.filter((w) => w.engineId === id)),
+      this.workApi.list({ engineId: id, status: [...OPEN_WORK] }).pipe(map((l) => l.filter((w) => w.engineId === id))),
       'The work orders could not be loaded.',
     );
-    void this.section(this.tests, () => firstValueFrom(this.coolant.tests(id)), 'The coolant tests could not be loaded.');
+    this.section(this.tests, this.coolant.tests(id), 'The coolant tests could not be loaded.');
   }
 
-  private loadAlarms(id: number): Promise<void> {
+  private loadAlarms(id: number): void {
     // Every alarm of the engine (open and closed): the open ones all, the closed ones the newest few.
-    return this.section(this.alarms, () => this.alarmsApi.list('all', id).then((l) => l.filter((a) => a.engineId === id)), 'The alarms could not be loaded.');
+    this.section(this.alarms, this.alarmsApi.list('all', id).pipe(map((l) => l.filter((a) => a.engineId === id))), 'The alarms could not be loaded.');
   }
 
-  private async section<T>(target: WritableSignal<Section<T>>, load: () => Promise<T[]>, failure: string): Promise<void> {
-    try {
-      const rows = await load();
-      target.set({ rows, error: null });
-    } catch (err) {
-      const status = err instanceof HttpErrorResponse ? err.status : 0;
-      target.set(status === 403 ? { rows: [], error: null, hidden: true } : { rows: null, error: failure });
-    }
+  private section<T>(target: WritableSignal<Section<T>>, load: Observable<T[]>, failure: string): void {
+    load.subscribe({
+      next: (rows) => target.set({ rows, error: null }),
+      error: (err: unknown) => {
+        const status = err instanceof HttpErrorResponse ? err.status : 0;
+        target.set(status === 403 ? { rows: [], error: null, hidden: true } : { rows: null, error: failure });
+      },
+    });
   }
 }
 

@@ -65,13 +65,13 @@ export class AttachmentThumb {
     effect(() => {
       const f = this.file();
       untracked(() => {
-        this.api.attachmentBlob(f.url).then(
-          (b) => {
+        this.api.attachmentBlob(f.url).subscribe({
+          next: (b) => {
             this.revoke();
             this.src.set(URL.createObjectURL(b));
           },
-          () => this.src.set(null),
-        );
+          error: () => this.src.set(null),
+        });
       });
     });
     inject(DestroyRef).onDestroy(() => this.revoke());

@@ -1,3 +1,4 @@
+import { finalize, forkJoin } from 'rxjs';
 import { browserZone, formatInZone } from '../ui/time-format';
 import { ChangeDetectionStrategy, Component, DestroyRef, ElementRef, afterNextRender, computed, effect, inject, input, signal, untracked } from '@angular/core';
 import {
@@ -196,23 +197,24 @@ export class CooldownChart {
       const at = Date.parse(this.check().at);
       const from = this.stopTs();
       const points = this.width();
-      untracked(() => void this.load(id, from, at, points));
+      untracked(() => this.load(id, from, at, points));
     });
     afterNextRender(() => this.observeWidth());
   }
 
-  private async load(id: number, from: number, to: number, points: number): Promise<void> {
+  private load(id: number, from: number, to: number, points: number): void {
     if (this.inFlight || !(to > from)) return;
     this.inFlight = true;
-    try {
-      const [t, p] = await Promise.all([this.api.readings(id, 'coolant_temp', from, to, points), this.api.readings(id, 'coolant_pressure', from, to, points)]);
-      this.temp.set(t);
-      this.pressure.set(p);
-    } catch {
-      // the next opening-check result tries again; the panel shows the check's own words meanwhile
-    } finally {
-      this.inFlight = false;
-    }
+    forkJoin([this.api.readings(id, 'coolant_temp', from, to, points), this.api.readings(id, 'coolant_pressure', from, to, points)])
+      .pipe(finalize(() => (this.inFlight = false)))
+      .subscribe({
+        next: ([t, p]) => {
+          this.temp.set(t);
+          this.pressure.set(p);
+        },
+        // the next opening-check result tries again; the panel shows the check's own words meanwhile
+        error: () => undefined,
+      });
   }
 
   private view(key: 'temp' | 'pressure', title: string, t: CooldownTrace, ink: (typeof INK)['light'], clearAt: number | null): TraceView {

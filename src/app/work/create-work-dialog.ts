@@ -1,3 +1,4 @@
+import { finalize } from 'rxjs';
 import { ChangeDetectionStrategy, Component, ElementRef, inject, signal, viewChild } from '@angular/core';
 import { FormControl, FormGroup, ReactiveFormsModule, Validators } from '@angular/forms';
 import { MatButtonModule } from '@angular/material/button';
@@ -105,25 +106,19 @@ export class CreateWorkDialog {
   });
 
   constructor() {
-    this.api.templates().then(
-      (t) => this.templates.set(t),
-      (e) => this.error.set(errorText(e)),
-    );
-    this.api.assignees().then(
-      (a) => this.assignees.set(a),
-      () => undefined,
-    );
+    this.api.templates().subscribe({ next: (t) => this.templates.set(t), error: (e) => this.error.set(errorText(e)) });
+    this.api.assignees().subscribe({ next: (a) => this.assignees.set(a), error: () => undefined });
   }
 
-  protected async create(): Promise<void> {
+  protected create(): void {
     if (this.form.invalid) return;
     const v = this.form.getRawValue();
     const due = checkDueDate(v.due, this.dueInput()?.nativeElement.value ?? '');
     if (!due.ok) return void this.error.set(`Due date: ${due.message}`);
     this.busy.set(true);
     this.error.set(null);
-    try {
-      const o = await this.api.create({
+    this.api
+      .create({
         engineId: this.data.engineId,
         kind: v.kind,
         ...(this.data.alarmId ? { alarmId: this.data.alarmId } : {}),
@@ -131,12 +126,8 @@ export class CreateWorkDialog {
         ...(v.assigneeId ? { assigneeId: v.assigneeId } : {}),
         ...(due.value ? { dueDate: due.value } : {}),
         ...(this.data.serviceTaskKey && v.kind === this.data.kind ? { serviceTaskKey: this.data.serviceTaskKey } : {}),
-      });
-      this.ref.close(o);
-    } catch (e) {
-      this.error.set(errorText(e));
-    } finally {
-      this.busy.set(false);
-    }
+      })
+      .pipe(finalize(() => this.busy.set(false)))
+      .subscribe({ next: (o) => this.ref.close(o), error: (e: unknown) => this.error.set(errorText(e)) });
   }
 }

@@ -144,16 +144,16 @@ export class MyWorkPage {
   });
 
   constructor() {
-    this.api.list({ mine: true, status: ['planned', 'in-progress', 'waiting-sign-off'] }).then(
-      (o) => {
+    this.api.list({ mine: true, status: ['planned', 'in-progress', 'waiting-sign-off'] }).subscribe({
+      next: (o) => {
         this.orders.set(o);
         this.loading.set(false);
       },
-      (e) => {
+      error: (e) => {
         this.error.set(errorText(e));
         this.loading.set(false);
       },
-    );
+    });
   }
 
   protected late(o: WorkOrderSummary): boolean {

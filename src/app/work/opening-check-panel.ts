@@ -236,23 +236,23 @@ export class OpeningCheckPanel {
       const id = this.engineId();
       this.lockoutConfirmed();
       untracked(() => {
-        void this.poll(id);
+        this.poll(id);
         if (this.timer) clearInterval(this.timer);
-        this.timer = setInterval(() => void this.poll(id), POLL_MS);
+        this.timer = setInterval(() => this.poll(id), POLL_MS);
       });
     });
     inject(DestroyRef).onDestroy(() => this.timer && clearInterval(this.timer));
   }
 
-  private async poll(id: number): Promise<void> {
-    try {
-      const c = await this.api.openingCheck(id, this.lockoutConfirmed());
-      this.check.set(c);
-      this.error.set(null);
-      this.changed.emit(c);
-    } catch (e) {
-      this.error.set(errorText(e));
-    }
+  private poll(id: number): void {
+    this.api.openingCheck(id, this.lockoutConfirmed()).subscribe({
+      next: (c) => {
+        this.check.set(c);
+        this.error.set(null);
+        this.changed.emit(c);
+      },
+      error: (e: unknown) => this.error.set(errorText(e)),
+    });
   }
 
   protected label(c: OpeningCondition): string {

@@ -1,3 +1,4 @@
+import { finalize } from 'rxjs';
 import { HttpErrorResponse } from '@angular/common/http';
 import { ChangeDetectionStrategy, Component, computed, effect, inject, input, output, signal, untracked } from '@angular/core';
 import { MatButtonModule } from '@angular/material/button';
@@ -127,29 +128,29 @@ export class StepCoolantCheck {
     effect(() => {
       const id = this.engineId();
       untracked(() => {
-        this.work.engineFacts(id).then(
-          (e) => this.engine.set(e),
-          (e) => this.error.set(errorText(e)),
-        );
+        this.work.engineFacts(id).subscribe({ next: (e) => this.engine.set(e), error: (e) => this.error.set(errorText(e)) });
         this.coolant.profile().subscribe({ next: (p) => this.profile.set(p), error: () => this.profile.set(null) });
       });
     });
   }
 
-  protected async record(): Promise<void> {
+  protected record(): void {
     this.busy.set(true);
     this.error.set(null);
-    try {
-      const r = await this.work.recordCoolantTest(this.workOrderId());
-      this.recorded.set(r.coolantTest);
-      this.orderChanged.emit(r.order);
-    } catch (e) {
-      // recorded before (another tab or device): show that test instead of offering again
-      const earlier = e instanceof HttpErrorResponse && e.status === 409 ? (e.error as { coolantTest?: OrderCoolantTest | null }).coolantTest : null;
-      if (earlier) this.recorded.set(earlier);
-      else this.error.set(errorText(e));
-    } finally {
-      this.busy.set(false);
-    }
+    this.work
+      .recordCoolantTest(this.workOrderId())
+      .pipe(finalize(() => this.busy.set(false)))
+      .subscribe({
+        next: (r) => {
+          this.recorded.set(r.coolantTest);
+          this.orderChanged.emit(r.order);
+        },
+        error: (e: unknown) => {
+          // recorded before (another tab or device): show that test instead of offering again
+          const earlier = e instanceof HttpErrorResponse && e.status === 409 ? (e.error as { coolantTest?: OrderCoolantTest | null }).coolantTest : null;
+          if (earlier) this.recorded.set(earlier);
+          else this.error.set(errorText(e));
+        },
+      });
   }
 }

@@ -6,7 +6,7 @@ import { MatIconModule } from '@angular/material/icon';
 import { MatInputModule } from '@angular/material/input';
 import { MatSelectModule } from '@angular/material/select';
 import { RouterLink } from '@angular/router';
-import { firstValueFrom } from 'rxjs';
+import { finalize } from 'rxjs';
 import type { TopUpLiquid } from '../../../shared/coolant/top-up';
 import { PreferencesService } from '../core/preferences.service';
 import { CoolantService } from '../coolant/coolant.service';
@@ -168,19 +168,15 @@ export class StepTopUp {
       const done = !!this.step().doneAt;
       const id = this.engineId();
       if (!done) return;
-      untracked(() => void this.loadEstimate(id));
+      untracked(() => this.loadEstimate(id));
     });
   }
 
-  private async loadEstimate(engineId: number): Promise<void> {
-    try {
-      this.answer.set(await firstValueFrom(this.coolant.topUps(engineId)));
-    } catch {
-      this.answer.set(null);
-    }
+  private loadEstimate(engineId: number): void {
+    this.coolant.topUps(engineId).subscribe({ next: (a) => this.answer.set(a), error: () => this.answer.set(null) });
   }
 
-  protected async record(): Promise<void> {
+  protected record(): void {
     this.form.markAllAsTouched();
     const v = this.form.getRawValue();
     const liquid = v.liquid;
@@ -192,18 +188,14 @@ export class StepTopUp {
     const note = v.note.trim();
     this.busy.set(true);
     this.error.set(null);
-    try {
-      const order = await this.api.completeStep(this.orderId(), this.step().id, {
+    this.api
+      .completeStep(this.orderId(), this.step().id, {
         value: Number(v.volume),
         unit,
         ...(note ? { note } : {}),
         topUp: { liquid, premixPercent: liquid === 'premix' ? Number(v.premixPercent) : null },
-      });
-      this.orderChanged.emit(order);
-    } catch (e) {
-      this.error.set(errorText(e));
-    } finally {
-      this.busy.set(false);
-    }
+      })
+      .pipe(finalize(() => this.busy.set(false)))
+      .subscribe({ next: (order) => this.orderChanged.emit(order), error: (e: unknown) => this.error.set(errorText(e)) });
   }
 }

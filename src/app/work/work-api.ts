@@ -1,6 +1,6 @@
 import { HttpClient, HttpErrorResponse } from '@angular/common/http';
 import { Injectable, inject } from '@angular/core';
-import { firstValueFrom } from 'rxjs';
+import { Observable, catchError, map, shareReplay, throwError } from 'rxjs';
 import type { CoolantFamily } from '../../../shared/coolant';
 import { isNoAnswer } from '../core/network-status';
 import { ReadingBucket } from './cooldown-series';
@@ -56,118 +56,118 @@ export interface CompleteRequest {
   topUp?: { liquid: 'water' | 'premix' | 'glycol'; premixPercent: number | null };
 }
 
-/** HTTP calls of the work feature; the server decides every permission and the opening check. */
+/** HTTP calls of the work feature, as Observables (HttpClient's own, one request per subscription); the server decides every permission and the opening check. */
 @Injectable({ providedIn: 'root' })
 export class WorkApi {
   private readonly http = inject(HttpClient);
-  private templatesCache: Promise<WorkTemplate[]> | null = null;
+  /** The templates change only with a release: one request, shared by every caller (asked again after a failure). */
+  private templatesCache: Observable<WorkTemplate[]> | null = null;
 
-  templates(): Promise<WorkTemplate[]> {
-    this.templatesCache ??= firstValueFrom(this.http.get<WorkTemplate[]>('/api/work-order-templates')).catch((e) => {
-      this.templatesCache = null;
-      throw e;
-    });
+  templates(): Observable<WorkTemplate[]> {
+    this.templatesCache ??= this.http.get<WorkTemplate[]>('/api/work-order-templates').pipe(
+      catchError((e: unknown) => {
+        this.templatesCache = null;
+        return throwError(() => e);
+      }),
+      shareReplay(1),
+    );
     return this.templatesCache;
   }
 
-  list(f: ListFilter = {}): Promise<WorkOrderSummary[]> {
+  list(f: ListFilter = {}): Observable<WorkOrderSummary[]> {
     const params: Record<string, string> = {};
     if (f.status?.length) params['status'] = f.status.join(',');
     if (f.engineId) params['engineId'] = String(f.engineId);
     if (f.siteId) params['siteId'] = String(f.siteId);
     if (f.assigneeId) params['assigneeId'] = String(f.assigneeId);
     if (f.mine) params['mine'] = '1';
-    return firstValueFrom(this.http.get<WorkOrderSummary[]>('/api/work-orders', { params }));
+    return this.http.get<WorkOrderSummary[]>('/api/work-orders', { params });
   }
 
-  get(id: number): Promise<WorkOrderDetail> {
-    return firstValueFrom(this.http.get<WorkOrderDetail>(`/api/work-orders/${id}`));
+  get(id: number): Observable<WorkOrderDetail> {
+    return this.http.get<WorkOrderDetail>(`/api/work-orders/${id}`);
   }
 
-  create(body: CreateRequest): Promise<WorkOrderDetail> {
-    return firstValueFrom(this.http.post<WorkOrderDetail>('/api/work-orders', body));
+  create(body: CreateRequest): Observable<WorkOrderDetail> {
+    return this.http.post<WorkOrderDetail>('/api/work-orders', body);
   }
 
-  plan(id: number, body: { assigneeId?: number | null; dueDate?: string | null; priority?: WorkPriority }): Promise<WorkOrderDetail> {
-    return firstValueFrom(this.http.patch<WorkOrderDetail>(`/api/work-orders/${id}`, body));
+  plan(id: number, body: { assigneeId?: number | null; dueDate?: string | null; priority?: WorkPriority }): Observable<WorkOrderDetail> {
+    return this.http.patch<WorkOrderDetail>(`/api/work-orders/${id}`, body);
   }
 
-  transition(id: number, to: WorkStatus, note?: string): Promise<WorkOrderDetail> {
-    return firstValueFrom(this.http.post<WorkOrderDetail>(`/api/work-orders/${id}/transition`, note ? { to, note } : { to }));
+  transition(id: number, to: WorkStatus, note?: string): Observable<WorkOrderDetail> {
+    return this.http.post<WorkOrderDetail>(`/api/work-orders/${id}/transition`, note ? { to, note } : { to });
   }
 
-  completeStep(id: number, stepId: number, body: CompleteRequest): Promise<WorkOrderDetail> {
-    return firstValueFrom(this.http.post<WorkOrderDetail>(`/api/work-orders/${id}/steps/${stepId}/complete`, body));
+  completeStep(id: number, stepId: number, body: CompleteRequest): Observable<WorkOrderDetail> {
+    return this.http.post<WorkOrderDetail>(`/api/work-orders/${id}/steps/${stepId}/complete`, body);
   }
 
   /** Saves what is typed into a step without completing it (the server keeps it for a reload or another device). */
-  saveDraft(id: number, stepId: number, body: { value?: number | null; unit?: string; note?: string }): Promise<WorkOrderDetail> {
-    return firstValueFrom(this.http.patch<WorkOrderDetail>(`/api/work-orders/${id}/steps/${stepId}`, body));
+  saveDraft(id: number, stepId: number, body: { value?: number | null; unit?: string; note?: string }): Observable<WorkOrderDetail> {
+    return this.http.patch<WorkOrderDetail>(`/api/work-orders/${id}/steps/${stepId}`, body);
   }
 
   /** Records the order's coolant test from its steps (once per order; a second call answers 409 with the recorded test). */
-  recordCoolantTest(id: number, method?: string): Promise<{ coolantTest: OrderCoolantTest; order: WorkOrderDetail }> {
-    return firstValueFrom(
-      this.http.post<{ coolantTest: OrderCoolantTest; order: WorkOrderDetail }>(`/api/work-orders/${id}/coolant-test`, method ? { method } : {}),
-    );
+  recordCoolantTest(id: number, method?: string): Observable<{ coolantTest: OrderCoolantTest; order: WorkOrderDetail }> {
+    return this.http.post<{ coolantTest: OrderCoolantTest; order: WorkOrderDetail }>(`/api/work-orders/${id}/coolant-test`, method ? { method } : {});
   }
 
-  addPart(id: number, body: { kind: string; quantity: number; unit: 'L' | 'gal' | 'pcs'; description?: string }): Promise<WorkOrderDetail> {
-    return firstValueFrom(this.http.post<WorkOrderDetail>(`/api/work-orders/${id}/parts`, body));
+  addPart(id: number, body: { kind: string; quantity: number; unit: 'L' | 'gal' | 'pcs'; description?: string }): Observable<WorkOrderDetail> {
+    return this.http.post<WorkOrderDetail>(`/api/work-orders/${id}/parts`, body);
   }
 
-  addAmendment(id: number, text: string): Promise<WorkOrderDetail> {
-    return firstValueFrom(this.http.post<WorkOrderDetail>(`/api/work-orders/${id}/amendments`, { text }));
+  addAmendment(id: number, text: string): Observable<WorkOrderDetail> {
+    return this.http.post<WorkOrderDetail>(`/api/work-orders/${id}/amendments`, { text });
   }
 
-  upload(id: number, file: File, stepId: number | null): Promise<unknown> {
+  upload(id: number, file: File, stepId: number | null): Observable<unknown> {
     const form = new FormData();
     if (stepId) form.append('stepId', String(stepId));
     form.append('file', file, file.name);
-    return firstValueFrom(this.http.post(`/api/work-orders/${id}/attachments`, form));
+    return this.http.post(`/api/work-orders/${id}/attachments`, form);
   }
 
   /** Attachments need the token, so they are fetched as blobs and shown through object URLs. */
-  attachmentBlob(url: string): Promise<Blob> {
-    return firstValueFrom(this.http.get(url, { responseType: 'blob' }));
+  attachmentBlob(url: string): Observable<Blob> {
+    return this.http.get(url, { responseType: 'blob' });
   }
 
-  openingCheck(engineId: number, lockoutConfirmed = false): Promise<OpeningCheck> {
+  openingCheck(engineId: number, lockoutConfirmed = false): Observable<OpeningCheck> {
     // never from the service worker's cache: the opening check is live data or nothing (ngsw-bypass)
-    return firstValueFrom(
-      this.http.get<OpeningCheck>(`/api/engines/${engineId}/opening-check`, {
-        params: { lockoutConfirmed: String(lockoutConfirmed) },
-        headers: { 'ngsw-bypass': 'true' },
-      }),
-    );
+    return this.http.get<OpeningCheck>(`/api/engines/${engineId}/opening-check`, {
+      params: { lockoutConfirmed: String(lockoutConfirmed) },
+      headers: { 'ngsw-bypass': 'true' },
+    });
   }
 
   /** Readings of one channel as buckets (at most `points`), stored units. */
-  readings(engineId: number, channel: string, from: number, to: number, points: number): Promise<ReadingBucket[]> {
+  readings(engineId: number, channel: string, from: number, to: number, points: number): Observable<ReadingBucket[]> {
     const params = { channel, from: String(Math.floor(from)), to: String(Math.ceil(to)), points: String(Math.max(1, Math.min(2000, Math.round(points)))) };
-    return firstValueFrom(this.http.get<{ buckets?: ReadingBucket[] }>(`/api/engines/${engineId}/readings`, { params })).then((r) => r.buckets ?? []);
+    return this.http.get<{ buckets?: ReadingBucket[] }>(`/api/engines/${engineId}/readings`, { params }).pipe(map((r) => r.buckets ?? []));
   }
 
   /** Coolant tests of an engine, newest first (server/routes/coolant.ts). */
-  coolantTests(engineId: number): Promise<CoolantTestSummary[]> {
-    return firstValueFrom(this.http.get<CoolantTestSummary[]>(`/api/engines/${engineId}/coolant-tests`));
+  coolantTests(engineId: number): Observable<CoolantTestSummary[]> {
+    return this.http.get<CoolantTestSummary[]>(`/api/engines/${engineId}/coolant-tests`);
   }
 
-  sites(): Promise<{ id: number; name: string }[]> {
-    return firstValueFrom(this.http.get<{ id: number; name: string }[]>('/api/sites'));
+  sites(): Observable<{ id: number; name: string }[]> {
+    return this.http.get<{ id: number; name: string }[]>('/api/sites');
   }
 
   /** The engine facts a coolant decision needs (GET /api/engines/:id answers more). */
-  engineFacts(id: number): Promise<EngineFacts> {
-    return firstValueFrom(this.http.get<EngineFacts>(`/api/engines/${id}`));
+  engineFacts(id: number): Observable<EngineFacts> {
+    return this.http.get<EngineFacts>(`/api/engines/${id}`);
   }
 
-  engines(): Promise<{ id: number; name: string; siteId: number }[]> {
-    return firstValueFrom(this.http.get<{ id: number; name: string; siteId: number }[]>('/api/engines'));
+  engines(): Observable<{ id: number; name: string; siteId: number }[]> {
+    return this.http.get<{ id: number; name: string; siteId: number }[]>('/api/engines');
   }
 
-  assignees(): Promise<Assignee[]> {
-    return firstValueFrom(this.http.get<Assignee[]>('/api/work-orders/assignees'));
+  assignees(): Observable<Assignee[]> {
+    return this.http.get<Assignee[]>('/api/work-orders/assignees');
   }
 }
 

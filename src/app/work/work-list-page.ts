@@ -1,3 +1,4 @@
+import { Subscription, finalize } from 'rxjs';
 import { DOCUMENT } from '@angular/common';
 import { ChangeDetectionStrategy, Component, computed, inject, signal } from '@angular/core';
 import { NonNullableFormBuilder, ReactiveFormsModule } from '@angular/forms';
@@ -281,32 +282,27 @@ export class WorkListPage {
   });
 
   constructor() {
-    void this.reload();
-    this.api.sites().then(
-      (s) => this.sites.set(s),
-      () => undefined,
-    );
-    this.api.assignees().then(
-      (a) => this.assignees.set(a),
-      () => undefined,
-    );
+    this.reload();
+    this.api.sites().subscribe({ next: (s) => this.sites.set(s), error: () => undefined });
+    this.api.assignees().subscribe({ next: (a) => this.assignees.set(a), error: () => undefined });
   }
 
   protected isLate(o: WorkOrderSummary): boolean {
     return !!o.dueDate && o.dueDate < this.today && OPEN_STATUSES.includes(o.status);
   }
 
-  protected async reload(): Promise<void> {
+  private listing: Subscription | null = null;
+
+  /** Loads the list for the filters; a newer choice cancels the answer still awaited for an older one. */
+  protected reload(): void {
+    this.listing?.unsubscribe();
     this.loading.set(true);
     this.error.set(null);
-    try {
-      const f = this.filters.getRawValue();
-      this.orders.set(await this.api.list({ status: f.statuses, siteId: f.siteId ?? undefined, assigneeId: f.assigneeId ?? undefined }));
-    } catch (e) {
-      this.error.set(errorText(e));
-    } finally {
-      this.loading.set(false);
-    }
+    const f = this.filters.getRawValue();
+    this.listing = this.api
+      .list({ status: f.statuses, siteId: f.siteId ?? undefined, assigneeId: f.assigneeId ?? undefined })
+      .pipe(finalize(() => this.loading.set(false)))
+      .subscribe({ next: (o) => this.orders.set(o), error: (e: unknown) => this.error.set(errorText(e)) });
   }
 
   protected exportCsv(): void {

@@ -11,7 +11,7 @@ import { MatDatepickerModule } from '@angular/material/datepicker';
 import { provideNativeDateAdapter } from '@angular/material/core';
 import { checkDueDate, MAX_DUE, MIN_DUE } from './due-date';
 import { ActivatedRoute, Router, RouterLink } from '@angular/router';
-import { map } from 'rxjs';
+import { finalize, map } from 'rxjs';
 import { AuthService } from '../core/auth.service';
 import { formValue } from '../ui/form-value';
 import { WorkApi, errorText } from './work-api';
@@ -197,39 +197,26 @@ export class WorkNewPage {
         if (k) this.form.controls.kind.setValue(KIND_ALIASES[k] ?? k);
       });
     });
-    this.api.templates().then(
-      (t) => this.templates.set(t),
-      (e) => this.error.set(errorText(e)),
-    );
-    this.api.engines().then(
-      (e) => this.engines.set(e),
-      () => undefined,
-    );
-    this.api.sites().then(
-      (s) => this.sites.set(s),
-      () => undefined,
-    );
-    if (this.planner())
-      this.api.assignees().then(
-        (a) => this.assignees.set(a),
-        () => undefined,
-      );
+    this.api.templates().subscribe({ next: (t) => this.templates.set(t), error: (e) => this.error.set(errorText(e)) });
+    this.api.engines().subscribe({ next: (e) => this.engines.set(e), error: () => undefined });
+    this.api.sites().subscribe({ next: (s) => this.sites.set(s), error: () => undefined });
+    if (this.planner()) this.api.assignees().subscribe({ next: (a) => this.assignees.set(a), error: () => undefined });
   }
 
   protected siteName(id: number): string {
     return this.sites().find((s) => s.id === id)?.name ?? '';
   }
 
-  protected async submit(typedDue = ''): Promise<void> {
+  protected submit(typedDue = ''): void {
     const v = this.form.getRawValue();
     if (!v.engine || !v.kind) return;
     const due = checkDueDate(v.dueDate, typedDue);
     if (!due.ok) return void this.error.set(`Due date: ${due.message}`);
     this.busy.set(true);
     this.error.set(null);
-    try {
-      const alarm = Number(this.alarmId());
-      const o = await this.api.create({
+    const alarm = Number(this.alarmId());
+    this.api
+      .create({
         engineId: v.engine,
         kind: v.kind,
         ...(alarm > 0 ? { alarmId: alarm } : {}),
@@ -238,12 +225,8 @@ export class WorkNewPage {
         ...(v.priority ? { priority: v.priority } : {}),
         ...(this.planner() && due.value ? { dueDate: due.value } : {}),
         ...(this.planner() && v.assigneeId ? { assigneeId: v.assigneeId } : {}),
-      });
-      void this.router.navigate(['/work', o.id]);
-    } catch (e) {
-      this.error.set(errorText(e));
-    } finally {
-      this.busy.set(false);
-    }
+      })
+      .pipe(finalize(() => this.busy.set(false)))
+      .subscribe({ next: (o) => void this.router.navigate(['/work', o.id]), error: (e: unknown) => this.error.set(errorText(e)) });
   }
 }

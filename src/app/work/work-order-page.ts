@@ -1,6 +1,8 @@
-import { ChangeDetectionStrategy, Component, computed, effect, inject, input, signal, untracked } from '@angular/core';
+import { ChangeDetectionStrategy, Component, DestroyRef, computed, effect, inject, input, signal, untracked } from '@angular/core';
+import { takeUntilDestroyed } from '@angular/core/rxjs-interop';
 import { HttpErrorResponse } from '@angular/common/http';
-import { FormsModule } from '@angular/forms';
+import { FormControl, FormGroup, NonNullableFormBuilder, ReactiveFormsModule } from '@angular/forms';
+import { Observable, finalize, merge } from 'rxjs';
 import { MatButtonModule } from '@angular/material/button';
 import { MatCardModule } from '@angular/material/card';
 import { MatCheckboxModule } from '@angular/material/checkbox';
@@ -19,7 +21,8 @@ import { FilterDefault, filterDefault } from './parts-default';
 import { AttachmentThumb } from './attachment-thumb';
 import { WorkApi, errorText } from './work-api';
 import { CONDITION_TEXT, EVENT_TEXT, PART_TEXT, PRIORITY_TEXT, STATUS_ICON, STATUS_TEXT, STEP_UNIT_TEXT, formatDate, formatDateTime } from './work-labels';
-import { Assignee, GateRefusal, OpeningCheck, OpeningCondition, WorkOrderDetail, WorkStatus, WorkStep } from './work-types';
+import { Assignee, GateRefusal, OpeningCheck, OpeningCondition, WorkOrderDetail, WorkPriority, WorkStatus, WorkStep } from './work-types';
+import { formValue } from '../ui/form-value';
 import { StepCoolantCheck } from './step-coolant-check';
 import { StepTopUp } from './step-top-up';
 import { isTopUpStep } from '../../../shared/work/top-up-step';
@@ -38,18 +41,21 @@ import { OutboxPanel } from './offline/outbox-panel';
 import { Outbox, type RecordInput } from './offline/outbox.service';
 import type { OutboxEntry } from './offline/outbox-entry';
 
-interface StepDraft {
-  value: number | null;
-  unit: string;
-  note: string;
-  lockout: boolean;
-  manual: boolean;
-  gaugeKpa: number | null;
-  tempC: number | null;
-  minutesSinceStop: number | null;
-  checkedBy: string;
-  reason: string;
-}
+/** What is typed into one step not yet done: its value and remark, the lockout tick and a manual opening check. */
+type StepDraftForm = FormGroup<{
+  value: FormControl<number | null>;
+  unit: FormControl<string>;
+  note: FormControl<string>;
+  lockout: FormControl<boolean>;
+  manual: FormControl<boolean>;
+  gaugeKpa: FormControl<number | null>;
+  tempC: FormControl<number | null>;
+  minutesSinceStop: FormControl<number | null>;
+  checkedBy: FormControl<string>;
+  reason: FormControl<string>;
+}>;
+
+type PartUnit = 'L' | 'gal' | 'pcs';
 
 /** Units a technician may type a step's value in; the server converts to the step's own unit. */
 const ENTRY_UNITS: Record<string, string[]> = { degC: ['degC', 'degF'], kPa: ['kPa', 'psi', 'bar'], L: ['L', 'gal'] };
@@ -59,7 +65,7 @@ const ENTRY_UNITS: Record<string, string[]> = { degC: ['degC', 'degF'], kPa: ['k
   selector: 'jw-work-order-page',
   changeDetection: ChangeDetectionStrategy.OnPush,
   imports: [
-    FormsModule,
+    ReactiveFormsModule,
     RouterLink,
     MatButtonModule,
     MatCardModule,
@@ -99,10 +105,25 @@ export class WorkOrderPage {
   protected readonly stepErrors = signal<Record<number, { text: string; conditions: OpeningCondition[] }>>({});
   protected readonly gate = signal<OpeningCheck | null>(null);
   protected readonly assignees = signal<Assignee[]>([]);
-  protected readonly drafts: Record<number, StepDraft> = {};
-  protected amendmentText = '';
+  private readonly fb = inject(NonNullableFormBuilder);
+  private readonly destroyRef = inject(DestroyRef);
+  /** One form per step, by step id; made when the step is first shown and kept while the page is open. */
+  protected readonly drafts = this.fb.record<StepDraftForm>({});
+  protected readonly amendment = this.fb.control('');
+  protected readonly amendmentValue = formValue(this.amendment);
   /** Nothing chosen until the additive test says which filter (or the user chooses). */
-  protected part = { kind: '', quantity: 1 as number | null, unit: 'pcs' as 'L' | 'gal' | 'pcs', description: '' };
+  protected readonly part = this.fb.group({
+    kind: [''],
+    quantity: this.fb.control<number | null>(1),
+    unit: this.fb.control<PartUnit>('pcs'),
+    description: [''],
+  });
+  protected readonly partValue = formValue(this.part);
+  /** The planner's fields; they show the order as the server has it, and a choice is sent at once. */
+  protected readonly planForm = this.fb.group({
+    assigneeId: this.fb.control<number | null>(null),
+    priority: this.fb.control<WorkPriority>('medium'),
+  });
   /** The filter the latest additive test asks for, on a filter change; null on other work. */
   protected readonly filterHint = signal<FilterDefault | null>(null);
   protected uploadStep: number | null = null;
@@ -204,13 +225,13 @@ export class WorkOrderPage {
     if (!this.fleet.engines().length) void this.fleet.load();
     effect(() => {
       const id = Number(this.id());
-      untracked(() => void this.load(id));
+      untracked(() => this.load(id));
     });
-    if (this.auth.hasRole('planner', 'admin'))
-      this.api.assignees().then(
-        (a) => this.assignees.set(a),
-        () => undefined,
-      );
+    if (this.auth.hasRole('planner', 'admin')) this.api.assignees().subscribe({ next: (a) => this.assignees.set(a), error: () => undefined });
+    const plan = this.planForm.controls;
+    plan.assigneeId.valueChanges.pipe(takeUntilDestroyed()).subscribe((v) => this.plan('assigneeId', v));
+    plan.priority.valueChanges.pipe(takeUntilDestroyed()).subscribe((v) => this.plan('priority', v));
+    this.part.controls.kind.valueChanges.pipe(takeUntilDestroyed()).subscribe(() => this.partKindChanged());
     // what the outbox stored on the server shows as the server has it
     let round = this.outbox.sentRound();
     effect(() => {
@@ -218,77 +239,85 @@ export class WorkOrderPage {
       if (r === round) return;
       round = r;
       const o = untracked(this.order);
-      if (o) untracked(() => void this.reloadQuietly(o.id));
+      if (o) untracked(() => this.reloadQuietly(o.id));
     });
   }
 
-  private async reloadQuietly(id: number): Promise<void> {
-    try {
-      this.set(await this.api.get(id));
-    } catch {
-      /* still offline: the page keeps what it shows */
-    }
+  private reloadQuietly(id: number): void {
+    // still offline: the page keeps what it shows
+    this.api.get(id).subscribe({ next: (o) => this.set(o), error: () => undefined });
   }
 
-  private async load(id: number): Promise<void> {
-    try {
-      const o = await this.api.get(id);
-      this.set(o);
-      if (o.kind === 'filter-change' && !['closed', 'cancelled'].includes(o.status)) await this.loadFilterDefault(o.engineId);
-    } catch (e) {
-      this.error.set(errorText(e));
-    }
+  private load(id: number): void {
+    this.api.get(id).subscribe({
+      next: (o) => {
+        this.set(o);
+        if (o.kind === 'filter-change' && !['closed', 'cancelled'].includes(o.status)) this.loadFilterDefault(o.engineId);
+      },
+      error: (e: unknown) => this.error.set(errorText(e)),
+    });
   }
 
-  private async loadFilterDefault(engineId: number): Promise<void> {
-    try {
-      const d = filterDefault(await this.api.coolantTests(engineId));
-      this.filterHint.set(d);
-      // only when the user has not chosen yet
-      if (d.kind && this.part.kind === '') {
-        this.part = { ...this.part, kind: d.kind };
-        this.partKindChanged();
-      }
-    } catch {
-      this.filterHint.set(null);
-    }
+  private loadFilterDefault(engineId: number): void {
+    this.api.coolantTests(engineId).subscribe({
+      next: (tests) => {
+        const d = filterDefault(tests);
+        this.filterHint.set(d);
+        // only when the user has not chosen yet (the unit follows the kind)
+        if (d.kind && this.part.controls.kind.value === '') this.part.controls.kind.setValue(d.kind);
+      },
+      error: () => this.filterHint.set(null),
+    });
   }
 
   private set(o: WorkOrderDetail): void {
-    for (const s of o.steps) {
-      if (!this.drafts[s.id]) {
-        // a step not done shows the draft the server keeps (as typed, with its unit)
-        const saved = !s.doneAt && s.resultValue !== null;
-        this.drafts[s.id] = {
-          value: saved ? s.resultValue : null,
-          unit: saved && s.resultUnit ? s.resultUnit : (s.unit ?? ''),
-          note: !s.doneAt ? (s.resultText ?? '') : '',
-          lockout: false,
-          manual: false,
-          gaugeKpa: null,
-          tempC: null,
-          minutesSinceStop: null,
-          checkedBy: this.auth.user()?.name ?? '',
-          reason: '',
-        };
-        if (s.unit && !saved) this.drafts[s.id].unit = this.preferredUnit(s.unit);
-        this.overlayKept(o.id, s);
-      }
-    }
+    for (const s of o.steps) if (!this.drafts.contains(String(s.id))) this.addDraft(o.id, s);
+    this.planForm.setValue({ assigneeId: o.assigneeId, priority: o.priority }, { emitEvent: false });
     this.order.set(o);
-    this.anyLockout.set(this.lockoutCarried() || Object.values(this.drafts).some((d) => d.lockout));
+    this.anyLockout.set(this.lockoutCarried() || Object.values(this.drafts.controls).some((d) => d.controls.lockout.value));
     this.error.set(null);
   }
 
+  /** The form of a step not seen before: the draft the server keeps (as typed, with its unit), then what this device still keeps. */
+  private addDraft(orderId: number, s: WorkStep): void {
+    const saved = !s.doneAt && s.resultValue !== null;
+    const d = this.fb.group({
+      value: this.fb.control<number | null>(saved ? s.resultValue : null),
+      unit: [saved && s.resultUnit ? s.resultUnit : s.unit ? this.preferredUnit(s.unit) : ''],
+      note: [!s.doneAt ? (s.resultText ?? '') : ''],
+      lockout: [false],
+      manual: [false],
+      gaugeKpa: this.fb.control<number | null>(null),
+      tempC: this.fb.control<number | null>(null),
+      minutesSinceStop: this.fb.control<number | null>(null),
+      checkedBy: [this.auth.user()?.name ?? ''],
+      reason: [''],
+    });
+    this.overlayKept(orderId, s, d);
+    this.drafts.addControl(String(s.id), d, { emitEvent: false });
+    // what is typed into the value, unit or remark is saved as a draft (the step as the page has it now)
+    const c = d.controls;
+    merge(c.value.valueChanges, c.unit.valueChanges, c.note.valueChanges)
+      .pipe(takeUntilDestroyed(this.destroyRef))
+      .subscribe(() => {
+        const step = this.order()?.steps.find((x) => x.id === s.id);
+        if (step) this.draftChanged(step);
+      });
+  }
+
+  /** The form of a step (made in set() before the step is shown). */
+  protected draft(s: WorkStep): StepDraftForm {
+    return this.drafts.controls[String(s.id)];
+  }
+
   /** What this device still keeps for a step (typed offline, not yet on the server) is what the step shows. */
-  private overlayKept(orderId: number, s: WorkStep): void {
-    const d = this.drafts[s.id];
+  private overlayKept(orderId: number, s: WorkStep, d: StepDraftForm): void {
     for (const e of this.outbox.entries()) {
       if (e.orderId !== orderId || e.stepId !== s.id || e.state === 'sent' || !e.body || e.kind === 'photo') continue;
       const b = e.body as { value?: number | null; unit?: string; note?: string };
-      if (b.value !== undefined) d.value = b.value;
-      if (b.unit) d.unit = b.unit;
-      if (b.note !== undefined) d.note = b.note;
+      if (b.value !== undefined) d.controls.value.setValue(b.value);
+      if (b.unit) d.controls.unit.setValue(b.unit);
+      if (b.note !== undefined) d.controls.note.setValue(b.note);
     }
   }
 
@@ -302,26 +331,28 @@ export class WorkOrderPage {
     );
   }
 
-  private async saveDraft(s: WorkStep): Promise<void> {
+  private saveDraft(s: WorkStep): void {
     this.draftTimers.delete(s.id);
-    const d = this.drafts[s.id];
+    const d = this.draft(s).getRawValue();
     const body: { value?: number | null; unit?: string; note?: string } = { note: d.note };
     if (s.input === 'value') {
       const v = d.value === null || d.value === undefined || (d.value as unknown) === '' ? null : Number(d.value);
       body.value = v !== null && Number.isFinite(v) ? v : null;
       body.unit = d.unit;
     }
-    if (this.offline()) return this.keepDraft(s, body);
+    if (this.offline()) return void this.keepDraft(s, body);
     this.draftState.set({ ...this.draftState(), [s.id]: 'saving' });
-    try {
-      const o = await this.api.saveDraft(this.order()!.id, s.id, body);
-      // keep what is being typed; take the rest of the order as the server has it
-      this.order.set(o);
-      this.draftState.set({ ...this.draftState(), [s.id]: 'saved' });
-    } catch (e) {
-      if (isNoAnswer(e)) return this.keepDraft(s, body);
-      this.draftState.set({ ...this.draftState(), [s.id]: `Not saved: ${errorText(e)}` });
-    }
+    this.api.saveDraft(this.order()!.id, s.id, body).subscribe({
+      next: (o) => {
+        // keep what is being typed; take the rest of the order as the server has it
+        this.order.set(o);
+        this.draftState.set({ ...this.draftState(), [s.id]: 'saved' });
+      },
+      error: (e: unknown) => {
+        if (isNoAnswer(e)) return void this.keepDraft(s, body);
+        this.draftState.set({ ...this.draftState(), [s.id]: `Not saved: ${errorText(e)}` });
+      },
+    });
   }
 
   private async keepDraft(s: WorkStep, body: Record<string, unknown>): Promise<void> {
@@ -356,7 +387,7 @@ export class WorkOrderPage {
     const s = o.steps.find((x) => x.key === key);
     if (!s) return null;
     if (s.doneAt) return s.resultValue;
-    const d = this.drafts[s.id];
+    const d = this.drafts.controls[String(s.id)]?.getRawValue();
     if (d?.value === null || d?.value === undefined || !Number.isFinite(d.value)) return null;
     if (!d.unit || d.unit === s.unit) return d.value;
     return s.unit === 'degC' && (d.unit === 'degF' || d.unit === 'K') ? toCelsius(d.value, d.unit as 'degF' | 'K') : null;
@@ -387,12 +418,12 @@ export class WorkOrderPage {
 
   protected unlocked(s: WorkStep): boolean {
     if (!s.gated) return true;
-    const d = this.drafts[s.id];
+    const d = this.drafts.controls[String(s.id)]?.getRawValue();
     const g = this.gate();
     if (!d?.lockout && !this.carriedLock(s)) return false;
     // without a network the live check cannot be read: only a recorded manual check, judged by the server when sent
-    if (this.offline()) return d.manual;
-    return !!g && (g.clear || (g.stale && d.manual));
+    if (this.offline()) return !!d?.manual;
+    return !!g && (g.clear || (g.stale && !!d?.manual));
   }
 
   protected onGate(c: OpeningCheck): void {
@@ -400,24 +431,23 @@ export class WorkOrderPage {
   }
 
   protected onLockout(): void {
-    this.anyLockout.set(this.lockoutCarried() || Object.values(this.drafts).some((d) => d.lockout));
+    this.anyLockout.set(this.lockoutCarried() || Object.values(this.drafts.controls).some((d) => d.controls.lockout.value));
   }
 
-  /** The last action got no answer (network gone): the caller may keep it on the device. */
-  private lastNoAnswer = false;
-
-  protected async act(fn: () => Promise<WorkOrderDetail>): Promise<void> {
+  /** One change of the order: busy while it runs, the order as the server answers, else its words; `noAnswer` when the network is gone. */
+  protected act(call: Observable<WorkOrderDetail>, then: { done?: () => void; noAnswer?: () => void } = {}): void {
     this.busy.set(true);
     this.error.set(null);
-    this.lastNoAnswer = false;
-    try {
-      this.set(await fn());
-    } catch (e) {
-      this.lastNoAnswer = isNoAnswer(e);
-      this.error.set(errorText(e));
-    } finally {
-      this.busy.set(false);
-    }
+    call.pipe(finalize(() => this.busy.set(false))).subscribe({
+      next: (o) => {
+        this.set(o);
+        then.done?.();
+      },
+      error: (e: unknown) => {
+        this.error.set(errorText(e));
+        if (isNoAnswer(e)) then.noAnswer?.();
+      },
+    });
   }
 
   protected move(to: WorkStatus, needsNote?: boolean): void {
@@ -426,10 +456,7 @@ export class WorkOrderPage {
       // the technician's own moves are kept on the device without a network (sent before anything recorded after them)
       const queueable = to === 'in-progress' || to === 'waiting-sign-off';
       if (queueable && this.offline()) return void this.keepMove(to);
-      void this.act(() => this.api.transition(o.id, to)).then(() => {
-        if (queueable && this.lastNoAnswer) void this.keepMove(to);
-      });
-      return;
+      return this.act(this.api.transition(o.id, to), queueable ? { noAnswer: () => void this.keepMove(to) } : {});
     }
     // decline, cancel, send back: the note belongs to the action, and the action is confirmed first
     const data: TransitionNoteData =
@@ -457,7 +484,7 @@ export class WorkOrderPage {
       .open<TransitionNoteDialog, TransitionNoteData, string>(TransitionNoteDialog, { data, width: '480px' })
       .afterClosed()
       .subscribe((note) => {
-        if (note) void this.act(() => this.api.transition(o.id, to, note));
+        if (note) this.act(this.api.transition(o.id, to, note));
       });
   }
 
@@ -475,11 +502,11 @@ export class WorkOrderPage {
   }
 
   protected plan(field: 'assigneeId' | 'dueDate' | 'priority', value: unknown): void {
-    void this.act(() => this.api.plan(this.order()!.id, { [field]: value === '' ? null : value }));
+    this.act(this.api.plan(this.order()!.id, { [field]: value === '' ? null : value }));
   }
 
-  protected async complete(s: WorkStep): Promise<void> {
-    const d = this.drafts[s.id];
+  protected complete(s: WorkStep): void {
+    const d = this.draft(s).getRawValue();
     clearTimeout(this.draftTimers.get(s.id));
     this.draftTimers.delete(s.id);
     const body: Parameters<WorkApi['completeStep']>[2] = {};
@@ -501,18 +528,22 @@ export class WorkOrderPage {
         };
       }
     }
-    if (this.offline()) return this.keepDone(s, body);
+    if (this.offline()) return void this.keepDone(s, body);
     this.busy.set(true);
-    try {
-      this.set(await this.api.completeStep(this.order()!.id, s.id, body));
-      this.stepError(s.id, null, []);
-    } catch (e) {
-      if (isNoAnswer(e)) return this.keepDone(s, body);
-      const refusal = e instanceof HttpErrorResponse && e.status === 409 ? (e.error as GateRefusal) : null;
-      this.stepError(s.id, errorText(e), refusal?.conditions ?? []);
-    } finally {
-      this.busy.set(false);
-    }
+    this.api
+      .completeStep(this.order()!.id, s.id, body)
+      .pipe(finalize(() => this.busy.set(false)))
+      .subscribe({
+        next: (o) => {
+          this.set(o);
+          this.stepError(s.id, null, []);
+        },
+        error: (e: unknown) => {
+          if (isNoAnswer(e)) return void this.keepDone(s, body);
+          const refusal = e instanceof HttpErrorResponse && e.status === 409 ? (e.error as GateRefusal) : null;
+          this.stepError(s.id, errorText(e), refusal?.conditions ?? []);
+        },
+      });
   }
 
   /** A step done without a network: kept on the device and sent when it returns. A gated step needs the recorded manual check. */
@@ -548,7 +579,7 @@ export class WorkOrderPage {
     this.stepErrors.set(next);
   }
 
-  protected async upload(ev: Event, stepId: number | null): Promise<void> {
+  protected upload(ev: Event, stepId: number | null): void {
     const el = ev.target as HTMLInputElement;
     const file = el.files?.[0];
     el.value = '';
@@ -557,20 +588,20 @@ export class WorkOrderPage {
       this.error.set('The file is larger than 8 MB.');
       return;
     }
-    if (this.offline()) return void (await this.keepPhoto(file, stepId));
+    if (this.offline()) return void this.keepPhoto(file, stepId);
     const id = this.order()!.id;
     this.busy.set(true);
     this.error.set(null);
-    try {
-      await this.api.upload(id, file, stepId);
-    } catch (e) {
-      if (isNoAnswer(e)) await this.keepPhoto(file, stepId);
-      else this.error.set(errorText(e));
-      return;
-    } finally {
-      this.busy.set(false);
-    }
-    await this.reloadQuietly(id);
+    this.api
+      .upload(id, file, stepId)
+      .pipe(finalize(() => this.busy.set(false)))
+      .subscribe({
+        next: () => this.reloadQuietly(id),
+        error: (e: unknown) => {
+          if (isNoAnswer(e)) void this.keepPhoto(file, stepId);
+          else this.error.set(errorText(e));
+        },
+      });
   }
 
   private keepPhoto(file: File, stepId: number | null): Promise<boolean> {
@@ -598,8 +629,8 @@ export class WorkOrderPage {
   }
 
   /** A part or fluid used; without a network it is kept on the device and sent when the network returns. */
-  protected async addPart(): Promise<void> {
-    const p = this.part;
+  protected addPart(): void {
+    const p = this.part.getRawValue();
     if (!p.kind) return void this.error.set('Choose what was used first.');
     if (!p.quantity || p.quantity <= 0) return;
     const body = {
@@ -608,33 +639,40 @@ export class WorkOrderPage {
       unit: p.unit,
       ...(p.description.trim() ? { description: p.description.trim() } : {}),
     };
-    if (this.offline()) return this.keepPart(body);
+    if (this.offline()) return void this.keepPart(body);
     this.busy.set(true);
     this.error.set(null);
-    try {
-      this.set(await this.api.addPart(this.order()!.id, body));
-      this.part.description = '';
-    } catch (e) {
-      if (isNoAnswer(e)) await this.keepPart(body);
-      else this.error.set(errorText(e));
-    } finally {
-      this.busy.set(false);
-    }
+    this.api
+      .addPart(this.order()!.id, body)
+      .pipe(finalize(() => this.busy.set(false)))
+      .subscribe({
+        next: (o) => {
+          this.set(o);
+          this.part.controls.description.setValue('');
+        },
+        error: (e: unknown) => {
+          if (isNoAnswer(e)) void this.keepPart(body);
+          else this.error.set(errorText(e));
+        },
+      });
   }
 
-  private async keepPart(body: { kind: string; quantity: number; unit: string; description?: string }): Promise<void> {
+  private async keepPart(body: { kind: string; quantity: number; unit: PartUnit; description?: string }): Promise<void> {
     const title = `${body.quantity} ${body.unit} ${this.partText[body.kind] ?? body.kind}${body.description ? `: ${body.description}` : ''}`;
-    if (await this.keepOnDevice({ stepId: null, stepTitle: title, kind: 'part', body }, 'The part')) this.part.description = '';
+    if (await this.keepOnDevice({ stepId: null, stepTitle: title, kind: 'part', body }, 'The part')) this.part.controls.description.setValue('');
   }
 
-  protected partKindChanged(): void {
-    const fluid = this.part.kind === 'coolant' || this.part.kind === 'additive';
-    this.part.unit = fluid ? (this.prefs.preferences().volume === 'gal' ? 'gal' : 'L') : 'pcs';
+  /** A fluid is counted in the user's volume unit, anything else in pieces. */
+  private partKindChanged(): void {
+    const kind = this.part.controls.kind.value;
+    const fluid = kind === 'coolant' || kind === 'additive';
+    this.part.controls.unit.setValue(fluid ? (this.prefs.preferences().volume === 'gal' ? 'gal' : 'L') : 'pcs');
   }
 
   protected addAmendment(): void {
-    if (!this.amendmentText.trim()) return;
-    void this.act(() => this.api.addAmendment(this.order()!.id, this.amendmentText.trim())).then(() => (this.amendmentText = ''));
+    const text = this.amendment.value.trim();
+    if (!text) return;
+    this.act(this.api.addAmendment(this.order()!.id, text), { done: () => this.amendment.setValue('') });
   }
 
   protected stepAttachments(s: WorkStep) {

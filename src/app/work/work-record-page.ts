@@ -32,12 +32,7 @@ export class WorkRecordPage {
   constructor() {
     effect(() => {
       const id = Number(this.id());
-      untracked(() =>
-        this.api.get(id).then(
-          (o) => this.order.set(o),
-          (e) => this.error.set(errorText(e)),
-        ),
-      );
+      untracked(() => this.api.get(id).subscribe({ next: (o) => this.order.set(o), error: (e) => this.error.set(errorText(e)) }));
     });
   }
 
