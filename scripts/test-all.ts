@@ -1,14 +1,22 @@
 /**
- * `npm test`: every part in turn (lint and import cycles, jest, the server tests again on PostgreSQL, two servers on
- * PostgreSQL and mosquitto, component tests, end-to-end),
+ * `npm test`: every part in turn (lint and import cycles, jest, the server tests again on PostgreSQL beside it, two
+ * servers on PostgreSQL and mosquitto, component tests, end-to-end),
  * each in its own process group, with its duration printed at the end; exits non-zero when any part failed.
  * A part that fails does not stop the others, so one run shows every failure.
  */
 import { spawn } from 'node:child_process';
+import fs from 'node:fs';
+import os from 'node:os';
+import path from 'node:path';
 
 interface Part {
   name: string;
   script: string;
+  /**
+   * Runs at the same time as the part before it (both are mostly waiting on processes they started), its output
+   * kept aside and printed whole when it ends, so the two logs do not mix.
+   */
+  withPrevious?: boolean;
 }
 
 const PARTS: Part[] = [
@@ -17,7 +25,7 @@ const PARTS: Part[] = [
   { name: 'import cycles (madge)', script: 'lint:cycles' },
   { name: 'formatting (Prettier check)', script: 'format:check' },
   { name: 'unit and server (jest)', script: 'test:unit' },
-  { name: 'server on PostgreSQL (jest, throwaway cluster)', script: 'test:unit:pg' },
+  { name: 'server on PostgreSQL (jest, throwaway cluster)', script: 'test:unit:pg', withPrevious: true },
   { name: 'several servers (two processes, PostgreSQL, mosquitto)', script: 'test:scale' },
   { name: 'components (ng test)', script: 'test:components' },
   { name: 'end-to-end (Chromium)', script: 'test:e2e' },
@@ -32,9 +40,11 @@ const PART_LIMIT_S = Number(process.env.TEST_PART_LIMIT_S ?? 1800);
 /** Set by SIGINT/SIGTERM: the running part is stopped and no further part starts. */
 let interrupted = false;
 
-function run(script: string): Promise<number> {
+function run(script: string, logFile?: string): Promise<number> {
   return new Promise((resolve) => {
-    const child = spawn('npm', ['run', '--silent', script], { stdio: 'inherit', detached: true });
+    const out = logFile ? fs.openSync(logFile, 'w') : null;
+    const child = spawn('npm', ['run', '--silent', script], { stdio: out === null ? 'inherit' : ['ignore', out, out], detached: true });
+    if (out !== null) fs.closeSync(out);
     const stop = () => {
       interrupted = true;
       if (child.pid) {
@@ -74,20 +84,38 @@ function run(script: string): Promise<number> {
   });
 }
 
+type Result = { name: string; code: number; seconds: number };
+
+/** Runs a part; with `aside`, its output goes to a file that is printed when the part ends. */
+async function timed(part: Part, aside: boolean): Promise<Result> {
+  const started = Date.now();
+  const logFile = aside ? path.join(fs.mkdtempSync(path.join(os.tmpdir(), 'jw-test-part-')), 'output.log') : undefined;
+  const code = await run(part.script, logFile);
+  const seconds = (Date.now() - started) / 1000;
+  if (logFile) {
+    process.stdout.write(`\n----- ${part.name} (ran alongside the part before it) -----\n`);
+    process.stdout.write(fs.readFileSync(logFile));
+    process.stdout.write(`----- end of ${part.name} -----\n`);
+    fs.rmSync(path.dirname(logFile), { recursive: true, force: true });
+  }
+  return { name: part.name, code, seconds };
+}
+
 async function main(): Promise<void> {
   const only = process.argv.slice(2);
-  const results: { name: string; code: number; seconds: number }[] = [];
-  for (const part of PARTS) {
-    if (only.length && !only.includes(part.script)) continue;
+  const parts = PARTS.filter((p) => !only.length || only.includes(p.script));
+  const results: Result[] = [];
+  const started = Date.now();
+  for (let i = 0; i < parts.length; i++) {
     if (interrupted) break;
-    const started = Date.now();
-    const code = await run(part.script);
-    results.push({ name: part.name, code, seconds: (Date.now() - started) / 1000 });
+    const alongside = parts[i + 1]?.withPrevious ? parts[i + 1] : null;
+    const pair = [timed(parts[i], false), ...(alongside ? [timed(alongside, true)] : [])];
+    results.push(...(await Promise.all(pair)));
+    if (alongside) i++;
   }
   console.log('\nTest parts:');
   for (const r of results) console.log(`  ${r.code === 0 ? 'passed' : 'FAILED'}  ${r.seconds.toFixed(0).padStart(5)} s  ${r.name}`);
-  const total = results.reduce((s, r) => s + r.seconds, 0);
-  console.log(`  total ${total.toFixed(0)} s`);
+  console.log(`  total ${((Date.now() - started) / 1000).toFixed(0)} s (wall clock; some parts ran side by side)`);
   process.exitCode = interrupted || results.some((r) => r.code !== 0) ? 1 : 0;
 }
 
