@@ -213,7 +213,12 @@ export function coolantRouter(ctx: AppContext, doc: ApiDoc): Router {
     id: 'importLabCsv',
     tag,
     summary: 'Import lab results from CSV: good rows stored (201), bad rows reported with line and field',
-    description: '`?preview=1` stores nothing (200); nothing stored also answers 200. Not text or not the layout: 400 naming `file`; over 2 MB: 413.',
+    description: [
+      'Header row required, columns in any order: `engine_id,tested_at,method,sca_units_per_gal,glycol_percent,freeze_point_c,ph,conductivity_us_cm,appearance,nitrite_ppm,molybdate_ppm`',
+      '(`engine_id` may be left out with `?engineId=`). UTF-8 or Windows-1252 (converted), `,` or `;` between fields, quoted fields may span lines.',
+      'tested_at: ISO 8601 with offset or Z, or YYYY-MM-DD (00:00 UTC); method: strip | refractometer | lab (blank = lab); blank number = not measured.',
+      '`?preview=1` stores nothing (200); nothing stored also answers 200. Not text or not the layout: 400 naming `file`; over 2 MB: 413.',
+    ].join(' '),
     access: RECORDERS,
     query: importQuery,
     form: labForm,
