@@ -19,7 +19,7 @@ export function newApiDoc(): ApiDoc {
 /** Every error answer: `{ error, field? }` (server/routes/errors.ts). */
 export const ApiError = z.object({ error: z.string(), field: z.string().optional().openapi({ description: 'the request field at fault' }) }).openapi('Error');
 
-type ErrorStatus = 400 | 401 | 403 | 404 | 409 | 413 | 415 | 429;
+type ErrorStatus = 400 | 401 | 403 | 404 | 409 | 413 | 415 | 422 | 429;
 const ERROR_TEXT: Record<ErrorStatus, string> = {
   400: 'invalid input; `field` names the field',
   401: 'missing or invalid token',
@@ -28,6 +28,7 @@ const ERROR_TEXT: Record<ErrorStatus, string> = {
   409: 'conflict with the current state',
   413: 'too large',
   415: 'unsupported content',
+  422: 'the Idempotency-Key was used for another request',
   429: 'too many attempts',
 };
 
@@ -47,8 +48,11 @@ export interface ApiRoute {
   access: 'public' | 'signed-in' | readonly string[];
   params?: ZodObj;
   query?: ZodObj;
+  headers?: ZodObj;
   /** The JSON body schema the handler parses. */
   body?: z.ZodType;
+  /** The handler reads a missing body as `{}` (or the schema takes undefined). */
+  bodyOptional?: boolean;
   /** A multipart/form-data body (uploads). */
   form?: ZodObj;
   /** The success body. */
@@ -81,7 +85,7 @@ const json = (schema: z.ZodType, description: string): ResponseConfig => ({ desc
 export function route(doc: ApiDoc, r: ApiRoute): void {
   const hasPathParam = /:\w+/.test(r.path);
   if (hasPathParam && !r.params) throw new Error(`${r.method} ${r.path}: give the params schema`);
-  const input = !!(r.params || r.query || r.body || r.form);
+  const input = !!(r.params || r.query || r.headers || r.body || r.form);
   const statuses = new Set<ErrorStatus>(r.errors ?? []);
   if (input) statuses.add(400);
   if (r.access !== 'public') statuses.add(401);
@@ -109,7 +113,8 @@ export function route(doc: ApiDoc, r: ApiRoute): void {
     request: {
       ...(r.params ? { params: r.params } : {}),
       ...(r.query ? { query: r.query } : {}),
-      ...(r.body ? { body: { required: true, content: { 'application/json': { schema: r.body } } } } : {}),
+      ...(r.headers ? { headers: r.headers } : {}),
+      ...(r.body ? { body: { required: !r.bodyOptional, content: { 'application/json': { schema: r.body } } } } : {}),
       ...(r.form ? { body: { required: true, content: { 'multipart/form-data': { schema: r.form } } } } : {}),
     },
     responses,

@@ -122,6 +122,7 @@ export function alarmsRouter(ctx: AppContext, feature: AlarmFeature, doc: ApiDoc
     access: ['operator', 'technician', 'planner', 'admin'],
     params: idParam,
     body: ackBody,
+    bodyOptional: true,
     ok: Alarm,
     errors: [409],
   });

@@ -1,6 +1,6 @@
 import { Router, type NextFunction, type Request, type Response } from 'express';
 import multer from 'multer';
-import { idempotent } from './idempotency';
+import { idempotencyHeaders, idempotent } from './idempotency';
 import { z } from 'zod';
 import type { AppContext } from '../app-context';
 import { requireAuth, requireRole } from '../auth/middleware';
@@ -260,7 +260,8 @@ export function workOrdersRouterWithService(ctx: AppContext, doc: ApiDoc): WorkR
     body: createBody,
     ok: WorkOrderDetail,
     status: 201,
-    errors: [403],
+    headers: idempotencyHeaders,
+    errors: [403, 409, 422],
   });
   r.post('/work-orders', async (req, res) => {
     const body = parse(createBody, req.body);
@@ -294,7 +295,8 @@ export function workOrdersRouterWithService(ctx: AppContext, doc: ApiDoc): WorkR
     params: idParam,
     body: planBody,
     ok: WorkOrderDetail,
-    errors: [409],
+    headers: idempotencyHeaders,
+    errors: [409, 422],
   });
   r.patch('/work-orders/:id', planners, async (req, res) => {
     const id = parseId(req.params);
@@ -312,7 +314,8 @@ export function workOrdersRouterWithService(ctx: AppContext, doc: ApiDoc): WorkR
     params: idParam,
     body: transitionBody,
     ok: WorkOrderDetail,
-    errors: [403, 409],
+    headers: idempotencyHeaders,
+    errors: [403, 409, 422],
   });
   r.post('/work-orders/:id/transition', async (req, res) => {
     const id = parseId(req.params);
@@ -333,7 +336,8 @@ export function workOrdersRouterWithService(ctx: AppContext, doc: ApiDoc): WorkR
     params: stepParams,
     body: completeBody,
     ok: WorkOrderDetail,
-    errors: [403],
+    headers: idempotencyHeaders,
+    errors: [403, 409, 422],
     also: gateShut,
   });
   r.post(
@@ -355,8 +359,10 @@ export function workOrdersRouterWithService(ctx: AppContext, doc: ApiDoc): WorkR
     access: 'signed-in',
     params: stepParams,
     body: draftBody,
+    bodyOptional: true,
     ok: WorkOrderDetail,
-    errors: [403],
+    headers: idempotencyHeaders,
+    errors: [403, 409, 422],
     also: gateShut,
   });
   r.patch(
@@ -378,9 +384,11 @@ export function workOrdersRouterWithService(ctx: AppContext, doc: ApiDoc): WorkR
     access: 'signed-in',
     params: idParam,
     body: orderTestBody,
+    bodyOptional: true,
     ok: OrderCoolantTest,
     status: 201,
-    errors: [403],
+    headers: idempotencyHeaders,
+    errors: [403, 409, 422],
     also: { 409: { description: 'already recorded (the recorded test), or the order is not ready for it', schema: AlreadyRecorded } },
   });
   r.post(
@@ -404,7 +412,8 @@ export function workOrdersRouterWithService(ctx: AppContext, doc: ApiDoc): WorkR
     body: partBody,
     ok: WorkOrderDetail,
     status: 201,
-    errors: [403, 409],
+    headers: idempotencyHeaders,
+    errors: [403, 409, 422],
   });
   r.post('/work-orders/:id/parts', async (req, res) => {
     const id = parseId(req.params);
@@ -423,7 +432,8 @@ export function workOrdersRouterWithService(ctx: AppContext, doc: ApiDoc): WorkR
     body: amendmentBody,
     ok: WorkOrderDetail,
     status: 201,
-    errors: [403, 409],
+    headers: idempotencyHeaders,
+    errors: [403, 409, 422],
   });
   r.post('/work-orders/:id/amendments', async (req, res) => {
     const id = parseId(req.params);
@@ -442,7 +452,8 @@ export function workOrdersRouterWithService(ctx: AppContext, doc: ApiDoc): WorkR
     form: uploadForm,
     ok: Attachment,
     status: 201,
-    errors: [403, 413, 415],
+    headers: idempotencyHeaders,
+    errors: [403, 409, 413, 415, 422],
   });
   r.post('/work-orders/:id/attachments', singleFile, async (req, res) => {
     const id = parseId(req.params);
