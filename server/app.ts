@@ -7,6 +7,7 @@ import { pinoHttp } from 'pino-http';
 import type { AppContext } from './app-context';
 import { apiErrors, apiNotFound } from './routes/errors';
 import { coreRouters } from './routes';
+import { newApiDoc, type ApiDoc } from './openapi/api-doc';
 import { HASHED_ASSET, securityHeaders } from './security-headers';
 
 /** Files of the build that name the current version: the HTTP cache must always ask again. */
@@ -15,8 +16,8 @@ const NEVER_CACHED = new Set(['index.html', 'ngsw.json', 'ngsw-worker.js', 'safe
 export const BROWSER_DIST = path.resolve(__dirname, '..', 'dist', 'jacketwatch', 'browser');
 
 export interface AppOptions {
-  /** Routers of later features, mounted at /api after the core ones. */
-  extraRouters?: Router[];
+  /** Routers of later features, mounted at /api after the core ones; each registers its routes in the app's OpenAPI document. */
+  extraRouters?: (doc: ApiDoc) => Router[];
   /** Folder of the built Angular app; served with SPA fallback when it exists. */
   staticDir?: string;
 }
@@ -56,7 +57,9 @@ export function createApp(ctx: AppContext, opts: AppOptions = {}): Express {
   const api = express.Router();
   api.use(requestLog(ctx));
   api.use(express.json({ limit: '256kb' }));
-  for (const r of [...coreRouters(ctx), ...(opts.extraRouters ?? [])]) api.use(r);
+  // one OpenAPI document per app: every router registers its routes in it (served at /api/openapi.json)
+  const doc = newApiDoc();
+  for (const r of [...coreRouters(ctx, doc), ...(opts.extraRouters?.(doc) ?? [])]) api.use(r);
   api.use(apiNotFound);
   api.use(apiErrors(ctx.log));
   app.use('/api', api);

@@ -78,7 +78,7 @@ export async function startServer(config: Config, opts: StartOptions = {}): Prom
   }
   const openingHistory = openingHistoryOf(ctx);
   const alarms = createAlarmFeature(ctx);
-  const app = createApp(ctx, { ...opts, extraRouters: [...(opts.extraRouters ?? []), ...alarmRouters(ctx, alarms)] });
+  const app = createApp(ctx, { ...opts, extraRouters: (doc) => [...(opts.extraRouters?.(doc) ?? []), ...alarmRouters(ctx, alarms, doc)] });
   const httpServer = http.createServer(app);
 
   const telemetry = await startTelemetry({

@@ -1,148 +1,179 @@
-import type { Json } from './helpers';
-import { ref } from './helpers';
+/** Response bodies of the core routes (health, auth, sites, engines, devices, users), as the handlers answer them. */
+import { z } from 'zod';
+import { CHANNEL_KEYS } from '../../shared/channels';
+import { COOLANT_FAMILIES, DUTIES, GLYCOL_TYPES } from '../models/engine';
+import { ROLES } from '../models/user';
+import './api-doc';
 
-const num = (description: string, min?: number, max?: number): Json => ({
-  type: 'number',
-  description,
-  ...(min !== undefined ? { minimum: min } : {}),
-  ...(max !== undefined ? { maximum: max } : {}),
+const isoTime = z.string().openapi({ format: 'date-time' });
+const isoOrNull = isoTime.nullable();
+
+export const SessionUser = z.object({ id: z.number().int(), email: z.string(), name: z.string(), role: z.enum(ROLES) }).openapi('SessionUser');
+export const LoginAnswer = z.object({
+  token: z.string().optional().openapi({ description: 'the bearer token; left out with `session: "cookie"` (set as an httpOnly cookie instead)' }),
+  user: SessionUser,
 });
-const latest: Json = {
-  type: 'object',
-  properties: { value: { type: 'number' }, ts: { type: 'integer', description: 'ms since epoch' }, quality: { enum: [0, 1] } },
+
+export const User = z
+  .object({
+    id: z.number().int(),
+    email: z.string(),
+    name: z.string(),
+    role: z.enum(ROLES),
+    disabled: z.boolean(),
+    createdAt: isoTime,
+    updatedAt: isoTime,
+    siteIds: z.array(z.number().int()).openapi({ description: 'sites the user is limited to; empty: every site. Admins always see every site' }),
+  })
+  .openapi('User');
+
+export const Site = z
+  .object({
+    id: z.number().int(),
+    name: z.string(),
+    timeZone: z.string().openapi({ description: 'IANA zone' }),
+    designLowTempC: z.number().nullable().openapi({ description: 'lowest expected temperature, degC' }),
+    elevationM: z.number().nullable().openapi({ description: 'metres above mean sea level; null: unknown' }),
+    retiredAt: isoOrNull,
+  })
+  .openapi('Site');
+
+const latestValue = z.object({
+  value: z.number(),
+  ts: z.number().int().openapi({ description: 'ms since epoch' }),
+  quality: z.union([z.literal(0), z.literal(1)]),
+});
+const freezeProtection = z.object({
+  status: z.enum(['ok', 'short', 'high', 'unknown']),
+  freezePointC: z.number().nullable(),
+  requiredC: z.number().nullable(),
+  designLowC: z.number().nullable(),
+  marginK: z.number(),
+  testId: z.number().int(),
+  testedAt: isoTime,
+  message: z.string(),
+  action: z.string(),
+});
+
+const engineCore = {
+  id: z.number().int(),
+  siteId: z.number().int(),
+  name: z.string(),
+  duty: z.enum(DUTIES),
+  capacityL: z.number().openapi({ description: 'cooling-system capacity, litres' }),
+  coolantFamily: z.enum(COOLANT_FAMILIES),
+  glycolType: z.enum(GLYCOL_TYPES),
+  glycolPercent: z.number().openapi({ description: 'glycol by volume, %' }),
+  capPressureKpa: z.number().openapi({ description: 'rated cap pressure, kPa gauge' }),
+  oilDrainIntervalH: z.number(),
+  runHours: z.number(),
+  safeOpenTempC: z.number().openapi({ description: 'coolant temperature below which the system may be opened, degC' }),
+  heaterSetpointC: z.number().nullable(),
+  outOfService: z.boolean(),
+  retiredAt: isoOrNull,
+  createdAt: isoTime,
+  updatedAt: isoTime,
+  latest: z.partialRecord(z.enum(CHANNEL_KEYS as [string, ...string[]]), latestValue).openapi({ description: 'latest value by channel key' }),
+  lastSeenAt: z.number().int().nullable().openapi({ description: 'ms since epoch of the last reading' }),
+  runState: z.enum(['running', 'stopped', 'no-data']),
 };
 
-const engineFields: Record<string, Json> = {
-  siteId: { type: 'integer' },
-  name: { type: 'string', maxLength: 120 },
-  duty: { enum: ['standby', 'prime', 'continuous'] },
-  capacityL: num('cooling-system capacity, litres', 1, 5000),
-  coolantFamily: { enum: ['conventional', 'extended-life'] },
-  glycolType: { enum: ['ethylene', 'propylene'] },
-  glycolPercent: num('glycol by volume, %', 0, 70),
-  capPressureKpa: num('rated cap pressure, kPa gauge', 0, 300),
-  oilDrainIntervalH: num('hours between oil changes', 50, 5000),
-  runHours: num('hour meter, h', 0),
-  safeOpenTempC: num('coolant temperature below which the system may be opened, degC', 20, 70),
-  heaterSetpointC: { type: ['number', 'null'], description: 'jacket-water heater setpoint, degC; null when none' },
-  outOfService: { type: 'boolean' },
-};
+/** An engine as written (create, change, retire): its record with live values. */
+export const Engine = z.object(engineCore).openapi('Engine');
 
-export const coreSchemas: Record<string, Json> = {
-  Error: { type: 'object', required: ['error'], properties: { error: { type: 'string' }, field: { type: 'string' } } },
-  User: {
-    type: 'object',
-    properties: {
-      id: { type: 'integer' },
-      email: { type: 'string' },
-      name: { type: 'string' },
-      role: { enum: ['admin', 'planner', 'technician', 'operator'] },
-      disabled: { type: 'boolean' },
-      createdAt: { type: 'string', format: 'date-time' },
-      updatedAt: { type: 'string', format: 'date-time' },
-      siteIds: {
-        type: 'array',
-        items: { type: 'integer' },
-        description: 'sites the user is limited to (admin views); empty: every site. Admins always see every site',
-      },
-    },
-  },
-  UserSites: {
-    type: 'object',
-    required: ['siteIds'],
-    additionalProperties: false,
-    properties: { siteIds: { type: 'array', items: { type: 'integer', minimum: 1 }, maxItems: 1000, description: 'empty: the user sees every site again' } },
-  },
-  UserInput: {
-    type: 'object',
-    required: ['email', 'name', 'password', 'role'],
-    properties: {
-      email: { type: 'string', format: 'email' },
-      name: { type: 'string' },
-      password: { type: 'string', minLength: 10 },
-      role: { enum: ['admin', 'planner', 'technician', 'operator'] },
-      disabled: { type: 'boolean' },
-    },
-  },
-  Site: {
-    type: 'object',
-    properties: {
-      id: { type: 'integer' },
-      name: { type: 'string' },
-      timeZone: { type: 'string', description: 'IANA zone' },
-      designLowTempC: { type: ['number', 'null'], description: 'lowest expected temperature, degC' },
-      retiredAt: { type: ['string', 'null'], format: 'date-time' },
-    },
-  },
-  SiteInput: {
-    type: 'object',
-    required: ['name', 'timeZone'],
-    properties: {
-      name: { type: 'string' },
-      timeZone: { type: 'string' },
-      designLowTempC: { type: ['number', 'null'], description: 'lowest expected temperature, degC (-80 to 40)' },
-    },
-  },
-  EngineInput: { type: 'object', required: ['siteId', 'name', 'capacityL'], properties: engineFields, additionalProperties: false },
-  Engine: {
-    type: 'object',
-    properties: {
-      id: { type: 'integer' },
-      ...engineFields,
-      retiredAt: { type: ['string', 'null'], format: 'date-time' },
-      latest: { type: 'object', additionalProperties: latest, description: 'by channel key' },
-      lastSeenAt: { type: ['integer', 'null'], description: 'ms since epoch of the last reading' },
-      runState: { enum: ['running', 'stopped', 'no-data'] },
-      readiness: {
-        type: 'object',
-        description:
-          'standby engines only: "Ready" or "Not ready" with the reasons in words (cold jacket water, an active high or urgent alarm, stale data, an open lockout, out of service)',
-        properties: { ready: { type: 'boolean' }, reasons: { type: 'array', items: { type: 'string' } } },
-      },
-      freezeProtection: {
-        type: 'object',
-        description: 'engines with a glycol or freeze-point test: the latest such test judged now against the site design low less the freeze margin',
-        properties: {
-          status: { enum: ['ok', 'short', 'high', 'unknown'] },
-          freezePointC: { type: ['number', 'null'] },
-          requiredC: { type: ['number', 'null'] },
-          designLowC: { type: ['number', 'null'] },
-          marginK: { type: 'number' },
-          testId: { type: 'integer' },
-          testedAt: { type: 'string', format: 'date-time' },
-          message: { type: 'string' },
-          action: { type: 'string' },
-        },
-      },
-    },
-  },
-  Device: {
-    type: 'object',
-    properties: {
-      id: { type: 'integer' },
-      engineId: { type: 'integer' },
-      username: { type: 'string' },
-      revokedAt: { type: ['string', 'null'] },
-      lastSeenAt: { type: ['string', 'null'] },
-      sparkplug: { type: ['object', 'null'] },
-      metricMap: { type: ['object', 'null'] },
-    },
-  },
-  DeviceWithSecret: { allOf: [ref('Device'), { type: 'object', properties: { secret: { type: 'string', description: 'shown only in this response' } } }] },
-  Buckets: {
-    type: 'object',
-    properties: {
-      source: { enum: ['raw', 'rollup'], description: 'rollup: per-minute summaries (span over 6 h, or the range reaches back past the raw retention)' },
-      rawRetentionDays: { type: 'integer', description: 'RAW_RETENTION_DAYS; 0 keeps raw readings for good' },
-      rawKeptFrom: { type: ['integer', 'null'], description: 'raw readings are kept from this instant (epoch ms); older ranges come from rollups' },
-      beyondRawRetention: { type: 'boolean', description: 'the range starts before rawKeptFrom' },
-      buckets: {
-        type: 'array',
-        items: {
-          type: 'object',
-          properties: { t: { type: 'integer' }, min: { type: 'number' }, max: { type: 'number' }, mean: { type: 'number' }, count: { type: 'integer' } },
-        },
-      },
-    },
-  },
-};
+/** An engine as read (list, one): with the active-alarm count, standby readiness and freeze protection. */
+export const EngineStatus = z
+  .object({
+    ...engineCore,
+    activeAlarms: z.number().int(),
+    readiness: z
+      .object({ ready: z.boolean(), reasons: z.array(z.string()) })
+      .optional()
+      .openapi({ description: 'standby engines only: ready, or the reasons in words' }),
+    freezeProtection: freezeProtection.optional().openapi({ description: 'engines with a glycol or freeze-point test' }),
+  })
+  .openapi('EngineStatus');
+
+export const Buckets = z
+  .object({
+    source: z.enum(['raw', 'rollup']).openapi({ description: 'rollup: per-minute or per-hour summaries (long spans, or before the raw retention)' }),
+    rollupPeriod: z.enum(['minute', 'hour']).nullable(),
+    rawRetentionDays: z.number().int().openapi({ description: 'RAW_RETENTION_DAYS; 0 keeps raw readings for good' }),
+    rawKeptFrom: z.number().int().nullable().openapi({ description: 'raw readings are kept from this instant (epoch ms)' }),
+    beyondRawRetention: z.boolean(),
+    buckets: z.array(z.object({ t: z.number().int(), min: z.number(), max: z.number(), mean: z.number(), count: z.number().int() })),
+  })
+  .openapi('Buckets');
+
+export const Device = z
+  .object({
+    id: z.number().int(),
+    engineId: z.number().int(),
+    username: z.string(),
+    revokedAt: isoOrNull,
+    lastSeenAt: isoOrNull,
+    createdAt: isoTime,
+    updatedAt: isoTime,
+    sparkplug: z.object({ groupId: z.string(), edgeNodeId: z.string(), deviceId: z.string().nullable() }).nullable(),
+    metricMap: z
+      .record(z.string(), z.union([z.string(), z.object({ channel: z.string(), unit: z.string().optional() })]))
+      .nullable()
+      .openapi({ description: 'Sparkplug metric name to channel' }),
+  })
+  .openapi('Device');
+export const DeviceWithSecret = Device.extend({ secret: z.string().openapi({ description: 'shown only in this answer' }) }).openapi('DeviceWithSecret');
+
+const counts = { received: z.number().int(), stored: z.number().int(), duplicate: z.number().int(), buffered: z.number().int() };
+export const Health = z.object({
+  status: z.enum(['ok', 'degraded']),
+  broker: z.object({ connected: z.boolean(), lastError: z.string().nullable(), retryInMs: z.number(), since: isoTime }).optional(),
+  cluster: z
+    .object({
+      connected: z.boolean(),
+      members: z.number().int(),
+      owned: z.number().int(),
+      ownedPartitions: z.array(z.number().int()),
+      partitions: z.number().int(),
+      lastError: z.string().nullable(),
+      relay: z.object({ sentReadings: z.number(), sentMessages: z.number(), receivedReadings: z.number(), badMessages: z.number() }).nullable(),
+    })
+    .optional(),
+  uptimeS: z.number().int(),
+  version: z.string(),
+  ingest: z.object({ ...counts, rejected: z.number().int() }).nullable(),
+});
+
+export const IngestReport = z.object({
+  counters: z
+    .object({
+      ...counts,
+      oversizePacketsClosed: z.number().int(),
+      rejected: z.record(z.string(), z.number().int()).openapi({ description: 'by reason' }),
+      outOfRange: z.number().int(),
+      batches: z.number().int(),
+      batchLatencyMs: z.object({ last: z.number(), p50: z.number(), p95: z.number(), max: z.number() }),
+      eventLoopDelayMs: z.object({ p50: z.number(), p99: z.number(), max: z.number(), worst: z.number() }).optional(),
+      startedAt: isoTime,
+      sparkplug: z.object({ births: z.number(), deaths: z.number(), seqGaps: z.number(), rebirthRequests: z.number(), nodesOnline: z.number() }).optional(),
+    })
+    .nullable(),
+  rejections: z.array(
+    z.object({
+      deviceId: z.number().int(),
+      username: z.string().nullable(),
+      engineId: z.number().int().nullable(),
+      reason: z.string(),
+      count: z.number().int(),
+      lastAt: isoOrNull,
+      lastDetail: z.string().nullable(),
+    }),
+  ),
+});
+
+/** GET /api/openapi.json answers this very document. */
+export const OpenApiDocument = z.object({
+  openapi: z.string(),
+  info: z.object({ title: z.string(), version: z.string(), description: z.string().optional() }),
+  paths: z.record(z.string(), z.record(z.string(), z.unknown())),
+  components: z.record(z.string(), z.unknown()).optional(),
+});

@@ -6,7 +6,9 @@ import type { AppContext } from '../app-context';
 import { badRequest } from '../http-error';
 import type { AlarmFeature } from '../services/alarms';
 import { assertAlarmVisible, siteScopeOf, visibleEngineIds } from '../services/site-access';
-import { instant, parse, parseId } from './validate';
+import { idParam, instant, parse, parseId } from './validate';
+import { route, type ApiDoc } from '../openapi/api-doc';
+import { Alarm, AlarmDetail, AlarmHistoryPage, AlarmPerformance, AlarmSummary } from '../openapi/alarm-schemas';
 
 const listQuery = z.object({
   state: z.enum(['active', 'shelved', 'open', 'all']).default('active'),
@@ -32,19 +34,40 @@ const pageQuery = z.object({
 });
 
 /** /api/alarms: lists, one alarm with history, acknowledge, shelve, notes, summary and performance. */
-export function alarmsRouter(ctx: AppContext, feature: AlarmFeature): Router {
+export function alarmsRouter(ctx: AppContext, feature: AlarmFeature, doc: ApiDoc): Router {
   const r = Router();
+  const tag = 'alarms';
   const svc = feature.alarms;
   // engines the caller may see (null: all); an alarm of another site reads as not found
   const engineIds = async (req: Request) => visibleEngineIds(ctx.models, await siteScopeOf(req));
   const visible = async (req: Request, id: number) => assertAlarmVisible(ctx.models, await siteScopeOf(req), id);
   r.use('/alarms', requireAuth);
+  route(doc, { method: 'get', path: '/alarms', id: 'listAlarms', tag, summary: 'Alarms', access: 'signed-in', query: listQuery, ok: z.array(Alarm) });
   r.get('/alarms', async (req, res) => {
     const q = parse(listQuery, req.query);
     res.json(await svc.list({ ...q, engineIds: (await engineIds(req)) ?? undefined }));
   });
+  route(doc, {
+    method: 'get',
+    path: '/alarms/summary',
+    id: 'getAlarmSummary',
+    tag,
+    summary: 'Open alarms counted by state and priority, and the flood state',
+    access: 'signed-in',
+    ok: AlarmSummary,
+  });
   r.get('/alarms/summary', async (req, res) => {
     res.json(await svc.summary(Date.now(), (await engineIds(req)) ?? undefined));
+  });
+  route(doc, {
+    method: 'get',
+    path: '/alarms/performance',
+    id: 'getAlarmPerformance',
+    tag,
+    summary: 'Alarm-system performance figures (ISA-18.2 style) over a span, default the last 7 days, at most 400',
+    access: 'signed-in',
+    query: perfQuery,
+    ok: AlarmPerformance,
   });
   r.get('/alarms/performance', async (req, res) => {
     const q = parse(perfQuery, req.query);
@@ -55,11 +78,33 @@ export function alarmsRouter(ctx: AppContext, feature: AlarmFeature): Router {
     const chatter = { count: q.chatterCount, windowMs: q.chatterWindowS === undefined ? undefined : q.chatterWindowS * 1000 };
     res.json(await svc.performance(from, to, (await engineIds(req)) ?? undefined, chatter));
   });
+  route(doc, {
+    method: 'get',
+    path: '/alarms/:id',
+    id: 'getAlarm',
+    tag,
+    summary: 'One alarm with its meaning, first step and a page of history',
+    access: 'signed-in',
+    params: idParam,
+    query: pageQuery,
+    ok: AlarmDetail,
+  });
   r.get('/alarms/:id', async (req, res) => {
     const id = parseId(req.params);
     const page = parse(pageQuery, req.query);
     await visible(req, id);
     res.json(await svc.get(id, page));
+  });
+  route(doc, {
+    method: 'get',
+    path: '/alarms/:id/history',
+    id: 'getAlarmHistory',
+    tag,
+    summary: "A page of an alarm's history, in time order",
+    access: 'signed-in',
+    params: idParam,
+    query: pageQuery,
+    ok: AlarmHistoryPage,
   });
   r.get('/alarms/:id/history', async (req, res) => {
     const id = parseId(req.params);
@@ -68,11 +113,36 @@ export function alarmsRouter(ctx: AppContext, feature: AlarmFeature): Router {
     await svc.get(id, { limit: 1 }); // 404 for an unknown alarm
     res.json(await svc.history(id, page));
   });
+  route(doc, {
+    method: 'post',
+    path: '/alarms/:id/acknowledge',
+    id: 'acknowledgeAlarm',
+    tag,
+    summary: 'Acknowledge an alarm, with an optional note',
+    access: ['operator', 'technician', 'planner', 'admin'],
+    params: idParam,
+    body: ackBody,
+    bodyOptional: true,
+    ok: Alarm,
+    errors: [409],
+  });
   r.post('/alarms/:id/acknowledge', requireRole('operator', 'technician', 'planner', 'admin'), async (req, res) => {
     const id = parseId(req.params);
     const b = parse(ackBody, req.body ?? undefined);
     await visible(req, id);
     res.json(await svc.acknowledge(id, req.user!, b?.note || null));
+  });
+  route(doc, {
+    method: 'post',
+    path: '/alarms/:id/shelve',
+    id: 'shelveAlarm',
+    tag,
+    summary: 'Shelve an alarm for some minutes, with the reason',
+    access: ['planner', 'admin'],
+    params: idParam,
+    body: shelveBody,
+    ok: Alarm,
+    errors: [409],
   });
   r.post('/alarms/:id/shelve', requireRole('planner', 'admin'), async (req, res) => {
     const id = parseId(req.params);
@@ -80,10 +150,33 @@ export function alarmsRouter(ctx: AppContext, feature: AlarmFeature): Router {
     await visible(req, id);
     res.json(await svc.shelve(id, req.user!, b.minutes, b.reason));
   });
+  route(doc, {
+    method: 'post',
+    path: '/alarms/:id/unshelve',
+    id: 'unshelveAlarm',
+    tag,
+    summary: 'Take an alarm off the shelf',
+    access: ['planner', 'admin'],
+    params: idParam,
+    ok: Alarm,
+    errors: [409],
+  });
   r.post('/alarms/:id/unshelve', requireRole('planner', 'admin'), async (req, res) => {
     const id = parseId(req.params);
     await visible(req, id);
     res.json(await svc.unshelve(id, req.user!));
+  });
+  route(doc, {
+    method: 'post',
+    path: '/alarms/:id/notes',
+    id: 'addAlarmNote',
+    tag,
+    summary: 'Add a note to an alarm',
+    access: ['operator', 'technician', 'planner', 'admin'],
+    params: idParam,
+    body: noteBody,
+    ok: Alarm,
+    status: 201,
   });
   r.post('/alarms/:id/notes', requireRole('operator', 'technician', 'planner', 'admin'), async (req, res) => {
     const id = parseId(req.params);

@@ -8,6 +8,8 @@ import type { AppContext } from '../app-context';
 import { HttpError } from '../http-error';
 import { login, me } from '../services/auth';
 import { parse } from './validate';
+import { route, type ApiDoc } from '../openapi/api-doc';
+import { LoginAnswer, SessionUser } from '../openapi/core-schemas';
 
 // over 72 bytes bcrypt would ignore the tail: refused rather than silently truncated
 const loginBody = z.object({
@@ -23,8 +25,22 @@ const loginBody = z.object({
   session: z.enum(['cookie', 'token']).optional(),
 });
 
-export function authRouter(ctx: AppContext): Router {
+export function authRouter(ctx: AppContext, doc: ApiDoc): Router {
   const r = Router();
+  const tag = 'auth';
+  route(doc, {
+    method: 'post',
+    path: '/auth/login',
+    id: 'signIn',
+    tag,
+    summary: 'Sign in',
+    description:
+      '`session: "cookie"` (the browser app, with the x-jw-request header): the token is set as an httpOnly SameSite=Strict cookie and left out of the answer; otherwise the answer carries the bearer token. 403: a cookie sign-in from another site; 429: too many sign-ins waiting.',
+    access: 'public',
+    body: loginBody,
+    ok: LoginAnswer,
+    errors: [401, 403, 429],
+  });
   r.post('/auth/login', ...createLoginLimiter(), async (req: Request, res: Response) => {
     const body = parse(loginBody, req.body);
     if (body.session === 'cookie') {
@@ -41,10 +57,20 @@ export function authRouter(ctx: AppContext): Router {
     res.json(result);
   });
   // Sign-out clears the browser's cookie (a bearer token simply stops being sent by its client).
+  route(doc, {
+    method: 'post',
+    path: '/auth/logout',
+    id: 'signOut',
+    tag,
+    summary: 'Sign out: clears the session cookie',
+    access: 'public',
+    ok: z.object({ signedOut: z.literal(true) }),
+  });
   r.post('/auth/logout', (req: Request, res: Response) => {
     clearSessionCookie(req, res);
     res.json({ signedOut: true });
   });
+  route(doc, { method: 'get', path: '/auth/me', id: 'getCurrentUser', tag, summary: 'The signed-in user', access: 'signed-in', ok: SessionUser });
   r.get('/auth/me', requireAuth, async (req, res) => {
     res.json(await me(ctx.models, req.user!.id));
   });

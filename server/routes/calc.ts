@@ -23,6 +23,16 @@ import { requireAuth } from '../auth/middleware';
 import { badRequest } from '../http-error';
 import { getAdditiveProfile } from '../services/coolant/additive-profile';
 import { parse } from './validate';
+import { route, type ApiDoc } from '../openapi/api-doc';
+import {
+  AdditiveAnswer,
+  BoilingPointAnswer,
+  FreezePointAnswer,
+  GlycolNeededAnswer,
+  InitialChargeAnswer,
+  MakeUpWaterAnswer,
+  MixCorrectionAnswer,
+} from '../openapi/coolant-schemas';
 
 const num = z.number();
 const glycol = z.enum(GLYCOL_TYPES as [string, ...string[]]) as z.ZodType<(typeof GLYCOL_TYPES)[number]>;
@@ -87,10 +97,22 @@ export function computeOr400<T>(fn: () => T, rename: Record<string, string> = {}
 const cautionsOf = (...ids: string[]) => COOLANT_CAUTIONS.filter((c) => ids.includes(c.id));
 
 /** Calculators for every signed-in role: compute, never store. SI in and out. */
-export function calcRouter(ctx: AppContext): Router {
+export function calcRouter(ctx: AppContext, doc: ApiDoc): Router {
   const r = Router();
+  const tag = 'calculators';
+  const access = 'signed-in';
   r.use('/calc', requireAuth);
 
+  route(doc, {
+    method: 'post',
+    path: '/calc/additive',
+    id: 'calcAdditive',
+    tag,
+    summary: 'SCA decision after a test-strip reading (limits from the additive profile unless given)',
+    access,
+    body: additiveBody,
+    ok: AdditiveAnswer,
+  });
   r.post('/calc/additive', async (req, res) => {
     const b = parse(additiveBody, req.body);
     const profile = await getAdditiveProfile(ctx.models);
@@ -101,12 +123,32 @@ export function calcRouter(ctx: AppContext): Router {
     res.json({ ...decision, coolantCautions: cautionsOf('hot-pressure', 'protective-gear', 'defer') });
   });
 
+  route(doc, {
+    method: 'post',
+    path: '/calc/freeze-point',
+    id: 'calcFreezePoint',
+    tag,
+    summary: 'Freeze point of a water-glycol mix (published tables)',
+    access,
+    body: freezeBody,
+    ok: FreezePointAnswer,
+  });
   r.post('/calc/freeze-point', (req, res) => {
     const b = parse(freezeBody, req.body);
     const a = computeOr400(() => assessFreezeProtection(b.glycol, b.percent, b.basis));
     res.json({ ...a, coolantCautions: cautionsOf('glycol-toxic', 'defer') });
   });
 
+  route(doc, {
+    method: 'post',
+    path: '/calc/glycol-for-freeze-point',
+    id: 'calcGlycolForFreezePoint',
+    tag,
+    summary: 'Glycol share needed for a freeze point',
+    access,
+    body: glycolNeededBody,
+    ok: GlycolNeededAnswer,
+  });
   r.post('/calc/glycol-for-freeze-point', (req, res) => {
     const b = parse(glycolNeededBody, req.body);
     const percent = computeOr400(() => percentForFreezePoint(b.glycol, b.freezePointC, b.basis), { designLowC: 'freezePointC' });
@@ -124,6 +166,17 @@ export function calcRouter(ctx: AppContext): Router {
     });
   });
 
+  route(doc, {
+    method: 'post',
+    path: '/calc/boiling-point',
+    id: 'calcBoilingPoint',
+    tag,
+    summary: 'Boiling point at the cap pressure (IAPWS-IF97 + Raoult)',
+    description: 'Atmosphere: atmosphereKpa (measured, kPa absolute) or elevationM (ICAO standard atmosphere), not both; default sea level.',
+    access,
+    body: boilingBody,
+    ok: BoilingPointAnswer,
+  });
   r.post('/calc/boiling-point', (req, res) => {
     const b = parse(boilingBody, req.body);
     if (b.atmosphereKpa !== undefined && b.elevationM !== undefined) throw badRequest('give either atmosphereKpa or elevationM, not both', 'elevationM');
@@ -151,6 +204,16 @@ export function calcRouter(ctx: AppContext): Router {
     });
   });
 
+  route(doc, {
+    method: 'post',
+    path: '/calc/mix-correction',
+    id: 'calcMixCorrection',
+    tag,
+    summary: 'Drain and refill to move the glycol share to a target (mass balance)',
+    access,
+    body: mixBody,
+    ok: MixCorrectionAnswer,
+  });
   r.post('/calc/mix-correction', async (req, res) => {
     const b = parse(mixBody, req.body);
     // The dose to restore the additive needs the liquid's strength: from the request, else the additive profile.
@@ -161,11 +224,31 @@ export function calcRouter(ctx: AppContext): Router {
     });
   });
 
+  route(doc, {
+    method: 'post',
+    path: '/calc/make-up-water',
+    id: 'calcMakeUpWater',
+    tag,
+    summary: 'Check make-up water against ASTM D6210 / D4985 limits',
+    access,
+    body: waterBody,
+    ok: MakeUpWaterAnswer,
+  });
   r.post('/calc/make-up-water', (req, res) => {
     const b = parse(waterBody, req.body);
     res.json(computeOr400(() => checkMakeUpWater(b)));
   });
 
+  route(doc, {
+    method: 'post',
+    path: '/calc/initial-charge',
+    id: 'calcInitialCharge',
+    tag,
+    summary: 'Liquid additive after a drain and refill (strength from the additive profile unless given)',
+    access,
+    body: chargeBody,
+    ok: InitialChargeAnswer,
+  });
   r.post('/calc/initial-charge', async (req, res) => {
     const b = parse(chargeBody, req.body);
     const profile = await getAdditiveProfile(ctx.models);

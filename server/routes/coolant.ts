@@ -4,8 +4,19 @@ import { z } from 'zod';
 import type { AppContext } from '../app-context';
 import { requireAuth, requireRole } from '../auth/middleware';
 import { badRequest, HttpError } from '../http-error';
-import { addOpenApiGroup } from '../openapi';
-import { coolantOpenApi } from '../openapi/coolant-paths';
+import { route, type ApiDoc } from '../openapi/api-doc';
+import {
+  AdditiveProfile,
+  CoolantLimits,
+  CoolantTest,
+  DueList,
+  LabImport,
+  PlanTask,
+  RunHoursAdjustment,
+  RunHoursCorrected,
+  TopUp,
+  TopUps,
+} from '../openapi/coolant-schemas';
 import { TEST_METHODS, TOP_UP_LIQUIDS } from '../models/coolant-models';
 import { BREAKDOWN_SIGNS } from '../../shared/coolant/chemistry';
 import { getAdditiveProfile, saveAdditiveProfile } from '../services/coolant/additive-profile';
@@ -16,7 +27,7 @@ import { runHoursCounterFor } from '../services/coolant';
 import { correctRunHours, runHoursHistory } from '../services/coolant/run-hours';
 import { clearOverride, computeDueList, enginePlan, setOverride } from '../services/coolant/service-plan';
 import { assertEngineVisible, siteFilter, siteScopeOf } from '../services/site-access';
-import { instant, parse, parseId } from './validate';
+import { idParam, instant, parse, parseId } from './validate';
 
 export const LAB_CSV_MAX_BYTES = 2 * 1024 * 1024;
 
@@ -87,6 +98,8 @@ const dueQuery = z.object({
 });
 const importQuery = z.object({ preview: z.enum(['0', '1', 'true', 'false']).optional(), engineId: z.coerce.number().int().positive().optional() });
 
+const labForm = z.object({ file: z.string().openapi({ format: 'binary', description: 'the lab CSV (layout in the README), at most 2 MB' }) });
+
 const RECORDERS = ['technician', 'planner', 'admin'] as const;
 const PLANNERS = ['planner', 'admin'] as const;
 
@@ -105,9 +118,9 @@ function labUpload(req: Request, res: Response, next: NextFunction): void {
 }
 
 /** Coolant tests, lab import, additive profile, run hours, service plan and the due list. */
-export function coolantRouter(ctx: AppContext): Router {
-  addOpenApiGroup(coolantOpenApi);
+export function coolantRouter(ctx: AppContext, doc: ApiDoc): Router {
   const r = Router();
+  const tag = 'coolant';
   const m = ctx.models;
   for (const p of [
     '/engines/:id/coolant-tests',
@@ -128,8 +141,30 @@ export function coolantRouter(ctx: AppContext): Router {
     });
   }
 
+  route(doc, {
+    method: 'get',
+    path: '/engines/:id/coolant-tests',
+    id: 'listCoolantTests',
+    tag,
+    summary: "An engine's coolant tests, newest first",
+    access: 'signed-in',
+    params: idParam,
+    ok: z.array(CoolantTest),
+  });
   r.get('/engines/:id/coolant-tests', async (req, res) => {
     res.json(await listCoolantTests(m, parseId(req.params)));
+  });
+  route(doc, {
+    method: 'post',
+    path: '/engines/:id/coolant-tests',
+    id: 'recordCoolantTest',
+    tag,
+    summary: 'Record a coolant test; the additive decision and chemistry findings are computed and stored with their reasons',
+    access: RECORDERS,
+    params: idParam,
+    body: testBody,
+    ok: CoolantTest,
+    status: 201,
   });
   r.post('/engines/:id/coolant-tests', requireRole(...RECORDERS), async (req, res) => {
     const id = parseId(req.params);
@@ -139,8 +174,30 @@ export function coolantRouter(ctx: AppContext): Router {
     res.status(201).json(await recordCoolantTest(m, id, { ...b, testedAt: new Date(testedAt) }, req.user!.id));
   });
 
+  route(doc, {
+    method: 'get',
+    path: '/engines/:id/coolant-top-ups',
+    id: 'listCoolantTopUps',
+    tag,
+    summary: 'Top-ups since the last test, with the estimated dilution',
+    access: 'signed-in',
+    params: idParam,
+    ok: TopUps,
+  });
   r.get('/engines/:id/coolant-top-ups', async (req, res) => {
     res.json(await listTopUps(m, parseId(req.params)));
+  });
+  route(doc, {
+    method: 'post',
+    path: '/engines/:id/coolant-top-ups',
+    id: 'recordCoolantTopUp',
+    tag,
+    summary: 'Record a coolant top-up',
+    access: RECORDERS,
+    params: idParam,
+    body: topUpBody,
+    ok: TopUp,
+    status: 201,
   });
   r.post('/engines/:id/coolant-top-ups', requireRole(...RECORDERS), async (req, res) => {
     const id = parseId(req.params);
@@ -150,6 +207,26 @@ export function coolantRouter(ctx: AppContext): Router {
     res.status(201).json(await recordTopUp(m, id, { ...b, addedAt: new Date(addedAt) }, req.user!.id));
   });
 
+  route(doc, {
+    method: 'post',
+    path: '/coolant-tests/import',
+    id: 'importLabCsv',
+    tag,
+    summary: 'Import lab results from CSV: good rows stored (201), bad rows reported with line and field',
+    description: [
+      'Header row required, columns in any order: `engine_id,tested_at,method,sca_units_per_gal,glycol_percent,freeze_point_c,ph,conductivity_us_cm,appearance,nitrite_ppm,molybdate_ppm`',
+      '(`engine_id` may be left out with `?engineId=`). UTF-8 or Windows-1252 (converted), `,` or `;` between fields, quoted fields may span lines.',
+      'tested_at: ISO 8601 with offset or Z, or YYYY-MM-DD (00:00 UTC); method: strip | refractometer | lab (blank = lab); blank number = not measured.',
+      '`?preview=1` stores nothing (200); nothing stored also answers 200. Not text or not the layout: 400 naming `file`; over 2 MB: 413.',
+    ].join(' '),
+    access: RECORDERS,
+    query: importQuery,
+    form: labForm,
+    ok: LabImport,
+    status: 201,
+    errors: [413],
+    also: { 200: { description: 'a preview, or nothing stored', schema: LabImport } },
+  });
   r.post('/coolant-tests/import', requireRole(...RECORDERS), labUpload, async (req, res) => {
     const q = parse(importQuery, req.query);
     if (!req.file) throw badRequest('send the CSV as multipart/form-data in the field "file"', 'file');
@@ -158,40 +235,140 @@ export function coolantRouter(ctx: AppContext): Router {
     res.status(preview || out.stored === 0 ? 200 : 201).json(out);
   });
 
+  route(doc, {
+    method: 'get',
+    path: '/additive-profile',
+    id: 'getAdditiveProfile',
+    tag,
+    summary: 'Additive profile: liquid strength, charged-filter pre-charges, SCA limits',
+    access: 'signed-in',
+    ok: AdditiveProfile,
+  });
   r.get('/additive-profile', async (_req, res) => {
     res.json(await getAdditiveProfile(m));
+  });
+  route(doc, {
+    method: 'put',
+    path: '/additive-profile',
+    id: 'saveAdditiveProfile',
+    tag,
+    summary: 'Set the additive profile',
+    access: ['admin'],
+    body: profileBody,
+    ok: AdditiveProfile,
   });
   r.put('/additive-profile', requireRole('admin'), async (req, res) => {
     res.json(await saveAdditiveProfile(m, parse(profileBody, req.body), req.user!.id));
   });
 
+  route(doc, {
+    method: 'get',
+    path: '/coolant-limits',
+    id: 'getCoolantLimits',
+    tag,
+    summary: 'Chemistry limits and the extender interval, with the defaults',
+    access: 'signed-in',
+    ok: CoolantLimits,
+  });
   r.get('/coolant-limits', async (_req, res) => {
     res.json(await getChemistryLimits(m));
+  });
+  route(doc, {
+    method: 'put',
+    path: '/coolant-limits',
+    id: 'saveCoolantLimits',
+    tag,
+    summary: 'Set chemistry limits (the fields given)',
+    access: ['admin'],
+    body: limitsBody,
+    ok: CoolantLimits,
   });
   r.put('/coolant-limits', requireRole('admin'), async (req, res) => {
     res.json(await saveChemistryLimits(m, parse(limitsBody, req.body), req.user!.id));
   });
 
+  route(doc, {
+    method: 'get',
+    path: '/engines/:id/run-hours',
+    id: 'listRunHoursCorrections',
+    tag,
+    summary: 'Hand corrections of run hours (audit), newest first',
+    access: 'signed-in',
+    params: idParam,
+    ok: z.array(RunHoursAdjustment),
+  });
   r.get('/engines/:id/run-hours', async (req, res) => {
     res.json(await runHoursHistory(m, parseId(req.params)));
+  });
+  route(doc, {
+    method: 'post',
+    path: '/engines/:id/run-hours',
+    id: 'correctRunHours',
+    tag,
+    summary: 'Set run hours from the hour meter, with the reason',
+    access: PLANNERS,
+    params: idParam,
+    body: runHoursBody,
+    ok: RunHoursCorrected,
   });
   r.post('/engines/:id/run-hours', requireRole(...PLANNERS), async (req, res) => {
     const id = parseId(req.params);
     res.json(await correctRunHours(m, id, parse(runHoursBody, req.body), req.user!.id, runHoursCounterFor(ctx)));
   });
 
+  route(doc, {
+    method: 'get',
+    path: '/engines/:id/service-plan',
+    id: 'getServicePlan',
+    tag,
+    summary: 'Service plan of an engine: defaults plus its overrides',
+    access: 'signed-in',
+    params: idParam,
+    ok: z.array(PlanTask),
+  });
   r.get('/engines/:id/service-plan', async (req, res) => {
     res.json(await enginePlan(m, parseId(req.params)));
+  });
+  route(doc, {
+    method: 'put',
+    path: '/engines/:id/service-plan/:taskKey',
+    id: 'overrideServiceTask',
+    tag,
+    summary: "Override a task of an engine's plan (title, interval, or off)",
+    access: PLANNERS,
+    params: taskParam,
+    body: overrideBody,
+    ok: z.array(PlanTask),
   });
   r.put('/engines/:id/service-plan/:taskKey', requireRole(...PLANNERS), async (req, res) => {
     const p = parse(taskParam, req.params);
     res.json(await setOverride(m, p.id, p.taskKey, parse(overrideBody, req.body), req.user!.id));
+  });
+  route(doc, {
+    method: 'delete',
+    path: '/engines/:id/service-plan/:taskKey',
+    id: 'clearServiceTaskOverride',
+    tag,
+    summary: 'Back to the default task',
+    access: PLANNERS,
+    params: taskParam,
+    ok: z.array(PlanTask),
   });
   r.delete('/engines/:id/service-plan/:taskKey', requireRole(...PLANNERS), async (req, res) => {
     const p = parse(taskParam, req.params);
     res.json(await clearOverride(m, p.id, p.taskKey));
   });
 
+  route(doc, {
+    method: 'get',
+    path: '/due-list',
+    id: 'getDueList',
+    tag,
+    summary: 'Service tasks overdue or due soon, by site',
+    access: 'signed-in',
+    query: dueQuery,
+    ok: DueList,
+  });
   r.get('/due-list', async (req, res) => {
     const q = parse(dueQuery, req.query);
     const siteIds = siteFilter(await siteScopeOf(req), q.siteId) ?? undefined;

@@ -11,7 +11,9 @@ import { freezeStatusOf } from '../services/coolant/freeze-status';
 import { createEngine, engineView, getEngine, listEngines, retireEngine, updateEngine } from '../services/engines';
 import { queryBuckets } from '../services/readings-query';
 import { assertEngineVisible, siteFilter, siteScopeOf } from '../services/site-access';
-import { instant, parse, parseId } from './validate';
+import { idParam, instant, parse, parseId } from './validate';
+import { route, type ApiDoc } from '../openapi/api-doc';
+import { Buckets, Engine, EngineStatus } from '../openapi/core-schemas';
 
 const range = (min: number, max: number, unit: string) => z.number().min(min, `at least ${min} ${unit}`).max(max, `at most ${max} ${unit}`);
 
@@ -55,10 +57,21 @@ const readingsQuery = z.object({
   points: z.coerce.number().int().min(1).max(2000).default(500),
 });
 
-export function enginesRouter(ctx: AppContext): Router {
+export function enginesRouter(ctx: AppContext, doc: ApiDoc): Router {
   const r = Router();
+  const tag = 'engines';
   const live = () => ctx.telemetry?.liveState ?? null;
   r.use('/engines', requireAuth);
+  route(doc, {
+    method: 'get',
+    path: '/engines',
+    id: 'listEngines',
+    tag,
+    summary: 'Engines with live values',
+    access: 'signed-in',
+    query: listQuery,
+    ok: z.array(EngineStatus),
+  });
   r.get('/engines', async (req, res) => {
     const q = parse(listQuery, req.query);
     const siteIds = siteFilter(await siteScopeOf(req), q.siteId);
@@ -78,6 +91,16 @@ export function enginesRouter(ctx: AppContext): Router {
       })),
     );
   });
+  route(doc, {
+    method: 'get',
+    path: '/engines/:id',
+    id: 'getEngine',
+    tag,
+    summary: 'One engine with live values',
+    access: 'signed-in',
+    params: idParam,
+    ok: EngineStatus,
+  });
   r.get('/engines/:id', async (req, res) => {
     const id = parseId(req.params);
     await assertEngineVisible(ctx.models, await siteScopeOf(req), id);
@@ -91,6 +114,18 @@ export function enginesRouter(ctx: AppContext): Router {
       ...(freeze ? { freezeProtection: freeze } : {}),
     });
   });
+  route(doc, {
+    method: 'get',
+    path: '/engines/:id/readings',
+    id: 'getEngineReadings',
+    tag,
+    summary: 'Bucketed readings: raw for short spans, per-minute or per-hour rollups for long ones or before the raw retention',
+    description: '`from` and `to`: epoch ms or ISO 8601; default the last 24 h; at most 400 days.',
+    access: 'signed-in',
+    params: idParam,
+    query: readingsQuery,
+    ok: Buckets,
+  });
   r.get('/engines/:id/readings', async (req, res) => {
     const id = parseId(req.params);
     const q = parse(readingsQuery, req.query);
@@ -103,13 +138,36 @@ export function enginesRouter(ctx: AppContext): Router {
     const retention = { rawRetentionDays: ctx.config.rawRetentionDays, now: Date.now() };
     res.json(await queryBuckets(ctx.sequelize, { engineId: id, channel: q.channel as (typeof CHANNEL_KEYS)[number], from, to, points: q.points }, retention));
   });
+  route(doc, {
+    method: 'post',
+    path: '/engines',
+    id: 'createEngine',
+    tag,
+    summary: 'Create an engine',
+    access: ['admin'],
+    body: createBody,
+    ok: Engine,
+    status: 201,
+  });
   r.post('/engines', requireRole('admin'), async (req, res) => {
     res.status(201).json(engineView(await createEngine(ctx.models, parse(createBody, req.body)), live()));
+  });
+  route(doc, {
+    method: 'patch',
+    path: '/engines/:id',
+    id: 'updateEngine',
+    tag,
+    summary: 'Change an engine',
+    access: ['admin'],
+    params: idParam,
+    body: patchBody,
+    ok: Engine,
   });
   r.patch('/engines/:id', requireRole('admin'), async (req, res) => {
     const id = parseId(req.params);
     res.json(engineView(await updateEngine(ctx.models, id, parse(patchBody, req.body)), live()));
   });
+  route(doc, { method: 'delete', path: '/engines/:id', id: 'retireEngine', tag, summary: 'Retire an engine', access: ['admin'], params: idParam, ok: Engine });
   r.delete('/engines/:id', requireRole('admin'), async (req, res) => {
     res.json(engineView(await retireEngine(ctx.models, parseId(req.params)), live()));
   });

@@ -2,12 +2,16 @@ import { Router } from 'express';
 import { requireAuth, requireRole } from '../auth/middleware';
 import type { AppContext } from '../app-context';
 import { ingestReport } from '../services/ingest-report';
+import { route, type ApiDoc } from '../openapi/api-doc';
+import { Health, IngestReport } from '../openapi/core-schemas';
 
 // eslint-disable-next-line @typescript-eslint/no-require-imports
 const VERSION: string = require('../../package.json').version;
 
-export function healthRouter(ctx: AppContext): Router {
+export function healthRouter(ctx: AppContext, doc: ApiDoc): Router {
   const r = Router();
+  const tag = 'health';
+  route(doc, { method: 'get', path: '/health', id: 'getHealth', tag, summary: 'Liveness and summary ingest counters', access: 'public', ok: Health });
   r.get('/health', (_req, res) => {
     const c = ctx.telemetry?.counters() ?? null;
     const broker = ctx.telemetry?.brokerState?.() ?? null;
@@ -30,6 +34,15 @@ export function healthRouter(ctx: AppContext): Router {
           }
         : null,
     });
+  });
+  route(doc, {
+    method: 'get',
+    path: '/admin/ingest',
+    id: 'getIngestReport',
+    tag,
+    summary: 'Full ingest counters and per-device rejections',
+    access: ['admin'],
+    ok: IngestReport,
   });
   r.get('/admin/ingest', requireAuth, requireRole('admin'), async (_req, res) => {
     res.json(await ingestReport(ctx));

@@ -1,9 +1,20 @@
 import type { NextFunction, Request, Response } from 'express';
+import { z } from 'zod';
 import type { AppContext } from '../app-context';
 import { HttpError } from '../http-error';
 import { IdempotencyService } from '../services/idempotency';
 
 const KEY = /^[A-Za-z0-9_:.-]{8,100}$/;
+/** The header as the OpenAPI document shows it on the write routes this middleware guards. */
+export const idempotencyHeaders = z.object({
+  'idempotency-key': z
+    .string()
+    .regex(KEY)
+    .optional()
+    .describe(
+      'the same key again answers the first answer (Idempotent-Replayed: true) without doing it twice; 422 on another request, 409 while the first is handled',
+    ),
+});
 /** Answers not kept for a replay: the session or the rate limit may be different next time. */
 const NOT_KEPT = new Set([401, 408, 429]);
 

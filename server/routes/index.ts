@@ -1,7 +1,7 @@
 import { Router } from 'express';
 import type { AppContext } from '../app-context';
-import { addOpenApiGroup, buildOpenApi } from '../openapi';
-import { alarmsOpenApi } from '../openapi/alarm-paths';
+import { buildApiDocument, route, type ApiDoc } from '../openapi/api-doc';
+import { OpenApiDocument } from '../openapi/core-schemas';
 import type { AlarmFeature } from '../services/alarms';
 import { alarmsRouter } from './alarms';
 import { authRouter } from './auth';
@@ -18,29 +18,43 @@ import { sitesRouter } from './sites';
 import { usersRouter } from './users';
 import { workOrdersRouter } from './work-orders';
 
-/** Every core router, to be mounted at /api. Later features add theirs in createApp's `extraRouters`. */
-export function coreRouters(ctx: AppContext): Router[] {
-  const docs = Router();
-  docs.get('/openapi.json', (_req, res) => {
-    res.json(buildOpenApi());
+/** GET /api/openapi.json: the document of everything registered in `doc` (built once, on the first ask). */
+function docsRouter(doc: ApiDoc): Router {
+  const r = Router();
+  let built: ReturnType<typeof buildApiDocument> | null = null;
+  route(doc, {
+    method: 'get',
+    path: '/openapi.json',
+    id: 'getOpenApiDocument',
+    tag: 'health',
+    summary: 'This document (OpenAPI 3.1)',
+    access: 'public',
+    ok: OpenApiDocument,
   });
+  r.get('/openapi.json', (_req, res) => {
+    res.json((built ??= buildApiDocument(doc)));
+  });
+  return r;
+}
+
+/** Every core router, to be mounted at /api; each registers its routes in `doc`. Later features add theirs in createApp's `extraRouters`. */
+export function coreRouters(ctx: AppContext, doc: ApiDoc): Router[] {
   return [
-    docs,
-    healthRouter(ctx),
-    authRouter(ctx),
-    sitesRouter(ctx),
-    enginesRouter(ctx),
-    devicesRouter(ctx),
-    usersRouter(ctx),
-    workOrdersRouter(ctx),
-    calcRouter(ctx),
-    coolantRouter(ctx),
-    engineHistoryRouter(ctx),
+    docsRouter(doc),
+    healthRouter(ctx, doc),
+    authRouter(ctx, doc),
+    sitesRouter(ctx, doc),
+    enginesRouter(ctx, doc),
+    devicesRouter(ctx, doc),
+    usersRouter(ctx, doc),
+    workOrdersRouter(ctx, doc),
+    calcRouter(ctx, doc),
+    coolantRouter(ctx, doc),
+    engineHistoryRouter(ctx, doc),
   ];
 }
 
 /** The alarm feature's routers (alarms, on-call, rules, mail), mounted by startServer after the core ones. */
-export function alarmRouters(ctx: AppContext, feature: AlarmFeature): Router[] {
-  addOpenApiGroup(alarmsOpenApi);
-  return [alarmsRouter(ctx, feature), oncallRouter(ctx), rulesRouter(ctx, feature), mailAdminRouter(ctx)];
+export function alarmRouters(ctx: AppContext, feature: AlarmFeature, doc: ApiDoc): Router[] {
+  return [alarmsRouter(ctx, feature, doc), oncallRouter(ctx, doc), rulesRouter(ctx, feature, doc), mailAdminRouter(ctx, doc)];
 }

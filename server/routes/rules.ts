@@ -8,7 +8,9 @@ import type { AlarmFeature } from '../services/alarms';
 import { PRIORITIES } from '../services/alarms/priority';
 import { RULE_KINDS } from '../services/alarms/rule-definitions';
 import { engineRules, previewRule, saveEngineRules, saveProfile } from '../services/alarms/rules-admin';
-import { instant, parse, parseId } from './validate';
+import { idParam, instant, parse, parseId } from './validate';
+import { route, type ApiDoc } from '../openapi/api-doc';
+import { EngineRules, RulePreview, RuleProfile } from '../openapi/alarm-schemas';
 
 const params = z.record(z.string(), z.union([z.number().finite(), z.string().max(40), z.boolean()]));
 const ruleDef = z.strictObject({
@@ -36,23 +38,68 @@ const previewBody = z.strictObject({
 });
 
 /** /api/rules: the default rule profile and per-engine overrides (admin), and the 7-day preview. */
-export function rulesRouter(ctx: AppContext, feature: AlarmFeature): Router {
+export function rulesRouter(ctx: AppContext, feature: AlarmFeature, doc: ApiDoc): Router {
   const r = Router();
+  const tag = 'rules';
+  const access = ['admin'];
   r.use('/rules', requireAuth, requireRole('admin'));
+  route(doc, { method: 'get', path: '/rules', id: 'getRuleProfile', tag, summary: 'The default alarm-rule profile', access, ok: RuleProfile });
   r.get('/rules', (_req, res) => {
     res.json({ rules: feature.rules.profileRules() });
+  });
+  route(doc, {
+    method: 'put',
+    path: '/rules',
+    id: 'saveRuleProfile',
+    tag,
+    summary: 'Replace the default alarm-rule profile',
+    access,
+    body: profileBody,
+    ok: RuleProfile,
   });
   r.put('/rules', async (req, res) => {
     const b = parse(profileBody, req.body);
     res.json({ rules: await saveProfile(ctx.models, feature.rules, b.rules as never) });
   });
+  route(doc, {
+    method: 'get',
+    path: '/rules/engines/:id',
+    id: 'getEngineRules',
+    tag,
+    summary: "An engine's effective rules and its overrides",
+    access,
+    params: idParam,
+    ok: EngineRules,
+  });
   r.get('/rules/engines/:id', async (req, res) => {
     res.json(await engineRules(ctx.models, feature.rules, parseId(req.params)));
+  });
+  route(doc, {
+    method: 'put',
+    path: '/rules/engines/:id',
+    id: 'saveEngineRules',
+    tag,
+    summary: "Replace an engine's rule overrides",
+    access,
+    params: idParam,
+    body: overridesBody,
+    ok: EngineRules,
   });
   r.put('/rules/engines/:id', async (req, res) => {
     const id = parseId(req.params);
     const b = parse(overridesBody, req.body);
     res.json(await saveEngineRules(ctx.models, ctx.sequelize, feature.rules, id, b.rules));
+  });
+  route(doc, {
+    method: 'post',
+    path: '/rules/preview',
+    id: 'previewRule',
+    tag,
+    summary: 'The alarms a rule would have raised on stored readings (at most 7 days, default the last 7)',
+    access,
+    body: previewBody,
+    ok: RulePreview,
+    errors: [404],
   });
   r.post('/rules/preview', async (req, res) => {
     const b = parse(previewBody, req.body);

@@ -57,4 +57,7 @@ export const timeZone = z.string().refine((tz) => {
 }, 'not an IANA time zone');
 
 /** Epoch milliseconds or an ISO 8601 string, as a number of ms. */
-export const instant = z.union([z.coerce.number().int(), z.iso.datetime({ offset: true })]).transform((v) => (typeof v === 'number' ? v : Date.parse(v)));
+export const instant = z
+  .union([z.coerce.number().int(), z.iso.datetime({ offset: true })])
+  .transform((v) => (typeof v === 'number' ? v : Date.parse(v)))
+  .describe('epoch milliseconds, or ISO 8601 with an offset or Z');

@@ -1,6 +1,6 @@
 import { Router, type NextFunction, type Request, type Response } from 'express';
 import multer from 'multer';
-import { idempotent } from './idempotency';
+import { idempotencyHeaders, idempotent } from './idempotency';
 import { z } from 'zod';
 import type { AppContext } from '../app-context';
 import { requireAuth, requireRole } from '../auth/middleware';
@@ -26,7 +26,19 @@ import { completeStep, GateShutError, saveDraft } from '../services/work-orders/
 import { AlreadyRecordedError, recordOrderCoolantTest } from '../services/work-orders/coolant-test-service';
 import { TEST_METHODS } from '../models/coolant-models';
 import { WorkOrderService } from '../services/work-orders/work-order-service';
-import { parse, parseId } from './validate';
+import { idParam, parse, parseId } from './validate';
+import { route, type ApiDoc } from '../openapi/api-doc';
+import {
+  AlreadyRecorded,
+  Assignee,
+  Attachment,
+  GateShut,
+  OpeningCheck,
+  OrderCoolantTest,
+  WorkOrder,
+  WorkOrderDetail,
+  WorkTemplate,
+} from '../openapi/work-schemas';
 
 /** A whole calendar date, YYYY-MM-DD, that exists (no 2026-02-30), in 2000..2100: a half-typed year (0002, 0202) is refused. */
 const dateOnly = z
@@ -117,6 +129,8 @@ const partBody = z.strictObject({
 const amendmentBody = z.strictObject({ text: z.string().trim().min(1).max(4000) });
 const stepParams = z.object({ id: z.coerce.number().int().positive(), stepId: z.coerce.number().int().positive() });
 const uploadFields = z.object({ stepId: z.coerce.number().int().positive().optional() });
+const openingQuery = z.object({ lockoutConfirmed: z.enum(['true', 'false']).optional() });
+const uploadForm = uploadFields.extend({ file: z.string().openapi({ format: 'binary', description: 'JPEG, PNG, WebP or PDF, checked by content' }) });
 
 // defParamCharset utf8: browsers send a file name as raw UTF-8 bytes; multer's default (latin1) garbles it
 const upload = multer({ storage: multer.memoryStorage(), defParamCharset: 'utf8', limits: { fileSize: MAX_ATTACHMENT_BYTES, files: 1, fields: 5, parts: 6 } });
@@ -137,12 +151,14 @@ export interface WorkRouterHandle {
   history: ReadingHistory;
 }
 
-export function workOrdersRouterWithService(ctx: AppContext): WorkRouterHandle {
+export function workOrdersRouterWithService(ctx: AppContext, doc: ApiDoc): WorkRouterHandle {
   // fed by telemetry (startServer wires it); the routes only read it
   const history = openingHistoryOf(ctx);
   const svc = new WorkOrderService(ctx, history);
   const r = Router();
   const planners = requireRole('planner', 'admin');
+  const tag = 'work orders';
+  const gateShut = { 409: { description: 'the opening check is not clear (the unmet conditions), or lockout is not confirmed', schema: GateShut } };
   const gated = (fn: (req: Request, res: Response) => Promise<void>) => async (req: Request, res: Response) => {
     try {
       await fn(req, res);
@@ -162,10 +178,30 @@ export function workOrdersRouterWithService(ctx: AppContext): WorkRouterHandle {
     next();
   });
 
+  route(doc, {
+    method: 'get',
+    path: '/work-order-templates',
+    id: 'listWorkTemplates',
+    tag,
+    summary: 'Checklists each kind of work order starts from',
+    access: 'signed-in',
+    ok: z.array(WorkTemplate),
+  });
   r.get('/work-order-templates', (_req, res) => {
     res.json(WORK_TEMPLATES);
   });
 
+  route(doc, {
+    method: 'get',
+    path: '/engines/:id/opening-check',
+    id: 'getOpeningCheck',
+    tag,
+    summary: 'May the cooling system be opened now? Stopped, cool, depressurised, fresh data, held; with a predicted clear time',
+    access: 'signed-in',
+    params: idParam,
+    query: openingQuery,
+    ok: OpeningCheck,
+  });
   r.get('/engines/:id/opening-check', async (req, res) => {
     const id = parseId(req.params);
     await assertEngineVisible(ctx.models, await siteScopeOf(req), id);
@@ -173,11 +209,31 @@ export function workOrdersRouterWithService(ctx: AppContext): WorkRouterHandle {
     res.json(await openingCheckOf(ctx.models, history, id, req.query.lockoutConfirmed === 'true'));
   });
 
+  route(doc, {
+    method: 'get',
+    path: '/work-orders/assignees',
+    id: 'listAssignees',
+    tag,
+    summary: 'Active technicians a work order can be assigned to',
+    access: 'signed-in',
+    ok: z.array(Assignee),
+  });
   r.get('/work-orders/assignees', async (req, res) => {
     // the picker follows the asker's sites: no names of people who work only elsewhere
     res.json(await svc.assignees(await visibleUserIds(ctx.models, await siteScopeOf(req))));
   });
 
+  route(doc, {
+    method: 'get',
+    path: '/work-orders',
+    id: 'listWorkOrders',
+    tag,
+    summary: 'Work orders',
+    description: '`status`: comma-separated.',
+    access: 'signed-in',
+    query: listQuery,
+    ok: z.array(WorkOrder),
+  });
   r.get('/work-orders', async (req, res) => {
     const q = parse(listQuery, req.query);
     const engineIds = (await visibleEngineIds(ctx.models, await siteScopeOf(req))) ?? undefined;
@@ -193,6 +249,20 @@ export function workOrdersRouterWithService(ctx: AppContext): WorkRouterHandle {
     );
   });
 
+  route(doc, {
+    method: 'post',
+    path: '/work-orders',
+    id: 'createWorkOrder',
+    tag,
+    summary: 'Create a work order',
+    description: 'Planner/admin: planned; others: requested. With alarmId the alarm is linked and its data carried over.',
+    access: 'signed-in',
+    body: createBody,
+    ok: WorkOrderDetail,
+    status: 201,
+    headers: idempotencyHeaders,
+    errors: [403, 409, 422],
+  });
   r.post('/work-orders', async (req, res) => {
     const body = parse(createBody, req.body);
     // another site's engine answers as an unknown one does
@@ -201,16 +271,52 @@ export function workOrdersRouterWithService(ctx: AppContext): WorkRouterHandle {
     res.status(201).json(await svc.detail(order.id));
   });
 
+  route(doc, {
+    method: 'get',
+    path: '/work-orders/:id',
+    id: 'getWorkOrder',
+    tag,
+    summary: 'One work order with steps, parts, attachments, history and amendments',
+    access: 'signed-in',
+    params: idParam,
+    ok: WorkOrderDetail,
+  });
   r.get('/work-orders/:id', async (req, res) => {
     res.json(await svc.detail(parseId(req.params)));
   });
 
+  route(doc, {
+    method: 'patch',
+    path: '/work-orders/:id',
+    id: 'planWorkOrder',
+    tag,
+    summary: 'Plan: assign, schedule, re-prioritise (not once waiting for sign-off or finished)',
+    access: ['planner', 'admin'],
+    params: idParam,
+    body: planBody,
+    ok: WorkOrderDetail,
+    headers: idempotencyHeaders,
+    errors: [409, 422],
+  });
   r.patch('/work-orders/:id', planners, async (req, res) => {
     const id = parseId(req.params);
     await svc.plan(req.user!, id, parse(planBody, req.body));
     res.json(await svc.detail(id));
   });
 
+  route(doc, {
+    method: 'post',
+    path: '/work-orders/:id/transition',
+    id: 'transitionWorkOrder',
+    tag,
+    summary: 'Move to another status; allowed moves and roles are enforced, every move is in the history',
+    access: 'signed-in',
+    params: idParam,
+    body: transitionBody,
+    ok: WorkOrderDetail,
+    headers: idempotencyHeaders,
+    errors: [403, 409, 422],
+  });
   r.post('/work-orders/:id/transition', async (req, res) => {
     const id = parseId(req.params);
     const body = parse(transitionBody, req.body);
@@ -218,6 +324,22 @@ export function workOrdersRouterWithService(ctx: AppContext): WorkRouterHandle {
     res.json(await svc.detail(id));
   });
 
+  route(doc, {
+    method: 'post',
+    path: '/work-orders/:id/steps/:stepId/complete',
+    id: 'completeWorkOrderStep',
+    tag,
+    summary: 'Do a step (assigned technician)',
+    description:
+      'Gated steps need lockout confirmation and a clear opening check, re-computed here; a manual check is accepted only when live data is stale or missing. A step that adds coolant waits for the step that takes the cap off.',
+    access: 'signed-in',
+    params: stepParams,
+    body: completeBody,
+    ok: WorkOrderDetail,
+    headers: idempotencyHeaders,
+    errors: [403, 409, 422],
+    also: gateShut,
+  });
   r.post(
     '/work-orders/:id/steps/:stepId/complete',
     gated(async (req, res) => {
@@ -228,6 +350,21 @@ export function workOrdersRouterWithService(ctx: AppContext): WorkRouterHandle {
   );
 
   // a draft: what is typed into a step, saved without completing it
+  route(doc, {
+    method: 'patch',
+    path: '/work-orders/:id/steps/:stepId',
+    id: 'saveWorkOrderStepDraft',
+    tag,
+    summary: 'Save a draft of a step without completing it (assigned technician); a locked gated step takes nothing',
+    access: 'signed-in',
+    params: stepParams,
+    body: draftBody,
+    bodyOptional: true,
+    ok: WorkOrderDetail,
+    headers: idempotencyHeaders,
+    errors: [403, 409, 422],
+    also: gateShut,
+  });
   r.patch(
     '/work-orders/:id/steps/:stepId',
     gated(async (req, res) => {
@@ -237,6 +374,23 @@ export function workOrdersRouterWithService(ctx: AppContext): WorkRouterHandle {
     }),
   );
 
+  route(doc, {
+    method: 'post',
+    path: '/work-orders/:id/coolant-test',
+    id: 'recordWorkOrderCoolantTest',
+    tag,
+    summary: 'Record the coolant test of a coolant-test order from its steps, once, after the sampling step',
+    description: 'A second attempt answers 409 with the recorded test; a correction is an amendment.',
+    access: 'signed-in',
+    params: idParam,
+    body: orderTestBody,
+    bodyOptional: true,
+    ok: OrderCoolantTest,
+    status: 201,
+    headers: idempotencyHeaders,
+    errors: [403, 409, 422],
+    also: { 409: { description: 'already recorded (the recorded test), or the order is not ready for it', schema: AlreadyRecorded } },
+  });
   r.post(
     '/work-orders/:id/coolant-test',
     gated(async (req, res) => {
@@ -247,18 +401,60 @@ export function workOrdersRouterWithService(ctx: AppContext): WorkRouterHandle {
     }),
   );
 
+  route(doc, {
+    method: 'post',
+    path: '/work-orders/:id/parts',
+    id: 'addWorkOrderPart',
+    tag,
+    summary: 'Record a part or fluid (filters in pcs; coolant and additive in L or gal, stored in L)',
+    access: 'signed-in',
+    params: idParam,
+    body: partBody,
+    ok: WorkOrderDetail,
+    status: 201,
+    headers: idempotencyHeaders,
+    errors: [403, 409, 422],
+  });
   r.post('/work-orders/:id/parts', async (req, res) => {
     const id = parseId(req.params);
     await addPart(svc, req.user!, id, parse(partBody, req.body));
     res.status(201).json(await svc.detail(id));
   });
 
+  route(doc, {
+    method: 'post',
+    path: '/work-orders/:id/amendments',
+    id: 'addWorkOrderAmendment',
+    tag,
+    summary: 'Append an amendment to a closed or cancelled order (the record itself is never edited)',
+    access: 'signed-in',
+    params: idParam,
+    body: amendmentBody,
+    ok: WorkOrderDetail,
+    status: 201,
+    headers: idempotencyHeaders,
+    errors: [403, 409, 422],
+  });
   r.post('/work-orders/:id/amendments', async (req, res) => {
     const id = parseId(req.params);
     await addAmendment(svc, req.user!, id, parse(amendmentBody, req.body).text);
     res.status(201).json(await svc.detail(id));
   });
 
+  route(doc, {
+    method: 'post',
+    path: '/work-orders/:id/attachments',
+    id: 'addWorkOrderAttachment',
+    tag,
+    summary: 'Attach a photo (JPEG, PNG, WebP) or PDF, at most 8 MB, checked by content',
+    access: 'signed-in',
+    params: idParam,
+    form: uploadForm,
+    ok: Attachment,
+    status: 201,
+    headers: idempotencyHeaders,
+    errors: [403, 409, 413, 415, 422],
+  });
   r.post('/work-orders/:id/attachments', singleFile, async (req, res) => {
     const id = parseId(req.params);
     const fields = parse(uploadFields, req.body ?? {});
@@ -268,6 +464,17 @@ export function workOrdersRouterWithService(ctx: AppContext): WorkRouterHandle {
       .json({ id: a.id, stepId: a.stepId, originalName: a.originalName, contentType: a.contentType, size: a.size, url: `/api/attachments/${a.id}` });
   });
 
+  route(doc, {
+    method: 'get',
+    path: '/attachments/:id',
+    id: 'getAttachment',
+    tag,
+    summary: 'The attached file',
+    access: 'signed-in',
+    params: idParam,
+    ok: z.string().openapi({ format: 'binary' }),
+    media: ['image/jpeg', 'image/png', 'image/webp', 'application/pdf'],
+  });
   r.get('/attachments/:id', async (req, res) => {
     const id = parseId(req.params);
     await assertAttachmentVisible(ctx.models, await siteScopeOf(req), id);
@@ -285,6 +492,6 @@ export function workOrdersRouterWithService(ctx: AppContext): WorkRouterHandle {
   return { router: r, service: svc, history };
 }
 
-export function workOrdersRouter(ctx: AppContext): Router {
-  return workOrdersRouterWithService(ctx).router;
+export function workOrdersRouter(ctx: AppContext, doc: ApiDoc): Router {
+  return workOrdersRouterWithService(ctx, doc).router;
 }

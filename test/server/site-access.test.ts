@@ -40,7 +40,7 @@ beforeAll(async () => {
     emit: () => undefined,
   } as unknown as typeof t.ctx.telemetry;
   // the core routers plus the alarm routers, over the same context and database
-  app = createApp(t.ctx, { staticDir: path.join(t.dataDir, 'no-app'), extraRouters: alarmRouters(t.ctx, createAlarmFeature(t.ctx)) });
+  app = createApp(t.ctx, { staticDir: path.join(t.dataDir, 'no-app'), extraRouters: (doc) => alarmRouters(t.ctx, createAlarmFeature(t.ctx), doc) });
   const { Site, Engine, Alarm } = t.ctx.models;
   const row = (siteId: number, name: string) => ({
     siteId,

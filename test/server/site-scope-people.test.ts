@@ -17,7 +17,7 @@ let plannerA = '';
 
 beforeAll(async () => {
   t = await makeTestApp();
-  app = createApp(t.ctx, { staticDir: path.join(t.dataDir, 'no-app'), extraRouters: alarmRouters(t.ctx, createAlarmFeature(t.ctx)) });
+  app = createApp(t.ctx, { staticDir: path.join(t.dataDir, 'no-app'), extraRouters: (doc) => alarmRouters(t.ctx, createAlarmFeature(t.ctx), doc) });
   ids.siteA = (await t.ctx.models.Site.create({ name: 'Alpha works', timeZone: 'UTC' })).id;
   ids.siteB = (await t.ctx.models.Site.create({ name: 'Bravo works', timeZone: 'UTC' })).id;
   const admin = auth(t.tokens.admin);

@@ -63,7 +63,7 @@ export async function makeAlarmApp(settings: Partial<AlarmSettings> = {}): Promi
   const tokens = createTokenService(loadJwtSecret(dataDir));
   const ctx: AppContext = { config, log, sequelize, models, tokens, telemetry: null, startedAt: Date.now() };
   const feature = createAlarmFeature(ctx, { ...loadAlarmSettings({}), mailRetryBaseMs: 200, mailRetryMaxMs: 1000, ...settings });
-  const app = createApp(ctx, { staticDir: path.join(dataDir, 'no-app'), extraRouters: alarmRouters(ctx, feature) });
+  const app = createApp(ctx, { staticDir: path.join(dataDir, 'no-app'), extraRouters: (doc) => alarmRouters(ctx, feature, doc) });
 
   const users = {} as AlarmApp['users'];
   const toks = {} as AlarmApp['tokens'];
