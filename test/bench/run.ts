@@ -29,6 +29,7 @@ import { io as ioClient } from 'socket.io-client';
 import { loadJwtSecret } from '../../server/auth/jwt-secret';
 import { createTokenService } from '../../server/auth/tokens';
 import { describeInitialBundle, measureInitialBundle } from './initial-bundle';
+import { fleetBoardLongTasks, type FleetBoardFigures } from './fleet-board';
 import { printTrend, trendPhase } from './trend';
 import { loginUnderBurst, type LoginBurstFigures } from './login-burst';
 import { printScale, runScaleBench } from './scale';
@@ -48,6 +49,10 @@ const FLOOD_ENGINES = 100;
 const PUSH_ENGINES = Number(process.env.BENCH_PUSH_ENGINES ?? 2000);
 /** Engines an engine-page socket watches during the push phase (prompt per-engine messages). */
 const PUSH_ENGINE_PAGE = 20;
+/** The bench admin's password (a throwaway database): the fleet-board phase signs in with it in Chromium. */
+const BENCH_ADMIN_PASSWORD = `bench-${process.pid}-${Date.now()}`;
+const BOARD_SETTLE_MS = 4_000;
+const BOARD_MEASURE_MS = 10_000;
 const PUBLISHERS = 2;
 const SAMPLES_PER_MSG = 50; // x 5 channels = 250 readings, about 7 KB
 
@@ -377,6 +382,58 @@ function printPush(p: Awaited<ReturnType<typeof pushPhase>>): void {
   }
 }
 
+/**
+ * The fleet board of PUSH_ENGINES engines in Chromium while they all publish (1 Hz): long tasks while it updates.
+ * Skipped (null) with BENCH_BROWSER=0 or without a build in dist/.
+ */
+async function fleetBoardPhase(server: Server, all: SeededDevice[], progress: (m: string) => void): Promise<FleetBoardFigures | null> {
+  if (process.env.BENCH_BROWSER === '0' || !fs.existsSync(path.join(ROOT, 'dist/jacketwatch/browser/index.html'))) return null;
+  const devices = all.slice(0, PUSH_ENGINES).map((d) => ({ username: d.username, secret: d.secret, engineId: d.engineId }));
+  const pubs = split(devices, PUBLISHERS).map((ds) =>
+    startPublisher({
+      mqttPort: server.mqttPort,
+      devices: ds,
+      mode: 'paced',
+      qos: 1,
+      durationMs: BOARD_SETTLE_MS + BOARD_MEASURE_MS + 10_000,
+      window: 1,
+      samplesPerMsg: 1,
+      baseTs: 0,
+    }),
+  );
+  await Promise.all(pubs.map((p) => p.ready));
+  progress(`fleet board in Chromium (${devices.length} engines publishing)`);
+  try {
+    return await fleetBoardLongTasks({
+      url: server.url,
+      email: 'bench-admin@example.test',
+      password: BENCH_ADMIN_PASSWORD,
+      whileUpdating: async () => pubs.forEach((p) => p.go()),
+      settleMs: BOARD_SETTLE_MS,
+      measureMs: BOARD_MEASURE_MS,
+    });
+  } catch (err) {
+    console.error('fleet board phase failed:', err instanceof Error ? err.message : err);
+    pubs.forEach((p) => p.go());
+    return null;
+  } finally {
+    await Promise.all(pubs.map((p) => p.result.catch(() => null)));
+  }
+}
+
+function printBoard(b: FleetBoardFigures | null): void {
+  const line = (k: string, v: string) => console.log(`  ${k.padEnd(46)} ${v}`);
+  if (!b) return line('fleet board in Chromium', 'not measured (BENCH_BROWSER=0, no build in dist/, or the error above)');
+  line(
+    `fleet board in Chromium: ${b.tiles} tiles, ${b.measuredMs / 1000} s`,
+    `${b.longTasks} long tasks, longest ${b.longTaskMaxMs.toFixed(0)} ms, ${b.longTaskTotalMs.toFixed(0)} ms in all   (fleetLongTaskMaxMs; goal none over 100 ms)`,
+  );
+}
+
+function boardJson(b: FleetBoardFigures | null) {
+  return { fleetLongTaskMaxMs: b ? Math.round(b.longTaskMaxMs) : null, fleetLongTasks: b?.longTasks ?? null, fleetBoardTiles: b?.tiles ?? null };
+}
+
 function pushJson(p: Awaited<ReturnType<typeof pushPhase>>) {
   const r1 = (x: number) => (Number.isFinite(x) ? Math.round(x * 10) / 10 : null);
   return {
@@ -545,18 +602,21 @@ async function main(): Promise<void> {
     const all = await seedFleet(server.db, PUSH_ENGINES, 'bench');
     const adminId = await server.db.run(
       `INSERT INTO users (email, name, password_hash, role, disabled, created_at, updated_at) VALUES (?, ?, ?, 'admin', 0, ?, ?)`,
-      ['bench-admin@example.test', 'Bench admin', bcrypt.hashSync(`bench-${Date.now()}`, 4), new Date().toISOString(), new Date().toISOString()],
+      ['bench-admin@example.test', 'Bench admin', bcrypt.hashSync(BENCH_ADMIN_PASSWORD, 4), new Date().toISOString(), new Date().toISOString()],
     );
     const tokens = createTokenService(loadJwtSecret(server.dataDir));
     const adminToken = tokens.sign({ id: adminId, email: 'bench-admin@example.test', role: 'admin' });
     progress('fleet seeded');
     const push = await pushPhase(server, all, adminId, tokens, adminToken, progress);
+    const board = await fleetBoardPhase(server, all, progress);
     await server.stop();
     printPush(push);
+    printBoard(board);
     if (process.env.BENCH_JSON)
       fs.writeFileSync(
         process.env.BENCH_JSON,
-        JSON.stringify({ at: new Date().toISOString(), cores: os.cpus().length, node: process.version, ...pushJson(push) }, null, 2) + '\n',
+        JSON.stringify({ at: new Date().toISOString(), cores: os.cpus().length, node: process.version, ...pushJson(push), ...boardJson(board) }, null, 2) +
+          '\n',
       );
     process.exit(0);
   }
@@ -582,7 +642,7 @@ async function main(): Promise<void> {
   const all = await seedFleet(server.db, Math.max(PUSH_ENGINES, FLOOD_ENGINES), 'bench');
   const adminId = await server.db.run(
     `INSERT INTO users (email, name, password_hash, role, disabled, created_at, updated_at) VALUES (?, ?, ?, 'admin', 0, ?, ?)`,
-    ['bench-admin@example.test', 'Bench admin', bcrypt.hashSync(`bench-${Date.now()}`, 4), new Date().toISOString(), new Date().toISOString()],
+    ['bench-admin@example.test', 'Bench admin', bcrypt.hashSync(BENCH_ADMIN_PASSWORD, 4), new Date().toISOString(), new Date().toISOString()],
   );
   const tokens = createTokenService(loadJwtSecret(server.dataDir));
   const adminToken = tokens.sign({ id: adminId, email: 'bench-admin@example.test', role: 'admin' });
@@ -640,6 +700,7 @@ async function main(): Promise<void> {
 
   // 2. live push at PUSH_ENGINES x 5 x 1 Hz
   const push = await pushPhase(server, all, adminId, tokens, adminToken, progress);
+  const board = await fleetBoardPhase(server, all, progress);
 
   // 3. QoS 0 flood, bounded: QOS0_MS of publishing, then at most DRAIN_MS for the server to catch up
   const pubs0 = split(flood, PUBLISHERS).map((ds) =>
@@ -697,6 +758,7 @@ async function main(): Promise<void> {
   line('peak RSS (VmHWM) after the QoS 1 flood', `${hwmQos1.toFixed(0)} MB`);
 
   printPush(push);
+  printBoard(board);
 
   console.log(`\n3. QoS 0 flood (${FLOOD_ENGINES} engines, ${QOS0_MS / 1000} s of publishing, then at most ${DRAIN_MS / 1000} s to drain)`);
   line('handed to TCP by the publishers (no ack)', fmt(published0));
@@ -760,6 +822,7 @@ async function main(): Promise<void> {
           peakRssMb: r1(hwmQos1),
           qos1LoopP99Ms: q1.loopP99,
           ...pushJson(push),
+          ...boardJson(board),
           qos0Received: received0,
           qos0Stored: stored0,
           initialTransferKb: initialBundle?.transferKb ?? null,
