@@ -144,9 +144,11 @@ function watch(s: Instance, token: string): Promise<Seen> {
   const seen: Seen = { readings: new Map(), alarms: [] };
   const sock = connectSocket(s.url, { auth: { token }, transports: ['websocket'], reconnection: false });
   sockets.push(sock);
-  sock.on('readings', (m: { engineId: number; values: Record<string, unknown> }) => {
+  const note = (m: { engineId: number; values: Record<string, unknown> }) =>
     seen.readings.set(m.engineId, (seen.readings.get(m.engineId) ?? 0) + Object.keys(m.values).length);
-  });
+  sock.on('readings', note);
+  // the fleet's readings come in one batch per interval with every engine that changed
+  sock.on('readings-batch', (b: { engines: Array<{ engineId: number; values: Record<string, unknown> }> }) => b.engines.forEach(note));
   sock.on('alarm', (a: AlarmEvent) => seen.alarms.push(a));
   return new Promise((resolve, reject) => {
     sock.once('connect_error', reject);

@@ -1,12 +1,17 @@
 /**
- * socket.io live push: JWT at the handshake, rooms per fleet/site/engine, and per-engine
- * coalescing of readings with a leading-edge throttle (first message at once, then at most one
- * per window with the latest values, and a trailing flush).
+ * socket.io live push: JWT at the handshake, rooms per fleet/site/engine, and coalesced readings.
+ * - Fleet and site watchers get one `readings-batch` per interval (throttleMs, 250 ms) with every engine of their
+ *   scope that changed in it (its latest value per channel): a fleet board at 2,000 engines gets 4 messages a
+ *   second, not 2,000. The interval has a leading edge (a quiet fleet's first reading goes at once).
+ * - Engine pages get `readings` per engine with a leading-edge throttle (first message at once, then at most
+ *   one per window with the latest values, and a trailing flush), except sockets that get the engine in a batch.
+ * Work per interval is O(changed engines + feeds); memory is bounded by the engines and the sockets' scopes.
  */
 import type http from 'node:http';
 import { Server, type ServerOptions, type Socket } from 'socket.io';
 import { z } from 'zod';
 import type { ChannelKey } from '../../shared/channels';
+import { READINGS_BATCH_EVENT, READINGS_EVENT, type LiveReadings, type LiveReadingsBatch } from '../../shared/api/live-view';
 import type { Logger } from '../logger';
 import type { AcceptedReading, AuthUser, LatestValue } from '../telemetry/types';
 import { crossSiteRefusal, sessionCookieToken } from '../auth/session-cookie';
@@ -27,12 +32,8 @@ export interface LivePushOptions {
   adapter?: ServerOptions['adapter'];
 }
 
-export interface ReadingsMessage {
-  engineId: number;
-  siteId: number | null;
-  ts: number;
-  values: Partial<Record<ChannelKey, LatestValue>>;
-}
+/** One engine's live message (shared/api/live-view.ts). */
+export type ReadingsMessage = LiveReadings;
 
 const watchSchema = z.object({
   fleet: z.boolean().optional(),
@@ -55,6 +56,12 @@ export const ALARMS_ROOM = 'alarms';
 /** Alarm events of one site, for users limited to some sites (they never join ALARMS_ROOM). */
 export const alarmsSiteRoom = (siteId: number) => `alarms:site:${siteId}`;
 
+/**
+ * Room of the sockets watching the same sites without the whole fleet: one batch per interval goes to each such room,
+ * so a socket in several site rooms still gets one message. Internal: not in a watch's reply.
+ */
+const feedRoom = (siteIds: readonly number[]) => `feed:${[...siteIds].sort((a, b) => a - b).join(',')}`;
+
 /** Every socket of one user, so their sessions can be ended together. */
 const userRoom = (userId: number) => `user:${userId}`;
 
@@ -66,8 +73,17 @@ const END_SESSIONS_EVENT = 'jw:end-sessions';
 export class LivePush {
   readonly io: Server;
   private readonly throttleMs: number;
+  /** Engine pages: per-engine throttle, only for engines a socket of this server watches. */
   private readonly pending = new Map<number, Pending>();
   private readonly sites = new Map<number, { siteId: number | null; until: number }>();
+  /** Site lookups in flight, per engine. */
+  private readonly lookups = new Map<number, Promise<number | null>>();
+  /** Fleet and site watchers: engines changed in this interval, their latest value per channel. */
+  private changed = new Map<number, Partial<Record<ChannelKey, LatestValue>>>();
+  /** The interval's timer; null while no interval is open (then the next reading is sent at once). */
+  private tick: NodeJS.Timeout | null = null;
+  /** Feed rooms (site watchers without the fleet) with their sites; a room gone from the adapter is dropped at the next flush. */
+  private readonly feeds = new Map<string, readonly number[]>();
 
   constructor(private readonly opts: LivePushOptions) {
     this.throttleMs = opts.throttleMs ?? 250;
@@ -145,6 +161,13 @@ export class LivePush {
     // a new watch replaces the previous one
     for (const room of socket.rooms) if (room !== socket.id && !room.startsWith('user:')) void socket.leave(room);
     void socket.join(rooms);
+    // sites without the fleet: the batches come through the feed room of exactly these sites
+    const siteIds = rooms.includes('fleet') ? [] : rooms.filter((r) => r.startsWith('site:')).map((r) => Number(r.slice(5)));
+    if (siteIds.length) {
+      const feed = feedRoom(siteIds);
+      this.feeds.set(feed, siteIds);
+      void socket.join(feed);
+    }
     return rooms;
   }
 
@@ -212,27 +235,120 @@ export class LivePush {
     this.io.to(room).emit(event, payload);
   }
 
-  /** Takes every accepted batch; sends per engine, throttled. O(readings): only the engines in the batch are looked at. */
+  /**
+   * Takes every accepted batch. O(readings): only the engines in the batch are looked at. Fleet and site watchers:
+   * into this interval's changes (sent at once when no interval is open). Engine pages: per engine, throttled,
+   * only for engines a socket of this server watches.
+   */
   push(readings: AcceptedReading[]): void {
-    let last: Pending | null = null;
-    let lastEngine = -1;
-    for (let i = 0; i < readings.length; i++) {
-      const r = readings[i];
-      let p: Pending | undefined = r.engineId === lastEngine && last ? last : this.pending.get(r.engineId);
-      if (!p) {
+    const localRooms = this.io.of('/').adapter.rooms;
+    let i = 0;
+    while (i < readings.length) {
+      // a batch is nearly always one engine's: one run of readings of the same engine at a time
+      const engineId = readings[i].engineId;
+      let values = this.changed.get(engineId);
+      if (!values) {
+        values = {};
+        this.changed.set(engineId, values);
+      }
+      let p = this.pending.get(engineId);
+      if (!p && localRooms.has(`engine:${engineId}`)) {
         p = { values: {}, timer: null, dirty: false };
-        this.pending.set(r.engineId, p);
+        this.pending.set(engineId, p);
       }
-      const prev = p.values[r.channel];
-      if (!prev || r.ts >= prev.ts) {
-        p.values[r.channel] = { value: r.value, ts: r.ts, quality: r.quality };
-        p.dirty = true;
+      for (; i < readings.length && readings[i].engineId === engineId; i++) {
+        const r = readings[i];
+        const v: LatestValue = { value: r.value, ts: r.ts, quality: r.quality };
+        const prev = values[r.channel];
+        if (!prev || r.ts >= prev.ts) values[r.channel] = v;
+        if (p) {
+          const prevP = p.values[r.channel];
+          if (!prevP || r.ts >= prevP.ts) {
+            p.values[r.channel] = v;
+            p.dirty = true;
+          }
+        }
       }
-      // a batch is nearly always one engine's: send on its last reading, or when the engine changes
-      const next = readings[i + 1];
-      if ((!next || next.engineId !== r.engineId) && p.dirty && !p.timer) this.send(r.engineId, p); // leading edge
-      last = p;
-      lastEngine = r.engineId;
+      if (p && p.dirty && !p.timer) this.send(engineId, p); // leading edge
+    }
+    if (!this.tick) this.flush(); // leading edge of the fleet interval
+  }
+
+  /** The site of an engine: cached (a stale entry is used while it is looked up again); undefined while unknown. */
+  private siteOf(engineId: number, now: number): number | null | undefined {
+    const cached = this.sites.get(engineId);
+    if (cached && cached.until > now) return cached.siteId;
+    void this.lookUpSite(engineId);
+    return cached?.siteId;
+  }
+
+  /** One lookup at a time per engine; a failed one counts as no site (the engine then goes to the fleet only). */
+  private lookUpSite(engineId: number): Promise<number | null> {
+    let lookup = this.lookups.get(engineId);
+    if (!lookup) {
+      lookup = this.opts
+        .siteOfEngine(engineId)
+        .catch((err: unknown) => {
+          this.opts.log.warn('live push: site lookup failed', err instanceof Error ? err.message : err);
+          return null;
+        })
+        .then((siteId) => {
+          this.lookups.delete(engineId);
+          this.sites.set(engineId, { siteId, until: Date.now() + SITE_CACHE_MS });
+          if (!this.tick && this.changed.has(engineId)) this.flush(); // it waited for its site
+          return siteId;
+        });
+      this.lookups.set(engineId, lookup);
+    }
+    return lookup;
+  }
+
+  /**
+   * End of an interval: one `readings-batch` to the fleet room and one to each feed room with changes, then the next
+   * interval opens. Engines whose site is not known yet wait for the next one. O(changed engines + feeds).
+   */
+  private flush(): void {
+    this.tick = null;
+    if (this.changed.size === 0) return; // quiet: the interval closes, the next reading goes at once
+    const localRooms = this.io.of('/').adapter.rooms;
+    if (!localRooms.has('fleet') && this.feeds.size === 0) {
+      this.changed.clear(); // nobody here watches the fleet or a site (a new board loads its list over HTTP)
+      return;
+    }
+    const now = Date.now();
+    const changed = this.changed;
+    this.changed = new Map();
+    const all: ReadingsMessage[] = [];
+    const bySite = new Map<number, ReadingsMessage[]>();
+    for (const [engineId, values] of changed) {
+      const siteId = this.siteOf(engineId, now);
+      if (siteId === undefined) {
+        this.changed.set(engineId, values); // newer values of this interval were written to a new entry: none yet
+        continue;
+      }
+      let ts = 0;
+      for (const v of Object.values(values)) if (v && v.ts > ts) ts = v.ts;
+      const msg: ReadingsMessage = { engineId, siteId, ts, values };
+      all.push(msg);
+      if (siteId !== null) {
+        const list = bySite.get(siteId);
+        if (list) list.push(msg);
+        else bySite.set(siteId, [msg]);
+      }
+    }
+    this.tick = setTimeout(() => this.flush(), this.throttleMs);
+    if (!all.length) return;
+    // only this server's sockets: with several servers every server gets every reading (relayed, server/cluster)
+    // and pushes it to its own browsers
+    if (localRooms.has('fleet')) this.io.local.to('fleet').emit(READINGS_BATCH_EVENT, { engines: all } satisfies LiveReadingsBatch);
+    for (const [room, siteIds] of this.feeds) {
+      if (!localRooms.has(room)) {
+        this.feeds.delete(room); // its last socket left
+        continue;
+      }
+      const engines: ReadingsMessage[] = [];
+      for (const siteId of siteIds) for (const msg of bySite.get(siteId) ?? []) engines.push(msg);
+      if (engines.length) this.io.local.to(room).emit(READINGS_BATCH_EVENT, { engines } satisfies LiveReadingsBatch);
     }
   }
 
@@ -248,34 +364,30 @@ export class LivePush {
     }, this.throttleMs);
     let ts = 0;
     for (const v of Object.values(values)) if (v && v.ts > ts) ts = v.ts;
-    const cached = this.sites.get(engineId);
-    if (cached && cached.until > Date.now()) {
-      this.deliver({ engineId, siteId: cached.siteId, ts, values });
-    } else {
-      this.opts.siteOfEngine(engineId).then(
-        (siteId) => {
-          this.sites.set(engineId, { siteId, until: Date.now() + SITE_CACHE_MS });
-          this.deliver({ engineId, siteId, ts, values });
-        },
-        (err) => {
-          this.opts.log.warn('live push: site lookup failed', err instanceof Error ? err.message : err);
-          this.deliver({ engineId, siteId: null, ts, values });
-        },
-      );
+    const siteId = this.siteOf(engineId, Date.now());
+    if (siteId !== undefined) {
+      this.deliver({ engineId, siteId, ts, values });
+      return;
     }
+    void this.lookUpSite(engineId).then((site) => this.deliver({ engineId, siteId: site, ts, values }));
   }
 
+  /**
+   * To the engine's pages. A socket that also watches the fleet or the engine's site gets the engine in its batches
+   * instead, so each socket gets each engine's values once per interval.
+   */
   private deliver(msg: ReadingsMessage): void {
-    const rooms = ['fleet', `engine:${msg.engineId}`];
-    if (msg.siteId !== null) rooms.push(`site:${msg.siteId}`);
-    // a socket in several of these rooms still gets the message once. Only this server's sockets: with several
-    // servers every server gets every reading (relayed, server/cluster) and pushes it to its own browsers
-    this.io.local.to(rooms).emit('readings', msg);
+    const batched = msg.siteId !== null ? ['fleet', `site:${msg.siteId}`] : ['fleet'];
+    this.io.local.to(`engine:${msg.engineId}`).except(batched).emit(READINGS_EVENT, msg);
   }
 
   async close(): Promise<void> {
     for (const p of this.pending.values()) if (p.timer) clearTimeout(p.timer);
     this.pending.clear();
+    if (this.tick) clearTimeout(this.tick);
+    this.tick = null;
+    this.changed.clear();
+    this.feeds.clear();
     // close sockets but not the HTTP server, which belongs to the caller
     this.io.local.disconnectSockets(true);
     this.io.engine?.close();

@@ -11,6 +11,7 @@ import { CHANNELS } from '../../shared/channels';
 import { parseTelemetry, type ParsedReading } from '../../shared/telemetry-payload';
 import { ReadingRelay } from '../cluster/reading-relay';
 import { LivePush } from '../realtime/live-push';
+import type { LiveReadings } from '../../shared/api/live-view';
 import { Counters } from './counters';
 import { DeviceActivity } from './device-activity';
 import { IngestBuffer } from './ingest-buffer';
@@ -195,7 +196,7 @@ export async function startTelemetry(
     const values = liveState.markLost(engineId, at);
     if (!values) return;
     const send = (siteId: number | null) => {
-      const msg = { engineId, siteId, ts: at, values, lost: true };
+      const msg: LiveReadings = { engineId, siteId, ts: at, values, lost: true };
       livePush.emit(['fleet', `engine:${engineId}`, ...(siteId !== null ? [`site:${siteId}`] : [])], 'readings', msg);
     };
     deps.siteOfEngine(engineId).then(send, () => send(null));

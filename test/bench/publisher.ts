@@ -39,12 +39,23 @@ function samplesPayload(state: { next: number }, n: number): string {
   return `{"samples":[${parts.join(',')}]}`;
 }
 
+/** Devices connecting at once per publisher. */
+const CONNECT_WAVE = 80;
+
 async function main(): Promise<void> {
-  const clients: MqttClient[] = await Promise.all(
-    job.devices.map((d) =>
-      mqtt.connectAsync(`mqtt://127.0.0.1:${job.mqttPort}`, { username: d.username, password: d.secret, reconnectPeriod: 0, connectTimeout: 30_000 }),
-    ),
-  );
+  // in waves: the server lets at most 200 logins per address wait for a password check (server/auth/hash-gate.ts),
+  // and two publishers of 1,000 devices each would pass that
+  const clients: MqttClient[] = [];
+  for (let i = 0; i < job.devices.length; i += CONNECT_WAVE)
+    clients.push(
+      ...(await Promise.all(
+        job.devices
+          .slice(i, i + CONNECT_WAVE)
+          .map((d) =>
+            mqtt.connectAsync(`mqtt://127.0.0.1:${job.mqttPort}`, { username: d.username, password: d.secret, reconnectPeriod: 0, connectTimeout: 30_000 }),
+          ),
+      )),
+    );
   process.stdout.write(JSON.stringify({ ready: true }) + '\n');
   await new Promise<void>((resolve) => process.stdin.once('data', () => resolve())); // go signal
   let readings = 0;

@@ -7,14 +7,15 @@
  *     acknowledges a message only after the transaction holding its readings committed, so published
  *     (acknowledged) readings must all be in the file: acknowledged lost, duplicates stored, readings/s,
  *     memory (RSS growth after the first 5 s), event-loop delay, /api/health answer time;
- *  2. live push latency: 500 engines x 5 channels x 1 Hz at QoS 1; publish -> socket.io client p50/p95;
+ *  2. live push: 2,000 engines x 5 channels x 1 Hz at QoS 1 (BENCH_PUSH_ENGINES); publish -> socket.io client p50/p95
+ *     on a fleet-watching socket (pushP95Ms) and an engine-page socket, socket.io messages/s on the fleet socket;
  *  3. QoS 0 flood: memory and responsiveness while TCP backpressure holds the inflow; bounded in time
  *     (publishers stop, the server gets a bounded drain time), then published (handed to TCP) vs
  *     received vs stored. QoS 0 has no acknowledgement: "nothing lost" is a QoS 1 claim only;
  *  then the retention sweep and the long-trend phase (trend.ts: trend30dMs / trend1hMs with 200 engines x 30 days).
  *  then sign-in under a burst (login-burst.ts, its own server process): a good sign-in and a good device connect
  *     timed beside 200 wrong HTTP sign-ins and 300 wrong MQTT logins (loginUnderBurstMs, deviceConnectUnderBurstMs).
- * Phase lengths: BENCH_FLOOD_MS, BENCH_LATENCY_MS, BENCH_QOS0_MS, BENCH_DRAIN_MS. One phase alone: BENCH_PHASE=qos1|retention|trend.
+ * Phase lengths: BENCH_FLOOD_MS, BENCH_LATENCY_MS, BENCH_QOS0_MS, BENCH_DRAIN_MS. One phase alone: BENCH_PHASE=qos1|push|retention|trend.
  * BENCH_SCALE=1: instead, several servers on PostgreSQL and mosquitto (scale.ts), one server vs two.
  * BENCH_JSON=file: the figures also as JSON (ingestPerS, rawCeilingPerS, lostAcknowledged, duplicatesStored,
  * rssGrowthPct, loginUnderBurstMs, ...), to compare runs.
@@ -28,6 +29,7 @@ import { io as ioClient } from 'socket.io-client';
 import { loadJwtSecret } from '../../server/auth/jwt-secret';
 import { createTokenService } from '../../server/auth/tokens';
 import { describeInitialBundle, measureInitialBundle } from './initial-bundle';
+import { fleetBoardLongTasks, type FleetBoardFigures } from './fleet-board';
 import { printTrend, trendPhase } from './trend';
 import { loginUnderBurst, type LoginBurstFigures } from './login-burst';
 import { printScale, runScaleBench } from './scale';
@@ -43,7 +45,14 @@ const RAW_MAX_MS = 10_000;
 const RAW_ROWS = 300_000;
 const RAW_RUNS = 3;
 const FLOOD_ENGINES = 100;
-const LATENCY_ENGINES = 500;
+/** Live push phase: engines x 5 channels x 1 Hz (BENCH_PUSH_ENGINES). */
+const PUSH_ENGINES = Number(process.env.BENCH_PUSH_ENGINES ?? 2000);
+/** Engines an engine-page socket watches during the push phase (prompt per-engine messages). */
+const PUSH_ENGINE_PAGE = 20;
+/** The bench admin's password (a throwaway database): the fleet-board phase signs in with it in Chromium. */
+const BENCH_ADMIN_PASSWORD = `bench-${process.pid}-${Date.now()}`;
+const BOARD_SETTLE_MS = 4_000;
+const BOARD_MEASURE_MS = 10_000;
 const PUBLISHERS = 2;
 const SAMPLES_PER_MSG = 50; // x 5 channels = 250 readings, about 7 KB
 
@@ -257,6 +266,188 @@ async function waitDrained(server: Server, ms: number): Promise<{ received: numb
   }
 }
 
+// ---------- live push ----------
+type Tokens = ReturnType<typeof createTokenService>;
+
+/** A fleet-board message: one engine (`readings`) or every engine that changed in one interval (`readings-batch`). */
+interface PushedEngine {
+  engineId: number;
+  ts: number;
+}
+
+/**
+ * PUSH_ENGINES x 5 channels x 1 Hz at QoS 1 from paced publishers (each device once a second, spread over the
+ * second). One socket watches the fleet (as the fleet board does), one watches PUSH_ENGINE_PAGE engines (as
+ * engine pages do). Latency: publish (the reading's own ts, set by the publisher just before it publishes)
+ * -> the socket.io client, per engine update received; messages: socket.io events per second on the fleet socket.
+ */
+async function pushPhase(server: Server, all: SeededDevice[], adminId: number, tokens: Tokens, adminToken: string, progress: (m: string) => void) {
+  const engines = all.slice(0, PUSH_ENGINES);
+  const token = tokens.sign({ id: adminId, email: 'bench-admin@example.test', role: 'admin' });
+  const open = async () => {
+    const sock = ioClient(server.url, { auth: { token }, transports: ['websocket'], reconnection: false });
+    await new Promise<void>((resolve, reject) => {
+      sock.once('connect', () => resolve());
+      sock.once('connect_error', reject);
+    });
+    return sock;
+  };
+  const fleetSock = await open();
+  const engineSock = await open();
+  await fleetSock.emitWithAck('watch', { fleet: true });
+  await engineSock.emitWithAck('watch', { engineIds: engines.slice(0, PUSH_ENGINE_PAGE).map((d) => d.engineId) });
+  const fleetLat: number[] = [];
+  const engineLat: number[] = [];
+  const fleetEngines = new Set<number>();
+  let fleetMessages = 0;
+  let measuring = false;
+  const take = (into: number[], m: PushedEngine, now: number, seen?: Set<number>) => {
+    into.push(now - m.ts);
+    seen?.add(m.engineId);
+  };
+  for (const [sock, into, seen] of [
+    [fleetSock, fleetLat, fleetEngines],
+    [engineSock, engineLat, undefined],
+  ] as const) {
+    sock.on('readings', (m: PushedEngine) => {
+      if (!measuring) return;
+      if (sock === fleetSock) fleetMessages++;
+      take(into, m, Date.now(), seen);
+    });
+    sock.on('readings-batch', (b: { engines: PushedEngine[] }) => {
+      if (!measuring) return;
+      if (sock === fleetSock) fleetMessages++;
+      const now = Date.now();
+      for (const m of b.engines) take(into, m, now, seen);
+    });
+  }
+  const devices = engines.map((d) => ({ username: d.username, secret: d.secret, engineId: d.engineId }));
+  const pubs = split(devices, PUBLISHERS).map((ds) =>
+    startPublisher({ mqttPort: server.mqttPort, devices: ds, mode: 'paced', qos: 1, durationMs: LATENCY_MS, window: 1, samplesPerMsg: 1, baseTs: 0 }),
+  );
+  await Promise.all(pubs.map((p) => p.ready));
+  progress(`live push run (${engines.length} engines)`);
+  pubs.forEach((p) => p.go());
+  let wl: ReturnType<typeof watch> | null = null;
+  let measuredFrom = 0;
+  setTimeout(() => {
+    measuring = true;
+    measuredFrom = performance.now();
+    wl = watch(server, adminToken);
+  }, 3000); // after the first round of connections settles
+  const results = await Promise.all(pubs.map((p) => p.result));
+  measuring = false;
+  const measuredS = (performance.now() - measuredFrom) / 1000;
+  (wl as ReturnType<typeof watch> | null)?.stop();
+  const lat = (wl as ReturnType<typeof watch> | null)?.summary() ?? null;
+  fleetSock.close();
+  engineSock.close();
+  const published = results.reduce((a, r) => a + r.readings, 0);
+  const afterLatency = await waitDrained(server, 5_000);
+  return {
+    engines: engines.length,
+    published,
+    afterLatency,
+    fleetP50: quantile(fleetLat, 0.5),
+    fleetP95: quantile(fleetLat, 0.95),
+    fleetMax: fleetLat.reduce((a, x) => Math.max(a, x), -Infinity),
+    fleetUpdates: fleetLat.length,
+    fleetEnginesSeen: fleetEngines.size,
+    fleetMessagesPerS: fleetMessages / measuredS,
+    engineP50: quantile(engineLat, 0.5),
+    engineP95: quantile(engineLat, 0.95),
+    engineUpdates: engineLat.length,
+    measuredS,
+    lat,
+  };
+}
+
+function printPush(p: Awaited<ReturnType<typeof pushPhase>>): void {
+  const line = (k: string, v: string) => console.log(`  ${k.padEnd(46)} ${v}`);
+  console.log(`\n2. Live push (${fmt(p.engines)} engines x 5 channels x 1 Hz, QoS 1, ${LATENCY_MS / 1000} s, first 3 s not measured)`);
+  line(
+    'published readings / stored after the run',
+    `${fmt(p.published)} / ${p.afterLatency.stored === p.afterLatency.received ? 'all received stored' : `${fmt(p.afterLatency.received - p.afterLatency.stored)} not yet stored`}`,
+  );
+  line('fleet socket: engine updates / engines seen', `${fmt(p.fleetUpdates)} / ${fmt(p.fleetEnginesSeen)}`);
+  line('fleet socket: socket.io messages/s', `${p.fleetMessagesPerS.toFixed(1)}   (fleetMessagesPerS)`);
+  line('publish -> fleet socket p50 / p95 / max', `${p.fleetP50} / ${p.fleetP95} / ${p.fleetMax} ms   (pushP95Ms; target p95 < 100 ms)`);
+  line(`publish -> engine-page socket p50 / p95 (${PUSH_ENGINE_PAGE} engines)`, `${p.engineP50} / ${p.engineP95} ms (${fmt(p.engineUpdates)} updates)`);
+  if (p.lat) {
+    line('event-loop delay p99 / max (worst 2 s window)', `${p.lat.loopP99} / ${p.lat.loopMax} ms`);
+    line(
+      'GET /api/health answer p50 / max (samples)',
+      `${p.lat.healthP50.toFixed(0)} / ${p.lat.healthMax.toFixed(0)} ms (${p.lat.samples} answered, ${p.lat.failures} failed or > 10 s)`,
+    );
+  }
+}
+
+/**
+ * The fleet board of PUSH_ENGINES engines in Chromium while they all publish (1 Hz): long tasks while it updates.
+ * Skipped (null) with BENCH_BROWSER=0 or without a build in dist/.
+ */
+async function fleetBoardPhase(server: Server, all: SeededDevice[], progress: (m: string) => void): Promise<FleetBoardFigures | null> {
+  if (process.env.BENCH_BROWSER === '0' || !fs.existsSync(path.join(ROOT, 'dist/jacketwatch/browser/index.html'))) return null;
+  const devices = all.slice(0, PUSH_ENGINES).map((d) => ({ username: d.username, secret: d.secret, engineId: d.engineId }));
+  const pubs = split(devices, PUBLISHERS).map((ds) =>
+    startPublisher({
+      mqttPort: server.mqttPort,
+      devices: ds,
+      mode: 'paced',
+      qos: 1,
+      durationMs: BOARD_SETTLE_MS + BOARD_MEASURE_MS + 10_000,
+      window: 1,
+      samplesPerMsg: 1,
+      baseTs: 0,
+    }),
+  );
+  await Promise.all(pubs.map((p) => p.ready));
+  progress(`fleet board in Chromium (${devices.length} engines publishing)`);
+  try {
+    return await fleetBoardLongTasks({
+      url: server.url,
+      email: 'bench-admin@example.test',
+      password: BENCH_ADMIN_PASSWORD,
+      whileUpdating: async () => pubs.forEach((p) => p.go()),
+      settleMs: BOARD_SETTLE_MS,
+      measureMs: BOARD_MEASURE_MS,
+    });
+  } catch (err) {
+    console.error('fleet board phase failed:', err instanceof Error ? err.message : err);
+    pubs.forEach((p) => p.go());
+    return null;
+  } finally {
+    await Promise.all(pubs.map((p) => p.result.catch(() => null)));
+  }
+}
+
+function printBoard(b: FleetBoardFigures | null): void {
+  const line = (k: string, v: string) => console.log(`  ${k.padEnd(46)} ${v}`);
+  if (!b) return line('fleet board in Chromium', 'not measured (BENCH_BROWSER=0, no build in dist/, or the error above)');
+  line(
+    `fleet board in Chromium: ${b.tiles} tiles, ${b.measuredMs / 1000} s`,
+    `${b.longTasks} long tasks, longest ${b.longTaskMaxMs.toFixed(0)} ms, ${b.longTaskTotalMs.toFixed(0)} ms in all   (fleetLongTaskMaxMs; goal none over 100 ms)`,
+  );
+}
+
+function boardJson(b: FleetBoardFigures | null) {
+  return { fleetLongTaskMaxMs: b ? Math.round(b.longTaskMaxMs) : null, fleetLongTasks: b?.longTasks ?? null, fleetBoardTiles: b?.tiles ?? null };
+}
+
+function pushJson(p: Awaited<ReturnType<typeof pushPhase>>) {
+  const r1 = (x: number) => (Number.isFinite(x) ? Math.round(x * 10) / 10 : null);
+  return {
+    pushEngines: p.engines,
+    pushP95Ms: r1(p.fleetP95),
+    pushP50Ms: r1(p.fleetP50),
+    fleetMessagesPerS: r1(p.fleetMessagesPerS),
+    pushEngineP95Ms: r1(p.engineP95),
+    // the earlier names of the fleet socket's latency, to compare with older runs
+    livePushP95Ms: r1(p.fleetP95),
+    livePushP50Ms: r1(p.fleetP50),
+  };
+}
+
 // ---------- retention sweep (its own server and DATA_DIR) ----------
 const RETENTION_ROWS = Number(process.env.BENCH_RETENTION_ROWS ?? 600_000);
 const RETENTION_MS = Number(process.env.BENCH_RETENTION_MS ?? 30_000);
@@ -405,6 +596,30 @@ async function main(): Promise<void> {
     printTrend(await trendPhase(progress));
     process.exit(0);
   }
+  if (process.env.BENCH_PHASE === 'push') {
+    // the live push phase alone, on its own server (to compare push figures quickly)
+    const server = await startServer();
+    const all = await seedFleet(server.db, PUSH_ENGINES, 'bench');
+    const adminId = await server.db.run(
+      `INSERT INTO users (email, name, password_hash, role, disabled, created_at, updated_at) VALUES (?, ?, ?, 'admin', 0, ?, ?)`,
+      ['bench-admin@example.test', 'Bench admin', bcrypt.hashSync(BENCH_ADMIN_PASSWORD, 4), new Date().toISOString(), new Date().toISOString()],
+    );
+    const tokens = createTokenService(loadJwtSecret(server.dataDir));
+    const adminToken = tokens.sign({ id: adminId, email: 'bench-admin@example.test', role: 'admin' });
+    progress('fleet seeded');
+    const push = await pushPhase(server, all, adminId, tokens, adminToken, progress);
+    const board = await fleetBoardPhase(server, all, progress);
+    await server.stop();
+    printPush(push);
+    printBoard(board);
+    if (process.env.BENCH_JSON)
+      fs.writeFileSync(
+        process.env.BENCH_JSON,
+        JSON.stringify({ at: new Date().toISOString(), cores: os.cpus().length, node: process.version, ...pushJson(push), ...boardJson(board) }, null, 2) +
+          '\n',
+      );
+    process.exit(0);
+  }
   if (process.env.BENCH_SCALE === '1') {
     // several servers: needs Debian's PostgreSQL and mosquitto, so only when asked for
     const scale = await runScaleBench(progress);
@@ -424,10 +639,10 @@ async function main(): Promise<void> {
   const raw = [...rawRuns].sort((a, b) => a.rate - b.rate)[Math.floor(RAW_RUNS / 2)];
   const server = await startServer();
   progress('server up');
-  const all = await seedFleet(server.db, LATENCY_ENGINES, 'bench');
+  const all = await seedFleet(server.db, Math.max(PUSH_ENGINES, FLOOD_ENGINES), 'bench');
   const adminId = await server.db.run(
     `INSERT INTO users (email, name, password_hash, role, disabled, created_at, updated_at) VALUES (?, ?, ?, 'admin', 0, ?, ?)`,
-    ['bench-admin@example.test', 'Bench admin', bcrypt.hashSync(`bench-${Date.now()}`, 4), new Date().toISOString(), new Date().toISOString()],
+    ['bench-admin@example.test', 'Bench admin', bcrypt.hashSync(BENCH_ADMIN_PASSWORD, 4), new Date().toISOString(), new Date().toISOString()],
   );
   const tokens = createTokenService(loadJwtSecret(server.dataDir));
   const adminToken = tokens.sign({ id: adminId, email: 'bench-admin@example.test', role: 'admin' });
@@ -483,39 +698,9 @@ async function main(): Promise<void> {
     process.exit(0);
   }
 
-  // 2. latency at 500 x 5 x 1 Hz
-  const token = tokens.sign({ id: adminId, email: 'bench-admin@example.test', role: 'admin' });
-  const sock = ioClient(server.url, { auth: { token }, transports: ['websocket'], reconnection: false });
-  await new Promise<void>((resolve, reject) => {
-    sock.once('connect', () => resolve());
-    sock.once('connect_error', reject);
-  });
-  await sock.emitWithAck('watch', { fleet: true });
-  const latencies: number[] = [];
-  let measuring = false;
-  sock.on('readings', (msg: { ts: number }) => {
-    if (measuring) latencies.push(Date.now() - msg.ts);
-  });
-  const pubsL = split(all, PUBLISHERS).map((ds) =>
-    startPublisher({ mqttPort: server.mqttPort, devices: devices(ds), mode: 'paced', qos: 1, durationMs: LATENCY_MS, window: 1, samplesPerMsg: 1, baseTs: 0 }),
-  );
-  await Promise.all(pubsL.map((p) => p.ready));
-  progress('latency run');
-  pubsL.forEach((p) => p.go());
-  let wl: ReturnType<typeof watch> | null = null;
-  setTimeout(() => {
-    measuring = true;
-    wl = watch(server, adminToken);
-  }, 3000); // after the first round of connections settles
-  const resultsL = await Promise.all(pubsL.map((p) => p.result));
-  measuring = false;
-  (wl as ReturnType<typeof watch> | null)?.stop();
-  const lat = (wl as ReturnType<typeof watch> | null)?.summary();
-  sock.close();
-  const publishedL = resultsL.reduce((a, r) => a + r.readings, 0);
-  latencies.sort((a, b) => a - b);
-  const q = (p: number) => latencies[Math.min(latencies.length - 1, Math.floor(p * latencies.length))] ?? NaN;
-  const afterLatency = await waitDrained(server, 5_000);
+  // 2. live push at PUSH_ENGINES x 5 x 1 Hz
+  const push = await pushPhase(server, all, adminId, tokens, adminToken, progress);
+  const board = await fleetBoardPhase(server, all, progress);
 
   // 3. QoS 0 flood, bounded: QOS0_MS of publishing, then at most DRAIN_MS for the server to catch up
   const pubs0 = split(flood, PUBLISHERS).map((ds) =>
@@ -572,20 +757,8 @@ async function main(): Promise<void> {
   line('RSS growth after the first 5 s', `${Number.isFinite(rssGrowthPct) ? rssGrowthPct.toFixed(1) : 'n/a'} %   (goal < 20 %)`);
   line('peak RSS (VmHWM) after the QoS 1 flood', `${hwmQos1.toFixed(0)} MB`);
 
-  console.log(`\n2. Live push latency (${LATENCY_ENGINES} engines x 5 channels x 1 Hz, QoS 1, ${LATENCY_MS / 1000} s, first 3 s not measured)`);
-  line(
-    'published readings / stored after the run',
-    `${fmt(publishedL)} / ${afterLatency.stored === afterLatency.received ? 'all received stored' : `${fmt(afterLatency.received - afterLatency.stored)} not yet stored`}`,
-  );
-  line('socket.io messages measured', fmt(latencies.length));
-  line('publish -> browser p50 / p95 / max', `${q(0.5)} / ${q(0.95)} / ${latencies[latencies.length - 1]} ms   (target p95 < 100 ms)`);
-  if (lat) {
-    line('event-loop delay p99 / max (worst 2 s window)', `${lat.loopP99} / ${lat.loopMax} ms`);
-    line(
-      'GET /api/health answer p50 / max (samples)',
-      `${lat.healthP50.toFixed(0)} / ${lat.healthMax.toFixed(0)} ms (${lat.samples} answered, ${lat.failures} failed or > 10 s)`,
-    );
-  }
+  printPush(push);
+  printBoard(board);
 
   console.log(`\n3. QoS 0 flood (${FLOOD_ENGINES} engines, ${QOS0_MS / 1000} s of publishing, then at most ${DRAIN_MS / 1000} s to drain)`);
   line('handed to TCP by the publishers (no ack)', fmt(published0));
@@ -648,8 +821,8 @@ async function main(): Promise<void> {
           rssMb: q1.rss.map((x) => Math.round(x)),
           peakRssMb: r1(hwmQos1),
           qos1LoopP99Ms: q1.loopP99,
-          livePushP95Ms: q(0.95),
-          livePushP50Ms: q(0.5),
+          ...pushJson(push),
+          ...boardJson(board),
           qos0Received: received0,
           qos0Stored: stored0,
           initialTransferKb: initialBundle?.transferKb ?? null,

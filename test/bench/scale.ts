@@ -160,6 +160,11 @@ async function oneRun(servers: number, adminUrl: string, mq: { port: number; adm
       s.on('readings', (m: { ts: number }) => {
         if (measuring) latencies.push(Date.now() - m.ts);
       });
+      // the fleet's readings come in one batch per interval with every engine that changed
+      s.on('readings-batch', (b: { engines: Array<{ ts: number }> }) => {
+        const now = Date.now();
+        if (measuring) for (const m of b.engines) latencies.push(now - m.ts);
+      });
     }
     const devices = engineIds.map((engineId) => ({ ...BENCH_USER, secret: BENCH_USER.password, engineId }));
     const pubs = Array.from({ length: PUBLISHERS }, (_, k) =>

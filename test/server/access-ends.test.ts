@@ -185,6 +185,7 @@ describe('people', () => {
     // readings of the other site no longer reach the socket; its own site's still do
     const seen: number[] = [];
     sock.on('readings', (m: { engineId: number }) => seen.push(m.engineId));
+    sock.on('readings-batch', (b: { engines: Array<{ engineId: number }> }) => seen.push(...b.engines.map((m) => m.engineId)));
     const own = fleet[3];
     const otherClient = await connect(other.username, other.secret);
     await otherClient.publishAsync(telemetryTopic(other.engineId), JSON.stringify({ ts: Date.now() - 1000, values: { coolant_temp: 60 } }), { qos: 1 });

@@ -172,6 +172,7 @@ it('five faults on five engines: each raises its own alarm once, e-mails it, esc
   socket = ioClient(base, { auth: { token: admin }, transports: ['websocket'], reconnection: false });
   socket.on('alarm', (a: AlarmRow) => pushed.alarms.push(a));
   socket.on('readings', () => (pushed.readings += 1));
+  socket.on('readings-batch', () => (pushed.readings += 1));
   expect(await socket.timeout(10_000).emitWithAck('watch', { alarms: true })).toEqual({ rooms: ['alarms'] });
 
   const started = Date.now();

@@ -312,6 +312,8 @@ describe('live push watch', () => {
     expect(ack.rooms.sort()).toEqual([`alarms:site:${ids.siteA}`, `engine:${ids.engineA}`, `site:${ids.siteA}`].sort());
     const got: Array<{ engineId: number }> = [];
     s.on('readings', (m) => got.push(m));
+    // its sites' engines come in the batches of the fleet interval
+    s.on('readings-batch', (b: { engines: Array<{ engineId: number }> }) => got.push(...b.engines));
     push.push([
       { engineId: ids.engineB, channel: 'coolant_temp', ts: Date.now(), value: 80, quality: 0 },
       { engineId: ids.engineA, channel: 'coolant_temp', ts: Date.now(), value: 81, quality: 0 },

@@ -9,13 +9,8 @@ export interface ChannelValue {
 
 export type ChannelValues = Partial<Record<ChannelKey, ChannelValue>>;
 
-/** socket.io `readings` event. */
-export interface LiveReadings {
-  engineId: number;
-  siteId: number;
-  ts: number | string;
-  values: ChannelValues;
-}
+/** One engine's live values: a `readings` event, or one entry of a `readings-batch` (shared/api/live-view.ts). */
+export type { LiveReadings, LiveReadingsBatch } from '../../../shared/api/live-view';
 
 /** What a screen wants pushed to it (socket.io `watch`). */
 export interface WatchRequest {

@@ -2,7 +2,8 @@ import { DestroyRef, Injectable, effect, inject, signal, untracked } from '@angu
 import { Observable, Subject, filter, share } from 'rxjs';
 import type { Socket } from 'socket.io-client';
 import { AuthService } from './auth.service';
-import { LiveAlarmMessage, LiveConnection, LiveReadings, WatchRequest } from './live-reading';
+import { READINGS_BATCH_EVENT, READINGS_EVENT } from '../../../shared/api/live-view';
+import { LiveAlarmMessage, LiveConnection, LiveReadings, LiveReadingsBatch, WatchRequest } from './live-reading';
 
 /** After the server refused the handshake, try again this much later (the token may have been renewed). */
 const RETRY_AFTER_REFUSAL_MS = 15000;
@@ -21,11 +22,17 @@ export class LiveService {
   private readonly watches = new Map<number, WatchRequest>();
   private nextWatchId = 1;
   private readonly readingsSubject = new Subject<LiveReadings>();
+  private readonly batchSubject = new Subject<readonly LiveReadings[]>();
   private readonly connectionSignal = signal<LiveConnection>('offline');
   private readonly alarmSubject = new Subject<LiveAlarmMessage>();
 
-  /** Every `readings` message, for all that is watched. */
+  /** Every engine's live values, one engine at a time, for all that is watched (batches are taken apart). */
   readonly readings$: Observable<LiveReadings> = this.readingsSubject.asObservable().pipe(share());
+  /**
+   * The same values as they came: a fleet or site watcher gets one batch per interval with every engine that changed
+   * (`readings-batch`); an engine's own message comes as a list of one. For screens that draw many engines at once.
+   */
+  readonly readingBatches$: Observable<readonly LiveReadings[]> = this.batchSubject.asObservable().pipe(share());
   readonly connection = this.connectionSignal.asReadonly();
   private readonly lostSinceSignal = signal<number | null>(null);
   /** When the open connection was lost (ms), while it stays lost; null when live or signed out. */
@@ -125,13 +132,22 @@ export class LiveService {
         if (this.socket === socket && this.auth.signedIn()) socket.connect();
       }, RETRY_AFTER_REFUSAL_MS);
     });
-    socket.on('readings', (msg: LiveReadings) => {
-      if (msg && typeof msg.engineId === 'number' && msg.values) this.readingsSubject.next(msg);
+    socket.on(READINGS_EVENT, (msg: LiveReadings) => {
+      if (isReadings(msg)) this.deliver([msg]);
+    });
+    socket.on(READINGS_BATCH_EVENT, (batch: LiveReadingsBatch) => {
+      if (Array.isArray(batch?.engines)) this.deliver(batch.engines.filter(isReadings));
     });
     socket.on('rooms', () => this.scopeSubject.next());
     socket.on('alarm', (msg: LiveAlarmMessage) => {
       if (msg && typeof msg.id === 'number' && typeof msg.engineId === 'number') this.alarmSubject.next(msg);
     });
+  }
+
+  private deliver(list: readonly LiveReadings[]): void {
+    if (!list.length) return;
+    for (const msg of list) this.readingsSubject.next(msg);
+    this.batchSubject.next(list);
   }
 
   private markLost(): void {
@@ -148,6 +164,10 @@ export class LiveService {
     this.connectionSignal.set('offline');
     this.lostSinceSignal.set(null); // signed out: nothing was lost
   }
+}
+
+function isReadings(msg: LiveReadings | null | undefined): msg is LiveReadings {
+  return !!msg && typeof msg.engineId === 'number' && !!msg.values;
 }
 
 /** One watch request covering all of them. */

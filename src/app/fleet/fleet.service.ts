@@ -51,7 +51,7 @@ export class FleetService {
   /** Follow the whole fleet live until the caller's DestroyRef ends. */
   followFleet(destroyRef: DestroyRef): void {
     const unwatch = this.live.watch({ fleet: true });
-    const sub = this.live.readings$.subscribe((r) => this.queue(r));
+    const sub = this.live.readingBatches$.subscribe((batch) => this.queue(batch));
     // the user's sites changed: the engine list is theirs to see anew (the live rooms already are)
     const scope = this.live.scopeChanged$.subscribe(() => void this.load());
     const readiness = setInterval(() => void this.refreshReadiness(), READINESS_EVERY_MS);
@@ -82,9 +82,13 @@ export class FleetService {
     }
   }
 
-  private queue(r: LiveReadings): void {
-    const values = normaliseValues(r.values);
-    this.pending.set(r.engineId, { ...this.pending.get(r.engineId), ...values });
+  /** A batch of engines (one message of the server's interval): O(engines in it). */
+  private queue(batch: readonly LiveReadings[]): void {
+    for (const r of batch) {
+      const values = normaliseValues(r.values);
+      const before = this.pending.get(r.engineId);
+      this.pending.set(r.engineId, before ? { ...before, ...values } : values);
+    }
     this.flushTimer ??= setTimeout(() => this.flush(), APPLY_EVERY_MS);
   }
 
