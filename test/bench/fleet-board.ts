@@ -57,7 +57,15 @@ export async function fleetBoardLongTasks(opts: {
     await opts.whileUpdating();
     await page.waitForTimeout(opts.settleMs);
     const from = await page.evaluate('performance.now()');
+    // BENCH_PROFILE=file.cpuprofile: the page's CPU profile over the measured time (open it in Chromium's devtools)
+    const profileFile = process.env.BENCH_PROFILE;
+    const cdp = profileFile ? await page.context().newCDPSession(page) : null;
+    if (cdp) {
+      await cdp.send('Profiler.enable');
+      await cdp.send('Profiler.start');
+    }
     await page.waitForTimeout(opts.measureMs);
+    if (cdp && profileFile) fs.writeFileSync(profileFile, JSON.stringify((await cdp.send('Profiler.stop')).profile));
     const tasks = (await page.evaluate(`window.__longTasks.filter((t) => t.at >= ${Number(from)})`)) as Array<{ at: number; ms: number }>;
     return {
       tiles,

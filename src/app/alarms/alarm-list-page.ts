@@ -17,6 +17,7 @@ import { AlarmRow } from './alarm-row';
 import { AlarmStore } from './alarm-store';
 import { Alarm, AlarmListView, AlarmPriority } from './alarm-types';
 import { AlarmsApi, errorText } from './alarms-api';
+import { byName } from '../ui/by-name';
 
 const VIEW_TEXT: Record<AlarmListView, string> = { active: 'Now', shelved: 'On the shelf', all: 'History' };
 
@@ -63,7 +64,7 @@ export class AlarmListPage {
     return this.fleet
       .engines()
       .filter((e) => site === null || e.siteId === site)
-      .sort((a, b) => a.name.localeCompare(b.name, undefined, { numeric: true }));
+      .sort((a, b) => byName(a.name, b.name));
   });
 
   private readonly source = computed<Alarm[]>(() => {

@@ -16,6 +16,7 @@ import { formatAlarmValue, formatTime, priorityLook } from './alarm-labels';
 import { AlarmsAdminService, RuleDef, RulePreview } from './alarms-admin.service';
 import { errorText } from './alarms-api';
 import { ParamField, paramFields, paramUnit, ruleQuantity, toDisplay, toSi } from './rule-params';
+import { byName } from '../ui/by-name';
 
 interface Draft {
   enabled: boolean;
@@ -45,7 +46,7 @@ export class RulesPage {
   private readonly prefs = inject(PreferencesService);
   private readonly snack = inject(MatSnackBar);
 
-  protected readonly engines = computed(() => [...this.fleet.engines()].sort((a, b) => a.name.localeCompare(b.name, undefined, { numeric: true })));
+  protected readonly engines = computed(() => [...this.fleet.engines()].sort((a, b) => byName(a.name, b.name)));
   /** null: the default profile. */
   protected readonly engineId = signal<number | null>(null);
   private readonly chosenPreviewEngine = signal<number | null>(null);

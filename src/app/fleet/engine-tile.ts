@@ -1,4 +1,4 @@
-import { ChangeDetectionStrategy, Component, computed, inject, input } from '@angular/core';
+import { ChangeDetectionStrategy, Component, DestroyRef, ElementRef, afterNextRender, computed, inject, input, signal } from '@angular/core';
 import { MatCardModule } from '@angular/material/card';
 import { MatIconModule } from '@angular/material/icon';
 import { RouterLink } from '@angular/router';
@@ -16,6 +16,7 @@ import { UnitValuePipe } from '../ui/unit-value.pipe';
 import { Engine, RunState } from './fleet-types';
 import { TILE_CHANNELS, isEngineStale, isValueStale } from './engine-condition';
 import { lastReadingAt, runStateAt } from './run-state';
+import { OnScreen } from './on-screen';
 
 const STATE_TEXT: Record<RunState, string> = { running: 'Running', stopped: 'Stopped', 'no-data': 'No data' };
 const STATE_ICON: Record<RunState, string> = { running: 'sync', stopped: 'stop_circle', 'no-data': 'cloud_off' };
@@ -39,7 +40,7 @@ interface TileRow {
   imports: [MatCardModule, MatIconModule, RouterLink, BandIndicator, UnitValuePipe],
   template: `
     <!-- the link's name is the spoken summary (it starts with the engine's name); the drawn tile repeats it for the eye -->
-    <a class="link" [routerLink]="['/engines', engine().id]">
+    <a class="link" [routerLink]="['/engines', current().id]">
       <span class="jw-visually-hidden spoken">{{ summary() }}</span>
       <mat-card
         appearance="outlined"
@@ -51,7 +52,7 @@ interface TileRow {
         [class.has-alarms]="alarms() > 0"
       >
         <div class="head">
-          <span class="name">{{ engine().name }}</span>
+          <span class="name">{{ current().name }}</span>
           <span class="duty">{{ dutyText() }}</span>
         </div>
         <div class="status">
@@ -62,7 +63,7 @@ interface TileRow {
               <span class="age" data-test="stale-age">· {{ a }}</span>
             }
           </span>
-          @if (engine().outOfService) {
+          @if (current().outOfService) {
             <span class="oos"><mat-icon aria-hidden="true" fontIcon="build" />Out of service</span>
           }
           <span class="alarms" [class.active]="alarms() > 0">
@@ -70,7 +71,7 @@ interface TileRow {
             <span class="jw-num">{{ alarms() }} {{ alarms() === 1 ? 'alarm' : 'alarms' }}</span>
           </span>
         </div>
-        @if (engine().readiness; as r) {
+        @if (current().readiness; as r) {
           <div class="readiness" [class.not-ready]="!r.ready" data-testid="readiness" [attr.data-ready]="r.ready">
             <mat-icon aria-hidden="true" [fontIcon]="r.ready ? 'check_circle' : 'report'" />
             <span class="readiness-text">{{ r.ready ? 'Ready' : 'Not ready' }}</span>
@@ -120,31 +121,63 @@ export class EngineTile {
   /** The site's zone, for "last 11:15" (the browser's when not given). */
   readonly timeZone = input<string | null>(null);
 
-  protected readonly state = computed(() => runStateAt(this.engine(), this.clock.now()));
+  /** On screen or near it (focused counts too); until the observer says otherwise, it is. */
+  private readonly onScreen = signal(true);
+  private readonly focused = signal(false);
+  private drawn: { engine: Engine; now: number } | null = null;
+  /**
+   * What the tile draws: the engine and the clock as they are while it can be seen; off screen the last drawn
+   * state stays and nothing below is worked out again, so 2,000 tiles do not all redraw on every update.
+   */
+  private readonly view = computed(() => {
+    if (this.drawn && !this.onScreen() && !this.focused()) return this.drawn;
+    return (this.drawn = { engine: this.engine(), now: this.clock.now() });
+  });
+  protected readonly current = computed(() => this.view().engine);
+  private readonly now = computed(() => this.view().now);
+
+  constructor() {
+    const host = inject(ElementRef<HTMLElement>).nativeElement as HTMLElement;
+    const onScreen = inject(OnScreen);
+    let stop: () => void = () => undefined;
+    afterNextRender(() => (stop = onScreen.watch(host, (visible) => this.onScreen.set(visible))));
+    // a keyboard or screen-reader user on a tile hears it as it is now, scrolled to or not
+    const focusIn = () => this.focused.set(true);
+    const focusOut = () => this.focused.set(false);
+    host.addEventListener('focusin', focusIn);
+    host.addEventListener('focusout', focusOut);
+    inject(DestroyRef).onDestroy(() => {
+      stop();
+      host.removeEventListener('focusin', focusIn);
+      host.removeEventListener('focusout', focusOut);
+    });
+  }
+
+  protected readonly state = computed(() => runStateAt(this.current(), this.now()));
   protected readonly stateText = computed(() => STATE_TEXT[this.state()]);
   protected readonly stateIcon = computed(() => STATE_ICON[this.state()]);
-  protected readonly dutyText = computed(() => DUTY_TEXT[this.engine().duty] ?? this.engine().duty);
+  protected readonly dutyText = computed(() => DUTY_TEXT[this.current().duty] ?? this.current().duty);
   // Live count from the alarms feature once it has loaded; the engine's own field until then.
-  protected readonly alarms = computed(() => this.alarmStore.activeFor(this.engine().id) ?? this.engine().activeAlarms ?? 0);
+  protected readonly alarms = computed(() => this.alarmStore.activeFor(this.current().id) ?? this.current().activeAlarms ?? 0);
 
   private readonly zone = computed(() => this.zones.zoneFor(this.timeZone()));
   private readonly interval = computed(() => {
-    this.clock.now(); // learned from live messages, read again on each tick
-    return this.cadence.intervalFor(this.engine().id);
+    this.now(); // learned from live messages, read again on each tick
+    return this.cadence.intervalFor(this.current().id);
   });
   /** Any value on the tile is older than the engine's expected interval. */
-  protected readonly stale = computed(() => isEngineStale(this.engine(), this.clock.now(), this.interval()));
+  protected readonly stale = computed(() => isEngineStale(this.current(), this.now(), this.interval()));
   /** "last 11:15 · 12 min ago" while stale. */
   protected readonly age = computed(() => {
     if (!this.stale()) return null;
-    const last = lastReadingAt(this.engine());
-    return last === null ? null : staleText(last, this.clock.now(), this.zone());
+    const last = lastReadingAt(this.current());
+    return last === null ? null : staleText(last, this.now(), this.zone());
   });
 
   protected readonly rows = computed<TileRow[]>(() => {
-    const e = this.engine();
+    const e = this.current();
     const state = this.state();
-    const now = this.clock.now();
+    const now = this.now();
     const interval = this.interval();
     return TILE_CHANNELS.map(({ key, short }) => {
       const latest = e.latest?.[key];
@@ -164,7 +197,7 @@ export class EngineTile {
 
   /** "freezes at -20.6 °C, needs -25.0 °C or colder (test 2026-11-01 10:00 MST)" when the latest test is short of the site's design low. */
   protected readonly freezeShort = computed(() => {
-    const f = this.engine().freezeProtection;
+    const f = this.current().freezeProtection;
     if (!f || f.status !== 'short') return null;
     const prefs = this.prefs.preferences();
     const at = formatInZone(f.testedAt, this.zone());
@@ -174,9 +207,9 @@ export class EngineTile {
   /** Everything the tile says, for a screen reader in one sentence. */
   protected readonly summary = computed(() => {
     const prefs = this.prefs.preferences();
-    const parts = [`${this.engine().name}, ${this.dutyText()}`, this.stateText() + (this.age() ? `, not current: ${this.age()}` : '')];
-    if (this.engine().outOfService) parts.push('out of service');
-    const ready = this.engine().readiness;
+    const parts = [`${this.current().name}, ${this.dutyText()}`, this.stateText() + (this.age() ? `, not current: ${this.age()}` : '')];
+    if (this.current().outOfService) parts.push('out of service');
+    const ready = this.current().readiness;
     if (ready) parts.push(ready.ready ? 'ready to start' : `not ready: ${ready.reasons.join('; ')}`);
     const freeze = this.freezeShort();
     if (freeze) parts.push(`freeze protection short: ${freeze}`);

@@ -20,6 +20,7 @@ import { matchesSearch, searchTerms } from './fleet-search';
 import { Engine, RunState, Site } from './fleet-types';
 import { FleetService } from './fleet.service';
 import { runStateAt } from './run-state';
+import { byName } from '../ui/by-name';
 
 type StateFilter = 'all' | RunState;
 
@@ -220,7 +221,6 @@ export class FleetBoard {
 const sortedIds = (ids: readonly number[]) => [...ids].sort((a, b) => a - b).join(',');
 
 /** "Unit 2" before "Unit 10". */
-const byName = (a: string, b: string) => a.localeCompare(b, undefined, { numeric: true });
 
 function sortByName(engines: Engine[]): Engine[] {
   return engines.sort((a, b) => byName(a.name, b.name));
