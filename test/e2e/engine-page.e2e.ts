@@ -99,13 +99,17 @@ describe('engine page (history and live)', () => {
       const w = window as unknown as { jwBlanks: string[] };
       w.jwBlanks = [];
       const drawn = new WeakSet<Element>();
+      // no named inner functions here: the bundler's name helper does not exist in the page
       new MutationObserver(() => {
         for (const s of document.querySelectorAll('jw-trend-chart section.channel')) {
-          const n = s.querySelectorAll('g.apexcharts-series path[d*="L"]').length;
-          if (n > 0) drawn.add(s);
+          if (s.querySelectorAll('g.apexcharts-series path[d*="L"]').length > 0) drawn.add(s);
           else if (drawn.has(s)) {
             drawn.delete(s);
-            w.jwBlanks.push(`${s.getAttribute('aria-label')} at ${new Date().toISOString()}`);
+            const at = new Date().toISOString();
+            // what the operator sees is what gets painted: still blank in the next frame, just before its paint
+            requestAnimationFrame(() => {
+              if (s.querySelectorAll('g.apexcharts-series path[d*="L"]').length === 0) w.jwBlanks.push(`${s.getAttribute('aria-label')} at ${at}`);
+            });
           }
         }
       }).observe(document, { subtree: true, childList: true, attributes: true, attributeFilter: ['d'] });
