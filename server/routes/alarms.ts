@@ -7,11 +7,20 @@ import { badRequest } from '../http-error';
 import type { AlarmFeature } from '../services/alarms';
 import { assertAlarmVisible, siteScopeOf, visibleEngineIds } from '../services/site-access';
 import { instant, parse, parseId } from './validate';
+import { engineIdsMatching, pageFields, pageOf, PAGE_MAX_LIMIT } from '../services/list-page';
 
 const listQuery = z.object({
   state: z.enum(['active', 'shelved', 'open', 'all']).default('active'),
   engineId: z.coerce.number().int().positive().optional(),
-  limit: z.coerce.number().int().min(1).max(1000).default(500),
+  /** Without offset: the older whole-list answer, at most this many (default 500); with offset: the page size (default 50, at most 500). */
+  limit: z.coerce
+    .number({ error: 'must be a whole number from 1 to 1000' })
+    .int('must be a whole number from 1 to 1000')
+    .min(1, 'must be at least 1')
+    .max(1000, 'must be at most 1000')
+    .optional(),
+  offset: pageFields.offset,
+  q: pageFields.q,
 });
 const ackBody = z.strictObject({ note: z.string().trim().max(1000).optional() }).optional();
 const shelveBody = z.strictObject({
@@ -41,7 +50,16 @@ export function alarmsRouter(ctx: AppContext, feature: AlarmFeature): Router {
   r.use('/alarms', requireAuth);
   r.get('/alarms', async (req, res) => {
     const q = parse(listQuery, req.query);
-    res.json(await svc.list({ ...q, engineIds: (await engineIds(req)) ?? undefined }));
+    const filters = {
+      state: q.state,
+      engineId: q.engineId,
+      engineIds: (await engineIds(req)) ?? undefined,
+      textEngineIds: q.q ? await engineIdsMatching(ctx.models, ctx.sequelize, q.q) : undefined,
+    };
+    const page = pageOf(q);
+    if (!page) return void res.json(await svc.list({ ...filters, limit: q.limit ?? 500 }));
+    if (page.limit > PAGE_MAX_LIMIT) throw badRequest(`limit: must be at most ${PAGE_MAX_LIMIT} for a page`, 'limit');
+    res.json(await svc.listPage({ ...filters, ...page }));
   });
   r.get('/alarms/summary', async (req, res) => {
     res.json(await svc.summary(Date.now(), (await engineIds(req)) ?? undefined));
