@@ -1,17 +1,22 @@
 import { Router, type Request } from 'express';
 import { z } from 'zod';
-import { SHELVE_MAX_MINUTES, SHELVE_MIN_MINUTES } from '../../shared/alarms/alarm-state';
+import { ALARM_STATES, SHELVE_MAX_MINUTES, SHELVE_MIN_MINUTES, type AlarmState } from '../../shared/alarms/alarm-state';
+import { PRIORITIES } from '../services/alarms/priority';
 import { requireAuth, requireRole } from '../auth/middleware';
 import type { AppContext } from '../app-context';
 import { badRequest } from '../http-error';
 import type { AlarmFeature } from '../services/alarms';
-import { assertAlarmVisible, siteScopeOf, visibleEngineIds } from '../services/site-access';
+import { assertAlarmVisible, siteFilter, siteScopeOf, visibleEngineIds } from '../services/site-access';
 import { instant, parse, parseId } from './validate';
 import { engineIdsMatching, pageFields, pageOf, PAGE_MAX_LIMIT } from '../services/list-page';
 
 const listQuery = z.object({
   state: z.enum(['active', 'shelved', 'open', 'all']).default('active'),
   engineId: z.coerce.number().int().positive().optional(),
+  siteId: z.coerce.number().int().positive().optional(),
+  priority: z.enum(PRIORITIES).optional(),
+  /** One alarm state within the chosen set (state=all&alarmState=acknowledged). */
+  alarmState: z.enum(ALARM_STATES as unknown as [AlarmState, ...AlarmState[]]).optional(),
   /** Without offset: the older whole-list answer, at most this many (default 500); with offset: the page size (default 50, at most 500). */
   limit: z.coerce
     .number({ error: 'must be a whole number from 1 to 1000' })
@@ -50,10 +55,17 @@ export function alarmsRouter(ctx: AppContext, feature: AlarmFeature): Router {
   r.use('/alarms', requireAuth);
   r.get('/alarms', async (req, res) => {
     const q = parse(listQuery, req.query);
+    const scope = await siteScopeOf(req);
     const filters = {
       state: q.state,
       engineId: q.engineId,
-      engineIds: (await engineIds(req)) ?? undefined,
+      priority: q.priority,
+      alarmState: q.alarmState,
+      // siteId: that site's engines if the caller may see it (none otherwise)
+      engineIds:
+        q.siteId !== undefined
+          ? ((await visibleEngineIds(ctx.models, { all: false, siteIds: siteFilter(scope, q.siteId) ?? [] })) ?? [])
+          : ((await visibleEngineIds(ctx.models, scope)) ?? undefined),
       textEngineIds: q.q ? await engineIdsMatching(ctx.models, ctx.sequelize, q.q) : undefined,
     };
     const page = pageOf(q);

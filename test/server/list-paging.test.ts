@@ -249,6 +249,13 @@ describe('filters beside paging', () => {
     const one = (await get(t.tokens.admin, `/api/alarms?state=all&engineId=${engineId}&offset=0`).expect(200)).body;
     expect(one.total).toBe(3);
     expect((await get(plannerA, `/api/alarms?state=all&engineId=${engineId}&offset=0`).expect(200)).body.total).toBe(0);
+    // site, priority and one alarm state, for the history view
+    expect((await get(t.tokens.admin, `/api/alarms?state=all&siteId=${siteB}&offset=0`).expect(200)).body.total).toBe(3 * 3);
+    expect((await get(plannerA, `/api/alarms?state=all&siteId=${siteB}&offset=0`).expect(200)).body.total).toBe(0);
+    expect((await get(t.tokens.admin, '/api/alarms?state=all&alarmState=normal&offset=0').expect(200)).body.total).toBe(2 * engineSite.size);
+    expect((await get(t.tokens.admin, '/api/alarms?state=active&alarmState=normal&offset=0').expect(200)).body.total).toBe(0);
+    expect((await get(t.tokens.admin, '/api/alarms?state=all&priority=low&offset=0').expect(200)).body.total).toBe(0);
+    expect((await get(t.tokens.admin, '/api/alarms?state=all&priority=high&offset=0').expect(200)).body.total).toBe(3 * engineSite.size);
   });
 
   it('due list: each site on a page keeps its counts over all pages and says how many entries it has', async () => {

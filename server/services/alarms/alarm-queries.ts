@@ -25,6 +25,9 @@ export interface AlarmListQuery {
   engineIds?: number[];
   /** Engines whose name or site name holds the text filter (undefined: no text filter). */
   textEngineIds?: number[];
+  priority?: string;
+  /** One state within the chosen set. */
+  alarmState?: AlarmState;
   limit?: number;
   offset?: number;
 }
@@ -39,6 +42,15 @@ function alarmWhere(q: AlarmListQuery): Record<string | symbol, unknown> {
   if (q.state === 'active') Object.assign(where, { closedAt: null, state: ANNUNCIATED });
   else if (q.state === 'shelved') Object.assign(where, { closedAt: null, state: 'shelved' });
   else if (q.state === 'open') where.closedAt = null;
+  if (q.priority) where.priority = q.priority;
+  if (q.alarmState)
+    where.state = Array.isArray(where.state)
+      ? where.state.includes(q.alarmState)
+        ? q.alarmState
+        : []
+      : where.state && where.state !== q.alarmState
+        ? []
+        : q.alarmState;
   return where;
 }
 
