@@ -14,7 +14,7 @@ import { listTopUps, recordTopUp } from '../services/coolant/top-ups';
 import { importLabCsv, listCoolantTests, recordCoolantTest } from '../services/coolant/coolant-tests';
 import { runHoursCounterFor } from '../services/coolant';
 import { correctRunHours, runHoursHistory } from '../services/coolant/run-hours';
-import { clearOverride, computeDueList, dueListPage, enginePlan, setOverride } from '../services/coolant/service-plan';
+import { clearOverride, dueListFor, dueListPage, enginePlan, setOverride } from '../services/coolant/service-plan';
 import { pageFields, pageOf } from '../services/list-page';
 import { assertEngineVisible, siteFilter, siteScopeOf } from '../services/site-access';
 import { instant, parse, parseId } from './validate';
@@ -197,7 +197,7 @@ export function coolantRouter(ctx: AppContext): Router {
   r.get('/due-list', async (req, res) => {
     const q = parse(dueQuery, req.query);
     const siteIds = siteFilter(await siteScopeOf(req), q.siteId) ?? undefined;
-    const list = await computeDueList(m, {
+    const list = await dueListFor(m, {
       siteId: q.siteId,
       siteIds,
       engineId: q.engineId,

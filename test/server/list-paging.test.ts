@@ -266,6 +266,29 @@ describe('filters beside paging', () => {
     expect(page.sites[0].entries).toEqual(first.entries.slice(0, 2));
   });
 
+  it('due list: a change to what it reads shows at once (the server keeps a computed list only while nothing changed)', async () => {
+    const url = '/api/due-list?include=all&windowDays=30&offset=0&limit=500';
+    const before = dueRows((await get(t.tokens.admin, url).expect(200)).body) as (Row & { openWorkOrderId: number | null; runHours: number })[];
+    const free = before.find((e) => e.openWorkOrderId === null && e.taskKey === 'oil-drain')!;
+    const created = (
+      await request(t.app)
+        .post('/api/work-orders')
+        .set(auth(t.tokens.planner))
+        .send({ engineId: free.engineId, kind: 'oil-drain', serviceTaskKey: 'oil-drain' })
+        .expect(201)
+    ).body;
+    const after = dueRows((await get(t.tokens.admin, url).expect(200)).body) as (Row & { openWorkOrderId: number | null })[];
+    expect(after.find((e) => e.engineId === free.engineId && e.taskKey === 'oil-drain')!.openWorkOrderId).toBe(created.id);
+    // run hours changed by the planner: the entries carry the new hours
+    await request(t.app)
+      .post(`/api/engines/${free.engineId}/run-hours`)
+      .set(auth(t.tokens.planner))
+      .send({ runHours: free.runHours + 25, reason: 'read from the hour meter' })
+      .expect(200);
+    const again = dueRows((await get(t.tokens.admin, url).expect(200)).body) as (Row & { runHours: number })[];
+    expect(again.find((e) => e.engineId === free.engineId)!.runHours).toBe(free.runHours + 25);
+  });
+
   it('engines: the whole list without offset stays for the fleet board', async () => {
     const whole = (await get(t.tokens.admin, '/api/engines').expect(200)).body;
     expect(Array.isArray(whole)).toBe(true);

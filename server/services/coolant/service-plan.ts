@@ -375,3 +375,46 @@ export function dueListPage(list: DueList, page: PageRequest): Omit<DueList, 'si
   }
   return { now: list.now, windowDays: list.windowDays, windowHours: list.windowHours, sites, total, limit: page.limit, offset: page.offset };
 }
+
+/**
+ * What the due list is computed from, in one cheap query: counts, the newest change and the run hours of the tables
+ * it reads. Any write that could change an entry changes this (a new or changed work order, service event, coolant
+ * test, plan override, engine, run hours, the extender setting, a site added or retired).
+ */
+async function dueListFingerprint(models: Models): Promise<string> {
+  const rows = await models.Engine.sequelize!.query(
+    `SELECT (SELECT COUNT(*) FROM engines) AS ec, (SELECT MAX(updated_at) FROM engines) AS eu, (SELECT SUM(run_hours) FROM engines) AS er,
+            (SELECT COUNT(*) FROM work_orders) AS wc, (SELECT MAX(updated_at) FROM work_orders) AS wu,
+            (SELECT COUNT(*) FROM service_events) AS sc, (SELECT MAX(id) FROM service_events) AS si,
+            (SELECT COUNT(*) FROM coolant_tests) AS cc, (SELECT MAX(id) FROM coolant_tests) AS ci,
+            (SELECT COUNT(*) FROM service_tasks) AS tc, (SELECT MAX(updated_at) FROM service_tasks) AS tu,
+            (SELECT MAX(updated_at) FROM coolant_settings) AS su,
+            (SELECT COUNT(*) FROM sites) AS stc, (SELECT COUNT(*) FROM sites WHERE retired_at IS NULL) AS sta`,
+    { type: QueryTypes.SELECT },
+  );
+  return JSON.stringify(rows[0]);
+}
+
+/** A computed list stays valid while nothing it reads changed, for at most this long (due states move with the clock). */
+export const DUE_CACHE_MS = 60_000;
+const DUE_CACHE_ENTRIES = 32;
+const dueCaches = new WeakMap<Models, Map<string, { at: number; fingerprint: string; list: DueList }>>();
+
+/**
+ * The due list for the route: computed for the whole filtered fleet (its rows are computed, not stored), kept per
+ * query and scope while the fingerprint of what it reads is unchanged and for at most DUE_CACHE_MS, so paging
+ * through it or opening it again does not compute it again. (A site renamed shows its new name within that time.)
+ */
+export async function dueListFor(models: Models, q: DueListQuery): Promise<DueList> {
+  let cache = dueCaches.get(models);
+  if (!cache) dueCaches.set(models, (cache = new Map()));
+  const key = JSON.stringify({ ...q, now: undefined, siteIds: q.siteIds ? [...q.siteIds].sort((a, b) => a - b) : null });
+  const fingerprint = await dueListFingerprint(models);
+  const hit = cache.get(key);
+  if (hit && hit.fingerprint === fingerprint && q.now >= hit.at && q.now - hit.at < DUE_CACHE_MS) return hit.list;
+  const list = await computeDueList(models, q);
+  cache.delete(key);
+  cache.set(key, { at: q.now, fingerprint, list });
+  if (cache.size > DUE_CACHE_ENTRIES) cache.delete(cache.keys().next().value!);
+  return list;
+}
