@@ -1,19 +1,33 @@
 import { Router, type Request } from 'express';
 import { z } from 'zod';
-import { SHELVE_MAX_MINUTES, SHELVE_MIN_MINUTES } from '../../shared/alarms/alarm-state';
+import { ALARM_STATES, SHELVE_MAX_MINUTES, SHELVE_MIN_MINUTES, type AlarmState } from '../../shared/alarms/alarm-state';
+import { PRIORITIES } from '../services/alarms/priority';
 import { requireAuth, requireRole } from '../auth/middleware';
 import type { AppContext } from '../app-context';
 import { badRequest } from '../http-error';
 import type { AlarmFeature } from '../services/alarms';
-import { assertAlarmVisible, siteScopeOf, visibleEngineIds } from '../services/site-access';
+import { assertAlarmVisible, siteFilter, siteScopeOf, visibleEngineIds } from '../services/site-access';
 import { idParam, instant, parse, parseId } from './validate';
 import { route, type ApiDoc } from '../openapi/api-doc';
 import { Alarm, AlarmDetail, AlarmHistoryPage, AlarmPerformance, AlarmSummary } from '../openapi/alarm-schemas';
+import { engineIdsMatching, pageFields, pageOf, PAGE_MAX_LIMIT } from '../services/list-page';
 
 const listQuery = z.object({
   state: z.enum(['active', 'shelved', 'open', 'all']).default('active'),
   engineId: z.coerce.number().int().positive().optional(),
-  limit: z.coerce.number().int().min(1).max(1000).default(500),
+  siteId: z.coerce.number().int().positive().optional(),
+  priority: z.enum(PRIORITIES).optional(),
+  /** One alarm state within the chosen set (state=all&alarmState=acknowledged). */
+  alarmState: z.enum(ALARM_STATES as unknown as [AlarmState, ...AlarmState[]]).optional(),
+  /** Without offset: the older whole-list answer, at most this many (default 500); with offset: the page size (default 50, at most 500). */
+  limit: z.coerce
+    .number({ error: 'must be a whole number from 1 to 1000' })
+    .int('must be a whole number from 1 to 1000')
+    .min(1, 'must be at least 1')
+    .max(1000, 'must be at most 1000')
+    .optional(),
+  offset: pageFields.offset,
+  q: pageFields.q,
 });
 const ackBody = z.strictObject({ note: z.string().trim().max(1000).optional() }).optional();
 const shelveBody = z.strictObject({
@@ -45,7 +59,23 @@ export function alarmsRouter(ctx: AppContext, feature: AlarmFeature, doc: ApiDoc
   route(doc, { method: 'get', path: '/alarms', id: 'listAlarms', tag, summary: 'Alarms', access: 'signed-in', query: listQuery, ok: z.array(Alarm) });
   r.get('/alarms', async (req, res) => {
     const q = parse(listQuery, req.query);
-    res.json(await svc.list({ ...q, engineIds: (await engineIds(req)) ?? undefined }));
+    const scope = await siteScopeOf(req);
+    const filters = {
+      state: q.state,
+      engineId: q.engineId,
+      priority: q.priority,
+      alarmState: q.alarmState,
+      // siteId: that site's engines if the caller may see it (none otherwise)
+      engineIds:
+        q.siteId !== undefined
+          ? ((await visibleEngineIds(ctx.models, { all: false, siteIds: siteFilter(scope, q.siteId) ?? [] })) ?? [])
+          : ((await visibleEngineIds(ctx.models, scope)) ?? undefined),
+      textEngineIds: q.q ? await engineIdsMatching(ctx.models, ctx.sequelize, q.q) : undefined,
+    };
+    const page = pageOf(q);
+    if (!page) return void res.json(await svc.list({ ...filters, limit: q.limit ?? 500 }));
+    if (page.limit > PAGE_MAX_LIMIT) throw badRequest(`limit: must be at most ${PAGE_MAX_LIMIT} for a page`, 'limit');
+    res.json(await svc.listPage({ ...filters, ...page }));
   });
   route(doc, {
     method: 'get',

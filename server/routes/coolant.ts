@@ -25,7 +25,8 @@ import { listTopUps, recordTopUp } from '../services/coolant/top-ups';
 import { importLabCsv, listCoolantTests, recordCoolantTest } from '../services/coolant/coolant-tests';
 import { runHoursCounterFor } from '../services/coolant';
 import { correctRunHours, runHoursHistory } from '../services/coolant/run-hours';
-import { clearOverride, computeDueList, enginePlan, setOverride } from '../services/coolant/service-plan';
+import { clearOverride, dueListFor, dueListPage, enginePlan, setOverride } from '../services/coolant/service-plan';
+import { pageFields, pageOf } from '../services/list-page';
 import { assertEngineVisible, siteFilter, siteScopeOf } from '../services/site-access';
 import { idParam, instant, parse, parseId } from './validate';
 
@@ -95,6 +96,7 @@ const dueQuery = z.object({
   windowDays: z.coerce.number().int().min(0).max(365).default(14),
   windowHours: z.coerce.number().min(0).max(5000).default(50),
   include: z.enum(['due', 'all']).default('due'),
+  ...pageFields,
 });
 const importQuery = z.object({ preview: z.enum(['0', '1', 'true', 'false']).optional(), engineId: z.coerce.number().int().positive().optional() });
 
@@ -372,17 +374,19 @@ export function coolantRouter(ctx: AppContext, doc: ApiDoc): Router {
   r.get('/due-list', async (req, res) => {
     const q = parse(dueQuery, req.query);
     const siteIds = siteFilter(await siteScopeOf(req), q.siteId) ?? undefined;
-    res.json(
-      await computeDueList(m, {
-        siteId: q.siteId,
-        siteIds,
-        engineId: q.engineId,
-        windowDays: q.windowDays,
-        windowHours: q.windowHours,
-        includeOk: q.include === 'all',
-        now: Date.now(),
-      }),
-    );
+    const list = await dueListFor(m, {
+      siteId: q.siteId,
+      siteIds,
+      engineId: q.engineId,
+      windowDays: q.windowDays,
+      windowHours: q.windowHours,
+      includeOk: q.include === 'all',
+      q: q.q,
+      now: Date.now(),
+    });
+    // rows are computed, not stored: computed for the filtered engines (cheaply, in bulk), then one page sent
+    const page = pageOf(q);
+    res.json(page ? dueListPage(list, page) : list);
   });
   return r;
 }

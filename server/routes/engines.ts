@@ -8,12 +8,13 @@ import { COOLANT_FAMILIES, DUTIES, GLYCOL_TYPES } from '../models/engine';
 import { activeAlarmCounts } from '../services/alarms/alarm-queries';
 import { standbyReadinessOf } from '../services/readiness';
 import { freezeStatusOf } from '../services/coolant/freeze-status';
-import { createEngine, engineView, getEngine, listEngines, retireEngine, updateEngine } from '../services/engines';
+import { createEngine, engineView, getEngine, listEngines, listEnginesPage, retireEngine, updateEngine } from '../services/engines';
 import { queryBuckets } from '../services/readings-query';
 import { assertEngineVisible, siteFilter, siteScopeOf } from '../services/site-access';
 import { idParam, instant, parse, parseId } from './validate';
 import { route, type ApiDoc } from '../openapi/api-doc';
 import { Buckets, Engine, EngineStatus } from '../openapi/core-schemas';
+import { pageFields, pageOf } from '../services/list-page';
 
 const range = (min: number, max: number, unit: string) => z.number().min(min, `at least ${min} ${unit}`).max(max, `at most ${max} ${unit}`);
 
@@ -47,7 +48,7 @@ const createBody = z.strictObject({
   outOfService: engineFields.outOfService.default(false),
 });
 const patchBody = z.strictObject(engineFields).partial();
-const listQuery = z.object({ siteId: z.coerce.number().int().positive().optional(), includeRetired: z.enum(['true', 'false']).optional() });
+const listQuery = z.object({ siteId: z.coerce.number().int().positive().optional(), includeRetired: z.enum(['true', 'false']).optional(), ...pageFields });
 
 const DAY_MS = 24 * 3600 * 1000;
 const readingsQuery = z.object({
@@ -75,21 +76,24 @@ export function enginesRouter(ctx: AppContext, doc: ApiDoc): Router {
   r.get('/engines', async (req, res) => {
     const q = parse(listQuery, req.query);
     const siteIds = siteFilter(await siteScopeOf(req), q.siteId);
-    const engines = await listEngines(ctx.models, { siteIds: siteIds ?? undefined, includeRetired: q.includeRetired === 'true' });
+    const opts = { siteIds: siteIds ?? undefined, includeRetired: q.includeRetired === 'true', q: q.q };
+    const page = pageOf(q);
+    const found = page ? await listEnginesPage(ctx.models, opts, page) : { rows: await listEngines(ctx.models, opts), total: 0 };
+    const engines = found.rows;
     const [alarmCounts, readiness, freeze] = await Promise.all([
-      activeAlarmCounts(ctx.models),
+      activeAlarmCounts(ctx.models, page ? engines.map((e) => e.id) : undefined),
       standbyReadinessOf(ctx.models, engines, live()),
       freezeStatusOf(ctx.models, engines),
     ]);
     // standby engines carry readiness: { ready, reasons } (reasons in words); engines with a glycol or freeze-point test carry freezeProtection
-    res.json(
-      engines.map((e) => ({
-        ...engineView(e, live()),
-        activeAlarms: alarmCounts.get(e.id) ?? 0,
-        ...(readiness.has(e.id) ? { readiness: readiness.get(e.id) } : {}),
-        ...(freeze.has(e.id) ? { freezeProtection: freeze.get(e.id) } : {}),
-      })),
-    );
+    const views = engines.map((e) => ({
+      ...engineView(e, live()),
+      activeAlarms: alarmCounts.get(e.id) ?? 0,
+      ...(readiness.has(e.id) ? { readiness: readiness.get(e.id) } : {}),
+      ...(freeze.has(e.id) ? { freezeProtection: freeze.get(e.id) } : {}),
+    }));
+    // with offset: one page and the number matching; without: the whole list (the fleet board's tiles)
+    res.json(page ? { items: views, total: found.total, limit: page.limit, offset: page.offset } : views);
   });
   route(doc, {
     method: 'get',

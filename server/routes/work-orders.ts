@@ -39,6 +39,7 @@ import {
   WorkOrderDetail,
   WorkTemplate,
 } from '../openapi/work-schemas';
+import { pageFields, pageOf } from '../services/list-page';
 
 /** A whole calendar date, YYYY-MM-DD, that exists (no 2026-02-30), in 2000..2100: a half-typed year (0002, 0202) is refused. */
 const dateOnly = z
@@ -90,6 +91,7 @@ const listQuery = z.object({
   assigneeId: z.coerce.number().int().positive().optional(),
   siteId: z.coerce.number().int().positive().optional(),
   mine: z.enum(['1', 'true', '0', 'false']).optional(),
+  ...pageFields,
 });
 const transitionBody = z.strictObject({ to: z.enum(WORK_STATUSES), note: note.optional() });
 const finite = (min: number, max: number, unit: string) => z.number().finite().min(min, `at least ${min} ${unit}`).max(max, `at most ${max} ${unit}`);
@@ -237,16 +239,17 @@ export function workOrdersRouterWithService(ctx: AppContext, doc: ApiDoc): WorkR
   r.get('/work-orders', async (req, res) => {
     const q = parse(listQuery, req.query);
     const engineIds = (await visibleEngineIds(ctx.models, await siteScopeOf(req))) ?? undefined;
-    res.json(
-      await svc.list(req.user!, {
-        status: q.status,
-        engineId: q.engineId,
-        engineIds,
-        assigneeId: q.assigneeId,
-        siteId: q.siteId,
-        mine: q.mine === '1' || q.mine === 'true',
-      }),
-    );
+    const filters = {
+      status: q.status,
+      engineId: q.engineId,
+      engineIds,
+      assigneeId: q.assigneeId,
+      siteId: q.siteId,
+      mine: q.mine === '1' || q.mine === 'true',
+      q: q.q,
+    };
+    const page = pageOf(q);
+    res.json(page ? await svc.listPage(req.user!, filters, page) : await svc.list(req.user!, filters));
   });
 
   route(doc, {

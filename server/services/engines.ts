@@ -1,8 +1,9 @@
-import type { InferCreationAttributes } from 'sequelize';
+import type { InferCreationAttributes, WhereOptions } from 'sequelize';
 import type { ChannelKey } from '../../shared/channels';
 import { badRequest, notFound } from '../http-error';
 import type { Engine, Models } from '../models';
 import type { LatestValue, LiveState, RunState } from '../telemetry/types';
+import { engineIdsMatching, type PageRequest } from './list-page';
 
 export type EngineInput = Omit<InferCreationAttributes<Engine>, 'id' | 'retiredAt' | 'createdAt' | 'updatedAt'>;
 
@@ -24,18 +25,42 @@ export function engineView(engine: Engine, live: LiveState | null): EngineView {
 }
 
 /** `siteIds` (the caller's visible sites) narrows the list; `siteId` picks one site. */
-export function listEngines(models: Models, opts: { siteId?: number; siteIds?: number[]; includeRetired?: boolean } = {}): Promise<Engine[]> {
-  const where: Record<string, unknown> = {};
+export interface EngineListOptions {
+  siteId?: number;
+  siteIds?: number[];
+  includeRetired?: boolean;
+  /** Text in the engine's name or its site's name (case-insensitive). */
+  q?: string;
+}
+
+async function engineWhere(models: Models, opts: EngineListOptions): Promise<WhereOptions> {
+  const where: Record<string | symbol, unknown> = {};
   if (!opts.includeRetired) where.retiredAt = null;
   if (opts.siteIds !== undefined) where.siteId = opts.siteId === undefined ? opts.siteIds : opts.siteIds.filter((id) => id === opts.siteId);
   else if (opts.siteId !== undefined) where.siteId = opts.siteId;
-  return models.Engine.findAll({
-    where,
-    order: [
-      ['siteId', 'ASC'],
-      ['name', 'ASC'],
-    ],
-  });
+  if (opts.q) where.id = await engineIdsMatching(models, models.Engine.sequelize!, opts.q);
+  return where;
+}
+
+/** By site, then name, then id: a total order, so pages never repeat or skip an engine. */
+const ENGINE_ORDER: [string, string][] = [
+  ['siteId', 'ASC'],
+  ['name', 'ASC'],
+  ['id', 'ASC'],
+];
+
+export async function listEngines(models: Models, opts: EngineListOptions = {}): Promise<Engine[]> {
+  return models.Engine.findAll({ where: await engineWhere(models, opts), order: ENGINE_ORDER });
+}
+
+/** One page of engines and how many match over all pages. */
+export async function listEnginesPage(models: Models, opts: EngineListOptions, page: PageRequest): Promise<{ rows: Engine[]; total: number }> {
+  const where = await engineWhere(models, opts);
+  const [total, rows] = await Promise.all([
+    models.Engine.count({ where }),
+    models.Engine.findAll({ where, order: ENGINE_ORDER, limit: page.limit, offset: page.offset }),
+  ]);
+  return { rows, total };
 }
 
 export async function getEngine(models: Models, id: number): Promise<Engine> {

@@ -15,7 +15,8 @@
  *  then the retention sweep and the long-trend phase (trend.ts: trend30dMs / trend1hMs with 200 engines x 30 days).
  *  then sign-in under a burst (login-burst.ts, its own server process): a good sign-in and a good device connect
  *     timed beside 200 wrong HTTP sign-ins and 300 wrong MQTT logins (loginUnderBurstMs, deviceConnectUnderBurstMs).
- * Phase lengths: BENCH_FLOOD_MS, BENCH_LATENCY_MS, BENCH_QOS0_MS, BENCH_DRAIN_MS. One phase alone: BENCH_PHASE=qos1|push|retention|trend.
+ *  then the lists at fleet scale (lists.ts: first page of each long list with 2,000 engines, listP95Ms).
+ * Phase lengths: BENCH_FLOOD_MS, BENCH_LATENCY_MS, BENCH_QOS0_MS, BENCH_DRAIN_MS. One phase alone: BENCH_PHASE=qos1|push|retention|trend|lists.
  * BENCH_SCALE=1: instead, several servers on PostgreSQL and mosquitto (scale.ts), one server vs two.
  * BENCH_JSON=file: the figures also as JSON (ingestPerS, rawCeilingPerS, lostAcknowledged, duplicatesStored,
  * rssGrowthPct, loginUnderBurstMs, ...), to compare runs.
@@ -31,6 +32,7 @@ import { createTokenService } from '../../server/auth/tokens';
 import { describeInitialBundle, measureInitialBundle } from './initial-bundle';
 import { fleetBoardLongTasks, type FleetBoardFigures } from './fleet-board';
 import { printTrend, trendPhase } from './trend';
+import { listsJson, listsPhase, printLists } from './lists';
 import { loginUnderBurst, type LoginBurstFigures } from './login-burst';
 import { printScale, runScaleBench } from './scale';
 import { Db, freePort, seedFleet, type SeededDevice } from '../server/support/telemetry-server';
@@ -620,6 +622,16 @@ async function main(): Promise<void> {
       );
     process.exit(0);
   }
+  if (process.env.BENCH_PHASE === 'lists') {
+    const lists = await listsPhase(progress);
+    printLists(lists);
+    if (process.env.BENCH_JSON)
+      fs.writeFileSync(
+        process.env.BENCH_JSON,
+        JSON.stringify({ at: new Date().toISOString(), cores: os.cpus().length, node: process.version, ...listsJson(lists) }, null, 2) + '\n',
+      );
+    process.exit(0);
+  }
   if (process.env.BENCH_SCALE === '1') {
     // several servers: needs Debian's PostgreSQL and mosquitto, so only when asked for
     const scale = await runScaleBench(progress);
@@ -781,6 +793,12 @@ async function main(): Promise<void> {
   printRetention(retention);
   const trend = await trendPhase(progress);
   printTrend(trend);
+  progress('lists at fleet scale');
+  const lists = await listsPhase(progress).catch((err) => {
+    console.error('lists phase failed:', err instanceof Error ? err.message : err);
+    return null;
+  });
+  if (lists) printLists(lists);
   const initialBundle = measureInitialBundle();
   console.log('\n4. App: first download (the production build in dist/, measured as the build estimates it)');
   line('initial bundle (initialTransferKb)', describeInitialBundle(initialBundle));
@@ -835,6 +853,7 @@ async function main(): Promise<void> {
           trend30dMinuteRollupsMs: r1(trend.trend30dMinutesMs),
           trendEngines: trend.engines,
           trendDays: trend.days,
+          ...(lists ? listsJson(lists) : { listP95Ms: null }),
           loginQuietMs: burst ? r1(burst.quietMs) : null,
           loginUnderBurstMs: burst ? r1(burst.underBurstMs) : null,
           deviceConnectQuietMs: burst ? r1(burst.deviceQuietMs) : null,

@@ -18,27 +18,66 @@ export async function findAlarm(models: Models, id: number): Promise<Alarm> {
   return a;
 }
 
-/** `engineIds` (the caller's visible engines) narrows the list. */
-export async function listAlarms(
-  models: Models,
-  view: (a: Alarm) => AlarmView,
-  q: { state: ListState; engineId?: number; engineIds?: number[]; limit?: number },
-): Promise<AlarmView[]> {
-  const where: Record<string, unknown> = {};
-  if (q.engineIds !== undefined) where.engineId = q.engineId === undefined ? q.engineIds : q.engineIds.filter((id) => id === q.engineId);
-  else if (q.engineId !== undefined) where.engineId = q.engineId;
+export interface AlarmListQuery {
+  state: ListState;
+  engineId?: number;
+  /** The caller's visible engines (undefined: all). */
+  engineIds?: number[];
+  /** Engines whose name or site name holds the text filter (undefined: no text filter). */
+  textEngineIds?: number[];
+  priority?: string;
+  /** One state within the chosen set. */
+  alarmState?: AlarmState;
+  limit?: number;
+  offset?: number;
+}
+
+function alarmWhere(q: AlarmListQuery): Record<string | symbol, unknown> {
+  const where: Record<string | symbol, unknown> = {};
+  const sets: number[][] = [];
+  if (q.engineIds !== undefined) sets.push(q.engineIds);
+  if (q.textEngineIds !== undefined) sets.push(q.textEngineIds);
+  if (q.engineId !== undefined) sets.push([q.engineId]);
+  if (sets.length) where.engineId = sets.reduce((acc, s) => acc.filter((id) => s.includes(id)));
   if (q.state === 'active') Object.assign(where, { closedAt: null, state: ANNUNCIATED });
   else if (q.state === 'shelved') Object.assign(where, { closedAt: null, state: 'shelved' });
   else if (q.state === 'open') where.closedAt = null;
-  const rows = await models.Alarm.findAll({
-    where,
-    order: [
-      ['raisedAt', 'DESC'],
-      ['id', 'DESC'],
-    ],
-    limit: q.limit ?? 500,
-  });
+  if (q.priority) where.priority = q.priority;
+  if (q.alarmState)
+    where.state = Array.isArray(where.state)
+      ? where.state.includes(q.alarmState)
+        ? q.alarmState
+        : []
+      : where.state && where.state !== q.alarmState
+        ? []
+        : q.alarmState;
+  return where;
+}
+
+/** Newest first, then by id: a total order, so pages never repeat or skip an alarm. */
+const ALARM_ORDER: [string, string][] = [
+  ['raisedAt', 'DESC'],
+  ['id', 'DESC'],
+];
+
+/** `engineIds` (the caller's visible engines) narrows the list. */
+export async function listAlarms(models: Models, view: (a: Alarm) => AlarmView, q: AlarmListQuery): Promise<AlarmView[]> {
+  const rows = await models.Alarm.findAll({ where: alarmWhere(q), order: ALARM_ORDER, limit: q.limit ?? 500 });
   return rows.map(view);
+}
+
+/** One page of alarms and how many match over all pages. */
+export async function listAlarmsPage(
+  models: Models,
+  view: (a: Alarm) => AlarmView,
+  q: AlarmListQuery & { limit: number; offset: number },
+): Promise<{ items: AlarmView[]; total: number; limit: number; offset: number }> {
+  const where = alarmWhere(q);
+  const [total, rows] = await Promise.all([
+    models.Alarm.count({ where }),
+    models.Alarm.findAll({ where, order: ALARM_ORDER, limit: q.limit, offset: q.offset }),
+  ]);
+  return { items: rows.map(view), total, limit: q.limit, offset: q.offset };
 }
 
 /** One page of an alarm's history in time order (ties in the order recorded). */
@@ -109,8 +148,10 @@ export async function alarmSummary(models: Models, now = Date.now(), engineIds?:
 }
 
 /** Annunciated alarms per engine (for the engine list). */
-export async function activeAlarmCounts(models: Models): Promise<Map<number, number>> {
-  const rows = await models.Alarm.findAll({ where: { closedAt: null, state: ANNUNCIATED }, attributes: ['engineId'] });
+export async function activeAlarmCounts(models: Models, engineIds?: number[]): Promise<Map<number, number>> {
+  const where: Record<string, unknown> = { closedAt: null, state: ANNUNCIATED };
+  if (engineIds) where.engineId = engineIds;
+  const rows = await models.Alarm.findAll({ where, attributes: ['engineId'], raw: true });
   const counts = new Map<number, number>();
   for (const r of rows) counts.set(r.engineId, (counts.get(r.engineId) ?? 0) + 1);
   return counts;

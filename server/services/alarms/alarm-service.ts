@@ -15,7 +15,7 @@ import type { Alarm } from '../../models/alarm';
 import type { AuthUser } from '../../telemetry/types';
 import { housekeepingRound } from './alarm-housekeeping';
 import { performanceReport } from './alarm-performance';
-import { alarmHistory, alarmSummary, findAlarm, listAlarms, type ListState } from './alarm-queries';
+import { alarmHistory, alarmSummary, findAlarm, listAlarms, listAlarmsPage, type AlarmListQuery } from './alarm-queries';
 import type { AlarmSettings } from './alarm-settings';
 import { alarmRecord, alarmView, directionOf, ms } from './alarm-view';
 import type { EngineDirectory, EngineEntry } from './engine-directory';
@@ -515,8 +515,13 @@ export class AlarmService {
   }
 
   /** `engineIds` (the caller's visible engines) narrows the list (alarm-queries.ts). */
-  list(q: { state: ListState; engineId?: number; engineIds?: number[]; limit?: number }): Promise<AlarmView[]> {
+  list(q: AlarmListQuery): Promise<AlarmView[]> {
     return listAlarms(this.deps.models, (a) => this.view(a), q);
+  }
+
+  /** One page of the list and how many match over all pages (alarm-queries.ts). */
+  listPage(q: AlarmListQuery & { limit: number; offset: number }) {
+    return listAlarmsPage(this.deps.models, (a) => this.view(a), q);
   }
 
   async get(

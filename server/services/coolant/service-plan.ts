@@ -1,7 +1,9 @@
-import { Op } from 'sequelize';
+import { col, fn, Op, QueryTypes } from 'sequelize';
 import { defaultServicePlan, dueList, type DueState, type ServiceTask, type TaskRecord } from '../../../shared/service/due-list';
 import { badRequest } from '../../http-error';
 import type { Engine, Models } from '../../models';
+import type { ServiceTaskOverride } from '../../models/coolant-models';
+import { engineIdsMatching, type Page, type PageRequest } from '../list-page';
 import { getEngine } from '../engines';
 import { getChemistryLimits } from './chemistry-limits';
 import { WORK_KINDS, workTemplate, type WorkKind } from '../work-templates';
@@ -36,9 +38,16 @@ export interface OverrideInput {
 /** The engine's plan: the default plan with this engine's overrides applied; disabled tasks left out. */
 export async function servicePlan(models: Models, engine: Engine): Promise<PlanTask[]> {
   const overrides = await models.ServiceTaskOverride.findAll({ where: { engineId: engine.id } });
+  return planOf(await planEngine(models, engine), overrides);
+}
+
+type OverrideRow = Pick<ServiceTaskOverride, 'taskKey' | 'title' | 'everyHours' | 'everyDays' | 'disabled'>;
+
+/** The plan from the engine's facts and its overrides, with no I/O (the due list loads both for every engine at once). */
+function planOf(facts: Awaited<ReturnType<typeof planEngine>>, overrides: OverrideRow[]): PlanTask[] {
   const byKey = new Map(overrides.map((o) => [o.taskKey, o]));
   const tasks: PlanTask[] = [];
-  for (const t of defaultServicePlan(await planEngine(models, engine))) {
+  for (const t of defaultServicePlan(facts)) {
     const o = byKey.get(t.key);
     byKey.delete(t.key);
     if (o?.disabled) continue;
@@ -71,8 +80,18 @@ export async function servicePlan(models: Models, engine: Engine): Promise<PlanT
 /** What the default plan needs of an engine, with the administrator's extender interval for extended-life coolant. */
 async function planEngine(models: Models, engine: Engine) {
   const extender = engine.coolantFamily === 'extended-life' ? (await getChemistryLimits(models)).extender : null;
-  return { oilDrainIntervalH: engine.oilDrainIntervalH, duty: engine.duty, coolantFamily: engine.coolantFamily, extender };
+  return planFacts(engine, extender);
 }
+
+function planFacts(engine: Pick<Engine, 'oilDrainIntervalH' | 'duty' | 'coolantFamily'>, extender: ExtenderSetting) {
+  return {
+    oilDrainIntervalH: engine.oilDrainIntervalH,
+    duty: engine.duty,
+    coolantFamily: engine.coolantFamily,
+    extender: engine.coolantFamily === 'extended-life' ? extender : null,
+  };
+}
+type ExtenderSetting = Awaited<ReturnType<typeof getChemistryLimits>>['extender'];
 
 export async function enginePlan(models: Models, engineId: number): Promise<PlanTask[]> {
   return servicePlan(models, await getEngine(models, engineId));
@@ -144,13 +163,27 @@ export interface DueListQuery {
   windowHours?: number;
   /** Also list the tasks that are not due. */
   includeOk?: boolean;
+  /** Text in the engine's name or its site's name (case-insensitive). */
+  q?: string;
   now: number;
 }
 
 const OPEN_STATUSES_EXCLUDED = ['closed', 'cancelled'];
 
-/** Last time each task was done on each engine: service events (written when a work order completes) and, for the coolant test, recorded tests. */
-async function lastDone(models: Models, engineIds: number[], now: number): Promise<Map<number, Map<string, TaskRecord>>> {
+/** A date column read with `raw: true`: a Date (PostgreSQL) or SQLite's text `2026-06-01 12:00:00.000 +00:00`. */
+function dateMs(v: unknown): number {
+  if (v instanceof Date) return v.getTime();
+  const s = String(v);
+  const t = Date.parse(s);
+  return Number.isNaN(t) ? Date.parse(s.replace(' ', 'T').replace(' ', '')) : t;
+}
+
+/**
+ * Last time each task was done on each engine: service events (written when a work order completes) and, for the
+ * coolant test, recorded tests. Plain rows (`raw`), the latest test per engine by GROUP BY: the due list reads
+ * this for every engine of the fleet on each request.
+ */
+async function lastDone(models: Models, engineIds: number[] | null, now: number): Promise<Map<number, Map<string, TaskRecord>>> {
   const out = new Map<number, Map<string, TaskRecord>>();
   const put = (engineId: number, key: string, at: number, runHours: number | null) => {
     let m = out.get(engineId);
@@ -158,23 +191,41 @@ async function lastDone(models: Models, engineIds: number[], now: number): Promi
     const prev = m.get(key);
     if (!prev || (prev.lastDoneAt ?? -Infinity) < at) m.set(key, { lastDoneAt: at, lastDoneRunHours: runHours });
   };
-  if (!engineIds.length) return out;
+  if (engineIds?.length === 0) return out;
   const cutoff = new Date(now);
-  const events = await models.ServiceEvent.findAll({ where: { engineId: engineIds, doneAt: { [Op.lte]: cutoff } }, order: [['doneAt', 'ASC']] });
+  const of = engineIds ? { engineId: engineIds } : {};
+  const sequelize = models.ServiceEvent.sequelize!;
+  const cutoffSql = sequelize.escape(cutoff);
+  const [events, tests] = await Promise.all([
+    // the latest event of each task of each engine (the index on engine_id, task_key, done_at answers the GROUP
+    // BY); years of weekly inspections stay in the table, not in memory
+    sequelize.query<{ engineId: number; taskKey: string; doneAt: unknown; runHours: number | null }>(
+      `SELECT e.engine_id AS "engineId", e.task_key AS "taskKey", e.done_at AS "doneAt", e.run_hours AS "runHours"
+         FROM service_events e
+         JOIN (SELECT engine_id, task_key, MAX(done_at) AS last_at FROM service_events
+                WHERE done_at <= ${cutoffSql}${engineIds ? ' AND engine_id IN (:ids)' : ''}
+                GROUP BY engine_id, task_key) m
+           ON m.engine_id = e.engine_id AND m.task_key = e.task_key AND m.last_at = e.done_at
+        ORDER BY e.id`,
+      { type: QueryTypes.SELECT, replacements: engineIds ? { ids: engineIds } : {} },
+    ),
+    models.CoolantTest.findAll({
+      where: { ...of, testedAt: { [Op.lte]: cutoff } },
+      attributes: ['engineId', [fn('max', col('tested_at')), 'testedAt']],
+      group: ['engineId'],
+      raw: true,
+    }),
+  ]);
   for (const e of events) {
-    put(e.engineId, e.taskKey, new Date(e.doneAt).getTime(), e.runHours);
+    const at = dateMs(e.doneAt);
+    put(e.engineId, e.taskKey, at, e.runHours);
     // fresh extended-life coolant needs no extender until its interval has run from the refill
-    if (e.taskKey === 'drain-flush-refill') put(e.engineId, 'coolant-extender', new Date(e.doneAt).getTime(), e.runHours);
+    if (e.taskKey === 'drain-flush-refill') put(e.engineId, 'coolant-extender', at, e.runHours);
   }
-  const tests = await models.CoolantTest.findAll({
-    where: { engineId: engineIds, testedAt: { [Op.lte]: cutoff } },
-    attributes: ['engineId', 'testedAt'],
-    order: [['testedAt', 'ASC']],
-  });
   // a recorded test has no hour-meter reading with it: calendar only, unless a service event says more
   for (const t of tests) {
     const m = out.get(t.engineId)?.get('coolant-test');
-    const at = new Date(t.testedAt).getTime();
+    const at = dateMs(t.testedAt);
     if (!m || (m.lastDoneAt ?? -Infinity) < at) put(t.engineId, 'coolant-test', at, m?.lastDoneRunHours ?? null);
   }
   return out;
@@ -186,24 +237,43 @@ export async function computeDueList(models: Models, q: DueListQuery): Promise<{
   const where: Record<string, unknown> = { retiredAt: null, outOfService: false };
   if (q.siteIds !== undefined) where.siteId = q.siteIds;
   else if (q.siteId !== undefined) where.siteId = q.siteId;
-  if (q.engineId !== undefined) where.id = q.engineId;
+  if (q.q !== undefined) {
+    const ids = await engineIdsMatching(models, models.Engine.sequelize!, q.q);
+    where.id = q.engineId === undefined ? ids : ids.filter((id) => id === q.engineId);
+  } else if (q.engineId !== undefined) where.id = q.engineId;
   const engines = await models.Engine.findAll({
     where,
+    attributes: ['id', 'siteId', 'name', 'runHours', 'oilDrainIntervalH', 'duty', 'coolantFamily'],
     order: [
       ['siteId', 'ASC'],
       ['name', 'ASC'],
+      ['id', 'ASC'],
     ],
+    raw: true,
   });
+  // the whole fleet asked for: read the other tables whole (rows of engines not listed are skipped) rather
+  // than send thousands of ids in an IN list
+  const narrowed = q.siteIds !== undefined || q.siteId !== undefined || q.engineId !== undefined || q.q !== undefined;
+  const ids = narrowed ? engines.map((e) => e.id) : null;
+  const ofEngines = ids ? { engineId: ids } : {};
+  // every engine's overrides and the extender setting at once (not one query per engine)
+  const [overrideRows, limits] = await Promise.all([
+    engines.length ? models.ServiceTaskOverride.findAll({ where: ofEngines }) : [],
+    getChemistryLimits(models),
+  ]);
+  const overridesOf = new Map<number, ServiceTaskOverride[]>();
+  for (const o of overrideRows) {
+    const list = overridesOf.get(o.engineId);
+    if (list) list.push(o);
+    else overridesOf.set(o.engineId, [o]);
+  }
   const sites = new Map((await models.Site.findAll({ where: { id: [...new Set(engines.map((e) => e.siteId))] } })).map((s) => [s.id, s]));
-  const records = await lastDone(
-    models,
-    engines.map((e) => e.id),
-    q.now,
-  );
+  const records = await lastDone(models, ids, q.now);
   const open = await models.WorkOrder.findAll({
-    where: { engineId: engines.map((e) => e.id), status: { [Op.notIn]: OPEN_STATUSES_EXCLUDED } },
+    where: { ...ofEngines, status: { [Op.notIn]: OPEN_STATUSES_EXCLUDED } },
     attributes: ['id', 'engineId', 'kind', 'serviceTaskKey'],
     order: [['id', 'ASC']],
+    raw: true,
   });
   // an open order for a task: the one created for it, or (for a task with its own template) one of its kind;
   // a general repair counts only for the task it was created for
@@ -211,10 +281,19 @@ export async function computeDueList(models: Models, q: DueListQuery): Promise<{
   const openBy = new Map(open.filter((w) => w.kind !== 'general-repair').map((w) => [`${w.engineId}:${w.kind}`, w.id]));
 
   const out = new Map<number, DueSiteView>();
+  const sharedPlans = new Map<string, PlanTask[]>();
   for (const engine of engines) {
     const site = sites.get(engine.siteId);
     if (!site || site.retiredAt) continue;
-    const plan = await servicePlan(models, engine);
+    const own = overridesOf.get(engine.id);
+    const facts = planFacts(engine, limits.extender);
+    // engines with no overrides share their plan with every engine of the same duty, oil interval and coolant
+    const shared = `${facts.duty}|${facts.oilDrainIntervalH}|${facts.coolantFamily}`;
+    let plan = own ? null : sharedPlans.get(shared);
+    if (!plan) {
+      plan = planOf(facts, own ?? []);
+      if (!own) sharedPlans.set(shared, plan);
+    }
     const rec = records.get(engine.id) ?? new Map<string, TaskRecord>();
     const taskRecords: Record<string, TaskRecord | undefined> = {};
     for (const t of plan) taskRecords[t.key] = rec.get(t.key);
@@ -250,12 +329,92 @@ export async function computeDueList(models: Models, q: DueListQuery): Promise<{
   }
   const rank: Record<DueState, number> = { overdue: 0, 'due-soon': 1, ok: 2 };
   for (const v of out.values()) {
-    v.entries.sort((a, b) => rank[a.state] - rank[b.state] || (a.dueAt ?? '9').localeCompare(b.dueAt ?? '9') || a.engineName.localeCompare(b.engineName));
+    // engine id and task key last: a total order, so pages never repeat or skip an entry
+    v.entries.sort(
+      (a, b) =>
+        rank[a.state] - rank[b.state] ||
+        cmp(a.dueAt ?? '9', b.dueAt ?? '9') ||
+        a.engineName.localeCompare(b.engineName) ||
+        a.engineId - b.engineId ||
+        a.taskKey.localeCompare(b.taskKey),
+    );
   }
   return {
     now: new Date(q.now).toISOString(),
     windowDays: q.windowDays,
     windowHours,
-    sites: [...out.values()].sort((a, b) => a.siteName.localeCompare(b.siteName)),
+    sites: [...out.values()].sort((a, b) => a.siteName.localeCompare(b.siteName) || a.siteId - b.siteId),
   };
+}
+
+/** Plain order of ISO instants (localeCompare is slow over thousands of entries and needs no locale here). */
+const cmp = (a: string, b: string) => (a < b ? -1 : a > b ? 1 : 0);
+
+export type DueList = Awaited<ReturnType<typeof computeDueList>>;
+export interface DueSitePageView extends DueSiteView {
+  /** The site's entries over all pages (entries holds only this page's). */
+  entryTotal: number;
+}
+
+/**
+ * One page of the due list: the entries in the list's order (site by name, then overdue, due soon, by due
+ * date), grouped by site as the whole list is, each site with its counts over all pages. A site with nothing
+ * listed comes with the page where its place in the order falls (the last page when it sorts last).
+ */
+export function dueListPage(list: DueList, page: PageRequest): Omit<DueList, 'sites'> & Omit<Page<never>, 'items'> & { sites: DueSitePageView[] } {
+  const total = list.sites.reduce((n, s) => n + s.entries.length, 0);
+  const end = page.offset + page.limit;
+  const sites: DueSitePageView[] = [];
+  const lastPage = total === 0 ? page.offset === 0 : page.offset < total && total <= end;
+  let at = 0;
+  for (const s of list.sites) {
+    const entries = s.entries.slice(Math.max(0, page.offset - at), Math.max(0, end - at));
+    const emptyHere = s.entries.length === 0 && (at < total ? at >= page.offset && at < end : lastPage);
+    if (entries.length || emptyHere) sites.push({ ...s, entries, entryTotal: s.entries.length });
+    at += s.entries.length;
+  }
+  return { now: list.now, windowDays: list.windowDays, windowHours: list.windowHours, sites, total, limit: page.limit, offset: page.offset };
+}
+
+/**
+ * What the due list is computed from, in one cheap query: counts, the newest change and the run hours of the tables
+ * it reads. Any write that could change an entry changes this (a new or changed work order, service event, coolant
+ * test, plan override, engine, run hours, the extender setting, a site added or retired).
+ */
+async function dueListFingerprint(models: Models): Promise<string> {
+  const rows = await models.Engine.sequelize!.query(
+    `SELECT (SELECT COUNT(*) FROM engines) AS ec, (SELECT MAX(updated_at) FROM engines) AS eu, (SELECT SUM(run_hours) FROM engines) AS er,
+            (SELECT COUNT(*) FROM work_orders) AS wc, (SELECT MAX(updated_at) FROM work_orders) AS wu,
+            (SELECT COUNT(*) FROM service_events) AS sc, (SELECT MAX(id) FROM service_events) AS si,
+            (SELECT COUNT(*) FROM coolant_tests) AS cc, (SELECT MAX(id) FROM coolant_tests) AS ci,
+            (SELECT COUNT(*) FROM service_tasks) AS tc, (SELECT MAX(updated_at) FROM service_tasks) AS tu,
+            (SELECT MAX(updated_at) FROM coolant_settings) AS su,
+            (SELECT COUNT(*) FROM sites) AS stc, (SELECT COUNT(*) FROM sites WHERE retired_at IS NULL) AS sta`,
+    { type: QueryTypes.SELECT },
+  );
+  return JSON.stringify(rows[0]);
+}
+
+/** A computed list stays valid while nothing it reads changed, for at most this long (due states move with the clock). */
+export const DUE_CACHE_MS = 60_000;
+const DUE_CACHE_ENTRIES = 32;
+const dueCaches = new WeakMap<Models, Map<string, { at: number; fingerprint: string; list: DueList }>>();
+
+/**
+ * The due list for the route: computed for the whole filtered fleet (its rows are computed, not stored), kept per
+ * query and scope while the fingerprint of what it reads is unchanged and for at most DUE_CACHE_MS, so paging
+ * through it or opening it again does not compute it again. (A site renamed shows its new name within that time.)
+ */
+export async function dueListFor(models: Models, q: DueListQuery): Promise<DueList> {
+  let cache = dueCaches.get(models);
+  if (!cache) dueCaches.set(models, (cache = new Map()));
+  const key = JSON.stringify({ ...q, now: undefined, siteIds: q.siteIds ? [...q.siteIds].sort((a, b) => a - b) : null });
+  const fingerprint = await dueListFingerprint(models);
+  const hit = cache.get(key);
+  if (hit && hit.fingerprint === fingerprint && q.now >= hit.at && q.now - hit.at < DUE_CACHE_MS) return hit.list;
+  const list = await computeDueList(models, q);
+  cache.delete(key);
+  cache.set(key, { at: q.now, fingerprint, list });
+  if (cache.size > DUE_CACHE_ENTRIES) cache.delete(cache.keys().next().value!);
+  return list;
 }

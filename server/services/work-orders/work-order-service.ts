@@ -12,6 +12,7 @@ import { pushWorkOrder } from './notify';
 import type { ReadingHistory } from './reading-history';
 import { EDITABLE, FINISHED, findTransition, STATUS_TEXT } from './transitions';
 import { namesFor, summaryView, type WorkOrderSummary } from './views';
+import { containsText, engineIdsMatching, type Page, type PageRequest } from '../list-page';
 
 export interface CreateInput {
   engineId: number;
@@ -42,6 +43,8 @@ export interface ListQuery {
   assigneeId?: number;
   siteId?: number;
   mine?: boolean;
+  /** Text in the order's title, its engine's name or its site's name (case-insensitive). */
+  q?: string;
 }
 
 /** A rule's title in words (no raw keys in a description for people). */
@@ -323,18 +326,20 @@ export class WorkOrderService {
     return users.map((u) => ({ id: u.id, name: u.name, email: u.email }));
   }
 
-  async list(user: AuthUser, q: ListQuery): Promise<WorkOrderSummary[]> {
+  /** The filters as one WHERE (the caller's visible engines always applied). */
+  private async listWhere(user: AuthUser, q: ListQuery): Promise<WhereOptions> {
     const where: WhereOptions = {};
     const w = where as Record<string | symbol, unknown>;
+    const and: WhereOptions[] = [];
     if (q.status?.length) w.status = q.status;
     if (q.engineId) w.engineId = q.engineId;
     if (q.assigneeId) w.assigneeId = q.assigneeId;
     if (q.mine) {
       if (user.role === 'technician') w.assigneeId = user.id;
-      else w[Op.or] = [{ assigneeId: user.id }, { requestedBy: user.id }, { createdBy: user.id }];
+      else and.push({ [Op.or]: [{ assigneeId: user.id }, { requestedBy: user.id }, { createdBy: user.id }] });
     }
     if (q.siteId) {
-      const engines = await this.models.Engine.findAll({ where: { siteId: q.siteId }, attributes: ['id'] });
+      const engines = await this.models.Engine.findAll({ where: { siteId: q.siteId }, attributes: ['id'], raw: true });
       w.engineId = q.engineId ? (engines.some((e) => e.id === q.engineId) ? q.engineId : -1) : engines.map((e) => e.id);
     }
     if (q.engineIds) {
@@ -342,15 +347,33 @@ export class WorkOrderService {
       const cur = w.engineId as number | number[] | undefined;
       w.engineId = cur === undefined ? q.engineIds : (Array.isArray(cur) ? cur : [cur]).filter((id) => allowed.has(id));
     }
-    const orders = await this.models.WorkOrder.findAll({
-      where,
-      order: [
-        ['dueDate', 'ASC'],
-        ['id', 'ASC'],
-      ],
-      limit: 2000,
-    });
+    if (q.q) {
+      const engines = await engineIdsMatching(this.models, this.ctx.sequelize, q.q);
+      and.push({ [Op.or]: [containsText(this.ctx.sequelize, 'title', q.q), ...(engines.length ? [{ engineId: engines }] : [])] });
+    }
+    if (and.length) w[Op.and] = and;
+    return where;
+  }
+
+  /** Earliest due first, undated last, then by number: a total order, so pages never repeat or skip an order. */
+  private static readonly ORDER: [string, string][] = [
+    ['dueDate', 'ASC NULLS LAST'],
+    ['id', 'ASC'],
+  ];
+
+  async list(user: AuthUser, q: ListQuery): Promise<WorkOrderSummary[]> {
+    const orders = await this.models.WorkOrder.findAll({ where: await this.listWhere(user, q), order: WorkOrderService.ORDER, limit: 2000 });
     return this.summaries(orders);
+  }
+
+  /** One page of the list, with the number of orders matching over all pages. */
+  async listPage(user: AuthUser, q: ListQuery, page: PageRequest): Promise<Page<WorkOrderSummary>> {
+    const where = await this.listWhere(user, q);
+    const [total, orders] = await Promise.all([
+      this.models.WorkOrder.count({ where }),
+      this.models.WorkOrder.findAll({ where, order: WorkOrderService.ORDER, limit: page.limit, offset: page.offset }),
+    ]);
+    return { items: await this.summaries(orders), total, limit: page.limit, offset: page.offset };
   }
 
   async summaries(orders: WorkOrder[]): Promise<WorkOrderSummary[]> {

@@ -1,9 +1,9 @@
-import { finalize } from 'rxjs';
-import { ChangeDetectionStrategy, Component, computed, effect, inject, signal, untracked } from '@angular/core';
+import { ChangeDetectionStrategy, Component, computed, effect, inject, linkedSignal, signal, untracked } from '@angular/core';
 import { MatButtonModule } from '@angular/material/button';
 import { MatButtonToggleModule } from '@angular/material/button-toggle';
 import { MatFormFieldModule } from '@angular/material/form-field';
 import { MatIconModule } from '@angular/material/icon';
+import { MatPaginatorModule, PageEvent } from '@angular/material/paginator';
 import { MatProgressBarModule } from '@angular/material/progress-bar';
 import { MatSelectModule } from '@angular/material/select';
 import { ActivatedRoute, Router, RouterLink } from '@angular/router';
@@ -16,8 +16,10 @@ import { PRIORITY_LOOK, PRIORITY_ORDER, formatTime, needsAcknowledge, priorityLo
 import { AlarmRow } from './alarm-row';
 import { AlarmStore } from './alarm-store';
 import { Alarm, AlarmListView, AlarmPriority } from './alarm-types';
-import { AlarmsApi, errorText } from './alarms-api';
+import { errorText } from './alarms-api';
 import { byName } from '../ui/by-name';
+import { AlarmHistoryApi, AlarmHistoryFilter } from './alarm-history-api';
+import { LIST_PAGE_SIZE, LIST_PAGE_SIZES } from '../core/list-page';
 
 const VIEW_TEXT: Record<AlarmListView, string> = { active: 'Now', shelved: 'On the shelf', all: 'History' };
 
@@ -25,13 +27,23 @@ const VIEW_TEXT: Record<AlarmListView, string> = { active: 'Now', shelved: 'On t
 @Component({
   selector: 'jw-alarm-list-page',
   changeDetection: ChangeDetectionStrategy.OnPush,
-  imports: [MatButtonToggleModule, MatButtonModule, MatFormFieldModule, MatSelectModule, MatIconModule, MatProgressBarModule, RouterLink, AlarmRow],
+  imports: [
+    MatButtonToggleModule,
+    MatButtonModule,
+    MatFormFieldModule,
+    MatSelectModule,
+    MatIconModule,
+    MatPaginatorModule,
+    MatProgressBarModule,
+    RouterLink,
+    AlarmRow,
+  ],
   templateUrl: './alarm-list-page.html',
   styleUrl: './alarm-list-page.scss',
 })
 export class AlarmListPage {
   private readonly store = inject(AlarmStore);
-  private readonly api = inject(AlarmsApi);
+  private readonly historyApi = inject(AlarmHistoryApi);
   private readonly fleet = inject(FleetService);
   private readonly clock = inject(ClockService);
   private readonly actions = inject(AlarmActions);
@@ -54,6 +66,15 @@ export class AlarmListPage {
   protected readonly state = signal<AlarmState | null>(null);
 
   private readonly history = signal<Alarm[]>([]);
+  /** The history is paged on the server: this page's place, and how many alarms match over all pages. */
+  protected readonly historyTotal = signal(0);
+  protected readonly pageSize = signal(LIST_PAGE_SIZE);
+  protected readonly pageSizes = LIST_PAGE_SIZES;
+  /** Back to the first page whenever a filter changes. */
+  protected readonly offset = linkedSignal<unknown, number>({
+    source: () => [this.siteId(), this.engineId(), this.priority(), this.state(), this.pageSize()],
+    computation: () => 0,
+  });
   protected readonly historyLoading = signal(false);
   protected readonly error = signal<string | null>(null);
   protected readonly loaded = this.store.loaded;
@@ -126,16 +147,24 @@ export class AlarmListPage {
     if (!this.fleet.engines().length) void this.fleet.load();
 
     effect(() => {
-      if (this.view() === 'all') untracked(() => this.loadHistory());
+      const filter = {
+        siteId: this.siteId(),
+        engineId: this.engineId(),
+        priority: this.priority(),
+        state: this.state(),
+        offset: this.offset(),
+        limit: this.pageSize(),
+      };
+      if (this.view() === 'all') untracked(() => void this.loadHistory(filter));
     });
-    // Live: a changed alarm replaces its old line in the history too.
+    // Live: a changed alarm replaces its old line in the history too (a new one shows on the first page).
     effect(() => {
       const changed = this.store.lastChange();
       if (!changed) return;
       untracked(() =>
         this.history.update((list) => {
           const i = list.findIndex((a) => a.id === changed.id);
-          if (i < 0) return [changed, ...list];
+          if (i < 0) return this.offset() === 0 ? [changed, ...list] : list;
           const next = [...list];
           next[i] = changed;
           return next;
@@ -180,18 +209,35 @@ export class AlarmListPage {
   }
 
   protected retryHistory(): void {
-    this.loadHistory();
+    void this.loadHistory({
+      siteId: this.siteId(),
+      engineId: this.engineId(),
+      priority: this.priority(),
+      state: this.state(),
+      offset: this.offset(),
+      limit: this.pageSize(),
+    });
   }
 
-  private loadHistory(): void {
+  protected onPage(e: PageEvent): void {
+    if (e.pageSize !== this.pageSize()) return this.pageSize.set(e.pageSize);
+    this.offset.set(e.pageIndex * e.pageSize);
+  }
+
+  private loadSeq = 0;
+  private async loadHistory(filter: AlarmHistoryFilter): Promise<void> {
+    const seq = ++this.loadSeq;
     this.historyLoading.set(true);
     this.error.set(null);
-    this.api
-      .list('all')
-      .pipe(finalize(() => this.historyLoading.set(false)))
-      .subscribe({
-        next: (h) => this.history.set(h),
-        error: (err: unknown) => this.error.set(errorText(err, 'The alarm history could not be loaded')),
-      });
+    try {
+      const page = await this.historyApi.page(filter);
+      if (seq !== this.loadSeq) return; // a later request (another filter or page) answers instead
+      this.history.set(page.items);
+      this.historyTotal.set(page.total);
+    } catch (err) {
+      this.error.set(errorText(err, 'The alarm history could not be loaded'));
+    } finally {
+      if (seq === this.loadSeq) this.historyLoading.set(false);
+    }
   }
 }

@@ -65,6 +65,14 @@ export interface DueListResponse {
   sites: DueSite[];
 }
 
+/** One page of the due list (offset paging): each site keeps its counts over all pages. */
+export interface DueListPageResponse extends DueListResponse {
+  sites: (DueSite & { entryTotal: number })[];
+  total: number;
+  limit: number;
+  offset: number;
+}
+
 export interface AdditiveProfile {
   configured: boolean;
   name: string;

@@ -6,6 +6,7 @@ import {
   AdditiveProfileInput,
   CoolantTest,
   RunHoursEntry,
+  DueListPageResponse,
   DueListResponse,
   ImportResult,
   NewCoolantTest,
@@ -76,6 +77,13 @@ export class CoolantService {
     if (q.siteId) params['siteId'] = String(q.siteId);
     if (q.engineId) params['engineId'] = String(q.engineId);
     return this.http.get<DueListResponse>('/api/due-list', { params });
+  }
+
+  /** One page of the due list, computed and paged on the server. */
+  dueListPage(q: { siteId?: number; windowDays: number; offset: number; limit: number }): Observable<DueListPageResponse> {
+    const params: Record<string, string> = { windowDays: String(q.windowDays), offset: String(q.offset), limit: String(q.limit) };
+    if (q.siteId) params['siteId'] = String(q.siteId);
+    return this.http.get<DueListPageResponse>('/api/due-list', { params });
   }
 
   createWorkOrder(engineId: number, kind: string, title: string): Observable<{ id: number }> {

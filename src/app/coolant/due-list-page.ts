@@ -3,27 +3,29 @@ import { WorkOrderDetail } from '../work/work-types';
 import { DisplayZone } from '../core/display-zone';
 import { JwTimePipe } from '../ui/time-format';
 import { HttpErrorResponse } from '@angular/common/http';
-import { ChangeDetectionStrategy, Component, computed, inject, signal } from '@angular/core';
+import { ChangeDetectionStrategy, Component, computed, inject, linkedSignal, signal } from '@angular/core';
 import { toObservable, toSignal } from '@angular/core/rxjs-interop';
 import { MatButtonModule } from '@angular/material/button';
 import { MatButtonToggleModule } from '@angular/material/button-toggle';
 import { MatDialog } from '@angular/material/dialog';
 import { MatFormFieldModule } from '@angular/material/form-field';
 import { MatIconModule } from '@angular/material/icon';
+import { MatPaginatorModule, PageEvent } from '@angular/material/paginator';
 import { MatSelectModule } from '@angular/material/select';
 import { RouterLink } from '@angular/router';
 import { catchError, of, switchMap } from 'rxjs';
 import { AuthService } from '../core/auth.service';
 import { EngineService } from '../engine/engine.service';
 import { CoolantService } from './coolant.service';
-import { DueEntry, DueListResponse } from './coolant-types';
+import { DueEntry, DueListPageResponse } from './coolant-types';
+import { LIST_PAGE_SIZE, LIST_PAGE_SIZES } from '../core/list-page';
 import { RunHoursDialog, type RunHoursDialogData } from './run-hours-dialog';
 
 /** The planner's due list: per site, overdue then due soon, with one click to a work order from the task's template. */
 @Component({
   selector: 'jw-due-list-page',
   changeDetection: ChangeDetectionStrategy.OnPush,
-  imports: [JwTimePipe, RouterLink, MatButtonModule, MatButtonToggleModule, MatFormFieldModule, MatIconModule, MatSelectModule],
+  imports: [JwTimePipe, RouterLink, MatButtonModule, MatButtonToggleModule, MatFormFieldModule, MatIconModule, MatPaginatorModule, MatSelectModule],
   template: `
     <h1>Service due</h1>
     <p class="lead">
@@ -56,6 +58,9 @@ import { RunHoursDialog, type RunHoursDialogData } from './run-hours-dialog';
           <h2>
             {{ s.siteName }} <span class="counts">{{ s.overdue }} overdue · {{ s.dueSoon }} due soon</span>
           </h2>
+          @if (s.entries.length < s.entryTotal) {
+            <p class="part">{{ s.entries.length }} of this site's {{ s.entryTotal }} tasks on this page</p>
+          }
           @if (s.entries.length) {
             <div class="table-wrap">
               <table class="due">
@@ -133,6 +138,16 @@ import { RunHoursDialog, type RunHoursDialogData } from './run-hours-dialog';
             An administrator adds engines under Administration, Engines; their service plan then fills this list.
           }
         </p>
+      }
+      @if (l.total > 0) {
+        <mat-paginator
+          [length]="l.total"
+          [pageIndex]="l.offset / pageSize()"
+          [pageSize]="pageSize()"
+          [pageSizeOptions]="pageSizes"
+          (page)="onPage($event)"
+          aria-label="Pages of the due list"
+        />
       }
     } @else {
       <p>Loading…</p>
@@ -242,6 +257,11 @@ import { RunHoursDialog, type RunHoursDialogData } from './run-hours-dialog';
     .error {
       color: var(--jw-alarm-high);
     }
+    .part {
+      color: var(--jw-muted-text);
+      font-size: 0.85rem;
+      margin: 0 0 4px;
+    }
   `,
 })
 export class DueListPage {
@@ -257,6 +277,10 @@ export class DueListPage {
   readonly siteId = signal(0);
   readonly windowDays = signal(14);
   private readonly reload = signal(0);
+  /** The list is computed and paged on the server; a new site or window starts at the first page. */
+  protected readonly pageSize = signal(LIST_PAGE_SIZE);
+  protected readonly pageSizes = LIST_PAGE_SIZES;
+  protected readonly offset = linkedSignal<unknown, number>({ source: () => [this.siteId(), this.windowDays(), this.pageSize()], computation: () => 0 });
   protected readonly error = signal<string | null>(null);
   protected readonly busy = signal<string | null>(null);
   protected readonly created = signal<Record<string, number>>({});
@@ -264,19 +288,26 @@ export class DueListPage {
   protected readonly canCorrect = computed(() => this.auth.hasRole('planner', 'admin'));
   private readonly dialog = inject(MatDialog);
   protected readonly list = toSignal(
-    toObservable(computed(() => ({ siteId: this.siteId(), windowDays: this.windowDays(), n: this.reload() }))).pipe(
+    toObservable(
+      computed(() => ({ siteId: this.siteId(), windowDays: this.windowDays(), offset: this.offset(), limit: this.pageSize(), n: this.reload() })),
+    ).pipe(
       switchMap((q) =>
-        this.api.dueList({ siteId: q.siteId || undefined, windowDays: q.windowDays }).pipe(
+        this.api.dueListPage({ siteId: q.siteId || undefined, windowDays: q.windowDays, offset: q.offset, limit: q.limit }).pipe(
           catchError((e) => {
             this.error.set(e instanceof HttpErrorResponse ? (e.error?.error ?? e.message) : String(e));
-            return of(null as DueListResponse | null);
+            return of(null as DueListPageResponse | null);
           }),
         ),
       ),
     ),
-    { initialValue: null as DueListResponse | null },
+    { initialValue: null as DueListPageResponse | null },
   );
   protected readonly key = (e: DueEntry) => `${e.engineId}:${e.taskKey}`;
+
+  protected onPage(e: PageEvent): void {
+    if (e.pageSize !== this.pageSize()) return this.pageSize.set(e.pageSize);
+    this.offset.set(e.pageIndex * e.pageSize);
+  }
 
   /** Run hours from the hour meter, with a reason (audited); the list is recomputed with the new hours. */
   protected correctHours(e: DueEntry): void {

@@ -1,10 +1,10 @@
-import { Subscription, finalize } from 'rxjs';
 import { DOCUMENT } from '@angular/common';
 import { ChangeDetectionStrategy, Component, computed, inject, signal } from '@angular/core';
 import { NonNullableFormBuilder, ReactiveFormsModule } from '@angular/forms';
 import { MatButtonModule } from '@angular/material/button';
 import { MatFormFieldModule } from '@angular/material/form-field';
 import { MatIconModule } from '@angular/material/icon';
+import { MatPaginatorModule, PageEvent } from '@angular/material/paginator';
 import { MatProgressBarModule } from '@angular/material/progress-bar';
 import { MatSelectModule } from '@angular/material/select';
 import { MatTableModule } from '@angular/material/table';
@@ -12,6 +12,8 @@ import { RouterLink } from '@angular/router';
 import { AuthService } from '../core/auth.service';
 import { downloadText } from '../engine/readings-csv';
 import { WorkApi, errorText } from './work-api';
+import { WorkListApi } from './work-list-api';
+import { LIST_PAGE_SIZE, LIST_PAGE_SIZES } from '../core/list-page';
 import { workOrdersToCsv } from './work-csv';
 import { OPEN_STATUSES, PRIORITY_TEXT, STATUSES, STATUS_ICON, STATUS_TEXT, formatDate, todayIso, weekStart } from './work-labels';
 import { Assignee, WorkOrderSummary, WorkStatus } from './work-types';
@@ -27,13 +29,25 @@ interface WeekGroup {
 @Component({
   selector: 'jw-work-list-page',
   changeDetection: ChangeDetectionStrategy.OnPush,
-  imports: [ReactiveFormsModule, MatButtonModule, MatFormFieldModule, MatIconModule, MatProgressBarModule, MatSelectModule, MatTableModule, RouterLink],
+  imports: [
+    ReactiveFormsModule,
+    MatButtonModule,
+    MatFormFieldModule,
+    MatIconModule,
+    MatPaginatorModule,
+    MatProgressBarModule,
+    MatSelectModule,
+    MatTableModule,
+    RouterLink,
+  ],
   template: `
     <div class="page">
       <header class="head">
         <h1>Work</h1>
         <span class="spacer"></span>
-        <button mat-stroked-button type="button" (click)="exportCsv()" [disabled]="!orders().length"><mat-icon fontIcon="download" />Export CSV</button>
+        <button mat-stroked-button type="button" (click)="exportCsv()" [disabled]="!orders().length || exporting()">
+          <mat-icon fontIcon="download" />Export CSV
+        </button>
         @if (canCreate()) {
           <a mat-flat-button routerLink="/work/new"><mat-icon fontIcon="add" />New work order</a>
         }
@@ -42,7 +56,7 @@ interface WeekGroup {
       <div class="filters" [formGroup]="filters">
         <mat-form-field appearance="outline" subscriptSizing="dynamic">
           <mat-label>Status</mat-label>
-          <mat-select multiple formControlName="statuses" (selectionChange)="reload()">
+          <mat-select multiple formControlName="statuses" (selectionChange)="reload(0)">
             @for (s of allStatuses; track s) {
               <mat-option [value]="s">{{ statusText[s] }}</mat-option>
             }
@@ -50,7 +64,7 @@ interface WeekGroup {
         </mat-form-field>
         <mat-form-field appearance="outline" subscriptSizing="dynamic">
           <mat-label>Site</mat-label>
-          <mat-select formControlName="siteId" (selectionChange)="reload()">
+          <mat-select formControlName="siteId" (selectionChange)="reload(0)">
             <mat-option [value]="null">All sites</mat-option>
             @for (s of sites(); track s.id) {
               <mat-option [value]="s.id">{{ s.name }}</mat-option>
@@ -59,7 +73,7 @@ interface WeekGroup {
         </mat-form-field>
         <mat-form-field appearance="outline" subscriptSizing="dynamic">
           <mat-label>Assignee</mat-label>
-          <mat-select formControlName="assigneeId" (selectionChange)="reload()">
+          <mat-select formControlName="assigneeId" (selectionChange)="reload(0)">
             <mat-option [value]="null">Anyone</mat-option>
             @for (a of assignees(); track a.id) {
               <mat-option [value]="a.id">{{ a.name }}</mat-option>
@@ -136,6 +150,16 @@ interface WeekGroup {
             <tr mat-row *matRowDef="let row; columns: columns"></tr>
           </table>
         </section>
+      }
+      @if (total() > 0) {
+        <mat-paginator
+          [length]="total()"
+          [pageIndex]="offset() / pageSize()"
+          [pageSize]="pageSize()"
+          [pageSizeOptions]="pageSizes"
+          (page)="onPage($event)"
+          aria-label="Pages of work orders"
+        />
       }
     </div>
   `,
@@ -233,6 +257,7 @@ interface WeekGroup {
 })
 export class WorkListPage {
   private readonly api = inject(WorkApi);
+  private readonly listApi = inject(WorkListApi);
   private readonly auth = inject(AuthService);
   private readonly doc = inject(DOCUMENT);
 
@@ -251,6 +276,12 @@ export class WorkListPage {
     assigneeId: this.fb.control<number | null>(null),
   });
   protected readonly orders = signal<WorkOrderSummary[]>([]);
+  /** Paged on the server: this page's place and the number of orders matching over all pages. */
+  protected readonly total = signal(0);
+  protected readonly offset = signal(0);
+  protected readonly pageSize = signal(LIST_PAGE_SIZE);
+  protected readonly pageSizes = LIST_PAGE_SIZES;
+  protected readonly exporting = signal(false);
   protected readonly sites = signal<{ id: number; name: string }[]>([]);
   protected readonly assignees = signal<Assignee[]>([]);
   protected readonly loading = signal(false);
@@ -291,21 +322,45 @@ export class WorkListPage {
     return !!o.dueDate && o.dueDate < this.today && OPEN_STATUSES.includes(o.status);
   }
 
-  private listing: Subscription | null = null;
-
-  /** Loads the list for the filters; a newer choice cancels the answer still awaited for an older one. */
-  protected reload(): void {
-    this.listing?.unsubscribe();
-    this.loading.set(true);
-    this.error.set(null);
+  private filter() {
     const f = this.filters.getRawValue();
-    this.listing = this.api
-      .list({ status: f.statuses, siteId: f.siteId ?? undefined, assigneeId: f.assigneeId ?? undefined })
-      .pipe(finalize(() => this.loading.set(false)))
-      .subscribe({ next: (o) => this.orders.set(o), error: (e: unknown) => this.error.set(errorText(e)) });
+    return { status: f.statuses, siteId: f.siteId ?? undefined, assigneeId: f.assigneeId ?? undefined };
   }
 
-  protected exportCsv(): void {
-    downloadText(this.doc, `work-orders-${this.today}.csv`, workOrdersToCsv(this.orders()));
+  private loadSeq = 0;
+  /** Asks the server for one page; a changed filter starts again at the first page (offset 0). */
+  protected async reload(offset = this.offset()): Promise<void> {
+    const seq = ++this.loadSeq;
+    this.offset.set(offset);
+    this.loading.set(true);
+    this.error.set(null);
+    try {
+      const page = await this.listApi.page(this.filter(), offset, this.pageSize());
+      if (seq !== this.loadSeq) return; // a later request answers instead
+      this.orders.set(page.items);
+      this.total.set(page.total);
+    } catch (e) {
+      this.error.set(errorText(e));
+    } finally {
+      if (seq === this.loadSeq) this.loading.set(false);
+    }
+  }
+
+  protected onPage(e: PageEvent): void {
+    const sizeChanged = e.pageSize !== this.pageSize();
+    this.pageSize.set(e.pageSize);
+    void this.reload(sizeChanged ? 0 : e.pageIndex * e.pageSize);
+  }
+
+  /** The CSV holds every order matching the filters, not only this page. */
+  protected async exportCsv(): Promise<void> {
+    this.exporting.set(true);
+    try {
+      downloadText(this.doc, `work-orders-${this.today}.csv`, workOrdersToCsv(await this.listApi.all(this.filter())));
+    } catch (e) {
+      this.error.set(errorText(e));
+    } finally {
+      this.exporting.set(false);
+    }
   }
 }
