@@ -16,6 +16,12 @@ export function newApiDoc(): ApiDoc {
   return doc;
 }
 
+/** Paging fields of a list asked for with `offset` (server/services/list-page.ts). */
+export const pageCounts = { total: z.number().int(), limit: z.number().int(), offset: z.number().int() };
+
+/** A list route's answer: the whole list, or with `offset` one page `{ items, total, limit, offset }`. */
+export const listOrPage = <T extends z.ZodType>(item: T) => z.union([z.array(item), z.object({ items: z.array(item), ...pageCounts })]);
+
 /** Every error answer: `{ error, field? }` (server/routes/errors.ts). */
 export const ApiError = z.object({ error: z.string(), field: z.string().optional().openapi({ description: 'the request field at fault' }) }).openapi('Error');
 

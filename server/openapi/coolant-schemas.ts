@@ -10,7 +10,7 @@ import type { ImportResult } from '../services/coolant/coolant-tests';
 import type { DueSiteView, PlanTask as PlanTaskType } from '../services/coolant/service-plan';
 import { TEST_METHODS, TOP_UP_LIQUIDS } from '../models/coolant-models';
 import { WORK_KINDS } from '../services/work-templates';
-import { covers } from './api-doc';
+import { covers, pageCounts } from './api-doc';
 
 const isoTime = z.string().openapi({ format: 'date-time' });
 const n = z.number();
@@ -234,6 +234,10 @@ const dueSite = z.object({
 });
 covers<DueSiteView>()(dueSite);
 export const DueList = z.object({ now: isoTime, windowDays: n, windowHours: n, sites: z.array(dueSite) }).openapi('DueList');
+/** With `offset`: one page of the rows across the sites, each site with its own row count. */
+export const DueListPage = z
+  .object({ now: isoTime, windowDays: n, windowHours: n, sites: z.array(dueSite.extend({ entryTotal: z.number().int() })), ...pageCounts })
+  .openapi('DueListPage');
 
 // ---- calculators (compute, never store)
 

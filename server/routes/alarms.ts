@@ -8,7 +8,7 @@ import { badRequest } from '../http-error';
 import type { AlarmFeature } from '../services/alarms';
 import { assertAlarmVisible, siteFilter, siteScopeOf, visibleEngineIds } from '../services/site-access';
 import { idParam, instant, parse, parseId } from './validate';
-import { route, type ApiDoc } from '../openapi/api-doc';
+import { listOrPage, route, type ApiDoc } from '../openapi/api-doc';
 import { Alarm, AlarmDetail, AlarmHistoryPage, AlarmPerformance, AlarmSummary } from '../openapi/alarm-schemas';
 import { engineIdsMatching, pageFields, pageOf, PAGE_MAX_LIMIT } from '../services/list-page';
 
@@ -56,7 +56,7 @@ export function alarmsRouter(ctx: AppContext, feature: AlarmFeature, doc: ApiDoc
   const engineIds = async (req: Request) => visibleEngineIds(ctx.models, await siteScopeOf(req));
   const visible = async (req: Request, id: number) => assertAlarmVisible(ctx.models, await siteScopeOf(req), id);
   r.use('/alarms', requireAuth);
-  route(doc, { method: 'get', path: '/alarms', id: 'listAlarms', tag, summary: 'Alarms', access: 'signed-in', query: listQuery, ok: z.array(Alarm) });
+  route(doc, { method: 'get', path: '/alarms', id: 'listAlarms', tag, summary: 'Alarms', access: 'signed-in', query: listQuery, ok: listOrPage(Alarm) });
   r.get('/alarms', async (req, res) => {
     const q = parse(listQuery, req.query);
     const scope = await siteScopeOf(req);

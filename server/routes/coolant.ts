@@ -10,6 +10,7 @@ import {
   CoolantLimits,
   CoolantTest,
   DueList,
+  DueListPage,
   LabImport,
   PlanTask,
   RunHoursAdjustment,
@@ -369,7 +370,7 @@ export function coolantRouter(ctx: AppContext, doc: ApiDoc): Router {
     summary: 'Service tasks overdue or due soon, by site',
     access: 'signed-in',
     query: dueQuery,
-    ok: DueList,
+    ok: z.union([DueList, DueListPage]),
   });
   r.get('/due-list', async (req, res) => {
     const q = parse(dueQuery, req.query);

@@ -12,7 +12,7 @@ import { createEngine, engineView, getEngine, listEngines, listEnginesPage, reti
 import { queryBuckets } from '../services/readings-query';
 import { assertEngineVisible, siteFilter, siteScopeOf } from '../services/site-access';
 import { idParam, instant, parse, parseId } from './validate';
-import { route, type ApiDoc } from '../openapi/api-doc';
+import { listOrPage, route, type ApiDoc } from '../openapi/api-doc';
 import { Buckets, Engine, EngineStatus } from '../openapi/core-schemas';
 import { pageFields, pageOf } from '../services/list-page';
 
@@ -71,7 +71,7 @@ export function enginesRouter(ctx: AppContext, doc: ApiDoc): Router {
     summary: 'Engines with live values',
     access: 'signed-in',
     query: listQuery,
-    ok: z.array(EngineStatus),
+    ok: listOrPage(EngineStatus),
   });
   r.get('/engines', async (req, res) => {
     const q = parse(listQuery, req.query);

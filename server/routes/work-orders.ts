@@ -27,7 +27,7 @@ import { AlreadyRecordedError, recordOrderCoolantTest } from '../services/work-o
 import { TEST_METHODS } from '../models/coolant-models';
 import { WorkOrderService } from '../services/work-orders/work-order-service';
 import { idParam, parse, parseId } from './validate';
-import { route, type ApiDoc } from '../openapi/api-doc';
+import { listOrPage, route, type ApiDoc } from '../openapi/api-doc';
 import {
   AlreadyRecorded,
   Assignee,
@@ -234,7 +234,7 @@ export function workOrdersRouterWithService(ctx: AppContext, doc: ApiDoc): WorkR
     description: '`status`: comma-separated.',
     access: 'signed-in',
     query: listQuery,
-    ok: z.array(WorkOrder),
+    ok: listOrPage(WorkOrder),
   });
   r.get('/work-orders', async (req, res) => {
     const q = parse(listQuery, req.query);
