@@ -147,14 +147,7 @@ export class AlarmListPage {
     if (!this.fleet.engines().length) void this.fleet.load();
 
     effect(() => {
-      const filter = {
-        siteId: this.siteId(),
-        engineId: this.engineId(),
-        priority: this.priority(),
-        state: this.state(),
-        offset: this.offset(),
-        limit: this.pageSize(),
-      };
+      const filter = this.historyFilter();
       if (this.view() === 'all') untracked(() => void this.loadHistory(filter));
     });
     // Live: a changed alarm replaces its old line in the history too (a new one shows on the first page).
@@ -209,14 +202,12 @@ export class AlarmListPage {
   }
 
   protected retryHistory(): void {
-    void this.loadHistory({
-      siteId: this.siteId(),
-      engineId: this.engineId(),
-      priority: this.priority(),
-      state: this.state(),
-      offset: this.offset(),
-      limit: this.pageSize(),
-    });
+    void this.loadHistory(this.historyFilter());
+  }
+
+  /** The history page asked for: the filters on screen and the page (signals read here are the effect's triggers). */
+  private historyFilter(): AlarmHistoryFilter {
+    return { siteId: this.siteId(), engineId: this.engineId(), priority: this.priority(), state: this.state(), offset: this.offset(), limit: this.pageSize() };
   }
 
   protected onPage(e: PageEvent): void {
