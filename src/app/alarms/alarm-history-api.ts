@@ -1,6 +1,6 @@
 import { HttpClient } from '@angular/common/http';
 import { Injectable, inject } from '@angular/core';
-import { firstValueFrom } from 'rxjs';
+import type { Observable } from 'rxjs';
 import type { AlarmState } from '../../../shared/alarms/alarm-state';
 import { ListPage } from '../core/list-page';
 import { Alarm, AlarmPriority } from './alarm-types';
@@ -19,12 +19,12 @@ export interface AlarmHistoryFilter {
 export class AlarmHistoryApi {
   private readonly http = inject(HttpClient);
 
-  page(f: AlarmHistoryFilter): Promise<ListPage<Alarm>> {
+  page(f: AlarmHistoryFilter): Observable<ListPage<Alarm>> {
     const params: Record<string, string> = { state: 'all', offset: String(f.offset), limit: String(f.limit) };
     if (f.siteId !== null) params['siteId'] = String(f.siteId);
     if (f.engineId !== null) params['engineId'] = String(f.engineId);
     if (f.priority !== null) params['priority'] = f.priority;
     if (f.state !== null) params['alarmState'] = f.state;
-    return firstValueFrom(this.http.get<ListPage<Alarm>>('/api/alarms', { params }));
+    return this.http.get<ListPage<Alarm>>('/api/alarms', { params });
   }
 }

@@ -1,3 +1,4 @@
+import { firstValueFrom } from 'rxjs';
 import { ChangeDetectionStrategy, Component, computed, effect, inject, linkedSignal, signal, untracked } from '@angular/core';
 import { MatButtonModule } from '@angular/material/button';
 import { MatButtonToggleModule } from '@angular/material/button-toggle';
@@ -221,7 +222,7 @@ export class AlarmListPage {
     this.historyLoading.set(true);
     this.error.set(null);
     try {
-      const page = await this.historyApi.page(filter);
+      const page = await firstValueFrom(this.historyApi.page(filter));
       if (seq !== this.loadSeq) return; // a later request (another filter or page) answers instead
       this.history.set(page.items);
       this.historyTotal.set(page.total);

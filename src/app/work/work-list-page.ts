@@ -1,3 +1,4 @@
+import { firstValueFrom } from 'rxjs';
 import { DOCUMENT } from '@angular/common';
 import { ChangeDetectionStrategy, Component, computed, inject, signal } from '@angular/core';
 import { NonNullableFormBuilder, ReactiveFormsModule } from '@angular/forms';
@@ -335,7 +336,7 @@ export class WorkListPage {
     this.loading.set(true);
     this.error.set(null);
     try {
-      const page = await this.listApi.page(this.filter(), offset, this.pageSize());
+      const page = await firstValueFrom(this.listApi.page(this.filter(), offset, this.pageSize()));
       if (seq !== this.loadSeq) return; // a later request answers instead
       this.orders.set(page.items);
       this.total.set(page.total);
@@ -356,7 +357,7 @@ export class WorkListPage {
   protected async exportCsv(): Promise<void> {
     this.exporting.set(true);
     try {
-      downloadText(this.doc, `work-orders-${this.today}.csv`, workOrdersToCsv(await this.listApi.all(this.filter())));
+      downloadText(this.doc, `work-orders-${this.today}.csv`, workOrdersToCsv(await firstValueFrom(this.listApi.all(this.filter()))));
     } catch (e) {
       this.error.set(errorText(e));
     } finally {
