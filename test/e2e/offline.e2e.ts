@@ -157,7 +157,7 @@ describe('the technician app without a network (service worker, IndexedDB outbox
     );
     const index = await fetch(`${stack.baseUrl}/`);
     assert.equal(index.headers.get('cache-control'), 'no-cache', 'index.html is never HTTP-cached');
-    assert.match(await index.text(), /<link rel="manifest" href="manifest.webmanifest">/);
+    assert.match(await index.text(), /<link rel="manifest" href="manifest.webmanifest"\s*\/?>/);
     for (const f of ['ngsw.json', 'ngsw-worker.js']) assert.equal((await fetch(`${stack.baseUrl}/${f}`)).headers.get('cache-control'), 'no-cache', f);
 
     await signIn(page, stack, ACCOUNTS.technician);
