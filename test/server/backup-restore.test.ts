@@ -4,7 +4,6 @@
  * starts on it. The copy is one consistent instant: per engine and channel, every reading up to the newest
  * one in the copy is there (same rows, same checksum as the live database), and nothing is half-written.
  */
-import { spawn } from 'node:child_process';
 import crypto from 'node:crypto';
 import fs from 'node:fs';
 import os from 'node:os';
@@ -14,34 +13,16 @@ import { telemetryTopic } from '../../shared/topics';
 import { Db, seedFleet, startServerProcess, type SeededDevice, type ServerProcess } from './support/telemetry-server';
 import { until as untilOf } from './support/until';
 import { isPg } from './support/test-db';
+import { npmRun } from './support/npm-run';
 
-const ROOT = path.resolve(__dirname, '../..');
 const work = fs.mkdtempSync(path.join(os.tmpdir(), 'jw-backup-'));
 let server: ServerProcess;
 let db: Db;
 let fleet: SeededDevice[];
 let client: MqttClient | null = null;
 
-interface Run {
-  code: number | null;
-  out: string;
-  err: string;
-}
 /** `npm run <script> -- args` as its own process, with the given DATA_DIR. */
-function npmRun(script: string, args: string[], dataDir: string): Promise<Run> {
-  return new Promise((resolve) => {
-    const child = spawn('npm', ['run', '-s', script, '--', ...args], {
-      cwd: ROOT,
-      env: { ...process.env, DATA_DIR: dataDir, DATABASE_URL: '' },
-      stdio: ['ignore', 'pipe', 'pipe'],
-    });
-    let out = '';
-    let err = '';
-    child.stdout.on('data', (d) => (out += d));
-    child.stderr.on('data', (d) => (err += d));
-    child.once('exit', (code) => resolve({ code, out, err }));
-  });
-}
+const run = (script: string, args: string[], dataDir: string) => npmRun(script, args, { DATA_DIR: dataDir, DATABASE_URL: '' });
 
 const until = <T>(what: string, fn: () => Promise<T>, ok: (v: T) => boolean, ms = 30_000) => untilOf(what, fn, ok, ms);
 
@@ -117,7 +98,7 @@ afterAll(async () => {
     await until('readings before the backup', readingCount, (n) => n >= 10_000);
 
     const file = path.join(work, 'backups', 'during-ingest.sqlite');
-    const made = await npmRun('backup', ['--out', file], server.dataDir);
+    const made = await run('backup', ['--out', file], server.dataDir);
     expect(made.err).toBe('');
     expect(made.code).toBe(0);
     const report = JSON.parse(made.out);
@@ -134,17 +115,17 @@ afterAll(async () => {
     await until('every acknowledged reading stored', readingCount, (n) => n === acknowledged);
 
     // a second backup to the same name is refused, nothing overwritten
-    const again = await npmRun('backup', ['--out', file], server.dataDir);
+    const again = await run('backup', ['--out', file], server.dataDir);
     expect(again.code).toBe(1);
     expect(again.err).toMatch(/exists already/);
 
     // restore refuses a DATA_DIR that holds anything
-    const refused = await npmRun('restore', ['--from', file], server.dataDir);
+    const refused = await run('restore', ['--from', file], server.dataDir);
     expect(refused.code).toBe(1);
     expect(refused.err).toMatch(/is not empty/);
 
     const restoredDir = path.join(work, 'restored');
-    const restored = await npmRun('restore', ['--from', file], restoredDir);
+    const restored = await run('restore', ['--from', file], restoredDir);
     expect(restored.err).toBe('');
     expect(restored.code).toBe(0);
     expect(JSON.parse(restored.out).rows).toEqual(report.rows); // every table, row for row count
@@ -177,7 +158,7 @@ afterAll(async () => {
     }
 
     // `--check` reads a backup without restoring it
-    const checked = await npmRun('restore', ['--from', file, '--check'], path.join(work, 'unused'));
+    const checked = await run('restore', ['--from', file, '--check'], path.join(work, 'unused'));
     expect(checked.code).toBe(0);
     expect(JSON.parse(checked.out).integrity).toBe('ok');
     expect(fs.existsSync(path.join(work, 'unused'))).toBe(false);

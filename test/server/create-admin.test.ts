@@ -4,40 +4,20 @@
  * on the same database where that administrator signs in. Refusals (weak password, e-mail taken, no password)
  * exit non-zero with the reason and create nobody.
  */
-import { spawn } from 'node:child_process';
 import fs from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
 import { startServerProcess, type ServerProcess } from './support/telemetry-server';
 import { createTestDatabase, type TestDatabase } from './support/test-db';
+import { npmRun } from './support/npm-run';
 
-const ROOT = path.resolve(__dirname, '../..');
 const work = fs.mkdtempSync(path.join(os.tmpdir(), 'jw-create-admin-'));
 let database: TestDatabase;
 let server: ServerProcess | null = null;
 
-interface Run {
-  code: number | null;
-  out: string;
-  err: string;
-}
-
-function createAdmin(args: string[], stdin: string | null): Promise<Run> {
-  return new Promise((resolve) => {
-    const child = spawn('npm', ['run', '-s', 'create-admin', '--', ...args], {
-      cwd: ROOT,
-      env: { ...process.env, NODE_ENV: 'production', DATA_DIR: work, DATABASE_URL: database.url, LOG_LEVEL: 'warn' },
-      stdio: ['pipe', 'pipe', 'pipe'],
-    });
-    let out = '';
-    let err = '';
-    child.stdout.on('data', (d) => (out += d));
-    child.stderr.on('data', (d) => (err += d));
-    child.once('exit', (code) => resolve({ code, out, err }));
-    if (stdin !== null) child.stdin.write(stdin);
-    child.stdin.end();
-  });
-}
+/** The command as an operator runs it on a production install, the password on standard input. */
+const createAdmin = (args: string[], stdin: string | null) =>
+  npmRun('create-admin', args, { NODE_ENV: 'production', DATA_DIR: work, DATABASE_URL: database.url, LOG_LEVEL: 'warn' }, stdin);
 
 const PASSWORD = 'pump-house-night-shift-47';
 
