@@ -126,7 +126,16 @@ export const DeviceWithSecret = Device.extend({ secret: z.string().openapi({ des
 const counts = { received: z.number().int(), stored: z.number().int(), duplicate: z.number().int(), buffered: z.number().int() };
 export const Health = z.object({
   status: z.enum(['ok', 'degraded']),
-  broker: z.object({ connected: z.boolean(), lastError: z.string().nullable(), retryInMs: z.number(), since: isoTime }).optional(),
+  broker: z
+    .object({
+      connected: z.boolean(),
+      lastError: z.string().nullable(),
+      retryInMs: z.number(),
+      since: isoTime,
+      // the Sparkplug B Primary Host role: held by one server at a time (online: STATE published)
+      sparkplugHost: z.object({ hostId: z.string(), holder: z.boolean(), online: z.boolean() }).optional(),
+    })
+    .optional(),
   cluster: z
     .object({
       connected: z.boolean(),

@@ -95,8 +95,8 @@ export class SparkplugHost {
     this.now = deps.now ?? Date.now;
   }
 
-  /** The broker's publish, for NCMD; given once the broker runs. */
-  attach(publish: (topic: string, payload: Buffer) => void): void {
+  /** The broker's publish, for NCMD; given once the broker runs (external broker: the host connection's). */
+  attach(publish: ((topic: string, payload: Buffer) => void) | null): void {
     this.publish = publish;
   }
 
@@ -214,6 +214,22 @@ export class SparkplugHost {
       this.externalClients.delete(key);
       this.sessions.delete(key);
     }
+  }
+
+  /**
+   * External broker: this server took or gave up the host role. Every node session known here ends (another
+   * server may have seen births and deaths meanwhile): the nodes are asked to rebirth (rebirthAll) when the
+   * role is taken, and their data until then asks again.
+   */
+  forgetAll(): void {
+    this.externalClients.clear();
+    this.sessions.clear();
+    this.lastRebirth.clear();
+  }
+
+  /** Asks every given edge node for its births (the nodes registered here, when the host role is taken). */
+  rebirthAll(nodes: Array<{ groupId: string; edgeNodeId: string }>): void {
+    for (const n of nodes) if (!this.sessions.has(this.nodeKey(n))) this.requestRebirth(n);
   }
 
   /**
