@@ -163,7 +163,16 @@ export const IngestReport = z.object({
       batchLatencyMs: z.object({ last: z.number(), p50: z.number(), p95: z.number(), max: z.number() }),
       eventLoopDelayMs: z.object({ p50: z.number(), p99: z.number(), max: z.number(), worst: z.number() }).optional(),
       startedAt: isoTime,
-      sparkplug: z.object({ births: z.number(), deaths: z.number(), seqGaps: z.number(), rebirthRequests: z.number(), nodesOnline: z.number() }).optional(),
+      sparkplug: z
+        .object({
+          births: z.number(),
+          deaths: z.number(),
+          seqGaps: z.number(),
+          rebirthRequests: z.number(),
+          nodesOnline: z.number(),
+          sessionsEndedByRecord: z.number(),
+        })
+        .optional(),
     })
     .nullable(),
   rejections: z.array(

@@ -46,7 +46,7 @@ export interface IngestCounters {
   eventLoopDelayMs?: LoopDelay & { worst: number };
   startedAt: string;
   /** Sparkplug B sessions (embedded broker only). */
-  sparkplug?: { births: number; deaths: number; seqGaps: number; rebirthRequests: number; nodesOnline: number };
+  sparkplug?: { births: number; deaths: number; seqGaps: number; rebirthRequests: number; nodesOnline: number; sessionsEndedByRecord: number };
 }
 
 export interface LoopDelay {

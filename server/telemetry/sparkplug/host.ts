@@ -76,6 +76,8 @@ export interface SparkplugStats {
   seqGaps: number;
   rebirthRequests: number;
   nodesOnline: number;
+  /** External broker: node sessions ended because one of the node's device records was revoked or rotated (on any server). */
+  sessionsEndedByRecord: number;
 }
 
 type Callback = (err?: Error | null) => void;
@@ -88,7 +90,7 @@ export class SparkplugHost {
   private publish: ((topic: string, payload: Buffer) => void) | null = null;
   /** External broker: the edge nodes known here, as the client they stand for (its node record). */
   private readonly externalClients = new Map<string, SparkplugClient>();
-  private readonly stats = { births: 0, deaths: 0, seqGaps: 0, rebirthRequests: 0 };
+  private readonly stats = { births: 0, deaths: 0, seqGaps: 0, rebirthRequests: 0, sessionsEndedByRecord: 0 };
   private readonly now: () => number;
 
   constructor(private readonly deps: SparkplugHostDeps) {
@@ -213,6 +215,7 @@ export class SparkplugHost {
       if (!involved) continue;
       this.externalClients.delete(key);
       this.sessions.delete(key);
+      this.stats.sessionsEndedByRecord++;
     }
   }
 
