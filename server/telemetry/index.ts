@@ -240,39 +240,54 @@ export async function startTelemetry(
     let holder = false;
     let roleChange: Promise<void> = Promise.resolve();
     const setHolder = (want: boolean): Promise<void> =>
-      (roleChange = roleChange.then(async () => {
-        if (want === holder || (want && stopping)) return;
-        holder = want;
-        sparkplug.forgetAll(); // sessions seen before are not to be trusted: another server may have had the role
-        if (want) {
-          await deps.sparkplugHostReady?.().catch((err: unknown) => log.warn('sparkplug host: broker rights not confirmed', err));
-          const conn = openHostConnection({
-            url: mqttUrl,
-            hostId: config.sparkplugHostId,
-            log,
-            onMessage: (topic, payload, done) => {
-              if (host === conn) sparkplug.fromExternal(topic, payload, done);
-              else done();
-            },
-            // the nodes we have no session for are asked for their births, so their aliases are known here
-            onOnline: () =>
-              void readSparkplugNodes(sequelize).then(
-                (nodes) => host === conn && sparkplug.rebirthAll(nodes),
-                (err: unknown) => log.warn('sparkplug host: reading the registered nodes failed', err),
-              ),
-          });
-          host = conn;
-          sparkplug.attach((topic, payload) => conn.publish(topic, payload));
-        } else {
-          const conn = host;
-          host = null;
-          sparkplug.attach(null);
-          await conn?.close();
-        }
-      }));
+      (roleChange = roleChange
+        .catch((err: unknown) => log.warn('sparkplug host: changing the role failed', err))
+        .then(async () => {
+          if (want === holder || (want && stopping)) return;
+          holder = want;
+          sparkplug.forgetAll(); // sessions seen before are not to be trusted: another server may have had the role
+          if (want) {
+            // at most 10 s: a broker that refuses our account must not hold up the start (the connection retries anyway)
+            if (deps.sparkplugHostReady) {
+              let timer: NodeJS.Timeout | undefined;
+              const late = new Promise<void>((_, reject) => {
+                timer = setTimeout(() => reject(new Error('no answer from the broker within 10 s')), 10_000);
+              });
+              await Promise.race([deps.sparkplugHostReady(), late])
+                .catch((err: unknown) => log.warn(`sparkplug host: broker rights not confirmed (${err instanceof Error ? err.message : String(err)})`))
+                .finally(() => clearTimeout(timer));
+            }
+            if (stopping) {
+              holder = false;
+              return;
+            }
+            const conn = openHostConnection({
+              url: mqttUrl,
+              hostId: config.sparkplugHostId,
+              log,
+              onMessage: (topic, payload, done) => {
+                if (host === conn) sparkplug.fromExternal(topic, payload, done);
+                else done();
+              },
+              // the nodes we have no session for are asked for their births, so their aliases are known here
+              onOnline: () =>
+                void readSparkplugNodes(sequelize).then(
+                  (nodes) => host === conn && sparkplug.rebirthAll(nodes),
+                  (err: unknown) => log.warn('sparkplug host: reading the registered nodes failed', err),
+                ),
+            });
+            host = conn;
+            sparkplug.attach((topic, payload) => conn.publish(topic, payload));
+          } else {
+            const conn = host;
+            host = null;
+            sparkplug.attach(null);
+            await conn?.close();
+          }
+        }));
     if (deps.hostRole) deps.hostRole.onChange(setHolder);
     else if (config.mqttSharedGroup) log.warn('sparkplug: not taken through the external broker (MQTT_SHARED_GROUP without CLUSTER on PostgreSQL)');
-    else await setHolder(true);
+    else void setHolder(true); // not awaited: the start does not wait for the broker
     hostState = () => ({ hostId: config.sparkplugHostId, holder, online: host?.online() ?? false });
     stopHost = () => setHolder(false);
     deps.access?.onDeviceChanged((deviceId) => sparkplug.forgetExternalRecord(deviceId));
