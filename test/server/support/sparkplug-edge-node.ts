@@ -110,8 +110,8 @@ export class TestEdgeNode {
     if (!rebirth) return;
     this.rebirthsAsked.push(at);
     this.online = true; // only the primary host commands us
+    this.rebirthsAnswered.push(Date.now()); // the answer starts with the births
     await this.births();
-    this.rebirthsAnswered.push(Date.now());
     const kept = this.kept;
     this.kept = [];
     for (const k of kept) await this.data(k.of, k.ts, k.value, true);
