@@ -10,6 +10,11 @@
  *   5. SIGKILL of one server: the other takes all its engines within 30 s; an alarm active on a moved engine
  *      clears on the new owner (rule state moved), a new alarm there is raised and e-mailed once; the killed
  *      server restarted collects what waited in its session: every reading stored once, nothing doubled.
+ *   6. Sparkplug B (one Primary Host among the servers): a registered edge node's births and data are stored once
+ *      by the server holding the host role while both run (the other takes no Sparkplug message); SIGKILL of the
+ *      holder (step 5): the other takes the role within 30 s and asks the node to rebirth; everything the node
+ *      sends from its answer on (with what it kept while the host's STATE said offline) is stored once; a revoke
+ *      made on the server without the role ends storage for the revoked record on the holder.
  * Prints what it ran and its figures. Exit code 0 when every check held.
  */
 import assert from 'node:assert/strict';
@@ -26,6 +31,7 @@ import { mosquittoInstalled, startMosquitto, type Mosquitto } from '../test/serv
 import { spawnInGroup, stopGroup } from '../test/server/support/process-group';
 import { Db, freePort } from '../test/server/support/telemetry-server';
 import { Client } from '../test/server/support/test-db';
+import { TestEdgeNode, type SentValue } from '../test/server/support/sparkplug-edge-node';
 import { startPgCluster, type PgCluster } from './with-postgres';
 
 const ROOT = path.resolve(__dirname, '..');
@@ -57,7 +63,7 @@ interface Seen {
 }
 interface Health {
   status: string;
-  broker?: { connected: boolean };
+  broker?: { connected: boolean; sparkplugHost?: { hostId: string; holder: boolean; online: boolean } };
   ingest: { received: number; duplicate: number };
   cluster: { connected: boolean; members: number; owned: number; ownedPartitions: number[]; relay: { sentReadings: number; receivedReadings: number } | null };
 }
@@ -67,6 +73,7 @@ let mq: Mosquitto | null = null;
 const instances: Instance[] = [];
 const sockets: Socket[] = [];
 const clients: MqttClient[] = [];
+let edgeNode: TestEdgeNode | null = null;
 let db: Db | null = null;
 const figures: Record<string, string | number> = {};
 
@@ -451,6 +458,76 @@ async function main(): Promise<void> {
   assert.match(mq.log(), new RegExp(`Denied PUBLISH from dev-${d0.username}`));
   say(`4. ok: ${d0.username} publishing on engine ${d1.engineId}'s topic denied by the broker, nothing stored`);
 
+  // 6a. Sparkplug B: a holds the host role (it started first); an edge node registered through b, its births and
+  // data stored once by a alone
+  const [haRole, hbRole] = [await health(a), await health(b)];
+  assert.equal(haRole.broker?.sparkplugHost?.holder, true, 'a, started first, holds the Sparkplug host role');
+  assert.equal(hbRole.broker?.sparkplugHost?.holder, false, 'b does not');
+  const spEngines: number[] = [];
+  for (const name of ['Scale edge node engine', 'Scale edge device engine'])
+    spEngines.push(
+      await db.run(
+        `INSERT INTO engines (site_id, name, duty, capacity_l, coolant_family, glycol_type, glycol_percent, cap_pressure_kpa, oil_drain_interval_h, run_hours, safe_open_temp_c, out_of_service, created_at, updated_at)
+         VALUES (?, ?, 'prime', 60, 'conventional', 'ethylene', 50, 100, 250, 0, 50, FALSE, ?, ?)`,
+        [siteId, name, now, now],
+      ),
+    );
+  const register = async (engineId: number, sparkplug: Record<string, string>) => {
+    const res = await fetch(`${b.url}/api/devices`, {
+      method: 'POST',
+      headers: { 'content-type': 'application/json', authorization: `Bearer ${token}` },
+      body: JSON.stringify({ engineId, sparkplug }),
+    });
+    assert.equal(res.status, 201, `Sparkplug record for engine ${engineId}`);
+    return (await res.json()) as { id: number; username: string; secret: string };
+  };
+  const nodeRecord = await register(spEngines[0], { groupId: 'Scale', edgeNodeId: 'gw1' });
+  const pumpRecord = await register(spEngines[1], { groupId: 'Scale', edgeNodeId: 'gw1', deviceId: 'pump1' });
+  const node = new TestEdgeNode({
+    url: `mqtt://127.0.0.1:${mq.port}`,
+    username: nodeRecord.username,
+    password: nodeRecord.secret,
+    groupId: 'Scale',
+    edgeNodeId: 'gw1',
+    deviceId: 'pump1',
+    hostId: 'jacketwatch',
+    everyMs: FLOW_MS,
+  });
+  edgeNode = node;
+  await node.start();
+  const spRows = async () =>
+    db!.all<{ engine_id: number; ts: number }>(`SELECT engine_id, ts FROM readings WHERE engine_id IN (${spEngines.join(',')}) ORDER BY ts`);
+  const keyOf = (v: SentValue) => `${v.of === 'node' ? spEngines[0] : spEngines[1]}/${v.ts}`;
+  const rowKeys = async () => new Set((await spRows()).map((r) => `${Number(r.engine_id)}/${Number(r.ts)}`));
+  const ingestReport = async (s: Instance) =>
+    (
+      (await (await fetch(`${s.url}/api/admin/ingest`, { headers: { authorization: `Bearer ${token}` } })).json()) as {
+        counters: { sparkplug?: { births: number; rebirthRequests: number; sessionsEndedByRecord: number } };
+      }
+    ).counters.sparkplug;
+  await waitFor(
+    'the edge node born and sending',
+    () => node.sent.length,
+    (n) => n >= 20,
+  );
+  await node.pause(true);
+  const before = [...node.sent];
+  await waitFor(
+    `the node's ${before.length} values stored`,
+    () => spRows(),
+    (r) => r.length === before.length,
+  );
+  const keys0 = await rowKeys();
+  assert.ok(
+    before.every((v) => keys0.has(keyOf(v))),
+    'every value the node sent is a row',
+  );
+  const [spA, spB] = [await ingestReport(a), await ingestReport(b)];
+  assert.ok((spA?.births ?? 0) >= 2 && spB?.births === 0, `births taken by the holder only: a ${spA?.births}, b ${spB?.births}`);
+  await node.pause(false);
+  figures['6a. Sparkplug values sent / rows while both servers run (births on a / b)'] = `${before.length} / ${keys0.size} (${spA?.births} / ${spB?.births})`;
+  say(`6a. ok: a holds the Sparkplug host role; the edge node's ${before.length} values (births and data) stored once, by a only`);
+
   // 5. SIGKILL a while devices keep publishing: b takes every engine within 30 s. a is started again at once, as its
   // process supervisor would: the broker keeps a's share of the messages in a's persistent session meanwhile
   // (mosquitto 2.0 goes on handing a dead member of a shared group its share), and a collects them when back.
@@ -466,7 +543,27 @@ async function main(): Promise<void> {
   const takeoverS = (Date.now() - killedAt) / 1000;
   figures['5. engines moved to b after SIGKILL of a (s)'] = takeoverS.toFixed(1);
   assert.ok(takeoverS < 30, `take-over in ${takeoverS} s`);
-  say(`   b owns ${hb2.cluster.owned} of ${PARTITIONS} partitions ${takeoverS.toFixed(1)} s after the kill (${hb2.cluster.members} server left); a restarting`);
+  say(`   b owns ${hb2.cluster.owned} of ${PARTITIONS} partitions ${takeoverS.toFixed(1)} s after the kill (${hb2.cluster.members} server left)`);
+  // 6b. the Sparkplug host role moves to b, which asks the node to rebirth
+  const askedAt = await waitFor(
+    'b asks the edge node to rebirth',
+    () => node.rebirthsAsked.find((t) => t > killedAt) ?? 0,
+    (t) => t > 0,
+    30_000,
+  );
+  const roleS = (askedAt - killedAt) / 1000;
+  assert.ok(roleS < 30, `Sparkplug host role taken over in ${roleS} s`);
+  const hbRole2 = await health(b);
+  assert.equal(hbRole2.broker?.sparkplugHost?.holder, true, 'b holds the Sparkplug host role');
+  const answeredAt = await waitFor(
+    'the node answers with its births',
+    () => node.rebirthsAnswered.find((t) => t >= askedAt) ?? 0,
+    (t) => t > 0,
+  );
+  const offlineSeen = node.hostOffline.find((t) => t >= killedAt);
+  figures['6b. Sparkplug host role on b, rebirth asked, after SIGKILL of a (s)'] = roleS.toFixed(1);
+  figures["6b. the host's STATE offline seen by the node after the kill (s)"] = offlineSeen ? ((offlineSeen - killedAt) / 1000).toFixed(2) : 'not seen';
+  say(`6b. b took the Sparkplug host role and asked the node to rebirth ${roleS.toFixed(1)} s after the kill; a restarting`);
   const restarting = startInstance('a', env, a);
   // the moved engine cools down: its owner clears and closes the acknowledged alarm, so the rule's state came along
   hot.delete(engineOnA);
@@ -479,6 +576,59 @@ async function main(): Promise<void> {
     async () => [await health(restarted), await health(b)],
     ([x, y]) => x.cluster.owned > 0 && y.cluster.owned > 0 && x.cluster.owned + y.cluster.owned === PARTITIONS,
   );
+  // 6c. everything the node sent from its answer on (the values it kept while the host was offline, flagged
+  // historical, then new data) is stored once
+  await waitFor(
+    'the node sending on after its rebirth',
+    () => node.sent.filter((v) => v.at >= answeredAt && v.kind === 'data').length,
+    (n) => n >= 10,
+  );
+  const after = node.sent.filter((v) => v.at >= answeredAt);
+  await waitFor(`the ${after.length} values sent from the rebirth on stored`, rowKeys, (k) => after.every((v) => k.has(keyOf(v))));
+  const gap = node.sent.filter((v) => v.at >= killedAt && v.at < answeredAt);
+  const keys1 = await rowKeys();
+  const sentKeys = new Set(node.sent.map(keyOf));
+  assert.ok(
+    [...keys1].every((k) => sentKeys.has(k)),
+    'no row the node did not send',
+  );
+  const lostBefore = node.sent.filter((v) => v.at < answeredAt && !keys1.has(keyOf(v)));
+  figures['6c. Sparkplug values sent from the rebirth on / stored (of them kept while offline)'] =
+    `${after.length} / ${after.filter((v) => keys1.has(keyOf(v))).length} (${after.filter((v) => v.kind === 'historical').length})`;
+  figures['6c. Sparkplug values sent between the kill and the rebirth (births) / not stored (sent to the dead holder)'] =
+    `${gap.length} (${gap.filter((v) => v.kind === 'birth').length}) / ${lostBefore.length}`;
+  say(
+    `6c. ok: ${after.length} values sent from the rebirth on all stored once (${after.filter((v) => v.kind === 'historical').length} kept while the host was offline)`,
+  );
+
+  // 6d. a revoke made on a (no host role now) ends storage for the revoked record on b (the holder)
+  const [haRole3, hbRole3] = [await health(restarted), await health(b)];
+  assert.ok(haRole3.broker?.sparkplugHost?.holder === false && hbRole3.broker?.sparkplugHost?.holder === true, 'b holds the role, restarted a not');
+  const endedBefore = (await ingestReport(b))?.sessionsEndedByRecord ?? 0;
+  const revoked = await fetch(`${restarted.url}/api/devices/${pumpRecord.id}/revoke`, { method: 'POST', headers: { authorization: `Bearer ${token}` } });
+  assert.equal(revoked.status, 200, 'pump record revoked through a');
+  await waitFor(
+    "the node's session ended on b",
+    async () => (await ingestReport(b))?.sessionsEndedByRecord ?? 0,
+    (n) => n > endedBefore,
+  );
+  const cutTs = Math.max(...node.sent.filter((v) => v.of === 'device').map((v) => v.ts));
+  const effectAt = Date.now();
+  // the node goes on sending; b asks it to rebirth, and the pump's DBIRTH finds no record
+  await waitFor(
+    'a rebirth answered after the revoke, and the pump sending on',
+    () => node.sent.filter((v) => v.of === 'device' && v.kind === 'data' && v.at > (node.rebirthsAnswered.find((t) => t > effectAt) ?? Infinity)).length,
+    (n) => n >= 5,
+  );
+  const fence = node.sent.filter((v) => v.of === 'node').at(-1)!;
+  await waitFor('a node value sent after those stored', rowKeys, (k) => k.has(keyOf(fence)));
+  const pumpAfter = (await spRows()).filter((r) => Number(r.engine_id) === spEngines[1] && Number(r.ts) > cutTs);
+  assert.equal(pumpAfter.length, 0, 'nothing stored for the revoked record after the revoke reached the holder');
+  const pumpSentAfter = node.sent.filter((v) => v.of === 'device' && v.ts > cutTs).length;
+  figures['6d. pump values sent after the revoke reached b / stored'] = `${pumpSentAfter} / 0`;
+  say(`6d. ok: a revoke made on a reached b (the holder): ${pumpSentAfter} pump values sent since, none stored`);
+  await node.stop();
+
   await waitFor(
     'the acknowledged alarm cleared and closed',
     alarmRows,
@@ -528,6 +678,7 @@ async function main(): Promise<void> {
 }
 
 async function cleanup(): Promise<void> {
+  await edgeNode?.stop();
   for (const s of sockets) s.disconnect();
   for (const c of clients) c.end(true);
   await db?.close().catch(() => undefined);
@@ -550,7 +701,7 @@ main().then(
   async () => {
     await cleanup();
     say(
-      'ran: PostgreSQL (throwaway cluster), mosquitto 2 (dynamic security, shared subscription), two server processes, QoS 1 devices, socket.io clients on both servers',
+      'ran: PostgreSQL (throwaway cluster), mosquitto 2 (dynamic security, shared subscription), two server processes, QoS 1 devices, a Sparkplug B edge node, socket.io clients on both servers',
     );
     for (const [k, v] of Object.entries(figures)) process.stdout.write(`  ${k}: ${v}\n`);
     say(`test:scale passed in ${((Date.now() - started) / 1000).toFixed(1)} s`);

@@ -17,7 +17,8 @@ export interface AppContext {
   models: Models;
   tokens: TokenService;
   /** Set once telemetry has started; before that every engine reads as having no data. */
-  telemetry: (Pick<Telemetry, 'liveState' | 'counters'> & Partial<Pick<Telemetry, 'brokerState' | 'relayCounters' | 'requestRebirth'>>) | null;
+  telemetry:
+    (Pick<Telemetry, 'liveState' | 'counters'> & Partial<Pick<Telemetry, 'brokerState' | 'relayCounters' | 'requestRebirth' | 'sparkplugHostState'>>) | null;
   /** Device accounts in the external broker (MQTT_DEVICE_ACCOUNTS=dynsec); absent otherwise. */
   deviceAccounts?: DeviceAccounts | null;
   startedAt: number;

@@ -19,6 +19,8 @@ export interface Config {
   mqttDeviceAccounts: 'dynsec' | null;
   /** Several servers: subscribe as members of this MQTT v5 shared-subscription group, so each message goes to one. */
   mqttSharedGroup: string | null;
+  /** SPARKPLUG_HOST_ID [jacketwatch]: the Sparkplug B host id of this system (`spBv1.0/STATE/<id>`; edge nodes name it as their primary host). */
+  sparkplugHostId: string;
   /** When set, send mail to this relay instead of the local mail catcher. */
   smtpHost: string | null;
   smtpUser: string | null;
@@ -78,6 +80,7 @@ export const envSchema = z.object({
   MQTT_CLIENT_ID: withDefault(z.string(), 'jacketwatch-server'),
   MQTT_DEVICE_ACCOUNTS: opt(z.literal('dynsec', { error: 'must be "dynsec" or empty' })),
   MQTT_SHARED_GROUP: opt(z.string().regex(/^[A-Za-z0-9_-]{1,64}$/, { error: 'must be 1-64 letters, digits, - or _' })),
+  SPARKPLUG_HOST_ID: withDefault(z.string().regex(/^[A-Za-z0-9_.-]{1,64}$/, { error: 'must be 1-64 letters, digits, ., - or _' }), 'jacketwatch'),
   SMTP_HOST: text(),
   SMTP_USER: text(),
   SMTP_PASS: text(),
@@ -163,6 +166,7 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
     mqttClientId: e.MQTT_CLIENT_ID,
     mqttDeviceAccounts: e.MQTT_DEVICE_ACCOUNTS ?? null,
     mqttSharedGroup: e.MQTT_SHARED_GROUP ?? null,
+    sparkplugHostId: e.SPARKPLUG_HOST_ID,
     smtpHost: e.SMTP_HOST ?? null,
     smtpUser: e.SMTP_USER ?? null,
     smtpPass: e.SMTP_PASS ?? null,

@@ -92,6 +92,8 @@ export async function startServer(config: Config, opts: StartOptions = {}): Prom
     access,
     log,
     adapter: cluster?.adapter,
+    hostRole: cluster?.hostRole,
+    sparkplugHostReady: ctx.deviceAccounts ? () => ctx.deviceAccounts!.hostRights(config.sparkplugHostId) : undefined,
   });
   ctx.telemetry = telemetry;
   telemetry.onReadings(openingHistory.onReadings);

@@ -126,7 +126,16 @@ export const DeviceWithSecret = Device.extend({ secret: z.string().openapi({ des
 const counts = { received: z.number().int(), stored: z.number().int(), duplicate: z.number().int(), buffered: z.number().int() };
 export const Health = z.object({
   status: z.enum(['ok', 'degraded']),
-  broker: z.object({ connected: z.boolean(), lastError: z.string().nullable(), retryInMs: z.number(), since: isoTime }).optional(),
+  broker: z
+    .object({
+      connected: z.boolean(),
+      lastError: z.string().nullable(),
+      retryInMs: z.number(),
+      since: isoTime,
+      // the Sparkplug B Primary Host role: held by one server at a time (online: STATE published)
+      sparkplugHost: z.object({ hostId: z.string(), holder: z.boolean(), online: z.boolean() }).optional(),
+    })
+    .optional(),
   cluster: z
     .object({
       connected: z.boolean(),
@@ -154,7 +163,16 @@ export const IngestReport = z.object({
       batchLatencyMs: z.object({ last: z.number(), p50: z.number(), p95: z.number(), max: z.number() }),
       eventLoopDelayMs: z.object({ p50: z.number(), p99: z.number(), max: z.number(), worst: z.number() }).optional(),
       startedAt: isoTime,
-      sparkplug: z.object({ births: z.number(), deaths: z.number(), seqGaps: z.number(), rebirthRequests: z.number(), nodesOnline: z.number() }).optional(),
+      sparkplug: z
+        .object({
+          births: z.number(),
+          deaths: z.number(),
+          seqGaps: z.number(),
+          rebirthRequests: z.number(),
+          nodesOnline: z.number(),
+          sessionsEndedByRecord: z.number(),
+        })
+        .optional(),
     })
     .nullable(),
   rejections: z.array(

@@ -14,7 +14,9 @@ export function healthRouter(ctx: AppContext, doc: ApiDoc): Router {
   route(doc, { method: 'get', path: '/health', id: 'getHealth', tag, summary: 'Liveness and summary ingest counters', access: 'public', ok: Health });
   r.get('/health', (_req, res) => {
     const c = ctx.telemetry?.counters() ?? null;
-    const broker = ctx.telemetry?.brokerState?.() ?? null;
+    const external = ctx.telemetry?.brokerState?.() ?? null;
+    const sparkplugHost = ctx.telemetry?.sparkplugHostState?.() ?? null;
+    const broker = external ? { ...external, ...(sparkplugHost ? { sparkplugHost } : {}) } : null;
     const cluster = ctx.cluster ? { ...ctx.cluster.state(), relay: ctx.telemetry?.relayCounters?.() ?? null } : null;
     res.json({
       // degraded: up, but readings from the external broker are not arriving (or, with several servers, this one

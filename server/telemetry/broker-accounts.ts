@@ -21,6 +21,11 @@ export interface DeviceAccounts {
   setDevice(username: string, secret: string, engineId: number, sparkplug?: SparkplugAccount | null): Promise<void>;
   /** The device is gone from the broker (disconnected if connected). */
   removeDevice(username: string): Promise<void>;
+  /**
+   * The server's own broker account may publish what the Sparkplug B host publishes: its STATE (birth and
+   * will) and the commands to edge nodes (rebirth requests). Resolves once the broker has it.
+   */
+  hostRights(hostId: string): Promise<void>;
   close(): Promise<void>;
 }
 
@@ -52,6 +57,18 @@ export function sparkplugAcls(sp: SparkplugAccount): Array<{ acltype: string; to
     { acltype: 'publishClientSend', topic: `${node}/+/${sp.edgeNodeId}/${sp.deviceId ?? '+'}`, priority: 0, allow: true },
     { acltype: 'subscribePattern', topic: `${node}/NCMD/${sp.edgeNodeId}`, priority: 0, allow: true },
     { acltype: 'subscribePattern', topic: `${node}/DCMD/${sp.edgeNodeId}/#`, priority: 0, allow: true },
+    // the Primary Host Application's STATE, which an edge node watches (Sparkplug 3.0, Edge Node Session Establishment)
+    { acltype: 'subscribePattern', topic: 'spBv1.0/STATE/+', priority: 0, allow: true },
+  ];
+}
+
+/** Role added to the server's own account: the Sparkplug host's STATE and commands (the dynsec admin role may only read them). */
+export const HOST_ROLE = 'jw-sparkplug-host';
+export function hostAcls(hostId: string): Array<{ acltype: string; topic: string; priority: number; allow: boolean }> {
+  return [
+    { acltype: 'publishClientSend', topic: `spBv1.0/STATE/${hostId}`, priority: 0, allow: true },
+    { acltype: 'publishClientSend', topic: 'spBv1.0/+/NCMD/+', priority: 0, allow: true },
+    { acltype: 'publishClientSend', topic: 'spBv1.0/+/DCMD/+/+', priority: 0, allow: true },
   ];
 }
 
@@ -108,6 +125,7 @@ export function createDynsecAccounts(opts: {
     chain = run.catch(() => undefined);
     return run;
   };
+  let hostRightsDone: Promise<void> | null = null;
   const failed = (responses: DynsecResponse[], ignore: RegExp) => responses.find((r) => r.error && !ignore.test(r.error));
 
   return {
@@ -143,6 +161,24 @@ export function createDynsecAccounts(opts: {
     async removeDevice(username) {
       const bad = failed(await send([{ command: 'deleteClient', username }]), /not found/i);
       if (bad) throw new Error(`broker refused ${bad.command}: ${bad.error}`);
+    },
+    hostRights(hostId) {
+      hostRightsDone ??= (async () => {
+        const own = decodeURIComponent(new URL(opts.url).username);
+        const acls = hostAcls(hostId);
+        const created = await send([{ command: 'createRole', rolename: HOST_ROLE, acls }]);
+        let bad = failed(created, /already exists/i);
+        if (!bad && created[0]?.error) {
+          // made before (another server, an earlier start): its ACLs set again, in case the host id changed
+          bad = failed(await send(acls.map((a) => ({ command: 'addRoleACL', rolename: HOST_ROLE, ...a }))), /already/i);
+        }
+        bad ??= failed(await send([{ command: 'addClientRole', username: own, rolename: HOST_ROLE }]), /already/i);
+        if (bad) throw new Error(`broker refused ${bad.command}: ${bad.error}`);
+      })().catch((err: unknown) => {
+        hostRightsDone = null; // tried again at the next take of the role
+        throw err;
+      });
+      return hostRightsDone;
     },
     close: () => client.endAsync().then(() => undefined),
   };

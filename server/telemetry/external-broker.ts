@@ -1,6 +1,7 @@
 /**
  * MQTT_URL set: no embedded broker; the server subscribes to every engine's telemetry on the external
- * broker (which authenticates devices itself) and feeds the same ingest.
+ * broker (which authenticates devices itself) and feeds the same ingest. Sparkplug B (spBv1.0/#) is not taken
+ * here: the server holding the Sparkplug host role has its own connection for it (sparkplug/host-connection.ts).
  *
  * mqtt.js (5.x, lib/handlers/publish) handles incoming packets one at a time: the next packet is taken
  * only when handleMessage calls back, and a callback without error sends the PUBACK. Holding that callback
@@ -21,11 +22,6 @@ export interface ExternalSubscriberOptions {
   sharedGroup?: string | null;
   log: Logger;
   ingest(deviceId: number | null, engineId: number, payload: Buffer, done: () => void, readMore?: () => void): void;
-  /**
-   * Sparkplug B gateways on the external broker (spBv1.0/#, not shared: a node's births and data must reach
-   * one host in order); `done` once committed. Absent: Sparkplug topics are not subscribed.
-   */
-  sparkplug?(topic: string, payload: Buffer, done: () => void): void;
 }
 
 /** Passed to mqtt.js's handleMessage callback: "go on, but do not acknowledge" (we do after the commit). */
@@ -37,11 +33,7 @@ type PubackSender = { _sendPacket?(packet: { cmd: 'puback'; messageId: number },
 export const RETRY_MIN_MS = 1000;
 export const RETRY_MAX_MS = 30_000;
 
-const SPARKPLUG_ROOT = 'spBv1.0/';
-
-export async function startExternalSubscriber(
-  opts: ExternalSubscriberOptions,
-): Promise<{ close(): Promise<void>; state(): BrokerState; publish(topic: string, payload: Buffer): void }> {
+export async function startExternalSubscriber(opts: ExternalSubscriberOptions): Promise<{ close(): Promise<void>; state(): BrokerState }> {
   // refused credentials are retried too (mqtt.js gives up on a refused CONNACK unless told otherwise)
   const client = mqtt.connect(opts.url, { clientId: opts.clientId, clean: false, reconnectPeriod: RETRY_MIN_MS, reconnectOnConnackError: true });
   const state: BrokerState = { connected: false, lastError: 'connecting', retryInMs: RETRY_MIN_MS, since: new Date().toISOString() };
@@ -66,16 +58,6 @@ export async function startExternalSubscriber(
   client.handleMessage = (packet, callback) => {
     try {
       if (packet.cmd !== 'publish') return callback();
-      if (opts.sparkplug && packet.topic.startsWith(SPARKPLUG_ROOT)) {
-        const payload = Buffer.isBuffer(packet.payload) ? packet.payload : Buffer.from(packet.payload);
-        // QoS 1 (a will, NDEATH): acknowledged once handled; QoS 0 (births, data): nothing to acknowledge
-        if (packet.qos === 0) {
-          opts.sparkplug(packet.topic, payload, () => undefined);
-          return callback();
-        }
-        opts.sparkplug(packet.topic, payload, () => callback());
-        return;
-      }
       const parsed = parseEngineTopic(packet.topic);
       if (!parsed || parsed.kind !== 'telemetry') return callback();
       const payload = Buffer.isBuffer(packet.payload) ? packet.payload : Buffer.from(packet.payload);
@@ -119,17 +101,9 @@ export async function startExternalSubscriber(
       if (err) opts.log.error('external broker: subscribe failed', err);
       else opts.log.info(`external broker: subscribed at ${opts.url.replace(/\/\/[^@]*@/, '//')}`);
     });
-    if (opts.sparkplug)
-      client.subscribe(`${SPARKPLUG_ROOT}#`, { qos: 1 }, (err) => {
-        if (err) opts.log.error('external broker: Sparkplug subscribe failed', err);
-      });
   });
   return {
     close: () => client.endAsync().then(() => undefined),
     state: () => ({ ...state }),
-    // commands to Sparkplug edge nodes (rebirth requests), QoS 0 as the specification has them
-    publish: (topic, payload) => {
-      if (client.connected) client.publish(topic, payload, { qos: 0 });
-    },
   };
 }

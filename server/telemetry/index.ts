@@ -21,8 +21,12 @@ import { DEVICE_BY_USERNAME_SQL } from './sql';
 import { sqliteFileOf } from '../data-files';
 import { startExternalSubscriber } from './external-broker';
 import { SparkplugHost, type SparkplugIdentity } from './sparkplug/host';
-import { readNodeRecords } from './sparkplug/records';
-import type { AcceptedReading, BrokerState, Telemetry, TelemetryDeps } from './types';
+import { openHostConnection, type HostConnection } from './sparkplug/host-connection';
+import { readNodeRecords, readSparkplugNodes } from './sparkplug/records';
+import type { AcceptedReading, BrokerState, SparkplugHostState, Telemetry, TelemetryDeps } from './types';
+
+/** Between servers (socket.io serverSideEmit): a device record was revoked or rotated on another server. */
+const DEVICE_CHANGED_EVENT = 'jw:device-changed';
 
 export interface TelemetryOptions {
   highWater?: number;
@@ -218,19 +222,80 @@ export async function startTelemetry(
   let mqtt: Closable;
   let mqttPort: number | null = null;
   let brokerState: () => BrokerState | null = () => null;
+  let hostState: () => SparkplugHostState | null = () => null;
+  let stopHost: () => Promise<void> = async () => undefined;
   if (config.mqttUrl) {
-    // Sparkplug B needs one host per edge node (births and data in order): with several servers sharing
-    // the subscription (MQTT_SHARED_GROUP) it is not taken through the external broker
     const ext = await startExternalSubscriber({
       url: config.mqttUrl,
       clientId: config.mqttClientId,
       sharedGroup: config.mqttSharedGroup,
       log,
       ingest,
-      ...(config.mqttSharedGroup ? {} : { sparkplug: (topic: string, payload: Buffer, done: () => void) => sparkplug.fromExternal(topic, payload, done) }),
     });
-    sparkplug.attach(ext.publish);
+    // Sparkplug B: one Primary Host Application (a node's births and data must reach one host in order): with
+    // several servers the one holding the host role (deps.hostRole); alone, this server (not with a shared
+    // group and no cluster: the servers could not agree who is the host)
+    const mqttUrl = config.mqttUrl;
+    let host: HostConnection | null = null;
+    let holder = false;
+    let roleChange: Promise<void> = Promise.resolve();
+    const setHolder = (want: boolean): Promise<void> =>
+      (roleChange = roleChange
+        .catch((err: unknown) => log.warn('sparkplug host: changing the role failed', err))
+        .then(async () => {
+          if (want === holder || (want && stopping)) return;
+          holder = want;
+          sparkplug.forgetAll(); // sessions seen before are not to be trusted: another server may have had the role
+          if (want) {
+            // at most 10 s: a broker that refuses our account must not hold up the start (the connection retries anyway)
+            if (deps.sparkplugHostReady) {
+              let timer: NodeJS.Timeout | undefined;
+              const late = new Promise<void>((_, reject) => {
+                timer = setTimeout(() => reject(new Error('no answer from the broker within 10 s')), 10_000);
+              });
+              await Promise.race([deps.sparkplugHostReady(), late])
+                .catch((err: unknown) => log.warn(`sparkplug host: broker rights not confirmed (${err instanceof Error ? err.message : String(err)})`))
+                .finally(() => clearTimeout(timer));
+            }
+            if (stopping) {
+              holder = false;
+              return;
+            }
+            const conn = openHostConnection({
+              url: mqttUrl,
+              hostId: config.sparkplugHostId,
+              log,
+              onMessage: (topic, payload, done) => {
+                if (host === conn) sparkplug.fromExternal(topic, payload, done);
+                else done();
+              },
+              // the nodes we have no session for are asked for their births, so their aliases are known here
+              onOnline: () =>
+                void readSparkplugNodes(sequelize).then(
+                  (nodes) => host === conn && sparkplug.rebirthAll(nodes),
+                  (err: unknown) => log.warn('sparkplug host: reading the registered nodes failed', err),
+                ),
+            });
+            host = conn;
+            sparkplug.attach((topic, payload) => conn.publish(topic, payload));
+          } else {
+            const conn = host;
+            host = null;
+            sparkplug.attach(null);
+            await conn?.close();
+          }
+        }));
+    if (deps.hostRole) deps.hostRole.onChange(setHolder);
+    else if (config.mqttSharedGroup) log.warn('sparkplug: not taken through the external broker (MQTT_SHARED_GROUP without CLUSTER on PostgreSQL)');
+    else void setHolder(true); // not awaited: the start does not wait for the broker
+    hostState = () => ({ hostId: config.sparkplugHostId, holder, online: host?.online() ?? false });
+    stopHost = () => setHolder(false);
     deps.access?.onDeviceChanged((deviceId) => sparkplug.forgetExternalRecord(deviceId));
+    // several servers: a revoke made on another server ends the node's session here too (the host may be here)
+    if (relay) {
+      livePush.io.on(DEVICE_CHANGED_EVENT, (deviceId: unknown) => typeof deviceId === 'number' && sparkplug.forgetExternalRecord(deviceId));
+      deps.access?.onDeviceChanged((deviceId) => livePush.io.serverSideEmit(DEVICE_CHANGED_EVENT, deviceId));
+    }
     brokerState = ext.state;
     mqtt = ext;
   } else {
@@ -266,6 +331,7 @@ export async function startTelemetry(
     counters: () => ({ ...counters.snapshot(buffer.size), sparkplug: sparkplug.counters() }),
     rejectsByDevice: () => activity.rejectsByDevice(),
     brokerState: () => brokerState(),
+    sparkplugHostState: () => hostState(),
     relayCounters: () => (relay ? { ...relay.counters } : null),
     onReadings: (listener) => {
       listeners.push(listener);
@@ -281,6 +347,7 @@ export async function startTelemetry(
       await writer.stop(); // the final flush commits and acks what it wrote
       buffer.releaseAll(); // acks held only for room may go out now
       await new Promise((r) => setTimeout(r, 50));
+      await stopHost(); // STATE offline, then the host connection ends
       await mqtt.close().catch((err) => log.warn('telemetry: closing MQTT failed', err));
       await activity.stop();
       relay?.close();

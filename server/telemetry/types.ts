@@ -46,7 +46,7 @@ export interface IngestCounters {
   eventLoopDelayMs?: LoopDelay & { worst: number };
   startedAt: string;
   /** Sparkplug B sessions (embedded broker only). */
-  sparkplug?: { births: number; deaths: number; seqGaps: number; rebirthRequests: number; nodesOnline: number };
+  sparkplug?: { births: number; deaths: number; seqGaps: number; rebirthRequests: number; nodesOnline: number; sessionsEndedByRecord: number };
 }
 
 export interface LoopDelay {
@@ -80,6 +80,13 @@ export interface TelemetryDeps {
   log: Logger;
   /** Several servers (server/cluster): socket.io adapter between them; readings are relayed through it too. */
   adapter?: ServerOptions['adapter'];
+  /**
+   * Several servers (server/cluster): the Sparkplug B host role, held by one server at a time. Absent: this
+   * server is the only one and holds it (with an external broker: not with MQTT_SHARED_GROUP).
+   */
+  hostRole?: { onChange(fn: (holder: boolean) => Promise<void> | void): void };
+  /** Resolves once this server's broker account may publish the host's STATE and commands (dynsec). */
+  sparkplugHostReady?(): Promise<void>;
 }
 
 export interface Telemetry {
@@ -90,7 +97,7 @@ export interface Telemetry {
   onReadings(listener: (readings: AcceptedReading[]) => void): void;
   /** Called when a gateway declares an engine's data lost (Sparkplug NDEATH/DDEATH). */
   onLost?(listener: (engineId: number, at: number) => void): void;
-  /** Ask a Sparkplug edge node for its births again (embedded broker only), e.g. after its metric names were remapped. */
+  /** Ask a Sparkplug edge node for its births again (a no-op on a server without the host role), e.g. after its metric names were remapped. */
   requestRebirth?(groupId: string, edgeNodeId: string): void;
   /** Emit an event to a socket.io room (`fleet`, `site:<id>`, `engine:<id>`), or to several (each socket once). */
   emit(room: string | string[], event: string, payload: unknown): void;
@@ -98,8 +105,19 @@ export interface Telemetry {
   stop(): Promise<void>;
   /** The external broker connection (MQTT_URL); null with the embedded broker. */
   brokerState(): BrokerState | null;
+  /** External broker: whether this server is the Sparkplug B Primary Host now (role held and STATE online); null with the embedded broker. */
+  sparkplugHostState?(): SparkplugHostState | null;
   /** Several servers: readings relayed to and from the other servers since start; null with one server. */
   relayCounters?(): { sentReadings: number; sentMessages: number; receivedReadings: number; badMessages: number } | null;
+}
+
+export interface SparkplugHostState {
+  /** The host id edge nodes watch (`spBv1.0/STATE/<hostId>`). */
+  hostId: string;
+  /** This server holds the host role. */
+  holder: boolean;
+  /** Connected, subscribed and STATE online published. */
+  online: boolean;
 }
 
 export interface BrokerState {

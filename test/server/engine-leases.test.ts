@@ -1,13 +1,16 @@
 /**
  * Engine leases (server/cluster/engine-leases.ts) on a real PostgreSQL database: two holders split the 64
  * partitions evenly and never own the same one; when one closes, the other takes everything; a holder whose
- * connection the database cuts (as when its process dies) stops owning at once and comes back for its share. PostgreSQL by nature (advisory locks): skipped on SQLite. The readings
+ * connection the database cuts (as when its process dies) stops owning at once and comes back for its share.
+ * The Sparkplug host role (server/cluster/host-role.ts): one holder of two; a cut connection moves it. PostgreSQL
+ * by nature (advisory locks): skipped on SQLite. The readings
  * relay's message format is checked on both.
  */
 import fs from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
 import { EngineLeases, LEASE_PARTITIONS, partitionOf } from '../../server/cluster/engine-leases';
+import { HostRoleLease } from '../../server/cluster/host-role';
 import { decode } from '../../server/cluster/reading-relay';
 import { createLogger } from '../../server/logger';
 import { Client, createTestDatabase, isPg, type TestDatabase } from './support/test-db';
@@ -20,7 +23,7 @@ const holds = (what: string, cond: () => boolean) => until(what, async () => con
 const log = createLogger('error');
 let db: TestDatabase | null = null;
 let dir = '';
-const holders: EngineLeases[] = [];
+const holders: Array<EngineLeases | HostRoleLease> = [];
 
 interface Holder {
   leases: EngineLeases;
@@ -90,6 +93,40 @@ pgOnly('a holder whose connection the database cuts owns nothing at once, then c
     () => a.leases.state().connected && a.leases.state().owned === LEASE_PARTITIONS / 2 && b.leases.state().owned === LEASE_PARTITIONS / 2,
   );
   expect(a.lost.length - lostBefore).toBe(LEASE_PARTITIONS / 2);
+});
+
+function role(url: string): { lease: HostRoleLease; changes: boolean[] } {
+  const changes: boolean[] = [];
+  const lease = new HostRoleLease({ databaseUrl: url, log, roundMs: 100, onChange: (h) => void changes.push(h) });
+  holders.push(lease);
+  return { lease, changes };
+}
+
+pgOnly('the Sparkplug host role: one holder of two; when its connection is cut it gives the role up and the other takes it', async () => {
+  const a = role(db!.url);
+  const b = role(db!.url);
+  await a.lease.start();
+  expect(a.lease.holds()).toBe(true);
+  await b.lease.start();
+  expect(b.lease.holds()).toBe(false);
+  const admin = new Client({ connectionString: db!.url });
+  await admin.connect();
+  const pids = await admin.query<{ pid: number }>(
+    "SELECT pid FROM pg_locks WHERE locktype = 'advisory' AND classid = $1::int::oid AND objsubid = 2",
+    [0x4a570004],
+  );
+  expect(pids.rows.length).toBe(1);
+  await admin.query('SELECT pg_terminate_backend($1)', [pids.rows[0].pid]);
+  await admin.end();
+  // a gives it up at once; whichever of the two takes it next (a reconnects too), only one holds it
+  await holds('a gave the role up and one of the two holds it again', () => a.changes.includes(false) && (a.lease.holds() || b.lease.holds()));
+  expect(a.lease.holds() && b.lease.holds()).toBe(false);
+  expect(a.changes.slice(0, 2)).toEqual([true, false]);
+  const [holder2, other] = a.lease.holds() ? [a, b] : [b, a];
+  await holder2.lease.close(); // gives it up
+  expect(holder2.changes.at(-1)).toBe(false);
+  await holds('the other takes it', () => other.lease.holds());
+  await other.lease.close();
 });
 
 it('the readings relay takes only well-formed flat arrays', () => {

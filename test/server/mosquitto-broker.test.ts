@@ -168,6 +168,29 @@ itBroker(
   },
 );
 
+itBroker("the Sparkplug host's STATE (retained, online) and its rebirth command reach a gateway: the server's account may publish them", async () => {
+  const res = await api('POST', '/api/devices', { engineId: engines[1], sparkplug: { groupId: 'Waterworks', edgeNodeId: 'gw9' } });
+  expect(res.status).toBe(201);
+  const c = await connect(res.body.username, res.body.secret);
+  const seen: string[] = [];
+  c.on('message', (topic, payload) => seen.push(topic.includes('/STATE/') ? `${topic} ${payload.toString()}` : topic));
+  await c.subscribeAsync(['spBv1.0/Waterworks/NCMD/gw9', 'spBv1.0/STATE/+']); // allowed by its role
+  await waitFor(
+    'the retained STATE',
+    async () => seen,
+    (xs) => xs.some((x) => x.startsWith('spBv1.0/STATE/jacketwatch {"online":true,')),
+  );
+  // data before any birth: the host asks this node to rebirth
+  await c.publishAsync('spBv1.0/Waterworks/NDATA/gw9', encode({ timestamp: Date.now() - 1000, seq: 3, metrics: [{ alias: 1, doubleValue: 70 }] }));
+  await waitFor(
+    'the rebirth command',
+    async () => seen,
+    (xs) => xs.includes('spBv1.0/Waterworks/NCMD/gw9'),
+  );
+  expect(mq.log()).not.toMatch(/Denied PUBLISH from jacketwatch-sparkplug-host/);
+  c.end(true);
+});
+
 itBroker('server killed: what devices publish meanwhile waits in its persistent session and is stored once after the restart', async () => {
   const a = devices[0];
   const before = await stored(a.engineId);

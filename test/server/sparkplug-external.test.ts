@@ -13,7 +13,7 @@ import { loadJwtSecret } from '../../server/auth/jwt-secret';
 import { createTokenService } from '../../server/auth/tokens';
 import { Db, freePort, seedFleet, startServerProcess, type SeededDevice, type ServerProcess } from './support/telemetry-server';
 import { until } from './support/until';
-import type { ApiAnswer } from './support/api-answer';
+import { apiCall, rejectionCounts, storedReadings } from './support/device-api';
 import { Boolean_, decode, Double, encode, UInt64 } from './support/sparkplug-payload';
 
 jest.setTimeout(120_000);
@@ -27,23 +27,10 @@ let fleet: SeededDevice[];
 let adminToken: string;
 const clients: MqttClient[] = [];
 
-const api = async (method: string, p: string, body?: unknown) => {
-  const res = await fetch(server.url + p, {
-    method,
-    headers: { Authorization: `Bearer ${adminToken}`, 'Content-Type': 'application/json' },
-    body: body === undefined ? undefined : JSON.stringify(body),
-  });
-  return { status: res.status, body: (await res.json()) as ApiAnswer };
-};
-const readings = (engineId: number) =>
-  db.all<{ channel: number; ts: number; value: number }>('SELECT channel, ts, value FROM readings WHERE engine_id = ? ORDER BY ts, channel', [engineId]);
-const rejections = async (deviceId: number) =>
-  Object.fromEntries(
-    (await db.all<{ reason: string; count: number }>('SELECT reason, count FROM device_rejections WHERE device_id = ?', [deviceId])).map((r) => [
-      r.reason,
-      Number(r.count),
-    ]),
-  );
+const api = (method: string, p: string, body?: unknown) => apiCall(server.url, adminToken, method, p, body);
+const readings = (engineId: number) => storedReadings(db, engineId);
+const rejections = (deviceId: number) => rejectionCounts(db, deviceId);
+
 /** Messages refused for their topic, by the ingest counters (an unknown edge node has no record to count them on). */
 const wrongTopics = async () =>
   ((await api('GET', '/api/admin/ingest')).body as { counters: { rejected: Record<string, number> } }).counters.rejected.wrong_topic ?? 0;
@@ -53,7 +40,9 @@ async function gateway(): Promise<{ c: MqttClient; commands: string[] }> {
   const c = await mqtt.connectAsync(`mqtt://127.0.0.1:${brokerPort}`, { reconnectPeriod: 0, connectTimeout: 5000 });
   clients.push(c);
   const commands: string[] = [];
-  c.on('message', (topic, payload) => commands.push(`${topic} ${JSON.stringify(decode(payload).metrics.map((m) => [m.name, m.booleanValue]))}`));
+  c.on('message', (topic, payload) => {
+    if (/\/[ND]CMD\//.test(topic)) commands.push(`${topic} ${JSON.stringify(decode(payload).metrics.map((m) => [m.name, m.booleanValue]))}`);
+  });
   return { c, commands };
 }
 
@@ -90,10 +79,11 @@ beforeAll(async () => {
     (o) => o.includes('ready\n'),
   );
   server = await startServerProcess({ env: { MQTT_URL: `mqtt://127.0.0.1:${brokerPort}` } });
+  // telemetry on the server's own client; Sparkplug on the host role's client (one server: it holds the role)
   await until(
     'server subscribed to telemetry and Sparkplug',
-    async () => brokerOut.split('\n').filter((l) => l === 'subscribed jacketwatch-server').length,
-    (n) => n >= 2,
+    async () => brokerOut.split('\n'),
+    (lines) => lines.includes('subscribed jacketwatch-server') && lines.includes('subscribed jacketwatch-sparkplug-host'),
   );
   db = new Db(server.databaseUrl);
   fleet = await seedFleet(db, 2, 'spx');
@@ -134,8 +124,8 @@ test('births and data of a registered edge node are stored; data before a birth 
     (r) => r.length === 2,
   );
   expect(rows).toEqual([
-    { channel: 1, ts: base + 1000, value: 80 },
-    { channel: 1, ts: base + 2000, value: 81.5 },
+    { channel: 1, ts: base + 1000, value: 80, quality: 0 },
+    { channel: 1, ts: base + 2000, value: 81.5, quality: 0 },
   ]);
   await until(
     'the data before the birth counted on the record',
@@ -155,6 +145,23 @@ test('births and data of a registered edge node are stored; data before a birth 
     (n) => n >= refusedBefore + 2,
   );
   expect(await readings(d.engineId)).toHaveLength(2);
+});
+
+test('the host publishes its STATE (retained, online, JSON) for the edge nodes to watch', async () => {
+  const { c } = await gateway();
+  const states: string[] = [];
+  c.on('message', (topic, payload) => topic === 'spBv1.0/STATE/jacketwatch' && states.push(payload.toString()));
+  await c.subscribeAsync('spBv1.0/STATE/+');
+  const [state] = await until(
+    'the retained STATE',
+    async () => states,
+    (xs) => xs.length > 0,
+  );
+  const parsed = JSON.parse(state) as { online: boolean; timestamp: number };
+  expect(parsed.online).toBe(true);
+  expect(Number.isInteger(parsed.timestamp) && parsed.timestamp <= Date.now()).toBe(true);
+  const health = (await (await fetch(`${server.url}/api/health`)).json()) as { broker: { sparkplugHost: unknown } };
+  expect(health.broker.sparkplugHost).toEqual({ hostId: 'jacketwatch', holder: true, online: true });
 });
 
 test('an edge node with no record here is refused and counted; nothing is stored', async () => {

@@ -13,7 +13,7 @@ import { loadJwtSecret } from '../../server/auth/jwt-secret';
 import { createTokenService } from '../../server/auth/tokens';
 import { Db, seedFleet, startServerProcess, type SeededDevice, type ServerProcess } from './support/telemetry-server';
 import { until } from './support/until';
-import type { ApiAnswer } from './support/api-answer';
+import { apiCall, rejectionCounts, storedReadings } from './support/device-api';
 import { Boolean_, decode, Double, encode, Float, Int32, UInt64, withUnit } from './support/sparkplug-payload';
 
 let server: ServerProcess;
@@ -22,14 +22,7 @@ let fleet: SeededDevice[];
 let adminToken: string;
 const clients: MqttClient[] = [];
 
-const api = async (method: string, path: string, body?: unknown) => {
-  const res = await fetch(server.url + path, {
-    method,
-    headers: { Authorization: `Bearer ${adminToken}`, 'Content-Type': 'application/json' },
-    body: body === undefined ? undefined : JSON.stringify(body),
-  });
-  return { status: res.status, body: (await res.json()) as ApiAnswer };
-};
+const api = (method: string, p: string, body?: unknown) => apiCall(server.url, adminToken, method, p, body);
 
 interface Gateway {
   id: number;
@@ -57,18 +50,9 @@ const connect = async (g: Gateway, extra: mqtt.IClientOptions = {}): Promise<Mqt
   return c;
 };
 
-const readings = (engineId: number) =>
-  db.all<{ channel: number; ts: number; value: number; quality: number }>(
-    'SELECT channel, ts, value, quality FROM readings WHERE engine_id = ? ORDER BY ts, channel',
-    [engineId],
-  );
-const rejections = async (deviceId: number) =>
-  Object.fromEntries(
-    (await db.all<{ reason: string; count: number }>('SELECT reason, count FROM device_rejections WHERE device_id = ?', [deviceId])).map((r) => [
-      r.reason,
-      r.count,
-    ]),
-  );
+const readings = (engineId: number) => storedReadings(db, engineId);
+const rejections = (deviceId: number) => rejectionCounts(db, deviceId);
+
 const engine = async (id: number) => (await api('GET', `/api/engines/${id}`)).body;
 
 beforeAll(async () => {

@@ -76,6 +76,8 @@ export interface SparkplugStats {
   seqGaps: number;
   rebirthRequests: number;
   nodesOnline: number;
+  /** External broker: node sessions ended because one of the node's device records was revoked or rotated (on any server). */
+  sessionsEndedByRecord: number;
 }
 
 type Callback = (err?: Error | null) => void;
@@ -88,15 +90,15 @@ export class SparkplugHost {
   private publish: ((topic: string, payload: Buffer) => void) | null = null;
   /** External broker: the edge nodes known here, as the client they stand for (its node record). */
   private readonly externalClients = new Map<string, SparkplugClient>();
-  private readonly stats = { births: 0, deaths: 0, seqGaps: 0, rebirthRequests: 0 };
+  private readonly stats = { births: 0, deaths: 0, seqGaps: 0, rebirthRequests: 0, sessionsEndedByRecord: 0 };
   private readonly now: () => number;
 
   constructor(private readonly deps: SparkplugHostDeps) {
     this.now = deps.now ?? Date.now;
   }
 
-  /** The broker's publish, for NCMD; given once the broker runs. */
-  attach(publish: (topic: string, payload: Buffer) => void): void {
+  /** The broker's publish, for NCMD; given once the broker runs (external broker: the host connection's). */
+  attach(publish: ((topic: string, payload: Buffer) => void) | null): void {
     this.publish = publish;
   }
 
@@ -213,7 +215,24 @@ export class SparkplugHost {
       if (!involved) continue;
       this.externalClients.delete(key);
       this.sessions.delete(key);
+      this.stats.sessionsEndedByRecord++;
     }
+  }
+
+  /**
+   * External broker: this server took or gave up the host role. Every node session known here ends (another
+   * server may have seen births and deaths meanwhile): the nodes are asked to rebirth (rebirthAll) when the
+   * role is taken, and their data until then asks again.
+   */
+  forgetAll(): void {
+    this.externalClients.clear();
+    this.sessions.clear();
+    this.lastRebirth.clear();
+  }
+
+  /** Asks every given edge node for its births (the nodes registered here, when the host role is taken). */
+  rebirthAll(nodes: Array<{ groupId: string; edgeNodeId: string }>): void {
+    for (const n of nodes) if (!this.sessions.has(this.nodeKey(n))) this.requestRebirth(n);
   }
 
   /**

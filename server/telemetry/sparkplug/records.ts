@@ -19,3 +19,13 @@ export async function readNodeRecords(sequelize: Sequelize, groupId: string, edg
     metricMap: r.metricMap ? (JSON.parse(r.metricMap) as MetricMap) : null,
   }));
 }
+
+/** Every edge node with a live device record: the nodes a new Sparkplug host asks to rebirth. */
+export async function readSparkplugNodes(sequelize: Sequelize): Promise<Array<{ groupId: string; edgeNodeId: string }>> {
+  const rows = await sequelize.query<{ groupId: string; edgeNodeId: string }>(
+    `SELECT DISTINCT sparkplug_group_id AS "groupId", sparkplug_edge_node_id AS "edgeNodeId" FROM devices
+      WHERE sparkplug_group_id IS NOT NULL AND sparkplug_edge_node_id IS NOT NULL AND revoked_at IS NULL`,
+    { type: QueryTypes.SELECT, logging: false },
+  );
+  return rows;
+}

@@ -2,7 +2,7 @@
 import protobuf from 'protobufjs';
 
 // Sparkplug 3.0 Payload: timestamp = 1, metrics = 2, seq = 3. Metric: name = 1, alias = 2, timestamp = 3,
-// datatype = 4, is_null = 7, properties = 9, int_value = 10, long_value = 11, float_value = 12,
+// datatype = 4, is_historical = 5, is_null = 7, properties = 9, int_value = 10, long_value = 11, float_value = 12,
 // double_value = 13, boolean_value = 14, string_value = 15. PropertySet: keys = 1, values = 2;
 // PropertyValue: type = 1, string_value = 8. DataType: Int32 = 3, Float = 9, Double = 10, Boolean = 11.
 const spec = protobuf.Root.fromJSON({
@@ -18,6 +18,7 @@ const spec = protobuf.Root.fromJSON({
         alias: { type: 'uint64', id: 2 },
         timestamp: { type: 'uint64', id: 3 },
         datatype: { type: 'uint32', id: 4 },
+        isHistorical: { type: 'bool', id: 5 },
         isNull: { type: 'bool', id: 7 },
         properties: { type: 'PropertySet', id: 9 },
         intValue: { type: 'uint32', id: 10 },
