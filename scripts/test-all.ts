@@ -3,7 +3,8 @@
  *
  * - the Angular build, then end-to-end in Chromium, then two servers on PostgreSQL and mosquitto, then components;
  * - lint, import cycles and formatting, then the server tests on SQLite (jest), then on PostgreSQL (jest, throwaway cluster);
- * - the three-minute alarm scenarios (jest), which mostly wait on the clock.
+ * - the jest tests that mostly wait on the clock: the three-minute alarm scenarios and the seven days of history
+ *   followed by a minute of live data (on SQLite, then that one on PostgreSQL too).
  *
  * The two long lanes each keep about half of a core busy (measured per file on a 2-core machine), so side by side
  * they fit two cores; the third barely uses the CPU. Each part runs in its own process group; its output goes to
@@ -24,15 +25,18 @@ interface Part {
   /** What `tsx scripts/test-all.ts <id> ...` selects; the npm script unless said otherwise. */
   id?: string;
   name: string;
-  script: string;
+  /** An npm script (with `args` after `--`), or else `command`: a program of node_modules/.bin and its arguments. */
+  script?: string;
   args?: string[];
+  command?: string[];
   /** Not run (and counted as failed) when the part before it in its lane failed. */
   needsPrevious?: boolean;
 }
 
 /** jest's own ignore list (jest.config.js): `--testPathIgnorePatterns` on the command line replaces it. */
 const jestIgnored: string[] = createRequire(__filename)('../jest.config.js').testPathIgnorePatterns;
-const SCENARIOS = 'test/server/alarms-scenarios.test.ts';
+/** Long and mostly idle (waiting on the simulator's clock), so they run in a lane of their own. */
+const WAITING = ['test/server/alarms-scenarios.test.ts', 'test/server/alarms-backfill.test.ts'];
 
 const LANES: Part[][] = [
   [
@@ -47,13 +51,21 @@ const LANES: Part[][] = [
     { name: 'import cycles (madge)', script: 'lint:cycles' },
     { name: 'formatting (Prettier check)', script: 'format:check' },
     {
-      name: 'unit and server on SQLite (jest), but the alarm scenarios',
+      name: 'unit and server on SQLite (jest), but the two waiting ones',
       script: 'test:unit',
-      args: ['--testPathIgnorePatterns', ...jestIgnored, 'alarms-scenarios'],
+      args: ['--testPathIgnorePatterns', ...jestIgnored, ...WAITING.map((f) => path.basename(f, '.test.ts'))],
     },
-    { name: 'server on PostgreSQL (jest, throwaway cluster)', script: 'test:unit:pg' },
+    // test:unit:pg leaves out the alarm scenarios (SQLite only by design)
+    { name: 'server on PostgreSQL (jest, throwaway cluster), but the backfill', script: 'test:unit:pg', args: ['--testPathIgnorePatterns', 'alarms-backfill'] },
   ],
-  [{ id: 'test:unit', name: 'alarm scenarios on SQLite (jest, three minutes of a simulated watch)', script: 'test:unit', args: [SCENARIOS] }],
+  [
+    { id: 'test:unit', name: 'alarm scenarios and backfill on SQLite (jest, mostly waiting on the clock)', script: 'test:unit', args: WAITING },
+    {
+      id: 'test:unit:pg',
+      name: 'alarm backfill on PostgreSQL (jest, throwaway cluster)',
+      command: ['tsx', 'scripts/with-postgres.ts', '--', 'jest', '--runInBand', 'test/server/alarms-backfill.test.ts'],
+    },
+  ],
 ];
 
 /**
@@ -81,12 +93,13 @@ function onSignal(): void {
 process.on('SIGINT', onSignal);
 process.on('SIGTERM', onSignal);
 
-/** Runs an npm script in its own process group, its output into `logFile`; resolves with its exit code. */
+/** Runs a part in its own process group, its output into `logFile`; resolves with its exit code. */
 function run(part: Part, logFile: string): Promise<number> {
   return new Promise((resolve) => {
     const out = fs.openSync(logFile, 'w');
-    const args = ['run', '--silent', part.script, ...(part.args?.length ? ['--', ...part.args] : [])];
-    const child = spawn('npm', args, { stdio: ['ignore', out, out], detached: true });
+    const [program, ...args] = part.command ?? ['npm', 'run', '--silent', part.script!, ...(part.args?.length ? ['--', ...part.args] : [])];
+    const env = { ...process.env, PATH: `${path.resolve('node_modules/.bin')}${path.delimiter}${process.env.PATH ?? ''}` };
+    const child = spawn(program, args, { stdio: ['ignore', out, out], detached: true, env });
     fs.closeSync(out);
     running.add(child);
     let overTime = false;
@@ -98,7 +111,7 @@ function run(part: Part, logFile: string): Promise<number> {
       signalGroup(child, 'SIGTERM');
       hardStop = setTimeout(() => signalGroup(child, 'SIGKILL'), 20_000);
     }, PART_LIMIT_S * 1000);
-    child.on('error', (err) => fs.appendFileSync(logFile, `\ncould not start npm: ${err.message}\n`));
+    child.on('error', (err) => fs.appendFileSync(logFile, `\ncould not start ${program}: ${err.message}\n`));
     child.on('close', (code, signal) => {
       running.delete(child);
       clearTimeout(limit);
@@ -126,7 +139,7 @@ async function runLane(parts: Part[], dir: string, started: number): Promise<Res
     }
     console.log(`[${since(started)}] started: ${part.name}`);
     const t = Date.now();
-    const logFile = path.join(dir, `${part.script}-${results.length}-${Math.random().toString(36).slice(2)}.log`);
+    const logFile = path.join(dir, `${part.id ?? part.script}-${results.length}-${Math.random().toString(36).slice(2)}.log`);
     const code = await run(part, logFile);
     const seconds = (Date.now() - t) / 1000;
     process.stdout.write(`\n----- ${part.name} -----\n`);
@@ -139,7 +152,7 @@ async function runLane(parts: Part[], dir: string, started: number): Promise<Res
 
 async function main(): Promise<void> {
   const only = process.argv.slice(2);
-  const lanes = LANES.map((lane) => lane.filter((p) => !only.length || only.includes(p.id ?? p.script))).filter((lane) => lane.length);
+  const lanes = LANES.map((lane) => lane.filter((p) => !only.length || only.includes((p.id ?? p.script)!))).filter((lane) => lane.length);
   const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'jw-test-parts-'));
   const started = Date.now();
   const results = (await Promise.all(lanes.map((lane) => runLane(lane, dir, started)))).flat();
