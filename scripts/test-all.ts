@@ -1,8 +1,8 @@
 /**
  * `npm test`: every part of the tests, in three lanes that run side by side (a lane's parts one after another):
  *
- * - the Angular build, then end-to-end in Chromium, then two servers on PostgreSQL and mosquitto, then components;
- * - lint, import cycles and formatting, then the server tests on SQLite (jest), then on PostgreSQL (jest, throwaway cluster);
+ * - the Angular build, then end-to-end in Chromium, then two servers on PostgreSQL and mosquitto;
+ * - lint, import cycles and formatting, the server tests on SQLite (jest), on PostgreSQL (jest, throwaway cluster), components;
  * - the jest tests that mostly wait on the clock: the three-minute alarm scenarios and the seven days of history
  *   followed by a minute of live data (on SQLite, then that one on PostgreSQL too).
  *
@@ -43,7 +43,6 @@ const LANES: Part[][] = [
     { id: 'test:e2e', name: 'app build for the end-to-end tests (ng build)', script: 'build' },
     { id: 'test:e2e', name: 'end-to-end (Chromium)', script: 'test:e2e:run', needsPrevious: true },
     { name: 'several servers (two processes, PostgreSQL, mosquitto)', script: 'test:scale' },
-    { name: 'components (ng test)', script: 'test:components' },
   ],
   [
     // first in their lane and fast: a lint error or an import cycle shows within a minute
@@ -57,6 +56,8 @@ const LANES: Part[][] = [
     },
     // test:unit:pg leaves out the alarm scenarios (SQLite only by design)
     { name: 'server on PostgreSQL (jest, throwaway cluster), but the backfill', script: 'test:unit:pg', args: ['--testPathIgnorePatterns', 'alarms-backfill'] },
+    // last, long after the build of the first lane (the two Angular builds share .angular/cache)
+    { name: 'components (ng test)', script: 'test:components' },
   ],
   [
     { id: 'test:unit', name: 'alarm scenarios and backfill on SQLite (jest, mostly waiting on the clock)', script: 'test:unit', args: WAITING },
