@@ -74,6 +74,22 @@ function refsIn(v: unknown, out: string[] = []): string[] {
 
 let a: AlarmApp;
 let doc: Doc;
+
+/**
+ * Compiles a schema of the document with its `$ref`s resolved against the document's components. One Ajv holds
+ * the components (added once, under DOC_ID) and each schema's `#/components/...` refs point there, so every
+ * component is compiled once instead of again for every schema that refers to it (the same check, about ten
+ * times faster than a new Ajv per schema); a ref to a component that is not there still fails to compile.
+ */
+const DOC_ID = 'urn:jacketwatch:openapi';
+let withComponents: Ajv2020 | null = null;
+function compileWithComponents(schema: Json) {
+  if (!withComponents) {
+    withComponents = new Ajv2020({ strict: false, validateFormats: false });
+    withComponents.addSchema({ $id: DOC_ID, components: doc.components });
+  }
+  return withComponents.compile(JSON.parse(JSON.stringify(schema).replaceAll('"$ref":"#/components/', `"$ref":"${DOC_ID}#/components/`)));
+}
 beforeAll(async () => {
   a = await makeAlarmApp();
   doc = (await request(a.app).get('/api/openapi.json').expect(200)).body;
@@ -179,7 +195,7 @@ describe('the OpenAPI document', () => {
     expect(schemas.length).toBeGreaterThan(300);
     for (const [where, s] of schemas) {
       expect({ where, valid: ajv.validateSchema(s), errors: ajv.errors ?? null }).toEqual({ where, valid: true, errors: null });
-      expect(() => new Ajv2020({ strict: false, validateFormats: false }).compile({ ...s, components: doc.components })).not.toThrow();
+      expect(() => compileWithComponents(s)).not.toThrow();
     }
   });
 
@@ -190,7 +206,7 @@ describe('the OpenAPI document', () => {
       const ok = doc.paths[docPath][send?.method ?? 'get'].responses[String(res.status)];
       expect({ url, status: res.status, documented: !!ok }).toEqual({ url, status: send?.status ?? 200, documented: true });
       const schema = ok.content!['application/json'].schema!;
-      const validate = new Ajv2020({ strict: false, validateFormats: false }).compile({ ...schema, components: doc.components });
+      const validate = compileWithComponents(schema);
       expect({ url, valid: validate(res.body), errors: validate.errors ?? null }).toEqual({ url, valid: true, errors: null });
       return res.body;
     };
