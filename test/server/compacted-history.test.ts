@@ -3,6 +3,7 @@
  * blocks, read back exactly as stored through the one read path, on the real database (SQLite or PostgreSQL).
  */
 import fs from 'node:fs';
+import path from 'node:path';
 import mqtt from 'mqtt';
 import { QueryTypes, type Sequelize } from 'sequelize';
 import { loadConfig } from '../../server/config';
@@ -16,6 +17,7 @@ import { telemetryTopic } from '../../shared/topics';
 import { makeTestApp, type TestApp } from './helpers';
 import { Db, seedFleet, startServerProcess } from './support/telemetry-server';
 import { until } from './support/until';
+import { spawnInGroup, stopGroup } from './support/process-group';
 
 jest.setTimeout(180_000);
 
@@ -345,6 +347,53 @@ describe('compaction while a server ingests over MQTT', () => {
       await db.close();
       expect(await server.stop()).toBe(0);
       fs.rmSync(server.dataDir, { recursive: true, force: true });
+    }
+  });
+});
+
+describe('a compactor killed with SIGKILL part-way', () => {
+  it('loses nothing: each block is one transaction, and the next pass finishes the job', async () => {
+    const t = await makeTestApp({ signIn: false });
+    let child: ReturnType<typeof spawnInGroup> | null = null;
+    try {
+      const site = await t.ctx.models.Site.create({ name: 'Kill site', timeZone: 'UTC' });
+      const e = (await t.ctx.models.Engine.create({ siteId: site.id, name: 'K1', ...engineFields })).id;
+      await insertReadings(t.ctx.sequelize, e, 1, history(3, false));
+      await insertReadings(t.ctx.sequelize, e, 2, history(4, true));
+      const stored = [await rawTable(t.ctx.sequelize, e, 1), await rawTable(t.ctx.sequelize, e, 2)];
+      const root = path.resolve(__dirname, '../..');
+      child = spawnInGroup(process.execPath, [path.join(root, 'node_modules/tsx/dist/cli.mjs'), path.join(__dirname, 'support/compact-child.ts')], {
+        cwd: root,
+        env: { ...process.env, DATA_DIR: t.dataDir, DATABASE_URL: t.ctx.config.databaseUrl, COMPACT_NOW: String(NOW), COMPACT_PAUSE_MS: '300' },
+        stdio: ['ignore', 'pipe', 'inherit'],
+      });
+      let out = '';
+      child.stdout!.on('data', (d) => (out += d));
+      // kill it once it has written a few blocks (steps are 300 ms apart, a pass has about a hundred)
+      await until(
+        'some blocks written',
+        () => count(t.ctx.sequelize, 'SELECT COUNT(*) AS n FROM reading_blocks'),
+        (n) => n >= 3,
+        60_000,
+        20,
+      );
+      process.kill(-child.pid!, 'SIGKILL');
+      await stopGroup(child);
+      expect(out).not.toContain('done');
+      const blocksAfterKill = await count(t.ctx.sequelize, 'SELECT COUNT(*) AS n FROM reading_blocks');
+      expect(blocksAfterKill).toBeLessThan(90);
+      // part raw, part compacted: every reading there, once
+      expectSame(await readRawRange(t.ctx.sequelize, e, 1, 0, END), stored[0]);
+      expectSame(await readRawRange(t.ctx.sequelize, e, 2, 0, END), stored[1]);
+      const pass = await startCompactor({ sequelize: t.ctx.sequelize, log, config: { compactAfterH: 24 }, now: () => NOW, pauseMs: 0, timer: false }).pass();
+      expect(pass.complete).toBe(true);
+      expect(pass.duplicates).toBe(0);
+      expect(await count(t.ctx.sequelize, 'SELECT COUNT(*) AS n FROM readings WHERE ts < $1', [CUTOFF])).toBe(0);
+      expectSame(await readRawRange(t.ctx.sequelize, e, 1, 0, END), stored[0]);
+      expectSame(await readRawRange(t.ctx.sequelize, e, 2, 0, END), stored[1]);
+    } finally {
+      await stopGroup(child);
+      await t.close();
     }
   });
 });
