@@ -12,6 +12,8 @@ import { createLogger } from '../../server/logger';
 import { startCompactor } from '../../server/services/history/compactor';
 import { blockStartOf, readRawRange, type StoredReading } from '../../server/services/history/raw-range';
 import { queryBuckets } from '../../server/services/readings-query';
+import { ReadingHistory } from '../../server/services/work-orders/reading-history';
+import { CHANNELS } from '../../shared/channels';
 import { DAY_MS, startRetention } from '../../server/services/retention';
 import { telemetryTopic } from '../../shared/topics';
 import { makeTestApp, type TestApp } from './helpers';
@@ -115,6 +117,7 @@ describe('compacted history in the database', () => {
   let e1: number;
   let stored1: StoredReading[];
   let stored2: StoredReading[];
+  let stopRows: StoredReading[] = [];
   const compactor = () => startCompactor({ sequelize: t.ctx.sequelize, log, config: { compactAfterH: 24 }, now: () => NOW, pauseMs: 0, timer: false });
 
   beforeAll(async () => {
@@ -208,6 +211,27 @@ describe('compacted history in the database', () => {
     expect(all[499].ts).toBe(NOW - 3 * DAY_MS + 499 * 60_000);
   });
 
+  it("the opening check's stop record reads the same from compacted history", async () => {
+    const site = await t.ctx.models.Site.create({ name: 'Stop site', timeZone: 'UTC' });
+    const e = (await t.ctx.models.Engine.create({ siteId: site.id, name: 'S1', ...engineFields })).id;
+    const speed = CHANNELS.engine_speed.code;
+    // ran until 70 hours ago, stopped since (a reading every 10 s)
+    const ranUntil = NOW - 70 * HOUR;
+    const rows = Array.from({ length: (72 * HOUR - 2 * HOUR) / 10_000 }, (_, i) => {
+      const ts = NOW - 72 * HOUR + i * 10_000;
+      return { ts, value: ts < ranUntil ? 1500 : 0, quality: 0 };
+    });
+    await insertReadings(t.ctx.sequelize, e, speed, rows);
+    stopRows = rows;
+    await t.ctx.sequelize.query(`INSERT INTO rollups (engine_id, channel, minute, "min", "max", "sum", "count", bad_count)
+      SELECT engine_id, channel, ts - (ts % 60000), MIN(value), MAX(value), SUM(value), COUNT(*), 0 FROM readings WHERE engine_id = ${e} GROUP BY engine_id, channel, ts - (ts % 60000)`);
+    const expected = { lastRunTs: ranUntil - 10_000, stoppedSinceTs: ranUntil };
+    expect(await new ReadingHistory(t.ctx.sequelize).stopRecord(e, NOW)).toEqual(expected);
+    await compactor().pass();
+    expect(await count(t.ctx.sequelize, 'SELECT COUNT(*) AS n FROM readings WHERE engine_id = $1 AND ts < $2', [e, CUTOFF])).toBe(0);
+    expect(await new ReadingHistory(t.ctx.sequelize).stopRecord(e, NOW)).toEqual(expected);
+  });
+
   it('merges late and out-of-order arrivals into their blocks, and stores a redelivered reading once', async () => {
     const inBlock = stored1.find((r) => r.ts > NOW - 40 * HOUR)!;
     const late: StoredReading[] = [
@@ -264,7 +288,9 @@ describe('compacted history in the database', () => {
     const result = await retention.sweep();
     await retention.stop();
     expect(result.complete).toBe(true);
-    expect(result.deletedCompacted).toBe(stored1.filter((r) => r.ts < keptFrom).length + stored2.filter((r) => r.ts < keptFrom).length + 500 - 1);
+    expect(result.deletedCompacted).toBe(
+      stored1.filter((r) => r.ts < keptFrom).length + stored2.filter((r) => r.ts < keptFrom).length + stopRows.filter((r) => r.ts < keptFrom).length + 500 - 1,
+    );
     expectSame(
       await readRawRange(t.ctx.sequelize, e1, 1, 0, END),
       stored1.filter((r) => r.ts >= keptFrom),
