@@ -9,7 +9,8 @@
  * index, `reading_blocks` and its primary-key index, divided by the readings stored. Not counted: the
  * rollups (kept as before, the same with or without compaction), other tables, free pages left in the file
  * by the deleted raw rows (SQLite reuses them for the next rows; `VACUUM` returns them: the file size after one
- * is printed too).
+ * is printed too). With JW_TEST_PG_URL set (scripts/with-postgres.ts) the same on PostgreSQL, counted with
+ * pg_total_relation_size (tables, indexes, TOAST) after a plain VACUUM.
  */
 import fs from 'node:fs';
 import os from 'node:os';
@@ -29,12 +30,15 @@ const SECONDS = 86_400;
 const HOUR = 3_600_000;
 
 export interface HistoryFigures {
+  dialect: 'sqlite' | 'postgres';
   engines: number;
   readings: number;
   seedS: number;
   /** Before compaction: readings table + its index, bytes per reading. */
   rawBytesPerReading: number;
-  /** After: readings + index + reading_blocks + its index, bytes per reading. */
+  /** PostgreSQL: after a plain VACUUM, pages still held by the table files (free for later rows), bytes per reading. */
+  pgHeldBytesPerReading: number;
+  /** After: readings + index + reading_blocks + its index, bytes per reading (pages in use). */
   bytesPerReading: number;
   /** Bytes of the packed data alone (the codec's output) per reading. */
   blockDataBytesPerReading: number;
@@ -59,8 +63,20 @@ function rng(seed: number): () => number {
   };
 }
 
-/** Bytes SQLite's dbstat gives each table and index (pages in use, whole pages). */
-async function pageBytes(sequelize: Sequelize): Promise<Record<string, number>> {
+/**
+ * SQLite: bytes dbstat gives each table and index (pages in use, whole pages). PostgreSQL: pg_total_relation_size
+ * (table, indexes and TOAST) of every partition of `readings`, and of `reading_blocks`, after a plain VACUUM
+ * (`full`: VACUUM FULL, which gives back the pages the deleted raw rows held, as dbstat leaves free pages out).
+ */
+async function pageBytes(sequelize: Sequelize, full = false): Promise<Record<string, number>> {
+  if (sequelize.getDialect() === 'postgres') {
+    await sequelize.query(`VACUUM${full ? ' FULL' : ''} readings, reading_blocks`, { logging: false });
+    const [row] = await sequelize.query<{ readings: string; blocks: string }>(
+      `SELECT (SELECT SUM(pg_total_relation_size(relid)) FROM pg_partition_tree('readings')) AS readings, pg_total_relation_size('reading_blocks') AS blocks`,
+      { type: QueryTypes.SELECT, logging: false },
+    );
+    return { readings: Number(row.readings), reading_blocks: Number(row.blocks) };
+  }
   const rows = await sequelize.query<{ name: string; bytes: number }>(
     `SELECT name, SUM(pgsize) AS bytes FROM dbstat WHERE name IN (SELECT name FROM sqlite_master WHERE tbl_name IN ('readings', 'reading_blocks')) GROUP BY name`,
     { type: QueryTypes.SELECT, logging: false },
@@ -76,7 +92,7 @@ export async function historyPhase(progress: (m: string) => void): Promise<Histo
     // a migrated file with the engines, then the server stops
     const server = await startServerProcess({ dataDir, group: true, env: { COMPACT_AFTER_H: '0' } });
     const dbUrl = server.databaseUrl;
-    if (/^postgres/.test(dbUrl)) throw new Error('the history bench measures SQLite pages; run it without JW_TEST_PG_URL');
+    const postgres = /^postgres/.test(dbUrl);
     let db = new Db(dbUrl);
     const fleet = await seedFleet(db, ENGINES, 'hist');
     await db.close();
@@ -87,7 +103,7 @@ export async function historyPhase(progress: (m: string) => void): Promise<Histo
     const start = Math.floor((now - 49 * HOUR) / 1000) * 1000;
     const t0 = performance.now();
     db = new Db(dbUrl);
-    await db.exec('PRAGMA journal_mode=WAL; PRAGMA synchronous=NORMAL; PRAGMA cache_size=-65536');
+    if (!postgres) await db.exec('PRAGMA journal_mode=WAL; PRAGMA synchronous=NORMAL; PRAGMA cache_size=-65536');
     const keys = CHANNEL_KEYS;
     const perStmt = 100;
     const sql = `INSERT INTO readings (engine_id, channel, ts, value, quality) VALUES ${Array.from({ length: perStmt }, () => '(?,?,?,?,?)').join(',')}`;
@@ -132,7 +148,8 @@ export async function historyPhase(progress: (m: string) => void): Promise<Histo
     }
     await db.close();
     const seedS = (performance.now() - t0) / 1000;
-    const fileBytesBefore = fs.statSync(dbUrl.replace(/^sqlite:(\/\/)?/, '')).size;
+    const fileSize = () => (postgres ? NaN : fs.statSync(dbUrl.replace(/^sqlite:(\/\/)?/, '')).size);
+    const fileBytesBefore = fileSize();
 
     const sequelize = createSequelize(loadConfig({ DATA_DIR: dataDir, DATABASE_URL: dbUrl, LOG_LEVEL: 'error' }), log);
     try {
@@ -150,19 +167,24 @@ export async function historyPhase(progress: (m: string) => void): Promise<Histo
         const a = await readRawRange(sequelize, engineId, code, 0, Number.MAX_SAFE_INTEGER);
         if (a.length !== w.ts.length || a.some((r, i) => r.ts !== w.ts[i] || !Object.is(r.value, w.value[i]) || r.quality !== 0)) lossless = false;
       }
-      const after = await pageBytes(sequelize);
+      // PostgreSQL keeps the deleted rows' pages in the table (reused by later inserts): held after a plain VACUUM,
+      // in use after VACUUM FULL (what dbstat counts on SQLite)
+      const held = postgres ? sum(await pageBytes(sequelize)) / readings : NaN;
+      const after = await pageBytes(sequelize, true);
       const [{ n: blocks, bytes: dataBytes }] = await sequelize.query<{ n: number; bytes: number }>(
         'SELECT COUNT(*) AS n, SUM(LENGTH(data)) AS bytes FROM reading_blocks',
         { type: QueryTypes.SELECT },
       );
       const [{ n: rawRowsLeft }] = await sequelize.query<{ n: number }>('SELECT COUNT(*) AS n FROM readings', { type: QueryTypes.SELECT });
-      await sequelize.query('VACUUM');
-      const fileBytesAfterVacuum = fs.statSync(dbUrl.replace(/^sqlite:(\/\/)?/, '')).size;
+      if (!postgres) await sequelize.query('VACUUM');
+      const fileBytesAfterVacuum = fileSize();
       return {
+        dialect: postgres ? 'postgres' : 'sqlite',
         engines: fleet.length,
         readings,
         seedS,
         rawBytesPerReading: sum(before) / readings,
+        pgHeldBytesPerReading: held,
         bytesPerReading: sum(after) / readings,
         blockDataBytesPerReading: Number(dataBytes) / readings,
         blocks: Number(blocks),
@@ -185,17 +207,23 @@ export function printHistory(h: HistoryFigures): void {
   const line = (k: string, v: string) => console.log(`  ${k.padEnd(46)} ${v}`);
   const mb = (b: number) => `${(b / 1e6).toFixed(1)} MB`;
   console.log(
-    `\n8. Compacted history (${h.engines} engines x 5 channels x 1 Hz, one day = ${h.readings.toLocaleString('en-US')} readings, simulator values; SQLite dbstat pages of readings + its index + reading_blocks + its index)`,
+    `\n8. Compacted history (${h.engines} engines x 5 channels x 1 Hz, one day = ${h.readings.toLocaleString('en-US')} readings, simulator values; ${
+      h.dialect === 'postgres'
+        ? 'PostgreSQL pg_total_relation_size of the readings partitions and reading_blocks with indexes and TOAST, after VACUUM FULL'
+        : 'SQLite dbstat pages of readings + its index + reading_blocks + its index'
+    })`,
   );
   line('raw, before compaction (rawBytesPerReading)', `${h.rawBytesPerReading.toFixed(1)} bytes/reading`);
   line('compacted (bytesPerReading)', `${h.bytesPerReading.toFixed(2)} bytes/reading   (goal: at most 12)`);
+  if (h.dialect === 'postgres') line('held after a plain VACUUM (free space kept for new rows)', `${h.pgHeldBytesPerReading.toFixed(1)} bytes/reading`);
   line('packed data alone', `${h.blockDataBytesPerReading.toFixed(2)} bytes/reading in ${h.blocks} blocks (${h.rawRowsLeft} newest readings left raw)`);
   line('read back through the merged path', h.lossless ? 'identical (timestamps, values bit for bit, quality)' : 'DIFFERENT');
   line('compaction time', `${h.compactS.toFixed(1)} s (${Math.round(h.readings / h.compactS).toLocaleString('en-US')} readings/s, one block per transaction)`);
-  line('whole file before / after compaction and VACUUM', `${mb(h.fileBytesBefore)} / ${mb(h.fileBytesAfterVacuum)} (all tables; no rollups written here)`);
+  if (h.dialect === 'sqlite')
+    line('whole file before / after compaction and VACUUM', `${mb(h.fileBytesBefore)} / ${mb(h.fileBytesAfterVacuum)} (all tables; no rollups written here)`);
 }
 
-export function historyJson(h: HistoryFigures): Record<string, number | boolean> {
+export function historyJson(h: HistoryFigures): Record<string, number | boolean | string> {
   const r2 = (x: number) => Math.round(x * 100) / 100;
   return {
     bytesPerReading: r2(h.bytesPerReading),
@@ -204,5 +232,7 @@ export function historyJson(h: HistoryFigures): Record<string, number | boolean>
     historyReadings: h.readings,
     historyCompactS: r2(h.compactS),
     historyLossless: h.lossless,
+    historyDialect: h.dialect,
+    ...(h.dialect === 'postgres' ? { pgHeldBytesPerReading: r2(h.pgHeldBytesPerReading) } : {}),
   };
 }
