@@ -36,6 +36,8 @@ export interface Config {
   retentionBatch: number;
   retentionPauseMs: number;
   retentionEveryMs: number;
+  /** COMPACT_AFTER_H [24]: raw readings older than this many hours are packed into blocks (server/services/history); 0 keeps them raw. */
+  compactAfterH: number;
   /** Interface of the HTTP server (HOST); loopback by default, 0.0.0.0 for every interface. */
   host: string;
   /** Interface of the embedded MQTT broker (MQTT_HOST); loopback by default. */
@@ -93,6 +95,7 @@ export const envSchema = z.object({
   RETENTION_BATCH: withDefault(whole(1, 1_000_000), 4000),
   RETENTION_PAUSE_MS: withDefault(whole(0, 60_000), 100),
   RETENTION_EVERY_S: withDefault(whole(1, 7 * 86_400), 3600),
+  COMPACT_AFTER_H: withDefault(whole(0, 100_000), 24),
   TRUST_PROXY: text(),
   HOST: withDefault(z.string(), '127.0.0.1'),
   MQTT_HOST: withDefault(z.string(), '127.0.0.1'),
@@ -181,6 +184,7 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
     retentionBatch: e.RETENTION_BATCH,
     retentionPauseMs: e.RETENTION_PAUSE_MS,
     retentionEveryMs: e.RETENTION_EVERY_S * 1000,
+    compactAfterH: e.COMPACT_AFTER_H,
     trustProxy: trustProxyFrom(e.TRUST_PROXY),
     host: e.HOST,
     mqttHost: e.MQTT_HOST,

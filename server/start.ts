@@ -23,6 +23,7 @@ import { createAlarmFeature, type AlarmFeature } from './services/alarms';
 import { startRunHoursCounting } from './services/coolant';
 import { siteOfEngineLookup } from './services/engines';
 import { startRetention, type Retention } from './services/retention';
+import { startCompactor } from './services/history/compactor';
 import { openingHistoryOf } from './services/work-orders/reading-history';
 import { siteScopeForUser } from './services/site-access';
 import { createDynsecAccounts } from './telemetry/broker-accounts';
@@ -102,6 +103,7 @@ export async function startServer(config: Config, opts: StartOptions = {}): Prom
   // several servers: this one evaluates the engines whose leases it holds (all of them while it is alone)
   await cluster?.startLeases();
   const retention = startRetention({ sequelize, log, config });
+  const compactor = startCompactor({ sequelize, log, config });
 
   await new Promise<void>((resolve, reject) => {
     httpServer.once('error', reject);
@@ -117,6 +119,7 @@ export async function startServer(config: Config, opts: StartOptions = {}): Prom
   const stop = () =>
     (stopping ??= (async () => {
       await retention.stop();
+      await compactor.stop();
       partitions.stop();
       await telemetry.stop();
       await ctx.deviceAccounts?.close();

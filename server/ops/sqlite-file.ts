@@ -63,7 +63,13 @@ export async function summarise(db: SqliteFile): Promise<BackupSummary> {
   const tables = await db.all<{ name: string }>("SELECT name FROM sqlite_master WHERE type = 'table' AND name NOT LIKE 'sqlite_%' ORDER BY name");
   const rows: Record<string, number> = {};
   for (const { name } of tables) rows[name] = (await db.all<{ n: number }>(`SELECT COUNT(*) AS n FROM "${name.replace(/"/g, '""')}"`))[0].n;
-  const newest = rows.readings !== undefined ? (await db.all<{ ts: number | null }>('SELECT MAX(ts) AS ts FROM readings'))[0].ts : null;
+  // raw readings, and compacted ones (server/services/history) where the file has them
+  const newestOf = async (sql: string) => (await db.all<{ ts: number | null }>(sql))[0].ts;
+  const candidates = [
+    rows.readings !== undefined ? await newestOf('SELECT MAX(ts) AS ts FROM readings') : null,
+    rows.reading_blocks !== undefined ? await newestOf('SELECT MAX(last_ts) AS ts FROM reading_blocks') : null,
+  ].filter((ts): ts is number => ts !== null);
+  const newest = candidates.length ? Math.max(...candidates) : null;
   const migrations =
     rows.schema_migrations !== undefined ? (await db.all<{ name: string }>('SELECT name FROM schema_migrations ORDER BY name')).map((r) => r.name) : [];
   return { integrity, rows, newestReadingTs: newest, migrations };

@@ -1,6 +1,7 @@
 import { QueryTypes, type Sequelize } from 'sequelize';
 import { CHANNELS, type ChannelKey } from '../../shared/channels';
 import { rawKeptFrom } from './retention';
+import { hasBlocks, readRawRange } from './history/raw-range';
 
 export interface Bucket {
   /** Start of the bucket, ms since epoch. */
@@ -94,7 +95,10 @@ export async function queryBuckets(
       WHERE engine_id = $1 AND channel = $2 AND "count" > 0 AND ${key} >= ${c(3)} AND ${key} < ${c(4)}
       GROUP BY b ORDER BY b`;
   }
-  const rows = await sequelize.query<Row>(sql, { bind: [q.engineId, code, from, q.to, width], type: QueryTypes.SELECT });
+  const rows =
+    source === 'raw' && (await hasBlocks(sequelize, q.engineId, code, from, q.to))
+      ? await bucketsInMemory(sequelize, q.engineId, code, from, q.to, width)
+      : await sequelize.query<Row>(sql, { bind: [q.engineId, code, from, q.to, width], type: QueryTypes.SELECT });
   return {
     source,
     rollupPeriod: period,
@@ -103,4 +107,30 @@ export async function queryBuckets(
     beyondRawRetention,
     buckets: rows.map((r) => ({ t: from + Number(r.b) * width, min: Number(r.mn), max: Number(r.mx), mean: Number(r.mean), count: Number(r.n) })),
   };
+}
+
+/**
+ * The raw query's buckets when part of the range is compacted (older than COMPACT_AFTER_H): the readings come
+ * through the merged read path and are bucketed here, the same way the SQL does.
+ */
+async function bucketsInMemory(sequelize: Sequelize, engineId: number, code: number, from: number, to: number, width: number): Promise<Row[]> {
+  const readings = await readRawRange(sequelize, engineId, code, from, to, { goodOnly: true });
+  const rows: Row[] = [];
+  let cur: Row | null = null;
+  let sum = 0;
+  for (const r of readings) {
+    const b = Math.floor((r.ts - from) / width);
+    if (!cur || cur.b !== b) {
+      if (cur) cur.mean = sum / Number(cur.n);
+      cur = { b, mn: r.value, mx: r.value, mean: 0, n: 0 };
+      sum = 0;
+      rows.push(cur);
+    }
+    if (r.value < cur.mn) cur.mn = r.value;
+    if (r.value > cur.mx) cur.mx = r.value;
+    sum += r.value;
+    cur.n = Number(cur.n) + 1;
+  }
+  if (cur) cur.mean = sum / Number(cur.n);
+  return rows;
 }

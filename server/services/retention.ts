@@ -2,6 +2,7 @@ import { QueryTypes, Transaction, type Sequelize } from 'sequelize';
 import { CHANNELS, CHANNEL_KEYS } from '../../shared/channels';
 import type { Config } from '../config';
 import type { Logger } from '../logger';
+import { decodeBlock, encodeBlock } from '../../shared/history/block-codec';
 
 export const DAY_MS = 24 * 3600 * 1000;
 
@@ -12,6 +13,8 @@ export function rawKeptFrom(rawRetentionDays: number, now: number): number | nul
 
 export interface SweepResult {
   deleted: number;
+  /** Compacted readings removed (whole blocks, and the older part of the block holding the cutoff). */
+  deletedCompacted: number;
   /** Steps of at most RETENTION_BATCH rows, each followed by a pause. */
   batches: number;
   cutoff: number | null;
@@ -51,6 +54,11 @@ export function startRetention(opts: RetentionOptions): Retention {
   const boundSql = `SELECT ts FROM readings WHERE engine_id = $1 AND channel = $2 AND ts < CAST($3 AS ${big})
     ORDER BY ts LIMIT 1 OFFSET $4`;
   const deleteSql = `DELETE FROM readings WHERE engine_id = $1 AND channel = $2 AND ts < CAST($3 AS ${big})`;
+  // compacted blocks (server/services/history): whole blocks before the cutoff, a few at a time, then the one holding it
+  const oldBlocksSql = `DELETE FROM reading_blocks WHERE engine_id = $1 AND channel = $2 AND block_start IN (SELECT block_start FROM reading_blocks
+    WHERE engine_id = $1 AND channel = $2 AND last_ts < CAST($3 AS ${big}) ORDER BY block_start LIMIT 50) RETURNING "count"`;
+  const edgeBlockSql = `SELECT block_start, data FROM reading_blocks WHERE engine_id = $1 AND channel = $2 AND block_start < CAST($3 AS ${big})
+    AND first_ts < CAST($3 AS ${big}) AND last_ts >= CAST($3 AS ${big})`;
   let stopped = false;
   let running: Promise<SweepResult> | null = null;
   let timer: NodeJS.Timeout | null = null;
@@ -71,7 +79,7 @@ export function startRetention(opts: RetentionOptions): Retention {
 
   async function run(): Promise<SweepResult> {
     const cutoff = rawKeptFrom(config.rawRetentionDays, now());
-    const result: SweepResult = { deleted: 0, batches: 0, cutoff, complete: false };
+    const result: SweepResult = { deleted: 0, deletedCompacted: 0, batches: 0, cutoff, complete: false };
     if (cutoff === null) return { ...result, complete: true };
     const started = Date.now();
     const engines = await sequelize.query<{ id: number }>('SELECT id FROM engines ORDER BY id', { type: QueryTypes.SELECT });
@@ -99,13 +107,41 @@ export function startRetention(opts: RetentionOptions): Retention {
           }
           if (!bound.length) break;
         }
+        for (;;) {
+          if (stopped) return result;
+          const { removed, last } = await sequelize.transaction({ type: Transaction.TYPES.IMMEDIATE }, async (transaction) => {
+            const gone = await sequelize.query<{ count: number | string }>(oldBlocksSql, { bind: [id, code, cutoff], type: QueryTypes.SELECT, transaction });
+            let removed = gone.reduce((sum, b) => sum + Number(b.count), 0);
+            if (gone.length < 50) {
+              const [edge] = await sequelize.query<{ block_start: number | string; data: Buffer }>(edgeBlockSql, {
+                bind: [id, code, cutoff],
+                type: QueryTypes.SELECT,
+                transaction,
+              });
+              if (edge) {
+                const all = decodeBlock(edge.data);
+                const kept = all.filter((r) => r.ts >= cutoff);
+                removed += all.length - kept.length;
+                await sequelize.query(
+                  `UPDATE reading_blocks SET first_ts = CAST($4 AS ${big}), "count" = $5, data = $6
+                    WHERE engine_id = $1 AND channel = $2 AND block_start = CAST($3 AS ${big})`,
+                  { bind: [id, code, Number(edge.block_start), kept[0].ts, kept.length, Buffer.from(encodeBlock(kept))], transaction },
+                );
+              }
+            }
+            return { removed, last: gone.length < 50 };
+          });
+          result.deletedCompacted += removed;
+          if (last) break;
+          await pause(config.retentionPauseMs);
+        }
       }
     }
     if (budget < config.retentionBatch) result.batches++;
     result.complete = true;
-    if (result.deleted) {
+    if (result.deleted || result.deletedCompacted) {
       log.info(
-        `retention: ${result.deleted} raw readings before ${new Date(cutoff).toISOString()} removed in ${result.batches} batches, ${((Date.now() - started) / 1000).toFixed(1)} s`,
+        `retention: ${result.deleted} raw and ${result.deletedCompacted} compacted readings before ${new Date(cutoff).toISOString()} removed in ${result.batches} batches, ${((Date.now() - started) / 1000).toFixed(1)} s`,
       );
     }
     return result;
@@ -115,7 +151,7 @@ export function startRetention(opts: RetentionOptions): Retention {
     running ??= run()
       .catch((err) => {
         log.error('retention: sweep failed', err);
-        return { deleted: 0, batches: 0, cutoff: null, complete: false };
+        return { deleted: 0, deletedCompacted: 0, batches: 0, cutoff: null, complete: false };
       })
       .finally(() => {
         running = null;

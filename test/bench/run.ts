@@ -12,11 +12,12 @@
  *  3. QoS 0 flood: memory and responsiveness while TCP backpressure holds the inflow; bounded in time
  *     (publishers stop, the server gets a bounded drain time), then published (handed to TCP) vs
  *     received vs stored. QoS 0 has no acknowledgement: "nothing lost" is a QoS 1 claim only;
- *  then the retention sweep and the long-trend phase (trend.ts: trend30dMs / trend1hMs with 200 engines x 30 days).
+ *  then the retention sweep and the long-trend phase (trend.ts: trend30dMs / trend1hMs with 200 engines x 30 days),
+ *  then compacted history (history.ts: bytesPerReading after a day of 1 Hz history is packed, rawBytesPerReading before).
  *  then sign-in under a burst (login-burst.ts, its own server process): a good sign-in and a good device connect
  *     timed beside 200 wrong HTTP sign-ins and 300 wrong MQTT logins (loginUnderBurstMs, deviceConnectUnderBurstMs).
  *  then the lists at fleet scale (lists.ts: first page of each long list with 2,000 engines, listP95Ms).
- * Phase lengths: BENCH_FLOOD_MS, BENCH_LATENCY_MS, BENCH_QOS0_MS, BENCH_DRAIN_MS. One phase alone: BENCH_PHASE=qos1|push|retention|trend|lists.
+ * Phase lengths: BENCH_FLOOD_MS, BENCH_LATENCY_MS, BENCH_QOS0_MS, BENCH_DRAIN_MS. One phase alone: BENCH_PHASE=qos1|push|retention|trend|history|lists.
  * BENCH_SCALE=1: instead, several servers on PostgreSQL and mosquitto (scale.ts), one server vs two.
  * BENCH_JSON=file: the figures also as JSON (ingestPerS, rawCeilingPerS, lostAcknowledged, duplicatesStored,
  * rssGrowthPct, loginUnderBurstMs, ...), to compare runs.
@@ -32,6 +33,7 @@ import { createTokenService } from '../../server/auth/tokens';
 import { describeInitialBundle, measureInitialBundle } from './initial-bundle';
 import { fleetBoardLongTasks, type FleetBoardFigures } from './fleet-board';
 import { printTrend, trendPhase } from './trend';
+import { historyJson, historyPhase, printHistory } from './history';
 import { listsJson, listsPhase, printLists } from './lists';
 import { loginUnderBurst, type LoginBurstFigures } from './login-burst';
 import { printScale, runScaleBench } from './scale';
@@ -475,6 +477,8 @@ async function retentionPhase(progress: (m: string) => void) {
         DATA_DIR: dataDir,
         LOG_LEVEL: 'warn',
         RAW_RETENTION_DAYS: '400',
+        // the sweep alone: the compactor would otherwise also take the old raw rows out of \`readings\` (history.ts measures it)
+        COMPACT_AFTER_H: '0',
       },
     });
     const url = `http://127.0.0.1:${port}`;
@@ -596,6 +600,16 @@ async function main(): Promise<void> {
   }
   if (process.env.BENCH_PHASE === 'trend') {
     printTrend(await trendPhase(progress));
+    process.exit(0);
+  }
+  if (process.env.BENCH_PHASE === 'history') {
+    const history = await historyPhase(progress);
+    printHistory(history);
+    if (process.env.BENCH_JSON)
+      fs.writeFileSync(
+        process.env.BENCH_JSON,
+        JSON.stringify({ at: new Date().toISOString(), cores: os.cpus().length, node: process.version, ...historyJson(history) }, null, 2) + '\n',
+      );
     process.exit(0);
   }
   if (process.env.BENCH_PHASE === 'push') {
@@ -793,6 +807,12 @@ async function main(): Promise<void> {
   printRetention(retention);
   const trend = await trendPhase(progress);
   printTrend(trend);
+  progress('compacted history');
+  const history = await historyPhase(progress).catch((err) => {
+    console.error('history phase failed:', err instanceof Error ? err.message : err);
+    return null;
+  });
+  if (history) printHistory(history);
   progress('lists at fleet scale');
   const lists = await listsPhase(progress).catch((err) => {
     console.error('lists phase failed:', err instanceof Error ? err.message : err);
@@ -853,6 +873,7 @@ async function main(): Promise<void> {
           trend30dMinuteRollupsMs: r1(trend.trend30dMinutesMs),
           trendEngines: trend.engines,
           trendDays: trend.days,
+          ...(history ? historyJson(history) : { bytesPerReading: null }),
           ...(lists ? listsJson(lists) : { listP95Ms: null }),
           loginQuietMs: burst ? r1(burst.quietMs) : null,
           loginUnderBurstMs: burst ? r1(burst.underBurstMs) : null,

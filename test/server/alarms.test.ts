@@ -6,6 +6,7 @@
  */
 import request from 'supertest';
 import { CHANNELS } from '../../shared/channels';
+import { startCompactor } from '../../server/services/history/compactor';
 import { waitFor } from './support/alarm-db';
 import { auth, makeAlarmApp, samples, type AlarmApp } from './support/alarm-app';
 
@@ -334,6 +335,18 @@ describe('engine overrides, out of service and the preview', () => {
         .expect(200)
     ).body;
     expect(p98.alarms).toHaveLength(0);
+    // the same history once compacted (server/services/history, as if a day had passed): the same preview
+    const pass = await startCompactor({
+      sequelize: t.ctx.sequelize,
+      log: t.ctx.log,
+      config: { compactAfterH: 24 },
+      now: () => Date.now() + 28 * 3600_000,
+      pauseMs: 0,
+      timer: false,
+    }).pass();
+    expect(pass.readings).toBeGreaterThanOrEqual(rows.length - 2);
+    const again = (await api().post('/api/rules/preview').set(auth(t.tokens.admin)).send({ engineId, rule: 'coolant_temp_high', from, to }).expect(200)).body;
+    expect(again).toEqual(p);
     await api()
       .post('/api/rules/preview')
       .set(auth(t.tokens.admin))

@@ -121,7 +121,7 @@ describe('retention of raw readings', () => {
       timer: false,
       config: { rawRetentionDays: 0, retentionBatch: 10, retentionPauseMs: 0, retentionEveryMs: 3600_000 },
     });
-    expect(await r.sweep()).toEqual({ deleted: 0, batches: 0, cutoff: null, complete: true });
+    expect(await r.sweep()).toEqual({ deleted: 0, deletedCompacted: 0, batches: 0, cutoff: null, complete: true });
     await r.stop();
     expect(await one('SELECT COUNT(*) AS n FROM readings')).toEqual(before);
   });

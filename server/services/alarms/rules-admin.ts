@@ -2,14 +2,14 @@
  * Rule profile and per-engine overrides (administrators), and the preview that runs a rule over an
  * engine's stored readings to show what it would have raised.
  */
-import { QueryTypes, type Sequelize } from 'sequelize';
+import type { Sequelize } from 'sequelize';
 import { CHANNELS, type ChannelKey } from '../../../shared/channels';
-import { isSqlite } from '../../db/sequelize';
 import { badRequest, notFound } from '../../http-error';
 import type { Models } from '../../models';
 import { EngineEvaluator, type EngineFacts, type EvalReading } from './engine-evaluator';
 import type { RuleEngine } from './rule-engine';
 import { effectiveRules, type RuleDefinition, type RuleOverride } from './rule-definitions';
+import { readRawRange } from '../history/raw-range';
 
 export interface EngineRulesView {
   engineId: number;
@@ -72,19 +72,16 @@ export interface PreviewResult {
 
 const PAGE = 5000;
 
-/** One channel's stored readings in time order, a page at a time (keyset on the (engine, channel, ts) index). */
+/** One channel's stored readings (raw and compacted) in time order, a page at a time (keyset on the timestamp). */
 async function* channelRows(sequelize: Sequelize, engineId: number, channel: ChannelKey, from: number, to: number): AsyncGenerator<EvalReading[]> {
-  const int = isSqlite(sequelize) ? 'INTEGER' : 'BIGINT';
   const code = CHANNELS[channel].code;
   let after = from - 1;
   for (;;) {
-    const rows = await sequelize.query<{ ts: number; value: number; quality: number }>(
-      `SELECT ts, value, quality FROM readings WHERE engine_id = $1 AND channel = $2 AND ts > CAST($3 AS ${int}) AND ts <= CAST($4 AS ${int}) ORDER BY ts LIMIT ${PAGE}`,
-      { bind: [engineId, code, after, to], type: QueryTypes.SELECT, logging: false },
-    );
+    // (after, to] as [after + 1, to + 1): timestamps are whole milliseconds
+    const rows = await readRawRange(sequelize, engineId, code, after + 1, to + 1, { limit: PAGE });
     if (!rows.length) return;
-    yield rows.map((r) => ({ channel, ts: Number(r.ts), value: Number(r.value), quality: r.quality ? 1 : 0 }));
-    after = Number(rows[rows.length - 1].ts);
+    yield rows.map((r) => ({ channel, ts: r.ts, value: r.value, quality: r.quality ? 1 : 0 }));
+    after = rows[rows.length - 1].ts;
     if (rows.length < PAGE) return;
   }
 }

@@ -2,6 +2,7 @@ import { QueryTypes, type Sequelize } from 'sequelize';
 import { CHANNELS, RUNNING_RPM, type ChannelKey } from '../../../shared/channels';
 import type { TimedValue } from '../../../shared/work/opening-check';
 import type { AcceptedReading } from '../../telemetry/types';
+import { readRawRange } from '../history/raw-range';
 
 /** The channels the opening check reads. */
 export const GATE_CHANNELS = [
@@ -168,8 +169,6 @@ export class ReadingHistory {
    */
   private async loadStop(engineId: number): Promise<StopRecord> {
     const code = CHANNELS.engine_speed.code;
-    // timestamps are milliseconds: 64-bit on both databases (PostgreSQL's INTEGER is 32-bit)
-    const int = this.sequelize!.getDialect() === 'postgres' ? 'BIGINT' : 'INTEGER';
     const q = async <T extends object>(sql: string, replacements: unknown[]) =>
       (await this.sequelize!.query<T>(sql, { replacements, type: QueryTypes.SELECT, logging: false }))[0];
     const rolled = await q<{ minute: number | null; n: number }>(
@@ -179,11 +178,10 @@ export class ReadingHistory {
     let lastRunTs: number | null = null;
     if (Number(rolled?.n ?? 0) > 0) {
       if (rolled.minute !== null) {
-        const row = await q<{ ts: number | null }>(
-          `SELECT MAX(ts) AS ts FROM readings WHERE engine_id = ? AND channel = ? AND quality = 0 AND value > ? AND ts >= CAST(? AS ${int}) AND ts < CAST(? AS ${int})`,
-          [engineId, code, RUNNING_RPM, Number(rolled.minute), Number(rolled.minute) + 60_000],
-        );
-        lastRunTs = row?.ts === null || row?.ts === undefined ? null : Number(row.ts);
+        // that minute's readings, raw or compacted (server/services/history)
+        const minute = Number(rolled.minute);
+        const inMinute = await readRawRange(this.sequelize!, engineId, code, minute, minute + 60_000, { goodOnly: true });
+        for (const r of inMinute) if (r.value > RUNNING_RPM) lastRunTs = r.ts;
       }
     } else {
       const row = await q<{ ts: number | null }>('SELECT MAX(ts) AS ts FROM readings WHERE engine_id = ? AND channel = ? AND quality = 0 AND value > ?', [
@@ -193,11 +191,9 @@ export class ReadingHistory {
       ]);
       lastRunTs = row?.ts === null || row?.ts === undefined ? null : Number(row.ts);
     }
-    const first = await q<{ ts: number | null }>(
-      `SELECT MIN(ts) AS ts FROM readings WHERE engine_id = ? AND channel = ? AND quality = 0 AND ts > CAST(? AS ${int})`,
-      [engineId, code, lastRunTs ?? -1],
-    );
-    const rec: StopRecord = { lastRunTs, stoppedSinceTs: first?.ts === null || first?.ts === undefined ? null : Number(first.ts) };
+    // the first good reading after it, raw or compacted: a stop older than COMPACT_AFTER_H began in compacted history
+    const [first] = await readRawRange(this.sequelize!, engineId, code, (lastRunTs ?? -1) + 1, Number.MAX_SAFE_INTEGER, { goodOnly: true, limit: 1 });
+    const rec: StopRecord = { lastRunTs, stoppedSinceTs: first ? first.ts : null };
     // readings that arrived while this was loading
     for (const v of this.engines.get(engineId)?.engine_speed ?? []) if ((v.quality ?? 0) === 0) this.noteSpeedInto(rec, v.ts, v.value);
     return rec;
