@@ -3,7 +3,8 @@ import { z } from 'zod';
 import { CHANNEL_KEYS } from '../../shared/channels';
 import { COOLANT_FAMILIES, DUTIES, GLYCOL_TYPES } from '../models/engine';
 import { ROLES } from '../models/user';
-import './api-doc';
+import type { EngineRecordView, EngineView } from '../../shared/api/engine-view';
+import { covers } from './api-doc';
 
 const isoTime = z.string().openapi({ format: 'date-time' });
 const isoOrNull = isoTime.nullable();
@@ -80,6 +81,7 @@ const engineCore = {
 
 /** An engine as written (create, change, retire): its record with live values. */
 export const Engine = z.object(engineCore).openapi('Engine');
+covers<EngineRecordView>()(Engine);
 
 /** An engine as read (list, one): with the active-alarm count, standby readiness and freeze protection. */
 export const EngineStatus = z
@@ -93,6 +95,7 @@ export const EngineStatus = z
     freezeProtection: freezeProtection.optional().openapi({ description: 'engines with a glycol or freeze-point test' }),
   })
   .openapi('EngineStatus');
+covers<EngineView>()(EngineStatus);
 
 export const Buckets = z
   .object({

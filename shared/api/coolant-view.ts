@@ -17,11 +17,8 @@ export interface CoolantDecision {
   engine: { capacityL: number; coolantFamily: string; glycolType: string; designLowC?: number | null };
 }
 
-/** One coolant test as the API answers it (times as ISO strings). */
-export interface CoolantTestView {
-  id: number;
-  engineId: number;
-  testedAt: string;
+/** The readings of one coolant test as entered: what POST /api/engines/:id/coolant-tests takes (with an optional `testedAt`), and part of every test the API answers. */
+export interface CoolantTestReadings {
   method: TestMethod;
   scaUnitsPerGal: number | null;
   glycolPercent: number | null;
@@ -36,6 +33,13 @@ export interface CoolantTestView {
   breakdownSigns?: BreakdownSign[] | null;
   appearance: string | null;
   notes: string | null;
+}
+
+/** One coolant test as the API answers it (times as ISO strings). */
+export interface CoolantTestView extends CoolantTestReadings {
+  id: number;
+  engineId: number;
+  testedAt: string;
   testedBy: number | null;
   testedByName: string | null;
   decision: CoolantDecision | null;

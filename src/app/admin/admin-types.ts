@@ -59,21 +59,7 @@ export interface IngestReport {
 }
 
 /** What POST/PATCH /api/engines take: SI units only. */
-export interface EngineInput {
-  siteId: number;
-  name: string;
-  duty: Engine['duty'];
-  capacityL: number;
-  coolantFamily: 'conventional' | 'extended-life';
-  glycolType: 'ethylene' | 'propylene';
-  glycolPercent: number;
-  capPressureKpa: number;
-  oilDrainIntervalH: number;
-  runHours: number;
-  safeOpenTempC: number;
-  heaterSetpointC: number | null;
-  outOfService: boolean;
-}
+export type { EngineInput } from '../../../shared/api/engine-view';
 
 export const ROLES: { value: Role; label: string }[] = [
   { value: 'admin', label: 'Administrator' },

@@ -1,4 +1,6 @@
 import { ChangeDetectionStrategy, Component, computed, effect, inject, input, signal, untracked } from '@angular/core';
+import { rxResource } from '@angular/core/rxjs-interop';
+import { lastValue } from '../core/last-value';
 import { MatButtonModule } from '@angular/material/button';
 import { MatCardModule } from '@angular/material/card';
 import { MatIconModule } from '@angular/material/icon';
@@ -39,8 +41,22 @@ export class AlarmDetailPage {
   /** Route parameter. */
   readonly id = input.required<string>();
 
-  protected readonly alarm = signal<AlarmDetail | null>(null);
-  protected readonly error = signal<string | null>(null);
+  /** The alarm with its history; a new id asks again, and actions and live changes reload it. */
+  private readonly record = rxResource({
+    params: () => {
+      const id = Number(this.id());
+      return Number.isInteger(id) && id > 0 ? id : undefined;
+    },
+    stream: ({ params: id }) => this.api.get(id),
+  });
+  /** Kept in view while it reloads; "more history" appends to it. */
+  protected readonly alarm = lastValue<AlarmDetail | null>(this.record, null);
+  private readonly moreError = signal<string | null>(null);
+  protected readonly error = computed(() => {
+    if (this.record.status() === 'idle') return 'There is no such alarm.';
+    const err = this.record.error();
+    return err ? errorText(err, 'The alarm could not be loaded') : this.moreError();
+  });
   protected readonly can = this.actions.permissions();
   protected readonly columns = ['at', 'event', 'change', 'value', 'note'];
 
@@ -84,14 +100,10 @@ export class AlarmDetailPage {
 
   constructor() {
     if (!this.fleet.sites().length) void this.fleet.load();
-    effect(() => {
-      const id = Number(this.id());
-      untracked(() => this.load(id));
-    });
     // Live: this alarm changed somewhere (another user, the rules): fetch it again with its history.
     effect(() => {
       const changed = this.store.lastChange();
-      if (changed && changed.id === Number(untracked(this.id))) untracked(() => this.load(changed.id));
+      if (changed && changed.id === Number(untracked(this.id))) untracked(() => this.load());
     });
   }
 
@@ -110,35 +122,26 @@ export class AlarmDetailPage {
   }
 
   protected async acknowledge(a: Alarm): Promise<void> {
-    if (await this.actions.acknowledge(a)) this.load(a.id);
+    if (await this.actions.acknowledge(a)) this.load();
   }
   protected async shelve(a: Alarm): Promise<void> {
-    if (await this.actions.shelve(a)) this.load(a.id);
+    if (await this.actions.shelve(a)) this.load();
   }
   protected async unshelve(a: Alarm): Promise<void> {
-    if (await this.actions.unshelve(a)) this.load(a.id);
+    if (await this.actions.unshelve(a)) this.load();
   }
   protected more(a: AlarmDetail): void {
     this.api.history(a.id, a.history.length).subscribe({
       next: (page) => this.alarm.set({ ...a, history: [...a.history, ...page.entries], historyTotal: page.total }),
-      error: (err: unknown) => this.error.set(errorText(err, 'More of the history could not be loaded')),
+      error: (err: unknown) => this.moreError.set(errorText(err, 'More of the history could not be loaded')),
     });
   }
   protected async note(a: Alarm): Promise<void> {
-    if (await this.actions.note(a)) this.load(a.id);
+    if (await this.actions.note(a)) this.load();
   }
 
-  private load(id: number): void {
-    if (!Number.isInteger(id) || id <= 0) {
-      this.error.set('There is no such alarm.');
-      return;
-    }
-    this.api.get(id).subscribe({
-      next: (a) => {
-        this.alarm.set(a);
-        this.error.set(null);
-      },
-      error: (err: unknown) => this.error.set(errorText(err, 'The alarm could not be loaded')),
-    });
+  private load(): void {
+    this.moreError.set(null);
+    this.record.reload();
   }
 }

@@ -1,5 +1,5 @@
-import { firstValueFrom } from 'rxjs';
 import { ChangeDetectionStrategy, Component, computed, effect, inject, linkedSignal, signal, untracked } from '@angular/core';
+import { rxResource } from '@angular/core/rxjs-interop';
 import { MatButtonModule } from '@angular/material/button';
 import { MatButtonToggleModule } from '@angular/material/button-toggle';
 import { MatFormFieldModule } from '@angular/material/form-field';
@@ -20,7 +20,8 @@ import { Alarm, AlarmListView, AlarmPriority } from './alarm-types';
 import { errorText } from './alarms-api';
 import { byName } from '../ui/by-name';
 import { AlarmHistoryApi, AlarmHistoryFilter } from './alarm-history-api';
-import { LIST_PAGE_SIZE, LIST_PAGE_SIZES } from '../core/list-page';
+import { LIST_PAGE_SIZE, LIST_PAGE_SIZES, ListPage } from '../core/list-page';
+import { lastValue } from '../core/last-value';
 
 const VIEW_TEXT: Record<AlarmListView, string> = { active: 'Now', shelved: 'On the shelf', all: 'History' };
 
@@ -66,9 +67,6 @@ export class AlarmListPage {
   protected readonly priority = signal<AlarmPriority | null>(null);
   protected readonly state = signal<AlarmState | null>(null);
 
-  private readonly history = signal<Alarm[]>([]);
-  /** The history is paged on the server: this page's place, and how many alarms match over all pages. */
-  protected readonly historyTotal = signal(0);
   protected readonly pageSize = signal(LIST_PAGE_SIZE);
   protected readonly pageSizes = LIST_PAGE_SIZES;
   /** Back to the first page whenever a filter changes. */
@@ -76,8 +74,23 @@ export class AlarmListPage {
     source: () => [this.siteId(), this.engineId(), this.priority(), this.state(), this.pageSize()],
     computation: () => 0,
   });
-  protected readonly historyLoading = signal(false);
-  protected readonly error = signal<string | null>(null);
+  /**
+   * The history is paged on the server, asked for only in the History view. A newer filter or page cancels the
+   * request still loading, so the newest request always wins.
+   */
+  private readonly historyPage = rxResource({
+    params: () => (this.view() === 'all' ? this.historyFilter() : undefined),
+    stream: ({ params: filter }) => this.historyApi.page(filter),
+  });
+  /** This page of the history (kept while the next one loads; live changes written in) and how many alarms match over all pages. */
+  private readonly historyShown = lastValue<ListPage<Alarm>>(this.historyPage, { items: [], total: 0, limit: LIST_PAGE_SIZE, offset: 0 });
+  private readonly history = computed(() => this.historyShown().items);
+  protected readonly historyTotal = computed(() => this.historyShown().total);
+  protected readonly historyLoading = this.historyPage.isLoading;
+  protected readonly error = computed(() => {
+    const err = this.historyPage.error();
+    return err ? errorText(err, 'The alarm history could not be loaded') : null;
+  });
   protected readonly loaded = this.store.loaded;
 
   protected readonly sites = this.fleet.sites;
@@ -147,21 +160,18 @@ export class AlarmListPage {
     });
     if (!this.fleet.engines().length) void this.fleet.load();
 
-    effect(() => {
-      const filter = this.historyFilter();
-      if (this.view() === 'all') untracked(() => void this.loadHistory(filter));
-    });
     // Live: a changed alarm replaces its old line in the history too (a new one shows on the first page).
     effect(() => {
       const changed = this.store.lastChange();
       if (!changed) return;
       untracked(() =>
-        this.history.update((list) => {
+        this.historyShown.update((page) => {
+          const list = page.items;
           const i = list.findIndex((a) => a.id === changed.id);
-          if (i < 0) return this.offset() === 0 ? [changed, ...list] : list;
+          if (i < 0) return this.offset() === 0 ? { ...page, items: [changed, ...list] } : page;
           const next = [...list];
           next[i] = changed;
-          return next;
+          return { ...page, items: next };
         }),
       );
     });
@@ -203,10 +213,10 @@ export class AlarmListPage {
   }
 
   protected retryHistory(): void {
-    void this.loadHistory(this.historyFilter());
+    this.historyPage.reload();
   }
 
-  /** The history page asked for: the filters on screen and the page (signals read here are the effect's triggers). */
+  /** The history page asked for: the filters on screen and the page (signals read here are the resource's params). */
   private historyFilter(): AlarmHistoryFilter {
     return { siteId: this.siteId(), engineId: this.engineId(), priority: this.priority(), state: this.state(), offset: this.offset(), limit: this.pageSize() };
   }
@@ -214,22 +224,5 @@ export class AlarmListPage {
   protected onPage(e: PageEvent): void {
     if (e.pageSize !== this.pageSize()) return this.pageSize.set(e.pageSize);
     this.offset.set(e.pageIndex * e.pageSize);
-  }
-
-  private loadSeq = 0;
-  private async loadHistory(filter: AlarmHistoryFilter): Promise<void> {
-    const seq = ++this.loadSeq;
-    this.historyLoading.set(true);
-    this.error.set(null);
-    try {
-      const page = await firstValueFrom(this.historyApi.page(filter));
-      if (seq !== this.loadSeq) return; // a later request (another filter or page) answers instead
-      this.history.set(page.items);
-      this.historyTotal.set(page.total);
-    } catch (err) {
-      this.error.set(errorText(err, 'The alarm history could not be loaded'));
-    } finally {
-      if (seq === this.loadSeq) this.historyLoading.set(false);
-    }
   }
 }

@@ -1,6 +1,7 @@
-import { finalize } from 'rxjs';
 import { DecimalPipe, PercentPipe } from '@angular/common';
-import { ChangeDetectionStrategy, Component, computed, effect, inject, signal, untracked } from '@angular/core';
+import { ChangeDetectionStrategy, Component, computed, inject, signal } from '@angular/core';
+import { rxResource } from '@angular/core/rxjs-interop';
+import { lastValue } from '../core/last-value';
 import { MatButtonToggleModule } from '@angular/material/button-toggle';
 import { MatCardModule } from '@angular/material/card';
 import { MatProgressBarModule } from '@angular/material/progress-bar';
@@ -208,18 +209,22 @@ export class PerformancePage {
   private readonly api = inject(AlarmsApi);
   protected readonly spans = SPANS;
   protected readonly days = signal(7);
-  protected readonly report = signal<AlarmPerformance | null>(null);
-  protected readonly loading = signal(false);
-  protected readonly error = signal<string | null>(null);
+  /** A new span asks again (and cancels the request still loading); the last report stays in view meanwhile. */
+  private readonly figures = rxResource({
+    params: () => this.days(),
+    stream: ({ params: days }) => {
+      const to = Date.now();
+      return this.api.performance(to - days * DAY, to);
+    },
+  });
+  protected readonly report = lastValue<AlarmPerformance | null>(this.figures, null);
+  protected readonly loading = this.figures.isLoading;
+  protected readonly error = computed(() => {
+    const err = this.figures.error();
+    return err ? errorText(err, 'The figures could not be loaded') : null;
+  });
   /** The chart's bars, named once per report (a new array each check would redraw the chart). */
   protected readonly frequent = computed(() => (this.report()?.mostFrequent ?? []).map((i) => ({ ...i, key: activationLabel(i.key) })));
-
-  constructor() {
-    effect(() => {
-      const days = this.days();
-      untracked(() => this.load(days));
-    });
-  }
 
   protected time(t: number): string {
     return formatTime(t);
@@ -233,18 +238,5 @@ export class PerformancePage {
   protected windowText(ms: number): string {
     const s = Math.round(ms / 1000);
     return s % 60 === 0 ? `${s / 60} min` : `${s} s`;
-  }
-
-  private load(days: number): void {
-    this.loading.set(true);
-    this.error.set(null);
-    const to = Date.now();
-    this.api
-      .performance(to - days * DAY, to)
-      .pipe(finalize(() => this.loading.set(false)))
-      .subscribe({
-        next: (r) => this.report.set(r),
-        error: (err: unknown) => this.error.set(errorText(err, 'The figures could not be loaded')),
-      });
   }
 }

@@ -1,5 +1,5 @@
-import type { CoolantTestView, TestMethod } from '../../../shared/api/coolant-view';
-import type { BreakdownSign, ChemistryLimits } from '../../../shared/coolant';
+import type { CoolantTestReadings, CoolantTestView } from '../../../shared/api/coolant-view';
+import type { ChemistryLimits } from '../../../shared/coolant';
 import type { TopUpLiquid } from '../../../shared/coolant/top-up';
 
 export type { CoolantDecision, CoolantTestSource, TestMethod } from '../../../shared/api/coolant-view';
@@ -7,22 +7,8 @@ export type { CoolantDecision, CoolantTestSource, TestMethod } from '../../../sh
 /** One coolant test as the coolant-test API answers it. */
 export type CoolantTest = CoolantTestView;
 
-export interface NewCoolantTest {
-  method: TestMethod;
-  testedAt?: string;
-  scaUnitsPerGal: number | null;
-  glycolPercent: number | null;
-  freezePointC: number | null;
-  ph: number | null;
-  conductivityUsCm: number | null;
-  nitritePpm?: number | null;
-  molybdatePpm?: number | null;
-  reserveAlkalinityMl?: number | null;
-  /** Glycol-breakdown signs looked for: null = not looked at, [] = none seen. */
-  breakdownSigns?: BreakdownSign[] | null;
-  appearance: string | null;
-  notes: string | null;
-}
+/** A new coolant test: its readings (shared/api/coolant-view.ts), at a time given or now. */
+export type NewCoolantTest = CoolantTestReadings & { testedAt?: string };
 
 export interface ImportResult {
   preview: boolean;

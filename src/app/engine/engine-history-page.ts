@@ -1,5 +1,6 @@
 import { DOCUMENT } from '@angular/common';
-import { ChangeDetectionStrategy, Component, ViewEncapsulation, computed, effect, inject, input, signal, untracked } from '@angular/core';
+import { ChangeDetectionStrategy, Component, ViewEncapsulation, computed, effect, inject, input, signal } from '@angular/core';
+import { rxResource } from '@angular/core/rxjs-interop';
 import { MatButtonModule } from '@angular/material/button';
 import { MatIconModule } from '@angular/material/icon';
 import { Title } from '@angular/platform-browser';
@@ -35,8 +36,13 @@ export class EngineHistoryPage {
   private readonly title = inject(Title);
   readonly id = input.required<string>();
 
-  protected readonly history = signal<EngineHistory | null>(null);
-  protected readonly error = signal<string | null>(null);
+  /** A new engine id asks again (and cancels the request still loading). */
+  private readonly record = rxResource({ params: () => Number(this.id()), stream: ({ params: id }) => this.api.history(id) });
+  protected readonly history = computed<EngineHistory | null>(() => (this.record.hasValue() ? this.record.value() : null));
+  protected readonly error = computed(() => {
+    const err = this.record.error();
+    return err ? errorText(err) : null;
+  });
   protected readonly units = computed(() => this.prefs.preferences());
   protected readonly rows = computed(() => {
     const h = this.history();
@@ -51,18 +57,8 @@ export class EngineHistoryPage {
 
   constructor() {
     effect(() => {
-      const id = Number(this.id());
-      untracked(() => {
-        this.history.set(null);
-        this.error.set(null);
-        this.api.history(id).subscribe({
-          next: (h) => {
-            this.history.set(h);
-            this.title.setTitle(`Service history: ${h.engine.name} · Jacketwatch`);
-          },
-          error: (e) => this.error.set(errorText(e)),
-        });
-      });
+      const h = this.history();
+      if (h) this.title.setTitle(`Service history: ${h.engine.name} · Jacketwatch`);
     });
   }
 

@@ -1,10 +1,11 @@
 import { HttpErrorResponse } from '@angular/common/http';
-import { ChangeDetectionStrategy, Component, computed, effect, inject, input, signal, untracked, type WritableSignal } from '@angular/core';
+import { ChangeDetectionStrategy, Component, computed, effect, inject, input, untracked, type ResourceRef, type Signal } from '@angular/core';
+import { rxResource } from '@angular/core/rxjs-interop';
 import { MatButtonModule } from '@angular/material/button';
 import { MatCardModule } from '@angular/material/card';
 import { MatIconModule } from '@angular/material/icon';
 import { RouterLink } from '@angular/router';
-import { Observable, map } from 'rxjs';
+import { map } from 'rxjs';
 import { priorityLook, stateText } from '../alarms/alarm-labels';
 import { AlarmStore } from '../alarms/alarm-store';
 import { Alarm } from '../alarms/alarm-types';
@@ -37,6 +38,15 @@ interface Section<T> {
 }
 
 const empty = <T>(): Section<T> => ({ rows: null, error: null });
+
+/** A section from its resource: the rows, why they are missing, or hidden from a role that may not see them (403). */
+function sectionOf<T>(res: ResourceRef<T[] | undefined>, failure: string): Signal<Section<T>> {
+  return computed(() => {
+    const err = res.error();
+    if (err) return err instanceof HttpErrorResponse && err.status === 403 ? { rows: [], error: null, hidden: true } : { rows: null, error: failure };
+    return res.hasValue() ? { rows: res.value() ?? null, error: null } : empty<T>();
+  });
+}
 
 /**
  * The engine page as the engine's home: its open and recent alarms, due tasks, open work orders and last
@@ -254,10 +264,29 @@ export class EngineHome {
   readonly zone = input<string | null>(null);
 
   protected readonly dueDays = DUE_WINDOW_DAYS;
-  protected readonly alarms = signal<Section<Alarm>>(empty());
-  protected readonly due = signal<Section<DueEntry>>(empty());
-  protected readonly work = signal<Section<WorkOrderSummary>>(empty());
-  protected readonly tests = signal<Section<CoolantTest>>(empty());
+  /** Each section is a resource of the engine id: a new engine asks again (cancelling what is still loading). */
+  private readonly alarmsRes = rxResource({
+    params: () => this.engineId(),
+    // Every alarm of the engine (open and closed): the open ones all, the closed ones the newest few.
+    stream: ({ params: id }) => this.alarmsApi.list('all', id).pipe(map((l) => l.filter((a) => a.engineId === id))),
+  });
+  private readonly dueRes = rxResource({
+    params: () => this.engineId(),
+    stream: ({ params: id }) =>
+      this.coolant
+        .dueList({ engineId: id, windowDays: DUE_WINDOW_DAYS })
+        // The server filters by engine; the client filters too, in case an older server ignores the parameter.
+        .pipe(map((res) => res.sites.flatMap((s) => s.entries).filter((e) => e.engineId === id && e.state !== 'ok'))),
+  });
+  private readonly workRes = rxResource({
+    params: () => this.engineId(),
+    stream: ({ params: id }) => this.workApi.list({ engineId: id, status: [...OPEN_WORK] }).pipe(map((l) => l.filter((w) => w.engineId === id))),
+  });
+  private readonly testsRes = rxResource({ params: () => this.engineId(), stream: ({ params: id }) => this.coolant.tests(id) });
+  protected readonly alarms = sectionOf<Alarm>(this.alarmsRes, 'The alarms could not be loaded.');
+  protected readonly due = sectionOf<DueEntry>(this.dueRes, 'The due tasks could not be loaded.');
+  protected readonly work = sectionOf<WorkOrderSummary>(this.workRes, 'The work orders could not be loaded.');
+  protected readonly tests = sectionOf<CoolantTest>(this.testsRes, 'The coolant tests could not be loaded.');
 
   protected readonly openAlarms = computed(() => (this.alarms().rows ?? []).filter((a) => a.state !== 'normal').sort(byRaisedDesc));
   protected readonly recentAlarms = computed(() => {
@@ -288,23 +317,16 @@ export class EngineHome {
     return parts.join(' · ') || 'No decision on record';
   });
 
-  private readonly attempt = signal(0);
-
   constructor() {
-    effect(() => {
-      const id = this.engineId();
-      this.attempt();
-      untracked(() => this.loadAll(id));
-    });
     // An alarm of this engine changed: its list follows.
     effect(() => {
       const changed = this.alarmStore.lastChange();
-      if (changed && changed.engineId === untracked(this.engineId)) untracked(() => this.loadAlarms(changed.engineId));
+      if (changed && changed.engineId === untracked(this.engineId)) untracked(() => this.alarmsRes.reload());
     });
   }
 
   reload(): void {
-    this.attempt.update((n) => n + 1);
+    for (const res of [this.alarmsRes, this.dueRes, this.workRes, this.testsRes]) res.reload();
   }
 
   protected look(a: Alarm) {
@@ -318,39 +340,6 @@ export class EngineHome {
   }
   protected statusText(w: WorkOrderSummary): string {
     return STATUS_TEXT[w.status] ?? w.status;
-  }
-
-  private loadAll(id: number): void {
-    this.loadAlarms(id);
-    this.section(
-      this.due,
-      this.coolant
-        .dueList({ engineId: id, windowDays: DUE_WINDOW_DAYS })
-        // The server filters by engine; the client filters too, in case an older server ignores the parameter.
-        .pipe(map((res) => res.sites.flatMap((s) => s.entries).filter((e) => e.engineId === id && e.state !== 'ok'))),
-      'The due tasks could not be loaded.',
-    );
-    this.section(
-      this.work,
-      this.workApi.list({ engineId: id, status: [...OPEN_WORK] }).pipe(map((l) => l.filter((w) => w.engineId === id))),
-      'The work orders could not be loaded.',
-    );
-    this.section(this.tests, this.coolant.tests(id), 'The coolant tests could not be loaded.');
-  }
-
-  private loadAlarms(id: number): void {
-    // Every alarm of the engine (open and closed): the open ones all, the closed ones the newest few.
-    this.section(this.alarms, this.alarmsApi.list('all', id).pipe(map((l) => l.filter((a) => a.engineId === id))), 'The alarms could not be loaded.');
-  }
-
-  private section<T>(target: WritableSignal<Section<T>>, load: Observable<T[]>, failure: string): void {
-    load.subscribe({
-      next: (rows) => target.set({ rows, error: null }),
-      error: (err: unknown) => {
-        const status = err instanceof HttpErrorResponse ? err.status : 0;
-        target.set(status === 403 ? { rows: [], error: null, hidden: true } : { rows: null, error: failure });
-      },
-    });
   }
 }
 

@@ -21,6 +21,10 @@ function engine(overrides: Partial<Engine> = {}, ageMs = 3000): Engine {
     safeOpenTempC: 50,
     heaterSetpointC: 40,
     outOfService: false,
+    retiredAt: null,
+    createdAt: '2026-01-05T09:00:00.000Z',
+    updatedAt: '2026-01-05T09:00:00.000Z',
+    activeAlarms: 0,
     latest: {
       coolant_temp: { value: 84.2, ts, quality: 0 },
       coolant_pressure: { value: 96.5, ts, quality: 0 },

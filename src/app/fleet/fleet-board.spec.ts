@@ -30,6 +30,10 @@ function engine(id: number, name: string, siteId: number, overrides: Partial<Eng
     safeOpenTempC: 50,
     heaterSetpointC: 40,
     outOfService: false,
+    retiredAt: null,
+    createdAt: '2026-01-05T09:00:00.000Z',
+    updatedAt: '2026-01-05T09:00:00.000Z',
+    activeAlarms: 0,
     latest: {
       coolant_temp: { value: 45, ts, quality: 0 },
       coolant_pressure: { value: 20, ts, quality: 0 },

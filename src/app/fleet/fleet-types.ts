@@ -1,7 +1,7 @@
-import type { EngineFreezeStatus } from '../../../shared/api/coolant-view';
+import type { EngineView } from '../../../shared/api/engine-view';
 import { ChannelValues } from '../core/live-reading';
 
-export type RunState = 'running' | 'stopped' | 'no-data';
+export type { RunState } from '../../../shared/api/engine-view';
 
 export interface Site {
   id: number;
@@ -12,29 +12,7 @@ export interface Site {
   elevationM?: number | null;
 }
 
-/** GET /api/engines item (SI units). */
-export interface Engine {
-  id: number;
-  name: string;
-  siteId: number;
-  duty: 'standby' | 'prime' | 'continuous';
-  capacityL: number;
-  coolantFamily: string;
-  glycolType: string;
-  glycolPercent: number;
-  capPressureKpa: number;
-  oilDrainIntervalH: number;
-  runHours: number;
-  safeOpenTempC: number;
-  heaterSetpointC: number | null;
-  outOfService: boolean;
+/** GET /api/engines item (shared/api/engine-view.ts), as the client keeps it: live pushes are merged into `latest`. */
+export interface Engine extends Omit<EngineView, 'latest'> {
   latest: ChannelValues;
-  lastSeenAt: number | string | null;
-  runState: RunState;
-  /** Filled in by the alarms feature when it exists. */
-  activeAlarms?: number;
-  /** Standby engines only: ready to start and take load, or the reasons why not, in words. */
-  readiness?: { ready: boolean; reasons: string[] };
-  /** Freeze protection of the latest glycol or freeze-point test against the site's design low (absent without such a test). */
-  freezeProtection?: EngineFreezeStatus;
 }

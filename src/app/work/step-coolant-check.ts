@@ -1,6 +1,7 @@
 import { finalize } from 'rxjs';
 import { HttpErrorResponse } from '@angular/common/http';
-import { ChangeDetectionStrategy, Component, computed, effect, inject, input, output, signal, untracked } from '@angular/core';
+import { ChangeDetectionStrategy, Component, computed, inject, input, output, signal } from '@angular/core';
+import { rxResource } from '@angular/core/rxjs-interop';
 import { MatButtonModule } from '@angular/material/button';
 import { MatIconModule } from '@angular/material/icon';
 import { RouterLink } from '@angular/router';
@@ -101,10 +102,17 @@ export class StepCoolantCheck {
   readonly orderChanged = output<WorkOrderDetail>();
   private readonly work = inject(WorkApi);
 
-  protected readonly engine = signal<EngineFacts | null>(null);
-  private readonly profile = signal<AdditiveProfile | null>(null);
+  /** What the decision needs of the engine (a new engine asks again), and the site's additive profile (none if it fails). */
+  private readonly facts = rxResource({ params: () => this.engineId(), stream: ({ params: id }) => this.work.engineFacts(id) });
+  private readonly profileRes = rxResource({ stream: () => this.coolant.profile() });
+  protected readonly engine = computed<EngineFacts | null>(() => (this.facts.hasValue() ? (this.facts.value() ?? null) : null));
+  private readonly profile = computed<AdditiveProfile | null>(() => (this.profileRes.hasValue() ? (this.profileRes.value() ?? null) : null));
   protected readonly busy = signal(false);
-  protected readonly error = signal<string | null>(null);
+  private readonly recordError = signal<string | null>(null);
+  protected readonly error = computed(() => {
+    const err = this.facts.error();
+    return err ? errorText(err) : this.recordError();
+  });
   protected readonly recorded = signal<OrderCoolantTest | null>(null);
   protected readonly shownTest = computed(() => this.recordedTest() ?? this.recorded());
 
@@ -124,19 +132,9 @@ export class StepCoolantCheck {
   protected readonly inputError = computed(() => this.outcome().error);
   protected readonly hasReading = computed(() => [this.scaUnitsPerGal(), this.glycolPercent(), this.freezePointC(), this.nitritePpm()].some((v) => v !== null));
 
-  constructor() {
-    effect(() => {
-      const id = this.engineId();
-      untracked(() => {
-        this.work.engineFacts(id).subscribe({ next: (e) => this.engine.set(e), error: (e) => this.error.set(errorText(e)) });
-        this.coolant.profile().subscribe({ next: (p) => this.profile.set(p), error: () => this.profile.set(null) });
-      });
-    });
-  }
-
   protected record(): void {
     this.busy.set(true);
-    this.error.set(null);
+    this.recordError.set(null);
     this.work
       .recordCoolantTest(this.workOrderId())
       .pipe(finalize(() => this.busy.set(false)))
@@ -149,7 +147,7 @@ export class StepCoolantCheck {
           // recorded before (another tab or device): show that test instead of offering again
           const earlier = e instanceof HttpErrorResponse && e.status === 409 ? (e.error as { coolantTest?: OrderCoolantTest | null }).coolantTest : null;
           if (earlier) this.recorded.set(earlier);
-          else this.error.set(errorText(e));
+          else this.recordError.set(errorText(e));
         },
       });
   }

@@ -1,4 +1,5 @@
-import { ChangeDetectionStrategy, Component, computed, effect, inject, input, output, signal, untracked } from '@angular/core';
+import { ChangeDetectionStrategy, Component, computed, inject, input, output, signal } from '@angular/core';
+import { rxResource } from '@angular/core/rxjs-interop';
 import { FormBuilder, ReactiveFormsModule, Validators } from '@angular/forms';
 import { MatButtonModule } from '@angular/material/button';
 import { MatFormFieldModule } from '@angular/material/form-field';
@@ -10,7 +11,6 @@ import { finalize } from 'rxjs';
 import type { TopUpLiquid } from '../../../shared/coolant/top-up';
 import { PreferencesService } from '../core/preferences.service';
 import { CoolantService } from '../coolant/coolant.service';
-import { TopUpsAnswer } from '../coolant/coolant-types';
 import { errorText, WorkApi } from './work-api';
 import { WorkOrderDetail, WorkStep } from './work-types';
 
@@ -150,8 +150,12 @@ export class StepTopUp {
 
   protected readonly busy = signal(false);
   protected readonly error = signal<string | null>(null);
-  private readonly answer = signal<TopUpsAnswer | null>(null);
-  protected readonly estimate = computed(() => this.answer()?.estimate ?? null);
+  /** Once the step is done, the estimate after it (the server's mass balance since the last test); none if it fails. */
+  private readonly topUps = rxResource({
+    params: () => (this.step().doneAt ? this.engineId() : undefined),
+    stream: ({ params: engineId }) => this.coolant.topUps(engineId),
+  });
+  protected readonly estimate = computed(() => (this.topUps.hasValue() ? (this.topUps.value()?.estimate ?? null) : null));
   protected readonly volumeSymbol = computed(() => (this.prefs.volumeUnit() === 'gal' ? 'US gal' : 'L'));
 
   private readonly fb = inject(FormBuilder);
@@ -161,20 +165,6 @@ export class StepTopUp {
     premixPercent: this.fb.control<number | null>(50, [Validators.min(0), Validators.max(100)]),
     note: this.fb.nonNullable.control(''),
   });
-
-  constructor() {
-    // once the step is done, the estimate after it (the server's mass balance since the last test)
-    effect(() => {
-      const done = !!this.step().doneAt;
-      const id = this.engineId();
-      if (!done) return;
-      untracked(() => this.loadEstimate(id));
-    });
-  }
-
-  private loadEstimate(engineId: number): void {
-    this.coolant.topUps(engineId).subscribe({ next: (a) => this.answer.set(a), error: () => this.answer.set(null) });
-  }
 
   protected record(): void {
     this.form.markAllAsTouched();

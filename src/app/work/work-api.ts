@@ -1,7 +1,7 @@
 import { HttpClient, HttpErrorResponse } from '@angular/common/http';
 import { Injectable, inject } from '@angular/core';
 import { Observable, catchError, map, shareReplay, throwError } from 'rxjs';
-import type { CoolantFamily } from '../../../shared/coolant';
+import type { EngineView } from '../../../shared/api/engine-view';
 import { isNoAnswer } from '../core/network-status';
 import { ReadingBucket } from './cooldown-series';
 import {
@@ -18,12 +18,7 @@ import {
 } from './work-types';
 
 /** What the coolant check of a work order needs to know of its engine. */
-export interface EngineFacts {
-  id: number;
-  name: string;
-  capacityL: number;
-  coolantFamily: CoolantFamily;
-}
+export type EngineFacts = Pick<EngineView, 'id' | 'name' | 'capacityL' | 'coolantFamily'>;
 
 export interface ListFilter {
   status?: WorkStatus[];

@@ -46,6 +46,11 @@ describe('WorkListPage', () => {
     req.flush({ items: Array.from({ length: n }, (_, i) => order(offset + i + 1, '2026-07-01')), total, limit, offset });
     return req;
   };
+  /** The next page: the request goes out when the page's resource runs (the next tick), not in the click itself. */
+  const nextPage = () => {
+    el.querySelector<HTMLButtonElement>('button.mat-mdc-paginator-navigation-next')!.click();
+    TestBed.tick();
+  };
   const openSide = () => {
     http.expectOne('/api/sites').flush([{ id: 1, name: 'North plant' }]);
     http.expectOne('/api/work-orders/assignees').flush([]);
@@ -66,15 +71,46 @@ describe('WorkListPage', () => {
     answer(0, 50, 120);
     openSide();
     await fixture.whenStable();
-    el.querySelector<HTMLButtonElement>('button.mat-mdc-paginator-navigation-next')!.click();
+    nextPage();
     answer(50, 50, 120);
     await fixture.whenStable();
-    el.querySelector<HTMLButtonElement>('button.mat-mdc-paginator-navigation-next')!.click();
+    nextPage();
     answer(100, 50, 120);
     await fixture.whenStable();
     expect(el.querySelectorAll('tr.mat-mdc-row').length).toBe(20);
     expect(el.querySelector('.mat-mdc-paginator-range-label')?.textContent?.trim()).toBe('101 – 120 of 120');
-    const next = el.querySelector<HTMLButtonElement>('button.mat-mdc-paginator-navigation-next')!;
-    expect(next.disabled || next.getAttribute('aria-disabled') === 'true').toBe(true);
+    const nextButton = el.querySelector<HTMLButtonElement>('button.mat-mdc-paginator-navigation-next')!;
+    expect(nextButton.disabled || nextButton.getAttribute('aria-disabled') === 'true').toBe(true);
+  });
+
+  it('a newer page asked before the older answers wins: the older request is cancelled, its answer never shown', async () => {
+    answer(0, 50, 120);
+    openSide();
+    await fixture.whenStable();
+    nextPage();
+    const second = http.expectOne((r) => r.url === '/api/work-orders');
+    expect(second.request.params.get('offset')).toBe('50');
+    // the first page stays in view while the next loads
+    expect(el.querySelectorAll('tr.mat-mdc-row').length).toBe(50);
+    nextPage();
+    expect(second.cancelled).toBe(true);
+    answer(100, 50, 120);
+    await fixture.whenStable();
+    expect(el.querySelectorAll('tr.mat-mdc-row').length).toBe(20);
+    expect(el.querySelector('.mat-mdc-paginator-range-label')?.textContent?.trim()).toBe('101 – 120 of 120');
+  });
+
+  it('a failed load says why in words, and the empty text only shows when nothing matches', async () => {
+    http.expectOne((r) => r.url === '/api/work-orders').flush({ error: 'The database is busy' }, { status: 500, statusText: 'Server Error' });
+    openSide();
+    await fixture.whenStable();
+    expect(el.querySelector('[role="alert"]')?.textContent).toContain('The database is busy');
+    expect(el.querySelector('.empty')).toBeNull();
+    (fixture.componentInstance as unknown as { reload(offset: number): void }).reload(0);
+    TestBed.tick();
+    http.expectOne((r) => r.url === '/api/work-orders').flush({ items: [], total: 0, limit: 50, offset: 0 });
+    await fixture.whenStable();
+    expect(el.querySelector('[role="alert"]')).toBeNull();
+    expect(el.querySelector('.empty')?.textContent).toContain('No work orders match.');
   });
 });

@@ -1,6 +1,7 @@
 import { firstValueFrom } from 'rxjs';
 import { DOCUMENT } from '@angular/common';
 import { ChangeDetectionStrategy, Component, computed, inject, signal } from '@angular/core';
+import { rxResource } from '@angular/core/rxjs-interop';
 import { NonNullableFormBuilder, ReactiveFormsModule } from '@angular/forms';
 import { MatButtonModule } from '@angular/material/button';
 import { MatFormFieldModule } from '@angular/material/form-field';
@@ -14,7 +15,8 @@ import { AuthService } from '../core/auth.service';
 import { downloadText } from '../engine/readings-csv';
 import { WorkApi, errorText } from './work-api';
 import { WorkListApi } from './work-list-api';
-import { LIST_PAGE_SIZE, LIST_PAGE_SIZES } from '../core/list-page';
+import { LIST_PAGE_SIZE, LIST_PAGE_SIZES, ListPage } from '../core/list-page';
+import { lastValue } from '../core/last-value';
 import { workOrdersToCsv } from './work-csv';
 import { OPEN_STATUSES, PRIORITY_TEXT, STATUSES, STATUS_ICON, STATUS_TEXT, formatDate, todayIso, weekStart } from './work-labels';
 import { Assignee, WorkOrderSummary, WorkStatus } from './work-types';
@@ -276,17 +278,29 @@ export class WorkListPage {
     siteId: this.fb.control<number | null>(null),
     assigneeId: this.fb.control<number | null>(null),
   });
-  protected readonly orders = signal<WorkOrderSummary[]>([]);
-  /** Paged on the server: this page's place and the number of orders matching over all pages. */
-  protected readonly total = signal(0);
-  protected readonly offset = signal(0);
   protected readonly pageSize = signal(LIST_PAGE_SIZE);
   protected readonly pageSizes = LIST_PAGE_SIZES;
+  /** The page asked for: the filters as they were when asked, its place and size (each reload() is a new request). */
+  private readonly query = signal({ filter: this.filter(), offset: 0, limit: LIST_PAGE_SIZE });
+  /** Paged on the server; a newer query cancels the one still loading, so the newest request always wins. */
+  private readonly page = rxResource({
+    params: () => this.query(),
+    stream: ({ params: q }) => this.listApi.page(q.filter, q.offset, q.limit),
+  });
+  /** This page (kept while the next one loads) and the number of orders matching over all pages. */
+  private readonly shown = lastValue<ListPage<WorkOrderSummary>>(this.page, { items: [], total: 0, limit: LIST_PAGE_SIZE, offset: 0 });
+  protected readonly orders = computed(() => this.shown().items);
+  protected readonly total = computed(() => this.shown().total);
+  protected readonly offset = computed(() => this.query().offset);
   protected readonly exporting = signal(false);
   protected readonly sites = signal<{ id: number; name: string }[]>([]);
   protected readonly assignees = signal<Assignee[]>([]);
-  protected readonly loading = signal(false);
-  protected readonly error = signal<string | null>(null);
+  protected readonly loading = this.page.isLoading;
+  private readonly exportError = signal<string | null>(null);
+  protected readonly error = computed(() => {
+    const err = this.page.error();
+    return err ? errorText(err) : this.exportError();
+  });
   protected readonly canCreate = computed(() => this.auth.hasRole('planner', 'admin', 'operator', 'technician'));
   private readonly today = todayIso();
 
@@ -314,7 +328,6 @@ export class WorkListPage {
   });
 
   constructor() {
-    this.reload();
     this.api.sites().subscribe({ next: (s) => this.sites.set(s), error: () => undefined });
     this.api.assignees().subscribe({ next: (a) => this.assignees.set(a), error: () => undefined });
   }
@@ -328,29 +341,16 @@ export class WorkListPage {
     return { status: f.statuses, siteId: f.siteId ?? undefined, assigneeId: f.assigneeId ?? undefined };
   }
 
-  private loadSeq = 0;
   /** Asks the server for one page; a changed filter starts again at the first page (offset 0). */
-  protected async reload(offset = this.offset()): Promise<void> {
-    const seq = ++this.loadSeq;
-    this.offset.set(offset);
-    this.loading.set(true);
-    this.error.set(null);
-    try {
-      const page = await firstValueFrom(this.listApi.page(this.filter(), offset, this.pageSize()));
-      if (seq !== this.loadSeq) return; // a later request answers instead
-      this.orders.set(page.items);
-      this.total.set(page.total);
-    } catch (e) {
-      this.error.set(errorText(e));
-    } finally {
-      if (seq === this.loadSeq) this.loading.set(false);
-    }
+  protected reload(offset = this.offset()): void {
+    this.exportError.set(null);
+    this.query.set({ filter: this.filter(), offset, limit: this.pageSize() });
   }
 
   protected onPage(e: PageEvent): void {
     const sizeChanged = e.pageSize !== this.pageSize();
     this.pageSize.set(e.pageSize);
-    void this.reload(sizeChanged ? 0 : e.pageIndex * e.pageSize);
+    this.reload(sizeChanged ? 0 : e.pageIndex * e.pageSize);
   }
 
   /** The CSV holds every order matching the filters, not only this page. */
@@ -359,7 +359,7 @@ export class WorkListPage {
     try {
       downloadText(this.doc, `work-orders-${this.today}.csv`, workOrdersToCsv(await firstValueFrom(this.listApi.all(this.filter()))));
     } catch (e) {
-      this.error.set(errorText(e));
+      this.exportError.set(errorText(e));
     } finally {
       this.exporting.set(false);
     }

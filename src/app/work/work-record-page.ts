@@ -1,4 +1,5 @@
-import { ChangeDetectionStrategy, Component, ViewEncapsulation, effect, inject, input, signal, untracked } from '@angular/core';
+import { ChangeDetectionStrategy, Component, ViewEncapsulation, computed, inject, input } from '@angular/core';
+import { rxResource } from '@angular/core/rxjs-interop';
 import { MatButtonModule } from '@angular/material/button';
 import { MatIconModule } from '@angular/material/icon';
 import { RouterLink } from '@angular/router';
@@ -18,8 +19,12 @@ import { WorkOrderDetail, WorkStep } from './work-types';
 export class WorkRecordPage {
   private readonly api = inject(WorkApi);
   readonly id = input.required<string>();
-  protected readonly order = signal<WorkOrderDetail | null>(null);
-  protected readonly error = signal<string | null>(null);
+  private readonly record = rxResource({ params: () => Number(this.id()), stream: ({ params: id }) => this.api.get(id) });
+  protected readonly order = computed<WorkOrderDetail | null>(() => (this.record.hasValue() ? this.record.value() : null));
+  protected readonly error = computed(() => {
+    const err = this.record.error();
+    return err ? errorText(err) : null;
+  });
   protected readonly statusText = STATUS_TEXT;
   protected readonly priorityText = PRIORITY_TEXT;
   protected readonly partText: Record<string, string | undefined> = PART_TEXT;
@@ -28,13 +33,6 @@ export class WorkRecordPage {
   protected readonly fmtDate = formatDate;
   protected readonly fmtTime = formatDateTime;
   protected readonly printedAt = new Date().toISOString();
-
-  constructor() {
-    effect(() => {
-      const id = Number(this.id());
-      untracked(() => this.api.get(id).subscribe({ next: (o) => this.order.set(o), error: (e) => this.error.set(errorText(e)) }));
-    });
-  }
 
   protected print(): void {
     window.print();

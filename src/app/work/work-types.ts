@@ -1,5 +1,5 @@
-import type { ChemistryFinding } from '../../../shared/coolant';
 /** Shapes of the work-order API (server/routes/work-orders.ts). Quantities in SI as stored. */
+import type { CoolantDecision, CoolantTestView } from '../../../shared/api/coolant-view';
 import type { WorkOrderSummary, WorkStatus } from '../../../shared/api/work-view';
 export type { WorkOrderSummary, WorkPriority, WorkStatus } from '../../../shared/api/work-view';
 export type StepInput = 'value' | 'photo' | 'confirmation';
@@ -108,19 +108,8 @@ export interface WorkAmendment {
 }
 
 /** The coolant test a work order recorded (once per order). */
-export interface OrderCoolantTest {
-  id: number;
-  engineId: number;
-  testedAt: string;
-  method: string;
-  scaUnitsPerGal: number | null;
-  glycolPercent: number | null;
-  freezePointC: number | null;
-  ph: number | null;
-  nitritePpm?: number | null;
-  /** The decision stored with the test: its chemistry findings with their actions. */
-  decision?: { findings?: ChemistryFinding[] } | null;
-}
+/** The coolant test a work order recorded, as the coolant-test API answers it (shared/api/coolant-view.ts). */
+export type OrderCoolantTest = CoolantTestView;
 
 export interface WorkOrderDetail extends WorkOrderSummary {
   coolantTestId: number | null;
@@ -170,8 +159,7 @@ export interface Assignee {
 }
 
 /** What the work screens need of a coolant test (GET /api/engines/:id/coolant-tests, newest first). */
-export interface CoolantTestSummary {
-  id: number;
-  testedAt: string;
-  decision: { additive: { filter: 'charged' | 'blank' | null } | null } | null;
-}
+/** What the filter-change default reads of an engine's coolant tests (GET /api/engines/:id/coolant-tests): the additive decision's filter. */
+export type CoolantTestSummary = Pick<CoolantTestView, 'id' | 'testedAt'> & {
+  decision: { additive: Pick<NonNullable<CoolantDecision['additive']>, 'filter'> | null } | null;
+};
