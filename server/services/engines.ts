@@ -90,15 +90,39 @@ export async function retireEngine(models: Models, id: number): Promise<Engine> 
   return engine.retiredAt ? engine : engine.update({ retiredAt: new Date() });
 }
 
-/** siteId of an engine (live-push rooms); null when unknown. Cached: engines rarely move. */
-export function siteOfEngineLookup(models: Models): (engineId: number) => Promise<number | null> {
-  const cache = new Map<number, number>();
+/**
+ * siteId of an engine (live-push rooms); null when unknown. One query loads every engine's site: asked one by one,
+ * 2,000 engines took seconds of queries at a server start while their first readings waited for their rooms
+ * (measured under the push bench). The table is loaded again when asked for after `maxAgeMs` (an engine moved to
+ * another site is seen within that time), the old answer given meanwhile; an engine not in it is looked up alone.
+ */
+export function siteOfEngineLookup(models: Models, maxAgeMs = 60_000): (engineId: number) => Promise<number | null> {
+  let sites = new Map<number, number>();
+  let loadedAt = -Infinity;
+  let loading: Promise<void> | null = null;
+  const loadAll = (): Promise<void> =>
+    (loading ??= (async () => {
+      const rows = await models.Engine.findAll({ attributes: ['id', 'siteId'], raw: true });
+      sites = new Map(rows.map((r) => [Number(r.id), Number(r.siteId)]));
+      loadedAt = Date.now();
+    })().finally(() => {
+      loading = null;
+    }));
   return async (engineId) => {
-    const hit = cache.get(engineId);
-    if (hit !== undefined) return hit;
+    const hit = sites.get(engineId);
+    if (hit !== undefined) {
+      if (Date.now() - loadedAt > maxAgeMs) void loadAll().catch(() => undefined); // the caller has an answer already
+      return hit;
+    }
+    // not known: with the others when the table is not fresh (many engines miss together at a start), else alone
+    if (loading || Date.now() - loadedAt > 1000) {
+      await loadAll();
+      const loaded = sites.get(engineId);
+      if (loaded !== undefined) return loaded;
+    }
     const engine = await models.Engine.findByPk(engineId, { attributes: ['id', 'siteId'] });
     if (!engine) return null;
-    cache.set(engineId, engine.siteId);
+    sites.set(engineId, engine.siteId);
     return engine.siteId;
   };
 }

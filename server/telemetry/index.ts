@@ -15,6 +15,7 @@ import type { LiveReadings } from '../../shared/api/live-view';
 import { Counters } from './counters';
 import { DeviceActivity } from './device-activity';
 import { IngestBuffer } from './ingest-buffer';
+import { ListenerQueue } from './listener-queue';
 import { MemoryLiveState } from './live-state';
 import { ReadingWriter, type WriterOptions } from './reading-writer';
 import { DEVICE_BY_USERNAME_SQL } from './sql';
@@ -53,7 +54,9 @@ export async function startTelemetry(
   const liveState = new MemoryLiveState();
   const activity = new DeviceActivity(sequelize, log);
   const writer = new ReadingWriter(sequelize, buffer, counters, log, { sqliteFile: sqliteFileOf(config.databaseUrl), ...options.writer });
+  /** onReadings listeners (rules, histories): after the live push, in their own time slices (listener-queue.ts). */
   const listeners: Array<(readings: AcceptedReading[]) => void> = [];
+  const later = new ListenerQueue(listeners, log);
   const lostListeners: Array<(engineId: number, at: number) => void> = [];
   let stopping = false;
 
@@ -73,18 +76,19 @@ export async function startTelemetry(
     ? new ReadingRelay(livePush.io, log, (batch) => {
         if (stopping) return;
         liveState.applyAll(batch, Date.now());
-        for (const l of listeners) {
-          try {
-            l(batch);
-          } catch (err) {
-            log.error('telemetry: readings listener failed', err);
-          }
-        }
+        pushLive(batch);
+        later.push(batch);
       })
     : null;
   deps.access?.onUserChanged((userId) => livePush.endSessions(userId));
   deps.access?.onSitesChanged((userId) => void livePush.rescope(userId));
-  listeners.push((readings) => livePush.push(readings));
+  const pushLive = (batch: AcceptedReading[]) => {
+    try {
+      livePush.push(batch);
+    } catch (err) {
+      log.error('telemetry: live push failed', err);
+    }
+  };
 
   const reject = (deviceId: number | null, reason: string, detail: string) => {
     counters.reject(reason);
@@ -125,13 +129,8 @@ export async function startTelemetry(
         counters.received += batch.length;
         buffered = true;
         liveState.applyAll(batch, now);
-        for (const l of listeners) {
-          try {
-            l(batch);
-          } catch (err) {
-            log.error('telemetry: readings listener failed', err);
-          }
-        }
+        pushLive(batch); // to the browsers first: the rest of the listeners wait for their slices
+        later.push(batch);
         relay?.send(batch);
       }
     } catch (err) {
@@ -151,7 +150,8 @@ export async function startTelemetry(
    * (a flood: seconds of parsing and rule evaluation in one go, freezing HTTP, socket.io and the writer's
    * timers). At most TURN_BUDGET_MS of ingest work runs per loop turn; later messages wait in a FIFO for
    * the next turn (setImmediate). Their MQTT callbacks wait too, so aedes stops reading those sockets:
-   * the queue holds at most what aedes has already read, and TCP pushes back on the devices.
+   * the queue holds at most what aedes has already read, and TCP pushes back on the devices. While the
+   * listeners' own queue is full (listener-queue.ts), no message is taken, so that queue stays bounded too.
    */
   const TURN_BUDGET_MS = 15;
   type Job = [number | null, number, Buffer | ParsedReading[], () => void, (() => void) | undefined];
@@ -165,7 +165,7 @@ export async function startTelemetry(
     setImmediate(() => {
       turnScheduled = false;
       const started = performance.now();
-      while (head < queue.length && performance.now() - started < TURN_BUDGET_MS) {
+      while (head < queue.length && !later.full && performance.now() - started < TURN_BUDGET_MS) {
         const job = queue[head];
         queue[head++] = undefined as unknown as Job;
         ingestNow(job[0], job[1], job[2], job[3], job[4]);
@@ -178,7 +178,7 @@ export async function startTelemetry(
     });
   };
   const ingest = (deviceId: number | null, engineId: number, payload: Buffer | ParsedReading[], done: () => void, readMore?: () => void) => {
-    if (head < queue.length || spent >= TURN_BUDGET_MS) {
+    if (head < queue.length || spent >= TURN_BUDGET_MS || later.full) {
       queue.push([deviceId, engineId, payload, done, readMore]);
     } else {
       const started = performance.now();
@@ -190,13 +190,16 @@ export async function startTelemetry(
 
   /** A Sparkplug death certificate: the engine's data is lost now, not after the no-data delay. */
   const markLost = (engineId: number, at: number) => {
-    for (const l of lostListeners) {
-      try {
-        l(engineId, at);
-      } catch (err) {
-        log.error('telemetry: lost listener failed', err);
+    // after the readings accepted before it, as the rule engine had them
+    later.then(() => {
+      for (const l of lostListeners) {
+        try {
+          l(engineId, at);
+        } catch (err) {
+          log.error('telemetry: lost listener failed', err);
+        }
       }
-    }
+    });
     const values = liveState.markLost(engineId, at);
     if (!values) return;
     const send = (siteId: number | null) => {
@@ -344,6 +347,7 @@ export async function startTelemetry(
     async stop() {
       if (stopping) return;
       stopping = true;
+      later.drainNow(); // the rules and histories have every accepted reading
       await writer.stop(); // the final flush commits and acks what it wrote
       buffer.releaseAll(); // acks held only for room may go out now
       await new Promise((r) => setTimeout(r, 50));

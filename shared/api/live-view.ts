@@ -28,7 +28,7 @@ export interface LiveReadings {
 }
 
 /**
- * socket.io `readings-batch`: to a socket watching the fleet or sites, once per interval (250 ms), every engine
+ * socket.io `readings-batch`: to a socket watching the fleet or sites, once per interval (50 ms), every engine
  * of its scope whose values changed in that interval (each engine once, its latest value per channel).
  */
 export interface LiveReadingsBatch {

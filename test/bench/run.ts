@@ -19,6 +19,7 @@
  *  then the lists at fleet scale (lists.ts: first page of each long list with 2,000 engines, listP95Ms).
  * Phase lengths: BENCH_FLOOD_MS, BENCH_LATENCY_MS, BENCH_QOS0_MS, BENCH_DRAIN_MS. One phase alone: BENCH_PHASE=qos1|push|retention|trend|history|lists.
  * BENCH_SCALE=1: instead, several servers on PostgreSQL and mosquitto (scale.ts), one server vs two.
+ * BENCH_SERVER_PROFILE=dir: the CPU profile of the bench's main server (node --cpu-prof), written to dir when it stops.
  * BENCH_JSON=file: the figures also as JSON (ingestPerS, rawCeilingPerS, lostAcknowledged, duplicatesStored,
  * rssGrowthPct, loginUnderBurstMs, ...), to compare runs.
  */
@@ -108,7 +109,10 @@ async function startServer(): Promise<Server> {
   const dataDir = fs.mkdtempSync(path.join(os.tmpdir(), 'jw-bench-'));
   const [port, mqttPort, smtpPort] = [await freePort(), await freePort(), await freePort()];
   // node --import tsx (no tsx wrapper process), so the pid measured is the server's own
-  const child = spawn(process.execPath, ['--import', 'tsx', path.join(ROOT, 'server/main.ts')], {
+  // BENCH_SERVER_PROFILE=dir: the server's CPU profile (node --cpu-prof), written to dir when it stops
+  const profileDir = process.env.BENCH_SERVER_PROFILE;
+  const profile = profileDir ? ['--cpu-prof', `--cpu-prof-dir=${profileDir}`] : [];
+  const child = spawn(process.execPath, [...profile, '--import', 'tsx', path.join(ROOT, 'server/main.ts')], {
     cwd: ROOT,
     stdio: ['ignore', 'ignore', 'inherit'],
     env: { ...process.env, PORT: String(port), MQTT_PORT: String(mqttPort), SMTP_PORT: String(smtpPort), DATA_DIR: dataDir, LOG_LEVEL: 'warn' },

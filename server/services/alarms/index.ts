@@ -34,6 +34,8 @@ export function createAlarmFeature(ctx: AppContext, settings: AlarmSettings = lo
   let lastSeen: (engineId: number) => number | null = () => null;
   let timer: NodeJS.Timeout | null = null;
   let ticking = false;
+  /** A tick whose slices are still running (a busy loop): the next tick waits for the next interval. */
+  let slicing: Promise<void> | null = null;
 
   const directory = new EngineDirectory(models);
   const notifier = new Notifier({
@@ -104,7 +106,12 @@ export function createAlarmFeature(ctx: AppContext, settings: AlarmSettings = lo
       telemetry.onReadings((batch) => rules.handleReadings(batch));
       telemetry.onLost?.((engineId, at) => rules.engineLost(engineId, at));
       timer = setInterval(() => {
-        rules.tick();
+        slicing ??= rules
+          .tickInSlices()
+          .catch((err) => log.error('alarms: tick failed', err))
+          .finally(() => {
+            slicing = null;
+          });
         if (ticking) return; // a slow database: skip a housekeeping round rather than pile them up
         ticking = true;
         alarms
@@ -124,6 +131,7 @@ export function createAlarmFeature(ctx: AppContext, settings: AlarmSettings = lo
     async stop() {
       if (timer) clearInterval(timer);
       timer = null;
+      await slicing;
       await alarms.idle();
       await outbox?.stop();
       await catcher?.stop();

@@ -374,7 +374,32 @@ export class RuleEngine {
     this.recordLate(this.late.finish(now, all));
   }
 
-  /** The 1 s clock. */
+  /**
+   * The 1 s clock, in slices of at most `sliceMs` each, one event-loop turn apart, so that a large fleet never holds
+   * the loop (at 2,000 engines one whole tick took 40-240 ms, measured with a CPU profile under the push bench,
+   * and held up every reading and socket meanwhile). Each engine is ticked at the time its slice runs. Resolves
+   * once every engine has had its tick.
+   */
+  async tickInSlices(sliceMs = 5): Promise<void> {
+    const start = Date.now();
+    this.finishLate(start);
+    const ids = [...this.evaluators.keys()];
+    let i = 0;
+    while (i < ids.length) {
+      const sliceStart = performance.now();
+      const now = Date.now();
+      for (; i < ids.length && performance.now() - sliceStart < sliceMs; i++) {
+        const ev = this.evaluators.get(ids[i]);
+        if (!ev) continue; // gone since the tick began
+        this.dispatch(ids[i], ev.tick(this.clockOf(ids[i], now)));
+        this.afterStep(ids[i], ev);
+      }
+      if (i < ids.length) await new Promise<void>((resolve) => setImmediate(resolve));
+    }
+    if (start - this.lastRefresh > DIRECTORY_REFRESH_MS) void this.refreshEngines().catch((err) => this.deps.log.error('alarms: engine refresh failed', err));
+  }
+
+  /** The 1 s clock, all engines at once (tests; the server ticks in slices). */
   tick(now = Date.now()): void {
     this.finishLate(now);
     for (const [engineId, ev] of this.evaluators) {

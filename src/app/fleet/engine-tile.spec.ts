@@ -1,8 +1,11 @@
+import { provideHttpClient } from '@angular/common/http';
+import { HttpTestingController, provideHttpClientTesting } from '@angular/common/http/testing';
 import { ComponentFixture, TestBed } from '@angular/core/testing';
 import { provideRouter } from '@angular/router';
 import { PreferencesService } from '../core/preferences.service';
 import { EngineTile } from './engine-tile';
 import { Engine } from './fleet-types';
+import { FleetService } from './fleet.service';
 
 function engine(overrides: Partial<Engine> = {}, ageMs = 3000): Engine {
   const ts = Date.now() - ageMs;
@@ -55,6 +58,31 @@ describe('EngineTile', () => {
     TestBed.inject(PreferencesService).useSystem('metric');
     fixture = TestBed.createComponent(EngineTile);
     el = fixture.nativeElement as HTMLElement;
+  });
+
+  it('given an id (the fleet board), draws that engine from the fleet list and follows its changes', async () => {
+    TestBed.resetTestingModule();
+    TestBed.configureTestingModule({ imports: [EngineTile], providers: [provideRouter([]), provideHttpClient(), provideHttpClientTesting()] });
+    TestBed.inject(PreferencesService).useSystem('metric');
+    const http = TestBed.inject(HttpTestingController);
+    const fleet = TestBed.inject(FleetService);
+    const listed = (temp: number) => {
+      const loaded = fleet.load();
+      http.expectOne('/api/sites').flush([{ id: 3, name: 'North yard', timeZone: 'UTC' }]);
+      const e = engine();
+      http.expectOne('/api/engines').flush([{ ...e, latest: { ...e.latest, coolant_temp: { ...e.latest.coolant_temp!, value: temp } } }]);
+      return loaded;
+    };
+    await listed(84.2);
+    fixture = TestBed.createComponent(EngineTile);
+    el = fixture.nativeElement as HTMLElement;
+    fixture.componentRef.setInput('engine', 17);
+    fixture.detectChanges();
+    expect(text('.name')).toBe('Genset North 2');
+    expect(values()[0]).toBe('84.2 °C');
+    await listed(91.5);
+    fixture.detectChanges();
+    expect(values()[0]).toBe('91.5 °C');
   });
 
   it('shows name, duty, run state and the three coolant values with units', () => {

@@ -1,4 +1,4 @@
-import { ChangeDetectionStrategy, Component, DestroyRef, ElementRef, afterNextRender, computed, inject, input, signal } from '@angular/core';
+import { ChangeDetectionStrategy, Component, DestroyRef, ElementRef, Injector, afterNextRender, computed, inject, input, signal } from '@angular/core';
 import { MatCardModule } from '@angular/material/card';
 import { MatIconModule } from '@angular/material/icon';
 import { RouterLink } from '@angular/router';
@@ -17,10 +17,13 @@ import { Engine, RunState } from './fleet-types';
 import { TILE_CHANNELS, isEngineStale, isValueStale } from './engine-condition';
 import { lastReadingAt, runStateAt } from './run-state';
 import { OnScreen } from './on-screen';
+import { FleetService } from './fleet.service';
 
 const STATE_TEXT: Record<RunState, string> = { running: 'Running', stopped: 'Stopped', 'no-data': 'No data' };
 const STATE_ICON: Record<RunState, string> = { running: 'sync', stopped: 'stop_circle', 'no-data': 'cloud_off' };
 const DUTY_TEXT: Record<Engine['duty'], string> = { standby: 'Standby', prime: 'Prime', continuous: 'Continuous' };
+/** Drawn for a moment by a tile whose engine has just left the fleet's list (its tile is being removed). */
+const UNKNOWN_ENGINE = { id: 0, name: '', siteId: 0, duty: 'standby', latest: {} } as unknown as Engine;
 
 interface TileRow {
   key: ChannelKey;
@@ -117,7 +120,18 @@ export class EngineTile {
 
   private readonly cadence = inject(ReadingCadence);
 
-  readonly engine = input.required<Engine>();
+  /**
+   * The engine, or the id of one of the fleet's engines (the fleet board): the tile then takes the engine's current
+   * values from the fleet's live list itself, so a live update gives no new input to the 2,000 tiles of a board and a
+   * tile off screen is not checked at all (setting every tile's input re-checked every tile on each update, the
+   * longest task of the board under the push bench).
+   */
+  readonly engine = input.required<Engine | number>();
+  private readonly injector = inject(Injector);
+  private readonly source = computed<Engine | undefined>(() => {
+    const e = this.engine();
+    return typeof e === 'number' ? this.injector.get(FleetService).engineById().get(e) : e;
+  });
   /** The site's zone, for "last 11:15" (the browser's when not given). */
   readonly timeZone = input<string | null>(null);
 
@@ -131,7 +145,9 @@ export class EngineTile {
    */
   private readonly view = computed(() => {
     if (this.drawn && !this.onScreen() && !this.focused()) return this.drawn;
-    return (this.drawn = { engine: this.engine(), now: this.clock.now() });
+    const engine = this.source();
+    if (!engine) return this.drawn ?? { engine: UNKNOWN_ENGINE, now: this.clock.now() }; // gone from the list: its tile goes too
+    return (this.drawn = { engine, now: this.clock.now() });
   });
   protected readonly current = computed(() => this.view().engine);
   private readonly now = computed(() => this.view().now);

@@ -17,7 +17,7 @@ import { CollapsedSites } from './collapsed-sites.service';
 import { AbnormalCount, abnormalText, countAbnormal, engineCondition } from './engine-condition';
 import { EngineTile } from './engine-tile';
 import { matchesSearch, searchTerms } from './fleet-search';
-import { Engine, RunState, Site } from './fleet-types';
+import { RunState, Site } from './fleet-types';
 import { FleetService } from './fleet.service';
 import { runStateAt } from './run-state';
 import { byName } from '../ui/by-name';
@@ -26,8 +26,19 @@ type StateFilter = 'all' | RunState;
 
 interface SiteGroup {
   site: Site;
-  engines: Engine[];
+  /** The group's engines in name order (ids: the tiles look up each engine's current values by id). */
+  engineIds: number[];
 }
+
+/** What the order and grouping of the board depend on: each engine's id, name and site, in the list's order. */
+interface RosterEntry {
+  id: number;
+  name: string;
+  siteId: number;
+}
+
+const sameRoster = (a: readonly RosterEntry[], b: readonly RosterEntry[]) =>
+  a.length === b.length && a.every((x, i) => x.id === b[i].id && x.name === b[i].name && x.siteId === b[i].siteId);
 
 const CONNECTION_TEXT = { connected: 'Live', connecting: 'Connecting…', offline: 'Not live', refused: 'Live push refused' } as const;
 
@@ -79,6 +90,17 @@ export class FleetBoard {
   protected readonly filtered = computed(() => this.siteFilter().length > 0 || this.stateFilter() !== 'all' || this.freezeOnly());
   protected readonly freezeShortCount = computed(() => this.fleet.engines().filter((e) => e.freezeProtection?.status === 'short').length);
 
+  /**
+   * Names and sites only: live values change every engine several times a second, and none of them moves a tile, so
+   * the board sorts and groups again only when an engine is added, removed, renamed or moved, or a filter changes.
+   * Sorting 2,000 names on every update was the longest task of the board under the push bench.
+   */
+  private readonly roster = computed<RosterEntry[]>(() => this.fleet.engines().map((e) => ({ id: e.id, name: e.name, siteId: e.siteId })), {
+    equal: sameRoster,
+  });
+  private readonly ordered = computed(() => [...this.roster()].sort((a, b) => byName(a.name, b.name)));
+  private readonly engineById = this.fleet.engineById;
+
   private readonly states = computed(() => {
     const now = this.clock.now();
     return new Map(this.fleet.engines().map((e) => [e.id, runStateAt(e, now)]));
@@ -97,29 +119,31 @@ export class FleetBoard {
     const sites = this.sites();
     const siteIds = new Set(this.siteFilter());
     const state = this.stateFilter();
-    const states = this.states();
+    // live state and freeze protection only when a filter asks for them (then the groups follow their changes)
+    const states = state === 'all' ? null : this.states();
+    const byId = this.freezeOnly() ? this.engineById() : null;
     const terms = this.terms();
     const siteNames = new Map(sites.map((s) => [s.id, s.name]));
-    const bySite = new Map<number, Engine[]>();
-    for (const e of this.fleet.engines()) {
+    const bySite = new Map<number, number[]>();
+    for (const e of this.ordered()) {
       if (siteIds.size && !siteIds.has(e.siteId)) continue;
-      if (state !== 'all' && states.get(e.id) !== state) continue;
-      if (this.freezeOnly() && e.freezeProtection?.status !== 'short') continue;
+      if (states && states.get(e.id) !== state) continue;
+      if (byId && byId.get(e.id)?.freezeProtection?.status !== 'short') continue;
       if (!matchesSearch(terms, e.name, siteNames.get(e.siteId) ?? `Site ${e.siteId}`)) continue;
       const list = bySite.get(e.siteId);
-      if (list) list.push(e);
-      else bySite.set(e.siteId, [e]);
+      if (list) list.push(e.id);
+      else bySite.set(e.siteId, [e.id]);
     }
     const known = new Set(sites.map((s) => s.id));
-    const groups = sites.filter((s) => bySite.has(s.id)).map((site) => ({ site, engines: sortByName(bySite.get(site.id)!) }));
+    const groups = sites.filter((s) => bySite.has(s.id)).map((site) => ({ site, engineIds: bySite.get(site.id)! }));
     // Engines whose site is not in the list still show, under their site number.
-    for (const [siteId, engines] of bySite) {
-      if (!known.has(siteId)) groups.push({ site: { id: siteId, name: `Site ${siteId}`, timeZone: 'UTC' }, engines: sortByName(engines) });
+    for (const [siteId, engineIds] of bySite) {
+      if (!known.has(siteId)) groups.push({ site: { id: siteId, name: `Site ${siteId}`, timeZone: 'UTC' }, engineIds });
     }
     return groups;
   });
 
-  protected readonly shownCount = computed(() => this.groups().reduce((n, g) => n + g.engines.length, 0));
+  protected readonly shownCount = computed(() => this.groups().reduce((n, g) => n + g.engineIds.length, 0));
   protected readonly shownText = computed(() => `${this.shownCount()} of ${this.counts().all} ${this.counts().all === 1 ? 'engine' : 'engines'} shown`);
 
   /** What a collapsed site's header says about its hidden tiles (expanded sites show the tiles themselves). */
@@ -127,10 +151,12 @@ export class FleetBoard {
     const collapsed = this.collapsed.ids();
     const now = this.clock.now();
     const out = new Map<number, { count: AbnormalCount; text: string }>();
+    const byId = collapsed.size ? this.engineById() : null;
     for (const g of this.groups()) {
-      if (!collapsed.has(g.site.id)) continue;
+      if (!byId || !collapsed.has(g.site.id)) continue;
+      const engines = g.engineIds.map((id) => byId.get(id)).filter((e) => e !== undefined);
       const count = countAbnormal(
-        g.engines.map((e) => engineCondition(e, now, this.cadence.intervalFor(e.id), this.alarmStore.activeFor(e.id) ?? e.activeAlarms ?? 0)),
+        engines.map((e) => engineCondition(e, now, this.cadence.intervalFor(e.id), this.alarmStore.activeFor(e.id) ?? e.activeAlarms ?? 0)),
       );
       out.set(g.site.id, { count, text: abnormalText(count) });
     }
@@ -219,9 +245,3 @@ export class FleetBoard {
 }
 
 const sortedIds = (ids: readonly number[]) => [...ids].sort((a, b) => a - b).join(',');
-
-/** "Unit 2" before "Unit 10". */
-
-function sortByName(engines: Engine[]): Engine[] {
-  return engines.sort((a, b) => byName(a.name, b.name));
-}

@@ -6,8 +6,12 @@ import { ChannelValue, ChannelValues, LiveReadings } from '../core/live-reading'
 import { LiveService } from '../core/live.service';
 import { Engine, Site } from './fleet-types';
 
-/** Live readings are gathered and applied together at most this often, so 200 engines stay cheap to draw. */
-const APPLY_EVERY_MS = 500;
+/**
+ * Live readings are gathered and applied together at most this often. An update re-sorts nothing and touches only the
+ * tiles on screen whose engine changed, so at 2,000 engines it is cheap enough to apply every 100 ms: what the screen
+ * shows then lags the socket by at most that (it was 500 ms, more than the whole publish -> browser goal).
+ */
+const APPLY_EVERY_MS = 100;
 /** Standby readiness (heater, alarms, lockouts) is computed by the server: asked again this often. */
 const READINESS_EVERY_MS = 30_000;
 
@@ -27,6 +31,8 @@ export class FleetService {
   readonly loading = this.loadingSignal.asReadonly();
   readonly error = this.errorSignal.asReadonly();
   readonly siteById = computed(() => new Map(this.sitesSignal().map((s) => [s.id, s])));
+  /** Each engine as it is now, by id (a fleet-board tile reads its own engine here). */
+  readonly engineById = computed(() => new Map(this.enginesSignal().map((e) => [e.id, e])));
 
   private pending = new Map<number, ChannelValues>();
   private flushTimer: ReturnType<typeof setTimeout> | null = null;
