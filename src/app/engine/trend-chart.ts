@@ -267,6 +267,10 @@ export class TrendChart {
         animations: { enabled: false },
         fontFamily: 'Roboto Condensed, sans-serif',
         background: 'transparent',
+        // apexcharts' own resize redraw can leave a chart without its series for a while on a busy machine (a blank
+        // chart the operator sees); the width is followed here instead, through a plain redraw (observeWidth).
+        redrawOnParentResize: false,
+        redrawOnWindowResize: false,
         zoom: { enabled: true, type: 'x', autoScaleYaxis: false },
         toolbar: {
           show: true,
@@ -369,7 +373,20 @@ export class TrendChart {
   private observeWidth(): void {
     const el = this.host.nativeElement;
     let last = 0;
+    let drawnWidth = el.clientWidth;
+    let frame = 0;
+    // Every chart follows its box at once, by a redraw at the new width (one per frame at most).
+    const follow = (w: number) => {
+      if (Math.round(w) === drawnWidth) return;
+      drawnWidth = Math.round(w);
+      cancelAnimationFrame(frame);
+      frame = requestAnimationFrame(() => {
+        for (const chart of this.charts()) void chart.chartInstance()?.updateOptions({ chart: { width: drawnWidth } }, false, false, false);
+      });
+    };
+    this.destroyRef.onDestroy(() => cancelAnimationFrame(frame));
     const report = (w: number) => {
+      follow(w);
       // Steps of 40 px, so a small resize does not reload the trend.
       const width = Math.max(100, Math.floor(w / 40) * 40);
       if (width !== last) {
