@@ -68,11 +68,11 @@ test('external broker: SIGKILL of the server mid-flood loses nothing the broker 
     broker
       .out()
       .split('\n')
-      .filter((l) => l === 'subscribed jacketwatch-server').length;
+      .filter((l) => l === 'subscribed jacketwatch-server' || l === 'subscribed jacketwatch-sparkplug-host').length;
 
   const env = { MQTT_URL: `mqtt://127.0.0.1:${brokerPort}` };
   server = await startServerProcess({ dataDir, group: true, env });
-  // two subscriptions per start: telemetry and Sparkplug B
+  // two subscriptions per start: telemetry (the server's own client) and Sparkplug B (the host role's client)
   await waitFor('server subscribed', () => subscriptions() === 2, 30_000, broker.out);
   const ports = server.ports;
   const seed = new Db(server.databaseUrl);
