@@ -24,6 +24,7 @@ import { readRawRange } from '../../server/services/history/raw-range';
 import { CHANNELS, CHANNEL_KEYS } from '../../shared/channels';
 import { EngineModel } from '../../simulator/engine-model';
 import { Db, seedFleet, startServerProcess } from '../server/support/telemetry-server';
+import { mulberry32 } from '../../simulator/engine-model';
 
 const ENGINES = Number(process.env.BENCH_HISTORY_ENGINES ?? 4);
 const SECONDS = 86_400;
@@ -50,17 +51,6 @@ export interface HistoryFigures {
   fileBytesBefore: number;
   fileBytesAfterVacuum: number;
   tables: Record<string, number>;
-}
-
-function rng(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
 }
 
 /**
@@ -116,7 +106,7 @@ export async function historyPhase(progress: (m: string) => void): Promise<Histo
         { seed: 100 + n, startMs: start - 1000 },
       );
       if (n < 2) model.setCommand('run');
-      const late = rng(7 + n);
+      const late = mulberry32(7 + n);
       let params: number[] = [];
       await db.exec('BEGIN');
       for (let i = 0; i < SECONDS; i++) {

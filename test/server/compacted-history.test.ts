@@ -20,6 +20,7 @@ import { makeTestApp, type TestApp } from './helpers';
 import { Db, seedFleet, startServerProcess } from './support/telemetry-server';
 import { until } from './support/until';
 import { spawnInGroup, stopGroup } from './support/process-group';
+import { mulberry32 } from '../../simulator/engine-model';
 
 jest.setTimeout(180_000);
 
@@ -28,18 +29,6 @@ const NOW = Math.floor(Date.now() / 1000) * 1000;
 const CUTOFF = blockStartOf(NOW - 24 * HOUR);
 const log = createLogger('error', 'test');
 const END = Number.MAX_SAFE_INTEGER;
-
-/** Deterministic PRNG (mulberry32). */
-function rng(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
 
 const engineFields = {
   duty: 'standby' as const,
@@ -96,7 +85,7 @@ function expectSame(actual: StoredReading[], expected: StoredReading[]): void {
  * with two decimals (temperature) or any double (a computed channel).
  */
 function history(seed: number, anyDouble: boolean): StoredReading[] {
-  const r = rng(seed);
+  const r = mulberry32(seed);
   const out: StoredReading[] = [];
   let ts = NOW - 3 * DAY_MS + 1234;
   let v = 60;

@@ -1,18 +1,7 @@
 /** The history block codec: lossless round trips and the bit costs of Gorilla's timestamp coding. */
 import { decodeBlock, dodBits, encodeBlock, mergeReadings, type BlockReading } from '../../../shared/history/block-codec';
 import { EngineModel } from '../../../simulator/engine-model';
-
-/** Small deterministic PRNG (mulberry32), so a failing case can be replayed from its seed. */
-function rng(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
+import { mulberry32 } from '../../../simulator/engine-model';
 
 const bits = (v: number) => {
   const f = new Float64Array([v]);
@@ -95,7 +84,7 @@ describe('block codec round trips', () => {
       { ts: 0, value: 3, quality: 0 },
       { ts: 2 ** 49, value: 4, quality: 0 },
     ]);
-    const r = rng(7);
+    const r = mulberry32(7);
     let ts = T0;
     const readings: BlockReading[] = [];
     for (let i = 0; i < 5000; i++) {
@@ -107,7 +96,7 @@ describe('block codec round trips', () => {
 
   it('random blocks of every kind (seeded property test, 300 cases)', () => {
     for (let seed = 1; seed <= 300; seed++) {
-      const r = rng(seed);
+      const r = mulberry32(seed);
       const n = 1 + Math.floor(r() * 400);
       const kind = seed % 4;
       let ts = Math.floor(r() * 2 ** 45) * (r() < 0.1 ? -1 : 1);
