@@ -1,5 +1,7 @@
-import { ChangeDetectionStrategy, Component, DestroyRef, effect, inject, input, signal, untracked } from '@angular/core';
+import { ChangeDetectionStrategy, Component, computed, inject, input } from '@angular/core';
+import { rxResource } from '@angular/core/rxjs-interop';
 import { MatIconModule } from '@angular/material/icon';
+import { Observable, switchMap } from 'rxjs';
 import { WorkApi } from './work-api';
 import { WorkAttachment } from './work-types';
 
@@ -58,27 +60,21 @@ import { WorkAttachment } from './work-types';
 export class AttachmentThumb {
   private readonly api = inject(WorkApi);
   readonly file = input.required<WorkAttachment>();
-  protected readonly src = signal<string | null>(null);
+  /** The object URL of the fetched file; revoked when the resource ends its stream (another file, or the thumb is gone). */
+  private readonly url = rxResource({
+    params: () => this.file().url,
+    stream: ({ params: url }) =>
+      this.api.attachmentBlob(url).pipe(
+        switchMap(
+          (blob) =>
+            new Observable<string>((sub) => {
+              const objectUrl = URL.createObjectURL(blob);
+              sub.next(objectUrl);
+              return () => URL.revokeObjectURL(objectUrl);
+            }),
+        ),
+      ),
+  });
+  protected readonly src = computed(() => (this.url.hasValue() ? this.url.value() : null));
   protected readonly isPdf = () => this.file().contentType === 'application/pdf';
-
-  constructor() {
-    effect(() => {
-      const f = this.file();
-      untracked(() => {
-        this.api.attachmentBlob(f.url).subscribe({
-          next: (b) => {
-            this.revoke();
-            this.src.set(URL.createObjectURL(b));
-          },
-          error: () => this.src.set(null),
-        });
-      });
-    });
-    inject(DestroyRef).onDestroy(() => this.revoke());
-  }
-
-  private revoke(): void {
-    const s = this.src();
-    if (s) URL.revokeObjectURL(s);
-  }
 }

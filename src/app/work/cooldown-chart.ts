@@ -192,6 +192,8 @@ export class CooldownChart {
   });
 
   constructor() {
+    // not a resource: each opening-check answer moves the window, and a resource would cancel the request
+    // still out and blank the chart; this keeps what is drawn and skips a round while a request is out
     effect(() => {
       const id = this.engineId();
       const at = Date.parse(this.check().at);

@@ -1,5 +1,6 @@
-import { ChangeDetectionStrategy, Component, DestroyRef, computed, effect, inject, input, output, signal, untracked } from '@angular/core';
+import { ChangeDetectionStrategy, Component, computed, effect, inject, input, output, signal, untracked } from '@angular/core';
 import { MatIconModule } from '@angular/material/icon';
+import { exhaustMap, interval, materialize, startWith } from 'rxjs';
 import { ClockService } from '../core/clock.service';
 import { UnitValuePipe } from '../ui/unit-value.pipe';
 import { CooldownChart } from './cooldown-chart';
@@ -229,29 +230,23 @@ export class OpeningCheckPanel {
     if (!c || c.clear || h === null || h === undefined || h < c.settings.safeOpenTempC) return null;
     return { setpointC: h, limitC: c.settings.safeOpenTempC };
   });
-  private timer: ReturnType<typeof setInterval> | null = null;
 
   constructor() {
-    effect(() => {
+    // one poll per engine and lock-out answer; a slow answer is waited for rather than overlapped
+    effect((onCleanup) => {
       const id = this.engineId();
-      this.lockoutConfirmed();
-      untracked(() => {
-        this.poll(id);
-        if (this.timer) clearInterval(this.timer);
-        this.timer = setInterval(() => this.poll(id), POLL_MS);
-      });
-    });
-    inject(DestroyRef).onDestroy(() => this.timer && clearInterval(this.timer));
-  }
-
-  private poll(id: number): void {
-    this.api.openingCheck(id, this.lockoutConfirmed()).subscribe({
-      next: (c) => {
-        this.check.set(c);
-        this.error.set(null);
-        this.changed.emit(c);
-      },
-      error: (e: unknown) => this.error.set(errorText(e)),
+      const lockout = this.lockoutConfirmed();
+      const polls = interval(POLL_MS).pipe(startWith(-1));
+      const sub = untracked(() =>
+        polls.pipe(exhaustMap(() => this.api.openingCheck(id, lockout).pipe(materialize()))).subscribe((n) => {
+          if (n.kind === 'N') {
+            this.check.set(n.value);
+            this.error.set(null);
+            this.changed.emit(n.value);
+          } else if (n.kind === 'E') this.error.set(errorText(n.error));
+        }),
+      );
+      onCleanup(() => sub.unsubscribe());
     });
   }
 

@@ -2,7 +2,7 @@ import { ChangeDetectionStrategy, Component, DestroyRef, computed, effect, injec
 import { takeUntilDestroyed } from '@angular/core/rxjs-interop';
 import { HttpErrorResponse } from '@angular/common/http';
 import { FormControl, FormGroup, NonNullableFormBuilder, ReactiveFormsModule } from '@angular/forms';
-import { Observable, finalize, merge } from 'rxjs';
+import { Observable, Subscription, finalize, merge } from 'rxjs';
 import { MatButtonModule } from '@angular/material/button';
 import { MatCardModule } from '@angular/material/card';
 import { MatCheckboxModule } from '@angular/material/checkbox';
@@ -223,9 +223,11 @@ export class WorkOrderPage {
 
   constructor() {
     if (!this.fleet.engines().length) void this.fleet.load();
-    effect(() => {
+    // an answer for the order the address no longer names is dropped
+    effect((onCleanup) => {
       const id = Number(this.id());
-      untracked(() => this.load(id));
+      const sub = untracked(() => this.load(id));
+      onCleanup(() => sub.unsubscribe());
     });
     if (this.auth.hasRole('planner', 'admin')) this.api.assignees().subscribe({ next: (a) => this.assignees.set(a), error: () => undefined });
     const plan = this.planForm.controls;
@@ -248,8 +250,8 @@ export class WorkOrderPage {
     this.api.get(id).subscribe({ next: (o) => this.set(o), error: () => undefined });
   }
 
-  private load(id: number): void {
-    this.api.get(id).subscribe({
+  private load(id: number): Subscription {
+    return this.api.get(id).subscribe({
       next: (o) => {
         this.set(o);
         if (o.kind === 'filter-change' && !['closed', 'cancelled'].includes(o.status)) this.loadFilterDefault(o.engineId);
