@@ -21,6 +21,7 @@ import { Db, seedFleet, startServerProcess } from './support/telemetry-server';
 import { until } from './support/until';
 import { spawnInGroup, stopGroup } from './support/process-group';
 import { mulberry32 } from '../../simulator/engine-model';
+import { engineFields } from './support/engine-fields';
 
 jest.setTimeout(180_000);
 
@@ -29,16 +30,6 @@ const NOW = Math.floor(Date.now() / 1000) * 1000;
 const CUTOFF = blockStartOf(NOW - 24 * HOUR);
 const log = createLogger('error', 'test');
 const END = Number.MAX_SAFE_INTEGER;
-
-const engineFields = {
-  duty: 'standby' as const,
-  capacityL: 50,
-  coolantFamily: 'conventional' as const,
-  glycolType: 'ethylene' as const,
-  glycolPercent: 50,
-  capPressureKpa: 100,
-  oilDrainIntervalH: 250,
-};
 
 /** Rows with every number bound (not written as SQL text), so each double is stored exactly. */
 async function insertReadings(sequelize: Sequelize, engineId: number, channel: number, rows: StoredReading[]): Promise<void> {

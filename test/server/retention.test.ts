@@ -5,6 +5,7 @@ import { QueryTypes } from 'sequelize';
 import { DAY_MS, startRetention } from '../../server/services/retention';
 import { auth, makeTestApp, type TestApp } from './helpers';
 import { Db, seedFleet, startServerProcess } from './support/telemetry-server';
+import { engineFields } from './support/engine-fields';
 
 let t: TestApp;
 let e1: number;
@@ -27,16 +28,6 @@ async function insertRows(table: string, cols: string[], rows: number[][]): Prom
 const one = async <T extends object = { n: number }>(sql: string): Promise<T> => {
   const row = (await t.ctx.sequelize.query<Record<string, unknown>>(sql, { type: QueryTypes.SELECT }))[0]!;
   return Object.fromEntries(Object.entries(row).map(([k, v]) => [k, typeof v === 'string' && /^-?\d+(\.\d+)?$/.test(v) ? Number(v) : v])) as T;
-};
-
-const engineFields = {
-  duty: 'standby' as const,
-  capacityL: 50,
-  coolantFamily: 'conventional' as const,
-  glycolType: 'ethylene' as const,
-  glycolPercent: 50,
-  capPressureKpa: 100,
-  oilDrainIntervalH: 250,
 };
 
 // old raw rows: engine 1 coolant_temp 10,500 (11 batches of at most 1,000), engine 1 pressure 999 (1 batch), engine 2 coolant_temp 1,000 (1 batch)
