@@ -38,7 +38,35 @@ export interface ScaleFigures {
   rowsPerDay: number;
   bytesPerRow: number;
   bytesPerDay: number;
+  /** Each server's own ingest counters (GET /api/health) after the wait: where readings stood when the run ended. */
+  perServer: ServerIngest[];
 }
+
+export interface ServerIngest {
+  received: number | null;
+  stored: number | null;
+  duplicate: number | null;
+  rejected: number | null;
+  buffered: number | null;
+  relaySent: number | null;
+  relayReceived: number | null;
+}
+
+interface HealthAnswer {
+  ingest: { received: number; stored: number; duplicate: number; rejected: number; buffered: number } | null;
+  cluster?: { relay: { sentReadings: number; receivedReadings: number } | null };
+}
+
+/** A server's counters, or nulls when it does not answer within 10 s (an overloaded server is a finding too). */
+async function serverIngest(url: string): Promise<ServerIngest> {
+  try {
+    const h = (await (await fetch(`${url}/api/health`, { signal: AbortSignal.timeout(10_000) })).json()) as HealthAnswer;
+    return { ...(h.ingest ?? NO_INGEST), relaySent: h.cluster?.relay?.sentReadings ?? null, relayReceived: h.cluster?.relay?.receivedReadings ?? null };
+  } catch {
+    return { ...NO_INGEST, relaySent: null, relayReceived: null };
+  }
+}
+const NO_INGEST = { received: null, stored: null, duplicate: null, rejected: null, buffered: null };
 
 const quantile = (xs: number[], p: number) => xs[Math.min(xs.length - 1, Math.floor(p * xs.length))] ?? NaN;
 
@@ -196,6 +224,7 @@ async function oneRun(servers: number, adminUrl: string, mq: { port: number; adm
     const count = async () => Number((await db!.query<{ n: number }>('SELECT COUNT(*) AS n FROM readings')).rows[0].n);
     const stored = await until('every published reading stored', count, (n) => n >= published, 120_000).catch(async () => count());
     const sizeAfter = await sizes(db);
+    const perServer = await Promise.all(urls.map(serverIngest));
     latencies.sort((a, b) => a - b);
     const rowsPerDay = ENGINES * 5 * 86_400;
     const bytesPerRow = stored > 0 ? (sizeAfter - sizeBefore) / stored : NaN;
@@ -212,6 +241,7 @@ async function oneRun(servers: number, adminUrl: string, mq: { port: number; adm
       rowsPerDay,
       bytesPerRow,
       bytesPerDay: bytesPerRow * rowsPerDay,
+      perServer,
     };
   } finally {
     for (const s of sockets) s.close();
@@ -276,4 +306,12 @@ export function printScale(figures: ScaleFigures[]): void {
   row('rows per day (fleet)', (x) => fmt(x.rowsPerDay));
   row('bytes per stored reading (rows, indexes, rollups)', (x) => x.bytesPerRow.toFixed(1));
   row('bytes per day (GB)', (x) => (x.bytesPerDay / 1e9).toFixed(1));
+  const n = (v: number | null) => (v === null ? 'no answer' : fmt(v));
+  for (const x of figures)
+    x.perServer.forEach((s, i) =>
+      console.log(
+        `  ${x.servers} server(s), server ${i + 1}: received ${n(s.received)}, stored ${n(s.stored)}, duplicate ${n(s.duplicate)}, ` +
+          `rejected ${n(s.rejected)}, buffered ${n(s.buffered)}, relay sent ${n(s.relaySent)} / received ${n(s.relayReceived)} readings`,
+      ),
+    );
 }
