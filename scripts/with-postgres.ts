@@ -13,6 +13,7 @@ import fs from 'node:fs';
 import net from 'node:net';
 import os from 'node:os';
 import path from 'node:path';
+import { freePort } from './free-port';
 
 function pgBinDir(): string {
   if (process.env.PG_BIN) return process.env.PG_BIN;
@@ -25,17 +26,6 @@ function pgBinDir(): string {
     : [];
   if (!versions.length) throw new Error('PostgreSQL is not installed (apt-get install -y postgresql, or set PG_BIN)');
   return path.join(root, versions[0], 'bin');
-}
-
-function freePort(): Promise<number> {
-  return new Promise((resolve, reject) => {
-    const srv = net.createServer();
-    srv.on('error', reject);
-    srv.listen(0, '127.0.0.1', () => {
-      const port = (srv.address() as net.AddressInfo).port;
-      srv.close(() => resolve(port));
-    });
-  });
 }
 
 const asRoot = process.getuid?.() === 0;

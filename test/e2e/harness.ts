@@ -8,10 +8,11 @@
  */
 import { spawn, type ChildProcess } from 'node:child_process';
 import fs from 'node:fs';
-import net from 'node:net';
 import os from 'node:os';
 import path from 'node:path';
 import { chromium, type Browser, type Locator, type Page } from 'playwright-core';
+import { freePort } from '../../scripts/free-port';
+export { freePort };
 
 const ROOT = path.resolve(__dirname, '../..');
 export const SHOTS = path.join(ROOT, 'test-output/screenshots');
@@ -24,18 +25,6 @@ export const ACCOUNTS = {
   technician: 'tech@jacketwatch.test',
   operator: 'operator@jacketwatch.test',
 } as const;
-
-export async function freePort(): Promise<number> {
-  return new Promise((resolve, reject) => {
-    const srv = net.createServer();
-    srv.unref();
-    srv.on('error', reject);
-    srv.listen(0, '127.0.0.1', () => {
-      const port = (srv.address() as net.AddressInfo).port;
-      srv.close(() => resolve(port));
-    });
-  });
-}
 
 export interface StackOptions {
   /** Extra simulator arguments, e.g. ['--scenario', 'overheat']. */
@@ -177,7 +166,9 @@ async function stopChild(child: ChildProcess): Promise<void> {
 }
 
 export async function startStack(opts: StackOptions = {}): Promise<Stack> {
-  const [port, mqttPort, smtpPort, controlPort] = [await freePort(), await freePort(), await freePort(), await freePort()];
+  const [port, mqttPort, smtpPort] = [await freePort(), await freePort(), await freePort()];
+  // the simulator binds its control endpoint on a port it is given by the OS and says which in its log
+  let controlPort = 0;
   const dataDir = fs.mkdtempSync(path.join(os.tmpdir(), 'jw-e2e-'));
   dataDirs.add(dataDir);
   const logDir = path.join(LOGS, path.basename(dataDir));
@@ -198,18 +189,29 @@ export async function startStack(opts: StackOptions = {}): Promise<Stack> {
     for (const child of children.slice().reverse()) await stopChild(child);
   };
 
+  let simulatorLogFrom = 0;
   const startSimulator = (args: string[]) => {
-    const sim = run('simulator/cli.ts', ['--control-port', String(controlPort), ...args], env, 'simulator', logDir);
+    controlPort = 0;
+    simulatorLogFrom = fs.existsSync(logOf('simulator')) ? fs.statSync(logOf('simulator')).size : 0;
+    const sim = run('simulator/cli.ts', ['--control-port', '0', ...args], env, 'simulator', logDir);
     children.push(sim);
     return sim;
   };
+  /** The control port this simulator start reported (0 until its log line is written). */
+  const reportedControlPort = (): number => {
+    const text = fs.readFileSync(logOf('simulator'), 'utf8').slice(simulatorLogFrom);
+    const m = /control endpoint http:\/\/127\.0\.0\.1:(\d+)/.exec(text);
+    return m ? Number(m[1]) : 0;
+  };
   const startSimulatorReady = async (args: string[]) => {
     const sim = startSimulator(args);
-    await waitUntil(async () => (await fetch(`http://127.0.0.1:${controlPort}/stats`)).ok, {
-      timeoutMs: 30000,
-      what: `simulator control port ${controlPort}`,
-      dies: { child: sim, log: logOf('simulator') },
-    });
+    await waitUntil(
+      async () => {
+        controlPort = reportedControlPort();
+        return controlPort > 0 && (await fetch(`http://127.0.0.1:${controlPort}/stats`)).ok;
+      },
+      { timeoutMs: 30000, what: 'the simulator control endpoint in its log, answering', dies: { child: sim, log: logOf('simulator') } },
+    );
     return sim;
   };
 
@@ -264,7 +266,9 @@ export async function startStack(opts: StackOptions = {}): Promise<Stack> {
     port,
     mqttPort,
     smtpPort,
-    controlPort,
+    get controlPort() {
+      return controlPort;
+    },
     dataDir,
     logDir,
     devicesFile: path.join(dataDir, 'demo-devices.json'),

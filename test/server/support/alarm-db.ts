@@ -1,6 +1,5 @@
 /** A real database (SQLite file in a temp folder, or a fresh PostgreSQL database with JW_TEST_PG_URL) with every migration applied, for the alarm and mail tests. */
 import fs from 'node:fs';
-import net from 'node:net';
 import os from 'node:os';
 import path from 'node:path';
 import type { Sequelize } from 'sequelize';
@@ -8,6 +7,7 @@ import { createLogger } from '../../../server/logger';
 import { createSequelize } from '../../../server/db/sequelize';
 import { migrate } from '../../../server/db/migrate';
 import { createTestDatabase } from './test-db';
+export { freePort } from '../../../scripts/free-port';
 
 export const quietLog = createLogger('error', 'test');
 
@@ -31,18 +31,6 @@ export async function tempDb(prefix = 'jw-alarms-'): Promise<TempDb> {
       fs.rmSync(dir, { recursive: true, force: true });
     },
   };
-}
-
-export async function freePort(): Promise<number> {
-  return new Promise((resolve, reject) => {
-    const srv = net.createServer();
-    srv.unref();
-    srv.on('error', reject);
-    srv.listen(0, '127.0.0.1', () => {
-      const port = (srv.address() as net.AddressInfo).port;
-      srv.close(() => resolve(port));
-    });
-  });
 }
 
 export async function waitFor<T>(fn: () => Promise<T | null | undefined | false>, timeoutMs = 10000, stepMs = 100): Promise<T> {

@@ -5,26 +5,16 @@
  */
 import { spawn, type ChildProcess } from 'node:child_process';
 import fs from 'node:fs';
-import net from 'node:net';
 import os from 'node:os';
 import path from 'node:path';
 import bcrypt from 'bcryptjs';
 import sqlite3 from 'sqlite3';
 import { Client, createTestDatabase, numericTypes, type PgClient, type TestDatabase } from './test-db';
 import type { BrokerState } from '../../../server/telemetry/types';
+import { freePort } from '../../../scripts/free-port';
+export { freePort };
 
 const ROOT = path.resolve(__dirname, '../../..');
-
-export function freePort(): Promise<number> {
-  return new Promise((resolve, reject) => {
-    const s = net.createServer();
-    s.once('error', reject);
-    s.listen(0, '127.0.0.1', () => {
-      const port = (s.address() as net.AddressInfo).port;
-      s.close(() => resolve(port));
-    });
-  });
-}
 
 /** A row as the tests read it: the columns they ask for are counts, ids, times and values. */
 export type Row = Record<string, number>;
