@@ -185,6 +185,12 @@ test('SIGKILL while the outbox is sending: after restart every mail arrives, eac
       });
     },
   });
+  // a sender killed mid-session may reset its connection (ECONNRESET, EPIPE, as the kernel closes it); any other
+  // relay error fails the test. Without a listener, the reset was thrown as an unhandled 'error' event.
+  const relayErrors: string[] = [];
+  relay.on('error', (err: NodeJS.ErrnoException) => {
+    if (err.code !== 'ECONNRESET' && err.code !== 'EPIPE') relayErrors.push(err.message);
+  });
   await new Promise<void>((resolve) => relay.listen(0, '127.0.0.1', resolve));
   const relayPort = (relay.server.address() as import('node:net').AddressInfo).port;
   try {
@@ -255,6 +261,7 @@ test('SIGKILL while the outbox is sending: after restart every mail arrives, eac
       if (sentBeforeKill.includes(subject)) expect({ subject, copies: copies.length }).toEqual({ subject, copies: 1 });
     }
     expect(bySubject.get('held')).toHaveLength(2); // the copy the relay never answered, and the one after the restart
+    expect(relayErrors).toEqual([]);
     console.log(
       `outbox crash test: killed while the relay held a message (${sentBeforeKill.length} of ${subjects.length} recorded sent before the kill); ` +
         `after restart all ${subjects.length} arrived, ${received.length} copies, ${new Set(received.map((r) => r.messageId)).size} Message-IDs`,
