@@ -6,14 +6,14 @@
  * (a client on every server, watching the fleet), and rows and bytes per day (table and index size of the
  * stored readings and rollups per reading, times the fleet's readings per day). Asserts nothing about timing.
  */
-import { execFileSync, spawn, type ChildProcess } from 'node:child_process';
+import { spawn, type ChildProcess } from 'node:child_process';
 import fs from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
 import { io as ioClient, type Socket } from 'socket.io-client';
 import { createTokenService } from '../../server/auth/tokens';
 import { startPgCluster } from '../../scripts/with-postgres';
-import { startMosquitto } from '../server/support/mosquitto';
+import { createTelemetryPublisher, startMosquitto } from '../server/support/mosquitto';
 import { spawnInGroup, stopGroup } from '../server/support/process-group';
 import { freePort } from '../server/support/telemetry-server';
 import { Client, numericTypes, type PgClient } from '../server/support/test-db';
@@ -289,14 +289,7 @@ async function withBenchBroker<T>(job: (mq: { port: number; adminUrl: string }) 
   const mq = await startMosquitto([`max_inflight_messages ${process.env.BENCH_SCALE_INFLIGHT ?? 1000}`]);
   try {
     // one device account for every publisher connection, allowed on every engine's topic (the bench measures the servers)
-    const ctl = (...args: string[]) =>
-      execFileSync('mosquitto_ctrl', ['-h', '127.0.0.1', '-p', String(mq.port), '-u', mq.admin.username, '-P', mq.admin.password, 'dynsec', ...args], {
-        stdio: 'ignore',
-      });
-    ctl('createClient', BENCH_USER.username, '-p', BENCH_USER.password);
-    ctl('createRole', 'jw-bench');
-    ctl('addRoleACL', 'jw-bench', 'publishClientSend', 'jw/v1/engines/+/telemetry', 'allow');
-    ctl('addClientRole', BENCH_USER.username, 'jw-bench');
+    createTelemetryPublisher(mq, BENCH_USER);
     return await job(mq);
   } finally {
     await mq.remove();

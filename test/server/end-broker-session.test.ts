@@ -3,9 +3,8 @@
  * (a persistent session, as a server's) goes on being dealt its share of the devices' messages, which the live
  * member never sees; after the command ends that session, the live member gets every message.
  */
-import { execFileSync } from 'node:child_process';
 import mqtt, { type MqttClient } from 'mqtt';
-import { mosquittoInstalled, startMosquitto, type Mosquitto } from './support/mosquitto';
+import { createTelemetryPublisher, mosquittoInstalled, startMosquitto, type Mosquitto } from './support/mosquitto';
 import { npmRun } from './support/npm-run';
 import { until } from './support/until';
 
@@ -21,15 +20,7 @@ const DEVICE = { username: 'jw-test-device', password: 'device-secret-for-tests-
 beforeAll(async () => {
   if (!mosquittoInstalled) return;
   mq = await startMosquitto();
-  // a device account that may publish telemetry (the server's admin account only subscribes to it)
-  const ctl = (...args: string[]) =>
-    execFileSync('mosquitto_ctrl', ['-h', '127.0.0.1', '-p', String(mq!.port), '-u', mq!.admin.username, '-P', mq!.admin.password, 'dynsec', ...args], {
-      stdio: 'ignore',
-    });
-  ctl('createClient', DEVICE.username, '-p', DEVICE.password);
-  ctl('createRole', 'jw-test-device');
-  ctl('addRoleACL', 'jw-test-device', 'publishClientSend', 'jw/v1/engines/+/telemetry', 'allow');
-  ctl('addClientRole', DEVICE.username, 'jw-test-device');
+  createTelemetryPublisher(mq, DEVICE);
 });
 afterAll(async () => {
   for (const c of clients) await c.endAsync(true).catch(() => undefined);

@@ -105,3 +105,19 @@ export async function startMosquitto(extraConfig: string[] = []): Promise<Mosqui
     },
   };
 }
+
+/**
+ * A dynamic-security account that may publish to every engine's telemetry topic (the server's admin account only
+ * subscribes): the devices of a test or benchmark that talk to the broker without a server creating them.
+ */
+export function createTelemetryPublisher(mq: Pick<Mosquitto, 'port' | 'admin'>, account: { username: string; password: string }): void {
+  const ctl = (...args: string[]) =>
+    execFileSync('mosquitto_ctrl', ['-h', '127.0.0.1', '-p', String(mq.port), '-u', mq.admin.username, '-P', mq.admin.password, 'dynsec', ...args], {
+      stdio: 'ignore',
+    });
+  const role = `${account.username}-role`;
+  ctl('createClient', account.username, '-p', account.password);
+  ctl('createRole', role);
+  ctl('addRoleACL', role, 'publishClientSend', 'jw/v1/engines/+/telemetry', 'allow');
+  ctl('addClientRole', account.username, role);
+}
