@@ -221,7 +221,19 @@ describe('coolant: tests, calculators, due list to work order', () => {
     await admin.goto(`${stack.baseUrl}/admin/users`);
     await admin.getByRole('tab', { name: 'Additive' }).click();
     const strength = admin.getByLabel('Liquid additive strength');
-    await admin.waitForFunction(() => (document.querySelector('input[formcontrolname=liquidUnitsPerLitre]') as HTMLInputElement | null)?.value !== '');
+    // The very state asserted: the loaded profile is in the form. (A check on the strength field alone passed
+    // while the lazy tab was not yet in the page: a missing input's value is undefined, not ''.)
+    await admin.waitForFunction(
+      () => {
+        // no named inner functions: the bundler's name helper does not exist in the page
+        const [name, liquid] = ['name', 'liquidUnitsPerLitre'].map(
+          (n) => (document.querySelector(`input[formcontrolname=${n}]`) as HTMLInputElement | null)?.value ?? '',
+        );
+        return /demo/i.test(name) && liquid !== '';
+      },
+      null,
+      { timeout: 15000 },
+    );
     assert.match(await admin.getByLabel('Description').inputValue(), /demo/i);
     await strength.fill('2.5');
     // 2.5 units/L x 3.785411784 L/US gal (NIST SP 811) = 9.46 units per US gallon of liquid
