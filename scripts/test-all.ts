@@ -20,6 +20,7 @@ import fs from 'node:fs';
 import { createRequire } from 'node:module';
 import os from 'node:os';
 import path from 'node:path';
+import { failureExcerpt } from './failure-excerpt';
 
 interface Part {
   /** What `tsx scripts/test-all.ts <id> ...` selects; the npm script unless said otherwise. */
@@ -123,7 +124,7 @@ function run(part: Part, logFile: string): Promise<number> {
   });
 }
 
-type Result = { name: string; code: number; seconds: number; skipped?: boolean };
+type Result = { name: string; code: number; seconds: number; skipped?: boolean; log?: string };
 
 const since = (t: number) => `${((Date.now() - t) / 1000).toFixed(0)} s`;
 
@@ -146,7 +147,7 @@ async function runLane(parts: Part[], dir: string, started: number): Promise<Res
     process.stdout.write(`\n----- ${part.name} -----\n`);
     process.stdout.write(fs.readFileSync(logFile));
     process.stdout.write(`----- end of ${part.name}: ${code === 0 ? 'passed' : 'FAILED'} in ${seconds.toFixed(0)} s [${since(started)}] -----\n\n`);
-    results.push({ name: part.name, code, seconds });
+    results.push({ name: part.name, code, seconds, log: code === 0 ? undefined : fs.readFileSync(logFile, 'utf8') });
   }
   return results;
 }
@@ -158,6 +159,10 @@ async function main(): Promise<void> {
   const started = Date.now();
   const results = (await Promise.all(lanes.map((lane) => runLane(lane, dir, started)))).flat();
   fs.rmSync(dir, { recursive: true, force: true });
+  for (const r of results.filter((x) => x.log !== undefined)) {
+    console.log(`\nWhy "${r.name}" failed (from its log above, shortened):`);
+    for (const line of failureExcerpt(r.log!)) console.log(`  | ${line}`);
+  }
   console.log('\nTest parts:');
   for (const r of results) console.log(`  ${r.skipped ? 'NOT RUN' : r.code === 0 ? 'passed ' : 'FAILED '}  ${r.seconds.toFixed(0).padStart(5)} s  ${r.name}`);
   console.log(`  total ${since(started)} (wall clock; three lanes side by side)`);
