@@ -109,9 +109,15 @@ describe('live truth (server stopped and back)', () => {
     await stack.restartServer();
     for (const page of [enginePage, fleetPage]) await page.locator('[data-test=connection-banner]').waitFor({ state: 'detached', timeout: 60000 });
     // The simulator reconnects to the broker and publishes again: fresh values lose their stale mark.
-    await enginePage.waitForFunction(() => !document.querySelector('jw-live-values [data-stale]') && !document.querySelector('[data-test=now-stale]'), null, {
-      timeout: 60000,
-    });
+    // (values shown, none stale: an empty panel would also have no stale mark)
+    await enginePage.waitForFunction(
+      () =>
+        /\d\s?°[CF]/.test(document.querySelector('jw-live-values')?.textContent ?? '') &&
+        !document.querySelector('jw-live-values [data-stale]') &&
+        !document.querySelector('[data-test=now-stale]'),
+      null,
+      { timeout: 60000 },
+    );
     await fleetPage.waitForFunction(
       (name) => {
         const t = [...document.querySelectorAll('jw-engine-tile')].find((el) => (el.textContent ?? '').includes(name));
