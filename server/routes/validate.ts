@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import { MAX_FUTURE_MS } from '../../shared/telemetry-payload';
 import { HttpError } from '../http-error';
 
 /**
@@ -61,3 +62,12 @@ export const instant = z
   .union([z.coerce.number().int(), z.iso.datetime({ offset: true })])
   .transform((v) => (typeof v === 'number' ? v : Date.parse(v)))
   .describe('epoch milliseconds, or ISO 8601 with an offset or Z');
+
+/**
+ * When something was done or measured, as `instant`: not later than now, give or take the same five minutes of
+ * clock difference the telemetry is allowed (a record from the future is a wrong clock or a typo).
+ */
+export const recordedInstant = instant.refine(
+  (t) => t <= Date.now() + MAX_FUTURE_MS,
+  `is in the future (more than ${MAX_FUTURE_MS / 60000} minutes ahead of the server's clock)`,
+);

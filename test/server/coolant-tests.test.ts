@@ -88,6 +88,18 @@ describe('recording a coolant test', () => {
           .expect(400)
       ).body.field,
     ).toBe('testedAt');
+    // the same rule for a top-up; a clock a few minutes ahead (within the 5 minutes telemetry is allowed) is accepted
+    const topUp = await request(t.app)
+      .post(`/api/engines/${conv}/coolant-top-ups`)
+      .set(as('technician'))
+      .send({ volumeL: 2, liquid: 'water', addedAt: future })
+      .expect(400);
+    expect(topUp.body).toMatchObject({ field: 'addedAt', error: expect.stringMatching(/^addedAt: is in the future/) });
+    await request(t.app)
+      .post(`/api/engines/${conv}/coolant-tests`)
+      .set(as('technician'))
+      .send({ method: 'strip', scaUnitsPerGal: 2, testedAt: Date.now() + 4 * 60_000 })
+      .expect(201);
     await request(t.app).post('/api/engines/9999/coolant-tests').set(as('technician')).send({ method: 'strip', scaUnitsPerGal: 2 }).expect(404);
   });
 });
