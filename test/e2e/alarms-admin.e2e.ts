@@ -87,12 +87,16 @@ describe('alarm screens of admins and planners', () => {
 
     await page.getByLabel('Rules of').click();
     await page.getByRole('option', { name: `${engineName}: its own overrides` }).click();
-    const panel = page.locator('mat-expansion-panel').filter({ has: page.locator('mat-panel-title', { hasText: new RegExp(`^\\s*${TITLE}`) }) });
+    // the engine's own rules, not the profile's still on the page while they load (typing there would be lost)
+    const panel = page
+      .locator(`mat-accordion[data-rules-of="${engineId}"] mat-expansion-panel`)
+      .filter({ has: page.locator('mat-panel-title', { hasText: new RegExp(`^\\s*${TITLE}`) }) });
     await panel.locator('mat-expansion-panel-header').click();
     const limit = panel.getByLabel('Limit');
     await limit.waitFor();
     assert.match((await panel.locator('mat-form-field', { hasText: 'Limit' }).first().textContent()) ?? '', /°C/, 'the limit field shows its unit');
-    await limit.fill(String(LOWER_LIMIT_C));
+    await fillChecked(limit, String(LOWER_LIMIT_C));
+    await panel.locator('.changed').waitFor(); // the draft holds the edit
     await panel.getByRole('button', { name: /Preview/ }).click();
     const result = panel.getByRole('status').filter({ hasText: /would have been raised/ });
     await result.waitFor({ timeout: 30000 });

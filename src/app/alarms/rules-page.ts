@@ -53,6 +53,8 @@ export class RulesPage {
   /** The engine the default profile is previewed on: the one chosen, else the first engine. */
   protected readonly previewEngineId = computed(() => this.chosenPreviewEngine() ?? this.engines()[0]?.id ?? null);
   protected readonly rules = signal<RuleDef[]>([]);
+  /** Whose rules `rules` holds (null: the default profile; undefined: none yet). Shown only when it is the choice. */
+  protected readonly loadedFor = signal<number | null | undefined>(undefined);
   protected readonly drafts = signal<Record<string, Draft>>({});
   protected readonly previews = signal<Record<string, Preview | string>>({});
   protected readonly error = signal<string | null>(null);
@@ -100,6 +102,7 @@ export class RulesPage {
     this.engineId.set(id);
     if (id !== null) this.chosenPreviewEngine.set(id);
     this.previews.set({});
+    this.error.set(null);
     await this.load();
   }
 
@@ -222,6 +225,8 @@ export class RulesPage {
     const id = this.engineId();
     try {
       const { rules } = await firstValueFrom(this.api.rules(id));
+      // an answer for a choice no longer made (the profile's, after an engine was chosen) must not replace its rules
+      if (this.engineId() !== id) return;
       const prefs = this.prefs.preferences();
       const drafts: Record<string, Draft> = {};
       for (const r of rules) {
@@ -242,8 +247,10 @@ export class RulesPage {
       this.paramControls.set(controls);
       this.rules.set(rules);
       this.drafts.set(drafts);
+      this.loadedFor.set(id);
       this.error.set(null);
     } catch (err) {
+      if (this.engineId() !== id) return;
       this.error.set(errorText(err, 'The rules could not be loaded'));
     }
   }
