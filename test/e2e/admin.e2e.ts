@@ -8,7 +8,7 @@ import assert from 'node:assert/strict';
 import { after, before, describe, it } from 'node:test';
 import mqtt, { type MqttClient } from 'mqtt';
 import type { Browser, Page } from 'playwright-core';
-import { ACCOUNTS, launchBrowser, shot, signIn, startStack, waitUntil, type Stack } from './harness';
+import { ACCOUNTS, fillChecked, launchBrowser, openDialog, pickOption, shot, signIn, startStack, waitUntil, type Stack } from './harness';
 
 // The engine typed into the form, in US units, and what the API must store in SI.
 // Conversions: 1 US gal = 3.785411784 L, 1 psi = 6.894757293 kPa (NIST SP 811, appendix B); °C = (°F − 32) / 1.8.
@@ -88,21 +88,19 @@ describe('administration (admin)', () => {
     await page.goto(`${stack.baseUrl}/admin/engines`);
     await page.getByRole('table', { name: 'Engines' }).getByRole('row').nth(1).waitFor();
     await page.getByRole('button', { name: 'Add engine' }).click();
-    const dlg = page.getByRole('dialog');
+    const dlg = await openDialog(page); // open, and the focus inside: typing before that could land in another field
     await dlg.getByRole('heading', { name: 'Add an engine' }).waitFor();
 
     const sites = (await stack.api<{ id: number; name: string }[]>('GET', '/api/sites', adminToken)).body;
     const site = sites[sites.length - 1];
-    const choose = async (label: RegExp, option: string) => {
-      await dlg.getByRole('combobox', { name: label }).click();
-      await page.getByRole('option', { name: option, exact: true }).click();
-    };
-    await dlg.getByLabel(/^Name/).fill(NEW_ENGINE.name);
+    const choose = (label: RegExp, option: string) =>
+      pickOption(page, dlg.getByRole('combobox', { name: label }), new RegExp(`^\\s*${option.replace(/[.*+?^${}()|[\]\\]/g, '\\$&')}\\s*$`));
+    await fillChecked(dlg.getByLabel(/^Name/), NEW_ENGINE.name);
     await choose(/^Site/, site.name);
     await choose(/^Duty/, 'Standby');
     await choose(/^Coolant/, 'Conventional (with SCA)');
     await choose(/^Glycol$/, 'Propylene glycol');
-    await dlg.getByLabel(/^Glycol by volume/).fill(NEW_ENGINE.glycolPercent);
+    await fillChecked(dlg.getByLabel(/^Glycol by volume/), NEW_ENGINE.glycolPercent);
     const capacity = dlg.getByLabel(/^Cooling-system capacity/);
     // The inputs say their unit: the user's US units.
     const field = (label: string) => dlg.locator('mat-form-field').filter({ hasText: label });
@@ -111,12 +109,12 @@ describe('administration (admin)', () => {
     assert.match((await field('Coolant safe to open below').textContent()) ?? '', /°F/);
 
     // A capacity beyond the limit (5000 L = 1320.86 US gal) is refused on the field, in the field's unit.
-    await capacity.fill('2000');
+    await fillChecked(capacity, '2000');
     await dlg.getByRole('button', { name: 'Add engine' }).click();
     const capError = field('Cooling-system capacity').locator('mat-error');
     await capError.waitFor();
     assert.match((await capError.textContent()) ?? '', /At most 1320\.8\d? US gal/);
-    await capacity.fill('0');
+    await fillChecked(capacity, '0');
     await dlg.getByRole('button', { name: 'Add engine' }).click();
     await capError.filter({ hasText: /At least/ }).waitFor();
     assert.equal(
@@ -126,14 +124,14 @@ describe('administration (admin)', () => {
     );
     await shot(page, 'admin-engine-form-bad-capacity');
 
-    await capacity.fill(NEW_ENGINE.capacityGal);
-    await dlg.getByLabel(/^Pressure cap rating/).fill(NEW_ENGINE.capPsi);
-    await dlg.getByLabel(/^Oil-drain interval/).fill(NEW_ENGINE.oilDrainH);
-    await dlg.getByLabel(/^Run hours/).fill(NEW_ENGINE.runHours);
-    await dlg.getByLabel(/^Coolant safe to open below/).fill(NEW_ENGINE.safeOpenF);
+    await fillChecked(capacity, NEW_ENGINE.capacityGal);
+    await fillChecked(dlg.getByLabel(/^Pressure cap rating/), NEW_ENGINE.capPsi);
+    await fillChecked(dlg.getByLabel(/^Oil-drain interval/), NEW_ENGINE.oilDrainH);
+    await fillChecked(dlg.getByLabel(/^Run hours/), NEW_ENGINE.runHours);
+    await fillChecked(dlg.getByLabel(/^Coolant safe to open below/), NEW_ENGINE.safeOpenF);
     await dlg.getByLabel('Has a jacket-water heater').check();
-    await dlg.getByLabel(/^Heater setpoint/).fill(NEW_ENGINE.heaterF);
-    assert.equal(await capError.count(), 0, 'the capacity error is gone');
+    await fillChecked(dlg.getByLabel(/^Heater setpoint/), NEW_ENGINE.heaterF);
+    await capError.waitFor({ state: 'detached' }); // the capacity error is gone
     await shot(page, 'admin-engine-form');
     await dlg.getByRole('button', { name: 'Add engine' }).click();
     await dlg.waitFor({ state: 'detached' });
@@ -165,9 +163,8 @@ describe('administration (admin)', () => {
     await page.getByRole('table', { name: 'Devices' }).getByRole('row').nth(1).waitFor();
     await shot(page, 'admin-devices');
     await page.getByRole('button', { name: 'Add device' }).click();
-    const dlg = page.getByRole('dialog');
-    await dlg.getByRole('combobox', { name: /^Engine/ }).click();
-    await page.getByRole('option', { name: NEW_ENGINE.name, exact: true }).click();
+    const dlg = await openDialog(page);
+    await pickOption(page, dlg.getByRole('combobox', { name: /^Engine/ }), NEW_ENGINE.name);
     await dlg.getByRole('button', { name: 'Add device' }).click();
 
     const secretDlg = page.getByRole('dialog').filter({ hasText: 'Shown only now' });

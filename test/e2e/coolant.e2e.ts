@@ -130,7 +130,9 @@ describe('coolant: tests, calculators, due list to work order', () => {
     const card = page.locator('#freeze-point');
     await card.getByLabel('Glycol share').fill('50');
     const answer = card.locator('.answer');
-    await answer.waitFor();
+    // The answer is on the page from the start (the share starts at 50 % by volume): wait for the answer of
+    // this choice, the share's unit saying "by mass", then read it.
+    await card.locator('mat-form-field', { hasText: '% by mass' }).waitFor();
     await shot(page, 'coolant-3-freeze-point');
     const text = (await answer.textContent()) ?? '';
     assert.match(text, /°C/);

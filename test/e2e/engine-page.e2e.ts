@@ -151,7 +151,17 @@ describe('engine page (history and live)', () => {
       `normal band drawn on every chart (${charts.map((c) => c.bands)})`,
     );
     // The engine was started a few seconds ago: its start is marked, and named in words on the top chart.
-    await page.waitForFunction(() => document.querySelectorAll('jw-trend-chart .apexcharts-xaxis-annotations line').length > 0, null, { timeout: 20000 });
+    // (the wait is for that very label: a stop mark from the stored history can be drawn before the start is)
+    await page
+      .waitForFunction(
+        () =>
+          [...(document.querySelector('jw-trend-chart section.channel')?.querySelectorAll('.apexcharts-xaxis-annotations text') ?? [])].some((t) =>
+            /started/.test(t.textContent ?? ''),
+          ),
+        null,
+        { timeout: 20000 },
+      )
+      .catch(() => undefined); // the assertion below names the labels there are
     const marked = await drawnCharts(page);
     assert.ok(
       marked[0].markLabels.some((t) => /started/.test(t)),

@@ -11,7 +11,7 @@ import mqtt, { type MqttClient } from 'mqtt';
 import type { Browser, Page } from 'playwright-core';
 import { encodeSparkplugPayload } from '../../shared/sparkplug/encode';
 import { DataType } from '../../shared/sparkplug/schema';
-import { ACCOUNTS, launchBrowser, pickOption, shot, signIn, startStack, waitUntil, type Stack } from './harness';
+import { ACCOUNTS, fillChecked, launchBrowser, openDialog, pickOption, shot, signIn, startStack, waitUntil, type Stack } from './harness';
 
 const GROUP = 'plant-basement';
 const NODE = 'edge-7';
@@ -60,13 +60,13 @@ describe('Sparkplug B identity and metric names of a gateway (administrator)', (
     await page.goto(`${stack.baseUrl}/admin/devices`);
     await page.getByRole('table', { name: 'Devices' }).getByRole('row').nth(1).waitFor();
     await page.getByRole('button', { name: 'Add device' }).click();
-    const dlg = page.getByRole('dialog');
+    const dlg = await openDialog(page); // the focus inside first: typing before that could land in another field
     await pickOption(page, dlg.getByRole('combobox', { name: /^Engine/ }), engine.name);
     // an edge node alone is not an identity: both are asked for
-    await dlg.getByLabel('Edge node id').fill(NODE);
+    await fillChecked(dlg.getByLabel('Edge node id'), NODE);
     await dlg.getByRole('button', { name: 'Add device' }).click();
     await dlg.getByText('Needed for a Sparkplug gateway.').waitFor();
-    await dlg.getByLabel('Group id').fill(GROUP);
+    await fillChecked(dlg.getByLabel('Group id'), GROUP);
     await shot(page, 'sparkplug-01-add-device');
     await dlg.getByRole('button', { name: 'Add device' }).click();
 
@@ -86,8 +86,8 @@ describe('Sparkplug B identity and metric names of a gateway (administrator)', (
   it('maps a metric name the gateway uses to a channel with its unit', async () => {
     const row = page.getByRole('table', { name: 'Devices' }).getByRole('row').filter({ hasText: device.username });
     await row.getByRole('button', { name: 'Metric names' }).click();
-    const dlg = page.getByRole('dialog');
-    await dlg.getByLabel('Metric name').fill(METRIC);
+    const dlg = await openDialog(page);
+    await fillChecked(dlg.getByLabel('Metric name'), METRIC);
     await pickOption(page, dlg.getByRole('combobox', { name: 'Channel' }), 'Coolant temperature (coolant_temp)');
     await pickOption(page, dlg.getByRole('combobox', { name: 'Unit if not sent' }), '°F');
     await shot(page, 'sparkplug-02-metric-names');
