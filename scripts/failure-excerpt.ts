@@ -5,6 +5,7 @@ const EXCERPT_LINES = 40;
 const JEST_LINES_PER_FAILURE = 6;
 
 const isStackFrame = (l: string) => /^\s+at /.test(l);
+const isJestFailure = (l: string) => /^\s*● /.test(l) && l.trim() !== '● Console';
 
 /**
  * The why of a failed test part in a few lines, printed again just above the summary so that the end of the
@@ -19,8 +20,16 @@ export function failureExcerpt(log: string): string[] {
   const nodeSection = lines.findIndex((l) => /^\S*\s*failing tests:$/.test(l.trim()));
   let picked: string[];
   if (nodeSection >= 0) picked = lines.slice(nodeSection + 1);
-  else if (lines.some((l) => /^\s*● /.test(l))) {
-    picked = lines.flatMap((l, i) => (/^\s*● /.test(l) ? lines.slice(i, i + 1 + JEST_LINES_PER_FAILURE) : []));
+  else if (lines.some(isJestFailure)) {
+    // jest prints each failure twice (as it happens and in its summary), and "● Console" for logged lines
+    const headings = new Set<string>();
+    picked = lines.flatMap((l, i) => {
+      if (!isJestFailure(l) || headings.has(l.trim())) return [];
+      headings.add(l.trim());
+      const indent = l.search(/\S/);
+      const body = lines.slice(i + 1).findIndex((b) => b.search(/\S/) <= indent); // the message ends where the indent does
+      return lines.slice(i, i + 1 + Math.min(JEST_LINES_PER_FAILURE, body < 0 ? Infinity : body));
+    });
   } else picked = lines.slice(-EXCERPT_LINES);
   return picked.slice(0, EXCERPT_LINES).map((l) => (l.length > 240 ? `${l.slice(0, 240)}…` : l));
 }

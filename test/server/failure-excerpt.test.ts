@@ -19,16 +19,18 @@ describe('failureExcerpt', () => {
     ]);
   });
 
-  it("keeps each jest '●' heading with the lines of its message", () => {
-    const log = [
-      'PASS a.test.ts',
+  it("keeps each jest '●' failure once with the lines of its message, not the '● Console' blocks", () => {
+    const failure = [
       '  ● suite › one',
       '',
       '    expect(received).toBe(expected)',
       '    Expected: 2',
       '    Received: 3',
       '      at Object.<anonymous> (a.test.ts:3:1)',
-    ].join('\n');
+    ];
+    const log = ['  ● Console', '    console.log', '      something logged', ...failure, 'FAIL a.test.ts', 'Summary of all failing tests', ...failure].join(
+      '\n',
+    );
     expect(failureExcerpt(log)).toEqual(['  ● suite › one', '    expect(received).toBe(expected)', '    Expected: 2', '    Received: 3']);
   });
 
