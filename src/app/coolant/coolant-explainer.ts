@@ -8,7 +8,7 @@ import { MatIconModule } from '@angular/material/icon';
   imports: [MatIconModule],
   template: `
     <aside class="explainer" aria-label="Why the coolant rules matter">
-      <h3>Why it matters</h3>
+      <h2>Why it matters</h2>
       <p>
         <strong>What the additive does.</strong> Glycol only lowers the freeze point. The inhibitors (nitrite, often with molybdate, in conventional heavy-duty
         coolant; organic acids in extended-life coolant) lay a thin protective film on the metal, hold the pH and keep scale from forming.
@@ -25,7 +25,7 @@ import { MatIconModule } from '@angular/material/icon';
         <strong>Where the rules come from.</strong> Freeze points from published handbook tables; pH from the coolant standards (ASTM D3306 / D6210); nitrite,
         molybdate, reserve-alkalinity and additive-unit limits and doses are common practice of the trade. The engine and coolant maker's figures come first.
       </p>
-      <h3>Cautions</h3>
+      <h2>Cautions</h2>
       <ul class="cautions">
         <li>
           <mat-icon aria-hidden="true" fontIcon="warning_amber" />Never open a hot, pressurised cooling system: let it cool and release the pressure at the
@@ -51,7 +51,8 @@ import { MatIconModule } from '@angular/material/icon';
       margin: 12px 0;
       font-size: 0.9rem;
     }
-    h3 {
+    /* h2: it follows the page's h1 on the calculators (headings may not skip a level) */
+    h2 {
       font-size: 1rem;
       margin: 8px 0 4px;
     }
