@@ -40,7 +40,7 @@ it('each escalation of an unacknowledged alarm is sent once, though two servers 
   await second.alarms.idle();
   const sent = await t.ctx.models.OutboxMessage.findAll({ where: { alarmId: alarm.id }, order: [['id', 'ASC']] });
   expect(sent.map((m) => m.to)).toEqual([t.users.technician.email, t.users.backup.email, t.users.planner.email]);
-  const events = await t.ctx.models.AlarmEvent.findAll({ where: { alarmId: alarm.id, event: { [Op.in]: ['notified', 'escalated'] } } });
+  const events = await t.ctx.models.AlarmEvent.findAll({ where: { alarmId: alarm.id, event: { [Op.in]: ['notified', 'escalated'] } }, order: [['id', 'ASC']] });
   expect(events.map((e) => e.event)).toEqual(['notified', 'escalated', 'escalated']);
   await waitFor(async () => (await t.ctx.models.CaughtMail.count({ where: { subject: VERY_HIGH } })) === 3 || null, 10000);
 });

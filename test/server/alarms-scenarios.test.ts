@@ -197,7 +197,6 @@ it('five faults on five engines: each raises its own alarm once, e-mails it, esc
   ).catch(() => {
     throw new Error(`within 2 minutes only ${[...raised.keys()].join(', ') || 'none'} raised their alarm`);
   });
-  expect(Date.now() - started).toBeLessThan(120_000);
 
   const overheat = raised.get('overheat')!;
   expect(overheat.value).toBeGreaterThan(98);
@@ -230,8 +229,11 @@ it('five faults on five engines: each raises its own alarm once, e-mails it, esc
     1000,
   );
   for (const m of escalated) expect(m.subject).toMatch(/^Not yet acknowledged:/);
-  const detail = (await api<{ escalationLevel: number; history: { event: string }[] }>('GET', `/api/alarms/${overheat.id}`, admin)).body;
-  expect(detail.escalationLevel).toBe(2);
+  // (the mail can be caught before the level is written: wait for the level itself)
+  const detail = await waitFor(async () => {
+    const d = (await api<{ escalationLevel: number; history: { event: string }[] }>('GET', `/api/alarms/${overheat.id}`, admin)).body;
+    return d.escalationLevel === 2 && d;
+  }, 10_000);
   expect(detail.history.map((h) => h.event)).toEqual(expect.arrayContaining(['notified', 'escalated', 'escalated']));
 
   // run on to 3 minutes (90 simulated minutes): the normal engines raise nothing, each fault's alarm stays one

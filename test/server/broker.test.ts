@@ -134,7 +134,8 @@ test('every bad payload kind is rejected and counted; the good readings around t
   const r = await until(
     'rejections persisted',
     () => rejections(d.deviceId),
-    (x) => Object.keys(x).length >= 8,
+    // the counts are written every 2 s: wait for the second bad unit (the mixed payload's) too
+    (x) => Object.keys(x).length >= 8 && x.bad_unit === 2,
   );
   expect(r).toEqual({ not_json: 1, too_large: 1, schema: 1, not_finite: 1, future_timestamp: 1, old_timestamp: 1, unknown_channel: 1, bad_unit: 2 });
   const detail = await db.get('SELECT last_detail FROM device_rejections WHERE device_id = ? AND reason = ?', [d.deviceId, 'unknown_channel']);

@@ -25,7 +25,7 @@ test('checks run off the main thread, give the right answers, and the process ex
   let out = '';
   child.stdout.on('data', (d: Buffer) => (out += d.toString()));
   const stopper = setTimeout(() => child.pid && process.kill(-child.pid, 'SIGKILL'), 30_000);
-  const [code, signal] = await new Promise<[number | null, NodeJS.Signals | null]>((resolve) => child.on('exit', (c, s) => resolve([c, s])));
+  const [code, signal] = await new Promise<[number | null, NodeJS.Signals | null]>((resolve) => child.on('close', (c, s) => resolve([c, s]))); // after stdout ends
   clearTimeout(stopper);
   expect(signal).toBeNull(); // not killed by the 30 s stopper: it ended on its own
   expect(code).toBe(0);

@@ -9,6 +9,7 @@ import type { AddressInfo } from 'node:net';
 import type { Express } from 'express';
 import { io as ioClient, type Socket } from 'socket.io-client';
 import request from 'supertest';
+import { until } from './support/until';
 import path from 'node:path';
 import { createApp } from '../../server/app';
 import { alarmRouters } from '../../server/routes';
@@ -318,7 +319,14 @@ describe('live push watch', () => {
       { engineId: ids.engineB, channel: 'coolant_temp', ts: Date.now(), value: 80, quality: 0 },
       { engineId: ids.engineA, channel: 'coolant_temp', ts: Date.now(), value: 81, quality: 0 },
     ]);
-    await new Promise((r) => setTimeout(r, 300));
+    // B and A go out in the same push: once A is here, a leak of B would be too
+    await until(
+      'engine A pushed',
+      async () => got.length,
+      (n) => n > 0,
+      10_000,
+      20,
+    );
     expect(got.map((m) => m.engineId)).toEqual([ids.engineA]);
   });
 

@@ -20,7 +20,7 @@ export function npmRun(script: string, args: string[], env: NodeJS.ProcessEnv, s
     let err = '';
     child.stdout.on('data', (d) => (out += d));
     child.stderr.on('data', (d) => (err += d));
-    child.once('exit', (code) => resolve({ code, out, err }));
+    child.once('close', (code) => resolve({ code, out, err })); // 'close': after the output streams end, unlike 'exit'
     if (stdin !== null) child.stdin.write(stdin);
     child.stdin.end();
   });
