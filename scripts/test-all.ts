@@ -145,9 +145,10 @@ async function runLane(parts: Part[], dir: string, started: number): Promise<Res
     const code = await run(part, logFile);
     const seconds = (Date.now() - t) / 1000;
     process.stdout.write(`\n----- ${part.name} -----\n`);
-    process.stdout.write(fs.readFileSync(logFile));
+    const log = fs.readFileSync(logFile, 'utf8');
+    process.stdout.write(log);
     process.stdout.write(`----- end of ${part.name}: ${code === 0 ? 'passed' : 'FAILED'} in ${seconds.toFixed(0)} s [${since(started)}] -----\n\n`);
-    results.push({ name: part.name, code, seconds, log: code === 0 ? undefined : fs.readFileSync(logFile, 'utf8') });
+    results.push({ name: part.name, code, seconds, log: code === 0 ? undefined : log });
   }
   return results;
 }

@@ -93,8 +93,7 @@ describe('administration (admin)', () => {
 
     const sites = (await stack.api<{ id: number; name: string }[]>('GET', '/api/sites', adminToken)).body;
     const site = sites[sites.length - 1];
-    const choose = (label: RegExp, option: string) =>
-      pickOption(page, dlg.getByRole('combobox', { name: label }), new RegExp(`^\\s*${option.replace(/[.*+?^${}()|[\]\\]/g, '\\$&')}\\s*$`));
+    const choose = (label: RegExp, option: string) => pickOption(page, dlg.getByRole('combobox', { name: label }), option, { exact: true });
     await fillChecked(dlg.getByLabel(/^Name/), NEW_ENGINE.name);
     await choose(/^Site/, site.name);
     await choose(/^Duty/, 'Standby');
@@ -164,7 +163,7 @@ describe('administration (admin)', () => {
     await shot(page, 'admin-devices');
     await page.getByRole('button', { name: 'Add device' }).click();
     const dlg = await openDialog(page);
-    await pickOption(page, dlg.getByRole('combobox', { name: /^Engine/ }), NEW_ENGINE.name);
+    await pickOption(page, dlg.getByRole('combobox', { name: /^Engine/ }), NEW_ENGINE.name, { exact: true });
     await dlg.getByRole('button', { name: 'Add device' }).click();
 
     const secretDlg = page.getByRole('dialog').filter({ hasText: 'Shown only now' });

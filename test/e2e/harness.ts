@@ -368,10 +368,10 @@ export async function fillChecked(field: Locator, value: string): Promise<void> 
 
 /**
  * Choose an option of a Material select: opens its panel (again, if the first click came before the field was
- * ready) until the option is there, clicks it, and waits until the field shows it.
+ * ready) until the option is there, clicks it, and waits until the field shows it. `exact`: the whole name, not a part.
  */
-export async function pickOption(page: Page, field: Locator, name: string | RegExp): Promise<void> {
-  const option = page.getByRole('option', { name }).first();
+export async function pickOption(page: Page, field: Locator, name: string | RegExp, opts: { exact?: boolean } = {}): Promise<void> {
+  const option = page.getByRole('option', { name, exact: opts.exact }).first();
   const panel = page.getByRole('listbox');
   for (let attempt = 0; attempt < 4; attempt++) {
     if (!(await panel.isVisible())) await field.click();
